@@ -1,0 +1,31 @@
+// Bundles every entry point with esbuild. Each bundle is self-contained so the
+// packaged extension ships no node_modules.
+import * as esbuild from 'esbuild';
+import { chmodSync, existsSync } from 'node:fs';
+
+const watch = process.argv.includes('--watch');
+const common = { bundle: true, sourcemap: true, logLevel: 'warning', target: 'es2022' };
+
+const entries = [
+  // Command line: plain Node, runnable as `gainline` through package.json "bin".
+  { ...common, entryPoints: ['extension/cli/main.ts'], outfile: 'dist/cli.js', platform: 'node', format: 'cjs',
+    banner: { js: '#!/usr/bin/env node' } },
+  // Engine worker thread used by the CLI and the extension host for parallel reading.
+  { ...common, entryPoints: ['extension/worker/engineWorker.ts'], outfile: 'dist/engineWorker.js', platform: 'node', format: 'cjs' },
+];
+if (existsSync('extension/host/extension.ts')) {
+  entries.push({ ...common, entryPoints: ['extension/host/extension.ts'], outfile: 'dist/extension.js', platform: 'node',
+    format: 'cjs', external: ['vscode'] });
+}
+if (existsSync('webview/src/main.ts')) {
+  entries.push({ ...common, entryPoints: ['webview/src/main.ts'], outfile: 'dist/webview.js', platform: 'browser',
+    format: 'iife', loader: { '.ttf': 'file', '.css': 'text' } });
+}
+
+const present = entries.filter((e) => existsSync(e.entryPoints[0]));
+if (watch) {
+  for (const e of present) (await esbuild.context(e)).watch();
+} else {
+  await Promise.all(present.map((e) => esbuild.build(e)));
+  if (existsSync('dist/cli.js')) chmodSync('dist/cli.js', 0o755);
+}

@@ -1,0 +1,66 @@
+/**
+ * The columnar in-memory form of one prediction dump.
+ *
+ * Every reader produces exactly this shape. One row of the file is one (query, item) pair; the
+ * row's fields live at the same index in every column. No JS object is made per row: a 10M-row
+ * dump is a handful of typed arrays plus two interned string pools.
+ */
+import type { StringPool } from './stringPool';
+
+export type DumpFormat = 'csv' | 'tsv' | 'jsonl' | 'run' | 'svmlight' | 'parquet';
+
+/** An extra column kept for slicing results (locale, device, ...): one interned value per row. */
+export interface SegmentColumn {
+  readonly name: string;
+  readonly values: StringPool;
+  /** Interned value id per row. */
+  readonly ofRow: Uint32Array;
+}
+
+/** Size and modification time seen when reading started; used to detect a file rewritten mid-read. */
+export interface FileStamp {
+  readonly size: number;
+  readonly mtimeMs: number;
+}
+
+/** What the reader noticed but did not treat as an error. All counts, never silently dropped rows. */
+export interface ReaderNotes {
+  /** Rows whose label is absent (run file item with no judgment): counted as grade 0 by metrics. */
+  unjudgedRows: number;
+  /** Rows whose score was empty, NaN or infinite. Stored as NaN in `score`. */
+  missingScoreRows: number;
+  /** Judgment lines whose query never appears in the run (only for run + judgments input). */
+  judgmentsWithoutRun: number;
+  /** Distinct queries in the judgments file that have no row in the run. */
+  judgedQueriesWithoutRun: number;
+  /** Free-form, human-readable notes (for example "ranked by score; rank column ignored"). */
+  messages: string[];
+}
+
+export interface RankedDump {
+  /** Absolute or workspace-relative path that was read (the main dump, not the judgments/scores side file). */
+  readonly path: string;
+  readonly format: DumpFormat;
+  readonly stamp: FileStamp;
+  readonly rowCount: number;
+  /** Interned query id per row (index into `queries`). */
+  readonly query: Uint32Array;
+  /** Interned item id per row (index into `items`). */
+  readonly item: Uint32Array;
+  /** Graded relevance per row. NaN = unjudged (metrics treat it as 0 and count it). */
+  readonly label: Float64Array;
+  /** Model score per row. NaN = missing or non-finite (counted; see conventions for handling). */
+  readonly score: Float64Array;
+  /** 1-based line number of the row in the decompressed text (0 when the format has no lines, e.g. Parquet). */
+  readonly line: Uint32Array;
+  /** Byte offset of the row's first byte in the decompressed text (-1 when not applicable). */
+  readonly offset: Float64Array;
+  readonly queries: StringPool;
+  readonly items: StringPool;
+  readonly segments: readonly SegmentColumn[];
+  readonly notes: ReaderNotes;
+}
+
+export function emptyNotes(): ReaderNotes {
+  return { unjudgedRows: 0, missingScoreRows: 0, judgmentsWithoutRun: 0, judgedQueriesWithoutRun: 0, messages: [] };
+}
