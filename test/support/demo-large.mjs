@@ -1,0 +1,48 @@
+// Writes one large CSV dump in the demo scenario's shape, for benchmarks: the same columns as
+// demo/runs/model-a.csv, query sizes varying around rows/queries, graded 0–4, scores correlated
+// with grades. Streams in chunks so 10M rows never sit in memory.
+import { closeSync, openSync, writeSync } from 'node:fs';
+import { DEVICES, LOCALES, PRODUCTS } from './demo-vocabulary.mjs';
+import { randomTools, seededRandom } from './demo-random.mjs';
+
+const CHUNK_CHARS = 4 << 20;
+// Cumulative grade probabilities for grades 0..4: most items in a candidate list are not relevant.
+const GRADE_CDF = [0.55, 0.75, 0.88, 0.96, 1];
+
+export function writeLargeDump(file, totalRows, queryCount, seed) {
+  const t = randomTools(seededRandom(seed));
+  const fd = openSync(file, 'w');
+  let bytes = 0;
+  let chunk = 'query,item,label,score,locale,device\n';
+  const flush = () => {
+    bytes += writeSync(fd, chunk);
+    chunk = '';
+  };
+  const mean = totalRows / queryCount;
+  let written = 0;
+  let q = 0;
+  while (written < totalRows) {
+    const remainingQueries = Math.max(1, queryCount - q);
+    const target = remainingQueries === 1 ? totalRows - written : Math.round(mean * (0.5 + t.rand()));
+    const size = Math.max(1, Math.min(target, totalRows - written));
+    const product = PRODUCTS[q % PRODUCTS.length];
+    const text = `${product.en} ${product.variants[q % product.variants.length]} ${q + 1}`;
+    const tail = `,${LOCALES[q % LOCALES.length]},${t.rand() < 0.58 ? DEVICES[1] : DEVICES[0]}\n`;
+    const shift = t.normal() * 0.4;
+    for (let i = 0; i < size; i++) {
+      const u = t.rand();
+      let grade = 0;
+      while (u >= GRADE_CDF[grade]) grade++;
+      // Distinct items within a query: i * prime stays distinct modulo 900000 for i < 900000.
+      const sku = 100000 + ((q * 7919 + i * 104729) % 900000);
+      const score = 0.7 * grade + t.normal() + shift;
+      chunk += `${text},SKU-${sku},${grade},${score.toFixed(4)}${tail}`;
+      if (chunk.length >= CHUNK_CHARS) flush();
+    }
+    written += size;
+    q++;
+  }
+  flush();
+  closeSync(fd);
+  return { rows: written, queries: q, bytes };
+}
