@@ -13,7 +13,7 @@ export function writeLargeDump(file, totalRows, queryCount, seed) {
   const t = randomTools(seededRandom(seed));
   const fd = openSync(file, 'w');
   let bytes = 0;
-  let chunk = 'query,item,label,score,locale,device\n';
+  let chunk = 'query,product_id,grade,score,locale,device\n';
   const flush = () => {
     bytes += writeSync(fd, chunk);
     chunk = '';

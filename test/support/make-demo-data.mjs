@@ -26,7 +26,7 @@ function rowsForModel(rows, model) {
 }
 
 function writeCsv(file, rows) {
-  const lines = ['query,item,label,score,locale,device'];
+  const lines = ['query,product_id,grade,score,locale,device'];
   for (const r of rows) {
     lines.push([csvField(r.query.text), r.item.id, r.grade, r.score, r.query.locale, r.query.device].join(','));
   }
@@ -35,7 +35,7 @@ function writeCsv(file, rows) {
 
 function writeJsonLinesGz(file, rows) {
   const lines = rows.map((r) =>
-    JSON.stringify({ query: r.query.text, item: r.item.id, label: r.grade, score: r.score, locale: r.query.locale, device: r.query.device }),
+    JSON.stringify({ query: r.query.text, product_id: r.item.id, grade: r.grade, score: r.score, locale: r.query.locale, device: r.query.device }),
   );
   // mtime 0 in the gzip header keeps the file byte-identical between runs.
   writeFileSync(file, gzipSync(Buffer.from(lines.join('\n') + '\n'), { level: 9 }));
@@ -45,8 +45,8 @@ function writeParquet(file, rows) {
   const buffer = parquetWriteBuffer({
     columnData: [
       { name: 'query', data: rows.map((r) => r.query.text), type: 'STRING' },
-      { name: 'item', data: rows.map((r) => r.item.id), type: 'STRING' },
-      { name: 'label', data: rows.map((r) => r.grade), type: 'INT32' },
+      { name: 'product_id', data: rows.map((r) => r.item.id), type: 'STRING' },
+      { name: 'grade', data: rows.map((r) => r.grade), type: 'INT32' },
       { name: 'score', data: rows.map((r) => r.score), type: 'DOUBLE' },
       { name: 'locale', data: rows.map((r) => r.query.locale), type: 'STRING' },
       { name: 'device', data: rows.map((r) => r.query.device), type: 'STRING' },
