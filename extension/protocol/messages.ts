@@ -1,0 +1,457 @@
+/**
+ * The one typed protocol between the extension host and the webview (and, through `worker.ts`, the
+ * engine worker). Everything here is plain JSON: no Map, no typed array, no NaN — a missing or
+ * undefined number travels as `null`. The webview asks for what it shows, a page at a time; it is
+ * never sent a whole dump.
+ */
+import type { CancelEnvelope, RequestEnvelope, ResponseEnvelope } from './request';
+
+// ---------------------------------------------------------------------------------------------
+// Shared view models
+// ---------------------------------------------------------------------------------------------
+
+/** A number that may be undefined for this query/segment (skipped, no data). */
+export type MaybeNumber = number | null;
+
+export interface FileInfo {
+  /** Absolute path on disk. */
+  readonly path: string;
+  /** Base name for titles. */
+  readonly name: string;
+  /** 'csv' | 'tsv' | 'jsonl' | 'run' | 'svmlight' | 'parquet'. */
+  readonly format: string;
+  readonly rowCount: number;
+  readonly sizeBytes: number;
+  /** False for Parquet and compressed files: "reveal in file" cannot show a text line. */
+  readonly textual: boolean;
+}
+
+/** The conventions as shown to people, plus the structured values. */
+export interface ConventionsView {
+  /** "exponential (2^g − 1)", "linear (g)", "map 0→0, 1→1, 2→3". */
+  readonly gain: string;
+  readonly ties: 'average' | 'pessimistic' | 'optimistic' | 'file-order';
+  readonly noRelevant: 'skip' | 'zero' | 'one';
+  readonly relevantFrom: number;
+  readonly maxGrade: MaybeNumber;
+  readonly rbpPersistence: number;
+  /** One line for tooltips and exports: "gain exponential · ties average · no-relevant skip · relevant ≥ 1". */
+  readonly summary: string;
+}
+
+export interface MetricColumn {
+  /** As written by the user: 'ndcg@10', 'ap', ... (sort key for `queryPage`). */
+  readonly key: string;
+  /** Display label: 'NDCG@10', 'AP', ... */
+  readonly label: string;
+  readonly mean: MaybeNumber;
+  /** Queries that entered the mean. */
+  readonly counted: number;
+}
+
+export interface SensitivityView {
+  readonly label: string;
+  readonly mean: MaybeNumber;
+  readonly counted: number;
+  /** mean − headline mean under the current conventions. */
+  readonly delta: MaybeNumber;
+}
+
+export interface DegenerateView {
+  readonly singleItemQueries: number;
+  readonly noRelevantQueries: number;
+  readonly duplicateRows: number;
+  readonly missingScoreRows: number;
+  readonly unjudgedRows: number;
+  readonly tiedScoreRows: number;
+}
+
+/** Counts of queries per bin of the headline metric over [0, 1] (10 equal bins; 1.0 goes in the last). */
+export interface Histogram {
+  readonly lower: number;
+  readonly upper: number;
+  readonly counts: readonly number[];
+}
+
+export interface OverviewModel {
+  readonly file: FileInfo;
+  readonly queryCount: number;
+  readonly metrics: readonly MetricColumn[];
+  /** Index into `metrics` of the headline metric. */
+  readonly headline: number;
+  readonly conventions: ConventionsView;
+  readonly sensitivity: readonly SensitivityView[];
+  readonly degenerate: DegenerateView;
+  readonly histogram: Histogram;
+  /** Names of the extra columns available for `segments` and the segment filter. */
+  readonly segmentColumns: readonly string[];
+  /** Plain sentences: what was counted, skipped or assumed (engine warnings + reader notes). */
+  readonly warnings: readonly string[];
+  /** Wall-clock time of read + evaluate. */
+  readonly loadMs: number;
+}
+
+/** Sort keys besides any metric key from `OverviewModel.metrics`. */
+export type SpecialSortKey =
+  | 'query'
+  | 'items'
+  | 'relevant'
+  | 'inversions'
+  | 'inversionCost'
+  /** (1 − NDCG_q) / Σ(1 − NDCG) over counted queries: the query's share of the total loss. */
+  | 'lossShare';
+
+export interface SortSpec {
+  /** A metric key ('ndcg@10') or a special key. */
+  readonly key: string;
+  readonly descending: boolean;
+}
+
+export interface SegmentFilter {
+  readonly column: string;
+  readonly value: string;
+}
+
+export interface QueryPageParams {
+  /** Default: headline metric ascending (worst first). Skipped (null) values always sort last. */
+  readonly sort?: SortSpec;
+  /** Case-insensitive substring of the query id. */
+  readonly filter?: string;
+  readonly segment?: SegmentFilter;
+  readonly offset: number;
+  readonly limit: number;
+}
+
+export interface QueryRow {
+  readonly query: string;
+  /** Rank of this row in the whole sorted, filtered list (0-based). */
+  readonly index: number;
+  /** Values aligned with `OverviewModel.metrics`; null where the query is skipped. */
+  readonly values: readonly MaybeNumber[];
+  readonly items: number;
+  readonly relevant: number;
+  readonly inversions: number;
+  readonly inversionCost: number;
+  readonly lossShare: MaybeNumber;
+  readonly skipped: boolean;
+}
+
+export interface QueryPage {
+  /** Rows matching the filters (not only this page). */
+  readonly total: number;
+  readonly offset: number;
+  readonly rows: readonly QueryRow[];
+}
+
+export interface QueryDetailParams {
+  readonly query: string;
+  /** Cap on inverted pairs returned (default 200). */
+  readonly maxPairs?: number;
+  /** Which run in compare mode (default 'a'). */
+  readonly run?: RunSide;
+}
+
+export interface PositionView {
+  readonly position: number;
+  /** Row index in the dump, for `revealRow`. */
+  readonly row: number;
+  /** 1-based line in the (decompressed) file; 0 when the format has no lines. */
+  readonly line: number;
+  readonly item: string;
+  readonly label: MaybeNumber;
+  readonly score: MaybeNumber;
+  readonly gain: number;
+  readonly discount: number;
+  readonly contribution: number;
+  readonly cumulativeDcg: number;
+  readonly idealCumulativeDcg: number;
+  readonly idealPosition: number;
+  readonly tieGroupSize: number;
+  /** True when the position is within the headline cut-off. */
+  readonly withinCutoff: boolean;
+}
+
+export interface IdealView {
+  readonly position: number;
+  readonly row: number;
+  readonly item: string;
+  readonly label: MaybeNumber;
+  readonly gain: number;
+  /** Where the model put it. */
+  readonly predictedPosition: number;
+}
+
+export interface PairView {
+  readonly aboveItem: string;
+  readonly belowItem: string;
+  readonly aboveRow: number;
+  readonly belowRow: number;
+  readonly abovePosition: number;
+  readonly belowPosition: number;
+  readonly aboveLabel: MaybeNumber;
+  readonly belowLabel: MaybeNumber;
+  readonly ndcgRecovered: number;
+}
+
+export interface QueryDetailView {
+  readonly query: string;
+  /** Headline cut-off. */
+  readonly k: number;
+  readonly headlineKey: string;
+  readonly positions: readonly PositionView[];
+  readonly ideal: readonly IdealView[];
+  readonly dcg: number;
+  readonly idealDcg: number;
+  readonly ndcg: MaybeNumber;
+  readonly invertedPairs: readonly PairView[];
+  readonly invertedPairsTotal: number;
+  /** Aligned with `OverviewModel.metrics`. */
+  readonly values: readonly MaybeNumber[];
+  /** Segment values of this query (first row's value per segment column). */
+  readonly segments: Readonly<Record<string, string>>;
+}
+
+export interface SegmentRow {
+  readonly value: string;
+  readonly queries: number;
+  /** Means aligned with `OverviewModel.metrics`. */
+  readonly means: readonly MaybeNumber[];
+  /** Headline mean of this segment − overall headline mean. */
+  readonly headlineDelta: MaybeNumber;
+  /** Share of the total headline loss carried by this segment's queries. */
+  readonly lossShare: MaybeNumber;
+}
+
+export interface SegmentsParams {
+  readonly column: string;
+}
+
+export interface SegmentTable {
+  readonly column: string;
+  readonly rows: readonly SegmentRow[];
+}
+
+// ---- export / clipboard / reveal ---------------------------------------------------------------
+
+/** The webview sends the table it shows; the host formats and saves or copies it. */
+export interface ExportViewParams {
+  readonly format: 'markdown' | 'csv';
+  readonly destination: 'file' | 'clipboard';
+  /** Used for the suggested file name and the markdown heading. */
+  readonly title: string;
+  readonly columns: readonly string[];
+  readonly rows: readonly (readonly (string | number | null)[])[];
+}
+
+export interface ExportResult {
+  /** False when the user dismissed the save dialog. */
+  readonly done: boolean;
+  /** Saved file path, or 'clipboard'. */
+  readonly target?: string;
+}
+
+export interface CopyQueryJsonParams {
+  readonly query: string;
+  readonly run?: RunSide;
+}
+
+export interface RevealRowParams {
+  readonly row: number;
+  readonly run?: RunSide;
+}
+
+export interface RevealResult {
+  /** True when a text editor was opened at the line. */
+  readonly revealed: boolean;
+  readonly line: number;
+  /** Shown when the file is not text (Parquet, .gz): "row 1234 (line numbers do not apply)". */
+  readonly message?: string;
+}
+
+// ---- compare mode -----------------------------------------------------------------------------
+
+export type RunSide = 'a' | 'b';
+
+export interface SignificanceView {
+  /** 'paired t-test', 'Wilcoxon signed-rank', 'randomization (paired permutation)'. */
+  readonly test: string;
+  readonly statistic: MaybeNumber;
+  readonly pValue: MaybeNumber;
+  /** Holm-adjusted p over the metrics tested (null when not adjusted). */
+  readonly adjustedP: MaybeNumber;
+}
+
+export interface CompareMetricRow {
+  readonly key: string;
+  readonly label: string;
+  readonly meanA: MaybeNumber;
+  readonly meanB: MaybeNumber;
+  /** meanB − meanA. */
+  readonly delta: MaybeNumber;
+  readonly wins: number;
+  readonly ties: number;
+  readonly losses: number;
+  readonly tests: readonly SignificanceView[];
+  /** 95% interval of the mean delta, when computed. */
+  readonly intervalLow: MaybeNumber;
+  readonly intervalHigh: MaybeNumber;
+}
+
+export interface CompareOverviewModel {
+  readonly runA: FileInfo;
+  readonly runB: FileInfo;
+  readonly conventions: ConventionsView;
+  /** Index into `metrics` of the headline. */
+  readonly headline: number;
+  readonly metrics: readonly CompareMetricRow[];
+  /** Queries present in both runs (the paired set). */
+  readonly pairedQueries: number;
+  readonly onlyInA: number;
+  readonly onlyInB: number;
+  /** |delta| ≤ this counts as a tie. */
+  readonly tieTolerance: number;
+  readonly segmentColumns: readonly string[];
+  readonly warnings: readonly string[];
+  readonly loadMs: number;
+}
+
+export type Outcome = 'win' | 'tie' | 'loss';
+
+export interface ComparePageParams {
+  /** Keys: 'delta' (default, ascending = biggest losses first), 'a', 'b', 'query'. */
+  readonly sort?: SortSpec;
+  readonly filter?: string;
+  readonly outcome?: Outcome;
+  readonly segment?: SegmentFilter;
+  /** Metric compared (default the headline). */
+  readonly metric?: string;
+  readonly offset: number;
+  readonly limit: number;
+}
+
+export interface CompareRow {
+  readonly query: string;
+  readonly index: number;
+  readonly a: MaybeNumber;
+  readonly b: MaybeNumber;
+  /** b − a. */
+  readonly delta: MaybeNumber;
+  readonly outcome: Outcome | null;
+}
+
+export interface ComparePage {
+  readonly total: number;
+  readonly offset: number;
+  readonly metric: string;
+  readonly rows: readonly CompareRow[];
+}
+
+export interface MovementParams {
+  readonly query: string;
+}
+
+export interface MovementRow {
+  readonly item: string;
+  readonly label: MaybeNumber;
+  /** 1-based; null when the item is absent from that run. */
+  readonly positionA: MaybeNumber;
+  readonly positionB: MaybeNumber;
+  /** positionA − positionB (positive = moved up in B). */
+  readonly moved: MaybeNumber;
+  readonly rowA: MaybeNumber;
+  readonly rowB: MaybeNumber;
+}
+
+export interface MovementView {
+  readonly query: string;
+  readonly a: MaybeNumber;
+  readonly b: MaybeNumber;
+  readonly rows: readonly MovementRow[];
+}
+
+export interface CompareSegmentsParams {
+  readonly column: string;
+  readonly metric?: string;
+}
+
+export interface CompareSegmentRow {
+  readonly value: string;
+  readonly queries: number;
+  readonly meanA: MaybeNumber;
+  readonly meanB: MaybeNumber;
+  readonly delta: MaybeNumber;
+  readonly wins: number;
+  readonly ties: number;
+  readonly losses: number;
+}
+
+export interface CompareSegmentTable {
+  readonly column: string;
+  readonly metric: string;
+  readonly rows: readonly CompareSegmentRow[];
+}
+
+// ---------------------------------------------------------------------------------------------
+// Requests from the webview to the host
+// ---------------------------------------------------------------------------------------------
+
+export type ViewRequests = {
+  queryPage: { params: QueryPageParams; result: QueryPage };
+  queryDetail: { params: QueryDetailParams; result: QueryDetailView };
+  segments: { params: SegmentsParams; result: SegmentTable };
+  exportView: { params: ExportViewParams; result: ExportResult };
+  copyQueryJson: { params: CopyQueryJsonParams; result: { copied: boolean } };
+  revealRow: { params: RevealRowParams; result: RevealResult };
+  compareOverview: { params: Record<string, never>; result: CompareOverviewModel };
+  comparePage: { params: ComparePageParams; result: ComparePage };
+  queryMovement: { params: MovementParams; result: MovementView };
+  compareSegments: { params: CompareSegmentsParams; result: CompareSegmentTable };
+};
+
+export type ViewMethod = keyof ViewRequests;
+
+// ---------------------------------------------------------------------------------------------
+// State pushed from the host to the webview
+// ---------------------------------------------------------------------------------------------
+
+export type ViewMode = 'single' | 'compare';
+
+export type ViewState =
+  | {
+      readonly status: 'loading';
+      readonly mode: ViewMode;
+      /** Path(s) being read, for the message. */
+      readonly label: string;
+      /** 0..1, or null when unknown. */
+      readonly fraction: MaybeNumber;
+      readonly message: string;
+    }
+  /** First result. The webview resets its selection. */
+  | { readonly status: 'loaded'; readonly mode: 'single'; readonly overview: OverviewModel }
+  | { readonly status: 'loaded'; readonly mode: 'compare'; readonly compare: CompareOverviewModel }
+  /** Recomputed after the file or a setting changed: keep the selected query and tab, refetch pages. */
+  | { readonly status: 'reloaded'; readonly mode: 'single'; readonly overview: OverviewModel }
+  | { readonly status: 'reloaded'; readonly mode: 'compare'; readonly compare: CompareOverviewModel }
+  /** One line, e.g. the InputError message "run.csv:12: expected a number in column 'score' (found \"abc\")". */
+  | { readonly status: 'error'; readonly message: string }
+  | { readonly status: 'vanished'; readonly path: string };
+
+// ---------------------------------------------------------------------------------------------
+// Envelopes
+// ---------------------------------------------------------------------------------------------
+
+export type HostToView =
+  | { readonly kind: 'state'; readonly state: ViewState }
+  /** Ask the webview to show a query (from a command or the tree). */
+  | { readonly kind: 'showQuery'; readonly query: string }
+  | ResponseEnvelope;
+
+export type ViewToHost =
+  /** Sent once the script runs; the host answers with the current state. */
+  | { readonly kind: 'ready' }
+  /** The query the user is looking at (the host keeps it for status bar and reload). */
+  | { readonly kind: 'selection'; readonly query: string | null }
+  | RequestEnvelope<ViewRequests>
+  | CancelEnvelope;
+
+export const DEFAULT_PAGE_LIMIT = 100;

@@ -1,0 +1,114 @@
+/**
+ * Requests between the extension host (or the command line) and the engine worker thread. Worker
+ * messages go through structured clone, so engine types with Maps (conventions) pass as they are.
+ * Every session is keyed: one open editor or compare panel = one session held in worker memory.
+ */
+import type { Conventions } from '../engine/metrics/conventions';
+import type {
+  CompareOverviewModel,
+  ComparePage,
+  ComparePageParams,
+  CompareSegmentTable,
+  CompareSegmentsParams,
+  MovementParams,
+  MovementView,
+  OverviewModel,
+  QueryDetailParams,
+  QueryDetailView,
+  QueryPage,
+  QueryPageParams,
+  SegmentTable,
+  SegmentsParams,
+} from './messages';
+import type { CancelEnvelope, RequestEnvelope, ResponseEnvelope } from './request';
+
+/** How to read one dump; mirrors the readers' options. */
+export interface DumpSource {
+  readonly path: string;
+  /** Forced format; detected from the name/content when absent. */
+  readonly format?: string;
+  /** Role → column name overrides (query, item, label, score, rank, segment columns...). */
+  readonly columns?: Readonly<Record<string, string>>;
+  /** Separate judgments (qrels) file for run-style dumps. */
+  readonly judgments?: string;
+  /** Separate scores file, when labels and scores come apart. */
+  readonly scores?: string;
+}
+
+export interface EvaluationSettings {
+  /** Metric list as the user writes it: 'ndcg@10,err@10,ap'. The first is the headline. */
+  readonly metrics: string;
+  readonly conventions: Conventions;
+}
+
+export interface CompareSettings extends EvaluationSettings {
+  readonly permutations: number;
+  readonly seed: number;
+  readonly tieTolerance: number;
+}
+
+export interface LoadParams {
+  readonly session: string;
+  readonly source: DumpSource;
+  readonly settings: EvaluationSettings;
+}
+
+export interface LoadCompareParams {
+  readonly session: string;
+  readonly a: DumpSource;
+  readonly b: DumpSource;
+  readonly settings: CompareSettings;
+}
+
+export interface HeadlineParams {
+  readonly source: DumpSource;
+  readonly settings: EvaluationSettings;
+}
+
+export interface HeadlineResult {
+  readonly key: string;
+  readonly label: string;
+  readonly mean: number | null;
+  readonly queryCount: number;
+  readonly rowCount: number;
+}
+
+type Keyed<T> = T & { readonly session: string };
+
+export type WorkerRequests = {
+  load: { params: LoadParams; result: OverviewModel };
+  loadCompare: { params: LoadCompareParams; result: CompareOverviewModel };
+  /** Read + evaluate without keeping the dump (tree view); freed at once. */
+  headline: { params: HeadlineParams; result: HeadlineResult };
+  unload: { params: { readonly session: string }; result: { readonly unloaded: boolean } };
+  queryPage: { params: Keyed<QueryPageParams>; result: QueryPage };
+  queryDetail: { params: Keyed<QueryDetailParams>; result: QueryDetailView };
+  /** The raw JSON of one query's rows and metric values (for the clipboard). */
+  queryJson: { params: Keyed<QueryDetailParams>; result: { readonly json: string } };
+  /** Line (and whether it is meaningful) of one row, for "reveal in file". */
+  rowLocation: {
+    params: Keyed<{ readonly row: number; readonly run?: 'a' | 'b' }>;
+    result: { readonly line: number; readonly offset: number; readonly path: string };
+  };
+  segments: { params: Keyed<SegmentsParams>; result: SegmentTable };
+  comparePage: { params: Keyed<ComparePageParams>; result: ComparePage };
+  queryMovement: { params: Keyed<MovementParams>; result: MovementView };
+  compareSegments: { params: Keyed<CompareSegmentsParams>; result: CompareSegmentTable };
+};
+
+/** Progress while reading/evaluating, sent unsolicited by the worker. */
+export interface ProgressEvent {
+  readonly kind: 'progress';
+  /** The request id of the load that reports. */
+  readonly id: number;
+  /** 0..1, or null when unknown. */
+  readonly fraction: number | null;
+  readonly message: string;
+}
+
+export type ToWorker = RequestEnvelope<WorkerRequests> | CancelEnvelope;
+export type FromWorker = ResponseEnvelope | ProgressEvent;
+
+export function isProgressEvent(message: unknown): message is ProgressEvent {
+  return typeof message === 'object' && message !== null && (message as { kind?: unknown }).kind === 'progress';
+}
