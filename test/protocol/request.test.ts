@@ -74,9 +74,9 @@ describe('RequestClient / RequestServer', () => {
   it('rejects an unknown method instead of hanging', async () => {
     const { client } = pair();
     // Casting around the types on purpose: a peer built from an older protocol could send this.
-    const error = await (client as unknown as RequestClient<Record<string, { params: unknown; result: unknown }>>)
+    const error = (await (client as unknown as RequestClient<Record<string, { params: unknown; result: unknown }>>)
       .request('nope', {})
-      .catch((e: RemoteError) => e);
+      .catch((e: RemoteError) => e)) as RemoteError;
     expect(error).toBeInstanceOf(RemoteError);
     expect(error.message).toContain("unknown method 'nope'");
   });
