@@ -1,0 +1,137 @@
+/**
+ * Options shared by every command that reads a dump and scores it (`eval`, `compare`): where the
+ * data is, how to read it, which metrics, and under which conventions. One definition so both
+ * commands spell and validate them the same way.
+ */
+import { InputError } from '../engine/errors';
+import {
+  DEFAULT_CONVENTIONS,
+  DEFAULT_METRICS,
+  type Conventions,
+  type MetricSpec,
+} from '../engine/metrics/conventions';
+import type { DumpFormat } from '../engine/model/dump';
+import { parseGain, parseMetricList, parseNoRelevant, parseTies } from '../engine/metrics/parse';
+
+/** node:util parseArgs option definitions; spread them into a command's own table. */
+export const conventionOptions = {
+  judgments: { type: 'string' },
+  scores: { type: 'string' },
+  columns: { type: 'string' },
+  'input-format': { type: 'string' },
+  metrics: { type: 'string' },
+  gain: { type: 'string' },
+  ties: { type: 'string' },
+  'no-relevant': { type: 'string' },
+  'relevant-from': { type: 'string' },
+  'max-grade': { type: 'string' },
+  'rbp-persistence': { type: 'string' },
+  threads: { type: 'string' },
+} as const;
+
+/** The parsed values of `conventionOptions` (every one optional, all strings). */
+export type ConventionValues = { readonly [K in keyof typeof conventionOptions]?: string | undefined };
+
+/** Help text lines for the shared options, aligned for the usage screen. */
+export const conventionHelp = `Input:
+  --input-format F      csv | tsv | jsonl | run | svmlight | parquet (default: from the file name)
+  --columns ROLES       which column plays which role, e.g. query=sid,item=pid,label=grade,score=p
+  --judgments FILE      graded judgments (qrels) for a run file or an SVMlight file without labels
+  --scores FILE         one score per line, for an SVMlight file
+  --threads N           reader threads (default: up to 4)
+Metrics and conventions:
+  --metrics LIST        comma-separated; default ${DEFAULT_METRICS}
+  --gain G              exponential (2^g-1, default) | linear (g) | map:0=0,1=1,2=3,3=7
+  --ties T              average (default) | pessimistic | optimistic | file-order
+  --no-relevant P       queries with nothing relevant: skip (default) | zero | one
+  --relevant-from N     a grade >= N counts as relevant (default 1)
+  --max-grade N         highest grade for ERR (default: highest grade in the data)
+  --rbp-persistence P   RBP persistence, 0 < P < 1 (default 0.8)
+`;
+
+const INPUT_FORMATS: readonly DumpFormat[] = ['csv', 'tsv', 'jsonl', 'run', 'svmlight', 'parquet'];
+
+/** What to pass to the reader besides the path (signal and progress are added by the caller). */
+export interface DumpReadRequest {
+  format?: DumpFormat;
+  columns?: string;
+  judgments?: string;
+  scores?: string;
+  threads?: number;
+}
+
+export interface ScoringSetup {
+  readonly read: DumpReadRequest;
+  readonly metrics: MetricSpec[];
+  readonly conventions: Conventions;
+}
+
+/** Validates the shared options; any bad value is an InputError naming the option. */
+export function scoringSetupFrom(values: ConventionValues, resolvePath: (p: string) => string = (p) => p): ScoringSetup {
+  const read: DumpReadRequest = {};
+  if (values['input-format'] !== undefined) read.format = oneOf('--input-format', values['input-format'], INPUT_FORMATS);
+  if (values.columns !== undefined) read.columns = values.columns;
+  if (values.judgments !== undefined) read.judgments = resolvePath(values.judgments);
+  if (values.scores !== undefined) read.scores = resolvePath(values.scores);
+  if (values.threads !== undefined) read.threads = integerIn('--threads', values.threads, 1, 64);
+
+  const metrics = withOptionName('--metrics', () => parseMetricList(values.metrics ?? DEFAULT_METRICS));
+
+  const conventions: Conventions = {
+    gain: values.gain === undefined ? DEFAULT_CONVENTIONS.gain : withOptionName('--gain', () => parseGain(values.gain!)),
+    ties: values.ties === undefined ? DEFAULT_CONVENTIONS.ties : withOptionName('--ties', () => parseTies(values.ties!)),
+    noRelevant:
+      values['no-relevant'] === undefined
+        ? DEFAULT_CONVENTIONS.noRelevant
+        : withOptionName('--no-relevant', () => parseNoRelevant(values['no-relevant']!)),
+    relevantFrom:
+      values['relevant-from'] === undefined ? DEFAULT_CONVENTIONS.relevantFrom : finiteNumber('--relevant-from', values['relevant-from']),
+    rbpPersistence:
+      values['rbp-persistence'] === undefined ? DEFAULT_CONVENTIONS.rbpPersistence : persistence(values['rbp-persistence']),
+    ...(values['max-grade'] !== undefined ? { maxGrade: positiveNumber('--max-grade', values['max-grade']) } : {}),
+  };
+  return { read, metrics, conventions };
+}
+
+function oneOf<T extends string>(option: string, text: string, allowed: readonly T[]): T {
+  if ((allowed as readonly string[]).includes(text)) return text as T;
+  throw new InputError(`${option} to be one of ${allowed.join(', ')}`, undefined, undefined, text);
+}
+
+function finiteNumber(option: string, text: string): number {
+  const n = text.trim() === '' ? NaN : Number(text);
+  if (!Number.isFinite(n)) throw new InputError(`${option} to be a number`, undefined, undefined, text);
+  return n;
+}
+
+function positiveNumber(option: string, text: string): number {
+  const n = finiteNumber(option, text);
+  if (n <= 0) throw new InputError(`${option} to be a number above 0`, undefined, undefined, text);
+  return n;
+}
+
+function integerIn(option: string, text: string, min: number, max: number): number {
+  const n = finiteNumber(option, text);
+  if (!Number.isInteger(n) || n < min || n > max) {
+    throw new InputError(`${option} to be a whole number from ${min} to ${max}`, undefined, undefined, text);
+  }
+  return n;
+}
+
+function persistence(text: string): number {
+  const p = finiteNumber('--rbp-persistence', text);
+  if (!(p > 0 && p < 1)) throw new InputError('--rbp-persistence to be strictly between 0 and 1', undefined, undefined, text);
+  return p;
+}
+
+/** Re-labels a parser's InputError so the user sees which option it came from. */
+function withOptionName<T>(option: string, parse: () => T): T {
+  try {
+    return parse();
+  } catch (e) {
+    if (e instanceof InputError && e.file === undefined) {
+      throw new InputError(`${e.expected} for ${option}`, undefined, undefined, e.found);
+    }
+    throw e;
+  }
+}
