@@ -1,0 +1,194 @@
+/**
+ * Every `gainline.*` setting, read once into one typed object. No `vscode` import: the caller injects
+ * a getter (`vscode.workspace.getConfiguration('gainline').get`), so this is unit-tested in plain Node.
+ * A bad value never stops the viewer: it falls back to the default and is reported in `problems`.
+ */
+import { DEFAULT_CONVENTIONS, type Conventions, type NoRelevantPolicy, type TieConvention } from '../engine/metrics/conventions';
+import { formatGain, parseGain } from '../engine/metrics/parse';
+import type { CompareSettings, EvaluationSettings } from '../protocol/worker';
+import { globToRegExp } from './glob';
+
+/** Reads one setting below `gainline.`; returns undefined when unset. */
+export type SettingGetter = (key: string) => unknown;
+
+/** Column role → column name in the dump (query, item, label, score, rank). */
+export type ColumnMapping = Readonly<Record<string, string>>;
+
+export interface GainlineConfig {
+  /** Cut-offs, first = headline: [10, 5] → ndcg@10 (headline), ndcg@5, err@10, p@10, p@5, ... */
+  readonly cutoffs: readonly number[];
+  /** The metric list derived from the cut-offs, as the engine parses it. */
+  readonly metrics: string;
+  readonly conventions: Conventions;
+  /** Glob on the file path → column mapping for dumps whose headers are not recognised. */
+  readonly columnsByPattern: Readonly<Record<string, ColumnMapping>>;
+  /** Which files the Ranked Lists view lists. */
+  readonly dumpGlob: string;
+  readonly dumpExclude: string;
+  readonly compare: { readonly permutations: number; readonly seed: number; readonly tieTolerance: number };
+  /** One sentence per setting that was ignored. */
+  readonly problems: readonly string[];
+}
+
+export const CONFIG_DEFAULTS = {
+  cutoffs: [10, 5],
+  gain: 'exponential',
+  ties: 'average' as TieConvention,
+  noRelevant: 'skip' as NoRelevantPolicy,
+  relevantFrom: 1,
+  rbpPersistence: 0.8,
+  dumpGlob: '**/*.{csv,tsv,jsonl,parquet,run,gz}',
+  dumpExclude: '**/node_modules/**',
+  permutations: 10_000,
+  seed: 1,
+  tieTolerance: 1e-9,
+} as const;
+
+const TIES: readonly TieConvention[] = ['average', 'pessimistic', 'optimistic', 'file-order'];
+const POLICIES: readonly NoRelevantPolicy[] = ['skip', 'zero', 'one'];
+
+/** Settings whose change means open views must be recomputed. */
+export const RECOMPUTE_KEYS = [
+  'cutoffs', 'gain', 'ties', 'noRelevant', 'relevantFrom', 'rbpPersistence', 'maxGrade', 'columnsByPattern',
+  'compare.permutations', 'compare.seed', 'compare.tieTolerance',
+] as const;
+
+export function readConfig(get: SettingGetter): GainlineConfig {
+  const problems: string[] = [];
+  const reject = (key: string, expected: string, value: unknown): void => {
+    problems.push(`gainline.${key}: expected ${expected}, found ${JSON.stringify(value)}; using the default`);
+  };
+  const number = (key: string, fallback: number, ok: (n: number) => boolean, expected: string): number => {
+    const v = get(key);
+    if (v === undefined || v === null) return fallback;
+    if (typeof v === 'number' && Number.isFinite(v) && ok(v)) return v;
+    reject(key, expected, v);
+    return fallback;
+  };
+  const choice = <T extends string>(key: string, allowed: readonly T[], fallback: T): T => {
+    const v = get(key);
+    if (v === undefined || v === null) return fallback;
+    if (typeof v === 'string' && (allowed as readonly string[]).includes(v)) return v as T;
+    reject(key, `one of ${allowed.join(', ')}`, v);
+    return fallback;
+  };
+
+  const cutoffs = readCutoffs(get('cutoffs'), reject);
+  const gainText = get('gain');
+  let gain = DEFAULT_CONVENTIONS.gain;
+  if (gainText !== undefined && gainText !== null) {
+    try {
+      gain = parseGain(String(gainText));
+    } catch {
+      reject('gain', '"exponential", "linear" or "map:0=0,1=1,2=3"', gainText);
+    }
+  }
+  const maxGradeRaw = get('maxGrade');
+  const maxGrade =
+    maxGradeRaw === undefined || maxGradeRaw === null
+      ? undefined
+      : number('maxGrade', NaN, (n) => n > 0, 'a number > 0, or null for the highest grade in the data');
+  const conventions: Conventions = {
+    gain,
+    ties: choice('ties', TIES, CONFIG_DEFAULTS.ties),
+    noRelevant: choice('noRelevant', POLICIES, CONFIG_DEFAULTS.noRelevant),
+    relevantFrom: number('relevantFrom', CONFIG_DEFAULTS.relevantFrom, () => true, 'a number'),
+    rbpPersistence: number('rbpPersistence', CONFIG_DEFAULTS.rbpPersistence, (n) => n > 0 && n < 1, 'a number in (0, 1)'),
+    ...(maxGrade !== undefined && Number.isFinite(maxGrade) ? { maxGrade } : {}),
+  };
+
+  return {
+    cutoffs,
+    metrics: metricsForCutoffs(cutoffs),
+    conventions,
+    columnsByPattern: readColumnsByPattern(get('columnsByPattern'), reject),
+    dumpGlob: stringSetting(get('dumpGlob'), CONFIG_DEFAULTS.dumpGlob, 'dumpGlob', reject),
+    dumpExclude: CONFIG_DEFAULTS.dumpExclude,
+    compare: {
+      permutations: number('compare.permutations', CONFIG_DEFAULTS.permutations, (n) => Number.isInteger(n) && n >= 100 && n <= 1e7,
+        'a whole number from 100 to 10000000'),
+      seed: number('compare.seed', CONFIG_DEFAULTS.seed, Number.isInteger, 'a whole number'),
+      tieTolerance: number('compare.tieTolerance', CONFIG_DEFAULTS.tieTolerance, (n) => n >= 0, 'a number >= 0'),
+    },
+    problems,
+  };
+}
+
+/** [10, 5] → "ndcg@10,ndcg@5,err@10,ap,rr,p@10,p@5,r@10,r@5,rbp,tau" (the first key is the headline). */
+export function metricsForCutoffs(cutoffs: readonly number[]): string {
+  const [first] = cutoffs;
+  const at = (name: string): string[] => cutoffs.map((k) => `${name}@${k}`);
+  return [...at('ndcg'), `err@${first}`, 'ap', 'rr', ...at('p'), ...at('r'), 'rbp', 'tau'].join(',');
+}
+
+function readCutoffs(value: unknown, reject: (k: string, e: string, v: unknown) => void): number[] {
+  if (value === undefined || value === null) return [...CONFIG_DEFAULTS.cutoffs];
+  const ok =
+    Array.isArray(value) &&
+    value.length > 0 &&
+    value.every((k) => typeof k === 'number' && Number.isInteger(k) && k >= 1) &&
+    new Set(value).size === value.length;
+  if (ok) return value as number[];
+  reject('cutoffs', 'a non-empty list of distinct whole numbers >= 1, e.g. [10, 5]', value);
+  return [...CONFIG_DEFAULTS.cutoffs];
+}
+
+function readColumnsByPattern(value: unknown, reject: (k: string, e: string, v: unknown) => void): Record<string, ColumnMapping> {
+  if (value === undefined || value === null) return {};
+  const out: Record<string, ColumnMapping> = {};
+  if (typeof value !== 'object' || Array.isArray(value)) {
+    reject('columnsByPattern', 'an object { "glob": { "query": "column", ... } }', value);
+    return out;
+  }
+  for (const [pattern, mapping] of Object.entries(value as Record<string, unknown>)) {
+    const entries = typeof mapping === 'object' && mapping !== null && !Array.isArray(mapping) ? Object.entries(mapping) : undefined;
+    if (!entries || !entries.every(([, column]) => typeof column === 'string' && column.length > 0)) {
+      reject(`columnsByPattern["${pattern}"]`, 'an object of role → column name', mapping);
+      continue;
+    }
+    out[pattern] = Object.fromEntries(entries) as ColumnMapping;
+  }
+  return out;
+}
+
+function stringSetting(value: unknown, fallback: string, key: string, reject: (k: string, e: string, v: unknown) => void): string {
+  if (value === undefined || value === null || value === '') return fallback;
+  if (typeof value === 'string') return value;
+  reject(key, 'a glob pattern', value);
+  return fallback;
+}
+
+/**
+ * The column mapping for a dump: the first pattern (in settings order) matching the path relative to
+ * its workspace folder, or the bare file name for patterns without a slash.
+ */
+export function columnsFor(config: GainlineConfig, relativePath: string): ColumnMapping | undefined {
+  const normalised = relativePath.replace(/\\/g, '/');
+  const base = normalised.slice(normalised.lastIndexOf('/') + 1);
+  for (const [pattern, mapping] of Object.entries(config.columnsByPattern)) {
+    const target = pattern.includes('/') ? normalised : base;
+    if (globToRegExp(pattern).test(target)) return mapping;
+  }
+  return undefined;
+}
+
+export function evaluationSettings(config: GainlineConfig): EvaluationSettings {
+  return { metrics: config.metrics, conventions: config.conventions };
+}
+
+export function compareSettings(config: GainlineConfig): CompareSettings {
+  return { ...evaluationSettings(config), ...config.compare };
+}
+
+/** One line for tooltips: "gain exponential · ties average · no relevant: skip · relevant ≥ 1 · RBP p=0.8". */
+export function conventionsLine(c: Conventions): string {
+  const parts = [
+    `gain ${formatGain(c.gain)}`,
+    `ties ${c.ties}`,
+    `no relevant: ${c.noRelevant}`,
+    `relevant ≥ ${c.relevantFrom}`,
+    `RBP p=${c.rbpPersistence}`,
+  ];
+  if (c.maxGrade !== undefined) parts.push(`ERR max grade ${c.maxGrade}`);
+  return parts.join(' · ');
+}
