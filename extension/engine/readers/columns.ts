@@ -1,0 +1,112 @@
+/**
+ * Growable typed columns that readers append rows to, and the step that turns them into a RankedDump.
+ */
+import { BytePool } from '../model/bytePool';
+import type { DumpFormat, FileStamp, RankedDump, ReaderNotes, SegmentColumn } from '../model/dump';
+import { emptyNotes } from '../model/dump';
+
+export class RowColumns {
+  query: Uint32Array;
+  item: Uint32Array;
+  label: Float64Array;
+  score: Float64Array;
+  line: Uint32Array;
+  offset: Float64Array;
+  segmentIds: Uint32Array[];
+  count = 0;
+  capacity: number;
+  readonly queries = new BytePool();
+  readonly items = new BytePool();
+  readonly segmentPools: BytePool[];
+  readonly notes: ReaderNotes = emptyNotes();
+
+  constructor(
+    readonly segmentNames: readonly string[] = [],
+    capacity = 1024,
+  ) {
+    this.capacity = Math.max(16, capacity);
+    this.query = new Uint32Array(this.capacity);
+    this.item = new Uint32Array(this.capacity);
+    this.label = new Float64Array(this.capacity);
+    this.score = new Float64Array(this.capacity);
+    this.line = new Uint32Array(this.capacity);
+    this.offset = new Float64Array(this.capacity);
+    this.segmentIds = segmentNames.map(() => new Uint32Array(this.capacity));
+    this.segmentPools = segmentNames.map(() => new BytePool());
+  }
+
+  /** Makes room for at least `rows` rows in total (call with an estimate to avoid repeated growth). */
+  reserve(rows: number): void {
+    if (rows <= this.capacity) return;
+    const capacity = Math.ceil(rows);
+    this.query = grow(this.query, capacity, this.count);
+    this.item = grow(this.item, capacity, this.count);
+    this.label = grow(this.label, capacity, this.count);
+    this.score = grow(this.score, capacity, this.count);
+    this.line = grow(this.line, capacity, this.count);
+    this.offset = grow(this.offset, capacity, this.count);
+    this.segmentIds = this.segmentIds.map((ids) => grow(ids, capacity, this.count));
+    this.capacity = capacity;
+  }
+
+  /** Index for the next row, growing by half again when full. */
+  next(): number {
+    if (this.count === this.capacity) this.reserve(this.capacity * 1.5 + 1024);
+    return this.count++;
+  }
+
+  /** Sets up the row at index `row` in one call (the common case of delimited text). */
+  set(row: number, query: number, item: number, label: number, score: number, line: number, offset: number): void {
+    this.query[row] = query;
+    this.item[row] = item;
+    this.label[row] = label;
+    this.score[row] = score;
+    this.line[row] = line;
+    this.offset[row] = offset;
+  }
+
+  /** Counts NaN labels and scores into the notes (done once at the end, not per row). */
+  countGaps(): void {
+    let unjudged = 0;
+    let missing = 0;
+    for (let i = 0; i < this.count; i++) {
+      if (this.label[i] !== this.label[i]) unjudged++;
+      if (this.score[i] !== this.score[i]) missing++;
+    }
+    this.notes.unjudgedRows = unjudged;
+    this.notes.missingScoreRows = missing;
+  }
+
+  finish(path: string, format: DumpFormat, stamp: FileStamp): RankedDump {
+    const n = this.count;
+    const segments: SegmentColumn[] = this.segmentNames.map((name, k) => ({
+      name,
+      values: this.segmentPools[k]!,
+      ofRow: this.segmentIds[k]!.subarray(0, n),
+    }));
+    return {
+      path,
+      format,
+      stamp,
+      rowCount: n,
+      query: this.query.subarray(0, n),
+      item: this.item.subarray(0, n),
+      label: this.label.subarray(0, n),
+      score: this.score.subarray(0, n),
+      line: this.line.subarray(0, n),
+      offset: this.offset.subarray(0, n),
+      queries: this.queries,
+      items: this.items,
+      segments,
+      notes: this.notes,
+    };
+  }
+}
+
+type Typed = Uint32Array | Float64Array;
+
+function grow<T extends Typed>(old: T, capacity: number, used: number): T {
+  const fresh = new (old.constructor as new (n: number) => T)(capacity);
+  fresh.set(old.subarray(0, used) as never);
+  return fresh;
+}

@@ -1,0 +1,79 @@
+/**
+ * Public entry of the readers: one call turns any supported dump into the columnar RankedDump.
+ */
+import { InputError } from '../errors';
+import type { DumpFormat, RankedDump } from '../model/dump';
+import { DelimitedParser } from './delimited';
+import { detectFormat } from './detect';
+import { readJsonLines } from './jsonLines';
+import { readParallelDelimited, shouldParseInParallel } from './parallel';
+import { readParquet } from './parquet';
+import type { ColumnRoles } from './roles';
+import { readRunFile } from './runFile';
+import { pumpText, statStamp, throwIfCancelled } from './source';
+import { readSvmlight } from './svmlight';
+
+export { parseColumnRoles } from './roles';
+export type { ColumnRoles } from './roles';
+export type { DumpFormat, RankedDump } from '../model/dump';
+
+export interface ReadOptions {
+  /** Overrides detection. */
+  format?: DumpFormat;
+  /** Explicit column names, e.g. from --columns query=sid,item=pid,label=grade,score=p */
+  columns?: ColumnRoles;
+  /** Path of a judgments file (run-file input). */
+  judgments?: string;
+  /** Path of a one-score-per-line file (SVMlight input). */
+  scores?: string;
+  /** Parse threads for big text files; default auto (1 for small files). */
+  threads?: number;
+  /** Cancellation → CancelledError. */
+  signal?: AbortSignal;
+  onProgress?: (fraction: number) => void;
+}
+
+export async function readDump(path: string, options: ReadOptions = {}): Promise<RankedDump> {
+  throwIfCancelled(options.signal);
+  const sniffed = await detectFormat(path, options);
+  switch (sniffed.format) {
+    case 'csv':
+    case 'tsv':
+      return readDelimited(path, sniffed.format, sniffed.gzip, options);
+    case 'jsonl':
+      return readJsonLines(path, options);
+    case 'run':
+      if (options.judgments === undefined) {
+        throw new InputError('a judgments file (query unused item grade) to go with the run file', path);
+      }
+      return readRunFile(path, options.judgments, options);
+    case 'svmlight':
+      if (options.scores === undefined) {
+        throw new InputError('a scores file (one score per line, same order) to go with the SVMlight file', path);
+      }
+      return readSvmlight(path, options.scores, options);
+    case 'parquet':
+      return readParquet(path, sniffed.directory, options);
+  }
+}
+
+async function readDelimited(path: string, format: 'csv' | 'tsv', gzip: boolean, options: ReadOptions): Promise<RankedDump> {
+  const delimiter = format === 'csv' ? 44 : 9;
+  if (!gzip) {
+    const threads = await shouldParseInParallel(path, options.threads);
+    if (threads > 1) {
+      const dump = await readParallelDelimited(path, format, delimiter, threads, options);
+      if (dump !== undefined) return dump;
+    }
+  }
+  const parser = new DelimitedParser({ file: path, delimiter, columns: options.columns, expectedBytes: gzip ? undefined : await sizeOf(path) });
+  const stamp = await pumpText(path, parser, { signal: options.signal, onProgress: options.onProgress });
+  const rows = parser.columns!;
+  if (rows.count === 0) throw new InputError('at least one data row after the header', path, 2);
+  rows.countGaps();
+  return rows.finish(path, format, stamp);
+}
+
+async function sizeOf(path: string): Promise<number> {
+  return (await statStamp(path)).size;
+}

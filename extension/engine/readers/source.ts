@@ -1,0 +1,160 @@
+/**
+ * Streams a text file (plain or gzip) into a record parser in large chunks. Handles what every text
+ * format shares: the binary-junk check, the UTF-8 byte-order mark, records cut at chunk edges,
+ * progress, cancellation, and detecting a file rewritten while it was read.
+ */
+import { createReadStream, promises as fsp } from 'node:fs';
+import { createGunzip } from 'node:zlib';
+import { CancelledError, InputError } from '../errors';
+import type { FileStamp } from '../model/dump';
+
+/** Takes complete records from buf[start, end) and returns where the first unconsumed record starts. */
+export interface RecordSink {
+  /** `base` is the byte offset of buf[0] in the decompressed text; `final` means no more bytes follow. */
+  feed(buf: Buffer, start: number, end: number, base: number, final: boolean): number;
+}
+
+export interface PumpOptions {
+  signal?: AbortSignal;
+  onProgress?: (fraction: number) => void;
+  chunkBytes?: number;
+  /** Called with the first bytes (after the BOM) before any record is fed; may throw. */
+  onFirstBytes?: (head: Buffer) => void;
+}
+
+const PLAIN_CHUNK = 8 << 20;
+const GZIP_CHUNK = 1 << 20;
+
+export async function statStamp(path: string): Promise<FileStamp> {
+  try {
+    const s = await fsp.stat(path);
+    return { size: s.size, mtimeMs: s.mtimeMs };
+  } catch (err) {
+    throw new InputError('a readable file', path, undefined, (err as Error).message);
+  }
+}
+
+export async function checkUnchanged(path: string, before: FileStamp): Promise<void> {
+  const after = await statStamp(path);
+  if (after.size !== before.size || after.mtimeMs !== before.mtimeMs) {
+    throw new InputError('the file to stay the same while it is read: the file changed while it was read; read again', path);
+  }
+}
+
+export function throwIfCancelled(signal: AbortSignal | undefined): void {
+  if (signal?.aborted) throw new CancelledError();
+}
+
+/** True when the file starts with the gzip magic bytes. */
+export async function isGzip(path: string): Promise<boolean> {
+  const head = await readHead(path, 2);
+  return head.length === 2 && head[0] === 0x1f && head[1] === 0x8b;
+}
+
+export async function readHead(path: string, bytes: number): Promise<Buffer> {
+  const fh = await fsp.open(path, 'r');
+  try {
+    const buf = Buffer.alloc(bytes);
+    const { bytesRead } = await fh.read(buf, 0, bytes, 0);
+    return buf.subarray(0, bytesRead);
+  } finally {
+    await fh.close();
+  }
+}
+
+/** Rejects content that is not text: NUL bytes or invalid UTF-8 within the first KB. */
+export function assertTextHead(head: Uint8Array, file: string): void {
+  const probe = head.subarray(0, 1024);
+  if (probe.includes(0)) throw new InputError('a text dump, not binary data (NUL bytes in the first KB)', file);
+  try {
+    new TextDecoder('utf-8', { fatal: true }).decode(probe, { stream: true });
+  } catch {
+    throw new InputError('a text dump, not binary data (invalid UTF-8 in the first KB): not a text dump', file);
+  }
+}
+
+/** Streams the decompressed text of `path` through `sink`; returns the stamp taken before reading. */
+export async function pumpText(path: string, sink: RecordSink, options: PumpOptions = {}): Promise<FileStamp> {
+  const stamp = await statStamp(path);
+  const gz = await isGzip(path);
+  let carry: Buffer | undefined;
+  let carryBase = 0;
+  let nextBase = 0;
+  let first = true;
+  const progress = { done: 0 };
+  const chunks = gz ? gunzipChunks(path, progress) : plainChunks(path, options.chunkBytes ?? PLAIN_CHUNK, progress);
+  for await (const chunk of chunks) {
+    throwIfCancelled(options.signal);
+    let buf = chunk;
+    let base = nextBase;
+    if (carry !== undefined && carry.length > 0) {
+      buf = Buffer.concat([carry, chunk]);
+      base = carryBase;
+    }
+    nextBase = base + buf.length;
+    let start = 0;
+    if (first) {
+      first = false;
+      assertTextHead(buf, path);
+      if (buf[0] === 0xef && buf[1] === 0xbb && buf[2] === 0xbf) start = 3;
+      options.onFirstBytes?.(buf.subarray(start));
+    }
+    const consumed = sink.feed(buf, start, buf.length, base, false);
+    carry = buf.subarray(consumed);
+    carryBase = base + consumed;
+    if (stamp.size > 0) options.onProgress?.(Math.min(1, progress.done / stamp.size));
+  }
+  throwIfCancelled(options.signal);
+  if (first) {
+    options.onFirstBytes?.(Buffer.alloc(0));
+    sink.feed(Buffer.alloc(0), 0, 0, 0, true);
+  } else {
+    const rest = carry ?? Buffer.alloc(0);
+    sink.feed(rest, 0, rest.length, carryBase, true);
+  }
+  await checkUnchanged(path, stamp);
+  options.onProgress?.(1);
+  return stamp;
+}
+
+async function* plainChunks(path: string, chunkBytes: number, progress: { done: number }): AsyncGenerator<Buffer> {
+  const fh = await fsp.open(path, 'r');
+  try {
+    let position = 0;
+    const readAt = async (at: number): Promise<Buffer> => {
+      const buf = Buffer.allocUnsafe(chunkBytes);
+      const { bytesRead } = await fh.read(buf, 0, chunkBytes, at);
+      return buf.subarray(0, bytesRead);
+    };
+    // Keep one read in flight while the caller parses the previous chunk.
+    let pending = readAt(position);
+    for (;;) {
+      const buf = await pending;
+      if (buf.length === 0) break;
+      position += buf.length;
+      progress.done = position;
+      pending = readAt(position);
+      pending.catch(() => undefined);
+      yield buf;
+    }
+  } finally {
+    await fh.close();
+  }
+}
+
+async function* gunzipChunks(path: string, progress: { done: number }): AsyncGenerator<Buffer> {
+  const raw = createReadStream(path, { highWaterMark: 1 << 20 });
+  const gunzip = createGunzip({ chunkSize: GZIP_CHUNK });
+  raw.on('data', (d) => {
+    progress.done += d.length;
+  });
+  raw.on('error', (err) => gunzip.destroy(err));
+  raw.pipe(gunzip);
+  try {
+    for await (const chunk of gunzip) yield chunk as Buffer;
+  } catch (err) {
+    throw new InputError('a complete gzip stream: the file is truncated or corrupt gzip', path, undefined, (err as Error).message);
+  } finally {
+    raw.destroy();
+  }
+}

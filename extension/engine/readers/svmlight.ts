@@ -1,0 +1,8 @@
+import { InputError } from '../errors';
+import type { RankedDump } from '../model/dump';
+import type { ReadOptions } from './index';
+
+export async function readSvmlight(path: string, _scores: string, options: ReadOptions): Promise<RankedDump> {
+  void options;
+  throw new InputError('a format this build reads (not yet supported)', path);
+}
