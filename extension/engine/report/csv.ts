@@ -1,0 +1,23 @@
+/** One row per query, for spreadsheets: query, counts, skipped flag and every metric column. */
+import { queryColumns, type ReportInput } from './reportInput';
+
+/** RFC 4180 quoting: only when the field holds a comma, quote or line break. */
+export function csvField(text: string): string {
+  return /[",\r\n]/.test(text) ? `"${text.replaceAll('"', '""')}"` : text;
+}
+
+export function formatCsv(input: ReportInput): string {
+  const { evaluation: ev, queryNames } = input;
+  const columns = queryColumns(ev);
+  const lines: string[] = [['query', 'items', 'relevant', 'skipped', ...columns.map((c) => c.key)].map(csvField).join(',')];
+  const { items, relevant, skipped } = ev.perQuery;
+  for (let q = 0; q < ev.queryCount; q++) {
+    const cells = [csvField(queryNames.get(q)), String(items[q]), String(relevant[q]), skipped[q] ? 'true' : 'false'];
+    for (const column of columns) {
+      const v = column.valueOf(q);
+      cells.push(Number.isFinite(v) ? String(v) : '');
+    }
+    lines.push(cells.join(','));
+  }
+  return lines.join('\n') + '\n';
+}

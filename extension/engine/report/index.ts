@@ -1,0 +1,24 @@
+/** Report formats for one evaluated dump; every one is a pure function of the evaluation. */
+import { formatCsv } from './csv';
+import { formatJson } from './json';
+import { formatMarkdown } from './markdown';
+import type { ReportInput } from './reportInput';
+import { formatTable } from './table';
+
+export type ReportFormat = 'table' | 'json' | 'csv' | 'markdown';
+export const REPORT_FORMATS: readonly ReportFormat[] = ['table', 'json', 'csv', 'markdown'];
+
+export function formatReport(format: ReportFormat, input: ReportInput, options: { readonly worst: number }): string {
+  switch (format) {
+    case 'table':
+      return formatTable(input, options);
+    case 'json':
+      return formatJson(input);
+    case 'csv':
+      return formatCsv(input);
+    case 'markdown':
+      return formatMarkdown(input, options);
+  }
+}
+
+export type { ReportInput } from './reportInput';

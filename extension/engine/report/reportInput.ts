@@ -1,0 +1,101 @@
+/**
+ * What every report format needs: the evaluation plus the few facts about the dump it came from
+ * (query names live in the dump's string pool, not in the evaluation).
+ */
+import type { Conventions, GainConvention } from '../metrics/conventions';
+import type { Evaluation } from '../evaluate/types';
+import type { StringPool } from '../model/stringPool';
+
+export interface ReportInput {
+  readonly evaluation: Evaluation;
+  /** Query names by interned id (the dump's `queries`). */
+  readonly queryNames: StringPool;
+  /** The file that was read, as the user named it. */
+  readonly source: string;
+  readonly rowCount: number;
+}
+
+/** Extra per-query columns shown next to a metric: RBP's residual, tau's inversion count. */
+export interface QueryColumn {
+  readonly key: string;
+  /** Value for one query id; NaN when not defined. */
+  readonly valueOf: (query: number) => number;
+  /** Counts are shown without decimals. */
+  readonly whole?: boolean;
+}
+
+/** Metric columns in request order, each followed by its companion column when it has one. */
+export function queryColumns(evaluation: Evaluation): QueryColumn[] {
+  const columns: QueryColumn[] = [];
+  const { perQuery } = evaluation;
+  const residuals = (perQuery as { rbpResidual?: Float64Array }).rbpResidual;
+  evaluation.metrics.forEach((spec, m) => {
+    const values = perQuery.values[m]!;
+    columns.push({ key: spec.key, valueOf: (q) => values[q]! });
+    if (spec.name === 'rbp' && residuals) columns.push({ key: `${spec.key}_residual`, valueOf: (q) => residuals[q]! });
+    if (spec.name === 'tau') columns.push({ key: 'inversions', valueOf: (q) => perQuery.inversions[q]!, whole: true });
+  });
+  return columns;
+}
+
+/**
+ * Query ids ordered worst first by the headline metric. Skipped queries and undefined values are
+ * left out; equal values keep query id order so the listing is stable between runs.
+ */
+export function worstQueries(evaluation: Evaluation, limit: number): number[] {
+  const values = evaluation.perQuery.values[evaluation.headline]!;
+  const skipped = evaluation.perQuery.skipped;
+  const ids: number[] = [];
+  for (let q = 0; q < evaluation.queryCount; q++) if (!skipped[q] && !Number.isNaN(values[q]!)) ids.push(q);
+  ids.sort((a, b) => values[a]! - values[b]! || a - b);
+  return ids.slice(0, Math.max(0, limit));
+}
+
+/** A plain-data form of the conventions for JSON output (maps become objects). */
+export function conventionsAsJson(c: Conventions): Record<string, unknown> {
+  return {
+    gain: gainAsJson(c.gain),
+    ties: c.ties,
+    noRelevant: c.noRelevant,
+    relevantFrom: c.relevantFrom,
+    maxGrade: c.maxGrade ?? null,
+    rbpPersistence: c.rbpPersistence,
+  };
+}
+
+function gainAsJson(g: GainConvention): unknown {
+  if (g.kind !== 'map') return g.kind;
+  const gains: Record<string, number> = {};
+  for (const [grade, gain] of [...g.gains].sort((a, b) => a[0] - b[0])) gains[String(grade)] = gain;
+  return { map: gains };
+}
+
+/** One line naming every convention, for text reports. */
+export function describeConventions(c: Conventions): string {
+  const gain =
+    c.gain.kind === 'exponential'
+      ? 'exponential (2^g - 1)'
+      : c.gain.kind === 'linear'
+        ? 'linear (g)'
+        : 'map ' + [...c.gain.gains].sort((a, b) => a[0] - b[0]).map(([g, v]) => `${g}=${v}`).join(',');
+  const parts = [
+    `gain ${gain}`,
+    `ties ${c.ties}`,
+    `no relevant: ${c.noRelevant}`,
+    `relevant from grade ${c.relevantFrom}`,
+    `ERR max grade ${c.maxGrade ?? 'from data'}`,
+    `RBP persistence ${c.rbpPersistence}`,
+  ];
+  return parts.join(' · ');
+}
+
+/** Fixed 4 decimals for metric values (whole numbers for counts); a dash when undefined. */
+export function formatValue(x: number, whole = false): string {
+  if (Number.isNaN(x)) return '—';
+  return whole ? String(Math.round(x)) : x.toFixed(4);
+}
+
+/** NaN and infinities are not JSON; they become null. */
+export function jsonNumber(x: number): number | null {
+  return Number.isFinite(x) ? x : null;
+}

@@ -1,0 +1,75 @@
+/** The default terminal report: means, conventions, notes, convention sensitivity, worst queries. */
+import { describeConventions, formatValue, queryColumns, worstQueries, type ReportInput } from './reportInput';
+import { alignedTable, clip } from './textTable';
+
+export interface TableOptions {
+  /** How many of the worst queries to list (0 hides the section). */
+  readonly worst: number;
+}
+
+const QUERY_WIDTH = 40;
+
+export function formatTable(input: ReportInput, options: TableOptions): string {
+  const ev = input.evaluation;
+  const headline = ev.summary[ev.headline];
+  const sections: string[] = [];
+  const counted = headline ? ` · ${headline.counted.toLocaleString('en-US')} in the ${headline.key} mean` : '';
+  sections.push(
+    `${input.source}\n${input.rowCount.toLocaleString('en-US')} rows · ${ev.queryCount.toLocaleString('en-US')} queries${counted}`,
+  );
+
+  sections.push(
+    'Means over queries\n' +
+      alignedTable(
+        ['metric', 'mean', 'queries'],
+        ev.summary.map((s) => [s.key, formatValue(s.mean), String(s.counted)]),
+        ['left', 'right', 'right'],
+      ),
+  );
+
+  sections.push(`Conventions\n  ${describeConventions(ev.conventions)}`);
+
+  if (ev.warnings.length > 0) sections.push('Notes\n' + ev.warnings.map((w) => `  - ${w}`).join('\n'));
+
+  if (headline && ev.sensitivity.length > 0) {
+    const rows = [[`as configured`, formatValue(headline.mean), '', String(headline.counted)]];
+    for (const row of ev.sensitivity) {
+      rows.push([row.label, formatValue(row.mean), signed(row.mean - headline.mean), String(row.counted)]);
+    }
+    sections.push(
+      `${headline.key} under other conventions\n` +
+        alignedTable(['convention', 'mean', 'change', 'queries'], rows, ['left', 'right', 'right', 'right']),
+    );
+  }
+
+  if (options.worst > 0 && headline) {
+    const ids = worstQueries(ev, options.worst);
+    const columns = queryColumns(ev);
+    const rows = ids.map((q, i) => [
+      String(i + 1),
+      clip(input.queryNames.get(q), QUERY_WIDTH),
+      String(ev.perQuery.items[q]),
+      String(ev.perQuery.relevant[q]),
+      ...columns.map((c) => formatValue(c.valueOf(q), c.whole)),
+    ]);
+    const title = `Worst ${ids.length} ${ids.length === 1 ? 'query' : 'queries'} by ${headline.key}`;
+    sections.push(
+      ids.length === 0
+        ? `${title}\n  (no query has a ${headline.key} value)`
+        : title +
+            '\n' +
+            alignedTable(
+              ['#', 'query', 'items', 'relevant', ...columns.map((c) => c.key)],
+              rows,
+              ['right', 'left', 'right', 'right', ...columns.map(() => 'right' as const)],
+            ),
+    );
+  }
+  return sections.join('\n\n') + '\n';
+}
+
+function signed(x: number): string {
+  if (Number.isNaN(x)) return '—';
+  const text = formatValue(Math.abs(x));
+  return x > 0 ? `+${text}` : x < 0 ? `-${text}` : ` ${text}`;
+}
