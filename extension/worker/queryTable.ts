@@ -1,0 +1,169 @@
+/**
+ * The worst-queries table: sort, filter and page the per-query results without copying them. Sorted
+ * orders are cached per (sort, filter, segment) so scrolling through pages costs only the page.
+ */
+import type { RankedDump } from '../engine/model/dump';
+import type { QueryGroups } from '../engine/model/groups';
+import type { Evaluation } from '../engine/evaluate/types';
+import type { MaybeNumber, QueryPage, QueryPageParams, QueryRow, SegmentFilter, SortSpec } from '../protocol/messages';
+
+export interface QueryTableSource {
+  readonly dump: RankedDump;
+  readonly evaluation: Evaluation;
+  readonly groups: QueryGroups;
+}
+
+const collator = new Intl.Collator('en', { numeric: true });
+
+export function toMaybe(value: number): MaybeNumber {
+  return Number.isFinite(value) ? value : null;
+}
+
+/** (1 − v_q) / Σ(1 − v) over queries with a value, for the headline metric (NaN when skipped or Σ = 0). */
+export function lossShares(headlineValues: Float64Array): Float64Array {
+  let total = 0;
+  for (const v of headlineValues) if (Number.isFinite(v)) total += 1 - v;
+  const out = new Float64Array(headlineValues.length);
+  for (let q = 0; q < out.length; q++) {
+    const v = headlineValues[q]!;
+    out[q] = Number.isFinite(v) && total > 0 ? (1 - v) / total : NaN;
+  }
+  return out;
+}
+
+/** Per query, the interned value of a segment column on the query's first row. */
+export function segmentOfQuery(source: QueryTableSource, column: string): { values: (id: number) => string; ofQuery: Uint32Array } {
+  const segment = source.dump.segments.find((s) => s.name === column);
+  if (!segment) throw new Error(`no segment column '${column}'`);
+  const { rowsOfQuery, start } = source.groups;
+  const ofQuery = new Uint32Array(source.evaluation.queryCount);
+  for (let q = 0; q < ofQuery.length; q++) {
+    ofQuery[q] = start[q + 1]! > start[q]! ? segment.ofRow[rowsOfQuery[start[q]!]!]! : 0;
+  }
+  return { values: (id) => segment.values.get(id), ofQuery };
+}
+
+export class QueryTable {
+  private readonly shares: Float64Array;
+  private readonly segmentCache = new Map<string, ReturnType<typeof segmentOfQuery>>();
+  private readonly orderCache = new Map<string, Uint32Array>();
+
+  constructor(private readonly source: QueryTableSource) {
+    this.shares = lossShares(source.evaluation.perQuery.values[source.evaluation.headline]!);
+  }
+
+  get lossShare(): Float64Array {
+    return this.shares;
+  }
+
+  page(params: QueryPageParams): QueryPage {
+    const order = this.order(params.sort ?? this.defaultSort(), params.filter ?? '', params.segment);
+    const offset = Math.max(0, Math.min(Math.floor(params.offset), order.length));
+    const limit = Math.max(0, Math.min(Math.floor(params.limit), 10_000));
+    const rows: QueryRow[] = [];
+    for (let i = offset; i < Math.min(order.length, offset + limit); i++) rows.push(this.row(order[i]!, i));
+    return { total: order.length, offset, rows };
+  }
+
+  row(q: number, index: number): QueryRow {
+    const { evaluation, dump } = this.source;
+    const pq = evaluation.perQuery;
+    return {
+      query: dump.queries.get(q),
+      index,
+      values: pq.values.map((column) => toMaybe(column[q]!)),
+      items: pq.items[q]!,
+      relevant: pq.relevant[q]!,
+      inversions: pq.inversions[q]!,
+      inversionCost: pq.inversionCost[q]!,
+      lossShare: toMaybe(this.shares[q]!),
+      skipped: pq.skipped[q] === 1,
+    };
+  }
+
+  /** Headline ascending: the worst query first. */
+  defaultSort(): SortSpec {
+    return { key: this.source.evaluation.metrics[this.source.evaluation.headline]!.key, descending: false };
+  }
+
+  segment(column: string): ReturnType<typeof segmentOfQuery> {
+    let s = this.segmentCache.get(column);
+    if (!s) {
+      s = segmentOfQuery(this.source, column);
+      this.segmentCache.set(column, s);
+    }
+    return s;
+  }
+
+  /** Query ids in display order after filtering. */
+  order(sort: SortSpec, filter: string, segment: SegmentFilter | undefined): Uint32Array {
+    const cacheKey = JSON.stringify([sort.key, sort.descending, filter, segment?.column, segment?.value]);
+    const cached = this.orderCache.get(cacheKey);
+    if (cached) return cached;
+    const order = this.sorted(this.filtered(filter, segment), sort);
+    if (this.orderCache.size >= 8) this.orderCache.delete(this.orderCache.keys().next().value!);
+    this.orderCache.set(cacheKey, order);
+    return order;
+  }
+
+  private filtered(filter: string, segment: SegmentFilter | undefined): Uint32Array {
+    const { evaluation, dump } = this.source;
+    const needle = filter.trim().toLowerCase();
+    let segmentIds: Uint32Array | undefined;
+    let wanted = -1;
+    if (segment) {
+      const s = this.segment(segment.column);
+      segmentIds = s.ofQuery;
+      wanted = this.source.dump.segments.find((c) => c.name === segment.column)!.values.find(segment.value);
+      if (wanted < 0) return new Uint32Array(0);
+    }
+    const keep = new Uint32Array(evaluation.queryCount);
+    let n = 0;
+    for (let q = 0; q < evaluation.queryCount; q++) {
+      if (segmentIds && segmentIds[q] !== wanted) continue;
+      if (needle && !dump.queries.get(q).toLowerCase().includes(needle)) continue;
+      keep[n++] = q;
+    }
+    return keep.slice(0, n);
+  }
+
+  private sorted(ids: Uint32Array, sort: SortSpec): Uint32Array {
+    const { dump } = this.source;
+    const sign = sort.descending ? -1 : 1;
+    if (sort.key === 'query') {
+      const names = Array.from(ids, (q) => dump.queries.get(q));
+      const idx = Array.from(ids.keys()).sort((a, b) => sign * collator.compare(names[a]!, names[b]!) || ids[a]! - ids[b]!);
+      return Uint32Array.from(idx, (i) => ids[i]!);
+    }
+    const key = this.sortColumn(sort.key);
+    // Missing values (skipped queries) go last in both directions; equal values keep first-seen order.
+    return ids.sort((a, b) => {
+      const x = key[a]!;
+      const y = key[b]!;
+      const xMissing = !Number.isFinite(x);
+      const yMissing = !Number.isFinite(y);
+      if (xMissing || yMissing) return xMissing === yMissing ? a - b : xMissing ? 1 : -1;
+      return x === y ? a - b : x < y ? -sign : sign;
+    });
+  }
+
+  private sortColumn(key: string): ArrayLike<number> {
+    const { evaluation } = this.source;
+    const pq = evaluation.perQuery;
+    switch (key) {
+      case 'items':
+        return pq.items;
+      case 'relevant':
+        return pq.relevant;
+      case 'inversions':
+        return pq.inversions;
+      case 'inversionCost':
+        return pq.inversionCost;
+      case 'lossShare':
+        return this.shares;
+    }
+    const m = evaluation.metrics.findIndex((spec) => spec.key === key);
+    if (m < 0) throw new Error(`unknown sort key '${key}'`);
+    return pq.values[m]!;
+  }
+}
