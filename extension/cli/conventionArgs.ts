@@ -11,6 +11,7 @@ import {
   type MetricSpec,
 } from '../engine/metrics/conventions';
 import type { DumpFormat } from '../engine/model/dump';
+import { parseColumnRoles, type ReadOptions } from '../engine/readers/index';
 import { parseGain, parseMetricList, parseNoRelevant, parseTies } from '../engine/metrics/parse';
 
 /** node:util parseArgs option definitions; spread them into a command's own table. */
@@ -52,13 +53,7 @@ Metrics and conventions:
 const INPUT_FORMATS: readonly DumpFormat[] = ['csv', 'tsv', 'jsonl', 'run', 'svmlight', 'parquet'];
 
 /** What to pass to the reader besides the path (signal and progress are added by the caller). */
-export interface DumpReadRequest {
-  format?: DumpFormat;
-  columns?: string;
-  judgments?: string;
-  scores?: string;
-  threads?: number;
-}
+export type DumpReadRequest = Omit<ReadOptions, 'signal' | 'onProgress'>;
 
 export interface ScoringSetup {
   readonly read: DumpReadRequest;
@@ -70,7 +65,7 @@ export interface ScoringSetup {
 export function scoringSetupFrom(values: ConventionValues, resolvePath: (p: string) => string = (p) => p): ScoringSetup {
   const read: DumpReadRequest = {};
   if (values['input-format'] !== undefined) read.format = oneOf('--input-format', values['input-format'], INPUT_FORMATS);
-  if (values.columns !== undefined) read.columns = values.columns;
+  if (values.columns !== undefined) read.columns = withOptionName('--columns', () => parseColumnRoles(values.columns!));
   if (values.judgments !== undefined) read.judgments = resolvePath(values.judgments);
   if (values.scores !== undefined) read.scores = resolvePath(values.scores);
   if (values.threads !== undefined) read.threads = integerIn('--threads', values.threads, 1, 64);
