@@ -33,6 +33,8 @@ export interface PerQueryColumns {
   readonly inversionCost: Float64Array;
   /** 1 when the query is skipped from means (no relevant item under the `skip` policy). */
   readonly skipped: Uint8Array;
+  /** RBP residual of the first `rbp` metric (Moffat & Zobel 2008); present only when RBP is requested. */
+  readonly rbpResidual?: Float64Array;
 }
 
 export interface MetricSummary {
@@ -59,6 +61,7 @@ export interface Evaluation {
   readonly headline: number;
   readonly queryCount: number;
   readonly perQuery: PerQueryColumns;
+  /** summary[i] belongs to metrics[i]; when RBP is requested one more entry follows, keyed `rbp_residual`. */
   readonly summary: readonly MetricSummary[];
   readonly degenerate: DegenerateCounts;
   readonly sensitivity: readonly SensitivityRow[];

@@ -1,0 +1,189 @@
+/**
+ * One query's list, loaded from the dump into reusable scratch arrays: duplicates dropped, sorted by score
+ * (descending; file order among equal scores; items without a score last, in file order), cut into tie
+ * groups, then arranged under the tie convention. Nothing here allocates per row.
+ */
+import type { RankedDump } from '../model/dump';
+import type { TieConvention } from '../metrics/conventions';
+import type { GroupedList } from '../metrics/listMetrics';
+import { IndexSorter } from './sortIndex';
+
+/** Marks items already seen in the current query: seen[item] === stamp. One array for the whole dump. */
+export class SeenItems {
+  private stamp = 0;
+  readonly seen: Int32Array;
+  constructor(itemCount: number) {
+    this.seen = new Int32Array(itemCount);
+  }
+  next(): number {
+    return ++this.stamp;
+  }
+}
+
+export class QueryRanking {
+  n = 0;
+  duplicates = 0;
+  missingScores = 0;
+  unjudgedRows = 0;
+  tiedRows = 0;
+  /** Items with a score (they occupy the first `scored` slots). */
+  scored = 0;
+
+  // Ranked order: score descending, file order within equal scores, unscored last.
+  row = new Uint32Array(0);
+  score = new Float64Array(0);
+  grade = new Float64Array(0);
+  unjudged = new Uint8Array(0);
+  /** Tie groups of the ranked order: equal scores together; every unscored item alone. */
+  tieBounds = new Uint32Array(0);
+  tieGroups = 0;
+  /** Score classes for pair counting: like tie groups but all unscored items form one class. */
+  classBounds = new Uint32Array(0);
+  classes = 0;
+
+  /** The list under the tie convention; `order[slot]` = ranked slot placed there. */
+  order = new Uint32Array(0);
+  arranged: GroupedList = { n: 0, grade: this.grade, unjudged: this.unjudged, bounds: this.tieBounds, groups: 0 };
+
+  private key = new Float64Array(0);
+  private localRow = new Uint32Array(0);
+  private localGrade = new Float64Array(0);
+  private idx = new Uint32Array(0);
+  private arrangedGrade = new Float64Array(0);
+  private arrangedUnjudged = new Uint8Array(0);
+  private singletons = new Uint32Array(0);
+  private readonly sorter = new IndexSorter();
+
+  private ensure(n: number): void {
+    if (this.row.length >= n) return;
+    const size = Math.max(n, this.row.length * 2, 64);
+    this.row = new Uint32Array(size);
+    this.score = new Float64Array(size);
+    this.grade = new Float64Array(size);
+    this.unjudged = new Uint8Array(size);
+    this.tieBounds = new Uint32Array(size + 1);
+    this.classBounds = new Uint32Array(size + 1);
+    this.order = new Uint32Array(size);
+    this.key = new Float64Array(size);
+    this.localRow = new Uint32Array(size);
+    this.localGrade = new Float64Array(size);
+    this.idx = new Uint32Array(size);
+    this.arrangedGrade = new Float64Array(size);
+    this.arrangedUnjudged = new Uint8Array(size);
+    this.singletons = new Uint32Array(size + 1);
+    for (let i = 0; i <= size; i++) this.singletons[i] = i;
+  }
+
+  /** Loads rows[from..to) (one query's rows in file order). */
+  load(dump: RankedDump, rows: Uint32Array, from: number, to: number, seen: SeenItems): void {
+    this.ensure(to - from);
+    const stamp = seen.next();
+    const marks = seen.seen;
+    const items = dump.item;
+    const scores = dump.score;
+    const labels = dump.label;
+    const key = this.key;
+    let n = 0;
+    let duplicates = 0;
+    for (let p = from; p < to; p++) {
+      const r = rows[p]!;
+      const item = items[r]!;
+      if (marks[item] === stamp) {
+        duplicates++;
+        continue;
+      }
+      marks[item] = stamp;
+      const s = scores[r]!;
+      key[n] = s === s ? s : -Infinity;
+      this.localRow[n] = r;
+      this.localGrade[n] = labels[r]!;
+      this.idx[n] = n;
+      n++;
+    }
+    this.n = n;
+    this.duplicates = duplicates;
+    this.sorter.sortDescending(this.idx, key, n);
+
+    let missing = 0;
+    let unjudgedRows = 0;
+    for (let i = 0; i < n; i++) {
+      const j = this.idx[i]!;
+      const r = this.localRow[j]!;
+      this.row[i] = r;
+      const s = scores[r]!;
+      this.score[i] = s;
+      if (s !== s) missing++;
+      const g = this.localGrade[j]!;
+      if (g === g) {
+        this.grade[i] = g;
+        this.unjudged[i] = 0;
+      } else {
+        this.grade[i] = 0;
+        this.unjudged[i] = 1;
+        unjudgedRows++;
+      }
+    }
+    this.missingScores = missing;
+    this.unjudgedRows = unjudgedRows;
+    this.scored = n - missing;
+    this.cutGroups();
+  }
+
+  private cutGroups(): void {
+    const n = this.n;
+    const scored = this.scored;
+    const score = this.score;
+    const tb = this.tieBounds;
+    let groups = 0;
+    let tied = 0;
+    for (let i = 0; i < scored; ) {
+      let e = i + 1;
+      while (e < scored && score[e] === score[i]) e++;
+      tb[groups++] = i;
+      if (e - i > 1) tied += e - i;
+      i = e;
+    }
+    const classes = groups;
+    this.classBounds.set(tb.subarray(0, groups));
+    for (let i = scored; i < n; i++) tb[groups++] = i;
+    tb[groups] = n;
+    this.tieGroups = groups;
+    let c = classes;
+    if (scored < n) this.classBounds[c++] = scored;
+    this.classBounds[c] = n;
+    this.classes = c;
+    this.tiedRows = tied;
+  }
+
+  /** Orders each tie group under the convention; afterwards `arranged` and `order` describe the list. */
+  arrange(ties: TieConvention): void {
+    const n = this.n;
+    const order = this.order;
+    for (let i = 0; i < n; i++) order[i] = i;
+    if (ties === 'average') {
+      this.arranged = { n, grade: this.grade, unjudged: this.unjudged, bounds: this.tieBounds, groups: this.tieGroups };
+      return;
+    }
+    if (ties === 'file-order' || this.tiedRows === 0) {
+      this.arranged = { n, grade: this.grade, unjudged: this.unjudged, bounds: this.singletons, groups: n };
+      return;
+    }
+    // Pessimistic: lower grades first; optimistic: higher first. Stable, so file order breaks equal grades.
+    const sign = ties === 'optimistic' ? 1 : -1;
+    const key = this.key;
+    for (let i = 0; i < n; i++) key[i] = sign * this.grade[i]!;
+    const tb = this.tieBounds;
+    for (let g = 0; g < this.tieGroups; g++) {
+      const s = tb[g]!;
+      const e = tb[g + 1]!;
+      if (e - s > 1) this.sorter.sortDescending(order.subarray(s, e), key, e - s);
+    }
+    const grade = this.arrangedGrade;
+    const unjudged = this.arrangedUnjudged;
+    for (let i = 0; i < n; i++) {
+      grade[i] = this.grade[order[i]!]!;
+      unjudged[i] = this.unjudged[order[i]!]!;
+    }
+    this.arranged = { n, grade, unjudged, bounds: this.singletons, groups: n };
+  }
+}

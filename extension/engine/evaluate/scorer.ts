@@ -1,0 +1,222 @@
+/**
+ * Scores one loaded query under one set of conventions: every requested metric, the pair measures and the
+ * headline NDCG parts. Shared by evaluate() (all queries) and queryDetail() (one query).
+ */
+import type { Conventions, MetricSpec } from '../metrics/conventions';
+import { discountTable } from '../metrics/discount';
+import { ErrCalculator, errStopProbability } from '../metrics/err';
+import { gainFunction, isMonotone, type GainFunction } from '../metrics/gain';
+import { averagePrecision, dcg, idealDcg, rankBiasedPrecision, reciprocalRank, relevantInTop } from '../metrics/listMetrics';
+import { PairCounter, type PairResult } from '../metrics/pairs';
+import { GradeIndex } from './grades';
+import type { QueryRanking } from './ranking';
+
+/** The cut-off of the first NDCG metric requested (whole list when it has none), else 10. */
+export function headlineCutoff(metrics: readonly MetricSpec[]): number {
+  const first = metrics.find((m) => m.name === 'ndcg');
+  return first ? (first.k ?? Infinity) : 10;
+}
+
+/** Value of a normalised metric for a query with no relevant item under the policy (NaN = skipped). */
+export function noRelevantValue(policy: Conventions['noRelevant']): number {
+  return policy === 'zero' ? 0 : policy === 'one' ? 1 : NaN;
+}
+
+/** Ideal order gains: distinct gains, descending, with their item counts. */
+export class IdealGains {
+  gain = new Float64Array(16);
+  count = new Uint32Array(16);
+  distinct = 0;
+  private ranks = new Uint32Array(16);
+
+  build(gainOfRank: Float64Array, grades: GradeIndex, monotone: boolean): void {
+    const d = grades.distinct;
+    if (this.gain.length < d) {
+      this.gain = new Float64Array(d * 2);
+      this.count = new Uint32Array(d * 2);
+      this.ranks = new Uint32Array(d * 2);
+    }
+    for (let i = 0; i < d; i++) this.ranks[i] = d - 1 - i;
+    if (!monotone) {
+      // Insertion sort of grade ranks by gain, descending (few distinct grades in practice).
+      const r = this.ranks;
+      for (let i = 1; i < d; i++) {
+        const v = r[i]!;
+        let j = i - 1;
+        while (j >= 0 && gainOfRank[r[j]!]! < gainOfRank[v]!) {
+          r[j + 1] = r[j]!;
+          j--;
+        }
+        r[j + 1] = v;
+      }
+    }
+    for (let i = 0; i < d; i++) {
+      this.gain[i] = gainOfRank[this.ranks[i]!]!;
+      this.count[i] = grades.count[this.ranks[i]!]!;
+    }
+    this.distinct = d;
+  }
+}
+
+export class QueryScorer {
+  readonly headlineK: number;
+  readonly grades = new GradeIndex();
+  readonly ideal = new IdealGains();
+  /** Per metric, same order as `metrics`. */
+  readonly values: Float64Array;
+  rbpResidual = NaN;
+  relevant = 0;
+  noRelevant = false;
+  dcgHeadline = 0;
+  idealDcgHeadline = 0;
+  readonly pairs: PairResult = { tau: NaN, discordant: 0, swapGain: 0 };
+  /** Gain per arranged slot and grade rank per arranged slot. */
+  gain = new Float64Array(16);
+  arrangedRank = new Uint32Array(16);
+  headlineDiscount = new Float64Array(16);
+  gainOfRank = new Float64Array(16);
+
+  private readonly gainOf: GainFunction;
+  private readonly monotone: boolean;
+  private readonly err: ErrCalculator;
+  private readonly pairCounter = new PairCounter();
+  private readonly rbpOut = new Float64Array(2);
+  private readonly rbpIndex: number;
+
+  constructor(
+    readonly conventions: Conventions,
+    readonly metrics: readonly MetricSpec[],
+    /** ERR's g_max. */
+    gmax: number,
+  ) {
+    this.headlineK = headlineCutoff(metrics);
+    this.values = new Float64Array(metrics.length);
+    this.gainOf = gainFunction(conventions.gain);
+    this.monotone = isMonotone(conventions.gain);
+    this.err = new ErrCalculator(errStopProbability(gmax));
+    this.rbpIndex = metrics.findIndex((m) => m.name === 'rbp');
+  }
+
+  score(ranking: QueryRanking): void {
+    const c = this.conventions;
+    ranking.arrange(c.ties);
+    const list = ranking.arranged;
+    const n = list.n;
+    const grades = this.grades;
+    grades.build(ranking.grade, n);
+    this.ensure(n, grades.distinct);
+    const d = grades.distinct;
+    for (let r = 0; r < d; r++) this.gainOfRank[r] = this.gainOf(grades.values[r]!);
+    const order = ranking.order;
+    for (let i = 0; i < n; i++) {
+      const r = grades.rank[order[i]!]!;
+      this.arrangedRank[i] = r;
+      this.gain[i] = this.gainOfRank[r]!;
+    }
+    this.ideal.build(this.gainOfRank, grades, this.monotone);
+    const relevant = grades.atLeast(c.relevantFrom);
+    this.relevant = relevant;
+    this.noRelevant = relevant === 0;
+    const skipAll = this.noRelevant && c.noRelevant === 'skip';
+    const policyValue = noRelevantValue(c.noRelevant);
+    const from = c.relevantFrom;
+
+    for (let m = 0; m < this.metrics.length; m++) {
+      const spec = this.metrics[m]!;
+      const k = spec.k ?? Infinity;
+      let v: number;
+      switch (spec.name) {
+        case 'ndcg': {
+          const ideal = idealDcg(this.ideal.gain, this.ideal.count, this.ideal.distinct, k, n);
+          // A query with relevant items but an ideal DCG of 0 (a gain map giving them 0) has no defined NDCG.
+          v = this.noRelevant ? policyValue : ideal > 0 ? dcg(list, this.gain, k) / ideal : NaN;
+          break;
+        }
+        case 'dcg':
+          v = dcg(list, this.gain, k);
+          break;
+        case 'err':
+          v = this.err.compute(list.grade, list.bounds, list.groups, n, k);
+          break;
+        case 'p':
+          v = relevantInTop(list, from, k) / (spec.k ?? Math.max(n, 1));
+          break;
+        case 'r':
+          v = this.noRelevant ? policyValue : relevantInTop(list, from, k) / relevant;
+          break;
+        case 'ap':
+          v = this.noRelevant ? policyValue : averagePrecision(list, from);
+          break;
+        case 'rr':
+          v = this.noRelevant ? policyValue : reciprocalRank(list, from, k);
+          break;
+        case 'rbp':
+          rankBiasedPrecision(list, from, c.rbpPersistence, k, this.rbpOut);
+          v = this.rbpOut[0]!;
+          if (m === this.rbpIndex) this.rbpResidual = this.rbpOut[1]!;
+          break;
+        case 'tau':
+          v = NaN; // filled after the pair pass
+          break;
+      }
+      this.values[m] = skipAll ? NaN : v;
+    }
+    this.headline(ranking);
+    for (let m = 0; m < this.metrics.length; m++) {
+      if (this.metrics[m]!.name === 'tau') this.values[m] = skipAll ? NaN : this.pairs.tau;
+    }
+  }
+
+  /** Headline NDCG parts and the pair pass (tau, inversions, Σ|ΔNDCG|). */
+  private headline(ranking: QueryRanking): void {
+    const list = ranking.arranged;
+    const n = list.n;
+    const hk = this.headlineK;
+    const depth = Math.min(n, hk);
+    const { discount, cumulative } = discountTable(depth);
+    const applied = this.headlineDiscount;
+    const b = list.bounds;
+    for (let g = 0; g < list.groups; g++) {
+      const s = b[g]!;
+      const e = b[g + 1]!;
+      if (e - s === 1) {
+        applied[s] = s < depth ? discount[s]! : 0;
+        continue;
+      }
+      const mean = s < depth ? (cumulative[Math.min(e, depth)]! - cumulative[s]!) / (e - s) : 0;
+      for (let i = s; i < e; i++) applied[i] = mean;
+    }
+    this.dcgHeadline = dcg(list, this.gain, hk);
+    this.idealDcgHeadline = idealDcg(this.ideal.gain, this.ideal.count, this.ideal.distinct, hk, n);
+    this.pairCounter.compute(
+      {
+        n,
+        rank: this.arrangedRank,
+        distinct: this.grades.distinct,
+        rankCount: this.grades.count,
+        classBounds: ranking.classBounds,
+        classes: ranking.classes,
+        gain: this.gain,
+        discount: applied,
+        gainOfRank: this.gainOfRank,
+        gainIncreasing: this.monotone,
+      },
+      this.pairs,
+    );
+  }
+
+  /** Σ over inverted pairs of |ΔNDCG@headline| (0 when the ideal DCG is 0). */
+  get inversionCost(): number {
+    return this.idealDcgHeadline > 0 ? this.pairs.swapGain / this.idealDcgHeadline : 0;
+  }
+
+  private ensure(n: number, distinct: number): void {
+    if (this.gain.length < n) {
+      const size = Math.max(n, this.gain.length * 2);
+      this.gain = new Float64Array(size);
+      this.arrangedRank = new Uint32Array(size);
+      this.headlineDiscount = new Float64Array(size);
+    }
+    if (this.gainOfRank.length < distinct) this.gainOfRank = new Float64Array(Math.max(distinct, this.gainOfRank.length * 2));
+  }
+}

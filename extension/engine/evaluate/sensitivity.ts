@@ -1,0 +1,144 @@
+/**
+ * Convention sensitivity: the headline mean NDCG@k of the same run under each alternative gain, tie and
+ * no-relevant convention, one dimension changed at a time. Computed in the same pass as the main metrics,
+ * reusing each query's sorted order; only the slots above the cut-off are revisited per variant.
+ */
+import type { Conventions, GainConvention, NoRelevantPolicy, TieConvention } from '../metrics/conventions';
+import { discountTable } from '../metrics/discount';
+import { gainFunction, isMonotone, type GainFunction } from '../metrics/gain';
+import { idealDcg } from '../metrics/listMetrics';
+import { formatGain } from '../metrics/parse';
+import type { SensitivityRow } from './types';
+import type { GradeIndex } from './grades';
+import type { QueryRanking } from './ranking';
+import { IdealGains, noRelevantValue } from './scorer';
+
+const TIES: readonly TieConvention[] = ['average', 'pessimistic', 'optimistic', 'file-order'];
+const POLICIES: readonly NoRelevantPolicy[] = ['skip', 'zero', 'one'];
+
+interface Variant {
+  readonly gain: GainConvention;
+  readonly ties: TieConvention;
+  readonly gainSlot: number;
+  sum: number;
+  counted: number;
+}
+
+export class SensitivityPass {
+  private readonly gains: GainConvention[] = [];
+  private readonly gainFns: GainFunction[] = [];
+  private readonly monotone: boolean[] = [];
+  private readonly variants: Variant[] = [];
+  private readonly ideal = new IdealGains();
+  private gainOfRank: Float64Array[] = [];
+  private idealOfGain = new Float64Array(0);
+  private sortedRanks = new Uint32Array(16);
+  /** Queries with no relevant item (the policy decides their value). */
+  private noRelevantQueries = 0;
+
+  constructor(
+    private readonly base: Conventions,
+    private readonly k: number,
+    /** Lowest grade in the data: exponential gain is left out when it is negative. */
+    lowestGrade: number,
+  ) {
+    const candidates: GainConvention[] = [base.gain, { kind: 'exponential' }, { kind: 'linear' }];
+    const seen = new Set<string>();
+    for (const g of candidates) {
+      const name = formatGain(g);
+      if (seen.has(name) || (g.kind === 'exponential' && lowestGrade < 0)) continue;
+      seen.add(name);
+      this.gains.push(g);
+      this.gainFns.push(gainFunction(g));
+      this.monotone.push(isMonotone(g));
+      this.gainOfRank.push(new Float64Array(16));
+    }
+    this.idealOfGain = new Float64Array(this.gains.length);
+    for (const ties of TIES) this.variants.push({ gain: base.gain, ties, gainSlot: 0, sum: 0, counted: 0 });
+    for (let i = 1; i < this.gains.length; i++) {
+      this.variants.push({ gain: this.gains[i]!, ties: base.ties, gainSlot: i, sum: 0, counted: 0 });
+    }
+  }
+
+  /** Adds one query; `grades` indexes the ranked (not arranged) order of `ranking`. */
+  add(ranking: QueryRanking, grades: GradeIndex, noRelevant: boolean): void {
+    if (noRelevant) {
+      this.noRelevantQueries++;
+      return;
+    }
+    const n = ranking.n;
+    const d = grades.distinct;
+    for (let i = 0; i < this.gains.length; i++) {
+      if (this.gainOfRank[i]!.length < d) this.gainOfRank[i] = new Float64Array(d * 2);
+      const table = this.gainOfRank[i]!;
+      for (let r = 0; r < d; r++) table[r] = this.gainFns[i]!(grades.values[r]!);
+      this.ideal.build(table, grades, this.monotone[i]!);
+      this.idealOfGain[i] = idealDcg(this.ideal.gain, this.ideal.count, this.ideal.distinct, this.k, n);
+    }
+    for (const v of this.variants) {
+      const ideal = this.idealOfGain[v.gainSlot]!;
+      if (!(ideal > 0)) continue;
+      v.sum += this.dcgUnder(ranking, grades, this.gainOfRank[v.gainSlot]!, v.ties) / ideal;
+      v.counted++;
+    }
+  }
+
+  /** DCG@k of the ranked list under a tie convention, from the ranked order and its tie groups. */
+  private dcgUnder(ranking: QueryRanking, grades: GradeIndex, gainOfRank: Float64Array, ties: TieConvention): number {
+    const depth = Math.min(this.k, ranking.n);
+    const { discount, cumulative } = discountTable(depth);
+    const b = ranking.tieBounds;
+    const rank = grades.rank;
+    let total = 0;
+    for (let g = 0; g < ranking.tieGroups; g++) {
+      const s = b[g]!;
+      if (s >= depth) break;
+      const e = b[g + 1]!;
+      if (e - s === 1 || ties === 'file-order') {
+        for (let i = s; i < Math.min(e, depth); i++) total += gainOfRank[rank[i]!]! * discount[i]!;
+      } else if (ties === 'average') {
+        let sum = 0;
+        for (let i = s; i < e; i++) sum += gainOfRank[rank[i]!]!;
+        total += (sum / (e - s)) * (cumulative[Math.min(e, depth)]! - cumulative[s]!);
+      } else {
+        if (this.sortedRanks.length < e - s) this.sortedRanks = new Uint32Array((e - s) * 2);
+        const sorted = this.sortedRanks.subarray(0, e - s);
+        sorted.set(rank.subarray(s, e));
+        sorted.sort(); // grade rank ascending = pessimistic order
+        const last = Math.min(e, depth);
+        for (let i = s; i < last; i++) {
+          const r = ties === 'pessimistic' ? sorted[i - s]! : sorted[e - 1 - i]!;
+          total += gainOfRank[r]! * discount[i]!;
+        }
+      }
+    }
+    return total;
+  }
+
+  rows(): SensitivityRow[] {
+    const base = this.base;
+    const mark = (configured: boolean) => (configured ? ' (as configured)' : '');
+    const rowOf = (v: Variant, policy: NoRelevantPolicy, label: string): SensitivityRow => {
+      const extra = policy === 'skip' ? 0 : this.noRelevantQueries;
+      const counted = v.counted + extra;
+      const sum = v.sum + (policy === 'skip' ? 0 : noRelevantValue(policy) * extra);
+      return {
+        label,
+        conventions: { ...base, gain: v.gain, ties: v.ties, noRelevant: policy },
+        mean: counted > 0 ? sum / counted : NaN,
+        counted,
+      };
+    };
+    const out: SensitivityRow[] = [];
+    const configured = this.variants.find((v) => v.ties === base.ties && v.gainSlot === 0)!;
+    out.push(rowOf(configured, base.noRelevant, `gain: ${formatGain(base.gain)}${mark(true)}`));
+    for (const v of this.variants) {
+      if (v.gainSlot !== 0) out.push(rowOf(v, base.noRelevant, `gain: ${formatGain(v.gain)}`));
+    }
+    for (const v of this.variants) {
+      if (v.gainSlot === 0) out.push(rowOf(v, base.noRelevant, `ties: ${v.ties}${mark(v.ties === base.ties)}`));
+    }
+    for (const p of POLICIES) out.push(rowOf(configured, p, `no relevant: ${p}${mark(p === base.noRelevant)}`));
+    return out;
+  }
+}

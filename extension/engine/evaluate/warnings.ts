@@ -1,0 +1,78 @@
+/**
+ * Plain sentences describing what was counted, skipped or assumed while evaluating. Shown beside every
+ * result so nobody has to guess why two numbers differ.
+ */
+import type { RankedDump } from '../model/dump';
+import type { Conventions, MetricSpec } from '../metrics/conventions';
+import { formatGain } from '../metrics/parse';
+import type { DegenerateCounts } from './types';
+
+export interface WarningInput {
+  readonly dump: RankedDump;
+  readonly conventions: Conventions;
+  readonly metrics: readonly MetricSpec[];
+  readonly queryCount: number;
+  readonly degenerate: DegenerateCounts;
+  readonly emptyQueries: number;
+  readonly tauUndefined: number;
+  readonly gmax: number;
+  readonly headlineK: number;
+}
+
+const TIE_TEXT: Record<Conventions['ties'], string> = {
+  average: 'scoring the average over every order of each tied group',
+  pessimistic: 'placing lower grades first within each tie',
+  optimistic: 'placing higher grades first within each tie',
+  'file-order': 'keeping file order within each tie',
+};
+
+function rows(n: number, one: string, many: string): string {
+  return `${n.toLocaleString('en-US')} ${n === 1 ? one : many}`;
+}
+
+export function describeDegenerate(w: WarningInput): string[] {
+  const c = w.conventions;
+  const d = w.degenerate;
+  const out: string[] = [];
+  if (d.noRelevantQueries > 0) {
+    const head = `${rows(d.noRelevantQueries, 'query has', 'queries have')} no item with grade >= ${c.relevantFrom}`;
+    if (c.noRelevant === 'skip') {
+      out.push(`${head}; they are left out of every mean (no-relevant policy: skip).`);
+    } else {
+      const v = c.noRelevant === 'zero' ? 0 : 1;
+      out.push(
+        `${head}; NDCG, AP, RR and recall score ${v} for them (no-relevant policy: ${c.noRelevant}), ` +
+          'while DCG, ERR, precision and RBP keep the value their grades give.',
+      );
+    }
+  }
+  if (w.emptyQueries > 0) out.push(`${rows(w.emptyQueries, 'query has', 'queries have')} no rows at all; treated as having no relevant item.`);
+  if (d.duplicateRows > 0) {
+    out.push(`${rows(d.duplicateRows, 'row repeats', 'rows repeat')} a (query, item) pair seen earlier; the first row of each pair is ranked, the repeats are ignored.`);
+  }
+  if (d.missingScoreRows > 0) {
+    out.push(`${rows(d.missingScoreRows, 'row has', 'rows have')} no usable score; they are ranked after every scored item of their query, in file order.`);
+  }
+  if (d.unjudgedRows > 0) {
+    out.push(`${rows(d.unjudgedRows, 'row has', 'rows have')} no judgment; they count as grade 0 (and add to RBP's residual).`);
+  }
+  if (d.tiedScoreRows > 0) {
+    out.push(`${rows(d.tiedScoreRows, 'row ties', 'rows tie')} another row's score in the same query; ties are handled by ${TIE_TEXT[c.ties]}.`);
+  }
+  if (d.singleItemQueries > 0) {
+    out.push(`${rows(d.singleItemQueries, 'query has', 'queries have')} a single item; every ranking of them is perfect.`);
+  }
+  if (w.tauUndefined > 0) {
+    out.push(`Kendall's tau is undefined for ${rows(w.tauUndefined, 'query', 'queries')} (all scores or all grades equal); left out of its mean.`);
+  }
+  if (w.metrics.some((m) => m.name === 'err')) {
+    const source = c.maxGrade === undefined ? 'the highest grade in the data' : 'as configured';
+    out.push(`ERR uses a maximum grade of ${w.gmax} (${source}).`);
+  }
+  const hk = Number.isFinite(w.headlineK) ? `@${w.headlineK}` : '';
+  out.push(
+    `Conventions: gain ${formatGain(c.gain)}, ties ${c.ties}, no-relevant ${c.noRelevant}, relevant from grade ${c.relevantFrom}, ` +
+      `RBP persistence ${c.rbpPersistence}; inversion cost is in NDCG${hk}.`,
+  );
+  return out;
+}
