@@ -90,43 +90,44 @@ export function scoringSetupFrom(values: ConventionValues, resolvePath: (p: stri
 
 function oneOf<T extends string>(option: string, text: string, allowed: readonly T[]): T {
   if ((allowed as readonly string[]).includes(text)) return text as T;
-  throw new InputError(`${option} to be one of ${allowed.join(', ')}`, undefined, undefined, text);
+  throw new InputError(`one of ${allowed.join(', ')}`, option, undefined, text);
 }
 
 function finiteNumber(option: string, text: string): number {
   const n = text.trim() === '' ? NaN : Number(text);
-  if (!Number.isFinite(n)) throw new InputError(`${option} to be a number`, undefined, undefined, text);
+  if (!Number.isFinite(n)) throw new InputError('a number', option, undefined, text);
   return n;
 }
 
 function positiveNumber(option: string, text: string): number {
   const n = finiteNumber(option, text);
-  if (n <= 0) throw new InputError(`${option} to be a number above 0`, undefined, undefined, text);
+  if (n <= 0) throw new InputError('a number above 0', option, undefined, text);
   return n;
 }
 
 function integerIn(option: string, text: string, min: number, max: number): number {
   const n = finiteNumber(option, text);
   if (!Number.isInteger(n) || n < min || n > max) {
-    throw new InputError(`${option} to be a whole number from ${min} to ${max}`, undefined, undefined, text);
+    throw new InputError(`a whole number from ${min} to ${max}`, option, undefined, text);
   }
   return n;
 }
 
 function persistence(text: string): number {
   const p = finiteNumber('--rbp-persistence', text);
-  if (!(p > 0 && p < 1)) throw new InputError('--rbp-persistence to be strictly between 0 and 1', undefined, undefined, text);
+  if (!(p > 0 && p < 1)) throw new InputError('a number strictly between 0 and 1', '--rbp-persistence', undefined, text);
   return p;
 }
 
-/** Re-labels a parser's InputError so the user sees which option it came from. */
+/**
+ * Re-labels a parser's InputError so the user sees which option it came from; the option stands
+ * where a file name would ("--ties: expected …").
+ */
 function withOptionName<T>(option: string, parse: () => T): T {
   try {
     return parse();
   } catch (e) {
-    if (e instanceof InputError && e.file === undefined) {
-      throw new InputError(`${e.expected} for ${option}`, undefined, undefined, e.found);
-    }
+    if (e instanceof InputError && e.file === undefined) throw new InputError(e.expected, option, undefined, e.found);
     throw e;
   }
 }

@@ -28,11 +28,13 @@ export interface QueryColumn {
 export function queryColumns(evaluation: Evaluation): QueryColumn[] {
   const columns: QueryColumn[] = [];
   const { perQuery } = evaluation;
-  const residuals = (perQuery as { rbpResidual?: Float64Array }).rbpResidual;
+  const residuals = perQuery.rbpResidual;
+  // The evaluation keeps the residual of the first RBP metric only.
+  const firstRbp = evaluation.metrics.findIndex((spec) => spec.name === 'rbp');
   evaluation.metrics.forEach((spec, m) => {
     const values = perQuery.values[m]!;
     columns.push({ key: spec.key, valueOf: (q) => values[q]! });
-    if (spec.name === 'rbp' && residuals) columns.push({ key: `${spec.key}_residual`, valueOf: (q) => residuals[q]! });
+    if (m === firstRbp && residuals) columns.push({ key: `${spec.key}_residual`, valueOf: (q) => residuals[q]! });
     if (spec.name === 'tau') columns.push({ key: 'inversions', valueOf: (q) => perQuery.inversions[q]!, whole: true });
   });
   return columns;

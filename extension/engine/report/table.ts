@@ -32,7 +32,7 @@ export function formatTable(input: ReportInput, options: TableOptions): string {
   if (ev.warnings.length > 0) sections.push('Notes\n' + ev.warnings.map((w) => `  - ${w}`).join('\n'));
 
   if (headline && ev.sensitivity.length > 0) {
-    const rows = [[`as configured`, formatValue(headline.mean), '', String(headline.counted)]];
+    const rows: string[][] = [];
     for (const row of ev.sensitivity) {
       rows.push([row.label, formatValue(row.mean), signed(row.mean - headline.mean), String(row.counted)]);
     }
@@ -70,6 +70,7 @@ export function formatTable(input: ReportInput, options: TableOptions): string {
 
 function signed(x: number): string {
   if (Number.isNaN(x)) return '—';
+  if (Math.abs(x) < 5e-5) return '0.0000'; // rounding noise must not print as "-0.0000"
   const text = formatValue(Math.abs(x));
   return x > 0 ? `+${text}` : x < 0 ? `-${text}` : ` ${text}`;
 }

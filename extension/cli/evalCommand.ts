@@ -1,0 +1,72 @@
+/**
+ * `gainline eval DUMP`: read one prediction dump, score every query, print a report.
+ */
+import { stat } from 'node:fs/promises';
+import { resolve } from 'node:path';
+import { parseArgs } from 'node:util';
+import { InputError } from '../engine/errors';
+import { evaluate } from '../engine/evaluate/evaluate';
+import { readDump } from '../engine/readers/index';
+import { formatReport, REPORT_FORMATS, type ReportFormat } from '../engine/report/index';
+import { conventionHelp, conventionOptions, scoringSetupFrom } from './conventionArgs';
+import type { CliIO } from './io';
+import { progressLine } from './progress';
+
+export const evalUsage = `Usage: gainline eval DUMP [options]
+
+Scores every query of one prediction dump and prints the means, the conventions used, what was
+skipped or assumed, how the headline metric moves under other conventions, and the worst queries.
+
+Output:
+  --format F            table (default) | json | csv | markdown
+  --worst N             how many of the worst queries to list (default 10; table and markdown)
+${conventionHelp}`;
+
+const evalOptions = {
+  ...conventionOptions,
+  format: { type: 'string' },
+  worst: { type: 'string' },
+  help: { type: 'boolean', short: 'h' },
+} as const;
+
+/** Files at least this big get a progress line (when standard error is a terminal). */
+const PROGRESS_FROM_BYTES = 32 * 1024 * 1024;
+
+export async function runEval(argv: string[], io: CliIO): Promise<number> {
+  const { values, positionals } = parseArgs({ args: argv, options: evalOptions, allowPositionals: true, strict: true });
+  if (values.help) {
+    io.out(evalUsage);
+    return 0;
+  }
+  if (positionals.length !== 1) {
+    throw new UsageError(positionals.length === 0 ? 'eval needs the dump file to read' : `eval reads one dump; got ${positionals.length} files`);
+  }
+  const source = positionals[0]!;
+  const format = (values.format ?? 'table') as ReportFormat;
+  if (!REPORT_FORMATS.includes(format)) {
+    throw new InputError(`one of ${REPORT_FORMATS.join(', ')}`, '--format', undefined, values.format);
+  }
+  const worst = values.worst === undefined ? 10 : Number(values.worst);
+  if (!Number.isSafeInteger(worst) || worst < 0) {
+    throw new InputError('a whole number of queries, 0 or more', '--worst', undefined, values.worst);
+  }
+  const setup = scoringSetupFrom(values, (p) => resolve(io.cwd, p));
+  const path = resolve(io.cwd, source);
+
+  const size = (await stat(path)).size;
+  const progress = io.isTTY && size >= PROGRESS_FROM_BYTES ? progressLine(io, source) : undefined;
+  try {
+    const dump = await readDump(path, { ...setup.read, onProgress: progress?.reading });
+    const evaluation = evaluate(dump, setup.metrics, setup.conventions, { onProgress: progress?.scoring });
+    progress?.done();
+    io.out(formatReport(format, { evaluation, queryNames: dump.queries, source, rowCount: dump.rowCount }, { worst }));
+  } finally {
+    progress?.done();
+  }
+  return 0;
+}
+
+/** Wrong command-line usage: reported on one line with a pointer to help, exit 2. */
+export class UsageError extends Error {
+  override readonly name = 'UsageError';
+}
