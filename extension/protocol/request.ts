@@ -72,6 +72,8 @@ export interface RequestOptions {
   /** Overrides the client's default timeout; 0 or Infinity means no timeout. */
   readonly timeoutMs?: number;
   readonly signal?: AbortSignal;
+  /** Called with the request id before it is posted (to match side messages such as progress). */
+  readonly onId?: (id: number) => void;
 }
 
 interface Pending {
@@ -139,6 +141,7 @@ export class RequestClient<M extends RequestMap> {
         },
       });
       try {
+        options.onId?.(id);
         this.post({ kind: 'request', id, method, params });
       } catch (error) {
         this.settle(id, error instanceof Error ? error : new Error(String(error)));

@@ -1,0 +1,55 @@
+/**
+ * The few webview requests the host answers itself because they touch the editor: saving or copying
+ * an exported table, copying a query as JSON, and revealing a row of the dump in a text editor.
+ */
+import * as path from 'node:path';
+import * as vscode from 'vscode';
+import type { ExportResult, ExportViewParams, RevealResult } from '../protocol/messages';
+import { formatExport, suggestedFileName } from './exportTable';
+import { isTextual } from './sources';
+
+export async function exportView(params: ExportViewParams, nearFile: string, conventions: string | undefined): Promise<ExportResult> {
+  const text = formatExport(params, conventions);
+  if (params.destination === 'clipboard') {
+    await vscode.env.clipboard.writeText(text);
+    void vscode.window.setStatusBarMessage('Gainline: table copied', 3000);
+    return { done: true, target: 'clipboard' };
+  }
+  const defaultUri = vscode.Uri.file(path.join(path.dirname(nearFile), suggestedFileName(params.title, params.format)));
+  const target = await vscode.window.showSaveDialog({
+    defaultUri,
+    saveLabel: 'Export',
+    filters: params.format === 'csv' ? { CSV: ['csv'] } : { Markdown: ['md'] },
+  });
+  if (!target) return { done: false };
+  await vscode.workspace.fs.writeFile(target, new TextEncoder().encode(text));
+  return { done: true, target: target.fsPath };
+}
+
+export async function copyText(text: string, what: string): Promise<{ copied: boolean }> {
+  await vscode.env.clipboard.writeText(text);
+  void vscode.window.setStatusBarMessage(`Gainline: ${what} copied`, 3000);
+  return { copied: true };
+}
+
+/**
+ * Opens the dump as text beside the viewer with the row's line selected. Parquet and compressed files
+ * are not text: the row number is shown instead.
+ */
+export async function revealRow(file: string, row: number, line: number): Promise<RevealResult> {
+  const name = path.basename(file);
+  if (!isTextual(file) || line <= 0) {
+    const message = `${name} is not a text file: the item is data row ${row + 1} (line numbers do not apply).`;
+    void vscode.window.showInformationMessage(message);
+    return { revealed: false, line: 0, message };
+  }
+  const document = await vscode.workspace.openTextDocument(vscode.Uri.file(file));
+  const lineIndex = Math.min(line - 1, document.lineCount - 1);
+  const range = document.lineAt(lineIndex).range;
+  await vscode.window.showTextDocument(document, {
+    viewColumn: vscode.ViewColumn.Beside,
+    preserveFocus: false,
+    selection: new vscode.Selection(range.start, range.end),
+  });
+  return { revealed: true, line };
+}

@@ -1,0 +1,313 @@
+/**
+ * One open view (a dump in the custom editor, or a compare panel) and its webview. Owns the worker
+ * session, pushes state (loading → loaded/reloaded | error | vanished), answers the webview's requests
+ * (mostly by asking the worker), and recomputes when the file or a setting changes.
+ */
+import * as path from 'node:path';
+import * as vscode from 'vscode';
+import { conventionsLine, compareSettings, evaluationSettings, type GainlineConfig } from './config';
+import { copyText, exportView, revealRow } from './hostActions';
+import { LOAD_TIMEOUT_MS, type EngineWorker } from './workerHost';
+import { sourceFor } from './sources';
+import type {
+  CompareOverviewModel,
+  HostToView,
+  OverviewModel,
+  ViewRequests,
+  ViewState,
+  ViewToHost,
+} from '../protocol/messages';
+import { RemoteError, RequestAbortedError, RequestServer, type RequestHandlers } from '../protocol/request';
+import type { DumpSource } from '../protocol/worker';
+
+export type SessionTarget =
+  | { readonly mode: 'single'; readonly uri: vscode.Uri }
+  | { readonly mode: 'compare'; readonly a: vscode.Uri; readonly b: vscode.Uri };
+
+export interface SessionDeps {
+  readonly worker: EngineWorker;
+  readonly getConfig: () => GainlineConfig;
+  /** Remembers the judgments file picked for a run file. */
+  readonly memory: vscode.Memento;
+}
+
+/** What the status bar shows for the view in front. */
+export interface Headline {
+  readonly label: string;
+  readonly value: number | null;
+  readonly conventions: string;
+  readonly queries: number;
+  readonly compare: boolean;
+}
+
+const RELOAD_DEBOUNCE_MS = 300;
+let sessionCounter = 0;
+
+export class ViewSession implements vscode.Disposable {
+  readonly key = `view-${++sessionCounter}`;
+  private state: ViewState;
+  private overview: OverviewModel | undefined;
+  private compare: CompareOverviewModel | undefined;
+  private loadedGeneration = -1;
+  private sources: DumpSource[] = [];
+  private loadAbort: AbortController | undefined;
+  private reloadTimer: ReturnType<typeof setTimeout> | undefined;
+  private readonly server: RequestServer<ViewRequests>;
+  private readonly disposables: vscode.Disposable[] = [];
+  private readonly headlineEmitter = new vscode.EventEmitter<Headline | undefined>();
+  readonly onDidChangeHeadline = this.headlineEmitter.event;
+  /** The query the user looks at, kept across reloads. */
+  selection: string | null = null;
+  private disposed = false;
+
+  constructor(
+    private readonly webview: vscode.Webview,
+    readonly target: SessionTarget,
+    private readonly deps: SessionDeps,
+  ) {
+    this.state = { status: 'loading', mode: target.mode, label: this.label, fraction: null, message: 'Starting…' };
+    this.server = new RequestServer<ViewRequests>(this.handlers(), (message) => void this.post(message));
+    this.disposables.push(webview.onDidReceiveMessage((message: ViewToHost) => this.onMessage(message)));
+    for (const uri of this.files) this.watch(uri);
+  }
+
+  get files(): vscode.Uri[] {
+    return this.target.mode === 'single' ? [this.target.uri] : [this.target.a, this.target.b];
+  }
+
+  get label(): string {
+    return this.files.map((u) => path.basename(u.fsPath)).join(' ↔ ');
+  }
+
+  get headline(): Headline | undefined {
+    if (this.overview) {
+      const m = this.overview.metrics[this.overview.headline]!;
+      return { label: m.label, value: m.mean, conventions: this.overview.conventions.summary, queries: this.overview.queryCount, compare: false };
+    }
+    if (this.compare) {
+      const m = this.compare.metrics[this.compare.headline]!;
+      return { label: `Δ ${m.label}`, value: m.delta, conventions: this.compare.conventions.summary, queries: this.compare.pairedQueries, compare: true };
+    }
+    return undefined;
+  }
+
+  /** First load; later loads come from `scheduleReload`. */
+  start(): Promise<void> {
+    return this.load('loaded', true);
+  }
+
+  /** Debounced recompute after a file change or a settings change. */
+  scheduleReload(delayMs = RELOAD_DEBOUNCE_MS): void {
+    if (this.disposed) return;
+    if (this.reloadTimer) clearTimeout(this.reloadTimer);
+    this.reloadTimer = setTimeout(() => {
+      this.reloadTimer = undefined;
+      void this.load(this.overview || this.compare ? 'reloaded' : 'loaded', false);
+    }, delayMs);
+  }
+
+  dispose(): void {
+    if (this.disposed) return;
+    this.disposed = true;
+    if (this.reloadTimer) clearTimeout(this.reloadTimer);
+    this.loadAbort?.abort();
+    this.server.dispose();
+    this.headlineEmitter.dispose();
+    for (const d of this.disposables) d.dispose();
+    if (this.deps.worker.running) void this.deps.worker.call('unload', { session: this.key }).catch(() => undefined);
+  }
+
+  private onMessage(message: ViewToHost): void {
+    if (message.kind === 'ready') {
+      void this.post({ kind: 'state', state: this.state });
+      if (this.selection && (this.state.status === 'loaded' || this.state.status === 'reloaded')) {
+        void this.post({ kind: 'showQuery', query: this.selection });
+      }
+    } else if (message.kind === 'selection') {
+      this.selection = message.query;
+    } else {
+      this.server.handleMessage(message);
+    }
+  }
+
+  private setState(state: ViewState): void {
+    this.state = state;
+    void this.post({ kind: 'state', state });
+  }
+
+  private post(message: HostToView): Thenable<boolean> {
+    if (this.disposed) return Promise.resolve(false);
+    return this.webview.postMessage(message).then(undefined, () => false);
+  }
+
+  private async load(kind: 'loaded' | 'reloaded', firstTime: boolean): Promise<void> {
+    this.loadAbort?.abort();
+    const abort = new AbortController();
+    this.loadAbort = abort;
+    let cancelledByUser = false;
+    const config = this.deps.getConfig();
+    if (kind === 'loaded') this.setState({ status: 'loading', mode: this.target.mode, label: this.label, fraction: 0, message: 'Reading…' });
+    try {
+      this.sources = await this.resolveSources(config);
+    } catch (error) {
+      this.setState({ status: 'error', message: messageOf(error) });
+      return;
+    }
+    const run = async (progress: vscode.Progress<{ increment?: number; message?: string }>, token?: vscode.CancellationToken) => {
+      token?.onCancellationRequested(() => {
+        cancelledByUser = true;
+        abort.abort();
+      });
+      let reported = 0;
+      const onProgress = (fraction: number | null, message: string): void => {
+        if (fraction !== null && fraction > reported) {
+          progress.report({ increment: (fraction - reported) * 100, message });
+          reported = fraction;
+        } else progress.report({ message });
+        if (kind === 'loaded') this.setState({ status: 'loading', mode: this.target.mode, label: this.label, fraction, message });
+      };
+      const options = { signal: abort.signal, timeoutMs: LOAD_TIMEOUT_MS, onProgress };
+      if (this.target.mode === 'single') {
+        const overview = await this.deps.worker.call(
+          'load', { session: this.key, source: this.sources[0]!, settings: evaluationSettings(config) }, options);
+        this.overview = overview;
+        this.setState({ status: kind, mode: 'single', overview });
+      } else {
+        const compare = await this.deps.worker.call(
+          'loadCompare', { session: this.key, a: this.sources[0]!, b: this.sources[1]!, settings: compareSettings(config) }, options);
+        this.compare = compare;
+        this.setState({ status: kind, mode: 'compare', compare });
+      }
+      this.loadedGeneration = this.deps.worker.generation;
+      this.headlineEmitter.fire(this.headline);
+    };
+    try {
+      if (firstTime) {
+        await vscode.window.withProgress(
+          { location: vscode.ProgressLocation.Notification, title: `Gainline: reading ${this.label}`, cancellable: true },
+          (progress, token) => run(progress, token),
+        );
+      } else {
+        await vscode.window.withProgress({ location: vscode.ProgressLocation.Window, title: `Gainline: ${this.label}` }, (p) => run(p));
+      }
+    } catch (error) {
+      if (this.disposed || (abort.signal.aborted && !cancelledByUser)) return; // superseded by a newer load
+      if (cancelledByUser || error instanceof RequestAbortedError) {
+        this.setState({ status: 'error', message: `Reading ${this.label} was cancelled. Run "Gainline: Refresh Ranked Lists" or reopen the file to read it again.` });
+      } else {
+        this.setState({ status: 'error', message: messageOf(error) });
+      }
+      this.overview = undefined;
+      this.compare = undefined;
+      this.headlineEmitter.fire(undefined);
+    }
+  }
+
+  private async resolveSources(config: GainlineConfig): Promise<DumpSource[]> {
+    const out: DumpSource[] = [];
+    for (const uri of this.files) {
+      const relative = vscode.workspace.asRelativePath(uri, false);
+      const memoryKey = `gainline.judgments:${uri.fsPath}`;
+      const remembered = this.deps.memory.get<string>(memoryKey);
+      const choice = await sourceFor(uri.fsPath, relative, config, remembered);
+      if (!choice.judgmentChoices) {
+        out.push(choice.source);
+        continue;
+      }
+      const judgments = await pickJudgments(uri, choice.judgmentChoices);
+      if (!judgments) {
+        throw new Error(`${path.basename(uri.fsPath)} is a run file: it needs a judgments (qrels) file with the grades, and none was chosen.`);
+      }
+      await this.deps.memory.update(memoryKey, judgments);
+      out.push({ ...choice.source, judgments });
+    }
+    return out;
+  }
+
+  /** After a worker restart the worker no longer holds this view's data: read it again quietly. */
+  private async ensureLoaded(): Promise<void> {
+    if (this.loadedGeneration === this.deps.worker.generation && this.deps.worker.running) return;
+    const config = this.deps.getConfig();
+    if (this.target.mode === 'single') {
+      this.overview = await this.deps.worker.call('load', { session: this.key, source: this.sources[0]!, settings: evaluationSettings(config) }, { timeoutMs: LOAD_TIMEOUT_MS });
+    } else {
+      this.compare = await this.deps.worker.call('loadCompare', { session: this.key, a: this.sources[0]!, b: this.sources[1]!, settings: compareSettings(config) }, { timeoutMs: LOAD_TIMEOUT_MS });
+    }
+    this.loadedGeneration = this.deps.worker.generation;
+  }
+
+  private handlers(): RequestHandlers<ViewRequests> {
+    const w = this.deps.worker;
+    const session = this.key;
+    const ask = async <T>(call: () => Promise<T>): Promise<T> => {
+      await this.ensureLoaded();
+      return call();
+    };
+    return {
+      queryPage: (p, { signal }) => ask(() => w.call('queryPage', { ...p, session }, { signal })),
+      queryDetail: (p, { signal }) => ask(() => w.call('queryDetail', { ...p, session }, { signal })),
+      segments: (p, { signal }) => ask(() => w.call('segments', { ...p, session }, { signal })),
+      comparePage: (p, { signal }) => ask(() => w.call('comparePage', { ...p, session }, { signal })),
+      queryMovement: (p, { signal }) => ask(() => w.call('queryMovement', { ...p, session }, { signal })),
+      compareSegments: (p, { signal }) => ask(() => w.call('compareSegments', { ...p, session }, { signal })),
+      compareOverview: async () => {
+        if (!this.compare) throw new Error('no comparison is loaded in this view');
+        return this.compare;
+      },
+      exportView: (p) => exportView(p, this.files[0]!.fsPath, this.conventionsText()),
+      copyQueryJson: async (p) => {
+        const { json } = await ask(() => w.call('queryJson', { ...p, session }));
+        return copyText(json, `query "${p.query}" as JSON`);
+      },
+      revealRow: async (p) => {
+        const where = await ask(() => w.call('rowLocation', { session, row: p.row, ...(p.run ? { run: p.run } : {}) }));
+        return revealRow(where.path, p.row, where.line);
+      },
+    };
+  }
+
+  private conventionsText(): string | undefined {
+    return this.overview?.conventions.summary ?? this.compare?.conventions.summary ?? conventionsLine(this.deps.getConfig().conventions);
+  }
+
+  private watch(uri: vscode.Uri): void {
+    const pattern = new vscode.RelativePattern(vscode.Uri.file(path.dirname(uri.fsPath)), path.basename(uri.fsPath));
+    const watcher = vscode.workspace.createFileSystemWatcher(pattern);
+    this.disposables.push(
+      watcher,
+      watcher.onDidChange(() => this.scheduleReload()),
+      watcher.onDidCreate(() => this.scheduleReload()),
+      watcher.onDidDelete(() => {
+        if (this.reloadTimer) clearTimeout(this.reloadTimer);
+        this.loadAbort?.abort();
+        this.overview = undefined;
+        this.compare = undefined;
+        this.headlineEmitter.fire(undefined);
+        this.setState({ status: 'vanished', path: uri.fsPath });
+      }),
+    );
+  }
+}
+
+async function pickJudgments(run: vscode.Uri, candidates: readonly string[]): Promise<string | undefined> {
+  const name = path.basename(run.fsPath);
+  if (candidates.length > 1) {
+    const picked = await vscode.window.showQuickPick(
+      candidates.map((c) => ({ label: path.basename(c), description: vscode.workspace.asRelativePath(c), path: c })),
+      { title: `Judgments (qrels) for ${name}`, placeHolder: 'Which file holds the grades for this run?' },
+    );
+    return picked?.path;
+  }
+  const chosen = await vscode.window.showOpenDialog({
+    title: `Judgments (qrels) for ${name}`,
+    openLabel: 'Use these judgments',
+    canSelectMany: false,
+    defaultUri: vscode.Uri.file(path.dirname(run.fsPath)),
+  });
+  return chosen?.[0]?.fsPath;
+}
+
+function messageOf(error: unknown): string {
+  if (error instanceof RemoteError || error instanceof Error) return error.message.split('\n')[0]!;
+  return String(error);
+}
