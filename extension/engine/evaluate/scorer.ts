@@ -88,8 +88,10 @@ export class QueryScorer {
     readonly metrics: readonly MetricSpec[],
     /** ERR's g_max. */
     gmax: number,
+    /** Cut-off of the headline NDCG (inversion cost, sensitivity); defaults to headlineCutoff(metrics). */
+    headlineK?: number,
   ) {
-    this.headlineK = headlineCutoff(metrics);
+    this.headlineK = headlineK ?? headlineCutoff(metrics);
     this.values = new Float64Array(metrics.length);
     this.gainOf = gainFunction(conventions.gain);
     this.monotone = isMonotone(conventions.gain);
