@@ -1,0 +1,171 @@
+// Playwright helpers that drive the real VS Code workbench served by
+// code-server: open it, wait until it is usable, run commands through the
+// command palette (F1), open files, reopen them with another editor, and reach
+// into webview frames (outer webview iframe → inner `active-frame`).
+import { chromium } from 'playwright-core';
+
+const CHROMIUM = process.env.GAINLINE_E2E_CHROMIUM ?? '/usr/bin/chromium';
+
+export async function launchBrowser() {
+  return chromium.launch({
+    executablePath: CHROMIUM,
+    headless: true,
+    args: ['--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update',
+      '--disable-sync', '--no-first-run', '--disable-dev-shm-usage'],
+  });
+}
+
+export async function sleep(ms) {
+  await new Promise((r) => setTimeout(r, ms));
+}
+
+/** Polls `check` until it returns a truthy value or the time runs out. */
+export async function waitUntil(check, { timeoutMs = 30_000, intervalMs = 200, what = 'condition' } = {}) {
+  const deadline = Date.now() + timeoutMs;
+  let lastError;
+  while (Date.now() < deadline) {
+    try {
+      const value = await check();
+      if (value) return value;
+    } catch (error) {
+      lastError = error;
+    }
+    await sleep(intervalMs);
+  }
+  throw new Error(`timed out after ${timeoutMs} ms waiting for ${what}${lastError ? ` (last error: ${lastError.message})` : ''}`);
+}
+
+/** Opens the workbench and waits until the explorer shows the folder's files. */
+export async function openWorkbench(page, url) {
+  await page.goto(url, { waitUntil: 'domcontentloaded' });
+  await page.locator('.monaco-workbench').waitFor({ state: 'visible', timeout: 90_000 });
+  await page.locator('.explorer-folders-view .monaco-list-row').first().waitFor({ state: 'visible', timeout: 90_000 });
+  // Give the extension host a moment to come up before commands are issued.
+  await waitUntil(() => page.locator('.statusbar').isVisible(), { what: 'status bar' });
+  await dismissNotifications(page);
+}
+
+export async function dismissNotifications(page) {
+  // "Clear all notifications" keeps toasts from covering editors in screenshots.
+  const toasts = page.locator('.notifications-toasts .notification-toast');
+  if (await toasts.count() === 0) return;
+  await runCommand(page, 'Notifications: Clear All Notifications').catch(() => {});
+}
+
+async function quickInput(page) {
+  const widget = page.locator('.quick-input-widget');
+  await widget.waitFor({ state: 'visible', timeout: 10_000 });
+  return widget;
+}
+
+/**
+ * Runs a command by its palette title. The palette does not refresh when an
+ * extension registers its commands later, so a miss closes it and tries again
+ * until `timeoutMs`. Only a row whose label contains the title is accepted.
+ */
+export async function runCommand(page, title, { timeoutMs = 30_000 } = {}) {
+  const deadline = Date.now() + timeoutMs;
+  for (;;) {
+    await page.keyboard.press('Escape');
+    await page.keyboard.press('F1');
+    const widget = await quickInput(page);
+    await widget.locator('input.input').fill(`>${title}`);
+    const focused = widget.locator('.quick-input-list .monaco-list-row.focused', { hasText: title }).first();
+    const found = await focused.waitFor({ state: 'visible', timeout: 3_000 }).then(() => true, () => false);
+    if (found) {
+      await page.keyboard.press('Enter');
+      return;
+    }
+    if (Date.now() > deadline) {
+      await page.keyboard.press('Escape');
+      throw new Error(`command "${title}" not found in the command palette within ${timeoutMs} ms`);
+    }
+    await sleep(1_000);
+  }
+}
+
+/** Picks a row in whatever quick pick is open (e.g. after a command asked a question). */
+export async function pickQuickItem(page, text, { timeoutMs = 15_000 } = {}) {
+  const widget = await quickInput(page);
+  const row = widget.locator('.quick-input-list .monaco-list-row', { hasText: text }).first();
+  await row.waitFor({ state: 'visible', timeout: timeoutMs });
+  await row.click();
+}
+
+/** Types into the open quick input (file picker, input box) and accepts. */
+export async function typeInQuickInput(page, text, { pickText, timeoutMs = 15_000 } = {}) {
+  const widget = await quickInput(page);
+  await widget.locator('input.input').fill(text);
+  if (pickText) {
+    await widget.locator('.quick-input-list .monaco-list-row', { hasText: pickText }).first()
+      .waitFor({ state: 'visible', timeout: timeoutMs });
+  }
+  await page.keyboard.press('Enter');
+}
+
+/** Opens a workspace file through Quick Open (Ctrl+P) by its relative path. */
+export async function openFile(page, relativePath) {
+  await page.keyboard.press('Escape');
+  await runCommand(page, 'Go to File...');
+  const widget = await quickInput(page);
+  await widget.locator('input.input').fill(relativePath);
+  const base = relativePath.split('/').pop();
+  const row = widget.locator('.quick-input-list .monaco-list-row', { hasText: base }).first();
+  await row.waitFor({ state: 'visible', timeout: 15_000 });
+  await page.keyboard.press('Enter');
+  await page.locator('.tabs-container .tab', { hasText: base }).first().waitFor({ state: 'visible', timeout: 15_000 });
+}
+
+/**
+ * The real "Open With…" picker: "View: Reopen Editor With..." on the active
+ * editor, then the editor whose label contains `editorLabel`.
+ */
+export async function reopenWith(page, editorLabel) {
+  await runCommand(page, 'View: Reopen Editor With...');
+  await pickQuickItem(page, editorLabel);
+}
+
+/** Every frame that has a webview's content document (the inner `active-frame`). */
+export function webviewContentFrames(page) {
+  return page.frames().filter((frame) => frame.name() === 'active-frame' || /\/fake\.html|active-frame/.test(frame.url()));
+}
+
+/**
+ * Finds the webview frame that contains `selector` (visible or not). Webviews
+ * are nested: the workbench iframe hosts `index.html`, which hosts the
+ * `active-frame` where the extension's HTML lives.
+ */
+export async function findWebviewFrame(page, selector, { timeoutMs = 60_000 } = {}) {
+  return waitUntil(async () => {
+    for (const frame of page.frames()) {
+      if (frame === page.mainFrame() || frame.isDetached()) continue;
+      const found = await frame.$(selector).catch(() => null);
+      if (found) return frame;
+    }
+    return null;
+  }, { timeoutMs, what: `a webview frame containing ${selector}` });
+}
+
+/** Text of an element inside a frame, whitespace-collapsed. */
+export async function frameText(frame, selector) {
+  const text = await frame.locator(selector).first().textContent({ timeout: 10_000 });
+  return (text ?? '').replace(/\s+/g, ' ').trim();
+}
+
+/** Waits until an element inside some webview frame has text matching `predicate`. */
+export async function waitForFrameText(page, selector, predicate, { timeoutMs = 60_000 } = {}) {
+  let last = '';
+  return waitUntil(async () => {
+    const frame = await findWebviewFrame(page, selector, { timeoutMs: 2_000 }).catch(() => null);
+    if (!frame) return null;
+    last = await frameText(frame, selector).catch(() => '');
+    return predicate(last) ? { frame, text: last } : null;
+  }, { timeoutMs, what: `${selector} text to satisfy the check (last seen: "${last}")` });
+}
+
+/** Closes every editor so each scenario starts from a clean editor area. */
+export async function closeAllEditors(page) {
+  await runCommand(page, 'View: Close All Editors').catch(() => {});
+  // A dirty-file prompt would block here; every opened dump is read-only.
+  await sleep(300);
+}
