@@ -1,0 +1,278 @@
+/**
+ * Compares two runs over the queries they share: every metric is scored on each run separately (each
+ * run on its own candidate items), then the per-query pairs go through the paired statistics.
+ * A query skipped in either run (no relevant item under the `skip` policy) has no pair and is counted.
+ */
+import { evaluate, gradeRange } from '../evaluate/evaluate';
+import type { Evaluation } from '../evaluate/types';
+import type { Conventions, MetricSpec } from '../metrics/conventions';
+import type { RankedDump } from '../model/dump';
+import { groupByQuery, type QueryGroups } from '../model/groups';
+import { matchRuns, type RunMatch } from './match';
+import type { ProgressCallback } from './pacer';
+import {
+  benjaminiHochbergAdjust,
+  bootstrapMeanIntervals,
+  holmAdjust,
+  pairedSummary,
+  pairedTTest,
+  signFlipTest,
+  wilcoxonSignedRank,
+  WILCOXON_ROUNDING,
+  type Interval,
+  type PairedSummary,
+  type SignFlipResult,
+  type TTestResult,
+  type WilcoxonResult,
+} from './stats';
+
+export interface CompareOptions {
+  /** Random sign patterns for the randomization test (exact enumeration when 2^n is not larger). */
+  readonly permutations: number;
+  /** Bootstrap resamples for the interval of the mean difference; 0 leaves the interval out. */
+  readonly bootstrap: number;
+  readonly seed: number;
+  /** |b − a| ≤ tieTolerance counts as a tie in wins / ties / losses. */
+  readonly tieTolerance: number;
+  readonly signal?: AbortSignal;
+  /** Overall fraction done, 0..1. */
+  readonly onProgress?: (fraction: number) => void;
+}
+
+export const DEFAULT_COMPARE_OPTIONS: CompareOptions = { permutations: 10_000, bootstrap: 10_000, seed: 1, tieTolerance: 0 };
+
+/** Adjusted p-values of one test across the compared metrics. */
+export interface AdjustedP {
+  readonly holm: number;
+  readonly benjaminiHochberg: number;
+}
+
+export interface MetricComparison {
+  readonly key: string;
+  /** Queries paired for this metric (present in both runs and skipped in neither). */
+  readonly paired: number;
+  /** Common queries left out because the metric is undefined (skipped) in A, in B, or both. */
+  readonly skipped: number;
+  readonly summary: PairedSummary;
+  /** 95% percentile-bootstrap interval of the mean difference (B − A). */
+  readonly interval: Interval;
+  readonly tTest: TTestResult;
+  readonly wilcoxon: WilcoxonResult;
+  readonly randomization: SignFlipResult;
+  /** Holm and Benjamini–Hochberg adjustments across the compared metrics, per test. */
+  readonly adjusted: { readonly tTest: AdjustedP; readonly wilcoxon: AdjustedP; readonly randomization: AdjustedP };
+}
+
+/** Per common query, columnar: index i is the i-th query present in both runs. */
+export interface PairedColumns {
+  /** Interned query ids in run A and in run B. */
+  readonly queryA: Uint32Array;
+  readonly queryB: Uint32Array;
+  /** Per metric (same order as `metrics`): value in A, in B, and B − A (NaN when either is undefined). */
+  readonly a: readonly Float64Array[];
+  readonly b: readonly Float64Array[];
+  readonly delta: readonly Float64Array[];
+}
+
+export interface Comparison {
+  readonly conventions: Conventions;
+  readonly metrics: readonly MetricSpec[];
+  /** Index of the headline metric (the first requested). */
+  readonly headline: number;
+  readonly options: Omit<CompareOptions, 'signal' | 'onProgress'>;
+  readonly match: RunMatch;
+  readonly evaluationA: Evaluation;
+  readonly evaluationB: Evaluation;
+  readonly perQuery: PairedColumns;
+  readonly byMetric: readonly MetricComparison[];
+  /** How the statistics were computed, for printing beside them. */
+  readonly methodNotes: readonly string[];
+  /** Matching notes plus anything skipped or degenerate. */
+  readonly warnings: readonly string[];
+}
+
+export async function compareRuns(
+  a: RankedDump,
+  b: RankedDump,
+  metrics: readonly MetricSpec[],
+  conventions: Conventions,
+  options: Partial<CompareOptions> = {},
+): Promise<Comparison> {
+  const o: CompareOptions = { ...DEFAULT_COMPARE_OPTIONS, ...options };
+  const progress = stagedProgress(o.onProgress);
+  const groupsA = groupByQuery(a);
+  const groupsB = groupByQuery(b);
+  progress.stage(0.05);
+  const match = matchRuns(a, b, groupsA, groupsB);
+  const shared = sharedConventions(a, b, metrics, conventions);
+  const evaluateOne = (dump: RankedDump, groups: QueryGroups): Evaluation =>
+    evaluate(dump, metrics, shared, { groups, signal: o.signal, sensitivity: false, onProgress: progress.report });
+  progress.stage(0.3);
+  const evaluationA = evaluateOne(a, groupsA);
+  progress.stage(0.3);
+  const evaluationB = evaluateOne(b, groupsB);
+
+  const perQuery = pairColumns(match, evaluationA, evaluationB);
+  const loop = { signal: o.signal, onProgress: progress.fraction };
+  const pairedOf = perQuery.delta.map(pairedIndices);
+
+  // The interval: metrics paired on the same queries share one resampling pass.
+  const intervals: Interval[] = new Array(metrics.length);
+  const sharing = groupIdentical(pairedOf);
+  for (const group of sharing) {
+    progress.stage(0.15 / sharing.length);
+    const columns = group.map((m) => gather(perQuery.delta[m]!, pairedOf[m]!));
+    const found = await bootstrapMeanIntervals(columns, { ...loop, resamples: o.bootstrap, seed: o.seed });
+    group.forEach((m, i) => (intervals[m] = found[i]!));
+  }
+
+  const partial = [];
+  for (let m = 0; m < metrics.length; m++) {
+    progress.stage(0.2 / metrics.length);
+    const rows = pairedOf[m]!;
+    const d = gather(perQuery.delta[m]!, rows);
+    const randomization = await signFlipTest(d, { ...loop, permutations: o.permutations, seed: o.seed + m });
+    partial.push({
+      key: metrics[m]!.key,
+      paired: rows.length,
+      skipped: perQuery.queryA.length - rows.length,
+      summary: pairedSummary(gather(perQuery.a[m]!, rows), gather(perQuery.b[m]!, rows), o.tieTolerance),
+      interval: intervals[m]!,
+      tTest: pairedTTest(d),
+      wilcoxon: wilcoxonSignedRank(d),
+      randomization,
+    });
+  }
+  const adjust = (ps: number[], i: number): AdjustedP => ({ holm: holmAdjust(ps)[i]!, benjaminiHochberg: benjaminiHochbergAdjust(ps)[i]! });
+  const tPs = partial.map((r) => r.tTest.p);
+  const wPs = partial.map((r) => r.wilcoxon.p);
+  const rPs = partial.map((r) => r.randomization.p);
+  const byMetric: MetricComparison[] = partial.map((r, i) => ({
+    ...r,
+    adjusted: { tTest: adjust(tPs, i), wilcoxon: adjust(wPs, i), randomization: adjust(rPs, i) },
+  }));
+  progress.done();
+
+  const { signal: _signal, onProgress: _onProgress, ...used } = o;
+  return {
+    conventions: shared,
+    metrics,
+    headline: 0,
+    options: used,
+    match,
+    evaluationA,
+    evaluationB,
+    perQuery,
+    byMetric,
+    methodNotes: methodNotes(o, metrics.length),
+    warnings: [...match.notes, ...skipWarnings(byMetric)],
+  };
+}
+
+/**
+ * ERR's g_max defaults to the highest grade in the data; two runs must share it or their ERR values are
+ * on different scales, so the higher of the two runs' highest grades is used for both.
+ */
+function sharedConventions(a: RankedDump, b: RankedDump, metrics: readonly MetricSpec[], conventions: Conventions): Conventions {
+  if (conventions.maxGrade !== undefined || !metrics.some((m) => m.name === 'err')) return conventions;
+  return { ...conventions, maxGrade: Math.max(gradeRange(a).highest, gradeRange(b).highest) };
+}
+
+function pairColumns(match: RunMatch, ea: Evaluation, eb: Evaluation): PairedColumns {
+  const n = match.commonA.length;
+  const a: Float64Array[] = [];
+  const b: Float64Array[] = [];
+  const delta: Float64Array[] = [];
+  for (let m = 0; m < ea.metrics.length; m++) {
+    const va = ea.perQuery.values[m]!;
+    const vb = eb.perQuery.values[m]!;
+    const ca = new Float64Array(n);
+    const cb = new Float64Array(n);
+    const cd = new Float64Array(n);
+    for (let i = 0; i < n; i++) {
+      const qa = match.commonA[i]!;
+      const qb = match.commonB[i]!;
+      // A query skipped from the means is NaN in values; make sure the skip flag wins either way.
+      ca[i] = ea.perQuery.skipped[qa] ? Number.NaN : va[qa]!;
+      cb[i] = eb.perQuery.skipped[qb] ? Number.NaN : vb[qb]!;
+      cd[i] = cb[i]! - ca[i]!;
+    }
+    a.push(ca);
+    b.push(cb);
+    delta.push(cd);
+  }
+  return { queryA: match.commonA, queryB: match.commonB, a, b, delta };
+}
+
+function pairedIndices(delta: Float64Array): Uint32Array {
+  let count = 0;
+  for (let i = 0; i < delta.length; i++) if (Number.isFinite(delta[i]!)) count++;
+  const rows = new Uint32Array(count);
+  for (let i = 0, k = 0; i < delta.length; i++) if (Number.isFinite(delta[i]!)) rows[k++] = i;
+  return rows;
+}
+
+function gather(values: Float64Array, rows: Uint32Array): Float64Array {
+  const out = new Float64Array(rows.length);
+  for (let k = 0; k < rows.length; k++) out[k] = values[rows[k]!]!;
+  return out;
+}
+
+/** Groups of metric indices whose paired query sets are identical. */
+function groupIdentical(sets: readonly Uint32Array[]): number[][] {
+  const groups: number[][] = [];
+  sets.forEach((set, m) => {
+    const same = groups.find((g) => equalArrays(sets[g[0]!]!, set));
+    if (same) same.push(m);
+    else groups.push([m]);
+  });
+  return groups;
+}
+
+function equalArrays(x: Uint32Array, y: Uint32Array): boolean {
+  if (x.length !== y.length) return false;
+  for (let i = 0; i < x.length; i++) if (x[i] !== y[i]) return false;
+  return true;
+}
+
+function skipWarnings(byMetric: readonly MetricComparison[]): string[] {
+  return byMetric
+    .filter((r) => r.skipped > 0)
+    .map((r) => `${r.key}: ${r.skipped} common queries are skipped in at least one run (nothing relevant) and are left out of the paired tests.`);
+}
+
+function methodNotes(o: CompareOptions, metricCount: number): string[] {
+  return [
+    `Δ = B − A per query; means and tests over queries paired in both runs.`,
+    `95% interval: percentile bootstrap of the mean Δ, ${o.bootstrap} resamples, seed ${o.seed}.`,
+    `t: paired t-test, two-sided.`,
+    `Wilcoxon: signed-rank test, two-sided; differences rounded to ${WILCOXON_ROUNDING} before ranking, zero differences dropped; ` +
+      `exact for at most 50 pairs without zeros or ties, otherwise normal approximation with tie correction.`,
+    `Randomization: paired sign-flip test of the mean Δ, two-sided, ${o.permutations} random sign patterns ` +
+      `(every pattern when 2^n is not more), seed ${o.seed}; p = (1 + as extreme) / (1 + patterns) when sampled.`,
+    `Wins / ties / losses: |Δ| ≤ ${o.tieTolerance} is a tie.`,
+    ...(metricCount > 1 ? [`Holm and Benjamini–Hochberg adjustments are across the ${metricCount} metrics compared, per test.`] : []),
+  ];
+}
+
+/** Maps each stage's own 0..1 progress into the overall 0..1. */
+function stagedProgress(onProgress?: (fraction: number) => void): {
+  stage: (weight: number) => void;
+  report: (fraction: number) => void;
+  fraction: ProgressCallback;
+  done: () => void;
+} {
+  let base = 0;
+  let weight = 0;
+  const report = (f: number) => onProgress?.(Math.min(1, base + weight * Math.max(0, Math.min(1, f))));
+  return {
+    stage: (next) => {
+      base += weight;
+      weight = next;
+      report(0);
+    },
+    report,
+    fraction: (done, total) => report(total > 0 ? done / total : 1),
+    done: () => onProgress?.(1),
+  };
+}
