@@ -1,0 +1,82 @@
+/**
+ * Seeded random comparison of every per-query number against the slow reference in
+ * test/reference/slowMetrics.ts, which works from the definitions and enumerates every ordering of
+ * tied groups (the exact McSherry & Najork 2008 expectation, here by brute force).
+ */
+import { describe, expect, it } from 'vitest';
+import { evaluate, gradeRange } from '../../extension/engine/evaluate/evaluate';
+import type { Conventions, GainConvention, TieConvention } from '../../extension/engine/metrics/conventions';
+import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
+import { parseMetricList } from '../../extension/engine/metrics/parse';
+import { headlineCutoff } from '../../extension/engine/evaluate/scorer';
+import { buildDump, type TestRow } from './dumpBuilder';
+import { seededRandom, QUERY_NAMES } from '../reference/random';
+import { slowQuery, type SlowItem } from '../reference/slowMetrics';
+
+const METRICS = parseMetricList('ndcg@3,dcg,ndcg,err@4,err,p@2,p,r@3,ap,rr,rr@2,rbp,rbp@3,tau,dcg@5');
+const GAINS: GainConvention[] = [
+  { kind: 'exponential' },
+  { kind: 'linear' },
+  { kind: 'map', gains: new Map([[0, 0], [1, 1], [2, 4], [3, 5]]) },
+  // Not increasing in grade: the ideal order and the swap cost must follow gains, not grades.
+  { kind: 'map', gains: new Map([[0, 0], [1, 3], [2, 1], [3, 6]]) },
+];
+const TIES: TieConvention[] = ['average', 'pessimistic', 'optimistic', 'file-order'];
+
+function randomQueries(seed: number, count: number): Map<string, SlowItem[]> {
+  const rand = seededRandom(seed);
+  const out = new Map<string, SlowItem[]>();
+  for (let q = 0; q < count; q++) {
+    const n = 1 + Math.floor(rand() * 7);
+    const items: SlowItem[] = [];
+    for (let i = 0; i < n; i++) {
+      const duplicate = items.length > 0 && rand() < 0.06;
+      const item = duplicate ? items[Math.floor(rand() * items.length)]!.item : `sku-${q}-${i}`;
+      const label = rand() < 0.1 ? NaN : Math.floor(rand() * 4);
+      const score = rand() < 0.08 ? NaN : Math.floor(rand() * 3) / 2;
+      items.push({ item, label, score });
+    }
+    out.set(`${QUERY_NAMES[q % QUERY_NAMES.length]} #${q}`, items);
+  }
+  return out;
+}
+
+function close(actual: number, expected: number, what: string): void {
+  if (Number.isNaN(expected)) {
+    expect(actual, what).toBeNaN();
+    return;
+  }
+  expect(Math.abs(actual - expected), `${what}: ${actual} vs ${expected}`).toBeLessThanOrEqual(1e-9 * Math.max(1, Math.abs(expected)));
+}
+
+describe('evaluate() against the slow reference', () => {
+  let seed = 1;
+  for (const gain of GAINS) {
+    for (const ties of TIES) {
+      for (const noRelevant of ['skip', 'zero', 'one'] as const) {
+        const relevantFrom = seed % 2 === 0 ? 2 : 1;
+        const conventions: Conventions = { ...DEFAULT_CONVENTIONS, gain, ties, noRelevant, relevantFrom, rbpPersistence: 0.7 };
+        const caseSeed = seed++;
+        it(`gain ${gain.kind}${gain.kind === 'map' ? caseSeed : ''}, ties ${ties}, no relevant ${noRelevant}`, () => {
+          const queries = randomQueries(caseSeed, 30);
+          const rows: TestRow[] = [];
+          for (const [query, items] of queries) for (const it of items) rows.push({ query, ...it });
+          const dump = buildDump(rows);
+          const evaluation = evaluate(dump, METRICS, conventions);
+          const gmax = gradeRange(dump).highest;
+          const hk = headlineCutoff(METRICS);
+          for (const [query, items] of queries) {
+            const q = dump.queries.find(query);
+            const slow = slowQuery(items, METRICS, conventions, gmax, hk);
+            METRICS.forEach((m, i) => close(evaluation.perQuery.values[i]![q]!, slow.values[m.key]!, `${query} ${m.key}`));
+            const skipped = slow.noRelevant && noRelevant === 'skip';
+            close(evaluation.perQuery.rbpResidual![q]!, slow.values['rbp_residual']!, `${query} rbp_residual`);
+            close(evaluation.perQuery.inversions[q]!, skipped ? NaN : slow.discordant, `${query} inversions`);
+            close(evaluation.perQuery.inversionCost[q]!, skipped ? NaN : slow.inversionCost, `${query} inversion cost`);
+            expect(evaluation.perQuery.skipped[q]).toBe(skipped ? 1 : 0);
+          }
+        });
+      }
+    }
+  }
+});
