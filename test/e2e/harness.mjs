@@ -2,14 +2,19 @@
 // code-server: open it, wait until it is usable, run commands through the
 // command palette (F1), open files, reopen them with another editor, and reach
 // into webview frames (outer webview iframe → inner `active-frame`).
+import { join } from 'node:path';
 import { chromium } from 'playwright-core';
+import { E2E_DIR } from '../support/code-server-install.mjs';
 
 const CHROMIUM = process.env.GAINLINE_E2E_CHROMIUM ?? '/usr/bin/chromium';
 
 export async function launchBrowser() {
+  // Chromium writes crash-report and dconf folders under $HOME; keep them in the clone.
+  const home = join(E2E_DIR, 'browser-home');
   return chromium.launch({
     executablePath: CHROMIUM,
     headless: true,
+    env: { ...process.env, HOME: home, XDG_CONFIG_HOME: join(home, '.config'), XDG_CACHE_HOME: join(home, '.cache') },
     args: ['--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update',
       '--disable-sync', '--no-first-run', '--disable-dev-shm-usage'],
   });
