@@ -68,7 +68,7 @@ function reportFailure(e: unknown, command: string, io: CliIO): number {
     return EXIT_BAD_INPUT;
   }
   if (e instanceof UsageError || isParseArgsError(e)) {
-    io.err(`gainline ${command}: ${(e as Error).message} (see gainline ${command} --help)\n`);
+    io.err(`gainline ${command}: ${oneLine((e as Error).message)} (see gainline ${command} --help)\n`);
     return EXIT_BAD_INPUT;
   }
   const fileProblem = fileErrorLine(e);
@@ -103,4 +103,8 @@ function fileErrorLine(e: unknown): string | undefined {
   };
   const reason = typeof err.code === 'string' ? reasons[err.code] : undefined;
   return reason ? `${err.path}: ${reason}` : undefined;
+}
+
+function oneLine(text: string): string {
+  return text.replace(/\s*\n\s*/g, ' ').trim();
 }
