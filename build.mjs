@@ -1,7 +1,7 @@
 // Bundles every entry point with esbuild. Each bundle is self-contained so the
 // packaged extension ships no node_modules.
 import * as esbuild from 'esbuild';
-import { chmodSync, existsSync } from 'node:fs';
+import { chmodSync, copyFileSync, existsSync, mkdirSync } from 'node:fs';
 
 const watch = process.argv.includes('--watch');
 const common = { bundle: true, sourcemap: true, logLevel: 'warning', target: 'es2022' };
@@ -28,4 +28,10 @@ if (watch) {
 } else {
   await Promise.all(present.map((e) => esbuild.build(e)));
   if (existsSync('dist/cli.js')) chmodSync('dist/cli.js', 0o755);
+}
+
+// Codicon font and stylesheet for the webview, served from dist/ (the only folder it may load from).
+mkdirSync('dist/codicons', { recursive: true });
+for (const file of ['codicon.css', 'codicon.ttf']) {
+  copyFileSync(`node_modules/@vscode/codicons/dist/${file}`, `dist/codicons/${file}`);
 }

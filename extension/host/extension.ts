@@ -1,0 +1,66 @@
+/**
+ * Entry point of the extension. Wires the engine worker, the custom editor, the compare panel, the
+ * Ranked Lists view, the status bar and the commands. All heavy work runs in worker threads.
+ */
+import * as vscode from 'vscode';
+import { readConfig, type GainlineConfig } from './config';
+import { registerCommands } from './commands';
+import { DumpEditorProvider, SessionRegistry, VIEW_TYPE, openComparePanel } from './panels';
+import { RankedListsTree } from './rankedListsTree';
+import { HeadlineStatus } from './statusBar';
+import { EngineWorker } from './workerHost';
+import type { SessionDeps } from './viewSession';
+
+export function activate(context: vscode.ExtensionContext): void {
+  const output = vscode.window.createOutputChannel('Gainline', { log: true });
+  let config = loadConfig(output);
+  const getConfig = (): GainlineConfig => config;
+  const workerScript = vscode.Uri.joinPath(context.extensionUri, 'dist', 'engineWorker.js').fsPath;
+  const onCrash = (message: string): void => output.error(`engine worker stopped: ${message}`);
+  // Views and the tree use separate threads so computing tree headlines never delays an open view.
+  const viewWorker = new EngineWorker(workerScript, onCrash);
+  const treeWorker = new EngineWorker(workerScript, onCrash);
+
+  const registry = new SessionRegistry();
+  const deps: SessionDeps = { worker: viewWorker, getConfig, memory: context.workspaceState };
+  const tree = new RankedListsTree(treeWorker, getConfig, context.workspaceState);
+  const status = new HeadlineStatus();
+
+  context.subscriptions.push(
+    output,
+    { dispose: () => viewWorker.dispose() },
+    { dispose: () => treeWorker.dispose() },
+    registry,
+    tree,
+    status,
+    vscode.window.registerCustomEditorProvider(VIEW_TYPE, new DumpEditorProvider(context.extensionUri, deps, registry), {
+      supportsMultipleEditorsPerDocument: true,
+      webviewOptions: { enableFindWidget: true },
+    }),
+    vscode.window.registerTreeDataProvider('gainline.rankedLists', tree),
+    registry.onDidChangeActive((session) => status.show(session?.headline)),
+    ...registerCommands({
+      tree,
+      openCompare: (a, b) => openComparePanel(a, b, context.extensionUri, deps, registry),
+      refreshAll: () => registry.all().forEach((s) => s.scheduleReload(0)),
+    }),
+    vscode.workspace.onDidChangeConfiguration((event) => {
+      if (!event.affectsConfiguration('gainline')) return;
+      config = loadConfig(output);
+      tree.invalidate();
+      for (const session of registry.all()) session.scheduleReload(0);
+    }),
+  );
+}
+
+export function deactivate(): void {}
+
+function loadConfig(output: vscode.LogOutputChannel): GainlineConfig {
+  const settings = vscode.workspace.getConfiguration('gainline');
+  const config = readConfig((key) => settings.get(key));
+  for (const problem of config.problems) output.warn(problem);
+  if (config.problems.length > 0) {
+    void vscode.window.showWarningMessage(`Gainline: ${config.problems[0]}${config.problems.length > 1 ? ` (and ${config.problems.length - 1} more; see the Gainline output)` : ''}`);
+  }
+  return config;
+}

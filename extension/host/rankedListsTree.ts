@@ -1,0 +1,149 @@
+/**
+ * The "Ranked Lists" view: dumps found in the workspace, each with its headline metric. Headlines are
+ * computed lazily, one file at a time, on a background worker (so an open view's pages never wait
+ * behind them), and cached by file modification time and settings.
+ */
+import { promises as fsp } from 'node:fs';
+import * as path from 'node:path';
+import * as vscode from 'vscode';
+import { evaluationSettings, type GainlineConfig } from './config';
+import { formatHeadline } from './statusBar';
+import { sourceFor } from './sources';
+import { LOAD_TIMEOUT_MS, type EngineWorker } from './workerHost';
+import { VIEW_TYPE } from './panels';
+
+type Headline =
+  | { readonly state: 'pending' }
+  | { readonly state: 'done'; readonly text: string; readonly tooltip: string }
+  | { readonly state: 'failed'; readonly message: string };
+
+export class DumpItem extends vscode.TreeItem {
+  constructor(readonly uri: vscode.Uri, headline: Headline | undefined) {
+    super(path.basename(uri.fsPath), vscode.TreeItemCollapsibleState.None);
+    this.resourceUri = uri;
+    this.contextValue = 'gainline.dump';
+    this.command = { command: 'vscode.openWith', title: 'Inspect Ranked Lists', arguments: [uri, VIEW_TYPE] };
+    const relative = vscode.workspace.asRelativePath(uri);
+    if (!headline || headline.state === 'pending') {
+      this.description = '…';
+      this.tooltip = relative;
+    } else if (headline.state === 'done') {
+      this.description = headline.text;
+      this.tooltip = `${relative}\n${headline.tooltip}`;
+    } else {
+      this.description = '⚠ not readable';
+      this.tooltip = `${relative}\n${headline.message}`;
+    }
+  }
+}
+
+const MAX_FILES = 500;
+
+export class RankedListsTree implements vscode.TreeDataProvider<DumpItem>, vscode.Disposable {
+  private readonly changed = new vscode.EventEmitter<DumpItem | undefined>();
+  readonly onDidChangeTreeData = this.changed.event;
+  private readonly cache = new Map<string, { signature: string; headline: Headline }>();
+  private readonly queue: vscode.Uri[] = [];
+  private working = false;
+  private files: vscode.Uri[] = [];
+  private readonly disposables: vscode.Disposable[] = [];
+
+  constructor(
+    private readonly worker: EngineWorker,
+    private readonly getConfig: () => GainlineConfig,
+    private readonly memory: vscode.Memento,
+  ) {
+    const watcher = vscode.workspace.createFileSystemWatcher('**/*.{csv,tsv,jsonl,parquet,run,gz}');
+    let timer: ReturnType<typeof setTimeout> | undefined;
+    const onFile = (): void => {
+      // Writers touch a file many times while saving: refresh once things settle.
+      if (timer) clearTimeout(timer);
+      timer = setTimeout(() => this.refresh(), 500);
+    };
+    this.disposables.push({ dispose: () => timer && clearTimeout(timer) });
+    this.disposables.push(this.changed, watcher, watcher.onDidCreate(onFile), watcher.onDidDelete(onFile), watcher.onDidChange(onFile));
+  }
+
+  /** Workspace dumps in the order shown (also used by the compare quick pick). */
+  async listFiles(): Promise<vscode.Uri[]> {
+    const config = this.getConfig();
+    const found = await vscode.workspace.findFiles(config.dumpGlob, config.dumpExclude, MAX_FILES);
+    return found.sort((a, b) => vscode.workspace.asRelativePath(a).localeCompare(vscode.workspace.asRelativePath(b)));
+  }
+
+  refresh(): void {
+    this.changed.fire(undefined);
+  }
+
+  /** Settings changed: every cached headline is stale. */
+  invalidate(): void {
+    this.cache.clear();
+    this.refresh();
+  }
+
+  getTreeItem(element: DumpItem): DumpItem {
+    return element;
+  }
+
+  async getChildren(element?: DumpItem): Promise<DumpItem[]> {
+    if (element) return [];
+    this.files = await this.listFiles();
+    const items: DumpItem[] = [];
+    for (const uri of this.files) {
+      const signature = await this.signature(uri);
+      const cached = this.cache.get(uri.fsPath);
+      if (!cached || cached.signature !== signature) {
+        this.cache.set(uri.fsPath, { signature, headline: { state: 'pending' } });
+        if (!this.queue.some((q) => q.fsPath === uri.fsPath)) this.queue.push(uri);
+      }
+      items.push(new DumpItem(uri, this.cache.get(uri.fsPath)!.headline));
+    }
+    void this.drain();
+    return items;
+  }
+
+  dispose(): void {
+    for (const d of this.disposables) d.dispose();
+  }
+
+  private async signature(uri: vscode.Uri): Promise<string> {
+    try {
+      const stat = await fsp.stat(uri.fsPath);
+      return `${stat.mtimeMs}:${stat.size}:${this.getConfig().metrics}`;
+    } catch {
+      return 'missing';
+    }
+  }
+
+  private async drain(): Promise<void> {
+    if (this.working) return;
+    this.working = true;
+    try {
+      for (let uri = this.queue.shift(); uri; uri = this.queue.shift()) {
+        const signature = await this.signature(uri);
+        const headline = await this.compute(uri);
+        this.cache.set(uri.fsPath, { signature, headline });
+        this.refresh();
+      }
+    } finally {
+      this.working = false;
+    }
+  }
+
+  private async compute(uri: vscode.Uri): Promise<Headline> {
+    const config = this.getConfig();
+    try {
+      const remembered = this.memory.get<string>(`gainline.judgments:${uri.fsPath}`);
+      const choice = await sourceFor(uri.fsPath, vscode.workspace.asRelativePath(uri, false), config, remembered);
+      if (choice.judgmentChoices) return { state: 'failed', message: 'Run file: open it once to choose its judgments file.' };
+      const result = await this.worker.call('headline', { source: choice.source, settings: evaluationSettings(config) }, { timeoutMs: LOAD_TIMEOUT_MS });
+      return {
+        state: 'done',
+        text: formatHeadline(result.label, result.mean),
+        tooltip: `${result.queryCount} queries, ${result.rowCount} rows`,
+      };
+    } catch (error) {
+      return { state: 'failed', message: error instanceof Error ? error.message : String(error) };
+    }
+  }
+}
