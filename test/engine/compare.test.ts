@@ -6,6 +6,7 @@
 import { describe, expect, it } from 'vitest';
 import { compareRuns } from '../../extension/engine/compare/compare';
 import { matchRuns } from '../../extension/engine/compare/match';
+import { queryMovement } from '../../extension/engine/compare/movement';
 import { segmentDeltas } from '../../extension/engine/compare/segments';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
 import { parseMetricList } from '../../extension/engine/metrics/parse';
@@ -151,5 +152,42 @@ describe('segmentDeltas', () => {
     expect(desktop.metrics[0]!.meanDelta).toBeCloseTo(0.5, 12);
     expect(s.mixedQueries).toBe(0);
     expect(() => segmentDeltas(c, runA, 'locale')).toThrow(/segment column/);
+  });
+});
+
+describe('queryMovement', () => {
+  const id = (dump: typeof runA, name: string) => dump.queries.find(name);
+
+  it('lists moves, fixed and introduced inverted pairs and position contributions (hand-derived)', () => {
+    const m = queryMovement(runA, runB, id(runA, 'cordless drill 18v'), id(runB, 'cordless drill 18v'), DEFAULT_CONVENTIONS, 3);
+    // B's order d3, d1, d2 against A's d1, d2, d3.
+    expect(m.items.map((i) => [i.item, i.positionA, i.positionB, i.change])).toEqual([
+      ['i2', 3, 1, 2],
+      ['i0', 1, 2, -1],
+      ['i1', 2, 3, -1],
+    ]);
+    // A inverts (d3 grade 1 below d2 grade 0); B inverts (d1 grade 2 below d3 grade 1).
+    expect(m.fixedPairs.map((p) => [p.higherGraded, p.lowerGraded])).toEqual([['i2', 'i1']]);
+    expect(m.introducedPairs.map((p) => [p.higherGraded, p.lowerGraded])).toEqual([['i0', 'i2']]);
+    expect(m.keptPairs).toBe(0);
+    // Contributions: A (3, 0, 1/2), B (1, 3/log2(3), 0).
+    const expected = [1 - 3, 3 / log2of3 - 0, 0 - 0.5];
+    m.positions.forEach((p, i) => expect(p.change).toBeCloseTo(expected[i]!, 12));
+    const total = m.positions.reduce((s, p) => s + p.change, 0);
+    expect(total).toBeCloseTo(m.dcgB - m.dcgA, 12);
+    expect(total).toBeCloseTo(dcgDelta.drill, 12);
+  });
+
+  it('marks items present in one run only', () => {
+    const m = queryMovement(runA, runB, id(runA, 'hex key set'), id(runB, 'hex key set'), DEFAULT_CONVENTIONS, 3);
+    const newItem = m.items.find((i) => i.item === 'i2')!;
+    expect(newItem.positionA).toBe(0);
+    expect(newItem.positionB).toBe(1);
+    expect(newItem.change).toBeNaN();
+    // B ranks h2 (grade 0) above h1 (grade 1): introduced.
+    expect(m.introducedPairs.map((p) => [p.higherGraded, p.lowerGraded])).toEqual([['i0', 'i1']]);
+    expect(m.fixedPairs).toEqual([]);
+    expect(m.positions).toHaveLength(3);
+    expect(m.positions[2]!.itemA).toBe('');
   });
 });
