@@ -17,7 +17,8 @@ export class BytePool implements StringPool {
   private starts = new Uint32Array(1025);
   private hashes = new Int32Array(1024);
   private count = 0;
-  private table = new Int32Array(2048).fill(EMPTY_SLOT);
+  /** Open addressing with linear probing; slot k holds [id, hash] at 2k, 2k+1 so one probe is one cache line. */
+  private table = new Int32Array(2 * 2048).fill(EMPTY_SLOT);
   private mask = 2047;
   private decoded: (string | undefined)[] = [];
 
@@ -33,9 +34,9 @@ export class BytePool implements StringPool {
     const mask = this.mask;
     let slot = hash & mask;
     for (;;) {
-      const id = table[slot]!;
+      const id = table[2 * slot]!;
       if (id === EMPTY_SLOT) break;
-      if (this.hashes[id] === hash && this.sameBytes(id, bytes, start, len)) return id;
+      if (table[2 * slot + 1] === hash && this.sameBytes(id, bytes, start, len)) return id;
       slot = (slot + 1) & mask;
     }
     return this.add(bytes, start, end, hash, slot);
@@ -53,9 +54,9 @@ export class BytePool implements StringPool {
     const len = end - start;
     let slot = hash & this.mask;
     for (;;) {
-      const id = this.table[slot]!;
+      const id = this.table[2 * slot]!;
       if (id === EMPTY_SLOT) return -1;
-      if (this.hashes[id] === hash && this.sameBytes(id, bytes, start, len)) return id;
+      if (this.table[2 * slot + 1] === hash && this.sameBytes(id, bytes, start, len)) return id;
       slot = (slot + 1) & this.mask;
     }
   }
@@ -105,35 +106,33 @@ export class BytePool implements StringPool {
       grown.set(this.arena.subarray(0, this.arenaUsed));
       this.arena = grown;
     }
-    this.arena.set(bytes.subarray(start, end), this.arenaUsed);
+    const arena = this.arena;
+    for (let i = 0, at = this.arenaUsed; i < len; i++) arena[at + i] = bytes[start + i]!;
     const id = this.count;
-    if (id + 2 > this.starts.length) {
-      const grownStarts = new Uint32Array(this.starts.length * 2);
-      grownStarts.set(this.starts);
-      this.starts = grownStarts;
-      const grownHashes = new Int32Array(this.hashes.length * 2);
-      grownHashes.set(this.hashes);
-      this.hashes = grownHashes;
-    }
+    if (id + 2 > this.starts.length) this.starts = growTo(this.starts, this.starts.length * 2);
+    if (id + 1 > this.hashes.length) this.hashes = growTo(this.hashes, this.hashes.length * 2);
     this.starts[id] = this.arenaUsed;
     this.arenaUsed += len;
     this.starts[id + 1] = this.arenaUsed;
     this.hashes[id] = hash;
-    this.table[slot] = id;
+    this.table[2 * slot] = id;
+    this.table[2 * slot + 1] = hash;
     this.count = id + 1;
     // Keep the load factor at or below 1/2 so probe chains stay short.
-    if (this.count * 2 > this.table.length) this.rehash();
+    if (this.count * 2 > this.mask + 1) this.rehash();
     return id;
   }
 
   private rehash(): void {
-    const size = this.table.length * 2;
-    const table = new Int32Array(size).fill(EMPTY_SLOT);
+    const size = (this.mask + 1) * 2;
+    const table = new Int32Array(2 * size).fill(EMPTY_SLOT);
     const mask = size - 1;
     for (let id = 0; id < this.count; id++) {
-      let slot = this.hashes[id]! & mask;
-      while (table[slot] !== EMPTY_SLOT) slot = (slot + 1) & mask;
-      table[slot] = id;
+      const hash = this.hashes[id]!;
+      let slot = hash & mask;
+      while (table[2 * slot] !== EMPTY_SLOT) slot = (slot + 1) & mask;
+      table[2 * slot] = id;
+      table[2 * slot + 1] = hash;
     }
     this.table = table;
     this.mask = mask;
@@ -148,4 +147,10 @@ export function hashBytes(bytes: Uint8Array, start: number, end: number): number
   h = Math.imul(h, 0x85ebca6b);
   h ^= h >>> 13;
   return h;
+}
+
+function growTo<T extends Uint32Array | Int32Array>(old: T, length: number): T {
+  const fresh = new (old.constructor as new (n: number) => T)(length);
+  fresh.set(old as never);
+  return fresh;
 }

@@ -10,17 +10,12 @@ import { RowColumns } from './columns';
 import { describeNonNumber, parseNumber } from './numbers';
 import { resolveRoles, type ColumnRoles } from './roles';
 import type { RecordSink } from './source';
+import { parseSimpleRecords, ROLE_ITEM, ROLE_LABEL, ROLE_QUERY, ROLE_RANK, ROLE_SCORE, ROLE_SEGMENT, type FastState } from './delimitedFast';
 
 const QUOTE = 34;
 const LF = 10;
 const CR = 13;
 
-const ROLE_QUERY = 0;
-const ROLE_ITEM = 1;
-const ROLE_LABEL = 2;
-const ROLE_SCORE = 3;
-const ROLE_RANK = 4;
-const ROLE_SEGMENT = 5;
 
 export interface DelimitedSettings {
   readonly file: string;
@@ -32,7 +27,7 @@ export interface DelimitedSettings {
   readonly firstLine?: number;
 }
 
-export class DelimitedParser implements RecordSink {
+export class DelimitedParser implements RecordSink, FastState {
   private fieldStart = new Int32Array(64);
   private fieldEnd = new Int32Array(64);
   /** 1 when the field was quoted and holds doubled quotes to undo. */
@@ -40,17 +35,20 @@ export class DelimitedParser implements RecordSink {
   private fieldCount = 0;
   private recordLines = 0;
   private scratch = Buffer.alloc(256);
-  private line: number;
+  line: number;
   private names: string[] | undefined;
-  private roleOf = new Int32Array(0);
-  private rows: RowColumns | undefined;
-  private rankStandsInForScore = false;
-  private lastQuery = -1;
+  roleOf = new Int32Array(0);
+  rows: RowColumns | undefined;
+  rankStandsInForScore = false;
+  lastQuery = -1;
+  lastSegment = new Int32Array(0);
+  readonly delimiter: number;
   private bytesSeen = 0;
   private sized = false;
 
   constructor(private readonly settings: DelimitedSettings, header?: { names: string[] }) {
     this.line = settings.firstLine ?? 1;
+    this.delimiter = settings.delimiter;
     if (header) this.setHeader(header.names, '');
   }
 
@@ -65,7 +63,23 @@ export class DelimitedParser implements RecordSink {
 
   feed(buf: Buffer, start: number, end: number, base: number, final: boolean): number {
     let pos = start;
+    // Records before `lineLimit` are complete; before `quoteLine` they hold no quote byte.
+    const lineLimit = final ? end : Math.max(start, buf.lastIndexOf(LF, end - 1) + 1);
+    let quoteAt = -1;
+    let quoteLine = start;
     while (pos < end) {
+      if (this.rows !== undefined && pos < lineLimit) {
+        if (quoteAt < pos) {
+          quoteAt = buf.indexOf(QUOTE, pos);
+          if (quoteAt < 0 || quoteAt >= end) quoteAt = end;
+          quoteLine = quoteAt === end ? end : buf.lastIndexOf(LF, quoteAt) + 1;
+        }
+        const limit = Math.min(lineLimit, quoteLine);
+        if (pos < limit) {
+          pos = parseSimpleRecords(this, buf, pos, limit, base);
+          if (pos >= end) break;
+        }
+      }
       const c = buf[pos]!;
       if (c === LF) {
         pos++;
@@ -204,6 +218,7 @@ export class DelimitedParser implements RecordSink {
       this.roleOf[column] = ROLE_SEGMENT + k;
     });
     this.rows = new RowColumns(roles.segments.map((i) => names[i]!));
+    this.lastSegment = new Int32Array(roles.segments.length).fill(-1);
     if (roles.rank >= 0) {
       this.rows.notes.messages.push(this.rankStandsInForScore
         ? `no score column: ranked by '${names[roles.rank]}' (score = -rank)`
@@ -243,8 +258,11 @@ export class DelimitedParser implements RecordSink {
       } else if (role === ROLE_RANK) {
         if (this.rankStandsInForScore) score = -this.number(bytes, s, e, f, true);
       } else if (role >= ROLE_SEGMENT) {
+        // Segment values repeat in runs (one locale per query), so try the previous value first.
         const k = role - ROLE_SEGMENT;
-        rows.segmentIds[k]![row] = rows.segmentPools[k]!.intern(bytes, s, e);
+        const pool = rows.segmentPools[k]!;
+        const last = this.lastSegment[k]!;
+        rows.segmentIds[k]![row] = last >= 0 && pool.matches(last, bytes, s, e) ? last : (this.lastSegment[k] = pool.intern(bytes, s, e));
       }
     }
     rows.label[row] = label;
