@@ -352,21 +352,56 @@ export interface MovementParams {
 
 export interface MovementRow {
   readonly item: string;
+  /** Grade (B's when the item is in B, else A's). */
   readonly label: MaybeNumber;
   /** 1-based; null when the item is absent from that run. */
   readonly positionA: MaybeNumber;
   readonly positionB: MaybeNumber;
-  /** positionA − positionB (positive = moved up in B). */
+  /** positionA − positionB (positive = moved up in B); null when absent from one run. */
   readonly moved: MaybeNumber;
-  readonly rowA: MaybeNumber;
-  readonly rowB: MaybeNumber;
+}
+
+export interface PairChangeView {
+  /** The item graded higher but ranked below the other. */
+  readonly higherGraded: string;
+  readonly lowerGraded: string;
+  readonly ndcgRecovered: number;
+}
+
+export interface PositionChangeView {
+  readonly position: number;
+  /** '' when that run's list is shorter. */
+  readonly itemA: string;
+  readonly itemB: string;
+  readonly contributionA: number;
+  readonly contributionB: number;
+  readonly change: number;
 }
 
 export interface MovementView {
   readonly query: string;
+  /** Headline cut-off. */
+  readonly k: number;
+  /** Headline NDCG of the query in A and B. */
   readonly a: MaybeNumber;
   readonly b: MaybeNumber;
+  readonly dcgA: number;
+  readonly dcgB: number;
+  /** Items in B's order, then items only A ranks. */
   readonly rows: readonly MovementRow[];
+  /** Inverted in A, fixed in B (capped at 500; totals below are exact). */
+  readonly fixedPairs: readonly PairChangeView[];
+  /** Inverted in B, not in A (capped at 500). */
+  readonly introducedPairs: readonly PairChangeView[];
+  readonly fixedTotal: number;
+  readonly introducedTotal: number;
+  readonly keptPairs: number;
+  readonly droppedPairs: number;
+  readonly invertedTotalA: number;
+  readonly invertedTotalB: number;
+  readonly pairsTruncated: boolean;
+  /** Positions 1..k: what each run put there and the DCG contribution change. */
+  readonly positions: readonly PositionChangeView[];
 }
 
 export interface CompareSegmentsParams {
