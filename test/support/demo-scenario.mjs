@@ -44,8 +44,9 @@ function buildQueries(t) {
 /** How relevant a catalogue item is to a query, 0–4, with some judge noise. */
 function gradeOf(t, query, item) {
   if (item.family !== query.family) return t.rand() < 0.04 ? 1 : 0;
-  if (item.variant === query.variant) return t.rand() < 0.7 ? 4 : 3;
-  return t.rand() < 0.5 ? 2 : t.rand() < 0.6 ? 1 : 0;
+  if (item.variant === query.variant) return t.rand() < 0.6 ? 4 : 3;
+  const u = t.rand();
+  return u < 0.2 ? 2 : u < 0.45 ? 1 : 0;
 }
 
 /**
@@ -65,12 +66,12 @@ export function buildScenario(seed = 'kettlewood-demo-1') {
     const tied = qi % 20 === 3; // scores rounded coarsely, so equal scores occur
     const regressed = t.rand() < 0.14; // model B does worse here than model A
     const size = t.int(8, 36);
-    const pool = unanswerable ? catalogue.filter((item) => item.family !== query.family) : byFamily[query.family];
-    const candidates = t.shuffle([...pool]).slice(0, Math.min(size, pool.length));
-    if (!unanswerable) {
-      const others = catalogue.filter((item) => item.family !== query.family);
-      for (let i = t.int(0, 6); i > 0; i--) candidates.push(t.pick(others));
-    }
+    // About 60% of the candidates come from the right product family, the rest are near misses
+    // from other families (the retrieval stage is not perfect either).
+    const others = catalogue.filter((item) => item.family !== query.family);
+    const fromFamily = unanswerable ? 0 : Math.round(size * (0.45 + 0.3 * t.rand()));
+    const candidates = t.shuffle([...byFamily[query.family]]).slice(0, fromFamily);
+    while (candidates.length < size) candidates.push(t.pick(others));
     const seen = new Set();
     const queryShiftA = t.normal() * 0.4;
     const queryShiftB = t.normal() * 0.4;

@@ -1,7 +1,7 @@
 #!/usr/bin/env node
 // Writes the demo workspace's data for the invented "Kettlewood Hardware" product search.
 //
-//   node test/support/make-demo-data.mjs                 small demo files into demo/ (committed)
+//   node test/support/make-demo-data.mjs [--dir DIR]     small demo files into demo/ (committed) or DIR
 //   node test/support/make-demo-data.mjs --rows N --out FILE [--queries Q] [--seed S]
 //                                                        one large CSV for benchmarks
 //
@@ -112,10 +112,10 @@ function* groupsOf(rows) {
   }
 }
 
-function writeSmallDemo() {
+function writeSmallDemo(demoDir) {
   const { queries, rows } = buildScenario();
-  const runs = join(repoRoot, 'demo/runs');
-  const judgments = join(repoRoot, 'demo/judgments');
+  const runs = join(demoDir, 'runs');
+  const judgments = join(demoDir, 'judgments');
   mkdirSync(runs, { recursive: true });
   mkdirSync(judgments, { recursive: true });
   const a = rowsForModel(rows, 'a');
@@ -130,11 +130,17 @@ function writeSmallDemo() {
   writeQueryList(join(judgments, 'queries.tsv'), queries);
   writeSvmlight(join(runs, 'model-a.svm'), join(runs, 'model-a.svm.scores'), a);
   const duplicates = rows.filter((r) => r.duplicate).length;
-  console.log(`demo: ${queries.length} queries, ${rows.length} rows per model (${duplicates} duplicate rows) → demo/runs, demo/judgments`);
+  console.log(`demo: ${queries.length} queries, ${rows.length} rows per model (${duplicates} duplicate rows) → ${runs}, ${judgments}`);
 }
 
 const { values } = parseArgs({
-  options: { rows: { type: 'string' }, out: { type: 'string' }, queries: { type: 'string' }, seed: { type: 'string' } },
+  options: {
+    rows: { type: 'string' },
+    out: { type: 'string' },
+    queries: { type: 'string' },
+    seed: { type: 'string' },
+    dir: { type: 'string' },
+  },
 });
 if (values.rows !== undefined) {
   const rows = Number(values.rows);
@@ -146,5 +152,5 @@ if (values.rows !== undefined) {
   const written = writeLargeDump(resolve(values.out), rows, queries, values.seed ?? 'kettlewood-large-1');
   console.log(`wrote ${written.rows} rows, ${written.queries} queries, ${(written.bytes / 1e6).toFixed(1)} MB → ${values.out}`);
 } else {
-  writeSmallDemo();
+  writeSmallDemo(values.dir ? resolve(values.dir) : join(repoRoot, 'demo'));
 }
