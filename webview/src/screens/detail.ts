@@ -1,0 +1,283 @@
+/**
+ * One query: the predicted order beside the ideal order with a line joining each item's two
+ * positions, each position's gain / discount / contribution, cumulative DCG against the ideal, and
+ * the inverted pairs ranked by the NDCG a swap would recover.
+ */
+import type { Chart } from 'chart.js';
+import type { QueryDetailView, RunSide } from '../../../extension/protocol/messages';
+import { COLUMN_EXPLANATIONS, explainMetric, metricLabel } from '../model/explain';
+import { exactValue, formatCount, formatFixed } from '../model/format';
+import { twoLineChart } from '../ui/charts';
+import type { AppContext } from '../ui/context';
+import { button, clear, el } from '../ui/dom';
+import { highlightItem, renderConnector, renderOrderList, type ConnectorLink } from '../ui/orderLists';
+import { staticTable } from '../ui/staticTable';
+
+const SHOW_STEP = 100;
+const num = (v: number | null): number => (v === null ? NaN : v);
+const f4 = (v: number | null): string => formatFixed(num(v), 4);
+const grade = (v: number | null): string => (v === null ? 'unjudged' : String(v));
+
+export interface DetailOptions {
+  readonly metricKeys: () => readonly string[];
+  readonly conventionsSummary: () => string;
+  readonly compareMode: () => boolean;
+}
+
+export class DetailScreen {
+  readonly element = el('div', { id: 'gl-detail' });
+  private detail: QueryDetailView | undefined;
+  private shown = SHOW_STEP;
+  private selectedItem: string | null = null;
+  private chart: Chart | undefined;
+  private run: RunSide = 'a';
+  private loadingQuery: string | null = null;
+  private token = 0;
+
+  constructor(private readonly ctx: AppContext, private readonly options: DetailOptions) {
+    this.renderEmpty();
+  }
+
+  get query(): string | null {
+    return this.detail?.query ?? this.loadingQuery;
+  }
+
+  /** Fetch and show a query. Resolves when rendered; stale answers (user clicked on) are dropped. */
+  async show(query: string, run: RunSide = this.run): Promise<void> {
+    const token = ++this.token;
+    this.loadingQuery = query;
+    this.run = run;
+    const started = performance.now();
+    this.element.setAttribute('aria-busy', 'true');
+    try {
+      const detail = await this.ctx.request('queryDetail', { query, run, maxPairs: 200 });
+      if (token !== this.token) return;
+      if (this.detail?.query !== detail.query) {
+        this.shown = SHOW_STEP;
+        this.selectedItem = null;
+      }
+      this.detail = detail;
+      this.render();
+      // Exposed for the end-to-end and benchmark runs: request + render time of the last switch.
+      this.element.dataset['renderMs'] = String(Math.round(performance.now() - started));
+    } catch (e) {
+      if (token !== this.token) return;
+      this.detail = undefined;
+      clear(this.element);
+      this.element.append(
+        el('div', { id: 'gl-detail-query', text: query }),
+        el('p', { className: 'gl-worse', attrs: { role: 'alert' }, text: `Could not load this query: ${(e as Error).message}` }),
+      );
+    } finally {
+      if (token === this.token) this.element.removeAttribute('aria-busy');
+    }
+  }
+
+  clear(): void {
+    this.token++;
+    this.detail = undefined;
+    this.loadingQuery = null;
+    this.renderEmpty();
+  }
+
+  private renderEmpty(): void {
+    this.chart?.destroy();
+    this.chart = undefined;
+    clear(this.element);
+    this.element.append(el('p', { className: 'gl-muted', text: 'Pick a query in the worst-queries table (Enter or click) to see its ranked list here.' }));
+  }
+
+  private render(): void {
+    const d = this.detail!;
+    this.chart?.destroy();
+    this.chart = undefined;
+    clear(this.element);
+    const conv = this.options.conventionsSummary();
+    const keys = this.options.metricKeys();
+
+    const chips = el('div', { className: 'gl-cards' });
+    d.values.forEach((v, i) => {
+      const key = keys[i] ?? `metric ${i + 1}`;
+      chips.appendChild(el('span', { className: 'gl-chip', text: `${metricLabel(key)} ${f4(v)}`, title: `${explainMetric(key, conv)}\nExact: ${exactValue(num(v))}` }));
+    });
+    for (const [column, value] of Object.entries(d.segments)) chips.appendChild(el('span', { className: 'gl-chip', text: `${column}: ${value}`, title: `Value of column ${column} for this query` }));
+
+    const actions = el('div', { className: 'gl-toolbar' });
+    if (this.options.compareMode()) {
+      for (const side of ['a', 'b'] as const) {
+        actions.appendChild(
+          button(`Run ${side.toUpperCase()}`, { secondary: side !== this.run, title: `Show this query as ranked by run ${side.toUpperCase()}`, onClick: () => void this.show(d.query, side) }),
+        );
+      }
+    }
+    actions.append(
+      button('Reveal in File', { id: 'gl-reveal-in-file', icon: 'go-to-file', title: 'Open the dump at the selected item’s row (the first item when none is selected)', onClick: () => void this.reveal() }),
+      button('Copy as JSON', { icon: 'json', secondary: true, title: 'Copy this query with its items, labels, scores and metric values as JSON', onClick: () => this.ctx.copyQuery(d.query, this.run) }),
+    );
+
+    this.element.append(
+      el('div', { className: 'gl-detail-head' },
+        el('span', { id: 'gl-detail-query', text: d.query, title: 'Query id' }),
+        el('span', { className: 'gl-muted', text: `${formatCount(d.positions.length)} items · DCG@${d.k} ${formatFixed(d.dcg)} of ideal ${formatFixed(d.idealDcg)}`, title: `NDCG@${d.k} = DCG / ideal DCG = ${exactValue(d.dcg)} / ${exactValue(d.idealDcg)}` })),
+      chips,
+      actions,
+    );
+
+    this.renderOrders(d);
+    this.renderCumulative(d);
+    this.renderPairs(d);
+  }
+
+  private renderOrders(d: QueryDetailView): void {
+    const rowsShown = Math.min(this.shown, d.positions.length);
+    let maxContribution = 0;
+    for (const p of d.positions) if (p.contribution > maxContribution) maxContribution = p.contribution;
+    const predicted = renderOrderList(
+      {
+        id: 'gl-predicted-order',
+        label: 'Predicted order (by score)',
+        headers: [
+          { text: 'Pos', title: 'Position in the predicted order.', numeric: true },
+          { text: 'Item', title: 'Item id.' },
+          { text: 'Label', title: 'Graded relevance from the file.', numeric: true },
+          { text: 'Score', title: 'Model score; the list is sorted by it (descending).', numeric: true },
+          { text: 'Gain', title: COLUMN_EXPLANATIONS['gain']!, numeric: true },
+          { text: 'Disc.', title: COLUMN_EXPLANATIONS['discount']!, numeric: true },
+          { text: 'Contribution', title: COLUMN_EXPLANATIONS['contribution']! },
+        ],
+        rows: d.positions.slice(0, rowsShown).map((p) => ({
+          item: p.item,
+          className: `${p.withinCutoff ? '' : 'beyond'}${p.position === d.k + 1 ? ' cutoff' : ''}`.trim() || undefined,
+          title: `${p.item}\ncumulative DCG ${formatFixed(p.cumulativeDcg)} vs ideal ${formatFixed(p.idealCumulativeDcg)}${p.tieGroupSize > 1 ? `\nscore tied with ${p.tieGroupSize - 1} other item(s)` : ''}${p.line > 0 ? `\nline ${p.line} of the file` : ''}`,
+          cells: [
+            { text: String(p.position), numeric: true },
+            { text: p.item, title: p.item },
+            { text: grade(p.label), numeric: true },
+            { text: p.score === null ? 'missing' : formatFixed(p.score), numeric: true, title: p.score === null ? 'Missing score: ranked after every scored item.' : exactValue(p.score) },
+            { text: formatFixed(p.gain, 2), numeric: true, title: exactValue(p.gain) },
+            { text: formatFixed(p.discount, 3), numeric: true, title: `${exactValue(p.discount)}${p.tieGroupSize > 1 ? ' (average over the tied group)' : ''}` },
+            { text: formatFixed(p.contribution), bar: maxContribution > 0 ? p.contribution / maxContribution : 0, title: `${exactValue(p.contribution)} = gain × discount${p.withinCutoff ? '' : ' (beyond the cut-off: 0)'}` },
+          ],
+        })),
+      },
+      (item) => this.pick(item),
+    );
+    const ideal = renderOrderList(
+      {
+        id: 'gl-ideal-order',
+        label: 'Ideal order (by grade)',
+        headers: [
+          { text: 'Pos', title: 'Position in the ideal order: grade descending, file order within a grade.', numeric: true },
+          { text: 'Item', title: 'Item id.' },
+          { text: 'Label', title: 'Graded relevance.', numeric: true },
+          { text: 'Gain', title: COLUMN_EXPLANATIONS['gain']!, numeric: true },
+          { text: 'Model pos.', title: 'Where the model ranked this item.', numeric: true },
+        ],
+        rows: d.ideal.slice(0, rowsShown).map((q) => ({
+          item: q.item,
+          className: q.position === d.k + 1 ? 'cutoff' : undefined,
+          cells: [
+            { text: String(q.position), numeric: true },
+            { text: q.item, title: q.item },
+            { text: grade(q.label), numeric: true },
+            { text: formatFixed(q.gain, 2), numeric: true, title: exactValue(q.gain) },
+            { text: String(q.predictedPosition), numeric: true, title: q.predictedPosition === q.position ? 'Same position as ideal.' : `${q.predictedPosition > q.position ? 'ranked' : 'promoted'} ${Math.abs(q.predictedPosition - q.position)} place(s) ${q.predictedPosition > q.position ? 'too low' : 'above its ideal place'}` },
+          ],
+        })),
+      },
+      (item) => this.pick(item),
+    );
+    const links: ConnectorLink[] = d.positions.map((p) => ({ position: p.position, idealPosition: p.idealPosition, gain: p.gain, item: p.item }));
+    const svg = renderConnector(links, rowsShown, 'Lines joining each item’s predicted position to its ideal position');
+    const orders = el('div', { className: 'gl-orders' }, predicted, el('div', {}, svg), ideal);
+
+    this.element.append(
+      el('h2', { text: 'Predicted order against the ideal order' }),
+      el('div', { className: 'gl-legend' },
+        el('span', {}, el('span', { className: 'gl-swatch up' }), 'belongs higher (ranked too low)'),
+        el('span', {}, el('span', { className: 'gl-swatch down' }), 'belongs lower'),
+        el('span', {}, el('span', { className: 'gl-swatch same' }), 'in place'),
+        el('span', { text: `Stronger lines: larger gain. Dashed: other end beyond the rows shown. Dashed row border: the cut-off @${d.k}.` })),
+      orders,
+    );
+    if (rowsShown < d.positions.length) {
+      this.element.appendChild(
+        el('div', { className: 'gl-toolbar' },
+          el('span', { className: 'gl-muted', text: `Showing ${formatCount(rowsShown)} of ${formatCount(d.positions.length)} items.` }),
+          button(`Show ${formatCount(Math.min(SHOW_STEP, d.positions.length - rowsShown))} more`, { secondary: true, onClick: () => { this.shown += SHOW_STEP; this.render(); } })),
+      );
+    }
+    highlightItem(this.element, this.selectedItem);
+  }
+
+  private renderCumulative(d: QueryDetailView): void {
+    const n = Math.min(d.positions.length, Math.max(this.shown, d.k * 2));
+    const slice = d.positions.slice(0, n);
+    const canvas = el('canvas', { attrs: { role: 'img', 'aria-label': `Cumulative DCG by position for the first ${n} positions, model order against ideal order` } });
+    this.element.append(
+      el('h2', { text: 'Cumulative DCG: model against ideal' }),
+      el('p', { className: 'gl-muted', text: `DCG accumulated down the list; positions beyond @${d.k} add nothing. The gap between the two curves is what the model order loses against the ideal order.` }),
+      el('div', { className: 'gl-chart' }, canvas),
+    );
+    this.chart = twoLineChart(canvas, {
+      x: slice.map((p) => p.position),
+      a: slice.map((p) => p.cumulativeDcg),
+      b: slice.map((p) => p.idealCumulativeDcg),
+      aLabel: 'model order',
+      bLabel: 'ideal order',
+      xTitle: 'position',
+      yTitle: 'cumulative DCG',
+    });
+  }
+
+  private renderPairs(d: QueryDetailView): void {
+    this.element.append(
+      el('h2', { text: `Inverted pairs (${formatCount(d.invertedPairsTotal)})` }),
+      el('p', { className: 'gl-muted', text: `Pairs where the model scored the better-graded item lower, largest NDCG@${d.k} recovered by swapping first${d.invertedPairs.length < d.invertedPairsTotal ? `; the first ${formatCount(d.invertedPairs.length)} are listed` : ''}.` }),
+    );
+    const max = d.invertedPairs.reduce((m, p) => Math.max(m, p.ndcgRecovered), 0);
+    const table = staticTable({
+      id: 'gl-inverted-pairs',
+      caption: 'Inverted pairs sorted by NDCG recovered by a swap',
+      columns: [
+        { label: 'Ranked higher', title: 'Item the model placed above (position, grade).' },
+        { label: 'Pos', numeric: true },
+        { label: 'Label', numeric: true },
+        { label: 'Should be higher', title: 'Item with the higher grade that the model placed below.' },
+        { label: 'Pos', numeric: true },
+        { label: 'Label', numeric: true },
+        { label: 'NDCG recovered', numeric: true, title: COLUMN_EXPLANATIONS['ndcgRecovered']! },
+      ],
+      rows: d.invertedPairs.map((p) => [
+        { text: p.aboveItem, title: p.aboveItem },
+        String(p.abovePosition),
+        grade(p.aboveLabel),
+        { text: p.belowItem, title: p.belowItem },
+        String(p.belowPosition),
+        grade(p.belowLabel),
+        { text: formatFixed(p.ndcgRecovered), title: `${exactValue(p.ndcgRecovered)}${max > 0 ? ` (${formatFixed((p.ndcgRecovered / max) * 100, 0)}% of the largest)` : ''}` },
+      ]),
+    });
+    if (d.invertedPairs.length === 0) this.element.appendChild(el('p', { id: 'gl-inverted-pairs', text: 'No inverted pairs: every better-graded item is scored at least as high.' }));
+    else this.element.appendChild(table);
+  }
+
+  private pick(item: string): void {
+    this.selectedItem = this.selectedItem === item ? null : item;
+    highlightItem(this.element, this.selectedItem);
+  }
+
+  private async reveal(): Promise<void> {
+    const d = this.detail;
+    if (!d) return;
+    const position = d.positions.find((p) => p.item === this.selectedItem) ?? d.positions[0];
+    if (!position) return;
+    try {
+      const result = await this.ctx.request('revealRow', { row: position.row, run: this.run });
+      if (!result.revealed) this.ctx.notify(result.message ?? `Row ${position.row + 1} could not be shown as a line.`);
+    } catch (e) {
+      this.ctx.notify(`Could not reveal the row: ${(e as Error).message}`, true);
+    }
+  }
+}
+

@@ -1,0 +1,110 @@
+/**
+ * Two ranked lists side by side with a connector column between them: each item's line joins its
+ * row on the left to its row on the right. Used for predicted vs ideal (detail) and run A vs run B
+ * (movement). Rows have a fixed height so the line geometry is a pure function of positions.
+ */
+import { lineSegments, segmentPath, type OrderLink } from '../model/orderLines';
+import { clear, el } from './dom';
+
+export const ORDER_ROW_HEIGHT = 22;
+const SVG_NS = 'http://www.w3.org/2000/svg';
+
+export interface OrderCell {
+  readonly text: string;
+  readonly title?: string;
+  readonly numeric?: boolean;
+  /** Render as a bar of this fraction with the text as its label. */
+  readonly bar?: number;
+}
+
+export interface OrderRowSpec {
+  readonly item: string;
+  readonly cells: readonly OrderCell[];
+  readonly className?: string;
+  readonly title?: string;
+}
+
+export interface OrderListSpec {
+  readonly id: string;
+  readonly label: string;
+  readonly headers: readonly { text: string; title: string; numeric?: boolean }[];
+  readonly rows: readonly OrderRowSpec[];
+}
+
+export function renderOrderList(spec: OrderListSpec, onPick: (item: string) => void): HTMLElement {
+  const list = el('div', { id: spec.id, className: 'gl-order', attrs: { role: 'table', 'aria-label': spec.label } });
+  const head = el('div', { className: 'gl-order-head', attrs: { role: 'row' } });
+  for (const h of spec.headers) head.appendChild(el('span', { text: h.text, title: h.title, className: h.numeric ? 'num' : undefined, attrs: { role: 'columnheader' } }));
+  list.appendChild(head);
+  const frag = document.createDocumentFragment();
+  for (const r of spec.rows) {
+    const row = el('div', { className: `gl-order-row${r.className ? ` ${r.className}` : ''}`, title: r.title, attrs: { role: 'row', tabindex: -1 } });
+    row.dataset['item'] = r.item;
+    for (const c of r.cells) {
+      const cell = el('span', { className: c.numeric ? 'num' : undefined, title: c.title, attrs: { role: 'cell' } });
+      if (c.bar !== undefined) {
+        const track = el('span', { className: 'gl-contrib', attrs: { 'aria-hidden': 'true' } });
+        const fill = el('span');
+        fill.style.width = `${Math.max(0, Math.min(1, c.bar)) * 100}%`;
+        track.appendChild(fill);
+        cell.append(track);
+        cell.setAttribute('aria-label', c.text);
+      } else cell.textContent = c.text;
+      row.appendChild(cell);
+    }
+    frag.appendChild(row);
+  }
+  list.appendChild(frag);
+  list.addEventListener('click', (e) => {
+    const row = (e.target as HTMLElement).closest<HTMLElement>('.gl-order-row');
+    const item = row?.dataset['item'];
+    if (item !== undefined) onPick(item);
+  });
+  return list;
+}
+
+export interface ConnectorLink extends OrderLink {
+  readonly item: string;
+}
+
+/** The SVG between the lists. `rowsShown` rows are drawn under a header of one row height. */
+export function renderConnector(links: readonly ConnectorLink[], rowsShown: number, label: string): SVGSVGElement {
+  const width = 80;
+  const height = (rowsShown + 1) * ORDER_ROW_HEIGHT + 6;
+  const svg = document.createElementNS(SVG_NS, 'svg');
+  svg.setAttribute('class', 'gl-links');
+  svg.setAttribute('width', String(width));
+  svg.setAttribute('height', String(height));
+  svg.setAttribute('viewBox', `0 0 ${width} ${height}`);
+  svg.setAttribute('role', 'img');
+  svg.setAttribute('aria-label', label);
+  const segments = lineSegments(links, { rowHeight: ORDER_ROW_HEIGHT, width, rowsShown, top: ORDER_ROW_HEIGHT });
+  const byPosition = new Map(links.map((l) => [l.position, l.item]));
+  for (const s of segments) {
+    const path = document.createElementNS(SVG_NS, 'path');
+    path.setAttribute('d', segmentPath(s));
+    path.setAttribute('class', `${s.direction}${s.clipped ? ' clipped' : ''}`);
+    path.setAttribute('stroke-opacity', String(0.35 + 0.65 * s.weight));
+    const item = byPosition.get(s.position) ?? '';
+    path.dataset['item'] = item;
+    const title = document.createElementNS(SVG_NS, 'title');
+    title.textContent = `${item}: position ${s.position} → ${s.idealPosition}`;
+    path.appendChild(title);
+    svg.appendChild(path);
+  }
+  return svg;
+}
+
+/** Highlights one item's rows and line across the lists inside `root`. */
+export function highlightItem(root: HTMLElement, item: string | null): void {
+  for (const node of root.querySelectorAll<HTMLElement | SVGElement>('.gl-order-row.selected, .gl-links path.selected')) node.classList.remove('selected');
+  if (item === null) return;
+  for (const node of root.querySelectorAll<HTMLElement | SVGElement>('.gl-order-row, .gl-links path')) {
+    if (node.dataset['item'] === item) node.classList.add('selected');
+  }
+}
+
+export function resetChildren(node: HTMLElement, ...children: Node[]): void {
+  clear(node);
+  node.append(...children);
+}
