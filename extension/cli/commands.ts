@@ -4,6 +4,7 @@
  */
 import packageJson from '../../package.json';
 import { CancelledError, InputError } from '../engine/errors';
+import { runCompare } from './compareCommand';
 import { runEval, UsageError } from './evalCommand';
 import type { CliIO } from './io';
 
@@ -15,6 +16,7 @@ interface Command {
 /** Adding a command is one line here. */
 const COMMANDS: Readonly<Record<string, Command>> = {
   eval: { summary: 'score one prediction dump and list its worst queries', run: runEval },
+  compare: { summary: 'test two runs of the same queries against each other, query by query', run: runCompare },
 };
 
 export const EXIT_OK = 0;

@@ -236,9 +236,13 @@ function equalArrays(x: Uint32Array, y: Uint32Array): boolean {
 }
 
 function skipWarnings(byMetric: readonly MetricComparison[]): string[] {
-  return byMetric
-    .filter((r) => r.skipped > 0)
-    .map((r) => `${r.key}: ${r.skipped} common queries are skipped in at least one run (nothing relevant) and are left out of the paired tests.`);
+  const affected = byMetric.filter((r) => r.skipped > 0);
+  if (affected.length === 0) return [];
+  const why = 'undefined (skipped) in at least one run, usually for having nothing relevant, and are left out of the paired tests';
+  if (affected.length === byMetric.length && affected.every((r) => r.skipped === affected[0]!.skipped)) {
+    return [`${affected[0]!.skipped} common queries are ${why}.`];
+  }
+  return affected.map((r) => `${r.key}: ${r.skipped} common queries are ${why}.`);
 }
 
 function methodNotes(o: CompareOptions, metricCount: number): string[] {

@@ -1,0 +1,123 @@
+/**
+ * `gainline compare A B`: score two runs of the same query set under the same conventions, pair them
+ * query by query and report the paired statistics. With --fail-if-worse it doubles as a CI gate.
+ */
+import { stat } from 'node:fs/promises';
+import { resolve } from 'node:path';
+import { parseArgs } from 'node:util';
+import { compareRuns, DEFAULT_COMPARE_OPTIONS } from '../engine/compare/compare';
+import { InputError } from '../engine/errors';
+import { readDump } from '../engine/readers/index';
+import { COMPARE_FORMATS, formatComparison, type CompareFormat } from '../engine/report/compareReport';
+import { conventionHelp, conventionOptions, scoringSetupFrom } from './conventionArgs';
+import { UsageError } from './evalCommand';
+import type { CliIO } from './io';
+import { progressLine } from './progress';
+
+export const compareUsage = `Usage: gainline compare A B [options]
+
+Scores two runs (for example yesterday's model as A, today's as B) on the queries they share, under
+the same conventions, and tests the per-query differences B − A: mean difference with a bootstrap
+interval, paired t-test, Wilcoxon signed-rank and sign-flip randomization p-values (with Holm and
+Benjamini–Hochberg adjustments across metrics), wins / ties / losses, and the queries that moved most.
+Queries found in one run only are counted and left out.
+
+Statistics:
+  --permutations N      random sign patterns for the randomization test (default ${DEFAULT_COMPARE_OPTIONS.permutations})
+  --bootstrap N         bootstrap resamples for the 95% interval (default ${DEFAULT_COMPARE_OPTIONS.bootstrap}; 0 = none)
+  --seed S              seed of both resampling procedures (default ${DEFAULT_COMPARE_OPTIONS.seed})
+  --tie-tolerance X     |B − A| <= X counts as a tie (default ${DEFAULT_COMPARE_OPTIONS.tieTolerance})
+  --fail-if-worse ALPHA exit 1 when B is worse than A on the first metric with randomization p <= ALPHA
+Output:
+  --format F            table (default) | json | markdown
+  --top N               how many of the biggest drops and gains to list (default 10)
+${conventionHelp}
+Exit status: 0 done (and not worse, with --fail-if-worse), 1 B significantly worse, 2 bad input.
+`;
+
+const compareOptions = {
+  ...conventionOptions,
+  permutations: { type: 'string' },
+  bootstrap: { type: 'string' },
+  seed: { type: 'string' },
+  'tie-tolerance': { type: 'string' },
+  'fail-if-worse': { type: 'string' },
+  format: { type: 'string' },
+  top: { type: 'string' },
+  help: { type: 'boolean', short: 'h' },
+} as const;
+
+const PROGRESS_FROM_BYTES = 32 * 1024 * 1024;
+
+export async function runCompare(argv: string[], io: CliIO): Promise<number> {
+  const { values, positionals } = parseArgs({ args: argv, options: compareOptions, allowPositionals: true, strict: true });
+  if (values.help) {
+    io.out(compareUsage);
+    return 0;
+  }
+  if (positionals.length !== 2) {
+    throw new UsageError(`compare needs two runs, A and B; got ${positionals.length} file${positionals.length === 1 ? '' : 's'}`);
+  }
+  const format = (values.format ?? 'table') as CompareFormat;
+  if (!COMPARE_FORMATS.includes(format)) {
+    throw new InputError(`one of ${COMPARE_FORMATS.join(', ')}`, '--format', undefined, values.format);
+  }
+  const permutations = wholeNumber('--permutations', values.permutations, DEFAULT_COMPARE_OPTIONS.permutations, 1);
+  const bootstrap = wholeNumber('--bootstrap', values.bootstrap, DEFAULT_COMPARE_OPTIONS.bootstrap, 0);
+  const seed = wholeNumber('--seed', values.seed, DEFAULT_COMPARE_OPTIONS.seed, 0);
+  const top = wholeNumber('--top', values.top, 10, 0);
+  const tieTolerance = numberAtLeastZero('--tie-tolerance', values['tie-tolerance'], DEFAULT_COMPARE_OPTIONS.tieTolerance);
+  const alpha = values['fail-if-worse'] === undefined ? undefined : significance(values['fail-if-worse']);
+  const setup = scoringSetupFrom(values, (p) => resolve(io.cwd, p));
+
+  const [sourceA, sourceB] = positionals as [string, string];
+  const pathA = resolve(io.cwd, sourceA);
+  const pathB = resolve(io.cwd, sourceB);
+  const large = (await stat(pathA)).size + (await stat(pathB)).size >= PROGRESS_FROM_BYTES;
+  const progress = io.isTTY && large ? progressLine(io, `${sourceA} vs ${sourceB}`) : undefined;
+  try {
+    const a = await readDump(pathA, { ...setup.read, onProgress: progress && ((f) => progress.reading(f / 2)) });
+    const b = await readDump(pathB, { ...setup.read, onProgress: progress && ((f) => progress.reading(0.5 + f / 2)) });
+    const comparison = await compareRuns(a, b, setup.metrics, setup.conventions, {
+      permutations,
+      bootstrap,
+      seed,
+      tieTolerance,
+      onProgress: progress?.scoring,
+    });
+    progress?.done();
+    io.out(formatComparison(format, { comparison, queryNamesA: a.queries, sourceA, sourceB }, { top }));
+    if (alpha === undefined) return 0;
+    const headline = comparison.byMetric[comparison.headline]!;
+    const worse = headline.summary.meanDifference < 0 && headline.randomization.p <= alpha;
+    if (worse) {
+      io.err(
+        `gainline compare: B is worse than A on ${headline.key} (Δ ${headline.summary.meanDifference.toFixed(4)}, ` +
+          `randomization p ${headline.randomization.p.toPrecision(3)} <= ${alpha})\n`,
+      );
+    }
+    return worse ? 1 : 0;
+  } finally {
+    progress?.done();
+  }
+}
+
+function wholeNumber(option: string, text: string | undefined, fallback: number, min: number): number {
+  if (text === undefined) return fallback;
+  const n = text.trim() === '' ? Number.NaN : Number(text);
+  if (!Number.isSafeInteger(n) || n < min) throw new InputError(`a whole number, ${min} or more`, option, undefined, text);
+  return n;
+}
+
+function numberAtLeastZero(option: string, text: string | undefined, fallback: number): number {
+  if (text === undefined) return fallback;
+  const n = text.trim() === '' ? Number.NaN : Number(text);
+  if (!(Number.isFinite(n) && n >= 0)) throw new InputError('a number, 0 or more', option, undefined, text);
+  return n;
+}
+
+function significance(text: string): number {
+  const n = text.trim() === '' ? Number.NaN : Number(text);
+  if (!(n > 0 && n < 1)) throw new InputError('a significance level strictly between 0 and 1', '--fail-if-worse', undefined, text);
+  return n;
+}

@@ -1,0 +1,79 @@
+/**
+ * A comparison as JSON for scripts and dashboards: every summary figure, the matching counts, and the
+ * per-query values as columns (one array per metric rather than one object per query).
+ */
+import { conventionsAsJson, jsonNumber } from './reportInput';
+import { biggestChanges, type CompareReportInput, type CompareReportOptions, type QueryChange } from './compareShared';
+import type { AdjustedP } from '../compare/compare';
+
+const PER_QUERY_SLOT = '\u0000per-query columns\u0000';
+
+export function formatCompareJson(input: CompareReportInput, options: CompareReportOptions): string {
+  const c = input.comparison;
+  const { match } = c;
+  const adjusted = (x: AdjustedP) => ({ holm: jsonNumber(x.holm), benjaminiHochberg: jsonNumber(x.benjaminiHochberg) });
+  const { drops, gains } = biggestChanges(input, options.top);
+  const change = (ch: QueryChange) => ({ query: ch.query, a: jsonNumber(ch.a), b: jsonNumber(ch.b), delta: jsonNumber(ch.delta) });
+  const columns = (arrays: readonly Float64Array[]) =>
+    Object.fromEntries(c.metrics.map((spec, m) => [spec.key, Array.from(arrays[m]!, jsonNumber)]));
+  const out = {
+    runs: { a: input.sourceA, b: input.sourceB },
+    conventions: conventionsAsJson(c.conventions),
+    options: c.options,
+    headline: c.metrics[c.headline]?.key ?? null,
+    matching: {
+      queriesInA: match.queriesInA,
+      queriesInB: match.queriesInB,
+      common: match.commonA.length,
+      onlyInA: match.onlyInA,
+      onlyInB: match.onlyInB,
+      onlyInAExamples: match.onlyInAExamples,
+      onlyInBExamples: match.onlyInBExamples,
+      differingItemSets: match.differingItemSets,
+      differingExamples: match.differingExamples,
+    },
+    metrics: c.byMetric.map((r) => ({
+      key: r.key,
+      paired: r.paired,
+      skipped: r.skipped,
+      meanA: jsonNumber(r.summary.meanA),
+      meanB: jsonNumber(r.summary.meanB),
+      meanDelta: jsonNumber(r.summary.meanDifference),
+      sdDelta: jsonNumber(r.summary.sdDifference),
+      effectSizeDz: jsonNumber(r.summary.effectSize),
+      interval95: { low: jsonNumber(r.interval.low), high: jsonNumber(r.interval.high) },
+      wins: r.summary.wins,
+      ties: r.summary.ties,
+      losses: r.summary.losses,
+      tTest: { t: jsonNumber(r.tTest.t), dof: r.tTest.dof, p: jsonNumber(r.tTest.p), adjusted: adjusted(r.adjusted.tTest) },
+      wilcoxon: {
+        statistic: jsonNumber(r.wilcoxon.statistic),
+        nonZero: r.wilcoxon.n,
+        zeros: r.wilcoxon.zeros,
+        method: r.wilcoxon.method,
+        z: jsonNumber(r.wilcoxon.z),
+        p: jsonNumber(r.wilcoxon.p),
+        adjusted: adjusted(r.adjusted.wilcoxon),
+      },
+      randomization: {
+        method: r.randomization.method,
+        patterns: r.randomization.patterns,
+        asExtreme: r.randomization.asExtreme,
+        p: jsonNumber(r.randomization.p),
+        adjusted: adjusted(r.adjusted.randomization),
+      },
+    })),
+    biggestDrops: drops.map(change),
+    biggestGains: gains.map(change),
+    methodNotes: c.methodNotes,
+    warnings: c.warnings,
+    perQuery: PER_QUERY_SLOT,
+  };
+  // The per-query columns stay on one line each: indenting 100k-element arrays helps nobody.
+  const perQuery = {
+    query: Array.from(c.perQuery.queryA, (q) => input.queryNamesA.get(q)),
+    a: columns(c.perQuery.a),
+    b: columns(c.perQuery.b),
+  };
+  return JSON.stringify(out, null, 2).replace(JSON.stringify(PER_QUERY_SLOT), () => JSON.stringify(perQuery)) + '\n';
+}
