@@ -5,7 +5,8 @@
  * No `vscode` import, so the command line and tests use it too.
  */
 import { Worker } from 'node:worker_threads';
-import { RequestClient, type Method, type ParamsOf, type ResultOf } from '../protocol/request';
+import { RequestAbortedError, RequestClient, RequestTimeoutError, type Method, type ParamsOf, type ResultOf } from '../protocol/request';
+import { createCancelFlags, markCancelled } from '../worker/cancelFlags';
 import { isProgressEvent, type WorkerRequests } from '../protocol/worker';
 
 export interface WorkerCallOptions {
@@ -23,6 +24,7 @@ export class EngineWorker {
   private client: RequestClient<WorkerRequests> | undefined;
   private readonly progress = new Map<number, NonNullable<WorkerCallOptions['onProgress']>>();
   private disposed = false;
+  private flags = new Int32Array(createCancelFlags());
   /** Bumped each time a thread starts; sessions held by an older thread are gone. */
   generation = 0;
 
@@ -47,10 +49,13 @@ export class EngineWorker {
         if (onProgress) this.progress.set(requestId, onProgress);
       },
     });
-    if (onProgress) {
-      const forget = (): void => void this.progress.delete(id);
-      void promise.then(forget, forget);
-    }
+    const flags = this.flags;
+    const settle = (error?: unknown): void => {
+      this.progress.delete(id);
+      // Reaches the worker even while it is busy in synchronous work (see cancelFlags).
+      if (error instanceof RequestAbortedError || error instanceof RequestTimeoutError) markCancelled(flags, id);
+    };
+    promise.then(() => settle(), settle);
     return promise;
   }
 
@@ -66,7 +71,9 @@ export class EngineWorker {
   private ensureStarted(): RequestClient<WorkerRequests> {
     if (this.disposed) throw new Error('the engine worker was stopped');
     if (this.client) return this.client;
-    const worker = new Worker(this.scriptPath);
+    const shared = createCancelFlags();
+    this.flags = new Int32Array(shared);
+    const worker = new Worker(this.scriptPath, { workerData: { cancelFlags: shared } });
     const client = new RequestClient<WorkerRequests>((message) => worker.postMessage(message), DEFAULT_TIMEOUT_MS);
     this.generation++;
     worker.on('message', (message: unknown) => {

@@ -1,0 +1,235 @@
+/**
+ * The engine worker thread: holds loaded dumps and their evaluation in memory, keyed by session, and
+ * answers page/detail/segment requests from memory so the extension host never blocks.
+ *
+ * Cancellation: an aborted request aborts the read (asynchronous) and, through a shared flag checked on
+ * every progress tick, the synchronous evaluation loop too — a cancel message alone could not be seen
+ * while the thread is busy.
+ */
+import { parentPort, workerData } from 'node:worker_threads';
+import { CancelledError, InputError } from '../engine/errors';
+import { compareRuns } from '../engine/compare/compare';
+import { queryMovement } from '../engine/compare/movement';
+import { queryDetail } from '../engine/evaluate/detail';
+import { evaluate } from '../engine/evaluate/evaluate';
+import { headlineCutoff } from '../engine/evaluate/scorer';
+import type { Evaluation } from '../engine/evaluate/types';
+import { parseMetricList } from '../engine/metrics/parse';
+import type { RankedDump } from '../engine/model/dump';
+import { groupByQuery, type QueryGroups } from '../engine/model/groups';
+import { readDump, type ReadOptions } from '../engine/readers/index';
+import { conventionsAsJson } from '../engine/report/reportInput';
+import type { Comparison } from '../engine/compare/compare';
+import { RequestServer, type HandlerContext, type RequestHandlers } from '../protocol/request';
+import type { DumpSource, ProgressEvent, WorkerRequests } from '../protocol/worker';
+import { CompareTable, compareOverviewModel } from './compareTable';
+import { QueryTable } from './queryTable';
+import { detailView, metricLabel, movementView, overviewModel, segmentTable } from './viewModels';
+import { isCancelled } from './cancelFlags';
+
+interface Loaded {
+  readonly dump: RankedDump;
+  readonly evaluation: Evaluation;
+  readonly groups: QueryGroups;
+  readonly table: QueryTable;
+}
+type Session =
+  | ({ readonly kind: 'single' } & Loaded)
+  | { readonly kind: 'compare'; readonly a: Loaded; readonly b: Loaded; readonly comparison: Comparison; readonly table: CompareTable };
+
+const sessions = new Map<string, Session>();
+const flags: Int32Array | undefined = workerData?.cancelFlags instanceof SharedArrayBuffer ? new Int32Array(workerData.cancelFlags) : undefined;
+
+/** Progress at most every 100 ms, and a CancelledError as soon as the request is cancelled. */
+function progressReporter(ctx: HandlerContext, from: number, to: number, message: string): (fraction: number) => void {
+  let last = 0;
+  return (fraction) => {
+    if (ctx.signal.aborted || isCancelled(flags, ctx.id)) throw new CancelledError();
+    const now = Date.now();
+    if (now - last < 100 && fraction < 1) return;
+    last = now;
+    const event: ProgressEvent = { kind: 'progress', id: ctx.id, fraction: from + (to - from) * fraction, message };
+    parentPort?.postMessage(event);
+  };
+}
+
+async function read(source: DumpSource, ctx: HandlerContext, from: number, to: number, label = 'Reading'): Promise<RankedDump> {
+  const options: ReadOptions = {
+    signal: ctx.signal,
+    onProgress: progressReporter(ctx, from, to, `${label} ${source.path.split(/[\\/]/).pop()}…`),
+    ...(source.format ? { format: source.format as ReadOptions['format'] } : {}),
+    ...(source.columns ? { columns: source.columns } : {}),
+    ...(source.judgments ? { judgments: source.judgments } : {}),
+    ...(source.scores ? { scores: source.scores } : {}),
+  };
+  return readDump(source.path, options);
+}
+
+function loaded(dump: RankedDump, evaluation: Evaluation, groups: QueryGroups): Loaded {
+  return { dump, evaluation, groups, table: new QueryTable({ dump, evaluation, groups }) };
+}
+
+function session(key: string): Session {
+  const s = sessions.get(key);
+  if (!s) throw new Error(`nothing is loaded for this view (session ${key}); reopen the file`);
+  return s;
+}
+
+function single(key: string): Extract<Session, { kind: 'single' }> {
+  const s = session(key);
+  if (s.kind !== 'single') throw new Error('this request needs a single dump, not a comparison');
+  return s;
+}
+
+function compared(key: string): Extract<Session, { kind: 'compare' }> {
+  const s = session(key);
+  if (s.kind !== 'compare') throw new Error('this request needs a comparison of two runs');
+  return s;
+}
+
+/** The loaded run a per-query request refers to: the dump, or run A/B of a comparison. */
+function runOf(key: string, run: 'a' | 'b' | undefined): Loaded {
+  const s = session(key);
+  if (s.kind === 'single') return s;
+  return run === 'b' ? s.b : s.a;
+}
+
+function queryIdOf(l: Loaded, query: string): number {
+  const id = l.dump.queries.find(query);
+  if (id < 0) throw new InputError(`a query id present in ${l.dump.path}`, undefined, undefined, query);
+  return id;
+}
+
+function detailOf(l: Loaded, query: string, maxPairs?: number) {
+  const id = queryIdOf(l, query);
+  const k = headlineCutoff(l.evaluation.metrics);
+  const detail = queryDetail(l.dump, id, l.evaluation.conventions, Number.isFinite(k) ? k : l.evaluation.perQuery.items[id]!, {
+    groups: l.groups,
+    maxPairs: maxPairs ?? 200,
+    metrics: l.evaluation.metrics,
+  });
+  return { id, detail };
+}
+
+const handlers: RequestHandlers<WorkerRequests> = {
+  async load({ session: key, source, settings }, ctx) {
+    const started = performance.now();
+    sessions.delete(key);
+    const dump = await read(source, ctx, 0, 0.75);
+    const groups = groupByQuery(dump);
+    const metrics = parseMetricList(settings.metrics);
+    const evaluation = evaluate(dump, metrics, settings.conventions, { groups, signal: ctx.signal, onProgress: progressReporter(ctx, 0.75, 1, 'Scoring queries…') });
+    const entry = loaded(dump, evaluation, groups);
+    sessions.set(key, { kind: 'single', ...entry });
+    return overviewModel(dump, evaluation, performance.now() - started);
+  },
+
+  async loadCompare({ session: key, a: sourceA, b: sourceB, settings }, ctx) {
+    const started = performance.now();
+    sessions.delete(key);
+    const a = await read(sourceA, ctx, 0, 0.3, 'Reading run A,');
+    const b = await read(sourceB, ctx, 0.3, 0.6, 'Reading run B,');
+    const metrics = parseMetricList(settings.metrics);
+    const comparison = await compareRuns(a, b, metrics, settings.conventions, {
+      permutations: settings.permutations,
+      seed: settings.seed,
+      tieTolerance: settings.tieTolerance,
+      signal: ctx.signal,
+      onProgress: progressReporter(ctx, 0.6, 1, 'Comparing runs…'),
+    });
+    sessions.set(key, {
+      kind: 'compare',
+      a: loaded(a, comparison.evaluationA, groupByQuery(a)),
+      b: loaded(b, comparison.evaluationB, groupByQuery(b)),
+      comparison,
+      table: new CompareTable(comparison, a),
+    });
+    return compareOverviewModel(comparison, a, b, performance.now() - started);
+  },
+
+  async headline({ source, settings }, ctx) {
+    const dump = await read(source, ctx, 0, 0.8);
+    const metrics = parseMetricList(settings.metrics);
+    const evaluation = evaluate(dump, metrics, settings.conventions, { signal: ctx.signal, sensitivity: false });
+    const h = evaluation.headline;
+    const mean = evaluation.summary[h]?.mean ?? NaN;
+    return { key: metrics[h]!.key, label: metricLabel(metrics[h]!), mean: Number.isFinite(mean) ? mean : null, queryCount: evaluation.queryCount, rowCount: dump.rowCount };
+  },
+
+  unload({ session: key }) {
+    return { unloaded: sessions.delete(key) };
+  },
+
+  queryPage({ session: key, ...params }) {
+    return single(key).table.page(params);
+  },
+
+  queryDetail({ session: key, query, maxPairs, run }) {
+    const l = runOf(key, run);
+    const { id, detail } = detailOf(l, query, maxPairs);
+    return detailView(l.dump, l.evaluation, detail, id, l.table);
+  },
+
+  queryJson({ session: key, query, run }) {
+    const l = runOf(key, run);
+    const { id, detail } = detailOf(l, query, 0);
+    const values: Record<string, number | null> = {};
+    l.evaluation.metrics.forEach((m, i) => {
+      const v = l.evaluation.perQuery.values[i]![id]!;
+      values[m.key] = Number.isFinite(v) ? v : null;
+    });
+    const json = {
+      query,
+      file: l.dump.path,
+      conventions: conventionsAsJson(l.evaluation.conventions),
+      values,
+      items: detail.positions.map((p) => ({
+        position: p.position,
+        item: p.item,
+        grade: Number.isFinite(p.label) ? p.label : null,
+        score: Number.isFinite(p.score) ? p.score : null,
+        idealPosition: p.idealPosition,
+        line: l.dump.line[p.row] || null,
+      })),
+    };
+    return { json: JSON.stringify(json, null, 2) };
+  },
+
+  rowLocation({ session: key, row, run }) {
+    const { dump } = runOf(key, run);
+    if (!Number.isInteger(row) || row < 0 || row >= dump.rowCount) throw new Error(`row ${row} is outside 0..${dump.rowCount - 1}`);
+    return { line: dump.line[row]!, offset: dump.offset[row]!, path: dump.path };
+  },
+
+  segments({ session: key, column }) {
+    const s = single(key);
+    return segmentTable(s.dump, s.evaluation, s.table, column);
+  },
+
+  comparePage({ session: key, ...params }) {
+    return compared(key).table.page(params);
+  },
+
+  queryMovement({ session: key, query }) {
+    const s = compared(key);
+    const i = s.table.pairOf(query);
+    if (i < 0) throw new InputError('a query present in both runs', undefined, undefined, query);
+    const k = headlineCutoff(s.comparison.metrics);
+    const qa = s.comparison.perQuery.queryA[i]!;
+    const qb = s.comparison.perQuery.queryB[i]!;
+    const depth = Number.isFinite(k) ? k : Math.max(s.a.evaluation.perQuery.items[qa]!, s.b.evaluation.perQuery.items[qb]!);
+    return movementView(queryMovement(s.a.dump, s.b.dump, qa, qb, s.comparison.conventions, depth));
+  },
+
+  compareSegments({ session: key, column, metric }) {
+    return compared(key).table.segments(column, metric);
+  },
+};
+
+if (parentPort) {
+  const port = parentPort;
+  const server = new RequestServer<WorkerRequests>(handlers, (message) => port.postMessage(message));
+  port.on('message', (message: unknown) => {
+    server.handleMessage(message);
+  });
+}

@@ -1,0 +1,215 @@
+/**
+ * Engine results → the plain-JSON view models of the protocol (no Map, no NaN, no typed arrays).
+ * Pure functions, tested without a worker.
+ */
+import { basename } from 'node:path';
+import type { RankedDump } from '../engine/model/dump';
+import type { Conventions, MetricSpec } from '../engine/metrics/conventions';
+import type { Evaluation, QueryDetail } from '../engine/evaluate/types';
+import { segmentBreakdown } from '../engine/evaluate/segments';
+import { describeConventions } from '../engine/report/reportInput';
+import type { QueryMovement } from '../engine/compare/movement';
+import type {
+  ConventionsView,
+  FileInfo,
+  Histogram,
+  MetricColumn,
+  MovementView,
+  OverviewModel,
+  QueryDetailView,
+  SegmentTable,
+} from '../protocol/messages';
+import { toMaybe, type QueryTable } from './queryTable';
+
+/** 'ndcg@10' → 'NDCG@10', 'tau' → 'Kendall τ'. */
+export function metricLabel(spec: MetricSpec): string {
+  if (spec.name === 'tau') return 'Kendall τ';
+  return spec.k === undefined ? spec.name.toUpperCase() : `${spec.name.toUpperCase()}@${spec.k}`;
+}
+
+export function conventionsView(c: Conventions): ConventionsView {
+  const gain =
+    c.gain.kind === 'exponential'
+      ? 'exponential (2^g − 1)'
+      : c.gain.kind === 'linear'
+        ? 'linear (g)'
+        : 'map ' + [...c.gain.gains].sort((a, b) => a[0] - b[0]).map(([g, v]) => `${g}→${v}`).join(', ');
+  return {
+    gain,
+    ties: c.ties,
+    noRelevant: c.noRelevant,
+    relevantFrom: c.relevantFrom,
+    maxGrade: c.maxGrade ?? null,
+    rbpPersistence: c.rbpPersistence,
+    summary: describeConventions(c),
+  };
+}
+
+/** Parquet and compressed files have no text lines to reveal. */
+export function fileInfo(dump: RankedDump): FileInfo {
+  return {
+    path: dump.path,
+    name: basename(dump.path),
+    format: dump.format,
+    rowCount: dump.rowCount,
+    sizeBytes: dump.stamp.size,
+    textual: dump.format !== 'parquet' && !/\.gz$/i.test(dump.path),
+  };
+}
+
+/** 10 equal bins over [0, 1]; values outside (DCG-like metrics are not bounded) are clamped to the ends. */
+export function histogram(values: Float64Array, bins = 10): Histogram {
+  const counts = new Array<number>(bins).fill(0);
+  for (const v of values) {
+    if (!Number.isFinite(v)) continue;
+    const bin = Math.min(bins - 1, Math.max(0, Math.floor(v * bins)));
+    counts[bin]!++;
+  }
+  return { lower: 0, upper: 1, counts };
+}
+
+export function metricColumns(evaluation: Evaluation): MetricColumn[] {
+  return evaluation.metrics.map((spec, m) => ({
+    key: spec.key,
+    label: metricLabel(spec),
+    mean: toMaybe(evaluation.summary[m]?.mean ?? NaN),
+    counted: evaluation.summary[m]?.counted ?? 0,
+  }));
+}
+
+export function overviewModel(dump: RankedDump, evaluation: Evaluation, loadMs: number): OverviewModel {
+  const headlineMean = evaluation.summary[evaluation.headline]?.mean ?? NaN;
+  return {
+    file: fileInfo(dump),
+    queryCount: evaluation.queryCount,
+    metrics: metricColumns(evaluation),
+    headline: evaluation.headline,
+    conventions: conventionsView(evaluation.conventions),
+    sensitivity: evaluation.sensitivity.map((row) => ({
+      label: row.label,
+      mean: toMaybe(row.mean),
+      counted: row.counted,
+      delta: toMaybe(row.mean - headlineMean),
+    })),
+    degenerate: { ...evaluation.degenerate },
+    histogram: histogram(evaluation.perQuery.values[evaluation.headline]!),
+    segmentColumns: dump.segments.map((s) => s.name),
+    warnings: [...evaluation.warnings, ...dump.notes.messages],
+    loadMs: Math.round(loadMs),
+  };
+}
+
+export function detailView(dump: RankedDump, evaluation: Evaluation, detail: QueryDetail, queryId: number, table: QueryTable): QueryDetailView {
+  const label = (v: number) => toMaybe(v);
+  const byRow = new Map(detail.positions.map((p) => [p.row, p]));
+  const segments: Record<string, string> = {};
+  for (const s of dump.segments) segments[s.name] = table.segment(s.name).values(table.segment(s.name).ofQuery[queryId]!);
+  return {
+    query: detail.query,
+    k: detail.k,
+    headlineKey: evaluation.metrics[evaluation.headline]!.key,
+    positions: detail.positions.map((p) => ({
+      position: p.position,
+      row: p.row,
+      line: dump.line[p.row] ?? 0,
+      item: p.item,
+      label: label(p.label),
+      score: toMaybe(p.score),
+      gain: p.gain,
+      discount: p.discount,
+      contribution: p.contribution,
+      cumulativeDcg: p.cumulativeDcg,
+      idealCumulativeDcg: p.idealCumulativeDcg,
+      idealPosition: p.idealPosition,
+      tieGroupSize: p.tieGroupSize,
+      withinCutoff: p.position <= detail.k,
+    })),
+    ideal: detail.idealOrder.map((row, i) => {
+      const p = byRow.get(row);
+      return {
+        position: i + 1,
+        row,
+        item: p?.item ?? dump.items.get(dump.item[row]!),
+        label: label(dump.label[row]!),
+        gain: p?.gain ?? 0,
+        predictedPosition: p?.position ?? 0,
+      };
+    }),
+    dcg: detail.dcg,
+    idealDcg: detail.idealDcg,
+    ndcg: toMaybe(detail.ndcg),
+    invertedPairs: detail.invertedPairs.map((pair) => ({
+      aboveItem: byRow.get(pair.aboveRow)?.item ?? '',
+      belowItem: byRow.get(pair.belowRow)?.item ?? '',
+      aboveRow: pair.aboveRow,
+      belowRow: pair.belowRow,
+      abovePosition: pair.abovePosition,
+      belowPosition: pair.belowPosition,
+      aboveLabel: label(dump.label[pair.aboveRow]!),
+      belowLabel: label(dump.label[pair.belowRow]!),
+      ndcgRecovered: pair.ndcgRecovered,
+    })),
+    invertedPairsTotal: detail.invertedPairsTotal,
+    // Values as the overview computed them, so the detail and the table never disagree.
+    values: evaluation.perQuery.values.map((column) => toMaybe(column[queryId]!)),
+    segments,
+  };
+}
+
+/** Segment means from the engine, plus the headline gap to the overall mean and the share of the loss. */
+export function segmentTable(dump: RankedDump, evaluation: Evaluation, table: QueryTable, column: string): SegmentTable {
+  const index = dump.segments.findIndex((s) => s.name === column);
+  if (index < 0) throw new Error(`no segment column '${column}' (columns: ${dump.segments.map((s) => s.name).join(', ') || 'none'})`);
+  const overall = evaluation.summary[evaluation.headline]?.mean ?? NaN;
+  const { ofQuery, values } = table.segment(column);
+  const shareByValue = new Map<string, number>();
+  const shares = table.lossShare;
+  for (let q = 0; q < ofQuery.length; q++) {
+    const share = shares[q]!;
+    if (!Number.isFinite(share)) continue;
+    const value = values(ofQuery[q]!);
+    shareByValue.set(value, (shareByValue.get(value) ?? 0) + share);
+  }
+  const anyShare = shareByValue.size > 0;
+  return {
+    column,
+    rows: segmentBreakdown(dump, evaluation, index).map((row) => ({
+      value: row.value,
+      queries: row.queries,
+      means: row.means.map(toMaybe),
+      headlineDelta: toMaybe(row.means[evaluation.headline]! - overall),
+      lossShare: anyShare ? (shareByValue.get(row.value) ?? 0) : null,
+    })),
+  };
+}
+
+const PAIR_CAP = 500;
+
+export function movementView(m: QueryMovement): MovementView {
+  const position = (p: number) => (p > 0 ? p : null);
+  return {
+    query: m.query,
+    k: m.k,
+    a: toMaybe(m.ndcgA),
+    b: toMaybe(m.ndcgB),
+    dcgA: m.dcgA,
+    dcgB: m.dcgB,
+    rows: m.items.map((item) => ({
+      item: item.item,
+      label: toMaybe(item.positionB > 0 ? item.gradeB : item.gradeA),
+      positionA: position(item.positionA),
+      positionB: position(item.positionB),
+      moved: toMaybe(item.change),
+    })),
+    fixedPairs: m.fixedPairs.slice(0, PAIR_CAP).map((p) => ({ ...p })),
+    introducedPairs: m.introducedPairs.slice(0, PAIR_CAP).map((p) => ({ ...p })),
+    fixedTotal: m.fixedPairs.length,
+    introducedTotal: m.introducedPairs.length,
+    keptPairs: m.keptPairs,
+    droppedPairs: m.droppedPairs,
+    invertedTotalA: m.invertedTotalA,
+    invertedTotalB: m.invertedTotalB,
+    pairsTruncated: m.pairsTruncated || m.fixedPairs.length > PAIR_CAP || m.introducedPairs.length > PAIR_CAP,
+    positions: m.positions.map((p) => ({ ...p })),
+  };
+}

@@ -1,0 +1,153 @@
+/**
+ * The real worker thread, bundled from source into a temp folder (the same esbuild settings as
+ * build.mjs), driven through the host's EngineWorker handle: load → page → detail → segments, errors,
+ * cancellation, and compare mode.
+ */
+import { mkdtempSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import * as esbuild from 'esbuild';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { EngineWorker } from '../../extension/host/workerHost';
+import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
+import { RemoteError, RequestAbortedError } from '../../extension/protocol/request';
+import type { EvaluationSettings } from '../../extension/protocol/worker';
+
+const dir = mkdtempSync(join(tmpdir(), 'gainline-worker-'));
+const script = join(dir, 'engineWorker.js');
+let worker: EngineWorker;
+
+// Three queries of an invented hardware store. Hand-derived NDCG@10, exponential gain 2^g − 1,
+// discount 1/log2(position + 1) (Järvelin & Kekäläinen 2002; exponential gain: Burges et al. 2005):
+//  "cordless drill 18v": order by score = grades 2, 0, 1 → DCG = 3/1 + 0 + 1/2 = 3.5;
+//     ideal 2, 1, 0 → 3 + 1/log2(3) = 3.630930; NDCG = 0.963946.
+//  "wood screws 4x40": grades 0, 1 → DCG = 1/log2(3) = 0.630930; ideal = 1; NDCG = 0.630930.
+//  "hammer": nothing relevant → skipped from the mean (default no-relevant policy).
+const RUN_A = [
+  'query_id,item_id,label,score,aisle',
+  'cordless drill 18v,drill-a,2,0.9,tools',
+  'cordless drill 18v,drill-b,0,0.8,tools',
+  'cordless drill 18v,drill-c,1,0.1,tools',
+  'wood screws 4x40,screw-a,0,0.7,fixings',
+  'wood screws 4x40,screw-b,1,0.2,fixings',
+  'hammer,hammer-a,0,0.5,tools',
+  'hammer,hammer-b,0,0.4,tools',
+].join('\n');
+// Run B fixes the screws query (NDCG 1) and leaves the drill query as it was.
+const RUN_B = RUN_A.replace('wood screws 4x40,screw-a,0,0.7', 'wood screws 4x40,screw-a,0,0.1');
+const DRILL = 3.5 / (3 + 1 / Math.log2(3));
+const SCREWS = 1 / Math.log2(3);
+
+const settings: EvaluationSettings = { metrics: 'ndcg@10,ap', conventions: DEFAULT_CONVENTIONS };
+const fileA = join(dir, 'run-a.csv');
+const fileB = join(dir, 'run-b.csv');
+
+beforeAll(async () => {
+  await esbuild.build({
+    entryPoints: ['extension/worker/engineWorker.ts'], outfile: script, bundle: true, platform: 'node', format: 'cjs',
+    target: 'es2022', logLevel: 'error',
+  });
+  writeFileSync(fileA, RUN_A + '\n');
+  writeFileSync(fileB, RUN_B + '\n');
+  worker = new EngineWorker(script);
+});
+
+afterAll(() => worker?.dispose());
+
+describe('engine worker', () => {
+  it('loads a CSV and returns the overview with hand-derived values', async () => {
+    const overview = await worker.call('load', { session: 's1', source: { path: fileA }, settings });
+    expect(overview.queryCount).toBe(3);
+    expect(overview.file).toMatchObject({ name: 'run-a.csv', format: 'csv', rowCount: 7, textual: true });
+    expect(overview.metrics[0]!.label).toBe('NDCG@10');
+    expect(overview.metrics[0]!.mean).toBeCloseTo((DRILL + SCREWS) / 2, 10);
+    expect(overview.metrics[0]!.counted).toBe(2);
+    expect(overview.degenerate.noRelevantQueries).toBe(1);
+    expect(overview.segmentColumns).toEqual(['aisle']);
+    expect(overview.histogram.counts.reduce((a, b) => a + b, 0)).toBe(2);
+    // JSON-safe: no NaN anywhere (NaN would become null silently in a webview, or break equality).
+    expect(JSON.stringify(overview)).not.toContain('NaN');
+  });
+
+  it('pages queries worst first with loss shares', async () => {
+    const page = await worker.call('queryPage', { session: 's1', offset: 0, limit: 10 });
+    expect(page.total).toBe(3);
+    expect(page.rows.map((r) => r.query)).toEqual(['wood screws 4x40', 'cordless drill 18v', 'hammer']);
+    expect(page.rows[0]!.values[0]).toBeCloseTo(SCREWS, 10);
+    const lossScrews = 1 - SCREWS;
+    const lossDrill = 1 - DRILL;
+    expect(page.rows[0]!.lossShare).toBeCloseTo(lossScrews / (lossScrews + lossDrill), 10);
+    expect(page.rows[2]).toMatchObject({ skipped: true, lossShare: null });
+    const filtered = await worker.call('queryPage', { session: 's1', offset: 0, limit: 10, segment: { column: 'aisle', value: 'tools' } });
+    expect(filtered.rows.map((r) => r.query)).toEqual(['cordless drill 18v', 'hammer']);
+  });
+
+  it('answers a query detail: predicted order, ideal order, inverted pairs, lines', async () => {
+    const detail = await worker.call('queryDetail', { session: 's1', query: 'cordless drill 18v' });
+    expect(detail.positions.map((p) => p.item)).toEqual(['drill-a', 'drill-b', 'drill-c']);
+    expect(detail.ideal.map((p) => p.item)).toEqual(['drill-a', 'drill-c', 'drill-b']);
+    expect(detail.positions.map((p) => p.line)).toEqual([2, 3, 4]);
+    expect(detail.dcg).toBeCloseTo(3.5, 12);
+    expect(detail.ndcg).toBeCloseTo(DRILL, 10);
+    expect(detail.invertedPairsTotal).toBe(1);
+    expect(detail.invertedPairs[0]).toMatchObject({ aboveItem: 'drill-b', belowItem: 'drill-c', abovePosition: 2, belowPosition: 3 });
+    expect(detail.segments).toEqual({ aisle: 'tools' });
+    const where = await worker.call('rowLocation', { session: 's1', row: detail.positions[2]!.row });
+    expect(where).toMatchObject({ line: 4, path: fileA });
+  });
+
+  it('gives segment rows and the query as JSON', async () => {
+    const table = await worker.call('segments', { session: 's1', column: 'aisle' });
+    const tools = table.rows.find((r) => r.value === 'tools')!;
+    expect(tools.queries).toBe(2);
+    expect(tools.means[0]).toBeCloseTo(DRILL, 10);
+    const { json } = await worker.call('queryJson', { session: 's1', query: 'wood screws 4x40' });
+    expect(JSON.parse(json)).toMatchObject({ query: 'wood screws 4x40', items: [{ item: 'screw-a', grade: 0 }, { item: 'screw-b', grade: 1 }] });
+  });
+
+  it('reports input errors as one line and unknown sessions clearly', async () => {
+    const bad = join(dir, 'bad.csv');
+    writeFileSync(bad, 'query_id,item_id,label,score\nhammer,h1,1,abc\n');
+    const error = await worker.call('load', { session: 's2', source: { path: bad }, settings }).catch((e: RemoteError) => e);
+    expect(error).toBeInstanceOf(RemoteError);
+    expect((error as RemoteError).remoteName).toBe('InputError');
+    expect((error as RemoteError).message).toContain('bad.csv');
+    expect((error as RemoteError).message).not.toContain('\n');
+    await expect(worker.call('queryPage', { session: 'nope', offset: 0, limit: 1 })).rejects.toThrow('nothing is loaded');
+  });
+
+  it('a cancelled load rejects at once and the worker keeps answering', async () => {
+    const controller = new AbortController();
+    const pending = worker.call('load', { session: 's3', source: { path: fileA }, settings }, { signal: controller.signal });
+    controller.abort();
+    await expect(pending).rejects.toBeInstanceOf(RequestAbortedError);
+    const page = await worker.call('queryPage', { session: 's1', offset: 0, limit: 1 });
+    expect(page.rows[0]!.query).toBe('wood screws 4x40');
+  });
+
+  it('compares two runs: wins, deltas page, movement', async () => {
+    const model = await worker.call('loadCompare', {
+      session: 'c1', a: { path: fileA }, b: { path: fileB },
+      settings: { ...settings, permutations: 1000, seed: 3, tieTolerance: 1e-9 },
+    });
+    expect(model.pairedQueries).toBe(3);
+    const headline = model.metrics[model.headline]!;
+    expect(headline).toMatchObject({ wins: 1, losses: 0 });
+    expect(headline.delta).toBeCloseTo((1 - SCREWS) / 2, 10);
+    const page = await worker.call('comparePage', { session: 'c1', offset: 0, limit: 10, sort: { key: 'delta', descending: true } });
+    expect(page.rows[0]).toMatchObject({ query: 'wood screws 4x40', outcome: 'win' });
+    expect(page.rows[0]!.delta).toBeCloseTo(1 - SCREWS, 10);
+    const movement = await worker.call('queryMovement', { session: 'c1', query: 'wood screws 4x40' });
+    expect(movement.rows.map((r) => [r.item, r.positionA, r.positionB])).toEqual([['screw-b', 2, 1], ['screw-a', 1, 2]]);
+    expect(movement.fixedTotal).toBe(1);
+    const detailB = await worker.call('queryDetail', { session: 'c1', query: 'wood screws 4x40', run: 'b' });
+    expect(detailB.ndcg).toBeCloseTo(1, 12);
+  });
+
+  it('reports progress for the load request', async () => {
+    const seen: (number | null)[] = [];
+    await worker.call('load', { session: 's4', source: { path: fileA }, settings }, { onProgress: (f) => seen.push(f) });
+    expect(seen.length).toBeGreaterThan(0);
+    expect(seen.every((f) => f === null || (f >= 0 && f <= 1))).toBe(true);
+  });
+});
