@@ -1,8 +1,166 @@
+/**
+ * JSON Lines, in one of two shapes chosen from the first line:
+ * - one row per line: `{"query_id": "q1", "item_id": "sku-1", "label": 2, "score": 0.4, "locale": "en"}`
+ * - one list per line: `{"query": "q1", "items": [...], "labels": [...], "scores": [...]}` (equal lengths)
+ * Every row of a list shares the list's line number and byte offset.
+ */
 import { InputError } from '../errors';
 import type { RankedDump } from '../model/dump';
+import { RowColumns } from './columns';
 import type { ReadOptions } from './index';
+import { describeNonNumberText, parseNumberText } from './numbers';
+import { LIST_ROLE_NAMES, resolveRoles, type ResolvedRoles } from './roles';
+import { pumpText, type RecordSink } from './source';
+
+type Json = Record<string, unknown>;
+
+interface Shape {
+  readonly list: boolean;
+  readonly keys: readonly string[];
+  readonly roles: ResolvedRoles;
+  readonly rankStandsInForScore: boolean;
+}
 
 export async function readJsonLines(path: string, options: ReadOptions): Promise<RankedDump> {
-  void options;
-  throw new InputError('a format this build reads (not yet supported)', path);
+  const sink = new JsonLinesSink(path, options);
+  const stamp = await pumpText(path, sink, { signal: options.signal, onProgress: options.onProgress });
+  const rows = sink.rows;
+  if (rows === undefined || rows.count === 0) throw new InputError('at least one row in the JSON Lines file (the file is empty)', path);
+  rows.countGaps();
+  return rows.finish(path, 'jsonl', stamp);
+}
+
+class JsonLinesSink implements RecordSink {
+  rows: RowColumns | undefined;
+  private shape: Shape | undefined;
+  private line = 1;
+
+  constructor(private readonly file: string, private readonly options: ReadOptions) {}
+
+  feed(buf: Buffer, start: number, end: number, base: number, final: boolean): number {
+    let pos = start;
+    while (pos < end) {
+      let lineEnd = buf.indexOf(10, pos);
+      if (lineEnd < 0 || lineEnd >= end) {
+        if (!final) break;
+        lineEnd = end;
+      }
+      const text = buf.toString('utf8', pos, lineEnd).trim();
+      if (text.length > 0) this.storeLine(text, base + pos);
+      pos = lineEnd + 1;
+      this.line++;
+    }
+    return Math.min(pos, end);
+  }
+
+  private storeLine(text: string, offset: number): void {
+    let value: unknown;
+    try {
+      value = JSON.parse(text);
+    } catch (err) {
+      throw new InputError(`a JSON object on each line (${(err as Error).message})`, this.file, this.line, text);
+    }
+    if (value === null || typeof value !== 'object' || Array.isArray(value)) {
+      throw new InputError('a JSON object on each line', this.file, this.line, text);
+    }
+    const obj = value as Json;
+    const shape = this.shape ?? this.learnShape(obj, text);
+    if (shape.list) this.storeList(obj, shape, offset, text);
+    else this.storeRow(obj, shape, offset, text);
+  }
+
+  private learnShape(obj: Json, text: string): Shape {
+    const keys = Object.keys(obj);
+    const list = keys.some((k) => Array.isArray(obj[k]));
+    const roles = resolveRoles(keys, this.options.columns, { file: this.file, line: this.line, text }, list ? LIST_ROLE_NAMES : undefined);
+    const rows = new RowColumns(roles.segments.map((i) => keys[i]!));
+    if (roles.rank >= 0) {
+      rows.notes.messages.push(roles.score < 0
+        ? `no score field: ranked by '${keys[roles.rank]}' (score = -rank)`
+        : `ranked by score; the rank field '${keys[roles.rank]}' is ignored`);
+    }
+    this.rows = rows;
+    this.shape = { list, keys, roles, rankStandsInForScore: roles.score < 0 };
+    return this.shape;
+  }
+
+  private storeRow(obj: Json, shape: Shape, offset: number, text: string): void {
+    const rows = this.rows!;
+    const { keys, roles } = shape;
+    const row = rows.next();
+    rows.query[row] = rows.queries.internString(this.id(obj[keys[roles.query]!], keys[roles.query]!, text));
+    rows.item[row] = rows.items.internString(this.id(obj[keys[roles.item]!], keys[roles.item]!, text));
+    rows.label[row] = this.number(obj[keys[roles.label]!], keys[roles.label]!, false, text);
+    rows.score[row] = this.scoreOf(obj, shape, text);
+    rows.line[row] = this.line;
+    rows.offset[row] = offset;
+    roles.segments.forEach((column, k) => {
+      rows.segmentIds[k]![row] = rows.segmentPools[k]!.internString(segmentText(obj[keys[column]!]));
+    });
+  }
+
+  private storeList(obj: Json, shape: Shape, offset: number, text: string): void {
+    const rows = this.rows!;
+    const { keys, roles } = shape;
+    const query = rows.queries.internString(this.id(obj[keys[roles.query]!], keys[roles.query]!, text));
+    const items = this.array(obj, keys[roles.item]!, text);
+    const labels = this.array(obj, keys[roles.label]!, text);
+    const numberKey = roles.score >= 0 ? keys[roles.score]! : keys[roles.rank]!;
+    const scores = this.array(obj, numberKey, text);
+    if (labels.length !== items.length || scores.length !== items.length) {
+      throw new InputError(`arrays of equal length (${keys[roles.item]}: ${items.length}, ${keys[roles.label]}: ${labels.length}, ${numberKey}: ${scores.length})`,
+        this.file, this.line, text);
+    }
+    for (let i = 0; i < items.length; i++) {
+      const row = rows.next();
+      rows.query[row] = query;
+      rows.item[row] = rows.items.internString(this.id(items[i], keys[roles.item]!, text));
+      rows.label[row] = this.number(labels[i], keys[roles.label]!, false, text);
+      const score = this.number(scores[i], numberKey, true, text);
+      rows.score[row] = shape.rankStandsInForScore ? -score : score;
+      rows.line[row] = this.line;
+      rows.offset[row] = offset;
+      roles.segments.forEach((column, k) => {
+        const v = obj[keys[column]!];
+        rows.segmentIds[k]![row] = rows.segmentPools[k]!.internString(segmentText(Array.isArray(v) ? v[i] : v));
+      });
+    }
+  }
+
+  private scoreOf(obj: Json, shape: Shape, text: string): number {
+    const { keys, roles } = shape;
+    if (!shape.rankStandsInForScore) return this.number(obj[keys[roles.score]!], keys[roles.score]!, true, text);
+    return -this.number(obj[keys[roles.rank]!], keys[roles.rank]!, true, text);
+  }
+
+  private array(obj: Json, key: string, text: string): unknown[] {
+    const v = obj[key];
+    if (!Array.isArray(v)) throw new InputError(`an array in field '${key}'`, this.file, this.line, text);
+    return v;
+  }
+
+  private id(v: unknown, key: string, text: string): string {
+    if (typeof v === 'string') return v;
+    if (typeof v === 'number' || typeof v === 'bigint') return String(v);
+    throw new InputError(`a string or number in field '${key}'`, this.file, this.line, text);
+  }
+
+  private number(v: unknown, key: string, isScore: boolean, _text: string): number {
+    if (v === null || v === undefined) return NaN;
+    if (typeof v === 'number') {
+      if (Number.isFinite(v)) return v;
+      if (isScore) return NaN;
+    } else if (typeof v === 'string') {
+      const parsed = parseNumberText(v);
+      if (Number.isFinite(parsed)) return parsed;
+      const kind = Number.isNaN(parsed) ? describeNonNumberText(v) : 'infinite';
+      if (kind === 'missing' || (kind === 'infinite' && isScore)) return NaN;
+    }
+    throw new InputError(`a ${isScore ? '' : 'finite '}number in field '${key}'`, this.file, this.line, JSON.stringify(v) ?? String(v));
+  }
+}
+
+function segmentText(v: unknown): string {
+  if (v === null || v === undefined) return '';
+  return typeof v === 'string' ? v : JSON.stringify(v);
 }

@@ -1,8 +1,152 @@
+/**
+ * Parquet: one file, or a folder of part files (`*.parquet`, read in name order). Roles are found
+ * from column names as for CSV. Read one row group at a time so only that group's decoded values
+ * are held at once. Parquet rows have no line or byte offset: `line` is 0 and `offset` is -1.
+ */
+import { promises as fsp } from 'node:fs';
+import { join } from 'node:path';
+import { asyncBufferFromFile, parquetMetadataAsync, parquetRead, parquetSchema } from 'hyparquet';
+import { compressors } from 'hyparquet-compressors';
 import { InputError } from '../errors';
-import type { RankedDump } from '../model/dump';
+import type { FileStamp, RankedDump } from '../model/dump';
+import { RowColumns } from './columns';
 import type { ReadOptions } from './index';
+import { describeNonNumberText, parseNumberText } from './numbers';
+import { resolveRoles, type ResolvedRoles } from './roles';
+import { statStamp, throwIfCancelled } from './source';
 
-export async function readParquet(path: string, _directory: boolean, options: ReadOptions): Promise<RankedDump> {
-  void options;
-  throw new InputError('a format this build reads (not yet supported)', path);
+type Values = ArrayLike<unknown>;
+
+export async function readParquet(path: string, directory: boolean, options: ReadOptions): Promise<RankedDump> {
+  const parts = directory ? await partFiles(path) : [path];
+  const before = await stampOf(parts);
+  let rows: RowColumns | undefined;
+  let roles: ResolvedRoles | undefined;
+  let names: string[] = [];
+  for (let p = 0; p < parts.length; p++) {
+    const part = parts[p]!;
+    throwIfCancelled(options.signal);
+    let file;
+    let metadata;
+    try {
+      file = await asyncBufferFromFile(part);
+      metadata = await parquetMetadataAsync(file);
+    } catch (err) {
+      throw new InputError('a readable Parquet file', part, undefined, (err as Error).message);
+    }
+    const columns = parquetSchema(metadata).children.filter((c) => c.children.length === 0).map((c) => c.element.name);
+    if (rows === undefined) {
+      names = columns;
+      roles = resolveRoles(columns, options.columns, { file: part, line: 0, text: columns.join(', ') });
+      rows = new RowColumns(roles.segments.map((i) => columns[i]!), Number(metadata.num_rows) * (directory ? parts.length : 1));
+      if (roles.rank >= 0) {
+        rows.notes.messages.push(roles.score < 0 ? `no score column: ranked by '${columns[roles.rank]}' (score = -rank)`
+          : `ranked by score; the rank column '${columns[roles.rank]}' is ignored`);
+      }
+    } else if (names.some((n) => !columns.includes(n))) {
+      throw new InputError(`the same columns in every part file (${names.join(', ')})`, part, undefined, columns.join(', '));
+    }
+    const wanted = [...new Set([roles!.query, roles!.item, roles!.label, roles!.score, roles!.rank, ...roles!.segments].filter((i) => i >= 0).map((i) => names[i]!))];
+    let groupStart = 0;
+    for (const group of metadata.row_groups) {
+      throwIfCancelled(options.signal);
+      const groupEnd = groupStart + Number(group.num_rows);
+      const values = new Map<string, unknown[]>();
+      try {
+        await parquetRead({
+          file, metadata, columns: wanted, rowStart: groupStart, rowEnd: groupEnd, compressors,
+          onChunk: (chunk) => collect(values, chunk.columnName, chunk.columnData, chunk.rowStart, groupStart, groupEnd),
+        });
+      } catch (err) {
+        throw new InputError('a readable Parquet file', part, undefined, (err as Error).message);
+      }
+      storeGroup(rows, roles!, names, values, groupEnd - groupStart, part);
+      groupStart = groupEnd;
+      options.onProgress?.((p + groupStart / Math.max(1, Number(metadata.num_rows))) / parts.length);
+    }
+  }
+  const after = await stampOf(parts);
+  if (after.size !== before.size || after.mtimeMs !== before.mtimeMs) {
+    throw new InputError('the file to stay the same while it is read: the file changed while it was read; read again', path);
+  }
+  if (rows === undefined || rows.count === 0) throw new InputError('at least one row in the Parquet data', path);
+  rows.countGaps();
+  options.onProgress?.(1);
+  return rows.finish(path, 'parquet', before);
+}
+
+async function partFiles(folder: string): Promise<string[]> {
+  const names = (await fsp.readdir(folder)).filter((n) => n.toLowerCase().endsWith('.parquet')).sort();
+  if (names.length === 0) throw new InputError('a folder holding *.parquet part files', folder);
+  return names.map((n) => join(folder, n));
+}
+
+/** Total size and latest modification time over all parts, so a change to any part is seen. */
+async function stampOf(parts: readonly string[]): Promise<FileStamp> {
+  let size = 0;
+  let mtimeMs = 0;
+  for (const part of parts) {
+    const s = await statStamp(part);
+    size += s.size;
+    mtimeMs = Math.max(mtimeMs, s.mtimeMs);
+  }
+  return { size, mtimeMs };
+}
+
+function collect(values: Map<string, unknown[]>, column: string, data: Values, rowStart: number, groupStart: number, groupEnd: number): void {
+  let target = values.get(column);
+  if (target === undefined) {
+    target = new Array<unknown>(groupEnd - groupStart);
+    values.set(column, target);
+  }
+  for (let i = 0; i < data.length; i++) {
+    const row = rowStart + i;
+    if (row >= groupStart && row < groupEnd) target[row - groupStart] = data[i];
+  }
+}
+
+function storeGroup(rows: RowColumns, roles: ResolvedRoles, names: string[], values: Map<string, unknown[]>, count: number, file: string): void {
+  const get = (index: number): unknown[] => values.get(names[index]!) ?? [];
+  const queries = get(roles.query);
+  const items = get(roles.item);
+  const labels = get(roles.label);
+  const scores = roles.score >= 0 ? get(roles.score) : get(roles.rank);
+  const negate = roles.score < 0;
+  const segments = roles.segments.map(get);
+  for (let i = 0; i < count; i++) {
+    const row = rows.next();
+    rows.query[row] = rows.queries.internString(idText(queries[i], names[roles.query]!, file));
+    rows.item[row] = rows.items.internString(idText(items[i], names[roles.item]!, file));
+    rows.label[row] = numberOf(labels[i], names[roles.label]!, false, file);
+    const score = numberOf(scores[i], names[roles.score >= 0 ? roles.score : roles.rank]!, true, file);
+    rows.score[row] = negate ? -score : score;
+    rows.line[row] = 0;
+    rows.offset[row] = -1;
+    for (let k = 0; k < segments.length; k++) {
+      const v = segments[k]![i];
+      rows.segmentIds[k]![row] = rows.segmentPools[k]!.internString(v === null || v === undefined ? '' : String(v));
+    }
+  }
+}
+
+function idText(v: unknown, column: string, file: string): string {
+  if (typeof v === 'string') return v;
+  if (typeof v === 'number' || typeof v === 'bigint') return String(v);
+  throw new InputError(`a string or number in column '${column}'`, file, undefined, String(v));
+}
+
+function numberOf(v: unknown, column: string, isScore: boolean, file: string): number {
+  if (v === null || v === undefined) return NaN;
+  let kind: 'missing' | 'infinite' | 'invalid' = 'invalid';
+  if (typeof v === 'number' || typeof v === 'bigint') {
+    const n = Number(v);
+    if (Number.isFinite(n)) return n;
+    kind = Number.isNaN(n) ? 'missing' : 'infinite';
+  } else if (typeof v === 'string') {
+    const n = parseNumberText(v);
+    if (Number.isFinite(n)) return n;
+    kind = Number.isNaN(n) ? describeNonNumberText(v) : 'infinite';
+  }
+  if (kind === 'missing' || (kind === 'infinite' && isScore)) return NaN;
+  throw new InputError(`a ${isScore ? '' : 'finite '}number in column '${column}'`, file, undefined, String(v));
 }

@@ -158,3 +158,45 @@ async function* gunzipChunks(path: string, progress: { done: number }): AsyncGen
     raw.destroy();
   }
 }
+
+/**
+ * Calls `onLine` for each line (without its line end; a trailing CR is dropped), with the line's
+ * 1-based number and the byte offset of its first byte.
+ */
+export class LineSink implements RecordSink {
+  private line = 1;
+
+  constructor(private readonly onLine: (buf: Buffer, start: number, end: number, line: number, offset: number) => void) {}
+
+  feed(buf: Buffer, start: number, end: number, base: number, final: boolean): number {
+    let pos = start;
+    while (pos < end) {
+      let lineEnd = buf.indexOf(10, pos);
+      if (lineEnd < 0 || lineEnd >= end) {
+        if (!final) break;
+        lineEnd = end;
+      }
+      const contentEnd = lineEnd > pos && buf[lineEnd - 1] === 13 ? lineEnd - 1 : lineEnd;
+      this.onLine(buf, pos, contentEnd, this.line, base + pos);
+      pos = lineEnd + 1;
+      this.line++;
+    }
+    return Math.min(pos, end);
+  }
+}
+
+/** Splits buf[start, end) at runs of spaces and tabs; fills bounds and returns the field count (at most `max`+1). */
+export function splitWhitespace(buf: Buffer, start: number, end: number, starts: Int32Array, ends: Int32Array): number {
+  let n = 0;
+  let pos = start;
+  const max = starts.length;
+  while (pos < end) {
+    while (pos < end && (buf[pos] === 32 || buf[pos] === 9)) pos++;
+    if (pos >= end) break;
+    if (n === max) return n + 1;
+    starts[n] = pos;
+    while (pos < end && buf[pos] !== 32 && buf[pos] !== 9) pos++;
+    ends[n++] = pos;
+  }
+  return n;
+}
