@@ -22,8 +22,8 @@ export interface PumpOptions {
   onFirstBytes?: (head: Buffer) => void;
 }
 
-const PLAIN_CHUNK = 8 << 20;
-const GZIP_CHUNK = 1 << 20;
+/** Chunk sizes; tests shrink them to put record boundaries at every possible place. */
+export const sourceTuning = { plainChunkBytes: 8 << 20, gzipChunkBytes: 1 << 20 };
 
 export async function statStamp(path: string): Promise<FileStamp> {
   try {
@@ -82,7 +82,7 @@ export async function pumpText(path: string, sink: RecordSink, options: PumpOpti
   let nextBase = 0;
   let first = true;
   const progress = { done: 0 };
-  const chunks = gz ? gunzipChunks(path, progress) : plainChunks(path, options.chunkBytes ?? PLAIN_CHUNK, progress);
+  const chunks = gz ? gunzipChunks(path, progress) : plainChunks(path, options.chunkBytes ?? sourceTuning.plainChunkBytes, progress);
   for await (const chunk of chunks) {
     throwIfCancelled(options.signal);
     let buf = chunk;
@@ -144,7 +144,7 @@ async function* plainChunks(path: string, chunkBytes: number, progress: { done: 
 
 async function* gunzipChunks(path: string, progress: { done: number }): AsyncGenerator<Buffer> {
   const raw = createReadStream(path, { highWaterMark: 1 << 20 });
-  const gunzip = createGunzip({ chunkSize: GZIP_CHUNK });
+  const gunzip = createGunzip({ chunkSize: Math.max(64, sourceTuning.gzipChunkBytes) });
   raw.on('data', (d) => {
     progress.done += d.length;
   });
