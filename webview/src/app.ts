@@ -1,0 +1,323 @@
+/**
+ * The shell: tabs, the loading / error / file-gone panels, the status line, and the routing of host
+ * state to the screens. Single-run and compare mode share the bundle; the host's state says which.
+ */
+import type { CompareOverviewModel, ExportViewParams, HostToView, OverviewModel, ViewRequests, ViewState, ViewToHost } from '../../extension/protocol/messages';
+import { RequestClient } from '../../extension/protocol/request';
+import { formatCount } from './model/format';
+import { CompareScreen } from './screens/compare';
+import { DeltasScreen } from './screens/deltas';
+import { DetailScreen } from './screens/detail';
+import { MovementScreen } from './screens/movement';
+import { OverviewScreen } from './screens/overview';
+import { SegmentsScreen } from './screens/segments';
+import { WorstScreen } from './screens/worst';
+import type { AppContext } from './ui/context';
+import { clear, el, icon } from './ui/dom';
+
+type TabName = 'overview' | 'worst' | 'detail' | 'segments' | 'compare' | 'deltas' | 'movement';
+
+const TAB_LABELS: Record<TabName, { label: string; icon: string }> = {
+  overview: { label: 'Overview', icon: 'dashboard' },
+  worst: { label: 'Worst queries', icon: 'list-ordered' },
+  detail: { label: 'Query detail', icon: 'list-tree' },
+  segments: { label: 'Segments', icon: 'group-by-ref-type' },
+  compare: { label: 'A vs B', icon: 'diff' },
+  deltas: { label: 'Per-query Δ', icon: 'arrow-swap' },
+  movement: { label: 'Movement', icon: 'git-compare' },
+};
+const SINGLE_TABS: TabName[] = ['overview', 'worst', 'detail', 'segments'];
+const COMPARE_TABS: TabName[] = ['compare', 'deltas', 'movement', 'detail', 'segments'];
+
+interface SavedState {
+  readonly tab?: TabName;
+  readonly query?: string | null;
+}
+
+export class App implements AppContext {
+  private readonly client: RequestClient<ViewRequests>;
+  private readonly root = el('div', { id: 'gl-root' });
+  private readonly fileLabel = el('span', { className: 'gl-file' });
+  private readonly tabBar = el('div', { className: 'gl-tabs', attrs: { role: 'tablist', 'aria-label': 'Views' } });
+  private readonly loading = el('div', { id: 'gl-loading', className: 'gl-state', attrs: { role: 'status', 'aria-live': 'polite' } });
+  private readonly errorPanel = el('div', { id: 'gl-error', className: 'gl-state', attrs: { role: 'alert' } });
+  private readonly vanished = el('div', { id: 'gl-vanished', className: 'gl-state', attrs: { role: 'alert' } });
+  private readonly panels = el('div', { className: 'gl-panels' });
+  private readonly status = el('div', { className: 'gl-statusline', attrs: { role: 'status', 'aria-live': 'polite' } });
+  private readonly panelByTab = new Map<TabName, HTMLElement>();
+  private tabs: TabName[] = [];
+  private tab: TabName = 'overview';
+  private mode: 'single' | 'compare' | undefined;
+  private selected: string | null = null;
+  private overviewModel: OverviewModel | undefined;
+  private compareModel: CompareOverviewModel | undefined;
+  private restored: SavedState | undefined;
+
+  private readonly overview = new OverviewScreen(this);
+  private readonly worst = new WorstScreen(this);
+  private readonly detail: DetailScreen;
+  private readonly segments = new SegmentsScreen(this);
+  private readonly compare = new CompareScreen(this);
+  private readonly deltas = new DeltasScreen(this);
+  private readonly movement: MovementScreen;
+
+  constructor(private readonly api: VsCodeWebviewApi) {
+    this.client = new RequestClient<ViewRequests>((m) => this.post(m as ViewToHost), 60_000);
+    this.detail = new DetailScreen(this, {
+      metricKeys: () => (this.mode === 'compare' ? this.compareModel?.metrics.map((m) => m.key) : this.overviewModel?.metrics.map((m) => m.key)) ?? [],
+      conventionsSummary: () => (this.mode === 'compare' ? this.compareModel?.conventions.summary : this.overviewModel?.conventions.summary) ?? '',
+      compareMode: () => this.mode === 'compare',
+    });
+    this.movement = new MovementScreen(this, () => this.compareModel?.metrics[this.compareModel.headline]?.label ?? '');
+    this.restored = (api.getState() as SavedState | undefined) ?? undefined;
+    this.errorPanel.hidden = true;
+    this.vanished.hidden = true;
+    this.panels.hidden = true;
+    this.setLoading('Waiting for the extension…', null);
+    this.root.append(el('div', { className: 'gl-topbar' }, this.tabBar, el('span', { className: 'gl-spacer' }), this.fileLabel), this.loading, this.errorPanel, this.vanished, this.panels, this.status);
+    this.tabBar.addEventListener('keydown', (e) => this.onTabKey(e));
+  }
+
+  mount(parent: HTMLElement): void {
+    parent.appendChild(this.root);
+    window.addEventListener('message', (e: MessageEvent) => this.onMessage(e.data as HostToView));
+    this.post({ kind: 'ready' });
+  }
+
+  // ---- AppContext ------------------------------------------------------------------------------
+
+  request<K extends keyof ViewRequests>(method: K, params: ViewRequests[K]['params']): Promise<ViewRequests[K]['result']> {
+    return this.client.request(method, params);
+  }
+
+  openQuery(query: string, tab?: 'detail' | 'movement'): void {
+    const target: TabName = tab ?? (this.mode === 'compare' ? 'movement' : 'detail');
+    this.selected = query;
+    this.post({ kind: 'selection', query });
+    this.selectTab(target);
+    if (target === 'movement') void this.movement.show(query);
+    else void this.detail.show(query);
+    this.save();
+  }
+
+  selectedQuery(): string | null {
+    return this.selected;
+  }
+
+  exportTable(params: ExportViewParams): void {
+    this.request('exportView', params).then(
+      (r) => this.notify(r.done ? `Exported to ${r.target ?? 'file'}.` : 'Export cancelled.'),
+      (e: Error) => this.notify(`Export failed: ${e.message}`, true),
+    );
+  }
+
+  copyQuery(query: string, run?: 'a' | 'b'): void {
+    this.request('copyQueryJson', { query, run }).then(
+      (r) => this.notify(r.copied ? `Copied ${query} as JSON.` : 'Nothing was copied.'),
+      (e: Error) => this.notify(`Copy failed: ${e.message}`, true),
+    );
+  }
+
+  notify(text: string, isError = false): void {
+    this.status.textContent = text;
+    this.status.classList.toggle('gl-worse', isError);
+  }
+
+  // ---- host messages ---------------------------------------------------------------------------
+
+  private post(message: ViewToHost): void {
+    this.api.postMessage(message);
+  }
+
+  private onMessage(message: HostToView): void {
+    if (!message || typeof message !== 'object') return;
+    if (message.kind === 'response') {
+      this.client.handleMessage(message);
+      return;
+    }
+    if (message.kind === 'showQuery') {
+      this.openQuery(message.query);
+      return;
+    }
+    if (message.kind === 'state') {
+      try {
+        this.onState(message.state);
+      } catch (e) {
+        // A rendering bug must not leave a blank editor: say what happened.
+        this.showError(`The view could not display this result: ${(e as Error).message}`);
+      }
+    }
+  }
+
+  private onState(state: ViewState): void {
+    switch (state.status) {
+      case 'loading': {
+        const pct = state.fraction === null ? '' : ` ${Math.round(state.fraction * 100)}%`;
+        this.setLoading(`${state.message}${pct}`, state.fraction, state.label);
+        return;
+      }
+      case 'error':
+        this.showError(state.message);
+        return;
+      case 'vanished':
+        this.show('vanished');
+        clear(this.vanished);
+        this.vanished.append(icon('warning'), el('div', {}, el('strong', { text: 'The file is gone. ' }), el('span', { text: `${state.path} was deleted or moved; the view will update if it comes back.` })));
+        return;
+      case 'loaded':
+      case 'reloaded': {
+        const keep = state.status === 'reloaded' && this.mode === state.mode;
+        if (state.mode === 'single') this.loadSingle(state.overview, keep);
+        else this.loadCompare(state.compare, keep);
+        this.show('content');
+        return;
+      }
+    }
+  }
+
+  private loadSingle(model: OverviewModel, keep: boolean): void {
+    const first = this.mode === undefined;
+    this.mode = 'single';
+    this.overviewModel = model;
+    this.compareModel = undefined;
+    this.fileLabel.textContent = `${model.file.name} — ${formatCount(model.queryCount)} queries`;
+    this.fileLabel.title = model.file.path;
+    this.buildTabs(SINGLE_TABS, { worst: formatCount(model.queryCount) });
+    this.overview.render(model);
+    this.worst.setModel(model, keep);
+    this.segments.configure({ compare: false, columns: model.segmentColumns, metrics: model.metrics, headline: model.headline, conventionsSummary: model.conventions.summary }, keep);
+    this.afterLoad(keep, first, 'overview');
+  }
+
+  private loadCompare(model: CompareOverviewModel, keep: boolean): void {
+    const first = this.mode === undefined;
+    this.mode = 'compare';
+    this.compareModel = model;
+    this.overviewModel = undefined;
+    this.fileLabel.textContent = `${model.runA.name} ↔ ${model.runB.name}`;
+    this.fileLabel.title = `A: ${model.runA.path}\nB: ${model.runB.path}`;
+    this.buildTabs(COMPARE_TABS, { deltas: formatCount(model.pairedQueries) });
+    this.compare.render(model, keep);
+    this.deltas.setModel(model, keep);
+    this.segments.configure({ compare: true, columns: model.segmentColumns, metrics: model.metrics, headline: model.headline, conventionsSummary: model.conventions.summary }, keep);
+    this.afterLoad(keep, first, 'compare');
+  }
+
+  /** Keeps the tab and the selected query on a live refresh (or after the panel was re-created). */
+  private afterLoad(keep: boolean, first: boolean, home: TabName): void {
+    let tab: TabName = home;
+    let query: string | null = null;
+    if (keep) {
+      tab = this.tabs.includes(this.tab) ? this.tab : home;
+      query = this.selected;
+    } else if (first && this.restored) {
+      tab = this.restored.tab && this.tabs.includes(this.restored.tab) ? this.restored.tab : home;
+      query = this.restored.query ?? null;
+    }
+    this.restored = undefined;
+    this.selected = query;
+    this.detail.clear();
+    this.movement.clear();
+    if (query !== null) {
+      void this.detail.show(query);
+      if (this.mode === 'compare') void this.movement.show(query);
+    }
+    this.selectTab(tab);
+    this.save();
+  }
+
+  // ---- layout ----------------------------------------------------------------------------------
+
+  private setLoading(message: string, fraction: number | null, label?: string): void {
+    this.show('loading');
+    clear(this.loading);
+    const ring = document.createElement('vscode-progress-ring');
+    ring.setAttribute('aria-label', 'Computing');
+    this.loading.append(ring, el('div', {}, el('div', { text: message }), label ? el('div', { className: 'gl-muted', text: label }) : null));
+    if (fraction !== null) this.loading.setAttribute('aria-valuenow', String(Math.round(fraction * 100)));
+  }
+
+  private showError(message: string): void {
+    this.show('error');
+    clear(this.errorPanel);
+    this.errorPanel.append(icon('error'), el('div', {}, el('strong', { text: 'Gainline could not show this file.' }), el('div', { className: 'gl-error-message', text: message })));
+  }
+
+  private show(which: 'loading' | 'error' | 'vanished' | 'content'): void {
+    this.loading.hidden = which !== 'loading';
+    this.errorPanel.hidden = which !== 'error';
+    this.vanished.hidden = which !== 'vanished';
+    this.panels.hidden = which !== 'content';
+    this.tabBar.hidden = which !== 'content';
+  }
+
+  private buildTabs(names: TabName[], badges: Partial<Record<TabName, string>>): void {
+    this.tabs = names;
+    clear(this.tabBar);
+    clear(this.panels);
+    this.panelByTab.clear();
+    for (const name of names) {
+      const info = TAB_LABELS[name];
+      const tab = el('button', {
+        id: `gl-tab-${name}`,
+        className: 'gl-tab',
+        attrs: { type: 'button', role: 'tab', 'aria-controls': `gl-panel-${name}`, 'aria-selected': 'false', tabindex: -1 },
+      }, icon(info.icon), info.label);
+      const badge = badges[name];
+      if (badge) {
+        const b = document.createElement('vscode-badge');
+        b.textContent = badge;
+        tab.appendChild(b);
+      }
+      tab.addEventListener('click', () => this.selectTab(name));
+      this.tabBar.appendChild(tab);
+      const fill = name === 'worst' || name === 'deltas' || name === 'segments';
+      const panel = el('div', { id: `gl-panel-${name}`, className: `gl-panel${fill ? ' fill' : ''}`, attrs: { role: 'tabpanel', 'aria-labelledby': `gl-tab-${name}` } }, this.screenElement(name));
+      panel.hidden = true;
+      this.panels.appendChild(panel);
+      this.panelByTab.set(name, panel);
+    }
+  }
+
+  private screenElement(name: TabName): HTMLElement {
+    switch (name) {
+      case 'overview': return this.overview.element;
+      case 'worst': return this.worst.element;
+      case 'detail': return this.detail.element;
+      case 'segments': return this.segments.element;
+      case 'compare': return this.compare.element;
+      case 'deltas': return this.deltas.element;
+      case 'movement': return this.movement.element;
+    }
+  }
+
+  private selectTab(name: TabName): void {
+    if (!this.tabs.includes(name)) return;
+    this.tab = name;
+    for (const t of this.tabs) {
+      const header = this.tabBar.querySelector<HTMLElement>(`#gl-tab-${t}`);
+      header?.setAttribute('aria-selected', String(t === name));
+      header?.setAttribute('tabindex', t === name ? '0' : '-1');
+      const panel = this.panelByTab.get(t);
+      if (panel) panel.hidden = t !== name;
+    }
+    this.save();
+  }
+
+  private onTabKey(e: KeyboardEvent): void {
+    const i = this.tabs.indexOf(this.tab);
+    let next = -1;
+    if (e.key === 'ArrowRight') next = (i + 1) % this.tabs.length;
+    else if (e.key === 'ArrowLeft') next = (i - 1 + this.tabs.length) % this.tabs.length;
+    else if (e.key === 'Home') next = 0;
+    else if (e.key === 'End') next = this.tabs.length - 1;
+    if (next < 0) return;
+    e.preventDefault();
+    this.selectTab(this.tabs[next]!);
+    this.tabBar.querySelector<HTMLElement>(`#gl-tab-${this.tabs[next]}`)?.focus();
+  }
+
+  private save(): void {
+    this.api.setState({ tab: this.tab, query: this.selected } satisfies SavedState);
+  }
+}

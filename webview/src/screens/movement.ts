@@ -1,0 +1,182 @@
+/**
+ * How one query's ranking moved from run A to run B: both lists side by side with a line per item,
+ * each item's rank change, the pairs B fixed or introduced, and how each position's DCG
+ * contribution changed.
+ */
+import type { MovementView, QueryDetailView } from '../../../extension/protocol/messages';
+import { pairChanges, type PairChange } from '../model/compareStats';
+import { COLUMN_EXPLANATIONS } from '../model/explain';
+import { exactValue, formatCount, formatDelta, formatFixed, MISSING } from '../model/format';
+import type { AppContext } from '../ui/context';
+import { button, clear, el } from '../ui/dom';
+import { highlightItem, renderConnector, renderOrderList, type ConnectorLink } from '../ui/orderLists';
+import { staticTable } from '../ui/staticTable';
+
+const ROWS = 100;
+const PAIRS_LISTED = 50;
+
+export class MovementScreen {
+  readonly element = el('div', { id: 'gl-movement' });
+  private token = 0;
+  private selected: string | null = null;
+  private current: string | null = null;
+
+  constructor(private readonly ctx: AppContext, private readonly headlineLabel: () => string) {
+    this.empty();
+  }
+
+  get query(): string | null {
+    return this.current;
+  }
+
+  clear(): void {
+    this.token++;
+    this.current = null;
+    this.empty();
+  }
+
+  private empty(): void {
+    clear(this.element);
+    this.element.append(el('p', { className: 'gl-muted', text: 'Pick a query in the differences table or click a point of the scatter to see how its ranking moved.' }));
+  }
+
+  async show(query: string): Promise<void> {
+    const token = ++this.token;
+    if (query !== this.current) this.selected = null;
+    this.current = query;
+    this.element.setAttribute('aria-busy', 'true');
+    try {
+      const [movement, a, b] = await Promise.all([
+        this.ctx.request('queryMovement', { query }),
+        this.ctx.request('queryDetail', { query, run: 'a', maxPairs: 0 }).catch(() => null),
+        this.ctx.request('queryDetail', { query, run: 'b', maxPairs: 0 }).catch(() => null),
+      ]);
+      if (token !== this.token) return;
+      this.render(movement, a, b);
+    } catch (e) {
+      if (token !== this.token) return;
+      clear(this.element);
+      this.element.append(el('div', { id: 'gl-movement-query', text: query }), el('p', { className: 'gl-worse', attrs: { role: 'alert' }, text: `Could not load this query: ${(e as Error).message}` }));
+    } finally {
+      if (token === this.token) this.element.removeAttribute('aria-busy');
+    }
+  }
+
+  private render(m: MovementView, a: QueryDetailView | null, b: QueryDetailView | null): void {
+    clear(this.element);
+    const label = this.headlineLabel();
+    const delta = m.a !== null && m.b !== null ? m.b - m.a : null;
+    this.element.append(
+      el('div', { className: 'gl-detail-head' },
+        el('span', { id: 'gl-movement-query', className: 'gl-movement-query', text: m.query }),
+        el('span', { className: 'gl-chip', text: `${label} A ${m.a === null ? MISSING : formatFixed(m.a)}`, title: m.a === null ? 'not defined' : exactValue(m.a) }),
+        el('span', { className: 'gl-chip', text: `B ${m.b === null ? MISSING : formatFixed(m.b)}`, title: m.b === null ? 'not defined' : exactValue(m.b) }),
+        el('span', { className: `gl-chip ${delta === null ? '' : delta > 0 ? 'gl-better' : delta < 0 ? 'gl-worse' : ''}`, text: `Δ ${delta === null ? MISSING : formatDelta(delta)}`, title: 'B − A' })),
+      el('div', { className: 'gl-toolbar' },
+        button('Copy A as JSON', { icon: 'json', secondary: true, onClick: () => this.ctx.copyQuery(m.query, 'a') }),
+        button('Copy B as JSON', { icon: 'json', secondary: true, onClick: () => this.ctx.copyQuery(m.query, 'b') }),
+        button('Open in detail', { icon: 'list-ordered', secondary: true, title: 'Show this query’s detail (run A) with the ideal order', onClick: () => this.ctx.openQuery(m.query, 'detail') })),
+    );
+
+    const inA = m.rows.filter((r) => r.positionA !== null).sort((x, y) => x.positionA! - y.positionA!);
+    const inB = m.rows.filter((r) => r.positionB !== null).sort((x, y) => x.positionB! - y.positionB!);
+    const rowsShown = Math.min(ROWS, Math.max(inA.length, inB.length));
+    const contribA = new Map((a?.positions ?? []).map((p) => [p.position, p.contribution]));
+    const contribB = new Map((b?.positions ?? []).map((p) => [p.position, p.contribution]));
+    const grade = (v: number | null) => (v === null ? 'unjudged' : String(v));
+    const moved = (v: number | null) => (v === null ? 'new/gone' : v > 0 ? `↑${v}` : v < 0 ? `↓${-v}` : '=');
+    const maxChange = Math.max(1e-12, ...[...contribA.keys(), ...contribB.keys()].map((p) => Math.abs((contribB.get(p) ?? 0) - (contribA.get(p) ?? 0))));
+    const left = renderOrderList(
+      {
+        id: 'gl-movement-a',
+        label: 'Run A order',
+        headers: [
+          { text: 'Pos', title: 'Position in run A.', numeric: true },
+          { text: 'Item', title: 'Item id.' },
+          { text: 'Label', title: 'Graded relevance.', numeric: true },
+          { text: 'Moved', title: COLUMN_EXPLANATIONS['moved']!, numeric: true },
+          { text: 'Contr. A', title: 'DCG contribution of the item at this position in A (gain × discount).', numeric: true },
+          { text: 'Contr. B', title: 'DCG contribution of whatever item B puts at this same position.', numeric: true },
+          { text: 'Δ at position', title: 'Contribution in B minus contribution in A at this position: where B gains or loses DCG.' },
+        ],
+        rows: inA.slice(0, rowsShown).map((r) => {
+          const ca = contribA.get(r.positionA!);
+          const cb = contribB.get(r.positionA!);
+          const change = ca === undefined && cb === undefined ? null : (cb ?? 0) - (ca ?? 0);
+          return {
+            item: r.item,
+            cells: [
+              { text: String(r.positionA), numeric: true },
+              { text: r.item, title: r.item },
+              { text: grade(r.label), numeric: true },
+              { text: moved(r.moved), numeric: true, title: r.positionB === null ? 'Not ranked in B.' : `Position ${r.positionA} in A → ${r.positionB} in B` },
+              { text: ca === undefined ? MISSING : formatFixed(ca, 3), numeric: true, title: ca === undefined ? '' : exactValue(ca) },
+              { text: cb === undefined ? MISSING : formatFixed(cb, 3), numeric: true, title: cb === undefined ? '' : exactValue(cb) },
+              { text: change === null ? MISSING : formatDelta(change, 3), bar: change === null ? 0 : Math.abs(change) / maxChange, title: change === null ? '' : `${formatDelta(change)} (${change >= 0 ? 'B gains' : 'B loses'} here)` },
+            ],
+          };
+        }),
+      },
+      (item) => this.pick(item),
+    );
+    const right = renderOrderList(
+      {
+        id: 'gl-movement-b',
+        label: 'Run B order',
+        headers: [
+          { text: 'Pos', title: 'Position in run B.', numeric: true },
+          { text: 'Item', title: 'Item id.' },
+          { text: 'Label', title: 'Graded relevance.', numeric: true },
+          { text: 'Pos in A', title: 'Where run A ranked this item.', numeric: true },
+        ],
+        rows: inB.slice(0, rowsShown).map((r) => ({
+          item: r.item,
+          cells: [
+            { text: String(r.positionB), numeric: true },
+            { text: r.item, title: r.item },
+            { text: grade(r.label), numeric: true },
+            { text: r.positionA === null ? 'new' : String(r.positionA), numeric: true },
+          ],
+        })),
+      },
+      (item) => this.pick(item),
+    );
+    const links: ConnectorLink[] = m.rows
+      .filter((r) => r.positionA !== null && r.positionB !== null)
+      .map((r) => ({ item: r.item, position: r.positionA!, idealPosition: r.positionB!, gain: Math.max(0, r.label ?? 0) }));
+    this.element.append(
+      el('h2', { text: 'Run A beside run B' }),
+      el('div', { className: 'gl-legend' },
+        el('span', {}, el('span', { className: 'gl-swatch up' }), 'moved up in B'),
+        el('span', {}, el('span', { className: 'gl-swatch down' }), 'moved down in B'),
+        el('span', {}, el('span', { className: 'gl-swatch same' }), 'same position'),
+        el('span', { text: 'Stronger lines: higher grade.' })),
+      el('div', { className: 'gl-orders' }, left, el('div', {}, renderConnector(links, rowsShown, 'Lines joining each item’s position in A to its position in B')), right),
+    );
+    if (rowsShown < Math.max(inA.length, inB.length)) this.element.append(el('p', { className: 'gl-muted', text: `Showing the first ${rowsShown} positions of ${Math.max(inA.length, inB.length)}.` }));
+
+    const changes = pairChanges(m.rows);
+    const pairTable = (id: string, caption: string, pairs: PairChange[]) =>
+      pairs.length === 0
+        ? el('p', { id, className: 'gl-muted', text: 'None.' })
+        : staticTable({
+            id,
+            caption,
+            columns: [{ label: 'Better-graded item' }, { label: 'Worse-graded item' }],
+            rows: pairs.slice(0, PAIRS_LISTED).map((p) => [{ text: p.better, title: p.better }, { text: p.worse, title: p.worse }]),
+          });
+    this.element.append(
+      el('h2', { text: 'Pairs' }),
+      el('p', { className: 'gl-muted', text: `Inverted pairs (better-graded item ranked below a worse-graded one): ${formatCount(changes.invertedA)} in A, ${formatCount(changes.invertedB)} in B.${changes.notComparable > 0 ? ` ${formatCount(changes.notComparable)} pairs involve an item ranked in only one run and are not compared.` : ''}` }),
+      el('div', { className: 'gl-grid2' },
+        el('section', {}, el('h2', { className: 'gl-better', text: `Fixed by B (${formatCount(changes.fixed.length)})` }), pairTable('gl-pairs-fixed', 'Pairs inverted in A and in order in B', changes.fixed)),
+        el('section', {}, el('h2', { className: 'gl-worse', text: `Introduced by B (${formatCount(changes.introduced.length)})` }), pairTable('gl-pairs-introduced', 'Pairs in order in A and inverted in B', changes.introduced))),
+    );
+    highlightItem(this.element, this.selected);
+  }
+
+  private pick(item: string): void {
+    this.selected = this.selected === item ? null : item;
+    highlightItem(this.element, this.selected);
+  }
+}
