@@ -46,3 +46,9 @@ export function suggestedFileName(title: string, format: 'markdown' | 'csv'): st
       .slice(0, 80) || 'gainline-export';
   return `${stem}.${format === 'csv' ? 'csv' : 'md'}`;
 }
+
+/** "NDCG@10 0.6123" — four decimals like the overview; "—" when no query counted; "+" on gains when signed. */
+export function formatHeadline(label: string, value: number | null, signed = false): string {
+  if (value === null || !Number.isFinite(value)) return `${label} —`;
+  return `${label} ${signed && value > 0 ? '+' : ''}${value.toFixed(4)}`;
+}

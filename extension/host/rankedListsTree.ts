@@ -7,7 +7,7 @@ import { promises as fsp } from 'node:fs';
 import * as path from 'node:path';
 import * as vscode from 'vscode';
 import { evaluationSettings, type GainlineConfig } from './config';
-import { formatHeadline } from './statusBar';
+import { formatHeadline } from './exportTable';
 import { sourceFor } from './sources';
 import { LOAD_TIMEOUT_MS, type EngineWorker } from './workerHost';
 import { VIEW_TYPE } from './panels';

@@ -1,13 +1,7 @@
 /** The headline metric of the view in front, in the status bar; the tooltip names the conventions. */
 import * as vscode from 'vscode';
+import { formatHeadline } from './exportTable';
 import type { Headline } from './viewSession';
-
-/** "NDCG@10 0.6123" — four decimals like the overview; "—" when no query counted. */
-export function formatHeadline(label: string, value: number | null, signed = false): string {
-  if (value === null || !Number.isFinite(value)) return `${label} —`;
-  const text = value.toFixed(4);
-  return `${label} ${signed && value > 0 ? '+' : ''}${text}`;
-}
 
 export class HeadlineStatus implements vscode.Disposable {
   private readonly item = vscode.window.createStatusBarItem('gainline.headline', vscode.StatusBarAlignment.Right, 100);
