@@ -1,0 +1,147 @@
+/**
+ * Just enough of the `vscode` API for the host's view sessions to run in plain Node. Tests install it
+ * with `vi.mock('vscode', () => fake)` and drive webviews, watchers and progress by hand.
+ */
+import * as path from 'node:path';
+
+type Listener<T> = (value: T) => void;
+
+export class EventEmitter<T> {
+  private listeners = new Set<Listener<T>>();
+  readonly event = (listener: Listener<T>) => {
+    this.listeners.add(listener);
+    return { dispose: () => this.listeners.delete(listener) };
+  };
+  fire(value: T): void {
+    for (const l of [...this.listeners]) l(value);
+  }
+  dispose(): void {
+    this.listeners.clear();
+  }
+}
+
+export class Uri {
+  private constructor(readonly fsPath: string, readonly scheme = 'file') {}
+  static file(p: string): Uri {
+    return new Uri(p);
+  }
+  static joinPath(base: Uri, ...parts: string[]): Uri {
+    return new Uri(path.join(base.fsPath, ...parts));
+  }
+  toString(): string {
+    return `file://${this.fsPath}`;
+  }
+}
+
+export class RelativePattern {
+  constructor(readonly base: Uri, readonly pattern: string) {}
+}
+
+export class Selection {
+  constructor(readonly start: unknown, readonly end: unknown) {}
+}
+
+export class FakeWatcher {
+  readonly change = new EventEmitter<Uri>();
+  readonly create = new EventEmitter<Uri>();
+  readonly remove = new EventEmitter<Uri>();
+  readonly onDidChange = this.change.event;
+  readonly onDidCreate = this.create.event;
+  readonly onDidDelete = this.remove.event;
+  disposed = false;
+  constructor(readonly pattern: RelativePattern | string) {}
+  dispose(): void {
+    this.disposed = true;
+  }
+}
+
+export class FakeWebview {
+  readonly posted: any[] = [];
+  readonly incoming = new EventEmitter<unknown>();
+  readonly onDidReceiveMessage = this.incoming.event;
+  cspSource = 'fake-csp';
+  html = '';
+  options: unknown = {};
+  async postMessage(message: unknown): Promise<boolean> {
+    // Through JSON like the real webview transport, so NaN or Maps would show up as wrong values.
+    this.posted.push(JSON.parse(JSON.stringify(message)));
+    return true;
+  }
+  states(): any[] {
+    return this.posted.filter((m) => m.kind === 'state').map((m) => m.state);
+  }
+}
+
+export interface FakeState {
+  watchers: FakeWatcher[];
+  /** Set to cancel the next withProgress task right away. */
+  cancelNextProgress: boolean;
+  clipboard: string;
+  shownDocuments: { file: string; selection: Selection }[];
+  messages: string[];
+  quickPickAnswer: ((items: any[]) => any) | undefined;
+}
+
+export function createFakeVscode() {
+  const state: FakeState = { watchers: [], cancelNextProgress: false, clipboard: '', shownDocuments: [], messages: [], quickPickAnswer: undefined };
+  const api = {
+    EventEmitter,
+    Uri,
+    RelativePattern,
+    Selection,
+    ProgressLocation: { Notification: 15, Window: 10 },
+    ViewColumn: { Beside: -2, Active: -1 },
+    window: {
+      async withProgress(_options: unknown, task: (progress: unknown, token: unknown) => Promise<unknown>) {
+        const cancel = new EventEmitter<void>();
+        const token = { isCancellationRequested: false, onCancellationRequested: cancel.event };
+        const run = task({ report: () => undefined }, token);
+        if (state.cancelNextProgress) {
+          state.cancelNextProgress = false;
+          token.isCancellationRequested = true;
+          cancel.fire();
+        }
+        return run;
+      },
+      showInformationMessage: async (m: string) => void state.messages.push(m),
+      showWarningMessage: async (m: string) => void state.messages.push(m),
+      setStatusBarMessage: () => ({ dispose() {} }),
+      showQuickPick: async (items: any[]) => state.quickPickAnswer?.(items),
+      showOpenDialog: async () => undefined,
+      showSaveDialog: async () => undefined,
+      async showTextDocument(document: { file: string }, options: { selection: Selection }) {
+        state.shownDocuments.push({ file: document.file, selection: options.selection });
+      },
+    },
+    workspace: {
+      createFileSystemWatcher(pattern: RelativePattern | string) {
+        const w = new FakeWatcher(pattern);
+        state.watchers.push(w);
+        return w;
+      },
+      asRelativePath: (p: Uri | string) => path.basename(typeof p === 'string' ? p : p.fsPath),
+      async openTextDocument(uri: Uri) {
+        return {
+          file: uri.fsPath,
+          lineCount: 1_000_000,
+          lineAt: (i: number) => ({ range: { start: { line: i, character: 0 }, end: { line: i, character: 99 } } }),
+        };
+      },
+      fs: { writeFile: async () => undefined },
+    },
+    env: { clipboard: { writeText: async (t: string) => void (state.clipboard = t) } },
+  };
+  return { api, state };
+}
+
+/** A workspaceState-like memory. */
+export function memento(): { get<T>(key: string): T | undefined; update(key: string, value: unknown): Promise<void> } {
+  const values = new Map<string, unknown>();
+  return {
+    get: <T>(key: string) => values.get(key) as T | undefined,
+    update: async (key, value) => void values.set(key, value),
+  };
+}
+
+/** One instance per test file: the `vi.mock('vscode')` factory and the test share it. */
+export const shared = createFakeVscode();

@@ -1,0 +1,145 @@
+/**
+ * A view session end to end in plain Node: fake `vscode` (test/host/fakeVscode.ts), the real worker
+ * thread bundled from source. Checks the state flow the webview relies on: loading → loaded, requests
+ * answered, live reload after a file change (reloaded, selection kept), vanished, errors, cancel, reveal.
+ */
+import { mkdtempSync, unlinkSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import * as esbuild from 'esbuild';
+import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
+import { shared, memento, FakeWebview, Uri } from './fakeVscode';
+
+vi.mock('vscode', async () => (await import('./fakeVscode')).shared.api);
+
+const { ViewSession } = await import('../../extension/host/viewSession');
+const { EngineWorker } = await import('../../extension/host/workerHost');
+const { readConfig } = await import('../../extension/host/config');
+
+const dir = mkdtempSync(join(tmpdir(), 'gainline-session-'));
+const script = join(dir, 'engineWorker.js');
+let worker: InstanceType<typeof EngineWorker>;
+
+// "cordless drill 18v": grades by score order 1, 0 → NDCG@10 = 1 (hand-derived: the only relevant item is first).
+// After the rewrite the order is 0, 1 → DCG = 1/log2(3), ideal 1 → NDCG = 0.6309 (Järvelin & Kekäläinen 2002).
+const GOOD = 'query_id,item_id,label,score\ncordless drill 18v,drill-a,1,0.9\ncordless drill 18v,drill-b,0,0.1\n';
+const WORSE = 'query_id,item_id,label,score\ncordless drill 18v,drill-a,1,0.1\ncordless drill 18v,drill-b,0,0.9\n';
+
+beforeAll(async () => {
+  await esbuild.build({
+    entryPoints: ['extension/worker/engineWorker.ts'], outfile: script, bundle: true, platform: 'node', format: 'cjs',
+    target: 'es2022', logLevel: 'error',
+  });
+  worker = new EngineWorker(script);
+});
+afterAll(() => worker?.dispose());
+
+function open(file: string) {
+  const webview = new FakeWebview();
+  const session = new ViewSession(webview as never, { mode: 'single', uri: Uri.file(file) as never }, {
+    worker,
+    getConfig: () => readConfig(() => undefined),
+    memory: memento() as never,
+  });
+  const watcher = shared.state.watchers.at(-1)!;
+  return { webview, session, watcher };
+}
+
+async function until(check: () => boolean, what: string, ms = 10_000): Promise<void> {
+  const end = Date.now() + ms;
+  while (!check()) {
+    if (Date.now() > end) throw new Error(`timed out waiting for ${what}`);
+    await new Promise((r) => setTimeout(r, 10));
+  }
+}
+
+/** Sends a request envelope as the webview would and waits for its response. */
+async function ask(webview: FakeWebview, id: number, method: string, params: unknown): Promise<any> {
+  webview.incoming.fire({ kind: 'request', id, method, params });
+  await until(() => webview.posted.some((m) => m.kind === 'response' && m.id === id), `response ${id}`);
+  return webview.posted.find((m) => m.kind === 'response' && m.id === id);
+}
+
+describe('ViewSession', () => {
+  it('loads, answers pages, reloads after a change keeping the selection, then reports the file vanished', async () => {
+    const file = join(dir, 'live.csv');
+    writeFileSync(file, GOOD);
+    const { webview, session, watcher } = open(file);
+    await session.start();
+    const states = webview.states();
+    expect(states[0]).toMatchObject({ status: 'loading', mode: 'single' });
+    expect(states.at(-1)).toMatchObject({ status: 'loaded', mode: 'single' });
+    expect(states.at(-1).overview.metrics[0].mean).toBe(1);
+
+    // The webview (re)starts and asks for the current state.
+    webview.incoming.fire({ kind: 'ready' });
+    await until(() => webview.states().length > states.length, 'state after ready');
+    expect(webview.states().at(-1).status).toBe('loaded');
+
+    const page = await ask(webview, 1, 'queryPage', { offset: 0, limit: 10 });
+    expect(page).toMatchObject({ ok: true, result: { total: 1, rows: [{ query: 'cordless drill 18v' }] } });
+    webview.incoming.fire({ kind: 'selection', query: 'cordless drill 18v' });
+
+    // Rewrite the file: one debounced recompute however many change events arrive.
+    writeFileSync(file, WORSE);
+    const before = webview.states().length;
+    for (let i = 0; i < 5; i++) watcher.change.fire(Uri.file(file));
+    await until(() => webview.states().slice(before).some((s) => s.status === 'reloaded'), 'reloaded');
+    await new Promise((r) => setTimeout(r, 400));
+    const after = webview.states().slice(before);
+    expect(after.filter((s) => s.status === 'reloaded')).toHaveLength(1);
+    expect(after.some((s) => s.status === 'loading')).toBe(false); // no flash of the loading screen
+    expect(after.at(-1).overview.metrics[0].mean).toBeCloseTo(1 / Math.log2(3), 10);
+    expect(session.selection).toBe('cordless drill 18v');
+    expect(session.headline).toMatchObject({ label: 'NDCG@10', queries: 1 });
+
+    unlinkSync(file);
+    watcher.remove.fire(Uri.file(file));
+    expect(webview.states().at(-1)).toEqual({ status: 'vanished', path: file });
+    expect(session.headline).toBeUndefined();
+    session.dispose();
+    expect(watcher.disposed).toBe(true);
+  });
+
+  it('shows a reader error as one line', async () => {
+    const file = join(dir, 'broken.csv');
+    writeFileSync(file, 'query_id,item_id,label,score\nhammer,h1,1,not-a-number\n');
+    const { webview, session } = open(file);
+    await session.start();
+    const last = webview.states().at(-1);
+    expect(last.status).toBe('error');
+    expect(last.message).toContain('broken.csv');
+    expect(last.message).not.toContain('\n');
+    session.dispose();
+  });
+
+  it('Cancel in the progress notification ends in a clear state, not a hang', async () => {
+    const file = join(dir, 'cancel.csv');
+    writeFileSync(file, GOOD);
+    shared.state.cancelNextProgress = true;
+    const { webview, session } = open(file);
+    await session.start();
+    const last = webview.states().at(-1);
+    expect(last.status).toBe('error');
+    expect(last.message).toContain('cancelled');
+    session.dispose();
+  });
+
+  it('reveals a row at its line, and explains when the file has no lines', async () => {
+    const file = join(dir, 'reveal.csv');
+    writeFileSync(file, GOOD);
+    const { webview, session } = open(file);
+    await session.start();
+    const detail = await ask(webview, 7, 'queryDetail', { query: 'cordless drill 18v' });
+    const second = detail.result.positions[1];
+    const revealed = await ask(webview, 8, 'revealRow', { row: second.row });
+    expect(revealed.result).toEqual({ revealed: true, line: 3 });
+    expect(shared.state.shownDocuments.at(-1)).toMatchObject({ file, selection: { start: { line: 2 } } });
+    const failed = await ask(webview, 9, 'queryDetail', { query: 'no such query' });
+    expect(failed.ok).toBe(false);
+    expect(failed.error.message).toContain('no such query');
+    await ask(webview, 10, 'copyQueryJson', { query: 'cordless drill 18v' });
+    expect(JSON.parse(shared.state.clipboard).query).toBe('cordless drill 18v');
+    session.dispose();
+  });
+});
