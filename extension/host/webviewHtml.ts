@@ -53,7 +53,6 @@ export function webviewHtml(input: WebviewHtmlInput): string {
 <title>${escapeText(input.title)}</title>
 </head>
 <body data-mode="${attr(input.mode)}">
-<div id="gl-root"></div>
 <script nonce="${attr(nonce)}" src="${attr(input.scriptUri)}"></script>
 </body>
 </html>`;
