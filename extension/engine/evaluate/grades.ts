@@ -12,6 +12,10 @@ export class GradeIndex {
   rank = new Uint32Array(16);
   private sorted = new Float64Array(16);
 
+  /** Distinct grades in first-seen order while collecting (a handful in practice). */
+  private seen = new Float64Array(16);
+  private seenRank = new Uint32Array(16);
+
   build(grade: Float64Array, n: number): void {
     if (this.sorted.length < n) {
       const size = Math.max(n, this.sorted.length * 2);
@@ -20,6 +24,48 @@ export class GradeIndex {
       this.count = new Uint32Array(size);
       this.rank = new Uint32Array(size);
     }
+    if (!this.buildFew(grade, n)) this.buildMany(grade, n);
+  }
+
+  /**
+   * Few distinct grades (the usual 0..4 scale): a linear scan of a short list per item, then ranks from
+   * sorting that short list. Gives up beyond FEW distinct values.
+   */
+  private buildFew(grade: Float64Array, n: number): boolean {
+    const FEW = 16;
+    const seen = this.seen;
+    const rank = this.rank;
+    let distinct = 0;
+    for (let i = 0; i < n; i++) {
+      const g = grade[i]!;
+      let d = 0;
+      while (d < distinct && seen[d] !== g) d++;
+      if (d === distinct) {
+        if (distinct === FEW) return false;
+        seen[distinct++] = g;
+      }
+      rank[i] = d; // first-seen id for now
+    }
+    // Rank of each first-seen id = number of distinct values below it.
+    const values = this.values;
+    const count = this.count;
+    for (let d = 0; d < distinct; d++) {
+      let below = 0;
+      for (let e = 0; e < distinct; e++) if (seen[e]! < seen[d]!) below++;
+      this.seenRank[d] = below;
+      values[below] = seen[d]!;
+    }
+    count.fill(0, 0, distinct);
+    for (let i = 0; i < n; i++) {
+      const r = this.seenRank[rank[i]!]!;
+      rank[i] = r;
+      count[r]!++;
+    }
+    this.distinct = distinct;
+    return true;
+  }
+
+  private buildMany(grade: Float64Array, n: number): void {
     const sorted = this.sorted.subarray(0, n);
     sorted.set(grade.subarray(0, n));
     sorted.sort();

@@ -29,7 +29,7 @@ export class QueryRanking {
   /** Items with a score (they occupy the first `scored` slots). */
   scored = 0;
 
-  // Ranked order: score descending, file order within equal scores, unscored last.
+  // Ranked order: score descending, file order within equal scores, unscored last (score −Infinity here).
   row = new Uint32Array(0);
   score = new Float64Array(0);
   grade = new Float64Array(0);
@@ -83,43 +83,45 @@ export class QueryRanking {
     const scores = dump.score;
     const labels = dump.label;
     const key = this.key;
+    const localRow = this.localRow;
+    const localGrade = this.localGrade;
+    const idx = this.idx;
     let n = 0;
-    let duplicates = 0;
     for (let p = from; p < to; p++) {
       const r = rows[p]!;
       const item = items[r]!;
-      if (marks[item] === stamp) {
-        duplicates++;
-        continue;
-      }
+      if (marks[item] === stamp) continue;
       marks[item] = stamp;
       const s = scores[r]!;
       key[n] = s === s ? s : -Infinity;
-      this.localRow[n] = r;
-      this.localGrade[n] = labels[r]!;
-      this.idx[n] = n;
+      localRow[n] = r;
+      localGrade[n] = labels[r]!;
+      idx[n] = n;
       n++;
     }
     this.n = n;
-    this.duplicates = duplicates;
-    this.sorter.sortDescending(this.idx, key, n);
+    this.duplicates = to - from - n;
+    this.sorter.sortDescending(idx, key, n);
 
+    const row = this.row;
+    const score = this.score;
+    const grade = this.grade;
+    const unjudged = this.unjudged;
     let missing = 0;
     let unjudgedRows = 0;
     for (let i = 0; i < n; i++) {
-      const j = this.idx[i]!;
-      const r = this.localRow[j]!;
-      this.row[i] = r;
-      const s = scores[r]!;
-      this.score[i] = s;
-      if (s !== s) missing++;
-      const g = this.localGrade[j]!;
+      const j = idx[i]!;
+      row[i] = localRow[j]!;
+      const s = key[j]!;
+      score[i] = s;
+      if (s === -Infinity) missing++;
+      const g = localGrade[j]!;
       if (g === g) {
-        this.grade[i] = g;
-        this.unjudged[i] = 0;
+        grade[i] = g;
+        unjudged[i] = 0;
       } else {
-        this.grade[i] = 0;
-        this.unjudged[i] = 1;
+        grade[i] = 0;
+        unjudged[i] = 1;
         unjudgedRows++;
       }
     }
