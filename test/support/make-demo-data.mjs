@@ -85,13 +85,16 @@ function writeQueryList(file, queries) {
 
 /**
  * SVMlight with the ranking features a learner would see (label qid:N index:value ... # item), and
- * a side file with one model score per line in the same order.
+ * a side file with one model score per line in the same order. SVMlight has no item ids (the
+ * comment is for people), so repeated rows could not be told apart; they are left out.
  */
 function writeSvmlight(file, scoresFile, rows) {
   const qidOf = new Map();
   const lines = [];
   const scores = [];
   for (const r of rows) {
+    // Feature files come from a join, not from a retrying logger: no repeated rows here.
+    if (r.duplicate) continue;
     if (!qidOf.has(r.query.id)) qidOf.set(r.query.id, qidOf.size + 1);
     const titleMatch = r.item.family === r.query.family ? (r.item.variant === r.query.variant ? 1 : 0.5) : 0;
     const features = [titleMatch, r.item.popularity.toFixed(4), (r.item.title.length / 40).toFixed(4)];
