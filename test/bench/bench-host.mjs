@@ -78,9 +78,16 @@ const quantile = (xs, q) => [...xs].sort((a, b) => a - b)[Math.min(xs.length - 1
 
 console.log(`host responsiveness on ${file} (load average ${loadavg().map((x) => x.toFixed(1)).join(' ')}, ${cpus().length} cores)`);
 
+// 0. Control: the same probe on an idle main thread, so scheduler noise on a busy machine is not
+// mistaken for blocking by the host.
+let probe = stallProbe();
+await new Promise((r) => setTimeout(r, 3000));
+const idleStall = probe.stop();
+console.log(`  idle main thread, 3 s: longest stall ${fmt(idleStall.longestMs)} (p99 ${fmt(idleStall.p99Ms)})`);
+
 // 1. Worker path: load + overview + first page, with the main thread probed throughout.
 const worker = new host.EngineWorker(workerScript);
-let probe = stallProbe();
+probe = stallProbe();
 let started = performance.now();
 const overview = await worker.call('load', { session: 'bench', source: { path: file }, settings }, { timeoutMs: host.LOAD_TIMEOUT_MS });
 const firstPage = await worker.call('queryPage', { session: 'bench', offset: 0, limit: 100 });
