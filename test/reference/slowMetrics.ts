@@ -79,7 +79,7 @@ function idealOf(list: readonly Placed[], c: Conventions, k: number): number {
 /** Plain value of one metric on one fully ordered list (no-relevant policy not applied). */
 function plain(list: readonly Placed[], spec: MetricSpec, c: Conventions, gmax: number): number[] {
   const k = spec.k ?? Infinity;
-  const rel = list.map((p) => (p.grade >= c.relevantFrom ? 1 : 0));
+  const rel: number[] = list.map((p) => (p.grade >= c.relevantFrom ? 1 : 0));
   const R = rel.reduce((a, b) => a + b, 0);
   switch (spec.name) {
     case 'ndcg':
