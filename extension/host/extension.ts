@@ -37,7 +37,8 @@ export function activate(context: vscode.ExtensionContext): void {
       supportsMultipleEditorsPerDocument: true,
       webviewOptions: { enableFindWidget: true },
     }),
-    vscode.window.registerTreeDataProvider('gainline.rankedLists', tree),
+    // Several dumps can be selected in the view and compared as a pair.
+    vscode.window.createTreeView('gainline.rankedLists', { treeDataProvider: tree, canSelectMany: true, showCollapseAll: false }),
     registry.onDidChangeActive((session) => status.show(session?.headline)),
     ...registerCommands({
       tree,

@@ -14,6 +14,7 @@ import { VIEW_TYPE } from './panels';
 
 type Headline =
   | { readonly state: 'pending' }
+  | { readonly state: 'large'; readonly bytes: number }
   | { readonly state: 'done'; readonly text: string; readonly tooltip: string }
   | { readonly state: 'failed'; readonly message: string };
 
@@ -27,6 +28,9 @@ export class DumpItem extends vscode.TreeItem {
     if (!headline || headline.state === 'pending') {
       this.description = '…';
       this.tooltip = relative;
+    } else if (headline.state === 'large') {
+      this.description = `${(headline.bytes / 2 ** 20).toFixed(0)} MB — open to compute`;
+      this.tooltip = `${relative}\nLarge files are not read in the background; open the file to see its metrics.`;
     } else if (headline.state === 'done') {
       this.description = headline.text;
       this.tooltip = `${relative}\n${headline.tooltip}`;
@@ -38,6 +42,8 @@ export class DumpItem extends vscode.TreeItem {
 }
 
 const MAX_FILES = 500;
+/** Background headlines skip files this large: reading them would hold hundreds of MB for a tree label. */
+const MAX_BACKGROUND_BYTES = 256 * 2 ** 20;
 
 export class RankedListsTree implements vscode.TreeDataProvider<DumpItem>, vscode.Disposable {
   private readonly changed = new vscode.EventEmitter<DumpItem | undefined>();
@@ -133,6 +139,8 @@ export class RankedListsTree implements vscode.TreeDataProvider<DumpItem>, vscod
   private async compute(uri: vscode.Uri): Promise<Headline> {
     const config = this.getConfig();
     try {
+      const bytes = (await fsp.stat(uri.fsPath)).size;
+      if (bytes > MAX_BACKGROUND_BYTES) return { state: 'large', bytes };
       const remembered = this.memory.get<string>(`gainline.judgments:${uri.fsPath}`);
       const choice = await sourceFor(uri.fsPath, vscode.workspace.asRelativePath(uri, false), config, remembered);
       if (choice.judgmentChoices) return { state: 'failed', message: 'Run file: open it once to choose its judgments file.' };
