@@ -26,11 +26,10 @@ export function packageVsix({ log = console.log } = {}) {
   if (!existsSync(entry)) throw new Error(`extension entry ${manifest.main} is missing: run "npm run build" first`);
   const out = join(root, `${manifest.name}-${manifest.version}.vsix`);
   // Relative README links stay relative: the README is read from inside the package.
-  const packArgs = ['--no-dependencies', '--no-rewrite-relative-links'];
-  const listed = vsce(['ls', ...packArgs]).split('\n').map((l) => l.trim()).filter(Boolean);
+  const listed = vsce(['ls', '--no-dependencies']).split('\n').map((l) => l.trim()).filter(Boolean);
   const stray = listed.filter((file) => !allowed.some((pattern) => pattern.test(file)));
   if (stray.length > 0) throw new Error(`files outside the allowed set would be packaged:\n  ${stray.join('\n  ')}`);
-  vsce(['package', ...packArgs, '--out', out]);
+  vsce(['package', '--no-dependencies', '--no-rewrite-relative-links', '--out', out]);
   const kib = (statSync(out).size / 1024).toFixed(0);
   log(`[package] ${listed.length} files, ${kib} KiB`);
   return out;

@@ -1,0 +1,63 @@
+// Builds the workspace the end-to-end run opens: a fresh copy of demo/ (so the
+// demo folder is never modified) plus an e2e/ folder with files made for the
+// scenarios: a live copy to rewrite, a dump whose ids contain HTML, and a
+// malformed dump. All queries are in the invented hardware-store scenario.
+import { copyFileSync, cpSync, mkdirSync, rmSync, writeFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { E2E_DIR, REPO_ROOT } from '../support/code-server-install.mjs';
+
+export const HOSTILE_ITEM = '<img src=x onerror=alert(1)>';
+export const HOSTILE_QUERY = '<b>claw hammer</b> <script>alert(2)</script>';
+
+function csvField(text) {
+  return /[",\n]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text;
+}
+
+function hostileDump() {
+  const rows = [['query', 'product_id', 'grade', 'score']];
+  // The hostile query ranks its best item last so it is the worst query and
+  // the first row of the worst-queries table.
+  rows.push([HOSTILE_QUERY, HOSTILE_ITEM, '3', '0.10']);
+  rows.push([HOSTILE_QUERY, 'SKU-HAM-002', '0', '0.90']);
+  rows.push([HOSTILE_QUERY, 'SKU-HAM-003', '1', '0.50']);
+  rows.push(['wood screws 4x40', 'SKU-SCR-440', '3', '0.95']);
+  rows.push(['wood screws 4x40', 'SKU-SCR-435', '1', '0.40']);
+  rows.push(['wood screws 4x40', 'SKU-NAIL-01', '0', '0.20']);
+  return rows.map((r) => r.map(csvField).join(',')).join('\n') + '\n';
+}
+
+function malformedDump() {
+  // A score that is not a number, in a file that otherwise looks right.
+  return [
+    'query,product_id,grade,score',
+    'cordless drill 18v,SKU-DRL-018,2,0.81',
+    'cordless drill 18v,SKU-DRL-012,1,very high',
+    'cordless drill 18v,SKU-BAT-005,0,0.12',
+  ].join('\n') + '\n';
+}
+
+/** Creates .e2e/workspace afresh and returns the paths the scenarios use. */
+export function makeWorkspace() {
+  const root = join(E2E_DIR, 'workspace');
+  rmSync(root, { recursive: true, force: true });
+  cpSync(join(REPO_ROOT, 'demo'), root, { recursive: true });
+  const e2e = join(root, 'e2e');
+  mkdirSync(e2e, { recursive: true });
+  const files = {
+    root,
+    runA: join(root, 'runs', 'model-a.csv'),
+    runB: join(root, 'runs', 'model-b.csv'),
+    live: join(e2e, 'live-run.csv'),
+    hostile: join(e2e, 'hostile-ids.csv'),
+    malformed: join(e2e, 'broken-scores.csv'),
+  };
+  copyFileSync(files.runA, files.live);
+  writeFileSync(files.hostile, hostileDump());
+  writeFileSync(files.malformed, malformedDump());
+  return files;
+}
+
+/** Workspace-relative path, as typed into Quick Open. */
+export function relative(files, absolute) {
+  return absolute.slice(files.root.length + 1);
+}
