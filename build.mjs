@@ -12,6 +12,8 @@ const entries = [
     banner: { js: '#!/usr/bin/env node' } },
   // Engine worker thread used by the CLI and the extension host for parallel reading.
   { ...common, entryPoints: ['extension/worker/engineWorker.ts'], outfile: 'dist/engineWorker.js', platform: 'node', format: 'cjs' },
+  // Parse worker: one byte range of a large CSV/TSV per thread (found next to the bundle that starts it).
+  { ...common, entryPoints: ['extension/engine/readers/parseWorker.ts'], outfile: 'dist/parseWorker.js', platform: 'node', format: 'cjs' },
 ];
 if (existsSync('extension/host/extension.ts')) {
   entries.push({ ...common, entryPoints: ['extension/host/extension.ts'], outfile: 'dist/extension.js', platform: 'node',

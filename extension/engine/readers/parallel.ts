@@ -1,12 +1,203 @@
+/**
+ * Reads a large quote-free CSV/TSV file with several worker threads: the file is cut at newlines
+ * into one byte range per thread, each worker parses its range into its own columns and pools,
+ * and the ranges are merged in file order. Ids are re-interned range by range in local first-seen
+ * order, which reproduces exactly the ids a single pass would give. Any quote byte in the file
+ * makes the split unsafe; the caller then falls back to one thread.
+ */
+import { existsSync, promises as fsp } from 'node:fs';
+import { availableParallelism } from 'node:os';
+import { join } from 'node:path';
+import { Worker } from 'node:worker_threads';
+import { CancelledError, InputError } from '../errors';
+import type { BytePool } from '../model/bytePool';
 import type { RankedDump } from '../model/dump';
+import { RowColumns } from './columns';
+import { DelimitedParser } from './delimited';
 import type { ReadOptions } from './index';
+import type { PackedPool, RangeResult, RangeTask } from './rangeParse';
+import { assertTextHead, checkUnchanged, sourceTuning, statStamp, throwIfCancelled } from './source';
 
-export async function shouldParseInParallel(_path: string, threads: number | undefined): Promise<number> {
-  return threads ?? 1;
+/** Below this size one thread is faster than starting workers. */
+const PARALLEL_FROM_BYTES = 48 << 20;
+const MAX_THREADS = 4;
+
+declare const __dirname: string | undefined;
+let workerScript: string | undefined = typeof __dirname === 'string' ? join(__dirname, 'parseWorker.js') : undefined;
+
+/** Where the bundled parse worker lives (next to the bundle by default; tests point at a fresh build). */
+export function setParseWorkerScript(path: string | undefined): void {
+  workerScript = path;
 }
 
-export async function readParallelDelimited(
-  _path: string, _format: 'csv' | 'tsv', _delimiter: number, _threads: number, _options: ReadOptions,
-): Promise<RankedDump | undefined> {
-  return undefined;
+export async function shouldParseInParallel(path: string, threads: number | undefined): Promise<number> {
+  if (threads !== undefined) return Math.max(1, Math.min(16, Math.floor(threads)));
+  const { size } = await statStamp(path);
+  return size < PARALLEL_FROM_BYTES ? 1 : Math.min(MAX_THREADS, availableParallelism());
+}
+
+/** Returns undefined when the file cannot be split safely (quotes, no workers available). */
+export async function readParallelDelimited(path: string, format: 'csv' | 'tsv', delimiter: number, threads: number,
+  options: ReadOptions): Promise<RankedDump | undefined> {
+  if (workerScript === undefined || !existsSync(workerScript)) return undefined;
+  const stamp = await statStamp(path);
+  const header = await readHeader(path, delimiter, options);
+  if (header === undefined) return undefined;
+  const bounds = await splitPoints(path, header.end, stamp.size, threads);
+  const tasks: RangeTask[] = bounds.slice(0, -1).map((start, k) => ({
+    path, start, end: bounds[k + 1]!, delimiter, names: header.names, columns: options.columns, chunkBytes: sourceTuning.plainChunkBytes,
+  }));
+  const results = await runWorkers(workerScript, tasks, stamp.size, options);
+  if (results.some((r) => r.kind === 'quoted')) return undefined;
+  const lineOffsets = [1];
+  for (const r of results) lineOffsets.push(lineOffsets.at(-1)! + (r.kind === 'rows' ? r.lines : 0));
+  const failed = results.findIndex((r) => r.kind === 'error');
+  if (failed >= 0) {
+    const e = results[failed] as Extract<RangeResult, { kind: 'error' }>;
+    throw new InputError(e.expected, e.file, e.line === undefined ? undefined : e.line + lineOffsets[failed]!, e.found);
+  }
+  const rows = merge(results as Extract<RangeResult, { kind: 'rows' }>[], lineOffsets, header.parser.columns!);
+  if (rows.count === 0) throw new InputError('at least one data row after the header', path, 2);
+  await checkUnchanged(path, stamp);
+  rows.countGaps();
+  options.onProgress?.(1);
+  return rows.finish(path, format, stamp);
+}
+
+/** Parses the header line on this thread, so role errors read as they do single-threaded. */
+async function readHeader(path: string, delimiter: number, options: ReadOptions) {
+  const fh = await fsp.open(path, 'r');
+  try {
+    let head = Buffer.alloc(0);
+    for (;;) {
+      const more = Buffer.alloc(64 * 1024);
+      const { bytesRead } = await fh.read(more, 0, more.length, head.length);
+      head = Buffer.concat([head, more.subarray(0, bytesRead)]);
+      if (head.indexOf(10) >= 0 || bytesRead === 0) break;
+    }
+    assertTextHead(head, path);
+    const lf = head.indexOf(10);
+    const bom = head[0] === 0xef && head[1] === 0xbb && head[2] === 0xbf ? 3 : 0;
+    if (lf < 0 || head.subarray(0, lf).includes(34)) return undefined;
+    const parser = new DelimitedParser({ file: path, delimiter, columns: options.columns });
+    parser.feed(head, bom, lf + 1, 0, false);
+    if (parser.headerNames === undefined || parser.columns === undefined) return undefined;
+    return { names: parser.headerNames, end: lf + 1, parser };
+  } finally {
+    await fh.close();
+  }
+}
+
+/** Range starts: evenly spaced, each moved just past the next newline. The last entry is the size. */
+async function splitPoints(path: string, from: number, size: number, parts: number): Promise<number[]> {
+  const points = [from];
+  const fh = await fsp.open(path, 'r');
+  try {
+    const probe = Buffer.alloc(64 * 1024);
+    for (let k = 1; k < parts; k++) {
+      let at = Math.max(points.at(-1)!, from + Math.floor(((size - from) * k) / parts) - 1);
+      let found = -1;
+      while (found < 0 && at < size) {
+        const { bytesRead } = await fh.read(probe, 0, probe.length, at);
+        if (bytesRead === 0) break;
+        const lf = probe.subarray(0, bytesRead).indexOf(10);
+        if (lf >= 0) found = at + lf + 1;
+        else at += bytesRead;
+      }
+      points.push(found < 0 ? size : found);
+    }
+  } finally {
+    await fh.close();
+  }
+  points.push(size);
+  return points;
+}
+
+function runWorkers(script: string, tasks: RangeTask[], size: number, options: ReadOptions): Promise<RangeResult[]> {
+  throwIfCancelled(options.signal);
+  return new Promise((resolve, reject) => {
+    const results: (RangeResult | undefined)[] = tasks.map(() => undefined);
+    const done = tasks.map(() => 0);
+    const workers = tasks.map((task) => new Worker(script, { workerData: task }));
+    let pending = tasks.length;
+    let settled = false;
+    const finish = (err?: Error) => {
+      if (settled) return;
+      settled = true;
+      options.signal?.removeEventListener('abort', onAbort);
+      for (const w of workers) void w.terminate();
+      if (err) reject(err);
+      else resolve(results as RangeResult[]);
+    };
+    const onAbort = () => finish(new CancelledError());
+    options.signal?.addEventListener('abort', onAbort);
+    workers.forEach((worker, k) => {
+      worker.on('message', (msg: { progress?: number; result?: RangeResult; failure?: string }) => {
+        if (msg.progress !== undefined) {
+          done[k] = msg.progress;
+          if (size > 0) options.onProgress?.(Math.min(1, done.reduce((a, b) => a + b, 0) / size));
+        } else if (msg.result !== undefined) {
+          results[k] = msg.result;
+          if (--pending === 0) finish();
+        } else if (msg.failure !== undefined) {
+          finish(new Error(`parse worker failed: ${msg.failure}`));
+        }
+      });
+      worker.on('error', (err) => finish(err));
+      worker.on('exit', (code) => {
+        if (results[k] === undefined) finish(new Error(`parse worker exited with code ${code}`));
+      });
+    });
+  });
+}
+
+function merge(parts: Extract<RangeResult, { kind: 'rows' }>[], lineOffsets: number[], headerRows: RowColumns): RowColumns {
+  const rows = new RowColumns(headerRows.segmentNames, 16);
+  rows.notes.messages.push(...headerRows.notes.messages);
+  const total = parts.reduce((sum, p) => sum + p.count, 0);
+  const remap = (pool: BytePool, packed: PackedPool): Uint32Array => {
+    const ids = new Uint32Array(packed.starts.length - 1);
+    for (let i = 0; i < ids.length; i++) ids[i] = pool.intern(packed.bytes, packed.starts[i]!, packed.starts[i + 1]!);
+    return ids;
+  };
+  // Interning range by range, each in its own first-seen order, keeps the single-pass id order.
+  const queryMaps = parts.map((p) => remap(rows.queries, p.queries));
+  const itemMaps = parts.map((p) => remap(rows.items, p.items));
+  const segmentMaps = parts.map((p) => p.segmentPools.map((packed, k) => remap(rows.segmentPools[k]!, packed)));
+  rows.query = concatMapped(parts.map((p) => p.query), queryMaps, total);
+  rows.item = concatMapped(parts.map((p) => p.item), itemMaps, total);
+  rows.segmentIds = headerRows.segmentNames.map((_, k) => concatMapped(parts.map((p) => p.segmentIds[k]!), segmentMaps.map((m) => m[k]!), total));
+  rows.label = concat(parts.map((p) => p.label), new Float64Array(total));
+  rows.score = concat(parts.map((p) => p.score), new Float64Array(total));
+  rows.offset = concat(parts.map((p) => p.offset), new Float64Array(total));
+  rows.line = new Uint32Array(total);
+  let at = 0;
+  parts.forEach((p, k) => {
+    const shift = lineOffsets[k]!;
+    for (let i = 0; i < p.count; i++) rows.line[at + i] = p.line[i]! + shift;
+    at += p.count;
+  });
+  rows.count = total;
+  rows.capacity = total;
+  return rows;
+}
+
+function concatMapped(columns: Uint32Array[], maps: Uint32Array[], total: number): Uint32Array {
+  const out = new Uint32Array(total);
+  let at = 0;
+  columns.forEach((ids, k) => {
+    const map = maps[k]!;
+    for (let i = 0; i < ids.length; i++) out[at + i] = map[ids[i]!]!;
+    at += ids.length;
+  });
+  return out;
+}
+
+function concat<T extends Float64Array>(columns: T[], out: T): T {
+  let at = 0;
+  for (const c of columns) {
+    out.set(c, at);
+    at += c.length;
+  }
+  return out;
 }

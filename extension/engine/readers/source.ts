@@ -18,8 +18,6 @@ export interface PumpOptions {
   signal?: AbortSignal;
   onProgress?: (fraction: number) => void;
   chunkBytes?: number;
-  /** Called with the first bytes (after the BOM) before any record is fed; may throw. */
-  onFirstBytes?: (head: Buffer) => void;
 }
 
 /** Chunk sizes; tests shrink them to put record boundaries at every possible place. */
@@ -77,14 +75,35 @@ export function assertTextHead(head: Uint8Array, file: string): void {
 export async function pumpText(path: string, sink: RecordSink, options: PumpOptions = {}): Promise<FileStamp> {
   const stamp = await statStamp(path);
   const gz = await isGzip(path);
-  let carry: Buffer | undefined;
-  let carryBase = 0;
-  let nextBase = 0;
-  let first = true;
   const progress = { done: 0 };
-  const chunks = gz ? gunzipChunks(path, progress) : plainChunks(path, options.chunkBytes ?? sourceTuning.plainChunkBytes, progress);
+  const chunks = gz ? gunzipChunks(path, progress) : plainChunks(path, options.chunkBytes ?? sourceTuning.plainChunkBytes, progress, 0, Infinity);
+  await feedChunks(chunks, sink, 0, path, options.signal, () => {
+    if (stamp.size > 0) options.onProgress?.(Math.min(1, progress.done / stamp.size));
+  });
+  await checkUnchanged(path, stamp);
+  options.onProgress?.(1);
+  return stamp;
+}
+
+/**
+ * Streams bytes [start, end) of a plain file through `sink`; `start` must be a record start.
+ * Used by parse workers, each taking one newline-aligned range of a large file.
+ */
+export async function pumpRange(path: string, start: number, end: number, sink: RecordSink,
+  onBytes: (done: number) => void, chunkBytes = sourceTuning.plainChunkBytes): Promise<void> {
+  const progress = { done: 0 };
+  await feedChunks(plainChunks(path, chunkBytes, progress, start, end), sink, start, undefined, undefined, () => onBytes(progress.done - start));
+}
+
+/** Feeds chunks to the sink, carrying an unfinished record over to the next chunk. */
+async function feedChunks(chunks: AsyncIterable<Buffer>, sink: RecordSink, startBase: number, fileStart: string | undefined,
+  signal: AbortSignal | undefined, afterChunk: () => void): Promise<void> {
+  let carry: Buffer | undefined;
+  let carryBase = startBase;
+  let nextBase = startBase;
+  let first = true;
   for await (const chunk of chunks) {
-    throwIfCancelled(options.signal);
+    throwIfCancelled(signal);
     let buf = chunk;
     let base = nextBase;
     if (carry !== undefined && carry.length > 0) {
@@ -93,37 +112,30 @@ export async function pumpText(path: string, sink: RecordSink, options: PumpOpti
     }
     nextBase = base + buf.length;
     let start = 0;
-    if (first) {
-      first = false;
-      assertTextHead(buf, path);
+    if (first && fileStart !== undefined) {
+      assertTextHead(buf, fileStart);
       if (buf[0] === 0xef && buf[1] === 0xbb && buf[2] === 0xbf) start = 3;
-      options.onFirstBytes?.(buf.subarray(start));
     }
+    first = false;
     const consumed = sink.feed(buf, start, buf.length, base, false);
     carry = buf.subarray(consumed);
     carryBase = base + consumed;
-    if (stamp.size > 0) options.onProgress?.(Math.min(1, progress.done / stamp.size));
+    afterChunk();
   }
-  throwIfCancelled(options.signal);
-  if (first) {
-    options.onFirstBytes?.(Buffer.alloc(0));
-    sink.feed(Buffer.alloc(0), 0, 0, 0, true);
-  } else {
-    const rest = carry ?? Buffer.alloc(0);
-    sink.feed(rest, 0, rest.length, carryBase, true);
-  }
-  await checkUnchanged(path, stamp);
-  options.onProgress?.(1);
-  return stamp;
+  throwIfCancelled(signal);
+  const rest = carry ?? Buffer.alloc(0);
+  sink.feed(rest, 0, rest.length, carryBase, true);
 }
 
-async function* plainChunks(path: string, chunkBytes: number, progress: { done: number }): AsyncGenerator<Buffer> {
+async function* plainChunks(path: string, chunkBytes: number, progress: { done: number }, from: number, to: number): AsyncGenerator<Buffer> {
   const fh = await fsp.open(path, 'r');
   try {
-    let position = 0;
+    let position = from;
     const readAt = async (at: number): Promise<Buffer> => {
-      const buf = Buffer.allocUnsafe(chunkBytes);
-      const { bytesRead } = await fh.read(buf, 0, chunkBytes, at);
+      const length = Math.min(chunkBytes, to - at);
+      if (length <= 0) return Buffer.alloc(0);
+      const buf = Buffer.allocUnsafe(length);
+      const { bytesRead } = await fh.read(buf, 0, length, at);
       return buf.subarray(0, bytesRead);
     };
     // Keep one read in flight while the caller parses the previous chunk.

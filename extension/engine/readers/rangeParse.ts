@@ -1,0 +1,97 @@
+/**
+ * Parses one newline-aligned byte range of a large CSV/TSV file into its own columns and pools.
+ * Runs inside a parse worker; the main thread merges ranges in file order (see parallel.ts).
+ * A range holding any quote byte is refused, because a quoted newline makes byte-range splitting
+ * unsafe; the caller then reads the whole file on one thread.
+ */
+import { InputError } from '../errors';
+import { DelimitedParser } from './delimited';
+import type { ColumnRoles } from './roles';
+import { pumpRange, type RecordSink } from './source';
+
+export interface RangeTask {
+  readonly path: string;
+  readonly start: number;
+  readonly end: number;
+  readonly delimiter: number;
+  readonly names: string[];
+  readonly columns?: ColumnRoles;
+  readonly chunkBytes: number;
+}
+
+export interface PackedPool {
+  readonly bytes: Uint8Array;
+  readonly starts: Uint32Array;
+}
+
+export type RangeResult =
+  | {
+      readonly kind: 'rows';
+      readonly count: number;
+      /** Newlines consumed in the range: the next range starts that many lines later. */
+      readonly lines: number;
+      readonly query: Uint32Array;
+      readonly item: Uint32Array;
+      readonly label: Float64Array;
+      readonly score: Float64Array;
+      /** Line numbers counted from 1 at the range start. */
+      readonly line: Uint32Array;
+      readonly offset: Float64Array;
+      readonly segmentIds: Uint32Array[];
+      readonly queries: PackedPool;
+      readonly items: PackedPool;
+      readonly segmentPools: PackedPool[];
+    }
+  | { readonly kind: 'quoted' }
+  | { readonly kind: 'error'; readonly expected: string; readonly file?: string; readonly line?: number; readonly found?: string };
+
+class QuotedRange extends Error {}
+
+/** Refuses any chunk with a quote byte before handing it to the parser. */
+class QuoteGuard implements RecordSink {
+  constructor(private readonly inner: RecordSink) {}
+
+  feed(buf: Buffer, start: number, end: number, base: number, final: boolean): number {
+    const quote = buf.indexOf(34, start);
+    if (quote >= 0 && quote < end) throw new QuotedRange();
+    return this.inner.feed(buf, start, end, base, final);
+  }
+}
+
+export async function parseRange(task: RangeTask, onBytes: (done: number) => void): Promise<RangeResult> {
+  const parser = new DelimitedParser({ file: task.path, delimiter: task.delimiter, columns: task.columns, expectedBytes: task.end - task.start },
+    { names: task.names });
+  try {
+    await pumpRange(task.path, task.start, task.end, new QuoteGuard(parser), onBytes, task.chunkBytes);
+  } catch (err) {
+    if (err instanceof QuotedRange) return { kind: 'quoted' };
+    if (err instanceof InputError) return { kind: 'error', expected: err.expected, file: err.file, line: err.line, found: err.found };
+    throw err;
+  }
+  const rows = parser.columns!;
+  const n = rows.count;
+  return {
+    kind: 'rows',
+    count: n,
+    lines: parser.line - 1,
+    query: rows.query.subarray(0, n),
+    item: rows.item.subarray(0, n),
+    label: rows.label.subarray(0, n),
+    score: rows.score.subarray(0, n),
+    line: rows.line.subarray(0, n),
+    offset: rows.offset.subarray(0, n),
+    segmentIds: rows.segmentIds.map((ids) => ids.subarray(0, n)),
+    queries: rows.queries.exportPacked(),
+    items: rows.items.exportPacked(),
+    segmentPools: rows.segmentPools.map((p) => p.exportPacked()),
+  };
+}
+
+/** The buffers of a result, to transfer rather than copy between threads. */
+export function transferList(result: RangeResult): ArrayBuffer[] {
+  if (result.kind !== 'rows') return [];
+  const views: ArrayBufferView[] = [result.query, result.item, result.label, result.score, result.line, result.offset, ...result.segmentIds,
+    result.queries.bytes, result.queries.starts, result.items.bytes, result.items.starts,
+    ...result.segmentPools.flatMap((p) => [p.bytes, p.starts])];
+  return views.map((v) => v.buffer as ArrayBuffer);
+}

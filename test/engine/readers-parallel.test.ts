@@ -1,0 +1,108 @@
+/**
+ * Multi-threaded reading must give exactly the single-thread result: same ids, rows, lines, offsets,
+ * segments, notes, and the same error (with the same line) for bad input. The parse worker is
+ * bundled fresh from source into a temp folder, as the build does into dist/.
+ */
+import { join } from 'node:path';
+import { build } from 'esbuild';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { CancelledError, InputError } from '../../extension/engine/errors';
+import type { RankedDump } from '../../extension/engine/model/dump';
+import { readDump } from '../../extension/engine/readers/index';
+import { readParallelDelimited, setParseWorkerScript } from '../../extension/engine/readers/parallel';
+import { sourceTuning } from '../../extension/engine/readers/source';
+import { seededRandom, TempDir } from './fixtures/readers/tempFiles';
+
+const tmp = new TempDir();
+
+beforeAll(async () => {
+  const script = join(tmp.path, 'parseWorker.js');
+  await build({ entryPoints: ['extension/engine/readers/parseWorker.ts'], bundle: true, platform: 'node', format: 'cjs', outfile: script, logLevel: 'warning' });
+  setParseWorkerScript(script);
+});
+afterAll(() => {
+  setParseWorkerScript(undefined);
+  tmp.remove();
+});
+
+function randomPlainCsv(seed: number, rows: number): string {
+  const rnd = seededRandom(seed);
+  const eol = rnd() < 0.5 ? '\r\n' : '\n';
+  let out = 'query_id\titem_id\tlabel\tscore\tdevice\n'.replace(/\t/g, ',').replace('\n', eol);
+  for (let r = 0; r < rows; r++) {
+    if (rnd() < 0.01) out += eol;
+    const label = rnd() < 0.05 ? '' : String(Math.floor(rnd() * 5));
+    const score = rnd() < 0.03 ? 'NaN' : (rnd() * 20 - 10).toFixed(Math.floor(rnd() * 9));
+    out += `cordless drill ${Math.floor(r / 37)},sku-${Math.floor(rnd() * 5000)},${label},${score},${rnd() < 0.5 ? 'mobile' : 'desktop'}${eol}`;
+  }
+  return out;
+}
+
+function expectSameDump(a: RankedDump, b: RankedDump): void {
+  expect(b.rowCount).toBe(a.rowCount);
+  for (const key of ['query', 'item', 'label', 'score', 'line', 'offset'] as const) {
+    expect(Array.from(b[key]), key).toEqual(Array.from(a[key]));
+  }
+  expect(b.queries.size).toBe(a.queries.size);
+  expect(b.items.size).toBe(a.items.size);
+  for (let i = 0; i < a.items.size; i++) expect(b.items.get(i)).toBe(a.items.get(i));
+  for (let i = 0; i < a.queries.size; i++) expect(b.queries.get(i)).toBe(a.queries.get(i));
+  expect(b.segments.map((s) => s.name)).toEqual(a.segments.map((s) => s.name));
+  b.segments.forEach((s, k) => expect(Array.from(s.ofRow)).toEqual(Array.from(a.segments[k]!.ofRow)));
+  expect(b.notes).toEqual(a.notes);
+}
+
+describe('parallel parsing', () => {
+  it.each([[11, 2], [12, 3], [13, 4]])('seed %i with %i threads matches one thread', async (seed, threads) => {
+    const path = tmp.file(`par-${seed}.csv`, randomPlainCsv(seed, 20_000));
+    const saved = sourceTuning.plainChunkBytes;
+    sourceTuning.plainChunkBytes = 10_000 + seed;
+    try {
+      const single = await readDump(path, { threads: 1 });
+      // Called directly so a silent fall-back to one thread cannot pass for parallel parsing.
+      const multi = await readParallelDelimited(path, 'csv', 44, threads, {});
+      expect(multi).toBeDefined();
+      expectSameDump(single, multi!);
+      expectSameDump(single, await readDump(path, { threads }));
+    } finally {
+      sourceTuning.plainChunkBytes = saved;
+    }
+  });
+
+  it('falls back to one thread for a file with quotes and still matches', async () => {
+    const text = randomPlainCsv(21, 5000) + '"quoted, query",sku-1,1,0.5,mobile\n';
+    const path = tmp.file('par-quoted.csv', text);
+    expect(await readParallelDelimited(path, 'csv', 44, 3, {})).toBeUndefined();
+    expectSameDump(await readDump(path, { threads: 1 }), await readDump(path, { threads: 3 }));
+  });
+
+  it('handles more threads than lines', async () => {
+    const path = tmp.file('par-tiny.csv', 'qid,item_id,label,score\nq,a,1,2\n');
+    expectSameDump(await readDump(path, { threads: 1 }), await readDump(path, { threads: 8 }));
+  });
+
+  it('reports a bad row in a later range with the same message and line', async () => {
+    const lines = randomPlainCsv(31, 9000).split('\n');
+    lines[7000] = lines[7000]!.replace(/,(\d),/, ',four,');
+    const path = tmp.file('par-bad.csv', lines.join('\n'));
+    const single = await readDump(path, { threads: 1 }).then(() => undefined, (e: unknown) => e);
+    const multi = await readDump(path, { threads: 4 }).then(() => undefined, (e: unknown) => e);
+    expect(single).toBeInstanceOf(InputError);
+    expect((multi as InputError).message).toBe((single as InputError).message);
+    expect((single as InputError).line).toBe(7001);
+  });
+
+  it('stops workers when cancelled', async () => {
+    const path = tmp.file('par-cancel.csv', randomPlainCsv(41, 50_000));
+    const controller = new AbortController();
+    const saved = sourceTuning.plainChunkBytes;
+    sourceTuning.plainChunkBytes = 4096;
+    try {
+      const err = await readDump(path, { threads: 2, signal: controller.signal, onProgress: () => controller.abort() })
+        .then(() => undefined, (e: unknown) => e);
+      expect(err).toBeInstanceOf(CancelledError);
+    } finally {
+      sourceTuning.plainChunkBytes = saved;
+    }
+  });
+});
