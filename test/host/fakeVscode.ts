@@ -72,6 +72,22 @@ export class FakeWebview {
   }
 }
 
+export class TreeItem {
+  resourceUri: Uri | undefined;
+  contextValue: string | undefined;
+  command: unknown;
+  description: string | undefined;
+  tooltip: string | undefined;
+  constructor(readonly label: string, readonly collapsibleState?: number) {}
+}
+
+export class TabInputText {
+  constructor(readonly uri: Uri) {}
+}
+export class TabInputCustom {
+  constructor(readonly uri: Uri, readonly viewType: string) {}
+}
+
 export interface FakeState {
   watchers: FakeWatcher[];
   /** Set to cancel the next withProgress task right away. */
@@ -80,18 +96,37 @@ export interface FakeState {
   shownDocuments: { file: string; selection: Selection }[];
   messages: string[];
   quickPickAnswer: ((items: any[]) => any) | undefined;
+  commands: Map<string, (...args: unknown[]) => unknown>;
+  executed: { id: string; args: unknown[] }[];
+  activeTab: unknown;
 }
 
 export function createFakeVscode() {
-  const state: FakeState = { watchers: [], cancelNextProgress: false, clipboard: '', shownDocuments: [], messages: [], quickPickAnswer: undefined };
+  const state: FakeState = { watchers: [], cancelNextProgress: false, clipboard: '', shownDocuments: [], messages: [], quickPickAnswer: undefined,
+    commands: new Map(), executed: [], activeTab: undefined };
   const api = {
     EventEmitter,
     Uri,
     RelativePattern,
     Selection,
+    TreeItem,
+    TabInputText,
+    TabInputCustom,
+    TreeItemCollapsibleState: { None: 0 },
+    commands: {
+      registerCommand(id: string, handler: (...args: unknown[]) => unknown) {
+        state.commands.set(id, handler);
+        return { dispose: () => state.commands.delete(id) };
+      },
+      async executeCommand(id: string, ...args: unknown[]) {
+        state.executed.push({ id, args });
+      },
+    },
     ProgressLocation: { Notification: 15, Window: 10 },
     ViewColumn: { Beside: -2, Active: -1 },
     window: {
+      activeTextEditor: undefined,
+      tabGroups: { get activeTabGroup() { return { activeTab: state.activeTab }; } },
       async withProgress(_options: unknown, task: (progress: unknown, token: unknown) => Promise<unknown>) {
         const cancel = new EventEmitter<void>();
         const token = { isCancellationRequested: false, onCancellationRequested: cancel.event };

@@ -1,0 +1,85 @@
+/** The command table: arguments from the Explorer (uri, uris), the tree, the palette (quick picks). */
+import { describe, expect, it, vi } from 'vitest';
+import { shared, TabInputCustom, Uri } from './fakeVscode';
+
+vi.mock('vscode', async () => (await import('./fakeVscode')).shared.api);
+
+const { registerCommands, COMMANDS } = await import('../../extension/host/commands');
+const { DumpItem } = await import('../../extension/host/rankedListsTree');
+const { VIEW_TYPE } = await import('../../extension/host/panels');
+
+const runA = Uri.file('/w/runs/model-a.csv');
+const runB = Uri.file('/w/runs/model-b.csv');
+const runC = Uri.file('/w/runs/model-c.csv');
+
+function setup() {
+  const compared: [string, string][] = [];
+  let refreshed = 0;
+  let invalidated = 0;
+  const tree = { listFiles: async () => [runA, runB, runC], invalidate: () => void invalidated++ };
+  shared.state.commands.clear();
+  registerCommands({
+    tree: tree as never,
+    openCompare: (a, b) => void compared.push([a.fsPath, b.fsPath]),
+    refreshAll: () => void refreshed++,
+  });
+  const run = (id: string, ...args: unknown[]) => shared.state.commands.get(id)!(...args);
+  return { compared, run, counts: () => ({ refreshed, invalidated }) };
+}
+
+describe('command table', () => {
+  it('registers exactly the commands the manifest contributes', async () => {
+    const manifest = (await import('../../package.json')).default as { contributes: { commands: { command: string }[] } };
+    setup();
+    expect([...shared.state.commands.keys()].sort()).toEqual(manifest.contributes.commands.map((c) => c.command).sort());
+    expect(Object.keys(COMMANDS).sort()).toEqual([...shared.state.commands.keys()].sort());
+  });
+
+  it('compares the two files selected in the Explorer', async () => {
+    const { compared, run } = setup();
+    await run('gainline.compareRuns', runA, [runA, runB]);
+    expect(compared).toEqual([[runA.fsPath, runB.fsPath]]);
+  });
+
+  it('refuses three selected files instead of guessing', async () => {
+    const { compared, run } = setup();
+    await run('gainline.compareRuns', runA, [runA, runB, runC]);
+    expect(compared).toEqual([]);
+    expect(shared.state.messages.at(-1)).toContain('exactly two');
+  });
+
+  it('from one tree item, asks for the other run and does not offer the same file', async () => {
+    const { compared, run } = setup();
+    let offered: string[] = [];
+    shared.state.quickPickAnswer = (items) => {
+      offered = items.map((i) => i.label);
+      return items.find((i) => i.label === 'model-c.csv');
+    };
+    await run('gainline.compareRuns', new DumpItem(runB as never, undefined));
+    expect(offered).not.toContain('model-b.csv');
+    expect(offered).toContain('model-a.csv');
+    expect(compared).toEqual([[runB.fsPath, runC.fsPath]]);
+  });
+
+  it('from the palette, dismissing the first pick compares nothing', async () => {
+    const { compared, run } = setup();
+    shared.state.quickPickAnswer = () => undefined;
+    await run('gainline.compareRuns');
+    expect(compared).toEqual([]);
+  });
+
+  it('inspect opens the given file, or the file in front, with the custom editor', async () => {
+    const { run } = setup();
+    await run('gainline.inspect', runA);
+    expect(shared.state.executed.at(-1)).toEqual({ id: 'vscode.openWith', args: [runA, VIEW_TYPE] });
+    shared.state.activeTab = { input: new TabInputCustom(runB, 'x') };
+    await run('gainline.inspect');
+    expect(shared.state.executed.at(-1)).toEqual({ id: 'vscode.openWith', args: [runB, VIEW_TYPE] });
+  });
+
+  it('refresh re-reads open views and the tree', async () => {
+    const { run, counts } = setup();
+    await run('gainline.refreshRankedLists');
+    expect(counts()).toEqual({ refreshed: 1, invalidated: 1 });
+  });
+});
