@@ -20,12 +20,23 @@ export type GainConvention =
 export type TieConvention = 'average' | 'pessimistic' | 'optimistic' | 'file-order';
 
 /**
- * What a query with no relevant item scores on metrics normalised by the ideal (NDCG, AP, RR, recall, ERR
- * normalised variants): skip it from means (default; counted and reported), score 0, or score 1.
+ * What a query with no relevant item (no item of grade >= relevantFrom, or no rows at all) scores.
+ * - skip (default): the query is left out of every metric's mean (NaN in every column, `skipped` = 1) and
+ *   counted, so all means of one evaluation cover the same queries.
+ * - zero / one: the metrics normalised by what the query could have achieved (NDCG, AP, RR, recall) score
+ *   0 / 1. DCG, ERR, precision and RBP have no such normalisation and keep the value their grades give (0
+ *   when no grade is positive); they are counted as usual.
+ * Kendall's tau is NaN whenever it is undefined (all scores or all grades of the query equal) and then left
+ * out of its mean, whatever the policy. NDCG is NaN when a query has relevant items whose gains are all 0
+ * (possible only with a gain map).
  */
 export type NoRelevantPolicy = 'skip' | 'zero' | 'one';
 
-/** Items with a NaN score are placed after all scored items, in file order (counted and reported). */
+/**
+ * Fixed rules, not options: items with a NaN score are placed after all scored items, in file order, never
+ * tied with each other for the list metrics (for tau they form one class below every scored item); unjudged
+ * rows (NaN label) count as grade 0; of duplicate (query, item) rows only the first is ranked. All counted.
+ */
 export interface Conventions {
   readonly gain: GainConvention;
   readonly ties: TieConvention;

@@ -2,6 +2,8 @@
  * Pairwise measures of one query: Kendall's tau-b between scores and grades, the number of discordant
  * pairs (pairwise inversions) and what they cost in NDCG.
  *
+ * A query with fewer than two items, or with all scores or all grades equal, has tau NaN (undefined).
+ *
  * O(n log G) for n items and G distinct grades: walk the list one score class at a time (a class = items
  * with the same score; items without a score form one last class), and query Fenwick trees indexed by grade
  * rank for the items already passed, which all have strictly higher scores. This is Knight's (1966)
