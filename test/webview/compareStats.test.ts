@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { benjaminiHochberg, effectSizeDz, pairChanges, type MovementItem } from '../../webview/src/model/compareStats';
+import { benjaminiHochberg, effectSizeDz } from '../../webview/src/model/compareStats';
 import { runPython, seededRandom } from './pythonReference';
 
 describe('benjaminiHochberg', () => {
@@ -51,49 +51,5 @@ describe('effectSizeDz', () => {
     expect(effectSizeDz(ref.t, a.length)).toBeCloseTo(ref.dz, 10);
     expect(effectSizeDz(null, 10)).toBeNull();
     expect(effectSizeDz(2, 1)).toBeNull();
-  });
-});
-
-describe('pairChanges', () => {
-  const item = (id: string, label: number | null, a: number | null, b: number | null): MovementItem => ({ item: id, label, positionA: a, positionB: b });
-
-  it('finds fixed and introduced pairs (hand cases)', () => {
-    // A ranks x (grade 0) above y (2) and z (1): pairs (y,x) and (z,x) are inverted, (y,z) is in order.
-    // B ranks y, z, x: nothing inverted, so both of A's inversions are fixed.
-    const c = pairChanges([item('x', 0, 1, 3), item('y', 2, 2, 1), item('z', 1, 3, 2)]);
-    expect(c).toMatchObject({ invertedA: 2, invertedB: 0, introduced: [], notComparable: 0 });
-    expect(c.fixed).toEqual([
-      { better: 'y', worse: 'x' },
-      { better: 'z', worse: 'x' },
-    ]);
-    // A: y, z, x (in order); B: z, y, x → the (y, z) pair is introduced.
-    const d = pairChanges([item('y', 2, 1, 2), item('z', 1, 2, 1), item('x', 0, 3, 3)]);
-    expect(d.introduced).toEqual([{ better: 'y', worse: 'z' }]);
-    expect(d.fixed).toEqual([]);
-  });
-
-  it('skips items missing from a run and counts unjudged as grade 0', () => {
-    const c = pairChanges([item('a', 1, 1, null), item('b', null, 2, 1), item('c', 3, 3, 2)]);
-    expect(c.notComparable).toBe(2); // a with b, a with c
-    expect(c.invertedA).toBe(1); // c (3) below b (unjudged = 0)
-    expect(c.fixed).toEqual([]);
-    expect(c.invertedB).toBe(1);
-  });
-
-  it('keeps invertedB − invertedA = introduced − fixed, and counts inversions like a brute-force discordance count (seeded)', () => {
-    const rand = seededRandom(21);
-    for (let t = 0; t < 60; t++) {
-      const n = 2 + Math.floor(rand() * 30);
-      const permA = Array.from({ length: n }, (_, i) => i + 1).sort(() => rand() - 0.5);
-      const permB = Array.from({ length: n }, (_, i) => i + 1).sort(() => rand() - 0.5);
-      const items = permA.map((pa, i) => item(`i${i}`, Math.floor(rand() * 4), pa, permB[i]!));
-      const c = pairChanges(items);
-      expect(c.invertedB - c.invertedA).toBe(c.introduced.length - c.fixed.length);
-      // Independent count: walk A's order top-down and count, for each item, better-graded items already passed below it.
-      const byA = [...items].sort((x, y) => x.positionA! - y.positionA!);
-      let slow = 0;
-      for (let i = 0; i < byA.length; i++) for (let j = i + 1; j < byA.length; j++) if ((byA[j]!.label ?? 0) > (byA[i]!.label ?? 0)) slow++;
-      expect(c.invertedA).toBe(slow);
-    }
   });
 });

@@ -67,5 +67,8 @@ describe('other formats', () => {
     expect(formatP(0.0312)).toBe('0.0312');
     expect(formatShare(0.1234)).toBe('12.3%');
     expect(formatShare(NaN)).toBe(MISSING);
+    expect(formatShare(0.0001)).toBe('<0.1%');
+    expect(formatShare(0)).toBe('0.0%');
+    expect(formatFixed(-0, 4)).toBe('0.0000');
   });
 });

@@ -80,6 +80,8 @@ export function formatP(p: number): string {
 /** A share in [0, 1] as a percentage with one decimal: 0.1234 → "12.3%". */
 export function formatShare(x: number): string {
   if (Number.isNaN(x)) return MISSING;
+  // A present but tiny share must not read as none.
+  if (x > 0 && x < 0.0005) return '<0.1%';
   return `${formatFixed(x * 100, 1)}%`;
 }
 

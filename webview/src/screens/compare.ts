@@ -80,7 +80,7 @@ export class CompareScreen {
       },
     });
     this.table.element.classList.add('auto');
-    this.table.element.style.height = `${(this.lines.length + 1) * 26 + 30}px`;
+    this.table.element.style.height = `${this.lines.length * 26 + 34}px`;
     this.element.append(
       el('h2', { text: 'Per metric' }),
       el('div', { className: 'gl-toolbar' }, adjustSelect.wrapper, el('span', { className: 'gl-spacer' }),

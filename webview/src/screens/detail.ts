@@ -171,7 +171,7 @@ export class DetailScreen {
           { text: 'Item', title: 'Item id.' },
           { text: 'Label', title: 'Graded relevance.', numeric: true },
           { text: 'Gain', title: COLUMN_EXPLANATIONS['gain']!, numeric: true },
-          { text: 'Model pos.', title: 'Where the model ranked this item.', numeric: true },
+          { text: 'Model', title: 'Where the model ranked this item.', numeric: true },
         ],
         rows: d.ideal.slice(0, rowsShown).map((q) => ({
           item: q.item,

@@ -3,8 +3,7 @@
  * each item's rank change, the pairs B fixed or introduced, and how each position's DCG
  * contribution changed.
  */
-import type { MovementView, QueryDetailView } from '../../../extension/protocol/messages';
-import { pairChanges, type PairChange } from '../model/compareStats';
+import type { MovementView, PairChangeView } from '../../../extension/protocol/messages';
 import { COLUMN_EXPLANATIONS } from '../model/explain';
 import { exactValue, formatCount, formatDelta, formatFixed, MISSING } from '../model/format';
 import type { AppContext } from '../ui/context';
@@ -46,13 +45,9 @@ export class MovementScreen {
     this.current = query;
     this.element.setAttribute('aria-busy', 'true');
     try {
-      const [movement, a, b] = await Promise.all([
-        this.ctx.request('queryMovement', { query }),
-        this.ctx.request('queryDetail', { query, run: 'a', maxPairs: 0 }).catch(() => null),
-        this.ctx.request('queryDetail', { query, run: 'b', maxPairs: 0 }).catch(() => null),
-      ]);
+      const movement = await this.ctx.request('queryMovement', { query });
       if (token !== this.token) return;
-      this.render(movement, a, b);
+      this.render(movement);
     } catch (e) {
       if (token !== this.token) return;
       clear(this.element);
@@ -62,30 +57,33 @@ export class MovementScreen {
     }
   }
 
-  private render(m: MovementView, a: QueryDetailView | null, b: QueryDetailView | null): void {
+  private render(m: MovementView): void {
     clear(this.element);
     const label = this.headlineLabel();
     const delta = m.a !== null && m.b !== null ? m.b - m.a : null;
     this.element.append(
       el('div', { className: 'gl-detail-head' },
         el('span', { id: 'gl-movement-query', className: 'gl-movement-query', text: m.query }),
-        el('span', { className: 'gl-chip', text: `${label} A ${m.a === null ? MISSING : formatFixed(m.a)}`, title: m.a === null ? 'not defined' : exactValue(m.a) }),
-        el('span', { className: 'gl-chip', text: `B ${m.b === null ? MISSING : formatFixed(m.b)}`, title: m.b === null ? 'not defined' : exactValue(m.b) }),
+        el('span', { className: 'gl-chip', text: `${label} A ${m.a === null ? MISSING : formatFixed(m.a)}`, title: `${m.a === null ? 'not defined' : exactValue(m.a)}; DCG@${m.k} ${exactValue(m.dcgA)}` }),
+        el('span', { className: 'gl-chip', text: `B ${m.b === null ? MISSING : formatFixed(m.b)}`, title: `${m.b === null ? 'not defined' : exactValue(m.b)}; DCG@${m.k} ${exactValue(m.dcgB)}` }),
         el('span', { className: `gl-chip ${delta === null ? '' : delta > 0 ? 'gl-better' : delta < 0 ? 'gl-worse' : ''}`, text: `Δ ${delta === null ? MISSING : formatDelta(delta)}`, title: 'B − A' })),
       el('div', { className: 'gl-toolbar' },
         button('Copy A as JSON', { icon: 'json', secondary: true, onClick: () => this.ctx.copyQuery(m.query, 'a') }),
         button('Copy B as JSON', { icon: 'json', secondary: true, onClick: () => this.ctx.copyQuery(m.query, 'b') }),
         button('Open in detail', { icon: 'list-ordered', secondary: true, title: 'Show this query’s detail (run A) with the ideal order', onClick: () => this.ctx.openQuery(m.query, 'detail') })),
     );
+    this.renderLists(m);
+    this.renderPositions(m);
+    this.renderPairs(m);
+    highlightItem(this.element, this.selected);
+  }
 
+  private renderLists(m: MovementView): void {
     const inA = m.rows.filter((r) => r.positionA !== null).sort((x, y) => x.positionA! - y.positionA!);
     const inB = m.rows.filter((r) => r.positionB !== null).sort((x, y) => x.positionB! - y.positionB!);
     const rowsShown = Math.min(ROWS, Math.max(inA.length, inB.length));
-    const contribA = new Map((a?.positions ?? []).map((p) => [p.position, p.contribution]));
-    const contribB = new Map((b?.positions ?? []).map((p) => [p.position, p.contribution]));
     const grade = (v: number | null) => (v === null ? 'unjudged' : String(v));
-    const moved = (v: number | null) => (v === null ? 'new/gone' : v > 0 ? `↑${v}` : v < 0 ? `↓${-v}` : '=');
-    const maxChange = Math.max(1e-12, ...[...contribA.keys(), ...contribB.keys()].map((p) => Math.abs((contribB.get(p) ?? 0) - (contribA.get(p) ?? 0))));
+    const moved = (v: number | null) => (v === null ? 'only A' : v > 0 ? `↑${v}` : v < 0 ? `↓${-v}` : '=');
     const left = renderOrderList(
       {
         id: 'gl-movement-a',
@@ -95,27 +93,16 @@ export class MovementScreen {
           { text: 'Item', title: 'Item id.' },
           { text: 'Label', title: 'Graded relevance.', numeric: true },
           { text: 'Moved', title: COLUMN_EXPLANATIONS['moved']!, numeric: true },
-          { text: 'Contr. A', title: 'DCG contribution of the item at this position in A (gain × discount).', numeric: true },
-          { text: 'Contr. B', title: 'DCG contribution of whatever item B puts at this same position.', numeric: true },
-          { text: 'Δ at position', title: 'Contribution in B minus contribution in A at this position: where B gains or loses DCG.' },
         ],
-        rows: inA.slice(0, rowsShown).map((r) => {
-          const ca = contribA.get(r.positionA!);
-          const cb = contribB.get(r.positionA!);
-          const change = ca === undefined && cb === undefined ? null : (cb ?? 0) - (ca ?? 0);
-          return {
-            item: r.item,
-            cells: [
-              { text: String(r.positionA), numeric: true },
-              { text: r.item, title: r.item },
-              { text: grade(r.label), numeric: true },
-              { text: moved(r.moved), numeric: true, title: r.positionB === null ? 'Not ranked in B.' : `Position ${r.positionA} in A → ${r.positionB} in B` },
-              { text: ca === undefined ? MISSING : formatFixed(ca, 3), numeric: true, title: ca === undefined ? '' : exactValue(ca) },
-              { text: cb === undefined ? MISSING : formatFixed(cb, 3), numeric: true, title: cb === undefined ? '' : exactValue(cb) },
-              { text: change === null ? MISSING : formatDelta(change, 3), bar: change === null ? 0 : Math.abs(change) / maxChange, title: change === null ? '' : `${formatDelta(change)} (${change >= 0 ? 'B gains' : 'B loses'} here)` },
-            ],
-          };
-        }),
+        rows: inA.slice(0, rowsShown).map((r) => ({
+          item: r.item,
+          cells: [
+            { text: String(r.positionA), numeric: true },
+            { text: r.item, title: r.item },
+            { text: grade(r.label), numeric: true },
+            { text: moved(r.moved), numeric: true, title: r.positionB === null ? 'Not ranked in B.' : `Position ${r.positionA} in A → ${r.positionB} in B` },
+          ],
+        })),
       },
       (item) => this.pick(item),
     );
@@ -151,28 +138,72 @@ export class MovementScreen {
         el('span', {}, el('span', { className: 'gl-swatch down' }), 'moved down in B'),
         el('span', {}, el('span', { className: 'gl-swatch same' }), 'same position'),
         el('span', { text: 'Stronger lines: higher grade.' })),
-      el('div', { className: 'gl-orders' }, left, el('div', {}, renderConnector(links, rowsShown, 'Lines joining each item’s position in A to its position in B')), right),
+      el('div', { className: 'gl-orders movement' }, left, el('div', {}, renderConnector(links, rowsShown, 'Lines joining each item’s position in A to its position in B')), right),
     );
     if (rowsShown < Math.max(inA.length, inB.length)) this.element.append(el('p', { className: 'gl-muted', text: `Showing the first ${rowsShown} positions of ${Math.max(inA.length, inB.length)}.` }));
+  }
 
-    const changes = pairChanges(m.rows);
-    const pairTable = (id: string, caption: string, pairs: PairChange[]) =>
+  private renderPositions(m: MovementView): void {
+    const maxChange = Math.max(1e-12, ...m.positions.map((p) => Math.abs(p.change)));
+    const list = renderOrderList(
+      {
+        id: 'gl-movement-positions',
+        label: `DCG contribution per position, A and B, positions 1 to ${m.k}`,
+        headers: [
+          { text: 'Pos', title: 'Position in the list.', numeric: true },
+          { text: 'Item in A', title: 'What run A put at this position.' },
+          { text: 'Contr. A', title: 'gain × discount of that item in A.', numeric: true },
+          { text: 'Item in B', title: 'What run B put at this position.' },
+          { text: 'Contr. B', title: 'gain × discount of that item in B.', numeric: true },
+          { text: 'Change (B − A)', title: 'Contribution in B minus contribution in A at this position: where B gains or loses DCG.' },
+        ],
+        rows: m.positions.map((p) => ({
+          item: p.itemB || p.itemA,
+          cells: [
+            { text: String(p.position), numeric: true },
+            { text: p.itemA || MISSING, title: p.itemA },
+            { text: formatFixed(p.contributionA, 3), numeric: true, title: exactValue(p.contributionA) },
+            { text: p.itemB || MISSING, title: p.itemB },
+            { text: formatFixed(p.contributionB, 3), numeric: true, title: exactValue(p.contributionB) },
+            { text: formatDelta(p.change, 3), bar: Math.abs(p.change) / maxChange, barRole: p.change > 0 ? 'better' : p.change < 0 ? 'worse' : undefined, title: `${exactValue(p.change)} (${p.change >= 0 ? 'B gains' : 'B loses'} here)` },
+          ],
+        })),
+      },
+      (item) => this.pick(item),
+    );
+    this.element.append(
+      el('h2', { text: `DCG contribution by position (1–${m.k})` }),
+      el('p', { className: 'gl-muted', text: `DCG@${m.k}: A ${formatFixed(m.dcgA)}, B ${formatFixed(m.dcgB)}; the changes below sum to the difference.` }),
+      list,
+    );
+  }
+
+  private renderPairs(m: MovementView): void {
+    const pairTable = (id: string, caption: string, pairs: readonly PairChangeView[], total: number) =>
       pairs.length === 0
         ? el('p', { id, className: 'gl-muted', text: 'None.' })
-        : staticTable({
-            id,
-            caption,
-            columns: [{ label: 'Better-graded item' }, { label: 'Worse-graded item' }],
-            rows: pairs.slice(0, PAIRS_LISTED).map((p) => [{ text: p.better, title: p.better }, { text: p.worse, title: p.worse }]),
-          });
+        : el('div', {},
+            staticTable({
+              id,
+              caption,
+              columns: [
+                { label: 'Better-graded item' },
+                { label: 'Worse-graded item' },
+                { label: 'NDCG recovered', numeric: true, title: COLUMN_EXPLANATIONS['ndcgRecovered']! },
+              ],
+              rows: pairs.slice(0, PAIRS_LISTED).map((p) => [{ text: p.higherGraded, title: p.higherGraded }, { text: p.lowerGraded, title: p.lowerGraded }, { text: formatFixed(p.ndcgRecovered), title: exactValue(p.ndcgRecovered) }]),
+            }),
+            total > Math.min(PAIRS_LISTED, pairs.length) ? el('p', { className: 'gl-muted', text: `First ${formatCount(Math.min(PAIRS_LISTED, pairs.length))} of ${formatCount(total)}.` }) : null);
     this.element.append(
       el('h2', { text: 'Pairs' }),
-      el('p', { className: 'gl-muted', text: `Inverted pairs (better-graded item ranked below a worse-graded one): ${formatCount(changes.invertedA)} in A, ${formatCount(changes.invertedB)} in B.${changes.notComparable > 0 ? ` ${formatCount(changes.notComparable)} pairs involve an item ranked in only one run and are not compared.` : ''}` }),
+      el('p', {
+        className: 'gl-muted',
+        text: `Inverted pairs (better-graded item ranked below a worse-graded one): ${formatCount(m.invertedTotalA)} in A, ${formatCount(m.invertedTotalB)} in B; ${formatCount(m.keptPairs)} inverted in both.${m.droppedPairs > 0 ? ` ${formatCount(m.droppedPairs)} pairs involve an item ranked in only one run and are not compared.` : ''}`,
+      }),
       el('div', { className: 'gl-grid2' },
-        el('section', {}, el('h2', { className: 'gl-better', text: `Fixed by B (${formatCount(changes.fixed.length)})` }), pairTable('gl-pairs-fixed', 'Pairs inverted in A and in order in B', changes.fixed)),
-        el('section', {}, el('h2', { className: 'gl-worse', text: `Introduced by B (${formatCount(changes.introduced.length)})` }), pairTable('gl-pairs-introduced', 'Pairs in order in A and inverted in B', changes.introduced))),
+        el('section', {}, el('h2', { className: 'gl-better', text: `Fixed by B (${formatCount(m.fixedTotal)})` }), pairTable('gl-pairs-fixed', 'Pairs inverted in A and in order in B', m.fixedPairs, m.fixedTotal)),
+        el('section', {}, el('h2', { className: 'gl-worse', text: `Introduced by B (${formatCount(m.introducedTotal)})` }), pairTable('gl-pairs-introduced', 'Pairs in order in A and inverted in B', m.introducedPairs, m.introducedTotal))),
     );
-    highlightItem(this.element, this.selected);
   }
 
   private pick(item: string): void {

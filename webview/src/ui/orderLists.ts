@@ -13,8 +13,9 @@ export interface OrderCell {
   readonly text: string;
   readonly title?: string;
   readonly numeric?: boolean;
-  /** Render as a bar of this fraction with the text as its label. */
+  /** Also draw a bar of this fraction (0..1) beside the text. */
   readonly bar?: number;
+  readonly barRole?: 'better' | 'worse';
 }
 
 export interface OrderRowSpec {
@@ -43,12 +44,12 @@ export function renderOrderList(spec: OrderListSpec, onPick: (item: string) => v
     for (const c of r.cells) {
       const cell = el('span', { className: c.numeric ? 'num' : undefined, title: c.title, attrs: { role: 'cell' } });
       if (c.bar !== undefined) {
-        const track = el('span', { className: 'gl-contrib', attrs: { 'aria-hidden': 'true' } });
+        const track = el('span', { className: `gl-contrib${c.barRole ? ` ${c.barRole}` : ''}`, attrs: { 'aria-hidden': 'true' } });
         const fill = el('span');
         fill.style.width = `${Math.max(0, Math.min(1, c.bar)) * 100}%`;
         track.appendChild(fill);
-        cell.append(track);
-        cell.setAttribute('aria-label', c.text);
+        cell.classList.add('gl-barcell');
+        cell.append(el('span', { className: 'gl-bartext', text: c.text }), track);
       } else cell.textContent = c.text;
       row.appendChild(cell);
     }

@@ -1,0 +1,217 @@
+/**
+ * The webview bundle in a real browser (system Chromium, driven by playwright-core) against a fake
+ * host, under the extension's strict CSP. Checks behaviour the unit tests cannot: stable element ids,
+ * paging and virtualisation, keyboard navigation, text-only rendering of hostile ids, refresh
+ * keeping the selection, the error and file-gone panels, and compare mode.
+ */
+import { existsSync } from 'node:fs';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { chromium, type Browser, type Page } from 'playwright-core';
+import { makeQueries } from './harness/fakeHost';
+import { startHarness, type Harness } from './harness/buildHarness';
+
+const CHROMIUM = '/usr/bin/chromium';
+let harness: Harness;
+let browser: Browser;
+
+beforeAll(async () => {
+  if (!existsSync(CHROMIUM)) throw new Error(`${CHROMIUM} is missing: install the chromium package to run the webview browser tests`);
+  harness = await startHarness();
+  browser = await chromium.launch({ executablePath: CHROMIUM, args: ['--no-sandbox'] });
+}, 120_000);
+
+afterAll(async () => {
+  await browser?.close();
+  await harness?.close();
+});
+
+async function open(query: string): Promise<{ page: Page; problems: string[] }> {
+  const page = await browser.newPage({ viewport: { width: 1280, height: 800 } });
+  const problems: string[] = [];
+  page.on('console', (m) => {
+    if (m.type() === 'error') problems.push(m.text());
+  });
+  page.on('pageerror', (e) => problems.push(e.message));
+  page.on('dialog', (d) => {
+    problems.push(`dialog opened: ${d.message()}`);
+    void d.dismiss();
+  });
+  await page.goto(`${harness.url}?${query}`);
+  return { page, problems };
+}
+
+function worstFirst(count: number): string[] {
+  // Same order as the fake host: NDCG ascending, skipped (NaN) last, stable.
+  return makeQueries(count)
+    .map((q, i) => ({ q, i }))
+    .sort((a, b) => {
+      const na = Number.isNaN(a.q.ndcgA);
+      const nb = Number.isNaN(b.q.ndcgA);
+      if (na || nb) return na === nb ? a.i - b.i : na ? 1 : -1;
+      return a.q.ndcgA - b.q.ndcgA || a.i - b.i;
+    })
+    .map((x) => x.q.id);
+}
+
+describe('single-run screens', () => {
+  it('shows the headline with four decimals and the overview sections', async () => {
+    const { page, problems } = await open('queries=500');
+    await page.waitForSelector('#gl-headline-value');
+    expect(await page.textContent('#gl-headline-label')).toBe('NDCG@10');
+    expect(await page.textContent('#gl-headline-value')).toMatch(/^\d\.\d{4}$/);
+    for (const id of ['#gl-overview', '#gl-conventions', '#gl-sensitivity', '#gl-degenerate']) expect(await page.isVisible(id), id).toBe(true);
+    expect(await page.isVisible('#gl-loading')).toBe(false);
+    expect(problems).toEqual([]);
+    await page.close();
+  });
+
+  it('pages 100k queries into a virtual grid, worst first, with only visible rows in the DOM', async () => {
+    const count = 100_000;
+    const expected = worstFirst(count);
+    const { page, problems } = await open(`queries=${count}`);
+    await page.click('#gl-tab-worst');
+    await page.waitForSelector('#gl-worst-table [data-query]');
+    expect(await page.getAttribute('#gl-worst-table [data-query] >> nth=0', 'data-query')).toBe(expected[0]);
+    const rowsInDom = await page.locator('#gl-worst-table .gl-vt-row').count();
+    expect(rowsInDom).toBeLessThan(80);
+    expect(await page.getAttribute('#gl-worst-table', 'aria-rowcount')).toBe(String(count + 1));
+    // Keyboard: End goes to the last query, Home back to the first, Enter opens the active one.
+    await page.focus('#gl-worst-table');
+    await page.keyboard.press('End');
+    await page.waitForSelector(`#gl-worst-table [data-query="${expected[count - 1]!.replace(/"/g, '\\"')}"]`);
+    await page.keyboard.press('Home');
+    await page.keyboard.press('ArrowDown');
+    await page.keyboard.press('ArrowDown');
+    await page.keyboard.press('Enter');
+    await page.waitForFunction((q) => document.querySelector('#gl-detail-query')?.textContent === q, expected[2]);
+    expect(await page.getAttribute('#gl-tab-detail', 'aria-selected')).toBe('true');
+    expect(problems).toEqual([]);
+    await page.close();
+  }, 120_000);
+
+  it('sorts by a header click and filters by id', async () => {
+    const { page } = await open('queries=400');
+    await page.click('#gl-tab-worst');
+    await page.waitForSelector('#gl-worst-table [data-query]');
+    await page.click('#gl-worst-table .gl-vt-sort:text("Inversions")');
+    const maxInversions = Math.max(...makeQueries(400).map((q) => q.inversions));
+    await page.waitForFunction(
+      (max) => document.querySelector('#gl-worst-table [data-query] [aria-colindex="7"]')?.textContent === String(max),
+      maxInversions,
+    );
+    await page.fill('#gl-worst-filter', 'pipe wrench');
+    await page.waitForFunction(() => {
+      const rows = [...document.querySelectorAll<HTMLElement>('#gl-worst-table [data-query]')];
+      return rows.length > 0 && rows.every((r) => r.dataset['query']!.includes('pipe wrench'));
+    });
+    await page.close();
+  });
+
+  it('renders hostile ids as text, never as markup', async () => {
+    const { page, problems } = await open('queries=50');
+    await page.click('#gl-tab-worst');
+    await page.fill('#gl-worst-filter', '<img');
+    const hostile = '<img src=x onerror=alert(1)>';
+    await page.waitForFunction((id) => document.querySelector<HTMLElement>('#gl-worst-table [data-query]')?.dataset['query'] === id, hostile);
+    await page.click('#gl-worst-table [data-query]');
+    await page.waitForFunction((id) => document.querySelector('#gl-detail-query')?.textContent === id, hostile);
+    expect(await page.locator('#gl-predicted-order [data-item="<b>bold</b>"]').count()).toBe(1);
+    expect(await page.evaluate(() => document.querySelectorAll('#gl-root img, #gl-root b').length)).toBe(0);
+    expect(problems).toEqual([]);
+    await page.close();
+  });
+
+  it('shows both orders with a line per item and reveals the selected row', async () => {
+    const { page } = await open('queries=100');
+    await page.click('#gl-tab-worst');
+    await page.click('#gl-worst-table [data-query]');
+    await page.waitForSelector('#gl-predicted-order [data-item]');
+    const items = await page.locator('#gl-predicted-order [data-item]').count();
+    expect(await page.locator('#gl-ideal-order [data-item]').count()).toBe(items);
+    expect(await page.locator('#gl-detail svg.gl-links path').count()).toBe(items);
+    await page.click('#gl-predicted-order [data-item] >> nth=1');
+    await page.click('#gl-reveal-in-file');
+    const calls = await page.evaluate(() => (window as unknown as { __host: { calls: { method: string; params: { row?: number } }[] } }).__host.calls.filter((c) => c.method === 'revealRow'));
+    expect(calls).toHaveLength(1);
+    await page.close();
+  });
+
+  it('keeps the tab and the selected query on a live refresh; shows the file-gone panel', async () => {
+    const { page } = await open('queries=100');
+    await page.click('#gl-tab-worst');
+    const first = await page.getAttribute('#gl-worst-table [data-query] >> nth=0', 'data-query');
+    await page.click('#gl-worst-table [data-query]');
+    await page.waitForFunction((q) => document.querySelector('#gl-detail-query')?.textContent === q, first);
+    await page.evaluate(() => {
+      const w = window as unknown as { __host: { send(m: unknown): void } };
+      w.__host.send({ kind: 'state', state: { status: 'vanished', path: '/demo/hardware-store/run-a.csv' } });
+    });
+    expect(await page.isVisible('#gl-vanished')).toBe(true);
+    expect(await page.textContent('#gl-vanished')).toContain('run-a.csv');
+    // The file comes back: the host sends the recomputed result as 'reloaded'.
+    await page.evaluate(() => {
+      const w = window as unknown as { __host: { send(m: unknown): void; overview: unknown } };
+      w.__host.send({ kind: 'state', state: { status: 'reloaded', mode: 'single', overview: w.__host.overview } });
+    });
+    await page.waitForSelector('#gl-detail', { state: 'visible' });
+    expect(await page.getAttribute('#gl-tab-detail', 'aria-selected')).toBe('true');
+    await page.waitForFunction((q) => document.querySelector('#gl-detail-query')?.textContent === q, first);
+    await page.close();
+  });
+
+  it('lists segment values for a chosen column', async () => {
+    const { page } = await open('queries=200');
+    await page.click('#gl-tab-segments');
+    await page.waitForSelector('#gl-segments-table .gl-vt-row');
+    expect(await page.inputValue('#gl-segment-column')).toBe('locale');
+    expect(await page.locator('#gl-segments-table .gl-vt-row').count()).toBe(4);
+    await page.close();
+  });
+
+  it('asks the host to export what the table shows', async () => {
+    const { page } = await open('queries=100');
+    await page.click('#gl-tab-worst');
+    await page.waitForSelector('#gl-worst-table [data-query]');
+    await page.click('#gl-panel-worst button:text("CSV")');
+    await page.waitForFunction(() => (window as unknown as { __host: { calls: { method: string }[] } }).__host.calls.some((c) => c.method === 'exportView'));
+    const params = await page.evaluate(() => (window as unknown as { __host: { calls: { method: string; params: { columns: string[]; rows: unknown[][]; format: string } }[] } }).__host.calls.find((c) => c.method === 'exportView')!.params);
+    expect(params.format).toBe('csv');
+    expect(params.columns.slice(0, 3)).toEqual(['#', 'Query', 'NDCG@10']);
+    expect(params.rows).toHaveLength(100);
+    expect(params.rows[0]![1]).toBe(worstFirst(100)[0]);
+    await page.close();
+  });
+});
+
+describe('error panel', () => {
+  it('shows the one-line input error instead of a blank screen', async () => {
+    const message = "run.csv:12: expected a number in column 'score' (found \"abc\")";
+    const { page } = await open(`error=${encodeURIComponent(message)}`);
+    await page.waitForSelector('#gl-error', { state: 'visible' });
+    expect(await page.textContent('#gl-error')).toContain(message);
+    expect(await page.isVisible('#gl-overview')).toBe(false);
+    await page.close();
+  });
+});
+
+describe('compare mode', () => {
+  it('shows wins/ties/losses as integers, the metric table, and the movement of a picked query', async () => {
+    const count = 300;
+    const { page, problems } = await open(`mode=compare&queries=${count}`);
+    await page.waitForSelector('#gl-compare-wins');
+    const qs = makeQueries(count);
+    expect(await page.textContent('#gl-compare-wins')).toBe(String(qs.filter((q) => q.ndcgB - q.ndcgA > 0.001).length));
+    expect(await page.textContent('#gl-compare-ties')).toBe(String(qs.filter((q) => Math.abs(q.ndcgB - q.ndcgA) <= 0.001).length));
+    expect(await page.textContent('#gl-compare-losses')).toBe(String(qs.filter((q) => q.ndcgB - q.ndcgA < -0.001).length));
+    expect(await page.locator('#gl-compare-table .gl-vt-row').count()).toBe(2);
+    await page.click('#gl-tab-deltas');
+    await page.waitForSelector('#gl-deltas-table [data-query]');
+    const worst = await page.getAttribute('#gl-deltas-table [data-query] >> nth=0', 'data-query');
+    await page.click('#gl-deltas-table [data-query]');
+    await page.waitForFunction((q) => document.querySelector('#gl-movement-query')?.textContent === q, worst);
+    expect(await page.getAttribute('#gl-tab-movement', 'aria-selected')).toBe('true');
+    expect(await page.locator('#gl-movement-positions [data-item]').count()).toBeGreaterThan(0);
+    expect(problems).toEqual([]);
+    await page.close();
+  });
+});
