@@ -20,12 +20,14 @@ skipped or assumed, how the headline metric moves under other conventions, and t
 Output:
   --format F            table (default) | json | csv | markdown
   --worst N             how many of the worst queries to list (default 10; table and markdown)
+  --timings             print how long reading, scoring and writing the report took (standard error)
 ${conventionHelp}`;
 
 const evalOptions = {
   ...conventionOptions,
   format: { type: 'string' },
   worst: { type: 'string' },
+  timings: { type: 'boolean' },
   help: { type: 'boolean', short: 'h' },
 } as const;
 
@@ -55,11 +57,18 @@ export async function runEval(argv: string[], io: CliIO): Promise<number> {
 
   const size = (await stat(path)).size;
   const progress = io.isTTY && size >= PROGRESS_FROM_BYTES ? progressLine(io, source) : undefined;
+  const started = performance.now();
   try {
     const dump = await readDump(path, { ...setup.read, onProgress: progress?.reading });
+    const read = performance.now();
     const evaluation = evaluate(dump, setup.metrics, setup.conventions, { onProgress: progress?.scoring });
+    const scored = performance.now();
     progress?.done();
     io.out(formatReport(format, { evaluation, queryNames: dump.queries, source, rowCount: dump.rowCount }, { worst }));
+    if (values.timings) {
+      const s = (ms: number) => (ms / 1000).toFixed(3);
+      io.err(`timings: read ${s(read - started)} s, score ${s(scored - read)} s, report ${s(performance.now() - scored)} s (${dump.rowCount} rows)\n`);
+    }
   } finally {
     progress?.done();
   }
