@@ -101,6 +101,13 @@ describe('gainline eval, other output formats', () => {
     expect(lines[2]).toBe('wood screws 4x40,2,0,true,');
   });
 
+  it('reports stage timings on standard error only when asked', () => {
+    const r = runCli(['eval', 'small.csv', '--metrics', 'ndcg@10', '--format', 'json', '--timings'], dir);
+    expect(r.code).toBe(0);
+    expect(r.stderr).toMatch(/^timings: read \d+\.\d{3} s, score \d+\.\d{3} s, report \d+\.\d{3} s \(8 rows\)\n$/);
+    expect(JSON.parse(r.stdout).queryCount).toBe(3);
+  });
+
   it('writes Markdown tables', () => {
     const r = runCli(['eval', 'small.csv', '--metrics', 'ndcg@10', '--format', 'markdown'], dir);
     expect(r.code).toBe(0);
