@@ -80,3 +80,41 @@ describe('evaluate() against the slow reference', () => {
     }
   }
 });
+
+describe('many distinct grades (the tree-based pair counter) against the slow reference', () => {
+  const shuffledGains = new Map(Array.from({ length: 20 }, (_, g) => [g, (g * 7) % 20] as [number, number]));
+  const cases: [string, GainConvention, TieConvention][] = [
+    ['linear, file order', { kind: 'linear' }, 'file-order'],
+    ['linear, pessimistic', { kind: 'linear' }, 'pessimistic'],
+    ['exponential, optimistic', { kind: 'exponential' }, 'optimistic'],
+    ['gain map not increasing in grade, file order', { kind: 'map', gains: shuffledGains }, 'file-order'],
+  ];
+  it.each(cases)('%s', (_name, gain, ties) => {
+    const rand = seededRandom(77);
+    const conventions: Conventions = { ...DEFAULT_CONVENTIONS, gain, ties, noRelevant: 'zero' };
+    const rows: TestRow[] = [];
+    const queries = new Map<string, SlowItem[]>();
+    for (let q = 0; q < 25; q++) {
+      const items: SlowItem[] = Array.from({ length: 10 + Math.floor(rand() * 30) }, (_, i) => ({
+        item: `sku-${i}`,
+        label: Math.floor(rand() * 20) / (gain.kind === 'exponential' ? 4 : 1),
+        score: Math.floor(rand() * 25),
+      }));
+      queries.set(`hinge ${q}`, items);
+      for (const it of items) rows.push({ query: `hinge ${q}`, ...it });
+    }
+    const dump = buildDump(rows);
+    const specs = parseMetricList('ndcg@5,tau,ap');
+    const evaluation = evaluate(dump, specs, conventions);
+    let distinctMax = 0;
+    for (const [query, items] of queries) {
+      distinctMax = Math.max(distinctMax, new Set(items.map((i) => i.label)).size);
+      const q = dump.queries.find(query);
+      const slow = slowQuery(items, specs, conventions, gradeRange(dump).highest, 5);
+      specs.forEach((m, i) => close(evaluation.perQuery.values[i]![q]!, slow.values[m.key]!, `${query} ${m.key}`));
+      close(evaluation.perQuery.inversions[q]!, slow.discordant, `${query} inversions`);
+      close(evaluation.perQuery.inversionCost[q]!, slow.inversionCost, `${query} inversion cost`);
+    }
+    expect(distinctMax).toBeGreaterThan(12);
+  });
+});

@@ -37,6 +37,8 @@ export interface PairResult {
   swapGain: number;
 }
 
+const SMALL = 12;
+
 export class PairCounter {
   private cnt = new Float64Array(8);
   private sumD = new Float64Array(8);
@@ -56,35 +58,63 @@ export class PairCounter {
     let swap = 0;
     let scoreTies = 0;
     let jointTies = 0;
+    /** Up to SMALL distinct grades, per-grade totals (index = rank); beyond, Fenwick trees (index = rank + 1). */
+    const small = distinct <= SMALL;
     for (let c = 0; c < classes; c++) {
       const s = classBounds[c]!;
       const e = classBounds[c + 1]!;
       const size = e - s;
       scoreTies += (size * (size - 1)) / 2;
       if (c > 0) {
-        for (let j = s; j < e; j++) {
-          const r = rank[j]!;
-          if (r === 0) continue;
-          if (input.gainIncreasing) {
-            let k = 0;
+        if (small) {
+          // Few grades: plain per-grade totals, summed below the item's grade (cheaper than a tree).
+          for (let j = s; j < e; j++) {
+            const r = rank[j]!;
+            if (r === 0) continue;
             let qs = 0;
             let qd = 0;
             let qg = 0;
             let qgd = 0;
-            for (let i = r; i > 0; i -= i & -i) {
-              k += cnt[i]!;
-              qd += sumD[i]!;
-              qg += sumG[i]!;
-              qgd += sumGD[i]!;
+            for (let h = 0; h < r; h++) {
+              qs += cnt[h]!;
+              qd += sumD[h]!;
+              qg += sumG[h]!;
+              qgd += sumGD[h]!;
             }
-            qs = k;
             discordant += qs;
-            const gj = gain[j]!;
-            const dj = discount[j]!;
-            swap += gj * qd - gj * dj * qs - qgd + dj * qg;
-          } else {
-            discordant += this.lowerCount(r);
-            swap += this.absSwap(r, input.gainOfRank, discount[j]!);
+            if (input.gainIncreasing) {
+              const gj = gain[j]!;
+              const dj = discount[j]!;
+              swap += gj * qd - gj * dj * qs - qgd + dj * qg;
+            } else {
+              const gj = input.gainOfRank[r]!;
+              const dj = discount[j]!;
+              for (let h = 0; h < r; h++) swap += Math.abs(gj - input.gainOfRank[h]!) * (sumD[h]! - dj * cnt[h]!);
+            }
+          }
+        } else {
+          for (let j = s; j < e; j++) {
+            const r = rank[j]!;
+            if (r === 0) continue;
+            if (input.gainIncreasing) {
+              let qs = 0;
+              let qd = 0;
+              let qg = 0;
+              let qgd = 0;
+              for (let i = r; i > 0; i -= i & -i) {
+                qs += cnt[i]!;
+                qd += sumD[i]!;
+                qg += sumG[i]!;
+                qgd += sumGD[i]!;
+              }
+              discordant += qs;
+              const gj = gain[j]!;
+              const dj = discount[j]!;
+              swap += gj * qd - gj * dj * qs - qgd + dj * qg;
+            } else {
+              discordant += this.lowerCount(r);
+              swap += this.absSwap(r, input.gainOfRank, discount[j]!);
+            }
           }
         }
       }
@@ -95,6 +125,14 @@ export class PairCounter {
       for (let j = s; j < e; j++) {
         const d = discount[j]!;
         const g = gain[j]!;
+        if (small) {
+          const r = rank[j]!;
+          cnt[r]!++;
+          sumD[r] += d;
+          sumG[r] += g;
+          sumGD[r] += g * d;
+          continue;
+        }
         for (let i = rank[j]! + 1; i <= distinct; i += i & -i) {
           cnt[i]!++;
           sumD[i] += d;
