@@ -32,32 +32,17 @@ export async function bootstrapMeanIntervals(columns: readonly Float64Array[], o
   if (n === 0 || resamples === 0) return columns.map(() => ({ low: Number.NaN, high: Number.NaN }));
   for (const column of columns) if (column.length !== n) throw new RangeError('bootstrap columns differ in length');
 
-  // Row-major copy: one drawn query touches one contiguous run of m values.
-  const matrix = new Float64Array(n * m);
-  for (let j = 0; j < m; j++) {
-    const column = columns[j]!;
-    for (let i = 0; i < n; i++) matrix[i * m + j] = column[i]!;
-  }
   const means = columns.map(() => new Float64Array(resamples));
-  const sums = new Float64Array(m);
+  const counts = new Float64Array(n);
   const rng = new Xoshiro128(options.seed);
   const pacer = new Pacer(options, resamples);
-  const scale = n / 4294967296;
   for (let done = 0; done < resamples; ) {
     const end = Math.min(resamples, done + CHECK_EVERY);
     for (; done < end; done++) {
-      if (m === 1) {
-        let sum = 0;
-        for (let draw = 0; draw < n; draw++) sum += matrix[Math.floor((rng.nextInt32() >>> 0) * scale)]!;
-        means[0]![done] = sum / n;
-        continue;
-      }
-      sums.fill(0);
-      for (let draw = 0; draw < n; draw++) {
-        const base = Math.floor((rng.nextInt32() >>> 0) * scale) * m;
-        for (let j = 0; j < m; j++) sums[j]! += matrix[base + j]!;
-      }
-      for (let j = 0; j < m; j++) means[j]![done] = sums[j]! / n;
+      // One resample as multiplicities, then one sequential pass per column.
+      counts.fill(0);
+      rng.countDraws(counts, n);
+      for (let j = 0; j < m; j++) means[j]![done] = weightedSum(counts, columns[j]!) / n;
     }
     await pacer.tick(done);
   }
@@ -67,6 +52,24 @@ export async function bootstrapMeanIntervals(columns: readonly Float64Array[], o
     column.sort();
     return { low: quantileSorted(column, alpha / 2), high: quantileSorted(column, 1 - alpha / 2) };
   });
+}
+
+/** Σ counts[i]·values[i] with four accumulators, so the additions do not wait on each other. */
+function weightedSum(counts: Float64Array, values: Float64Array): number {
+  const n = values.length;
+  let s0 = 0;
+  let s1 = 0;
+  let s2 = 0;
+  let s3 = 0;
+  let i = 0;
+  for (; i + 3 < n; i += 4) {
+    s0 += counts[i]! * values[i]!;
+    s1 += counts[i + 1]! * values[i + 1]!;
+    s2 += counts[i + 2]! * values[i + 2]!;
+    s3 += counts[i + 3]! * values[i + 3]!;
+  }
+  for (; i < n; i++) s0 += counts[i]! * values[i]!;
+  return s0 + s1 + s2 + s3;
 }
 
 /** Type-7 quantile of an ascending array. */

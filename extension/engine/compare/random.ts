@@ -29,6 +29,35 @@ export class Xoshiro128 {
     if ((this.s0 | this.s1 | this.s2 | this.s3) === 0) this.s0 = 1; // the all-zero state is a fixed point
   }
 
+  /**
+   * Adds one to `counts[i]` (doubles, so the weighted sums that follow need no int-to-float conversion) for `draws` uniform indices i in [0, counts.length): one bootstrap resample
+   * as multiplicities. Same stream as calling `below` repeatedly; the generator step is written out with
+   * the state in locals because this loop runs a billion times in a large comparison.
+   */
+  countDraws(counts: Float64Array, draws: number): void {
+    const scale = counts.length * TWO_TO_MINUS_32;
+    let s0 = this.s0;
+    let s1 = this.s1;
+    let s2 = this.s2;
+    let s3 = this.s3;
+    for (let k = 0; k < draws; k++) {
+      const m = Math.imul(s1, 5);
+      const result = Math.imul((m << 7) | (m >>> 25), 9);
+      const t = s1 << 9;
+      s2 ^= s0;
+      s3 ^= s1;
+      s1 ^= s2;
+      s0 ^= s3;
+      s2 ^= t;
+      s3 = (s3 << 11) | (s3 >>> 21);
+      counts[Math.floor((result >>> 0) * scale)]! += 1;
+    }
+    this.s0 = s0;
+    this.s1 = s1;
+    this.s2 = s2;
+    this.s3 = s3;
+  }
+
   /** 32 random bits as a signed int32 (use `>>> 0` for unsigned). */
   nextInt32(): number {
     const s0 = this.s0;

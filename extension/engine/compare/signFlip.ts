@@ -10,9 +10,12 @@
  * "≥" allows a tolerance of 1e-12·Σ|d_i|, so sums equal in exact arithmetic but different in the last
  * bits (additions in another order) count as equal.
  *
- * Speed: flipping a set F of signs gives S* = S − 2·Σ_{i∈F} d_i. The differences are cut into blocks of
- * 8 (or 4) and every block's 256 (16) subset sums are tabulated once, so one random pattern costs one
- * table look-up per block, fed by 32 random bits per 4 (8) blocks.
+ * Speed: flipping a set F of signs gives S* = S − 2·Σ_{i∈F} d_i. The differences are cut into blocks of 8;
+ * each block's 256 subset sums are tabulated (2 KB, stays in L1 cache) just before use, and the loop runs
+ * over all patterns for four blocks at a time, so one random 32-bit word serves four blocks of one pattern
+ * and one pattern costs one table look-up per 8 differences. Pattern p's flipped sum accumulates in
+ * flipped[p]. Bits are consumed block group by block group: word (g, p) is drawn before (g, p + 1) and
+ * all words of group g come before group g + 1; bit j of word (g, p) flips difference 32g + j.
  */
 import { Pacer, type LoopControl } from './pacer';
 import { Xoshiro128 } from './random';
@@ -31,8 +34,6 @@ export interface SignFlipResult {
   readonly asExtreme: number;
 }
 
-/** Upper bound of the look-up tables, so 1M+ differences stay within a few tens of MB. */
-const MAX_TABLE_BYTES = 64 * 1024 * 1024;
 /** Patterns between two pacer checks. */
 const CHECK_EVERY = 256;
 
@@ -61,66 +62,37 @@ export async function signFlipTest(differences: Float64Array, options: SignFlipO
     return { p: asExtreme / patterns, method: 'exact', patterns, asExtreme };
   }
 
-  const blockBits = n * 32 * Float64Array.BYTES_PER_ELEMENT <= MAX_TABLE_BYTES ? 8 : 4;
-  const table = subsetSumTable(differences, blockBits);
-  const blocks = Math.ceil(n / blockBits);
   const rng = new Xoshiro128(options.seed);
+  const permutations = options.permutations;
+  const flipped = new Float64Array(permutations);
+  const tables = new Float64Array(4 * 256);
+  const groups = Math.ceil(n / 32);
+  for (let group = 0; group < groups; group++) {
+    fillSubsetSums(tables, differences, group * 32);
+    for (let p = 0; p < permutations; p++) {
+      const r = rng.nextInt32();
+      flipped[p]! += tables[r & 255]! + tables[256 + ((r >>> 8) & 255)]! + tables[512 + ((r >>> 16) & 255)]! + tables[768 + (r >>> 24)]!;
+    }
+    if ((group & 7) === 7) await pacer.tick(Math.floor(((group + 1) / groups) * permutations));
+  }
   let asExtreme = 0;
-  for (let done = 0; done < options.permutations; ) {
-    const end = Math.min(options.permutations, done + CHECK_EVERY);
-    for (; done < end; done++) {
-      const flipped = blockBits === 8 ? randomSubsetSum8(table, blocks, rng) : randomSubsetSum4(table, blocks, rng);
-      if (Math.abs(observed - 2 * flipped) >= threshold) asExtreme++;
-    }
-    await pacer.tick(done);
-  }
+  for (let p = 0; p < permutations; p++) if (Math.abs(observed - 2 * flipped[p]!) >= threshold) asExtreme++;
   pacer.finish();
-  const patterns = options.permutations;
-  return { p: (1 + asExtreme) / (1 + patterns), method: 'monte-carlo', patterns, asExtreme };
+  return { p: (1 + asExtreme) / (1 + permutations), method: 'monte-carlo', patterns: permutations, asExtreme };
 }
 
-/** table[block·2^bits + mask] = Σ of the block's differences whose bit is set in mask (zero-padded). */
-function subsetSumTable(differences: Float64Array, bits: number): Float64Array {
-  const size = 1 << bits;
-  const blocks = Math.ceil(differences.length / bits);
-  const table = new Float64Array(blocks * size);
-  for (let block = 0; block < blocks; block++) {
-    const base = block * size;
-    for (let mask = 1; mask < size; mask++) {
+/**
+ * tables[256·b + mask] = Σ of d[start + 8b + j] over the bits j set in mask, for the four blocks b of the
+ * group starting at `start` (differences past the end count as 0).
+ */
+function fillSubsetSums(tables: Float64Array, differences: Float64Array, start: number): void {
+  for (let b = 0; b < 4; b++) {
+    const base = b * 256;
+    tables[base] = 0;
+    for (let mask = 1; mask < 256; mask++) {
       const lowest = 31 - Math.clz32(mask & -mask);
-      const index = block * bits + lowest;
-      table[base + mask] = table[base + (mask & (mask - 1))]! + (index < differences.length ? differences[index]! : 0);
+      const index = start + b * 8 + lowest;
+      tables[base + mask] = tables[base + (mask & (mask - 1))]! + (index < differences.length ? differences[index]! : 0);
     }
   }
-  return table;
-}
-
-function randomSubsetSum8(table: Float64Array, blocks: number, rng: Xoshiro128): number {
-  let sum = 0;
-  let block = 0;
-  const whole = blocks - (blocks & 3);
-  for (; block < whole; block += 4) {
-    const r = rng.nextInt32();
-    const base = block << 8;
-    sum +=
-      table[base + (r & 255)]! +
-      table[base + 256 + ((r >>> 8) & 255)]! +
-      table[base + 512 + ((r >>> 16) & 255)]! +
-      table[base + 768 + (r >>> 24)]!;
-  }
-  if (block < blocks) {
-    let r = rng.nextInt32();
-    for (; block < blocks; block++, r >>>= 8) sum += table[(block << 8) + (r & 255)]!;
-  }
-  return sum;
-}
-
-function randomSubsetSum4(table: Float64Array, blocks: number, rng: Xoshiro128): number {
-  let sum = 0;
-  for (let block = 0; block < blocks; block += 8) {
-    let r = rng.nextInt32();
-    const last = Math.min(blocks, block + 8);
-    for (let b = block; b < last; b++, r >>>= 4) sum += table[(b << 4) + (r & 15)]!;
-  }
-  return sum;
 }
