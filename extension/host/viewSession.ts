@@ -29,6 +29,8 @@ export interface SessionDeps {
   readonly getConfig: () => GainlineConfig;
   /** Remembers the judgments file picked for a run file. */
   readonly memory: vscode.Memento;
+  /** Overrides the delay before the Cancel-able notification appears (tests). */
+  readonly notificationDelayMs?: number;
 }
 
 /** What the status bar shows for the view in front. */
@@ -41,6 +43,8 @@ export interface Headline {
 }
 
 const RELOAD_DEBOUNCE_MS = 300;
+/** A first read shorter than this shows no notification (it would only flash). */
+const NOTIFICATION_DELAY_MS = 700;
 let sessionCounter = 0;
 
 export class ViewSession implements vscode.Disposable {
@@ -153,19 +157,23 @@ export class ViewSession implements vscode.Disposable {
       this.setState({ status: 'error', message: messageOf(error) });
       return;
     }
-    const run = async (progress: vscode.Progress<{ increment?: number; message?: string }>, token?: vscode.CancellationToken) => {
-      token?.onCancellationRequested(() => {
-        cancelledByUser = true;
-        abort.abort();
-      });
+    // Progress goes to the webview, the window status and (for a first read that takes a while) a
+    // notification with Cancel; a quick read never flashes a notification.
+    const sinks = new Set<(fraction: number | null, message: string) => void>();
+    const onProgress = (fraction: number | null, message: string): void => {
+      for (const sink of sinks) sink(fraction, message);
+      if (kind === 'loaded') this.setState({ status: 'loading', mode: this.target.mode, label: this.label, fraction, message });
+    };
+    const attach = (progress: vscode.Progress<{ increment?: number; message?: string }>): void => {
       let reported = 0;
-      const onProgress = (fraction: number | null, message: string): void => {
+      sinks.add((fraction, message) => {
         if (fraction !== null && fraction > reported) {
           progress.report({ increment: (fraction - reported) * 100, message });
           reported = fraction;
         } else progress.report({ message });
-        if (kind === 'loaded') this.setState({ status: 'loading', mode: this.target.mode, label: this.label, fraction, message });
-      };
+      });
+    };
+    const work = (async () => {
       const options = { signal: abort.signal, timeoutMs: LOAD_TIMEOUT_MS, onProgress };
       if (this.target.mode === 'single') {
         const overview = await this.deps.worker.call(
@@ -180,16 +188,33 @@ export class ViewSession implements vscode.Disposable {
       }
       this.loadedGeneration = this.deps.worker.generation;
       this.headlineEmitter.fire(this.headline);
-    };
-    try {
-      if (firstTime) {
-        await vscode.window.withProgress(
+    })();
+    const settled = work.then(() => undefined, () => undefined);
+    void vscode.window.withProgress({ location: vscode.ProgressLocation.Window, title: `Gainline: ${this.label}` }, (progress) => {
+      attach(progress);
+      return settled;
+    });
+    if (firstTime) {
+      let finished = false;
+      void settled.then(() => (finished = true));
+      const timer = setTimeout(() => {
+        if (finished || this.disposed) return;
+        void vscode.window.withProgress(
           { location: vscode.ProgressLocation.Notification, title: `Gainline: reading ${this.label}`, cancellable: true },
-          (progress, token) => run(progress, token),
+          (progress, token) => {
+            token.onCancellationRequested(() => {
+              cancelledByUser = true;
+              abort.abort();
+            });
+            attach(progress);
+            return settled;
+          },
         );
-      } else {
-        await vscode.window.withProgress({ location: vscode.ProgressLocation.Window, title: `Gainline: ${this.label}` }, (p) => run(p));
-      }
+      }, this.deps.notificationDelayMs ?? NOTIFICATION_DELAY_MS);
+      void settled.then(() => clearTimeout(timer));
+    }
+    try {
+      await work;
     } catch (error) {
       if (this.disposed || (abort.signal.aborted && !cancelledByUser)) return; // superseded by a newer load
       if (cancelledByUser || error instanceof RequestAbortedError) {

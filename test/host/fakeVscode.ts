@@ -90,7 +90,9 @@ export class TabInputCustom {
 
 export interface FakeState {
   watchers: FakeWatcher[];
-  /** Set to cancel the next withProgress task right away. */
+  /** Locations of every progress shown (15 = notification, 10 = window). */
+  progressShown: number[];
+  /** Set to cancel the next notification progress right away (as if Cancel were clicked). */
   cancelNextProgress: boolean;
   clipboard: string;
   shownDocuments: { file: string; selection: Selection }[];
@@ -102,7 +104,7 @@ export interface FakeState {
 }
 
 export function createFakeVscode() {
-  const state: FakeState = { watchers: [], cancelNextProgress: false, clipboard: '', shownDocuments: [], messages: [], quickPickAnswer: undefined,
+  const state: FakeState = { progressShown: [], watchers: [], cancelNextProgress: false, clipboard: '', shownDocuments: [], messages: [], quickPickAnswer: undefined,
     commands: new Map(), executed: [], activeTab: undefined };
   const api = {
     EventEmitter,
@@ -127,11 +129,12 @@ export function createFakeVscode() {
     window: {
       activeTextEditor: undefined,
       tabGroups: { get activeTabGroup() { return { activeTab: state.activeTab }; } },
-      async withProgress(_options: unknown, task: (progress: unknown, token: unknown) => Promise<unknown>) {
+      async withProgress(options: { location: number }, task: (progress: unknown, token: unknown) => Promise<unknown>) {
+        state.progressShown.push(options.location);
         const cancel = new EventEmitter<void>();
         const token = { isCancellationRequested: false, onCancellationRequested: cancel.event };
         const run = task({ report: () => undefined }, token);
-        if (state.cancelNextProgress) {
+        if (state.cancelNextProgress && options.location === 15) {
           state.cancelNextProgress = false;
           token.isCancellationRequested = true;
           cancel.fire();

@@ -34,12 +34,13 @@ beforeAll(async () => {
 });
 afterAll(() => worker?.dispose());
 
-function open(file: string) {
+function open(file: string, notificationDelayMs?: number) {
   const webview = new FakeWebview();
   const session = new ViewSession(webview as never, { mode: 'single', uri: Uri.file(file) as never }, {
     worker,
     getConfig: () => readConfig(() => undefined),
     memory: memento() as never,
+    ...(notificationDelayMs !== undefined ? { notificationDelayMs } : {}),
   });
   const watcher = shared.state.watchers.at(-1)!;
   return { webview, session, watcher };
@@ -64,8 +65,11 @@ describe('ViewSession', () => {
   it('loads, answers pages, reloads after a change keeping the selection, then reports the file vanished', async () => {
     const file = join(dir, 'live.csv');
     writeFileSync(file, GOOD);
-    const { webview, session, watcher } = open(file);
+    const shownBefore = shared.state.progressShown.length;
+    const { webview, session, watcher } = open(file, 10_000);
     await session.start();
+    // A read quicker than the delay shows progress in the window only: no notification flashing up.
+    expect(shared.state.progressShown.slice(shownBefore)).toEqual([10]);
     const states = webview.states();
     expect(states[0]).toMatchObject({ status: 'loading', mode: 'single' });
     expect(states.at(-1)).toMatchObject({ status: 'loaded', mode: 'single' });
@@ -117,7 +121,7 @@ describe('ViewSession', () => {
     const file = join(dir, 'cancel.csv');
     writeFileSync(file, GOOD);
     shared.state.cancelNextProgress = true;
-    const { webview, session } = open(file);
+    const { webview, session } = open(file, 0);
     await session.start();
     const last = webview.states().at(-1);
     expect(last.status).toBe('error');
