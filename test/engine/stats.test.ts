@@ -224,6 +224,18 @@ describe('bootstrap interval', () => {
     expect(interval!.high).toBeLessThan(mean + half * 1.1);
   });
 
+  it('sums mostly-zero columns over their non-zero rows without changing the result', async () => {
+    const rng = new Xoshiro128(21);
+    const dense = Float64Array.from({ length: 2000 }, () => rng.below(100) / 100 - 0.45);
+    const mostlyZero = dense.map((x, i) => (i % 4 === 0 ? x : 0)); // 25% non-zero: summed sparsely
+    const [, sparse] = await bootstrapMeanIntervals([dense, mostlyZero], { resamples: 300, seed: 6 });
+    // Reference: the same column made dense by a tiny offset that is removed afterwards.
+    const offset = 1e-3;
+    const [, shifted] = await bootstrapMeanIntervals([dense, mostlyZero.map((x) => x + offset)], { resamples: 300, seed: 6 });
+    expect(sparse!.low).toBeCloseTo(shifted!.low - offset, 12);
+    expect(sparse!.high).toBeCloseTo(shifted!.high - offset, 12);
+  });
+
   it('resamples columns with the same drawn queries', async () => {
     const rng = new Xoshiro128(3);
     const d = Float64Array.from({ length: 300 }, () => rng.below(100) / 100);

@@ -33,6 +33,7 @@ export async function bootstrapMeanIntervals(columns: readonly Float64Array[], o
   for (const column of columns) if (column.length !== n) throw new RangeError('bootstrap columns differ in length');
 
   const means = columns.map(() => new Float64Array(resamples));
+  const sparse = columns.map(nonZeroPart);
   const counts = new Float64Array(n);
   const rng = new Xoshiro128(options.seed);
   const pacer = new Pacer(options, resamples);
@@ -42,7 +43,10 @@ export async function bootstrapMeanIntervals(columns: readonly Float64Array[], o
       // One resample as multiplicities, then one sequential pass per column.
       counts.fill(0);
       rng.countDraws(counts, n);
-      for (let j = 0; j < m; j++) means[j]![done] = weightedSum(counts, columns[j]!) / n;
+      for (let j = 0; j < m; j++) {
+        const part = sparse[j];
+        means[j]![done] = (part ? sparseWeightedSum(counts, part.rows, part.values) : weightedSum(counts, columns[j]!)) / n;
+      }
     }
     await pacer.tick(done);
   }
@@ -52,6 +56,37 @@ export async function bootstrapMeanIntervals(columns: readonly Float64Array[], o
     column.sort();
     return { low: quantileSorted(column, alpha / 2), high: quantileSorted(column, 1 - alpha / 2) };
   });
+}
+
+/**
+ * Rows where a column is zero add nothing to its resampled sums. Two runs often agree exactly on many
+ * queries (same top of the list), so such columns are summed over their non-zero rows only.
+ */
+function nonZeroPart(column: Float64Array): { rows: Uint32Array; values: Float64Array } | undefined {
+  let nonZero = 0;
+  for (let i = 0; i < column.length; i++) if (column[i] !== 0) nonZero++;
+  if (nonZero > column.length * 0.6) return undefined;
+  const rows = new Uint32Array(nonZero);
+  const values = new Float64Array(nonZero);
+  for (let i = 0, k = 0; i < column.length; i++) {
+    if (column[i] !== 0) {
+      rows[k] = i;
+      values[k++] = column[i]!;
+    }
+  }
+  return { rows, values };
+}
+
+function sparseWeightedSum(counts: Float64Array, rows: Uint32Array, values: Float64Array): number {
+  let s0 = 0;
+  let s1 = 0;
+  let k = 0;
+  for (; k + 1 < rows.length; k += 2) {
+    s0 += counts[rows[k]!]! * values[k]!;
+    s1 += counts[rows[k + 1]!]! * values[k + 1]!;
+  }
+  if (k < rows.length) s0 += counts[rows[k]!]! * values[k]!;
+  return s0 + s1;
 }
 
 /** Σ counts[i]·values[i] with four accumulators, so the additions do not wait on each other. */
