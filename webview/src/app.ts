@@ -91,6 +91,11 @@ export class App implements AppContext {
   }
 
   openQuery(query: string, tab?: 'detail' | 'movement'): void {
+    if (this.mode === undefined) {
+      // Asked before the first result arrived: show it once the result is in.
+      this.restored = { tab: tab ?? 'detail', query };
+      return;
+    }
     const target: TabName = tab ?? (this.mode === 'compare' ? 'movement' : 'detail');
     this.selected = query;
     this.post({ kind: 'selection', query });

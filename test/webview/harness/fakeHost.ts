@@ -56,11 +56,12 @@ function ndcgAt(labels: number[], ranking: number[], k: number): number {
   return idcg === 0 ? NaN : dcg / idcg;
 }
 
-export function makeQueries(count: number, seed = 1): FakeQuery[] {
+export function makeQueries(count: number, seed = 1, bigItems = 0): FakeQuery[] {
   const r = rng(seed);
   const out: FakeQuery[] = [];
   for (let q = 0; q < count; q++) {
-    const n = 3 + Math.floor(r() * 20);
+    // Query 0 can be made long (many items) to time the detail view on a heavy list.
+    const n = q === 0 && bigItems > 0 ? bigItems : 3 + Math.floor(r() * 20);
     const labels = Array.from({ length: n }, () => Math.floor(r() * r() * 4));
     const scoresA = labels.map((g) => g * 0.3 + r());
     const scoresB = labels.map((g, i) => g * 0.35 + r() * 0.9 + (i === 0 ? 0.1 : 0));
@@ -86,10 +87,12 @@ export interface FakeHostOptions {
   readonly error?: string;
   /** Delay for every answer, to exercise loading states. */
   readonly delayMs?: number;
+  /** Items of query 0 (default: like the others). */
+  readonly bigItems?: number;
 }
 
 export function startFakeHost(options: FakeHostOptions): { send(message: HostToView): void; calls: { method: string; params: unknown }[]; queries: FakeQuery[]; overview: OverviewModel } {
-  const queries = makeQueries(options.queries);
+  const queries = makeQueries(options.queries, 1, options.bigItems ?? 0);
   const byId = new Map(queries.map((q) => [q.id, q]));
   const calls: { method: string; params: unknown }[] = [];
   const nul = (v: number) => (Number.isNaN(v) ? null : v);

@@ -7,5 +7,6 @@ const host = startFakeHost({
   queries: Number(params.get('queries') ?? '500'),
   error: params.get('error') ?? undefined,
   delayMs: Number(params.get('delay') ?? '0'),
+  bigItems: Number(params.get('items') ?? '0'),
 });
 (window as unknown as { __host: typeof host }).__host = host;

@@ -33,8 +33,18 @@ export class DetailScreen {
   private run: RunSide = 'a';
   private loadingQuery: string | null = null;
   private token = 0;
+  private readonly chartCanvas = el('canvas', { attrs: { role: 'img' } });
+  // Sections are kept across queries; the chart's section is never detached (re-attaching a chart
+  // canvas makes chart.js rebuild it, which is what made switching slow).
+  private readonly headBox = el('div');
+  private readonly ordersBox = el('div');
+  private readonly chartNote = el('p', { className: 'gl-muted' });
+  private readonly chartSection = el('section', {}, el('h2', { text: 'Cumulative DCG: model against ideal' }), this.chartNote, el('div', { className: 'gl-chart' }, this.chartCanvas));
+  private readonly pairsBox = el('div');
+  private readonly emptyNote = el('p', { className: 'gl-muted', text: 'Pick a query in the worst-queries table (Enter or click) to see its ranked list here.' });
 
   constructor(private readonly ctx: AppContext, private readonly options: DetailOptions) {
+    this.element.append(this.emptyNote, this.headBox, this.ordersBox, this.chartSection, this.pairsBox);
     this.renderEmpty();
   }
 
@@ -63,8 +73,9 @@ export class DetailScreen {
     } catch (e) {
       if (token !== this.token) return;
       this.detail = undefined;
-      clear(this.element);
-      this.element.append(
+      this.renderEmpty();
+      this.emptyNote.hidden = true;
+      this.headBox.append(
         el('div', { id: 'gl-detail-query', text: query }),
         el('p', { className: 'gl-worse', attrs: { role: 'alert' }, text: `Could not load this query: ${(e as Error).message}` }),
       );
@@ -81,17 +92,16 @@ export class DetailScreen {
   }
 
   private renderEmpty(): void {
-    this.chart?.destroy();
-    this.chart = undefined;
-    clear(this.element);
-    this.element.append(el('p', { className: 'gl-muted', text: 'Pick a query in the worst-queries table (Enter or click) to see its ranked list here.' }));
+    for (const box of [this.headBox, this.ordersBox, this.pairsBox]) clear(box);
+    this.emptyNote.hidden = false;
+    this.chartSection.hidden = true;
   }
 
   private render(): void {
     const d = this.detail!;
-    this.chart?.destroy();
-    this.chart = undefined;
-    clear(this.element);
+    for (const box of [this.headBox, this.ordersBox, this.pairsBox]) clear(box);
+    this.emptyNote.hidden = true;
+    this.chartSection.hidden = false;
     const conv = this.options.conventionsSummary();
     const keys = this.options.metricKeys();
 
@@ -115,7 +125,7 @@ export class DetailScreen {
       button('Copy as JSON', { icon: 'json', secondary: true, title: 'Copy this query with its items, labels, scores and metric values as JSON', onClick: () => this.ctx.copyQuery(d.query, this.run) }),
     );
 
-    this.element.append(
+    this.headBox.append(
       el('div', { className: 'gl-detail-head' },
         el('span', { id: 'gl-detail-query', text: d.query, title: 'Query id' }),
         el('span', { className: 'gl-muted', text: `${formatCount(d.positions.length)} items · DCG@${d.k} ${formatFixed(d.dcg)} of ideal ${formatFixed(d.idealDcg)}`, title: `NDCG@${d.k} = DCG / ideal DCG = ${exactValue(d.dcg)} / ${exactValue(d.idealDcg)}` })),
@@ -124,8 +134,13 @@ export class DetailScreen {
     );
 
     this.renderOrders(d);
-    this.renderCumulative(d);
     this.renderPairs(d);
+    // The lists are what the user looks at first; the chart follows on the next frame so a
+    // query switch paints at once.
+    const token = this.token;
+    requestAnimationFrame(() => {
+      if (token === this.token && this.detail === d) this.renderCumulative(d);
+    });
   }
 
   private renderOrders(d: QueryDetailView): void {
@@ -191,7 +206,7 @@ export class DetailScreen {
     const svg = renderConnector(links, rowsShown, 'Lines joining each item’s predicted position to its ideal position');
     const orders = el('div', { className: 'gl-orders' }, predicted, el('div', {}, svg), ideal);
 
-    this.element.append(
+    this.ordersBox.append(
       el('h2', { text: 'Predicted order against the ideal order' }),
       el('div', { className: 'gl-legend' },
         el('span', {}, el('span', { className: 'gl-swatch up' }), 'belongs higher (ranked too low)'),
@@ -201,37 +216,39 @@ export class DetailScreen {
       orders,
     );
     if (rowsShown < d.positions.length) {
-      this.element.appendChild(
+      this.ordersBox.appendChild(
         el('div', { className: 'gl-toolbar' },
           el('span', { className: 'gl-muted', text: `Showing ${formatCount(rowsShown)} of ${formatCount(d.positions.length)} items.` }),
           button(`Show ${formatCount(Math.min(SHOW_STEP, d.positions.length - rowsShown))} more`, { secondary: true, onClick: () => { this.shown += SHOW_STEP; this.render(); } })),
       );
     }
-    highlightItem(this.element, this.selectedItem);
+    highlightItem(this.ordersBox, this.selectedItem);
   }
 
   private renderCumulative(d: QueryDetailView): void {
     const n = Math.min(d.positions.length, Math.max(this.shown, d.k * 2));
     const slice = d.positions.slice(0, n);
-    const canvas = el('canvas', { attrs: { role: 'img', 'aria-label': `Cumulative DCG by position for the first ${n} positions, model order against ideal order` } });
-    this.element.append(
-      el('h2', { text: 'Cumulative DCG: model against ideal' }),
-      el('p', { className: 'gl-muted', text: `DCG accumulated down the list; positions beyond @${d.k} add nothing. The gap between the two curves is what the model order loses against the ideal order.` }),
-      el('div', { className: 'gl-chart' }, canvas),
-    );
-    this.chart = twoLineChart(canvas, {
+    this.chartCanvas.setAttribute('aria-label', `Cumulative DCG by position for the first ${n} positions, model order against ideal order`);
+    this.chartNote.textContent = `DCG accumulated down the list; positions beyond @${d.k} add nothing. The gap between the two curves is what the model order loses against the ideal order.`;
+    const series = {
       x: slice.map((p) => p.position),
       a: slice.map((p) => p.cumulativeDcg),
       b: slice.map((p) => p.idealCumulativeDcg),
-      aLabel: 'model order',
-      bLabel: 'ideal order',
-      xTitle: 'position',
-      yTitle: 'cumulative DCG',
-    });
+    };
+    // One chart for the screen's lifetime: creating a chart costs far more than updating its data,
+    // and switching queries must feel instant.
+    if (this.chart) {
+      this.chart.data.labels = series.x.map(String);
+      this.chart.data.datasets[0]!.data = series.a;
+      this.chart.data.datasets[1]!.data = series.b;
+      this.chart.update('none');
+      return;
+    }
+    this.chart = twoLineChart(this.chartCanvas, { ...series, aLabel: 'model order', bLabel: 'ideal order', xTitle: 'position', yTitle: 'cumulative DCG' });
   }
 
   private renderPairs(d: QueryDetailView): void {
-    this.element.append(
+    this.pairsBox.append(
       el('h2', { text: `Inverted pairs (${formatCount(d.invertedPairsTotal)})` }),
       el('p', { className: 'gl-muted', text: `Pairs where the model scored the better-graded item lower, largest NDCG@${d.k} recovered by swapping first${d.invertedPairs.length < d.invertedPairsTotal ? `; the first ${formatCount(d.invertedPairs.length)} are listed` : ''}.` }),
     );
@@ -258,13 +275,13 @@ export class DetailScreen {
         { text: formatFixed(p.ndcgRecovered), title: `${exactValue(p.ndcgRecovered)}${max > 0 ? ` (${formatFixed((p.ndcgRecovered / max) * 100, 0)}% of the largest)` : ''}` },
       ]),
     });
-    if (d.invertedPairs.length === 0) this.element.appendChild(el('p', { id: 'gl-inverted-pairs', text: 'No inverted pairs: every better-graded item is scored at least as high.' }));
-    else this.element.appendChild(table);
+    if (d.invertedPairs.length === 0) this.pairsBox.appendChild(el('p', { id: 'gl-inverted-pairs', text: 'No inverted pairs: every better-graded item is scored at least as high.' }));
+    else this.pairsBox.appendChild(table);
   }
 
   private pick(item: string): void {
     this.selectedItem = this.selectedItem === item ? null : item;
-    highlightItem(this.element, this.selectedItem);
+    highlightItem(this.ordersBox, this.selectedItem);
   }
 
   private async reveal(): Promise<void> {
