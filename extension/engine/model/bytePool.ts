@@ -3,21 +3,25 @@
  * buffer: the bytes are hashed into an open-addressing table and copied once into an arena, and a
  * JS string is only decoded when someone asks for it (`get`). A 10M-row dump with 1M distinct items
  * therefore creates at most 1M strings, and none while reading.
+ *
+ * Layout, chosen so a lookup touches two cache lines: each table slot holds [record start, hash];
+ * each arena record is [id: u32][length: u32][bytes], so the id, the length and the bytes to compare
+ * sit together.
  */
 import type { StringPool } from './stringPool';
 
 const EMPTY_SLOT = -1;
+const HEADER = 8;
 const decoder = new TextDecoder('utf-8');
 const encoder = new TextEncoder();
 
 export class BytePool implements StringPool {
   private arena = new Uint8Array(1 << 16);
   private arenaUsed = 0;
-  /** start of id i's bytes in `arena` is starts[i], end is starts[i + 1]. */
-  private starts = new Uint32Array(1025);
-  private hashes = new Int32Array(1024);
+  /** Arena record start of each id. */
+  private starts = new Uint32Array(1024);
   private count = 0;
-  /** Open addressing with linear probing; slot k holds [id, hash] at 2k, 2k+1 so one probe is one cache line. */
+  /** Linear probing; slot k holds the record start at 2k (-1 when empty) and the hash at 2k + 1. */
   private table = new Int32Array(2 * 2048).fill(EMPTY_SLOT);
   private mask = 2047;
   private decoded: (string | undefined)[] = [];
@@ -29,14 +33,13 @@ export class BytePool implements StringPool {
   /** The id of bytes[start, end), adding it when new. */
   intern(bytes: Uint8Array, start: number, end: number): number {
     const hash = hashBytes(bytes, start, end);
-    const len = end - start;
     const table = this.table;
     const mask = this.mask;
     let slot = hash & mask;
     for (;;) {
-      const id = table[2 * slot]!;
-      if (id === EMPTY_SLOT) break;
-      if (table[2 * slot + 1] === hash && this.sameBytes(id, bytes, start, len)) return id;
+      const record = table[2 * slot]!;
+      if (record === EMPTY_SLOT) break;
+      if (table[2 * slot + 1] === hash && this.recordEquals(record, bytes, start, end)) return this.idAt(record);
       slot = (slot + 1) & mask;
     }
     return this.add(bytes, start, end, hash, slot);
@@ -51,12 +54,11 @@ export class BytePool implements StringPool {
   /** The id of bytes[start, end), or -1 when never interned. */
   findBytes(bytes: Uint8Array, start: number, end: number): number {
     const hash = hashBytes(bytes, start, end);
-    const len = end - start;
     let slot = hash & this.mask;
     for (;;) {
-      const id = this.table[2 * slot]!;
-      if (id === EMPTY_SLOT) return -1;
-      if (this.table[2 * slot + 1] === hash && this.sameBytes(id, bytes, start, len)) return id;
+      const record = this.table[2 * slot]!;
+      if (record === EMPTY_SLOT) return -1;
+      if (this.table[2 * slot + 1] === hash && this.recordEquals(record, bytes, start, end)) return this.idAt(record);
       slot = (slot + 1) & this.mask;
     }
   }
@@ -70,7 +72,7 @@ export class BytePool implements StringPool {
     if (!(id >= 0 && id < this.count)) throw new RangeError(`string id ${id} out of range 0..${this.count - 1}`);
     let text = this.decoded[id];
     if (text === undefined) {
-      text = decoder.decode(this.arena.subarray(this.starts[id]!, this.starts[id + 1]!));
+      text = decoder.decode(this.bytesOf(id));
       this.decoded[id] = text;
     }
     return text;
@@ -78,44 +80,78 @@ export class BytePool implements StringPool {
 
   /** The raw bytes of id (a view into the arena; copy before keeping). */
   bytesOf(id: number): Uint8Array {
-    return this.arena.subarray(this.starts[id]!, this.starts[id + 1]!);
-  }
-
-  /** All distinct values as one byte block plus boundaries, for sending across threads. */
-  exportPacked(): { bytes: Uint8Array; starts: Uint32Array } {
-    return { bytes: this.arena.slice(0, this.arenaUsed), starts: this.starts.slice(0, this.count + 1) };
+    const record = this.starts[id]!;
+    return this.arena.subarray(record + HEADER, record + HEADER + this.lengthAt(record));
   }
 
   /** True when id's bytes equal bytes[start, end). */
   matches(id: number, bytes: Uint8Array, start: number, end: number): boolean {
-    return this.sameBytes(id, bytes, start, end - start);
+    return this.recordEquals(this.starts[id]!, bytes, start, end);
   }
 
-  private sameBytes(id: number, bytes: Uint8Array, start: number, len: number): boolean {
-    const s = this.starts[id]!;
-    if (this.starts[id + 1]! - s !== len) return false;
+  /** All distinct values as one byte block plus boundaries, for sending across threads. */
+  exportPacked(): { bytes: Uint8Array; starts: Uint32Array } {
+    const starts = new Uint32Array(this.count + 1);
+    const bytes = new Uint8Array(this.arenaUsed - this.count * HEADER);
+    let at = 0;
+    for (let id = 0; id < this.count; id++) {
+      starts[id] = at;
+      const b = this.bytesOf(id);
+      bytes.set(b, at);
+      at += b.length;
+    }
+    starts[this.count] = at;
+    return { bytes, starts };
+  }
+
+  private idAt(record: number): number {
+    const a = this.arena;
+    return (a[record]! | (a[record + 1]! << 8) | (a[record + 2]! << 16) | (a[record + 3]! << 24)) >>> 0;
+  }
+
+  private lengthAt(record: number): number {
+    const a = this.arena;
+    return (a[record + 4]! | (a[record + 5]! << 8) | (a[record + 6]! << 16) | (a[record + 7]! << 24)) >>> 0;
+  }
+
+  private recordEquals(record: number, bytes: Uint8Array, start: number, end: number): boolean {
+    const len = end - start;
+    if (this.lengthAt(record) !== len) return false;
     const arena = this.arena;
-    for (let i = 0; i < len; i++) if (arena[s + i] !== bytes[start + i]) return false;
+    const from = record + HEADER;
+    for (let i = 0; i < len; i++) if (arena[from + i] !== bytes[start + i]) return false;
     return true;
   }
 
   private add(bytes: Uint8Array, start: number, end: number, hash: number, slot: number): number {
     const len = end - start;
-    if (this.arenaUsed + len > this.arena.length) {
-      const grown = new Uint8Array(Math.max(this.arena.length * 2, this.arenaUsed + len));
+    const need = this.arenaUsed + HEADER + len;
+    if (need > 0x7fffffff) throw new RangeError('string pool larger than 2 GB');
+    if (need > this.arena.length) {
+      const grown = new Uint8Array(Math.min(0x7fffffff, Math.max(this.arena.length * 2, need)));
       grown.set(this.arena.subarray(0, this.arenaUsed));
       this.arena = grown;
     }
-    const arena = this.arena;
-    for (let i = 0, at = this.arenaUsed; i < len; i++) arena[at + i] = bytes[start + i]!;
     const id = this.count;
-    if (id + 2 > this.starts.length) this.starts = growTo(this.starts, this.starts.length * 2);
-    if (id + 1 > this.hashes.length) this.hashes = growTo(this.hashes, this.hashes.length * 2);
-    this.starts[id] = this.arenaUsed;
-    this.arenaUsed += len;
-    this.starts[id + 1] = this.arenaUsed;
-    this.hashes[id] = hash;
-    this.table[2 * slot] = id;
+    const record = this.arenaUsed;
+    const arena = this.arena;
+    arena[record] = id & 255;
+    arena[record + 1] = (id >>> 8) & 255;
+    arena[record + 2] = (id >>> 16) & 255;
+    arena[record + 3] = id >>> 24;
+    arena[record + 4] = len & 255;
+    arena[record + 5] = (len >>> 8) & 255;
+    arena[record + 6] = (len >>> 16) & 255;
+    arena[record + 7] = len >>> 24;
+    for (let i = 0, at = record + HEADER; i < len; i++) arena[at + i] = bytes[start + i]!;
+    this.arenaUsed = need;
+    if (id + 1 > this.starts.length) {
+      const grownStarts = new Uint32Array(this.starts.length * 2);
+      grownStarts.set(this.starts);
+      this.starts = grownStarts;
+    }
+    this.starts[id] = record;
+    this.table[2 * slot] = record;
     this.table[2 * slot + 1] = hash;
     this.count = id + 1;
     // Keep the load factor at or below 1/2 so probe chains stay short.
@@ -127,11 +163,14 @@ export class BytePool implements StringPool {
     const size = (this.mask + 1) * 2;
     const table = new Int32Array(2 * size).fill(EMPTY_SLOT);
     const mask = size - 1;
-    for (let id = 0; id < this.count; id++) {
-      const hash = this.hashes[id]!;
+    const old = this.table;
+    for (let s = 0; s < old.length; s += 2) {
+      const record = old[s]!;
+      if (record === EMPTY_SLOT) continue;
+      const hash = old[s + 1]!;
       let slot = hash & mask;
       while (table[2 * slot] !== EMPTY_SLOT) slot = (slot + 1) & mask;
-      table[2 * slot] = id;
+      table[2 * slot] = record;
       table[2 * slot + 1] = hash;
     }
     this.table = table;
@@ -147,10 +186,4 @@ export function hashBytes(bytes: Uint8Array, start: number, end: number): number
   h = Math.imul(h, 0x85ebca6b);
   h ^= h >>> 13;
   return h;
-}
-
-function growTo<T extends Uint32Array | Int32Array>(old: T, length: number): T {
-  const fresh = new (old.constructor as new (n: number) => T)(length);
-  fresh.set(old as never);
-  return fresh;
 }

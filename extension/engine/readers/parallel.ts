@@ -56,7 +56,7 @@ export async function readParallelDelimited(path: string, format: 'csv' | 'tsv',
     const e = results[failed] as Extract<RangeResult, { kind: 'error' }>;
     throw new InputError(e.expected, e.file, e.line === undefined ? undefined : e.line + lineOffsets[failed]!, e.found);
   }
-  const rows = merge(results as Extract<RangeResult, { kind: 'rows' }>[], lineOffsets, header.parser.columns!);
+  const rows = merge(results.splice(0) as Extract<RangeResult, { kind: 'rows' }>[], lineOffsets, header.parser.columns!);
   if (rows.count === 0) throw new InputError('at least one data row after the header', path, 2);
   await checkUnchanged(path, stamp);
   rows.countGaps();
@@ -151,6 +151,7 @@ function runWorkers(script: string, tasks: RangeTask[], size: number, options: R
   });
 }
 
+/** Merges ranges column by column, dropping each range's copy as soon as it is merged to bound peak memory. */
 function merge(parts: Extract<RangeResult, { kind: 'rows' }>[], lineOffsets: number[], headerRows: RowColumns): RowColumns {
   const rows = new RowColumns(headerRows.segmentNames, 16);
   rows.notes.messages.push(...headerRows.notes.messages);
@@ -164,18 +165,26 @@ function merge(parts: Extract<RangeResult, { kind: 'rows' }>[], lineOffsets: num
   const queryMaps = parts.map((p) => remap(rows.queries, p.queries));
   const itemMaps = parts.map((p) => remap(rows.items, p.items));
   const segmentMaps = parts.map((p) => p.segmentPools.map((packed, k) => remap(rows.segmentPools[k]!, packed)));
-  rows.query = concatMapped(parts.map((p) => p.query), queryMaps, total);
-  rows.item = concatMapped(parts.map((p) => p.item), itemMaps, total);
-  rows.segmentIds = headerRows.segmentNames.map((_, k) => concatMapped(parts.map((p) => p.segmentIds[k]!), segmentMaps.map((m) => m[k]!), total));
-  rows.label = concat(parts.map((p) => p.label), new Float64Array(total));
-  rows.score = concat(parts.map((p) => p.score), new Float64Array(total));
-  rows.offset = concat(parts.map((p) => p.offset), new Float64Array(total));
+  const columns = parts as unknown as Record<string, unknown>[];
+  const take = <T>(key: string): T[] => columns.map((c) => {
+    const value = c[key] as T;
+    c[key] = undefined;
+    return value;
+  });
+  rows.query = concatMapped(take<Uint32Array>('query'), queryMaps, total);
+  rows.item = concatMapped(take<Uint32Array>('item'), itemMaps, total);
+  const segmentColumns = take<Uint32Array[]>('segmentIds');
+  rows.segmentIds = headerRows.segmentNames.map((_, k) =>
+    concatMapped(segmentColumns.map((ids) => ids[k]!), segmentMaps.map((m) => m[k]!), total));
+  rows.label = concat(take<Float64Array>('label'), new Float64Array(total));
+  rows.score = concat(take<Float64Array>('score'), new Float64Array(total));
+  rows.offset = concat(take<Float64Array>('offset'), new Float64Array(total));
   rows.line = new Uint32Array(total);
   let at = 0;
-  parts.forEach((p, k) => {
+  take<Uint32Array>('line').forEach((lines, k) => {
     const shift = lineOffsets[k]!;
-    for (let i = 0; i < p.count; i++) rows.line[at + i] = p.line[i]! + shift;
-    at += p.count;
+    for (let i = 0; i < lines.length; i++) rows.line[at + i] = lines[i]! + shift;
+    at += lines.length;
   });
   rows.count = total;
   rows.capacity = total;
