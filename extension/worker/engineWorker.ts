@@ -38,6 +38,18 @@ type Session =
   | { readonly kind: 'compare'; readonly a: Loaded; readonly b: Loaded; readonly comparison: Comparison; readonly table: CompareTable };
 
 const sessions = new Map<string, Session>();
+/** Above this, a view's old data is dropped before reading again rather than kept to answer meanwhile. */
+const KEEP_WHILE_RELOADING_ROWS = 2_000_000;
+
+function rowsHeld(s: Session | undefined): number {
+  if (!s) return 0;
+  return s.kind === 'single' ? s.dump.rowCount : s.a.dump.rowCount + s.b.dump.rowCount;
+}
+
+/** Small views keep answering pages from their previous data while they are read again. */
+function prepareReload(key: string): void {
+  if (rowsHeld(sessions.get(key)) > KEEP_WHILE_RELOADING_ROWS) sessions.delete(key);
+}
 const flags: Int32Array | undefined = workerData?.cancelFlags instanceof SharedArrayBuffer ? new Int32Array(workerData.cancelFlags) : undefined;
 
 /** Progress at most every 100 ms, and a CancelledError as soon as the request is cancelled. */
@@ -114,7 +126,7 @@ function detailOf(l: Loaded, query: string, maxPairs?: number) {
 const handlers: RequestHandlers<WorkerRequests> = {
   async load({ session: key, source, settings }, ctx) {
     const started = performance.now();
-    sessions.delete(key);
+    prepareReload(key);
     const dump = await read(source, ctx, 0, 0.75);
     const groups = groupByQuery(dump);
     const metrics = parseMetricList(settings.metrics);
@@ -126,7 +138,7 @@ const handlers: RequestHandlers<WorkerRequests> = {
 
   async loadCompare({ session: key, a: sourceA, b: sourceB, settings }, ctx) {
     const started = performance.now();
-    sessions.delete(key);
+    prepareReload(key);
     const a = await read(sourceA, ctx, 0, 0.3, 'Reading run A,');
     const b = await read(sourceB, ctx, 0.3, 0.6, 'Reading run B,');
     const metrics = parseMetricList(settings.metrics);

@@ -105,6 +105,21 @@ describe('ViewSession', () => {
     expect(watcher.disposed).toBe(true);
   });
 
+  it('after the worker thread dies, the next request reads the file again instead of failing', async () => {
+    const file = join(dir, 'crash.csv');
+    writeFileSync(file, GOOD);
+    const { webview, session } = open(file);
+    await session.start();
+    const generation = worker.generation;
+    // Kill the thread from outside, as a crash would.
+    await (worker as unknown as { worker: { terminate(): Promise<number> } }).worker.terminate();
+    await until(() => !worker.running, 'worker stopped');
+    const page = await ask(webview, 21, 'queryPage', { offset: 0, limit: 5 });
+    expect(page).toMatchObject({ ok: true, result: { total: 1 } });
+    expect(worker.generation).toBe(generation + 1);
+    session.dispose();
+  });
+
   it('shows a reader error as one line', async () => {
     const file = join(dir, 'broken.csv');
     writeFileSync(file, 'query_id,item_id,label,score\nhammer,h1,1,not-a-number\n');
