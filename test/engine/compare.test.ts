@@ -138,6 +138,22 @@ describe('compareRuns', () => {
   });
 });
 
+describe('compareRuns input checks', () => {
+  it('refuses runs without a common query', async () => {
+    const other = buildDump(queryRows('garden hose 25m', [1, 0], [0.5, 0.4]));
+    await expect(compareRuns(runA, other, metrics, DEFAULT_CONVENTIONS)).rejects.toThrow(/shares at least one query/);
+  });
+
+  it("gives ERR one maximum grade for both runs (the higher of the two runs' highest grades)", async () => {
+    const low = buildDump(queryRows('cordless drill 18v', [1, 0], [0.9, 0.1]));
+    const high = buildDump(queryRows('cordless drill 18v', [1, 0, 4], [0.9, 0.1, 0.05]));
+    const c = await compareRuns(low, high, parseMetricList('err@2'), DEFAULT_CONVENTIONS, { bootstrap: 10 });
+    expect(c.conventions.maxGrade).toBe(4);
+    // ERR@2 of run A with g_max = 4: R = (2^1 − 1)/2^4 = 1/16 at rank 1 (Chapelle et al. 2009).
+    expect(c.perQuery.a[0]![0]).toBeCloseTo(1 / 16, 12);
+  });
+});
+
 describe('segmentDeltas', () => {
   it('splits the paired deltas by the segment value of run A', async () => {
     const c = await compareRuns(runA, runB, metrics, DEFAULT_CONVENTIONS, { bootstrap: 50 });

@@ -22,7 +22,6 @@ export interface Interval {
   readonly high: number;
 }
 
-const CHECK_EVERY = 64;
 
 /** One interval per column; every column must have the same length. NaN bounds when there are no values. */
 export async function bootstrapMeanIntervals(columns: readonly Float64Array[], options: BootstrapOptions): Promise<Interval[]> {
@@ -37,8 +36,10 @@ export async function bootstrapMeanIntervals(columns: readonly Float64Array[], o
   const counts = new Float64Array(n);
   const rng = new Xoshiro128(options.seed);
   const pacer = new Pacer(options, resamples);
+  // About a few million multiply-adds between two cancellation checks, whatever the data size.
+  const checkEvery = Math.max(1, Math.floor(4_000_000 / (n * (m + 1))));
   for (let done = 0; done < resamples; ) {
-    const end = Math.min(resamples, done + CHECK_EVERY);
+    const end = Math.min(resamples, done + checkEvery);
     for (; done < end; done++) {
       // One resample as multiplicities, then one sequential pass per column.
       counts.fill(0);

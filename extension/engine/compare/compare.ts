@@ -5,6 +5,7 @@
  */
 import { evaluate, gradeRange } from '../evaluate/evaluate';
 import type { Evaluation } from '../evaluate/types';
+import { InputError } from '../errors';
 import type { Conventions, MetricSpec } from '../metrics/conventions';
 import type { RankedDump } from '../model/dump';
 import { groupByQuery, type QueryGroups } from '../model/groups';
@@ -104,6 +105,9 @@ export async function compareRuns(
   const groupsB = groupByQuery(b);
   progress.stage(0.05);
   const match = matchRuns(a, b, groupsA, groupsB);
+  if (match.commonA.length === 0) {
+    throw new InputError(`a run that shares at least one query with ${a.path} (none of its ${match.queriesInB} queries appear there)`, b.path);
+  }
   const shared = sharedConventions(a, b, metrics, conventions);
   const evaluateOne = (dump: RankedDump, groups: QueryGroups): Evaluation =>
     evaluate(dump, metrics, shared, { groups, signal: o.signal, sensitivity: false, onProgress: progress.report });
