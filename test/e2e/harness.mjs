@@ -63,22 +63,49 @@ async function quickInput(page) {
   return widget;
 }
 
+function exactLabel(text) {
+  const escaped = text.replace(/[.*+?^${}()|[\]\\]/g, '\\$&');
+  return new RegExp(`^\\s*${escaped}\\s*$`);
+}
+
+/** The quick-pick row whose label is exactly `label` (fuzzy neighbours never match). */
+function exactRow(widget, label) {
+  return widget.locator('.quick-input-list .monaco-list-row')
+    .filter({ has: widget.page().locator('.label-name', { hasText: exactLabel(label) }) }).first();
+}
+
 /**
- * Runs a command by its palette title. The palette does not refresh when an
- * extension registers its commands later, so a miss closes it and tries again
- * until `timeoutMs`. Only a row whose label contains the title is accepted.
+ * Keys pressed while a webview iframe has focus do not always reach the
+ * workbench; blurring the iframe hands the keyboard back to it.
+ */
+export async function focusWorkbench(page) {
+  await page.evaluate(() => {
+    const active = document.activeElement;
+    if (active && active.tagName === 'IFRAME') active.blur();
+  });
+}
+
+/**
+ * Runs a command by its exact palette title. The palette does not refresh when
+ * an extension registers its commands later, so a miss closes it and tries
+ * again until `timeoutMs`.
  */
 export async function runCommand(page, title, { timeoutMs = 30_000 } = {}) {
   const deadline = Date.now() + timeoutMs;
   for (;;) {
     await page.keyboard.press('Escape');
+    await focusWorkbench(page);
     await page.keyboard.press('F1');
-    const widget = await quickInput(page);
-    await widget.locator('input.input').fill(`>${title}`);
-    const focused = widget.locator('.quick-input-list .monaco-list-row.focused', { hasText: title }).first();
-    const found = await focused.waitFor({ state: 'visible', timeout: 3_000 }).then(() => true, () => false);
+    const widget = page.locator('.quick-input-widget');
+    const opened = await widget.waitFor({ state: 'visible', timeout: 3_000 }).then(() => true, () => false);
+    let found = false;
+    const row = exactRow(widget, title);
+    if (opened) {
+      await widget.locator('input.input').fill(`>${title}`);
+      found = await row.waitFor({ state: 'visible', timeout: 3_000 }).then(() => true, () => false);
+    }
     if (found) {
-      await page.keyboard.press('Enter');
+      await row.click();
       return;
     }
     if (Date.now() > deadline) {
@@ -90,22 +117,22 @@ export async function runCommand(page, title, { timeoutMs = 30_000 } = {}) {
 }
 
 /** Picks a row in whatever quick pick is open (e.g. after a command asked a question). */
-export async function pickQuickItem(page, text, { timeoutMs = 15_000 } = {}) {
+export async function pickQuickItem(page, text, { timeoutMs = 15_000, exact = true } = {}) {
   const widget = await quickInput(page);
-  const row = widget.locator('.quick-input-list .monaco-list-row', { hasText: text }).first();
+  const row = exact ? exactRow(widget, text) : widget.locator('.quick-input-list .monaco-list-row', { hasText: text }).first();
   await row.waitFor({ state: 'visible', timeout: timeoutMs });
   await row.click();
 }
 
-/** Types into the open quick input (file picker, input box) and accepts. */
+/** Types into the open quick input (file picker, theme picker) and picks the row labelled `pickText`. */
 export async function typeInQuickInput(page, text, { pickText, timeoutMs = 15_000 } = {}) {
   const widget = await quickInput(page);
   await widget.locator('input.input').fill(text);
   if (pickText) {
-    await widget.locator('.quick-input-list .monaco-list-row', { hasText: pickText }).first()
-      .waitFor({ state: 'visible', timeout: timeoutMs });
+    await pickQuickItem(page, pickText, { timeoutMs });
+  } else {
+    await page.keyboard.press('Enter');
   }
-  await page.keyboard.press('Enter');
 }
 
 /** Opens a workspace file through Quick Open (Ctrl+P) by its relative path. */

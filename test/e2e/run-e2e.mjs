@@ -3,11 +3,11 @@
 // fresh profile, open a copy of the demo workspace, run every scenario through
 // the real UI, stop everything, and close with "N passed, N failed".
 //
-// Options: --only <text> (run scenarios whose name contains text),
+// Options: --only <regex> (run scenarios whose name matches),
 //          --skip-package (reuse the existing .vsix), --update-media (copy the
 //          README screenshots into media/), --headed-url (print the URL and wait).
 import { spawnSync } from 'node:child_process';
-import { copyFileSync, mkdirSync } from 'node:fs';
+import { copyFileSync, mkdirSync, readFileSync, rmSync } from 'node:fs';
 import { join } from 'node:path';
 import { ensureCodeServer, E2E_DIR, isInstalled, REPO_ROOT } from '../support/code-server-install.mjs';
 import { installVsix, prepareProfile, startCodeServer } from '../support/code-server-launch.mjs';
@@ -46,8 +46,9 @@ function withTimeout(promise, ms, what) {
 async function main() {
   const started = Date.now();
   console.log('desktop integration suite (@vscode/test-electron): not run, no desktop VS Code can be downloaded here; the code-server suite below carries the proof');
+  rmSync(artifacts, { recursive: true, force: true });
   mkdirSync(artifacts, { recursive: true });
-  const selected = SCENARIOS.filter((s) => !only || s.name.includes(only));
+  const selected = SCENARIOS.filter((s) => !only || new RegExp(only, 'i').test(s.name));
   const results = [];
   let server;
   let browser;
@@ -56,7 +57,7 @@ async function main() {
     const t0 = Date.now();
     ensureCodeServer({ log });
     log(`code-server ${wasInstalled ? 'already installed' : 'installed'} (${seconds(Date.now() - t0)})`);
-    let vsix = join(REPO_ROOT, `gainline-${JSON.parse((await import('node:fs')).readFileSync(join(REPO_ROOT, 'package.json'), 'utf8')).version}.vsix`);
+    let vsix = join(REPO_ROOT, `gainline-${JSON.parse(readFileSync(join(REPO_ROOT, 'package.json'), 'utf8')).version}.vsix`);
     if (!skipPackage) {
       const t1 = Date.now();
       build();
