@@ -43,15 +43,19 @@ export function gradeRange(dump: RankedDump): { lowest: number; highest: number 
 
 /** Checks the conventions against the data once, before any query is scored; returns ERR's g_max. */
 export function checkConventions(dump: RankedDump, metrics: readonly MetricSpec[], c: Conventions): number {
-  const { lowest, highest } = gradeRange(dump);
+  return checkAgainstRange(gradeRange(dump), metrics, c, dump.path);
+}
+
+function checkAgainstRange(range: { lowest: number; highest: number }, metrics: readonly MetricSpec[], c: Conventions, path: string): number {
+  const { lowest, highest } = range;
   checkGainApplies(c.gain, lowest);
   if (!(c.rbpPersistence > 0 && c.rbpPersistence < 1)) {
     throw new InputError('an RBP persistence strictly between 0 and 1', undefined, undefined, String(c.rbpPersistence));
   }
   const gmax = c.maxGrade ?? highest;
   if (metrics.some((m) => m.name === 'err')) {
-    if (lowest < 0) throw new InputError('grades >= 0 for ERR', dump.path, undefined, String(lowest));
-    if (highest > gmax) throw new InputError(`grades <= the maximum grade ${gmax} for ERR`, dump.path, undefined, String(highest));
+    if (lowest < 0) throw new InputError('grades >= 0 for ERR', path, undefined, String(lowest));
+    if (highest > gmax) throw new InputError(`grades <= the maximum grade ${gmax} for ERR`, path, undefined, String(highest));
   }
   return gmax;
 }
@@ -62,13 +66,14 @@ export function evaluate(
   conventions: Conventions,
   options: EvaluateOptions = {},
 ): Evaluation {
-  const gmax = checkConventions(dump, metrics, conventions);
+  const range = gradeRange(dump);
+  const gmax = checkAgainstRange(range, metrics, conventions, dump.path);
   const groups = options.groups ?? groupByQuery(dump);
   const queryCount = groups.start.length - 1;
   const scorer = new QueryScorer(conventions, metrics, gmax);
   const ranking = new QueryRanking();
   const seen = new SeenItems(dump.items.size);
-  const sensitivity = options.sensitivity === false ? undefined : new SensitivityPass(conventions, scorer.headlineK, gradeRange(dump).lowest);
+  const sensitivity = options.sensitivity === false ? undefined : new SensitivityPass(conventions, scorer.headlineK, range.lowest);
   const hasRbp = metrics.some((m) => m.name === 'rbp');
 
   const values = metrics.map(() => new Float64Array(queryCount));

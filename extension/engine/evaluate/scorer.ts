@@ -78,7 +78,12 @@ export class QueryScorer {
 
   private readonly gainOf: GainFunction;
   private readonly monotone: boolean;
-  private readonly err: ErrCalculator;
+  private readonly err = new ErrCalculator();
+  private readonly stopOf: (grade: number) => number;
+  private readonly hasErr: boolean;
+  /** ERR's stop probability per arranged slot. */
+  private stop = new Float64Array(16);
+  private stopOfRank = new Float64Array(16);
   private readonly pairCounter = new PairCounter();
   private readonly rbpOut = new Float64Array(2);
   private readonly rbpIndex: number;
@@ -95,7 +100,8 @@ export class QueryScorer {
     this.values = new Float64Array(metrics.length);
     this.gainOf = gainFunction(conventions.gain);
     this.monotone = isMonotone(conventions.gain);
-    this.err = new ErrCalculator(errStopProbability(gmax));
+    this.stopOf = errStopProbability(gmax);
+    this.hasErr = metrics.some((m) => m.name === 'err');
     this.rbpIndex = metrics.findIndex((m) => m.name === 'rbp');
   }
 
@@ -114,6 +120,10 @@ export class QueryScorer {
       const r = grades.rank[order[i]!]!;
       this.arrangedRank[i] = r;
       this.gain[i] = this.gainOfRank[r]!;
+    }
+    if (this.hasErr) {
+      for (let r = 0; r < d; r++) this.stopOfRank[r] = this.stopOf(grades.values[r]!);
+      for (let i = 0; i < n; i++) this.stop[i] = this.stopOfRank[this.arrangedRank[i]!]!;
     }
     this.ideal.build(this.gainOfRank, grades, this.monotone);
     const relevant = grades.atLeast(c.relevantFrom);
@@ -138,7 +148,7 @@ export class QueryScorer {
           v = dcg(list, this.gain, k);
           break;
         case 'err':
-          v = this.err.compute(list.grade, list.bounds, list.groups, n, k);
+          v = this.err.compute(this.stop, list.bounds, list.groups, n, k);
           break;
         case 'p':
           v = relevantInTop(list, from, k) / (spec.k ?? Math.max(n, 1));
@@ -218,7 +228,11 @@ export class QueryScorer {
       this.gain = new Float64Array(size);
       this.arrangedRank = new Uint32Array(size);
       this.headlineDiscount = new Float64Array(size);
+      this.stop = new Float64Array(size);
     }
-    if (this.gainOfRank.length < distinct) this.gainOfRank = new Float64Array(Math.max(distinct, this.gainOfRank.length * 2));
+    if (this.gainOfRank.length < distinct) {
+      this.gainOfRank = new Float64Array(Math.max(distinct, this.gainOfRank.length * 2));
+      this.stopOfRank = new Float64Array(this.gainOfRank.length);
+    }
   }
 }

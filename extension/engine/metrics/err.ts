@@ -19,15 +19,9 @@ export class ErrCalculator {
   private distinctR = new Float64Array(16);
   private distinctCount = new Uint32Array(16);
 
-  constructor(
-    /** R per grade. */
-    private readonly stopProbability: (grade: number) => number,
-  ) {}
-
-  /** ERR@k of `grade` slots split into groups by `bounds`. */
-  compute(grade: Float64Array, bounds: Uint32Array, groups: number, n: number, k: number): number {
+  /** ERR@k of slots with stop probability `stop` (R of each slot's grade), split into groups by `bounds`. */
+  compute(stop: Float64Array, bounds: Uint32Array, groups: number, n: number, k: number): number {
     const depth = Math.min(k, n);
-    const R = this.stopProbability;
     let reach = 1; // probability the user reaches the group's first slot
     let total = 0;
     for (let g = 0; g < groups && reach > 0; g++) {
@@ -35,27 +29,26 @@ export class ErrCalculator {
       if (s >= depth) break;
       const e = bounds[g + 1]!;
       if (e - s === 1) {
-        const r = R(grade[s]!);
+        const r = stop[s]!;
         total += (reach * r) / (s + 1);
         reach *= 1 - r;
         continue;
       }
-      const distinct = this.collect(grade, s, e);
+      const distinct = this.collect(stop, s, e);
       total += reach * this.groupExpectation(distinct, e - s, s, Math.min(e, depth) - s);
       for (let d = 0; d < distinct; d++) reach *= Math.pow(1 - this.distinctR[d]!, this.distinctCount[d]!);
     }
     return total;
   }
 
-  private collect(grade: Float64Array, s: number, e: number): number {
+  private collect(stop: Float64Array, s: number, e: number): number {
     if (this.distinctR.length < e - s) {
       this.distinctR = new Float64Array(e - s);
       this.distinctCount = new Uint32Array(e - s);
     }
-    const R = this.stopProbability;
     let distinct = 0;
     outer: for (let i = s; i < e; i++) {
-      const r = R(grade[i]!);
+      const r = stop[i]!;
       for (let d = 0; d < distinct; d++) {
         if (this.distinctR[d] === r) {
           this.distinctCount[d]!++;
