@@ -4,7 +4,8 @@
  * the inverted pairs ranked by the NDCG a swap would recover.
  */
 import type { Chart } from 'chart.js';
-import type { QueryDetailView, RunSide } from '../../../extension/protocol/messages';
+import type { PositionView, QueryDetailView, RunSide } from '../../../extension/protocol/messages';
+import { exportParams, type ColumnDef } from '../model/tableModel';
 import { COLUMN_EXPLANATIONS, explainMetric, metricLabel } from '../model/explain';
 import { exactValue, formatCount, formatFixed } from '../model/format';
 import { twoLineChart } from '../ui/charts';
@@ -13,7 +14,8 @@ import { button, clear, el } from '../ui/dom';
 import { highlightItem, renderConnector, renderOrderList, type ConnectorLink } from '../ui/orderLists';
 import { staticTable } from '../ui/staticTable';
 
-const SHOW_STEP = 100;
+// Enough for nearly every real query; longer lists grow on request so a switch stays fast.
+const SHOW_STEP = 300;
 const num = (v: number | null): number => (v === null ? NaN : v);
 const f4 = (v: number | null): string => formatFixed(num(v), 4);
 const grade = (v: number | null): string => (v === null ? 'unjudged' : String(v));
@@ -123,6 +125,8 @@ export class DetailScreen {
     actions.append(
       button('Reveal in File', { id: 'gl-reveal-in-file', icon: 'go-to-file', title: 'Open the dump at the selected item’s row (the first item when none is selected)', onClick: () => void this.reveal() }),
       button('Copy as JSON', { icon: 'json', secondary: true, title: 'Copy this query with its items, labels, scores and metric values as JSON', onClick: () => this.ctx.copyQuery(d.query, this.run) }),
+      button('Markdown', { icon: 'markdown', secondary: true, title: 'Export this query’s ranked list as Markdown', onClick: () => this.export('markdown') }),
+      button('CSV', { icon: 'export', secondary: true, title: 'Export this query’s ranked list as CSV', onClick: () => this.export('csv') }),
     );
 
     this.headBox.append(
@@ -277,6 +281,24 @@ export class DetailScreen {
     });
     if (d.invertedPairs.length === 0) this.pairsBox.appendChild(el('p', { id: 'gl-inverted-pairs', text: 'No inverted pairs: every better-graded item is scored at least as high.' }));
     else this.pairsBox.appendChild(table);
+  }
+
+  private export(format: 'markdown' | 'csv'): void {
+    const d = this.detail;
+    if (!d) return;
+    const columns: ColumnDef<PositionView>[] = [
+      { key: 'position', label: 'Position', title: '', value: (p) => p.position },
+      { key: 'item', label: 'Item', title: '', value: (p) => p.item },
+      { key: 'label', label: 'Label', title: '', value: (p) => p.label },
+      { key: 'score', label: 'Score', title: '', value: (p) => p.score },
+      { key: 'gain', label: 'Gain', title: '', value: (p) => p.gain },
+      { key: 'discount', label: 'Discount', title: '', value: (p) => p.discount },
+      { key: 'contribution', label: 'Contribution', title: '', value: (p) => p.contribution },
+      { key: 'cumulativeDcg', label: 'Cumulative DCG', title: '', value: (p) => p.cumulativeDcg },
+      { key: 'idealCumulativeDcg', label: 'Ideal cumulative DCG', title: '', value: (p) => p.idealCumulativeDcg },
+      { key: 'idealPosition', label: 'Ideal position', title: '', value: (p) => p.idealPosition },
+    ];
+    this.ctx.exportTable(exportParams(`Query ${d.query}${this.options.compareMode() ? ` (run ${this.run.toUpperCase()})` : ''}`, columns, d.positions, format, 'file'));
   }
 
   private pick(item: string): void {
