@@ -32,7 +32,11 @@ export class BytePool implements StringPool {
 
   /** The id of bytes[start, end), adding it when new. */
   intern(bytes: Uint8Array, start: number, end: number): number {
-    const hash = hashBytes(bytes, start, end);
+    return this.internHashed(bytes, start, end, hashBytes(bytes, start, end));
+  }
+
+  /** `intern` for callers that computed `hashBytes(bytes, start, end)` while scanning the field. */
+  internHashed(bytes: Uint8Array, start: number, end: number, hash: number): number {
     const table = this.table;
     const mask = this.mask;
     let slot = hash & mask;
@@ -178,10 +182,18 @@ export class BytePool implements StringPool {
   }
 }
 
+export const HASH_SEED = 0x811c9dc5 | 0;
+export const HASH_PRIME = 0x01000193;
+
 /** FNV-1a over the bytes, with a final avalanche so low bits (used for slots) mix well. */
 export function hashBytes(bytes: Uint8Array, start: number, end: number): number {
-  let h = 0x811c9dc5 | 0;
-  for (let i = start; i < end; i++) h = Math.imul(h ^ bytes[i]!, 0x01000193);
+  let h = HASH_SEED;
+  for (let i = start; i < end; i++) h = Math.imul(h ^ bytes[i]!, HASH_PRIME);
+  return finishHash(h);
+}
+
+/** The avalanche step of `hashBytes`, for callers that ran the FNV loop themselves. */
+export function finishHash(h: number): number {
   h ^= h >>> 16;
   h = Math.imul(h, 0x85ebca6b);
   h ^= h >>> 13;

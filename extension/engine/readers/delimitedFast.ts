@@ -6,7 +6,11 @@
  * interning is idempotent and a row is only counted once all of its fields are stored.
  */
 import type { RowColumns } from './columns';
+import { finishHash, HASH_PRIME, HASH_SEED } from '../model/bytePool';
 import { parseNumber } from './numbers';
+
+const TWO_53 = 2 ** 53;
+const POW10 = Array.from({ length: 23 }, (_, k) => Number(`1e${k}`));
 
 export const ROLE_QUERY = 0;
 export const ROLE_ITEM = 1;
@@ -58,11 +62,53 @@ export function parseSimpleRecords(state: FastState, buf: Buffer, pos: number, l
     let ok = true;
     for (let f = 0; f < fields; f++) {
       const s = pos;
+      const role = roleOf[f]!;
+      let value = 0;
       c = 0;
-      while (pos < limit) {
-        c = buf[pos]!;
-        if (c < 14 || c === delimiter) break;
-        pos++;
+      if (role === ROLE_ITEM || role === ROLE_QUERY || role >= ROLE_SEGMENT) {
+        // Scan and hash in one pass; the hash is only used when the id is looked up.
+        let h = HASH_SEED;
+        while (pos < limit) {
+          c = buf[pos]!;
+          if (c < 14 || c === delimiter) break;
+          h = Math.imul(h ^ c, HASH_PRIME);
+          pos++;
+        }
+        value = h;
+      } else {
+        // Plain decimals are parsed during the scan (see numbers.ts for why m / 10^k is exact).
+        let mantissa = 0;
+        let digits = 0;
+        let fraction = -1;
+        const negative = pos < limit && buf[pos] === 45;
+        if (negative) pos++;
+        while (pos < limit) {
+          c = buf[pos]!;
+          const d = c - 48;
+          if (d >= 0 && d <= 9) {
+            mantissa = mantissa * 10 + d;
+            digits++;
+          } else if (c === 46 && fraction < 0) {
+            fraction = digits;
+          } else break;
+          pos++;
+        }
+        const fractionDigits = fraction < 0 ? 0 : digits - fraction;
+        if ((pos >= limit || c < 14 || c === delimiter) && digits > 0 && mantissa <= TWO_53 && fractionDigits <= 22) {
+          value = fractionDigits === 0 ? mantissa : mantissa / POW10[fractionDigits]!;
+          if (negative) value = -value;
+        } else {
+          while (pos < limit) {
+            c = buf[pos]!;
+            if (c < 14 || c === delimiter) break;
+            pos++;
+          }
+          value = parseNumber(buf, s, pos);
+          if (value - value !== 0) {
+            ok = false;
+            break;
+          }
+        }
       }
       const e = pos;
       if (f < fields - 1) {
@@ -79,31 +125,23 @@ export function parseSimpleRecords(state: FastState, buf: Buffer, pos: number, l
         }
         pos++;
       }
-      const role = roleOf[f]!;
       if (role === ROLE_ITEM) {
-        rows.item[row] = items.intern(buf, s, e);
+        rows.item[row] = items.internHashed(buf, s, e, finishHash(value));
       } else if (role === ROLE_QUERY) {
-        if (lastQuery < 0 || !queries.matches(lastQuery, buf, s, e)) lastQuery = queries.intern(buf, s, e);
+        if (lastQuery < 0 || !queries.matches(lastQuery, buf, s, e)) lastQuery = queries.internHashed(buf, s, e, finishHash(value));
         rows.query[row] = lastQuery;
       } else if (role === ROLE_LABEL) {
-        label = parseNumber(buf, s, e);
-        if (label - label !== 0) {
-          ok = false;
-          break;
-        }
-      } else if (role === ROLE_SCORE || (role === ROLE_RANK && state.rankStandsInForScore)) {
-        score = parseNumber(buf, s, e);
-        if (score - score !== 0) {
-          ok = false;
-          break;
-        }
-        if (role === ROLE_RANK) score = -score;
-      } else if (role >= ROLE_SEGMENT) {
+        label = value;
+      } else if (role === ROLE_SCORE) {
+        score = value;
+      } else if (role === ROLE_RANK) {
+        if (state.rankStandsInForScore) score = -value;
+      } else {
         const k = role - ROLE_SEGMENT;
         const pool = rows.segmentPools[k]!;
         let id = state.lastSegment[k]!;
         if (id < 0 || !pool.matches(id, buf, s, e)) {
-          id = pool.intern(buf, s, e);
+          id = pool.internHashed(buf, s, e, finishHash(value));
           state.lastSegment[k] = id;
         }
         rows.segmentIds[k]![row] = id;
