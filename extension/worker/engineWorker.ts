@@ -6,6 +6,7 @@
  * every progress tick, the synchronous evaluation loop too — a cancel message alone could not be seen
  * while the thread is busy.
  */
+import { availableParallelism } from 'node:os';
 import { parentPort, workerData } from 'node:worker_threads';
 import { CancelledError, InputError } from '../engine/errors';
 import { compareRuns } from '../engine/compare/compare';
@@ -67,6 +68,8 @@ function progressReporter(ctx: HandlerContext, from: number, to: number, message
 
 async function read(source: DumpSource, ctx: HandlerContext, from: number, to: number, label = 'Reading'): Promise<RankedDump> {
   const options: ReadOptions = {
+    // On two cores or fewer, extra parse threads would starve the extension host and the UI.
+    ...(availableParallelism() <= 2 ? { threads: 1 } : {}),
     signal: ctx.signal,
     onProgress: progressReporter(ctx, from, to, `${label} ${source.path.split(/[\\/]/).pop()}…`),
     ...(source.format ? { format: source.format as ReadOptions['format'] } : {}),

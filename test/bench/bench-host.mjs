@@ -42,6 +42,7 @@ export { evaluate } from './extension/engine/evaluate/evaluate';
 export { parseMetricList } from './extension/engine/metrics/parse';
 export { DEFAULT_CONVENTIONS } from './extension/engine/metrics/conventions';
 export { metricsForCutoffs } from './extension/host/config';
+export * as parallelReading from './extension/engine/readers/parallel';
 `;
 await esbuild.build({
   stdin: { contents: entry, resolveDir: root, loader: 'ts' }, bundle: true, platform: 'node', format: 'cjs',
@@ -124,7 +125,8 @@ await worker.call('queryPage', { session: 'bench', offset: 100, limit: 100, sort
 console.log(`  re-sort 10k queries: max ${fmt(Math.max(...sortMs))}; next page of a cached order ${fmt(performance.now() - t)}`);
 worker.dispose();
 
-// 4. Peer: the same read + evaluate on the main thread.
+// 4. Peer: the same read + evaluate on the main thread (with the same parse threads for big files).
+host.parallelReading.setParseWorkerScript?.(join(root, 'dist', 'parseWorker.js'));
 probe = stallProbe();
 started = performance.now();
 const dump = await host.readDump(file, {});
