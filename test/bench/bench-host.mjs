@@ -8,7 +8,7 @@
 import { spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, mkdtempSync, writeFileSync } from 'node:fs';
 import { createRequire } from 'node:module';
-import { cpus, loadavg, tmpdir } from 'node:os';
+import { availableParallelism, cpus, loadavg, tmpdir } from 'node:os';
 import { dirname, join, resolve } from 'node:path';
 import { monitorEventLoopDelay } from 'node:perf_hooks';
 import { fileURLToPath } from 'node:url';
@@ -129,7 +129,7 @@ worker.dispose();
 host.parallelReading.setParseWorkerScript?.(join(root, 'dist', 'parseWorker.js'));
 probe = stallProbe();
 started = performance.now();
-const dump = await host.readDump(file, {});
+const dump = await host.readDump(file, availableParallelism() <= 2 ? { threads: 1 } : {}); // same rule as the worker
 host.evaluate(dump, host.parseMetricList(settings.metrics), settings.conventions);
 const inThreadMs = performance.now() - started;
 const inThreadStall = probe.stop();
