@@ -118,16 +118,16 @@ export class CompareScreen {
   private columns(): ColumnDef<MetricLine>[] {
     const f = (v: Cell) => (typeof v === 'number' ? formatFixed(v) : MISSING);
     const cols: ColumnDef<MetricLine>[] = [
-      { key: 'metric', label: 'Metric', title: 'Metric, as configured.', value: (l) => l.row.label, width: 1.2 },
-      { key: 'meanA', label: 'Mean A', title: 'Mean over the paired queries in run A.', value: (l) => l.row.meanA, format: f, numeric: true },
-      { key: 'meanB', label: 'Mean B', title: 'Mean over the paired queries in run B.', value: (l) => l.row.meanB, format: f, numeric: true },
+      { key: 'metric', label: 'Metric', title: 'Metric, as configured.', value: (l) => l.row.label, width: 1.1 },
+      { key: 'meanA', label: 'Mean A', title: 'Mean over the paired queries in run A.', value: (l) => l.row.meanA, format: f, numeric: true, width: 0.9 },
+      { key: 'meanB', label: 'Mean B', title: 'Mean over the paired queries in run B.', value: (l) => l.row.meanB, format: f, numeric: true, width: 0.9 },
       { key: 'delta', label: 'Δ (B − A)', title: 'Mean B − mean A (mean of the per-query differences).', value: (l) => l.row.delta, format: (v) => (typeof v === 'number' ? formatDelta(v) : MISSING), numeric: true },
       {
         key: 'interval',
         label: '95% interval',
         title: '95% confidence interval of the mean difference, as computed by the host.',
-        value: (l) => (l.row.intervalLow === null || l.row.intervalHigh === null ? null : `[${formatDelta(l.row.intervalLow)}, ${formatDelta(l.row.intervalHigh)}]`),
-        width: 1.6,
+        value: (l) => (l.row.intervalLow === null || l.row.intervalHigh === null ? null : `[${formatDelta(l.row.intervalLow, 3)}, ${formatDelta(l.row.intervalHigh, 3)}]`),
+        width: 1.7,
         numeric: true,
       },
       { key: 'dz', label: 'd_z', title: 'Paired effect size: mean Δ / standard deviation of Δ, derived as t / √n (Lakens 2013).', value: (l) => l.dz, format: (v) => (typeof v === 'number' ? formatFixed(v, 3) : MISSING), numeric: true, width: 0.7 },
@@ -137,7 +137,7 @@ export class CompareScreen {
     for (const name of this.testNames) {
       cols.push({
         key: `p:${name}`,
-        label: `p ${shortTestName(name)}${which === 'holm' ? ' (Holm)' : which === 'bh' ? ' (BH)' : ''}`,
+        label: `p(${shortTestName(name)})${which === 'holm' ? ' Holm' : which === 'bh' ? ' BH' : ''}`,
         title: `${name}: two-sided p-value${which === 'holm' ? ', Holm-adjusted over the metrics (Holm 1979)' : which === 'bh' ? ', Benjamini–Hochberg-adjusted over the metrics (Benjamini & Hochberg 1995)' : ' as tested'}.`,
         value: (l) => {
           const p = l.p[name];
@@ -145,6 +145,7 @@ export class CompareScreen {
         },
         format: (v) => (typeof v === 'number' ? formatP(v) : MISSING),
         numeric: true,
+        width: 1.1,
       });
     }
     return cols;
@@ -223,8 +224,8 @@ export class CompareScreen {
 }
 
 function shortTestName(name: string): string {
-  if (/wilcoxon/i.test(name)) return 'Wilcoxon';
-  if (/random|permutation/i.test(name)) return 'rand.';
+  if (/wilcoxon/i.test(name)) return 'W';
+  if (/random|permutation/i.test(name)) return 'rand';
   if (/t-test|student/i.test(name)) return 't';
   return name;
 }
