@@ -167,9 +167,9 @@ describe('bad input names the file, the line and what was expected', () => {
 
   it('binary junk: NUL bytes or invalid UTF-8', async () => {
     const nul = await rejection(readDump(tmp.file('nul.csv', Buffer.from([0x71, 0x69, 0x64, 0x00, 0x2c, 0x61]))));
-    expect(nul.message).toMatch(/not binary data/);
+    expect(nul.message).toMatch(/NUL bytes: binary data, not a text dump/);
     const latin = await rejection(readDump(tmp.file('bad-utf8.csv', Buffer.from([0x71, 0x2c, 0xff, 0xfe, 0x2c, 0x0a]))));
-    expect(latin.message).toMatch(/not a text dump/);
+    expect(latin.message).toMatch(/not valid UTF-8: binary data, not a text dump/);
   });
 
   it('an unterminated quote', async () => {

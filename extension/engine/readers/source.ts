@@ -63,11 +63,11 @@ export async function readHead(path: string, bytes: number): Promise<Buffer> {
 /** Rejects content that is not text: NUL bytes or invalid UTF-8 within the first KB. */
 export function assertTextHead(head: Uint8Array, file: string): void {
   const probe = head.subarray(0, 1024);
-  if (probe.includes(0)) throw new InputError('a text dump, not binary data (NUL bytes in the first KB)', file);
+  if (probe.includes(0)) throw new InputError('a text dump, but the first KB holds NUL bytes: binary data, not a text dump', file);
   try {
     new TextDecoder('utf-8', { fatal: true }).decode(probe, { stream: true });
   } catch {
-    throw new InputError('a text dump, not binary data (invalid UTF-8 in the first KB): not a text dump', file);
+    throw new InputError('a text dump, but the first KB is not valid UTF-8: binary data, not a text dump', file);
   }
 }
 
