@@ -82,7 +82,9 @@ export interface PositionRow {
   readonly gain: number;
   /** The discount applied: 1/log2(position+1), or the tie group's average discount under `average`. */
   readonly discount: number;
-  /** gain × discount (0 beyond the cut-off). */
+  /** gain × the discount applied at the cut-off k (0 beyond it). Under `average`, a tied group that straddles
+   * the cut-off applies its mean truncated discount to every member, so contributions add up to the expected
+   * DCG@k even though some members sit below position k. */
   readonly contribution: number;
   readonly cumulativeDcg: number;
   /** Ideal cumulative DCG at the same position. */
