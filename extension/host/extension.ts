@@ -22,7 +22,7 @@ export function activate(context: vscode.ExtensionContext): void {
   const treeWorker = new EngineWorker(workerScript, onCrash);
 
   const registry = new SessionRegistry();
-  const deps: SessionDeps = { worker: viewWorker, getConfig, memory: context.workspaceState };
+  const deps: SessionDeps = { worker: viewWorker, getConfig, memory: context.workspaceState, log: (line) => output.info(line) };
   const tree = new RankedListsTree(treeWorker, getConfig, context.workspaceState);
   const status = new HeadlineStatus();
 

@@ -29,6 +29,8 @@ export interface SessionDeps {
   readonly getConfig: () => GainlineConfig;
   /** Remembers the judgments file picked for a run file. */
   readonly memory: vscode.Memento;
+  /** One line per load and failure, for the Gainline output channel. */
+  readonly log?: (line: string) => void;
   /** Overrides the delay before the Cancel-able notification appears (tests). */
   readonly notificationDelayMs?: number;
 }
@@ -180,11 +182,13 @@ export class ViewSession implements vscode.Disposable {
           'load', { session: this.key, source: this.sources[0]!, settings: evaluationSettings(config) }, options);
         this.overview = overview;
         this.setState({ status: kind, mode: 'single', overview });
+        this.deps.log?.(`${kind === 'loaded' ? 'read' : 're-read'} ${this.label}: ${overview.file.rowCount} rows, ${overview.queryCount} queries, ${overview.loadMs} ms`);
       } else {
         const compare = await this.deps.worker.call(
           'loadCompare', { session: this.key, a: this.sources[0]!, b: this.sources[1]!, settings: compareSettings(config) }, options);
         this.compare = compare;
         this.setState({ status: kind, mode: 'compare', compare });
+        this.deps.log?.(`compared ${this.label}: ${compare.pairedQueries} paired queries, ${compare.loadMs} ms`);
       }
       this.loadedGeneration = this.deps.worker.generation;
       this.headlineEmitter.fire(this.headline);
@@ -221,6 +225,7 @@ export class ViewSession implements vscode.Disposable {
         this.setState({ status: 'error', message: `Reading ${this.label} was cancelled. Run "Gainline: Refresh Ranked Lists" or reopen the file to read it again.` });
       } else {
         this.setState({ status: 'error', message: messageOf(error) });
+        this.deps.log?.(`could not read ${this.label}: ${messageOf(error)}`);
       }
       this.overview = undefined;
       this.compare = undefined;
