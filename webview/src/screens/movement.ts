@@ -3,7 +3,8 @@
  * each item's rank change, the pairs B fixed or introduced, and how each position's DCG
  * contribution changed.
  */
-import type { MovementView, PairChangeView } from '../../../extension/protocol/messages';
+import type { MovementRow, MovementView, PairChangeView } from '../../../extension/protocol/messages';
+import { exportParams, type ColumnDef } from '../model/tableModel';
 import { COLUMN_EXPLANATIONS } from '../model/explain';
 import { exactValue, formatCount, formatDelta, formatFixed, MISSING } from '../model/format';
 import type { AppContext } from '../ui/context';
@@ -70,7 +71,9 @@ export class MovementScreen {
       el('div', { className: 'gl-toolbar' },
         button('Copy A as JSON', { icon: 'json', secondary: true, onClick: () => this.ctx.copyQuery(m.query, 'a') }),
         button('Copy B as JSON', { icon: 'json', secondary: true, onClick: () => this.ctx.copyQuery(m.query, 'b') }),
-        button('Open in detail', { icon: 'list-ordered', secondary: true, title: 'Show this query’s detail (run A) with the ideal order', onClick: () => this.ctx.openQuery(m.query, 'detail') })),
+        button('Open in detail', { icon: 'list-ordered', secondary: true, title: 'Show this query’s detail (run A) with the ideal order', onClick: () => this.ctx.openQuery(m.query, 'detail') }),
+        button('Markdown', { icon: 'markdown', secondary: true, title: 'Export the items with their positions in A and B as Markdown', onClick: () => this.export(m, 'markdown') }),
+        button('CSV', { icon: 'export', secondary: true, title: 'Export the items with their positions in A and B as CSV', onClick: () => this.export(m, 'csv') })),
     );
     this.renderLists(m);
     this.renderPositions(m);
@@ -204,6 +207,17 @@ export class MovementScreen {
         el('section', {}, el('h2', { className: 'gl-better', text: `Fixed by B (${formatCount(m.fixedTotal)})` }), pairTable('gl-pairs-fixed', 'Pairs inverted in A and in order in B', m.fixedPairs, m.fixedTotal)),
         el('section', {}, el('h2', { className: 'gl-worse', text: `Introduced by B (${formatCount(m.introducedTotal)})` }), pairTable('gl-pairs-introduced', 'Pairs in order in A and inverted in B', m.introducedPairs, m.introducedTotal))),
     );
+  }
+
+  private export(m: MovementView, format: 'markdown' | 'csv'): void {
+    const columns: ColumnDef<MovementRow>[] = [
+      { key: 'item', label: 'Item', title: '', value: (r) => r.item },
+      { key: 'label', label: 'Label', title: '', value: (r) => r.label },
+      { key: 'positionA', label: 'Position in A', title: '', value: (r) => r.positionA },
+      { key: 'positionB', label: 'Position in B', title: '', value: (r) => r.positionB },
+      { key: 'moved', label: 'Moved up in B by', title: '', value: (r) => r.moved },
+    ];
+    this.ctx.exportTable(exportParams(`Movement of ${m.query}`, columns, m.rows, format, 'file'));
   }
 
   private pick(item: string): void {

@@ -39,13 +39,16 @@ function readPalette(): ChartPalette {
 
 /** Call once: restyles every chart when VS Code switches theme (it changes the body class). */
 export function watchTheme(): void {
-  new MutationObserver(() => {
+  const observer = new MutationObserver(() => {
     palette = readPalette();
     for (const entry of live) {
       entry.restyle(palette);
       entry.chart.update('none');
     }
-  }).observe(document.body, { attributes: true, attributeFilter: ['class'] });
+  });
+  observer.observe(document.body, { attributes: true, attributeFilter: ['class'] });
+  // The theme's variables live in <html style>; they may change in a separate step from the class.
+  observer.observe(document.documentElement, { attributes: true, attributeFilter: ['style'] });
 }
 
 function baseOptions(p: ChartPalette, xTitle: string, yTitle: string) {
