@@ -35,9 +35,9 @@ export type ConventionValues = { readonly [K in keyof typeof conventionOptions]?
 
 /** Help text lines for the shared options, aligned for the usage screen. */
 export const conventionHelp = `Input:
-  --input-format F      csv | tsv | jsonl | run | svmlight | parquet (default: from the file name)
+  --input-format F      csv | tsv | jsonl | run | svmlight | parquet (default: from the content and name)
   --columns ROLES       which column plays which role, e.g. query=sid,item=pid,label=grade,score=p
-  --judgments FILE      graded judgments (qrels) for a run file or an SVMlight file without labels
+  --judgments FILE      graded judgments (qrels: query 0 item grade) for a run file
   --scores FILE         one score per line, for an SVMlight file
   --threads N           parser threads for large text files (default: chosen from the file size)
 Metrics and conventions:
