@@ -10,6 +10,7 @@ export interface ScipyCase {
   readonly b: readonly number[];
   readonly wilcoxon_method?: 'auto' | 'approx';
   readonly exact_permutation?: boolean;
+  readonly bootstrap?: number;
 }
 
 export interface ScipyResult {
@@ -19,6 +20,8 @@ export interface ScipyResult {
   readonly w_stat?: number | null;
   readonly w_p?: number | null;
   readonly perm_p?: number | null;
+  readonly boot_low?: number | null;
+  readonly boot_high?: number | null;
 }
 
 const PYTHON = '/usr/bin/python3';

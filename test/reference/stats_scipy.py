@@ -2,7 +2,8 @@
 
 Reads a JSON list of cases on stdin, writes a JSON list of results on stdout. Each case has
 "a" and "b" (paired samples; d = b - a) and optional "wilcoxon_method" ("auto" or "approx") and
-"exact_permutation" (true to run scipy's exact sign-flip permutation test).
+"exact_permutation" (true to run scipy's exact sign-flip permutation test) and "bootstrap" (a number of
+resamples for scipy's percentile bootstrap interval of the mean difference).
 Run with Debian's /usr/bin/python3, where python3-scipy is installed.
 """
 import json
@@ -42,6 +43,11 @@ def run(case):
         r = stats.permutation_test((b, a), mean_difference, permutation_type="samples", vectorized=True,
                                    n_resamples=np.inf, alternative="two-sided")
         out["perm_p"] = clean(r.pvalue)
+    if case.get("bootstrap"):
+        r = stats.bootstrap((b - a,), np.mean, method="percentile", n_resamples=case["bootstrap"],
+                            confidence_level=0.95, random_state=np.random.default_rng(7))
+        out["boot_low"] = clean(r.confidence_interval.low)
+        out["boot_high"] = clean(r.confidence_interval.high)
     return out
 
 

@@ -3,11 +3,7 @@
  * Descriptive figures and the paired t-test live here; the rank, resampling and adjustment procedures
  * have their own files and are re-exported for one import point.
  */
-import { bootstrapMeanIntervals, type Interval } from './bootstrap';
 import { studentTwoSidedP } from './distributions';
-import type { LoopControl } from './pacer';
-import { signFlipTest, type SignFlipResult } from './signFlip';
-import { wilcoxonSignedRank, type WilcoxonResult } from './wilcoxon';
 
 export { benjaminiHochbergAdjust, holmAdjust } from './adjust';
 export { bootstrapMeanIntervals, quantileSorted, type Interval } from './bootstrap';
@@ -98,32 +94,4 @@ function standardDeviation(d: ArrayLike<number>, mean: number): number {
   let squares = 0;
   for (let i = 0; i < n; i++) squares += (d[i]! - mean) ** 2;
   return Math.sqrt(squares / (n - 1));
-}
-
-export interface PairedTestOptions extends LoopControl {
-  readonly permutations: number;
-  readonly bootstrap: number;
-  readonly seed: number;
-  readonly tieTolerance: number;
-}
-
-export interface PairedTests {
-  readonly summary: PairedSummary;
-  readonly interval: Interval;
-  readonly tTest: TTestResult;
-  readonly wilcoxon: WilcoxonResult;
-  readonly randomization: SignFlipResult;
-}
-
-/** Every paired figure for one metric. */
-export async function pairedTests(a: Float64Array, b: Float64Array, options: PairedTestOptions): Promise<PairedTests> {
-  const d = differences(a, b);
-  const [interval] = await bootstrapMeanIntervals([d], { ...options, resamples: options.bootstrap });
-  return {
-    summary: pairedSummary(a, b, options.tieTolerance),
-    interval: interval!,
-    tTest: pairedTTest(d),
-    wilcoxon: wilcoxonSignedRank(d),
-    randomization: await signFlipTest(d, options),
-  };
 }
