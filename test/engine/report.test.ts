@@ -128,6 +128,14 @@ describe('text table report', () => {
     expect(new Set(table.map((l) => l.length)).size).toBe(1);
   });
 
+  it('prints rounding noise in a sensitivity change as 0.0000, never -0.0000', () => {
+    const base = fixtureInput();
+    const row = { ...base.evaluation.sensitivity[0]!, label: 'ties: average (as configured)', mean: 0.625 - 1e-17 };
+    const text = formatTable({ ...base, evaluation: { ...base.evaluation, sensitivity: [row] } }, { worst: 0 });
+    expect(text).toMatch(/ties: average \(as configured\)\s+0\.6250\s+0\.0000\s+2/);
+    expect(text).not.toContain('-0.0000');
+  });
+
   it('hides the worst-query list when asked for none', () => {
     expect(formatTable(fixtureInput(), { worst: 0 })).not.toContain('Worst');
   });
