@@ -196,7 +196,7 @@ export class CompareScreen {
     host.append(
       el('div', { className: 'gl-grid2' },
         el('section', {}, el('h2', { text: `${metric.label}: A against B per query` }), el('div', { className: 'gl-chart tall' }, scatterCanvas),
-          el('p', { className: 'gl-muted', text: 'Above the diagonal: B better; below: B worse. Click a point to see that query’s movement.' })),
+          el('p', { className: 'gl-muted', text: 'Green, above the diagonal: B better; red, below: B worse; grey: no change. Click a point to see that query’s movement.' })),
         el('section', {}, el('h2', { text: `Per-query difference B − A` }), el('div', { className: 'gl-chart tall' }, histCanvas),
           el('p', { className: 'gl-muted', text: `Queries per equal-width bin of B − A over a range symmetric about 0; ${formatCount(deltas.filter((d) => Number.isNaN(d)).length)} queries without a value in both runs are left out.` }))),
     );

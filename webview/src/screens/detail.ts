@@ -43,7 +43,7 @@ export class DetailScreen {
   private readonly chartNote = el('p', { className: 'gl-muted' });
   private readonly chartSection = el('section', {}, el('h2', { text: 'Cumulative DCG: model against ideal' }), this.chartNote, el('div', { className: 'gl-chart' }, this.chartCanvas));
   private readonly pairsBox = el('div');
-  private readonly emptyNote = el('p', { className: 'gl-muted', text: 'Pick a query in the worst-queries table (Enter or click) to see its ranked list here.' });
+  private readonly emptyNote = el('p', { className: 'gl-muted', text: 'Pick a query (Enter or click on its row) to see its ranked list here.' });
 
   constructor(private readonly ctx: AppContext, private readonly options: DetailOptions) {
     this.element.append(this.emptyNote, this.headBox, this.ordersBox, this.chartSection, this.pairsBox);

@@ -220,6 +220,8 @@ export function scatterChart(canvas: HTMLCanvasElement, data: ScatterInput): Cha
       },
       plugins: {
         ...baseOptions(p, data.xTitle, data.yTitle).plugins,
+        // Point colours encode better/worse per point; the caption under the chart says so.
+        legend: { display: false },
         tooltip: {
           filter: (item) => item.datasetIndex === 0,
           callbacks: {

@@ -91,7 +91,7 @@ export class VirtualTable<Row> {
     return this.active >= 0 ? this.options.source.row(this.active) : undefined;
   }
 
-  /** Every row whose data is loaded and in view (for export of "what is shown"). */
+  /** Makes a row active (highlighted, announced) and scrolls it into view. */
   setActive(index: number, reveal = true): void {
     this.active = index;
     if (reveal) this.reveal(index);
