@@ -63,3 +63,34 @@ describe('exact expectations over a large tied group, checked by enumerating all
     expect(Math.abs(actual - expected)).toBeLessThan(1e-12);
   });
 });
+
+describe('ERR over a large tied group with many zero grades (order statistics, hand-derived)', () => {
+  // One untied non-relevant item first, then a tied group of m items; gmax = 2 so R(2) = 3/4, R(1) = 1/4.
+  const m = 500;
+  const expectedOne = (r: number, k: number) => {
+    // A single stopper is equally likely on each of the m slots (positions 2..m+1).
+    let sum = 0;
+    for (let p = 1; p <= Math.min(m, k - 1); p++) sum += 1 / (1 + p);
+    return (r * sum) / m;
+  };
+  const build = (stoppers: number[]) => {
+    const grades = [0, ...Array.from({ length: m }, (_, i) => (i < stoppers.length ? stoppers[i]! : 0))];
+    const scores = [2, ...Array.from({ length: m }, () => 1)];
+    return { grades, scores };
+  };
+  it('one stopper: ERR = R · (1/m) Σ_p 1/(p+1)', () => {
+    const { grades, scores } = build([2]);
+    expect(value(grades, scores, 'err', DEFAULT_CONVENTIONS)).toBeCloseTo(expectedOne(3 / 4, Infinity), 12);
+    expect(value(grades, scores, 'err@40', DEFAULT_CONVENTIONS)).toBeCloseTo(expectedOne(3 / 4, 40), 12);
+  });
+  it('two stoppers of grades 2 and 1: first stopper at slot p with P = (m−p)/C(m,2), second with (p−1)/C(m,2)', () => {
+    const { grades, scores } = build([2, 1]);
+    const pairs = (m * (m - 1)) / 2;
+    // B_1 = mean R = (3/4 + 1/4)/2; B_2 = mean of R_second·(1 − R_first) = (1/4·1/4 + 3/4·3/4)/2.
+    const b1 = (3 / 4 + 1 / 4) / 2;
+    const b2 = ((1 / 4) * (1 / 4) + (3 / 4) * (3 / 4)) / 2;
+    let expected = 0;
+    for (let p = 1; p <= m; p++) expected += (b1 * (m - p) + b2 * (p - 1)) / pairs / (1 + p);
+    expect(value(grades, scores, 'err', DEFAULT_CONVENTIONS)).toBeCloseTo(expected, 12);
+  });
+});

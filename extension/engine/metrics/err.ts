@@ -12,10 +12,14 @@
  * where M_t(others) is the mean of Π(1 − R) over all t-subsets of the other m − 1 items. M_t is built one item
  * at a time with M'_t = ((N+1−t)·M_t + t·y·M_{t−1}) / (N+1) (a convex combination, so it stays in [0, 1] and
  * never overflows the way elementary symmetric polynomials of large groups would). Items of equal grade share
- * the same M, so the cost is O(distinct grades in the group × m × min(m, k − s)).
+ * the same M. Items with R = 0 are placed separately (see groupExpectation), so the cost is
+ * O(G·w·min(w, L) + min(w, L)·L) for G distinct grades, w items with R > 0 and L slots of the group inside
+ * the cut-off: cheap for ERR@k, and for whole-list ERR while few tied items can stop the user; a whole-list
+ * ERR over a huge tied group of mostly relevant items is quadratic in the group size.
  */
 export class ErrCalculator {
   private mean = new Float64Array(16);
+  private terms = new Float64Array(16);
   private distinctR = new Float64Array(16);
   private distinctCount = new Uint32Array(16);
 
@@ -76,30 +80,86 @@ export class ErrCalculator {
       }
       return total;
     }
-    if (this.mean.length < slots + 1) this.mean = new Float64Array(slots + 1);
-    const M = this.mean;
+    // Items with R = 0 never stop the user; they only take slots. Split them off: the w others ("stoppers")
+    // are equally likely in any order and on any w of the m slots, independently, so
+    //   E = Σ_i B_i · C_i,  B_i = E[R of the i-th stopper · Π (1 − R) of the stoppers before it],
+    //   C_i = E[1/(s + P_i)] over P_i = slot of the i-th stopper, 0 beyond the cut-off, with
+    //   P(P_i = p) = C(p−1, i−1) · C(m−p, w−i) / C(m, w).
+    // Work drops from O(G·m·slots) to O(G·w·min(w, slots) + min(w, slots)·slots).
+    let zeros = 0;
+    for (let d = 0; d < distinct; d++) if (rs[d] === 0) zeros = cs[d]!;
+    const w = m - zeros;
+    const depthInStoppers = Math.min(w, slots);
+    const B = this.stopperTerms(distinct, w, depthInStoppers);
+    if (zeros === 0) {
+      let total = 0;
+      for (let t = 0; t < depthInStoppers; t++) total += B[t]! / (s + t + 1);
+      return total;
+    }
+    const logFactorial = logFactorialTable(m);
+    const logAll = logFactorial[m]! - logFactorial[w]! - logFactorial[m - w]!;
     let total = 0;
+    for (let i = 1; i <= depthInStoppers; i++) {
+      const b = B[i - 1]!;
+      if (b === 0) continue;
+      let c = 0;
+      const last = Math.min(slots, m - w + i);
+      for (let p = i; p <= last; p++) {
+        const logWays =
+          logFactorial[p - 1]! - logFactorial[i - 1]! - logFactorial[p - i]! +
+          (logFactorial[m - p]! - logFactorial[w - i]! - logFactorial[m - p - w + i]!);
+        c += Math.exp(logWays - logAll) / (s + p);
+      }
+      total += b * c;
+    }
+    return total;
+  }
+
+  /**
+   * B_t for t = 0..depth−1 over the w stoppers of the group (items with R > 0):
+   * B_t = (1/w) Σ_grades count·R·M_t(the other w − 1 stoppers).
+   */
+  private stopperTerms(distinct: number, w: number, depth: number): Float64Array {
+    const rs = this.distinctR;
+    const cs = this.distinctCount;
+    if (this.mean.length < depth + 1) this.mean = new Float64Array(depth + 1);
+    if (this.terms.length < depth) this.terms = new Float64Array(depth);
+    const M = this.mean;
+    const B = this.terms;
+    B.fill(0, 0, depth);
     for (let d = 0; d < distinct; d++) {
       if (rs[d] === 0) continue;
-      // M_t over t-subsets of the group minus one item of this grade.
-      M.fill(0, 0, slots + 1);
+      // M_t over t-subsets of the stoppers minus one of this grade.
+      M.fill(0, 0, depth + 1);
       M[0] = 1;
       let size = 0;
       for (let h = 0; h < distinct; h++) {
+        if (rs[h] === 0) continue;
         const y = 1 - rs[h]!;
         const copies = cs[h]! - (h === d ? 1 : 0);
         for (let c = 0; c < copies; c++) {
-          const top = Math.min(size + 1, slots - 1);
+          const top = Math.min(size + 1, depth - 1);
           for (let t = top; t >= 1; t--) M[t] = ((size + 1 - t) * M[t]! + t * y * M[t - 1]!) / (size + 1);
           size++;
         }
       }
-      let sum = 0;
-      for (let t = 0; t < slots; t++) sum += M[t]! / (s + t + 1);
-      total += (cs[d]! * rs[d]! * sum) / m;
+      const weight = (cs[d]! * rs[d]!) / w;
+      for (let t = 0; t < depth; t++) B[t] += weight * M[t]!;
     }
-    return total;
+    return B;
   }
+}
+
+let logFactorials = new Float64Array(1);
+/** ln(j!) for j = 0..n, kept and grown. */
+function logFactorialTable(n: number): Float64Array {
+  if (logFactorials.length <= n) {
+    const size = Math.max(n + 1, logFactorials.length * 2);
+    const table = new Float64Array(size);
+    for (let j = 1; j < size; j++) table[j] = table[j - 1]! + Math.log(j);
+    logFactorials = table;
+  }
+  return logFactorials;
 }
 
 /** R(g) = (2^g − 1) / 2^gmax (Chapelle et al. 2009). */
