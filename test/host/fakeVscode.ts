@@ -101,11 +101,13 @@ export interface FakeState {
   commands: Map<string, (...args: unknown[]) => unknown>;
   executed: { id: string; args: unknown[] }[];
   activeTab: unknown;
+  /** What workspace.findFiles returns. */
+  workspaceFiles: Uri[];
 }
 
 export function createFakeVscode() {
   const state: FakeState = { progressShown: [], watchers: [], cancelNextProgress: false, clipboard: '', shownDocuments: [], messages: [], quickPickAnswer: undefined,
-    commands: new Map(), executed: [], activeTab: undefined };
+    commands: new Map(), executed: [], activeTab: undefined, workspaceFiles: [] };
   const api = {
     EventEmitter,
     Uri,
@@ -157,6 +159,7 @@ export function createFakeVscode() {
         state.watchers.push(w);
         return w;
       },
+      findFiles: async () => [...state.workspaceFiles],
       asRelativePath: (p: Uri | string) => path.basename(typeof p === 'string' ? p : p.fsPath),
       async openTextDocument(uri: Uri) {
         return {

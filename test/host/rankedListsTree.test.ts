@@ -1,0 +1,67 @@
+/** The Ranked Lists view: lazy headlines, cached by modification time, large files left alone. */
+import { mkdtempSync, truncateSync, utimesSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { describe, expect, it, vi } from 'vitest';
+import { memento, shared, Uri } from './fakeVscode';
+
+vi.mock('vscode', async () => (await import('./fakeVscode')).shared.api);
+
+const { RankedListsTree } = await import('../../extension/host/rankedListsTree');
+const { readConfig } = await import('../../extension/host/config');
+
+const dir = mkdtempSync(join(tmpdir(), 'gainline-tree-'));
+
+async function settle(tree: InstanceType<typeof RankedListsTree>, calls: () => number, expected: number) {
+  const end = Date.now() + 5000;
+  while (calls() < expected && Date.now() < end) await new Promise((r) => setTimeout(r, 5));
+  await new Promise((r) => setTimeout(r, 20));
+  return tree.getChildren();
+}
+
+describe('RankedListsTree', () => {
+  it('shows a placeholder, then the headline; recomputes only when the file changes', async () => {
+    const small = join(dir, 'model-a.csv');
+    const large = join(dir, 'huge.csv');
+    writeFileSync(small, 'query_id,item_id,label,score\nhammer,h1,1,0.5\n');
+    writeFileSync(large, '');
+    truncateSync(large, 300 * 2 ** 20); // sparse: no disk used
+    shared.state.workspaceFiles = [Uri.file(small), Uri.file(large)];
+    const call = vi.fn(async () => ({ key: 'ndcg@10', label: 'NDCG@10', mean: 0.61234, queryCount: 1, rowCount: 1 }));
+    const tree = new RankedListsTree({ call } as never, () => readConfig(() => undefined), memento() as never);
+
+    const first = await tree.getChildren();
+    expect(first.map((i) => i.label)).toEqual(['huge.csv', 'model-a.csv'].sort());
+    expect(first.find((i) => i.label === 'model-a.csv')!.description).toBe('…');
+
+    let items = await settle(tree, () => call.mock.calls.length, 1);
+    expect(items.find((i) => i.label === 'model-a.csv')!.description).toBe('NDCG@10 0.6123');
+    expect(items.find((i) => i.label === 'huge.csv')!.description).toContain('open to compute');
+    expect(call).toHaveBeenCalledTimes(1); // the large file was never read
+
+    // Unchanged file: cached. Touched file: computed again.
+    items = await settle(tree, () => call.mock.calls.length, 1);
+    expect(call).toHaveBeenCalledTimes(1);
+    utimesSync(small, new Date(), new Date(Date.now() + 5000));
+    await tree.getChildren();
+    items = await settle(tree, () => call.mock.calls.length, 2);
+    expect(call).toHaveBeenCalledTimes(2);
+    expect(items.find((i) => i.label === 'model-a.csv')!.command).toMatchObject({ command: 'vscode.openWith' });
+    tree.dispose();
+  });
+
+  it('shows why a file could not be read', async () => {
+    const file = join(dir, 'queries.tsv');
+    writeFileSync(file, 'id\tquery\n');
+    shared.state.workspaceFiles = [Uri.file(file)];
+    const call = vi.fn(async () => {
+      throw new Error('queries.tsv: expected a column for the item id');
+    });
+    const tree = new RankedListsTree({ call } as never, () => readConfig(() => undefined), memento() as never);
+    await tree.getChildren();
+    const [item] = await settle(tree, () => call.mock.calls.length, 1);
+    expect(item!.description).toContain('not readable');
+    expect(item!.tooltip).toContain('expected a column for the item id');
+    tree.dispose();
+  });
+});
