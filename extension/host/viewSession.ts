@@ -55,6 +55,7 @@ export class ViewSession implements vscode.Disposable {
   private overview: OverviewModel | undefined;
   private compare: CompareOverviewModel | undefined;
   private loadedGeneration = -1;
+  private rereading: Promise<void> | undefined;
   private sources: DumpSource[] = [];
   private loadAbort: AbortController | undefined;
   private reloadTimer: ReturnType<typeof setTimeout> | undefined;
@@ -255,8 +256,14 @@ export class ViewSession implements vscode.Disposable {
   }
 
   /** After a worker restart the worker no longer holds this view's data: read it again quietly. */
-  private async ensureLoaded(): Promise<void> {
-    if (this.loadedGeneration === this.deps.worker.generation && this.deps.worker.running) return;
+  private ensureLoaded(): Promise<void> {
+    if (this.loadedGeneration === this.deps.worker.generation && this.deps.worker.running) return Promise.resolve();
+    // Several requests arriving together share one quiet re-read.
+    this.rereading ??= this.reread().finally(() => (this.rereading = undefined));
+    return this.rereading;
+  }
+
+  private async reread(): Promise<void> {
     const config = this.deps.getConfig();
     if (this.target.mode === 'single') {
       this.overview = await this.deps.worker.call('load', { session: this.key, source: this.sources[0]!, settings: evaluationSettings(config) }, { timeoutMs: LOAD_TIMEOUT_MS });

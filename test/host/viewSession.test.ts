@@ -114,8 +114,16 @@ describe('ViewSession', () => {
     // Kill the thread from outside, as a crash would.
     await (worker as unknown as { worker: { terminate(): Promise<number> } }).worker.terminate();
     await until(() => !worker.running, 'worker stopped');
-    const page = await ask(webview, 21, 'queryPage', { offset: 0, limit: 5 });
+    // Two requests at once after the crash: both answered, from one re-read.
+    const spy = vi.spyOn(worker, 'call');
+    const [page, detail] = await Promise.all([
+      ask(webview, 21, 'queryPage', { offset: 0, limit: 5 }),
+      ask(webview, 22, 'queryDetail', { query: 'cordless drill 18v' }),
+    ]);
     expect(page).toMatchObject({ ok: true, result: { total: 1 } });
+    expect(detail).toMatchObject({ ok: true, result: { query: 'cordless drill 18v' } });
+    expect(spy.mock.calls.filter(([method]) => method === 'load')).toHaveLength(1);
+    spy.mockRestore();
     expect(worker.generation).toBe(generation + 1);
     session.dispose();
   });
