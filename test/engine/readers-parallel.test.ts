@@ -76,6 +76,16 @@ describe('parallel parsing', () => {
     expectSameDump(await readDump(path, { threads: 1 }), await readDump(path, { threads: 3 }));
   });
 
+  it('matches one thread when a range holds more rows than its shared slice was sized for', async () => {
+    // Long rows first (they set the bytes-per-row estimate), then many short ones.
+    const long = Array.from({ length: 3000 }, (_, i) => `q${i >> 5},sku-${i},1,0.5,${'x'.repeat(200)}`);
+    const short = Array.from({ length: 40_000 }, (_, i) => `r${i >> 5},s${i % 977},${i % 3},${i % 11},d`);
+    const path = tmp.file('par-skewed.csv', ['query_id,item_id,label,score,device', ...long, ...short, ''].join('\n'));
+    const multi = await readParallelDelimited(path, 'csv', 44, 2, {});
+    expect(multi).toBeDefined();
+    expectSameDump(await readDump(path, { threads: 1 }), multi!);
+  });
+
   it('handles more threads than lines', async () => {
     const path = tmp.file('par-tiny.csv', 'qid,item_id,label,score\nq,a,1,2\n');
     expectSameDump(await readDump(path, { threads: 1 }), await readDump(path, { threads: 8 }));

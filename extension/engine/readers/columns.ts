@@ -5,14 +5,30 @@ import { BytePool } from '../model/bytePool';
 import type { DumpFormat, FileStamp, RankedDump, ReaderNotes, SegmentColumn } from '../model/dump';
 import { emptyNotes } from '../model/dump';
 
+/**
+ * Column buffers shared between threads: a parse worker writes rows [firstRow, firstRow + rows)
+ * of each buffer, so the main thread can compact ranges in place instead of copying them.
+ */
+export interface SharedColumns {
+  readonly firstRow: number;
+  readonly rows: number;
+  readonly query: SharedArrayBuffer;
+  readonly item: SharedArrayBuffer;
+  readonly label: SharedArrayBuffer;
+  readonly score: SharedArrayBuffer;
+  readonly line: SharedArrayBuffer;
+  readonly offset: SharedArrayBuffer;
+  readonly segmentIds: readonly SharedArrayBuffer[];
+}
+
 export class RowColumns {
-  query: Uint32Array;
-  item: Uint32Array;
-  label: Float64Array;
-  score: Float64Array;
-  line: Uint32Array;
-  offset: Float64Array;
-  segmentIds: Uint32Array[];
+  query: Uint32Array<ArrayBufferLike>;
+  item: Uint32Array<ArrayBufferLike>;
+  label: Float64Array<ArrayBufferLike>;
+  score: Float64Array<ArrayBufferLike>;
+  line: Uint32Array<ArrayBufferLike>;
+  offset: Float64Array<ArrayBufferLike>;
+  segmentIds: Uint32Array<ArrayBufferLike>[];
   count = 0;
   capacity: number;
   readonly queries = new BytePool();
@@ -23,7 +39,23 @@ export class RowColumns {
   constructor(
     readonly segmentNames: readonly string[] = [],
     capacity = 1024,
+    /** When given, rows go to this slice of shared buffers until it is full (then to private arrays). */
+    readonly shared?: SharedColumns,
   ) {
+    this.segmentPools = segmentNames.map(() => new BytePool());
+    if (shared !== undefined) {
+      const at = shared.firstRow;
+      const n = shared.rows;
+      this.capacity = n;
+      this.query = new Uint32Array(shared.query, at * 4, n);
+      this.item = new Uint32Array(shared.item, at * 4, n);
+      this.label = new Float64Array(shared.label, at * 8, n);
+      this.score = new Float64Array(shared.score, at * 8, n);
+      this.line = new Uint32Array(shared.line, at * 4, n);
+      this.offset = new Float64Array(shared.offset, at * 8, n);
+      this.segmentIds = shared.segmentIds.map((b) => new Uint32Array(b, at * 4, n));
+      return;
+    }
     this.capacity = Math.max(16, capacity);
     this.query = new Uint32Array(this.capacity);
     this.item = new Uint32Array(this.capacity);
@@ -32,7 +64,11 @@ export class RowColumns {
     this.line = new Uint32Array(this.capacity);
     this.offset = new Float64Array(this.capacity);
     this.segmentIds = segmentNames.map(() => new Uint32Array(this.capacity));
-    this.segmentPools = segmentNames.map(() => new BytePool());
+  }
+
+  /** True while every row is still in the shared slice. */
+  get inShared(): boolean {
+    return this.shared !== undefined && this.query.buffer === this.shared.query;
   }
 
   /** Makes room for at least `rows` rows in total (call with an estimate to avoid repeated growth). */

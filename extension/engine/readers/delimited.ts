@@ -6,7 +6,7 @@
  * chunks is simply retried with the next chunk; only complete records touch the pools and columns.
  */
 import { InputError } from '../errors';
-import { RowColumns } from './columns';
+import { RowColumns, type SharedColumns } from './columns';
 import { describeNonNumber, parseNumber } from './numbers';
 import { resolveRoles, type ColumnRoles } from './roles';
 import type { RecordSink } from './source';
@@ -23,6 +23,8 @@ export interface DelimitedSettings {
   readonly columns?: ColumnRoles;
   /** Total decompressed size when known, to size the columns once. */
   readonly expectedBytes?: number;
+  /** Shared buffers to write rows into (parse workers); no up-front sizing is done then. */
+  readonly shared?: SharedColumns;
   /** First line number of the first record (>1 when a worker parses a later byte range). */
   readonly firstLine?: number;
 }
@@ -99,7 +101,7 @@ export class DelimitedParser implements RecordSink, FastState {
       pos = next;
     }
     this.bytesSeen += pos - start;
-    if (!this.sized && this.rows && this.settings.expectedBytes && this.rows.count > 1000) {
+    if (!this.sized && this.rows && this.settings.expectedBytes && !this.settings.shared && this.rows.count > 1000) {
       // Size the columns once from the bytes per row seen so far, instead of growing repeatedly.
       this.sized = true;
       this.rows.reserve((this.rows.count / this.bytesSeen) * this.settings.expectedBytes * 1.05 + 1024);
@@ -217,7 +219,7 @@ export class DelimitedParser implements RecordSink, FastState {
     roles.segments.forEach((column, k) => {
       this.roleOf[column] = ROLE_SEGMENT + k;
     });
-    this.rows = new RowColumns(roles.segments.map((i) => names[i]!));
+    this.rows = new RowColumns(roles.segments.map((i) => names[i]!), 1024, this.settings.shared);
     this.lastSegment = new Int32Array(roles.segments.length).fill(-1);
     if (roles.rank >= 0) {
       this.rows.notes.messages.push(this.rankStandsInForScore

@@ -12,7 +12,7 @@ import { Worker } from 'node:worker_threads';
 import { CancelledError, InputError } from '../errors';
 import type { BytePool } from '../model/bytePool';
 import type { RankedDump } from '../model/dump';
-import { RowColumns } from './columns';
+import { RowColumns, type SharedColumns } from './columns';
 import { DelimitedParser } from './delimited';
 import type { ReadOptions } from './index';
 import type { PackedPool, RangeResult, RangeTask } from './rangeParse';
@@ -44,8 +44,10 @@ export async function readParallelDelimited(path: string, format: 'csv' | 'tsv',
   const header = await readHeader(path, delimiter, options);
   if (header === undefined) return undefined;
   const bounds = await splitPoints(path, header.end, stamp.size, threads);
+  const slices = sharedSlices(bounds, header.bytesPerRow, header.parser.columns!.segmentNames.length);
   const tasks: RangeTask[] = bounds.slice(0, -1).map((start, k) => ({
     path, start, end: bounds[k + 1]!, delimiter, names: header.names, columns: options.columns, chunkBytes: sourceTuning.plainChunkBytes,
+    shared: slices[k],
   }));
   const results = await runWorkers(workerScript, tasks, stamp.size, options);
   if (results.some((r) => r.kind === 'quoted')) return undefined;
@@ -56,7 +58,10 @@ export async function readParallelDelimited(path: string, format: 'csv' | 'tsv',
     const e = results[failed] as Extract<RangeResult, { kind: 'error' }>;
     throw new InputError(e.expected, e.file, e.line === undefined ? undefined : e.line + lineOffsets[failed]!, e.found);
   }
-  const rows = merge(results.splice(0) as Extract<RangeResult, { kind: 'rows' }>[], lineOffsets, header.parser.columns!);
+  const parts = results.splice(0) as Extract<RangeResult, { kind: 'rows' }>[];
+  const rows = parts.every((p) => p.inShared)
+    ? compactShared(parts, slices, lineOffsets, header.parser.columns!)
+    : merge(parts.map((p, k) => (p.inShared ? { ...p, ...viewsOf(slices[k]!, p.count) } : p)), lineOffsets, header.parser.columns!);
   if (rows.count === 0) throw new InputError('at least one data row after the header', path, 2);
   await checkUnchanged(path, stamp);
   rows.countGaps();
@@ -82,10 +87,94 @@ async function readHeader(path: string, delimiter: number, options: ReadOptions)
     const parser = new DelimitedParser({ file: path, delimiter, columns: options.columns });
     parser.feed(head, bom, lf + 1, 0, false);
     if (parser.headerNames === undefined || parser.columns === undefined) return undefined;
-    return { names: parser.headerNames, end: lf + 1, parser };
+    const sample = Buffer.alloc(256 * 1024);
+    const { bytesRead } = await fh.read(sample, 0, sample.length, lf + 1);
+    let newlines = 0;
+    for (let i = 0; i < bytesRead; i++) if (sample[i] === 10) newlines++;
+    return { names: parser.headerNames, end: lf + 1, parser, bytesPerRow: newlines > 0 ? bytesRead / newlines : 64 };
   } finally {
     await fh.close();
   }
+}
+
+/** One slice of shared columns per range, sized from the bytes per row of a sample with a margin. */
+function sharedSlices(bounds: number[], bytesPerRow: number, segments: number): SharedColumns[] {
+  const sizes = bounds.slice(0, -1).map((start, k) => Math.ceil(((bounds[k + 1]! - start) / bytesPerRow) * 1.15) + 1024);
+  const total = sizes.reduce((a, b) => a + b, 0);
+  const buffers = {
+    query: new SharedArrayBuffer(total * 4),
+    item: new SharedArrayBuffer(total * 4),
+    label: new SharedArrayBuffer(total * 8),
+    score: new SharedArrayBuffer(total * 8),
+    line: new SharedArrayBuffer(total * 4),
+    offset: new SharedArrayBuffer(total * 8),
+    segmentIds: Array.from({ length: segments }, () => new SharedArrayBuffer(total * 4)),
+  };
+  let firstRow = 0;
+  return sizes.map((rows) => {
+    const slice = { ...buffers, firstRow, rows };
+    firstRow += rows;
+    return slice;
+  });
+}
+
+/** Typed views of the first `count` rows of a shared slice. */
+function viewsOf(slice: SharedColumns, count: number) {
+  const at = slice.firstRow;
+  return {
+    query: new Uint32Array(slice.query, at * 4, count),
+    item: new Uint32Array(slice.item, at * 4, count),
+    label: new Float64Array(slice.label, at * 8, count),
+    score: new Float64Array(slice.score, at * 8, count),
+    line: new Uint32Array(slice.line, at * 4, count),
+    offset: new Float64Array(slice.offset, at * 8, count),
+    segmentIds: slice.segmentIds.map((b) => new Uint32Array(b, at * 4, count)),
+  } as Pick<Extract<RangeResult, { kind: 'rows' }>, 'query' | 'item' | 'label' | 'score' | 'line' | 'offset' | 'segmentIds'>;
+}
+
+/**
+ * Moves every range down to follow the previous one inside the shared buffers (never overwriting
+ * rows not yet moved, since each slice starts at or after the rows before it end), remapping ids
+ * and shifting lines on the way, then copies each column out to an ordinary buffer.
+ */
+function compactShared(parts: Extract<RangeResult, { kind: 'rows' }>[], slices: SharedColumns[], lineOffsets: number[], headerRows: RowColumns): RowColumns {
+  const rows = new RowColumns(headerRows.segmentNames, 16);
+  rows.notes.messages.push(...headerRows.notes.messages);
+  const total = parts.reduce((sum, p) => sum + p.count, 0);
+  const maps = remapPools(rows, parts);
+  const buffers = slices[0]!;
+  const moveIds = (buffer: SharedArrayBuffer, mapOf: (k: number) => Uint32Array | undefined, shift: (k: number) => number): Uint32Array => {
+    const column = new Uint32Array(buffer);
+    let to = 0;
+    parts.forEach((p, k) => {
+      const from = slices[k]!.firstRow;
+      const map = mapOf(k);
+      const add = shift(k);
+      if (map !== undefined) for (let i = 0; i < p.count; i++) column[to + i] = map[column[from + i]!]!;
+      else for (let i = 0; i < p.count; i++) column[to + i] = column[from + i]! + add;
+      to += p.count;
+    });
+    return column.slice(0, total);
+  };
+  const moveFloats = (buffer: SharedArrayBuffer): Float64Array => {
+    const column = new Float64Array(buffer);
+    let to = 0;
+    parts.forEach((p, k) => {
+      column.copyWithin(to, slices[k]!.firstRow, slices[k]!.firstRow + p.count);
+      to += p.count;
+    });
+    return column.slice(0, total);
+  };
+  rows.query = moveIds(buffers.query, (k) => maps.queries[k], () => 0);
+  rows.item = moveIds(buffers.item, (k) => maps.items[k], () => 0);
+  rows.segmentIds = buffers.segmentIds.map((b, s) => moveIds(b, (k) => maps.segments[k]![s], () => 0));
+  rows.line = moveIds(buffers.line, () => undefined, (k) => lineOffsets[k]!);
+  rows.label = moveFloats(buffers.label);
+  rows.score = moveFloats(buffers.score);
+  rows.offset = moveFloats(buffers.offset);
+  rows.count = total;
+  rows.capacity = total;
+  return rows;
 }
 
 /** Range starts: evenly spaced, each moved just past the next newline. The last entry is the size. */
@@ -156,15 +245,7 @@ function merge(parts: Extract<RangeResult, { kind: 'rows' }>[], lineOffsets: num
   const rows = new RowColumns(headerRows.segmentNames, 16);
   rows.notes.messages.push(...headerRows.notes.messages);
   const total = parts.reduce((sum, p) => sum + p.count, 0);
-  const remap = (pool: BytePool, packed: PackedPool): Uint32Array => {
-    const ids = new Uint32Array(packed.starts.length - 1);
-    for (let i = 0; i < ids.length; i++) ids[i] = pool.intern(packed.bytes, packed.starts[i]!, packed.starts[i + 1]!);
-    return ids;
-  };
-  // Interning range by range, each in its own first-seen order, keeps the single-pass id order.
-  const queryMaps = parts.map((p) => remap(rows.queries, p.queries));
-  const itemMaps = parts.map((p) => remap(rows.items, p.items));
-  const segmentMaps = parts.map((p) => p.segmentPools.map((packed, k) => remap(rows.segmentPools[k]!, packed)));
+  const { queries: queryMaps, items: itemMaps, segments: segmentMaps } = remapPools(rows, parts);
   const columns = parts as unknown as Record<string, unknown>[];
   const take = <T>(key: string): T[] => columns.map((c) => {
     const value = c[key] as T;
@@ -189,6 +270,20 @@ function merge(parts: Extract<RangeResult, { kind: 'rows' }>[], lineOffsets: num
   rows.count = total;
   rows.capacity = total;
   return rows;
+}
+
+/** Interning range by range, each in its own first-seen order, keeps the single-pass id order. */
+function remapPools(rows: RowColumns, parts: Extract<RangeResult, { kind: 'rows' }>[]) {
+  const remap = (pool: BytePool, packed: PackedPool): Uint32Array => {
+    const ids = new Uint32Array(packed.starts.length - 1);
+    for (let i = 0; i < ids.length; i++) ids[i] = pool.intern(packed.bytes, packed.starts[i]!, packed.starts[i + 1]!);
+    return ids;
+  };
+  return {
+    queries: parts.map((p) => remap(rows.queries, p.queries)),
+    items: parts.map((p) => remap(rows.items, p.items)),
+    segments: parts.map((p) => p.segmentPools.map((packed, k) => remap(rows.segmentPools[k]!, packed))),
+  };
 }
 
 function concatMapped(columns: Uint32Array[], maps: Uint32Array[], total: number): Uint32Array {

@@ -5,6 +5,7 @@
  * unsafe; the caller then reads the whole file on one thread.
  */
 import { InputError } from '../errors';
+import type { SharedColumns } from './columns';
 import { DelimitedParser } from './delimited';
 import type { ColumnRoles } from './roles';
 import { pumpRange, type RecordSink } from './source';
@@ -17,6 +18,7 @@ export interface RangeTask {
   readonly names: string[];
   readonly columns?: ColumnRoles;
   readonly chunkBytes: number;
+  readonly shared?: SharedColumns;
 }
 
 export interface PackedPool {
@@ -30,6 +32,8 @@ export type RangeResult =
       readonly count: number;
       /** Newlines consumed in the range: the next range starts that many lines later. */
       readonly lines: number;
+      /** True when all rows are in the task's shared slice; the column fields below are then empty. */
+      readonly inShared: boolean;
       readonly query: Uint32Array;
       readonly item: Uint32Array;
       readonly label: Float64Array;
@@ -59,8 +63,8 @@ class QuoteGuard implements RecordSink {
 }
 
 export async function parseRange(task: RangeTask, onBytes: (done: number) => void): Promise<RangeResult> {
-  const parser = new DelimitedParser({ file: task.path, delimiter: task.delimiter, columns: task.columns, expectedBytes: task.end - task.start },
-    { names: task.names });
+  const parser = new DelimitedParser({ file: task.path, delimiter: task.delimiter, columns: task.columns, expectedBytes: task.end - task.start,
+    shared: task.shared }, { names: task.names });
   try {
     await pumpRange(task.path, task.start, task.end, new QuoteGuard(parser), onBytes, task.chunkBytes);
   } catch (err) {
@@ -70,28 +74,38 @@ export async function parseRange(task: RangeTask, onBytes: (done: number) => voi
   }
   const rows = parser.columns!;
   const n = rows.count;
+  const pools = {
+    queries: rows.queries.exportPacked(),
+    items: rows.items.exportPacked(),
+    segmentPools: rows.segmentPools.map((p) => p.exportPacked()),
+  };
+  if (rows.inShared) {
+    const none = new Uint32Array(0);
+    const noneF = new Float64Array(0);
+    return { kind: 'rows', count: n, lines: parser.line - 1, inShared: true, query: none, item: none, label: noneF, score: noneF, line: none,
+      offset: noneF, segmentIds: [], ...pools };
+  }
   return {
     kind: 'rows',
     count: n,
     lines: parser.line - 1,
+    inShared: false,
     query: rows.query.subarray(0, n),
     item: rows.item.subarray(0, n),
     label: rows.label.subarray(0, n),
     score: rows.score.subarray(0, n),
     line: rows.line.subarray(0, n),
     offset: rows.offset.subarray(0, n),
-    segmentIds: rows.segmentIds.map((ids) => ids.subarray(0, n)),
-    queries: rows.queries.exportPacked(),
-    items: rows.items.exportPacked(),
-    segmentPools: rows.segmentPools.map((p) => p.exportPacked()),
-  };
+    segmentIds: rows.segmentIds.map((ids) => ids.subarray(0, n)) as Uint32Array[],
+    ...pools,
+  } as RangeResult;
 }
 
 /** The buffers of a result, to transfer rather than copy between threads. */
 export function transferList(result: RangeResult): ArrayBuffer[] {
   if (result.kind !== 'rows') return [];
-  const views: ArrayBufferView[] = [result.query, result.item, result.label, result.score, result.line, result.offset, ...result.segmentIds,
-    result.queries.bytes, result.queries.starts, result.items.bytes, result.items.starts,
+  const columns: ArrayBufferView[] = result.inShared ? [] : [result.query, result.item, result.label, result.score, result.line, result.offset, ...result.segmentIds];
+  const views: ArrayBufferView[] = [...columns, result.queries.bytes, result.queries.starts, result.items.bytes, result.items.starts,
     ...result.segmentPools.flatMap((p) => [p.bytes, p.starts])];
   return views.map((v) => v.buffer as ArrayBuffer);
 }
