@@ -20,6 +20,9 @@ export class SeenItems {
   }
 }
 
+/** The arranged list; one object reused for every query. */
+type Arranged = { -readonly [K in keyof GroupedList]: GroupedList[K] };
+
 export class QueryRanking {
   n = 0;
   duplicates = 0;
@@ -43,7 +46,7 @@ export class QueryRanking {
 
   /** The list under the tie convention; `order[slot]` = ranked slot placed there. */
   order = new Uint32Array(0);
-  arranged: GroupedList = { n: 0, grade: this.grade, unjudged: this.unjudged, bounds: this.tieBounds, groups: 0 };
+  readonly arranged: Arranged = { n: 0, grade: this.grade, unjudged: this.unjudged, bounds: this.tieBounds, groups: 0 };
 
   private key = new Float64Array(0);
   private localRow = new Uint32Array(0);
@@ -163,11 +166,11 @@ export class QueryRanking {
     const order = this.order;
     for (let i = 0; i < n; i++) order[i] = i;
     if (ties === 'average') {
-      this.arranged = { n, grade: this.grade, unjudged: this.unjudged, bounds: this.tieBounds, groups: this.tieGroups };
+      this.setArranged(n, this.grade, this.unjudged, this.tieBounds, this.tieGroups);
       return;
     }
     if (ties === 'file-order' || this.tiedRows === 0) {
-      this.arranged = { n, grade: this.grade, unjudged: this.unjudged, bounds: this.singletons, groups: n };
+      this.setArranged(n, this.grade, this.unjudged, this.singletons, n);
       return;
     }
     // Pessimistic: lower grades first; optimistic: higher first. Stable, so file order breaks equal grades.
@@ -186,6 +189,15 @@ export class QueryRanking {
       grade[i] = this.grade[order[i]!]!;
       unjudged[i] = this.unjudged[order[i]!]!;
     }
-    this.arranged = { n, grade, unjudged, bounds: this.singletons, groups: n };
+    this.setArranged(n, grade, unjudged, this.singletons, n);
+  }
+
+  private setArranged(n: number, grade: Float64Array, unjudged: Uint8Array, bounds: Uint32Array, groups: number): void {
+    const a = this.arranged;
+    a.n = n;
+    a.grade = grade;
+    a.unjudged = unjudged;
+    a.bounds = bounds;
+    a.groups = groups;
   }
 }

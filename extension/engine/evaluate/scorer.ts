@@ -7,7 +7,7 @@ import { discountTable } from '../metrics/discount';
 import { ErrCalculator, errStopProbability } from '../metrics/err';
 import { gainFunction, isMonotone, type GainFunction } from '../metrics/gain';
 import { averagePrecision, dcg, idealDcg, rankBiasedPrecision, reciprocalRank, relevantInTop } from '../metrics/listMetrics';
-import { PairCounter, type PairResult } from '../metrics/pairs';
+import { PairCounter, type PairInput, type PairResult } from '../metrics/pairs';
 import { GradeIndex } from './grades';
 import type { QueryRanking } from './ranking';
 
@@ -85,6 +85,8 @@ export class QueryScorer {
   private stop = new Float64Array(16);
   private stopOfRank = new Float64Array(16);
   private readonly pairCounter = new PairCounter();
+  /** Reused for every query. */
+  private readonly pairInput: { -readonly [K in keyof PairInput]: PairInput[K] };
   private readonly rbpOut = new Float64Array(2);
   private readonly rbpIndex: number;
 
@@ -103,6 +105,18 @@ export class QueryScorer {
     this.stopOf = errStopProbability(gmax);
     this.hasErr = metrics.some((m) => m.name === 'err');
     this.rbpIndex = metrics.findIndex((m) => m.name === 'rbp');
+    this.pairInput = {
+      n: 0,
+      rank: this.arrangedRank,
+      distinct: 0,
+      rankCount: this.grades.count,
+      classBounds: new Uint32Array(1),
+      classes: 0,
+      gain: this.gain,
+      discount: this.headlineDiscount,
+      gainOfRank: this.gainOfRank,
+      gainIncreasing: this.monotone,
+    };
   }
 
   score(ranking: QueryRanking): void {
@@ -200,21 +214,17 @@ export class QueryScorer {
     }
     this.dcgHeadline = dcg(list, this.gain, hk);
     this.idealDcgHeadline = idealDcg(this.ideal.gain, this.ideal.count, this.ideal.distinct, hk, n);
-    this.pairCounter.compute(
-      {
-        n,
-        rank: this.arrangedRank,
-        distinct: this.grades.distinct,
-        rankCount: this.grades.count,
-        classBounds: ranking.classBounds,
-        classes: ranking.classes,
-        gain: this.gain,
-        discount: applied,
-        gainOfRank: this.gainOfRank,
-        gainIncreasing: this.monotone,
-      },
-      this.pairs,
-    );
+    const input = this.pairInput;
+    input.n = n;
+    input.rank = this.arrangedRank;
+    input.distinct = this.grades.distinct;
+    input.rankCount = this.grades.count;
+    input.classBounds = ranking.classBounds;
+    input.classes = ranking.classes;
+    input.gain = this.gain;
+    input.discount = applied;
+    input.gainOfRank = this.gainOfRank;
+    this.pairCounter.compute(input, this.pairs);
   }
 
   /** Σ over inverted pairs of |ΔNDCG@headline| (0 when the ideal DCG is 0). */
