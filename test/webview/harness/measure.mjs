@@ -24,20 +24,30 @@ async function detailSwitch(items, rounds) {
   const big = items > 0 ? (await page.evaluate(() => window.__host.queries[0].id)) : undefined;
   const targets = big ? [big] : ids;
   const full = [];
+  const lists = [];
   const roundTrip = [];
   for (let i = 0; i < rounds; i++) {
     const q = targets[i % targets.length];
-    full.push(await page.evaluate(async (query) => {
+    const t = await page.evaluate(async (query) => {
       const t0 = performance.now();
-      // Same path as a click: the app's openQuery.
+      let listsAt = 0;
+      // The lists are drawn synchronously when the answer arrives: catch that moment exactly.
+      const observer = new MutationObserver(() => {
+        if (!listsAt && document.querySelector('#gl-detail-query')?.textContent === query && document.querySelector('#gl-predicted-order')) listsAt = performance.now();
+      });
+      observer.observe(document.querySelector('#gl-detail'), { childList: true, subtree: true, characterData: true });
       window.dispatchEvent(new MessageEvent('message', { data: { kind: 'showQuery', query } }));
       await new Promise((resolve) => {
-        const check = () => (document.querySelector('#gl-detail-query')?.textContent === query && !document.querySelector('#gl-detail[aria-busy]') ? resolve() : requestAnimationFrame(check));
+        const check = () => (listsAt && !document.querySelector('#gl-detail[aria-busy]') ? resolve() : requestAnimationFrame(check));
         check();
       });
-      await new Promise((r) => requestAnimationFrame(() => r()));
-      return performance.now() - t0;
-    }, q));
+      // The chart is drawn on the frame after the lists; wait for it too.
+      await new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(() => r())));
+      observer.disconnect();
+      return { lists: listsAt - t0, full: performance.now() - t0 };
+    }, q);
+    lists.push(t.lists);
+    full.push(t.full);
     roundTrip.push(await page.evaluate(async (query) => {
       const t0 = performance.now();
       await new Promise((resolve) => {
@@ -58,7 +68,7 @@ async function detailSwitch(items, rounds) {
     await page.waitForTimeout(30);
   }
   await page.close();
-  return { full: median(full), roundTrip: median(roundTrip) };
+  return { full: median(full), lists: median(lists), roundTrip: median(roundTrip) };
 }
 
 async function scrollJump() {
@@ -92,8 +102,8 @@ async function scrollJump() {
 const small = await detailSwitch(0, 25);
 const large = await detailSwitch(3000, 9);
 const scroll = await scrollJump();
-console.log(`detail switch, ~12-item queries: ${small.full.toFixed(1)} ms median (request round trip alone ${small.roundTrip.toFixed(1)} ms; ratio ${(small.full / small.roundTrip).toFixed(1)}x)`);
-console.log(`detail switch, 3000-item query (100 rows drawn): ${large.full.toFixed(1)} ms median (round trip ${large.roundTrip.toFixed(1)} ms; ratio ${(large.full / large.roundTrip).toFixed(1)}x)`);
+console.log(`detail switch, ~12-item queries: lists drawn after ${small.lists.toFixed(1)} ms, with chart ${small.full.toFixed(1)} ms (medians; bare request round trip ${small.roundTrip.toFixed(1)} ms)`);
+console.log(`detail switch, 3000-item query (first 200 rows drawn): lists after ${large.lists.toFixed(1)} ms, with chart ${large.full.toFixed(1)} ms (bare round trip ${large.roundTrip.toFixed(1)} ms; lists/round trip ${(large.lists / large.roundTrip).toFixed(1)}x)`);
 console.log(`jump-scroll in 100k queries until the new page is drawn: ${scroll.median.toFixed(1)} ms median; rows in the DOM: ${scroll.domRows}`);
 await browser.close();
 await harness.close();

@@ -15,7 +15,7 @@ import { highlightItem, renderConnector, renderOrderList, type ConnectorLink } f
 import { staticTable } from '../ui/staticTable';
 
 // Enough for nearly every real query; longer lists grow on request so a switch stays fast.
-const SHOW_STEP = 300;
+const SHOW_STEP = 200;
 const num = (v: number | null): number => (v === null ? NaN : v);
 const f4 = (v: number | null): string => formatFixed(num(v), 4);
 const grade = (v: number | null): string => (v === null ? 'unjudged' : String(v));
@@ -230,7 +230,8 @@ export class DetailScreen {
   }
 
   private renderCumulative(d: QueryDetailView): void {
-    const n = Math.min(d.positions.length, Math.max(this.shown, d.k * 2));
+    // Past the cut-off the curves are flat (contributions are 0), so a few times k shows everything.
+    const n = Math.min(d.positions.length, Math.max(d.k * 3, 30));
     const slice = d.positions.slice(0, n);
     this.chartCanvas.setAttribute('aria-label', `Cumulative DCG by position for the first ${n} positions, model order against ideal order`);
     this.chartNote.textContent = `DCG accumulated down the list; positions beyond @${d.k} add nothing. The gap between the two curves is what the model order loses against the ideal order.`;
