@@ -65,7 +65,7 @@ describe('ERR, hand-derived from Chapelle, Metzler, Zhang & Grinspan 2009', () =
     // ERR = 3/8 + (5/8)(0)/2 + (5/8)(1)(1/8)/3 = 3/8 + 5/192 = 77/192.
     expect(single(queryRows('masonry bit 8mm', [2, 0, 1], [3, 2, 1]), 'err', c)['err']).toBeCloseTo(77 / 192, 14);
   });
-  it('a tied pair (grades 2 and 0) averages its two orders: (3/4 + (1/4·0 + 1·3/4)/2... ) = 9/16', () => {
+  it('a tied pair (grades 2 and 0) averages its two orders: (3/4 + 3/8)/2 = 9/16', () => {
     // Order [2,0]: 3/4. Order [0,2]: 0 + (1 − 0)(3/4)/2 = 3/8. Mean 9/16.
     expect(single(queryRows('masonry bit 8mm', [2, 0], [1, 1]), 'err')['err']).toBeCloseTo(9 / 16, 14);
   });

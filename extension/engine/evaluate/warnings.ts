@@ -4,7 +4,6 @@
  */
 import type { RankedDump } from '../model/dump';
 import type { Conventions, MetricSpec } from '../metrics/conventions';
-import { formatGain } from '../metrics/parse';
 import type { DegenerateCounts } from './types';
 
 export interface WarningInput {
@@ -70,9 +69,6 @@ export function describeDegenerate(w: WarningInput): string[] {
     out.push(`ERR uses a maximum grade of ${w.gmax} (${source}).`);
   }
   const hk = Number.isFinite(w.headlineK) ? `@${w.headlineK}` : '';
-  out.push(
-    `Conventions: gain ${formatGain(c.gain)}, ties ${c.ties}, no-relevant ${c.noRelevant}, relevant from grade ${c.relevantFrom}, ` +
-      `RBP persistence ${c.rbpPersistence}; inversion cost is in NDCG${hk}.`,
-  );
+  out.push(`Inversion cost is the NDCG${hk} that swapping each inverted pair would recover, summed per query.`);
   return out;
 }
