@@ -74,12 +74,15 @@ export function assertTextHead(head: Uint8Array, file: string): void {
 /** Streams the decompressed text of `path` through `sink`; returns the stamp taken before reading. */
 export async function pumpText(path: string, sink: RecordSink, options: PumpOptions = {}): Promise<FileStamp> {
   const stamp = await statStamp(path);
-  const gz = await isGzip(path);
-  const progress = { done: 0 };
-  const chunks = gz ? gunzipChunks(path, progress) : plainChunks(path, options.chunkBytes ?? sourceTuning.plainChunkBytes, progress, 0, Infinity);
-  await feedChunks(chunks, sink, 0, path, options.signal, () => {
-    if (stamp.size > 0) options.onProgress?.(Math.min(1, progress.done / stamp.size));
-  });
+  const report = (done: number) => {
+    if (stamp.size > 0) options.onProgress?.(Math.min(1, done / stamp.size));
+  };
+  if (await isGzip(path)) {
+    const progress = { done: 0 };
+    await feedChunks(gunzipChunks(path, progress), sink, path, options.signal, () => report(progress.done));
+  } else {
+    await feedPlain(path, 0, Infinity, sink, { fileStart: path, signal: options.signal, onBytes: report, chunkBytes: options.chunkBytes });
+  }
   await checkUnchanged(path, stamp);
   options.onProgress?.(1);
   return stamp;
@@ -91,16 +94,59 @@ export async function pumpText(path: string, sink: RecordSink, options: PumpOpti
  */
 export async function pumpRange(path: string, start: number, end: number, sink: RecordSink,
   onBytes: (done: number) => void, chunkBytes = sourceTuning.plainChunkBytes): Promise<void> {
-  const progress = { done: 0 };
-  await feedChunks(plainChunks(path, chunkBytes, progress, start, end), sink, start, undefined, undefined, () => onBytes(progress.done - start));
+  await feedPlain(path, start, end, sink, { onBytes: (at) => onBytes(at - start), chunkBytes });
+}
+
+/**
+ * Reads a plain file into one reused buffer: the unfinished record at the end of each chunk is moved
+ * to the front and the next chunk is read after it, so reading makes no garbage however large the file.
+ */
+async function feedPlain(path: string, from: number, to: number, sink: RecordSink,
+  options: { fileStart?: string; signal?: AbortSignal; onBytes: (position: number) => void; chunkBytes?: number | undefined }): Promise<void> {
+  const fh = await fsp.open(path, 'r');
+  try {
+    let buf = Buffer.allocUnsafe(Math.max(16, options.chunkBytes ?? sourceTuning.plainChunkBytes));
+    let kept = 0;
+    let base = from;
+    let position = from;
+    let first = true;
+    for (;;) {
+      throwIfCancelled(options.signal);
+      if (kept === buf.length) {
+        const grown = Buffer.allocUnsafe(buf.length * 2);
+        buf.copy(grown, 0, 0, kept);
+        buf = grown;
+      }
+      const want = Math.min(buf.length - kept, to - position);
+      const { bytesRead } = want > 0 ? await fh.read(buf, kept, want, position) : { bytesRead: 0 };
+      if (bytesRead === 0) break;
+      position += bytesRead;
+      const end = kept + bytesRead;
+      let start = 0;
+      if (first && options.fileStart !== undefined) {
+        assertTextHead(buf.subarray(0, end), options.fileStart);
+        if (buf[0] === 0xef && buf[1] === 0xbb && buf[2] === 0xbf) start = 3;
+      }
+      first = false;
+      const consumed = sink.feed(buf, start, end, base, false);
+      buf.copy(buf, 0, consumed, end);
+      kept = end - consumed;
+      base += consumed;
+      options.onBytes(position);
+    }
+    throwIfCancelled(options.signal);
+    sink.feed(buf, 0, kept, base, true);
+  } finally {
+    await fh.close();
+  }
 }
 
 /** Feeds chunks to the sink, carrying an unfinished record over to the next chunk. */
-async function feedChunks(chunks: AsyncIterable<Buffer>, sink: RecordSink, startBase: number, fileStart: string | undefined,
+async function feedChunks(chunks: AsyncIterable<Buffer>, sink: RecordSink, fileStart: string,
   signal: AbortSignal | undefined, afterChunk: () => void): Promise<void> {
   let carry: Buffer | undefined;
-  let carryBase = startBase;
-  let nextBase = startBase;
+  let carryBase = 0;
+  let nextBase = 0;
   let first = true;
   for await (const chunk of chunks) {
     throwIfCancelled(signal);
@@ -112,7 +158,7 @@ async function feedChunks(chunks: AsyncIterable<Buffer>, sink: RecordSink, start
     }
     nextBase = base + buf.length;
     let start = 0;
-    if (first && fileStart !== undefined) {
+    if (first) {
       assertTextHead(buf, fileStart);
       if (buf[0] === 0xef && buf[1] === 0xbb && buf[2] === 0xbf) start = 3;
     }
@@ -125,33 +171,6 @@ async function feedChunks(chunks: AsyncIterable<Buffer>, sink: RecordSink, start
   throwIfCancelled(signal);
   const rest = carry ?? Buffer.alloc(0);
   sink.feed(rest, 0, rest.length, carryBase, true);
-}
-
-async function* plainChunks(path: string, chunkBytes: number, progress: { done: number }, from: number, to: number): AsyncGenerator<Buffer> {
-  const fh = await fsp.open(path, 'r');
-  try {
-    let position = from;
-    const readAt = async (at: number): Promise<Buffer> => {
-      const length = Math.min(chunkBytes, to - at);
-      if (length <= 0) return Buffer.alloc(0);
-      const buf = Buffer.allocUnsafe(length);
-      const { bytesRead } = await fh.read(buf, 0, length, at);
-      return buf.subarray(0, bytesRead);
-    };
-    // Keep one read in flight while the caller parses the previous chunk.
-    let pending = readAt(position);
-    for (;;) {
-      const buf = await pending;
-      if (buf.length === 0) break;
-      position += buf.length;
-      progress.done = position;
-      pending = readAt(position);
-      pending.catch(() => undefined);
-      yield buf;
-    }
-  } finally {
-    await fh.close();
-  }
 }
 
 async function* gunzipChunks(path: string, progress: { done: number }): AsyncGenerator<Buffer> {
