@@ -35,3 +35,12 @@ describe('empty inputs', () => {
     expect(d.ndcg).toBeNaN();
   });
 });
+
+describe('query detail without a cut-off', () => {
+  it('k = Infinity scores the whole list', () => {
+    const dump = buildDump(queryRows('cordless drill 18v', [0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 2], [12, 11, 10, 9, 8, 7, 6, 5, 4, 3, 2, 1]));
+    const d = queryDetail(dump, 0, DEFAULT_CONVENTIONS, Infinity);
+    expect(d.ndcg).toBeCloseTo(1 / Math.log2(13), 14); // the one relevant item at position 12
+    expect(d.values['ndcg']).toBeCloseTo(1 / Math.log2(13), 14);
+  });
+});

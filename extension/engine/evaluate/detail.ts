@@ -27,7 +27,8 @@ export function queryDetail(
   k: number = 10,
   options: QueryDetailOptions = {},
 ): QueryDetail {
-  const metrics = options.metrics ?? parseMetricList(`ndcg@${k},dcg@${k},err@${k},ap,rr,p@${k},r@${k},rbp,tau`);
+  const at = Number.isFinite(k) ? `@${k}` : '';
+  const metrics = options.metrics ?? parseMetricList(`ndcg${at},dcg${at},err${at},ap,rr,p${at},r${at},rbp,tau`);
   const gmax = checkConventions(dump, metrics, conventions);
   const rows = rowsOf(dump, queryId, options.groups);
   const ranking = new QueryRanking();
