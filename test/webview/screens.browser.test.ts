@@ -129,10 +129,20 @@ describe('single-run screens', () => {
     const items = await page.locator('#gl-predicted-order [data-item]').count();
     expect(await page.locator('#gl-ideal-order [data-item]').count()).toBe(items);
     expect(await page.locator('#gl-detail svg.gl-links path').count()).toBe(items);
-    await page.click('#gl-predicted-order [data-item] >> nth=1');
+    // Keyboard selection: the second item becomes selected in both lists.
+    await page.focus('#gl-predicted-order');
+    await page.keyboard.press('ArrowDown');
+    await page.keyboard.press('ArrowDown');
+    const second = await page.getAttribute('#gl-predicted-order [data-item] >> nth=1', 'data-item');
+    expect(await page.getAttribute('#gl-predicted-order .gl-order-row.selected', 'data-item')).toBe(second);
+    expect(await page.getAttribute('#gl-ideal-order .gl-order-row.selected', 'data-item')).toBe(second);
     await page.click('#gl-reveal-in-file');
     const calls = await page.evaluate(() => (window as unknown as { __host: { calls: { method: string; params: { row?: number } }[] } }).__host.calls.filter((c) => c.method === 'revealRow'));
     expect(calls).toHaveLength(1);
+    // The selected item's row is the one revealed.
+    const detail = await page.evaluate(() => (window as unknown as { __host: { calls: { method: string; params: unknown }[] } }).__host.calls.filter((c) => c.method === 'queryDetail').length);
+    expect(detail).toBeGreaterThan(0);
+    expect(calls[0]!.params.row).toBe(Number((second ?? 'sku-').slice(4)));
     await page.close();
   });
 

@@ -33,7 +33,7 @@ export interface OrderListSpec {
 }
 
 export function renderOrderList(spec: OrderListSpec, onPick: (item: string) => void): HTMLElement {
-  const list = el('div', { id: spec.id, className: 'gl-order', attrs: { role: 'table', 'aria-label': spec.label } });
+  const list = el('div', { id: spec.id, className: 'gl-order', attrs: { role: 'table', 'aria-label': `${spec.label} (arrow keys select an item)`, tabindex: 0 } });
   const head = el('div', { className: 'gl-order-head', attrs: { role: 'row' } });
   for (const h of spec.headers) head.appendChild(el('span', { text: h.text, title: h.title, className: h.numeric ? 'num' : undefined, attrs: { role: 'columnheader' } }));
   list.appendChild(head);
@@ -60,6 +60,19 @@ export function renderOrderList(spec: OrderListSpec, onPick: (item: string) => v
     const row = (e.target as HTMLElement).closest<HTMLElement>('.gl-order-row');
     const item = row?.dataset['item'];
     if (item !== undefined) onPick(item);
+  });
+  // Keyboard: Up/Down move the selected item within this list, so the lines can be followed without a mouse.
+  list.addEventListener('keydown', (e) => {
+    if (e.key !== 'ArrowDown' && e.key !== 'ArrowUp') return;
+    e.preventDefault();
+    const rows = [...list.querySelectorAll<HTMLElement>('.gl-order-row')];
+    const current = rows.findIndex((r) => r.classList.contains('selected'));
+    const next = Math.max(0, Math.min(rows.length - 1, current < 0 ? 0 : current + (e.key === 'ArrowDown' ? 1 : -1)));
+    const row = rows[next];
+    const item = row?.dataset['item'];
+    if (!row || item === undefined || next === current) return;
+    onPick(item);
+    row.scrollIntoView({ block: 'nearest' });
   });
   return list;
 }
