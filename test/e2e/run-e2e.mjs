@@ -9,7 +9,7 @@
 import { spawnSync } from 'node:child_process';
 import { copyFileSync, mkdirSync, readFileSync, rmSync } from 'node:fs';
 import { join } from 'node:path';
-import { ensureCodeServer, E2E_DIR, isInstalled, REPO_ROOT } from '../support/code-server-install.mjs';
+import { ensureCodeServer, ensureDebianPackages, E2E_DIR, isInstalled, REPO_ROOT, SYSTEM_PACKAGES } from '../support/code-server-install.mjs';
 import { installVsix, prepareProfile, startCodeServer } from '../support/code-server-launch.mjs';
 import { packageVsix } from '../support/package-vsix.mjs';
 import { launchBrowser, openWorkbench } from './harness.mjs';
@@ -55,6 +55,7 @@ async function main() {
   try {
     const wasInstalled = isInstalled();
     const t0 = Date.now();
+    if (!process.env.GAINLINE_E2E_CHROMIUM) ensureDebianPackages([SYSTEM_PACKAGES.chromium], { log });
     ensureCodeServer({ log });
     log(`code-server ${wasInstalled ? 'already installed' : 'installed'} (${seconds(Date.now() - t0)})`);
     let vsix = join(REPO_ROOT, `gainline-${JSON.parse(readFileSync(join(REPO_ROOT, 'package.json'), 'utf8')).version}.vsix`);
@@ -80,7 +81,7 @@ async function main() {
     await openWorkbench(page, server.folderUrl);
     log(`workbench ready (${seconds(Date.now() - t2)})`);
     const ctx = {
-      page, files, dialogs,
+      page, files, dialogs, log,
       rel: (absolute) => relative(files, absolute),
       async shot(name, { readme = false } = {}) {
         const file = join(artifacts, `${name}.png`);

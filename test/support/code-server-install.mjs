@@ -10,7 +10,8 @@ import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 
 export const REPO_ROOT = resolve(dirname(fileURLToPath(import.meta.url)), '..', '..');
-export const E2E_DIR = join(REPO_ROOT, '.e2e');
+// GAINLINE_E2E_DIR moves the whole install (used to time a fresh install).
+export const E2E_DIR = process.env.GAINLINE_E2E_DIR ? resolve(process.env.GAINLINE_E2E_DIR) : join(REPO_ROOT, '.e2e');
 
 // code-server 4.139 declares engines.node "24"; its native modules must be
 // compiled against the same Node it runs on.
@@ -75,12 +76,38 @@ function run(command, args, env) {
   }
 }
 
+/**
+ * Debian packages the e2e run needs from the system: Kerberos headers for a
+ * native module code-server builds, and Chromium for Playwright. Installed with
+ * apt-get when missing and running as root (as on CI); otherwise a clear error.
+ */
+export const SYSTEM_PACKAGES = {
+  krb5Headers: { name: 'libkrb5-dev', file: '/usr/include/krb5.h' },
+  chromium: { name: 'chromium', file: '/usr/bin/chromium' },
+};
+
+export function ensureDebianPackages(wanted, { log = console.log } = {}) {
+  const missing = wanted.filter((p) => !existsSync(p.file));
+  if (missing.length === 0) return;
+  const names = missing.map((p) => p.name);
+  if (typeof process.getuid !== 'function' || process.getuid() !== 0) {
+    throw new Error(`missing system packages: ${names.join(', ')} (install them with: sudo apt-get install -y ${names.join(' ')})`);
+  }
+  log(`[code-server] installing Debian packages: ${names.join(', ')}`);
+  const env = { ...process.env, DEBIAN_FRONTEND: 'noninteractive' };
+  run('apt-get', ['update', '-q'], env);
+  run('apt-get', ['install', '-y', '-q', '--no-install-recommends', ...names], env);
+  const still = missing.filter((p) => !existsSync(p.file));
+  if (still.length > 0) throw new Error(`apt-get did not provide ${still.map((p) => p.file).join(', ')}`);
+}
+
 const npmQuiet = ['--no-audit', '--no-fund', '--loglevel=warn', '--no-save', '--package-lock=false'];
 
 /** Ensures Node 24 + code-server exist under .e2e/; returns the paths. */
 export function ensureCodeServer({ log = console.log } = {}) {
   if (isInstalled()) return paths;
   const started = Date.now();
+  ensureDebianPackages([SYSTEM_PACKAGES.krb5Headers], { log });
   mkdirSync(node24Prefix, { recursive: true });
   mkdirSync(codeServerPrefix, { recursive: true });
   const npmCli = findNpmCli();

@@ -18,6 +18,13 @@ export const htmlIdsStayText = {
     await closeAllEditors(ctx.page);
     await openWithInspect(ctx.page, ctx.rel(ctx.files.hostile));
     const { frame } = await readHeadline(ctx.page, expected.meanText);
+    // Second line of defence beside the page's dialog hook: count alert() calls
+    // made inside the webview from here on (the sandbox may block modals).
+    await frame.evaluate(() => {
+      window.__glAlerts = 0;
+      const count = () => { window.__glAlerts += 1; };
+      window.alert = count; window.confirm = count; window.prompt = count;
+    });
     const { row, query } = await firstWorstRow(frame);
     assert(query === HOSTILE_QUERY, `first row's data-query is ${JSON.stringify(query)}`);
     const rowText = ((await row.textContent()) ?? '').replace(/\s+/g, ' ');
@@ -35,6 +42,11 @@ export const htmlIdsStayText = {
     assert(injected.bold === 0 && injected.scripts === 0, `markup from data became elements: ${JSON.stringify(injected)}`);
     await sleep(1_000); // an onerror handler would fire right away; give it the chance
     assert(ctx.dialogs.length === dialogsBefore, `a dialog opened: ${ctx.dialogs.slice(dialogsBefore).join(' | ')}`);
+    const alerts = await frame.evaluate(() => window.__glAlerts);
+    assert(alerts === 0, `alert() was called ${alerts} time(s) inside the webview`);
+    // The hook must be able to see a call, or the check above proves nothing.
+    await frame.evaluate(() => window.alert('probe'));
+    assert(await frame.evaluate(() => window.__glAlerts) === 1, 'alert probe was not counted; the script check is blind');
     await ctx.shot('hostile-ids');
   },
 };

@@ -45,14 +45,17 @@ export const themesReadable = {
           return result.bodyClass.split(/\s+/).includes(theme.bodyClass) ? result : null;
         }, { timeoutMs: 20_000, what: `webview body class ${theme.bodyClass}` });
         await ctx.shot(`theme-${theme.label.toLowerCase().replace(/\s+/g, '-')}`);
+        let lowest = Infinity;
         for (const sample of current.samples) {
           if (sample.missing || !sample.colour || sample.text === '') continue;
           const ratio = contrastRatio(sample.colour, sample.background);
+          lowest = Math.min(lowest, ratio);
           if (ratio < requiredRatio(sample)) {
             problems.push(`${theme.label}: ${sample.selector} "${sample.text}" contrast ${ratio.toFixed(2)}:1 < ${requiredRatio(sample)}:1`);
           }
         }
         const checked = current.samples.filter((s) => !s.missing && s.colour && s.text !== '').length;
+        ctx.log(`  ${theme.label}: ${checked} text elements, lowest contrast ${lowest.toFixed(2)}:1`);
         if (checked < 3) problems.push(`${theme.label}: only ${checked} text element(s) could be checked`);
       }
     } finally {
