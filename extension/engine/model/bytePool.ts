@@ -15,14 +15,24 @@ const HEADER = 8;
 const decoder = new TextDecoder('utf-8');
 const encoder = new TextEncoder();
 
+/** The internals of a pool, moved between threads without copying or rebuilding the table. */
+export interface BytePoolState {
+  readonly arena: Uint8Array;
+  readonly arenaUsed: number;
+  readonly starts: Uint32Array;
+  readonly count: number;
+  readonly table: Int32Array;
+  readonly mask: number;
+}
+
 export class BytePool implements StringPool {
-  private arena = new Uint8Array(1 << 16);
+  private arena: Uint8Array = new Uint8Array(1 << 16);
   private arenaUsed = 0;
   /** Arena record start of each id. */
-  private starts = new Uint32Array(1024);
+  private starts: Uint32Array = new Uint32Array(1024);
   private count = 0;
   /** Linear probing; slot k holds the record start at 2k (-1 when empty) and the hash at 2k + 1. */
-  private table = new Int32Array(2 * 2048).fill(EMPTY_SLOT);
+  private table: Int32Array = new Int32Array(2 * 2048).fill(EMPTY_SLOT);
   private mask = 2047;
   private decoded: (string | undefined)[] = [];
 
@@ -93,19 +103,30 @@ export class BytePool implements StringPool {
     return this.recordEquals(this.starts[id]!, bytes, start, end);
   }
 
-  /** All distinct values as one byte block plus boundaries, for sending across threads. */
-  exportPacked(): { bytes: Uint8Array; starts: Uint32Array } {
-    const starts = new Uint32Array(this.count + 1);
-    const bytes = new Uint8Array(this.arenaUsed - this.count * HEADER);
-    let at = 0;
-    for (let id = 0; id < this.count; id++) {
-      starts[id] = at;
-      const b = this.bytesOf(id);
-      bytes.set(b, at);
-      at += b.length;
+  /** The pool's internals (shared, not copied: stop using this pool afterwards). */
+  exportState(): BytePoolState {
+    return { arena: this.arena, arenaUsed: this.arenaUsed, starts: this.starts, count: this.count, table: this.table, mask: this.mask };
+  }
+
+  static fromState(state: BytePoolState): BytePool {
+    const pool = new BytePool();
+    pool.arena = state.arena;
+    pool.arenaUsed = state.arenaUsed;
+    pool.starts = state.starts;
+    pool.count = state.count;
+    pool.table = state.table;
+    pool.mask = state.mask;
+    return pool;
+  }
+
+  /** Calls `visit` with each id's bytes as arena[start, end), in id order. */
+  static forEachInState(state: BytePoolState, visit: (arena: Uint8Array, start: number, end: number) => void): void {
+    const a = state.arena;
+    for (let id = 0; id < state.count; id++) {
+      const record = state.starts[id]!;
+      const len = (a[record + 4]! | (a[record + 5]! << 8) | (a[record + 6]! << 16) | (a[record + 7]! << 24)) >>> 0;
+      visit(a, record + HEADER, record + HEADER + len);
     }
-    starts[this.count] = at;
-    return { bytes, starts };
   }
 
   private idAt(record: number): number {

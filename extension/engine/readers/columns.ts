@@ -31,9 +31,9 @@ export class RowColumns {
   segmentIds: Uint32Array<ArrayBufferLike>[];
   count = 0;
   capacity: number;
-  readonly queries = new BytePool();
-  readonly items = new BytePool();
-  readonly segmentPools: BytePool[];
+  queries = new BytePool();
+  items = new BytePool();
+  segmentPools: BytePool[];
   readonly notes: ReaderNotes = emptyNotes();
 
   constructor(

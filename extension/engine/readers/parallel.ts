@@ -10,12 +10,12 @@ import { availableParallelism } from 'node:os';
 import { join } from 'node:path';
 import { Worker } from 'node:worker_threads';
 import { CancelledError, InputError } from '../errors';
-import type { BytePool } from '../model/bytePool';
+import { BytePool, type BytePoolState } from '../model/bytePool';
 import type { RankedDump } from '../model/dump';
 import { RowColumns, type SharedColumns } from './columns';
 import { DelimitedParser } from './delimited';
 import type { ReadOptions } from './index';
-import type { PackedPool, RangeResult, RangeTask } from './rangeParse';
+import type { RangeResult, RangeTask } from './rangeParse';
 import { assertTextHead, checkUnchanged, sourceTuning, statStamp, throwIfCancelled } from './source';
 
 /** Below this size one thread is faster than starting workers. */
@@ -135,7 +135,8 @@ function viewsOf(slice: SharedColumns, count: number) {
 /**
  * Moves every range down to follow the previous one inside the shared buffers (never overwriting
  * rows not yet moved, since each slice starts at or after the rows before it end), remapping ids
- * and shifting lines on the way, then copies each column out to an ordinary buffer.
+ * and shifting lines on the way. The dump keeps views of the shared buffers: copying them out would
+ * double the peak memory of a large read. (Posting such a column to another thread shares it.)
  */
 function compactShared(parts: Extract<RangeResult, { kind: 'rows' }>[], slices: SharedColumns[], lineOffsets: number[], headerRows: RowColumns): RowColumns {
   const rows = new RowColumns(headerRows.segmentNames, 16);
@@ -154,7 +155,7 @@ function compactShared(parts: Extract<RangeResult, { kind: 'rows' }>[], slices: 
       else for (let i = 0; i < p.count; i++) column[to + i] = column[from + i]! + add;
       to += p.count;
     });
-    return column.slice(0, total);
+    return column.subarray(0, total);
   };
   const moveFloats = (buffer: SharedArrayBuffer): Float64Array => {
     const column = new Float64Array(buffer);
@@ -163,7 +164,7 @@ function compactShared(parts: Extract<RangeResult, { kind: 'rows' }>[], slices: 
       column.copyWithin(to, slices[k]!.firstRow, slices[k]!.firstRow + p.count);
       to += p.count;
     });
-    return column.slice(0, total);
+    return column.subarray(0, total);
   };
   rows.query = moveIds(buffers.query, (k) => maps.queries[k], () => 0);
   rows.item = moveIds(buffers.item, (k) => maps.items[k], () => 0);
@@ -272,17 +273,29 @@ function merge(parts: Extract<RangeResult, { kind: 'rows' }>[], lineOffsets: num
   return rows;
 }
 
-/** Interning range by range, each in its own first-seen order, keeps the single-pass id order. */
+/**
+ * The first range's pools become the result's pools as they are (its ids are already final); later
+ * ranges are interned into them range by range, each in its own first-seen order, which gives
+ * exactly the ids of a single pass.
+ */
 function remapPools(rows: RowColumns, parts: Extract<RangeResult, { kind: 'rows' }>[]) {
-  const remap = (pool: BytePool, packed: PackedPool): Uint32Array => {
-    const ids = new Uint32Array(packed.starts.length - 1);
-    for (let i = 0; i < ids.length; i++) ids[i] = pool.intern(packed.bytes, packed.starts[i]!, packed.starts[i + 1]!);
+  const remap = (pool: BytePool, state: BytePoolState): Uint32Array => {
+    const ids = new Uint32Array(state.count);
+    let i = 0;
+    BytePool.forEachInState(state, (arena, start, end) => {
+      ids[i++] = pool.intern(arena, start, end);
+    });
     return ids;
   };
+  const identity = (n: number) => Uint32Array.from({ length: n }, (_, i) => i);
+  const first = parts[0]!;
+  rows.queries = BytePool.fromState(first.queries);
+  rows.items = BytePool.fromState(first.items);
+  rows.segmentPools = first.segmentPools.map((s) => BytePool.fromState(s));
   return {
-    queries: parts.map((p) => remap(rows.queries, p.queries)),
-    items: parts.map((p) => remap(rows.items, p.items)),
-    segments: parts.map((p) => p.segmentPools.map((packed, k) => remap(rows.segmentPools[k]!, packed))),
+    queries: parts.map((p, k) => (k === 0 ? identity(p.queries.count) : remap(rows.queries, p.queries))),
+    items: parts.map((p, k) => (k === 0 ? identity(p.items.count) : remap(rows.items, p.items))),
+    segments: parts.map((p, k) => p.segmentPools.map((state, s) => (k === 0 ? identity(state.count) : remap(rows.segmentPools[s]!, state)))),
   };
 }
 

@@ -5,6 +5,7 @@
  * unsafe; the caller then reads the whole file on one thread.
  */
 import { InputError } from '../errors';
+import type { BytePoolState } from '../model/bytePool';
 import type { SharedColumns } from './columns';
 import { DelimitedParser } from './delimited';
 import type { ColumnRoles } from './roles';
@@ -21,10 +22,6 @@ export interface RangeTask {
   readonly shared?: SharedColumns;
 }
 
-export interface PackedPool {
-  readonly bytes: Uint8Array;
-  readonly starts: Uint32Array;
-}
 
 export type RangeResult =
   | {
@@ -42,9 +39,9 @@ export type RangeResult =
       readonly line: Uint32Array;
       readonly offset: Float64Array;
       readonly segmentIds: Uint32Array[];
-      readonly queries: PackedPool;
-      readonly items: PackedPool;
-      readonly segmentPools: PackedPool[];
+      readonly queries: BytePoolState;
+      readonly items: BytePoolState;
+      readonly segmentPools: BytePoolState[];
     }
   | { readonly kind: 'quoted' }
   | { readonly kind: 'error'; readonly expected: string; readonly file?: string; readonly line?: number; readonly found?: string };
@@ -75,9 +72,9 @@ export async function parseRange(task: RangeTask, onBytes: (done: number) => voi
   const rows = parser.columns!;
   const n = rows.count;
   const pools = {
-    queries: rows.queries.exportPacked(),
-    items: rows.items.exportPacked(),
-    segmentPools: rows.segmentPools.map((p) => p.exportPacked()),
+    queries: rows.queries.exportState(),
+    items: rows.items.exportState(),
+    segmentPools: rows.segmentPools.map((p) => p.exportState()),
   };
   if (rows.inShared) {
     const none = new Uint32Array(0);
@@ -105,7 +102,7 @@ export async function parseRange(task: RangeTask, onBytes: (done: number) => voi
 export function transferList(result: RangeResult): ArrayBuffer[] {
   if (result.kind !== 'rows') return [];
   const columns: ArrayBufferView[] = result.inShared ? [] : [result.query, result.item, result.label, result.score, result.line, result.offset, ...result.segmentIds];
-  const views: ArrayBufferView[] = [...columns, result.queries.bytes, result.queries.starts, result.items.bytes, result.items.starts,
-    ...result.segmentPools.flatMap((p) => [p.bytes, p.starts])];
+  const pools = [result.queries, result.items, ...result.segmentPools];
+  const views: ArrayBufferView[] = [...columns, ...pools.flatMap((p) => [p.arena, p.starts, p.table])];
   return views.map((v) => v.buffer as ArrayBuffer);
 }
