@@ -53,13 +53,19 @@ const host = createRequire(import.meta.url)(join(out, 'host.cjs'));
 
 /** Longest gap between 5 ms timer ticks, plus the event-loop delay histogram, over a stretch of work. */
 function stallProbe() {
+  const elu = performance.eventLoopUtilization();
   const histogram = monitorEventLoopDelay({ resolution: 5 });
   histogram.enable();
-  let last = performance.now();
+  const origin = performance.now();
+  let last = origin;
   let longest = 0;
+  let at = 0;
   const timer = setInterval(() => {
     const now = performance.now();
-    longest = Math.max(longest, now - last - 5);
+    if (now - last - 5 > longest) {
+      longest = now - last - 5;
+      at = last - origin;
+    }
     last = now;
   }, 5);
   return {
@@ -68,7 +74,10 @@ function stallProbe() {
       histogram.disable();
       const now = performance.now();
       longest = Math.max(longest, now - last - 5);
-      return { longestMs: longest, histogramMaxMs: histogram.max / 1e6, p99Ms: histogram.percentile(99) / 1e6 };
+      // Busy time of the main loop: robust to a crowded machine, where timer gaps also include
+      // waiting for a core.
+      const used = performance.eventLoopUtilization(elu);
+      return { busyMs: used.active, utilization: used.utilization, longestMs: longest, atMs: at, histogramMaxMs: histogram.max / 1e6, p99Ms: histogram.percentile(99) / 1e6 };
     },
   };
 }
@@ -86,17 +95,25 @@ await new Promise((r) => setTimeout(r, 3000));
 const idleStall = probe.stop();
 console.log(`  idle main thread, 3 s: longest stall ${fmt(idleStall.longestMs)} (p99 ${fmt(idleStall.p99Ms)})`);
 
-// 1. Worker path: load + overview + first page, with the main thread probed throughout.
+// 1. Starting the thread (once per editor session), then load + overview + first page, with the
+// main thread probed throughout.
 const worker = new host.EngineWorker(workerScript);
 probe = stallProbe();
 let started = performance.now();
+await worker.call('unload', { session: 'none' });
+const startMs = performance.now() - started;
+const startStall = probe.stop();
+console.log(`  worker thread start: ${fmt(startMs)}, longest main-thread stall ${fmt(startStall.longestMs)}`);
+probe = stallProbe();
+started = performance.now();
 const overview = await worker.call('load', { session: 'bench', source: { path: file }, settings }, { timeoutMs: host.LOAD_TIMEOUT_MS });
 const firstPage = await worker.call('queryPage', { session: 'bench', offset: 0, limit: 100 });
 const firstScreenMs = performance.now() - started;
 const workerStall = probe.stop();
 console.log(`  rows ${overview.file.rowCount}, queries ${overview.queryCount}, ${overview.metrics[0].label} ${overview.metrics[0].mean?.toFixed(4)}`);
 console.log(`  first screen (load + overview + first page of ${firstPage.rows.length}): ${fmt(firstScreenMs)} (worker-side load ${overview.loadMs} ms)`);
-console.log(`  main-thread longest stall while the worker loads: ${fmt(workerStall.longestMs)} (event-loop delay max ${fmt(workerStall.histogramMaxMs)}, p99 ${fmt(workerStall.p99Ms)})`);
+console.log(`  main-thread longest stall while the worker loads: ${fmt(workerStall.longestMs)} at ${fmt(workerStall.atMs)} (event-loop delay max ${fmt(workerStall.histogramMaxMs)}, p99 ${fmt(workerStall.p99Ms)})`);
+console.log(`  main-thread busy time during that load: ${fmt(workerStall.busyMs)} (${(workerStall.utilization * 100).toFixed(1)}% of the loop)`);
 
 // 2. Query details: the worst queries and a spread through the list, one at a time.
 const picks = [];
@@ -133,10 +150,12 @@ const dump = await host.readDump(file, availableParallelism() <= 2 ? { threads: 
 host.evaluate(dump, host.parseMetricList(settings.metrics), settings.conventions);
 const inThreadMs = performance.now() - started;
 const inThreadStall = probe.stop();
-console.log(`  peer, same work on the main thread: ${fmt(inThreadMs)}, longest stall ${fmt(inThreadStall.longestMs)}`);
+console.log(`  peer, same work on the main thread: ${fmt(inThreadMs)}, longest stall ${fmt(inThreadStall.longestMs)}, busy ${fmt(inThreadStall.busyMs)}`);
 
 const ratio = inThreadStall.longestMs / Math.max(workerStall.longestMs, 0.1);
-console.log(`  stall ratio main-thread peer / worker: ${ratio.toFixed(0)}×`);
+const busyRatio = inThreadStall.busyMs / Math.max(workerStall.busyMs, 0.1);
+console.log(`  ratios main-thread peer / worker: longest stall ${ratio.toFixed(0)}×, main-thread busy time ${busyRatio.toFixed(0)}×`);
 const stallOk = Math.max(workerStall.longestMs, detailStall.longestMs) < 50;
 const detailOk = quantile(detailMs, 0.95) < 100;
-console.log(`  targets: stall < 50 ms ${stallOk ? 'met' : 'MISSED'}; queryDetail p95 < 100 ms ${detailOk ? 'met' : 'MISSED'}`);
+console.log(`  targets: stall < 50 ms ${stallOk ? 'met' : 'MISSED'} (idle control on this machine: ${fmt(idleStall.longestMs)}); ` +
+  `queryDetail p95 < 100 ms ${detailOk ? 'met' : 'MISSED'}`);
