@@ -92,27 +92,26 @@ export async function focusWorkbench(page) {
  */
 export async function runCommand(page, title, { timeoutMs = 30_000 } = {}) {
   const deadline = Date.now() + timeoutMs;
+  const widget = page.locator('.quick-input-widget');
+  const row = exactRow(widget, title);
   for (;;) {
-    await page.keyboard.press('Escape');
-    await focusWorkbench(page);
-    await page.keyboard.press('F1');
-    const widget = page.locator('.quick-input-widget');
-    const opened = await widget.waitFor({ state: 'visible', timeout: 3_000 }).then(() => true, () => false);
-    let found = false;
-    const row = exactRow(widget, title);
-    if (opened) {
-      await widget.locator('input.input').fill(`>${title}`);
-      found = await row.waitFor({ state: 'visible', timeout: 3_000 }).then(() => true, () => false);
-    }
-    if (found) {
-      await row.click();
-      return;
-    }
-    if (Date.now() > deadline) {
+    try {
       await page.keyboard.press('Escape');
-      throw new Error(`command "${title}" not found in the command palette within ${timeoutMs} ms`);
+      await focusWorkbench(page);
+      await page.keyboard.press('F1');
+      // A webview taking focus back closes the palette at any point; every
+      // step has a short timeout and the whole sequence is retried.
+      await widget.locator('input.input').fill(`>${title}`, { timeout: 3_000 });
+      await row.waitFor({ state: 'visible', timeout: 3_000 });
+      await row.click({ timeout: 3_000 });
+      return;
+    } catch (error) {
+      if (Date.now() > deadline) {
+        await page.keyboard.press('Escape');
+        throw new Error(`could not run "${title}" from the command palette within ${timeoutMs} ms (${error.message.split('\n')[0]})`);
+      }
+      await sleep(500);
     }
-    await sleep(1_000);
   }
 }
 
@@ -120,14 +119,15 @@ export async function runCommand(page, title, { timeoutMs = 30_000 } = {}) {
 export async function pickQuickItem(page, text, { timeoutMs = 15_000, exact = true } = {}) {
   const widget = await quickInput(page);
   const row = exact ? exactRow(widget, text) : widget.locator('.quick-input-list .monaco-list-row', { hasText: text }).first();
-  await row.waitFor({ state: 'visible', timeout: timeoutMs });
+  await row.waitFor({ state: 'visible', timeout: timeoutMs })
+    .catch(() => { throw new Error(`quick pick shows no row labelled "${text}"`); });
   await row.click();
 }
 
 /** Types into the open quick input (file picker, theme picker) and picks the row labelled `pickText`. */
 export async function typeInQuickInput(page, text, { pickText, timeoutMs = 15_000 } = {}) {
   const widget = await quickInput(page);
-  await widget.locator('input.input').fill(text);
+  await widget.locator('input.input').fill(text, { timeout: timeoutMs });
   if (pickText) {
     await pickQuickItem(page, pickText, { timeoutMs });
   } else {
@@ -135,17 +135,22 @@ export async function typeInQuickInput(page, text, { pickText, timeoutMs = 15_00
   }
 }
 
-/** Opens a workspace file through Quick Open (Ctrl+P) by its relative path. */
+/**
+ * Opens a workspace file through Go to File. The row is clicked rather than
+ * Enter pressed: the list first shows recently opened files and filters
+ * asynchronously, so the focused row may still be another file.
+ */
 export async function openFile(page, relativePath) {
-  await page.keyboard.press('Escape');
   await runCommand(page, 'Go to File...');
   const widget = await quickInput(page);
   await widget.locator('input.input').fill(relativePath);
   const base = relativePath.split('/').pop();
-  const row = widget.locator('.quick-input-list .monaco-list-row', { hasText: base }).first();
-  await row.waitFor({ state: 'visible', timeout: 15_000 });
-  await page.keyboard.press('Enter');
-  await page.locator('.tabs-container .tab', { hasText: base }).first().waitFor({ state: 'visible', timeout: 15_000 });
+  const row = exactRow(widget, base);
+  await row.waitFor({ state: 'visible', timeout: 15_000 })
+    .catch(() => { throw new Error(`Go to File shows no row labelled ${base}`); });
+  await row.click();
+  await page.locator('.tabs-container .tab', { hasText: base }).first().waitFor({ state: 'visible', timeout: 15_000 })
+    .catch(() => { throw new Error(`no editor tab for ${base} after Go to File`); });
 }
 
 /**

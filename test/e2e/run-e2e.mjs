@@ -72,6 +72,7 @@ async function main() {
     log(`code-server on ${server.baseUrl}`);
     browser = await launchBrowser();
     const page = await browser.newPage({ viewport: { width: 1280, height: 800 } });
+    page.setDefaultTimeout(30_000);
     const dialogs = [];
     page.on('dialog', (dialog) => {
       dialogs.push(`${dialog.type()}: ${dialog.message()}`);

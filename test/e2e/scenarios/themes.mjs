@@ -22,8 +22,16 @@ function requiredRatio(sample) {
 }
 
 async function applyTheme(page, label) {
-  await runCommand(page, 'Preferences: Color Theme');
-  await typeInQuickInput(page, label, { pickText: label });
+  // The picker can close when the webview takes focus back; try again then.
+  for (let attempt = 1; ; attempt += 1) {
+    try {
+      await runCommand(page, 'Preferences: Color Theme');
+      await typeInQuickInput(page, label, { pickText: label, timeoutMs: 5_000 });
+      return;
+    } catch (error) {
+      if (attempt >= 3) throw error;
+    }
+  }
 }
 
 export const themesReadable = {
