@@ -16,7 +16,9 @@ export async function launchBrowser() {
     headless: true,
     env: { ...process.env, HOME: home, XDG_CONFIG_HOME: join(home, '.config'), XDG_CACHE_HOME: join(home, '.cache') },
     args: ['--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update',
-      '--disable-sync', '--no-first-run', '--disable-dev-shm-usage'],
+      '--disable-sync', '--no-first-run', '--disable-dev-shm-usage',
+      // Only loopback names resolve: nothing the workbench asks for leaves the machine.
+      '--host-resolver-rules=MAP * ~NOTFOUND, EXCLUDE 127.0.0.1, EXCLUDE localhost'],
   });
 }
 

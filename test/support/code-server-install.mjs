@@ -42,6 +42,9 @@ export function codeServerEnv(extra = {}) {
     XDG_DATA_HOME: join(xdg, 'data'),
     XDG_CACHE_HOME: join(xdg, 'cache'),
     XDG_STATE_HOME: join(xdg, 'state'),
+    // No network here: point the extension gallery at a closed loopback port so
+    // lookups fail at once on this machine instead of resolving outside names.
+    EXTENSIONS_GALLERY: JSON.stringify({ serviceUrl: 'http://127.0.0.1:9/gallery', itemUrl: 'http://127.0.0.1:9/item' }),
     ...extra,
   };
 }
