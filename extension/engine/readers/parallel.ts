@@ -10,7 +10,7 @@ import { availableParallelism } from 'node:os';
 import { join } from 'node:path';
 import { Worker } from 'node:worker_threads';
 import { CancelledError, InputError } from '../errors';
-import { BytePool, type BytePoolState } from '../model/bytePool';
+import { BytePool, hashBytes, type BytePoolState } from '../model/bytePool';
 import type { RankedDump } from '../model/dump';
 import { RowColumns, type SharedColumns } from './columns';
 import { DelimitedParser } from './delimited';
@@ -151,8 +151,10 @@ function compactShared(parts: Extract<RangeResult, { kind: 'rows' }>[], slices: 
       const from = slices[k]!.firstRow;
       const map = mapOf(k);
       const add = shift(k);
-      if (map !== undefined) for (let i = 0; i < p.count; i++) column[to + i] = map[column[from + i]!]!;
-      else for (let i = 0; i < p.count; i++) column[to + i] = column[from + i]! + add;
+      if (map !== undefined) {
+        // The first range's ids are final already (its pools were adopted as they are).
+        if (k > 0) for (let i = 0; i < p.count; i++) column[to + i] = map[column[from + i]!]!;
+      } else for (let i = 0; i < p.count; i++) column[to + i] = column[from + i]! + add;
       to += p.count;
     });
     return column.subarray(0, total);
@@ -161,7 +163,7 @@ function compactShared(parts: Extract<RangeResult, { kind: 'rows' }>[], slices: 
     const column = new Float64Array(buffer);
     let to = 0;
     parts.forEach((p, k) => {
-      column.copyWithin(to, slices[k]!.firstRow, slices[k]!.firstRow + p.count);
+      if (to !== slices[k]!.firstRow) column.copyWithin(to, slices[k]!.firstRow, slices[k]!.firstRow + p.count);
       to += p.count;
     });
     return column.subarray(0, total);
@@ -279,12 +281,27 @@ function merge(parts: Extract<RangeResult, { kind: 'rows' }>[], lineOffsets: num
  * exactly the ids of a single pass.
  */
 function remapPools(rows: RowColumns, parts: Extract<RangeResult, { kind: 'rows' }>[]) {
+  // Batched like the row parser's item lookups: warm the slots of 64 values, then intern them.
+  const starts = new Int32Array(64);
+  const ends = new Int32Array(64);
+  const hashes = new Int32Array(64);
+  const records = new Int32Array(64);
   const remap = (pool: BytePool, state: BytePoolState): Uint32Array => {
     const ids = new Uint32Array(state.count);
-    let i = 0;
+    let done = 0;
+    let n = 0;
+    const flush = () => {
+      pool.warm(hashes, n, records);
+      for (let b = 0; b < n; b++) ids[done++] = pool.internHashed(state.arena, starts[b]!, ends[b]!, hashes[b]!);
+      n = 0;
+    };
     BytePool.forEachInState(state, (arena, start, end) => {
-      ids[i++] = pool.intern(arena, start, end);
+      starts[n] = start;
+      ends[n] = end;
+      hashes[n++] = hashBytes(arena, start, end);
+      if (n === 64) flush();
     });
+    flush();
     return ids;
   };
   const identity = (n: number) => Uint32Array.from({ length: n }, (_, i) => i);
