@@ -164,6 +164,31 @@ export async function reopenWith(page, editorLabel) {
   await pickQuickItem(page, editorLabel);
 }
 
+/**
+ * The real "Open With…" from the Explorer: expand the folders on the way,
+ * right-click the file, choose "Open With...", then the editor by its label.
+ */
+export async function openWithFromExplorer(page, relativePath, editorLabel) {
+  const tree = page.locator('.explorer-folders-view');
+  const parts = relativePath.split('/');
+  for (const folder of parts.slice(0, -1)) {
+    const row = tree.locator(`.monaco-list-row[aria-label=${JSON.stringify(folder)}]`).first();
+    await row.waitFor({ state: 'visible', timeout: 15_000 })
+      .catch(() => { throw new Error(`Explorer shows no folder ${folder}`); });
+    if (await row.getAttribute('aria-expanded') === 'false') await row.click();
+  }
+  const name = parts[parts.length - 1];
+  const fileRow = tree.locator(`.monaco-list-row[aria-label=${JSON.stringify(name)}]`).first();
+  await fileRow.waitFor({ state: 'visible', timeout: 15_000 })
+    .catch(() => { throw new Error(`Explorer shows no file ${name}`); });
+  await fileRow.click({ button: 'right' });
+  const menuItem = page.locator('.monaco-menu .action-label', { hasText: /^Open With\.\.\.$/ });
+  await menuItem.waitFor({ state: 'visible', timeout: 10_000 })
+    .catch(() => { throw new Error('the Explorer context menu has no "Open With..." entry'); });
+  await menuItem.click();
+  await pickQuickItem(page, editorLabel);
+}
+
 /** Every frame that has a webview's content document (the inner `active-frame`). */
 export function webviewContentFrames(page) {
   return page.frames().filter((frame) => frame.name() === 'active-frame' || /\/fake\.html|active-frame/.test(frame.url()));

@@ -1,12 +1,17 @@
 // Steps that the scenarios share: open a dump in the Gainline editor, read the
 // headline, switch tabs, open the worst query, all inside the webview frame.
-import { findWebviewFrame, frameText, openFile, pickQuickItem, reopenWith, runCommand, waitForFrameText } from './harness.mjs';
+import { findWebviewFrame, frameText, openFile, openWithFromExplorer, pickQuickItem, reopenWith, runCommand, waitForFrameText } from './harness.mjs';
 
 export const EDITOR_LABEL = 'Gainline Ranked Lists';
 const FOUR_DECIMALS = /^-?\d+\.\d{4}$/;
 
-/** The real "Open With…" path: open the file as text, then reopen it with our editor. */
+/** The real "Open With…" path: Explorer context menu, then the editor picker. */
 export async function openWithPicker(page, relativePath) {
+  await openWithFromExplorer(page, relativePath, EDITOR_LABEL);
+}
+
+/** The same picker reached from an open text editor ("View: Reopen Editor With..."). */
+export async function reopenWithPicker(page, relativePath) {
   await openFile(page, relativePath);
   await reopenWith(page, EDITOR_LABEL);
 }

@@ -1,9 +1,9 @@
 // One dump through the real UI: "Open With…", the headline against the CLI,
 // the worst query and its detail, and a live rewrite of the file on disk.
-import { copyFileSync } from 'node:fs';
+import { copyFileSync, rmSync } from 'node:fs';
 import { closeAllEditors, findWebviewFrame, frameText, waitForFrameText } from '../harness.mjs';
 import { evalExpectations } from '../oracle.mjs';
-import { firstWorstRow, itemIds, openDetailFromRow, openWithInspect, openWithPicker, readHeadline, showTab } from '../views.mjs';
+import { firstWorstRow, itemIds, openDetailFromRow, openWithInspect, openWithPicker, readHeadline, reopenWithPicker, showTab } from '../views.mjs';
 
 function assert(condition, message) {
   if (!condition) throw new Error(message);
@@ -23,6 +23,34 @@ export const openWithShowsHeadline = {
     await ctx.shot('overview', { readme: true });
   },
 };
+
+export const reopenWithAndFilter = {
+  name: '"Reopen Editor With…" on an open text editor works too, and the worst-queries filter narrows the table',
+  async run(ctx) {
+    const expected = evalExpectations(ctx.files.runB);
+    await closeAllEditors(ctx.page);
+    await reopenWithPicker(ctx.page, ctx.rel(ctx.files.runB));
+    const { frame } = await readHeadline(ctx.page, expected.meanText);
+    const { query } = await firstWorstRow(frame);
+    // Filter by the worst query's full id: that row must remain, and every row must contain the text.
+    await frame.locator('#gl-worst-filter').fill(query);
+    const rows = await waitUntilRows(frame, (ids) => ids.length > 0 && ids.every((id) => id.toLowerCase().includes(query.toLowerCase())));
+    assert(rows.includes(query), `after filtering by "${query}" the table shows ${JSON.stringify(rows)}`);
+    const matching = expected.json.queries.filter((q) => q.query.toLowerCase().includes(query.toLowerCase())).length;
+    assert(rows.length <= matching, `filter shows ${rows.length} rows, only ${matching} query ids contain "${query}"`);
+  },
+};
+
+async function waitUntilRows(frame, predicate) {
+  let last = [];
+  const deadline = Date.now() + 15_000;
+  while (Date.now() < deadline) {
+    last = await frame.locator('#gl-worst-table [data-query]').evaluateAll((r) => r.map((x) => x.getAttribute('data-query')));
+    if (predicate(last)) return last;
+    await new Promise((r) => setTimeout(r, 200));
+  }
+  throw new Error(`worst-queries rows never matched the filter; last: ${JSON.stringify(last.slice(0, 5))}`);
+}
 
 export const worstQueryDetail = {
   name: 'worst-queries table starts with the CLI\'s worst query; its detail shows both orders and inverted pairs',
@@ -56,7 +84,7 @@ export const worstQueryDetail = {
 };
 
 export const rewriteKeepsSelection = {
-  name: 'rewriting the dump on disk refreshes the view and keeps the selected query',
+  name: 'rewriting the dump on disk refreshes the view and keeps the selected query; deleting it says so',
   async run(ctx) {
     const before = evalExpectations(ctx.files.runA);
     const after = evalExpectations(ctx.files.runB);
@@ -74,5 +102,10 @@ export const rewriteKeepsSelection = {
     assert(stillSelected === query, `after the rewrite the detail shows "${stillSelected}", expected "${query}"`);
     await showTab(refreshed.frame, 'gl-tab-overview');
     await waitForFrameText(ctx.page, '#gl-headline-value', (t) => t === after.meanText, { timeoutMs: 10_000 });
+    // Deleting the file replaces the view with the "file vanished" notice.
+    rmSync(ctx.files.live);
+    const vanished = await findWebviewFrame(ctx.page, '#gl-vanished', { timeoutMs: 30_000 });
+    await vanished.locator('#gl-vanished').waitFor({ state: 'visible', timeout: 30_000 });
+    copyFileSync(ctx.files.runA, ctx.files.live);
   },
 };
