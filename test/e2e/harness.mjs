@@ -189,11 +189,6 @@ export async function openWithFromExplorer(page, relativePath, editorLabel) {
   await pickQuickItem(page, editorLabel);
 }
 
-/** Every frame that has a webview's content document (the inner `active-frame`). */
-export function webviewContentFrames(page) {
-  return page.frames().filter((frame) => frame.name() === 'active-frame' || /\/fake\.html|active-frame/.test(frame.url()));
-}
-
 /**
  * Finds the webview frame that contains `selector` (visible or not). Webviews
  * are nested: the workbench iframe hosts `index.html`, which hosts the

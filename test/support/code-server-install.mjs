@@ -104,6 +104,11 @@ export function ensureDebianPackages(wanted, { log = console.log } = {}) {
   if (still.length > 0) throw new Error(`apt-get did not provide ${still.map((p) => p.file).join(', ')}`);
 }
 
+/** npm's download cache goes inside the clone too, not into $HOME. */
+function npmEnv(env) {
+  return { ...env, npm_config_cache: join(E2E_DIR, 'npm-cache') };
+}
+
 const npmQuiet = ['--no-audit', '--no-fund', '--loglevel=warn', '--no-save', '--package-lock=false'];
 
 /** Ensures Node 24 + code-server exist under .e2e/; returns the paths. */
@@ -116,12 +121,12 @@ export function ensureCodeServer({ log = console.log } = {}) {
   const npmCli = findNpmCli();
   if (!existsSync(paths.node24)) {
     log(`[code-server] installing ${NODE_PACKAGE} into ${node24Prefix}`);
-    run(process.execPath, [npmCli, 'install', '--prefix', node24Prefix, NODE_PACKAGE, ...npmQuiet], process.env);
+    run(process.execPath, [npmCli, 'install', '--prefix', node24Prefix, NODE_PACKAGE, ...npmQuiet], npmEnv(process.env));
   }
   log(`[code-server] installing ${CODE_SERVER_PACKAGE} into ${codeServerPrefix} (a few minutes on 2 cores)`);
   // npm runs under Node 24 and node-gyp takes headers from the Node 24 package,
   // so native modules (argon2, kerberos, pty, …) are built without any download.
-  const env = codeServerEnv({ npm_config_nodedir: node24Home });
+  const env = npmEnv(codeServerEnv({ npm_config_nodedir: node24Home }));
   run(paths.node24, [npmCli, 'install', '--prefix', codeServerPrefix, CODE_SERVER_PACKAGE, ...npmQuiet], env);
   if (!existsSync(paths.codeServerEntry)) throw new Error(`code-server entry missing after install: ${paths.codeServerEntry}`);
   writeFileSync(stampFile, expectedStamp());
