@@ -1,5 +1,14 @@
 /**
  * Public entry of the readers: one call turns any supported dump into the columnar RankedDump.
+ *
+ * Formats: CSV/TSV with a header (roles from header names or `columns`), JSON Lines (a row or a
+ * list per line), run files with a judgments file, SVMlight/LETOR files with a scores file, and
+ * Parquet (a file or a folder of parts). Text formats may be gzip-compressed.
+ *
+ * Row positions: `line` is the 1-based line where the row starts and `offset` its first byte in the
+ * decompressed text; rows of one JSON list share the list's line and offset; Parquet rows have
+ * line 0 and offset -1. Large quote-free CSV/TSV files are parsed by several threads; their
+ * columns are then views of SharedArrayBuffers (see parallel.ts).
  */
 import { InputError } from '../errors';
 import type { DumpFormat, RankedDump } from '../model/dump';
