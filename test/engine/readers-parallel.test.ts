@@ -11,7 +11,8 @@ import type { RankedDump } from '../../extension/engine/model/dump';
 import { readDump } from '../../extension/engine/readers/index';
 import { readParallelDelimited, setParseWorkerScript } from '../../extension/engine/readers/parallel';
 import { sourceTuning } from '../../extension/engine/readers/source';
-import { seededRandom, TempDir } from './fixtures/readers/tempFiles';
+import { TempDir } from './fixtures/readers/tempFiles';
+import { seededRandom } from '../reference/random';
 
 const tmp = new TempDir();
 

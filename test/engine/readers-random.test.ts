@@ -9,7 +9,8 @@ import { BytePool } from '../../extension/engine/model/bytePool';
 import { readDump } from '../../extension/engine/readers/index';
 import { describeNonNumber, parseNumber } from '../../extension/engine/readers/numbers';
 import { sourceTuning } from '../../extension/engine/readers/source';
-import { plainRows, seededRandom, TempDir, type PlainRow } from './fixtures/readers/tempFiles';
+import { plainRows, TempDir, type PlainRow } from './fixtures/readers/tempFiles';
+import { seededRandom } from '../reference/random';
 
 const tmp = new TempDir();
 afterAll(() => tmp.remove());

@@ -7,23 +7,13 @@ import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions'
 import { parseMetricList } from '../../extension/engine/metrics/parse';
 import { CompareTable, outcomeOf } from '../../extension/worker/compareTable';
 import { conventionsView, histogram, metricLabel } from '../../extension/worker/viewModels';
-
-function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+import { seededRandom } from '../reference/random';
 
 const WORDS = ['drill', 'screws', 'hammer', 'hose', 'ladder', 'paint', 'hinge', 'sealant'];
 
 /** Two runs over the same invented queries and items; B's scores are A's plus noise. */
 function runs(queryCount: number, seed: number): [RankedDump, RankedDump] {
-  const random = rng(seed);
+  const random = seededRandom(seed);
   const grades: number[][] = [];
   const make = (noise: number): RankedDump => {
     const queries = new MapStringPool();
@@ -59,7 +49,7 @@ describe('CompareTable', () => {
     const metrics = parseMetricList('ndcg@5,ap');
     const comparison = await compareRuns(a, b, metrics, DEFAULT_CONVENTIONS, { permutations: 200, bootstrap: 0, seed: 1, tieTolerance: 1e-9 });
     const table = new CompareTable(comparison, a);
-    const random = rng(5);
+    const random = seededRandom(5);
     for (let trial = 0; trial < 40; trial++) {
       const metric = random() < 0.5 ? 'ndcg@5' : 'ap';
       const key = (['delta', 'a', 'b'] as const)[Math.floor(random() * 3)]!;

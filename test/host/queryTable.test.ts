@@ -5,24 +5,13 @@ import { groupByQuery } from '../../extension/engine/model/groups';
 import type { Evaluation } from '../../extension/engine/evaluate/types';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
 import { QueryTable, lossShares } from '../../extension/worker/queryTable';
-
-/** Deterministic generator (mulberry32) so failures repeat. */
-function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+import { seededRandom } from '../reference/random';
 
 const QUERIES = ['cordless drill 18v', 'wood screws 4x40', 'hammer', 'drill bits', 'paint roller', 'garden hose 25m'];
 
 /** One row per query is enough for the table; metric values are made up, some skipped (NaN). */
 function fixture(queryCount: number, seed: number) {
-  const random = rng(seed);
+  const random = seededRandom(seed);
   const queries = new MapStringPool();
   const items = new MapStringPool();
   const aisles = new MapStringPool();
@@ -93,7 +82,7 @@ describe('QueryTable', () => {
   it('agrees with a slow sort+filter for random sorts, filters and segments (seeded)', () => {
     const source = fixture(500, 7);
     const table = new QueryTable(source);
-    const random = rng(99);
+    const random = seededRandom(99);
     const keys = ['ndcg@10', 'ap', 'items', 'relevant', 'inversions', 'inversionCost', 'lossShare'];
     for (let trial = 0; trial < 60; trial++) {
       const key = keys[Math.floor(random() * keys.length)]!;

@@ -1,4 +1,8 @@
-/** Seeded pseudo-random numbers for reproducible test cases (mulberry32, common practice). */
+/**
+ * Seeded pseudo-random numbers for reproducible test cases (mulberry32, common practice). Every
+ * TypeScript test and the webview harness share this one generator, so seeded expectations stay tied
+ * to one sequence.
+ */
 export function seededRandom(seed: number): () => number {
   let a = seed >>> 0;
   return () => {

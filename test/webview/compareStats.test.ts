@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { benjaminiHochberg, effectSizeDz } from '../../webview/src/model/compareStats';
-import { runPython, seededRandom } from './pythonReference';
+import { runPython } from './pythonReference';
+import { seededRandom } from '../reference/random';
 
 describe('benjaminiHochberg', () => {
   it('matches a hand-worked example of the step-up rule (Benjamini & Hochberg 1995)', () => {

@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { formatCount, formatDelta, formatFixed, formatP, formatShare, MISSING } from '../../webview/src/model/format';
-import { runPython, seededRandom } from './pythonReference';
+import { runPython } from './pythonReference';
+import { seededRandom } from '../reference/random';
 
 describe('formatFixed', () => {
   it('gives exactly the requested decimals', () => {

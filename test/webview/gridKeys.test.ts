@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { navigate } from '../../webview/src/model/gridKeys';
-import { seededRandom } from './pythonReference';
+import { seededRandom } from '../reference/random';
 
 describe('navigate (WAI-ARIA grid row keys)', () => {
   const s = { active: 5, total: 100, pageRows: 10 };

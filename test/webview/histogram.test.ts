@@ -1,7 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { binLabel, binValues, suggestedBins, symmetricRange } from '../../webview/src/model/histogram';
 import { formatFixed } from '../../webview/src/model/format';
-import { runPython, seededRandom } from './pythonReference';
+import { runPython } from './pythonReference';
+import { seededRandom } from '../reference/random';
 
 describe('binValues', () => {
   it('puts hand-placed values in the expected bins, the upper edge in the last bin', () => {

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { lineSegments, segmentPath, type LineSegment } from '../../webview/src/model/orderLines';
-import { seededRandom } from './pythonReference';
+import { seededRandom } from '../reference/random';
 
 function straightSegmentsCross(a: LineSegment, b: LineSegment): boolean {
   // Both segments span the same x range, so they cross inside it exactly when their vertical order swaps.

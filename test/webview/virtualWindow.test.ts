@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { computeWindow, MAX_SCROLL_HEIGHT, pagesCovering, scrollTopToReveal } from '../../webview/src/model/virtualWindow';
-import { seededRandom } from './pythonReference';
+import { seededRandom } from '../reference/random';
 
 /** Obviously-correct version: test every row for overlap with the viewport (unscaled tables only). */
 function slowVisibleRows(scrollTop: number, viewport: number, rowHeight: number, total: number): number[] {

@@ -16,6 +16,7 @@ import type {
   ViewState,
 } from '../../../extension/protocol/messages';
 import { RequestServer, type RequestHandlers } from '../../../extension/protocol/request';
+import { seededRandom } from '../../reference/random';
 
 interface FakeQuery {
   id: string;
@@ -30,17 +31,6 @@ interface FakeQuery {
 
 const PRODUCTS = ['cordless drill 18v', 'wood screws 4x40', 'hex key set', 'masking tape 50mm', 'pipe wrench', 'led bulb e27', 'garden hose 25m', 'wall plugs 6mm', 'sanding discs 125mm', 'spirit level 60cm'];
 const LOCALES = ['en-GB', 'de-DE', 'fr-FR', 'nl-NL'];
-
-function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 function order(scores: number[]): number[] {
   return scores.map((s, i) => ({ s, i })).sort((a, b) => b.s - a.s || a.i - b.i).map((x) => x.i);
@@ -57,7 +47,7 @@ function ndcgAt(labels: number[], ranking: number[], k: number): number {
 }
 
 export function makeQueries(count: number, seed = 1, bigItems = 0): FakeQuery[] {
-  const r = rng(seed);
+  const r = seededRandom(seed);
   const out: FakeQuery[] = [];
   for (let q = 0; q < count; q++) {
     // Query 0 can be made long (many items) to time the detail view on a heavy list.
