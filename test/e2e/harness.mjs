@@ -165,10 +165,11 @@ export async function reopenWith(page, editorLabel) {
 }
 
 /**
- * The real "Open With…" from the Explorer: expand the folders on the way,
- * right-click the file, choose "Open With...", then the editor by its label.
+ * Right-clicks a file in the Explorer (expanding the folders on the way) and
+ * chooses `entry` from its context menu. Extension entries appear only once
+ * the extension host has registered its menus, so a missing entry is retried.
  */
-export async function openWithFromExplorer(page, relativePath, editorLabel) {
+export async function explorerContextMenu(page, relativePath, entry, { timeoutMs = 30_000 } = {}) {
   const tree = page.locator('.explorer-folders-view');
   const parts = relativePath.split('/');
   for (const folder of parts.slice(0, -1)) {
@@ -181,11 +182,30 @@ export async function openWithFromExplorer(page, relativePath, editorLabel) {
   const fileRow = tree.locator(`.monaco-list-row[aria-label=${JSON.stringify(name)}]`).first();
   await fileRow.waitFor({ state: 'visible', timeout: 15_000 })
     .catch(() => { throw new Error(`Explorer shows no file ${name}`); });
-  await fileRow.click({ button: 'right' });
-  const menuItem = page.locator('.monaco-menu .action-label', { hasText: /^Open With\.\.\.$/ });
-  await menuItem.waitFor({ state: 'visible', timeout: 10_000 })
-    .catch(() => { throw new Error('the Explorer context menu has no "Open With..." entry'); });
-  await menuItem.click();
+  const menuItem = page.locator('.monaco-menu .action-label', { hasText: exactLabel(entry) });
+  const deadline = Date.now() + timeoutMs;
+  for (;;) {
+    await fileRow.click({ button: 'right' });
+    if (await menuItem.waitFor({ state: 'visible', timeout: 2_000 }).then(() => true, () => false)) break;
+    await page.keyboard.press('Escape');
+    if (Date.now() > deadline) throw new Error(`the Explorer context menu of ${name} has no "${entry}" entry`);
+    await sleep(1_000);
+  }
+  // A click that lands right after the menu opens can be ignored by the menu
+  // (it guards against the right-click's own release); hover, pause, click,
+  // and click again if the menu is still there.
+  for (let attempt = 0; attempt < 3; attempt += 1) {
+    await menuItem.hover();
+    await sleep(300);
+    await menuItem.click().catch(() => {});
+    if (await menuItem.waitFor({ state: 'hidden', timeout: 2_000 }).then(() => true, () => false)) return;
+  }
+  throw new Error(`clicking "${entry}" in the Explorer context menu did nothing`);
+}
+
+/** The real "Open With…" from the Explorer, then the editor by its label. */
+export async function openWithFromExplorer(page, relativePath, editorLabel) {
+  await explorerContextMenu(page, relativePath, 'Open With...');
   await pickQuickItem(page, editorLabel);
 }
 

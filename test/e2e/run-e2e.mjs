@@ -14,12 +14,12 @@ import { installVsix, prepareProfile, startCodeServer } from '../support/code-se
 import { packageVsix } from '../support/package-vsix.mjs';
 import { launchBrowser, openWorkbench } from './harness.mjs';
 import { makeWorkspace, relative } from './workspace.mjs';
-import { openWithShowsHeadline, reopenWithAndFilter, rewriteKeepsSelection, worstQueryDetail } from './scenarios/dumps.mjs';
+import { openWithShowsHeadline, parquetFromExplorerMenu, reopenWithAndFilter, rewriteKeepsSelection, worstQueryDetail } from './scenarios/dumps.mjs';
 import { htmlIdsStayText, malformedShowsError } from './scenarios/safety.mjs';
 import { compareWinsLosses } from './scenarios/compare.mjs';
 import { themesReadable } from './scenarios/themes.mjs';
 
-const SCENARIOS = [openWithShowsHeadline, reopenWithAndFilter, worstQueryDetail, rewriteKeepsSelection, compareWinsLosses,
+const SCENARIOS = [openWithShowsHeadline, reopenWithAndFilter, parquetFromExplorerMenu, worstQueryDetail, rewriteKeepsSelection, compareWinsLosses,
   htmlIdsStayText, malformedShowsError, themesReadable];
 const SCENARIO_TIMEOUT_MS = 240_000;
 

@@ -47,6 +47,7 @@ export function makeWorkspace() {
     root,
     runA: join(root, 'runs', 'model-a.csv'),
     runB: join(root, 'runs', 'model-b.csv'),
+    runBParquet: join(root, 'runs', 'model-b.parquet'),
     live: join(e2e, 'live-run.csv'),
     hostile: join(e2e, 'hostile-ids.csv'),
     malformed: join(e2e, 'broken-scores.csv'),

@@ -1,7 +1,7 @@
 // One dump through the real UI: "Open With…", the headline against the CLI,
 // the worst query and its detail, and a live rewrite of the file on disk.
 import { copyFileSync, rmSync } from 'node:fs';
-import { closeAllEditors, findWebviewFrame, frameText, waitForFrameText } from '../harness.mjs';
+import { closeAllEditors, explorerContextMenu, findWebviewFrame, frameText, waitForFrameText } from '../harness.mjs';
 import { evalExpectations } from '../oracle.mjs';
 import { firstWorstRow, itemIds, openDetailFromRow, openWithInspect, openWithPicker, readHeadline, reopenWithPicker, showTab } from '../views.mjs';
 
@@ -21,6 +21,17 @@ export const openWithShowsHeadline = {
     assert(/NDCG@10/i.test(label), `headline label is "${label}", expected NDCG@10`);
     assert(await frame.locator('#gl-overview').isVisible(), '#gl-overview is not visible');
     await ctx.shot('overview', { readme: true });
+  },
+};
+
+export const parquetFromExplorerMenu = {
+  name: 'Explorer menu "Inspect Ranked Lists" on the Parquet demo run shows the CLI\'s headline',
+  async run(ctx) {
+    const expected = evalExpectations(ctx.files.runBParquet);
+    await closeAllEditors(ctx.page);
+    await explorerContextMenu(ctx.page, ctx.rel(ctx.files.runBParquet), 'Inspect Ranked Lists');
+    const { value } = await readHeadline(ctx.page);
+    assert(value === expected.meanText, `headline shows ${value}, CLI says ${expected.meanText} for the Parquet file`);
   },
 };
 
