@@ -25,7 +25,12 @@ export interface GainlineConfig {
   /** Which files the Ranked Lists view lists. */
   readonly dumpGlob: string;
   readonly dumpExclude: string;
-  readonly compare: { readonly permutations: number; readonly seed: number; readonly tieTolerance: number };
+  readonly compare: {
+    readonly permutations: number;
+    readonly bootstrapResamples: number;
+    readonly seed: number;
+    readonly tieTolerance: number;
+  };
   /** One sentence per setting that was ignored. */
   readonly problems: readonly string[];
 }
@@ -40,6 +45,9 @@ export const CONFIG_DEFAULTS = {
   dumpGlob: '**/*.{csv,tsv,jsonl,parquet,run,gz}',
   dumpExclude: '**/node_modules/**',
   permutations: 10_000,
+  // Same as the engine's DEFAULT_COMPARE_OPTIONS.bootstrap (a test holds them equal); not imported so the
+  // extension host bundle stays free of the statistics code.
+  bootstrapResamples: 2_000,
   seed: 1,
   tieTolerance: 1e-9,
 } as const;
@@ -50,7 +58,7 @@ const POLICIES: readonly NoRelevantPolicy[] = ['skip', 'zero', 'one'];
 /** Settings whose change means open views must be recomputed. */
 export const RECOMPUTE_KEYS = [
   'cutoffs', 'gain', 'ties', 'noRelevant', 'relevantFrom', 'rbpPersistence', 'maxGrade', 'columnsByPattern',
-  'compare.permutations', 'compare.seed', 'compare.tieTolerance',
+  'compare.permutations', 'compare.bootstrapResamples', 'compare.seed', 'compare.tieTolerance',
 ] as const;
 
 export function readConfig(get: SettingGetter): GainlineConfig {
@@ -107,6 +115,8 @@ export function readConfig(get: SettingGetter): GainlineConfig {
     compare: {
       permutations: number('compare.permutations', CONFIG_DEFAULTS.permutations, (n) => Number.isInteger(n) && n >= 100 && n <= 1e7,
         'a whole number from 100 to 10000000'),
+      bootstrapResamples: number('compare.bootstrapResamples', CONFIG_DEFAULTS.bootstrapResamples,
+        (n) => Number.isInteger(n) && n >= 0 && n <= 1e6, 'a whole number from 0 (no interval) to 1000000'),
       seed: number('compare.seed', CONFIG_DEFAULTS.seed, Number.isInteger, 'a whole number'),
       tieTolerance: number('compare.tieTolerance', CONFIG_DEFAULTS.tieTolerance, (n) => n >= 0, 'a number >= 0'),
     },

@@ -43,6 +43,8 @@ export interface EvaluationSettings {
 
 export interface CompareSettings extends EvaluationSettings {
   readonly permutations: number;
+  /** Bootstrap resamples for the 95% interval of the mean difference; 0 leaves the interval out. */
+  readonly bootstrapResamples: number;
   readonly seed: number;
   readonly tieTolerance: number;
 }

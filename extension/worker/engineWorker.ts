@@ -147,6 +147,7 @@ const handlers: RequestHandlers<WorkerRequests> = {
     const metrics = parseMetricList(settings.metrics);
     const comparison = await compareRuns(a, b, metrics, settings.conventions, {
       permutations: settings.permutations,
+      bootstrap: settings.bootstrapResamples,
       seed: settings.seed,
       tieTolerance: settings.tieTolerance,
       signal: ctx.signal,

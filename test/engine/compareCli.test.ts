@@ -3,6 +3,7 @@
  * the report formats, on small fixture runs of an invented hardware store's product search.
  */
 import { describe, expect, it } from 'vitest';
+import { compareUsage } from '../../extension/cli/compareCommand';
 import { fixtureDir, runCli } from '../cli/support/runCli';
 
 const QUERIES = ['cordless drill 18v', 'wood screws 4x40', 'hex key set', 'paint roller 9in', 'tile spacers 3mm', 'pipe wrench 14in'];
@@ -61,6 +62,10 @@ describe('gainline compare exit codes', () => {
 });
 
 describe('gainline compare output', () => {
+  it('help gives the bootstrap default, 2000 resamples', () => {
+    expect(compareUsage).toMatch(/--bootstrap N .*\(default 2000; 0 = none\)/);
+  });
+
   it('JSON carries the hand-derived means and counts', () => {
     const r = runCli(['compare', 'good.csv', 'worse.csv', '--format', 'json', '--metrics', 'rr,p@1', '--bootstrap', '500'], dir);
     expect(r.code).toBe(0);

@@ -7,6 +7,7 @@ import {
   readConfig,
 } from '../../extension/host/config';
 import { globToRegExp } from '../../extension/host/glob';
+import { DEFAULT_COMPARE_OPTIONS } from '../../extension/engine/compare/compare';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
 import { parseMetricList } from '../../extension/engine/metrics/parse';
 
@@ -20,7 +21,7 @@ describe('readConfig', () => {
     expect(config.cutoffs).toEqual([10, 5]);
     expect(config.metrics.split(',')[0]).toBe('ndcg@10');
     expect(config.dumpGlob).toBe(CONFIG_DEFAULTS.dumpGlob);
-    expect(config.compare).toEqual({ permutations: 10_000, seed: 1, tieTolerance: 1e-9 });
+    expect(config.compare).toEqual({ permutations: 10_000, bootstrapResamples: 2000, seed: 1, tieTolerance: 1e-9 });
   });
 
   it('reads every convention', () => {
@@ -34,6 +35,7 @@ describe('readConfig', () => {
         rbpPersistence: 0.95,
         maxGrade: 4,
         'compare.permutations': 2000,
+        'compare.bootstrapResamples': 0,
         'compare.seed': 7,
         'compare.tieTolerance': 0.001,
       }),
@@ -42,12 +44,12 @@ describe('readConfig', () => {
     expect(config.conventions.gain).toEqual({ kind: 'map', gains: new Map([[0, 0], [1, 1], [2, 3]]) });
     expect(config.conventions).toMatchObject({ ties: 'pessimistic', noRelevant: 'zero', relevantFrom: 2, rbpPersistence: 0.95, maxGrade: 4 });
     expect(config.metrics.startsWith('ndcg@20,ndcg@3,err@20,')).toBe(true);
-    expect(config.compare).toEqual({ permutations: 2000, seed: 7, tieTolerance: 0.001 });
+    expect(config.compare).toEqual({ permutations: 2000, bootstrapResamples: 0, seed: 7, tieTolerance: 0.001 });
   });
 
   it('falls back per setting and says which one was ignored', () => {
     const config = readConfig(
-      from({ cutoffs: [0], gain: 'cubic', ties: 'random', rbpPersistence: 1, 'compare.permutations': 3, maxGrade: -1 }),
+      from({ cutoffs: [0], gain: 'cubic', ties: 'random', rbpPersistence: 1, 'compare.permutations': 3, 'compare.bootstrapResamples': 2.5, maxGrade: -1 }),
     );
     expect(config.cutoffs).toEqual([10, 5]);
     expect(config.conventions.gain).toEqual({ kind: 'exponential' });
@@ -55,10 +57,20 @@ describe('readConfig', () => {
     expect(config.conventions.rbpPersistence).toBe(0.8);
     expect(config.conventions.maxGrade).toBeUndefined();
     expect(config.compare.permutations).toBe(10_000);
+    expect(config.compare.bootstrapResamples).toBe(2000);
     const keys = config.problems.map((p) => p.split(':')[0]);
     expect(keys.sort()).toEqual(
-      ['gainline.compare.permutations', 'gainline.cutoffs', 'gainline.gain', 'gainline.maxGrade', 'gainline.rbpPersistence', 'gainline.ties'].sort(),
+      ['gainline.compare.bootstrapResamples', 'gainline.compare.permutations', 'gainline.cutoffs', 'gainline.gain', 'gainline.maxGrade', 'gainline.rbpPersistence', 'gainline.ties'].sort(),
     );
+  });
+
+  it('has one bootstrap default in the engine, the settings and the manifest', async () => {
+    const manifest = (await import('../../package.json')).default as {
+      contributes: { configuration: { properties: Record<string, { default?: unknown }> } };
+    };
+    expect(CONFIG_DEFAULTS.bootstrapResamples).toBe(DEFAULT_COMPARE_OPTIONS.bootstrap);
+    expect(manifest.contributes.configuration.properties['gainline.compare.bootstrapResamples']?.default).toBe(DEFAULT_COMPARE_OPTIONS.bootstrap);
+    expect(DEFAULT_COMPARE_OPTIONS.bootstrap).toBe(2000);
   });
 
   it('rejects duplicate cut-offs and non-integers', () => {

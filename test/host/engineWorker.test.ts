@@ -128,9 +128,11 @@ describe('engine worker', () => {
   it('compares two runs: wins, deltas page, movement', async () => {
     const model = await worker.call('loadCompare', {
       session: 'c1', a: { path: fileA }, b: { path: fileB },
-      settings: { ...settings, permutations: 1000, seed: 3, tieTolerance: 1e-9 },
+      settings: { ...settings, permutations: 1000, bootstrapResamples: 300, seed: 3, tieTolerance: 1e-9 },
     });
     expect(model.pairedQueries).toBe(3);
+    // The resample count set in the settings reaches the engine (it is named in the method note).
+    expect(model.warnings.some((w) => w.includes('300 resamples'))).toBe(true);
     const headline = model.metrics[model.headline]!;
     expect(headline).toMatchObject({ wins: 1, losses: 0 });
     expect(headline.delta).toBeCloseTo((1 - SCREWS) / 2, 10);
