@@ -3,6 +3,11 @@
  * `messages.ts`; import from there.
  */
 import type { ConventionsView, FileInfo, MaybeNumber, SegmentFilter, SortSpec } from './messages';
+// Type-only: erased from the webview bundle, which still never loads engine code.
+import type { PairChange as PairChangeView, PositionChange as PositionChangeView } from '../engine/compare/movement';
+
+/** The engine's pair and position changes are plain JSON already (strings and finite numbers). */
+export type { PairChangeView, PositionChangeView };
 
 export type RunSide = 'a' | 'b';
 
@@ -84,6 +89,7 @@ export interface MovementParams {
   readonly query: string;
 }
 
+/** The engine's ItemMove with null instead of NaN or position 0, and one grade instead of two. */
 export interface MovementRow {
   readonly item: string;
   /** Grade (B's when the item is in B, else A's). */
@@ -95,23 +101,7 @@ export interface MovementRow {
   readonly moved: MaybeNumber;
 }
 
-export interface PairChangeView {
-  /** The item graded higher but ranked below the other. */
-  readonly higherGraded: string;
-  readonly lowerGraded: string;
-  readonly ndcgRecovered: number;
-}
-
-export interface PositionChangeView {
-  readonly position: number;
-  /** '' when that run's list is shorter. */
-  readonly itemA: string;
-  readonly itemB: string;
-  readonly contributionA: number;
-  readonly contributionB: number;
-  readonly change: number;
-}
-
+/** The engine's QueryMovement as plain JSON: null for undefined NDCG, pair lists capped for the message. */
 export interface MovementView {
   readonly query: string;
   /** Headline cut-off. */

@@ -5,6 +5,8 @@
  * never sent a whole dump.
  */
 import type { CancelEnvelope, RequestEnvelope, ResponseEnvelope } from './request';
+// Type-only: erased from the webview bundle, which still never loads engine code.
+import type { DegenerateCounts } from '../engine/evaluate/types';
 import type {
   CompareOverviewModel,
   ComparePage,
@@ -51,6 +53,7 @@ export interface ConventionsView {
   readonly summary: string;
 }
 
+/** The engine's MetricSummary plus a display label; null instead of a NaN mean (JSON has no NaN). */
 export interface MetricColumn {
   /** As written by the user: 'ndcg@10', 'ap', ... (sort key for `queryPage`). */
   readonly key: string;
@@ -61,6 +64,7 @@ export interface MetricColumn {
   readonly counted: number;
 }
 
+/** The engine's SensitivityRow without its Conventions (holds a Map); null instead of NaN, plus the delta. */
 export interface SensitivityView {
   readonly label: string;
   readonly mean: MaybeNumber;
@@ -69,14 +73,8 @@ export interface SensitivityView {
   readonly delta: MaybeNumber;
 }
 
-export interface DegenerateView {
-  readonly singleItemQueries: number;
-  readonly noRelevantQueries: number;
-  readonly duplicateRows: number;
-  readonly missingScoreRows: number;
-  readonly unjudgedRows: number;
-  readonly tiedScoreRows: number;
-}
+/** The engine's counts unchanged (all plain integers). */
+export type DegenerateView = Readonly<DegenerateCounts>;
 
 /** Counts of queries per bin of the headline metric over [0, 1] (10 equal bins; 1.0 goes in the last). */
 export interface Histogram {
@@ -163,6 +161,7 @@ export interface QueryDetailParams {
   readonly run?: RunSide;
 }
 
+/** The engine's PositionRow with null for missing label/score (JSON has no NaN), plus file line and cut-off flag. */
 export interface PositionView {
   readonly position: number;
   /** Row index in the dump, for `revealRow`. */
@@ -193,6 +192,7 @@ export interface IdealView {
   readonly predictedPosition: number;
 }
 
+/** The engine's InvertedPair plus item names and grades, so the webview needs no dump to label it. */
 export interface PairView {
   readonly aboveItem: string;
   readonly belowItem: string;
@@ -205,6 +205,7 @@ export interface PairView {
   readonly ndcgRecovered: number;
 }
 
+/** The engine's QueryDetail with names instead of row ids, values aligned to columns, null for NaN. */
 export interface QueryDetailView {
   readonly query: string;
   /** Headline cut-off. */
