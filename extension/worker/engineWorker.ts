@@ -11,8 +11,8 @@ import { parentPort, workerData } from 'node:worker_threads';
 import { CancelledError, InputError } from '../engine/errors';
 import { compareRuns } from '../engine/compare/compare';
 import { queryMovement } from '../engine/compare/movement';
-import { queryDetail } from '../engine/evaluate/detail';
-import { evaluate } from '../engine/evaluate/evaluate';
+import { queryDetail, type GradeRange } from '../engine/evaluate/detail';
+import { evaluate, gradeRange } from '../engine/evaluate/evaluate';
 import { headlineCutoff } from '../engine/evaluate/scorer';
 import type { Evaluation } from '../engine/evaluate/types';
 import { parseMetricList } from '../engine/metrics/parse';
@@ -32,6 +32,8 @@ interface Loaded {
   readonly dump: RankedDump;
   readonly evaluation: Evaluation;
   readonly groups: QueryGroups;
+  /** Scanned once here so that each detail request need not scan every grade again. */
+  readonly gradeRange: GradeRange;
   readonly table: QueryTable;
 }
 type Session =
@@ -81,7 +83,7 @@ async function read(source: DumpSource, ctx: HandlerContext, from: number, to: n
 }
 
 function loaded(dump: RankedDump, evaluation: Evaluation, groups: QueryGroups): Loaded {
-  return { dump, evaluation, groups, table: new QueryTable({ dump, evaluation, groups }) };
+  return { dump, evaluation, groups, gradeRange: gradeRange(dump), table: new QueryTable({ dump, evaluation, groups }) };
 }
 
 function session(key: string): Session {
@@ -120,6 +122,7 @@ function detailOf(l: Loaded, query: string, maxPairs?: number) {
   const k = headlineCutoff(l.evaluation.metrics);
   const detail = queryDetail(l.dump, id, l.evaluation.conventions, Number.isFinite(k) ? k : l.evaluation.perQuery.items[id]!, {
     groups: l.groups,
+    gradeRange: l.gradeRange,
     maxPairs: maxPairs ?? 200,
     metrics: l.evaluation.metrics,
   });
@@ -234,7 +237,8 @@ const handlers: RequestHandlers<WorkerRequests> = {
     const qa = s.comparison.perQuery.queryA[i]!;
     const qb = s.comparison.perQuery.queryB[i]!;
     const depth = Number.isFinite(k) ? k : Math.max(s.a.evaluation.perQuery.items[qa]!, s.b.evaluation.perQuery.items[qb]!);
-    return movementView(queryMovement(s.a.dump, s.b.dump, qa, qb, s.comparison.conventions, depth));
+    const known = { a: { groups: s.a.groups, gradeRange: s.a.gradeRange }, b: { groups: s.b.groups, gradeRange: s.b.gradeRange } };
+    return movementView(queryMovement(s.a.dump, s.b.dump, qa, qb, s.comparison.conventions, depth, known));
   },
 
   compareSegments({ session: key, column, metric }) {

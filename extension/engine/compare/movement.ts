@@ -3,10 +3,11 @@
  * and how each position's DCG contribution changed. Built from the metrics module's query detail of
  * each run, so every number matches what the detail view shows for A and for B.
  */
-import { queryDetail } from '../evaluate/detail';
+import { queryDetail, type GradeRange } from '../evaluate/detail';
 import type { InvertedPair, QueryDetail } from '../evaluate/types';
 import type { Conventions } from '../metrics/conventions';
 import type { RankedDump } from '../model/dump';
+import type { QueryGroups } from '../model/groups';
 
 /** Inverted pairs listed per run; the totals are always exact. */
 const MAX_PAIRS = 20_000;
@@ -66,6 +67,12 @@ export interface QueryMovement {
   readonly positions: readonly PositionChange[];
 }
 
+/** What a caller holding a loaded run already knows about it; each spares a scan of the whole dump per call. */
+export interface LoadedRun {
+  readonly groups?: QueryGroups;
+  readonly gradeRange?: GradeRange;
+}
+
 export function queryMovement(
   a: RankedDump,
   b: RankedDump,
@@ -73,9 +80,10 @@ export function queryMovement(
   queryIdB: number,
   conventions: Conventions,
   k: number,
+  known: { readonly a?: LoadedRun; readonly b?: LoadedRun } = {},
 ): QueryMovement {
-  const detailA = queryDetail(a, queryIdA, conventions, k, { maxPairs: MAX_PAIRS });
-  const detailB = queryDetail(b, queryIdB, conventions, k, { maxPairs: MAX_PAIRS });
+  const detailA = queryDetail(a, queryIdA, conventions, k, { ...known.a, maxPairs: MAX_PAIRS });
+  const detailB = queryDetail(b, queryIdB, conventions, k, { ...known.b, maxPairs: MAX_PAIRS });
   const positionInA = new Map(detailA.positions.map((p) => [p.item, p]));
   const positionInB = new Map(detailB.positions.map((p) => [p.item, p]));
 

@@ -18,6 +18,16 @@ export interface QueryDetailOptions {
   maxPairs?: number;
   /** Metrics for `values` (default: ndcg@k, dcg@k, err@k, ap, rr, p@k, r@k, rbp, tau). */
   metrics?: readonly MetricSpec[];
+  /**
+   * The whole dump's grade range, `gradeRange(dump)`, when the caller computed it once at load. Without
+   * it every call scans all grades of the dump to check the conventions (~13 ms on 1M rows).
+   */
+  gradeRange?: GradeRange;
+}
+
+export interface GradeRange {
+  readonly lowest: number;
+  readonly highest: number;
 }
 
 export function queryDetail(
@@ -29,7 +39,7 @@ export function queryDetail(
 ): QueryDetail {
   const at = Number.isFinite(k) ? `@${k}` : '';
   const metrics = options.metrics ?? parseMetricList(`ndcg${at},dcg${at},err${at},ap,rr,p${at},r${at},rbp,tau`);
-  const gmax = checkConventions(dump, metrics, conventions);
+  const gmax = options.gradeRange ? checkKnownRange(dump, options.gradeRange, metrics, conventions) : checkConventions(dump, metrics, conventions);
   const rows = rowsOf(dump, queryId, options.groups);
   const ranking = new QueryRanking();
   ranking.load(dump, rows, 0, rows.length, new SeenItems(dump.items.size));
@@ -107,6 +117,16 @@ export function queryDetail(
     invertedPairsTotal: scorer.pairs.discordant,
     values,
   };
+}
+
+/**
+ * checkConventions on a two-row stand-in whose grades are the known lowest and highest: the stand-in has
+ * the same grade range as the dump, so the checks, their messages and ERR's g_max are the same, and the
+ * rules stay in one place.
+ */
+function checkKnownRange(dump: RankedDump, range: GradeRange, metrics: readonly MetricSpec[], conventions: Conventions): number {
+  const standIn: RankedDump = { ...dump, rowCount: 2, label: Float64Array.of(range.lowest, range.highest) };
+  return checkConventions(standIn, metrics, conventions);
 }
 
 function rowsOf(dump: RankedDump, queryId: number, groups?: QueryGroups): Uint32Array {
