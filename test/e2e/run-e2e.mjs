@@ -69,6 +69,7 @@ async function main() {
     const profile = prepareProfile(join(E2E_DIR, 'profile-e2e'));
     installVsix(profile, vsix);
     server = await startCodeServer({ folder: files.root, profile, logFile: join(artifacts, 'code-server.log') });
+    interruptCleanup = async () => { await browser?.close().catch(() => {}); await server?.stop().catch(() => {}); };
     log(`code-server on ${server.baseUrl}`);
     browser = await launchBrowser();
     // Wide enough that the worst-queries grid shows whole numbers next to the Explorer.
@@ -120,5 +121,7 @@ async function main() {
   process.exitCode = failed > 0 || results.length === 0 ? 1 : 0;
 }
 
-process.on('SIGINT', () => process.exit(130));
+// Ctrl+C: the detached code-server would outlive us, so stop it first.
+let interruptCleanup = async () => {};
+process.on('SIGINT', () => { void interruptCleanup().finally(() => process.exit(130)); });
 await main();
