@@ -13,7 +13,8 @@ const THEMES = [
 ];
 
 const TEXT_SELECTORS = ['#gl-headline-label', '#gl-headline-value', '#gl-conventions', '#gl-tab-overview', '#gl-tab-worst',
-  '#gl-degenerate', '#gl-sensitivity'];
+  '#gl-worst-table [data-query] .gl-vt-text', '#gl-worst-filter',
+  '#gl-degenerate', '#gl-sensitivity', '#gl-overview .gl-muted'];
 
 // WCAG 2.x AA: 4.5:1 for body text, 3:1 for large text (≥ 24 px, or ≥ 18.66 px bold).
 function requiredRatio(sample) {
