@@ -5,7 +5,7 @@ import { stat } from 'node:fs/promises';
 import { resolve } from 'node:path';
 import { parseArgs } from 'node:util';
 import { InputError } from '../engine/errors';
-import { evaluate } from '../engine/evaluate/evaluate';
+import { evaluateInParallel } from '../engine/evaluate/parallelEvaluate';
 import { readDump } from '../engine/readers/index';
 import { formatReport, REPORT_FORMATS, type ReportFormat } from '../engine/report/index';
 import { conventionHelp, conventionOptions, scoringSetupFrom } from './conventionArgs';
@@ -63,7 +63,11 @@ export async function runEval(argv: string[], io: CliIO): Promise<number> {
     const read = performance.now();
     // CSV and Markdown do not show the sensitivity rows; skipping them saves a third of the scoring time.
     const sensitivity = format === 'table' || format === 'json';
-    const evaluation = evaluate(dump, setup.metrics, setup.conventions, { onProgress: progress?.scoring, sensitivity });
+    const evaluation = await evaluateInParallel(dump, setup.metrics, setup.conventions, {
+      onProgress: progress?.scoring,
+      sensitivity,
+      threads: setup.read.threads,
+    });
     const scored = performance.now();
     progress?.done();
     io.out(formatReport(format, { evaluation, queryNames: dump.queries, source, rowCount: dump.rowCount }, { worst }));

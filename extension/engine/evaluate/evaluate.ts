@@ -8,7 +8,7 @@ import { groupByQuery, type QueryGroups } from '../model/groups';
 import type { Conventions, MetricSpec } from '../metrics/conventions';
 import { checkGainApplies } from '../metrics/gain';
 import { QueryRanking, SeenItems } from './ranking';
-import { QueryScorer } from './scorer';
+import { headlineCutoff, QueryScorer } from './scorer';
 import { SensitivityPass } from './sensitivity';
 import type { DegenerateCounts, Evaluation, MetricSummary, PerQueryColumns } from './types';
 import { describeDegenerate } from './warnings';
@@ -66,46 +66,117 @@ export function evaluate(
   conventions: Conventions,
   options: EvaluateOptions = {},
 ): Evaluation {
+  const setup = prepareEvaluation(dump, metrics, conventions, options);
+  const perQuery = allocatePerQuery(setup.queryCount, metrics, setup.hasRbp, (bytes) => new ArrayBuffer(bytes));
+  const sensitivity = setup.sensitivity ? newSensitivityPass(setup) : undefined;
+  const tally = scoreQueryRange(setup, dump, 0, setup.queryCount, perQuery, sensitivity, options);
+  options.onProgress?.(1);
+  return finishEvaluation(setup, dump, perQuery, tally, sensitivity);
+}
+
+/** What every range of one evaluation shares: the checked conventions and the query groups. */
+export interface EvaluationSetup {
+  readonly metrics: readonly MetricSpec[];
+  readonly conventions: Conventions;
+  readonly groups: QueryGroups;
+  readonly queryCount: number;
+  /** ERR's g_max. */
+  readonly gmax: number;
+  readonly lowestGrade: number;
+  readonly hasRbp: boolean;
+  readonly sensitivity: boolean;
+}
+
+export function prepareEvaluation(dump: RankedDump, metrics: readonly MetricSpec[], conventions: Conventions,
+  options: EvaluateOptions): EvaluationSetup {
   const range = gradeRange(dump);
   const gmax = checkAgainstRange(range, metrics, conventions, dump.path);
   const groups = options.groups ?? groupByQuery(dump);
-  const queryCount = groups.start.length - 1;
-  const scorer = new QueryScorer(conventions, metrics, gmax);
-  const ranking = new QueryRanking();
-  const seen = new SeenItems(dump.items.size);
-  const sensitivity = options.sensitivity === false ? undefined : new SensitivityPass(conventions, scorer.headlineK, range.lowest);
-  const hasRbp = metrics.some((m) => m.name === 'rbp');
+  return {
+    metrics,
+    conventions,
+    groups,
+    queryCount: groups.start.length - 1,
+    gmax,
+    lowestGrade: range.lowest,
+    hasRbp: metrics.some((m) => m.name === 'rbp'),
+    sensitivity: options.sensitivity !== false,
+  };
+}
 
-  const values = metrics.map(() => new Float64Array(queryCount));
-  const perQuery: PerQueryColumns = {
-    items: new Uint32Array(queryCount),
-    relevant: new Uint32Array(queryCount),
-    values,
-    inversions: new Float64Array(queryCount),
-    inversionCost: new Float64Array(queryCount),
-    skipped: new Uint8Array(queryCount),
-    ...(hasRbp ? { rbpResidual: new Float64Array(queryCount) } : {}),
+export function newSensitivityPass(setup: EvaluationSetup): SensitivityPass {
+  return new SensitivityPass(setup.conventions, headlineCutoff(setup.metrics), setup.lowestGrade);
+}
+
+/** Per-query columns for every query; `allocate` picks plain or shared memory. */
+export function allocatePerQuery(queryCount: number, metrics: readonly MetricSpec[], hasRbp: boolean,
+  allocate: (bytes: number) => ArrayBufferLike): PerQueryColumns {
+  const f64 = () => new Float64Array(allocate(queryCount * 8));
+  return {
+    items: new Uint32Array(allocate(queryCount * 4)),
+    relevant: new Uint32Array(allocate(queryCount * 4)),
+    values: metrics.map(f64),
+    inversions: f64(),
+    inversionCost: f64(),
+    skipped: new Uint8Array(allocate(queryCount)),
+    ...(hasRbp ? { rbpResidual: f64() } : {}),
   };
-  const degenerate: DegenerateCounts = {
-    singleItemQueries: 0,
-    noRelevantQueries: 0,
-    duplicateRows: 0,
-    missingScoreRows: 0,
-    unjudgedRows: 0,
-    tiedScoreRows: 0,
+}
+
+/** Counts gathered while scoring a range of queries; ranges add up. */
+export interface RangeTally {
+  degenerate: DegenerateCounts;
+  emptyQueries: number;
+  tauUndefined: number;
+  /** Queries the sensitivity pass saw with no relevant item. */
+  sensitivityNoRelevant: number;
+}
+
+export function emptyTally(): RangeTally {
+  return {
+    degenerate: { singleItemQueries: 0, noRelevantQueries: 0, duplicateRows: 0, missingScoreRows: 0, unjudgedRows: 0, tiedScoreRows: 0 },
+    emptyQueries: 0,
+    tauUndefined: 0,
+    sensitivityNoRelevant: 0,
   };
-  let emptyQueries = 0;
-  let tauUndefined = 0;
+}
+
+export function addTally(into: RangeTally, from: RangeTally): void {
+  const d = into.degenerate;
+  for (const key of Object.keys(d) as (keyof DegenerateCounts)[]) d[key] += from.degenerate[key];
+  into.emptyQueries += from.emptyQueries;
+  into.tauUndefined += from.tauUndefined;
+  into.sensitivityNoRelevant += from.sensitivityNoRelevant;
+}
+
+/** The dump columns scoring reads (a worker thread gets only these). */
+export type ScoredColumns = Pick<RankedDump, 'item' | 'label' | 'score'> & { readonly itemCount: number };
+
+/** Scores queries [from, to) into `perQuery` (indexed by query id); progress is the fraction of this range. */
+export function scoreQueryRange(setup: EvaluationSetup, dump: RankedDump | ScoredColumns, from: number, to: number,
+  perQuery: PerQueryColumns, sensitivity: SensitivityPass | undefined,
+  options: Pick<EvaluateOptions, 'signal' | 'onProgress'> = {}): RangeTally {
+  const { metrics, conventions, groups } = setup;
+  // QueryRanking reads only item, score and label.
+  const columns = dump as RankedDump;
+  const itemCount = 'itemCount' in dump ? dump.itemCount : dump.items.size;
+  const scorer = new QueryScorer(conventions, metrics, setup.gmax);
+  const ranking = new QueryRanking();
+  const seen = new SeenItems(itemCount);
+  const tally = emptyTally();
+  const degenerate = tally.degenerate;
+  const values = perQuery.values;
   const tauIndex = metrics.findIndex((m) => m.name === 'tau');
   const skipPolicy = conventions.noRelevant === 'skip';
-  const step = Math.max(1, Math.min(4096, Math.ceil(queryCount / 100)));
+  const count = to - from;
+  const step = Math.max(1, Math.min(4096, Math.ceil(count / 100)));
 
-  for (let q = 0; q < queryCount; q++) {
-    if (q % step === 0) {
+  for (let q = from; q < to; q++) {
+    if ((q - from) % step === 0) {
       if (options.signal?.aborted) throw new CancelledError();
-      options.onProgress?.(q / queryCount);
+      options.onProgress?.((q - from) / count);
     }
-    ranking.load(dump, groups.rowsOfQuery, groups.start[q]!, groups.start[q + 1]!, seen);
+    ranking.load(columns, groups.rowsOfQuery, groups.start[q]!, groups.start[q + 1]!, seen);
     scorer.score(ranking);
     const n = ranking.n;
     perQuery.items[q] = n;
@@ -115,7 +186,7 @@ export function evaluate(
     degenerate.missingScoreRows += ranking.missingScores;
     degenerate.unjudgedRows += ranking.unjudgedRows;
     degenerate.tiedScoreRows += ranking.tiedRows;
-    if (n === 0) emptyQueries++;
+    if (n === 0) tally.emptyQueries++;
     if (n === 1) degenerate.singleItemQueries++;
     const skipped = scorer.noRelevant && skipPolicy;
     if (scorer.noRelevant) degenerate.noRelevantQueries++;
@@ -123,12 +194,18 @@ export function evaluate(
     perQuery.inversions[q] = skipped ? NaN : scorer.pairs.discordant;
     perQuery.inversionCost[q] = skipped ? NaN : scorer.inversionCost;
     if (perQuery.rbpResidual) perQuery.rbpResidual[q] = skipped ? NaN : scorer.rbpResidual;
-    if (tauIndex >= 0 && !skipped && Number.isNaN(scorer.pairs.tau)) tauUndefined++;
-    sensitivity?.add(ranking, scorer.grades, scorer.noRelevant);
+    if (tauIndex >= 0 && !skipped && Number.isNaN(scorer.pairs.tau)) tally.tauUndefined++;
+    sensitivity?.add(ranking, scorer.grades, scorer.noRelevant, q);
   }
-  options.onProgress?.(1);
+  tally.sensitivityNoRelevant = sensitivity?.noRelevantQueries ?? 0;
+  return tally;
+}
 
-  const summary: MetricSummary[] = metrics.map((m, i) => summarise(m.key, values[i]!));
+/** Means, warnings and sensitivity rows from filled per-query columns and the summed tallies. */
+export function finishEvaluation(setup: EvaluationSetup, dump: RankedDump, perQuery: PerQueryColumns, tally: RangeTally,
+  sensitivity: SensitivityPass | undefined): Evaluation {
+  const { metrics, conventions, queryCount } = setup;
+  const summary: MetricSummary[] = metrics.map((m, i) => summarise(m.key, perQuery.values[i]!));
   if (perQuery.rbpResidual) {
     const first = metrics.find((m) => m.name === 'rbp')!;
     summary.push(summarise(`${first.key}_residual`, perQuery.rbpResidual));
@@ -138,11 +215,11 @@ export function evaluate(
     conventions,
     metrics,
     queryCount,
-    degenerate,
-    emptyQueries,
-    tauUndefined,
-    gmax,
-    headlineK: scorer.headlineK,
+    degenerate: tally.degenerate,
+    emptyQueries: tally.emptyQueries,
+    tauUndefined: tally.tauUndefined,
+    gmax: setup.gmax,
+    headlineK: headlineCutoff(metrics),
   });
   return {
     conventions,
@@ -151,7 +228,7 @@ export function evaluate(
     queryCount,
     perQuery,
     summary,
-    degenerate,
+    degenerate: tally.degenerate,
     sensitivity: sensitivity ? sensitivity.rows() : [],
     warnings,
   };

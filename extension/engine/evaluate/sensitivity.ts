@@ -16,6 +16,12 @@ import { IdealGains, noRelevantValue } from './scorer';
 const TIES: readonly TieConvention[] = ['average', 'pessimistic', 'optimistic', 'file-order'];
 const POLICIES: readonly NoRelevantPolicy[] = ['skip', 'zero', 'one'];
 
+/** Per variant (in the pass's own order), per query: the value added to the variant's mean, and whether it was. */
+export interface SensitivityColumns {
+  readonly value: readonly Float64Array[];
+  readonly entered: readonly Uint8Array[];
+}
+
 interface Variant {
   readonly gain: GainConvention;
   readonly ties: TieConvention;
@@ -34,7 +40,9 @@ export class SensitivityPass {
   private idealOfGain = new Float64Array(0);
   private sortedRanks = new Uint32Array(16);
   /** Queries with no relevant item (the policy decides their value). */
-  private noRelevantQueries = 0;
+  noRelevantQueries = 0;
+  /** When set, each variant's per-query value is kept too, so ranges scored apart can be summed in query order. */
+  private record?: SensitivityColumns;
 
   constructor(
     private readonly base: Conventions,
@@ -60,8 +68,41 @@ export class SensitivityPass {
     }
   }
 
+  get variantCount(): number {
+    return this.variants.length;
+  }
+
+  /** Keeps every later query's variant values in `columns` (indexed by the `query` passed to add). */
+  recordInto(columns: SensitivityColumns): void {
+    this.record = columns;
+  }
+
+  /**
+   * Replaces the running sums by sums over recorded columns, added in query order exactly as add() does,
+   * so a dump scored in ranges gives bit-identical means.
+   */
+  sumColumns(columns: SensitivityColumns, noRelevantQueries: number): void {
+    this.noRelevantQueries = noRelevantQueries;
+    this.variants.forEach((v, i) => {
+      const value = columns.value[i]!;
+      const entered = columns.entered[i]!;
+      let sum = 0;
+      let counted = 0;
+      for (let q = 0; q < value.length; q++) {
+        if (entered[q] === 1) {
+          sum += value[q]!;
+          counted++;
+        }
+      }
+      v.sum = sum;
+      v.counted = counted;
+    });
+  }
+
   /** Adds one query; `grades` indexes the ranked (not arranged) order of `ranking`. */
-  add(ranking: QueryRanking, grades: GradeIndex, noRelevant: boolean): void {
+  add(ranking: QueryRanking, grades: GradeIndex, noRelevant: boolean, query = 0): void {
+    const record = this.record;
+    if (record) for (let i = 0; i < this.variants.length; i++) record.entered[i]![query] = 0;
     if (noRelevant) {
       this.noRelevantQueries++;
       return;
@@ -75,11 +116,17 @@ export class SensitivityPass {
       this.ideal.build(table, grades, this.monotone[i]!);
       this.idealOfGain[i] = idealDcg(this.ideal.gain, this.ideal.count, this.ideal.distinct, this.k, n);
     }
-    for (const v of this.variants) {
+    for (let i = 0; i < this.variants.length; i++) {
+      const v = this.variants[i]!;
       const ideal = this.idealOfGain[v.gainSlot]!;
       if (!(ideal > 0)) continue;
-      v.sum += this.dcgUnder(ranking, grades, this.gainOfRank[v.gainSlot]!, v.ties) / ideal;
+      const value = this.dcgUnder(ranking, grades, this.gainOfRank[v.gainSlot]!, v.ties) / ideal;
+      v.sum += value;
       v.counted++;
+      if (record) {
+        record.value[i]![query] = value;
+        record.entered[i]![query] = 1;
+      }
     }
   }
 

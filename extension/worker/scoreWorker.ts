@@ -1,0 +1,13 @@
+/**
+ * Entry point of a score worker thread (bundled to dist/scoreWorker.js): scores one range of queries
+ * into the shared per-query columns in workerData and posts back its counts.
+ */
+import { parentPort, workerData } from 'node:worker_threads';
+import { runScoreRangeTask, type ScoreRangeTask } from '../engine/evaluate/parallelEvaluate';
+
+const port = parentPort!;
+try {
+  port.postMessage({ tally: runScoreRangeTask(workerData as ScoreRangeTask) });
+} catch (err) {
+  port.postMessage({ failure: err instanceof Error ? err.stack ?? err.message : String(err) });
+}

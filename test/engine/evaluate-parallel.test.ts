@@ -1,0 +1,121 @@
+/**
+ * Scoring on several threads must give bit for bit what evaluate() gives on one: every per-query
+ * column, every mean, the sensitivity rows, the degenerate counts and the warnings. The score worker
+ * is bundled fresh from source into a temp folder, as the build does into dist/.
+ */
+import { join } from 'node:path';
+import { build } from 'esbuild';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { CancelledError } from '../../extension/engine/errors';
+import { evaluate } from '../../extension/engine/evaluate/evaluate';
+import { evaluateInParallel, setScoreWorkerScript, splitByRows } from '../../extension/engine/evaluate/parallelEvaluate';
+import type { Evaluation } from '../../extension/engine/evaluate/types';
+import type { Conventions } from '../../extension/engine/metrics/conventions';
+import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
+import { parseMetricList } from '../../extension/engine/metrics/parse';
+import { buildDump, type TestRow } from './dumpBuilder';
+import { TempDir } from './fixtures/readers/tempFiles';
+import { QUERY_NAMES, seededRandom } from '../reference/random';
+
+const tmp = new TempDir();
+
+beforeAll(async () => {
+  const script = join(tmp.path, 'scoreWorker.js');
+  await build({ entryPoints: ['extension/worker/scoreWorker.ts'], bundle: true, platform: 'node', format: 'cjs', outfile: script, logLevel: 'warning' });
+  setScoreWorkerScript(script);
+});
+afterAll(() => {
+  setScoreWorkerScript(undefined);
+  tmp.remove();
+});
+
+/** Queries of 0–40 items with ties, duplicates, missing scores, unjudged rows and queries with nothing relevant. */
+function randomRows(seed: number, queries: number): TestRow[] {
+  const rand = seededRandom(seed);
+  const rows: TestRow[] = [];
+  for (let q = 0; q < queries; q++) {
+    const query = `${QUERY_NAMES[q % QUERY_NAMES.length]} ${q}`;
+    const n = rand() < 0.05 ? 1 : Math.floor(rand() * 40);
+    const noneRelevant = rand() < 0.1;
+    for (let i = 0; i < n; i++) {
+      const item = rand() < 0.04 ? `sku-${q}-0` : `sku-${q}-${i}`;
+      const label = rand() < 0.03 ? NaN : noneRelevant ? 0 : Math.floor(rand() * 4);
+      const score = rand() < 0.03 ? NaN : Math.round(rand() * 20) / 4;
+      rows.push({ query, item, label, score });
+    }
+  }
+  return rows;
+}
+
+/** Bytes of a typed array: equal bytes means equal bits, NaN payloads and signed zeros included. */
+function bytesOf(a: ArrayBufferView): number[] {
+  return Array.from(new Uint8Array(a.buffer, a.byteOffset, a.byteLength));
+}
+
+function expectIdentical(one: Evaluation, many: Evaluation): void {
+  expect(many.queryCount).toBe(one.queryCount);
+  const p1 = one.perQuery;
+  const p2 = many.perQuery;
+  for (const key of ['items', 'relevant', 'inversions', 'inversionCost', 'skipped'] as const) {
+    expect(bytesOf(p2[key]), key).toEqual(bytesOf(p1[key]));
+  }
+  expect(p2.rbpResidual === undefined).toBe(p1.rbpResidual === undefined);
+  if (p1.rbpResidual) expect(bytesOf(p2.rbpResidual!)).toEqual(bytesOf(p1.rbpResidual));
+  expect(p2.values.length).toBe(p1.values.length);
+  p1.values.forEach((v, m) => expect(bytesOf(p2.values[m]!), `metric ${m}`).toEqual(bytesOf(v)));
+  // toEqual compares numbers with Object.is, so every mean must match to the last bit.
+  expect(many.summary).toEqual(one.summary);
+  expect(many.sensitivity).toEqual(one.sensitivity);
+  expect(many.degenerate).toEqual(one.degenerate);
+  expect(many.warnings).toEqual(one.warnings);
+}
+
+const METRICS = parseMetricList('ndcg@10,err@10,ap,rr,p@5,r@10,rbp,tau,dcg@3');
+
+describe('parallel scoring', () => {
+  const cases: [number, number, Partial<Conventions>][] = [
+    [1, 2, {}],
+    [2, 3, { ties: 'pessimistic', noRelevant: 'zero' }],
+    [3, 2, { gain: { kind: 'linear' }, ties: 'file-order', noRelevant: 'one', relevantFrom: 2 }],
+    [4, 4, { gain: { kind: 'map', gains: new Map([[0, 0], [1, 3], [2, 1], [3, 6]]) }, ties: 'optimistic' }],
+  ];
+  it.each(cases)('seed %i with %i threads matches one thread', async (seed, threads, change) => {
+    const dump = buildDump(randomRows(seed, 3000));
+    const conventions: Conventions = { ...DEFAULT_CONVENTIONS, ...change };
+    const one = evaluate(dump, METRICS, conventions);
+    // The ranges must really differ from one: a split that put every query on this thread would pass trivially.
+    const { groupByQuery } = await import('../../extension/engine/model/groups');
+    const bounds = splitByRows(groupByQuery(dump).start, threads);
+    expect(bounds.length).toBe(threads + 1);
+    for (let k = 0; k < threads; k++) expect(bounds[k + 1]!).toBeGreaterThan(bounds[k]!);
+    const many = await evaluateInParallel(dump, METRICS, conventions, { threads });
+    expectIdentical(one, many);
+    expect(one.sensitivity.length).toBeGreaterThan(5);
+  });
+
+  it('without sensitivity rows, and without workers available, still matches', async () => {
+    const dump = buildDump(randomRows(9, 500));
+    const one = evaluate(dump, METRICS, DEFAULT_CONVENTIONS, { sensitivity: false });
+    expectIdentical(one, await evaluateInParallel(dump, METRICS, DEFAULT_CONVENTIONS, { threads: 2, sensitivity: false }));
+    setScoreWorkerScript(join(tmp.path, 'missing.js'));
+    try {
+      expectIdentical(one, await evaluateInParallel(dump, METRICS, DEFAULT_CONVENTIONS, { threads: 2, sensitivity: false }));
+    } finally {
+      setScoreWorkerScript(join(tmp.path, 'scoreWorker.js'));
+    }
+  });
+
+  it('splits queries into ranges of about equal rows', () => {
+    // Rows per query: 10, 10, 10, 70 → two parts of 50 rows each cut before the big query.
+    const start = Uint32Array.from([0, 10, 20, 30, 100]);
+    expect(splitByRows(start, 2)).toEqual([0, 3, 4]);
+    expect(splitByRows(start, 1)).toEqual([0, 4]);
+  });
+
+  it('a cancelled evaluation throws and stops its workers', async () => {
+    const dump = buildDump(randomRows(5, 2000));
+    const controller = new AbortController();
+    controller.abort();
+    await expect(evaluateInParallel(dump, METRICS, DEFAULT_CONVENTIONS, { threads: 2, signal: controller.signal })).rejects.toBeInstanceOf(CancelledError);
+  });
+});
