@@ -70,6 +70,21 @@ const METRICS = [
   { key: 'ap', label: 'AP' },
 ];
 
+/** The extension's default metric set (two cut-offs), for layout checks: values derived from NDCG, Kendall τ negative. */
+const FULL_METRICS: readonly { key: string; label: string; of: (ndcg: number) => number }[] = [
+  { key: 'ndcg@10', label: 'NDCG@10', of: (x) => x },
+  { key: 'ndcg@5', label: 'NDCG@5', of: (x) => x * 0.97 },
+  { key: 'err@10', label: 'ERR@10', of: (x) => x * 0.8 },
+  { key: 'ap', label: 'AP', of: (x) => x * 0.9 },
+  { key: 'rr', label: 'RR', of: (x) => Math.min(1, x * 1.1) },
+  { key: 'p@10', label: 'P@10', of: (x) => x * 0.5 },
+  { key: 'p@5', label: 'P@5', of: (x) => x * 0.6 },
+  { key: 'r@10', label: 'R@10', of: (x) => x * 0.95 },
+  { key: 'r@5', label: 'R@5', of: (x) => x * 0.7 },
+  { key: 'rbp', label: 'RBP', of: (x) => x * 0.6 },
+  { key: 'tau', label: 'Kendall τ', of: (x) => 2 * x - 1.3 },
+];
+
 export interface FakeHostOptions {
   readonly mode: 'single' | 'compare';
   readonly queries: number;
@@ -79,6 +94,8 @@ export interface FakeHostOptions {
   readonly delayMs?: number;
   /** Items of query 0 (default: like the others). */
   readonly bigItems?: number;
+  /** Show the extension's full default metric set instead of two metrics. */
+  readonly allMetrics?: boolean;
 }
 
 export function startFakeHost(options: FakeHostOptions): { send(message: HostToView): void; calls: { method: string; params: unknown }[]; queries: FakeQuery[]; overview: OverviewModel } {
@@ -90,7 +107,7 @@ export function startFakeHost(options: FakeHostOptions): { send(message: HostToV
   const row = (q: FakeQuery, index: number): QueryRow => ({
     query: q.id,
     index,
-    values: [nul(q.ndcgA), nul(q.ndcgA * 0.9)],
+    values: options.allMetrics ? FULL_METRICS.map((m) => nul(m.of(q.ndcgA))) : [nul(q.ndcgA), nul(q.ndcgA * 0.9)],
     items: q.labels.length,
     relevant: q.labels.filter((g) => g > 0).length,
     inversions: q.inversions,
@@ -107,10 +124,12 @@ export function startFakeHost(options: FakeHostOptions): { send(message: HostToV
   const overview: OverviewModel = {
     file: { path: '/demo/hardware-store/run-a.csv', name: 'run-a.csv', format: 'csv', rowCount: queries.reduce((s, q) => s + q.labels.length, 0), sizeBytes: 1, textual: true },
     queryCount: queries.length,
-    metrics: [
-      { ...METRICS[0]!, mean: mean(queries.map((q) => q.ndcgA)), counted: queries.filter((q) => !Number.isNaN(q.ndcgA)).length },
-      { ...METRICS[1]!, mean: mean(queries.map((q) => q.ndcgA * 0.9)), counted: queries.filter((q) => !Number.isNaN(q.ndcgA)).length },
-    ],
+    metrics: options.allMetrics
+      ? FULL_METRICS.map((m) => ({ key: m.key, label: m.label, mean: mean(queries.map((q) => m.of(q.ndcgA))), counted: queries.filter((q) => !Number.isNaN(q.ndcgA)).length }))
+      : [
+          { ...METRICS[0]!, mean: mean(queries.map((q) => q.ndcgA)), counted: queries.filter((q) => !Number.isNaN(q.ndcgA)).length },
+          { ...METRICS[1]!, mean: mean(queries.map((q) => q.ndcgA * 0.9)), counted: queries.filter((q) => !Number.isNaN(q.ndcgA)).length },
+        ],
     headline: 0,
     conventions: { gain: 'exponential (2^g − 1)', ties: 'average', noRelevant: 'skip', relevantFrom: 1, maxGrade: null, rbpPersistence: 0.8, summary: 'gain exponential · ties average · no-relevant skip · relevant ≥ 1' },
     sensitivity: [{ label: 'gain: linear', mean: 0.61, counted: 10, delta: -0.01 }],

@@ -8,5 +8,6 @@ const host = startFakeHost({
   error: params.get('error') ?? undefined,
   delayMs: Number(params.get('delay') ?? '0'),
   bigItems: Number(params.get('items') ?? '0'),
+  allMetrics: params.get('metrics') === 'all',
 });
 (window as unknown as { __host: typeof host }).__host = host;

@@ -17,8 +17,12 @@ export interface ColumnDef<Row> {
   readonly format?: (value: Cell) => string;
   readonly numeric?: boolean;
   readonly sortable?: boolean;
-  /** Relative width (fr units). */
+  /** Share of the spare width (fr units); 0 keeps the column at its minimum. See columnLayout.ts. */
   readonly width?: number;
+  /** Widest text the formatter produces for the expected range (sizes numeric columns), e.g. "-0.0000". */
+  readonly sample?: string;
+  /** Stays at the left edge while the grid scrolls sideways (leading columns only). */
+  readonly sticky?: boolean;
   /** Show the value also as a bar of this fraction (0..1) of the cell. */
   readonly bar?: (row: Row) => number | null;
 }

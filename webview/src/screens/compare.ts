@@ -9,6 +9,7 @@ import { benjaminiHochberg, effectSizeDz } from '../model/compareStats';
 import { COLUMN_EXPLANATIONS, explainMetric } from '../model/explain';
 import { exactValue, formatCount, formatDelta, formatFixed, formatP, MISSING } from '../model/format';
 import { binLabel, binValues, suggestedBins, symmetricRange } from '../model/histogram';
+import { SAMPLES } from '../model/columnLayout';
 import { exportParams, type Cell, type ColumnDef } from '../model/tableModel';
 import { barChart, scatterChart } from '../ui/charts';
 import type { AppContext } from '../ui/context';
@@ -80,7 +81,7 @@ export class CompareScreen {
       },
     });
     this.table.element.classList.add('auto');
-    this.table.element.style.height = `${this.lines.length * 26 + 34}px`;
+    this.table.element.style.height = `${this.lines.length * 26 + 34 + 14}px`; // 14: room for a sideways scrollbar
     this.element.append(
       el('h2', { text: 'Per metric' }),
       el('div', { className: 'gl-toolbar' }, adjustSelect.wrapper, el('span', { className: 'gl-spacer' }),
@@ -118,10 +119,10 @@ export class CompareScreen {
   private columns(): ColumnDef<MetricLine>[] {
     const f = (v: Cell) => (typeof v === 'number' ? formatFixed(v) : MISSING);
     const cols: ColumnDef<MetricLine>[] = [
-      { key: 'metric', label: 'Metric', title: 'Metric, as configured.', value: (l) => l.row.label, width: 1.1 },
-      { key: 'meanA', label: 'Mean A', title: 'Mean over the paired queries in run A.', value: (l) => l.row.meanA, format: f, numeric: true, width: 0.9 },
-      { key: 'meanB', label: 'Mean B', title: 'Mean over the paired queries in run B.', value: (l) => l.row.meanB, format: f, numeric: true, width: 0.9 },
-      { key: 'delta', label: 'Δ (B − A)', title: 'Mean B − mean A (mean of the per-query differences).', value: (l) => l.row.delta, format: (v) => (typeof v === 'number' ? formatDelta(v) : MISSING), numeric: true },
+      { key: 'metric', label: 'Metric', title: 'Metric, as configured.', value: (l) => l.row.label, width: 1.1, sticky: true },
+      { key: 'meanA', label: 'Mean A', title: 'Mean over the paired queries in run A.', value: (l) => l.row.meanA, format: f, numeric: true, width: 0.9, sample: SAMPLES.unitFixed },
+      { key: 'meanB', label: 'Mean B', title: 'Mean over the paired queries in run B.', value: (l) => l.row.meanB, format: f, numeric: true, width: 0.9, sample: SAMPLES.unitFixed },
+      { key: 'delta', label: 'Δ (B − A)', title: 'Mean B − mean A (mean of the per-query differences).', value: (l) => l.row.delta, format: (v) => (typeof v === 'number' ? formatDelta(v) : MISSING), numeric: true, sample: SAMPLES.unitDelta },
       {
         key: 'interval',
         label: '95% interval',
@@ -129,9 +130,10 @@ export class CompareScreen {
         value: (l) => (l.row.intervalLow === null || l.row.intervalHigh === null ? null : `[${formatDelta(l.row.intervalLow, 3)}, ${formatDelta(l.row.intervalHigh, 3)}]`),
         width: 1.7,
         numeric: true,
+        sample: '[-0.000, -0.000]',
       },
-      { key: 'dz', label: 'd_z', title: 'Paired effect size: mean Δ / standard deviation of Δ, derived as t / √n (Lakens 2013).', value: (l) => l.dz, format: (v) => (typeof v === 'number' ? formatFixed(v, 3) : MISSING), numeric: true, width: 0.7 },
-      { key: 'wtl', label: 'W / T / L', title: 'Queries where B wins / ties / loses (|Δ| within the tie tolerance is a tie).', value: (l) => `${l.row.wins} / ${l.row.ties} / ${l.row.losses}`, numeric: true, width: 1.3 },
+      { key: 'dz', label: 'd_z', title: 'Paired effect size: mean Δ / standard deviation of Δ, derived as t / √n (Lakens 2013).', value: (l) => l.dz, format: (v) => (typeof v === 'number' ? formatFixed(v, 3) : MISSING), numeric: true, width: 0.7, sample: '-0.000' },
+      { key: 'wtl', label: 'W / T / L', title: 'Queries where B wins / ties / loses (|Δ| within the tie tolerance is a tie).', value: (l) => `${l.row.wins} / ${l.row.ties} / ${l.row.losses}`, numeric: true, width: 1.3, sample: '9999 / 9999 / 9999' },
     ];
     const which = this.adjust;
     for (const name of this.testNames) {
@@ -146,6 +148,7 @@ export class CompareScreen {
         format: (v) => (typeof v === 'number' ? formatP(v) : MISSING),
         numeric: true,
         width: 1.1,
+        sample: SAMPLES.p,
       });
     }
     return cols;

@@ -7,6 +7,7 @@ import { COLUMN_EXPLANATIONS } from '../model/explain';
 import { exactValue, formatDelta, formatFixed, MISSING, formatCount } from '../model/format';
 import { PageCache } from '../model/pageCache';
 import { normalizeFilter, toggleSort, type SortState } from '../model/sortState';
+import { SAMPLES } from '../model/columnLayout';
 import { exportParams, type Cell, type ColumnDef } from '../model/tableModel';
 import type { AppContext } from '../ui/context';
 import { button, el, fillSelect, select } from '../ui/dom';
@@ -100,11 +101,11 @@ export class DeltasScreen {
   private columns(): ColumnDef<CompareRow>[] {
     const label = this.label();
     return [
-      { key: 'rank', label: '#', title: 'Position in the current order.', value: (r) => r.index + 1, numeric: true, width: 0.5 },
-      { key: 'query', label: 'Query', title: 'Query id.', value: (r) => r.query, sortable: true, width: 3 },
-      { key: 'a', label: `${label} A`, title: COLUMN_EXPLANATIONS['a']!, value: (r) => r.a, format: fixed, numeric: true, sortable: true },
-      { key: 'b', label: `${label} B`, title: COLUMN_EXPLANATIONS['b']!, value: (r) => r.b, format: fixed, numeric: true, sortable: true },
-      { key: 'delta', label: 'Δ (B − A)', title: COLUMN_EXPLANATIONS['delta']!, value: (r) => r.delta, format: (v) => (typeof v === 'number' ? formatDelta(v) : MISSING), numeric: true, sortable: true, bar: (r) => (r.delta === null ? null : Math.abs(r.delta)) },
+      { key: 'rank', label: '#', title: 'Position in the current order.', value: (r) => r.index + 1, numeric: true, width: 0, sample: SAMPLES.rank, sticky: true },
+      { key: 'query', label: 'Query', title: 'Query id.', value: (r) => r.query, sortable: true, width: 3, sticky: true },
+      { key: 'a', label: `${label} A`, title: COLUMN_EXPLANATIONS['a']!, value: (r) => r.a, format: fixed, numeric: true, sortable: true, sample: SAMPLES.unitFixed },
+      { key: 'b', label: `${label} B`, title: COLUMN_EXPLANATIONS['b']!, value: (r) => r.b, format: fixed, numeric: true, sortable: true, sample: SAMPLES.unitFixed },
+      { key: 'delta', label: 'Δ (B − A)', title: COLUMN_EXPLANATIONS['delta']!, value: (r) => r.delta, format: (v) => (typeof v === 'number' ? formatDelta(v) : MISSING), numeric: true, sortable: true, sample: SAMPLES.unitDelta, bar: (r) => (r.delta === null ? null : Math.abs(r.delta)) },
       { key: 'outcome', label: 'Outcome', title: 'win: B better beyond the tie tolerance; loss: B worse; tie: within it.', value: (r) => (r.outcome === 'win' ? 'B better' : r.outcome === 'loss' ? 'B worse' : r.outcome === 'tie' ? 'tie' : null) },
     ];
   }

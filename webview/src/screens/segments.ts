@@ -6,6 +6,7 @@ import type { CompareSegmentRow, SegmentRow } from '../../../extension/protocol/
 import { COLUMN_EXPLANATIONS, explainMetric } from '../model/explain';
 import { exactValue, formatCount, formatDelta, formatFixed, formatShare, MISSING } from '../model/format';
 import { sortRows, toggleSort, type SortState } from '../model/sortState';
+import { SAMPLES } from '../model/columnLayout';
 import { exportParams, type Cell, type ColumnDef } from '../model/tableModel';
 import type { AppContext } from '../ui/context';
 import { button, el, fillSelect, select } from '../ui/dom';
@@ -115,27 +116,27 @@ export class SegmentsScreen {
 
   private columns(setup: SegmentsSetup): ColumnDef<Row>[] {
     const cols: ColumnDef<Row>[] = [
-      { key: 'value', label: this.columnSelect.value || 'Value', title: 'Value of the chosen column.', value: (r) => r.value, sortable: true, width: 2 },
-      { key: 'queries', label: 'Queries', title: COLUMN_EXPLANATIONS['queries']!, value: (r) => r.queries, format: count, numeric: true, sortable: true },
+      { key: 'value', label: this.columnSelect.value || 'Value', title: 'Value of the chosen column.', value: (r) => r.value, sortable: true, width: 2, sticky: true },
+      { key: 'queries', label: 'Queries', title: COLUMN_EXPLANATIONS['queries']!, value: (r) => r.queries, format: count, numeric: true, sortable: true, sample: SAMPLES.count },
     ];
     if (setup.compare) {
       const g = (r: Row) => r as CompareSegmentRow;
       cols.push(
-        { key: 'meanA', label: 'Mean A', title: 'Mean of the metric over this segment’s paired queries in run A.', value: (r) => g(r).meanA, format: fixed, numeric: true, sortable: true },
-        { key: 'meanB', label: 'Mean B', title: 'Mean in run B.', value: (r) => g(r).meanB, format: fixed, numeric: true, sortable: true },
-        { key: 'delta', label: 'Δ (B − A)', title: 'Mean B − mean A.', value: (r) => g(r).delta, format: delta, numeric: true, sortable: true },
-        { key: 'wins', label: 'Wins', title: COLUMN_EXPLANATIONS['wins']!, value: (r) => g(r).wins, format: count, numeric: true, sortable: true },
-        { key: 'ties', label: 'Ties', title: COLUMN_EXPLANATIONS['ties']!, value: (r) => g(r).ties, format: count, numeric: true, sortable: true },
-        { key: 'losses', label: 'Losses', title: COLUMN_EXPLANATIONS['losses']!, value: (r) => g(r).losses, format: count, numeric: true, sortable: true },
+        { key: 'meanA', label: 'Mean A', title: 'Mean of the metric over this segment’s paired queries in run A.', value: (r) => g(r).meanA, format: fixed, numeric: true, sortable: true, sample: SAMPLES.unitFixed },
+        { key: 'meanB', label: 'Mean B', title: 'Mean in run B.', value: (r) => g(r).meanB, format: fixed, numeric: true, sortable: true, sample: SAMPLES.unitFixed },
+        { key: 'delta', label: 'Δ (B − A)', title: 'Mean B − mean A.', value: (r) => g(r).delta, format: delta, numeric: true, sortable: true, sample: SAMPLES.unitDelta },
+        { key: 'wins', label: 'Wins', title: COLUMN_EXPLANATIONS['wins']!, value: (r) => g(r).wins, format: count, numeric: true, sortable: true, sample: SAMPLES.count },
+        { key: 'ties', label: 'Ties', title: COLUMN_EXPLANATIONS['ties']!, value: (r) => g(r).ties, format: count, numeric: true, sortable: true, sample: SAMPLES.count },
+        { key: 'losses', label: 'Losses', title: COLUMN_EXPLANATIONS['losses']!, value: (r) => g(r).losses, format: count, numeric: true, sortable: true, sample: SAMPLES.count },
       );
     } else {
       const s = (r: Row) => r as SegmentRow;
       setup.metrics.forEach((m, i) =>
-        cols.push({ key: m.key, label: m.label, title: explainMetric(m.key, setup.conventionsSummary), value: (r) => s(r).means[i] ?? null, format: fixed, numeric: true, sortable: true }),
+        cols.push({ key: m.key, label: m.label, title: explainMetric(m.key, setup.conventionsSummary), value: (r) => s(r).means[i] ?? null, format: fixed, numeric: true, sortable: true, sample: SAMPLES.unitFixed }),
       );
       cols.push(
-        { key: 'headlineDelta', label: 'Δ headline', title: COLUMN_EXPLANATIONS['headlineDelta']!, value: (r) => s(r).headlineDelta, format: delta, numeric: true, sortable: true },
-        { key: 'lossShare', label: 'Share of loss', title: 'Share of the total headline loss carried by this segment’s queries.', value: (r) => s(r).lossShare, format: (v) => (typeof v === 'number' ? formatShare(v) : MISSING), numeric: true, sortable: true, bar: (r) => s(r).lossShare },
+        { key: 'headlineDelta', label: 'Δ headline', title: COLUMN_EXPLANATIONS['headlineDelta']!, value: (r) => s(r).headlineDelta, format: delta, numeric: true, sortable: true, sample: SAMPLES.unitDelta },
+        { key: 'lossShare', label: 'Share of loss', title: 'Share of the total headline loss carried by this segment’s queries.', value: (r) => s(r).lossShare, format: (v) => (typeof v === 'number' ? formatShare(v) : MISSING), numeric: true, sortable: true, sample: SAMPLES.share, bar: (r) => s(r).lossShare },
       );
     }
     return cols;

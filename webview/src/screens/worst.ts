@@ -8,6 +8,7 @@ import { COLUMN_EXPLANATIONS, explainMetric } from '../model/explain';
 import { exactValue, formatCount, formatFixed, formatShare, MISSING } from '../model/format';
 import { PageCache } from '../model/pageCache';
 import { normalizeFilter, toggleSort, type SortState } from '../model/sortState';
+import { SAMPLES } from '../model/columnLayout';
 import { exportParams, type Cell, type ColumnDef } from '../model/tableModel';
 import type { AppContext } from '../ui/context';
 import { button, el, fillSelect, select } from '../ui/dom';
@@ -107,17 +108,17 @@ export class WorstScreen {
   private columns(model: OverviewModel): ColumnDef<QueryRow>[] {
     const conv = model.conventions.summary;
     const cols: ColumnDef<QueryRow>[] = [
-      { key: 'rank', label: '#', title: 'Position in the current order.', value: (r) => r.index + 1, numeric: true, width: 0.5 },
-      { key: 'query', label: 'Query', title: COLUMN_EXPLANATIONS['query']!, value: (r) => r.query, sortable: true, width: 3 },
+      { key: 'rank', label: '#', title: 'Position in the current order.', value: (r) => r.index + 1, numeric: true, width: 0, sample: SAMPLES.rank, sticky: true },
+      { key: 'query', label: 'Query', title: COLUMN_EXPLANATIONS['query']!, value: (r) => r.query, sortable: true, width: 3, sticky: true },
     ];
     model.metrics.forEach((m, i) =>
-      cols.push({ key: m.key, label: m.label, title: explainMetric(m.key, conv), value: (r) => r.values[i] ?? null, format: fixed, numeric: true, sortable: true }),
+      cols.push({ key: m.key, label: m.label, title: explainMetric(m.key, conv), value: (r) => r.values[i] ?? null, format: fixed, numeric: true, sortable: true, sample: SAMPLES.unitFixed }),
     );
     cols.push(
-      { key: 'items', label: 'Items', title: COLUMN_EXPLANATIONS['items']!, value: (r) => r.items, format: count, numeric: true, sortable: true, width: 0.7 },
-      { key: 'relevant', label: 'Relevant', title: COLUMN_EXPLANATIONS['relevant']!, value: (r) => r.relevant, format: count, numeric: true, sortable: true, width: 0.7 },
-      { key: 'inversions', label: 'Inversions', title: COLUMN_EXPLANATIONS['inversions']!, value: (r) => r.inversions, format: count, numeric: true, sortable: true, width: 0.8 },
-      { key: 'inversionCost', label: 'Inversion cost', title: COLUMN_EXPLANATIONS['inversionCost']!, value: (r) => r.inversionCost, format: fixed, numeric: true, sortable: true },
+      { key: 'items', label: 'Items', title: COLUMN_EXPLANATIONS['items']!, value: (r) => r.items, format: count, numeric: true, sortable: true, width: 0.7, sample: SAMPLES.count },
+      { key: 'relevant', label: 'Relevant', title: COLUMN_EXPLANATIONS['relevant']!, value: (r) => r.relevant, format: count, numeric: true, sortable: true, width: 0.7, sample: SAMPLES.count },
+      { key: 'inversions', label: 'Inversions', title: COLUMN_EXPLANATIONS['inversions']!, value: (r) => r.inversions, format: count, numeric: true, sortable: true, width: 0.8, sample: SAMPLES.count },
+      { key: 'inversionCost', label: 'Inversion cost', title: COLUMN_EXPLANATIONS['inversionCost']!, value: (r) => r.inversionCost, format: fixed, numeric: true, sortable: true, sample: SAMPLES.unitFixed },
       {
         key: 'lossShare',
         label: 'Share of loss',
@@ -126,6 +127,7 @@ export class WorstScreen {
         format: (v) => (typeof v === 'number' ? formatShare(v) : MISSING),
         numeric: true,
         sortable: true,
+        sample: SAMPLES.share,
         bar: (r) => (r.lossShare === null ? null : Math.min(1, r.lossShare * 20)),
       },
     );

@@ -3,7 +3,10 @@
  * exist in the DOM. Rows come from a `RowSource` (paged from the host, or a local array). Follows
  * the WAI-ARIA grid pattern: one tab stop, arrows / Page Up/Down / Home / End move the active row,
  * Enter opens it; `aria-rowcount` and `aria-rowindex` tell screen readers where they are.
+ * Columns never squeeze numbers (columnLayout.ts): when they do not fit, the one scroll area scrolls
+ * sideways too, carrying the header (sticky at the top) and leaving sticky leading columns in place.
  */
+import { ColumnWidths, type GridTemplate } from '../model/columnLayout';
 import { navigate } from '../model/gridKeys';
 import { ariaSort, type SortState } from '../model/sortState';
 import { cellText, type ColumnDef } from '../model/tableModel';
@@ -33,30 +36,37 @@ export interface VirtualTableOptions<Row> {
   readonly emptyText?: string;
 }
 
+const HORIZONTAL_STEP_PX = 60;
+
 export class VirtualTable<Row> {
   readonly element: HTMLElement;
   private readonly viewport: HTMLElement;
   private readonly spacer: HTMLElement;
   private readonly rowsBox: HTMLElement;
   private readonly header: HTMLElement;
+  private readonly headGroup: HTMLElement;
   private readonly status: HTMLElement;
   private readonly rowHeight: number;
   private active = -1;
   private frame = 0;
   private columns: readonly ColumnDef<Row>[];
+  private widths: ColumnWidths;
+  private layout: GridTemplate;
 
   constructor(private readonly options: VirtualTableOptions<Row>) {
     this.rowHeight = options.rowHeight ?? 24;
     this.columns = options.columns;
+    this.widths = new ColumnWidths(this.columns);
+    this.layout = this.widths.template();
     this.header = el('div', { className: 'gl-vt-head', attrs: { role: 'row', 'aria-rowindex': 1 } });
+    this.headGroup = el('div', { className: 'gl-vt-headgroup', attrs: { role: 'rowgroup' } }, this.header);
     this.rowsBox = el('div', { className: 'gl-vt-rows', attrs: { role: 'rowgroup' } });
     this.spacer = el('div', { className: 'gl-vt-spacer' }, this.rowsBox);
-    this.viewport = el('div', { className: 'gl-vt-viewport' }, this.spacer);
+    this.viewport = el('div', { className: 'gl-vt-viewport' }, this.headGroup, this.spacer);
     this.status = el('div', { className: 'gl-vt-status', attrs: { role: 'status', 'aria-live': 'polite' } });
     this.element = el(
       'div',
       { id: options.id, className: 'gl-vt', attrs: { role: 'grid', 'aria-label': options.label, tabindex: 0 } },
-      el('div', { className: 'gl-vt-headgroup', attrs: { role: 'rowgroup' } }, this.header),
       this.viewport,
       this.status,
     );
@@ -69,6 +79,7 @@ export class VirtualTable<Row> {
 
   setColumns(columns: readonly ColumnDef<Row>[]): void {
     this.columns = columns;
+    this.widths = new ColumnWidths(columns);
     this.renderHeader();
     this.schedule();
   }
@@ -105,13 +116,14 @@ export class VirtualTable<Row> {
   private renderHeader(): void {
     clear(this.header);
     const sort = this.options.sort?.();
-    this.element.style.setProperty('--gl-vt-cols', this.columns.map((c) => `minmax(0, ${c.width ?? 1}fr)`).join(' '));
+    this.applyLayout();
     this.element.setAttribute('aria-colcount', String(this.columns.length));
     this.columns.forEach((c, i) => {
       const cell = el('div', {
         className: `gl-vt-hcell${c.numeric ? ' num' : ''}`,
         attrs: { role: 'columnheader', 'aria-colindex': i + 1, 'aria-sort': sort && c.sortable ? ariaSort(sort, c.key) : undefined },
       });
+      this.stick(cell, i);
       if (c.sortable && this.options.onSort) {
         const state = sort ? ariaSort(sort, c.key) : 'none';
         const arrow = state === 'ascending' ? ' ▲' : state === 'descending' ? ' ▼' : '';
@@ -131,6 +143,24 @@ export class VirtualTable<Row> {
     });
   }
 
+  private applyLayout(): void {
+    this.layout = this.widths.template();
+    this.element.style.setProperty('--gl-vt-cols', this.layout.columns);
+    this.element.style.setProperty('--gl-vt-min', this.layout.minWidth);
+  }
+
+  private stick(cell: HTMLElement, column: number): void {
+    const left = this.layout.stickyLeft[column];
+    if (left === undefined) return;
+    cell.classList.add('sticky');
+    cell.style.left = left;
+  }
+
+  /** Rows sit under the sticky header inside the same scroll area: the part they can show. */
+  private rowsHeight(): number {
+    return Math.max(this.rowHeight, (this.viewport.clientHeight || 400) - this.headGroup.offsetHeight);
+  }
+
   private schedule(): void {
     if (this.frame) return;
     this.frame = requestAnimationFrame(() => {
@@ -142,7 +172,7 @@ export class VirtualTable<Row> {
   private render(): void {
     const source = this.options.source;
     const total = source.total();
-    const viewportHeight = this.viewport.clientHeight || 400;
+    const viewportHeight = this.rowsHeight();
     if (total === undefined) {
       // Ask for the first rows; the height is unknown until they arrive.
       source.ensure(0, Math.ceil(viewportHeight / this.rowHeight) + 1);
@@ -155,6 +185,12 @@ export class VirtualTable<Row> {
     this.rowsBox.style.transform = `translateY(${w.offsetTop}px)`;
     source.ensure(w.first, w.end);
     clear(this.rowsBox);
+    let grew = false;
+    for (let i = w.first; i < w.end; i++) {
+      const row = source.row(i);
+      if (row) this.columns.forEach((c, ci) => (grew = this.widths.observe(ci, cellText(c, row)) || grew));
+    }
+    if (grew) this.renderHeader(); // a wider value than the template: widen before drawing the rows
     for (let i = w.first; i < w.end; i++) this.rowsBox.appendChild(this.renderRow(i, source.row(i)));
     const error = source.error?.();
     this.status.textContent = error ? `Could not load rows: ${error}` : total === 0 ? (this.options.emptyText ?? 'No rows.') : '';
@@ -187,6 +223,7 @@ export class VirtualTable<Row> {
         title: this.options.cellTitle?.(c, row) ?? text,
         attrs: { role: 'gridcell', 'aria-colindex': i + 1 },
       });
+      this.stick(cell, i);
       const fraction = c.bar?.(row);
       if (fraction !== undefined && fraction !== null) {
         const track = el('span', { className: 'gl-cellbar', attrs: { 'aria-hidden': 'true' } });
@@ -201,14 +238,20 @@ export class VirtualTable<Row> {
 
   private reveal(index: number): void {
     const total = this.options.source.total() ?? 0;
-    const vh = this.viewport.clientHeight || 400;
+    const vh = this.rowsHeight();
     const top = scrollTopToReveal(index, this.viewport.scrollTop, vh, this.rowHeight, total);
     if (top !== this.viewport.scrollTop) this.viewport.scrollTop = top;
   }
 
   private onKey(e: KeyboardEvent): void {
     const total = this.options.source.total() ?? 0;
-    const pageRows = (this.viewport.clientHeight || 400) / this.rowHeight;
+    if ((e.key === 'ArrowLeft' || e.key === 'ArrowRight') && !e.ctrlKey && !e.metaKey && !e.altKey) {
+      // Rows are the unit of navigation; left/right scroll the columns into view.
+      e.preventDefault();
+      this.viewport.scrollLeft += (e.key === 'ArrowLeft' ? -1 : 1) * HORIZONTAL_STEP_PX;
+      return;
+    }
+    const pageRows = this.rowsHeight() / this.rowHeight;
     const result = navigate({ active: this.active, total, pageRows }, { key: e.key, ctrlKey: e.ctrlKey, metaKey: e.metaKey });
     if (!result.handled) return;
     e.preventDefault();
