@@ -104,9 +104,14 @@ export function ensureDebianPackages(wanted, { log = console.log } = {}) {
   if (still.length > 0) throw new Error(`apt-get did not provide ${still.map((p) => p.file).join(', ')}`);
 }
 
-/** npm's download cache goes inside the clone too, not into $HOME. */
+/**
+ * npm's download cache goes inside the clone too, not into $HOME. Settings an outer `npm test` exports
+ * (npm_config_user_agent names Node 20, which code-server's install script rejects) are dropped so
+ * the inner npm describes itself.
+ */
 function npmEnv(env) {
-  return { ...env, npm_config_cache: join(E2E_DIR, 'npm-cache') };
+  const own = Object.fromEntries(Object.entries(env).filter(([key]) => !/^npm_/i.test(key) || key === 'npm_config_nodedir'));
+  return { ...own, npm_config_cache: join(E2E_DIR, 'npm-cache') };
 }
 
 const npmQuiet = ['--no-audit', '--no-fund', '--loglevel=warn', '--no-save', '--package-lock=false'];
