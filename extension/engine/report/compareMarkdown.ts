@@ -4,9 +4,7 @@ import {
   biggestChanges,
   coverageLine,
   formatDelta,
-  formatInterval,
-  formatP,
-  winsTiesLosses,
+  metricFigures,
   type CompareReportInput,
   type CompareReportOptions,
   type QueryChange,
@@ -22,19 +20,8 @@ export function formatCompareMarkdown(input: CompareReportInput, options: Compar
   parts.push(
     markdownTable(
       ['metric', 'A', 'B', 'Δ', '95% CI', 'p (t)', 'p (Wilcoxon)', 'p (randomization)', 'Holm', 'BH', 'wins / ties / losses'],
-      c.byMetric.map((r) => [
-        r.key,
-        formatValue(r.summary.meanA),
-        formatValue(r.summary.meanB),
-        formatDelta(r.summary.meanDifference).trim(),
-        formatInterval(r.interval.low, r.interval.high),
-        formatP(r.tTest.p),
-        formatP(r.wilcoxon.p),
-        formatP(r.randomization.p),
-        formatP(r.adjusted.randomization.holm),
-        formatP(r.adjusted.randomization.benjaminiHochberg),
-        winsTiesLosses(r),
-      ]),
+      // The space that aligns an unsigned zero Δ in the terminal means nothing in a Markdown cell.
+      c.byMetric.map((r) => metricFigures(r).map((cell) => cell.trim())),
       ['left', 'right', 'right', 'right', 'left', 'right', 'right', 'right', 'right', 'right', 'right'],
     ),
   );

@@ -4,6 +4,7 @@
  */
 import type { Comparison, MetricComparison } from '../compare/compare';
 import type { StringPool } from '../model/stringPool';
+import { formatValue } from './reportInput';
 
 export interface CompareReportInput {
   readonly comparison: Comparison;
@@ -75,6 +76,26 @@ export function formatP(p: number): string {
 
 export function winsTiesLosses(r: MetricComparison): string {
   return `${r.summary.wins} / ${r.summary.ties} / ${r.summary.losses}`;
+}
+
+/**
+ * The figures every comparison report lists for one metric, in column order: key, A, B, Δ, interval,
+ * p (t, Wilcoxon, randomization), Holm, BH, wins / ties / losses. One list so the reports cannot drift.
+ */
+export function metricFigures(r: MetricComparison): string[] {
+  return [
+    r.key,
+    formatValue(r.summary.meanA),
+    formatValue(r.summary.meanB),
+    formatDelta(r.summary.meanDifference),
+    formatInterval(r.interval.low, r.interval.high),
+    formatP(r.tTest.p),
+    formatP(r.wilcoxon.p),
+    formatP(r.randomization.p),
+    formatP(r.adjusted.randomization.holm),
+    formatP(r.adjusted.randomization.benjaminiHochberg),
+    winsTiesLosses(r),
+  ];
 }
 
 /** One line on which queries were compared. */

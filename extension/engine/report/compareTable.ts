@@ -4,9 +4,7 @@ import {
   biggestChanges,
   coverageLine,
   formatDelta,
-  formatInterval,
-  formatP,
-  winsTiesLosses,
+  metricFigures,
   type CompareReportInput,
   type CompareReportOptions,
   type QueryChange,
@@ -23,20 +21,7 @@ export function formatCompareTable(input: CompareReportInput, options: CompareRe
     'Paired over common queries (Δ = B − A)\n' +
       alignedTable(
         ['metric', 'A', 'B', 'Δ', '95% interval', 'p t', 'p Wilcoxon', 'p random', 'Holm', 'BH', 'B better / same / worse', 'pairs'],
-        c.byMetric.map((r) => [
-          r.key,
-          formatValue(r.summary.meanA),
-          formatValue(r.summary.meanB),
-          formatDelta(r.summary.meanDifference),
-          formatInterval(r.interval.low, r.interval.high),
-          formatP(r.tTest.p),
-          formatP(r.wilcoxon.p),
-          formatP(r.randomization.p),
-          formatP(r.adjusted.randomization.holm),
-          formatP(r.adjusted.randomization.benjaminiHochberg),
-          winsTiesLosses(r),
-          String(r.paired),
-        ]),
+        c.byMetric.map((r) => [...metricFigures(r), String(r.paired)]),
         ['left', 'right', 'right', 'right', 'left', 'right', 'right', 'right', 'right', 'right', 'right', 'right'],
       ),
   );
