@@ -44,6 +44,8 @@ const batchEnd = new Int32Array(ITEM_BATCH);
 const batchHash = new Int32Array(ITEM_BATCH);
 const batchRow = new Int32Array(ITEM_BATCH);
 const batchRecord = new Int32Array(ITEM_BATCH);
+let previousStart = new Int32Array(8);
+let previousEnd = new Int32Array(8);
 /** Keeps the warming reads observable. */
 const warmth = { sum: 0 };
 
@@ -66,6 +68,13 @@ export function parseSimpleRecords(state: FastState, buf: Buffer, pos: number, l
   let line = state.line;
   let lastQuery = state.lastQuery;
   let batched = 0;
+  // Where the previous stored row's query and segment fields lie in `buf` (-1: not in this buffer).
+  if (previousStart.length < fields) {
+    previousStart = new Int32Array(fields);
+    previousEnd = new Int32Array(fields);
+  }
+  previousStart.fill(-1);
+  let repeated = false;
   while (pos < limit) {
     let c = buf[pos]!;
     if (c === LF) {
@@ -85,7 +94,27 @@ export function parseSimpleRecords(state: FastState, buf: Buffer, pos: number, l
       const role = roleOf[f]!;
       let value = 0;
       c = 0;
-      if (role === ROLE_ITEM || role === ROLE_QUERY || role >= ROLE_SEGMENT) {
+      repeated = false;
+      if ((role === ROLE_QUERY || role >= ROLE_SEGMENT) && previousStart[f]! >= 0) {
+        // Queries and segments mostly repeat the previous row's bytes (still in this buffer): compare them
+        // directly, which needs neither the hash nor a look at the pool.
+        const from = previousStart[f]!;
+        const length = previousEnd[f]! - from;
+        let i = 0;
+        while (i < length && pos + i < limit && buf[pos + i] === buf[from + i]) i++;
+        if (i === length) {
+          const after = pos + length;
+          c = after < limit ? buf[after]! : 0;
+          if (after >= limit || c < 14 || c === delimiter) {
+            pos = after;
+            repeated = true;
+          }
+        }
+        if (!repeated) c = 0;
+      }
+      if (repeated) {
+        // Same id as the previous row (set below).
+      } else if (role === ROLE_ITEM || role === ROLE_QUERY || role >= ROLE_SEGMENT) {
         // Scan and hash in one pass; the hash is only used when the id is looked up.
         let h = HASH_SEED;
         while (pos < limit) {
@@ -153,8 +182,10 @@ export function parseSimpleRecords(state: FastState, buf: Buffer, pos: number, l
         batchRow[batched] = row;
         batched++;
       } else if (role === ROLE_QUERY) {
-        if (lastQuery < 0 || !queries.matches(lastQuery, buf, s, e)) lastQuery = queries.internHashed(buf, s, e, finishHash(value));
+        if (!repeated && (lastQuery < 0 || !queries.matches(lastQuery, buf, s, e))) lastQuery = queries.internHashed(buf, s, e, finishHash(value));
         rows.query[row] = lastQuery;
+        previousStart[f] = s;
+        previousEnd[f] = e;
       } else if (role === ROLE_LABEL) {
         label = value;
       } else if (role === ROLE_SCORE) {
@@ -165,11 +196,13 @@ export function parseSimpleRecords(state: FastState, buf: Buffer, pos: number, l
         const k = role - ROLE_SEGMENT;
         const pool = rows.segmentPools[k]!;
         let id = state.lastSegment[k]!;
-        if (id < 0 || !pool.matches(id, buf, s, e)) {
+        if (!repeated && (id < 0 || !pool.matches(id, buf, s, e))) {
           id = pool.internHashed(buf, s, e, finishHash(value));
           state.lastSegment[k] = id;
         }
         rows.segmentIds[k]![row] = id;
+        previousStart[f] = s;
+        previousEnd[f] = e;
       }
     }
     if (!ok) {
