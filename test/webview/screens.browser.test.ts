@@ -225,3 +225,75 @@ describe('compare mode', () => {
     await page.close();
   });
 });
+
+describe('column layout: no number or header is cut short', () => {
+  /** Cells whose content is wider than their box (numbers, headers; query text may end in an ellipsis). */
+  const cutCells = (page: Page, root: string) =>
+    page.$$eval(
+      `${root} .gl-vt-hcell, ${root} .gl-vt-cell.num, ${root} .gl-order-head > span, ${root} .gl-order-row > span.num, ${root} .gl-order-row > .gl-barcell`,
+      (cells) => cells.filter((c) => c.scrollWidth > c.clientWidth).map((c) => `${c.textContent} (${c.scrollWidth} > ${c.clientWidth})`),
+    );
+
+  async function narrow(query: string, width: number): Promise<Page> {
+    const page = await browser.newPage({ viewport: { width, height: 700 } });
+    await page.goto(`${harness.url}?${query}`);
+    return page;
+  }
+
+  it('worst queries with the full metric set, 100k queries, in a narrow panel: scrolls sideways instead', async () => {
+    const page = await narrow('queries=100000&metrics=all', 900);
+    await page.click('#gl-tab-worst');
+    await page.waitForSelector('#gl-worst-table [data-query]');
+    const headers = await page.$$eval('#gl-worst-table .gl-vt-hcell', (cells) => cells.map((c) => (c.textContent ?? '').replace(/ [▲▼]$/, '')));
+    for (const full of ['#', 'Query', 'NDCG@10', 'NDCG@5', 'Kendall τ', 'Items', 'Relevant', 'Inversions', 'Inversion cost', 'Share of loss']) expect(headers).toContain(full);
+    expect(await cutCells(page, '#gl-worst-table')).toEqual([]);
+    // Kendall τ is negative for the worst queries: the sign must show in full.
+    const tauColumn = headers.indexOf('Kendall τ') + 1;
+    expect(await page.textContent(`#gl-worst-table [data-index="0"] [aria-colindex="${tauColumn}"]`)).toMatch(/^-\d\.\d{4}$/);
+    const viewport = await page.$eval('#gl-worst-table .gl-vt-viewport', (v) => ({ scroll: v.scrollWidth, client: v.clientWidth }));
+    expect(viewport.scroll).toBeGreaterThan(viewport.client);
+    // Scrolled to the far right: the header moved with the body, the query column stayed at the left.
+    const queryLeft = () => page.$eval('#gl-worst-table [data-index="0"] [aria-colindex="2"]', (c) => Math.round(c.getBoundingClientRect().left));
+    const before = await queryLeft();
+    await page.$eval('#gl-worst-table .gl-vt-viewport', (v) => (v.scrollLeft = v.scrollWidth));
+    await page.waitForTimeout(100);
+    expect(await queryLeft()).toBe(before);
+    const last = headers.length;
+    const lefts = await page.$$eval(`#gl-worst-table [aria-colindex="${last}"]`, (cells) => cells.slice(0, 2).map((c) => Math.round(c.getBoundingClientRect().left)));
+    expect(lefts[0]).toBe(lefts[1]);
+    const right = await page.$eval('#gl-worst-table', (g) => g.getBoundingClientRect().right);
+    const lastRight = await page.$eval(`#gl-worst-table [data-index="0"] [aria-colindex="${last}"]`, (c) => c.getBoundingClientRect().right);
+    expect(lastRight).toBeLessThanOrEqual(right);
+    // The last of 100 000 rows: a six-digit row number, still whole; virtual scrolling still pages.
+    await page.focus('#gl-worst-table');
+    await page.keyboard.press('End');
+    await page.waitForSelector('#gl-worst-table [data-index="99999"]');
+    expect(await page.textContent('#gl-worst-table [data-index="99999"] [aria-colindex="1"]')).toBe('100000');
+    expect(await cutCells(page, '#gl-worst-table')).toEqual([]);
+    expect(await page.locator('#gl-worst-table .gl-vt-row').count()).toBeLessThan(80);
+    await page.close();
+  }, 120_000);
+
+  it('compare table, per-query differences, segments and the ranked lists fit their numbers too', async () => {
+    const page = await narrow('mode=compare&queries=300', 700);
+    await page.waitForSelector('#gl-compare-table .gl-vt-row');
+    expect(await cutCells(page, '#gl-compare-table')).toEqual([]);
+    await page.click('#gl-tab-deltas');
+    await page.waitForSelector('#gl-deltas-table [data-query]');
+    expect(await cutCells(page, '#gl-deltas-table')).toEqual([]);
+    await page.click('#gl-deltas-table [data-query]');
+    await page.waitForSelector('#gl-movement-positions [data-item]');
+    expect(await cutCells(page, '#gl-movement')).toEqual([]);
+    await page.close();
+    const single = await narrow('queries=300&metrics=all&items=1500', 700);
+    await single.click('#gl-tab-segments');
+    await single.waitForSelector('#gl-segments-table .gl-vt-row');
+    expect(await cutCells(single, '#gl-segments-table')).toEqual([]);
+    const big = await single.evaluate(() => (window as unknown as { __host: { queries: { id: string }[] } }).__host.queries[0]!.id);
+    await single.evaluate((query) => window.dispatchEvent(new MessageEvent('message', { data: { kind: 'showQuery', query } })), big);
+    await single.waitForFunction((q) => document.querySelector('#gl-detail-query')?.textContent === q, big);
+    await single.waitForSelector('#gl-predicted-order [data-item]');
+    expect(await cutCells(single, '#gl-detail')).toEqual([]);
+    await single.close();
+  }, 60_000);
+});

@@ -82,7 +82,7 @@ const FULL_METRICS: readonly { key: string; label: string; of: (ndcg: number) =>
   { key: 'r@10', label: 'R@10', of: (x) => x * 0.95 },
   { key: 'r@5', label: 'R@5', of: (x) => x * 0.7 },
   { key: 'rbp', label: 'RBP', of: (x) => x * 0.6 },
-  { key: 'tau', label: 'Kendall τ', of: (x) => 2 * x - 1.3 },
+  { key: 'tau', label: 'Kendall τ', of: (x) => 2 * x - 1 },
 ];
 
 export interface FakeHostOptions {

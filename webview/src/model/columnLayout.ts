@@ -61,7 +61,7 @@ export function textWidthCh(text: string, bold = false): number {
   let w = 0;
   for (const ch of text) w += charWidthCh(ch);
   if (bold) w *= BOLD_FACTOR;
-  return Math.ceil(w * 10 - 1e-9) / 10;
+  return w === 0 ? 0 : Math.ceil(w * 10 - 1e-9) / 10;
 }
 
 export interface ColumnSizing {
@@ -155,6 +155,37 @@ export class ColumnWidths {
   template(): GridTemplate {
     return gridTemplate(this.columns, this.mins);
   }
+}
+
+/** Columns of a list whose rows are all known when it is drawn (the query detail's ranked lists). */
+export interface FittedColumn {
+  readonly header: string;
+  /** Every text the column shows. */
+  readonly texts: readonly string[];
+  /** number: exactly as wide as its widest text; bar: text plus room for a bar, then grows; text: grows, ellipsis. */
+  readonly kind: 'number' | 'bar' | 'text';
+  /** Share of the spare width for bar and text columns (fr). */
+  readonly grow?: number;
+}
+
+/** Room beside a number for its bar (at least this wide) and the gap before it. */
+export const BAR_ROOM_CH = 6;
+/** Text columns in the ranked lists stay at least this wide. */
+export const LIST_TEXT_MIN_CH = 8;
+
+/** Grid template fitted to the texts a list actually shows; `paddingPx` is a cell's horizontal padding. */
+export function fittedTemplate(columns: readonly FittedColumn[], paddingPx: number): { columns: string; minWidth: string } {
+  let totalCh = 0;
+  const tracks = columns.map((c) => {
+    const header = textWidthCh(c.header, true);
+    const widest = c.texts.reduce((w, t) => Math.max(w, textWidthCh(t)), 0);
+    const ch =
+      c.kind === 'number' ? Math.max(header, widest) : c.kind === 'bar' ? Math.max(header, widest + BAR_ROOM_CH) : Math.max(header, LIST_TEXT_MIN_CH);
+    totalCh += ch;
+    const min = `calc(${ch}ch + ${paddingPx}px)`;
+    return c.kind === 'number' ? min : `minmax(${min}, ${c.grow ?? (c.kind === 'text' ? 3 : 2)}fr)`;
+  });
+  return { columns: tracks.join(' '), minWidth: `calc(${round(totalCh)}ch + ${columns.length * paddingPx}px)` };
 }
 
 /** Widest-value templates for the formatters in format.ts. */

@@ -3,10 +3,13 @@
  * row on the left to its row on the right. Used for predicted vs ideal (detail) and run A vs run B
  * (movement). Rows have a fixed height so the line geometry is a pure function of positions.
  */
+import { fittedTemplate } from '../model/columnLayout';
 import { lineSegments, segmentPath, type OrderLink } from '../model/orderLines';
 import { clear, el } from './dom';
 
 export const ORDER_ROW_HEIGHT = 22;
+/** A cell's horizontal padding (styles.css: .gl-order-row > span, 0 4px). */
+const ORDER_CELL_PADDING_PX = 8;
 const SVG_NS = 'http://www.w3.org/2000/svg';
 
 export interface OrderCell {
@@ -34,6 +37,17 @@ export interface OrderListSpec {
 
 export function renderOrderList(spec: OrderListSpec, onPick: (item: string) => void): HTMLElement {
   const list = el('div', { id: spec.id, className: 'gl-order', attrs: { role: 'table', 'aria-label': `${spec.label} (arrow keys select an item)`, tabindex: 0 } });
+  // Columns fitted to every text shown, so positions, scores and contributions are never cut.
+  const layout = fittedTemplate(
+    spec.headers.map((h, i) => ({
+      header: h.text,
+      texts: spec.rows.map((r) => r.cells[i]?.text ?? ''),
+      kind: h.numeric ? 'number' : spec.rows.some((r) => r.cells[i]?.bar !== undefined) ? 'bar' : 'text',
+    })),
+    ORDER_CELL_PADDING_PX,
+  );
+  list.style.setProperty('--gl-order-cols', layout.columns);
+  list.style.setProperty('--gl-order-min', layout.minWidth);
   const head = el('div', { className: 'gl-order-head', attrs: { role: 'row' } });
   for (const h of spec.headers) head.appendChild(el('span', { text: h.text, title: h.title, className: h.numeric ? 'num' : undefined, attrs: { role: 'columnheader' } }));
   list.appendChild(head);

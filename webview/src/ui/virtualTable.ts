@@ -153,6 +153,7 @@ export class VirtualTable<Row> {
     const left = this.layout.stickyLeft[column];
     if (left === undefined) return;
     cell.classList.add('sticky');
+    if (this.layout.stickyLeft[column + 1] === undefined) cell.classList.add('sticky-edge');
     cell.style.left = left;
   }
 
