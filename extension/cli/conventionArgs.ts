@@ -39,7 +39,7 @@ export const conventionHelp = `Input:
   --columns ROLES       which column plays which role, e.g. query=sid,item=pid,label=grade,score=p
   --judgments FILE      graded judgments (qrels: query 0 item grade) for a run file
   --scores FILE         one score per line, for an SVMlight file
-  --threads N           parser threads for large text files (default: chosen from the file size)
+  --threads N           threads for reading large text files and scoring large dumps (default: from the size)
 Metrics and conventions:
   --metrics LIST        comma-separated; default ${DEFAULT_METRICS}
   --gain G              exponential (2^g-1, default) | linear (g) | map:0=0,1=1,2=3,3=7
