@@ -10,7 +10,7 @@ import { RowColumns } from './columns';
 import type { ReadOptions } from './index';
 import { describeNonNumberText, parseNumberText } from './numbers';
 import { LIST_ROLE_NAMES, resolveRoles, type ResolvedRoles } from './roles';
-import { pumpText, type RecordSink } from './source';
+import { LineSink, pumpText } from './source';
 
 type Json = Record<string, unknown>;
 
@@ -22,35 +22,27 @@ interface Shape {
 }
 
 export async function readJsonLines(path: string, options: ReadOptions): Promise<RankedDump> {
-  const sink = new JsonLinesSink(path, options);
-  const stamp = await pumpText(path, sink, { signal: options.signal, onProgress: options.onProgress });
-  const rows = sink.rows;
+  const parser = new JsonLinesParser(path, options);
+  const lines = new LineSink((buf, start, end, line, offset) => parser.acceptLine(buf, start, end, line, offset));
+  const stamp = await pumpText(path, lines, { signal: options.signal, onProgress: options.onProgress });
+  const rows = parser.rows;
   if (rows === undefined || rows.count === 0) throw new InputError('at least one row in the JSON Lines file (the file is empty)', path);
   rows.countGaps();
   return rows.finish(path, 'jsonl', stamp);
 }
 
-class JsonLinesSink implements RecordSink {
+class JsonLinesParser {
   rows: RowColumns | undefined;
   private shape: Shape | undefined;
-  private line = 1;
+  /** Line being parsed, for error messages and each row's line. */
+  private line = 0;
 
   constructor(private readonly file: string, private readonly options: ReadOptions) {}
 
-  feed(buf: Buffer, start: number, end: number, base: number, final: boolean): number {
-    let pos = start;
-    while (pos < end) {
-      let lineEnd = buf.indexOf(10, pos);
-      if (lineEnd < 0 || lineEnd >= end) {
-        if (!final) break;
-        lineEnd = end;
-      }
-      const text = buf.toString('utf8', pos, lineEnd).trim();
-      if (text.length > 0) this.storeLine(text, base + pos);
-      pos = lineEnd + 1;
-      this.line++;
-    }
-    return Math.min(pos, end);
+  acceptLine(buf: Buffer, start: number, end: number, line: number, offset: number): void {
+    this.line = line;
+    const text = buf.toString('utf8', start, end).trim();
+    if (text.length > 0) this.storeLine(text, offset);
   }
 
   private storeLine(text: string, offset: number): void {
