@@ -20,9 +20,8 @@ export interface SignificanceView {
   readonly adjustedP: MaybeNumber;
 }
 
-export interface CompareMetricRow {
-  readonly key: string;
-  readonly label: string;
+/** Paired means over a set of common queries, and how many queries B won, tied and lost. */
+export interface PairedOutcome {
   readonly meanA: MaybeNumber;
   readonly meanB: MaybeNumber;
   /** meanB − meanA. */
@@ -30,6 +29,11 @@ export interface CompareMetricRow {
   readonly wins: number;
   readonly ties: number;
   readonly losses: number;
+}
+
+export interface CompareMetricRow extends PairedOutcome {
+  readonly key: string;
+  readonly label: string;
   readonly tests: readonly SignificanceView[];
   /** 95% interval of the mean delta, when computed. */
   readonly intervalLow: MaybeNumber;
@@ -133,15 +137,9 @@ export interface CompareSegmentsParams {
   readonly metric?: string;
 }
 
-export interface CompareSegmentRow {
+export interface CompareSegmentRow extends PairedOutcome {
   readonly value: string;
   readonly queries: number;
-  readonly meanA: MaybeNumber;
-  readonly meanB: MaybeNumber;
-  readonly delta: MaybeNumber;
-  readonly wins: number;
-  readonly ties: number;
-  readonly losses: number;
 }
 
 export interface CompareSegmentTable {
