@@ -4,22 +4,7 @@
  * Every session is keyed: one open editor or compare panel = one session held in worker memory.
  */
 import type { Conventions } from '../engine/metrics/conventions';
-import type {
-  CompareOverviewModel,
-  ComparePage,
-  ComparePageParams,
-  CompareSegmentTable,
-  CompareSegmentsParams,
-  MovementParams,
-  MovementView,
-  OverviewModel,
-  QueryDetailParams,
-  QueryDetailView,
-  QueryPage,
-  QueryPageParams,
-  SegmentTable,
-  SegmentsParams,
-} from './messages';
+import type { CompareOverviewModel, OverviewModel, QueryDetailParams, ViewRequests } from './messages';
 import type { CancelEnvelope, RequestEnvelope, ResponseEnvelope } from './request';
 
 /** How to read one dump; mirrors the readers' options. */
@@ -77,14 +62,17 @@ export interface HeadlineResult {
 
 type Keyed<T> = T & { readonly session: string };
 
+/** A webview request the host passes on unchanged but for the session it belongs to. */
+type Forwarded<M extends keyof ViewRequests> = { params: Keyed<ViewRequests[M]['params']>; result: ViewRequests[M]['result'] };
+
 export type WorkerRequests = {
   load: { params: LoadParams; result: OverviewModel };
   loadCompare: { params: LoadCompareParams; result: CompareOverviewModel };
   /** Read + evaluate without keeping the dump (tree view); freed at once. */
   headline: { params: HeadlineParams; result: HeadlineResult };
   unload: { params: { readonly session: string }; result: { readonly unloaded: boolean } };
-  queryPage: { params: Keyed<QueryPageParams>; result: QueryPage };
-  queryDetail: { params: Keyed<QueryDetailParams>; result: QueryDetailView };
+  queryPage: Forwarded<'queryPage'>;
+  queryDetail: Forwarded<'queryDetail'>;
   /** The raw JSON of one query's rows and metric values (for the clipboard). */
   queryJson: { params: Keyed<QueryDetailParams>; result: { readonly json: string } };
   /** Line (and whether it is meaningful) of one row, for "reveal in file". */
@@ -92,10 +80,10 @@ export type WorkerRequests = {
     params: Keyed<{ readonly row: number; readonly run?: 'a' | 'b' }>;
     result: { readonly line: number; readonly offset: number; readonly path: string };
   };
-  segments: { params: Keyed<SegmentsParams>; result: SegmentTable };
-  comparePage: { params: Keyed<ComparePageParams>; result: ComparePage };
-  queryMovement: { params: Keyed<MovementParams>; result: MovementView };
-  compareSegments: { params: Keyed<CompareSegmentsParams>; result: CompareSegmentTable };
+  segments: Forwarded<'segments'>;
+  comparePage: Forwarded<'comparePage'>;
+  queryMovement: Forwarded<'queryMovement'>;
+  compareSegments: Forwarded<'compareSegments'>;
 };
 
 /** Progress while reading/evaluating, sent unsolicited by the worker. */
