@@ -1,5 +1,5 @@
 /**
- * Entry point of a score worker thread (bundled to dist/scoreWorker.js): scores one range of queries
+ * Entry point of a score worker thread (bundled to dist/scoreWorker.js): scores chunks of queries
  * into the shared per-query columns in workerData and posts back its counts.
  */
 import { parentPort, workerData } from 'node:worker_threads';
@@ -7,7 +7,7 @@ import { runScoreRangeTask, type ScoreRangeTask } from '../engine/evaluate/paral
 
 const port = parentPort!;
 try {
-  port.postMessage({ tally: runScoreRangeTask(workerData as ScoreRangeTask) });
+  port.postMessage({ tally: runScoreRangeTask(workerData as ScoreRangeTask, () => port.postMessage({ claimed: true })) });
 } catch (err) {
   port.postMessage({ failure: err instanceof Error ? err.stack ?? err.message : String(err) });
 }

@@ -156,49 +156,71 @@ export type ScoredColumns = Pick<RankedDump, 'item' | 'label' | 'score'> & { rea
 export function scoreQueryRange(setup: EvaluationSetup, dump: RankedDump | ScoredColumns, from: number, to: number,
   perQuery: PerQueryColumns, sensitivity: SensitivityPass | undefined,
   options: Pick<EvaluateOptions, 'signal' | 'onProgress'> = {}): RangeTally {
-  const { metrics, conventions, groups } = setup;
-  // QueryRanking reads only item, score and label.
-  const columns = dump as RankedDump;
-  const itemCount = 'itemCount' in dump ? dump.itemCount : dump.items.size;
-  const scorer = new QueryScorer(conventions, metrics, setup.gmax);
-  const ranking = new QueryRanking();
-  const seen = new SeenItems(itemCount);
   const tally = emptyTally();
-  const degenerate = tally.degenerate;
-  const values = perQuery.values;
-  const tauIndex = metrics.findIndex((m) => m.name === 'tau');
-  const skipPolicy = conventions.noRelevant === 'skip';
-  const count = to - from;
-  const step = Math.max(1, Math.min(4096, Math.ceil(count / 100)));
-
-  for (let q = from; q < to; q++) {
-    if ((q - from) % step === 0) {
-      if (options.signal?.aborted) throw new CancelledError();
-      options.onProgress?.((q - from) / count);
-    }
-    ranking.load(columns, groups.rowsOfQuery, groups.start[q]!, groups.start[q + 1]!, seen);
-    scorer.score(ranking);
-    const n = ranking.n;
-    perQuery.items[q] = n;
-    perQuery.relevant[q] = scorer.relevant;
-    for (let m = 0; m < metrics.length; m++) values[m]![q] = scorer.values[m]!;
-    degenerate.duplicateRows += ranking.duplicates;
-    degenerate.missingScoreRows += ranking.missingScores;
-    degenerate.unjudgedRows += ranking.unjudgedRows;
-    degenerate.tiedScoreRows += ranking.tiedRows;
-    if (n === 0) tally.emptyQueries++;
-    if (n === 1) degenerate.singleItemQueries++;
-    const skipped = scorer.noRelevant && skipPolicy;
-    if (scorer.noRelevant) degenerate.noRelevantQueries++;
-    perQuery.skipped[q] = skipped ? 1 : 0;
-    perQuery.inversions[q] = skipped ? NaN : scorer.pairs.discordant;
-    perQuery.inversionCost[q] = skipped ? NaN : scorer.inversionCost;
-    if (perQuery.rbpResidual) perQuery.rbpResidual[q] = skipped ? NaN : scorer.rbpResidual;
-    if (tauIndex >= 0 && !skipped && Number.isNaN(scorer.pairs.tau)) tally.tauUndefined++;
-    sensitivity?.add(ranking, scorer.grades, scorer.noRelevant, q);
-  }
-  tally.sensitivityNoRelevant = sensitivity?.noRelevantQueries ?? 0;
+  new RangeScorer(setup, dump, perQuery, sensitivity).score(from, to, tally, options);
   return tally;
+}
+
+/** Scores ranges of queries one after another with the same scratch arrays (ranges may come in any order). */
+export class RangeScorer {
+  private readonly scorer: QueryScorer;
+  private readonly ranking = new QueryRanking();
+  private readonly seen: SeenItems;
+  private readonly columns: RankedDump;
+  private readonly tauIndex: number;
+
+  constructor(
+    private readonly setup: EvaluationSetup,
+    dump: RankedDump | ScoredColumns,
+    private readonly perQuery: PerQueryColumns,
+    private readonly sensitivity: SensitivityPass | undefined,
+  ) {
+    // QueryRanking reads only item, score and label.
+    this.columns = dump as RankedDump;
+    this.seen = new SeenItems('itemCount' in dump ? dump.itemCount : dump.items.size);
+    this.scorer = new QueryScorer(setup.conventions, setup.metrics, setup.gmax);
+    this.tauIndex = setup.metrics.findIndex((m) => m.name === 'tau');
+  }
+
+  /** Adds queries [from, to) to `tally`. */
+  score(from: number, to: number, tally: RangeTally, options: Pick<EvaluateOptions, 'signal' | 'onProgress'> = {}): void {
+    const { metrics, conventions, groups } = this.setup;
+    const { scorer, ranking, seen, columns, perQuery, sensitivity, tauIndex } = this;
+    const degenerate = tally.degenerate;
+    const values = perQuery.values;
+    const skipPolicy = conventions.noRelevant === 'skip';
+    const count = to - from;
+    const step = Math.max(1, Math.min(4096, Math.ceil(count / 100)));
+    const noRelevantBefore = sensitivity?.noRelevantQueries ?? 0;
+
+    for (let q = from; q < to; q++) {
+      if ((q - from) % step === 0) {
+        if (options.signal?.aborted) throw new CancelledError();
+        options.onProgress?.((q - from) / count);
+      }
+      ranking.load(columns, groups.rowsOfQuery, groups.start[q]!, groups.start[q + 1]!, seen);
+      scorer.score(ranking);
+      const n = ranking.n;
+      perQuery.items[q] = n;
+      perQuery.relevant[q] = scorer.relevant;
+      for (let m = 0; m < metrics.length; m++) values[m]![q] = scorer.values[m]!;
+      degenerate.duplicateRows += ranking.duplicates;
+      degenerate.missingScoreRows += ranking.missingScores;
+      degenerate.unjudgedRows += ranking.unjudgedRows;
+      degenerate.tiedScoreRows += ranking.tiedRows;
+      if (n === 0) tally.emptyQueries++;
+      if (n === 1) degenerate.singleItemQueries++;
+      const skipped = scorer.noRelevant && skipPolicy;
+      if (scorer.noRelevant) degenerate.noRelevantQueries++;
+      perQuery.skipped[q] = skipped ? 1 : 0;
+      perQuery.inversions[q] = skipped ? NaN : scorer.pairs.discordant;
+      perQuery.inversionCost[q] = skipped ? NaN : scorer.inversionCost;
+      if (perQuery.rbpResidual) perQuery.rbpResidual[q] = skipped ? NaN : scorer.rbpResidual;
+      if (tauIndex >= 0 && !skipped && Number.isNaN(scorer.pairs.tau)) tally.tauUndefined++;
+      sensitivity?.add(ranking, scorer.grades, scorer.noRelevant, q);
+    }
+    tally.sensitivityNoRelevant += (sensitivity?.noRelevantQueries ?? 0) - noRelevantBefore;
+  }
 }
 
 /** Means, warnings and sensitivity rows from filled per-query columns and the summed tallies. */

@@ -1,6 +1,7 @@
 /**
- * Scores a large dump on several threads: the queries are cut into contiguous ranges of about equal
- * rows, this thread scores the first range while score workers fill the others, all writing into
+ * Scores a large dump on several threads: the queries are cut into contiguous chunks of about equal
+ * rows, and this thread and the score workers each claim the next unclaimed chunk until none is left
+ * (so a thread slowed by a busy machine or a late start simply takes fewer), all writing into
  * per-query columns in shared memory. Means are then taken over the merged columns in query order,
  * and the sensitivity means over recorded per-query values, so the result is bit-identical to
  * evaluate() on one thread (partial sums added together would round differently).
@@ -19,8 +20,9 @@ import {
   evaluate,
   finishEvaluation,
   newSensitivityPass,
+  emptyTally,
   prepareEvaluation,
-  scoreQueryRange,
+  RangeScorer,
   type EvaluateOptions,
   type EvaluationSetup,
   type RangeTally,
@@ -32,6 +34,13 @@ import type { Evaluation, PerQueryColumns } from './types';
 /** Below this many rows starting a worker costs more than it saves. */
 const PARALLEL_FROM_ROWS = 500_000;
 const MAX_THREADS = 4;
+
+export const scoringTuning = {
+  /** Chunks per thread: enough that a slowed thread leaves little for the others to wait on. */
+  chunksPerThread: 16,
+  /** Tests only: this thread claims chunks only after every worker has claimed one, so workers surely take part. */
+  workersFirst: false,
+};
 
 declare const __dirname: string | undefined;
 let workerScript: string | undefined = typeof __dirname === 'string' ? join(__dirname, 'scoreWorker.js') : undefined;
@@ -46,12 +55,14 @@ export interface ParallelEvaluateOptions extends EvaluateOptions {
   threads?: number;
 }
 
-/** One range of queries for a score worker. Typed arrays on SharedArrayBuffers are shared, not copied. */
+/** A score worker's job. Typed arrays on SharedArrayBuffers are shared, not copied. */
 export interface ScoreRangeTask {
   readonly setup: EvaluationSetup;
   readonly columns: ScoredColumns;
-  readonly from: number;
-  readonly to: number;
+  /** Query chunk starts; the last entry is the query count. */
+  readonly bounds: readonly number[];
+  /** next[0]: the next chunk to claim (Atomics.add). */
+  readonly next: Int32Array;
   readonly perQuery: PerQueryColumns;
   readonly sensitivity?: SensitivityColumns;
 }
@@ -74,21 +85,18 @@ export async function evaluateInParallel(dump: RankedDump, metrics: readonly Met
     entered: Array.from({ length: sensitivity.variantCount }, () => new Uint8Array(shared(setup.queryCount))),
   };
   if (recorded) sensitivity!.recordInto(recorded);
-  const bounds = splitByRows(setup.groups.start, threads);
+  const bounds = splitByRows(setup.groups.start, Math.min(setup.queryCount, threads * scoringTuning.chunksPerThread));
+  const next = new Int32Array(shared(4));
   const columns: ScoredColumns = { item: dump.item, label: dump.label, score: dump.score, itemCount: dump.items.size };
-  const tasks: ScoreRangeTask[] = bounds.slice(1, -1).map((from, k) => ({
-    setup, columns, from, to: bounds[k + 2]!, perQuery, sensitivity: recorded,
-  }));
-  const running = runWorkers(workerScript, tasks, options.signal);
-  // Keep a rejection from going unhandled while this thread is busy with its own range.
+  const task: ScoreRangeTask = { setup, columns, bounds, next, perQuery, sensitivity: recorded };
+  const running = runWorkers(workerScript, Array.from({ length: threads - 1 }, () => task), options.signal);
+  // Keep a rejection from going unhandled while this thread is busy with its own chunks.
   running.catch(() => undefined);
-  const share = (bounds[1]! - bounds[0]!) / Math.max(1, setup.queryCount);
-  let tally: RangeTally;
+  const tally = emptyTally();
   try {
-    tally = scoreQueryRange(setup, dump, bounds[0]!, bounds[1]!, perQuery, sensitivity, {
-      signal: options.signal,
-      onProgress: options.onProgress && ((f) => options.onProgress!(f * share)),
-    });
+    if (scoringTuning.workersFirst) await running.started;
+    const scorer = new RangeScorer(setup, dump, perQuery, sensitivity);
+    claimChunks(scorer, bounds, next, tally, options);
   } catch (err) {
     running.stop();
     throw err;
@@ -121,11 +129,26 @@ export function splitByRows(start: Uint32Array, parts: number): number[] {
   return bounds;
 }
 
-/** Scores one task's range on this thread (the score worker's body). */
-export function runScoreRangeTask(task: ScoreRangeTask): RangeTally {
+/** Scores chunks until none is left (the score worker's body); `onFirstClaim` runs once a chunk is taken. */
+export function runScoreRangeTask(task: ScoreRangeTask, onFirstClaim?: () => void): RangeTally {
   const sensitivity = task.sensitivity ? newSensitivityPass(task.setup) : undefined;
   if (sensitivity && task.sensitivity) sensitivity.recordInto(task.sensitivity);
-  return scoreQueryRange(task.setup, task.columns, task.from, task.to, task.perQuery, sensitivity);
+  const tally = emptyTally();
+  claimChunks(new RangeScorer(task.setup, task.columns, task.perQuery, sensitivity), task.bounds, task.next, tally, {}, onFirstClaim);
+  return tally;
+}
+
+function claimChunks(scorer: RangeScorer, bounds: readonly number[], next: Int32Array, tally: RangeTally,
+  options: Pick<EvaluateOptions, 'signal' | 'onProgress'>, onFirstClaim?: () => void): void {
+  const chunks = bounds.length - 1;
+  for (;;) {
+    const c = Atomics.add(next, 0, 1);
+    if (c >= chunks) return;
+    onFirstClaim?.();
+    onFirstClaim = undefined;
+    options.onProgress?.(c / chunks);
+    scorer.score(bounds[c]!, bounds[c + 1]!, tally, { signal: options.signal });
+  }
 }
 
 /** groupByQuery's counting sort, written straight into shared memory so workers read it without a copy. */
@@ -155,11 +178,15 @@ function unshared(p: PerQueryColumns): PerQueryColumns {
   };
 }
 
-type Running = Promise<RangeTally[]> & { stop(): void };
+type Running = Promise<RangeTally[]> & { stop(): void; started: Promise<void> };
 
 function runWorkers(script: string, tasks: ScoreRangeTask[], signal: AbortSignal | undefined): Running {
   const workers: Worker[] = [];
   let stop = () => undefined as void;
+  let markStarted = () => undefined as void;
+  let unstarted = tasks.length;
+  const started = new Promise<void>((resolve) => (markStarted = resolve));
+  if (unstarted === 0) markStarted();
   const promise = new Promise<RangeTally[]>((resolve, reject) => {
     const results: (RangeTally | undefined)[] = tasks.map(() => undefined);
     let pending = tasks.length;
@@ -167,6 +194,7 @@ function runWorkers(script: string, tasks: ScoreRangeTask[], signal: AbortSignal
     const finish = (err?: Error) => {
       if (settled) return;
       settled = true;
+      markStarted();
       signal?.removeEventListener('abort', onAbort);
       for (const w of workers) void w.terminate();
       if (err) reject(err);
@@ -178,8 +206,10 @@ function runWorkers(script: string, tasks: ScoreRangeTask[], signal: AbortSignal
     tasks.forEach((task, k) => {
       const worker = new Worker(script, { workerData: task });
       workers.push(worker);
-      worker.on('message', (msg: { tally?: RangeTally; failure?: string }) => {
-        if (msg.tally !== undefined) {
+      worker.on('message', (msg: { claimed?: boolean; tally?: RangeTally; failure?: string }) => {
+        if (msg.claimed) {
+          if (--unstarted === 0) markStarted();
+        } else if (msg.tally !== undefined) {
           results[k] = msg.tally;
           if (--pending === 0) finish();
         } else finish(new Error(`score worker failed: ${msg.failure}`));
@@ -190,5 +220,5 @@ function runWorkers(script: string, tasks: ScoreRangeTask[], signal: AbortSignal
       });
     });
   });
-  return Object.assign(promise, { stop: () => stop() });
+  return Object.assign(promise, { stop: () => stop(), started });
 }
