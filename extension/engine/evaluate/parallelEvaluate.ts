@@ -7,7 +7,7 @@
  * evaluate() on one thread (partial sums added together would round differently).
  */
 import { existsSync } from 'node:fs';
-import { availableParallelism } from 'node:os';
+import { availableParallelism, loadavg } from 'node:os';
 import { join } from 'node:path';
 import { Worker } from 'node:worker_threads';
 import { CancelledError } from '../errors';
@@ -54,7 +54,7 @@ export function setScoreWorkerScript(path: string | undefined): void {
 }
 
 export interface ParallelEvaluateOptions extends EvaluateOptions {
-  /** Scoring threads including this one; default: 1 below PARALLEL_FROM_ROWS rows, else the cores (at most 4). */
+  /** Scoring threads including this one; default: 1 below PARALLEL_FROM_ROWS rows, else the free cores (at most 4). */
   threads?: number;
 }
 
@@ -70,9 +70,16 @@ export interface ScoreRangeTask {
   readonly sensitivity?: SensitivityColumns;
 }
 
+/**
+ * Explicit threads win. Otherwise only the cores other programs leave free (by the 1-minute load average)
+ * are used: a second scoring thread costs a fifth more CPU in all (a cold start, the merge), so on a core
+ * that is busy anyway it made eval slower in our measurements rather than faster.
+ */
 export function scoringThreads(rows: number, threads: number | undefined): number {
   if (threads !== undefined) return Math.max(1, Math.min(16, Math.floor(threads)));
-  return rows < PARALLEL_FROM_ROWS ? 1 : Math.min(MAX_THREADS, availableParallelism());
+  if (rows < PARALLEL_FROM_ROWS) return 1;
+  const freeCores = Math.floor(availableParallelism() - loadavg()[0]! + 0.5);
+  return Math.max(1, Math.min(MAX_THREADS, freeCores));
 }
 
 export async function evaluateInParallel(dump: RankedDump, metrics: readonly MetricSpec[], conventions: Conventions,
