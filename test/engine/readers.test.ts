@@ -139,6 +139,13 @@ describe('bad input names the file, the line and what was expected', () => {
     expect(err.line).toBe(1);
   });
 
+  it('plain item and doc headers count as the item column, and both at once are ambiguous', async () => {
+    const dump = await readDump(tmp.file('plain-item.csv', 'query,item,grade,score\nq1,a,1,0.5\nq1,b,0,0.3\n'));
+    expect([dump.items.get(dump.item[0]!), dump.items.get(dump.item[1]!)]).toEqual(['a', 'b']);
+    const err = await rejection(readDump(tmp.file('item-and-doc.csv', 'query,item,doc,grade,score\nq,a,b,1,2\n')));
+    expect(err.message).toMatch(/'item' and 'doc' both fit/);
+  });
+
   it('an explicit column that does not exist', async () => {
     const err = await rejection(readDump(tmp.file('nocol.csv', STORE_CSV), { columns: { score: 'p' } }));
     expect(err.message).toMatch(/a column named 'p' for the score/);

@@ -53,7 +53,7 @@ export async function readDump(path: string, options: ReadOptions = {}): Promise
       return readJsonLines(path, options);
     case 'run':
       if (options.judgments === undefined) {
-        throw new InputError('a judgments file (query unused item grade) to go with the run file', path);
+        throw new InputError('a judgments file (query unused item grade) to go with the run file (on the command line: --judgments FILE)', path);
       }
       return readRunFile(path, options.judgments, options);
     case 'svmlight':

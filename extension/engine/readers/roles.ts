@@ -17,7 +17,7 @@ export const ROLES: readonly Role[] = ['query', 'item', 'label', 'score', 'rank'
 /** Header names recognised per role, compared after `normaliseName`. Common practice in exported dumps. */
 export const ROLE_NAMES: Readonly<Record<Role, readonly string[]>> = {
   query: ['query_id', 'qid', 'query', 'session_id', 'user_id'],
-  item: ['item_id', 'doc_id', 'docno', 'product_id'],
+  item: ['item_id', 'doc_id', 'docno', 'product_id', 'item', 'doc', 'document_id'],
   label: ['label', 'relevance', 'rel', 'grade', 'rating'],
   score: ['score', 'prediction', 'pred'],
   rank: ['rank'],
