@@ -75,6 +75,7 @@ export function parseSimpleRecords(state: FastState, buf: Buffer, pos: number, l
   }
   previousStart.fill(-1);
   let repeated = false;
+  const words = new DataView(buf.buffer, buf.byteOffset, buf.byteLength);
   while (pos < limit) {
     let c = buf[pos]!;
     if (c === LF) {
@@ -100,8 +101,11 @@ export function parseSimpleRecords(state: FastState, buf: Buffer, pos: number, l
         // directly, which needs neither the hash nor a look at the pool.
         const from = previousStart[f]!;
         const length = previousEnd[f]! - from;
+        // Four bytes at a time, then the rest one by one, up to the shorter of the field and the buffer.
+        const stop = length < limit - pos ? length : limit - pos;
         let i = 0;
-        while (i < length && pos + i < limit && buf[pos + i] === buf[from + i]) i++;
+        while (i + 4 <= stop && words.getInt32(pos + i) === words.getInt32(from + i)) i += 4;
+        while (i < stop && buf[pos + i] === buf[from + i]) i++;
         if (i === length) {
           const after = pos + length;
           c = after < limit ? buf[after]! : 0;
