@@ -304,7 +304,12 @@ function remapPools(rows: RowColumns, parts: Extract<RangeResult, { kind: 'rows'
     flush();
     return ids;
   };
-  const identity = (n: number) => Uint32Array.from({ length: n }, (_, i) => i);
+  // A plain loop: Uint32Array.from with a map callback takes about ten times as long for a million ids.
+  const identity = (n: number) => {
+    const ids = new Uint32Array(n);
+    for (let i = 0; i < n; i++) ids[i] = i;
+    return ids;
+  };
   const first = parts[0]!;
   rows.queries = BytePool.fromState(first.queries);
   rows.items = BytePool.fromState(first.items);
