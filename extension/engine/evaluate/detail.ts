@@ -7,7 +7,7 @@ import type { QueryGroups } from '../model/groups';
 import { DEFAULT_CONVENTIONS, type Conventions, type MetricSpec } from '../metrics/conventions';
 import { discountTable } from '../metrics/discount';
 import { parseMetricList } from '../metrics/parse';
-import { checkConventions } from './evaluate';
+import { checkConventions, type GradeRange } from './evaluate';
 import { QueryRanking, SeenItems } from './ranking';
 import { noRelevantValue, QueryScorer } from './scorer';
 import type { InvertedPair, PositionRow, QueryDetail } from './types';
@@ -25,10 +25,7 @@ export interface QueryDetailOptions {
   gradeRange?: GradeRange;
 }
 
-export interface GradeRange {
-  readonly lowest: number;
-  readonly highest: number;
-}
+export type { GradeRange };
 
 export function queryDetail(
   dump: RankedDump,
@@ -39,7 +36,7 @@ export function queryDetail(
 ): QueryDetail {
   const at = Number.isFinite(k) ? `@${k}` : '';
   const metrics = options.metrics ?? parseMetricList(`ndcg${at},dcg${at},err${at},ap,rr,p${at},r${at},rbp,tau`);
-  const gmax = options.gradeRange ? checkKnownRange(dump, options.gradeRange, metrics, conventions) : checkConventions(dump, metrics, conventions);
+  const gmax = checkConventions(dump, metrics, conventions, options.gradeRange);
   const rows = rowsOf(dump, queryId, options.groups);
   const ranking = new QueryRanking();
   ranking.load(dump, rows, 0, rows.length, new SeenItems(dump.items.size));
@@ -117,16 +114,6 @@ export function queryDetail(
     invertedPairsTotal: scorer.pairs.discordant,
     values,
   };
-}
-
-/**
- * checkConventions on a two-row stand-in whose grades are the known lowest and highest: the stand-in has
- * the same grade range as the dump, so the checks, their messages and ERR's g_max are the same, and the
- * rules stay in one place.
- */
-function checkKnownRange(dump: RankedDump, range: GradeRange, metrics: readonly MetricSpec[], conventions: Conventions): number {
-  const standIn: RankedDump = { ...dump, rowCount: 2, label: Float64Array.of(range.lowest, range.highest) };
-  return checkConventions(standIn, metrics, conventions);
 }
 
 function rowsOf(dump: RankedDump, queryId: number, groups?: QueryGroups): Uint32Array {

@@ -21,8 +21,13 @@ export interface EvaluateOptions {
   sensitivity?: boolean;
 }
 
+export interface GradeRange {
+  readonly lowest: number;
+  readonly highest: number;
+}
+
 /** Highest and lowest judged grade of the whole dump (0 and 0 when nothing is judged). */
-export function gradeRange(dump: RankedDump): { lowest: number; highest: number } {
+export function gradeRange(dump: RankedDump): GradeRange {
   let lowest = Infinity;
   let highest = -Infinity;
   let unjudged = false;
@@ -41,12 +46,15 @@ export function gradeRange(dump: RankedDump): { lowest: number; highest: number 
   return { lowest, highest };
 }
 
-/** Checks the conventions against the data once, before any query is scored; returns ERR's g_max. */
-export function checkConventions(dump: RankedDump, metrics: readonly MetricSpec[], c: Conventions): number {
-  return checkAgainstRange(gradeRange(dump), metrics, c, dump.path);
+/**
+ * Checks the conventions against the data once, before any query is scored; returns ERR's g_max.
+ * Callers that keep the dump's grade range from load time pass it to skip the scan over every row.
+ */
+export function checkConventions(dump: RankedDump, metrics: readonly MetricSpec[], c: Conventions, range: GradeRange = gradeRange(dump)): number {
+  return checkAgainstRange(range, metrics, c, dump.path);
 }
 
-function checkAgainstRange(range: { lowest: number; highest: number }, metrics: readonly MetricSpec[], c: Conventions, path: string): number {
+function checkAgainstRange(range: GradeRange, metrics: readonly MetricSpec[], c: Conventions, path: string): number {
   const { lowest, highest } = range;
   checkGainApplies(c.gain, lowest);
   if (!(c.rbpPersistence > 0 && c.rbpPersistence < 1)) {
