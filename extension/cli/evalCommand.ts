@@ -5,6 +5,7 @@ import { stat } from 'node:fs/promises';
 import { resolve } from 'node:path';
 import { parseArgs } from 'node:util';
 import { InputError } from '../engine/errors';
+import { CoreMeter } from '../engine/evaluate/coreMeter';
 import { evaluateInParallel } from '../engine/evaluate/parallelEvaluate';
 import { readDump } from '../engine/readers/index';
 import { formatReport, REPORT_FORMATS, type ReportFormat } from '../engine/report/index';
@@ -58,6 +59,8 @@ export async function runEval(argv: string[], io: CliIO): Promise<number> {
   const size = (await stat(path)).size;
   const progress = io.isTTY && size >= PROGRESS_FROM_BYTES ? progressLine(io, source) : undefined;
   const started = performance.now();
+  // Measures what other programs do during the read, to decide how many threads may score.
+  const meter = new CoreMeter();
   try {
     const dump = await readDump(path, { ...setup.read, onProgress: progress?.reading });
     const read = performance.now();
@@ -67,6 +70,7 @@ export async function runEval(argv: string[], io: CliIO): Promise<number> {
       onProgress: progress?.scoring,
       sensitivity,
       threads: setup.read.threads,
+      otherBusyCores: meter.otherBusyCores(),
     });
     const scored = performance.now();
     progress?.done();

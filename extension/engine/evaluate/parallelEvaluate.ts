@@ -56,6 +56,11 @@ export function setScoreWorkerScript(path: string | undefined): void {
 export interface ParallelEvaluateOptions extends EvaluateOptions {
   /** Scoring threads including this one; default: 1 below PARALLEL_FROM_ROWS rows, else the free cores (at most 4). */
   threads?: number;
+  /**
+   * Cores other programs are keeping busy (a CoreMeter started before the read measures it best);
+   * default: the 1-minute load average.
+   */
+  otherBusyCores?: number;
 }
 
 /** A score worker's job. Typed arrays on SharedArrayBuffers are shared, not copied. */
@@ -71,20 +76,20 @@ export interface ScoreRangeTask {
 }
 
 /**
- * Explicit threads win. Otherwise only the cores other programs leave free (by the 1-minute load average)
- * are used: a second scoring thread costs a fifth more CPU in all (a cold start, the merge), so on a core
- * that is busy anyway it made eval slower in our measurements rather than faster.
+ * Explicit threads win. Otherwise only the cores other programs leave free are used: a second scoring
+ * thread costs a fifth more CPU in all (a cold start, the merge), so on a core that is busy anyway it
+ * made eval slower in our measurements rather than faster.
  */
-export function scoringThreads(rows: number, threads: number | undefined): number {
+export function scoringThreads(rows: number, threads: number | undefined, otherBusyCores: number = loadavg()[0]!): number {
   if (threads !== undefined) return Math.max(1, Math.min(16, Math.floor(threads)));
   if (rows < PARALLEL_FROM_ROWS) return 1;
-  const freeCores = Math.floor(availableParallelism() - loadavg()[0]! + 0.5);
+  const freeCores = Math.floor(availableParallelism() - otherBusyCores + 0.5);
   return Math.max(1, Math.min(MAX_THREADS, freeCores));
 }
 
 export async function evaluateInParallel(dump: RankedDump, metrics: readonly MetricSpec[], conventions: Conventions,
   options: ParallelEvaluateOptions = {}): Promise<Evaluation> {
-  const threads = Math.min(scoringThreads(dump.rowCount, options.threads), dump.queries.size);
+  const threads = Math.min(scoringThreads(dump.rowCount, options.threads, options.otherBusyCores), dump.queries.size);
   if (threads <= 1 || workerScript === undefined || !existsSync(workerScript)) return evaluate(dump, metrics, conventions, options);
   const setup = prepareEvaluation(dump, metrics, conventions, { ...options, groups: options.groups ?? sharedGroups(dump) });
   const shared = (bytes: number) => new SharedArrayBuffer(bytes);
