@@ -26,8 +26,12 @@ export interface GradeRange {
   readonly highest: number;
 }
 
-/** Highest and lowest judged grade of the whole dump (0 and 0 when nothing is judged). */
+/**
+ * Highest and lowest judged grade of the whole dump, unjudged rows counting as grade 0 (0 and 0 when
+ * nothing is judged). Readers note it while reading; a dump built some other way is scanned.
+ */
 export function gradeRange(dump: RankedDump): GradeRange {
+  if (dump.notes.gradeRange !== undefined) return dump.notes.gradeRange;
   let lowest = Infinity;
   let highest = -Infinity;
   let unjudged = false;
@@ -38,7 +42,6 @@ export function gradeRange(dump: RankedDump): GradeRange {
     if (g > highest) highest = g;
     if (g !== g) unjudged = true;
   }
-  // Unjudged rows count as grade 0.
   if (unjudged || lowest === Infinity) {
     lowest = Math.min(lowest, 0);
     highest = Math.max(highest, 0);

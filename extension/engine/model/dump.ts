@@ -35,6 +35,11 @@ export interface ReaderNotes {
   judgedQueriesWithoutRun: number;
   /** Free-form, human-readable notes (for example "ranked by score; rank column ignored"). */
   messages: string[];
+  /**
+   * Lowest and highest judged grade, with unjudged rows counted as grade 0 (0 and 0 when nothing is
+   * judged). Readers fill it in the same pass that counts gaps, so scoring need not scan every row again.
+   */
+  gradeRange?: { readonly lowest: number; readonly highest: number };
 }
 
 export interface RankedDump {

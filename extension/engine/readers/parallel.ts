@@ -12,7 +12,7 @@ import { Worker } from 'node:worker_threads';
 import { CancelledError, InputError } from '../errors';
 import { BytePool, hashBytes, type BytePoolState } from '../model/bytePool';
 import type { RankedDump } from '../model/dump';
-import { RowColumns, type SharedColumns } from './columns';
+import { addSummaries, RowColumns, type SharedColumns } from './columns';
 import { DelimitedParser } from './delimited';
 import type { ReadOptions } from './index';
 import type { RangeResult, RangeTask } from './rangeParse';
@@ -59,12 +59,13 @@ export async function readParallelDelimited(path: string, format: 'csv' | 'tsv',
     throw new InputError(e.expected, e.file, e.line === undefined ? undefined : e.line + lineOffsets[failed]!, e.found);
   }
   const parts = results.splice(0) as Extract<RangeResult, { kind: 'rows' }>[];
+  const gaps = addSummaries(parts.map((p) => p.gaps));
   const rows = parts.every((p) => p.inShared)
     ? compactShared(parts, slices, lineOffsets, header.parser.columns!)
     : merge(parts.map((p, k) => (p.inShared ? { ...p, ...viewsOf(slices[k]!, p.count) } : p)), lineOffsets, header.parser.columns!);
   if (rows.count === 0) throw new InputError('at least one data row after the header', path, 2);
   await checkUnchanged(path, stamp);
-  rows.countGaps();
+  rows.setGaps(gaps);
   options.onProgress?.(1);
   return rows.finish(path, format, stamp);
 }

@@ -6,7 +6,7 @@
  */
 import { InputError } from '../errors';
 import type { BytePoolState } from '../model/bytePool';
-import type { SharedColumns } from './columns';
+import { summariseRows, type RowSummary, type SharedColumns } from './columns';
 import { DelimitedParser } from './delimited';
 import type { ColumnRoles } from './roles';
 import { pumpRange, type RecordSink } from './source';
@@ -42,6 +42,8 @@ export type RangeResult =
       readonly queries: BytePoolState;
       readonly items: BytePoolState;
       readonly segmentPools: BytePoolState[];
+      /** Gaps and grade extremes of the range, taken here so the main thread need not scan every row. */
+      readonly gaps: RowSummary;
     }
   | { readonly kind: 'quoted' }
   | { readonly kind: 'error'; readonly expected: string; readonly file?: string; readonly line?: number; readonly found?: string };
@@ -75,6 +77,7 @@ export async function parseRange(task: RangeTask, onBytes: (done: number) => voi
     queries: rows.queries.exportState(),
     items: rows.items.exportState(),
     segmentPools: rows.segmentPools.map((p) => p.exportState()),
+    gaps: summariseRows(rows.label, rows.score, 0, n),
   };
   if (rows.inShared) {
     const none = new Uint32Array(0);
