@@ -10,7 +10,7 @@
  * line 0 and offset -1. Large quote-free CSV/TSV files are parsed by several threads; their
  * columns are then views of SharedArrayBuffers (see parallel.ts).
  */
-import { InputError } from '../errors';
+import { CancelledError, InputError } from '../errors';
 import type { DumpFormat, RankedDump } from '../model/dump';
 import { DelimitedParser } from './delimited';
 import { detectFormat } from './detect';
@@ -19,7 +19,7 @@ import { readParallelDelimited, shouldParseInParallel } from './parallel';
 import { readParquet } from './parquet';
 import type { ColumnRoles } from './roles';
 import { readRunFile } from './runFile';
-import { pumpText, statStamp, throwIfCancelled } from './source';
+import { changedSince, fileChangedError, pumpText, statStamp, throwIfCancelled } from './source';
 import { readSvmlight } from './svmlight';
 
 export { parseColumnRoles } from './roles';
@@ -44,6 +44,18 @@ export interface ReadOptions {
 
 export async function readDump(path: string, options: ReadOptions = {}): Promise<RankedDump> {
   throwIfCancelled(options.signal);
+  const before = await statStamp(path).catch(() => undefined);
+  try {
+    return await readDumpOnce(path, options);
+  } catch (err) {
+    // A file rewritten under the reader often shows up first as a broken record or a truncated
+    // stream; the rewrite is the cause to report, not the line it happened to break.
+    if (!(err instanceof CancelledError) && before !== undefined && await changedSince(path, before)) throw fileChangedError(path);
+    throw err;
+  }
+}
+
+async function readDumpOnce(path: string, options: ReadOptions): Promise<RankedDump> {
   const sniffed = await detectFormat(path, options);
   switch (sniffed.format) {
     case 'csv':

@@ -13,7 +13,7 @@ import { RowColumns } from './columns';
 import type { ReadOptions } from './index';
 import { describeNonNumberText, parseNumberText } from './numbers';
 import { resolveRoles, type ResolvedRoles } from './roles';
-import { statStamp, throwIfCancelled } from './source';
+import { fileChangedError, statStamp, throwIfCancelled } from './source';
 
 type Values = ArrayLike<unknown>;
 
@@ -66,9 +66,7 @@ export async function readParquet(path: string, directory: boolean, options: Rea
     }
   }
   const after = await stampOf(parts);
-  if (after.size !== before.size || after.mtimeMs !== before.mtimeMs) {
-    throw new InputError('the file to stay the same while it is read: the file changed while it was read; read again', path);
-  }
+  if (after.size !== before.size || after.mtimeMs !== before.mtimeMs) throw fileChangedError(path);
   if (rows === undefined || rows.count === 0) throw new InputError('at least one row in the Parquet data', path);
   rows.countGaps();
   options.onProgress?.(1);

@@ -33,10 +33,17 @@ export async function statStamp(path: string): Promise<FileStamp> {
 }
 
 export async function checkUnchanged(path: string, before: FileStamp): Promise<void> {
-  const after = await statStamp(path);
-  if (after.size !== before.size || after.mtimeMs !== before.mtimeMs) {
-    throw new InputError('the file to stay the same while it is read: the file changed while it was read; read again', path);
-  }
+  if (await changedSince(path, before)) throw fileChangedError(path);
+}
+
+/** True when the file's size or modification time differs from `before`, or it can no longer be read. */
+export async function changedSince(path: string, before: FileStamp): Promise<boolean> {
+  const after = await statStamp(path).catch(() => undefined);
+  return after === undefined || after.size !== before.size || after.mtimeMs !== before.mtimeMs;
+}
+
+export function fileChangedError(path: string): InputError {
+  return new InputError('the file to stay the same while it is read: the file changed while it was read; read again', path);
 }
 
 export function throwIfCancelled(signal: AbortSignal | undefined): void {
@@ -174,8 +181,9 @@ async function feedChunks(chunks: AsyncIterable<Buffer>, sink: RecordSink, fileS
 }
 
 async function* gunzipChunks(path: string, progress: { done: number }): AsyncGenerator<Buffer> {
-  const raw = createReadStream(path, { highWaterMark: 1 << 20 });
-  const gunzip = createGunzip({ chunkSize: Math.max(64, sourceTuning.gzipChunkBytes) });
+  const chunkSize = Math.max(64, sourceTuning.gzipChunkBytes);
+  const raw = createReadStream(path, { highWaterMark: chunkSize });
+  const gunzip = createGunzip({ chunkSize });
   raw.on('data', (d) => {
     progress.done += d.length;
   });
