@@ -62,12 +62,12 @@ export class BytePool implements StringPool {
   /**
    * Reads the first table slot and arena record for each hash, in two passes of independent loads,
    * so the processor fetches them in parallel; the following lookups then hit the cache. Returns a
-   * value only so the reads cannot be optimised away.
+   * value only so the reads cannot be optimised away. The hashes are hashes[from .. from + count).
    */
-  warm(hashes: Int32Array, count: number, records: Int32Array): number {
+  warm(hashes: Int32Array, count: number, records: Int32Array, from = 0): number {
     const table = this.table;
     const mask = this.mask;
-    for (let b = 0; b < count; b++) records[b] = table[2 * (hashes[b]! & mask)]!;
+    for (let b = 0; b < count; b++) records[b] = table[2 * (hashes[from + b]! & mask)]!;
     const arena = this.arena;
     let sum = 0;
     for (let b = 0; b < count; b++) {

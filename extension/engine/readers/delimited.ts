@@ -10,6 +10,7 @@ import { RowColumns, type SharedColumns } from './columns';
 import { describeNonNumber, parseNumber } from './numbers';
 import { resolveRoles, type ColumnRoles } from './roles';
 import type { RecordSink } from './source';
+import { SimpleRecordsKernel } from './simpleRecordsKernel';
 import { parseSimpleRecords, ROLE_ITEM, ROLE_LABEL, ROLE_QUERY, ROLE_RANK, ROLE_SCORE, ROLE_SEGMENT, type FastState } from './delimitedFast';
 
 const QUOTE = 34;
@@ -47,6 +48,8 @@ export class DelimitedParser implements RecordSink, FastState {
   readonly delimiter: number;
   private bytesSeen = 0;
   private sized = false;
+  /** The WebAssembly loop for simple records, when compiled (set with the header). */
+  private kernel: SimpleRecordsKernel | undefined;
 
   constructor(private readonly settings: DelimitedSettings, header?: { names: string[] }) {
     this.line = settings.firstLine ?? 1;
@@ -78,7 +81,7 @@ export class DelimitedParser implements RecordSink, FastState {
         }
         const limit = Math.min(lineLimit, quoteLine);
         if (pos < limit) {
-          pos = parseSimpleRecords(this, buf, pos, limit, base);
+          pos = this.kernel ? this.kernel.parse(this, buf, pos, limit, base) : parseSimpleRecords(this, buf, pos, limit, base);
           if (pos >= end) break;
         }
       }
@@ -221,6 +224,7 @@ export class DelimitedParser implements RecordSink, FastState {
     });
     this.rows = new RowColumns(roles.segments.map((i) => names[i]!), 1024, this.settings.shared);
     this.lastSegment = new Int32Array(roles.segments.length).fill(-1);
+    this.kernel = SimpleRecordsKernel.create(this.roleOf);
     if (roles.rank >= 0) {
       this.rows.notes.messages.push(this.rankStandsInForScore
         ? `no score column: ranked by '${names[roles.rank]}' (score = -rank)`

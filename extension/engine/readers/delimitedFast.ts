@@ -10,7 +10,8 @@ import { finishHash, HASH_PRIME, HASH_SEED, type BytePool } from '../model/byteP
 import { parseNumber } from './numbers';
 
 const TWO_53 = 2 ** 53;
-const POW10 = Array.from({ length: 23 }, (_, k) => Number(`1e${k}`));
+/** Exact powers of ten for plain decimals (the WebAssembly kernel is given these same values). */
+export const POW10 = Array.from({ length: 23 }, (_, k) => Number(`1e${k}`));
 
 export const ROLE_QUERY = 0;
 export const ROLE_ITEM = 1;
@@ -49,16 +50,17 @@ let previousEnd = new Int32Array(8);
 /** Keeps the warming reads observable. */
 const warmth = { sum: 0 };
 
-function internBatch(items: BytePool, out: Uint32Array, buf: Buffer, count: number): void {
+function internBatch(items: BytePool, out: Uint32Array, buf: Uint8Array, count: number): void {
   warmth.sum += items.warm(batchHash, count, batchRecord);
   for (let b = 0; b < count; b++) out[batchRow[b]!] = items.internHashed(buf, batchStart[b]!, batchEnd[b]!, batchHash[b]!);
 }
 
 /**
  * Stores records from buf[pos, limit), where limit is a line start (or the end of the last buffer),
- * and no quote byte lies before it. Returns the start of the first record it did not store.
+ * and no quote byte lies before it; at most `maxRecords` of them. Returns the start of the first
+ * record it did not store.
  */
-export function parseSimpleRecords(state: FastState, buf: Buffer, pos: number, limit: number, base: number): number {
+export function parseSimpleRecords(state: FastState, buf: Buffer, pos: number, limit: number, base: number, maxRecords = Infinity): number {
   const rows = state.rows!;
   const roleOf = state.roleOf;
   const fields = roleOf.length;
@@ -76,7 +78,8 @@ export function parseSimpleRecords(state: FastState, buf: Buffer, pos: number, l
   previousStart.fill(-1);
   let repeated = false;
   const words = new DataView(buf.buffer, buf.byteOffset, buf.byteLength);
-  while (pos < limit) {
+  const lastRow = rows.count + maxRecords;
+  while (pos < limit && rows.count < lastRow) {
     let c = buf[pos]!;
     if (c === LF) {
       pos++;

@@ -1,0 +1,216 @@
+// AssemblyScript, compiled to WebAssembly by build.mjs (not part of the TypeScript program).
+//
+// The byte loop of delimited text, for the same records delimitedFast.ts takes: complete, quote-free
+// records whose numbers are plain decimals. It cuts fields, hashes id fields, compares query and
+// segment fields with the previous row's bytes and parses numbers, writing one row of plain values
+// per record; interning stays in JavaScript. Any record it is unsure about ends the call and is left
+// to the JavaScript parsers, so everything here must give bit-identical results to delimitedFast.ts
+// (the equivalence tests compare the two on random files). A loop in WebAssembly runs without the
+// bounds checks and type guards of the same loop in JavaScript, which made it the cheaper one.
+//
+// Memory layout (byte offsets set by the host with `layout`): the settings block, the input bytes,
+// then one column of rows per output.
+
+const LF: u32 = 10;
+const CR: u32 = 13;
+const MINUS: u32 = 45;
+const DOT: u32 = 46;
+const HASH_SEED: i32 = 0x811c9dc5;
+const HASH_PRIME: i32 = 0x01000193;
+const TWO_53: f64 = 9007199254740992.0;
+
+// Roles, as in delimitedFast.ts.
+const ROLE_QUERY: i32 = 0;
+const ROLE_ITEM: i32 = 1;
+const ROLE_LABEL: i32 = 2;
+const ROLE_SCORE: i32 = 3;
+const ROLE_RANK: i32 = 4;
+const ROLE_SEGMENT: i32 = 5;
+
+// Where things are; set once by `layout`.
+let rolesAt: usize = 0; // i32 per field
+let pow10At: usize = 0; // f64 × 23, written by the host (the very constants the JavaScript path divides by)
+let previousAt: usize = 0; // i32 start and end per field: where the previous row's field lay
+let fieldCount: i32 = 0;
+let idSlotAt: usize = 0; // i32 per field: output slot of an id field (query, item or segment), -1 otherwise
+let idStartAt: usize = 0; // per id slot, per row: i32 start (-1: same bytes as the previous row)
+let idEndAt: usize = 0;
+let idHashAt: usize = 0;
+let labelAt: usize = 0; // f64 per row
+let scoreAt: usize = 0; // f64 per row
+let lineAt: usize = 0; // u32 per row
+let startAt: usize = 0; // u32 per row: record start
+let maxRows: i32 = 0;
+
+/** Where the settings and outputs live; `rows` is the most rows one call may write. */
+export function layout(roles: usize, pow10: usize, previous: usize, fields: i32, idSlot: usize, idStart: usize, idEnd: usize,
+  idHash: usize, label: usize, score: usize, line: usize, start: usize, rows: i32): void {
+  rolesAt = roles;
+  pow10At = pow10;
+  previousAt = previous;
+  fieldCount = fields;
+  idSlotAt = idSlot;
+  idStartAt = idStart;
+  idEndAt = idEnd;
+  idHashAt = idHash;
+  labelAt = label;
+  scoreAt = score;
+  lineAt = line;
+  startAt = start;
+  maxRows = rows;
+}
+
+// Results of the last call, read by the host.
+let endPosition: u32 = 0;
+let endLine: u32 = 0;
+
+export function stoppedAt(): u32 {
+  return endPosition;
+}
+
+export function lineAfter(): u32 {
+  return endLine;
+}
+
+@inline function finishHash(h: i32): i32 {
+  h ^= <i32>(<u32>h >>> 16);
+  h = h * 0x85ebca6b;
+  h ^= <i32>(<u32>h >>> 13);
+  return h;
+}
+
+/**
+ * Parses records from [pos, limit) (limit is a line start or the end of the input), starting at line
+ * `line`; `rankIsScore` says a rank column stands in for the missing score (score = -rank). Returns
+ * the rows written; `stoppedAt` is the first byte not consumed and `lineAfter` its line.
+ */
+export function parse(pos: u32, limit: u32, delimiter: u32, line: u32, rankIsScore: bool): i32 {
+  const fields = fieldCount;
+  for (let f = 0; f < fields; f++) store<i32>(previousAt + (<usize>f << 3), -1);
+  let row: i32 = 0;
+  while (pos < limit && row < maxRows) {
+    let c: u32 = load<u8>(pos);
+    if (c == LF) {
+      pos++;
+      line++;
+      continue;
+    }
+    if (c == CR) break;
+    const recordStart = pos;
+    let label: f64 = NaN;
+    let score: f64 = NaN;
+    let ok = true;
+    for (let f = 0; f < fields; f++) {
+      const s = pos;
+      const role = load<i32>(rolesAt + (<usize>f << 2));
+      const isId = role == ROLE_QUERY || role == ROLE_ITEM || role >= ROLE_SEGMENT;
+      let repeated = false;
+      let hash: i32 = 0;
+      let value: f64 = 0;
+      c = 0;
+      if (isId && role != ROLE_ITEM) {
+        const from = load<i32>(previousAt + (<usize>f << 3));
+        if (from >= 0) {
+          const length = <u32>(load<i32>(previousAt + (<usize>f << 3), 4) - from);
+          const room = limit - pos;
+          const stop = length < room ? length : room;
+          let i: u32 = 0;
+          while (i + 8 <= stop && load<u64>(pos + i) == load<u64>(<usize>from + i)) i += 8;
+          while (i < stop && load<u8>(pos + i) == load<u8>(<usize>from + i)) i++;
+          if (i == length) {
+            const after = pos + length;
+            c = after < limit ? <u32>load<u8>(after) : 0;
+            if (after >= limit || c < 14 || c == delimiter) {
+              pos = after;
+              repeated = true;
+            }
+          }
+          if (!repeated) c = 0;
+        }
+      }
+      if (repeated) {
+        // Same bytes as the previous row: the host reuses that row's id.
+      } else if (isId) {
+        let h = HASH_SEED;
+        while (pos < limit) {
+          c = load<u8>(pos);
+          if (c < 14 || c == delimiter) break;
+          h = (h ^ <i32>c) * HASH_PRIME;
+          pos++;
+        }
+        hash = finishHash(h);
+      } else {
+        let mantissa: f64 = 0;
+        let digits: i32 = 0;
+        let fraction: i32 = -1;
+        const negative = pos < limit && <u32>load<u8>(pos) == MINUS;
+        if (negative) pos++;
+        while (pos < limit) {
+          c = load<u8>(pos);
+          const d = c - 48;
+          if (d <= 9) {
+            mantissa = mantissa * 10 + <f64>d;
+            digits++;
+          } else if (c == DOT && fraction < 0) {
+            fraction = digits;
+          } else break;
+          pos++;
+        }
+        const fractionDigits = fraction < 0 ? 0 : digits - fraction;
+        if ((pos >= limit || c < 14 || c == delimiter) && digits > 0 && mantissa <= TWO_53 && fractionDigits <= 22) {
+          value = fractionDigits == 0 ? mantissa : mantissa / load<f64>(pow10At + (<usize>fractionDigits << 3));
+          if (negative) value = -value;
+        } else {
+          // Not a plain decimal (empty, NaN, an exponent, ...): the JavaScript parsers take this record.
+          ok = false;
+          break;
+        }
+      }
+      const e = pos;
+      if (f < fields - 1) {
+        if (pos >= limit || c != delimiter) {
+          ok = false;
+          break;
+        }
+        pos++;
+      } else if (pos < limit) {
+        if (c == CR && pos + 1 < limit && <u32>load<u8>(pos + 1) == LF) pos++;
+        else if (c != LF) {
+          ok = false;
+          break;
+        }
+        pos++;
+      }
+      if (isId) {
+        const slot = load<i32>(idSlotAt + (<usize>f << 2));
+        const at = (<usize>slot * <usize>maxRows + <usize>row) << 2;
+        store<i32>(idStartAt + at, repeated ? -1 : <i32>s);
+        store<i32>(idEndAt + at, <i32>e);
+        store<i32>(idHashAt + at, hash);
+        if (role != ROLE_ITEM) {
+          store<i32>(previousAt + (<usize>f << 3), <i32>s);
+          store<i32>(previousAt + (<usize>f << 3), <i32>e, 4);
+        }
+      } else if (role == ROLE_LABEL) {
+        label = value;
+      } else if (role == ROLE_SCORE) {
+        score = value;
+      } else if (role == ROLE_RANK) {
+        if (rankIsScore) score = -value;
+      }
+    }
+    if (!ok) {
+      pos = recordStart;
+      break;
+    }
+    store<f64>(labelAt + (<usize>row << 3), label);
+    store<f64>(scoreAt + (<usize>row << 3), score);
+    store<u32>(lineAt + (<usize>row << 2), line);
+    store<u32>(startAt + (<usize>row << 2), recordStart);
+    row++;
+    line++;
+  }
+  endPosition = pos;
+  endLine = line;
+  return row;
+}

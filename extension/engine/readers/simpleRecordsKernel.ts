@@ -1,0 +1,204 @@
+/**
+ * Runs the WebAssembly record kernel (kernel/simpleRecords.ts) over delimited text and interns what
+ * it found: the same contract as parseSimpleRecords in delimitedFast.ts, and the same rows, ids,
+ * lines and offsets to the bit. Text is copied into the kernel's memory a piece at a time (each piece
+ * ends at a line start); a record the kernel is unsure about (a number that is not a plain decimal,
+ * a wrong field count) is handed to parseSimpleRecords, and anything that one refuses goes back to
+ * the careful parser, as before. Without the compiled kernel (a test that did not build it) callers
+ * fall back to parseSimpleRecords alone.
+ */
+import { existsSync, readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import type { BytePool } from '../model/bytePool';
+import { parseSimpleRecords, POW10, ROLE_ITEM, ROLE_QUERY, ROLE_SEGMENT, type FastState } from './delimitedFast';
+
+interface KernelExports {
+  readonly memory: WebAssembly.Memory;
+  layout(roles: number, pow10: number, previous: number, fields: number, idSlot: number, idStart: number, idEnd: number,
+    idHash: number, label: number, score: number, line: number, start: number, rows: number): void;
+  parse(pos: number, limit: number, delimiter: number, line: number, rankIsScore: number): number;
+  stoppedAt(): number;
+  lineAfter(): number;
+}
+
+declare const __dirname: string | undefined;
+let kernelPath: string | undefined = typeof __dirname === 'string' ? join(__dirname, 'simpleRecords.wasm') : undefined;
+let compiled: WebAssembly.Module | null | undefined;
+
+/** Where the compiled kernel lives (next to the bundle by default; tests point at a fresh build, or undefined for none). */
+export function setRecordKernel(path: string | undefined): void {
+  kernelPath = path;
+  compiled = undefined;
+}
+
+function kernelModule(): WebAssembly.Module | undefined {
+  if (compiled === undefined) compiled = kernelPath !== undefined && existsSync(kernelPath) ? new WebAssembly.Module(readFileSync(kernelPath)) : null;
+  return compiled ?? undefined;
+}
+
+/** Rows per kernel call and input bytes per piece: a piece of typical rows fills about one call. */
+const ROWS_PER_CALL = 16384;
+const PIECE_BYTES = 1 << 20;
+/** After the kernel stops early this often in a row, the JavaScript loop takes longer runs (e.g. every score has an exponent). */
+const JS_RUN_AFTER_SHORT_CALL = 256;
+
+const PAGE = 65536;
+const align = (n: number) => (n + 7) & ~7;
+
+export class SimpleRecordsKernel {
+  /** Rows stored from kernel output in this thread, ever (lets tests see the kernel really ran). */
+  static rowsParsed = 0;
+  private readonly kernel: KernelExports;
+  private readonly input: number;
+  private readonly bytes: Uint8Array;
+  private readonly idStart: Int32Array;
+  private readonly idEnd: Int32Array;
+  private readonly idHash: Int32Array;
+  private readonly label: Float64Array;
+  private readonly score: Float64Array;
+  private readonly line: Uint32Array;
+  private readonly start: Uint32Array;
+  /** Per field: the role and, for id fields, the output slot. */
+  private readonly fields: { role: number; slot: number }[];
+  private readonly records = new Int32Array(64);
+
+  /** Undefined when no compiled kernel is available. */
+  static create(roleOf: Int32Array): SimpleRecordsKernel | undefined {
+    const module = kernelModule();
+    return module && new SimpleRecordsKernel(module, roleOf);
+  }
+
+  private constructor(module: WebAssembly.Module, roleOf: Int32Array) {
+    const fieldCount = roleOf.length;
+    let slots = 0;
+    this.fields = Array.from(roleOf, (role) => ({ role, slot: isId(role) ? slots++ : -1 }));
+    // Settings, input and outputs, one after another.
+    const rolesAt = 1024;
+    const pow10At = align(rolesAt + 4 * fieldCount);
+    const previousAt = align(pow10At + 8 * POW10.length);
+    const idSlotAt = align(previousAt + 8 * fieldCount);
+    const inputAt = align(idSlotAt + 4 * fieldCount);
+    const idStartAt = align(inputAt + PIECE_BYTES + 8);
+    const idEndAt = idStartAt + 4 * slots * ROWS_PER_CALL;
+    const idHashAt = idEndAt + 4 * slots * ROWS_PER_CALL;
+    const labelAt = align(idHashAt + 4 * slots * ROWS_PER_CALL);
+    const scoreAt = labelAt + 8 * ROWS_PER_CALL;
+    const lineAt = scoreAt + 8 * ROWS_PER_CALL;
+    const startAt = lineAt + 4 * ROWS_PER_CALL;
+    const end = startAt + 4 * ROWS_PER_CALL;
+    const memory = new WebAssembly.Memory({ initial: Math.ceil(end / PAGE) + 1 });
+    this.kernel = new WebAssembly.Instance(module, { env: { memory, abort: kernelAbort } }).exports as unknown as KernelExports;
+    const buffer = memory.buffer;
+    new Int32Array(buffer, rolesAt, fieldCount).set(roleOf);
+    new Float64Array(buffer, pow10At, POW10.length).set(POW10);
+    new Int32Array(buffer, idSlotAt, fieldCount).set(this.fields.map((f) => f.slot));
+    this.kernel.layout(rolesAt, pow10At, previousAt, fieldCount, idSlotAt, idStartAt, idEndAt, idHashAt, labelAt, scoreAt, lineAt, startAt,
+      ROWS_PER_CALL);
+    this.input = inputAt;
+    this.bytes = new Uint8Array(buffer);
+    this.idStart = new Int32Array(buffer, idStartAt, slots * ROWS_PER_CALL);
+    this.idEnd = new Int32Array(buffer, idEndAt, slots * ROWS_PER_CALL);
+    this.idHash = new Int32Array(buffer, idHashAt, slots * ROWS_PER_CALL);
+    this.label = new Float64Array(buffer, labelAt, ROWS_PER_CALL);
+    this.score = new Float64Array(buffer, scoreAt, ROWS_PER_CALL);
+    this.line = new Uint32Array(buffer, lineAt, ROWS_PER_CALL);
+    this.start = new Uint32Array(buffer, startAt, ROWS_PER_CALL);
+  }
+
+  /** parseSimpleRecords' contract: stores records from buf[pos, limit); returns the start of the first one not stored. */
+  parse(state: FastState, buf: Buffer, pos: number, limit: number, base: number): number {
+    let shortCalls = 0;
+    while (pos < limit) {
+      let pieceEnd = Math.min(limit, pos + PIECE_BYTES);
+      if (pieceEnd < limit) {
+        // Pieces end at a line start, as the kernel expects of its limit.
+        const lf = buf.lastIndexOf(10, pieceEnd - 1);
+        pieceEnd = lf >= pos ? lf + 1 : pos;
+      }
+      if (pieceEnd === pos) return parseSimpleRecords(state, buf, pos, limit, base);
+      this.bytes.set(buf.subarray(pos, pieceEnd), this.input);
+      const rows = this.kernel.parse(this.input, this.input + (pieceEnd - pos), state.delimiter, state.line, state.rankStandsInForScore ? 1 : 0);
+      this.store(state, rows, pos - this.input, base);
+      state.line = this.kernel.lineAfter();
+      const next = pos + (this.kernel.stoppedAt() - this.input);
+      if (next === pieceEnd) {
+        pos = next;
+        continue;
+      }
+      // The kernel stopped early at a record it is unsure about: the JavaScript loop takes it (and a longer
+      // run when this keeps happening), or returns it to the careful parser.
+      shortCalls = rows < 16 ? shortCalls + 1 : 0;
+      const after = parseSimpleRecords(state, buf, next, limit, base, shortCalls > 2 ? JS_RUN_AFTER_SHORT_CALL : 1);
+      if (after === next) return next;
+      pos = after;
+    }
+    return pos;
+  }
+
+  /** Interns the ids of `count` kernel rows and appends the rows; `shift` maps kernel positions to `buf` positions. */
+  private store(state: FastState, count: number, shift: number, base: number): void {
+    if (count === 0) return;
+    const rows = state.rows!;
+    if (rows.count + count > rows.capacity) rows.reserve(Math.max(rows.count + count, rows.capacity * 1.5 + 1024));
+    const first = rows.count;
+    const bytes = this.bytes;
+    for (let f = 0; f < this.fields.length; f++) {
+      const { role, slot } = this.fields[f]!;
+      if (slot < 0) continue;
+      const at = slot * ROWS_PER_CALL;
+      if (role === ROLE_ITEM) {
+        this.internItems(rows.items, rows.item, first, at, count);
+      } else if (role === ROLE_QUERY) {
+        state.lastQuery = internRuns(rows.queries, rows.query, first, bytes, this.idStart, this.idEnd, this.idHash, at, count, state.lastQuery);
+      } else {
+        const k = role - ROLE_SEGMENT;
+        state.lastSegment[k] = internRuns(rows.segmentPools[k]!, rows.segmentIds[k]!, first, bytes, this.idStart, this.idEnd, this.idHash, at, count,
+          state.lastSegment[k]!);
+      }
+    }
+    rows.label.set(this.label.subarray(0, count), first);
+    rows.score.set(this.score.subarray(0, count), first);
+    rows.line.set(this.line.subarray(0, count), first);
+    const offset = rows.offset;
+    const start = this.start;
+    const add = base + shift;
+    for (let r = 0; r < count; r++) offset[first + r] = start[r]! + add;
+    rows.count = first + count;
+    SimpleRecordsKernel.rowsParsed += count;
+  }
+
+  /** Item ids in batches of 64: warm the table slots of a batch first, so their cache misses overlap. */
+  private internItems(pool: BytePool, out: Uint32Array<ArrayBufferLike>, first: number, at: number, count: number): void {
+    const { bytes, idStart, idEnd, idHash, records } = this;
+    for (let from = 0; from < count; from += 64) {
+      const n = Math.min(64, count - from);
+      pool.warm(idHash, n, records, at + from);
+      for (let b = 0; b < n; b++) {
+        const i = at + from + b;
+        out[first + from + b] = pool.internHashed(bytes, idStart[i]!, idEnd[i]!, idHash[i]!);
+      }
+    }
+  }
+}
+
+/** Query and segment ids: a start of -1 means the same bytes as the row before; otherwise try the last id first. */
+function internRuns(pool: BytePool, out: Uint32Array<ArrayBufferLike>, first: number, bytes: Uint8Array, idStart: Int32Array, idEnd: Int32Array,
+  idHash: Int32Array, at: number, count: number, last: number): number {
+  for (let r = 0; r < count; r++) {
+    const s = idStart[at + r]!;
+    if (s >= 0) {
+      const e = idEnd[at + r]!;
+      if (last < 0 || !pool.matches(last, bytes, s, e)) last = pool.internHashed(bytes, s, e, idHash[at + r]!);
+    }
+    out[first + r] = last;
+  }
+  return last;
+}
+
+function isId(role: number): boolean {
+  return role === ROLE_QUERY || role === ROLE_ITEM || role >= ROLE_SEGMENT;
+}
+
+function kernelAbort(): never {
+  throw new Error('the record kernel aborted');
+}

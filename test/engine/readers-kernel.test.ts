@@ -1,0 +1,136 @@
+/**
+ * The WebAssembly record kernel must read exactly what the JavaScript loops read: same rows, ids,
+ * labels and scores to the bit, lines, offsets, segments and notes, and the same error for bad
+ * input. Random files mix what the kernel takes (plain decimals, repeated queries) with what it must
+ * hand back (exponents, NaN, empty fields, quotes, CRLF, blank lines, a rank column for the score),
+ * read in chunks of random sizes, on one thread and on several. The reference is the same reader
+ * with the kernel switched off, itself checked against pandas in readers.test.ts.
+ */
+import { join } from 'node:path';
+import { build } from 'esbuild';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { RankedDump } from '../../extension/engine/model/dump';
+import { readDump } from '../../extension/engine/readers/index';
+import { setParseWorkerScript } from '../../extension/engine/readers/parallel';
+import { setRecordKernel, SimpleRecordsKernel } from '../../extension/engine/readers/simpleRecordsKernel';
+import { sourceTuning } from '../../extension/engine/readers/source';
+// @ts-expect-error a plain ES module without types
+import { compileRecordKernel } from '../../extension/engine/readers/kernel/compile.mjs';
+import { seededRandom } from '../reference/random';
+import { TempDir } from './fixtures/readers/tempFiles';
+
+const tmp = new TempDir();
+const kernel = join(tmp.path, 'simpleRecords.wasm');
+const savedChunk = sourceTuning.plainChunkBytes;
+
+beforeAll(async () => {
+  await compileRecordKernel(kernel);
+  // The parse worker finds the kernel next to itself, as in dist/.
+  const script = join(tmp.path, 'parseWorker.js');
+  await build({ entryPoints: ['extension/engine/readers/parseWorker.ts'], bundle: true, platform: 'node', format: 'cjs', outfile: script, logLevel: 'warning' });
+  setParseWorkerScript(script);
+}, 120_000);
+afterAll(() => {
+  setRecordKernel(undefined);
+  setParseWorkerScript(undefined);
+  sourceTuning.plainChunkBytes = savedChunk;
+  tmp.remove();
+});
+
+/** A score or label as dumps spell them, mostly plain decimals. */
+function number(rnd: () => number, label: boolean): string {
+  const x = rnd();
+  if (label) return x < 0.03 ? '' : x < 0.05 ? '2.0' : String(Math.floor(rnd() * 5));
+  if (x < 0.75) return (rnd() * 20 - 10).toFixed(Math.floor(rnd() * 7));
+  if (x < 0.8) return (rnd() * 1e-3).toExponential(4);
+  if (x < 0.83) return ['NaN', '', 'inf', '-Infinity', '+1.5', '.25', '7.', '-0', '-0.0'][Math.floor(rnd() * 9)]!;
+  if (x < 0.86) return '1234567890123456789';
+  if (x < 0.88) return '0.' + '1'.repeat(23);
+  return String(Math.floor(rnd() * 1000) - 500);
+}
+
+function randomCsv(seed: number, rows: number): string {
+  const rnd = seededRandom(seed);
+  const rankForScore = rnd() < 0.2;
+  const withSegments = rnd() < 0.7;
+  const columns = ['query', 'item', 'label', rankForScore ? 'rank' : 'score', ...(withSegments ? ['locale', 'device'] : [])];
+  // Shuffle the column order: the kernel must follow any layout.
+  for (let i = columns.length - 1; i > 0; i--) {
+    const j = Math.floor(rnd() * (i + 1));
+    [columns[i], columns[j]] = [columns[j]!, columns[i]!];
+  }
+  const eol = rnd() < 0.3 ? '\r\n' : '\n';
+  const quotes = rnd() < 0.3;
+  let out = columns.join(',') + eol;
+  let query = 0;
+  for (let r = 0; r < rows; r++) {
+    if (rnd() < 0.06) query++;
+    if (rnd() < 0.01) out += eol;
+    const value: Record<string, string> = {
+      query: rnd() < 0.02 ? `tĕnon saw ${query}` : `mitre saw ${query}`,
+      item: quotes && rnd() < 0.01 ? `"sku,${r}"` : `sku-${Math.floor(rnd() * 3000)}`,
+      label: number(rnd, true),
+      score: number(rnd, false),
+      rank: String(1 + (r % 40)),
+      locale: rnd() < 0.9 ? 'en-GB' : 'de-DE',
+      device: rnd() < 0.5 ? 'mobile' : 'desktop',
+    };
+    out += columns.map((c) => value[c]).join(',') + eol;
+  }
+  return rnd() < 0.5 ? out : out.slice(0, -eol.length);
+}
+
+async function readBoth(path: string, threads: number): Promise<[RankedDump | Error, RankedDump | Error]> {
+  const read = () => readDump(path, { threads }).catch((e: Error) => e);
+  setRecordKernel(undefined);
+  const reference = await read();
+  setRecordKernel(kernel);
+  return [reference, await read()];
+}
+
+function expectSameDump(a: RankedDump, b: RankedDump): void {
+  expect(b.rowCount).toBe(a.rowCount);
+  for (const key of ['query', 'item', 'line', 'offset'] as const) expect(Array.from(b[key]), key).toEqual(Array.from(a[key]));
+  // Bits, so NaN payloads and signed zeros count.
+  for (const key of ['label', 'score'] as const) {
+    expect(Buffer.from(b[key].buffer, b[key].byteOffset, b[key].byteLength).equals(Buffer.from(a[key].buffer, a[key].byteOffset, a[key].byteLength)), key).toBe(true);
+  }
+  expect(b.items.size).toBe(a.items.size);
+  expect(b.queries.size).toBe(a.queries.size);
+  for (let i = 0; i < a.items.size; i++) expect(b.items.get(i)).toBe(a.items.get(i));
+  for (let i = 0; i < a.queries.size; i++) expect(b.queries.get(i)).toBe(a.queries.get(i));
+  b.segments.forEach((s, k) => {
+    expect(s.values.size).toBe(a.segments[k]!.values.size);
+    expect(Array.from(s.ofRow)).toEqual(Array.from(a.segments[k]!.ofRow));
+  });
+  expect(b.notes).toEqual(a.notes);
+}
+
+describe('the record kernel', () => {
+  it.each(Array.from({ length: 12 }, (_, i) => [100 + i]))('seed %i reads as the JavaScript loops do', async (seed) => {
+    const rnd = seededRandom(seed * 7);
+    sourceTuning.plainChunkBytes = 500 + Math.floor(rnd() * 40_000);
+    const path = tmp.file(`kernel-${seed}.csv`, randomCsv(seed, 6_000));
+    for (const threads of [1, 3]) {
+      const before = SimpleRecordsKernel.rowsParsed;
+      const [reference, kernelRead] = await readBoth(path, threads);
+      if (reference instanceof Error) {
+        expect(kernelRead).toBeInstanceOf(Error);
+        expect((kernelRead as Error).message).toBe(reference.message);
+        continue;
+      }
+      expect(kernelRead).not.toBeInstanceOf(Error);
+      expectSameDump(reference, kernelRead as RankedDump);
+      // On one thread the kernel runs here; it must have taken most rows, not handed them all back.
+      if (threads === 1) expect(SimpleRecordsKernel.rowsParsed - before).toBeGreaterThan(reference.rowCount / 3);
+    }
+  });
+
+  it('a bad number is reported with its line, as without the kernel', async () => {
+    const path = tmp.file('kernel-bad.csv', 'query,item,label,score\nq,a,1,0.5\nq,b,1,0.25\nq,c,x,0.1\n');
+    const [reference, kernelRead] = await readBoth(path, 1);
+    expect(reference).toBeInstanceOf(Error);
+    expect((kernelRead as Error).message).toBe((reference as Error).message);
+    expect((kernelRead as Error).message).toMatch(/:4\b/);
+  });
+});
