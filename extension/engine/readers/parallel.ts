@@ -18,8 +18,12 @@ import type { ReadOptions } from './index';
 import type { RangeResult, RangeTask } from './rangeParse';
 import { assertTextHead, checkUnchanged, sourceTuning, statStamp, throwIfCancelled } from './source';
 
-/** Below this size one thread is faster than starting workers. */
-const PARALLEL_FROM_BYTES = 48 << 20;
+/**
+ * Below this size one thread is faster: each worker starts cold, and the merge re-interns the later
+ * ranges' item ids on this thread. Measured on 2 cores: 59 MB read in 0.48–0.55 s on one thread and
+ * 0.60–0.68 s on two; 150 MB in 1.27–1.30 s on one and 1.13–1.19 s on two.
+ */
+const PARALLEL_FROM_BYTES = 96 << 20;
 const MAX_THREADS = 4;
 
 declare const __dirname: string | undefined;
