@@ -7,12 +7,12 @@ import { resolve } from 'node:path';
 import { parseArgs } from 'node:util';
 import { compareRuns, DEFAULT_COMPARE_OPTIONS } from '../engine/compare/compare';
 import { InputError } from '../engine/errors';
-import { readDump } from '../engine/readers/index';
 import { COMPARE_FORMATS, formatComparison, type CompareFormat } from '../engine/report/compareReport';
 import { conventionHelp, conventionOptions, scoringSetupFrom } from './conventionArgs';
 import { UsageError } from './evalCommand';
 import type { CliIO } from './io';
 import { progressLine } from './progress';
+import { readRuns } from './readRuns';
 
 export const compareUsage = `Usage: gainline compare A B [options]
 
@@ -73,11 +73,11 @@ export async function runCompare(argv: string[], io: CliIO): Promise<number> {
   const [sourceA, sourceB] = positionals as [string, string];
   const pathA = resolve(io.cwd, sourceA);
   const pathB = resolve(io.cwd, sourceB);
-  const large = (await stat(pathA)).size + (await stat(pathB)).size >= PROGRESS_FROM_BYTES;
+  const sizeB = (await stat(pathB)).size;
+  const large = (await stat(pathA)).size + sizeB >= PROGRESS_FROM_BYTES;
   const progress = io.isTTY && large ? progressLine(io, `${sourceA} vs ${sourceB}`) : undefined;
   try {
-    const a = await readDump(pathA, { ...setup.read, onProgress: progress && ((f) => progress.reading(f / 2)) });
-    const b = await readDump(pathB, { ...setup.read, onProgress: progress && ((f) => progress.reading(0.5 + f / 2)) });
+    const [a, b] = await readRuns(pathA, pathB, setup.read, { sizeB, onProgress: progress?.reading });
     const comparison = await compareRuns(a, b, setup.metrics, setup.conventions, {
       permutations,
       bootstrap,

@@ -37,6 +37,11 @@ export interface ReadOptions {
   scores?: string;
   /** Parse threads for big text files; default auto (1 for small files). */
   threads?: number;
+  /**
+   * Parse quote-free CSV/TSV on worker threads even where one thread would do, leaving this thread
+   * free meanwhile (to read a second file at the same time). Other inputs are read as usual.
+   */
+  offThread?: boolean;
   /** Cancellation → CancelledError. */
   signal?: AbortSignal;
   onProgress?: (fraction: number) => void;
@@ -82,7 +87,7 @@ async function readDelimited(path: string, format: 'csv' | 'tsv', gzip: boolean,
   const delimiter = format === 'csv' ? 44 : 9;
   if (!gzip) {
     const threads = await shouldParseInParallel(path, options.threads);
-    if (threads > 1) {
+    if (threads > 1 || options.offThread) {
       const dump = await readParallelDelimited(path, format, delimiter, threads, options);
       if (dump !== undefined) return dump;
     }
