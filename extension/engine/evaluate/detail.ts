@@ -39,7 +39,7 @@ export function queryDetail(
   const gmax = checkConventions(dump, metrics, conventions, options.gradeRange);
   const rows = rowsOf(dump, queryId, options.groups);
   const ranking = new QueryRanking();
-  ranking.load(dump, rows, 0, rows.length, new SeenItems(dump.items.size));
+  ranking.load(dump, rows, 0, rows.length, new SeenItems());
   const scorer = new QueryScorer(conventions, metrics, gmax, k);
   scorer.score(ranking);
   const n = ranking.n;

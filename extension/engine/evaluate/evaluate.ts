@@ -161,7 +161,7 @@ export function addTally(into: RangeTally, from: RangeTally): void {
 }
 
 /** The dump columns scoring reads (a worker thread gets only these). */
-export type ScoredColumns = Pick<RankedDump, 'item' | 'label' | 'score'> & { readonly itemCount: number };
+export type ScoredColumns = Pick<RankedDump, 'item' | 'label' | 'score'>;
 
 /** Scores queries [from, to) into `perQuery` (indexed by query id); progress is the fraction of this range. */
 export function scoreQueryRange(setup: EvaluationSetup, dump: RankedDump | ScoredColumns, from: number, to: number,
@@ -188,7 +188,7 @@ export class RangeScorer {
   ) {
     // QueryRanking reads only item, score and label.
     this.columns = dump as RankedDump;
-    this.seen = new SeenItems('itemCount' in dump ? dump.itemCount : dump.items.size);
+    this.seen = new SeenItems();
     this.scorer = new QueryScorer(setup.conventions, setup.metrics, setup.gmax);
     this.tauIndex = setup.metrics.findIndex((m) => m.name === 'tau');
   }

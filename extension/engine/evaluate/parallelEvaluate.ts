@@ -102,7 +102,7 @@ export async function evaluateInParallel(dump: RankedDump, metrics: readonly Met
   if (recorded) sensitivity!.recordInto(recorded);
   const bounds = splitByRows(setup.groups.start, Math.min(setup.queryCount, threads * scoringTuning.chunksPerThread));
   const next = new Int32Array(shared(4));
-  const columns: ScoredColumns = { item: dump.item, label: dump.label, score: dump.score, itemCount: dump.items.size };
+  const columns: ScoredColumns = { item: dump.item, label: dump.label, score: dump.score };
   const task: ScoreRangeTask = { setup, columns, bounds, next, perQuery, sensitivity: recorded };
   const running = runWorkers(workerScript, Array.from({ length: threads - 1 }, () => task), options.signal);
   // Keep a rejection from going unhandled while this thread is busy with its own chunks.

@@ -8,17 +8,40 @@ import type { TieConvention } from '../metrics/conventions';
 import type { GroupedList } from '../metrics/listMetrics';
 import { IndexSorter } from './sortIndex';
 
-/** Marks items already seen in the current query: seen[item] === stamp. One array for the whole dump. */
+/**
+ * The items already met in the current query: a small open-addressing set, sized to the query and
+ * emptied by moving to a new stamp. (One mark per item of the whole dump was simpler, but with
+ * millions of items nearly every look-up missed the CPU caches.)
+ */
 export class SeenItems {
-  private stamp = 0;
-  readonly seen: Int32Array;
-  constructor(itemCount: number) {
-    this.seen = new Int32Array(itemCount);
-  }
-  next(): number {
+  keys = new Int32Array(256);
+  stamps = new Int32Array(256);
+  mask = 255;
+  /** 32 − log2(table size): the multiplied id's top bits pick the slot. */
+  shift = 24;
+  stamp = 0;
+
+  /** Empties the set for a query of up to n items; returns the stamp that marks its slots. */
+  next(n: number): number {
+    let size = 256;
+    let shift = 24;
+    while (size < 2 * n) {
+      size *= 2;
+      shift--;
+    }
+    if (size > this.keys.length) {
+      this.keys = new Int32Array(size);
+      this.stamps = new Int32Array(size);
+      this.stamp = 0;
+    }
+    this.mask = size - 1;
+    this.shift = shift;
     return ++this.stamp;
   }
 }
+
+/** Fibonacci hashing (Knuth): the top bits of id × 2^32/φ spread nearby ids over the whole table. */
+const SPREAD = 0x9e3779b1 | 0;
 
 /** The arranged list; one object reused for every query. */
 type Arranged = { -readonly [K in keyof GroupedList]: GroupedList[K] };
@@ -80,8 +103,8 @@ export class QueryRanking {
   /** Loads rows[from..to) (one query's rows in file order). */
   load(dump: RankedDump, rows: Uint32Array, from: number, to: number, seen: SeenItems): void {
     this.ensure(to - from);
-    const stamp = seen.next();
-    const marks = seen.seen;
+    const stamp = seen.next(to - from);
+    const { keys, stamps, mask, shift } = seen;
     const items = dump.item;
     const scores = dump.score;
     const labels = dump.label;
@@ -92,9 +115,12 @@ export class QueryRanking {
     let n = 0;
     for (let p = from; p < to; p++) {
       const r = rows[p]!;
-      const item = items[r]!;
-      if (marks[item] === stamp) continue;
-      marks[item] = stamp;
+      const item = items[r]! | 0;
+      let slot = Math.imul(item, SPREAD) >>> shift;
+      while (stamps[slot] === stamp && keys[slot] !== item) slot = (slot + 1) & mask;
+      if (stamps[slot] === stamp) continue;
+      stamps[slot] = stamp;
+      keys[slot] = item;
       const s = scores[r]!;
       key[n] = s === s ? s : -Infinity;
       localRow[n] = r;
