@@ -105,45 +105,79 @@ export async function pumpRange(path: string, start: number, end: number, sink: 
 }
 
 /**
- * Reads a plain file into one reused buffer: the unfinished record at the end of each chunk is moved
- * to the front and the next chunk is read after it, so reading makes no garbage however large the file.
+ * Reads a plain file through two reused buffers: the next chunk is read into one while the sink parses
+ * the other, so the thread never waits for the copy from the page cache. Each buffer keeps room before
+ * its chunk for the unfinished record carried over from the previous chunk (the room doubles when a
+ * record outgrows it), so reading makes no garbage however large the file.
  */
 async function feedPlain(path: string, from: number, to: number, sink: RecordSink,
   options: { fileStart?: string; signal?: AbortSignal; onBytes: (position: number) => void; chunkBytes?: number | undefined }): Promise<void> {
   const fh = await fsp.open(path, 'r');
+  const chunk = Math.max(16, options.chunkBytes ?? sourceTuning.plainChunkBytes);
+  let room = chunk;
+  let buffers = [Buffer.allocUnsafe(room + chunk), Buffer.allocUnsafe(room + chunk)];
+  let position = from;
+  let wanted = 0;
+  let pending: Promise<{ bytesRead: number }> = Promise.resolve({ bytesRead: 0 });
+  /** Starts reading the next chunk into `buf` after its room; a failure surfaces when it is awaited. */
+  const readAhead = (buf: Buffer) => {
+    wanted = Math.max(0, Math.min(chunk, to - position));
+    pending = wanted > 0 ? fh.read(buf, room, wanted, position) : Promise.resolve({ bytesRead: 0 });
+    pending.catch(() => undefined);
+    position += wanted;
+  };
   try {
-    let buf = Buffer.allocUnsafe(Math.max(16, options.chunkBytes ?? sourceTuning.plainChunkBytes));
+    let cur = 0;
     let kept = 0;
+    /** File offset of the first byte carried over (of the chunk when none is). */
     let base = from;
-    let position = from;
     let first = true;
+    readAhead(buffers[0]!);
     for (;;) {
       throwIfCancelled(options.signal);
-      if (kept === buf.length) {
-        const grown = Buffer.allocUnsafe(buf.length * 2);
-        buf.copy(grown, 0, 0, kept);
-        buf = grown;
-      }
-      const want = Math.min(buf.length - kept, to - position);
-      const { bytesRead } = want > 0 ? await fh.read(buf, kept, want, position) : { bytesRead: 0 };
+      const { bytesRead } = await pending;
       if (bytesRead === 0) break;
-      position += bytesRead;
-      const end = kept + bytesRead;
-      let start = 0;
+      const ended = bytesRead < wanted;
+      const buf = buffers[cur]!;
+      const next = buffers[1 - cur]!;
+      if (ended) {
+        position -= wanted - bytesRead;
+        wanted = 0;
+        pending = Promise.resolve({ bytesRead: 0 });
+      } else readAhead(next);
+      let start = room - kept;
+      const end = room + bytesRead;
       if (first && options.fileStart !== undefined) {
-        assertTextHead(buf.subarray(0, end), options.fileStart);
-        if (buf[0] === 0xef && buf[1] === 0xbb && buf[2] === 0xbf) start = 3;
+        assertTextHead(buf.subarray(start, end), options.fileStart);
+        if (buf[start] === 0xef && buf[start + 1] === 0xbb && buf[start + 2] === 0xbf) start += 3;
       }
       first = false;
-      const consumed = sink.feed(buf, start, end, base, false);
-      buf.copy(buf, 0, consumed, end);
-      kept = end - consumed;
-      base += consumed;
-      options.onBytes(position);
+      const bufBase = base - (room - kept);
+      const consumed = sink.feed(buf, start, end, bufBase, false);
+      const tail = end - consumed;
+      base = bufBase + consumed;
+      options.onBytes(position - wanted);
+      if (tail > room) {
+        // A record longer than the room: wait for the chunk in flight and move both into larger buffers.
+        const { bytesRead: ahead } = await pending;
+        const grownRoom = Math.max(room * 2, tail);
+        const grown = Buffer.allocUnsafe(grownRoom + chunk);
+        buf.copy(grown, grownRoom - tail, consumed, end);
+        next.copy(grown, grownRoom, room, room + ahead);
+        const spare = Buffer.allocUnsafe(grownRoom + chunk);
+        buffers = cur === 0 ? [spare, grown] : [grown, spare];
+        room = grownRoom;
+        pending = Promise.resolve({ bytesRead: ahead });
+      } else {
+        buf.copy(next, room - tail, consumed, end);
+      }
+      kept = tail;
+      cur = 1 - cur;
     }
     throwIfCancelled(options.signal);
-    sink.feed(buf, 0, kept, base, true);
+    sink.feed(buffers[cur]!, room - kept, room, base - (room - kept), true);
   } finally {
+    await pending.catch(() => undefined);
     await fh.close();
   }
 }
