@@ -121,7 +121,7 @@ export class SimpleRecordsKernel {
       this.store(state, rows, pos - this.input, base);
       state.line = this.kernel.lineAfter();
       const next = pos + (this.kernel.stoppedAt() - this.input);
-      if (next === pieceEnd) {
+      if (next === pieceEnd || rows === ROWS_PER_CALL) {
         pos = next;
         continue;
       }
