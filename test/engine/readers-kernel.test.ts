@@ -12,7 +12,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { RankedDump } from '../../extension/engine/model/dump';
 import { readDump } from '../../extension/engine/readers/index';
 import { setParseWorkerScript } from '../../extension/engine/readers/parallel';
-import { setRecordKernel, SimpleRecordsKernel } from '../../extension/engine/readers/simpleRecordsKernel';
+import { kernelTuning, setRecordKernel, SimpleRecordsKernel } from '../../extension/engine/readers/simpleRecordsKernel';
 import { sourceTuning } from '../../extension/engine/readers/source';
 // @ts-expect-error a plain ES module without types
 import { compileRecordKernel } from '../../extension/engine/readers/kernel/compile.mjs';
@@ -22,6 +22,7 @@ import { TempDir } from './fixtures/readers/tempFiles';
 const tmp = new TempDir();
 const kernel = join(tmp.path, 'simpleRecords.wasm');
 const savedChunk = sourceTuning.plainChunkBytes;
+const savedKernelTuning = { ...kernelTuning };
 
 beforeAll(async () => {
   await compileRecordKernel(kernel);
@@ -34,6 +35,7 @@ afterAll(() => {
   setRecordKernel(undefined);
   setParseWorkerScript(undefined);
   sourceTuning.plainChunkBytes = savedChunk;
+  Object.assign(kernelTuning, savedKernelTuning);
   tmp.remove();
 });
 
@@ -110,6 +112,8 @@ describe('the record kernel', () => {
   it.each(Array.from({ length: 12 }, (_, i) => [100 + i]))('seed %i reads as the JavaScript loops do', async (seed) => {
     const rnd = seededRandom(seed * 7);
     sourceTuning.plainChunkBytes = 500 + Math.floor(rnd() * 40_000);
+    // Every other seed: calls that fill after a few rows and pieces of a few records, so both limits are crossed often.
+    Object.assign(kernelTuning, seed % 2 === 0 ? { rowsPerCall: 1 + Math.floor(rnd() * 50), pieceBytes: 100 + Math.floor(rnd() * 3000) } : savedKernelTuning);
     const path = tmp.file(`kernel-${seed}.csv`, randomCsv(seed, 6_000));
     for (const threads of [1, 3]) {
       const before = SimpleRecordsKernel.rowsParsed;

@@ -36,9 +36,11 @@ function kernelModule(): WebAssembly.Module | undefined {
   return compiled ?? undefined;
 }
 
-/** Rows per kernel call and input bytes per piece: a piece of typical rows fills about one call. */
-const ROWS_PER_CALL = 16384;
-const PIECE_BYTES = 1 << 20;
+/**
+ * Rows per kernel call and input bytes per piece (a piece of typical rows fills about one call).
+ * Tests make them small to cross every boundary often; a kernel reads them when it is created.
+ */
+export const kernelTuning = { rowsPerCall: 16384, pieceBytes: 1 << 20 };
 /** After the kernel stops early this often in a row, the JavaScript loop takes longer runs (e.g. every score has an exponent). */
 const JS_RUN_AFTER_SHORT_CALL = 256;
 
@@ -61,6 +63,8 @@ export class SimpleRecordsKernel {
   /** Per field: the role and, for id fields, the output slot. */
   private readonly fields: { role: number; slot: number }[];
   private readonly records = new Int32Array(64);
+  private readonly rowsPerCall = kernelTuning.rowsPerCall;
+  private readonly pieceBytes = kernelTuning.pieceBytes;
 
   /** Undefined when no compiled kernel is available. */
   static create(roleOf: Int32Array): SimpleRecordsKernel | undefined {
@@ -78,14 +82,14 @@ export class SimpleRecordsKernel {
     const previousAt = align(pow10At + 8 * POW10.length);
     const idSlotAt = align(previousAt + 8 * fieldCount);
     const inputAt = align(idSlotAt + 4 * fieldCount);
-    const idStartAt = align(inputAt + PIECE_BYTES + 8);
-    const idEndAt = idStartAt + 4 * slots * ROWS_PER_CALL;
-    const idHashAt = idEndAt + 4 * slots * ROWS_PER_CALL;
-    const labelAt = align(idHashAt + 4 * slots * ROWS_PER_CALL);
-    const scoreAt = labelAt + 8 * ROWS_PER_CALL;
-    const lineAt = scoreAt + 8 * ROWS_PER_CALL;
-    const startAt = lineAt + 4 * ROWS_PER_CALL;
-    const end = startAt + 4 * ROWS_PER_CALL;
+    const idStartAt = align(inputAt + this.pieceBytes + 8);
+    const idEndAt = idStartAt + 4 * slots * this.rowsPerCall;
+    const idHashAt = idEndAt + 4 * slots * this.rowsPerCall;
+    const labelAt = align(idHashAt + 4 * slots * this.rowsPerCall);
+    const scoreAt = labelAt + 8 * this.rowsPerCall;
+    const lineAt = scoreAt + 8 * this.rowsPerCall;
+    const startAt = lineAt + 4 * this.rowsPerCall;
+    const end = startAt + 4 * this.rowsPerCall;
     const memory = new WebAssembly.Memory({ initial: Math.ceil(end / PAGE) + 1 });
     this.kernel = new WebAssembly.Instance(module, { env: { memory, abort: kernelAbort } }).exports as unknown as KernelExports;
     const buffer = memory.buffer;
@@ -93,23 +97,23 @@ export class SimpleRecordsKernel {
     new Float64Array(buffer, pow10At, POW10.length).set(POW10);
     new Int32Array(buffer, idSlotAt, fieldCount).set(this.fields.map((f) => f.slot));
     this.kernel.layout(rolesAt, pow10At, previousAt, fieldCount, idSlotAt, idStartAt, idEndAt, idHashAt, labelAt, scoreAt, lineAt, startAt,
-      ROWS_PER_CALL);
+      this.rowsPerCall);
     this.input = inputAt;
     this.bytes = new Uint8Array(buffer);
-    this.idStart = new Int32Array(buffer, idStartAt, slots * ROWS_PER_CALL);
-    this.idEnd = new Int32Array(buffer, idEndAt, slots * ROWS_PER_CALL);
-    this.idHash = new Int32Array(buffer, idHashAt, slots * ROWS_PER_CALL);
-    this.label = new Float64Array(buffer, labelAt, ROWS_PER_CALL);
-    this.score = new Float64Array(buffer, scoreAt, ROWS_PER_CALL);
-    this.line = new Uint32Array(buffer, lineAt, ROWS_PER_CALL);
-    this.start = new Uint32Array(buffer, startAt, ROWS_PER_CALL);
+    this.idStart = new Int32Array(buffer, idStartAt, slots * this.rowsPerCall);
+    this.idEnd = new Int32Array(buffer, idEndAt, slots * this.rowsPerCall);
+    this.idHash = new Int32Array(buffer, idHashAt, slots * this.rowsPerCall);
+    this.label = new Float64Array(buffer, labelAt, this.rowsPerCall);
+    this.score = new Float64Array(buffer, scoreAt, this.rowsPerCall);
+    this.line = new Uint32Array(buffer, lineAt, this.rowsPerCall);
+    this.start = new Uint32Array(buffer, startAt, this.rowsPerCall);
   }
 
   /** parseSimpleRecords' contract: stores records from buf[pos, limit); returns the start of the first one not stored. */
   parse(state: FastState, buf: Buffer, pos: number, limit: number, base: number): number {
     let shortCalls = 0;
     while (pos < limit) {
-      let pieceEnd = Math.min(limit, pos + PIECE_BYTES);
+      let pieceEnd = Math.min(limit, pos + this.pieceBytes);
       if (pieceEnd < limit) {
         // Pieces end at a line start, as the kernel expects of its limit.
         const lf = buf.lastIndexOf(10, pieceEnd - 1);
@@ -121,7 +125,7 @@ export class SimpleRecordsKernel {
       this.store(state, rows, pos - this.input, base);
       state.line = this.kernel.lineAfter();
       const next = pos + (this.kernel.stoppedAt() - this.input);
-      if (next === pieceEnd || rows === ROWS_PER_CALL) {
+      if (next === pieceEnd || rows === this.rowsPerCall) {
         pos = next;
         continue;
       }
@@ -145,7 +149,7 @@ export class SimpleRecordsKernel {
     for (let f = 0; f < this.fields.length; f++) {
       const { role, slot } = this.fields[f]!;
       if (slot < 0) continue;
-      const at = slot * ROWS_PER_CALL;
+      const at = slot * this.rowsPerCall;
       if (role === ROLE_ITEM) {
         this.internItems(rows.items, rows.item, first, at, count);
       } else if (role === ROLE_QUERY) {
