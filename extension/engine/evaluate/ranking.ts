@@ -175,7 +175,8 @@ export class QueryRanking {
       i = e;
     }
     const classes = groups;
-    this.classBounds.set(tb.subarray(0, groups));
+    const cb = this.classBounds;
+    for (let g = 0; g < groups; g++) cb[g] = tb[g]!;
     for (let i = scored; i < n; i++) tb[groups++] = i;
     tb[groups] = n;
     this.tieGroups = groups;
