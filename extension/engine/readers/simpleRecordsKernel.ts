@@ -32,7 +32,14 @@ export function setRecordKernel(path: string | undefined): void {
 }
 
 function kernelModule(): WebAssembly.Module | undefined {
-  if (compiled === undefined) compiled = kernelPath !== undefined && existsSync(kernelPath) ? new WebAssembly.Module(readFileSync(kernelPath)) : null;
+  if (compiled === undefined) {
+    try {
+      compiled = kernelPath !== undefined && existsSync(kernelPath) ? new WebAssembly.Module(readFileSync(kernelPath)) : null;
+    } catch {
+      // WebAssembly switched off (Node's --jitless, a host policy): the JavaScript loop reads the same rows.
+      compiled = null;
+    }
+  }
   return compiled ?? undefined;
 }
 
