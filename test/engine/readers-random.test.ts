@@ -54,6 +54,33 @@ describe('parseNumber equals Number(text) exactly', () => {
 });
 
 describe('BytePool matches a Map-based pool', () => {
+  it('internString gives the ids of the UTF-8 bytes, with runs, non-ASCII text and lone surrogates', () => {
+    const rnd = seededRandom(8);
+    const alphabet = ['a', 'Z', '7', ' ', 'é', 'ß', '螺', '🔩', '\ud800', '\udfff'];
+    const byString = new BytePool();
+    const byBytes = new BytePool();
+    let wrong = 0;
+    let previous = '';
+    for (let i = 0; i < 50_000; i++) {
+      let s = previous;
+      // Half the values repeat the one before (runs, as one query's rows), some are equal but a new string object.
+      if (rnd() < 0.5) {
+        s = '';
+        const length = Math.floor(rnd() * 8);
+        for (let k = 0; k < length; k++) s += alphabet[Math.floor(rnd() * alphabet.length)];
+      } else if (rnd() < 0.3) s = [...previous].join('');
+      // TextEncoder is the outside reference for the bytes (lone surrogates become U+FFFD).
+      const bytes = new TextEncoder().encode(s);
+      const id = byString.internString(s);
+      // Same ids and the same stored bytes (ids alone would match for any one-to-one encoding).
+      if (id !== byBytes.intern(bytes, 0, bytes.length) || byString.get(id) !== new TextDecoder().decode(bytes)) wrong++;
+      previous = s;
+    }
+    expect(wrong).toBe(0);
+    expect(byString.size).toBe(byBytes.size);
+    expect(byString.size).toBeGreaterThan(1000);
+  });
+
   it('gives first-seen dense ids over 300k seeded interns, with UTF-8 and empty strings', () => {
     const rnd = seededRandom(7);
     const alphabet = ['a', 'b', '7', '-', 'é', 'ß', '螺', '丝', '🔩', ' '];

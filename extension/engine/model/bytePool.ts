@@ -35,6 +35,10 @@ export class BytePool implements StringPool {
   private table: Int32Array = new Int32Array(2 * 2048).fill(EMPTY_SLOT);
   private mask = 2047;
   private decoded: (string | undefined)[] = [];
+  /** internString's last value and its id, and its encoding buffer. */
+  private lastText: string | undefined;
+  private lastId = -1;
+  private scratch = new Uint8Array(64);
 
   get size(): number {
     return this.count;
@@ -77,10 +81,28 @@ export class BytePool implements StringPool {
     return sum;
   }
 
-  /** Interns a JS string (used by formats parsed through JSON or Parquet). */
+  /**
+   * Interns a JS string (used by formats parsed through JSON or Parquet). Values repeat in runs (one
+   * query's rows together), so the last string is checked first; otherwise the UTF-8 bytes go into a
+   * reused scratch buffer (plain ASCII copied directly), never a fresh array per value.
+   */
   internString(text: string): number {
-    const bytes = encoder.encode(text);
-    return this.intern(bytes, 0, bytes.length);
+    if (text === this.lastText) return this.lastId;
+    const n = text.length;
+    if (this.scratch.length < 3 * n) this.scratch = new Uint8Array(Math.max(64, 3 * n));
+    const scratch = this.scratch;
+    let length = 0;
+    while (length < n) {
+      const c = text.charCodeAt(length);
+      if (c >= 128) break;
+      scratch[length++] = c;
+    }
+    // Three bytes per UTF-16 unit always suffice, so encodeInto writes the whole string.
+    if (length < n) length = encoder.encodeInto(text, scratch).written;
+    const id = this.intern(scratch, 0, length);
+    this.lastText = text;
+    this.lastId = id;
+    return id;
   }
 
   /** The id of bytes[start, end), or -1 when never interned. */
