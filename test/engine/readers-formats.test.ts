@@ -169,6 +169,24 @@ describe('Parquet', () => {
     expect(dump.queries.size).toBe(2);
   });
 
+  it('interns text as UTF-8 bytes: non-ASCII names, numeric item ids, a missing segment value', async () => {
+    const buf = parquetWriteBuffer({ columnData: [
+      { name: 'query_id', data: ['tür scharnier', 'tür scharnier', 'größe 3', 'tür scharnier'], type: 'STRING' },
+      { name: 'item_id', data: [70n, 71n, 70n, 70n], type: 'INT64' },
+      { name: 'label', data: [2, 0, 1, 1], type: 'INT32' },
+      { name: 'score', data: [0.5, 0.25, 0.75, 0.1], type: 'DOUBLE' },
+      { name: 'locale', data: ['de-DE', null, 'de-AT', 'de-DE'], type: 'STRING' },
+    ], rowGroupSize: 3 });
+    const dump = await readDump(tmp.file('utf8.parquet', new Uint8Array(buf)));
+    expect(simple(plainRows(dump))).toEqual([
+      ['tür scharnier', '70', 2, 0.5], ['tür scharnier', '71', 0, 0.25], ['größe 3', '70', 1, 0.75], ['tür scharnier', '70', 1, 0.1],
+    ]);
+    // The same query and item get the same ids across row groups; a null segment value is the empty string.
+    expect(Array.from(dump.query)).toEqual([0, 0, 1, 0]);
+    expect(Array.from(dump.item)).toEqual([0, 1, 0, 0]);
+    expect(plainRows(dump).map((r) => r.segments['locale'])).toEqual(['de-DE', '', 'de-AT', 'de-DE']);
+  });
+
   it('reports missing roles by column name', async () => {
     const buf = parquetWriteBuffer({ columnData: columns(0).filter((c) => c.name !== 'grade') });
     const err = await rejection(readDump(tmp.file('nolabel.parquet', new Uint8Array(buf))));
