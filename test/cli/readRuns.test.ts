@@ -2,8 +2,6 @@
  * The two runs of a comparison, read at the same time (B on a parse worker) or one after the other,
  * give the same dumps; when reads fail, A's error wins, as in a sequential read.
  */
-import { join } from 'node:path';
-import { build } from 'esbuild';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { readRuns } from '../../extension/cli/readRuns';
 import { InputError } from '../../extension/engine/errors';
@@ -12,12 +10,12 @@ import { readDump } from '../../extension/engine/readers/index';
 import { setParseWorkerScript } from '../../extension/engine/readers/parallel';
 import { seededRandom } from '../reference/random';
 import { TempDir } from '../engine/fixtures/readers/tempFiles';
+import { bundleWorker } from '../engine/fixtures/workers';
 
 const tmp = new TempDir();
 
 beforeAll(async () => {
-  const script = join(tmp.path, 'parseWorker.js');
-  await build({ entryPoints: ['extension/engine/readers/parseWorker.ts'], bundle: true, platform: 'node', format: 'cjs', outfile: script, logLevel: 'warning' });
+  const script = await bundleWorker('parseWorker', tmp.path);
   setParseWorkerScript(script);
 });
 afterAll(() => {

@@ -3,8 +3,6 @@
  * a plain split-and-Map reference, on values that are prefixes of one another, empty, or cut by chunk
  * edges; then read + score on several threads against read + score on one.
  */
-import { join } from 'node:path';
-import { build } from 'esbuild';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { evaluate } from '../../extension/engine/evaluate/evaluate';
 import { evaluateInParallel, setScoreWorkerScript } from '../../extension/engine/evaluate/parallelEvaluate';
@@ -15,15 +13,13 @@ import { setParseWorkerScript } from '../../extension/engine/readers/parallel';
 import { sourceTuning } from '../../extension/engine/readers/source';
 import { TempDir } from './fixtures/readers/tempFiles';
 import { seededRandom } from '../reference/random';
+import { bundleWorker } from './fixtures/workers';
 
 const tmp = new TempDir();
 
 beforeAll(async () => {
-  for (const [entry, name] of [['extension/worker/scoreWorker.ts', 'scoreWorker.js'], ['extension/engine/readers/parseWorker.ts', 'parseWorker.js']]) {
-    await build({ entryPoints: [entry!], bundle: true, platform: 'node', format: 'cjs', outfile: join(tmp.path, name!), logLevel: 'warning' });
-  }
-  setScoreWorkerScript(join(tmp.path, 'scoreWorker.js'));
-  setParseWorkerScript(join(tmp.path, 'parseWorker.js'));
+  setScoreWorkerScript(await bundleWorker('scoreWorker', tmp.path));
+  setParseWorkerScript(await bundleWorker('parseWorker', tmp.path));
 });
 afterAll(() => {
   setScoreWorkerScript(undefined);

@@ -4,7 +4,6 @@
  * is bundled fresh from source into a temp folder, as the build does into dist/.
  */
 import { join } from 'node:path';
-import { build } from 'esbuild';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { CancelledError } from '../../extension/engine/errors';
 import { evaluate } from '../../extension/engine/evaluate/evaluate';
@@ -16,12 +15,12 @@ import { parseMetricList } from '../../extension/engine/metrics/parse';
 import { buildDump, type TestRow } from './dumpBuilder';
 import { TempDir } from './fixtures/readers/tempFiles';
 import { QUERY_NAMES, seededRandom } from '../reference/random';
+import { bundleWorker } from './fixtures/workers';
 
 const tmp = new TempDir();
 
 beforeAll(async () => {
-  const script = join(tmp.path, 'scoreWorker.js');
-  await build({ entryPoints: ['extension/worker/scoreWorker.ts'], bundle: true, platform: 'node', format: 'cjs', outfile: script, logLevel: 'warning' });
+  const script = await bundleWorker('scoreWorker', tmp.path);
   setScoreWorkerScript(script);
   // Every worker claims a chunk before this thread starts, so the comparison cannot pass on this thread alone.
   scoringTuning.workersFirst = true;

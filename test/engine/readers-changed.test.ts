@@ -5,9 +5,7 @@
  * or the compressed stream first, the change is still what the message names.
  */
 import { writeFileSync } from 'node:fs';
-import { join } from 'node:path';
 import { gzipSync } from 'node:zlib';
-import { build } from 'esbuild';
 import { parquetWriteBuffer } from 'hyparquet-writer';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { InputError } from '../../extension/engine/errors';
@@ -16,13 +14,13 @@ import { setParseWorkerScript } from '../../extension/engine/readers/parallel';
 import { sourceTuning } from '../../extension/engine/readers/source';
 import { seededRandom } from '../reference/random';
 import { TempDir } from './fixtures/readers/tempFiles';
+import { bundleWorker } from './fixtures/workers';
 
 const tmp = new TempDir();
 const savedTuning = { ...sourceTuning };
 
 beforeAll(async () => {
-  const script = join(tmp.path, 'parseWorker.js');
-  await build({ entryPoints: ['extension/engine/readers/parseWorker.ts'], bundle: true, platform: 'node', format: 'cjs', outfile: script, logLevel: 'warning' });
+  const script = await bundleWorker('parseWorker', tmp.path);
   setParseWorkerScript(script);
   // Small chunks, so progress is reported (and the file rewritten) long before the end.
   sourceTuning.plainChunkBytes = 4096;

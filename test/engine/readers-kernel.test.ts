@@ -7,7 +7,6 @@
  * with the kernel switched off, itself checked against pandas in readers.test.ts.
  */
 import { join } from 'node:path';
-import { build } from 'esbuild';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { RankedDump } from '../../extension/engine/model/dump';
 import { readDump } from '../../extension/engine/readers/index';
@@ -18,6 +17,7 @@ import { sourceTuning } from '../../extension/engine/readers/source';
 import { compileRecordKernel } from '../../extension/engine/readers/kernel/compile.mjs';
 import { seededRandom } from '../reference/random';
 import { TempDir } from './fixtures/readers/tempFiles';
+import { bundleWorker } from './fixtures/workers';
 
 const tmp = new TempDir();
 const kernel = join(tmp.path, 'simpleRecords.wasm');
@@ -27,8 +27,7 @@ const savedKernelTuning = { ...kernelTuning };
 beforeAll(async () => {
   await compileRecordKernel(kernel);
   // The parse worker finds the kernel next to itself, as in dist/.
-  const script = join(tmp.path, 'parseWorker.js');
-  await build({ entryPoints: ['extension/engine/readers/parseWorker.ts'], bundle: true, platform: 'node', format: 'cjs', outfile: script, logLevel: 'warning' });
+  const script = await bundleWorker('parseWorker', tmp.path);
   setParseWorkerScript(script);
 }, 120_000);
 afterAll(() => {

@@ -3,8 +3,6 @@
  * segments, notes, and the same error (with the same line) for bad input. The parse worker is
  * bundled fresh from source into a temp folder, as the build does into dist/.
  */
-import { join } from 'node:path';
-import { build } from 'esbuild';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { CancelledError, InputError } from '../../extension/engine/errors';
 import { gradeRange } from '../../extension/engine/evaluate/evaluate';
@@ -14,12 +12,12 @@ import { readParallelDelimited, setParseWorkerScript } from '../../extension/eng
 import { sourceTuning } from '../../extension/engine/readers/source';
 import { TempDir } from './fixtures/readers/tempFiles';
 import { seededRandom } from '../reference/random';
+import { bundleWorker } from './fixtures/workers';
 
 const tmp = new TempDir();
 
 beforeAll(async () => {
-  const script = join(tmp.path, 'parseWorker.js');
-  await build({ entryPoints: ['extension/engine/readers/parseWorker.ts'], bundle: true, platform: 'node', format: 'cjs', outfile: script, logLevel: 'warning' });
+  const script = await bundleWorker('parseWorker', tmp.path);
   setParseWorkerScript(script);
 });
 afterAll(() => {
