@@ -4,6 +4,9 @@
  */
 import { CancelledError, InputError } from '../errors';
 import type { RankedDump } from '../model/dump';
+import { gradeRangeOf, summariseRows, type GradeRange } from '../model/rowSummary';
+
+export type { GradeRange } from '../model/rowSummary';
 import { groupByQuery, type QueryGroups } from '../model/groups';
 import type { Conventions, MetricSpec } from '../metrics/conventions';
 import { checkGainApplies } from '../metrics/gain';
@@ -21,32 +24,12 @@ export interface EvaluateOptions {
   sensitivity?: boolean;
 }
 
-export interface GradeRange {
-  readonly lowest: number;
-  readonly highest: number;
-}
-
 /**
  * Highest and lowest judged grade of the whole dump, unjudged rows counting as grade 0 (0 and 0 when
  * nothing is judged). Readers note it while reading; a dump built some other way is scanned.
  */
 export function gradeRange(dump: RankedDump): GradeRange {
-  if (dump.notes.gradeRange !== undefined) return dump.notes.gradeRange;
-  let lowest = Infinity;
-  let highest = -Infinity;
-  let unjudged = false;
-  const label = dump.label;
-  for (let r = 0; r < dump.rowCount; r++) {
-    const g = label[r]!;
-    if (g < lowest) lowest = g;
-    if (g > highest) highest = g;
-    if (g !== g) unjudged = true;
-  }
-  if (unjudged || lowest === Infinity) {
-    lowest = Math.min(lowest, 0);
-    highest = Math.max(highest, 0);
-  }
-  return { lowest, highest };
+  return dump.notes.gradeRange ?? gradeRangeOf(summariseRows(dump.label, dump.score, 0, dump.rowCount));
 }
 
 /**

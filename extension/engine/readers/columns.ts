@@ -2,6 +2,7 @@
  * Growable typed columns that readers append rows to, and the step that turns them into a RankedDump.
  */
 import { BytePool } from '../model/bytePool';
+import { gradeRangeOf, summariseRows, type RowSummary } from '../model/rowSummary';
 import type { DumpFormat, FileStamp, RankedDump, ReaderNotes, SegmentColumn } from '../model/dump';
 import { emptyNotes } from '../model/dump';
 
@@ -110,12 +111,7 @@ export class RowColumns {
   setGaps(gaps: RowSummary): void {
     this.notes.unjudgedRows = gaps.unjudged;
     this.notes.missingScoreRows = gaps.missing;
-    // Unjudged rows count as grade 0.
-    const zeroToo = gaps.unjudged > 0 || gaps.lowest === Infinity;
-    this.notes.gradeRange = {
-      lowest: zeroToo ? Math.min(gaps.lowest, 0) : gaps.lowest,
-      highest: zeroToo ? Math.max(gaps.highest, 0) : gaps.highest,
-    };
+    this.notes.gradeRange = gradeRangeOf(gaps);
   }
 
   finish(path: string, format: DumpFormat, stamp: FileStamp): RankedDump {
@@ -142,44 +138,6 @@ export class RowColumns {
       notes: this.notes,
     };
   }
-}
-
-/** Gaps and judged grade extremes of some rows; summaries of consecutive ranges add up with addSummaries. */
-export interface RowSummary {
-  unjudged: number;
-  missing: number;
-  /** Over judged rows only; Infinity and -Infinity when none is judged. */
-  lowest: number;
-  highest: number;
-}
-
-export function summariseRows(label: ArrayLike<number>, score: ArrayLike<number>, from: number, to: number): RowSummary {
-  let unjudged = 0;
-  let missing = 0;
-  let lowest = Infinity;
-  let highest = -Infinity;
-  for (let i = from; i < to; i++) {
-    const g = label[i]!;
-    if (g !== g) unjudged++;
-    else {
-      if (g < lowest) lowest = g;
-      if (g > highest) highest = g;
-    }
-    const s = score[i]!;
-    if (s !== s) missing++;
-  }
-  return { unjudged, missing, lowest, highest };
-}
-
-export function addSummaries(parts: readonly RowSummary[]): RowSummary {
-  const sum: RowSummary = { unjudged: 0, missing: 0, lowest: Infinity, highest: -Infinity };
-  for (const p of parts) {
-    sum.unjudged += p.unjudged;
-    sum.missing += p.missing;
-    sum.lowest = Math.min(sum.lowest, p.lowest);
-    sum.highest = Math.max(sum.highest, p.highest);
-  }
-  return sum;
 }
 
 type Typed = Uint32Array | Float64Array;

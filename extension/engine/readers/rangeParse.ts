@@ -6,7 +6,8 @@
  */
 import { InputError } from '../errors';
 import type { BytePoolState } from '../model/bytePool';
-import { summariseRows, type RowSummary, type SharedColumns } from './columns';
+import { summariseRows, type RowSummary } from '../model/rowSummary';
+import type { SharedColumns } from './columns';
 import { DelimitedParser } from './delimited';
 import type { ColumnRoles } from './roles';
 import { pumpRange, type RecordSink } from './source';
