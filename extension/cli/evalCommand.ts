@@ -71,6 +71,7 @@ export async function runEval(argv: string[], io: CliIO): Promise<number> {
       sensitivity,
       threads: setup.read.threads,
       otherBusyCores: meter.otherBusyCores(),
+      ...(format === 'json' ? { renderJsonRecords: dump.queries } : {}),
     });
     const scored = performance.now();
     progress?.done();

@@ -12,6 +12,7 @@ import type { Evaluation } from '../../extension/engine/evaluate/types';
 import type { Conventions } from '../../extension/engine/metrics/conventions';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
 import { parseMetricList } from '../../extension/engine/metrics/parse';
+import { formatJson } from '../../extension/engine/report/json';
 import { buildDump, type TestRow } from './dumpBuilder';
 import { TempDir } from './fixtures/readers/tempFiles';
 import { QUERY_NAMES, seededRandom } from '../reference/random';
@@ -88,6 +89,18 @@ describe('parallel scoring', () => {
     const many = await evaluateInParallel(dump, METRICS, conventions, { threads });
     expectIdentical(one, many);
     expect(one.sensitivity.length).toBeGreaterThan(5);
+  });
+
+  it('renders the JSON report records on the scoring threads, the same text as rendering after scoring', async () => {
+    const dump = buildDump(randomRows(31, 2500));
+    const one = evaluate(dump, METRICS, DEFAULT_CONVENTIONS);
+    const many = await evaluateInParallel(dump, METRICS, DEFAULT_CONVENTIONS, { threads: 3, renderJsonRecords: dump.queries });
+    expectIdentical(one, many);
+    // 3 threads × 16 chunks, each rendered by whichever thread scored it.
+    expect(many.jsonRecords?.length).toBe(48);
+    const input = { queryNames: dump.queries, source: 'runs/a.csv', rowCount: dump.rowCount };
+    expect(formatJson({ ...input, evaluation: many })).toBe(formatJson({ ...input, evaluation: one }));
+    expect(JSON.parse(formatJson({ ...input, evaluation: many })).queries).toHaveLength(dump.queries.size);
   });
 
   it.each([1, 3, 200])('with %i chunks per thread it still matches', async (chunksPerThread) => {

@@ -4,7 +4,9 @@ import { describe, expect, it } from 'vitest';
 import { formatCsv } from '../../extension/engine/report/csv';
 import { formatJson } from '../../extension/engine/report/json';
 import { formatMarkdown } from '../../extension/engine/report/markdown';
-import { queryColumns, worstQueries } from '../../extension/engine/report/reportInput';
+import { packNames, renderQueryRecords } from '../../extension/engine/report/jsonRecords';
+import { jsonNumber, queryColumns, worstQueries, type ReportInput } from '../../extension/engine/report/reportInput';
+import { MapStringPool } from '../../extension/engine/model/stringPool';
 import { formatTable } from '../../extension/engine/report/table';
 import { FIXTURE_QUERIES, fixtureInput } from '../cli/support/evaluationFixture';
 
@@ -61,6 +63,67 @@ describe('JSON report', () => {
     const doc = JSON.parse(formatJson({ ...input, evaluation: ev }));
     expect(doc.conventions.gain).toEqual({ map: { '0': 0, '1': 1, '2': 3 } });
     expect(Object.keys(doc.conventions.gain.map)).toEqual(['0', '1', '2']);
+  });
+});
+
+/** The document as formatJson wrote it before records were rendered by hand: objects through JSON.stringify. */
+function slowJson(input: ReportInput): string {
+  const ev = input.evaluation;
+  const columns = queryColumns(ev);
+  const queries = Array.from({ length: ev.queryCount }, (_, q) => {
+    const record: Record<string, unknown> = { query: input.queryNames.get(q), items: ev.perQuery.items[q], relevant: ev.perQuery.relevant[q] };
+    for (const column of columns) record[column.key] = jsonNumber(column.valueOf(q));
+    record.skipped = ev.perQuery.skipped[q] === 1;
+    return record;
+  });
+  const head = JSON.parse(formatJson({ ...input, evaluation: { ...ev, queryCount: 0 } }));
+  return JSON.stringify({ ...head, queryCount: ev.queryCount, queries }, null, 1) + '\n';
+}
+
+describe('JSON records rendered by hand', () => {
+  it('are byte for byte what JSON.stringify writes, on random values and awkward names', () => {
+    // Outside reference: JSON.stringify (ECMA-262) on the same records built as plain objects.
+    let seed = 777;
+    const rand = () => ((seed = (Math.imul(seed, 1103515245) + 12345) >>> 0) / 2 ** 32);
+    const odd = ['"quoted"', 'back\\slash', 'tab\there', 'new\nline', '\u0001ctl', 'ünïcödé 丁字', '\ud83d\udd27 spanner', 'lone \ud800', '\u2028sep', ''];
+    const specials = [NaN, Infinity, -Infinity, -0, 0, 1, 1e21, 1e-7, 5e-324, -1 / 3, 0.1 + 0.2, 123456789012];
+    for (let trial = 0; trial < 30; trial++) {
+      const base = fixtureInput({}, trial % 2 === 0);
+      const n = trial === 0 ? 1 : 1 + Math.floor(rand() * 40);
+      const value = () => (rand() < 0.3 ? specials[Math.floor(rand() * specials.length)]! : rand() * 2 - 1);
+      const column = () => Float64Array.from({ length: n }, value);
+      const perQuery = {
+        items: Uint32Array.from({ length: n }, () => Math.floor(rand() * 500)),
+        relevant: Uint32Array.from({ length: n }, () => Math.floor(rand() * 20)),
+        values: base.evaluation.metrics.map(column),
+        inversions: Float64Array.from({ length: n }, () => Math.floor(rand() * 900)),
+        inversionCost: column(),
+        skipped: Uint8Array.from({ length: n }, () => (rand() < 0.2 ? 1 : 0)),
+        ...(base.evaluation.perQuery.rbpResidual ? { rbpResidual: column() } : {}),
+      };
+      const names = new MapStringPool();
+      for (let q = 0; q < n; q++) names.intern(`${odd[Math.floor(rand() * odd.length)]} ${q}`);
+      const input = { ...base, queryNames: names, evaluation: { ...base.evaluation, queryCount: n, perQuery } };
+      expect(formatJson(input)).toBe(slowJson(input));
+    }
+  });
+
+  it('with no queries, writes an empty array', () => {
+    const base = fixtureInput();
+    const input = { ...base, evaluation: { ...base.evaluation, queryCount: 0 } };
+    expect(formatJson(input)).toBe(JSON.stringify({ ...JSON.parse(formatJson(input)) }, null, 1) + '\n');
+    expect(JSON.parse(formatJson(input)).queries).toEqual([]);
+  });
+
+  it('pre-rendered chunks are joined in order, and the same text comes out', () => {
+    const input = fixtureInput();
+    const spec = { metrics: input.evaluation.metrics, names: packNames(input.queryNames) };
+    const perQuery = input.evaluation.perQuery;
+    const chunks = [renderQueryRecords(spec, perQuery, 0, 1), renderQueryRecords(spec, perQuery, 1, 3)];
+    expect(renderQueryRecords(spec, perQuery, 2, 2)).toBe('');
+    const withChunks = { ...input, evaluation: { ...input.evaluation, jsonRecords: chunks } };
+    expect(formatJson(withChunks)).toBe(formatJson(input));
+    expect(formatJson(input)).toBe(slowJson(input));
   });
 });
 

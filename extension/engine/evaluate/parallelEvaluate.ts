@@ -29,6 +29,9 @@ import {
   type ScoredColumns,
 } from './evaluate';
 import type { SensitivityColumns } from './sensitivity';
+import type { StringPool } from '../model/stringPool';
+// The one step of a report done here: rendering records is number formatting the scoring threads can share.
+import { packNames, renderQueryRecords, type QueryRecordsSpec } from '../report/jsonRecords';
 import type { Evaluation, PerQueryColumns } from './types';
 
 /**
@@ -61,6 +64,11 @@ export interface ParallelEvaluateOptions extends EvaluateOptions {
    * default: the 1-minute load average.
    */
   otherBusyCores?: number;
+  /**
+   * Query names: when given, each scoring thread also renders the JSON report's records of the chunks
+   * it scored, returned in `jsonRecords` (only when more than one thread scores).
+   */
+  renderJsonRecords?: StringPool;
 }
 
 /** A score worker's job. Typed arrays on SharedArrayBuffers are shared, not copied. */
@@ -73,6 +81,14 @@ export interface ScoreRangeTask {
   readonly next: Int32Array;
   readonly perQuery: PerQueryColumns;
   readonly sensitivity?: SensitivityColumns;
+  /** Set when the JSON report's records are to be rendered too, chunk by chunk. */
+  readonly records?: QueryRecordsSpec;
+}
+
+/** What a scoring thread hands back: its counts, and the records it rendered as [chunk, text] pairs. */
+export interface ScoreRangeResult {
+  readonly tally: RangeTally;
+  readonly records: [number, string][];
 }
 
 /**
@@ -103,23 +119,29 @@ export async function evaluateInParallel(dump: RankedDump, metrics: readonly Met
   const bounds = splitByRows(setup.groups.start, Math.min(setup.queryCount, threads * scoringTuning.chunksPerThread));
   const next = new Int32Array(shared(4));
   const columns: ScoredColumns = { item: dump.item, label: dump.label, score: dump.score };
-  const task: ScoreRangeTask = { setup, columns, bounds, next, perQuery, sensitivity: recorded };
+  const records = options.renderJsonRecords && { metrics: setup.metrics, names: packNames(options.renderJsonRecords) };
+  const task: ScoreRangeTask = { setup, columns, bounds, next, perQuery, sensitivity: recorded, ...(records ? { records } : {}) };
   const running = runWorkers(workerScript, Array.from({ length: threads - 1 }, () => task), options.signal);
   // Keep a rejection from going unhandled while this thread is busy with its own chunks.
   running.catch(() => undefined);
   const tally = emptyTally();
+  const texts: string[] = new Array(bounds.length - 1);
   try {
     if (scoringTuning.workersFirst) await running.started;
     const scorer = new RangeScorer(setup, dump, perQuery, sensitivity);
-    claimChunks(scorer, bounds, next, tally, options);
+    claimChunks(scorer, bounds, next, tally, options, records && { spec: records, perQuery, into: texts });
   } catch (err) {
     running.stop();
     throw err;
   }
-  for (const t of await running) addTally(tally, t);
+  for (const result of await running) {
+    addTally(tally, result.tally);
+    for (const [chunk, text] of result.records) texts[chunk] = text;
+  }
   options.onProgress?.(1);
   if (sensitivity && recorded) sensitivity.sumColumns(recorded, tally.sensitivityNoRelevant);
-  return finishEvaluation(setup, dump, unshared(perQuery), tally, sensitivity);
+  const evaluation = finishEvaluation(setup, dump, unshared(perQuery), tally, sensitivity);
+  return records ? { ...evaluation, jsonRecords: texts } : evaluation;
 }
 
 /** Query range starts holding about equal rows each (parts <= queries); the last entry is the query count. */
@@ -145,16 +167,27 @@ export function splitByRows(start: Uint32Array, parts: number): number[] {
 }
 
 /** Scores chunks until none is left (the score worker's body); `onFirstClaim` runs once a chunk is taken. */
-export function runScoreRangeTask(task: ScoreRangeTask, onFirstClaim?: () => void): RangeTally {
+export function runScoreRangeTask(task: ScoreRangeTask, onFirstClaim?: () => void): ScoreRangeResult {
   const sensitivity = task.sensitivity ? newSensitivityPass(task.setup) : undefined;
   if (sensitivity && task.sensitivity) sensitivity.recordInto(task.sensitivity);
   const tally = emptyTally();
-  claimChunks(new RangeScorer(task.setup, task.columns, task.perQuery, sensitivity), task.bounds, task.next, tally, {}, onFirstClaim);
-  return tally;
+  const texts: string[] = [];
+  const rendering = task.records && { spec: task.records, perQuery: task.perQuery, into: texts };
+  claimChunks(new RangeScorer(task.setup, task.columns, task.perQuery, sensitivity), task.bounds, task.next, tally, {}, rendering, onFirstClaim);
+  const records: [number, string][] = [];
+  texts.forEach((text, chunk) => records.push([chunk, text]));
+  return { tally, records };
+}
+
+interface ChunkRendering {
+  readonly spec: QueryRecordsSpec;
+  readonly perQuery: PerQueryColumns;
+  /** Text by chunk index (sparse: only the chunks this thread scored). */
+  readonly into: string[];
 }
 
 function claimChunks(scorer: RangeScorer, bounds: readonly number[], next: Int32Array, tally: RangeTally,
-  options: Pick<EvaluateOptions, 'signal' | 'onProgress'>, onFirstClaim?: () => void): void {
+  options: Pick<EvaluateOptions, 'signal' | 'onProgress'>, rendering: ChunkRendering | undefined, onFirstClaim?: () => void): void {
   const chunks = bounds.length - 1;
   for (;;) {
     const c = Atomics.add(next, 0, 1);
@@ -163,6 +196,8 @@ function claimChunks(scorer: RangeScorer, bounds: readonly number[], next: Int32
     onFirstClaim = undefined;
     options.onProgress?.(c / chunks);
     scorer.score(bounds[c]!, bounds[c + 1]!, tally, { signal: options.signal });
+    // The chunk's values are final once scored, so its records can be rendered while still in cache.
+    if (rendering) rendering.into[c] = renderQueryRecords(rendering.spec, rendering.perQuery, bounds[c]!, bounds[c + 1]!);
   }
 }
 
@@ -193,7 +228,7 @@ function unshared(p: PerQueryColumns): PerQueryColumns {
   };
 }
 
-type Running = Promise<RangeTally[]> & { stop(): void; started: Promise<void> };
+type Running = Promise<ScoreRangeResult[]> & { stop(): void; started: Promise<void> };
 
 function runWorkers(script: string, tasks: ScoreRangeTask[], signal: AbortSignal | undefined): Running {
   const workers: Worker[] = [];
@@ -202,8 +237,8 @@ function runWorkers(script: string, tasks: ScoreRangeTask[], signal: AbortSignal
   let unstarted = tasks.length;
   const started = new Promise<void>((resolve) => (markStarted = resolve));
   if (unstarted === 0) markStarted();
-  const promise = new Promise<RangeTally[]>((resolve, reject) => {
-    const results: (RangeTally | undefined)[] = tasks.map(() => undefined);
+  const promise = new Promise<ScoreRangeResult[]>((resolve, reject) => {
+    const results: (ScoreRangeResult | undefined)[] = tasks.map(() => undefined);
     let pending = tasks.length;
     let settled = false;
     const finish = (err?: Error) => {
@@ -213,7 +248,7 @@ function runWorkers(script: string, tasks: ScoreRangeTask[], signal: AbortSignal
       signal?.removeEventListener('abort', onAbort);
       for (const w of workers) void w.terminate();
       if (err) reject(err);
-      else resolve(results as RangeTally[]);
+      else resolve(results as ScoreRangeResult[]);
     };
     const onAbort = () => finish(new CancelledError());
     stop = () => finish(new CancelledError());
@@ -221,11 +256,11 @@ function runWorkers(script: string, tasks: ScoreRangeTask[], signal: AbortSignal
     tasks.forEach((task, k) => {
       const worker = new Worker(script, { workerData: task });
       workers.push(worker);
-      worker.on('message', (msg: { claimed?: boolean; tally?: RangeTally; failure?: string }) => {
+      worker.on('message', (msg: { claimed?: boolean; result?: ScoreRangeResult; failure?: string }) => {
         if (msg.claimed) {
           if (--unstarted === 0) markStarted();
-        } else if (msg.tally !== undefined) {
-          results[k] = msg.tally;
+        } else if (msg.result !== undefined) {
+          results[k] = msg.result;
           if (--pending === 0) finish();
         } else finish(new Error(`score worker failed: ${msg.failure}`));
       });

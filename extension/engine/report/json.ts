@@ -1,24 +1,21 @@
 /** The evaluation as one JSON document, for scripts and notebooks. */
-import { conventionsAsJson, jsonNumber, queryColumns, type ReportInput } from './reportInput';
+import { packNames, renderQueryRecords } from './jsonRecords';
+import { conventionsAsJson, jsonNumber, type ReportInput } from './reportInput';
 
+/**
+ * The document `JSON.stringify(document, null, 1)` would write with a `queries` array of records last.
+ * The records are rendered by jsonRecords.ts (or were already, by the scoring threads) and spliced in,
+ * so 100k query objects are never built only to be stringified.
+ */
 export function formatJson(input: ReportInput): string {
-  const { evaluation: ev, queryNames } = input;
-  const columns = queryColumns(ev);
+  const { evaluation: ev } = input;
   const summary: Record<string, number | null> = {};
   const counted: Record<string, number> = {};
   for (const s of ev.summary) {
     summary[s.key] = jsonNumber(s.mean);
     counted[s.key] = s.counted;
   }
-  const queries: Record<string, unknown>[] = new Array(ev.queryCount);
-  const { items, relevant, skipped } = ev.perQuery;
-  for (let q = 0; q < ev.queryCount; q++) {
-    const record: Record<string, unknown> = { query: queryNames.get(q), items: items[q], relevant: relevant[q] };
-    for (const column of columns) record[column.key] = jsonNumber(column.valueOf(q));
-    record.skipped = skipped[q] === 1;
-    queries[q] = record;
-  }
-  const document = {
+  const head = {
     source: input.source,
     rows: input.rowCount,
     queryCount: ev.queryCount,
@@ -34,7 +31,11 @@ export function formatJson(input: ReportInput): string {
       conventions: conventionsAsJson(row.conventions),
     })),
     warnings: ev.warnings,
-    queries,
   };
-  return JSON.stringify(document, null, 1) + '\n';
+  const headText = JSON.stringify(head, null, 1);
+  if (ev.queryCount === 0) return `${headText.slice(0, -2)},\n "queries": []\n}\n`;
+  const records =
+    ev.jsonRecords ?? [renderQueryRecords({ metrics: ev.metrics, names: packNames(input.queryNames) }, ev.perQuery, 0, ev.queryCount)];
+  // headText ends with "\n}": the records go in before that closing brace.
+  return `${headText.slice(0, -2)},\n "queries": [\n${records.join(',\n')}\n ]\n}\n`;
 }

@@ -2,8 +2,8 @@
  * What every report format needs: the evaluation plus the few facts about the dump it came from
  * (query names live in the dump's string pool, not in the evaluation).
  */
-import type { Conventions, GainConvention } from '../metrics/conventions';
-import type { Evaluation } from '../evaluate/types';
+import type { Conventions, GainConvention, MetricSpec } from '../metrics/conventions';
+import type { Evaluation, PerQueryColumns } from '../evaluate/types';
 import type { StringPool } from '../model/stringPool';
 
 export interface ReportInput {
@@ -24,20 +24,30 @@ export interface QueryColumn {
   readonly whole?: boolean;
 }
 
-/** Metric columns in request order, each followed by its companion column when it has one. */
-export function queryColumns(evaluation: Evaluation): QueryColumn[] {
-  const columns: QueryColumn[] = [];
-  const { perQuery } = evaluation;
-  const residuals = perQuery.rbpResidual;
+/** A per-query column of reports, after `items` and `relevant`, keyed as in the summary. */
+export interface RecordColumn {
+  readonly key: string;
+  readonly values: ArrayLike<number>;
+  /** Counts are shown without decimals. */
+  readonly whole?: boolean;
+}
+
+/** Metric columns in request order, each followed by its companion column (RBP's residual, tau's inversions). */
+export function recordColumns(metrics: readonly MetricSpec[], perQuery: PerQueryColumns): RecordColumn[] {
+  const columns: RecordColumn[] = [];
   // The evaluation keeps the residual of the first RBP metric only.
-  const firstRbp = evaluation.metrics.findIndex((spec) => spec.name === 'rbp');
-  evaluation.metrics.forEach((spec, m) => {
-    const values = perQuery.values[m]!;
-    columns.push({ key: spec.key, valueOf: (q) => values[q]! });
-    if (m === firstRbp && residuals) columns.push({ key: `${spec.key}_residual`, valueOf: (q) => residuals[q]! });
-    if (spec.name === 'tau') columns.push({ key: 'inversions', valueOf: (q) => perQuery.inversions[q]!, whole: true });
+  const firstRbp = metrics.findIndex((spec) => spec.name === 'rbp');
+  metrics.forEach((spec, m) => {
+    columns.push({ key: spec.key, values: perQuery.values[m]! });
+    if (m === firstRbp && perQuery.rbpResidual) columns.push({ key: `${spec.key}_residual`, values: perQuery.rbpResidual });
+    if (spec.name === 'tau') columns.push({ key: 'inversions', values: perQuery.inversions, whole: true });
   });
   return columns;
+}
+
+/** recordColumns of an evaluation, each read through `valueOf`. */
+export function queryColumns(evaluation: Evaluation): QueryColumn[] {
+  return recordColumns(evaluation.metrics, evaluation.perQuery).map(({ key, values, whole }) => ({ key, valueOf: (q) => values[q]!, whole }));
 }
 
 /**
