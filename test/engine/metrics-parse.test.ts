@@ -4,6 +4,7 @@ import { DEFAULT_METRICS } from '../../extension/engine/metrics/conventions';
 import { formatGain, parseGain, parseMetricList, parseNoRelevant, parseTies } from '../../extension/engine/metrics/parse';
 import { groupByQuery } from '../../extension/engine/model/groups';
 import { buildDump } from './dumpBuilder';
+import type { MapStringPool } from '../../extension/engine/model/stringPool';
 
 describe('parseMetricList', () => {
   it('reads the default list in order, with cut-offs', () => {
@@ -57,5 +58,32 @@ describe('groupByQuery', () => {
     const g = groupByQuery(dump);
     expect([...g.start]).toEqual([0, 2, 4, 5]);
     expect([...g.rowsOfQuery]).toEqual([0, 2, 1, 4, 3]);
+  });
+
+  it('matches a slow reference on seeded dumps with queries kept together, interleaved, or without rows', () => {
+    let seed = 99;
+    const rand = () => ((seed = (Math.imul(seed, 1103515245) + 12345) >>> 0) / 2 ** 32);
+    for (let trial = 0; trial < 60; trial++) {
+      const queries = 1 + Math.floor(rand() * 12);
+      const names: string[] = [];
+      for (let q = 0; q < queries; q++) for (let n = Math.floor(rand() * 5); n > 0; n--) names.push(`q${q}`);
+      // A third of the dumps keep each query's rows together (the one-pass case); the rest move one row or shuffle.
+      const shape = trial % 3;
+      if (shape === 1 && names.length > 2) names.push(names.splice(Math.floor(rand() * names.length), 1)[0]!);
+      if (shape === 2) names.sort(() => rand() - 0.5);
+      const dump = buildDump(names.map((query, i) => ({ query, item: String(i), label: 0, score: 0 })));
+      // A query id with no rows at all (a pool can hold one when rows were dropped).
+      if (trial % 4 === 0) (dump.queries as MapStringPool).intern('no rows');
+      const g = groupByQuery(dump);
+      // Slow and obvious: each query's rows, found by scanning the whole column.
+      const expected: number[] = [];
+      const start = [0];
+      for (let q = 0; q < dump.queries.size; q++) {
+        for (let r = 0; r < dump.rowCount; r++) if (dump.query[r] === q) expected.push(r);
+        start.push(expected.length);
+      }
+      expect([...g.rowsOfQuery]).toEqual(expected);
+      expect([...g.start]).toEqual(start);
+    }
   });
 });

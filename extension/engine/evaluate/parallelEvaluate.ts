@@ -12,7 +12,7 @@ import { join } from 'node:path';
 import { Worker } from 'node:worker_threads';
 import { CancelledError } from '../errors';
 import type { RankedDump } from '../model/dump';
-import type { QueryGroups } from '../model/groups';
+import { groupByQuery, type QueryGroups } from '../model/groups';
 import type { Conventions, MetricSpec } from '../metrics/conventions';
 import {
   addTally,
@@ -201,18 +201,9 @@ function claimChunks(scorer: RangeScorer, bounds: readonly number[], next: Int32
   }
 }
 
-/** groupByQuery's counting sort, written straight into shared memory so workers read it without a copy. */
+/** groupByQuery written straight into shared memory, so workers read it without a copy. */
 function sharedGroups(dump: RankedDump): QueryGroups {
-  const queryCount = dump.queries.size;
-  const rows = dump.rowCount;
-  const query = dump.query;
-  const start = new Uint32Array(new SharedArrayBuffer((queryCount + 1) * 4));
-  for (let r = 0; r < rows; r++) start[query[r]! + 1]++;
-  for (let q = 0; q < queryCount; q++) start[q + 1] += start[q]!;
-  const next = start.slice(0, queryCount);
-  const rowsOfQuery = new Uint32Array(new SharedArrayBuffer(rows * 4));
-  for (let r = 0; r < rows; r++) rowsOfQuery[next[query[r]!]!++] = r;
-  return { rowsOfQuery, start };
+  return groupByQuery(dump, (length) => new Uint32Array(new SharedArrayBuffer(length * 4)));
 }
 
 /** Plain copies, so the evaluation can be posted or transferred like a single-thread one. */
