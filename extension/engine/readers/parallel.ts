@@ -160,7 +160,7 @@ function compactShared(parts: Extract<RangeResult, { kind: 'rows' }>[], slices: 
       if (map !== undefined) {
         // The first range's ids are final already (its pools were adopted as they are).
         if (k > 0) for (let i = 0; i < p.count; i++) column[to + i] = map[column[from + i]!]!;
-      } else for (let i = 0; i < p.count; i++) column[to + i] = column[from + i]! + add;
+      } else if (add !== 0 || from !== to) for (let i = 0; i < p.count; i++) column[to + i] = column[from + i]! + add;
       to += p.count;
     });
     return column.subarray(0, total);
