@@ -107,6 +107,19 @@ export async function evaluateInParallel(dump: RankedDump, metrics: readonly Met
   options: ParallelEvaluateOptions = {}): Promise<Evaluation> {
   const threads = Math.min(scoringThreads(dump.rowCount, options.threads, options.otherBusyCores), dump.queries.size);
   if (threads <= 1 || workerScript === undefined || !existsSync(workerScript)) return evaluate(dump, metrics, conventions, options);
+  // Started first: a thread takes about 0.1 s to start, time this thread spends grouping and preparing.
+  const running = startWorkers(workerScript, threads - 1, options.signal);
+  // Keep a rejection from going unhandled while this thread is busy with its own chunks.
+  running.catch(() => undefined);
+  try {
+    return await scoreWithWorkers(dump, metrics, conventions, options, threads, running);
+  } finally {
+    running.stop();
+  }
+}
+
+async function scoreWithWorkers(dump: RankedDump, metrics: readonly MetricSpec[], conventions: Conventions, options: ParallelEvaluateOptions,
+  threads: number, running: Running): Promise<Evaluation> {
   const setup = prepareEvaluation(dump, metrics, conventions, { ...options, groups: options.groups ?? sharedGroups(dump) });
   const shared = (bytes: number) => new SharedArrayBuffer(bytes);
   const perQuery = allocatePerQuery(setup.queryCount, metrics, setup.hasRbp, shared);
@@ -121,19 +134,12 @@ export async function evaluateInParallel(dump: RankedDump, metrics: readonly Met
   const columns: ScoredColumns = { item: dump.item, label: dump.label, score: dump.score };
   const records = options.renderJsonRecords && { metrics: setup.metrics, names: packNames(options.renderJsonRecords) };
   const task: ScoreRangeTask = { setup, columns, bounds, next, perQuery, sensitivity: recorded, ...(records ? { records } : {}) };
-  const running = runWorkers(workerScript, Array.from({ length: threads - 1 }, () => task), options.signal);
-  // Keep a rejection from going unhandled while this thread is busy with its own chunks.
-  running.catch(() => undefined);
+  running.post(task);
   const tally = emptyTally();
   const texts: string[] = new Array(bounds.length - 1);
-  try {
-    if (scoringTuning.workersFirst) await running.started;
-    const scorer = new RangeScorer(setup, dump, perQuery, sensitivity);
-    claimChunks(scorer, bounds, next, tally, options, records && { spec: records, perQuery, into: texts });
-  } catch (err) {
-    running.stop();
-    throw err;
-  }
+  if (scoringTuning.workersFirst) await running.started;
+  const scorer = new RangeScorer(setup, dump, perQuery, sensitivity);
+  claimChunks(scorer, bounds, next, tally, options, records && { spec: records, perQuery, into: texts });
   for (const result of await running) {
     addTally(tally, result.tally);
     for (const [chunk, text] of result.records) texts[chunk] = text;
@@ -219,18 +225,19 @@ function unshared(p: PerQueryColumns): PerQueryColumns {
   };
 }
 
-type Running = Promise<ScoreRangeResult[]> & { stop(): void; started: Promise<void> };
+/** Score workers: `post` hands each the task; settles with their results, or rejects on the first failure. */
+type Running = Promise<ScoreRangeResult[]> & { post(task: ScoreRangeTask): void; stop(): void; started: Promise<void> };
 
-function runWorkers(script: string, tasks: ScoreRangeTask[], signal: AbortSignal | undefined): Running {
+function startWorkers(script: string, count: number, signal: AbortSignal | undefined): Running {
   const workers: Worker[] = [];
   let stop = () => undefined as void;
   let markStarted = () => undefined as void;
-  let unstarted = tasks.length;
+  let unstarted = count;
   const started = new Promise<void>((resolve) => (markStarted = resolve));
   if (unstarted === 0) markStarted();
   const promise = new Promise<ScoreRangeResult[]>((resolve, reject) => {
-    const results: (ScoreRangeResult | undefined)[] = tasks.map(() => undefined);
-    let pending = tasks.length;
+    const results: (ScoreRangeResult | undefined)[] = new Array(count).fill(undefined);
+    let pending = count;
     let settled = false;
     const finish = (err?: Error) => {
       if (settled) return;
@@ -244,8 +251,8 @@ function runWorkers(script: string, tasks: ScoreRangeTask[], signal: AbortSignal
     const onAbort = () => finish(new CancelledError());
     stop = () => finish(new CancelledError());
     signal?.addEventListener('abort', onAbort);
-    tasks.forEach((task, k) => {
-      const worker = new Worker(script, { workerData: task });
+    for (let k = 0; k < count; k++) {
+      const worker = new Worker(script);
       workers.push(worker);
       worker.on('message', (msg: { claimed?: boolean; result?: ScoreRangeResult; failure?: string }) => {
         if (msg.claimed) {
@@ -259,7 +266,10 @@ function runWorkers(script: string, tasks: ScoreRangeTask[], signal: AbortSignal
       worker.on('exit', (code) => {
         if (results[k] === undefined) finish(new Error(`score worker exited with code ${code}`));
       });
-    });
+    }
   });
-  return Object.assign(promise, { stop: () => stop(), started });
+  const post = (task: ScoreRangeTask) => {
+    for (const worker of workers) worker.postMessage(task);
+  };
+  return Object.assign(promise, { post, stop: () => stop(), started });
 }
