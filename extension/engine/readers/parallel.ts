@@ -1,6 +1,6 @@
 /**
- * Reads a large quote-free CSV/TSV file with several worker threads: the file is cut at newlines
- * into one byte range per thread, each worker parses its range into its own columns and pools,
+ * Reads a large quote-free CSV/TSV file on several threads: the file is cut at newlines into one
+ * byte range per thread, this thread and the workers each parse a range into its own columns and pools,
  * and the ranges are merged in file order. Ids are re-interned range by range in local first-seen
  * order, which reproduces exactly the ids a single pass would give. Any quote byte in the file
  * makes the split unsafe; the caller then falls back to one thread.
@@ -16,13 +16,14 @@ import { addSummaries } from '../model/rowSummary';
 import { RowColumns, type SharedColumns } from './columns';
 import { DelimitedParser } from './delimited';
 import type { ReadOptions } from './index';
-import type { RangeResult, RangeTask } from './rangeParse';
+import { parseRange, type RangeResult, type RangeTask } from './rangeParse';
 import { assertTextHead, checkUnchanged, sourceTuning, statStamp, throwIfCancelled } from './source';
 
 /**
- * Below this size one thread is faster: each worker starts cold, and the merge re-interns the later
- * ranges' item ids on this thread. Measured on 2 cores: 59 MB read in 0.48–0.55 s on one thread and
- * 0.60–0.68 s on two; 150 MB in 1.27–1.30 s on one and 1.13–1.19 s on two.
+ * Below this size one thread is faster: a worker starts cold, and the merge re-interns the later
+ * ranges' item ids on this thread. Measured on 2 cores: 59 MB read in 0.42–0.58 s on one thread and
+ * 0.49–0.63 s on two (this thread and one worker); 150 MB in 1.27–1.30 s on one and 1.13–1.19 s on two
+ * (two workers, before this thread took a range too).
  */
 const PARALLEL_FROM_BYTES = 96 << 20;
 const MAX_THREADS = 4;
@@ -211,12 +212,16 @@ async function splitPoints(path: string, from: number, size: number, parts: numb
   return points;
 }
 
+/**
+ * Parses the first range on this thread and the others on workers. This thread would otherwise wait
+ * idle, and a worker takes about 0.1 s to start: one fewer to start, and that start overlaps useful work.
+ */
 function runWorkers(script: string, tasks: RangeTask[], size: number, options: ReadOptions): Promise<RangeResult[]> {
   throwIfCancelled(options.signal);
   return new Promise((resolve, reject) => {
     const results: (RangeResult | undefined)[] = tasks.map(() => undefined);
     const done = tasks.map(() => 0);
-    const workers = tasks.map((task) => new Worker(script, { workerData: task }));
+    const workers = tasks.slice(1).map((task) => new Worker(script, { workerData: task }));
     let pending = tasks.length;
     let settled = false;
     const finish = (err?: Error) => {
@@ -229,23 +234,32 @@ function runWorkers(script: string, tasks: RangeTask[], size: number, options: R
     };
     const onAbort = () => finish(new CancelledError());
     options.signal?.addEventListener('abort', onAbort);
-    workers.forEach((worker, k) => {
+    const progress = (k: number, bytes: number) => {
+      done[k] = bytes;
+      if (size > 0) options.onProgress?.(Math.min(1, done.reduce((a, b) => a + b, 0) / size));
+    };
+    const store = (k: number, result: RangeResult) => {
+      results[k] = result;
+      if (--pending === 0) finish();
+    };
+    workers.forEach((worker, w) => {
+      const k = w + 1;
       worker.on('message', (msg: { progress?: number; result?: RangeResult; failure?: string }) => {
-        if (msg.progress !== undefined) {
-          done[k] = msg.progress;
-          if (size > 0) options.onProgress?.(Math.min(1, done.reduce((a, b) => a + b, 0) / size));
-        } else if (msg.result !== undefined) {
-          results[k] = msg.result;
-          if (--pending === 0) finish();
-        } else if (msg.failure !== undefined) {
-          finish(new Error(`parse worker failed: ${msg.failure}`));
-        }
+        if (msg.progress !== undefined) progress(k, msg.progress);
+        else if (msg.result !== undefined) store(k, msg.result);
+        else if (msg.failure !== undefined) finish(new Error(`parse worker failed: ${msg.failure}`));
       });
       worker.on('error', (err) => finish(err));
       worker.on('exit', (code) => {
         if (results[k] === undefined) finish(new Error(`parse worker exited with code ${code}`));
       });
     });
+    const onBytes = (bytes: number) => {
+      // This thread's parse stops at the next chunk once the read is cancelled or a worker failed.
+      if (settled) throw new CancelledError();
+      progress(0, bytes);
+    };
+    parseRange(tasks[0]!, onBytes).then((result) => store(0, result), (err: unknown) => finish(err instanceof Error ? err : new Error(String(err))));
   });
 }
 
