@@ -104,6 +104,17 @@ describe('parallel parsing', () => {
     expect((single as InputError).line).toBe(7001);
   });
 
+  it('reports a bad row in the first range, which this thread parses, with the same message and line', async () => {
+    const lines = randomPlainCsv(32, 9000).split('\n');
+    lines[500] = lines[500]!.replace(/,(\d),/, ',four,');
+    const path = tmp.file('par-bad-first.csv', lines.join('\n'));
+    const single = await readDump(path, { threads: 1 }).then(() => undefined, (e: unknown) => e);
+    const multi = await readParallelDelimited(path, 'csv', 44, 2, {}).then(() => undefined, (e: unknown) => e);
+    expect(single).toBeInstanceOf(InputError);
+    expect((multi as InputError).message).toBe((single as InputError).message);
+    expect((single as InputError).line).toBe(501);
+  });
+
   it('stops workers when cancelled', async () => {
     const path = tmp.file('par-cancel.csv', randomPlainCsv(41, 50_000));
     const controller = new AbortController();
