@@ -96,6 +96,7 @@ for (const size of SIZES) {
     all: ours.map((r) => r.seconds),
     peakMB: Math.max(...ours.map((r) => r.peakMB)),
     ourMean,
+    ndcgOnly: check,
   };
   if (havePeers) row.numpy = await peer('peer_numpy_ndcg.py', file);
   if (haveSklearn && size.sklearn) row.sklearn = await peer('peer_sklearn_ndcg.py', file);
@@ -121,6 +122,13 @@ for (const r of results) {
     );
   }
   if (!r.size.sklearn) line.push('pandas+sklearn per query not run on this size (too slow; see the 1M row)');
+  // Like for like: gainline asked for NDCG@10 alone (one run, so noisier than the best-of-N above).
+  if (r.numpy) {
+    line.push(
+      `like for like, gainline eval --metrics ndcg@10: ${fmt(r.ndcgOnly.seconds)} s wall, CPU ${fmt(r.ndcgOnly.cpu)} s; ` +
+        `ratio numpy/ours: wall ${fmt(r.numpy.seconds / r.ndcgOnly.seconds, 1)}×, CPU ${fmt(r.numpy.cpu / r.ndcgOnly.cpu, 1)}×`,
+    );
+  }
   console.log(line.join('\n   '));
 }
 
