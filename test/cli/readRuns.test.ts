@@ -2,26 +2,18 @@
  * The two runs of a comparison, read at the same time (B on a parse worker) or one after the other,
  * give the same dumps; when reads fail, A's error wins, as in a sequential read.
  */
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { readRuns } from '../../extension/cli/readRuns';
 import { InputError } from '../../extension/engine/errors';
 import type { RankedDump } from '../../extension/engine/model/dump';
 import { readDump } from '../../extension/engine/readers/index';
-import { setParseWorkerScript } from '../../extension/engine/readers/parallel';
 import { seededRandom } from '../reference/random';
 import { TempDir } from '../engine/fixtures/readers/tempFiles';
-import { bundleWorker } from '../engine/fixtures/workers';
+import { useBundledWorkers } from '../engine/fixtures/workers';
 
 const tmp = new TempDir();
 
-beforeAll(async () => {
-  const script = await bundleWorker('parseWorker', tmp.path);
-  setParseWorkerScript(script);
-});
-afterAll(() => {
-  setParseWorkerScript(undefined);
-  tmp.remove();
-});
+useBundledWorkers(tmp, ['parseWorker']);
 
 function run(seed: number): string {
   const rnd = seededRandom(seed);

@@ -3,29 +3,20 @@
  * a plain split-and-Map reference, on values that are prefixes of one another, empty, or cut by chunk
  * edges; then read + score on several threads against read + score on one.
  */
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { evaluate } from '../../extension/engine/evaluate/evaluate';
-import { evaluateInParallel, setScoreWorkerScript } from '../../extension/engine/evaluate/parallelEvaluate';
+import { evaluateInParallel } from '../../extension/engine/evaluate/parallelEvaluate';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
 import { parseMetricList } from '../../extension/engine/metrics/parse';
 import { readDump } from '../../extension/engine/readers/index';
-import { setParseWorkerScript } from '../../extension/engine/readers/parallel';
 import { sourceTuning } from '../../extension/engine/readers/source';
 import { TempDir } from './fixtures/readers/tempFiles';
 import { seededRandom } from '../reference/random';
-import { bundleWorker } from './fixtures/workers';
+import { useBundledWorkers } from './fixtures/workers';
 
 const tmp = new TempDir();
 
-beforeAll(async () => {
-  setScoreWorkerScript(await bundleWorker('scoreWorker', tmp.path));
-  setParseWorkerScript(await bundleWorker('parseWorker', tmp.path));
-});
-afterAll(() => {
-  setScoreWorkerScript(undefined);
-  setParseWorkerScript(undefined);
-  tmp.remove();
-});
+useBundledWorkers(tmp, ['scoreWorker', 'parseWorker']);
 
 /** Runs of rows whose query and device are often prefixes of the previous row's ("drill 1" then "drill 10"). */
 function prefixCsv(seed: number, rows: number): string {

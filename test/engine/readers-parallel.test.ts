@@ -3,27 +3,20 @@
  * segments, notes, and the same error (with the same line) for bad input. The parse worker is
  * bundled fresh from source into a temp folder, as the build does into dist/.
  */
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { CancelledError, InputError } from '../../extension/engine/errors';
 import { gradeRange } from '../../extension/engine/evaluate/evaluate';
 import type { RankedDump } from '../../extension/engine/model/dump';
 import { readDump } from '../../extension/engine/readers/index';
-import { readParallelDelimited, setParseWorkerScript } from '../../extension/engine/readers/parallel';
+import { readParallelDelimited } from '../../extension/engine/readers/parallel';
 import { sourceTuning } from '../../extension/engine/readers/source';
 import { TempDir } from './fixtures/readers/tempFiles';
 import { seededRandom } from '../reference/random';
-import { bundleWorker } from './fixtures/workers';
+import { useBundledWorkers } from './fixtures/workers';
 
 const tmp = new TempDir();
 
-beforeAll(async () => {
-  const script = await bundleWorker('parseWorker', tmp.path);
-  setParseWorkerScript(script);
-});
-afterAll(() => {
-  setParseWorkerScript(undefined);
-  tmp.remove();
-});
+useBundledWorkers(tmp, ['parseWorker']);
 
 function randomPlainCsv(seed: number, rows: number): string {
   const rnd = seededRandom(seed);
