@@ -68,8 +68,9 @@ export interface Evaluation {
   /** Plain sentences for people: what was counted, skipped or assumed. */
   readonly warnings: readonly string[];
   /**
-   * The JSON report's query records, already rendered by the scoring threads (when asked to, with
-   * `jsonRecordsOf`): consecutive query ranges in query order, none empty (see report/jsonRecords.ts).
+   * The JSON report's query records, already rendered by the scoring threads (when evaluateInParallel
+   * is given `renderJsonRecords`): consecutive query ranges in query order, none empty (see
+   * report/jsonRecords.ts).
    */
   readonly jsonRecords?: readonly string[];
 }

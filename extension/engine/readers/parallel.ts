@@ -22,8 +22,7 @@ import { assertTextHead, checkUnchanged, sourceTuning, statStamp, throwIfCancell
 /**
  * Below this size one thread is faster: a worker starts cold, and the merge re-interns the later
  * ranges' item ids on this thread. Measured on 2 cores: 59 MB read in 0.42–0.58 s on one thread and
- * 0.49–0.63 s on two (this thread and one worker); 150 MB in 1.27–1.30 s on one and 1.13–1.19 s on two
- * (two workers, before this thread took a range too).
+ * 0.49–0.63 s on two (this thread and one worker); 150 MB in 1.07–1.19 s on one and 1.02–1.11 s on two.
  */
 const PARALLEL_FROM_BYTES = 96 << 20;
 const MAX_THREADS = 4;
@@ -55,7 +54,7 @@ export async function readParallelDelimited(path: string, format: 'csv' | 'tsv',
     path, start, end: bounds[k + 1]!, delimiter, names: header.names, columns: options.columns, chunkBytes: sourceTuning.plainChunkBytes,
     shared: slices[k],
   }));
-  const results = await runWorkers(workerScript, tasks, stamp.size, options);
+  const results = await parseRanges(workerScript, tasks, stamp.size, options);
   if (results.some((r) => r.kind === 'quoted')) return undefined;
   const lineOffsets = [1];
   for (const r of results) lineOffsets.push(lineOffsets.at(-1)! + (r.kind === 'rows' ? r.lines : 0));
@@ -216,7 +215,7 @@ async function splitPoints(path: string, from: number, size: number, parts: numb
  * Parses the first range on this thread and the others on workers. This thread would otherwise wait
  * idle, and a worker takes about 0.1 s to start: one fewer to start, and that start overlaps useful work.
  */
-function runWorkers(script: string, tasks: RangeTask[], size: number, options: ReadOptions): Promise<RangeResult[]> {
+function parseRanges(script: string, tasks: RangeTask[], size: number, options: ReadOptions): Promise<RangeResult[]> {
   throwIfCancelled(options.signal);
   return new Promise((resolve, reject) => {
     const results: (RangeResult | undefined)[] = tasks.map(() => undefined);
