@@ -45,7 +45,7 @@ function nameOf(names: PackedNames, q: number): string {
   return decoder.decode(names.bytes.subarray(q === 0 ? 0 : names.ends[q - 1]!, names.ends[q]!));
 }
 
-/** What JSON.stringify(\{ queries: [...] \}, null, 1) writes around the records: cut off to leave them two spaces deep. */
+/** What `JSON.stringify({ queries: [...] }, null, 1)` writes around the records, cut off so they stay two spaces deep. */
 const WRAPPER_HEAD = '{\n "queries": [\n'.length;
 const WRAPPER_TAIL = '\n ]\n}'.length;
 
