@@ -5,9 +5,9 @@
  */
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { CancelledError } from '../../extension/engine/errors';
+import { CancelledError, InputError } from '../../extension/engine/errors';
 import { evaluate } from '../../extension/engine/evaluate/evaluate';
-import { evaluateInParallel, scoringTuning, setScoreWorkerScript, splitByRows } from '../../extension/engine/evaluate/parallelEvaluate';
+import { evaluateInParallel, liveScoreWorkers, scoringTuning, setScoreWorkerScript, splitByRows } from '../../extension/engine/evaluate/parallelEvaluate';
 import type { Evaluation } from '../../extension/engine/evaluate/types';
 import type { Conventions } from '../../extension/engine/metrics/conventions';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
@@ -132,6 +132,19 @@ describe('parallel scoring', () => {
     const start = Uint32Array.from([0, 10, 20, 30, 100]);
     expect(splitByRows(start, 2)).toEqual([0, 3, 4]);
     expect(splitByRows(start, 1)).toEqual([0, 4]);
+  });
+
+  it('bad input found while preparing is reported, and the workers started before it are stopped', async () => {
+    // A negative grade under exponential gain fails in preparation, after the score workers were started.
+    const rows = randomRows(6, 300);
+    rows[17] = { ...rows[17]!, label: -1 };
+    const dump = buildDump(rows);
+    await expect(evaluateInParallel(dump, METRICS, DEFAULT_CONVENTIONS, { threads: 3 })).rejects.toBeInstanceOf(InputError);
+    await expect.poll(liveScoreWorkers, { timeout: 5000 }).toBe(0);
+    // Under linear gain (and without ERR, which needs grades >= 0) the same dump scores on three threads.
+    const linear = { ...DEFAULT_CONVENTIONS, gain: { kind: 'linear' as const } };
+    const metrics = parseMetricList('ndcg@10,ap,rbp,tau');
+    expectIdentical(evaluate(dump, metrics, linear), await evaluateInParallel(dump, metrics, linear, { threads: 3 }));
   });
 
   it('a cancelled evaluation throws and stops its workers', async () => {

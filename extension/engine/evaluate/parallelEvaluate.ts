@@ -225,6 +225,13 @@ function unshared(p: PerQueryColumns): PerQueryColumns {
   };
 }
 
+let live = 0;
+
+/** Score worker threads started and not yet exited (lets tests see that none is left behind). */
+export function liveScoreWorkers(): number {
+  return live;
+}
+
 /** Score workers: `post` hands each the task; settles with their results, or rejects on the first failure. */
 type Running = Promise<ScoreRangeResult[]> & { post(task: ScoreRangeTask): void; stop(): void; started: Promise<void> };
 
@@ -253,6 +260,7 @@ function startWorkers(script: string, count: number, signal: AbortSignal | undef
     signal?.addEventListener('abort', onAbort);
     for (let k = 0; k < count; k++) {
       const worker = new Worker(script);
+      live++;
       workers.push(worker);
       worker.on('message', (msg: { claimed?: boolean; result?: ScoreRangeResult; failure?: string }) => {
         if (msg.claimed) {
@@ -264,6 +272,7 @@ function startWorkers(script: string, count: number, signal: AbortSignal | undef
       });
       worker.on('error', (err) => finish(err));
       worker.on('exit', (code) => {
+        live--;
         if (results[k] === undefined) finish(new Error(`score worker exited with code ${code}`));
       });
     }
