@@ -16,20 +16,17 @@ import { formatJson } from '../../extension/engine/report/json';
 import { buildDump, type TestRow } from './dumpBuilder';
 import { TempDir } from './fixtures/readers/tempFiles';
 import { QUERY_NAMES, seededRandom } from '../reference/random';
-import { bundleWorker } from './fixtures/workers';
+import { useBundledWorkers } from './fixtures/workers';
 
 const tmp = new TempDir();
 
-beforeAll(async () => {
-  const script = await bundleWorker('scoreWorker', tmp.path);
-  setScoreWorkerScript(script);
+useBundledWorkers(tmp, ['scoreWorker']);
+beforeAll(() => {
   // Every worker claims a chunk before this thread starts, so the comparison cannot pass on this thread alone.
   scoringTuning.workersFirst = true;
 });
 afterAll(() => {
   scoringTuning.workersFirst = false;
-  setScoreWorkerScript(undefined);
-  tmp.remove();
 });
 
 /** Queries of 0–40 items with ties, duplicates, missing scores, unjudged rows and queries with nothing relevant. */

@@ -10,26 +10,22 @@ import { parquetWriteBuffer } from 'hyparquet-writer';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { InputError } from '../../extension/engine/errors';
 import { readDump, type ReadOptions } from '../../extension/engine/readers/index';
-import { setParseWorkerScript } from '../../extension/engine/readers/parallel';
 import { sourceTuning } from '../../extension/engine/readers/source';
 import { seededRandom } from '../reference/random';
 import { TempDir } from './fixtures/readers/tempFiles';
-import { bundleWorker } from './fixtures/workers';
+import { useBundledWorkers } from './fixtures/workers';
 
 const tmp = new TempDir();
 const savedTuning = { ...sourceTuning };
 
-beforeAll(async () => {
-  const script = await bundleWorker('parseWorker', tmp.path);
-  setParseWorkerScript(script);
+useBundledWorkers(tmp, ['parseWorker']);
+beforeAll(() => {
   // Small chunks, so progress is reported (and the file rewritten) long before the end.
   sourceTuning.plainChunkBytes = 4096;
   sourceTuning.gzipChunkBytes = 1024;
 });
 afterAll(() => {
   Object.assign(sourceTuning, savedTuning);
-  setParseWorkerScript(undefined);
-  tmp.remove();
 });
 
 /** Rows with random scores, so gzip cannot shrink them to a single chunk. */

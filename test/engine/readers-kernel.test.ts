@@ -10,32 +10,28 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { RankedDump } from '../../extension/engine/model/dump';
 import { readDump } from '../../extension/engine/readers/index';
-import { setParseWorkerScript } from '../../extension/engine/readers/parallel';
 import { kernelTuning, setRecordKernel, SimpleRecordsKernel } from '../../extension/engine/readers/simpleRecordsKernel';
 import { sourceTuning } from '../../extension/engine/readers/source';
 // @ts-expect-error a plain ES module without types
 import { compileRecordKernel } from '../../extension/engine/readers/kernel/compile.mjs';
 import { seededRandom } from '../reference/random';
 import { TempDir } from './fixtures/readers/tempFiles';
-import { bundleWorker } from './fixtures/workers';
+import { useBundledWorkers } from './fixtures/workers';
 
 const tmp = new TempDir();
 const kernel = join(tmp.path, 'simpleRecords.wasm');
 const savedChunk = sourceTuning.plainChunkBytes;
 const savedKernelTuning = { ...kernelTuning };
 
+// The parse worker finds the kernel next to itself, as in dist/.
+useBundledWorkers(tmp, ['parseWorker']);
 beforeAll(async () => {
   await compileRecordKernel(kernel);
-  // The parse worker finds the kernel next to itself, as in dist/.
-  const script = await bundleWorker('parseWorker', tmp.path);
-  setParseWorkerScript(script);
 }, 120_000);
 afterAll(() => {
   setRecordKernel(undefined);
-  setParseWorkerScript(undefined);
   sourceTuning.plainChunkBytes = savedChunk;
   Object.assign(kernelTuning, savedKernelTuning);
-  tmp.remove();
 });
 
 /** A score or label as dumps spell them, mostly plain decimals. */
