@@ -10,9 +10,13 @@ import erfc from '@stdlib/math-base-special-erfc';
 /**
  * P(T ≥ t) for Student's t with `dof` degrees of freedom (dof > 0).
  * With x = dof / (dof + t²): P(|T| ≥ |t|) = I_x(dof/2, 1/2), the regularized incomplete beta
- * (Abramowitz & Stegun 26.7.1 with 26.5.2). When x > 1/2 the same value is taken as the upper tail
- * 1 − I_{1−x}(1/2, dof/2), evaluated by betainc itself with 1 − x = t²/(dof + t²) passed exactly,
- * so neither x nor 1 − x is formed by a cancelling subtraction.
+ * (Abramowitz & Stegun 26.7.1 with 26.5.2). When x > 1/2, that is t² < dof, the same value is taken as
+ * the upper tail of I_{1−x}(1/2, dof/2), evaluated by betainc itself with 1 − x = t²/(dof + t²) formed
+ * directly, so neither x nor 1 − x comes from a cancelling subtraction.
+ * One exception: for dof = 1 and |t| < 1 the closed form of the Cauchy distribution, 1 − (2/π)·atan|t|
+ * (common practice), is used instead, because betainc's upper tail at a = b = 1/2 (its arcsine special
+ * case) forms 1 − x itself and is off by up to 3e-9 for small x (stdlib 0.2.3). That p is at least 1/2,
+ * so the subtraction there costs nothing.
  */
 export function studentUpperTail(t: number, dof: number): number {
   if (Number.isNaN(t) || !(dof > 0)) return Number.NaN;
@@ -32,6 +36,7 @@ export function studentTwoSidedP(t: number, dof: number): number {
 /** P(|T| ≥ a) for a ≥ 0 finite. */
 function studentTwoSidedTail(a: number, dof: number): number {
   if (a * a < dof) {
+    if (dof === 1) return 1 - (2 / Math.PI) * Math.atan(a);
     // x > 1/2: the upper tail of I_{1−x}(1/2, dof/2), with 1 − x = a² / (dof + a²).
     const y = (a * a) / (dof + a * a);
     return betainc(y, 0.5, dof / 2, true, true);
