@@ -95,7 +95,7 @@ describe('paired tests deep in the tail against scipy 1.10', () => {
     const mean = noise.reduce((s, x) => s + x, 0) / n;
     const sd = Math.sqrt(noise.reduce((s, x) => s + (x - mean) ** 2, 0) / (n - 1));
     const shift = (target * sd) / Math.sqrt(n) - mean;
-    const a = noise.map((x, i) => 0.5 + ((i * 7919) % 1000) / 4000);
+    const a = noise.map((_, i) => 0.5 + ((i * 7919) % 1000) / 4000);
     const b = a.map((x, i) => x + noise[i]! + shift);
     return { a, b };
   }
