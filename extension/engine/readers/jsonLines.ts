@@ -4,6 +4,7 @@
  * - one list per line: `{"query": "q1", "items": [...], "labels": [...], "scores": [...]}` (equal lengths)
  * Every row of a list shares the list's line number and byte offset.
  */
+import { isWellFormedText } from './textCheck';
 import { InputError } from '../errors';
 import type { RankedDump } from '../model/dump';
 import { RowColumns } from './columns';
@@ -132,7 +133,11 @@ class JsonLinesParser {
   }
 
   private id(v: unknown, key: string, text: string): string {
-    if (typeof v === 'string') return v;
+    if (typeof v === 'string') {
+      if (isWellFormedText(v)) return v;
+      throw new InputError(`text without lone UTF-16 surrogates in field '${key}' (an escape such as \\ud800 has no UTF-8 form; ids are compared as UTF-8)`,
+        this.file, this.line, text);
+    }
     if (typeof v === 'number' || typeof v === 'bigint') return String(v);
     throw new InputError(`a string or number in field '${key}'`, this.file, this.line, text);
   }
