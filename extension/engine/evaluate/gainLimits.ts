@@ -72,8 +72,9 @@ export function checkGainsAndGrades(dump: RankedDump, metrics: readonly MetricSp
     const limit = largestSafeGain(largestQuery);
     const missing = firstRow(dump, (g) => !gains.has(g));
     if (missing >= 0) {
-      throw rowError(dump, missing, `a grade listed in the gain map --gain ${formatGain(gain)} (unjudged rows count as grade 0)`,
-        String(gradeAt(dump, missing)));
+      const grade = gradeAt(dump, missing);
+      throw rowError(dump, missing, `a gain for grade ${grade} in the gain map --gain ${formatGain(gain)} (unjudged rows count as grade 0)`,
+        String(grade));
     }
     const huge = firstRow(dump, (g) => !(Math.abs(gains.get(g)!) <= limit));
     if (huge >= 0) {
