@@ -233,7 +233,8 @@ export function undefinedValueNotes(metrics: readonly MetricSpec[], perQuery: Pe
     const why = m.name === 'ndcg'
       ? 'their ideal DCG is not above 0 (the gain convention gives their relevant items no positive gain)'
       : 'the metric has no value for them';
-    notes.push(`${m.key} is undefined for ${undefinedCount.toLocaleString('en-US')} ${undefinedCount === 1 ? 'query' : 'queries'} that are not skipped: ${why}; left out of its mean.`);
+    const who = undefinedCount === 1 ? 'query that is' : 'queries that are';
+    notes.push(`${m.key} is undefined for ${undefinedCount.toLocaleString('en-US')} ${who} not skipped: ${why}; left out of its mean.`);
   });
   return notes;
 }
