@@ -83,6 +83,19 @@ export const CASES: readonly HostileCase[] = [
     name: `seeded bad byte in gzip, seed ${seed}`, files: { 's.csv.gz': gzip(b) }, args: ['eval', 's.csv.gz'], expect: { error: `s.csv.gz:${line}` } })),
   { name: 'bad byte late in a large file read on three threads', files: { 'm.csv': lateBad }, args: ['eval', 'm.csv', '--threads', '3'],
     expect: { error: `m.csv:${lateLine}`, says: /0xE8/ } },
+  { name: 'seeded bad byte on three threads', files: { 's.csv': seededBad[2]!.bytes }, args: ['eval', 's.csv', '--threads', '3'],
+    expect: { error: `s.csv:${seededBad[2]!.line}` } },
+  { name: 'the bad byte is shown, escaped, in the message', files: { 'l.csv': bytes(HEADER, 'q', [0xe9], ',a,1,1\n') }, args: ['eval', 'l.csv'],
+    expect: { error: 'l.csv:2', says: /\(found "q<E9>,a,1,1"\)$/ } },
+  { name: 'bad byte in an SVMlight docid comment', files: { 'd.svm': bytes('1 qid:1 1:0.5 # docid = a\n0 qid:1 1:0.2 # docid = b', [0xe9], '\n'), 'd.scores': '0.5\n0.2\n' },
+    args: ['eval', 'd.svm', '--scores', 'd.scores'], expect: { error: 'd.svm:2' } },
+  { name: 'bad byte in an SVMlight scores file', files: { 'd.svm': '1 qid:1 1:0.5\n0 qid:1 1:0.2\n', 'd.scores': bytes('0.5\n', [0xfe], '0.2\n') },
+    args: ['eval', 'd.svm', '--scores', 'd.scores'], expect: { error: 'd.scores:2' } },
+  { name: 'SVMlight with scores', files: { 'd.svm': '2 qid:a 1:0.5 # docid = x\n0 qid:a 1:0.2 # docid = y\n1 qid:b 1:1 # docid = z\n0 qid:b 1:1 # docid = w\n', 'd.scores': '0.1\n0.9\n3\n3\n' },
+    args: ['eval', 'd.svm', '--scores', 'd.scores'], expect: { rows: [
+      { query: 'a', item: 'x', grade: 2, score: 0.1 }, { query: 'a', item: 'y', grade: 0, score: 0.9 },
+      { query: 'b', item: 'z', grade: 1, score: 3 }, { query: 'b', item: 'w', grade: 0, score: 3 },
+    ] } },
   { name: 'bad byte in a TSV', files: { 't.tsv': bytes('query\titem\tscore\tgrade\nq\ta\t1\t1\nq\tb', [0xff], '\t2\t0\n') }, args: ['eval', 't.tsv'],
     expect: { error: 't.tsv:3' } },
   { name: 'NUL byte inside an id', files: { 'z.csv': bytes(HEADER, 'q,a,1,1\nq,b', [0], 'c,2,0\n') }, args: ['eval', 'z.csv'], expect: { error: 'z.csv:3', says: /NUL/ } },
@@ -101,6 +114,9 @@ export const CASES: readonly HostileCase[] = [
   { name: 'Parquet bytes that are not UTF-8', files: { 'p.parquet': parquet(rows.slice(0, 4), rows.slice(0, 4).map((_, i) => (i === 2 ? Uint8Array.from([0x71, 0xe9]) : Uint8Array.from([0x71])))) },
     args: ['eval', 'p.parquet'], expect: { error: 'p.parquet', says: /row 3/ } },
 
+  { name: 'Parquet with an infinite grade names the row', files: { 'p.parquet': parquet(rows.slice(0, 5).map((r, i) => (i === 3 ? { ...r, grade: Infinity } : r))) },
+    args: ['eval', 'p.parquet'], expect: { error: 'p.parquet', says: /column 'grade' in row 4/ } },
+
   // Quoting and huge lines.
   { name: 'unterminated quote', files: { 'q.csv': `${HEADER}q,a,1,1\n"q,b,2,0\n` }, args: ['eval', 'q.csv'], expect: { error: 'q.csv:3', says: /closing quote/ } },
   { name: 'text after a closing quote', files: { 'q.csv': `${HEADER}"q"x,a,1,1\n` }, args: ['eval', 'q.csv'], expect: { error: 'q.csv:2' } },
@@ -113,6 +129,8 @@ export const CASES: readonly HostileCase[] = [
   // Bad grades and gains.
   { name: 'grade 2000 under exponential gain', files: { 'g.csv': `${HEADER}q,a,3,2000\nq,b,2,0\n` }, args: ['eval', 'g.csv'],
     expect: { error: 'g.csv:2', says: /--gain linear/ } },
+  { name: 'compare: grade 2000 in run B', files: { 'a.csv': `${HEADER}q,a,3,2\nq,b,2,0\n`, 'b.csv': `${HEADER}q,a,3,2\nq,b,2,2000\n` },
+    args: ['compare', 'a.csv', 'b.csv'], expect: { error: 'b.csv:3', says: /--gain linear/ } },
   { name: 'grade 1024 under exponential gain (2^1024 is the first infinite power)', files: { 'g.csv': `${HEADER}q,a,3,1\nq,b,2,1024\n` }, args: ['eval', 'g.csv'],
     expect: { error: 'g.csv:3' } },
   { name: 'grade 1000 under exponential gain overflows the sum over 4000 items', files: { 'g.csv': HEADER + 'q,top,9,1000\n' + Array.from({ length: 4000 }, (_, i) => `q,i${i},1,1000\n`).join('') },

@@ -83,12 +83,15 @@ export function badByteError(buf: Uint8Array, at: number, file: string, line: nu
     file, line, escapeBytes(buf.subarray(lineStart, Math.min(buf.length, at + 20))));
 }
 
-/** Printable ASCII as is, every other byte as \xNN: a visible, lossless form of bytes for messages. */
+/**
+ * Printable ASCII as is, every other byte (and '<') as <NN> in hex: a visible, lossless form of bytes for
+ * messages, which stays readable inside the JSON quoting of InputError's "found" (a \xNN would double).
+ */
 export function escapeBytes(bytes: Uint8Array): string {
   let out = '';
   for (const b of bytes) {
     if (b === 10 || b === 13) break;
-    out += b >= 0x20 && b < 0x7f && b !== 0x5c ? String.fromCharCode(b) : `\\x${b.toString(16).toUpperCase().padStart(2, '0')}`;
+    out += b >= 0x20 && b < 0x7f && b !== 0x3c ? String.fromCharCode(b) : `<${b.toString(16).toUpperCase().padStart(2, '0')}>`;
   }
   return out;
 }
