@@ -120,7 +120,8 @@ function firstRow(dump: RankedDump, bad: (grade: number) => boolean): number {
 /** An InputError at the row's line, or naming the row when the format has no lines (Parquet). */
 function rowError(dump: RankedDump, row: number, expected: string, found: string): InputError {
   const line = row >= 0 ? dump.line[row] ?? 0 : 0;
-  const judged = dump.format === 'run' ? ' (grade from the judgments file)' : '';
+  const unjudged = row >= 0 && Number.isNaN(dump.label[row]!);
+  const judged = dump.format !== 'run' ? '' : unjudged ? ' (an unjudged item counts as grade 0)' : ' (its grade comes from the judgments file)';
   if (line > 0) return new InputError(`${expected}${judged}`, dump.path, line, found);
   const where = row >= 0 ? ` in row ${row + 1}` : '';
   return new InputError(`${expected}${where}`, dump.path, undefined, found);
