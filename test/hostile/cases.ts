@@ -124,6 +124,17 @@ export const CASES: readonly HostileCase[] = [
     expect: { rows: [{ query: 'w'.repeat(3 << 20), item: 'a', score: 1, grade: 1 }, { query: 'q', item: 'b', score: 2, grade: 0 }] } },
   { name: 'a bad byte after a 3 MB id', files: { 'w.csv': bytes(HEADER, 'q,a,1,1\n', 'w'.repeat(3 << 20), [0xe9], ',b,2,0\n') }, args: ['eval', 'w.csv'],
     expect: { error: 'w.csv:3' } },
+  { name: 'a quoted id holding a line break', files: { 'n.csv': `${HEADER}"drill\nbits",a,1,1\n"drill\nbits",b,2,0\nq,c,1,2\n` }, args: ['eval', 'n.csv'],
+    expect: { rows: [{ query: 'drill\nbits', item: 'a', score: 1, grade: 1 }, { query: 'drill\nbits', item: 'b', score: 2, grade: 0 }, { query: 'q', item: 'c', score: 1, grade: 2 }] } },
+  { name: 'line numbers count the line break inside quotes', files: { 'n.csv': `${HEADER}"drill\nbits",a,1,1\nq,b,2,x\n` }, args: ['eval', 'n.csv'],
+    expect: { error: 'n.csv:4', says: /column 'grade'/ } },
+  { name: 'repeated (query, item) rows: the first one counts', files: { 'r.csv': `${HEADER}q,a,1,0\nq,b,2,1\nq,a,3,2\nq,c,0.5,1\n` }, args: ['eval', 'r.csv'],
+    expect: { rows: [{ query: 'q', item: 'a', score: 1, grade: 0 }, { query: 'q', item: 'b', score: 2, grade: 1 }, { query: 'q', item: 'a', score: 3, grade: 2 }, { query: 'q', item: 'c', score: 0.5, grade: 1 }] } },
+  { name: 'run file with unjudged items (grade 0)', files: { 'r.run': 'q Q0 a 1 3 t\nq Q0 b 2 2 t\nq Q0 c 3 1 t\n', 'j.txt': 'q 0 a 0\nq 0 c 2\n' },
+    args: ['eval', 'r.run', '--judgments', 'j.txt'],
+    expect: { rows: [{ query: 'q', item: 'a', score: 3, grade: 0 }, { query: 'q', item: 'b', score: 2, grade: NaN }, { query: 'q', item: 'c', score: 1, grade: 2 }] } },
+  { name: '--columns naming a column the header lacks', files: { 'd.csv': delimited(rows) }, args: ['eval', 'd.csv', '--columns', 'query=sid'],
+    expect: { error: 'd.csv:1', says: /sid/ } },
   { name: 'too many fields', files: { 'f.csv': `${HEADER}q,a,1,1\nq,b,2,0,extra\n` }, args: ['eval', 'f.csv'], expect: { error: 'f.csv:3', says: /fields/ } },
 
   // Bad grades and gains.
