@@ -107,6 +107,8 @@ export const CASES: readonly HostileCase[] = [
     args: ['eval', 'j.jsonl'], expect: { error: 'j.jsonl:2' } },
   { name: 'lone surrogate escape in JSON Lines', files: { 'j.jsonl': '{"query":"q\\ud800","item":"a","score":1,"grade":1}\n{"query":"q\\ud801","item":"a","score":1,"grade":0}\n' },
     args: ['eval', 'j.jsonl'], expect: { error: 'j.jsonl:1', says: /surrogate/ } },
+  { name: 'lone surrogate escape in a JSON Lines segment value', files: { 'j.jsonl': '{"query":"q","item":"a","score":1,"grade":1,"locale":"de"}\n{"query":"q","item":"b","score":1,"grade":0,"locale":"\\udc00"}\n' },
+    args: ['eval', 'j.jsonl'], expect: { error: 'j.jsonl:2', says: /'locale'/ } },
   { name: 'bad byte in a run file', files: { 'r.run': bytes('q Q0 a 1 2 t\nq Q0 b', [0xe9], ' 2 1 t\n'), 'j.txt': 'q 0 a 1\n' },
     args: ['eval', 'r.run', '--judgments', 'j.txt'], expect: { error: 'r.run:2' } },
   { name: 'bad byte in a judgments file', files: { 'r.run': 'q Q0 a 1 2 t\n', 'j.txt': bytes('q 0 a 1\nq 0 b 0\nq 0 c', [0xc0, 0xaf], ' 2\n') },
