@@ -42,7 +42,7 @@ export { evaluate } from './extension/engine/evaluate/evaluate';
 export { parseMetricList } from './extension/engine/metrics/parse';
 export { DEFAULT_CONVENTIONS } from './extension/engine/metrics/conventions';
 export { metricsForCutoffs } from './extension/host/config';
-export * as parallelReading from './extension/engine/readers/parallel';
+export { configureEngine } from './extension/engine/config';
 `;
 await esbuild.build({
   stdin: { contents: entry, resolveDir: root, loader: 'ts' }, bundle: true, platform: 'node', format: 'cjs',
@@ -143,7 +143,7 @@ console.log(`  re-sort 10k queries: max ${fmt(Math.max(...sortMs))}; next page o
 worker.dispose();
 
 // 4. Peer: the same read + evaluate on the main thread (with the same parse threads for big files).
-host.parallelReading.setParseWorkerScript?.(join(root, 'dist', 'parseWorker.js'));
+host.configureEngine({ bundleDir: join(root, 'dist') });
 probe = stallProbe();
 started = performance.now();
 const dump = await host.readDump(file, availableParallelism() <= 2 ? { threads: 1 } : {}); // same rule as the worker

@@ -9,7 +9,7 @@ import { evaluateInParallel } from '../../extension/engine/evaluate/parallelEval
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
 import { parseMetricList } from '../../extension/engine/metrics/parse';
 import { readDump } from '../../extension/engine/readers/index';
-import { sourceTuning } from '../../extension/engine/readers/source';
+import { configureEngine } from '../../extension/engine/config';
 import { TempDir } from './fixtures/readers/tempFiles';
 import { seededRandom } from '../reference/random';
 import { useBundledWorkers } from './fixtures/workers';
@@ -51,8 +51,7 @@ describe('reading repeated queries and segments', () => {
   it.each([[1, 97], [2, 4096], [3, 1 << 16]])('seed %i with %i-byte chunks matches a plain split', async (seed, chunk) => {
     const text = prefixCsv(seed, 6000);
     const path = tmp.file(`prefix-${seed}.csv`, text);
-    const saved = sourceTuning.plainChunkBytes;
-    sourceTuning.plainChunkBytes = chunk;
+    const saved = configureEngine({ tuning: { plainChunkBytes: chunk } });
     try {
       for (const threads of [1, 3]) {
         const dump = await readDump(path, { threads });
@@ -65,7 +64,7 @@ describe('reading repeated queries and segments', () => {
         expect(Array.from({ length: segment.values.size }, (_, i) => segment.values.get(i))).toEqual(device.names);
       }
     } finally {
-      sourceTuning.plainChunkBytes = saved;
+      configureEngine(saved);
     }
   });
 

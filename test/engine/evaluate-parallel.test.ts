@@ -7,7 +7,8 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { CancelledError, InputError } from '../../extension/engine/errors';
 import { evaluate } from '../../extension/engine/evaluate/evaluate';
-import { evaluateInParallel, liveScoreWorkers, scoringTuning, setScoreWorkerScript, splitByRows } from '../../extension/engine/evaluate/parallelEvaluate';
+import { configureEngine, engineActivity, type EngineSettings } from '../../extension/engine/config';
+import { evaluateInParallel, splitByRows } from '../../extension/engine/evaluate/parallelEvaluate';
 import type { Evaluation } from '../../extension/engine/evaluate/types';
 import type { Conventions } from '../../extension/engine/metrics/conventions';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
@@ -21,12 +22,13 @@ import { useBundledWorkers } from './fixtures/workers';
 const tmp = new TempDir();
 
 useBundledWorkers(tmp, ['scoreWorker']);
+let savedSettings: EngineSettings | undefined;
 beforeAll(() => {
   // Every worker claims a chunk before this thread starts, so the comparison cannot pass on this thread alone.
-  scoringTuning.workersFirst = true;
+  savedSettings = configureEngine({ tuning: { workersFirst: true } });
 });
 afterAll(() => {
-  scoringTuning.workersFirst = false;
+  if (savedSettings) configureEngine(savedSettings);
 });
 
 /** Queries of 0–40 items with ties, duplicates, missing scores, unjudged rows and queries with nothing relevant. */
@@ -103,12 +105,11 @@ describe('parallel scoring', () => {
   it.each([1, 3, 200])('with %i chunks per thread it still matches', async (chunksPerThread) => {
     const dump = buildDump(randomRows(20 + chunksPerThread, 1500));
     const one = evaluate(dump, METRICS, DEFAULT_CONVENTIONS);
-    const saved = scoringTuning.chunksPerThread;
-    scoringTuning.chunksPerThread = chunksPerThread;
+    const saved = configureEngine({ tuning: { scoreChunksPerThread: chunksPerThread } });
     try {
       expectIdentical(one, await evaluateInParallel(dump, METRICS, DEFAULT_CONVENTIONS, { threads: 2 }));
     } finally {
-      scoringTuning.chunksPerThread = saved;
+      configureEngine(saved);
     }
   });
 
@@ -116,11 +117,11 @@ describe('parallel scoring', () => {
     const dump = buildDump(randomRows(9, 500));
     const one = evaluate(dump, METRICS, DEFAULT_CONVENTIONS, { sensitivity: false });
     expectIdentical(one, await evaluateInParallel(dump, METRICS, DEFAULT_CONVENTIONS, { threads: 2, sensitivity: false }));
-    setScoreWorkerScript(join(tmp.path, 'missing.js'));
+    const saved = configureEngine({ bundleDir: join(tmp.path, 'missing') });
     try {
       expectIdentical(one, await evaluateInParallel(dump, METRICS, DEFAULT_CONVENTIONS, { threads: 2, sensitivity: false }));
     } finally {
-      setScoreWorkerScript(join(tmp.path, 'scoreWorker.js'));
+      configureEngine(saved);
     }
   });
 
@@ -137,7 +138,7 @@ describe('parallel scoring', () => {
     rows[17] = { ...rows[17]!, label: -1 };
     const dump = buildDump(rows);
     await expect(evaluateInParallel(dump, METRICS, DEFAULT_CONVENTIONS, { threads: 3 })).rejects.toBeInstanceOf(InputError);
-    await expect.poll(liveScoreWorkers, { timeout: 5000 }).toBe(0);
+    await expect.poll(() => engineActivity().liveThreads, { timeout: 5000 }).toBe(0);
     // Under linear gain (and without ERR, which needs grades >= 0) the same dump scores on three threads.
     const linear = { ...DEFAULT_CONVENTIONS, gain: { kind: 'linear' as const } };
     const metrics = parseMetricList('ndcg@10,ap,rbp,tau');

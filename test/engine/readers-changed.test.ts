@@ -10,22 +10,21 @@ import { parquetWriteBuffer } from 'hyparquet-writer';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { InputError } from '../../extension/engine/errors';
 import { readDump, type ReadOptions } from '../../extension/engine/readers/index';
-import { sourceTuning } from '../../extension/engine/readers/source';
+import { configureEngine, type EngineSettings } from '../../extension/engine/config';
 import { seededRandom } from '../reference/random';
 import { TempDir } from './fixtures/readers/tempFiles';
 import { useBundledWorkers } from './fixtures/workers';
 
 const tmp = new TempDir();
-const savedTuning = { ...sourceTuning };
+let savedSettings: EngineSettings | undefined;
 
 useBundledWorkers(tmp, ['parseWorker']);
 beforeAll(() => {
   // Small chunks, so progress is reported (and the file rewritten) long before the end.
-  sourceTuning.plainChunkBytes = 4096;
-  sourceTuning.gzipChunkBytes = 1024;
+  savedSettings = configureEngine({ tuning: { plainChunkBytes: 4096, gzipChunkBytes: 1024 } });
 });
 afterAll(() => {
-  Object.assign(sourceTuning, savedTuning);
+  if (savedSettings) configureEngine(savedSettings);
 });
 
 /** Rows with random scores, so gzip cannot shrink them to a single chunk. */

@@ -10,8 +10,7 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { RankedDump } from '../../extension/engine/model/dump';
 import { readDump } from '../../extension/engine/readers/index';
-import { kernelTuning, setRecordKernel, SimpleRecordsKernel } from '../../extension/engine/readers/simpleRecordsKernel';
-import { sourceTuning } from '../../extension/engine/readers/source';
+import { configureEngine, DEFAULT_TUNING, engineActivity, engineSettings } from '../../extension/engine/config';
 // @ts-expect-error a plain ES module without types
 import { compileRecordKernel } from '../../extension/engine/readers/kernel/compile.mjs';
 import { seededRandom } from '../reference/random';
@@ -20,8 +19,7 @@ import { useBundledWorkers } from './fixtures/workers';
 
 const tmp = new TempDir();
 const kernel = join(tmp.path, 'simpleRecords.wasm');
-const savedChunk = sourceTuning.plainChunkBytes;
-const savedKernelTuning = { ...kernelTuning };
+const savedSettings = engineSettings();
 
 // The parse worker finds the kernel next to itself, as in dist/.
 useBundledWorkers(tmp, ['parseWorker']);
@@ -29,9 +27,7 @@ beforeAll(async () => {
   await compileRecordKernel(kernel);
 }, 120_000);
 afterAll(() => {
-  setRecordKernel(undefined);
-  sourceTuning.plainChunkBytes = savedChunk;
-  Object.assign(kernelTuning, savedKernelTuning);
+  configureEngine(savedSettings);
 });
 
 /** A score or label as dumps spell them, mostly plain decimals. */
@@ -79,9 +75,9 @@ function randomCsv(seed: number, rows: number): string {
 
 async function readBoth(path: string, threads: number): Promise<[RankedDump | Error, RankedDump | Error]> {
   const read = () => readDump(path, { threads }).catch((e: Error) => e);
-  setRecordKernel(undefined);
+  configureEngine({ tuning: { recordKernel: false } });
   const reference = await read();
-  setRecordKernel(kernel);
+  configureEngine({ tuning: { recordKernel: true } });
   return [reference, await read()];
 }
 
@@ -106,12 +102,14 @@ function expectSameDump(a: RankedDump, b: RankedDump): void {
 describe('the record kernel', () => {
   it.each(Array.from({ length: 12 }, (_, i) => [100 + i]))('seed %i reads as the JavaScript loops do', async (seed) => {
     const rnd = seededRandom(seed * 7);
-    sourceTuning.plainChunkBytes = 500 + Math.floor(rnd() * 40_000);
+    const plainChunkBytes = 500 + Math.floor(rnd() * 40_000);
     // Every other seed: calls that fill after a few rows and pieces of a few records, so both limits are crossed often.
-    Object.assign(kernelTuning, seed % 2 === 0 ? { rowsPerCall: 1 + Math.floor(rnd() * 50), pieceBytes: 100 + Math.floor(rnd() * 3000) } : savedKernelTuning);
+    configureEngine({ tuning: { plainChunkBytes, ...(seed % 2 === 0
+      ? { kernelRowsPerCall: 1 + Math.floor(rnd() * 50), kernelPieceBytes: 100 + Math.floor(rnd() * 3000) }
+      : { kernelRowsPerCall: DEFAULT_TUNING.kernelRowsPerCall, kernelPieceBytes: DEFAULT_TUNING.kernelPieceBytes }) } });
     const path = tmp.file(`kernel-${seed}.csv`, randomCsv(seed, 6_000));
     for (const threads of [1, 3]) {
-      const before = SimpleRecordsKernel.rowsParsed;
+      const before = engineActivity().kernelRows;
       const [reference, kernelRead] = await readBoth(path, threads);
       if (reference instanceof Error) {
         expect(kernelRead).toBeInstanceOf(Error);
@@ -121,7 +119,7 @@ describe('the record kernel', () => {
       expect(kernelRead).not.toBeInstanceOf(Error);
       expectSameDump(reference, kernelRead as RankedDump);
       // On one thread the kernel runs here; it must have taken most rows, not handed them all back.
-      if (threads === 1) expect(SimpleRecordsKernel.rowsParsed - before).toBeGreaterThan(reference.rowCount / 3);
+      if (threads === 1) expect(engineActivity().kernelRows - before).toBeGreaterThan(reference.rowCount / 3);
     }
   });
 

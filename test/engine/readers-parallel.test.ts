@@ -9,7 +9,7 @@ import { gradeRange } from '../../extension/engine/evaluate/evaluate';
 import type { RankedDump } from '../../extension/engine/model/dump';
 import { readDump } from '../../extension/engine/readers/index';
 import { readParallelDelimited } from '../../extension/engine/readers/parallel';
-import { sourceTuning } from '../../extension/engine/readers/source';
+import { configureEngine } from '../../extension/engine/config';
 import { TempDir } from './fixtures/readers/tempFiles';
 import { seededRandom } from '../reference/random';
 import { useBundledWorkers } from './fixtures/workers';
@@ -50,8 +50,7 @@ function expectSameDump(a: RankedDump, b: RankedDump): void {
 describe('parallel parsing', () => {
   it.each([[11, 2], [12, 3], [13, 4]])('seed %i with %i threads matches one thread', async (seed, threads) => {
     const path = tmp.file(`par-${seed}.csv`, randomPlainCsv(seed, 20_000));
-    const saved = sourceTuning.plainChunkBytes;
-    sourceTuning.plainChunkBytes = 10_000 + seed;
+    const saved = configureEngine({ tuning: { plainChunkBytes: 10_000 + seed } });
     try {
       const single = await readDump(path, { threads: 1 });
       // Called directly so a silent fall-back to one thread cannot pass for parallel parsing.
@@ -60,7 +59,7 @@ describe('parallel parsing', () => {
       expectSameDump(single, multi!);
       expectSameDump(single, await readDump(path, { threads }));
     } finally {
-      sourceTuning.plainChunkBytes = saved;
+      configureEngine(saved);
     }
   });
 
@@ -111,14 +110,13 @@ describe('parallel parsing', () => {
   it('stops workers when cancelled', async () => {
     const path = tmp.file('par-cancel.csv', randomPlainCsv(41, 50_000));
     const controller = new AbortController();
-    const saved = sourceTuning.plainChunkBytes;
-    sourceTuning.plainChunkBytes = 4096;
+    const saved = configureEngine({ tuning: { plainChunkBytes: 4096 } });
     try {
       const err = await readDump(path, { threads: 2, signal: controller.signal, onProgress: () => controller.abort() })
         .then(() => undefined, (e: unknown) => e);
       expect(err).toBeInstanceOf(CancelledError);
     } finally {
-      sourceTuning.plainChunkBytes = saved;
+      configureEngine(saved);
     }
   });
 });

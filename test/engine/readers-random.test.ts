@@ -8,7 +8,7 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { BytePool } from '../../extension/engine/model/bytePool';
 import { readDump } from '../../extension/engine/readers/index';
 import { describeNonNumber, parseNumber } from '../../extension/engine/readers/numbers';
-import { sourceTuning } from '../../extension/engine/readers/source';
+import { configureEngine } from '../../extension/engine/config';
 import { plainRows, TempDir, type PlainRow } from './fixtures/readers/tempFiles';
 import { seededRandom } from '../reference/random';
 
@@ -183,14 +183,13 @@ describe('random CSV files against the reference parser', () => {
   ])('seed %i with %i-byte chunks gives identical rows, lines and offsets', async (seed, chunk) => {
     const text = randomCsv(seed, 3000, seed !== 4);
     const path = tmp.file(`random-${seed}.csv`, text);
-    const saved = sourceTuning.plainChunkBytes;
-    sourceTuning.plainChunkBytes = chunk;
+    const saved = configureEngine({ tuning: { plainChunkBytes: chunk } });
     try {
       const dump = await readDump(path, { threads: 1 });
       expect(plainRows(dump)).toEqual(expectedRows(text));
       expect(dump.items.size).toBe(new Set(expectedRows(text).map((r) => r.item)).size);
     } finally {
-      sourceTuning.plainChunkBytes = saved;
+      configureEngine(saved);
     }
   });
 });

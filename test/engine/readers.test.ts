@@ -7,7 +7,7 @@ import { gzipSync } from 'node:zlib';
 import { afterAll, describe, expect, it } from 'vitest';
 import { CancelledError, InputError } from '../../extension/engine/errors';
 import { parseColumnRoles, readDump } from '../../extension/engine/readers/index';
-import { sourceTuning } from '../../extension/engine/readers/source';
+import { configureEngine } from '../../extension/engine/config';
 import { plainRows, TempDir } from './fixtures/readers/tempFiles';
 
 const tmp = new TempDir();
@@ -189,8 +189,7 @@ describe('bad input names the file, the line and what was expected', () => {
   it('a file that changes while it is read', async () => {
     const rows = Array.from({ length: 5000 }, (_, i) => `q${i >> 4},sku-${i},${i % 4},${i}`).join('\n');
     const path = tmp.file('changing.csv', `query_id,item_id,label,score\n${rows}\n`);
-    const saved = sourceTuning.plainChunkBytes;
-    sourceTuning.plainChunkBytes = 4096;
+    const saved = configureEngine({ tuning: { plainChunkBytes: 4096 } });
     try {
       let rewritten = false;
       const err = await rejection(readDump(path, {
@@ -205,7 +204,7 @@ describe('bad input names the file, the line and what was expected', () => {
       expect(rewritten).toBe(true);
       expect(err.message).toMatch(/the file changed while it was read; read again/);
     } finally {
-      sourceTuning.plainChunkBytes = saved;
+      configureEngine(saved);
     }
   });
 });
@@ -214,8 +213,7 @@ describe('progress and cancellation', () => {
   it('reports increasing fractions ending at 1, and stops with CancelledError when aborted', async () => {
     const rows = Array.from({ length: 5000 }, (_, i) => `q${i >> 4},sku-${i},${i % 4},${i}`).join('\n');
     const path = tmp.file('progress.csv', `query_id,item_id,label,score\n${rows}\n`);
-    const saved = sourceTuning.plainChunkBytes;
-    sourceTuning.plainChunkBytes = 8192;
+    const saved = configureEngine({ tuning: { plainChunkBytes: 8192 } });
     try {
       const seen: number[] = [];
       await readDump(path, { onProgress: (f) => seen.push(f) });
@@ -231,7 +229,7 @@ describe('progress and cancellation', () => {
       before.abort();
       await expect(readDump(path, { signal: before.signal })).rejects.toBeInstanceOf(CancelledError);
     } finally {
-      sourceTuning.plainChunkBytes = saved;
+      configureEngine(saved);
     }
   });
 });

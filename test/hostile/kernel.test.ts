@@ -6,16 +6,17 @@
  */
 import { existsSync, mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
-import { join } from 'node:path';
+import { dirname, join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import type { RankedDump } from '../../extension/engine/model/dump';
 import { readDump } from '../../extension/engine/readers/index';
-import { setRecordKernel } from '../../extension/engine/readers/simpleRecordsKernel';
+import { configureEngine } from '../../extension/engine/config';
 import { REPO } from '../cli/support/runCli';
 import { CASES } from './cases';
 
 const KERNEL = join(REPO, 'dist/simpleRecords.wasm');
-afterAll(() => setRecordKernel(undefined));
+const savedSettings = configureEngine({});
+afterAll(() => configureEngine(savedSettings));
 
 function outcome(d: RankedDump | Error) {
   if (d instanceof Error) return { error: d.message };
@@ -29,8 +30,9 @@ function outcome(d: RankedDump | Error) {
   };
 }
 
-async function read(path: string, kernel: string | undefined) {
-  setRecordKernel(kernel);
+/** Reads with dist/'s kernel, or with none (the JavaScript loops). */
+async function read(path: string, kernel: boolean) {
+  configureEngine(kernel ? { bundleDir: dirname(KERNEL), tuning: { recordKernel: true } } : { tuning: { recordKernel: false } });
   return outcome(await readDump(path).catch((e: Error) => e));
 }
 
@@ -46,6 +48,6 @@ describe('hostile delimited text: WebAssembly kernel and JavaScript loops agree'
     const dir = mkdtempSync(join(tmpdir(), 'gainline-hostile-kernel-'));
     for (const [name, content] of Object.entries(c.files)) writeFileSync(join(dir, name), content);
     const path = join(dir, c.args[1]!);
-    expect(await read(path, KERNEL)).toEqual(await read(path, undefined));
+    expect(await read(path, true)).toEqual(await read(path, false));
   });
 });

@@ -6,10 +6,9 @@
  * and the sensitivity means over recorded per-query values, so the result is bit-identical to
  * evaluate() on one thread (partial sums added together would round differently).
  */
-import { existsSync } from 'node:fs';
 import { availableParallelism, loadavg } from 'node:os';
-import { join } from 'node:path';
-import { Worker } from 'node:worker_threads';
+import type { Worker } from 'node:worker_threads';
+import { engineSettings } from '../config';
 import { CancelledError } from '../errors';
 import type { RankedDump } from '../model/dump';
 import { groupByQuery, type QueryGroups } from '../model/groups';
@@ -33,6 +32,7 @@ import type { StringPool } from '../model/stringPool';
 // The one step of a report done here: rendering records is number formatting the scoring threads can share.
 import { packNames, renderQueryRecords, type QueryRecordsSpec } from '../report/jsonRecords';
 import type { Evaluation, PerQueryColumns } from './types';
+import { startThread, threadScript } from '../threads/spawn';
 
 /**
  * Below this many rows starting a worker costs more than it saves: on 1M rows (0.4 s of scoring on one
@@ -40,21 +40,6 @@ import type { Evaluation, PerQueryColumns } from './types';
  */
 const PARALLEL_FROM_ROWS = 2_000_000;
 const MAX_THREADS = 4;
-
-export const scoringTuning = {
-  /** Chunks per thread: enough that a slowed thread leaves little for the others to wait on. */
-  chunksPerThread: 16,
-  /** Tests only: this thread claims chunks only after every worker has claimed one, so workers surely take part. */
-  workersFirst: false,
-};
-
-declare const __dirname: string | undefined;
-let workerScript: string | undefined = typeof __dirname === 'string' ? join(__dirname, 'scoreWorker.js') : undefined;
-
-/** Where the bundled score worker lives (next to the bundle by default; tests point at a fresh build). */
-export function setScoreWorkerScript(path: string | undefined): void {
-  workerScript = path;
-}
 
 export interface ParallelEvaluateOptions extends EvaluateOptions {
   /** Scoring threads including this one; default: 1 below PARALLEL_FROM_ROWS rows, else the free cores (at most 4). */
@@ -106,7 +91,8 @@ export function scoringThreads(rows: number, threads: number | undefined, otherB
 export async function evaluateInParallel(dump: RankedDump, metrics: readonly MetricSpec[], conventions: Conventions,
   options: ParallelEvaluateOptions = {}): Promise<Evaluation> {
   const threads = Math.min(scoringThreads(dump.rowCount, options.threads, options.otherBusyCores), dump.queries.size);
-  if (threads <= 1 || workerScript === undefined || !existsSync(workerScript)) return evaluate(dump, metrics, conventions, options);
+  const workerScript = threads <= 1 ? undefined : threadScript('scoreWorker');
+  if (workerScript === undefined) return evaluate(dump, metrics, conventions, options);
   // Started first: a thread takes about 0.1 s to start, time this thread spends grouping and preparing.
   const running = startWorkers(workerScript, threads - 1, options.signal);
   // Keep a rejection from going unhandled while this thread is busy with its own chunks.
@@ -129,7 +115,7 @@ async function scoreWithWorkers(dump: RankedDump, metrics: readonly MetricSpec[]
     entered: Array.from({ length: sensitivity.variantCount }, () => new Uint8Array(shared(setup.queryCount))),
   };
   if (recorded) sensitivity!.recordInto(recorded);
-  const bounds = splitByRows(setup.groups.start, Math.min(setup.queryCount, threads * scoringTuning.chunksPerThread));
+  const bounds = splitByRows(setup.groups.start, Math.min(setup.queryCount, threads * engineSettings().tuning.scoreChunksPerThread));
   const next = new Int32Array(shared(4));
   const columns: ScoredColumns = { item: dump.item, label: dump.label, score: dump.score };
   const records = options.renderJsonRecords && { metrics: setup.metrics, names: packNames(options.renderJsonRecords) };
@@ -137,7 +123,7 @@ async function scoreWithWorkers(dump: RankedDump, metrics: readonly MetricSpec[]
   running.post(task);
   const tally = emptyTally();
   const texts: string[] = new Array(bounds.length - 1);
-  if (scoringTuning.workersFirst) await running.started;
+  if (engineSettings().tuning.workersFirst) await running.started;
   const scorer = new RangeScorer(setup, dump, perQuery, sensitivity);
   claimChunks(scorer, bounds, next, tally, options, records && { spec: records, perQuery, into: texts });
   for (const result of await running) {
@@ -225,13 +211,6 @@ function unshared(p: PerQueryColumns): PerQueryColumns {
   };
 }
 
-let live = 0;
-
-/** Score worker threads started and not yet exited (lets tests see that none is left behind). */
-export function liveScoreWorkers(): number {
-  return live;
-}
-
 /** Score workers: `post` hands each the task; settles with their results, or rejects on the first failure. */
 type Running = Promise<ScoreRangeResult[]> & { post(task: ScoreRangeTask): void; stop(): void; started: Promise<void> };
 
@@ -259,8 +238,7 @@ function startWorkers(script: string, count: number, signal: AbortSignal | undef
     stop = () => finish(new CancelledError());
     signal?.addEventListener('abort', onAbort);
     for (let k = 0; k < count; k++) {
-      const worker = new Worker(script);
-      live++;
+      const worker = startThread(script);
       workers.push(worker);
       worker.on('message', (msg: { claimed?: boolean; result?: ScoreRangeResult; failure?: string }) => {
         if (msg.claimed) {
@@ -272,7 +250,6 @@ function startWorkers(script: string, count: number, signal: AbortSignal | undef
       });
       worker.on('error', (err) => finish(err));
       worker.on('exit', (code) => {
-        live--;
         if (results[k] === undefined) finish(new Error(`score worker exited with code ${code}`));
       });
     }

@@ -5,10 +5,9 @@
  * order, which reproduces exactly the ids a single pass would give. Any quote byte in the file
  * makes the split unsafe; the caller then falls back to one thread.
  */
-import { existsSync, promises as fsp } from 'node:fs';
+import { promises as fsp } from 'node:fs';
 import { availableParallelism } from 'node:os';
-import { join } from 'node:path';
-import { Worker } from 'node:worker_threads';
+import { engineSettings } from '../config';
 import { CancelledError, InputError } from '../errors';
 import { BytePool, hashBytes, type BytePoolState } from '../model/bytePool';
 import type { RankedDump } from '../model/dump';
@@ -17,7 +16,8 @@ import { RowColumns, type SharedColumns } from './columns';
 import { DelimitedParser } from './delimited';
 import type { ReadOptions } from './index';
 import { parseRange, type RangeResult, type RangeTask } from './rangeParse';
-import { assertTextHead, checkUnchanged, sourceTuning, statStamp, throwIfCancelled } from './source';
+import { assertTextHead, checkUnchanged, statStamp, throwIfCancelled } from './source';
+import { startThread, threadScript } from '../threads/spawn';
 
 /**
  * Below this size one thread is faster: a worker starts cold, and the merge re-interns the later
@@ -26,14 +26,6 @@ import { assertTextHead, checkUnchanged, sourceTuning, statStamp, throwIfCancell
  */
 const PARALLEL_FROM_BYTES = 96 << 20;
 const MAX_THREADS = 4;
-
-declare const __dirname: string | undefined;
-let workerScript: string | undefined = typeof __dirname === 'string' ? join(__dirname, 'parseWorker.js') : undefined;
-
-/** Where the bundled parse worker lives (next to the bundle by default; tests point at a fresh build). */
-export function setParseWorkerScript(path: string | undefined): void {
-  workerScript = path;
-}
 
 export async function shouldParseInParallel(path: string, threads: number | undefined): Promise<number> {
   if (threads !== undefined) return Math.max(1, Math.min(16, Math.floor(threads)));
@@ -44,14 +36,15 @@ export async function shouldParseInParallel(path: string, threads: number | unde
 /** Returns undefined when the file cannot be split safely (quotes, no workers available). */
 export async function readParallelDelimited(path: string, format: 'csv' | 'tsv', delimiter: number, threads: number,
   options: ReadOptions): Promise<RankedDump | undefined> {
-  if (workerScript === undefined || !existsSync(workerScript)) return undefined;
+  const workerScript = threadScript('parseWorker');
+  if (workerScript === undefined) return undefined;
   const stamp = await statStamp(path);
   const header = await readHeader(path, delimiter, options);
   if (header === undefined) return undefined;
   const bounds = await splitPoints(path, header.end, stamp.size, threads);
   const slices = sharedSlices(bounds, header.bytesPerRow, header.parser.columns!.segmentNames.length);
   const tasks: RangeTask[] = bounds.slice(0, -1).map((start, k) => ({
-    path, start, end: bounds[k + 1]!, delimiter, names: header.names, columns: options.columns, chunkBytes: sourceTuning.plainChunkBytes,
+    path, start, end: bounds[k + 1]!, delimiter, names: header.names, columns: options.columns, chunkBytes: engineSettings().tuning.plainChunkBytes,
     shared: slices[k],
   }));
   const results = await parseRanges(workerScript, tasks, stamp.size, options);
@@ -220,7 +213,7 @@ function parseRanges(script: string, tasks: RangeTask[], size: number, options: 
   return new Promise((resolve, reject) => {
     const results: (RangeResult | undefined)[] = tasks.map(() => undefined);
     const done = tasks.map(() => 0);
-    const workers = tasks.slice(1).map((task) => new Worker(script, { workerData: task }));
+    const workers = tasks.slice(1).map((task) => startThread(script, task));
     let pending = tasks.length;
     let settled = false;
     const finish = (err?: Error) => {

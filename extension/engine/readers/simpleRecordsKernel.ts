@@ -9,6 +9,7 @@
  */
 import { existsSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
+import { engineActivity, engineSettings } from '../config';
 import type { BytePool } from '../model/bytePool';
 import { parseSimpleRecords, POW10, ROLE_ITEM, ROLE_QUERY, ROLE_SEGMENT, type FastState } from './delimitedFast';
 
@@ -21,33 +22,24 @@ interface KernelExports {
   lineAfter(): number;
 }
 
-declare const __dirname: string | undefined;
-let kernelPath: string | undefined = typeof __dirname === 'string' ? join(__dirname, 'simpleRecords.wasm') : undefined;
-let compiled: WebAssembly.Module | null | undefined;
-
-/** Where the compiled kernel lives (next to the bundle by default; tests point at a fresh build, or undefined for none). */
-export function setRecordKernel(path: string | undefined): void {
-  kernelPath = path;
-  compiled = undefined;
-}
+/** The compiled kernel of the configured bundle folder, compiled once per folder. */
+let compiled: { readonly path: string; readonly module: WebAssembly.Module | null } | undefined;
 
 function kernelModule(): WebAssembly.Module | undefined {
-  if (compiled === undefined) {
+  const { bundleDir, tuning } = engineSettings();
+  if (bundleDir === undefined || !tuning.recordKernel) return undefined;
+  const path = join(bundleDir, 'simpleRecords.wasm');
+  if (compiled?.path !== path) {
+    let module: WebAssembly.Module | null = null;
     try {
-      compiled = kernelPath !== undefined && existsSync(kernelPath) ? new WebAssembly.Module(readFileSync(kernelPath)) : null;
+      if (existsSync(path)) module = new WebAssembly.Module(readFileSync(path));
     } catch {
       // WebAssembly switched off (Node's --jitless, a host policy): the JavaScript loop reads the same rows.
-      compiled = null;
     }
+    compiled = { path, module };
   }
-  return compiled ?? undefined;
+  return compiled.module ?? undefined;
 }
-
-/**
- * Rows per kernel call and input bytes per piece (a piece of typical rows fills about one call).
- * Tests make them small to cross every boundary often; a kernel reads them when it is created.
- */
-export const kernelTuning = { rowsPerCall: 16384, pieceBytes: 1 << 20 };
 /** After the kernel stops early this often in a row, the JavaScript loop takes longer runs (e.g. every score has an exponent). */
 const JS_RUN_AFTER_SHORT_CALL = 256;
 
@@ -55,8 +47,6 @@ const PAGE = 65536;
 const align = (n: number) => (n + 7) & ~7;
 
 export class SimpleRecordsKernel {
-  /** Rows stored from kernel output in this thread, ever (lets tests see the kernel really ran). */
-  static rowsParsed = 0;
   private readonly kernel: KernelExports;
   private readonly input: number;
   private readonly bytes: Uint8Array;
@@ -70,8 +60,8 @@ export class SimpleRecordsKernel {
   /** Per field: the role and, for id fields, the output slot. */
   private readonly fields: { role: number; slot: number }[];
   private readonly records = new Int32Array(64);
-  private readonly rowsPerCall = kernelTuning.rowsPerCall;
-  private readonly pieceBytes = kernelTuning.pieceBytes;
+  private readonly rowsPerCall = engineSettings().tuning.kernelRowsPerCall;
+  private readonly pieceBytes = engineSettings().tuning.kernelPieceBytes;
 
   /** Undefined when no compiled kernel is available. */
   static create(roleOf: Int32Array): SimpleRecordsKernel | undefined {
@@ -175,7 +165,7 @@ export class SimpleRecordsKernel {
     const add = base + shift;
     for (let r = 0; r < count; r++) offset[first + r] = start[r]! + add;
     rows.count = first + count;
-    SimpleRecordsKernel.rowsParsed += count;
+    engineActivity().kernelRows += count;
   }
 
   /** Item ids in batches of 64: warm the table slots of a batch first, so their cache misses overlap. */

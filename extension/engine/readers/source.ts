@@ -5,6 +5,7 @@
  */
 import { createReadStream, promises as fsp } from 'node:fs';
 import { createGunzip } from 'node:zlib';
+import { engineSettings } from '../config';
 import { CancelledError, InputError } from '../errors';
 import type { FileStamp } from '../model/dump';
 import { assertTextHead, badByteError, firstBadByte, lineAt } from './textCheck';
@@ -20,9 +21,6 @@ export interface PumpOptions {
   onProgress?: (fraction: number) => void;
   chunkBytes?: number;
 }
-
-/** Chunk sizes; tests shrink them to put record boundaries at every possible place. */
-export const sourceTuning = { plainChunkBytes: 8 << 20, gzipChunkBytes: 1 << 20 };
 
 export async function statStamp(path: string): Promise<FileStamp> {
   try {
@@ -119,7 +117,7 @@ export async function pumpText(path: string, sink: RecordSink, options: PumpOpti
  * Used by parse workers, each taking one newline-aligned range of a large file.
  */
 export async function pumpRange(path: string, start: number, end: number, sink: RecordSink,
-  onBytes: (done: number) => void, chunkBytes = sourceTuning.plainChunkBytes): Promise<void> {
+  onBytes: (done: number) => void, chunkBytes = engineSettings().tuning.plainChunkBytes): Promise<void> {
   await feedPlain(path, start, end, sink, { onBytes: (at) => onBytes(at - start), chunkBytes, guard: new TextGuard(path, false, start) });
 }
 
@@ -133,7 +131,7 @@ async function feedPlain(path: string, from: number, to: number, sink: RecordSin
   options: { fileStart?: string; signal?: AbortSignal; onBytes: (position: number) => void; chunkBytes?: number | undefined;
     guard: TextGuard }): Promise<void> {
   const fh = await fsp.open(path, 'r');
-  const chunk = Math.max(16, options.chunkBytes ?? sourceTuning.plainChunkBytes);
+  const chunk = Math.max(16, options.chunkBytes ?? engineSettings().tuning.plainChunkBytes);
   let room = chunk;
   let buffers = [Buffer.allocUnsafe(room + chunk), Buffer.allocUnsafe(room + chunk)];
   let position = from;
@@ -240,7 +238,7 @@ async function feedChunks(chunks: AsyncIterable<Buffer>, sink: RecordSink, fileS
 }
 
 async function* gunzipChunks(path: string, progress: { done: number }): AsyncGenerator<Buffer> {
-  const chunkSize = Math.max(64, sourceTuning.gzipChunkBytes);
+  const chunkSize = Math.max(64, engineSettings().tuning.gzipChunkBytes);
   const raw = createReadStream(path, { highWaterMark: chunkSize });
   const gunzip = createGunzip({ chunkSize });
   raw.on('data', (d) => {

@@ -1,0 +1,88 @@
+/**
+ * The engine's one set of process-wide settings: where the bundled thread scripts live and the
+ * tuning knobs tests turn. Everything that used to be a setter, a tuning object or a module-level
+ * path is read from here, so a test changes it in one call and restores it with the value returned.
+ */
+
+/** Knobs with a measured default; tests shrink them to reach chunk and range boundaries on small files. */
+export interface EngineTuning {
+  /** Bytes per read of a plain text file (and per chunk a parse range is fed in). */
+  readonly plainChunkBytes: number;
+  /** Bytes of compressed input per read of a gzip file. */
+  readonly gzipChunkBytes: number;
+  /** Query chunks per scoring thread: enough that a slowed thread leaves little for the others to wait on. */
+  readonly scoreChunksPerThread: number;
+  /** Rows per call of the WebAssembly record kernel (read when a kernel is created). */
+  readonly kernelRowsPerCall: number;
+  /** Input bytes per piece handed to the kernel (a piece of typical rows fills about one call). */
+  readonly kernelPieceBytes: number;
+  /** Tests switch the record kernel off to get the JavaScript loops' reading to compare with. */
+  readonly recordKernel: boolean;
+  /** Tests only: this thread claims score chunks only after every worker has claimed one, so workers surely take part. */
+  readonly workersFirst: boolean;
+}
+
+export interface EngineSettings {
+  /**
+   * Folder holding the bundled thread scripts (parseWorker.js, scoreWorker.js) and the compiled
+   * record kernel (simpleRecords.wasm); undefined runs everything on the calling thread in JavaScript. Default: the folder of the bundle the engine was built into.
+   */
+  readonly bundleDir: string | undefined;
+  readonly tuning: EngineTuning;
+}
+
+export const DEFAULT_TUNING: EngineTuning = {
+  plainChunkBytes: 8 << 20,
+  gzipChunkBytes: 1 << 20,
+  scoreChunksPerThread: 16,
+  kernelRowsPerCall: 16384,
+  kernelPieceBytes: 1 << 20,
+  recordKernel: true,
+  workersFirst: false,
+};
+
+declare const __dirname: string | undefined;
+
+let current: EngineSettings = {
+  // Bundled by esbuild into dist/, __dirname is dist/ where the thread scripts sit; under vitest it is a
+  // source folder without them, and everything runs on one thread unless a test bundles the scripts.
+  bundleDir: typeof __dirname === 'string' ? __dirname : undefined,
+  tuning: DEFAULT_TUNING,
+};
+
+export interface EngineConfiguration {
+  readonly bundleDir?: string | undefined;
+  readonly tuning?: Partial<EngineTuning>;
+}
+
+/**
+ * Changes the given settings (a `bundleDir` key present with undefined switches threads off) and
+ * returns the settings as they were, to pass back to configureEngine to restore them.
+ */
+export function configureEngine(change: EngineConfiguration): EngineSettings {
+  const before = current;
+  current = {
+    bundleDir: 'bundleDir' in change ? change.bundleDir : before.bundleDir,
+    tuning: { ...before.tuning, ...change.tuning },
+  };
+  return before;
+}
+
+export function engineSettings(): EngineSettings {
+  return current;
+}
+
+/** What the engine did in this thread, for tests to see that a fast path really ran and nothing was left behind. */
+export interface EngineActivity {
+  /** Engine threads started from this thread and not yet exited. */
+  liveThreads: number;
+  /** Rows stored from the record kernel's output in this thread, ever. */
+  kernelRows: number;
+}
+
+const activity: EngineActivity = { liveThreads: 0, kernelRows: 0 };
+
+/** The live counters (the engine's threads and kernel add to them). */
+export function engineActivity(): EngineActivity {
+  return activity;
+}
