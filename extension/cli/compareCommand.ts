@@ -4,7 +4,8 @@
  */
 import { stat } from 'node:fs/promises';
 import { resolve } from 'node:path';
-import { compareRuns, DEFAULT_COMPARE_OPTIONS } from '../engine/compare/compare';
+import { DEFAULT_COMPARE_OPTIONS } from '../engine/compare/compare';
+import { compareRuns } from '../engine/index';
 import { InputError } from '../engine/errors';
 import { COMPARE_FORMATS, formatComparison, type CompareFormat } from '../engine/report/compareReport';
 import { conventionHelp, conventionOptions, parseCommandArgs, scoringSetupFrom } from './conventionArgs';
@@ -84,6 +85,7 @@ export async function runCompare(argv: string[], io: CliIO): Promise<number> {
       seed,
       tieTolerance,
       onProgress: progress?.scoring,
+      ...(setup.read.threads !== undefined ? { threads: setup.read.threads } : {}),
     });
     progress?.done();
     io.out(formatComparison(format, { comparison, queryNamesA: a.queries, sourceA, sourceB }, { top }));

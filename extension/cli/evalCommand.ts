@@ -4,10 +4,9 @@
 import { stat } from 'node:fs/promises';
 import { resolve } from 'node:path';
 import { InputError } from '../engine/errors';
-import { CoreMeter } from '../engine/evaluate/coreMeter';
-import { evaluateInParallel } from '../engine/evaluate/parallelEvaluate';
-import { readDump } from '../engine/readers/index';
+import { evaluateDump, readDump } from '../engine/index';
 import { formatReport, REPORT_FORMATS, type ReportFormat } from '../engine/report/index';
+import { collectQueryRecords } from '../engine/report/jsonRecords';
 import { conventionHelp, conventionOptions, parseCommandArgs, scoringSetupFrom } from './conventionArgs';
 import type { CliIO } from './io';
 import { progressLine } from './progress';
@@ -58,23 +57,23 @@ export async function runEval(argv: string[], io: CliIO): Promise<number> {
   const size = (await stat(path)).size;
   const progress = io.isTTY && size >= PROGRESS_FROM_BYTES ? progressLine(io, source) : undefined;
   const started = performance.now();
-  // Measures what other programs do during the read, to decide how many threads may score.
-  const meter = new CoreMeter();
   try {
     const dump = await readDump(path, { ...setup.read, onProgress: progress?.reading });
     const read = performance.now();
     // CSV and Markdown do not show the sensitivity rows; skipping them saves a third of the scoring time.
     const sensitivity = format === 'table' || format === 'json';
-    const evaluation = await evaluateInParallel(dump, setup.metrics, setup.conventions, {
+    // The JSON report's records are rendered by the scoring threads, chunk by chunk (see report/jsonRecords.ts).
+    const records = format === 'json' ? collectQueryRecords(setup.metrics, dump.queries) : undefined;
+    const evaluation = await evaluateDump(dump, setup.metrics, setup.conventions, {
       onProgress: progress?.scoring,
       sensitivity,
       threads: setup.read.threads,
-      otherBusyCores: meter.otherBusyCores(),
-      ...(format === 'json' ? { renderJsonRecords: dump.queries } : {}),
+      ...(records ? { perChunk: records.output } : {}),
     });
     const scored = performance.now();
     progress?.done();
-    io.out(formatReport(format, { evaluation, queryNames: dump.queries, source, rowCount: dump.rowCount }, { worst }));
+    const input = { evaluation, queryNames: dump.queries, source, rowCount: dump.rowCount, ...(records ? { queryRecords: records.pieces() } : {}) };
+    io.out(formatReport(format, input, { worst }));
     if (values.timings) {
       const s = (ms: number) => (ms / 1000).toFixed(3);
       io.err(`timings: read ${s(read - started)} s, score ${s(scored - read)} s, report ${s(performance.now() - scored)} s (${dump.rowCount} rows)\n`);

@@ -2,8 +2,7 @@
  * Reads the two runs of a comparison. A large B is parsed on a worker thread while this thread parses
  * A, so on two cores reading both takes about as long as reading one.
  */
-import type { RankedDump } from '../engine/model/dump';
-import { readDump, type ReadOptions } from '../engine/readers/index';
+import { readDump, type RankedDump, type ReadOptions } from '../engine/index';
 
 /** Below this size B is read after A on this thread: starting a parse worker costs more than it saves. */
 export const CONCURRENT_FROM_BYTES = 16 << 20;

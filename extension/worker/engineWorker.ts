@@ -9,16 +9,15 @@
 import { availableParallelism } from 'node:os';
 import { parentPort, workerData } from 'node:worker_threads';
 import { CancelledError, InputError } from '../engine/errors';
-import { compareRuns } from '../engine/compare/compare';
 import { queryMovement } from '../engine/compare/movement';
 import { queryDetail, type GradeRange } from '../engine/evaluate/detail';
-import { evaluate, gradeRange } from '../engine/evaluate/evaluate';
+import { gradeRange } from '../engine/evaluate/evaluate';
+import { compareRuns, evaluateDump, readDump, type ReadOptions } from '../engine/index';
 import { headlineCutoff } from '../engine/evaluate/scorer';
 import type { Evaluation } from '../engine/evaluate/types';
 import { parseMetricList } from '../engine/metrics/parse';
 import type { RankedDump } from '../engine/model/dump';
 import { groupByQuery, type QueryGroups } from '../engine/model/groups';
-import { readDump, type ReadOptions } from '../engine/readers/index';
 import { conventionsAsJson } from '../engine/report/reportInput';
 import type { Comparison } from '../engine/compare/compare';
 import { RequestServer, type HandlerContext, type RequestHandlers } from '../protocol/request';
@@ -136,7 +135,7 @@ const handlers: RequestHandlers<WorkerRequests> = {
     const dump = await read(source, ctx, 0, 0.75);
     const groups = groupByQuery(dump);
     const metrics = parseMetricList(settings.metrics);
-    const evaluation = evaluate(dump, metrics, settings.conventions, { groups, signal: ctx.signal, onProgress: progressReporter(ctx, 0.75, 1, 'Scoring queries…') });
+    const evaluation = await evaluateDump(dump, metrics, settings.conventions, { groups, signal: ctx.signal, onProgress: progressReporter(ctx, 0.75, 1, 'Scoring queries…') });
     const entry = loaded(dump, evaluation, groups);
     sessions.set(key, { kind: 'single', ...entry });
     return overviewModel(dump, evaluation, performance.now() - started);
@@ -169,7 +168,7 @@ const handlers: RequestHandlers<WorkerRequests> = {
   async headline({ source, settings }, ctx) {
     const dump = await read(source, ctx, 0, 0.8);
     const metrics = parseMetricList(settings.metrics);
-    const evaluation = evaluate(dump, metrics, settings.conventions, { signal: ctx.signal, sensitivity: false });
+    const evaluation = await evaluateDump(dump, metrics, settings.conventions, { signal: ctx.signal, sensitivity: false });
     const h = evaluation.headline;
     const mean = evaluation.summary[h]?.mean ?? NaN;
     return { key: metrics[h]!.key, label: metricLabel(metrics[h]!), mean: Number.isFinite(mean) ? mean : null, queryCount: evaluation.queryCount, rowCount: dump.rowCount };

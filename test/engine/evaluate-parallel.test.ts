@@ -14,6 +14,7 @@ import type { Conventions } from '../../extension/engine/metrics/conventions';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
 import { parseMetricList } from '../../extension/engine/metrics/parse';
 import { formatJson } from '../../extension/engine/report/json';
+import { collectQueryRecords } from '../../extension/engine/report/jsonRecords';
 import { buildDump, type TestRow } from './dumpBuilder';
 import { TempDir } from './fixtures/readers/tempFiles';
 import { QUERY_NAMES, seededRandom } from '../reference/random';
@@ -93,13 +94,31 @@ describe('parallel scoring', () => {
   it('renders the JSON report records on the scoring threads, the same text as rendering after scoring', async () => {
     const dump = buildDump(randomRows(31, 2500));
     const one = evaluate(dump, METRICS, DEFAULT_CONVENTIONS);
-    const many = await evaluateInParallel(dump, METRICS, DEFAULT_CONVENTIONS, { threads: 3, renderJsonRecords: dump.queries });
+    const records = collectQueryRecords(METRICS, dump.queries);
+    const chunks: [number, number][] = [];
+    const output = { ...records.output, onChunk: (from: number, to: number, text: string) => {
+      chunks.push([from, to]);
+      records.output.onChunk(from, to, text);
+    } };
+    const many = await evaluateInParallel(dump, METRICS, DEFAULT_CONVENTIONS, { threads: 3, perChunk: output });
     expectIdentical(one, many);
-    // 3 threads × 16 chunks, each rendered by whichever thread scored it.
-    expect(many.jsonRecords?.length).toBe(48);
+    // 3 threads × 16 chunks, each rendered by whichever thread scored it; together they cover every query once.
+    expect(chunks).toHaveLength(48);
+    chunks.sort((a, b) => a[0] - b[0]);
+    chunks.forEach(([from, to], c) => {
+      expect(from).toBe(c === 0 ? 0 : chunks[c - 1]![1]);
+      expect(to).toBeGreaterThan(from);
+    });
+    expect(chunks.at(-1)![1]).toBe(dump.queries.size);
     const input = { queryNames: dump.queries, source: 'runs/a.csv', rowCount: dump.rowCount };
-    expect(formatJson({ ...input, evaluation: many })).toBe(formatJson({ ...input, evaluation: one }));
-    expect(JSON.parse(formatJson({ ...input, evaluation: many })).queries).toHaveLength(dump.queries.size);
+    const rendered = formatJson({ ...input, evaluation: many, queryRecords: records.pieces() });
+    expect(rendered).toBe(formatJson({ ...input, evaluation: one }));
+    expect(JSON.parse(rendered).queries).toHaveLength(dump.queries.size);
+    // On one thread the same output arrives as one chunk of every query.
+    const single = collectQueryRecords(METRICS, dump.queries);
+    evaluate(dump, METRICS, DEFAULT_CONVENTIONS, { perChunk: single.output });
+    expect(single.pieces()).toHaveLength(1);
+    expect(formatJson({ ...input, evaluation: one, queryRecords: single.pieces() })).toBe(rendered);
   });
 
   it.each([1, 3, 200])('with %i chunks per thread it still matches', async (chunksPerThread) => {

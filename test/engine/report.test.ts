@@ -121,7 +121,7 @@ describe('JSON records rendered by hand', () => {
     const perQuery = input.evaluation.perQuery;
     const chunks = [renderQueryRecords(spec, perQuery, 0, 1), renderQueryRecords(spec, perQuery, 1, 3)];
     expect(renderQueryRecords(spec, perQuery, 2, 2)).toBe('');
-    const withChunks = { ...input, evaluation: { ...input.evaluation, jsonRecords: chunks } };
+    const withChunks = { ...input, queryRecords: chunks };
     expect(formatJson(withChunks)).toBe(formatJson(input));
     expect(formatJson(input)).toBe(slowJson(input));
   });

@@ -96,12 +96,17 @@ export interface Comparison {
   readonly warnings: readonly string[];
 }
 
+/** Scores one run under the shared conventions (without sensitivity rows); the engine entry passes its own. */
+export type RunEvaluator = (dump: RankedDump, metrics: readonly MetricSpec[], conventions: Conventions,
+  options: { groups: QueryGroups; signal?: AbortSignal; sensitivity: false; onProgress: (fraction: number) => void }) => Evaluation | Promise<Evaluation>;
+
 export async function compareRuns(
   a: RankedDump,
   b: RankedDump,
   metrics: readonly MetricSpec[],
   conventions: Conventions,
   options: Partial<CompareOptions> = {},
+  evaluateRun: RunEvaluator = evaluate,
 ): Promise<Comparison> {
   const o: CompareOptions = { ...DEFAULT_COMPARE_OPTIONS, ...options };
   const progress = stagedProgress(o.onProgress);
@@ -113,12 +118,12 @@ export async function compareRuns(
     throw new InputError(`a run that shares at least one query with ${a.path} (none of its ${match.queriesInB} queries appear there)`, b.path);
   }
   const shared = sharedConventions(a, b, metrics, conventions);
-  const evaluateOne = (dump: RankedDump, groups: QueryGroups): Evaluation =>
-    evaluate(dump, metrics, shared, { groups, signal: o.signal, sensitivity: false, onProgress: progress.report });
+  const evaluateOne = (dump: RankedDump, groups: QueryGroups): Evaluation | Promise<Evaluation> =>
+    evaluateRun(dump, metrics, shared, { groups, ...(o.signal ? { signal: o.signal } : {}), sensitivity: false, onProgress: progress.report });
   progress.stage(0.3);
-  const evaluationA = evaluateOne(a, groupsA);
+  const evaluationA = await evaluateOne(a, groupsA);
   progress.stage(0.3);
-  const evaluationB = evaluateOne(b, groupsB);
+  const evaluationB = await evaluateOne(b, groupsB);
 
   const perQuery = pairColumns(match, evaluationA, evaluationB);
   const loop = { signal: o.signal, onProgress: progress.fraction };

@@ -9,6 +9,7 @@ import { gradeRangeOf, summariseRows, type GradeRange } from '../model/rowSummar
 export type { GradeRange } from '../model/rowSummary';
 import { groupByQuery, type QueryGroups } from '../model/groups';
 import type { Conventions, MetricSpec } from '../metrics/conventions';
+import { renderChunk, type ChunkOutput } from './chunkOutput';
 import { checkGainsAndGrades, gainProblem } from './gainLimits';
 import { QueryRanking, SeenItems } from './ranking';
 import { headlineCutoff, QueryScorer } from './scorer';
@@ -22,6 +23,8 @@ export interface EvaluateOptions {
   onProgress?: (fraction: number) => void;
   /** Compute the convention sensitivity rows (default true). */
   sensitivity?: boolean;
+  /** Text the caller wants made from each chunk of scored queries (see chunkOutput.ts). */
+  perChunk?: ChunkOutput;
 }
 
 /**
@@ -60,6 +63,7 @@ export function evaluate(
   const perQuery = allocatePerQuery(setup.queryCount, metrics, setup.hasRbp, (bytes) => new ArrayBuffer(bytes));
   const sensitivity = setup.sensitivity ? newSensitivityPass(setup) : undefined;
   const tally = scoreQueryRange(setup, dump, 0, setup.queryCount, perQuery, sensitivity, options);
+  if (options.perChunk) options.perChunk.onChunk(0, setup.queryCount, renderChunk(options.perChunk, perQuery, 0, setup.queryCount));
   options.onProgress?.(1);
   return finishEvaluation(setup, dump, perQuery, tally, sensitivity);
 }

@@ -28,9 +28,7 @@ import {
   type ScoredColumns,
 } from './evaluate';
 import type { SensitivityColumns } from './sensitivity';
-import type { StringPool } from '../model/stringPool';
-// The one step of a report done here: rendering records is number formatting the scoring threads can share.
-import { packNames, renderQueryRecords, type QueryRecordsSpec } from '../report/jsonRecords';
+import { renderChunk, type ChunkWork } from './chunkOutput';
 import type { Evaluation, PerQueryColumns } from './types';
 import { startThread, threadScript } from '../threads/spawn';
 
@@ -49,11 +47,6 @@ export interface ParallelEvaluateOptions extends EvaluateOptions {
    * default: the 1-minute load average.
    */
   otherBusyCores?: number;
-  /**
-   * Query names: when given, each scoring thread also renders the JSON report's records of the chunks
-   * it scored, returned in `jsonRecords` (only when more than one thread scores).
-   */
-  renderJsonRecords?: StringPool;
 }
 
 /** A score worker's job. Typed arrays on SharedArrayBuffers are shared, not copied. */
@@ -66,14 +59,14 @@ export interface ScoreRangeTask {
   readonly next: Int32Array;
   readonly perQuery: PerQueryColumns;
   readonly sensitivity?: SensitivityColumns;
-  /** Set when the JSON report's records are to be rendered too, chunk by chunk. */
-  readonly records?: QueryRecordsSpec;
+  /** Set when the caller wants text made from each chunk too (see chunkOutput.ts). */
+  readonly perChunk?: ChunkWork;
 }
 
-/** What a scoring thread hands back: its counts, and the records it rendered as [chunk, text] pairs. */
+/** What a scoring thread hands back: its counts, and the text of each chunk it scored as [chunk, text] pairs. */
 export interface ScoreRangeResult {
   readonly tally: RangeTally;
-  readonly records: [number, string][];
+  readonly chunkTexts: [number, string][];
 }
 
 /**
@@ -118,22 +111,22 @@ async function scoreWithWorkers(dump: RankedDump, metrics: readonly MetricSpec[]
   const bounds = splitByRows(setup.groups.start, Math.min(setup.queryCount, threads * engineSettings().tuning.scoreChunksPerThread));
   const next = new Int32Array(shared(4));
   const columns: ScoredColumns = { item: dump.item, label: dump.label, score: dump.score };
-  const records = options.renderJsonRecords && { metrics: setup.metrics, names: packNames(options.renderJsonRecords) };
-  const task: ScoreRangeTask = { setup, columns, bounds, next, perQuery, sensitivity: recorded, ...(records ? { records } : {}) };
+  const output = options.perChunk;
+  const work: ChunkWork | undefined = output && { renderer: output.renderer, params: output.params };
+  const task: ScoreRangeTask = { setup, columns, bounds, next, perQuery, sensitivity: recorded, ...(work ? { perChunk: work } : {}) };
   running.post(task);
   const tally = emptyTally();
-  const texts: string[] = new Array(bounds.length - 1);
   if (engineSettings().tuning.workersFirst) await running.started;
   const scorer = new RangeScorer(setup, dump, perQuery, sensitivity);
-  claimChunks(scorer, bounds, next, tally, options, records && { spec: records, perQuery, into: texts });
+  const handOver = output && ((chunk: number, text: string) => output.onChunk(bounds[chunk]!, bounds[chunk + 1]!, text));
+  claimChunks(scorer, bounds, next, tally, options, work && handOver && { work, perQuery, into: handOver });
   for (const result of await running) {
     addTally(tally, result.tally);
-    for (const [chunk, text] of result.records) texts[chunk] = text;
+    if (handOver) for (const [chunk, text] of result.chunkTexts) handOver(chunk, text);
   }
   options.onProgress?.(1);
   if (sensitivity && recorded) sensitivity.sumColumns(recorded, tally.sensitivityNoRelevant);
-  const evaluation = finishEvaluation(setup, dump, unshared(perQuery), tally, sensitivity);
-  return records ? { ...evaluation, jsonRecords: texts } : evaluation;
+  return finishEvaluation(setup, dump, unshared(perQuery), tally, sensitivity);
 }
 
 /** Query range starts holding about equal rows each (parts <= queries); the last entry is the query count. */
@@ -163,19 +156,17 @@ export function runScoreRangeTask(task: ScoreRangeTask, onFirstClaim?: () => voi
   const sensitivity = task.sensitivity ? newSensitivityPass(task.setup) : undefined;
   if (sensitivity && task.sensitivity) sensitivity.recordInto(task.sensitivity);
   const tally = emptyTally();
-  const texts: string[] = [];
-  const rendering = task.records && { spec: task.records, perQuery: task.perQuery, into: texts };
+  const chunkTexts: [number, string][] = [];
+  const rendering = task.perChunk && { work: task.perChunk, perQuery: task.perQuery, into: (chunk: number, text: string) => chunkTexts.push([chunk, text]) };
   claimChunks(new RangeScorer(task.setup, task.columns, task.perQuery, sensitivity), task.bounds, task.next, tally, {}, rendering, onFirstClaim);
-  const records: [number, string][] = [];
-  texts.forEach((text, chunk) => records.push([chunk, text]));
-  return { tally, records };
+  return { tally, chunkTexts };
 }
 
 interface ChunkRendering {
-  readonly spec: QueryRecordsSpec;
+  readonly work: ChunkWork;
   readonly perQuery: PerQueryColumns;
-  /** Text by chunk index (sparse: only the chunks this thread scored). */
-  readonly into: string[];
+  /** Receives the text of each chunk this thread scored. */
+  readonly into: (chunk: number, text: string) => void;
 }
 
 function claimChunks(scorer: RangeScorer, bounds: readonly number[], next: Int32Array, tally: RangeTally,
@@ -188,8 +179,8 @@ function claimChunks(scorer: RangeScorer, bounds: readonly number[], next: Int32
     onFirstClaim = undefined;
     options.onProgress?.(c / chunks);
     scorer.score(bounds[c]!, bounds[c + 1]!, tally, { signal: options.signal });
-    // The chunk's values are final once scored, so its records can be rendered while still in cache.
-    if (rendering) rendering.into[c] = renderQueryRecords(rendering.spec, rendering.perQuery, bounds[c]!, bounds[c + 1]!);
+    // The chunk's values are final once scored, so its text can be made while they are still in cache.
+    if (rendering) rendering.into(c, renderChunk(rendering.work, rendering.perQuery, bounds[c]!, bounds[c + 1]!));
   }
 }
 

@@ -69,12 +69,6 @@ export interface Evaluation {
   readonly sensitivity: readonly SensitivityRow[];
   /** Plain sentences for people: what was counted, skipped or assumed. */
   readonly warnings: readonly string[];
-  /**
-   * The JSON report's query records, already rendered by the scoring threads (when evaluateInParallel
-   * is given `renderJsonRecords`): consecutive query ranges in query order, none empty (see
-   * report/jsonRecords.ts).
-   */
-  readonly jsonRecords?: readonly string[];
 }
 
 /** One position of one query's ranked list, as shown in the detail view. */

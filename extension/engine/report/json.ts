@@ -4,7 +4,7 @@ import { conventionsAsJson, jsonNumber, type ReportInput } from './reportInput';
 
 /**
  * The document `JSON.stringify(document, null, 1)` would write with a `queries` array of records last.
- * The records are rendered by jsonRecords.ts (or were already, by the scoring threads) and spliced in,
+ * The records are rendered by jsonRecords.ts (or were already, while scoring: `queryRecords`) and spliced in,
  * so 100k query objects are never built only to be stringified.
  */
 export function formatJson(input: ReportInput): string {
@@ -36,7 +36,7 @@ export function formatJson(input: ReportInput): string {
   const headText = JSON.stringify(head, null, 1);
   if (ev.queryCount === 0) return `${headText.slice(0, -2)},\n "queries": []\n}\n`;
   const records =
-    ev.jsonRecords ?? [renderQueryRecords({ metrics: ev.metrics, names: packNames(input.queryNames) }, ev.perQuery, 0, ev.queryCount)];
+    input.queryRecords ?? [renderQueryRecords({ metrics: ev.metrics, names: packNames(input.queryNames) }, ev.perQuery, 0, ev.queryCount)];
   // headText ends with "\n}": the records go in before that closing brace.
   return `${headText.slice(0, -2)},\n "queries": [\n${records.join(',\n')}\n ]\n}\n`;
 }

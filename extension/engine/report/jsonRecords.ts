@@ -3,10 +3,12 @@
  *
  * Rendering 100k records turns about 1.4M doubles into text, which on one thread took as long as a
  * third of the scoring. So the scoring threads render each chunk of queries right after scoring it
- * (parallelEvaluate passes them a QueryRecordsSpec), and formatJson only joins the pieces. The text is
+ * (collectQueryRecords hands the engine this module's renderer as a per-chunk output), and formatJson
+ * only joins the pieces. The text is
  * exactly what `JSON.stringify(document, null, 1)` writes for these records, so the two paths agree
  * to the byte (report tests check it against the whole document stringified at once).
  */
+import { registerChunkRenderer, type ChunkOutput } from '../evaluate/chunkOutput';
 import type { MetricSpec } from '../metrics/conventions';
 import { BytePool } from '../model/bytePool';
 import type { StringPool } from '../model/stringPool';
@@ -72,4 +74,25 @@ export function renderQueryRecords(spec: QueryRecordsSpec, perQuery: PerQueryCol
   }
   const text = JSON.stringify({ queries: records }, null, 1);
   return text.slice(WRAPPER_HEAD, text.length - WRAPPER_TAIL);
+}
+
+/** The name the renderer is registered under, in every thread that loads this module (score threads do). */
+const QUERY_RECORDS = 'json-query-records';
+registerChunkRenderer(QUERY_RECORDS, renderQueryRecords);
+
+/** Records rendered chunk by chunk while scoring, and gathered here in query order. */
+export interface QueryRecordsCollector {
+  /** For the engine's `perChunk` option. */
+  readonly output: ChunkOutput;
+  /** The pieces received so far, in query order, empty ones left out (for ReportInput.queryRecords). */
+  pieces(): string[];
+}
+
+export function collectQueryRecords(metrics: readonly MetricSpec[], names: StringPool): QueryRecordsCollector {
+  const received: { from: number; text: string }[] = [];
+  const spec: QueryRecordsSpec = { metrics, names: packNames(names) };
+  return {
+    output: { renderer: QUERY_RECORDS, params: spec, onChunk: (from, _to, text) => received.push({ from, text }) },
+    pieces: () => received.filter((r) => r.text !== '').sort((a, b) => a.from - b.from).map((r) => r.text),
+  };
 }

@@ -13,6 +13,11 @@ export interface ReportInput {
   /** The file that was read, as the user named it. */
   readonly source: string;
   readonly rowCount: number;
+  /**
+   * The JSON report's query records when they were rendered while scoring (collectQueryRecords in
+   * jsonRecords.ts): consecutive query ranges in query order. Other formats ignore them.
+   */
+  readonly queryRecords?: readonly string[];
 }
 
 /** Extra per-query columns shown next to a metric: RBP's residual, tau's inversion count. */

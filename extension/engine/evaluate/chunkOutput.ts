@@ -1,0 +1,40 @@
+/**
+ * Work a caller (a reporter) wants done on each chunk of queries right after the chunk is scored,
+ * on whichever thread scored it, while the chunk's values are still in cache. The engine knows
+ * nothing of what is made: the caller names a renderer that every thread has registered, gives it
+ * plain data (copied to the score threads), and receives each chunk's text through `onChunk`.
+ *
+ * A function cannot cross to another thread, so the renderer is found by name: the module that
+ * defines one registers it when loaded, and the score thread's entry point loads that module.
+ */
+import type { PerQueryColumns } from './types';
+
+/** Text for queries [from, to) of filled per-query columns. */
+export type ChunkRenderer<P> = (params: P, perQuery: PerQueryColumns, from: number, to: number) => string;
+
+/** What a thread needs to run the renderer: the name and the data (structured-cloneable). */
+export interface ChunkWork {
+  readonly renderer: string;
+  readonly params: unknown;
+}
+
+export interface ChunkOutput extends ChunkWork {
+  /**
+   * Called on the calling thread once per chunk, chunks in any order; together the chunks cover
+   * every query exactly once (on one thread: a single chunk of all queries).
+   */
+  readonly onChunk: (from: number, to: number, text: string) => void;
+}
+
+const renderers = new Map<string, ChunkRenderer<never>>();
+
+export function registerChunkRenderer<P>(name: string, render: ChunkRenderer<P>): void {
+  renderers.set(name, render as ChunkRenderer<never>);
+}
+
+/** Runs the named renderer over one chunk; a name no module registered in this thread is a programming error. */
+export function renderChunk(work: ChunkWork, perQuery: PerQueryColumns, from: number, to: number): string {
+  const render = renderers.get(work.renderer) as ChunkRenderer<unknown> | undefined;
+  if (render === undefined) throw new Error(`no chunk renderer '${work.renderer}' is registered in this thread`);
+  return render(work.params, perQuery, from, to);
+}
