@@ -188,8 +188,10 @@ export interface IdealView {
   readonly item: string;
   readonly label: MaybeNumber;
   readonly gain: number;
-  /** Where the model put it. */
+  /** Where the model put it (0 when the run never retrieved it). */
   readonly predictedPosition: number;
+  /** False for a judged item the run never retrieved: it counts in the ideal ranking only (row -1). */
+  readonly retrieved: boolean;
 }
 
 /** The engine's InvertedPair plus item names and grades, so the webview needs no dump to label it. */

@@ -60,7 +60,16 @@ export class IdealGains {
 
 export class QueryScorer {
   readonly headlineK: number;
+  /** Distinct grades of the ranked list (pairs, DCG, ERR). */
   readonly grades = new GradeIndex();
+  /**
+   * Distinct grades of every judged item of the query: the list's plus those it never retrieved. Built
+   * only for a query with unretrieved judged items; `idealGrades` is this or `grades`.
+   */
+  readonly judgedGrades = new GradeIndex();
+  idealGrades: GradeIndex = this.grades;
+  /** Items the ideal ranking draws from: the list's length plus the unretrieved judged items. */
+  idealN = 0;
   readonly ideal = new IdealGains();
   /** Per metric, same order as `metrics`. */
   readonly values: Float64Array;
@@ -75,6 +84,9 @@ export class QueryScorer {
   arrangedRank = new Uint32Array(16);
   headlineDiscount = new Float64Array(16);
   gainOfRank = new Float64Array(16);
+  /** Gain per rank of `judgedGrades`. */
+  private judgedGainOfRank = new Float64Array(16);
+  private judgedScratch = new Float64Array(16);
 
   private readonly gainOf: GainFunction;
   private readonly monotone: boolean;
@@ -139,8 +151,10 @@ export class QueryScorer {
       for (let r = 0; r < d; r++) this.stopOfRank[r] = this.stopOf(grades.values[r]!);
       for (let i = 0; i < n; i++) this.stop[i] = this.stopOfRank[this.arrangedRank[i]!]!;
     }
-    this.ideal.build(this.gainOfRank, grades, this.monotone);
-    const relevant = grades.atLeast(c.relevantFrom);
+    this.buildIdeal(ranking);
+    // Relevant items of the whole judged set: recall and AP divide by it, and a query whose only relevant
+    // items were never retrieved is not a no-relevant query (it scores 0, common practice).
+    const relevant = this.idealGrades.atLeast(c.relevantFrom);
     this.relevant = relevant;
     this.noRelevant = relevant === 0;
     const skipAll = this.noRelevant && c.noRelevant === 'skip';
@@ -153,7 +167,7 @@ export class QueryScorer {
       let v: number;
       switch (spec.name) {
         case 'ndcg': {
-          const ideal = idealDcg(this.ideal.gain, this.ideal.count, this.ideal.distinct, k, n);
+          const ideal = idealDcg(this.ideal.gain, this.ideal.count, this.ideal.distinct, k, this.idealN);
           // A query with relevant items but an ideal DCG of 0 (a gain map giving them 0) has no defined NDCG.
           v = this.noRelevant ? policyValue : ideal > 0 ? dcg(list, this.gain, k) / ideal : NaN;
           break;
@@ -171,7 +185,7 @@ export class QueryScorer {
           v = this.noRelevant ? policyValue : relevantInTop(list, from, k) / relevant;
           break;
         case 'ap':
-          v = this.noRelevant ? policyValue : averagePrecision(list, from);
+          v = this.noRelevant ? policyValue : averagePrecision(list, from, relevant);
           break;
         case 'rr':
           v = this.noRelevant ? policyValue : reciprocalRank(list, from, k);
@@ -213,7 +227,7 @@ export class QueryScorer {
       for (let i = s; i < e; i++) applied[i] = mean;
     }
     this.dcgHeadline = dcg(list, this.gain, hk);
-    this.idealDcgHeadline = idealDcg(this.ideal.gain, this.ideal.count, this.ideal.distinct, hk, n);
+    this.idealDcgHeadline = idealDcg(this.ideal.gain, this.ideal.count, this.ideal.distinct, hk, this.idealN);
     const input = this.pairInput;
     input.n = n;
     input.rank = this.arrangedRank;
@@ -225,6 +239,31 @@ export class QueryScorer {
     input.discount = applied;
     input.gainOfRank = this.gainOfRank;
     this.pairCounter.compute(input, this.pairs);
+  }
+
+  /**
+   * The ideal order's gains. Without unretrieved judged items they are the list's own grades (the common
+   * case, no extra work); otherwise the list's grades (unjudged rows as 0) plus the unretrieved ones.
+   */
+  private buildIdeal(ranking: QueryRanking): void {
+    const n = ranking.n;
+    const u = ranking.unretrieved;
+    this.idealN = n + u;
+    if (u === 0) {
+      this.idealGrades = this.grades;
+      this.ideal.build(this.gainOfRank, this.grades, this.monotone);
+      return;
+    }
+    if (this.judgedScratch.length < n + u) this.judgedScratch = new Float64Array((n + u) * 2);
+    const all = this.judgedScratch;
+    all.set(ranking.grade.subarray(0, n), 0);
+    all.set(ranking.unretrievedGrade.subarray(0, u), n);
+    const judged = this.judgedGrades;
+    judged.build(all, n + u);
+    if (this.judgedGainOfRank.length < judged.distinct) this.judgedGainOfRank = new Float64Array(judged.distinct * 2);
+    for (let r = 0; r < judged.distinct; r++) this.judgedGainOfRank[r] = this.gainOf(judged.values[r]!);
+    this.idealGrades = judged;
+    this.ideal.build(this.judgedGainOfRank, judged, this.monotone);
   }
 
   /** Σ over inverted pairs of |ΔNDCG@headline| (0 when the ideal DCG is 0). */

@@ -101,6 +101,15 @@ export interface PositionRow {
   readonly tieGroupSize: number;
 }
 
+/** A judged item that the run never retrieved: it has an ideal place but no predicted one. */
+export interface NotRetrievedItem {
+  readonly item: string;
+  readonly label: number;
+  readonly gain: number;
+  /** 1-based position in the ideal ranking of every judged item of the query. */
+  readonly idealPosition: number;
+}
+
 export interface InvertedPair {
   /** Row of the item ranked higher by score but graded lower. */
   readonly aboveRow: number;
@@ -117,8 +126,13 @@ export interface QueryDetail {
   readonly conventions: Conventions;
   readonly k: number;
   readonly positions: readonly PositionRow[];
-  /** Same items in ideal order (grade descending, file order within a grade). Rows refer to the dump. */
+  /**
+   * The listed items in ideal order (grade descending, file order within a grade). Rows refer to the dump.
+   * Their places in the whole ideal ranking, which also holds `notRetrieved`, are the positions' `idealPosition`.
+   */
   readonly idealOrder: readonly number[];
+  /** Judged items of the query that the list lacks, by ideal position (empty unless labels came from a judgments file). */
+  readonly notRetrieved: readonly NotRetrievedItem[];
   readonly dcg: number;
   readonly idealDcg: number;
   readonly ndcg: number;

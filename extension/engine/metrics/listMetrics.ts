@@ -119,14 +119,16 @@ export function reciprocalRank(list: GroupedList, from: number, k: number): numb
 
 /**
  * Average precision = (1/R) Σ over relevant items of precision at their position (common practice;
- * R = relevant items in the query, so relevant items never retrieved count 0). Ties (McSherry & Najork
+ * R = relevant items in the query's whole judged set, so relevant items never retrieved count 0). `judgedRelevant`
+ * gives R when judged items lie outside the list (labels from a judgments file); without it R is the
+ * list's own relevant count. Ties (McSherry & Najork
  * 2008): a relevant item of a group of m with r relevant is equally likely on each slot u = 0..m−1; given
  * slot u the other r−1 relevant items of the group sit before it u(r−1)/(m−1) times on average, so the
  * group adds (r/m) Σ_u (before + 1 + u(r−1)/(m−1)) / (s+u+1), `before` = relevant items in earlier groups.
  * Exact, because precision at a fixed slot is linear in those counts. Returns 0 when R = 0 (caller applies
  * the no-relevant policy).
  */
-export function averagePrecision(list: GroupedList, from: number): number {
+export function averagePrecision(list: GroupedList, from: number, judgedRelevant?: number): number {
   const b = list.bounds;
   const grade = list.grade;
   let before = 0;
@@ -148,7 +150,8 @@ export function averagePrecision(list: GroupedList, from: number): number {
     }
     before += r;
   }
-  return before === 0 ? 0 : sum / before;
+  const denominator = judgedRelevant ?? before;
+  return denominator === 0 ? 0 : sum / denominator;
 }
 
 /**
