@@ -131,7 +131,7 @@ async function scoreWithWorkers(dump: RankedDump, metrics: readonly MetricSpec[]
   if (recorded) sensitivity!.recordInto(recorded);
   const bounds = splitByRows(setup.groups.start, Math.min(setup.queryCount, threads * scoringTuning.chunksPerThread));
   const next = new Int32Array(shared(4));
-  const columns: ScoredColumns = { item: dump.item, label: dump.label, score: dump.score };
+  const columns: ScoredColumns = { item: dump.item, label: dump.label, score: dump.score, ...(dump.unretrieved ? { unretrieved: dump.unretrieved } : {}) };
   const records = options.renderJsonRecords && { metrics: setup.metrics, names: packNames(options.renderJsonRecords) };
   const task: ScoreRangeTask = { setup, columns, bounds, next, perQuery, sensitivity: recorded, ...(records ? { records } : {}) };
   running.post(task);

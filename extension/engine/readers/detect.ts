@@ -59,11 +59,12 @@ export async function detectFormat(path: string, hints: DetectHints = {}): Promi
   assertTextHead(head, path);
   const fromContent = strongContentFormat(head);
   if (fromContent !== undefined) return { format: fromContent, gzip, directory: false };
-  if (hints.judgments !== undefined) return { format: 'run', gzip, directory: false };
-  if (hints.scores !== undefined) return { format: 'svmlight', gzip, directory: false };
   const ext = extensionOf(path);
   const byName = BY_EXTENSION[ext];
   if (byName !== undefined && byName !== 'parquet') return { format: byName, gzip, directory: false };
+  // Any format may take a judgments file now; without a telling name, a judgments file still suggests a run file.
+  if (hints.judgments !== undefined) return { format: 'run', gzip, directory: false };
+  if (hints.scores !== undefined) return { format: 'svmlight', gzip, directory: false };
   return { format: weakContentFormat(head, path), gzip, directory: false };
 }
 

@@ -11,13 +11,14 @@
  * columns are then views of SharedArrayBuffers (see parallel.ts).
  */
 import { CancelledError, InputError } from '../errors';
-import type { DumpFormat, RankedDump } from '../model/dump';
+import type { DumpFormat, MissingQueriesPolicy, RankedDump } from '../model/dump';
 import { DelimitedParser } from './delimited';
 import { detectFormat } from './detect';
 import { readJsonLines } from './jsonLines';
 import { readParallelDelimited, shouldParseInParallel } from './parallel';
 import { readParquet } from './parquet';
 import type { ColumnRoles } from './roles';
+import { joinJudgments, readJudgmentTable } from './judgments';
 import { readRunFile } from './runFile';
 import { changedSince, fileChangedError, pumpText, statStamp, throwIfCancelled } from './source';
 import { readSvmlight } from './svmlight';
@@ -31,8 +32,15 @@ export interface ReadOptions {
   format?: DumpFormat;
   /** Explicit column names, e.g. from --columns query=sid,item=pid,label=grade,score=p */
   columns?: ColumnRoles;
-  /** Path of a judgments file (run-file input). */
+  /**
+   * Path of a judgments file: `query unused item grade` lines or a table naming the query, item and grade
+   * columns. Any format takes its labels from it (run files must have one); see judgments.ts.
+   */
   judgments?: string;
+  /** Column names in a tabular judgments file, like `columns` (query, item, label). */
+  judgmentsColumns?: ColumnRoles;
+  /** Judged queries with no row in the dump: left out (`skip`, default) or scored 0 on every metric (`zero`). */
+  missingQueries?: MissingQueriesPolicy;
   /** Path of a one-score-per-line file (SVMlight input). */
   scores?: string;
   /** Parse threads for big text files; default auto (1 for small files). */
@@ -61,6 +69,19 @@ export async function readDump(path: string, options: ReadOptions = {}): Promise
 }
 
 async function readDumpOnce(path: string, options: ReadOptions): Promise<RankedDump> {
+  if (options.judgments === undefined) return readFormat(path, options);
+  const judgmentsPath = options.judgments;
+  // Labels may be absent from the dump when a judgments file gives them.
+  const dumpOptions: ReadOptions = { ...options, columns: { ...options.columns, optional: ['label'] } };
+  const [dump, table] = await Promise.all([
+    readFormat(path, dumpOptions),
+    readJudgmentTable(judgmentsPath, options, (p, o) => readFormat(p, o)),
+  ]);
+  throwIfCancelled(options.signal);
+  return joinJudgments(dump, table, options.missingQueries ?? 'skip');
+}
+
+async function readFormat(path: string, options: ReadOptions): Promise<RankedDump> {
   const sniffed = await detectFormat(path, options);
   switch (sniffed.format) {
     case 'csv':
@@ -72,7 +93,7 @@ async function readDumpOnce(path: string, options: ReadOptions): Promise<RankedD
       if (options.judgments === undefined) {
         throw new InputError('a judgments file (query unused item grade) to go with the run file (on the command line: --judgments FILE)', path);
       }
-      return readRunFile(path, options.judgments, options);
+      return readRunFile(path, options);
     case 'svmlight':
       if (options.scores === undefined) {
         throw new InputError('a scores file (one score per line, same order) to go with the SVMlight file', path);

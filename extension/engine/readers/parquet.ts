@@ -115,8 +115,8 @@ function storeGroup(rows: RowColumns, roles: ResolvedRoles, names: string[], val
     const row = rows.next();
     rows.query[row] = rows.queries.internString(idText(queries[i], names[roles.query]!, file));
     rows.item[row] = rows.items.internString(idText(items[i], names[roles.item]!, file));
-    rows.label[row] = numberOf(labels[i], names[roles.label]!, false, file);
-    const score = numberOf(scores[i], names[roles.score >= 0 ? roles.score : roles.rank]!, true, file);
+    rows.label[row] = roles.label >= 0 ? numberOf(labels[i], names[roles.label]!, false, file) : NaN;
+    const score = roles.score >= 0 || roles.rank >= 0 ? numberOf(scores[i], names[roles.score >= 0 ? roles.score : roles.rank]!, true, file) : NaN;
     rows.score[row] = negate ? -score : score;
     rows.line[row] = 0;
     rows.offset[row] = -1;
