@@ -109,6 +109,7 @@ export function allocatePerQuery(queryCount: number, metrics: readonly MetricSpe
   return {
     items: new Uint32Array(allocate(queryCount * 4)),
     relevant: new Uint32Array(allocate(queryCount * 4)),
+    unretrieved: new Uint32Array(allocate(queryCount * 4)),
     values: metrics.map(f64),
     inversions: f64(),
     inversionCost: f64(),
@@ -201,6 +202,7 @@ export class RangeScorer {
       }
       ranking.load(columns, groups.rowsOfQuery, groups.start[q]!, groups.start[q + 1]!, seen);
       ranking.setUnretrieved(columns.unretrieved, q);
+      if (perQuery.unretrieved) perQuery.unretrieved[q] = ranking.unretrieved;
       if (q >= this.firstAbsent) {
         this.scoreAbsent(q, tally);
         continue;
@@ -279,6 +281,7 @@ export function finishEvaluation(setup: EvaluationSetup, dump: RankedDump, perQu
     degenerate: tally.degenerate,
     sensitivity: sensitivity ? sensitivity.rows() : [],
     warnings,
+    ...(dump.notes.judgments ? { judgments: dump.notes.judgments } : {}),
   };
 }
 

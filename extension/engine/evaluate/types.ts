@@ -3,6 +3,7 @@
  * indexed by query id (the dump's interned query id), so 100k queries cost a few arrays.
  */
 import type { Conventions, MetricSpec } from '../metrics/conventions';
+import type { JudgmentsJoin } from '../model/dump';
 
 /** Degenerate data, counted and reported with what was done about it. */
 export interface DegenerateCounts {
@@ -23,8 +24,10 @@ export interface DegenerateCounts {
 export interface PerQueryColumns {
   /** Items ranked for the query (after dropping duplicate rows). */
   readonly items: Uint32Array;
-  /** Items with grade >= relevantFrom. */
+  /** Judged items with grade >= relevantFrom, retrieved or not. */
   readonly relevant: Uint32Array;
+  /** Judged items the run never retrieved (0 unless labels came from a judgments file). */
+  readonly unretrieved?: Uint32Array;
   /** One array per requested metric, same order as `metrics`; NaN where the query is skipped. */
   readonly values: readonly Float64Array[];
   /** Discordant pairs: strictly lower score but strictly higher grade. */
@@ -67,6 +70,8 @@ export interface Evaluation {
   readonly sensitivity: readonly SensitivityRow[];
   /** Plain sentences for people: what was counted, skipped or assumed. */
   readonly warnings: readonly string[];
+  /** How labels were joined from a judgments file (absent when the dump had its own labels only). */
+  readonly judgments?: JudgmentsJoin;
   /**
    * The JSON report's query records, already rendered by the scoring threads (when evaluateInParallel
    * is given `renderJsonRecords`): consecutive query ranges in query order, none empty (see

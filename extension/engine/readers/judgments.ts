@@ -256,18 +256,10 @@ function sideTable(dump: RankedDump, table: JudgmentTable, queryInDump: Int32Arr
   return { start, grade, item, firstAbsentQuery: dumpQueries };
 }
 
+/** Reader notes; the counts of the join are told by the evaluation's warnings (evaluate/warnings.ts). */
 function describeJoin(join: JudgmentsJoin, unknownItems: number): string[] {
   const notes = [`labels from the judgments file ${join.path}`];
-  if (join.inlineLabelRows > 0) {
-    notes.push(`the dump has labels too; the judgments win (${join.disagreements} of ${join.inlineLabelRows} labelled rows disagree` +
-      `${join.disagreementExamples.length > 0 ? `, e.g. ${join.disagreementExamples.join('; ')}` : ''})`);
-  }
-  if (join.unretrieved > 0) notes.push(`${join.unretrieved} judged items were never retrieved by the run; they count in the ideal ranking`);
   if (unknownItems > 0) notes.push(`${unknownItems} judged items do not occur anywhere in the run`);
-  if (join.absentQueries > 0) {
-    notes.push(`${join.absentQueries} judged queries have no row in the run (e.g. ${join.absentExamples.join(', ')}); ` +
-      (join.missingQueries === 'zero' ? 'each scores 0 on every metric (missing queries: zero)' : 'they are left out (missing queries: skip)'));
-  }
   return notes;
 }
 
