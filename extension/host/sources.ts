@@ -1,6 +1,6 @@
 /**
  * What to read for a dump the user opened: the file itself, its column mapping, and for formats that
- * keep grades or scores apart (run files, SVMlight), the side file. No `vscode` import.
+ * keep grades or scores apart (run files, sparse feature lines), the side file. No `vscode` import.
  */
 import { promises as fsp } from 'node:fs';
 import * as path from 'node:path';
@@ -53,7 +53,7 @@ export interface SourceChoice {
 export async function sourceFor(file: string, relative: string, config: GainlineConfig, remembered?: string): Promise<SourceChoice> {
   const columns = columnsFor(config, relative);
   const base: DumpSource = { path: file, ...(columns ? { columns } : {}) };
-  if (/\.svm(light)?$/i.test(file)) {
+  if (/\.(sparse|svm(light)?)$/i.test(file)) {
     const scores = await findScoresFile(file);
     return { source: scores ? { ...base, scores } : base };
   }

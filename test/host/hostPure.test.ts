@@ -128,7 +128,7 @@ describe('dump sources', () => {
     expect(remembered.judgmentChoices).toBeUndefined();
   });
 
-  it('pairs an SVMlight file with its scores file and applies column mappings by pattern', async () => {
+  it('pairs a sparse feature file with its scores file and applies column mappings by pattern', async () => {
     const config = readConfig((key) => (key === 'columnsByPattern' ? { 'exports/*.csv': { query: 'search_id' } } : undefined));
     expect((await sourceFor(join(root, 'runs', 'model.svm'), 'runs/model.svm', config)).source.scores).toBe(join(root, 'runs', 'model.svm.scores'));
     expect((await sourceFor('/w/exports/a.csv', 'exports/a.csv', config)).source.columns).toEqual({ query: 'search_id' });

@@ -47,6 +47,13 @@ export interface Conventions {
   readonly maxGrade?: number;
   /** RBP persistence p in (0, 1). Default 0.8. */
   readonly rbpPersistence: number;
+  /**
+   * Judged queries with no row in the run, when labels come from a judgments file: left out (`skip`, the
+   * default) or scored 0 on every metric (`zero`, common practice of evaluation campaigns). Applied when the
+   * judgments are joined (readers/judgments.ts); undefined when there is no judgments file. Kept here so
+   * that it is printed with the other conventions.
+   */
+  readonly missingQueries?: 'skip' | 'zero';
 }
 
 export const DEFAULT_CONVENTIONS: Conventions = {

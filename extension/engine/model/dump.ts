@@ -7,7 +7,7 @@
  */
 import type { StringPool } from './stringPool';
 
-export type DumpFormat = 'csv' | 'tsv' | 'jsonl' | 'run' | 'svmlight' | 'parquet';
+export type DumpFormat = 'csv' | 'tsv' | 'jsonl' | 'run' | 'sparse' | 'parquet';
 
 /**
  * Judged items of each query that the run never retrieved (labels from a separate judgments file).

@@ -2,7 +2,7 @@
  * Public entry of the readers: one call turns any supported dump into the columnar RankedDump.
  *
  * Formats: CSV/TSV with a header (roles from header names or `columns`), JSON Lines (a row or a
- * list per line), run files with a judgments file, SVMlight/LETOR files with a scores file, and
+ * list per line), run files with a judgments file, sparse feature lines with a scores file, and
  * Parquet (a file or a folder of parts). Text formats may be gzip-compressed.
  *
  * Row positions: `line` is the 1-based line where the row starts and `offset` its first byte in the
@@ -21,7 +21,7 @@ import type { ColumnRoles } from './roles';
 import { joinJudgments, readJudgmentTable } from './judgments';
 import { readRunFile } from './runFile';
 import { changedSince, fileChangedError, pumpText, statStamp, throwIfCancelled } from './source';
-import { readSvmlight } from './svmlight';
+import { readSparseFeatures } from './sparseFeatures';
 
 export { parseColumnRoles } from './roles';
 export type { ColumnRoles } from './roles';
@@ -41,7 +41,7 @@ export interface ReadOptions {
   judgmentsColumns?: ColumnRoles;
   /** Judged queries with no row in the dump: left out (`skip`, default) or scored 0 on every metric (`zero`). */
   missingQueries?: MissingQueriesPolicy;
-  /** Path of a one-score-per-line file (SVMlight input). */
+  /** Path of a one-score-per-line file (sparse feature lines). */
   scores?: string;
   /** Parse threads for big text files; default auto (1 for small files). */
   threads?: number;
@@ -94,11 +94,11 @@ async function readFormat(path: string, options: ReadOptions): Promise<RankedDum
         throw new InputError('a judgments file (query unused item grade) to go with the run file (on the command line: --judgments FILE)', path);
       }
       return readRunFile(path, options);
-    case 'svmlight':
+    case 'sparse':
       if (options.scores === undefined) {
-        throw new InputError('a scores file (one score per line, same order) to go with the SVMlight file', path);
+        throw new InputError('a scores file (one score per line, same order) to go with the sparse feature file', path);
       }
-      return readSvmlight(path, options.scores, options);
+      return readSparseFeatures(path, options.scores, options);
     case 'parquet':
       return readParquet(path, sniffed.directory, options);
   }

@@ -72,6 +72,7 @@ export function conventionsAsJson(c: Conventions): Record<string, unknown> {
     relevantFrom: c.relevantFrom,
     maxGrade: c.maxGrade ?? null,
     rbpPersistence: c.rbpPersistence,
+    ...(c.missingQueries !== undefined ? { missingQueries: c.missingQueries } : {}),
   };
 }
 
@@ -97,6 +98,7 @@ export function describeConventions(c: Conventions): string {
     `relevant from grade ${c.relevantFrom}`,
     `ERR max grade ${c.maxGrade ?? 'from data'}`,
     `RBP persistence ${c.rbpPersistence}`,
+    ...(c.missingQueries !== undefined ? [`missing queries: ${c.missingQueries}`] : []),
   ];
   return parts.join(' · ');
 }
