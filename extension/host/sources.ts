@@ -30,7 +30,7 @@ export async function findJudgmentCandidates(runFile: string): Promise<string[]>
   return [];
 }
 
-/** `model.svm` → `model.svm.scores` when that file exists. */
+/** `model.sparse` → `model.sparse.scores` when that file exists. */
 export async function findScoresFile(file: string): Promise<string | undefined> {
   const candidate = `${file}.scores`;
   try {
