@@ -22,6 +22,8 @@ export interface GainlineConfig {
   readonly conventions: Conventions;
   /** Glob on the file path → column mapping for dumps whose headers are not recognised. */
   readonly columnsByPattern: Readonly<Record<string, ColumnMapping>>;
+  /** Judged queries a dump lacks, when its labels come from a judgments file: left out, or scored 0. */
+  readonly missingQueries: 'skip' | 'zero';
   /** Which files the Ranked Lists view lists. */
   readonly dumpGlob: string;
   readonly dumpExclude: string;
@@ -40,6 +42,7 @@ export const CONFIG_DEFAULTS = {
   gain: 'exponential',
   ties: 'average' as TieConvention,
   noRelevant: 'skip' as NoRelevantPolicy,
+  missingQueries: 'skip' as 'skip' | 'zero',
   relevantFrom: 1,
   rbpPersistence: 0.8,
   dumpGlob: '**/*.{csv,tsv,jsonl,parquet,run,gz}',
@@ -57,7 +60,7 @@ const POLICIES: readonly NoRelevantPolicy[] = ['skip', 'zero', 'one'];
 
 /** Settings whose change means open views must be recomputed. */
 export const RECOMPUTE_KEYS = [
-  'cutoffs', 'gain', 'ties', 'noRelevant', 'relevantFrom', 'rbpPersistence', 'maxGrade', 'columnsByPattern',
+  'cutoffs', 'gain', 'ties', 'noRelevant', 'missingQueries', 'relevantFrom', 'rbpPersistence', 'maxGrade', 'columnsByPattern',
   'compare.permutations', 'compare.bootstrapResamples', 'compare.seed', 'compare.tieTolerance',
 ] as const;
 
@@ -109,6 +112,7 @@ export function readConfig(get: SettingGetter): GainlineConfig {
     cutoffs,
     metrics: metricsForCutoffs(cutoffs),
     conventions,
+    missingQueries: choice('missingQueries', ['skip', 'zero'] as const, CONFIG_DEFAULTS.missingQueries),
     columnsByPattern: readColumnsByPattern(get('columnsByPattern'), reject),
     dumpGlob: stringSetting(get('dumpGlob'), CONFIG_DEFAULTS.dumpGlob, 'dumpGlob', reject),
     dumpExclude: CONFIG_DEFAULTS.dumpExclude,

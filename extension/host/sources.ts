@@ -58,9 +58,10 @@ export async function sourceFor(file: string, relative: string, config: Gainline
     return { source: scores ? { ...base, scores } : base };
   }
   if (!needsJudgments(file)) return { source: base };
-  if (remembered) return { source: { ...base, judgments: remembered } };
+  const judged = (judgments: string): DumpSource => ({ ...base, judgments, missingQueries: config.missingQueries });
+  if (remembered) return { source: judged(remembered) };
   const candidates = await findJudgmentCandidates(file);
-  if (candidates.length === 1) return { source: { ...base, judgments: candidates[0]! } };
+  if (candidates.length === 1) return { source: judged(candidates[0]!) };
   return { source: base, judgmentChoices: candidates };
 }
 

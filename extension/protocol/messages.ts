@@ -83,6 +83,17 @@ export interface Histogram {
   readonly counts: readonly number[];
 }
 
+/** The counts of a judgments-file join, for the overview's data table. */
+export interface JudgmentsView {
+  /** Judged items of the dump's queries that the dump never retrieved (they count in the ideal ranking). */
+  readonly unretrieved: number;
+  /** Judged queries with no row in the dump, and the policy applied to them. */
+  readonly absentQueries: number;
+  readonly missingQueries: 'skip' | 'zero';
+  /** Rows with a label of their own that the judgments contradict. */
+  readonly disagreements: number;
+}
+
 export interface OverviewModel {
   readonly file: FileInfo;
   readonly queryCount: number;
@@ -97,6 +108,8 @@ export interface OverviewModel {
   readonly segmentColumns: readonly string[];
   /** Plain sentences: what was counted, skipped or assumed (engine warnings + reader notes). */
   readonly warnings: readonly string[];
+  /** Present when labels came from a judgments file: what the join found. */
+  readonly judgments?: JudgmentsView;
   /** Wall-clock time of read + evaluate. */
   readonly loadMs: number;
 }

@@ -78,6 +78,7 @@ async function read(source: DumpSource, ctx: HandlerContext, from: number, to: n
     ...(source.columns ? { columns: source.columns } : {}),
     ...(source.judgments ? { judgments: source.judgments } : {}),
     ...(source.scores ? { scores: source.scores } : {}),
+    ...(source.missingQueries ? { missingQueries: source.missingQueries } : {}),
   };
   return readDump(source.path, options);
 }

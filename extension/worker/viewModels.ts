@@ -14,6 +14,7 @@ import type {
   FileInfo,
   Histogram,
   IdealView,
+  JudgmentsView,
   MetricColumn,
   MovementView,
   OverviewModel,
@@ -78,6 +79,10 @@ export function metricColumns(evaluation: Evaluation): MetricColumn[] {
   }));
 }
 
+function judgmentsView(j: NonNullable<Evaluation['judgments']>): JudgmentsView {
+  return { unretrieved: j.unretrieved, absentQueries: j.absentQueries, missingQueries: j.missingQueries, disagreements: j.disagreements };
+}
+
 export function overviewModel(dump: RankedDump, evaluation: Evaluation, loadMs: number): OverviewModel {
   const headlineMean = evaluation.summary[evaluation.headline]?.mean ?? NaN;
   return {
@@ -96,6 +101,7 @@ export function overviewModel(dump: RankedDump, evaluation: Evaluation, loadMs: 
     histogram: histogram(evaluation.perQuery.values[evaluation.headline]!),
     segmentColumns: dump.segments.map((s) => s.name),
     warnings: [...evaluation.warnings, ...dump.notes.messages],
+    ...(evaluation.judgments ? { judgments: judgmentsView(evaluation.judgments) } : {}),
     loadMs: Math.round(loadMs),
   };
 }

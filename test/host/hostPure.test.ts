@@ -126,6 +126,10 @@ describe('dump sources', () => {
     const remembered = await sourceFor(run, 'runs/model-a.run', config, '/x/picked.qrels');
     expect(remembered.source.judgments).toBe('/x/picked.qrels');
     expect(remembered.judgmentChoices).toBeUndefined();
+    expect(remembered.source.missingQueries).toBe('skip');
+    const zero = await sourceFor(run, 'runs/model-a.run', readConfig((key) => (key === 'missingQueries' ? 'zero' : undefined)), '/x/picked.qrels');
+    expect(zero.source.missingQueries).toBe('zero');
+    expect(readConfig((key) => (key === 'missingQueries' ? 'none' : undefined)).problems.join(' ')).toMatch(/gainline\.missingQueries: expected one of skip, zero/);
   });
 
   it('pairs a sparse feature file with its scores file and applies column mappings by pattern', async () => {

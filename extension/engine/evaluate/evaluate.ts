@@ -271,8 +271,10 @@ export function finishEvaluation(setup: EvaluationSetup, dump: RankedDump, perQu
     gmax: setup.gmax,
     headlineK: headlineCutoff(metrics),
   });
+  // The missing-queries policy was applied when the judgments were joined; it is printed with the rest.
+  const judged = dump.notes.judgments;
   return {
-    conventions,
+    conventions: judged ? { ...conventions, missingQueries: judged.missingQueries } : conventions,
     metrics,
     headline: 0,
     queryCount,
