@@ -211,6 +211,9 @@ const handlers: RequestHandlers<WorkerRequests> = {
         idealPosition: p.idealPosition,
         line: l.dump.line[p.row] || null,
       })),
+      ...(detail.notRetrieved.length > 0
+        ? { notRetrieved: detail.notRetrieved.map((m) => ({ item: m.item, grade: m.label, idealPosition: m.idealPosition })) }
+        : {}),
     };
     return { json: JSON.stringify(json, null, 2) };
   },

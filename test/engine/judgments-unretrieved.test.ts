@@ -62,6 +62,16 @@ describe('the hand-derived case', () => {
   });
 });
 
+describe('ERR', () => {
+  it('takes its default gmax from the highest judged grade, retrieved or not', () => {
+    const dump = joined([{ query: 'q1', item: 'd1', label: NaN, score: 1 }], [{ query: 'q1', item: 'd1', grade: 1 }, { query: 'q1', item: 'd2', grade: 4 }]);
+    const e = evaluate(dump, parseMetricList('err@10'), DEFAULT_CONVENTIONS);
+    // R(1) = (2^1 − 1) / 2^4 at position 1 (Chapelle et al. 2009), derived by hand.
+    expect(e.perQuery.values[0]![0]).toBe(1 / 16);
+    expect(e.warnings.join(' ')).toContain('ERR uses a maximum grade of 4');
+  });
+});
+
 describe('missing queries', () => {
   const rows = [{ query: 'q1', item: 'd1', label: NaN, score: 1 }];
   const judgments = [{ query: 'q1', item: 'd1', grade: 1 }, { query: 'q2', item: 'd5', grade: 2 }, { query: 'q3', item: 'd6', grade: 0 }];

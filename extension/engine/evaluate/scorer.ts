@@ -1,6 +1,13 @@
 /**
  * Scores one loaded query under one set of conventions: every requested metric, the pair measures and the
  * headline NDCG parts. Shared by evaluate() (all queries) and queryDetail() (one query).
+ *
+ * Judged items the run never retrieved (`ranking.unretrieved`, labels from a judgments file) enter what
+ * depends on the judged set: the ideal ranking (NDCG, the inversion cost's normaliser, over the list's
+ * length plus theirs), the relevant count (recall's and AP's denominator) and the no-relevant test. What
+ * describes the list itself stays over the retrieved items: DCG, ERR, precision@k (divided by k), RR, RBP and
+ * its residual, Kendall's tau and the inversions (pairs of retrieved items). Common practice for judged
+ * collections.
  */
 import type { Conventions, MetricSpec } from '../metrics/conventions';
 import { discountTable } from '../metrics/discount';

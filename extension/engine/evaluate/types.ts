@@ -9,7 +9,7 @@ import type { JudgmentsJoin } from '../model/dump';
 export interface DegenerateCounts {
   /** Queries with exactly one item (every ranking metric is trivial for them; kept). */
   singleItemQueries: number;
-  /** Queries with no item of grade >= relevantFrom (handled by the no-relevant policy). */
+  /** Queries with no judged item of grade >= relevantFrom, retrieved or not (handled by the no-relevant policy). */
   noRelevantQueries: number;
   /** Extra rows for a (query, item) pair already seen; the first row is kept, the rest are not ranked. */
   duplicateRows: number;

@@ -50,8 +50,8 @@ export function dcg(list: GroupedList, gain: Float64Array, k: number): number {
 }
 
 /**
- * Ideal DCG@k from every labelled item of the query (not only those in the top k): gains sorted
- * descending. `distinctGain`/`count` list the query's gains (each with its number of items) already in
+ * Ideal DCG@k from every labelled item of the query (not only those in the top k, and with a judgments
+ * file also the judged items the run never retrieved, `n` then counting them): gains sorted descending. `distinctGain`/`count` list the query's gains (each with its number of items) already in
  * descending order of gain, so this is O(distinct gains).
  */
 export function idealDcg(distinctGain: Float64Array, count: Uint32Array, distinct: number, k: number, n: number): number {
@@ -69,7 +69,8 @@ export function idealDcg(distinctGain: Float64Array, count: Uint32Array, distinc
 
 /**
  * Expected number of relevant items (grade ≥ from) in the top k. Precision@k is this / k (divided by k even
- * when the list is shorter, common practice); recall@k is this / (relevant items in the query).
+ * when the list is shorter, common practice); recall@k is this / (relevant items in the query's judged set,
+retrieved or not).
  * Ties: a group with r relevant of size m puts r/m relevant items on each of its slots.
  */
 export function relevantInTop(list: GroupedList, from: number, k: number): number {
