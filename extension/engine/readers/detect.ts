@@ -78,6 +78,14 @@ export function extensionOf(path: string): string {
   return dot > slash ? name.slice(dot + 1) : '';
 }
 
+/** The first bytes of a file as text: decompressed when gzip, empty when a folder or unreadable as gzip. */
+export async function textHead(path: string): Promise<Buffer> {
+  const info = await fsp.stat(path);
+  if (info.isDirectory()) return Buffer.alloc(0);
+  const raw = await readStart(path);
+  return raw.length >= 2 && raw[0] === 0x1f && raw[1] === 0x8b ? gunzipHead(raw) : raw;
+}
+
 async function readStart(path: string): Promise<Buffer> {
   const fh = await fsp.open(path, 'r');
   try {

@@ -17,6 +17,8 @@ import { gradeRangeOf, summariseRows } from '../model/rowSummary';
 import { MapStringPool, type StringPool } from '../model/stringPool';
 import type { ReadOptions } from './index';
 import { parseNumber } from './numbers';
+import { textHead } from './detect';
+import { PairIndex } from './pairIndex';
 import { LineSink, pumpText, splitWhitespace } from './source';
 
 /** One judgment per entry, in file order; ids index the table's own pools. */
@@ -47,28 +49,31 @@ export async function readJudgmentTable(path: string, options: ReadOptions,
   return table;
 }
 
-/** True when the first non-blank line has four whitespace-separated fields, the second and fourth numeric. */
+/**
+ * True when the first non-blank line has four whitespace-separated fields, the second and fourth numeric
+ * (a header line never does). Reads only the file's first bytes; Parquet and folders are tables.
+ */
 async function looksLikeLines(path: string): Promise<boolean> {
-  let verdict: boolean | undefined;
+  let head: Buffer;
+  try {
+    head = await textHead(path);
+  } catch {
+    return false; // the table readers say what is wrong with the file
+  }
+  if (head.length >= 4 && head.toString('latin1', 0, 4) === 'PAR1') return false;
   const starts = new Int32Array(5);
   const ends = new Int32Array(5);
-  const controller = new AbortController();
-  try {
-    await pumpText(path, new LineSink((buf, s, e) => {
-      if (verdict !== undefined) return;
-      const fields = splitWhitespace(buf, s, e, starts, ends);
-      if (fields === 0) return;
-      verdict = fields === 4 && Number.isFinite(parseNumber(buf, starts[1]!, ends[1]!)) && Number.isFinite(parseNumber(buf, starts[3]!, ends[3]!));
-      controller.abort();
-    }), { signal: controller.signal });
-  } catch (err) {
-    if (verdict === undefined) {
-      // Binary (Parquet) or unreadable as text: let the table readers say what is wrong.
-      if (err instanceof InputError) return false;
-      throw err;
+  let s = 0;
+  while (s < head.length) {
+    let e = head.indexOf(10, s);
+    if (e < 0) e = head.length;
+    const fields = splitWhitespace(head, s, e, starts, ends);
+    if (fields > 0) {
+      return fields === 4 && Number.isFinite(parseNumber(head, starts[1]!, ends[1]!)) && Number.isFinite(parseNumber(head, starts[3]!, ends[3]!));
     }
+    s = e + 1;
   }
-  return verdict ?? false;
+  return false;
 }
 
 /** `query unused item grade` lines (blank lines skipped). */
@@ -118,15 +123,10 @@ function fromDump(dump: RankedDump): JudgmentTable {
 
 /** A pair judged twice is an error naming both places: which grade should win is not ours to guess. */
 function rejectRepeats(table: JudgmentTable): void {
-  const first = new Map<number, number>();
-  const width = table.items.size;
+  const first = new PairIndex(table.grade.length);
   for (let j = 0; j < table.grade.length; j++) {
-    const key = table.query[j]! * width + table.item[j]!;
-    const seen = first.get(key);
-    if (seen === undefined) {
-      first.set(key, j);
-      continue;
-    }
+    const seen = first.add(table.query[j]!, table.item[j]!, j);
+    if (seen < 0) continue;
     const place = (i: number) => (table.line[i] ? `line ${table.line[i]}` : `row ${i + 1}`);
     throw new InputError(`each (query, item) pair judged once; '${table.queries.get(table.query[j]!)}' / '${table.items.get(table.item[j]!)}' is already judged on ${place(seen)}`,
       table.path, table.line[j] || undefined, table.line[j] ? undefined : place(j));
@@ -146,7 +146,7 @@ function idIn(from: StringPool, id: number, to: StringPool): number {
 function addTo(pool: StringPool, text: string): number {
   if (pool instanceof BytePool) return pool.internString(text);
   if (pool instanceof MapStringPool) return pool.intern(text);
-  throw new Error('a pool that can take new ids');
+  throw new Error(`a string pool that takes new ids, not ${pool.constructor.name}`);
 }
 
 /** The dump with its labels taken from `table` (see the module comment). */
@@ -169,12 +169,11 @@ export function joinJudgments(dump: RankedDump, table: JudgmentTable, policy: Mi
     if (itemInDump[i]! < 0) unknownItems++;
   }
   // (dump query, dump item) → judgment, for the judgments whose query and item both occur in the dump.
-  const width = dump.items.size;
-  const judgmentOf = new Map<number, number>();
+  const judgmentOf = new PairIndex(table.grade.length);
   for (let j = 0; j < table.grade.length; j++) {
     const q = queryInDump[table.query[j]!]!;
     const i = itemInDump[table.item[j]!]!;
-    if (q >= 0 && i >= 0) judgmentOf.set(q * width + i, j);
+    if (q >= 0 && i >= 0) judgmentOf.add(q, i, j);
   }
 
   const label = new Float64Array(dump.rowCount);
@@ -183,9 +182,9 @@ export function joinJudgments(dump: RankedDump, table: JudgmentTable, policy: Mi
   let disagreements = 0;
   const disagreementExamples: string[] = [];
   for (let r = 0; r < dump.rowCount; r++) {
-    const j = judgmentOf.get(dump.query[r]! * width + dump.item[r]!);
-    const judged = j === undefined ? NaN : table.grade[j]!;
-    if (j !== undefined) used[j] = 1;
+    const j = judgmentOf.find(dump.query[r]!, dump.item[r]!);
+    const judged = j < 0 ? NaN : table.grade[j]!;
+    if (j >= 0) used[j] = 1;
     const inline = dump.label[r]!;
     if (inline === inline) {
       inlineRows++;
