@@ -38,6 +38,11 @@ describe('gainline eval with a judgments file', () => {
     expect(r.stdout).toMatch(/1 judged item was never retrieved by the run/);
   });
 
+  it('the CSV report has each query\'s count of judged items never retrieved', () => {
+    const r = runCli(['eval', 'run.csv', '--judgments', 'grades.tsv', '--metrics', 'ndcg@10', '--format', 'csv'], dir);
+    expect(r.stdout).toBe(`query,items,relevant,notRetrieved,skipped,ndcg@10\ncordless drill,2,2,1,false,${ndcg}\n`);
+  });
+
   it('--missing-queries without a judgments file is a usage error naming the option', () => {
     const r = runCli(['eval', 'run.csv', '--missing-queries', 'zero'], dir);
     expect(r.code).toBe(2);
