@@ -10,6 +10,7 @@
  * `unretrieved` side table, so the ideal ranking and the judged-set denominators see them. Judged queries
  * with no row in the run are counted, and under the `zero` policy added as queries without rows.
  */
+import { promises as fsp } from 'node:fs';
 import { InputError } from '../errors';
 import { BytePool } from '../model/bytePool';
 import type { JudgmentsJoin, MissingQueriesPolicy, RankedDump, UnretrievedJudged } from '../model/dump';
@@ -61,6 +62,7 @@ async function looksLikeLines(path: string): Promise<boolean> {
     return false; // the table readers say what is wrong with the file
   }
   if (head.length >= 4 && head.toString('latin1', 0, 4) === 'PAR1') return false;
+  if ((await fsp.stat(path)).isDirectory()) return false;
   const starts = new Int32Array(5);
   const ends = new Int32Array(5);
   let s = 0;
@@ -73,7 +75,8 @@ async function looksLikeLines(path: string): Promise<boolean> {
     }
     s = e + 1;
   }
-  return false;
+  // Empty or blank: the line reader says that a judgments file needs at least one judgment.
+  return true;
 }
 
 /** `query unused item grade` lines (blank lines skipped). */
