@@ -169,6 +169,15 @@ describe('judgments files', () => {
     expect((err as InputError).message).toContain(`${judged}:3: expected each (query, item) pair judged once; 'q1' / 'd1' is already judged on line 1`);
   });
 
+  it('a grade the gain cannot take, on a judged item the run never retrieved, names the judgments file and line', async () => {
+    const run = tmp.file('gain.run', 'q1 Q0 d1 1 3.0 demo\n');
+    const judged = tmp.file('gain.judgments', 'q1 0 d1 1\nq1 0 d2 3\n');
+    const dump = await readDump(run, { judgments: judged });
+    const gain = { kind: 'map' as const, gains: new Map([[0, 0], [1, 1]]) };
+    expect(() => evaluate(dump, parseMetricList('ndcg@10'), { ...DEFAULT_CONVENTIONS, gain })).toThrow(
+      `${judged}:2: expected a gain for grade 3 in the gain map --gain map:0=0,1=1 (a judged item the run never retrieved`);
+  });
+
   it('names judged items that occur nowhere in the run', () => {
     const dump = joined([{ query: 'q1', item: 'd1', label: NaN, score: 1 }], [{ query: 'q1', item: 'd1', grade: 1 }, { query: 'q1', item: 'd7', grade: 0 }]);
     expect(dump.notes.messages.join(' ')).toMatch(/1 judged items do not occur anywhere in the run/);

@@ -22,6 +22,8 @@ export interface UnretrievedJudged {
   readonly grade: Float64Array;
   /** Item id of each entry in the dump's `items` pool (which then also holds items that have no row). */
   readonly item: Uint32Array;
+  /** Line of each entry in the judgments file (0 for Parquet judgments), for errors about its grade. */
+  readonly line: Uint32Array;
   /**
    * Queries with an id at or above this have no row in the run: judged queries added under the
    * `zero` policy for queries missing from the run (equal to queries.size when none were added).

@@ -245,6 +245,7 @@ function sideTable(dump: RankedDump, table: JudgmentTable, queryInDump: Int32Arr
   const total = start[queries]!;
   const grade = new Float64Array(total);
   const item = new Uint32Array(total);
+  const line = new Uint32Array(total);
   const next = start.slice(0, queries);
   for (let j = 0; j < table.grade.length; j++) {
     const q = queryInDump[table.query[j]!]!;
@@ -254,8 +255,9 @@ function sideTable(dump: RankedDump, table: JudgmentTable, queryInDump: Int32Arr
     const at = next[q]!++;
     grade[at] = table.grade[j]!;
     item[at] = i;
+    line[at] = table.line[j]!;
   }
-  return { start, grade, item, firstAbsentQuery: dumpQueries };
+  return { start, grade, item, line, firstAbsentQuery: dumpQueries };
 }
 
 /** Reader notes; the counts of the join are told by the evaluation's warnings (evaluate/warnings.ts). */
