@@ -4,12 +4,8 @@
  * commands spell and validate them the same way.
  */
 import { InputError } from '../engine/errors';
-import {
-  DEFAULT_CONVENTIONS,
-  DEFAULT_METRICS,
-  type Conventions,
-  type MetricSpec,
-} from '../engine/metrics/conventions';
+import { DEFAULT_CONVENTIONS, type Conventions } from '../engine/metrics/conventions';
+import { DEFAULT_METRICS, type MetricSpec } from '../engine/metrics/registry';
 import type { DumpFormat } from '../engine/model/dump';
 import { parseColumnRoles, type ReadOptions } from '../engine/readers/index';
 import { parseGain, parseMetricList, parseNoRelevant, parseTies } from '../engine/metrics/parse';

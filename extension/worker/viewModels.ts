@@ -4,7 +4,8 @@
  */
 import { basename } from 'node:path';
 import type { RankedDump } from '../engine/model/dump';
-import type { Conventions, MetricSpec } from '../engine/metrics/conventions';
+import type { Conventions } from '../engine/metrics/conventions';
+import type { MetricSpec } from '../engine/metrics/registry';
 import type { Evaluation, QueryDetail } from '../engine/evaluate/types';
 import { segmentBreakdown } from '../engine/evaluate/segments';
 import { describeConventions } from '../engine/report/reportInput';

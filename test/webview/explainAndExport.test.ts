@@ -47,7 +47,7 @@ describe('table export', () => {
 
 describe('every default metric has an explanation', () => {
   it('covers the metrics the engine computes by default', async () => {
-    const { DEFAULT_METRICS } = await import('../../extension/engine/metrics/conventions');
+    const { DEFAULT_METRICS } = await import('../../extension/engine/metrics/registry');
     for (const key of DEFAULT_METRICS.split(',')) {
       expect(explainMetric(key, 'x'), key).not.toContain('no description');
     }

@@ -6,7 +6,8 @@
 import { evaluate, gradeRange } from '../evaluate/evaluate';
 import type { Evaluation } from '../evaluate/types';
 import { InputError } from '../errors';
-import type { Conventions, MetricSpec } from '../metrics/conventions';
+import type { Conventions } from '../metrics/conventions';
+import { anyNeeds, type MetricSpec } from '../metrics/registry';
 import type { RankedDump } from '../model/dump';
 import { groupByQuery, type QueryGroups } from '../model/groups';
 import { matchRuns, type RunMatch } from './match';
@@ -182,7 +183,7 @@ export async function compareRuns(
  * on different scales, so the higher of the two runs' highest grades is used for both.
  */
 function sharedConventions(a: RankedDump, b: RankedDump, metrics: readonly MetricSpec[], conventions: Conventions): Conventions {
-  if (conventions.maxGrade !== undefined || !metrics.some((m) => m.name === 'err')) return conventions;
+  if (conventions.maxGrade !== undefined || !anyNeeds(metrics, 'maxGrade')) return conventions;
   return { ...conventions, maxGrade: Math.max(gradeRange(a).highest, gradeRange(b).highest) };
 }
 

@@ -8,7 +8,8 @@ import { gradeRangeOf, summariseRows, type GradeRange } from '../model/rowSummar
 
 export type { GradeRange } from '../model/rowSummary';
 import { groupByQuery, type QueryGroups } from '../model/groups';
-import type { Conventions, MetricSpec } from '../metrics/conventions';
+import type { Conventions } from '../metrics/conventions';
+import { anyNeeds, isPairMeasure, residualMetricIndex, type MetricSpec } from '../metrics/registry';
 import { checkGainApplies } from '../metrics/gain';
 import { QueryRanking, SeenItems } from './ranking';
 import { headlineCutoff, QueryScorer } from './scorer';
@@ -47,7 +48,7 @@ function checkAgainstRange(range: GradeRange, metrics: readonly MetricSpec[], c:
     throw new InputError('an RBP persistence strictly between 0 and 1', undefined, undefined, String(c.rbpPersistence));
   }
   const gmax = c.maxGrade ?? highest;
-  if (metrics.some((m) => m.name === 'err')) {
+  if (anyNeeds(metrics, 'maxGrade')) {
     if (lowest < 0) throw new InputError('grades >= 0 for ERR', path, undefined, String(lowest));
     if (highest > gmax) throw new InputError(`grades <= the maximum grade ${gmax} for ERR`, path, undefined, String(highest));
   }
@@ -93,7 +94,7 @@ export function prepareEvaluation(dump: RankedDump, metrics: readonly MetricSpec
     queryCount: groups.start.length - 1,
     gmax,
     lowestGrade: range.lowest,
-    hasRbp: metrics.some((m) => m.name === 'rbp'),
+    hasRbp: residualMetricIndex(metrics) >= 0,
     sensitivity: options.sensitivity !== false,
   };
 }
@@ -173,7 +174,7 @@ export class RangeScorer {
     this.columns = dump as RankedDump;
     this.seen = new SeenItems();
     this.scorer = new QueryScorer(setup.conventions, setup.metrics, setup.gmax);
-    this.tauIndex = setup.metrics.findIndex((m) => m.name === 'tau');
+    this.tauIndex = setup.metrics.findIndex(isPairMeasure);
   }
 
   /** Adds queries [from, to) to `tally`. */
@@ -223,7 +224,7 @@ export function finishEvaluation(setup: EvaluationSetup, dump: RankedDump, perQu
   const { metrics, conventions, queryCount } = setup;
   const summary: MetricSummary[] = metrics.map((m, i) => summarise(m.key, perQuery.values[i]!));
   if (perQuery.rbpResidual) {
-    const first = metrics.find((m) => m.name === 'rbp')!;
+    const first = metrics[residualMetricIndex(metrics)]!;
     summary.push(summarise(`${first.key}_residual`, perQuery.rbpResidual));
   }
   const warnings = describeDegenerate({

@@ -2,7 +2,8 @@
  * What every report format needs: the evaluation plus the few facts about the dump it came from
  * (query names live in the dump's string pool, not in the evaluation).
  */
-import type { Conventions, GainConvention, MetricSpec } from '../metrics/conventions';
+import type { Conventions, GainConvention } from '../metrics/conventions';
+import { isPairMeasure, residualMetricIndex, type MetricSpec } from '../metrics/registry';
 import type { Evaluation, PerQueryColumns } from '../evaluate/types';
 import type { StringPool } from '../model/stringPool';
 
@@ -36,11 +37,11 @@ export interface RecordColumn {
 export function recordColumns(metrics: readonly MetricSpec[], perQuery: PerQueryColumns): RecordColumn[] {
   const columns: RecordColumn[] = [];
   // The evaluation keeps the residual of the first RBP metric only.
-  const firstRbp = metrics.findIndex((spec) => spec.name === 'rbp');
+  const firstRbp = residualMetricIndex(metrics);
   metrics.forEach((spec, m) => {
     columns.push({ key: spec.key, values: perQuery.values[m]! });
     if (m === firstRbp && perQuery.rbpResidual) columns.push({ key: `${spec.key}_residual`, values: perQuery.rbpResidual });
-    if (spec.name === 'tau') columns.push({ key: 'inversions', values: perQuery.inversions, whole: true });
+    if (isPairMeasure(spec)) columns.push({ key: 'inversions', values: perQuery.inversions, whole: true });
   });
   return columns;
 }
