@@ -8,7 +8,8 @@ import type { Conventions } from '../engine/metrics/conventions';
 import type { MetricSpec } from '../engine/metrics/registry';
 import type { Evaluation, QueryDetail } from '../engine/evaluate/types';
 import { segmentBreakdown } from '../engine/evaluate/segments';
-import { describeConventions } from '../engine/report/reportInput';
+import { describeConventions, describeGain } from '../presentation/conventionsLine';
+import { metricLabel as labelOfKey } from '../presentation/metricText';
 import type { QueryMovement } from '../engine/compare/movement';
 import type {
   ConventionsView,
@@ -22,21 +23,14 @@ import type {
 } from '../protocol/messages';
 import { toMaybe, type QueryTable } from './queryTable';
 
-/** 'ndcg@10' → 'NDCG@10', 'tau' → 'Kendall τ'. */
+/** 'ndcg@10' → 'NDCG@10', 'tau' → "Kendall's τ": the registry's label (presentation module). */
 export function metricLabel(spec: MetricSpec): string {
-  if (spec.name === 'tau') return 'Kendall τ';
-  return spec.k === undefined ? spec.name.toUpperCase() : `${spec.name.toUpperCase()}@${spec.k}`;
+  return labelOfKey(spec.key);
 }
 
 export function conventionsView(c: Conventions): ConventionsView {
-  const gain =
-    c.gain.kind === 'exponential'
-      ? 'exponential (2^g − 1)'
-      : c.gain.kind === 'linear'
-        ? 'linear (g)'
-        : 'map ' + [...c.gain.gains].sort((a, b) => a[0] - b[0]).map(([g, v]) => `${g}→${v}`).join(', ');
   return {
-    gain,
+    gain: describeGain(c.gain),
     ties: c.ties,
     noRelevant: c.noRelevant,
     relevantFrom: c.relevantFrom,

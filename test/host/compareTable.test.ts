@@ -93,7 +93,7 @@ describe('CompareTable', () => {
 describe('view models', () => {
   it('labels metrics the way the trade writes them', () => {
     expect(parseMetricList('ndcg@10,err@10,ap,rr,p@5,r@10,rbp,tau').map(metricLabel)).toEqual([
-      'NDCG@10', 'ERR@10', 'AP', 'RR', 'P@5', 'R@10', 'RBP', 'Kendall τ',
+      'NDCG@10', 'ERR@10', 'AP', 'RR', 'P@5', 'R@10', 'RBP', "Kendall's τ",
     ]);
   });
 

@@ -8,6 +8,7 @@ import type { Evaluation } from '../evaluate/types';
 import { InputError } from '../errors';
 import type { Conventions } from '../metrics/conventions';
 import { anyNeeds, type MetricSpec } from '../metrics/registry';
+import { DEFAULT_COMPARE_SETTINGS } from '../../presentation/defaults';
 import type { RankedDump } from '../model/dump';
 import { groupByQuery, type QueryGroups } from '../model/groups';
 import { matchRuns, type RunMatch } from './match';
@@ -45,7 +46,7 @@ export interface CompareOptions {
   readonly onProgress?: (fraction: number) => void;
 }
 
-export const DEFAULT_COMPARE_OPTIONS: CompareOptions = { permutations: 10_000, bootstrap: 2_000, seed: 1, tieTolerance: 0 };
+export const DEFAULT_COMPARE_OPTIONS: CompareOptions = { ...DEFAULT_COMPARE_SETTINGS };
 
 /** Adjusted p-values of one test across the compared metrics. */
 export interface AdjustedP {

@@ -3,6 +3,7 @@
  * every result, because the same run scores differently under each (the usual reason two teams'
  * NDCG@10 disagree).
  */
+import { DEFAULT_CONVENTION_SETTINGS } from '../../presentation/defaults';
 
 /** How a grade becomes a gain. `map` gives an explicit gain per grade (grades not listed are an error). */
 export type GainConvention =
@@ -49,9 +50,9 @@ export interface Conventions {
 }
 
 export const DEFAULT_CONVENTIONS: Conventions = {
-  gain: { kind: 'exponential' },
-  ties: 'average',
-  noRelevant: 'skip',
-  relevantFrom: 1,
-  rbpPersistence: 0.8,
+  gain: { kind: DEFAULT_CONVENTION_SETTINGS.gain },
+  ties: DEFAULT_CONVENTION_SETTINGS.ties,
+  noRelevant: DEFAULT_CONVENTION_SETTINGS.noRelevant,
+  relevantFrom: DEFAULT_CONVENTION_SETTINGS.relevantFrom,
+  rbpPersistence: DEFAULT_CONVENTION_SETTINGS.rbpPersistence,
 };

@@ -7,6 +7,7 @@
  * `node test/support/metric-table.mjs --write` to refresh the README table.
  */
 import { dcg, averagePrecision, rankBiasedPrecision, reciprocalRank, relevantInTop } from './listMetrics';
+import { DEFAULT_METRIC_KEYS } from '../../presentation/defaults';
 import type { ConventionNeed, MetricDefinition } from './definition';
 
 const TIES_AVERAGE = 'ties: exact expectation over every order of each tied group (McSherry & Najork 2008)';
@@ -178,8 +179,7 @@ export function definitionOfKey(key: string): { definition: MetricDefinition; k:
   return { definition, k: m[2] === undefined ? undefined : Number(m[2]) };
 }
 
-/** The one default metric list of the command line and the editor; the first is the headline. */
-export const DEFAULT_METRIC_KEYS: readonly string[] = ['ndcg@10', 'err@10', 'ap', 'rr', 'p@5', 'r@10', 'rbp', 'tau'];
+/** The one default metric list of the command line and the editor, comma-separated; the first is the headline. */
 export const DEFAULT_METRICS = DEFAULT_METRIC_KEYS.join(',');
 
 /** "ndcg@k, dcg@k, …, tau" for messages and help: every metric's key syntax. */

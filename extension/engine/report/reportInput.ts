@@ -7,6 +7,10 @@ import { isPairMeasure, residualMetricIndex, type MetricSpec } from '../metrics/
 import type { Evaluation, PerQueryColumns } from '../evaluate/types';
 import type { StringPool } from '../model/stringPool';
 
+// Text formats live in the presentation module, shared with the editor; re-exported for the reports.
+export { describeConventions } from '../../presentation/conventionsLine';
+export { formatValue } from '../../presentation/numbers';
+
 export interface ReportInput {
   readonly evaluation: Evaluation;
   /** Query names by interned id (the dump's `queries`). */
@@ -81,31 +85,6 @@ function gainAsJson(g: GainConvention): unknown {
   const gains: Record<string, number> = {};
   for (const [grade, gain] of [...g.gains].sort((a, b) => a[0] - b[0])) gains[String(grade)] = gain;
   return { map: gains };
-}
-
-/** One line naming every convention, for text reports. */
-export function describeConventions(c: Conventions): string {
-  const gain =
-    c.gain.kind === 'exponential'
-      ? 'exponential (2^g - 1)'
-      : c.gain.kind === 'linear'
-        ? 'linear (g)'
-        : 'map ' + [...c.gain.gains].sort((a, b) => a[0] - b[0]).map(([g, v]) => `${g}=${v}`).join(',');
-  const parts = [
-    `gain ${gain}`,
-    `ties ${c.ties}`,
-    `no relevant: ${c.noRelevant}`,
-    `relevant from grade ${c.relevantFrom}`,
-    `ERR max grade ${c.maxGrade ?? 'from data'}`,
-    `RBP persistence ${c.rbpPersistence}`,
-  ];
-  return parts.join(' · ');
-}
-
-/** Fixed 4 decimals for metric values (whole numbers for counts); a dash when undefined. */
-export function formatValue(x: number, whole = false): string {
-  if (Number.isNaN(x)) return '—';
-  return whole ? String(Math.round(x)) : x.toFixed(4);
 }
 
 /** NaN and infinities are not JSON; they become null. */
