@@ -104,7 +104,7 @@ describe('view models', () => {
 
   it('describes a gain map in order and turns Maps into plain JSON', () => {
     const view = conventionsView({ ...DEFAULT_CONVENTIONS, gain: { kind: 'map', gains: new Map([[2, 3], [0, 0], [1, 1]]) } });
-    expect(view.gain).toBe('map 0→0, 1→1, 2→3');
+    expect(view.gain).toBe('map 0=0,1=1,2=3'); // the conventions line's wording (presentation module)
     expect(JSON.parse(JSON.stringify(view))).toEqual(view);
     expect(view.maxGrade).toBeNull();
   });
