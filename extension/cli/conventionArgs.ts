@@ -5,7 +5,7 @@
  */
 import { InputError } from '../engine/errors';
 import { DEFAULT_CONVENTIONS, type Conventions } from '../engine/metrics/conventions';
-import { DEFAULT_METRICS, type MetricSpec } from '../engine/metrics/registry';
+import { DEFAULT_METRICS, metricSyntax, type MetricSpec } from '../engine/metrics/registry';
 import type { DumpFormat } from '../engine/model/dump';
 import { parseColumnRoles, type ReadOptions } from '../engine/readers/index';
 import { parseGain, parseMetricList, parseNoRelevant, parseTies } from '../engine/metrics/parse';
@@ -37,7 +37,8 @@ export const conventionHelp = `Input:
   --scores FILE         one score per line, for an SVMlight file
   --threads N           threads for reading large text files and scoring large dumps (default: from the size)
 Metrics and conventions:
-  --metrics LIST        comma-separated; default ${DEFAULT_METRICS}
+  --metrics LIST        comma-separated, first = headline; default ${DEFAULT_METRICS}
+                        keys: ${metricSyntax()}
   --gain G              exponential (2^g-1, default) | linear (g) | map:0=0,1=1,2=3,3=7
   --ties T              average (default) | pessimistic | optimistic | file-order
   --no-relevant P       queries with nothing relevant: skip (default) | zero | one

@@ -78,6 +78,10 @@ export function describeDegenerate(w: WarningInput): string[] {
     const source = c.maxGrade === undefined ? 'the highest grade in the data' : 'as configured';
     out.push(`ERR uses a maximum grade of ${w.gmax} (${source}).`);
   }
+  for (const spec of w.metrics) {
+    const note = metricDefinition(spec.name).note?.(spec.key, spec.k);
+    if (note) out.push(note);
+  }
   const hk = Number.isFinite(w.headlineK) ? `@${w.headlineK}` : '';
   out.push(`Inversion cost is the NDCG${hk} that swapping each inverted pair would recover, summed per query.`);
   return out;

@@ -60,6 +60,8 @@ export interface MetricDefinition {
   readonly residual?: boolean;
   /** A pair measure: the inversion count column follows it in reports. */
   readonly pairMeasure?: boolean;
+  /** A note for the report's notes when the metric is asked for with cut-off k (a choice users must know). */
+  readonly note?: (key: string, k: number | undefined) => string | undefined;
   /** The value for one query at cut-off k (Infinity = whole list), before the no-relevant policy. */
   readonly compute: (context: MetricContext, k: number) => number;
 }

@@ -69,6 +69,8 @@ export const METRIC_DEFINITIONS = [
     reference: 'common practice (denominator min(k, R): a top k of only relevant items scores 1)',
     ties: TIES_AVERAGE,
     needs: ['relevantFrom', 'noRelevant'],
+    note: (key, k) =>
+      k === undefined ? undefined : `${key} divides the summed precision by min(${k}, relevant items of the query), so a top ${k} of only relevant items scores 1.`,
     compute: (c, k) => averagePrecision(c.list, c.conventions.relevantFrom, k),
   },
   {
