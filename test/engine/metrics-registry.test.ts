@@ -71,4 +71,19 @@ describe('the registry', () => {
     expect(metricLabel('tau')).toBe("Kendall's τ");
     expect(metricLabel('rbp_residual')).toBe('rbp_residual');
   });
+  it('parses exactly the keys its entries allow', () => {
+    for (const d of METRIC_DEFINITIONS) {
+      expect(parseMetricList(d.name)[0]).toEqual({ name: d.name, key: d.name });
+      if (d.cutoff === 'optional') expect(parseMetricList(`${d.name}@7`)[0]).toEqual({ name: d.name, k: 7, key: `${d.name}@7` });
+      else expect(() => parseMetricList(`${d.name}@7`)).toThrow(/without a cut-off/);
+    }
+    expect(() => parseMetricList('mrr@10')).toThrow(/hit or hit@k, judged or judged@k/);
+  });
+  it('states AP@k\'s denominator in the report notes, and only for a cut-off', () => {
+    const rows = [row('a', 1, 2), row('b', 0, 1)];
+    const notes = evaluate(buildDump(rows), parseMetricList('ap@5,ap'), DEFAULT_CONVENTIONS).warnings;
+    expect(notes.filter((n) => n.includes('min('))).toEqual([
+      'ap@5 divides the summed precision by min(5, relevant items of the query), so a top 5 of only relevant items scores 1.',
+    ]);
+  });
 });
