@@ -10,6 +10,7 @@ import type { Evaluation, QueryDetail } from '../engine/evaluate/types';
 import { segmentBreakdown } from '../engine/evaluate/segments';
 import { describeConventions, describeGain } from '../presentation/conventionsLine';
 import { metricLabel as labelOfKey } from '../presentation/metricText';
+import { metricRange } from '../engine/metrics/registry';
 import type { QueryMovement } from '../engine/compare/movement';
 import type {
   ConventionsView,
@@ -52,15 +53,27 @@ export function fileInfo(dump: RankedDump): FileInfo {
   };
 }
 
-/** 10 equal bins over [0, 1]; values outside (DCG-like metrics are not bounded) are clamped to the ends. */
-export function histogram(values: Float64Array, bins = 10): Histogram {
+/**
+ * 10 equal bins over the metric's range from the registry ([0, 1], tau's [-1, 1]); a metric unbounded
+ * above (DCG) gets [min(0, lowest value), highest value]. The last bin includes its upper end.
+ */
+export function histogram(values: Float64Array, range?: readonly [number, number], bins = 10): Histogram {
+  let [lower, upper] = range ?? [0, -Infinity];
+  if (!range) {
+    for (const v of values) {
+      if (!Number.isFinite(v)) continue;
+      if (v < lower) lower = v;
+      if (v > upper) upper = v;
+    }
+    if (!(upper > lower)) upper = lower + 1;
+  }
   const counts = new Array<number>(bins).fill(0);
   for (const v of values) {
     if (!Number.isFinite(v)) continue;
-    const bin = Math.min(bins - 1, Math.max(0, Math.floor(v * bins)));
+    const bin = Math.min(bins - 1, Math.max(0, Math.floor(((v - lower) / (upper - lower)) * bins)));
     counts[bin]!++;
   }
-  return { lower: 0, upper: 1, counts };
+  return { lower, upper, counts };
 }
 
 export function metricColumns(evaluation: Evaluation): MetricColumn[] {
@@ -87,7 +100,7 @@ export function overviewModel(dump: RankedDump, evaluation: Evaluation, loadMs: 
       delta: toMaybe(row.mean - headlineMean),
     })),
     degenerate: { ...evaluation.degenerate },
-    histogram: histogram(evaluation.perQuery.values[evaluation.headline]!),
+    histogram: histogram(evaluation.perQuery.values[evaluation.headline]!, metricRange(evaluation.metrics[evaluation.headline]!)),
     segmentColumns: dump.segments.map((s) => s.name),
     warnings: [...evaluation.warnings, ...dump.notes.messages],
     loadMs: Math.round(loadMs),

@@ -8,7 +8,7 @@ import { evaluate, gradeRange } from '../../extension/engine/evaluate/evaluate';
 import type { Conventions, GainConvention, TieConvention } from '../../extension/engine/metrics/conventions';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
 import { parseMetricList } from '../../extension/engine/metrics/parse';
-import { METRIC_DEFINITIONS } from '../../extension/engine/metrics/registry';
+import { METRIC_DEFINITIONS, metricRange } from '../../extension/engine/metrics/registry';
 import { headlineCutoff } from '../../extension/engine/evaluate/scorer';
 import { buildDump, type TestRow } from './dumpBuilder';
 import { seededRandom, QUERY_NAMES } from '../reference/random';
@@ -82,6 +82,12 @@ describe('evaluate() against the slow reference', () => {
             const q = dump.queries.find(query);
             const slow = slowQuery(items, METRICS, conventions, gmax, hk);
             METRICS.forEach((m, i) => close(evaluation.perQuery.values[i]![q]!, slow.values[m.key]!, `${query} ${m.key}`));
+            // Every value lies in the range the registry states (the editor's chart axes rely on it).
+            METRICS.forEach((m, i) => {
+              const v = evaluation.perQuery.values[i]![q]!;
+              const range = metricRange(m);
+              if (range && !Number.isNaN(v)) expect(v >= range[0] - 1e-12 && v <= range[1] + 1e-12, `${query} ${m.key} = ${v}`).toBe(true);
+            });
             const skipped = slow.noRelevant && noRelevant === 'skip';
             close(evaluation.perQuery.rbpResidual![q]!, slow.values['rbp_residual']!, `${query} rbp_residual`);
             close(evaluation.perQuery.inversions[q]!, skipped ? NaN : slow.discordant, `${query} inversions`);

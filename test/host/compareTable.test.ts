@@ -7,6 +7,7 @@ import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions'
 import { parseMetricList } from '../../extension/engine/metrics/parse';
 import { CompareTable, outcomeOf } from '../../extension/worker/compareTable';
 import { conventionsView, histogram, metricLabel } from '../../extension/worker/viewModels';
+import { metricRange } from '../../extension/engine/metrics/registry';
 import { seededRandom } from '../reference/random';
 
 const WORDS = ['drill', 'screws', 'hammer', 'hose', 'ladder', 'paint', 'hinge', 'sealant'];
@@ -98,8 +99,18 @@ describe('view models', () => {
   });
 
   it('bins the headline into ten bins with 1.0 in the last and skipped queries left out', () => {
-    const h = histogram(Float64Array.of(0, 0.05, 0.1, 0.95, 1, NaN, 1.7));
+    const h = histogram(Float64Array.of(0, 0.05, 0.1, 0.95, 1, NaN, 1.7), [0, 1]);
     expect(h.counts).toEqual([2, 1, 0, 0, 0, 0, 0, 0, 0, 3]);
+  });
+
+  it('bins over the metric\'s range from the registry: tau over [-1, 1], DCG over the data', () => {
+    // Bins of width 0.2 from -1: -0.05 falls in [-0.2, 0), 0 in [0, 0.2), 1 in the last (closed) bin.
+    const tau = histogram(Float64Array.of(-1, -0.05, 0, 1), metricRange(parseMetricList('tau')[0]!));
+    expect(tau).toEqual({ lower: -1, upper: 1, counts: [1, 0, 0, 0, 1, 1, 0, 0, 0, 1] });
+    expect(metricRange(parseMetricList('dcg@10')[0]!)).toBeUndefined();
+    const dcg = histogram(Float64Array.of(0, 2.5, 5, NaN));
+    expect(dcg).toEqual({ lower: 0, upper: 5, counts: [1, 0, 0, 0, 0, 1, 0, 0, 0, 1] });
+    expect(histogram(Float64Array.of(0, 0))).toEqual({ lower: 0, upper: 1, counts: [2, 0, 0, 0, 0, 0, 0, 0, 0, 0] });
   });
 
   it('describes a gain map in order and turns Maps into plain JSON', () => {

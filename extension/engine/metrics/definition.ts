@@ -48,6 +48,8 @@ export interface MetricDefinition {
   readonly normalised: boolean;
   /** As written in papers and on screen: NDCG, P, Kendall's τ. The cut-off is appended as @k. */
   readonly label: string;
+  /** The values the metric can take, [low, high]; undefined when unbounded above (DCG). Sets chart axes. */
+  readonly range?: readonly [number, number];
   /** One line for tooltips and the README; `depth` is "the top 10" or "the whole list". */
   readonly explain: (depth: string) => string;
   readonly formula: string;

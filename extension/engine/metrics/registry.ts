@@ -14,7 +14,7 @@ const TIES_AVERAGE = 'ties: exact expectation over every order of each tied grou
 
 export const METRIC_DEFINITIONS = [
   {
-    name: 'ndcg', cutoff: 'optional', normalised: true, label: 'NDCG',
+    name: 'ndcg', cutoff: 'optional', normalised: true, label: 'NDCG', range: [0, 1],
     explain: (depth) => `DCG over ${depth} divided by the DCG of the ideal order over ${depth}. DCG = Σ gain(grade) / log2(position + 1) (Järvelin & Kekäläinen 2002).`,
     formula: 'DCG@k / ideal DCG@k, the ideal built from every judged item of the query',
     reference: 'Järvelin & Kekäläinen 2002',
@@ -36,7 +36,7 @@ export const METRIC_DEFINITIONS = [
     compute: (c, k) => dcg(c.list, c.gain, k),
   },
   {
-    name: 'err', cutoff: 'optional', normalised: false, label: 'ERR',
+    name: 'err', cutoff: 'optional', normalised: false, label: 'ERR', range: [0, 1],
     explain: (depth) => `Expected reciprocal rank over ${depth}: Σ (1/r) · R_r · Π_{i<r}(1 − R_i), R = (2^g − 1) / 2^gmax (Chapelle et al. 2009).`,
     formula: 'Σ_{r≤k} (1/r) R_r Π_{i<r}(1−R_i), R = (2^g−1)/2^gmax',
     reference: 'Chapelle, Metzler, Zhang & Grinspan 2009',
@@ -45,7 +45,7 @@ export const METRIC_DEFINITIONS = [
     compute: (c, k) => c.err.compute(c.errStops(), c.list.bounds, c.list.groups, c.list.n, k),
   },
   {
-    name: 'p', cutoff: 'optional', normalised: false, label: 'P',
+    name: 'p', cutoff: 'optional', normalised: false, label: 'P', range: [0, 1],
     explain: (depth) => `Share of ${depth} that is relevant (grade ≥ the relevance threshold).`,
     formula: 'relevant items in the top k / k (k = list length without a cut-off)',
     reference: 'common practice',
@@ -54,7 +54,7 @@ export const METRIC_DEFINITIONS = [
     compute: (c, k) => relevantInTop(c.list, c.conventions.relevantFrom, k) / (k === Infinity ? Math.max(c.list.n, 1) : k),
   },
   {
-    name: 'r', cutoff: 'optional', normalised: true, label: 'R',
+    name: 'r', cutoff: 'optional', normalised: true, label: 'R', range: [0, 1],
     explain: (depth) => `Share of the query's relevant items found in ${depth}.`,
     formula: 'relevant items in the top k / all relevant items of the query',
     reference: 'common practice',
@@ -63,7 +63,7 @@ export const METRIC_DEFINITIONS = [
     compute: (c, k) => relevantInTop(c.list, c.conventions.relevantFrom, k) / c.relevant,
   },
   {
-    name: 'ap', cutoff: 'optional', normalised: true, label: 'AP',
+    name: 'ap', cutoff: 'optional', normalised: true, label: 'AP', range: [0, 1],
     explain: (depth) => `Average precision over ${depth}: Σ precision at each relevant position, divided by min(k, relevant items of the query).`,
     formula: 'Σ_{i≤k, item i relevant} P@i / min(k, R), R = relevant items of the query (unretrieved count 0)',
     reference: 'common practice (denominator min(k, R): a top k of only relevant items scores 1)',
@@ -74,7 +74,7 @@ export const METRIC_DEFINITIONS = [
     compute: (c, k) => averagePrecision(c.list, c.conventions.relevantFrom, k),
   },
   {
-    name: 'rr', cutoff: 'optional', normalised: true, label: 'RR',
+    name: 'rr', cutoff: 'optional', normalised: true, label: 'RR', range: [0, 1],
     explain: (depth) => `Reciprocal rank: 1 / position of the first relevant item in ${depth} (0 when none is ranked there).`,
     formula: '1 / position of the first relevant item (0 if none in the top k)',
     reference: 'common practice',
@@ -83,7 +83,7 @@ export const METRIC_DEFINITIONS = [
     compute: (c, k) => reciprocalRank(c.list, c.conventions.relevantFrom, k),
   },
   {
-    name: 'rbp', cutoff: 'optional', cutoffWord: 'depth', normalised: false, label: 'RBP', residual: true,
+    name: 'rbp', cutoff: 'optional', cutoffWord: 'depth', normalised: false, label: 'RBP', residual: true, range: [0, 1],
     explain: (depth) => `Rank-biased precision over ${depth}: (1 − p) · Σ rel_i · p^(i−1), p = the persistence (Moffat & Zobel 2008).`,
     formula: '(1−p) Σ r_i p^{i−1}, binary relevance; `rbp_residual` = p^d plus the weight of unjudged items',
     reference: 'Moffat & Zobel 2008',
@@ -95,7 +95,7 @@ export const METRIC_DEFINITIONS = [
     },
   },
   {
-    name: 'tau', cutoff: 'none', normalised: false, label: "Kendall's τ", pairMeasure: true,
+    name: 'tau', cutoff: 'none', normalised: false, label: "Kendall's τ", pairMeasure: true, range: [-1, 1],
     explain: () => `Kendall's tau between the order by score and the order by grade (1 = same order, −1 = reversed).`,
     formula: "Kendall's tau-b between scores and grades; `inversions` = pairs with a lower score but a higher grade",
     reference: 'Kendall 1945',
@@ -104,7 +104,7 @@ export const METRIC_DEFINITIONS = [
     compute: (c) => c.pairs.tau,
   },
   {
-    name: 'hit', cutoff: 'optional', normalised: true, label: 'Hit',
+    name: 'hit', cutoff: 'optional', normalised: true, label: 'Hit', range: [0, 1],
     explain: (depth) => `1 when ${depth} holds a relevant item, else 0.`,
     formula: '1 if any relevant item is in the top k, else 0',
     reference: 'common practice',
@@ -129,7 +129,7 @@ export const METRIC_DEFINITIONS = [
     },
   },
   {
-    name: 'judged', cutoff: 'optional', normalised: false, label: 'Judged',
+    name: 'judged', cutoff: 'optional', normalised: false, label: 'Judged', range: [0, 1],
     explain: (depth) => `Share of ${depth} (or of the whole list when shorter) holding an item with a judgment.`,
     formula: 'judged items in the top min(k, list length) / min(k, list length); empty list 0',
     reference: 'common practice',
@@ -193,6 +193,11 @@ export function metricSyntax(): string {
 /** Whether any of the metrics depends on the convention (e.g. 'maxGrade': ERR's g_max must be known). */
 export function anyNeeds(metrics: readonly MetricSpec[], need: ConventionNeed): boolean {
   return metrics.some((m) => metricDefinition(m.name).needs.includes(need));
+}
+
+/** The values a metric of this key can take; undefined when unbounded (DCG). */
+export function metricRange(spec: MetricSpec): readonly [number, number] | undefined {
+  return metricDefinition(spec.name).range;
 }
 
 /** Index of the first metric with a second figure (RBP's residual), -1 when none; only its figure is kept. */
