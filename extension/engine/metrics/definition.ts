@@ -62,6 +62,8 @@ export interface MetricDefinition {
   readonly residual?: boolean;
   /** A pair measure: the inversion count column follows it in reports. */
   readonly pairMeasure?: boolean;
+  /** Why a query that is not skipped can have no value (the report's note), when it can. */
+  readonly undefinedWhen?: string;
   /** A note for the report's notes when the metric is asked for with cut-off k (a choice users must know). */
   readonly note?: (key: string, k: number | undefined) => string | undefined;
   /** The value for one query at cut-off k (Infinity = whole list), before the no-relevant policy. */

@@ -20,6 +20,7 @@ export const METRIC_DEFINITIONS = [
     reference: 'Järvelin & Kekäläinen 2002',
     ties: `${TIES_AVERAGE}; undefined (no value) when the relevant items all have gain 0`,
     needs: ['gain', 'relevantFrom', 'noRelevant'],
+    undefinedWhen: 'their ideal DCG is not above 0 (the gain convention gives their relevant items no positive gain)',
     compute: (c, k) => {
       const ideal = c.idealDcg(k);
       // A query with relevant items but an ideal DCG of 0 (a gain map giving them 0) has no defined NDCG.
