@@ -52,6 +52,9 @@ export async function runEval(argv: string[], io: CliIO): Promise<number> {
     throw new InputError('a whole number of queries, 0 or more', '--worst', undefined, values.worst);
   }
   const setup = scoringSetupFrom(values, (p) => resolve(io.cwd, p));
+  if (values['missing-queries'] !== undefined && setup.read.judgments === undefined) {
+    throw new InputError('--judgments FILE to go with it', '--missing-queries', undefined, values['missing-queries']);
+  }
   const path = resolve(io.cwd, source);
 
   const size = (await stat(path)).size;
@@ -63,7 +66,7 @@ export async function runEval(argv: string[], io: CliIO): Promise<number> {
     // CSV and Markdown do not show the sensitivity rows; skipping them saves a third of the scoring time.
     const sensitivity = format === 'table' || format === 'json';
     // The JSON report's records are rendered by the scoring threads, chunk by chunk (see report/jsonRecords.ts).
-    const records = format === 'json' ? collectQueryRecords(setup.metrics, dump.queries) : undefined;
+    const records = format === 'json' ? collectQueryRecords(setup.metrics, dump.queries, dump.notes.judgments !== undefined) : undefined;
     const evaluation = await evaluateDump(dump, setup.metrics, setup.conventions, {
       onProgress: progress?.scoring,
       sensitivity,

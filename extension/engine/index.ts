@@ -11,7 +11,8 @@ import { compareRuns as compareScoredRuns, type CompareOptions, type Comparison 
 import { CoreMeter } from './evaluate/coreMeter';
 import { evaluateInParallel, type ParallelEvaluateOptions } from './evaluate/parallelEvaluate';
 import type { Evaluation } from './evaluate/types';
-import type { Conventions, MetricSpec } from './metrics/conventions';
+import type { Conventions } from './metrics/conventions';
+import type { MetricSpec } from './metrics/registry';
 import type { RankedDump } from './model/dump';
 import { readDump as readDumpFile, type ReadOptions } from './readers/index';
 

@@ -4,15 +4,20 @@
  */
 import { basename } from 'node:path';
 import type { RankedDump } from '../engine/model/dump';
-import type { Conventions, MetricSpec } from '../engine/metrics/conventions';
+import type { Conventions } from '../engine/metrics/conventions';
+import type { MetricSpec } from '../engine/metrics/registry';
 import type { Evaluation, QueryDetail } from '../engine/evaluate/types';
 import { segmentBreakdown } from '../engine/evaluate/segments';
-import { describeConventions } from '../engine/report/reportInput';
+import { describeConventions, describeGain } from '../presentation/conventionsLine';
+import { metricLabel as labelOfKey } from '../presentation/metricText';
+import { metricRange } from '../engine/metrics/registry';
 import type { QueryMovement } from '../engine/compare/movement';
 import type {
   ConventionsView,
   FileInfo,
   Histogram,
+  IdealView,
+  JudgmentsView,
   MetricColumn,
   MovementView,
   OverviewModel,
@@ -21,21 +26,14 @@ import type {
 } from '../protocol/messages';
 import { toMaybe, type QueryTable } from './queryTable';
 
-/** 'ndcg@10' → 'NDCG@10', 'tau' → 'Kendall τ'. */
+/** 'ndcg@10' → 'NDCG@10', 'tau' → "Kendall's τ": the registry's label (presentation module). */
 export function metricLabel(spec: MetricSpec): string {
-  if (spec.name === 'tau') return 'Kendall τ';
-  return spec.k === undefined ? spec.name.toUpperCase() : `${spec.name.toUpperCase()}@${spec.k}`;
+  return labelOfKey(spec.key);
 }
 
 export function conventionsView(c: Conventions): ConventionsView {
-  const gain =
-    c.gain.kind === 'exponential'
-      ? 'exponential (2^g − 1)'
-      : c.gain.kind === 'linear'
-        ? 'linear (g)'
-        : 'map ' + [...c.gain.gains].sort((a, b) => a[0] - b[0]).map(([g, v]) => `${g}→${v}`).join(', ');
   return {
-    gain,
+    gain: describeGain(c.gain),
     ties: c.ties,
     noRelevant: c.noRelevant,
     relevantFrom: c.relevantFrom,
@@ -57,15 +55,27 @@ export function fileInfo(dump: RankedDump): FileInfo {
   };
 }
 
-/** 10 equal bins over [0, 1]; values outside (DCG-like metrics are not bounded) are clamped to the ends. */
-export function histogram(values: Float64Array, bins = 10): Histogram {
+/**
+ * 10 equal bins over the metric's range from the registry ([0, 1], tau's [-1, 1]); a metric unbounded
+ * above (DCG) gets [min(0, lowest value), highest value]. The last bin includes its upper end.
+ */
+export function histogram(values: Float64Array, range?: readonly [number, number], bins = 10): Histogram {
+  let [lower, upper] = range ?? [0, -Infinity];
+  if (!range) {
+    for (const v of values) {
+      if (!Number.isFinite(v)) continue;
+      if (v < lower) lower = v;
+      if (v > upper) upper = v;
+    }
+    if (!(upper > lower)) upper = lower + 1;
+  }
   const counts = new Array<number>(bins).fill(0);
   for (const v of values) {
     if (!Number.isFinite(v)) continue;
-    const bin = Math.min(bins - 1, Math.max(0, Math.floor(v * bins)));
+    const bin = Math.min(bins - 1, Math.max(0, Math.floor(((v - lower) / (upper - lower)) * bins)));
     counts[bin]!++;
   }
-  return { lower: 0, upper: 1, counts };
+  return { lower, upper, counts };
 }
 
 export function metricColumns(evaluation: Evaluation): MetricColumn[] {
@@ -75,6 +85,10 @@ export function metricColumns(evaluation: Evaluation): MetricColumn[] {
     mean: toMaybe(evaluation.summary[m]?.mean ?? NaN),
     counted: evaluation.summary[m]?.counted ?? 0,
   }));
+}
+
+function judgmentsView(j: NonNullable<Evaluation['judgments']>): JudgmentsView {
+  return { unretrieved: j.unretrieved, absentQueries: j.absentQueries, missingQueries: j.missingQueries, disagreements: j.disagreements };
 }
 
 export function overviewModel(dump: RankedDump, evaluation: Evaluation, loadMs: number): OverviewModel {
@@ -93,11 +107,36 @@ export function overviewModel(dump: RankedDump, evaluation: Evaluation, loadMs: 
       ...(row.unavailable !== undefined ? { unavailable: row.unavailable } : {}),
     })),
     degenerate: { ...evaluation.degenerate },
-    histogram: histogram(evaluation.perQuery.values[evaluation.headline]!),
+    histogram: histogram(evaluation.perQuery.values[evaluation.headline]!, metricRange(evaluation.metrics[evaluation.headline]!)),
     segmentColumns: dump.segments.map((s) => s.name),
     warnings: [...evaluation.warnings, ...dump.notes.messages],
+    ...(evaluation.judgments ? { judgments: judgmentsView(evaluation.judgments) } : {}),
     loadMs: Math.round(loadMs),
   };
+}
+
+/**
+ * The whole ideal ranking: listed items at their ideal positions, with the judged items the run never
+ * retrieved in between, marked (`retrieved: false`, predicted position 0).
+ */
+function idealViews(dump: RankedDump, detail: QueryDetail, byRow: ReadonlyMap<number, QueryDetail['positions'][number]>,
+  label: (v: number) => ReturnType<typeof toMaybe>): IdealView[] {
+  const views: IdealView[] = detail.idealOrder.map((row) => {
+    const p = byRow.get(row);
+    return {
+      position: p?.idealPosition ?? 0,
+      row,
+      item: p?.item ?? dump.items.get(dump.item[row]!),
+      label: label(dump.label[row]!),
+      gain: p?.gain ?? 0,
+      predictedPosition: p?.position ?? 0,
+      retrieved: true,
+    };
+  });
+  for (const missing of detail.notRetrieved) {
+    views.push({ position: missing.idealPosition, row: -1, item: missing.item, label: label(missing.label), gain: missing.gain, predictedPosition: 0, retrieved: false });
+  }
+  return views.sort((a, b) => a.position - b.position);
 }
 
 export function detailView(dump: RankedDump, evaluation: Evaluation, detail: QueryDetail, queryId: number, table: QueryTable): QueryDetailView {
@@ -125,17 +164,7 @@ export function detailView(dump: RankedDump, evaluation: Evaluation, detail: Que
       tieGroupSize: p.tieGroupSize,
       withinCutoff: p.position <= detail.k,
     })),
-    ideal: detail.idealOrder.map((row, i) => {
-      const p = byRow.get(row);
-      return {
-        position: i + 1,
-        row,
-        item: p?.item ?? dump.items.get(dump.item[row]!),
-        label: label(dump.label[row]!),
-        gain: p?.gain ?? 0,
-        predictedPosition: p?.position ?? 0,
-      };
-    }),
+    ideal: idealViews(dump, detail, byRow, label),
     dcg: detail.dcg,
     idealDcg: detail.idealDcg,
     ndcg: toMaybe(detail.ndcg),

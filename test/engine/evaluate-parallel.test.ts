@@ -19,6 +19,7 @@ import { buildDump, type TestRow } from './dumpBuilder';
 import { TempDir } from './fixtures/readers/tempFiles';
 import { QUERY_NAMES, seededRandom } from '../reference/random';
 import { useBundledWorkers } from './fixtures/workers';
+import { judgedCollection, joined } from './judgedSets';
 
 const tmp = new TempDir();
 
@@ -91,10 +92,24 @@ describe('parallel scoring', () => {
     expect(one.sensitivity.length).toBeGreaterThan(5);
   });
 
+  it.each(['skip', 'zero'] as const)('with judged items never retrieved and missing queries %s, it matches', async (policy) => {
+    const { rows, judgments } = judgedCollection(41, 2500);
+    const dump = joined(rows, judgments, policy);
+    expect(dump.notes.judgments!.unretrieved).toBeGreaterThan(1000);
+    expect(dump.notes.judgments!.absentQueries).toBeGreaterThan(50);
+    const one = evaluate(dump, METRICS, DEFAULT_CONVENTIONS);
+    const records = collectQueryRecords(METRICS, dump.queries, true);
+    const many = await evaluateInParallel(dump, METRICS, DEFAULT_CONVENTIONS, { threads: 3, perChunk: records.output });
+    expectIdentical(one, many);
+    expect(bytesOf(many.perQuery.unretrieved!)).toEqual(bytesOf(one.perQuery.unretrieved!));
+    const input = { queryNames: dump.queries, source: 'runs/a.csv', rowCount: dump.rowCount };
+    expect(formatJson({ ...input, evaluation: many, queryRecords: records.pieces() })).toBe(formatJson({ ...input, evaluation: one }));
+  });
+
   it('renders the JSON report records on the scoring threads, the same text as rendering after scoring', async () => {
     const dump = buildDump(randomRows(31, 2500));
     const one = evaluate(dump, METRICS, DEFAULT_CONVENTIONS);
-    const records = collectQueryRecords(METRICS, dump.queries);
+    const records = collectQueryRecords(METRICS, dump.queries, false);
     const chunks: [number, number][] = [];
     const output = { ...records.output, onChunk: (from: number, to: number, text: string) => {
       chunks.push([from, to]);
@@ -115,7 +130,7 @@ describe('parallel scoring', () => {
     expect(rendered).toBe(formatJson({ ...input, evaluation: one }));
     expect(JSON.parse(rendered).queries).toHaveLength(dump.queries.size);
     // On one thread the same output arrives as one chunk of every query.
-    const single = collectQueryRecords(METRICS, dump.queries);
+    const single = collectQueryRecords(METRICS, dump.queries, false);
     evaluate(dump, METRICS, DEFAULT_CONVENTIONS, { perChunk: single.output });
     expect(single.pieces()).toHaveLength(1);
     expect(formatJson({ ...input, evaluation: one, queryRecords: single.pieces() })).toBe(rendered);

@@ -8,7 +8,8 @@ import { gradeRangeOf, summariseRows, type GradeRange } from '../model/rowSummar
 
 export type { GradeRange } from '../model/rowSummary';
 import { groupByQuery, type QueryGroups } from '../model/groups';
-import type { Conventions, MetricSpec } from '../metrics/conventions';
+import type { Conventions } from '../metrics/conventions';
+import { isPairMeasure, metricDefinition, residualMetricIndex, type MetricSpec } from '../metrics/registry';
 import { renderChunk, type ChunkOutput } from './chunkOutput';
 import { checkGainsAndGrades, gainProblem } from './gainLimits';
 import { QueryRanking, SeenItems } from './ranking';
@@ -97,7 +98,7 @@ export function prepareEvaluation(dump: RankedDump, metrics: readonly MetricSpec
     gmax,
     gradeRange: range,
     largestQuery: largest,
-    hasRbp: metrics.some((m) => m.name === 'rbp'),
+    hasRbp: residualMetricIndex(metrics) >= 0,
     sensitivity: options.sensitivity !== false,
   };
 }
@@ -114,6 +115,7 @@ export function allocatePerQuery(queryCount: number, metrics: readonly MetricSpe
   return {
     items: new Uint32Array(allocate(queryCount * 4)),
     relevant: new Uint32Array(allocate(queryCount * 4)),
+    unretrieved: new Uint32Array(allocate(queryCount * 4)),
     values: metrics.map(f64),
     inversions: f64(),
     inversionCost: f64(),
@@ -126,6 +128,8 @@ export function allocatePerQuery(queryCount: number, metrics: readonly MetricSpe
 export interface RangeTally {
   degenerate: DegenerateCounts;
   emptyQueries: number;
+  /** Judged queries without a row in the run, scored 0 under missing queries `zero`. */
+  absentQueries: number;
   tauUndefined: number;
   /** Queries the sensitivity pass saw with no relevant item. */
   sensitivityNoRelevant: number;
@@ -135,6 +139,7 @@ export function emptyTally(): RangeTally {
   return {
     degenerate: { singleItemQueries: 0, noRelevantQueries: 0, duplicateRows: 0, missingScoreRows: 0, unjudgedRows: 0, tiedScoreRows: 0 },
     emptyQueries: 0,
+    absentQueries: 0,
     tauUndefined: 0,
     sensitivityNoRelevant: 0,
   };
@@ -144,12 +149,13 @@ export function addTally(into: RangeTally, from: RangeTally): void {
   const d = into.degenerate;
   for (const key of Object.keys(d) as (keyof DegenerateCounts)[]) d[key] += from.degenerate[key];
   into.emptyQueries += from.emptyQueries;
+  into.absentQueries += from.absentQueries;
   into.tauUndefined += from.tauUndefined;
   into.sensitivityNoRelevant += from.sensitivityNoRelevant;
 }
 
 /** The dump columns scoring reads (a worker thread gets only these). */
-export type ScoredColumns = Pick<RankedDump, 'item' | 'label' | 'score'>;
+export type ScoredColumns = Pick<RankedDump, 'item' | 'label' | 'score' | 'unretrieved'>;
 
 /** Scores queries [from, to) into `perQuery` (indexed by query id); progress is the fraction of this range. */
 export function scoreQueryRange(setup: EvaluationSetup, dump: RankedDump | ScoredColumns, from: number, to: number,
@@ -167,6 +173,8 @@ export class RangeScorer {
   private readonly seen: SeenItems;
   private readonly columns: RankedDump;
   private readonly tauIndex: number;
+  /** Queries from here on have no row in the run (judged queries added under missing queries `zero`). */
+  private readonly firstAbsent: number;
 
   constructor(
     private readonly setup: EvaluationSetup,
@@ -178,7 +186,8 @@ export class RangeScorer {
     this.columns = dump as RankedDump;
     this.seen = new SeenItems();
     this.scorer = new QueryScorer(setup.conventions, setup.metrics, setup.gmax);
-    this.tauIndex = setup.metrics.findIndex((m) => m.name === 'tau');
+    this.tauIndex = setup.metrics.findIndex(isPairMeasure);
+    this.firstAbsent = dump.unretrieved?.firstAbsentQuery ?? Infinity;
   }
 
   /** Adds queries [from, to) to `tally`. */
@@ -198,6 +207,12 @@ export class RangeScorer {
         options.onProgress?.((q - from) / count);
       }
       ranking.load(columns, groups.rowsOfQuery, groups.start[q]!, groups.start[q + 1]!, seen);
+      ranking.setUnretrieved(columns.unretrieved, q);
+      if (perQuery.unretrieved) perQuery.unretrieved[q] = ranking.unretrieved;
+      if (q >= this.firstAbsent) {
+        this.scoreAbsent(q, tally);
+        continue;
+      }
       scorer.score(ranking);
       const n = ranking.n;
       perQuery.items[q] = n;
@@ -216,9 +231,29 @@ export class RangeScorer {
       perQuery.inversionCost[q] = skipped ? NaN : scorer.inversionCost;
       if (perQuery.rbpResidual) perQuery.rbpResidual[q] = skipped ? NaN : scorer.rbpResidual;
       if (tauIndex >= 0 && !skipped && Number.isNaN(scorer.pairs.tau)) tally.tauUndefined++;
-      sensitivity?.add(ranking, scorer.grades, scorer.noRelevant, q);
+      sensitivity?.add(ranking, scorer.grades, scorer.noRelevant, q, scorer.idealGrades);
     }
     tally.sensitivityNoRelevant += (sensitivity?.noRelevantQueries ?? 0) - noRelevantBefore;
+  }
+
+  /**
+   * A judged query the run has no row for, under missing queries `zero`: 0 on every metric and never
+   * skipped, as evaluation campaigns count a topic a system did not answer (common practice). Its judged
+   * items are all unretrieved; nothing is inverted. The sensitivity rows leave it out (no list to vary).
+   */
+  private scoreAbsent(q: number, tally: RangeTally): void {
+    const perQuery = this.perQuery;
+    perQuery.items[q] = 0;
+    let relevant = 0;
+    const side = this.columns.unretrieved!;
+    for (let e = side.start[q]!; e < side.start[q + 1]!; e++) if (side.grade[e]! >= this.setup.conventions.relevantFrom) relevant++;
+    perQuery.relevant[q] = relevant;
+    for (let m = 0; m < this.setup.metrics.length; m++) perQuery.values[m]![q] = 0;
+    perQuery.skipped[q] = 0;
+    perQuery.inversions[q] = 0;
+    perQuery.inversionCost[q] = 0;
+    if (perQuery.rbpResidual) perQuery.rbpResidual[q] = 0;
+    tally.absentQueries++;
   }
 }
 
@@ -229,14 +264,12 @@ export class RangeScorer {
 export function undefinedValueNotes(metrics: readonly MetricSpec[], perQuery: PerQueryColumns): string[] {
   const notes: string[] = [];
   metrics.forEach((m, i) => {
-    if (m.name === 'tau') return;
+    if (isPairMeasure(m)) return;
     const column = perQuery.values[i]!;
     let undefinedCount = 0;
     for (let q = 0; q < column.length; q++) if (perQuery.skipped[q] === 0 && column[q] !== column[q]) undefinedCount++;
     if (undefinedCount === 0) return;
-    const why = m.name === 'ndcg'
-      ? 'their ideal DCG is not above 0 (the gain convention gives their relevant items no positive gain)'
-      : 'the metric has no value for them';
+    const why = metricDefinition(m.name).undefinedWhen ?? 'the metric has no value for them';
     const who = undefinedCount === 1 ? 'query that is' : 'queries that are';
     notes.push(`${m.key} is undefined for ${undefinedCount.toLocaleString('en-US')} ${who} not skipped: ${why}; left out of its mean.`);
   });
@@ -249,7 +282,7 @@ export function finishEvaluation(setup: EvaluationSetup, dump: RankedDump, perQu
   const { metrics, conventions, queryCount } = setup;
   const summary: MetricSummary[] = metrics.map((m, i) => summarise(m.key, perQuery.values[i]!));
   if (perQuery.rbpResidual) {
-    const first = metrics.find((m) => m.name === 'rbp')!;
+    const first = metrics[residualMetricIndex(metrics)]!;
     summary.push(summarise(`${first.key}_residual`, perQuery.rbpResidual));
   }
   const warnings = describeDegenerate({
@@ -264,8 +297,10 @@ export function finishEvaluation(setup: EvaluationSetup, dump: RankedDump, perQu
     headlineK: headlineCutoff(metrics),
   });
   warnings.push(...undefinedValueNotes(metrics, perQuery));
+  // The missing-queries policy was applied when the judgments were joined; it is printed with the rest.
+  const judged = dump.notes.judgments;
   return {
-    conventions,
+    conventions: judged ? { ...conventions, missingQueries: judged.missingQueries } : conventions,
     metrics,
     headline: 0,
     queryCount,
@@ -274,6 +309,7 @@ export function finishEvaluation(setup: EvaluationSetup, dump: RankedDump, perQu
     degenerate: tally.degenerate,
     sensitivity: sensitivity ? sensitivity.rows() : [],
     warnings,
+    ...(dump.notes.judgments ? { judgments: dump.notes.judgments } : {}),
   };
 }
 

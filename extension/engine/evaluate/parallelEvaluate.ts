@@ -12,7 +12,8 @@ import { engineSettings } from '../config';
 import { CancelledError } from '../errors';
 import type { RankedDump } from '../model/dump';
 import { groupByQuery, type QueryGroups } from '../model/groups';
-import type { Conventions, MetricSpec } from '../metrics/conventions';
+import type { Conventions } from '../metrics/conventions';
+import type { MetricSpec } from '../metrics/registry';
 import {
   addTally,
   allocatePerQuery,
@@ -110,7 +111,7 @@ async function scoreWithWorkers(dump: RankedDump, metrics: readonly MetricSpec[]
   if (recorded) sensitivity!.recordInto(recorded);
   const bounds = splitByRows(setup.groups.start, Math.min(setup.queryCount, threads * engineSettings().tuning.scoreChunksPerThread));
   const next = new Int32Array(shared(4));
-  const columns: ScoredColumns = { item: dump.item, label: dump.label, score: dump.score };
+  const columns: ScoredColumns = { item: dump.item, label: dump.label, score: dump.score, ...(dump.unretrieved ? { unretrieved: dump.unretrieved } : {}) };
   const output = options.perChunk;
   const work: ChunkWork | undefined = output && { renderer: output.renderer, params: output.params };
   const task: ScoreRangeTask = { setup, columns, bounds, next, perQuery, sensitivity: recorded, ...(work ? { perChunk: work } : {}) };
@@ -198,6 +199,7 @@ function unshared(p: PerQueryColumns): PerQueryColumns {
     inversions: p.inversions.slice(),
     inversionCost: p.inversionCost.slice(),
     skipped: p.skipped.slice(),
+    ...(p.unretrieved ? { unretrieved: p.unretrieved.slice() } : {}),
     ...(p.rbpResidual ? { rbpResidual: p.rbpResidual.slice() } : {}),
   };
 }

@@ -9,7 +9,7 @@
  * to the byte (report tests check it against the whole document stringified at once).
  */
 import { registerChunkRenderer, type ChunkOutput } from '../evaluate/chunkOutput';
-import type { MetricSpec } from '../metrics/conventions';
+import type { MetricSpec } from '../metrics/registry';
 import { BytePool } from '../model/bytePool';
 import type { StringPool } from '../model/stringPool';
 import type { PerQueryColumns } from '../evaluate/types';
@@ -26,6 +26,8 @@ export type PackedNames = { readonly bytes: Uint8Array; readonly ends: Uint32Arr
 export interface QueryRecordsSpec {
   readonly metrics: readonly MetricSpec[];
   readonly names: PackedNames;
+  /** Add each query's count of judged items the run never retrieved (labels from a judgments file). */
+  readonly notRetrieved?: boolean;
 }
 
 const decoder = new TextDecoder('utf-8');
@@ -64,6 +66,7 @@ export function renderQueryRecords(spec: QueryRecordsSpec, perQuery: PerQueryCol
   const records: Record<string, unknown>[] = new Array(to - from);
   for (let q = from; q < to; q++) {
     const record: Record<string, unknown> = { query: nameOf(spec.names, q), items: items[q], relevant: relevant[q] };
+    if (spec.notRetrieved) record.notRetrieved = perQuery.unretrieved?.[q] ?? 0;
     for (const column of columns) {
       const v = column.values[q]!;
       // NaN and infinities are not JSON: null.
@@ -88,9 +91,10 @@ export interface QueryRecordsCollector {
   pieces(): string[];
 }
 
-export function collectQueryRecords(metrics: readonly MetricSpec[], names: StringPool): QueryRecordsCollector {
+/** `notRetrieved`: the dump's labels came from a judgments file (records then count judged items never retrieved). */
+export function collectQueryRecords(metrics: readonly MetricSpec[], names: StringPool, notRetrieved: boolean): QueryRecordsCollector {
   const received: { from: number; text: string }[] = [];
-  const spec: QueryRecordsSpec = { metrics, names: packNames(names) };
+  const spec: QueryRecordsSpec = { metrics, names: packNames(names), notRetrieved };
   return {
     output: { renderer: QUERY_RECORDS, params: spec, onChunk: (from, _to, text) => received.push({ from, text }) },
     pieces: () => received.filter((r) => r.text !== '').sort((a, b) => a.from - b.from).map((r) => r.text),
