@@ -7,28 +7,67 @@ import type { DumpFormat, FileStamp, RankedDump, ReaderNotes, SegmentColumn } fr
 import { emptyNotes } from '../model/dump';
 
 /**
+ * The per-row columns every reader fills, described once. The row arrays of RowColumns, the shared
+ * buffers of a parallel read, a parse range's result and the merge of ranges are all derived from
+ * this table. `merge` says what a later range's values need when ranges are put together in file
+ * order: ids re-interned through the merged pool of that name, line numbers shifted by the lines
+ * before the range, or nothing. (Segment columns are a list of id columns, one per segment pool.)
+ */
+export const ROW_COLUMNS = {
+  query: { array: Uint32Array, merge: 'queries' },
+  item: { array: Uint32Array, merge: 'items' },
+  label: { array: Float64Array, merge: 'none' },
+  score: { array: Float64Array, merge: 'none' },
+  line: { array: Uint32Array, merge: 'lines' },
+  offset: { array: Float64Array, merge: 'none' },
+} as const;
+
+export type RowColumnName = keyof typeof ROW_COLUMNS;
+export const ROW_COLUMN_NAMES = Object.keys(ROW_COLUMNS) as RowColumnName[];
+type ArrayOf<K extends RowColumnName> = (typeof ROW_COLUMNS)[K]['array'] extends Uint32ArrayConstructor ? Uint32Array<ArrayBufferLike> : Float64Array<ArrayBufferLike>;
+
+/** One typed array per row column. */
+export type RowArrays = { -readonly [K in RowColumnName]: ArrayOf<K> };
+
+/** A typed array of `rows` elements of the column's type over `buffer` from row `at` (a fresh array without a buffer). */
+export function rowArray<K extends RowColumnName>(name: K, rows: number, buffer?: ArrayBufferLike, at = 0): ArrayOf<K> {
+  const Typed = ROW_COLUMNS[name].array as unknown as { new (n: number): ArrayOf<K>; new (b: ArrayBufferLike, at: number, n: number): ArrayOf<K>; BYTES_PER_ELEMENT: number };
+  return buffer === undefined ? new Typed(rows) : new Typed(buffer, at * Typed.BYTES_PER_ELEMENT, rows);
+}
+
+/** Every row column as arrays made by `make`. */
+export function rowArrays(make: <K extends RowColumnName>(name: K) => ArrayOf<K>): RowArrays {
+  const arrays = {} as Record<RowColumnName, unknown>;
+  for (const name of ROW_COLUMN_NAMES) arrays[name] = make(name);
+  return arrays as RowArrays;
+}
+
+/**
  * Column buffers shared between threads: a parse worker writes rows [firstRow, firstRow + rows)
  * of each buffer, so the main thread can compact ranges in place instead of copying them.
  */
-export interface SharedColumns {
+export type SharedColumns = { readonly [K in RowColumnName]: SharedArrayBuffer } & {
   readonly firstRow: number;
   readonly rows: number;
-  readonly query: SharedArrayBuffer;
-  readonly item: SharedArrayBuffer;
-  readonly label: SharedArrayBuffer;
-  readonly score: SharedArrayBuffer;
-  readonly line: SharedArrayBuffer;
-  readonly offset: SharedArrayBuffer;
   readonly segmentIds: readonly SharedArrayBuffer[];
+};
+
+/** Typed views of rows [firstRow, firstRow + count) of a shared slice. */
+export function sharedViews(slice: SharedColumns, count: number): RowArrays & { segmentIds: Uint32Array[] } {
+  const at = slice.firstRow;
+  return {
+    ...rowArrays((name) => rowArray(name, count, slice[name], at)),
+    segmentIds: slice.segmentIds.map((b) => new Uint32Array(b, at * 4, count)),
+  };
 }
 
-export class RowColumns {
-  query: Uint32Array<ArrayBufferLike>;
-  item: Uint32Array<ArrayBufferLike>;
-  label: Float64Array<ArrayBufferLike>;
-  score: Float64Array<ArrayBufferLike>;
-  line: Uint32Array<ArrayBufferLike>;
-  offset: Float64Array<ArrayBufferLike>;
+export class RowColumns implements RowArrays {
+  query!: Uint32Array<ArrayBufferLike>;
+  item!: Uint32Array<ArrayBufferLike>;
+  label!: Float64Array<ArrayBufferLike>;
+  score!: Float64Array<ArrayBufferLike>;
+  line!: Uint32Array<ArrayBufferLike>;
+  offset!: Float64Array<ArrayBufferLike>;
   segmentIds: Uint32Array<ArrayBufferLike>[];
   count = 0;
   capacity: number;
@@ -45,25 +84,14 @@ export class RowColumns {
   ) {
     this.segmentPools = segmentNames.map(() => new BytePool());
     if (shared !== undefined) {
-      const at = shared.firstRow;
-      const n = shared.rows;
-      this.capacity = n;
-      this.query = new Uint32Array(shared.query, at * 4, n);
-      this.item = new Uint32Array(shared.item, at * 4, n);
-      this.label = new Float64Array(shared.label, at * 8, n);
-      this.score = new Float64Array(shared.score, at * 8, n);
-      this.line = new Uint32Array(shared.line, at * 4, n);
-      this.offset = new Float64Array(shared.offset, at * 8, n);
-      this.segmentIds = shared.segmentIds.map((b) => new Uint32Array(b, at * 4, n));
+      this.capacity = shared.rows;
+      const views = sharedViews(shared, shared.rows);
+      Object.assign(this, rowArrays((name) => views[name] as never));
+      this.segmentIds = views.segmentIds;
       return;
     }
     this.capacity = Math.max(16, capacity);
-    this.query = new Uint32Array(this.capacity);
-    this.item = new Uint32Array(this.capacity);
-    this.label = new Float64Array(this.capacity);
-    this.score = new Float64Array(this.capacity);
-    this.line = new Uint32Array(this.capacity);
-    this.offset = new Float64Array(this.capacity);
+    Object.assign(this, rowArrays((name) => rowArray(name, this.capacity)));
     this.segmentIds = segmentNames.map(() => new Uint32Array(this.capacity));
   }
 
@@ -76,12 +104,7 @@ export class RowColumns {
   reserve(rows: number): void {
     if (rows <= this.capacity) return;
     const capacity = Math.ceil(rows);
-    this.query = grow(this.query, capacity, this.count);
-    this.item = grow(this.item, capacity, this.count);
-    this.label = grow(this.label, capacity, this.count);
-    this.score = grow(this.score, capacity, this.count);
-    this.line = grow(this.line, capacity, this.count);
-    this.offset = grow(this.offset, capacity, this.count);
+    Object.assign(this, rowArrays((name) => grow(this[name] as Typed, capacity, this.count) as never));
     this.segmentIds = this.segmentIds.map((ids) => grow(ids, capacity, this.count));
     this.capacity = capacity;
   }
@@ -140,7 +163,7 @@ export class RowColumns {
   }
 }
 
-type Typed = Uint32Array | Float64Array;
+type Typed = Uint32Array<ArrayBufferLike> | Float64Array<ArrayBufferLike>;
 
 function grow<T extends Typed>(old: T, capacity: number, used: number): T {
   const fresh = new (old.constructor as new (n: number) => T)(capacity);

@@ -12,7 +12,7 @@ import { CancelledError, InputError } from '../errors';
 import { BytePool, hashBytes, type BytePoolState } from '../model/bytePool';
 import type { RankedDump } from '../model/dump';
 import { addSummaries } from '../model/rowSummary';
-import { RowColumns, type SharedColumns } from './columns';
+import { ROW_COLUMN_NAMES, ROW_COLUMNS, RowColumns, rowArray, rowArrays, sharedViews, type RowArrays, type RowColumnName, type SharedColumns } from './columns';
 import { DelimitedParser } from './delimited';
 import type { ReadOptions } from './index';
 import { parseRange, type RangeResult, type RangeTask } from './rangeParse';
@@ -60,7 +60,7 @@ export async function readParallelDelimited(path: string, format: 'csv' | 'tsv',
   const gaps = addSummaries(parts.map((p) => p.gaps));
   const rows = parts.every((p) => p.inShared)
     ? compactShared(parts, slices, lineOffsets, header.parser.columns!)
-    : merge(parts.map((p, k) => (p.inShared ? { ...p, ...viewsOf(slices[k]!, p.count) } : p)), lineOffsets, header.parser.columns!);
+    : merge(parts.map((p, k) => (p.inShared ? { ...p, ...sharedViews(slices[k]!, p.count) } : p)), lineOffsets, header.parser.columns!);
   if (rows.count === 0) throw new InputError('at least one data row after the header', path, 2);
   await checkUnchanged(path, stamp);
   rows.setGaps(gaps);
@@ -100,35 +100,15 @@ async function readHeader(path: string, delimiter: number, options: ReadOptions)
 function sharedSlices(bounds: number[], bytesPerRow: number, segments: number): SharedColumns[] {
   const sizes = bounds.slice(0, -1).map((start, k) => Math.ceil(((bounds[k + 1]! - start) / bytesPerRow) * 1.15) + 1024);
   const total = sizes.reduce((a, b) => a + b, 0);
-  const buffers = {
-    query: new SharedArrayBuffer(total * 4),
-    item: new SharedArrayBuffer(total * 4),
-    label: new SharedArrayBuffer(total * 8),
-    score: new SharedArrayBuffer(total * 8),
-    line: new SharedArrayBuffer(total * 4),
-    offset: new SharedArrayBuffer(total * 8),
-    segmentIds: Array.from({ length: segments }, () => new SharedArrayBuffer(total * 4)),
-  };
+  const buffers = {} as Record<RowColumnName, SharedArrayBuffer>;
+  for (const name of ROW_COLUMN_NAMES) buffers[name] = new SharedArrayBuffer(total * ROW_COLUMNS[name].array.BYTES_PER_ELEMENT);
+  const segmentIds = Array.from({ length: segments }, () => new SharedArrayBuffer(total * 4));
   let firstRow = 0;
   return sizes.map((rows) => {
-    const slice = { ...buffers, firstRow, rows };
+    const slice = { ...buffers, segmentIds, firstRow, rows };
     firstRow += rows;
     return slice;
   });
-}
-
-/** Typed views of the first `count` rows of a shared slice. */
-function viewsOf(slice: SharedColumns, count: number) {
-  const at = slice.firstRow;
-  return {
-    query: new Uint32Array(slice.query, at * 4, count),
-    item: new Uint32Array(slice.item, at * 4, count),
-    label: new Float64Array(slice.label, at * 8, count),
-    score: new Float64Array(slice.score, at * 8, count),
-    line: new Uint32Array(slice.line, at * 4, count),
-    offset: new Float64Array(slice.offset, at * 8, count),
-    segmentIds: slice.segmentIds.map((b) => new Uint32Array(b, at * 4, count)),
-  } as Pick<Extract<RangeResult, { kind: 'rows' }>, 'query' | 'item' | 'label' | 'score' | 'line' | 'offset' | 'segmentIds'>;
 }
 
 /**
@@ -158,22 +138,23 @@ function compactShared(parts: Extract<RangeResult, { kind: 'rows' }>[], slices: 
     });
     return column.subarray(0, total);
   };
-  const moveFloats = (buffer: SharedArrayBuffer): Float64Array => {
-    const column = new Float64Array(buffer);
+  const moveRows = <K extends RowColumnName>(name: K): RowArrays[K] => {
+    const column = rowArray(name, buffers[name].byteLength / ROW_COLUMNS[name].array.BYTES_PER_ELEMENT, buffers[name]);
     let to = 0;
     parts.forEach((p, k) => {
       if (to !== slices[k]!.firstRow) column.copyWithin(to, slices[k]!.firstRow, slices[k]!.firstRow + p.count);
       to += p.count;
     });
-    return column.subarray(0, total);
+    return column.subarray(0, total) as RowArrays[K];
   };
-  rows.query = moveIds(buffers.query, (k) => maps.queries[k], () => 0);
-  rows.item = moveIds(buffers.item, (k) => maps.items[k], () => 0);
+  const merged = rowArrays((name) => {
+    const how = ROW_COLUMNS[name].merge;
+    if (how === 'none') return moveRows(name);
+    if (how === 'lines') return moveIds(buffers[name], () => undefined, (k) => lineOffsets[k]!) as never;
+    return moveIds(buffers[name], (k) => maps[how][k], () => 0) as never;
+  });
+  Object.assign(rows, merged);
   rows.segmentIds = buffers.segmentIds.map((b, s) => moveIds(b, (k) => maps.segments[k]![s], () => 0));
-  rows.line = moveIds(buffers.line, () => undefined, (k) => lineOffsets[k]!);
-  rows.label = moveFloats(buffers.label);
-  rows.score = moveFloats(buffers.score);
-  rows.offset = moveFloats(buffers.offset);
   rows.count = total;
   rows.capacity = total;
   return rows;
@@ -267,21 +248,17 @@ function merge(parts: Extract<RangeResult, { kind: 'rows' }>[], lineOffsets: num
     c[key] = undefined;
     return value;
   });
-  rows.query = concatMapped(take<Uint32Array>('query'), queryMaps, total);
-  rows.item = concatMapped(take<Uint32Array>('item'), itemMaps, total);
+  const merged = rowArrays((name) => {
+    const how = ROW_COLUMNS[name].merge;
+    const ranges = take<RowArrays[typeof name]>(name);
+    if (how === 'none') return concat(ranges, rowArray(name, total));
+    if (how === 'lines') return shiftLines(ranges as Uint32Array[], lineOffsets, total) as never;
+    return concatMapped(ranges as Uint32Array[], how === 'queries' ? queryMaps : itemMaps, total) as never;
+  });
+  Object.assign(rows, merged);
   const segmentColumns = take<Uint32Array[]>('segmentIds');
   rows.segmentIds = headerRows.segmentNames.map((_, k) =>
     concatMapped(segmentColumns.map((ids) => ids[k]!), segmentMaps.map((m) => m[k]!), total));
-  rows.label = concat(take<Float64Array>('label'), new Float64Array(total));
-  rows.score = concat(take<Float64Array>('score'), new Float64Array(total));
-  rows.offset = concat(take<Float64Array>('offset'), new Float64Array(total));
-  rows.line = new Uint32Array(total);
-  let at = 0;
-  take<Uint32Array>('line').forEach((lines, k) => {
-    const shift = lineOffsets[k]!;
-    for (let i = 0; i < lines.length; i++) rows.line[at + i] = lines[i]! + shift;
-    at += lines.length;
-  });
   rows.count = total;
   rows.capacity = total;
   return rows;
@@ -344,7 +321,19 @@ function concatMapped(columns: Uint32Array[], maps: Uint32Array[], total: number
   return out;
 }
 
-function concat<T extends Float64Array>(columns: T[], out: T): T {
+/** Line numbers of each range, counted from 1 at its start, shifted by the lines before it. */
+function shiftLines(ranges: Uint32Array[], lineOffsets: number[], total: number): Uint32Array {
+  const out = new Uint32Array(total);
+  let at = 0;
+  ranges.forEach((lines, k) => {
+    const shift = lineOffsets[k]!;
+    for (let i = 0; i < lines.length; i++) out[at + i] = lines[i]! + shift;
+    at += lines.length;
+  });
+  return out;
+}
+
+function concat<T extends Uint32Array<ArrayBufferLike> | Float64Array<ArrayBufferLike>>(columns: T[], out: T): T {
   let at = 0;
   for (const c of columns) {
     out.set(c, at);

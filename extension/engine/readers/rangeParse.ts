@@ -7,7 +7,7 @@
 import { InputError } from '../errors';
 import type { BytePoolState } from '../model/bytePool';
 import { summariseRows, type RowSummary } from '../model/rowSummary';
-import type { SharedColumns } from './columns';
+import { ROW_COLUMN_NAMES, rowArray, rowArrays, type RowArrays, type SharedColumns } from './columns';
 import { DelimitedParser } from './delimited';
 import type { ColumnRoles } from './roles';
 import { pumpRange, type RecordSink } from './source';
@@ -24,28 +24,24 @@ export interface RangeTask {
 }
 
 
+/** The rows of one parsed range: every row column (line numbers counted from 1 at the range start). */
+export type RangeRows = Readonly<RowArrays> & {
+  readonly kind: 'rows';
+  readonly count: number;
+  /** Newlines consumed in the range: the next range starts that many lines later. */
+  readonly lines: number;
+  /** True when all rows are in the task's shared slice; the row columns are then empty. */
+  readonly inShared: boolean;
+  readonly segmentIds: Uint32Array[];
+  readonly queries: BytePoolState;
+  readonly items: BytePoolState;
+  readonly segmentPools: BytePoolState[];
+  /** Gaps and grade extremes of the range, taken here so the main thread need not scan every row. */
+  readonly gaps: RowSummary;
+};
+
 export type RangeResult =
-  | {
-      readonly kind: 'rows';
-      readonly count: number;
-      /** Newlines consumed in the range: the next range starts that many lines later. */
-      readonly lines: number;
-      /** True when all rows are in the task's shared slice; the column fields below are then empty. */
-      readonly inShared: boolean;
-      readonly query: Uint32Array;
-      readonly item: Uint32Array;
-      readonly label: Float64Array;
-      readonly score: Float64Array;
-      /** Line numbers counted from 1 at the range start. */
-      readonly line: Uint32Array;
-      readonly offset: Float64Array;
-      readonly segmentIds: Uint32Array[];
-      readonly queries: BytePoolState;
-      readonly items: BytePoolState;
-      readonly segmentPools: BytePoolState[];
-      /** Gaps and grade extremes of the range, taken here so the main thread need not scan every row. */
-      readonly gaps: RowSummary;
-    }
+  | RangeRows
   | { readonly kind: 'quoted' }
   | { readonly kind: 'error'; readonly expected: string; readonly file?: string; readonly line?: number; readonly found?: string };
 
@@ -80,32 +76,15 @@ export async function parseRange(task: RangeTask, onBytes: (done: number) => voi
     segmentPools: rows.segmentPools.map((p) => p.exportState()),
     gaps: summariseRows(rows.label, rows.score, 0, n),
   };
-  if (rows.inShared) {
-    const none = new Uint32Array(0);
-    const noneF = new Float64Array(0);
-    return { kind: 'rows', count: n, lines: parser.line - 1, inShared: true, query: none, item: none, label: noneF, score: noneF, line: none,
-      offset: noneF, segmentIds: [], ...pools };
-  }
-  return {
-    kind: 'rows',
-    count: n,
-    lines: parser.line - 1,
-    inShared: false,
-    query: rows.query.subarray(0, n),
-    item: rows.item.subarray(0, n),
-    label: rows.label.subarray(0, n),
-    score: rows.score.subarray(0, n),
-    line: rows.line.subarray(0, n),
-    offset: rows.offset.subarray(0, n),
-    segmentIds: rows.segmentIds.map((ids) => ids.subarray(0, n)) as Uint32Array[],
-    ...pools,
-  } as RangeResult;
+  const columns = rowArrays((name) => (rows.inShared ? rowArray(name, 0) : rows[name].subarray(0, n) as never));
+  const segmentIds = rows.inShared ? [] : rows.segmentIds.map((ids) => ids.subarray(0, n)) as Uint32Array[];
+  return { kind: 'rows', count: n, lines: parser.line - 1, inShared: rows.inShared, ...columns, segmentIds, ...pools };
 }
 
 /** The buffers of a result, to transfer rather than copy between threads. */
 export function transferList(result: RangeResult): ArrayBuffer[] {
   if (result.kind !== 'rows') return [];
-  const columns: ArrayBufferView[] = result.inShared ? [] : [result.query, result.item, result.label, result.score, result.line, result.offset, ...result.segmentIds];
+  const columns: ArrayBufferView[] = result.inShared ? [] : [...ROW_COLUMN_NAMES.map((name) => result[name]), ...result.segmentIds];
   const pools = [result.queries, result.items, ...result.segmentPools];
   const views: ArrayBufferView[] = [...columns, ...pools.flatMap((p) => [p.arena, p.starts, p.table])];
   return views.map((v) => v.buffer as ArrayBuffer);
