@@ -4,7 +4,7 @@ import { evaluate } from '../../extension/engine/evaluate/evaluate';
 import { queryDetail } from '../../extension/engine/evaluate/detail';
 import { DEFAULT_CONVENTIONS, DEFAULT_METRICS } from '../../extension/engine/metrics/conventions';
 import { parseMetricList } from '../../extension/engine/metrics/parse';
-import { MapStringPool } from '../../extension/engine/model/stringPool';
+import { type MapStringPool } from '../../extension/engine/model/stringPool';
 import { buildDump, queryRows } from './dumpBuilder';
 
 describe('empty inputs', () => {

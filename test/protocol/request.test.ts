@@ -20,13 +20,12 @@ type TestMap = {
 function pair(timeoutMs = 1000) {
   const sentToServer: unknown[] = [];
   const sentToClient: ResponseEnvelope[] = [];
-  let server!: RequestServer<TestMap>;
   const client = new RequestClient<TestMap>((m) => {
     sentToServer.push(m);
     server.handleMessage(m);
   }, timeoutMs);
   const aborted: number[] = [];
-  server = new RequestServer<TestMap>(
+  const server = new RequestServer<TestMap>(
     {
       double: ({ n }) => n * 2,
       fail: ({ why }) => {

@@ -2,7 +2,7 @@
  * The distribution functions the tests need, taken from jStat (a maintained statistics library)
  * rather than hand-written special functions.
  */
-// @ts-ignore -- jstat ships no type declarations; the subset used is typed below.
+// @ts-expect-error -- jstat ships no type declarations; the subset used is typed below.
 import { jStat as untypedJStat } from 'jstat';
 
 interface JStatSubset {

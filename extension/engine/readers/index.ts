@@ -11,13 +11,13 @@
  * columns are then views of SharedArrayBuffers (see parallel.ts).
  */
 import { CancelledError, InputError } from '../errors';
-import type { DumpFormat, RankedDump } from '../model/dump';
+import type { RankedDump } from '../model/dump';
 import { DelimitedParser } from './delimited';
 import { detectFormat } from './detect';
 import { readJsonLines } from './jsonLines';
 import { readParallelDelimited, shouldParseInParallel } from './parallel';
 import { readParquet } from './parquet';
-import type { ColumnRoles } from './roles';
+import type { ReadOptions } from './readOptions';
 import { readRunFile } from './runFile';
 import { changedSince, fileChangedError, pumpText, statStamp, throwIfCancelled } from './source';
 import { readSvmlight } from './svmlight';
@@ -25,27 +25,7 @@ import { readSvmlight } from './svmlight';
 export { parseColumnRoles } from './roles';
 export type { ColumnRoles } from './roles';
 export type { DumpFormat, RankedDump } from '../model/dump';
-
-export interface ReadOptions {
-  /** Overrides detection. */
-  format?: DumpFormat;
-  /** Explicit column names, e.g. from --columns query=sid,item=pid,label=grade,score=p */
-  columns?: ColumnRoles;
-  /** Path of a judgments file (run-file input). */
-  judgments?: string;
-  /** Path of a one-score-per-line file (SVMlight input). */
-  scores?: string;
-  /** Parse threads for big text files; default auto (1 for small files). */
-  threads?: number;
-  /**
-   * Parse quote-free CSV/TSV on worker threads even where one thread would do, leaving this thread
-   * free meanwhile (to read a second file at the same time). Other inputs are read as usual.
-   */
-  offThread?: boolean;
-  /** Cancellation → CancelledError. */
-  signal?: AbortSignal;
-  onProgress?: (fraction: number) => void;
-}
+export type { ReadOptions } from './readOptions';
 
 export async function readDump(path: string, options: ReadOptions = {}): Promise<RankedDump> {
   throwIfCancelled(options.signal);
