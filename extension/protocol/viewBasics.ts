@@ -12,7 +12,7 @@ export interface FileInfo {
   readonly path: string;
   /** Base name for titles. */
   readonly name: string;
-  /** 'csv' | 'tsv' | 'jsonl' | 'run' | 'svmlight' | 'parquet'. */
+  /** 'csv' | 'tsv' | 'jsonl' | 'run' | 'sparse' | 'parquet'. */
   readonly format: string;
   readonly rowCount: number;
   readonly sizeBytes: number;

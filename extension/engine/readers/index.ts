@@ -2,7 +2,7 @@
  * Public entry of the readers: one call turns any supported dump into the columnar RankedDump.
  *
  * Formats: CSV/TSV with a header (roles from header names or `columns`), JSON Lines (a row or a
- * list per line), run files with a judgments file, SVMlight/LETOR files with a scores file, and
+ * list per line), run files with a judgments file, sparse feature lines with a scores file, and
  * Parquet (a file or a folder of parts). Text formats may be gzip-compressed.
  *
  * Row positions: `line` is the 1-based line where the row starts and `offset` its first byte in the
@@ -18,9 +18,10 @@ import { readJsonLines } from './jsonLines';
 import { readParallelDelimited, shouldParseInParallel } from './parallel';
 import { readParquet } from './parquet';
 import type { ReadOptions } from './readOptions';
+import { joinJudgments, readJudgmentTable } from './judgments';
 import { readRunFile } from './runFile';
 import { changedSince, fileChangedError, pumpText, statStamp, throwIfCancelled } from './source';
-import { readSvmlight } from './svmlight';
+import { readSparseFeatures } from './sparseFeatures';
 
 export { parseColumnRoles } from './roles';
 export type { ColumnRoles } from './roles';
@@ -41,6 +42,19 @@ export async function readDump(path: string, options: ReadOptions = {}): Promise
 }
 
 async function readDumpOnce(path: string, options: ReadOptions): Promise<RankedDump> {
+  if (options.judgments === undefined) return readFormat(path, options);
+  const judgmentsPath = options.judgments;
+  // Labels may be absent from the dump when a judgments file gives them.
+  const dumpOptions: ReadOptions = { ...options, columns: { ...options.columns, optional: ['label'] } };
+  const [dump, table] = await Promise.all([
+    readFormat(path, dumpOptions),
+    readJudgmentTable(judgmentsPath, options, (p, o) => readFormat(p, o)),
+  ]);
+  throwIfCancelled(options.signal);
+  return joinJudgments(dump, table, options.missingQueries ?? 'skip');
+}
+
+async function readFormat(path: string, options: ReadOptions): Promise<RankedDump> {
   const sniffed = await detectFormat(path, options);
   switch (sniffed.format) {
     case 'csv':
@@ -52,12 +66,12 @@ async function readDumpOnce(path: string, options: ReadOptions): Promise<RankedD
       if (options.judgments === undefined) {
         throw new InputError('a judgments file (query unused item grade) to go with the run file (on the command line: --judgments FILE)', path);
       }
-      return readRunFile(path, options.judgments, options);
-    case 'svmlight':
+      return readRunFile(path, options);
+    case 'sparse':
       if (options.scores === undefined) {
-        throw new InputError('a scores file (one score per line, same order) to go with the SVMlight file', path);
+        throw new InputError('a scores file (one score per line, same order) to go with the sparse feature file', path);
       }
-      return readSvmlight(path, options.scores, options);
+      return readSparseFeatures(path, options.scores, options);
     case 'parquet':
       return readParquet(path, sniffed.directory, options);
   }

@@ -2,7 +2,7 @@
  * What a caller can ask of the readers. Its own module so that each format's reader can take the
  * options without importing the readers' entry, which imports every reader.
  */
-import type { DumpFormat } from '../model/dump';
+import type { DumpFormat, MissingQueriesPolicy } from '../model/dump';
 import type { ColumnRoles } from './roles';
 
 export interface ReadOptions {
@@ -10,9 +10,16 @@ export interface ReadOptions {
   format?: DumpFormat;
   /** Explicit column names, e.g. from --columns query=sid,item=pid,label=grade,score=p */
   columns?: ColumnRoles;
-  /** Path of a judgments file (run-file input). */
+  /**
+   * Path of a judgments file: `query unused item grade` lines or a table naming the query, item and grade
+   * columns. Any format takes its labels from it (run files must have one); see judgments.ts.
+   */
   judgments?: string;
-  /** Path of a one-score-per-line file (SVMlight input). */
+  /** Column names in a tabular judgments file, like `columns` (query, item, label). */
+  judgmentsColumns?: ColumnRoles;
+  /** Judged queries with no row in the dump: left out (`skip`, default) or scored 0 on every metric (`zero`). */
+  missingQueries?: MissingQueriesPolicy;
+  /** Path of a one-score-per-line file (sparse feature lines). */
   scores?: string;
   /** Parse threads for big text files; default auto (1 for small files). */
   threads?: number;
