@@ -14,7 +14,7 @@ import type { RankedDump } from '../model/dump';
 import { addSummaries } from '../model/rowSummary';
 import { ROW_COLUMN_NAMES, ROW_COLUMNS, RowColumns, rowArray, rowArrays, sharedViews, type RowArrays, type RowColumnName, type SharedColumns } from './columns';
 import { DelimitedParser } from './delimited';
-import type { ReadOptions } from './index';
+import type { ReadOptions } from './readOptions';
 import { parseRange, type RangeResult, type RangeTask } from './rangeParse';
 import { assertTextHead, checkUnchanged, statStamp, throwIfCancelled } from './source';
 import { startThread, threadScript } from '../threads/spawn';

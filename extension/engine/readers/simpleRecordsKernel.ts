@@ -13,8 +13,26 @@ import { engineActivity, engineSettings } from '../config';
 import type { BytePool } from '../model/bytePool';
 import { parseSimpleRecords, POW10, ROLE_ITEM, ROLE_QUERY, ROLE_SEGMENT, type FastState } from './delimitedFast';
 
+/**
+ * The part of the WebAssembly JavaScript API used here. Node provides the global, but Node 20's type
+ * declarations leave its types to the DOM library, which the engine's build target does not load.
+ */
+type WasmModule = object;
+interface WasmMemory {
+  readonly buffer: ArrayBuffer;
+}
+interface WasmApi {
+  readonly Module: new (bytes: Uint8Array) => WasmModule;
+  readonly Memory: new (descriptor: { initial: number }) => WasmMemory;
+  readonly Instance: new (module: WasmModule, imports: Record<string, Record<string, unknown>>) => { readonly exports: unknown };
+}
+/** Looked up when used: under Node's --jitless the global is missing, and the caller falls back. */
+function webAssembly(): WasmApi {
+  return (globalThis as unknown as { WebAssembly: WasmApi }).WebAssembly;
+}
+
 interface KernelExports {
-  readonly memory: WebAssembly.Memory;
+  readonly memory: WasmMemory;
   layout(roles: number, pow10: number, previous: number, fields: number, idSlot: number, idStart: number, idEnd: number,
     idHash: number, label: number, score: number, line: number, start: number, rows: number): void;
   parse(pos: number, limit: number, delimiter: number, line: number, rankIsScore: number): number;
@@ -23,16 +41,16 @@ interface KernelExports {
 }
 
 /** The compiled kernel of the configured bundle folder, compiled once per folder. */
-let compiled: { readonly path: string; readonly module: WebAssembly.Module | null } | undefined;
+let compiled: { readonly path: string; readonly module: WasmModule | null } | undefined;
 
-function kernelModule(): WebAssembly.Module | undefined {
+function kernelModule(): WasmModule | undefined {
   const { bundleDir, tuning } = engineSettings();
   if (bundleDir === undefined || !tuning.recordKernel) return undefined;
   const path = join(bundleDir, 'simpleRecords.wasm');
   if (compiled?.path !== path) {
-    let module: WebAssembly.Module | null = null;
+    let module: WasmModule | null = null;
     try {
-      if (existsSync(path)) module = new WebAssembly.Module(readFileSync(path));
+      if (existsSync(path)) module = new (webAssembly().Module)(readFileSync(path));
     } catch {
       // WebAssembly switched off (Node's --jitless, a host policy): the JavaScript loop reads the same rows.
     }
@@ -69,7 +87,7 @@ export class SimpleRecordsKernel {
     return module && new SimpleRecordsKernel(module, roleOf);
   }
 
-  private constructor(module: WebAssembly.Module, roleOf: Int32Array) {
+  private constructor(module: WasmModule, roleOf: Int32Array) {
     const fieldCount = roleOf.length;
     let slots = 0;
     this.fields = Array.from(roleOf, (role) => ({ role, slot: isId(role) ? slots++ : -1 }));
@@ -87,8 +105,9 @@ export class SimpleRecordsKernel {
     const lineAt = scoreAt + 8 * this.rowsPerCall;
     const startAt = lineAt + 4 * this.rowsPerCall;
     const end = startAt + 4 * this.rowsPerCall;
-    const memory = new WebAssembly.Memory({ initial: Math.ceil(end / PAGE) + 1 });
-    this.kernel = new WebAssembly.Instance(module, { env: { memory, abort: kernelAbort } }).exports as unknown as KernelExports;
+    const { Instance, Memory } = webAssembly();
+    const memory = new Memory({ initial: Math.ceil(end / PAGE) + 1 });
+    this.kernel = new Instance(module, { env: { memory, abort: kernelAbort } }).exports as unknown as KernelExports;
     const buffer = memory.buffer;
     new Int32Array(buffer, rolesAt, fieldCount).set(roleOf);
     new Float64Array(buffer, pow10At, POW10.length).set(POW10);

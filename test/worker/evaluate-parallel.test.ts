@@ -15,11 +15,11 @@ import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions'
 import { parseMetricList } from '../../extension/engine/metrics/parse';
 import { formatJson } from '../../extension/engine/report/json';
 import { collectQueryRecords } from '../../extension/engine/report/jsonRecords';
-import { buildDump, type TestRow } from './dumpBuilder';
-import { TempDir } from './fixtures/readers/tempFiles';
+import { buildDump, type TestRow } from '../engine/dumpBuilder';
+import { TempDir } from '../engine/fixtures/readers/tempFiles';
 import { QUERY_NAMES, seededRandom } from '../reference/random';
-import { useBundledWorkers } from './fixtures/workers';
-import { judgedCollection, joined } from './judgedSets';
+import { useBundledWorkers } from './support/workers';
+import { judgedCollection, joined } from '../engine/judgedSets';
 
 const tmp = new TempDir();
 
