@@ -118,7 +118,7 @@ export async function runCompare(argv: string[], io: CliIO): Promise<number> {
   }
 }
 
-function wholeNumber(option: string, text: string | undefined, fallback: number, min: number, max: number): number {
+export function wholeNumber(option: string, text: string | undefined, fallback: number, min: number, max: number): number {
   if (text === undefined) return fallback;
   const n = text.trim() === '' ? Number.NaN : Number(text);
   if (!Number.isSafeInteger(n) || n < min || n > max) {
