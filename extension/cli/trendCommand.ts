@@ -3,16 +3,17 @@
  * and reduced to its per-query metric columns before the next is read, so a long series never holds
  * more than one dump.
  */
+import { existsSync } from 'node:fs';
 import { readdir, stat } from 'node:fs/promises';
+import { Worker } from 'node:worker_threads';
 import { basename, dirname, join, relative, resolve } from 'node:path';
-import { gradeRange, evaluate } from '../engine/evaluate/evaluate';
 import { InputError } from '../engine/errors';
-import { readDump } from '../engine/readers/index';
 import { formatTrend, TREND_FORMATS, type TrendFormat } from '../engine/report/trendReport';
 import type { Conventions } from '../engine/metrics/conventions';
-import { looksLikeDump, nameMatches, orderSeries, type OrderedCheckpoint, type SeriesFile, type SeriesOrder } from '../engine/trend/series';
+import { looksLikeDump, nameMatches, orderSeries, type SeriesFile, type SeriesOrder } from '../engine/trend/series';
+import { scoreCheckpoint, type CheckpointTask, type ScoredCheckpoint } from '../engine/trend/checkpoint';
 import { TrendBuilder } from '../engine/trend/trend';
-import { conventionHelp, conventionOptions, parseCommandArgs, scoringSetupFrom, type ScoringSetup } from './conventionArgs';
+import { conventionHelp, conventionOptions, parseCommandArgs, scoringSetupFrom } from './conventionArgs';
 import { UsageError } from './evalCommand';
 import type { CliIO } from './io';
 import { progressLine } from './progress';
@@ -78,17 +79,28 @@ export async function runTrend(argv: string[], io: CliIO): Promise<number> {
   const series = orderSeries(files, order);
   if (series.length < 2) throw new UsageError(`trend needs at least two checkpoints; found ${series.length}`);
   const builder = new TrendBuilder(setup.metrics, { bootstrap, seed, top });
-  let conventions = setup.conventions;
   const progress = io.isTTY ? progressLine(io, `${series.length} checkpoints`) : undefined;
+  const task = (i: number, conventions: Conventions): CheckpointTask => ({ path: series[i]!.path, read: setup.read, metrics: setup.metrics, conventions });
+  let conventions = setup.conventions;
+  // A second lane pays for its start-up from three checkpoints on; --threads 1 keeps everything on this thread.
+  const lane = series.length >= 3 && setup.read.threads !== 1 ? CheckpointLane.start() : undefined;
+  const stop = { stopped: false };
   try {
+    // The first checkpoint alone: it fixes ERR's g_max for the whole series, or ERR values of different
+    // checkpoints would be on different scales.
+    const first = await scoreCheckpoint(task(0, conventions));
+    if (conventions.maxGrade === undefined && setup.metrics.some((m) => m.name === 'err') && first.highestGrade > 0) {
+      conventions = { ...conventions, maxGrade: first.highestGrade };
+    }
+    const scored = scoreInTwoLanes(series.length, (i) => task(i, conventions), lane, first, stop);
     for (let i = 0; i < series.length; i++) {
-      const checkpoint = series[i]!;
-      // The dump lives only inside this call: the builder keeps per-query columns.
-      conventions = await scoreCheckpoint(checkpoint, i === 0, setup, conventions, builder);
+      await builder.add(series[i]!.name, series[i]!.position, (await scored[i]!).columns);
       progress?.scoring((i + 1) / series.length);
     }
   } finally {
     progress?.done();
+    stop.stopped = true; // after a failure, no lane starts another checkpoint
+    lane?.close();
   }
   const trend = builder.finish();
   const orderRule = order === 'number' ? 'ordered by the checkpoint number in each file name' : 'ordered by modification time, oldest first';
@@ -108,17 +120,82 @@ export async function runTrend(argv: string[], io: CliIO): Promise<number> {
   return 0;
 }
 
-async function scoreCheckpoint(checkpoint: OrderedCheckpoint, first: boolean, setup: ScoringSetup, conventions: Conventions,
-  builder: TrendBuilder): Promise<Conventions> {
-  const dump = await readDump(checkpoint.path, setup.read);
-  let used = conventions;
-  if (first && used.maxGrade === undefined && setup.metrics.some((m) => m.name === 'err')) {
-    // One g_max for the whole series, or ERR values of different checkpoints are on different scales.
-    used = { ...used, maxGrade: Math.max(1, gradeRange(dump).highest) };
+/**
+ * Scores checkpoints 1… on this thread and on the worker lane at once, each taking the next one as it
+ * finishes the last, so at most two dumps are in memory. Results are per-query columns only.
+ */
+function scoreInTwoLanes(count: number, task: (i: number) => CheckpointTask, lane: CheckpointLane | undefined,
+  first: ScoredCheckpoint, stop: { readonly stopped: boolean }): Promise<ScoredCheckpoint>[] {
+  const settle: { resolve: (s: ScoredCheckpoint) => void; reject: (e: unknown) => void }[] = [];
+  const results = Array.from({ length: count }, (_, i) => {
+    const p = new Promise<ScoredCheckpoint>((resolve, reject) => (settle[i] = { resolve, reject }));
+    p.catch(() => undefined); // awaited in series order by the caller; a later failure must not go unhandled meanwhile
+    return p;
+  });
+  settle[0]!.resolve(first);
+  let next = 1;
+  const work = async (score: (t: CheckpointTask) => Promise<ScoredCheckpoint>) => {
+    while (next < count && !stop.stopped) {
+      const i = next++;
+      try {
+        settle[i]!.resolve(await score(task(i)));
+      } catch (e) {
+        settle[i]!.reject(e);
+      }
+    }
+  };
+  void work(scoreCheckpoint);
+  if (lane) void work((t) => lane.score(t));
+  return results;
+}
+
+/** One checkpoint worker thread, fed one task at a time. */
+class CheckpointLane {
+  private readonly waiting = new Map<number, { resolve: (s: ScoredCheckpoint) => void; reject: (e: unknown) => void }>();
+  private nextId = 0;
+
+  private constructor(private readonly worker: Worker) {
+    worker.on('message', (m: { id: number; scored?: ScoredCheckpoint; failure?: WorkerFailure }) => {
+      const waiter = this.waiting.get(m.id);
+      this.waiting.delete(m.id);
+      if (m.scored) waiter?.resolve(m.scored);
+      else waiter?.reject(rebuildError(m.failure!));
+    });
+    worker.on('error', (e) => {
+      for (const w of this.waiting.values()) w.reject(e);
+      this.waiting.clear();
+    });
   }
-  const evaluation = evaluate(dump, setup.metrics, used, { sensitivity: false });
-  await builder.add(checkpoint.name, checkpoint.position, evaluation, (q) => dump.queries.get(q));
-  return used;
+
+  static start(): CheckpointLane | undefined {
+    const script = join(__dirname, 'checkpointWorker.js');
+    return existsSync(script) ? new CheckpointLane(new Worker(script)) : undefined;
+  }
+
+  score(task: CheckpointTask): Promise<ScoredCheckpoint> {
+    const id = this.nextId++;
+    return new Promise((resolve, reject) => {
+      this.waiting.set(id, { resolve, reject });
+      this.worker.postMessage({ id, task });
+    });
+  }
+
+  close(): void {
+    void this.worker.terminate();
+  }
+}
+
+interface WorkerFailure {
+  readonly input?: { expected: string; file?: string; line?: number; found?: string };
+  readonly message: string;
+  readonly code?: unknown;
+  readonly path?: unknown;
+}
+
+/** The worker's error as the command line's error handling expects it (InputError, or a file error with its code). */
+function rebuildError(f: WorkerFailure): Error {
+  if (f.input) return new InputError(f.input.expected, f.input.file, f.input.line, f.input.found);
+  return Object.assign(new Error(f.message), { code: f.code, path: f.path });
 }
 
 /** Expands folders and name patterns; a file named twice is an error, not a silent merge. */

@@ -146,6 +146,12 @@ describe('gainline trend against a slow recomputation from eval', () => {
     expect(runCli(['trend', '.', ...ARGS, '--format', 'markdown'], dir).stdout).toMatch(/^\| # \| checkpoint \| mean \| 95% interval \|/m);
   });
 
+  it('scores the same with the checkpoint worker lane as on one thread (--threads 1), byte for byte', () => {
+    const one = runCli(['trend', '.', ...ARGS, '--format', 'json', '--threads', '1'], dir);
+    expect(one.code).toBe(0);
+    expect(one.stdout).toBe(runCli(['trend', '.', ...ARGS, '--format', 'json'], dir).stdout);
+  });
+
   it('bad input is one line and exit 2', () => {
     writeFileSync(join(dir, 'notes.csv'), 'query,product_id,grade,score\nq,p,1,0.5\n');
     const r = runCli(['trend', '.', ...ARGS], dir);
@@ -154,5 +160,10 @@ describe('gainline trend against a slow recomputation from eval', () => {
     expect(r.stderr.trim().split('\n')).toHaveLength(1);
     expect(runCli(['trend', 'epoch-1.csv', 'epoch-1.csv'], dir).stderr).toMatch(/each checkpoint once/);
     expect(runCli(['trend', 'nothing-*.csv'], dir).code).toBe(2);
+    // A broken checkpoint scored on the worker lane is reported like one read here: its file and line.
+    writeFileSync(join(dir, 'notes.csv'), 'query,product_id,grade,score\nq,p,1,high\n');
+    const broken = runCli(['trend', 'epoch-1.csv', 'epoch-2.csv', 'notes.csv', '--order', 'time', ...ARGS], dir);
+    expect(broken.code).toBe(2);
+    expect(broken.stderr).toMatch(/notes\.csv:2: expected/);
   });
 });

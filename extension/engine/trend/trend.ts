@@ -74,6 +74,33 @@ export interface TrendOptions {
   readonly top: number;
 }
 
+/** What a trend keeps of one checkpoint: small enough to post between threads. */
+export interface CheckpointColumns {
+  /** The checkpoint's query names, in its query order. */
+  readonly queryNames: readonly string[];
+  /** Per metric, per query (same order); NaN where skipped. */
+  readonly values: Float64Array[];
+  /** Per metric, the evaluation's mean and counted queries. */
+  readonly means: readonly number[];
+  readonly counted: readonly number[];
+}
+
+/** Reduces one checkpoint's evaluation to its per-query metric columns; the dump can go afterwards. */
+export function checkpointColumns(evaluation: Evaluation, queryName: (q: number) => string): CheckpointColumns {
+  const n = evaluation.queryCount;
+  const values = evaluation.metrics.map((_, m) => {
+    const column = Float64Array.from(evaluation.perQuery.values[m]!);
+    for (let q = 0; q < n; q++) if (evaluation.perQuery.skipped[q]) column[q] = Number.NaN;
+    return column;
+  });
+  return {
+    queryNames: Array.from({ length: n }, (_, q) => queryName(q)),
+    values,
+    means: evaluation.metrics.map((_, m) => evaluation.summary[m]!.mean),
+    counted: evaluation.metrics.map((_, m) => evaluation.summary[m]!.counted),
+  };
+}
+
 interface Stored {
   readonly run: string;
   readonly position: number;
@@ -94,12 +121,12 @@ export class TrendBuilder {
     private readonly options: TrendOptions,
   ) {}
 
-  /** Takes what it needs from one checkpoint's evaluation; the caller may drop the dump afterwards. */
-  async add(run: string, position: number, evaluation: Evaluation, queryName: (q: number) => string): Promise<CheckpointSummary> {
-    const n = evaluation.queryCount;
+  /** Adds the next checkpoint of the series (in series order). */
+  async add(run: string, position: number, columns: CheckpointColumns): Promise<CheckpointSummary> {
+    const n = columns.queryNames.length;
     const ids = new Uint32Array(n);
     for (let q = 0; q < n; q++) {
-      const name = queryName(q);
+      const name = columns.queryNames[q]!;
       let id = this.ids.get(name);
       if (id === undefined) {
         id = this.names.length;
@@ -108,27 +135,32 @@ export class TrendBuilder {
       }
       ids[q] = id;
     }
-    const values = this.metrics.map((_, m) => {
-      const column = Float64Array.from(evaluation.perQuery.values[m]!);
-      for (let q = 0; q < n; q++) if (evaluation.perQuery.skipped[q]) column[q] = Number.NaN;
-      return column;
-    });
-    const intervals: Interval[] = [];
-    for (const column of values) {
-      const finite = column.filter(Number.isFinite);
-      // Same seed for every metric and checkpoint: the intervals are reproducible one by one.
-      intervals.push((await bootstrapMeanIntervals([finite], { resamples: this.options.bootstrap, seed: this.options.seed }))[0]!);
-    }
-    const summary: CheckpointSummary = {
-      run,
-      position,
-      queries: n,
-      means: this.metrics.map((_, m) => evaluation.summary[m]!.mean),
-      counted: this.metrics.map((_, m) => evaluation.summary[m]!.counted),
-      intervals,
-    };
+    const values = columns.values;
+    const intervals = await this.intervalsOf(values);
+    const summary: CheckpointSummary = { run, position, queries: n, means: columns.means, counted: columns.counted, intervals };
     this.stored.push({ run, position, ids, values, summary });
     return summary;
+  }
+
+  /**
+   * One bootstrap pass per group of metrics counted on the same queries (usually all of them): the
+   * resampled queries are drawn once and feed every column, as in the comparison's intervals. The
+   * seed is the same for every checkpoint, so each interval can be reproduced on its own.
+   */
+  private async intervalsOf(values: readonly Float64Array[]): Promise<Interval[]> {
+    const intervals: Interval[] = new Array(values.length);
+    const groups = new Map<string, number[]>();
+    values.forEach((column, m) => {
+      let key = '';
+      for (let q = 0; q < column.length; q++) key += Number.isFinite(column[q]!) ? '1' : '0';
+      groups.set(key, [...(groups.get(key) ?? []), m]);
+    });
+    for (const members of groups.values()) {
+      const columns = members.map((m) => values[m]!.filter(Number.isFinite));
+      const found = await bootstrapMeanIntervals(columns, { resamples: this.options.bootstrap, seed: this.options.seed });
+      members.forEach((m, i) => (intervals[m] = found[i]!));
+    }
+    return intervals;
   }
 
   finish(): Trend {
