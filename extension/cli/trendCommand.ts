@@ -10,6 +10,7 @@ import { basename, dirname, join, relative, resolve } from 'node:path';
 import { InputError } from '../engine/errors';
 import { formatTrend, TREND_FORMATS, type TrendFormat } from '../engine/report/trendReport';
 import type { Conventions } from '../engine/metrics/conventions';
+import { anyNeeds } from '../engine/metrics/registry';
 import { looksLikeDump, nameMatches, orderSeries, type SeriesFile, type SeriesOrder } from '../engine/trend/series';
 import { scoreCheckpoint, type CheckpointTask, type ScoredCheckpoint } from '../engine/trend/checkpoint';
 import { TrendBuilder } from '../engine/trend/trend';
@@ -89,7 +90,7 @@ export async function runTrend(argv: string[], io: CliIO): Promise<number> {
     // The first checkpoint alone: it fixes ERR's g_max for the whole series, or ERR values of different
     // checkpoints would be on different scales.
     const first = await scoreCheckpoint(task(0, conventions));
-    if (conventions.maxGrade === undefined && setup.metrics.some((m) => m.name === 'err') && first.highestGrade > 0) {
+    if (conventions.maxGrade === undefined && anyNeeds(setup.metrics, 'maxGrade') && first.highestGrade > 0) {
       conventions = { ...conventions, maxGrade: first.highestGrade };
     }
     const scored = scoreInTwoLanes(series.length, (i) => task(i, conventions), lane, first, stop);

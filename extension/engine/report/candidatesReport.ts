@@ -6,8 +6,10 @@
 import type { CandidateResult, CandidatesComparison } from '../compare/candidates';
 import type { MetricComparison } from '../compare/compare';
 import { matchingJson, metricJson } from './compareJson';
-import { formatDelta, formatInterval, formatP, winsTiesLosses } from './compareShared';
-import { conventionsAsJson, describeConventions, formatValue, jsonNumber } from './reportInput';
+import { describeConventions } from '../../presentation/conventionsLine';
+import { formatCount, formatDelta, formatInterval, formatP, formatValue } from '../../presentation/numbers';
+import { winsTiesLosses } from './compareShared';
+import { conventionsAsJson, jsonNumber } from './reportInput';
 import { alignedTable, markdownTable, type Align } from './textTable';
 
 const METRIC_HEADER = ['rank', 'candidate', 'baseline', 'candidate mean', 'Δ', '95% interval', 'p t', 'p Wilcoxon', 'p random', 'Holm', 'BH',
@@ -26,10 +28,10 @@ function metricRow(c: CandidateResult, m: number): string[] {
 
 /** Per candidate: how its queries line up with the baseline's. */
 export function coverageLines(many: CandidatesComparison): string[] {
-  const lines = [`${many.inEveryRun.toLocaleString('en-US')} of the baseline's ${many.baselineQueries.toLocaleString('en-US')} queries are in every run.`];
+  const lines = [`${formatCount(many.inEveryRun)} of the baseline's ${formatCount(many.baselineQueries)} queries are in every run.`];
   for (const c of many.candidates) {
     const match = c.comparison.match;
-    const parts = [`${match.commonA.length.toLocaleString('en-US')} shared`];
+    const parts = [`${formatCount(match.commonA.length)} shared`];
     const quoted = (names: readonly string[]) => names.map((n) => JSON.stringify(n)).join(', ');
     if (match.onlyInA > 0) parts.push(`${match.onlyInA} only in the baseline (e.g. ${quoted(match.onlyInAExamples)})`);
     if (match.onlyInB > 0) parts.push(`${match.onlyInB} only in the candidate (e.g. ${quoted(match.onlyInBExamples)})`);

@@ -1,9 +1,10 @@
 /** Reports of a training series (engine/trend/trend.ts): table, Markdown, CSV and JSON. */
 import type { Conventions } from '../metrics/conventions';
 import type { QueryDrop, Trend } from '../trend/trend';
-import { formatDelta, formatInterval } from './compareShared';
 import { csvField } from './csv';
-import { conventionsAsJson, describeConventions, formatValue, jsonNumber } from './reportInput';
+import { describeConventions } from '../../presentation/conventionsLine';
+import { formatDelta, formatValue } from '../../presentation/numbers';
+import { conventionsAsJson, jsonNumber } from './reportInput';
 import { alignedTable, clip, markdownTable, type Align } from './textTable';
 
 export type TrendFormat = 'table' | 'json' | 'markdown' | 'csv';
@@ -112,8 +113,7 @@ function trendText(input: TrendReportInput, markdown: boolean): string {
       title(`${spec.key}${peak >= 0 ? ` (peak at ${trend.checkpoints[peak]!.run})` : ''}`) +
         table(
           ['#', 'checkpoint', 'mean', '95% interval', 'queries', ''],
-          trend.checkpoints.map((k, i) => [String(i + 1), k.run, formatValue(k.means[m]!), formatInterval(k.intervals[m]!.low, k.intervals[m]!.high)
-            .replaceAll('+', ''), String(k.counted[m]), i === peak ? 'peak' : '']),
+          trend.checkpoints.map((k, i) => [String(i + 1), k.run, formatValue(k.means[m]!), meanInterval(k.intervals[m]!.low, k.intervals[m]!.high), String(k.counted[m]), i === peak ? 'peak' : '']),
           ['right', 'left', 'right', 'left', 'right', 'left'],
         ),
     );
@@ -133,4 +133,9 @@ function trendText(input: TrendReportInput, markdown: boolean): string {
   parts.push(title('Conventions') + list([describeConventions(input.conventions)]));
   parts.push(title('How these were computed') + list(input.methodNotes));
   return parts.join('\n\n') + '\n';
+}
+
+/** The interval of a mean (not a difference): unsigned bounds. */
+function meanInterval(low: number, high: number): string {
+  return Number.isNaN(low) || Number.isNaN(high) ? formatValue(Number.NaN) : `[${formatValue(low)}, ${formatValue(high)}]`;
 }

@@ -3,7 +3,8 @@
  * command line's own thread and the checkpoint worker, so both lanes compute exactly the same thing.
  */
 import { evaluate, gradeRange } from '../evaluate/evaluate';
-import type { Conventions, MetricSpec } from '../metrics/conventions';
+import type { Conventions } from '../metrics/conventions';
+import type { MetricSpec } from '../metrics/registry';
 import { readDump, type ReadOptions } from '../readers/index';
 import { checkpointColumns, type CheckpointColumns } from './trend';
 

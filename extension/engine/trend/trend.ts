@@ -13,7 +13,7 @@
  */
 import { bootstrapMeanIntervals, type Interval } from '../compare/bootstrap';
 import type { Evaluation } from '../evaluate/types';
-import type { MetricSpec } from '../metrics/conventions';
+import type { MetricSpec } from '../metrics/registry';
 
 const EXAMPLES = 5;
 
