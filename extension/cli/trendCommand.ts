@@ -46,7 +46,8 @@ Output:
 ${conventionHelp}
 Checkpoints scoring different query sets are reported (counts and examples per checkpoint), never
 intersected: each mean is over its own checkpoint's queries. ERR's highest grade, unless given, is
-the first checkpoint's.
+the first checkpoint's. Checkpoints are scored two at a time (this thread and one worker), keeping
+only their per-query values; --threads 1 scores them one by one on this thread.
 Exit status: 0 done, 2 bad input.
 `;
 
