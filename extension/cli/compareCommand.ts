@@ -41,7 +41,7 @@ Statistics:
                         first metric with Holm-adjusted randomization p <= ALPHA
 Output:
   --format F            table (default) | json | markdown | csv (one row per run × metric)
-  --top N               how many of the biggest drops and gains to list (default 10)
+  --top N               how many of the biggest drops and gains to list (default 10; two runs only)
 ${conventionHelp}
 Exit status: 0 done (and not worse, with --fail-if-worse), 1 B (or any candidate) significantly worse,
 2 bad input.
