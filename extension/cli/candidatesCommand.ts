@@ -17,12 +17,16 @@ import { formatCandidatesJson, formatCandidatesMarkdown, formatCandidatesTable }
 import { formatCandidatesCsv } from '../engine/report/compareCsv';
 import type { CompareFormat } from '../engine/report/compareReport';
 import type { ScoringSetup } from './conventionArgs';
+import { formatDelta, formatP } from '../presentation/numbers';
 import type { CliIO } from './io';
 import { progressLine } from './progress';
 import { CONCURRENT_FROM_BYTES } from './readRuns';
 
 export interface CandidatesRequest {
   readonly setup: ScoringSetup;
+  /** How to read the baseline and the candidates (the -a and -b options of the two-run form). */
+  readonly readBaseline: ScoringSetup['read'];
+  readonly readCandidate: ScoringSetup['read'];
   readonly statistics: Pick<CompareOptions, 'permutations' | 'bootstrap' | 'seed' | 'tieTolerance'>;
   readonly format: CompareFormat;
   /** --fail-if-worse level, if given. */
@@ -40,14 +44,14 @@ export async function compareCandidates(sources: readonly string[], request: Can
   const { setup, statistics } = request;
 
   const startRead = (k: number): Promise<RankedDump> => {
-    const reading = readDump(paths[k]!, { ...setup.read, offThread: sizes[k]! >= CONCURRENT_FROM_BYTES });
+    const reading = readDump(paths[k]!, { ...request.readCandidate, offThread: sizes[k]! >= CONCURRENT_FROM_BYTES });
     reading.catch(() => undefined); // awaited in turn below; an early failure must not go unhandled meanwhile
     return reading;
   };
   try {
     // The baseline's error wins when both reads fail, as in the two-run read.
     let next = startRead(1);
-    const base = await readDump(paths[0]!, setup.read);
+    const base = await readDump(paths[0]!, request.readBaseline);
     const memo: BaselineMemo = { dump: base, evaluations: new Map() };
     const comparisons: Comparison[] = [];
     for (let i = 0; i < candidates.length; i++) {
@@ -81,8 +85,8 @@ export async function compareCandidates(sources: readonly string[], request: Can
       if (r.summary.meanDifference < 0 && p <= request.alpha) {
         worse = true;
         io.err(
-          `gainline compare: ${c.run} is worse than the baseline on ${r.key} (Δ ${r.summary.meanDifference.toFixed(4)}, ` +
-            `Holm-adjusted randomization p ${p.toPrecision(3)} <= ${request.alpha})\n`,
+          `gainline compare: ${c.run} is worse than the baseline on ${r.key} (Δ ${formatDelta(r.summary.meanDifference)}, ` +
+            `Holm-adjusted randomization p ${formatP(p)} <= ${request.alpha})\n`,
         );
       }
     }

@@ -76,6 +76,9 @@ export async function runTrend(argv: string[], io: CliIO): Promise<number> {
   const seed = wholeNumber('--seed', values.seed, 1, 0, 0xffffffff);
   const top = wholeNumber('--top', values.top, 10, 0, Number.MAX_SAFE_INTEGER);
   const setup = scoringSetupFrom(values, (p) => resolve(io.cwd, p));
+  if (values['missing-queries'] !== undefined && setup.read.judgments === undefined) {
+    throw new InputError('--judgments FILE to go with it', '--missing-queries', undefined, values['missing-queries']);
+  }
 
   const files = await seriesFiles(positionals, io.cwd);
   const series = orderSeries(files, order);
