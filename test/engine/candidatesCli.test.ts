@@ -30,6 +30,8 @@ const dir = fixtureDir({
   'better.csv': run(2, 0.4),
   'worse.csv': run(3, -0.6, [3, 4], 'sanding discs 120'),
   'same.csv': run(1, 0),
+  // One grade 3 where the others top out at 2: ERR's shared g_max differs for this pair.
+  'higher-grade.csv': run(4, 0.2).replace('\n', '\ncordless drill 18v #0,p9,3,0.99\n'),
 });
 const STATS = ['--permutations', '3000', '--bootstrap', '400', '--seed', '7', '--metrics', 'ndcg@5,rr,ap'];
 
@@ -108,6 +110,23 @@ describe('gainline compare with several candidates', () => {
     expect(r.code).toBe(2);
     expect(r.stderr.trim().split('\n')).toHaveLength(1);
     expect(r.stderr).toMatch(/gone\.csv/);
+  });
+});
+
+describe('the baseline scored once per set of shared conventions', () => {
+  it("with ERR, a candidate with a higher grade gets the baseline scored on that pair's scale, as the two-run comparison does", () => {
+    const args = ['--metrics', 'err@5,ndcg@5', '--permutations', '500', '--bootstrap', '100', '--format', 'json'];
+    const many = JSON.parse(runCli(['compare', 'base.csv', 'better.csv', 'higher-grade.csv', 'same.csv', ...args], dir).stdout);
+    expect(many.candidates.map((c: any) => c.conventions.maxGrade)).toEqual([2, 3, 2]);
+    for (const candidate of many.candidates) {
+      const pair = JSON.parse(runCli(['compare', 'base.csv', candidate.run, ...args], dir).stdout);
+      candidate.metrics.forEach((metric: any, m: number) => {
+        expect([metric.meanA, metric.meanB, metric.tTest.t, metric.randomization.p]).toEqual(
+          [pair.metrics[m].meanA, pair.metrics[m].meanB, pair.metrics[m].tTest.t, pair.metrics[m].randomization.p]);
+      });
+    }
+    // The baseline's ERR differs between the two scales, so a reused evaluation would have shown here.
+    expect(many.candidates[1].metrics[0].meanA).not.toBe(many.candidates[0].metrics[0].meanA);
   });
 });
 
