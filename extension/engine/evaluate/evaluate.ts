@@ -40,7 +40,8 @@ export function checkConventions(dump: RankedDump, metrics: readonly MetricSpec[
   return checkAgainstRange(range, metrics, c, dump.path);
 }
 
-function checkAgainstRange(range: GradeRange, metrics: readonly MetricSpec[], c: Conventions, path: string): number {
+/** The same checks from a grade range alone (the SQL engines ask the database for it). */
+export function checkAgainstRange(range: GradeRange, metrics: readonly MetricSpec[], c: Conventions, path: string): number {
   const { lowest, highest } = range;
   checkGainApplies(c.gain, lowest);
   if (!(c.rbpPersistence > 0 && c.rbpPersistence < 1)) {

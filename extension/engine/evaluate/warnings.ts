@@ -7,7 +7,8 @@ import type { Conventions, MetricSpec } from '../metrics/conventions';
 import type { DegenerateCounts } from './types';
 
 export interface WarningInput {
-  readonly dump: RankedDump;
+  /** Not read by the sentences; callers without a dump (the SQL engines) leave it out. */
+  readonly dump?: RankedDump;
   readonly conventions: Conventions;
   readonly metrics: readonly MetricSpec[];
   readonly queryCount: number;

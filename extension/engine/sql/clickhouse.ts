@@ -1,0 +1,132 @@
+/**
+ * The per-query table in ClickHouse SQL, for servers without window functions (Debian's 18.16): one
+ * SELECT … GROUP BY query that gathers each query's rows into arrays and ranks them with arraySort and
+ * higher-order array functions. One level on purpose: on a Distributed table read with
+ * distributed_group_by_no_merge=1 every shard then computes its own queries to the end and only the
+ * per-query rows travel.
+ *
+ * Cost: per query, sorting is n log n; under `average` ties the group look-ups index arrays from inside
+ * lambdas, which ClickHouse pays for by copying the indexed array once per element (n² per query).
+ */
+import type { SqlRequest } from './request';
+import { COUNT_COLUMNS, metricColumns } from './request';
+import { gainExpression, literal, metricExpressions, type RowField, type TermDialect } from './terms';
+
+/** `name` with embedded back quotes escaped. */
+export function quoteClickHouse(name: string): string {
+  return '`' + name.replace(/\\/g, '\\\\').replace(/`/g, '\\`') + '`';
+}
+
+const FIELDS: readonly RowField[] = ['pos', 's', 'm', 'r', 'bef', 'gsum', 'usum', 'rel', 'igain', 'ipos', 'err_r', 'surv'];
+
+const DIALECT: TermDialect = {
+  field: (name) => name,
+  // Every field is an array of the query's slots; the lambda walks them side by side (no captured arrays).
+  sum: (term) => `arraySum((${FIELDS.join(', ')}) -> ${term}, ${FIELDS.map((f) => `f_${f}`).join(', ')})`,
+  items: 'length(f_pos)',
+  nan: 'nan',
+};
+
+export function clickhouseSql(request: SqlRequest): string {
+  const { source: src, conventions: c, metrics } = request;
+  const score = `ifNull(toFloat64(${src.score}), nan)`;
+  const label = `ifNull(toFloat64(${src.label}), nan)`;
+  const order = src.order.length > 0
+    ? `tuple(${src.order.join(', ')})`
+    : // No row order (NO_ORDER_RULE): item id, then score (missing lowest), then grade.
+      `tuple(toString(${src.item}), if(isFinite(${score}), ${score}, -inf), if(isNaN(${label}), 0., ${label}))`;
+  const hasErr = metrics.some((m) => m.name === 'err');
+  const gmax = request.gmax ?? c.maxGrade;
+  const gmaxSql = gmax !== undefined ? literal(gmax) : `(SELECT max(if(isNaN(${label}), 0., ${label})) FROM ${src.relation})`;
+  // Within a tie: pessimistic puts lower grades first, optimistic higher; unscored items stay in row order.
+  const tieKey = c.ties === 'pessimistic' ? 'if(ok, g, 0.)' : c.ties === 'optimistic' ? 'if(ok, -g, 0.)' : '0.';
+  const line = (expr: string, alias: string) => `  ${expr} AS ${alias},`;
+
+  const lines = [
+    line(`toString(${src.query})`, 'q'),
+    line('count()', 'raw_rows'),
+    line(`groupArray(toString(${src.item}))`, 'a_item'),
+    line(`groupArray(${score})`, 'a_score'),
+    line(`groupArray(${label})`, 'a_label'),
+    line(`groupArray(${order})`, 'a_ord'),
+    '  -- Rows in row order; of repeated (query, item) rows the first is kept.',
+    line('arraySort((v, o) -> o, a_item, a_ord)', 'o_item'),
+    line('arrayEnumerateUniq(o_item)', 'o_nth'),
+    line('arrayFilter((v, k) -> k = 1, arraySort((v, o) -> o, a_score, a_ord), o_nth)', 'k_score'),
+    line('arrayFilter((v, k) -> k = 1, arraySort((v, o) -> o, a_label, a_ord), o_nth)', 'k_label'),
+    '  -- A missing or non-finite score ranks after every scored item, in row order; a NaN label is unjudged (grade 0).',
+    line('arrayMap(x -> isFinite(x), k_score)', 'k_ok'),
+    line('arrayMap(x -> if(isNaN(x), 0., x), k_label)', 'k_grade'),
+    line('arrayMap((ok, x, g, i) -> tuple(1 - ok, if(ok, -x, 0.), ' + tieKey + ', i), k_ok, k_score, k_grade, arrayEnumerate(k_score))', 'k_key'),
+    line('arraySort((v, k) -> k, k_ok, k_key)', 'x_ok'),
+    line('arraySort((v, k) -> k, k_score, k_key)', 'x_score'),
+    line('arraySort((v, k) -> k, k_grade, k_key)', 'x_grade'),
+    line('arraySort((v, k) -> k, arrayMap(x -> toUInt8(isNaN(x)), k_label), k_key)', 'x_unj'),
+    line(`arrayMap(g -> ${gainExpression(c, 'g', () => 'nan')}, x_grade)`, 'x_gain'),
+    line(`arrayMap(g -> toUInt8(g >= ${literal(c.relevantFrom)}), x_grade)`, 'x_rel'),
+    line('arrayEnumerate(x_score)', 'f_pos'),
+    '  -- Tie groups: equal finite scores; each unscored item alone.',
+    line('arrayMap((i, ok, x, prev) -> toUInt8(i = 1 OR ok = 0 OR x != prev), f_pos, x_ok, x_score, arrayPushFront(arrayPopBack(x_score), nan))', 't_flag'),
+    line('arrayCumSum(t_flag)', 't_gid'),
+    line('arrayMap((a, b) -> a + b - 1, arrayEnumerateUniq(t_gid), arrayReverse(arrayEnumerateUniq(arrayReverse(t_gid))))', 't_size'),
+    ...(c.ties === 'average' ? averageGroups() : singleGroups(hasErr)),
+    line(`arrayMap(g -> ${hasErr ? `(pow(2., g) - 1.) / pow(2., ${gmaxSql})` : '0.'}, x_grade)`, 'f_err_r'),
+    line('arrayReverseSort(x_gain)', 'f_igain'),
+    line('f_pos', 'f_ipos'),
+  ];
+  const columns = [...COUNT_COLUMNS, ...metricColumns(metrics)].map(quoteClickHouse);
+  const counts = [
+    'q',
+    'raw_rows',
+    'length(f_pos)',
+    'arraySum(x_rel)',
+    'arraySum(x -> 1 - x, x_ok)',
+    'arraySum(x_unj)',
+    'arraySum((ok, t) -> if(ok = 1 AND t > 1, 1, 0), x_ok, t_size)',
+  ];
+  const values = [...counts, ...metricExpressions(DIALECT, metrics, c)];
+  const outputs = values.map((v, i) => `  ${v} AS ${columns[i]}`);
+  // The per-query columns are named after the metric keys; the helper arrays stay inside.
+  return `SELECT ${columns.join(', ')} FROM (
+SELECT
+${lines.join('\n')}
+${outputs.join(',\n')}
+FROM ${src.relation}
+GROUP BY q
+)`;
+}
+
+/** Per-slot group figures under `average` ties, looked up per tie group. */
+function averageGroups(): string[] {
+  return [
+    '  arrayFilter((i, f) -> f = 1, f_pos, t_flag) AS g_first,',
+    '  arrayPushBack(arrayPopFront(g_first), length(f_pos) + 1) AS g_end,',
+    '  arrayPushFront(arrayCumSum(x_rel), 0) AS p_rel,',
+    '  arrayPushFront(arrayCumSum(x_unj), 0) AS p_unj,',
+    '  arrayMap(g -> toFloat64(g_first[g] - 1), t_gid) AS f_s,',
+    '  arrayMap(t -> toFloat64(t), t_size) AS f_m,',
+    '  arrayMap(g -> toFloat64(p_rel[g_end[g]] - p_rel[g_first[g]]), t_gid) AS f_r,',
+    '  arrayMap(g -> toFloat64(p_rel[g_first[g]]), t_gid) AS f_bef,',
+    '  arrayMap(g -> toFloat64(p_unj[g_end[g]] - p_unj[g_first[g]]), t_gid) AS f_usum,',
+    // Summed in slot order within each group, as the local engine does.
+    '  arrayMap(g -> arraySum(arraySlice(x_gain, g_first[g], g_end[g] - g_first[g])), t_gid) AS f_gsum,',
+    '  arrayMap(x -> 1., f_pos) AS f_surv,',
+    '  arrayMap(x -> toFloat64(x), x_rel) AS f_rel,',
+  ];
+}
+
+/** Without `average` ties every slot is its own group. */
+function singleGroups(hasErr: boolean): string[] {
+  return [
+    '  arrayMap(i -> toFloat64(i - 1), f_pos) AS f_s,',
+    '  arrayMap(i -> 1., f_pos) AS f_m,',
+    '  arrayMap(x -> toFloat64(x), x_rel) AS f_r,',
+    '  arrayMap((c, x) -> toFloat64(c - x), arrayCumSum(x_rel), x_rel) AS f_bef,',
+    '  arrayMap(x -> toFloat64(x), x_unj) AS f_usum,',
+    '  x_gain AS f_gsum,',
+    hasErr
+      ? '  arrayMap(c -> exp(c), arrayPopBack(arrayPushFront(arrayCumSum(arrayMap(x -> log(1. - x), f_err_r)), 0.))) AS f_surv,'
+      : '  arrayMap(x -> 1., f_pos) AS f_surv,',
+    '  f_r AS f_rel,',
+  ];
+}
