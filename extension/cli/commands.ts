@@ -6,6 +6,7 @@ import packageJson from '../../package.json';
 import { CancelledError, InputError } from '../engine/errors';
 import { runCompare } from './compareCommand';
 import { runEval, UsageError } from './evalCommand';
+import { runSql } from './sqlCommand';
 import type { CliIO } from './io';
 
 interface Command {
@@ -17,6 +18,7 @@ interface Command {
 const COMMANDS: Readonly<Record<string, Command>> = {
   eval: { summary: 'score one prediction dump and list its worst queries', run: runEval },
   compare: { summary: 'test two runs of the same queries against each other, query by query', run: runCompare },
+  sql: { summary: 'print the SQL that computes the per-query table in DuckDB or ClickHouse', run: runSql },
 };
 
 export const EXIT_OK = 0;

@@ -14,8 +14,9 @@ import { checkAgainstRange } from '../engine/evaluate/evaluate';
 import type { Conventions, MetricSpec } from '../engine/metrics/conventions';
 import { gainFunction } from '../engine/metrics/gain';
 import { resolveRoles, type ColumnRoles } from '../engine/readers/roles';
-import { checkExpressible, COUNT_COLUMNS, metricColumns, perQuerySql, quoteDuck, stringDuck, type SqlSource } from '../engine/sql/index';
+import { checkExpressible, perQuerySql, quoteDuck, stringDuck, type SqlSource } from '../engine/sql/index';
 import { evaluationFromTable, type TableEvaluation } from '../engine/sql/perQueryTable';
+import { tableFromColumns } from './tableColumns';
 
 export interface DuckDbOptions {
   readonly metrics: readonly MetricSpec[];
@@ -125,21 +126,4 @@ async function checkGrades(run: (sql: string) => Promise<{ getRowsJS(): unknown[
   const highest = row[1] === null ? 0 : Number(row[1]);
   if (row[2] !== null && row[2] !== undefined) gainFunction(c.gain)(Number(row[2]));
   return checkAgainstRange({ lowest, highest }, options.metrics, c, source);
-}
-
-/** Columns as DuckDB returns them (COUNT_COLUMNS then metric columns) → PerQueryTable. */
-export function tableFromColumns(columns: unknown[][], metrics: readonly MetricSpec[]) {
-  const at = (name: (typeof COUNT_COLUMNS)[number]) => columns[COUNT_COLUMNS.indexOf(name)]!.map((v) => Number(v));
-  const metricCount = metricColumns(metrics).length;
-  const toNumber = (v: unknown) => (v === null || v === undefined ? NaN : Number(v));
-  return {
-    query: columns[0]!.map(String),
-    rows: at('rows'),
-    items: at('items'),
-    relevant: at('relevant'),
-    missingScores: at('missing_scores'),
-    unjudged: at('unjudged'),
-    tiedRows: at('tied_rows'),
-    metrics: Array.from({ length: metricCount }, (_, i) => columns[COUNT_COLUMNS.length + i]!.map(toNumber)),
-  };
 }

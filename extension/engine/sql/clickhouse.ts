@@ -21,8 +21,12 @@ const FIELDS: readonly RowField[] = ['pos', 's', 'm', 'r', 'bef', 'gsum', 'usum'
 
 const DIALECT: TermDialect = {
   field: (name) => name,
-  // Every field is an array of the query's slots; the lambda walks them side by side (no captured arrays).
-  sum: (term) => `arraySum((${FIELDS.join(', ')}) -> ${term}, ${FIELDS.map((f) => `f_${f}`).join(', ')})`,
+  // Every field is an array of the query's slots; the lambda walks the ones the term uses side by side
+  // (no captured arrays). Passing only those keeps the statement small once ClickHouse expands aliases.
+  sum: (term) => {
+    const used = FIELDS.filter((f) => new RegExp(`\\b${f}\\b`).test(term));
+    return `arraySum((${used.join(', ')}) -> ${term}, ${used.map((f) => `f_${f}`).join(', ')})`;
+  },
   items: 'length(f_pos)',
   nan: 'nan',
 };
@@ -85,9 +89,10 @@ export function clickhouseSql(request: SqlRequest): string {
     'arraySum((ok, t) -> if(ok = 1 AND t > 1, 1, 0), x_ok, t_size)',
   ];
   const values = [...counts, ...metricExpressions(DIALECT, metrics, c)];
-  const outputs = values.map((v, i) => `  ${v} AS ${columns[i]}`);
-  // The per-query columns are named after the metric keys; the helper arrays stay inside.
-  return `SELECT ${columns.join(', ')} FROM (
+  // Inner names out_i: ClickHouse substitutes aliases into lambdas, so a column named like a lambda
+  // parameter (the metric `r`) would change the terms. The outer SELECT gives the real names.
+  const outputs = values.map((v, i) => `  ${v} AS out_${i}`);
+  return `SELECT ${columns.map((name, i) => `out_${i} AS ${name}`).join(', ')} FROM (
 SELECT
 ${lines.join('\n')}
 ${outputs.join(',\n')}
