@@ -16,7 +16,7 @@ import type { Conventions } from '../../extension/engine/metrics/conventions';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
 import { parseMetricList } from '../../extension/engine/metrics/parse';
 import { readDump } from '../../extension/engine/readers/index';
-import { ClickHouseCluster, CLUSTER, TEST_USER } from './clickhouseCluster';
+import { ClickHouseCluster, CLUSTER, TEST_USER } from './clickhouse-cluster.mjs';
 import { expectSameNumbers, seededRows, toDelimited } from './sqlDumps';
 
 const PASSWORD = 'sesame-7f3a9-hinge';

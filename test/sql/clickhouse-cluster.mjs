@@ -1,10 +1,11 @@
+// Shared by the cluster test and the benchmark (test/bench/bench-sql.mjs); types in clickhouse-cluster.d.mts.
 /**
  * Two ClickHouse servers on loopback forming a two-shard cluster, for the cluster test. Each gets free
  * ports, its own config and data folder in a temporary directory, and is stopped by its PID (also when a
  * test fails). Debian's clickhouse-server 18.16 is required: a missing server fails the test with the
  * package to install, never skips it.
  */
-import { spawn, type ChildProcess } from 'node:child_process';
+import { spawn } from 'node:child_process';
 import { existsSync, mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { createServer } from 'node:net';
 import { tmpdir } from 'node:os';
@@ -15,13 +16,7 @@ export const CLICKHOUSE_SERVER = '/usr/sbin/clickhouse-server';
 export const CLUSTER = 'gainline_pair';
 export const TEST_USER = 'gainline_tester';
 
-export interface ServerHandle {
-  readonly httpPort: number;
-  readonly tcpPort: number;
-  readonly process: ChildProcess;
-}
-
-async function freePort(): Promise<number> {
+async function freePort() {
   return new Promise((resolve, reject) => {
     const server = createServer();
     server.once('error', reject);
@@ -32,7 +27,7 @@ async function freePort(): Promise<number> {
   });
 }
 
-function config(dir: string, http: number, tcp: number, shards: readonly number[]): string {
+function config(dir, http, tcp, shards) {
   const replicas = shards.map((port) => `<shard><replica><host>127.0.0.1</host><port>${port}</port></replica></shard>`).join('');
   return `<?xml version="1.0"?>
 <yandex>
@@ -54,7 +49,7 @@ function config(dir: string, http: number, tcp: number, shards: readonly number[
 `;
 }
 
-function users(password: string): string {
+function users(password) {
   return `<?xml version="1.0"?>
 <yandex>
   <profiles><default></default></profiles>
@@ -68,34 +63,36 @@ function users(password: string): string {
 }
 
 export class ClickHouseCluster {
-  readonly servers: ServerHandle[] = [];
-  private readonly dir = mkdtempSync(join(tmpdir(), 'gainline-clickhouse-'));
-  private readonly stopAtExit = () => this.killAll();
+  servers = [];
+  dir = mkdtempSync(join(tmpdir(), 'gainline-clickhouse-'));
+  stopAtExit = () => this.killAll();
 
-  constructor(readonly password: string) {}
+  constructor(password) {
+    this.password = password;
+  }
 
   /** Starts both servers and waits until each answers /ping. */
-  async start(): Promise<void> {
+  async start() {
     if (!existsSync(CLICKHOUSE_SERVER)) {
       throw new Error(`${CLICKHOUSE_SERVER} not found: the cluster test needs Debian's ClickHouse (apt-get install clickhouse-server clickhouse-client)`);
     }
     process.once('exit', this.stopAtExit);
     const ports = [await freePort(), await freePort(), await freePort(), await freePort()];
-    const tcp = [ports[1]!, ports[3]!];
+    const tcp = [ports[1], ports[3]];
     for (let i = 0; i < 2; i++) {
       const dir = join(this.dir, `server-${i}`);
       mkdirSync(join(dir, 'data'), { recursive: true });
-      writeFileSync(join(dir, 'config.xml'), config(dir, ports[2 * i]!, tcp[i]!, tcp));
+      writeFileSync(join(dir, 'config.xml'), config(dir, ports[2 * i], tcp[i], tcp));
       writeFileSync(join(dir, 'users.xml'), users(this.password));
       const child = spawn(CLICKHOUSE_SERVER, [`--config-file=${join(dir, 'config.xml')}`], { cwd: dir, stdio: ['ignore', 'ignore', 'pipe'] });
       let errors = '';
-      child.stderr?.on('data', (b: Buffer) => void (errors += b.toString()));
-      this.servers.push({ httpPort: ports[2 * i]!, tcpPort: tcp[i]!, process: child });
-      await this.waitReady(ports[2 * i]!, child, () => errors);
+      child.stderr?.on('data', (b) => void (errors += b.toString()));
+      this.servers.push({ httpPort: ports[2 * i], tcpPort: tcp[i], process: child });
+      await this.waitReady(ports[2 * i], child, () => errors);
     }
   }
 
-  private async waitReady(port: number, child: ChildProcess, errors: () => string): Promise<void> {
+  async waitReady(port, child, errors) {
     for (let attempt = 0; attempt < 300; attempt++) {
       if (child.exitCode !== null) throw new Error(`clickhouse-server exited with ${child.exitCode}: ${errors().slice(-500)}`);
       try {
@@ -110,18 +107,18 @@ export class ClickHouseCluster {
   }
 
   /** Runs a statement on server i as the default user; the body is sent after the query (INSERT data). */
-  async run(i: number, sql: string, body?: string, settings: Record<string, string> = {}): Promise<string> {
+  async run(i, sql, body, settings = {}) {
     const params = new URLSearchParams({ query: sql, ...settings });
-    const r = await fetch(`http://127.0.0.1:${this.servers[i]!.httpPort}/?${params}`, { method: 'POST', body: body ?? '' });
+    const r = await fetch(`http://127.0.0.1:${this.servers[i].httpPort}/?${params}`, { method: 'POST', body: body ?? '', duplex: 'half' });
     const text = await r.text();
     if (!r.ok) throw new Error(`server ${i}: ${text}`);
     return text;
   }
 
   /** Stops every server by PID and removes the folder. */
-  async stop(): Promise<void> {
+  async stop() {
     process.removeListener('exit', this.stopAtExit);
-    await Promise.all(this.servers.map((s) => new Promise<void>((resolve) => {
+    await Promise.all(this.servers.map((s) => new Promise((resolve) => {
       if (s.process.exitCode !== null || s.process.signalCode !== null) return resolve();
       s.process.once('exit', () => resolve());
       s.process.kill('SIGTERM');
@@ -129,7 +126,7 @@ export class ClickHouseCluster {
     rmSync(this.dir, { recursive: true, force: true });
   }
 
-  private killAll(): void {
+  killAll() {
     for (const s of this.servers) if (s.process.exitCode === null && s.process.pid !== undefined) s.process.kill('SIGKILL');
   }
 }
