@@ -5,8 +5,8 @@
  * distributed_group_by_no_merge=1 every shard then computes its own queries to the end and only the
  * per-query rows travel.
  *
- * Cost: per query, sorting is n log n; under `average` ties the group look-ups index arrays from inside
- * lambdas, which ClickHouse pays for by copying the indexed array once per element (n² per query).
+ * Cost: per query, a few sorts of its n rows (n log n). Nothing indexes an array from inside a lambda:
+ * ClickHouse pays for that by copying the indexed array once per element (n² per query).
  */
 import type { SqlRequest } from './request';
 import { COUNT_COLUMNS, metricColumns } from './request';
@@ -101,20 +101,30 @@ GROUP BY q
 )`;
 }
 
-/** Per-slot group figures under `average` ties, looked up per tie group. */
+/**
+ * Per-slot group figures under `average` ties, without indexing arrays from inside lambdas (which costs
+ * ClickHouse n² per query). Counts come from arrayEnumerateUniq run forwards and backwards over
+ * (group, flag) pairs: items of the group with the slot's flag value = forward + backward count − 1.
+ * The group's summed gain is spread from one value per group to its slots by a sort that puts each
+ * group's value just before its slots, then a running sum of the differences between groups.
+ */
 function averageGroups(): string[] {
+  const fromEnd = (arrays: string) => `arrayReverse(arrayEnumerateUniq(${arrays.split(', ').map((a) => `arrayReverse(${a})`).join(', ')}))`;
+  const sameFlag = (flag: string) => `arrayMap((a, b) -> a + b - 1, arrayEnumerateUniq(t_gid, ${flag}), ${fromEnd(`t_gid, ${flag}`)})`;
   return [
-    '  arrayFilter((i, f) -> f = 1, f_pos, t_flag) AS g_first,',
-    '  arrayPushBack(arrayPopFront(g_first), length(f_pos) + 1) AS g_end,',
-    '  arrayPushFront(arrayCumSum(x_rel), 0) AS p_rel,',
-    '  arrayPushFront(arrayCumSum(x_unj), 0) AS p_unj,',
-    '  arrayMap(g -> toFloat64(g_first[g] - 1), t_gid) AS f_s,',
+    '  arrayEnumerateUniq(t_gid) AS t_nth,',
+    '  arrayMap((i, p) -> toFloat64(i - p), f_pos, t_nth) AS f_s,',
     '  arrayMap(t -> toFloat64(t), t_size) AS f_m,',
-    '  arrayMap(g -> toFloat64(p_rel[g_end[g]] - p_rel[g_first[g]]), t_gid) AS f_r,',
-    '  arrayMap(g -> toFloat64(p_rel[g_first[g]]), t_gid) AS f_bef,',
-    '  arrayMap(g -> toFloat64(p_unj[g_end[g]] - p_unj[g_first[g]]), t_gid) AS f_usum,',
-    // Summed in slot order within each group, as the local engine does.
-    '  arrayMap(g -> arraySum(arraySlice(x_gain, g_first[g], g_end[g] - g_first[g])), t_gid) AS f_gsum,',
+    `  arrayMap((x, same, m) -> toFloat64(if(x = 1, same, m - same)), x_rel, ${sameFlag('x_rel')}, t_size) AS f_r,`,
+    `  arrayMap((x, same, m) -> toFloat64(if(x = 1, same, m - same)), x_unj, ${sameFlag('x_unj')}, t_size) AS f_usum,`,
+    // Relevant items before the group = relevant up to the slot − relevant of the group up to the slot.
+    '  arrayMap((c, x, a, p) -> toFloat64(c - if(x = 1, a, p - a)), arrayCumSum(x_rel), x_rel, arrayEnumerateUniq(t_gid, x_rel), t_nth) AS f_bef,',
+    '  arrayFilter((p, f) -> f = 1, arrayPopBack(arrayPushFront(arrayCumSum(x_gain), 0.)), t_flag) AS g_gain_before,',
+    '  arrayMap((b, e) -> e - b, g_gain_before, arrayPushBack(arrayPopFront(g_gain_before), arraySum(x_gain))) AS g_gain,',
+    "  arrayConcat(arrayMap(g -> tuple(g, 0), arrayEnumerate(g_gain)), arrayMap(g -> tuple(g, 1), t_gid)) AS spread_key,",
+    '  arrayFilter((v, slot) -> slot = 1,',
+    '    arrayCumSum(arraySort((v, k) -> k, arrayConcat(arrayMap((t, prev) -> t - prev, g_gain, arrayPushFront(arrayPopBack(g_gain), 0.)), arrayMap(x -> 0., f_pos)), spread_key)),',
+    '    arraySort((v, k) -> k, arrayConcat(arrayMap(x -> 0, g_gain), arrayMap(x -> 1, f_pos)), spread_key)) AS f_gsum,',
     '  arrayMap(x -> 1., f_pos) AS f_surv,',
     '  arrayMap(x -> toFloat64(x), x_rel) AS f_rel,',
   ];
