@@ -25,6 +25,10 @@ export interface PerQueryTable {
   readonly metrics: readonly ArrayLike<number>[];
 }
 
+/** Said in every report an SQL engine computed, so the missing rows are never a surprise. */
+export const SQL_ENGINE_NOTE =
+  'Computed in SQL: the convention sensitivity rows, Kendall\'s tau and the inversion counts are left out (the local engine computes them).';
+
 export interface TableEvaluation {
   readonly evaluation: Evaluation;
   readonly queryNames: MapStringPool;
@@ -89,6 +93,7 @@ export function evaluationFromTable(table: PerQueryTable, metrics: readonly Metr
   const warnings = describeDegenerate({
     conventions, metrics, queryCount, degenerate, emptyQueries: 0, tauUndefined: 0, gmax, headlineK: headlineCutoff(metrics),
   }).filter((w) => !w.startsWith('Inversion cost'));
+  warnings.push(SQL_ENGINE_NOTE);
   const evaluation: Evaluation = {
     conventions, metrics, headline: 0, queryCount, perQuery, summary, degenerate, sensitivity: [], warnings,
   };
