@@ -29,7 +29,7 @@ export interface DuckDbOptions {
 }
 
 /** Columns the source relation adds for row order; never taken for a role. */
-const ORDER_COLUMNS = new Set(['__gainline_row', 'filename', 'file_row_number']);
+const ORDER_COLUMNS = new Set(['__gainline_row', 'file_row_number']);
 
 type Connection = {
   runAndReadAll(sql: string): Promise<{ getColumnsJS(): unknown[][]; getRowsJS(): unknown[][] }>;
@@ -52,7 +52,8 @@ export async function duckSourceRelation(path: string, format: string | undefine
   if (kind === 'parquet') {
     // A folder: every .parquet part under it, in file name order, then row order within each part.
     const glob = info.isDirectory() ? join(path, '**', '*.parquet') : path;
-    return { relation: `read_parquet(${stringDuck(glob)}, filename = true, file_row_number = true)`, order: ['filename', 'file_row_number'] };
+    // file_index follows the sorted file names; one number per row keeps the repeated-row aggregate spillable.
+    return { relation: `read_parquet(${stringDuck(glob)}, file_row_number = true)`, order: ['(file_index * 1099511627776 + file_row_number)'] };
   }
   if (kind === 'csv' || kind === 'tsv') {
     // Every field as text so ids keep their spelling ("007" stays "007"); numbers are cast where used.
