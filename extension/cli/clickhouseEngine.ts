@@ -12,7 +12,7 @@ import { checkAgainstRange } from '../engine/evaluate/evaluate';
 import type { Conventions, MetricSpec } from '../engine/metrics/conventions';
 import { gainFunction } from '../engine/metrics/gain';
 import { resolveRoles, type ColumnRoles } from '../engine/readers/roles';
-import { checkExpressible, NO_ORDER_RULE, perQuerySql, quoteClickHouse, type SqlSource } from '../engine/sql/index';
+import { checkExpressible, CLICKHOUSE_SETTINGS, NO_ORDER_RULE, perQuerySql, quoteClickHouse, type SqlSource } from '../engine/sql/index';
 import { evaluationFromTable, type TableEvaluation } from '../engine/sql/perQueryTable';
 import { tableFromColumns } from './tableColumns';
 
@@ -22,17 +22,6 @@ export const CLICKHOUSE_PASSWORD_VARIABLE = 'GAINLINE_CLICKHOUSE_PASSWORD';
 export function isClickHouseUrl(text: string): boolean {
   return /^clickhouse:\/\//i.test(text);
 }
-
-/**
- * Settings of the per-query statement: each shard computes its own queries; and room for the statement,
- * whose aliases ClickHouse expands in place before it finds the repeated parts (computed once).
- */
-export const CLICKHOUSE_SETTINGS: Readonly<Record<string, string>> = {
-  distributed_group_by_no_merge: '1',
-  max_expanded_ast_elements: '100000000',
-  max_ast_elements: '1000000',
-  max_query_size: '10000000',
-};
 
 export interface ClickHouseTarget {
   readonly host: string;

@@ -5,7 +5,7 @@
 import { parseArgs } from 'node:util';
 import { InputError } from '../engine/errors';
 import { describeConventions } from '../engine/report/reportInput';
-import { NO_ORDER_RULE, perQuerySql, quoteClickHouse, quoteDuck, SQL_DIALECTS, COUNT_COLUMNS, metricColumns, type SqlDialect } from '../engine/sql/index';
+import { CLICKHOUSE_SETTINGS, NO_ORDER_RULE, perQuerySql, quoteClickHouse, quoteDuck, SQL_DIALECTS, COUNT_COLUMNS, metricColumns, type SqlDialect } from '../engine/sql/index';
 import { conventionOptions, scoringSetupFrom } from './conventionArgs';
 import { UsageError } from './evalCommand';
 import type { CliIO } from './io';
@@ -77,7 +77,10 @@ export async function runSql(argv: string[], io: CliIO): Promise<number> {
     `-- gainline per-query table (${dialect}): ${describeConventions(setup.conventions)}`,
     `-- columns: ${[...COUNT_COLUMNS, ...metricColumns(setup.metrics)].join(', ')}`,
     values['order-column'] === undefined ? `-- row order: none given; ${NO_ORDER_RULE}` : `-- row order: ${values['order-column']}`,
-    ...(dialect === 'clickhouse' ? ['-- on a Distributed table sharded by query id, run with distributed_group_by_no_merge=1 and check no query id comes back twice'] : []),
+    ...(dialect === 'clickhouse'
+      ? [`-- run with the settings ${Object.entries(CLICKHOUSE_SETTINGS).map(([k, v]) => `${k}=${v}`).join(', ')}`,
+        '-- (on a Distributed table sharded by query id each shard then computes its own queries; check no query id comes back twice)']
+      : []),
   ];
   io.out(`${header.join('\n')}\n${sql};\n`);
   return 0;

@@ -47,7 +47,7 @@ beforeAll(async () => {
 afterAll(async () => {
   await cluster.stop();
   rmSync(dir, { recursive: true, force: true });
-});
+}, 60_000);
 
 const url = (table: string) => `clickhouse://127.0.0.1:${cluster.servers[1]!.httpPort}/shop.${table}`;
 
@@ -98,6 +98,30 @@ describe('ClickHouse cluster against the local engine', () => {
     }
     for (const m of messages) expect(m).not.toContain('sesame');
     expect(messages[0]).toMatch(/no_such_table/);
+  });
+
+  it('prints SQL (gainline sql) that gives the engine\'s per-query table when run on the cluster', async () => {
+    const metrics = 'ndcg@5,ap,rr,err@3';
+    const io = memoryIO();
+    expect(await runCli(['sql', '--dialect', 'clickhouse', '--from', 'shop.rows', '--order-column', 'row', '--ties', 'optimistic', '--metrics', metrics], io)).toBe(0);
+    const settingsLine = io.stdout().split('\n').find((l) => l.startsWith('-- run with the settings')) ?? '';
+    const settings = Object.fromEntries([...settingsLine.matchAll(/(\w+)=(\d+)/g)].map((m) => [m[1]!, m[2]!]));
+    expect(settings.distributed_group_by_no_merge).toBe('1');
+    const text = await cluster.run(0, io.stdout().replace(/;\s*$/, '') + ' FORMAT JSONCompact', undefined, settings);
+    const printed = (JSON.parse(text) as { data: unknown[][] }).data;
+    const c: Conventions = { ...DEFAULT_CONVENTIONS, ties: 'optimistic' };
+    const engine = await evaluateWithClickHouse(url('rows'), { metrics: parseMetricList(metrics), conventions: c, orderColumn: 'row', env });
+    expect(printed.length).toBe(engine.evaluation.queryCount);
+    for (const row of printed) {
+      const q = engine.queryNames.find(String(row[0]));
+      expect(q).toBeGreaterThanOrEqual(0);
+      engine.evaluation.metrics.forEach((m, i) => {
+        const expected = engine.evaluation.perQuery.values[i]![q]!;
+        const got = row[7 + i] === null ? NaN : Number(row[7 + i]);
+        if (Number.isNaN(expected)) expect(got, m.key).toBeNaN();
+        else expect(got, m.key).toBe(expected);
+      });
+    }
   });
 
   it('prints a full report through the command line', async () => {

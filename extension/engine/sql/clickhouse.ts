@@ -12,6 +12,17 @@ import type { SqlRequest } from './request';
 import { COUNT_COLUMNS, metricColumns } from './request';
 import { gainExpression, literal, metricExpressions, type RowField, type TermDialect } from './terms';
 
+/**
+ * Settings of the per-query statement: each shard computes its own queries; and room for the statement,
+ * whose aliases ClickHouse expands in place before it finds the repeated parts (computed once).
+ */
+export const CLICKHOUSE_SETTINGS: Readonly<Record<string, string>> = {
+  distributed_group_by_no_merge: '1',
+  max_expanded_ast_elements: '100000000',
+  max_ast_elements: '1000000',
+  max_query_size: '10000000',
+};
+
 /** `name` with embedded back quotes escaped. */
 export function quoteClickHouse(name: string): string {
   return '`' + name.replace(/\\/g, '\\\\').replace(/`/g, '\\`') + '`';
@@ -41,7 +52,9 @@ export function clickhouseSql(request: SqlRequest): string {
       `tuple(toString(${src.item}), if(isFinite(${score}), ${score}, -inf), if(isNaN(${label}), 0., ${label}))`;
   const hasErr = metrics.some((m) => m.name === 'err');
   const gmax = request.gmax ?? c.maxGrade;
-  const gmaxSql = gmax !== undefined ? literal(gmax) : `(SELECT max(if(isNaN(${label}), 0., ${label})) FROM ${src.relation})`;
+  // The highest grade over the whole table; the outer max merges the one row per shard that a
+  // Distributed table gives under distributed_group_by_no_merge=1.
+  const gmaxSql = gmax !== undefined ? literal(gmax) : `(SELECT max(top) FROM (SELECT max(if(isNaN(${label}), 0., ${label})) AS top FROM ${src.relation}))`;
   // Within a tie: pessimistic puts lower grades first, optimistic higher; unscored items stay in row order.
   const tieKey = c.ties === 'pessimistic' ? 'if(ok, g, 0.)' : c.ties === 'optimistic' ? 'if(ok, -g, 0.)' : '0.';
   const line = (expr: string, alias: string) => `  ${expr} AS ${alias},`;

@@ -9,7 +9,7 @@ import { checkExpressible, type SqlRequest } from './request';
 export type { SqlDialect, SqlRequest, SqlSource } from './request';
 export { COUNT_COLUMNS, metricColumns, NO_ORDER_RULE, SQL_DIALECTS, checkExpressible } from './request';
 export { quoteDuck, stringDuck } from './duckdb';
-export { quoteClickHouse } from './clickhouse';
+export { CLICKHOUSE_SETTINGS, quoteClickHouse } from './clickhouse';
 
 /** The per-query SELECT: COUNT_COLUMNS then metricColumns(metrics), one row per query. */
 export function perQuerySql(request: SqlRequest): string {
