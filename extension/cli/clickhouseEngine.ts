@@ -7,6 +7,7 @@
  * Credentials come from GAINLINE_CLICKHOUSE_USER / GAINLINE_CLICKHOUSE_PASSWORD and go only into the
  * Authorization header; every message shown is scrubbed of the password.
  */
+import { request } from 'node:http';
 import { InputError } from '../engine/errors';
 import { checkAgainstRange } from '../engine/evaluate/evaluate';
 import type { Conventions, MetricSpec } from '../engine/metrics/conventions';
@@ -54,6 +55,23 @@ export interface ClickHouseOptions {
   readonly env?: Readonly<Record<string, string | undefined>>;
 }
 
+/**
+ * POST with node:http rather than fetch: a server computing over billions of rows may answer only after
+ * many minutes, past fetch's fixed wait for the response headers.
+ */
+function post(url: string, body: string, headers: Record<string, string>): Promise<{ status: number; body: string }> {
+  return new Promise((resolve, reject) => {
+    const req = request(url, { method: 'POST', headers }, (res) => {
+      const chunks: Buffer[] = [];
+      res.on('data', (c: Buffer) => chunks.push(c));
+      res.on('end', () => resolve({ status: res.statusCode ?? 0, body: Buffer.concat(chunks).toString('utf8') }));
+      res.on('error', reject);
+    });
+    req.on('error', reject);
+    req.end(body);
+  });
+}
+
 /** Sends one statement over HTTP; the response body as JSON (JSONCompact). */
 class ClickHouseHttp {
   constructor(
@@ -70,15 +88,15 @@ class ClickHouseHttp {
     if (this.user !== undefined || this.password !== undefined) {
       headers.Authorization = 'Basic ' + Buffer.from(`${this.user ?? 'default'}:${this.password ?? ''}`).toString('base64');
     }
-    let response: Response;
+    let status: number;
+    let body: string;
     try {
-      response = await fetch(`http://${host}:${port}/?${params}`, { method: 'POST', body: `${sql}\nFORMAT JSONCompact`, headers });
+      ({ status, body } = await post(`http://${host}:${port}/?${params}`, `${sql}\nFORMAT JSONCompact`, headers));
     } catch (e) {
-      const cause = (e as { cause?: { code?: string } }).cause?.code ?? (e instanceof Error ? e.message : String(e));
+      const cause = (e as { code?: string }).code ?? (e instanceof Error ? e.message : String(e));
       throw new InputError(`a ClickHouse server answering over HTTP at ${host}:${port} (${this.scrub(String(cause))})`, this.source);
     }
-    const body = await response.text();
-    if (!response.ok) {
+    if (status !== 200) {
       const first = body.split('\n')[0]!.replace(/, e\.what\(\) = .*$/, '').trim();
       throw new InputError(`a table ClickHouse can compute on (server said: ${this.scrub(first)})`, this.source);
     }

@@ -82,6 +82,8 @@ describe('gainline eval --engine duckdb', () => {
       [['eval', 'clickhouse://user:pw@127.0.0.1:1/db.t', '--metrics', 'ndcg@10'], /without a user or password/],
       [['eval', 'clickhouse://127.0.0.1/db', '--metrics', 'ndcg@10'], /clickhouse:\/\/HOST:PORT\/DATABASE.TABLE/],
       [['sql', '--metrics', 'ndcg@10'], /needs --dialect/],
+      // Port 1 on loopback: nothing listens there.
+      [['eval', 'clickhouse://127.0.0.1:1/shop.rows', '--metrics', 'ndcg@10'], /expected a ClickHouse server answering over HTTP at 127\.0\.0\.1:1 \(ECONNREFUSED\)/],
       [['sql', '--dialect', 'sqlite'], /--dialect: expected one of duckdb, clickhouse/],
     ];
     for (const [args, message] of cases) {
