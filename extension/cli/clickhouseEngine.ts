@@ -9,9 +9,8 @@
  */
 import { request } from 'node:http';
 import { InputError } from '../engine/errors';
-import { checkAgainstRange } from '../engine/evaluate/evaluate';
 import type { Conventions, MetricSpec } from '../engine/metrics/conventions';
-import { gainFunction } from '../engine/metrics/gain';
+import { checkTable } from '../engine/sql/checks';
 import { resolveRoles, type ColumnRoles } from '../engine/readers/roles';
 import { checkExpressible, CLICKHOUSE_SETTINGS, NO_ORDER_RULE, perQuerySql, quoteClickHouse, type SqlSource } from '../engine/sql/index';
 import { evaluationFromTable, type TableEvaluation } from '../engine/sql/perQueryTable';
@@ -151,8 +150,7 @@ async function checkGrades(http: ClickHouseHttp, src: SqlSource, options: ClickH
   const result = await http.query(`SELECT min(g), max(g), count(), countIf(${outside}), minIf(g, ${outside}) FROM (SELECT if(isNaN(${label}), 0., ${label}) AS g FROM ${src.relation})`);
   const row = result.data[0]!;
   const count = Number(row[2]);
-  const lowest = count === 0 ? 0 : Number(row[0]);
-  const highest = count === 0 ? 0 : Number(row[1]);
-  if (Number(row[3]) > 0) gainFunction(c.gain)(Number(row[4]));
-  return checkAgainstRange({ lowest, highest }, options.metrics, c, source);
+  const range = { lowest: count === 0 ? 0 : Number(row[0]), highest: count === 0 ? 0 : Number(row[1]) };
+  const unmapped = Number(row[3]) > 0 ? { unmappedGrade: Number(row[4]) } : {};
+  return checkTable({ range, rows: count, ...unmapped }, options.metrics, c, source);
 }

@@ -10,9 +10,8 @@ import { mkdtemp, rm, stat } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { InputError } from '../engine/errors';
-import { checkAgainstRange } from '../engine/evaluate/evaluate';
 import type { Conventions, MetricSpec } from '../engine/metrics/conventions';
-import { gainFunction } from '../engine/metrics/gain';
+import { checkTable } from '../engine/sql/checks';
 import { resolveRoles, type ColumnRoles } from '../engine/readers/roles';
 import { checkExpressible, perQuerySql, quoteDuck, stringDuck, type SqlSource } from '../engine/sql/index';
 import { evaluationFromTable, type TableEvaluation } from '../engine/sql/perQueryTable';
@@ -122,9 +121,8 @@ async function checkGrades(run: (sql: string) => Promise<{ getRowsJS(): unknown[
   const grade = `CASE WHEN ${label} IS NULL OR isnan(${label}) THEN 0.0 ELSE ${label} END`;
   const known = c.gain.kind === 'map' ? [...c.gain.gains.keys()] : [];
   const unknown = c.gain.kind === 'map' ? `min(g) FILTER (WHERE g NOT IN (${known.map((k) => String(k)).join(', ')}))` : 'NULL';
-  const row = (await run(`SELECT min(g), max(g), ${unknown} FROM (SELECT ${grade} AS g FROM ${src.relation})`)).getRowsJS()[0]!;
-  const lowest = row[0] === null ? 0 : Number(row[0]);
-  const highest = row[1] === null ? 0 : Number(row[1]);
-  if (row[2] !== null && row[2] !== undefined) gainFunction(c.gain)(Number(row[2]));
-  return checkAgainstRange({ lowest, highest }, options.metrics, c, source);
+  const row = (await run(`SELECT min(g), max(g), ${unknown}, count(*) FROM (SELECT ${grade} AS g FROM ${src.relation})`)).getRowsJS()[0]!;
+  const range = { lowest: row[0] === null ? 0 : Number(row[0]), highest: row[1] === null ? 0 : Number(row[1]) };
+  const unmappedGrade = row[2] === null || row[2] === undefined ? undefined : Number(row[2]);
+  return checkTable({ range, rows: Number(row[3]), ...(unmappedGrade !== undefined ? { unmappedGrade } : {}) }, options.metrics, c, source);
 }

@@ -100,7 +100,7 @@ describe('DuckDB engine against the local engine', () => {
     const path = join(dir, 'negative.csv');
     writeFileSync(path, 'query_id,item_id,score,label\nq,a,1,-1\nq,b,2,1\n');
     await expect(evaluateWithDuckDb(path, 'negative.csv', { metrics: parseMetricList('ndcg@10'), conventions: DEFAULT_CONVENTIONS }))
-      .rejects.toThrow(/grades >= 0 for exponential gain/);
+      .rejects.toThrow(/exponential gain needs grades >= 0/);
     const map: Conventions = { ...DEFAULT_CONVENTIONS, gain: { kind: 'map', gains: new Map([[1, 1]]) } };
     await expect(evaluateWithDuckDb(path, 'negative.csv', { metrics: parseMetricList('ndcg@10'), conventions: map }))
       .rejects.toThrow(/a gain for grade -1 in the gain map/);
