@@ -12,7 +12,8 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { setTimeout as wait } from 'node:timers/promises';
 
-export const CLICKHOUSE_SERVER = '/usr/sbin/clickhouse-server';
+/** Debian's path; GAINLINE_CLICKHOUSE_SERVER names another build of the same version. */
+export const CLICKHOUSE_SERVER = process.env.GAINLINE_CLICKHOUSE_SERVER ?? '/usr/sbin/clickhouse-server';
 export const CLUSTER = 'gainline_pair';
 export const TEST_USER = 'gainline_tester';
 
@@ -74,7 +75,7 @@ export class ClickHouseCluster {
   /** Starts both servers and waits until each answers /ping. */
   async start() {
     if (!existsSync(CLICKHOUSE_SERVER)) {
-      throw new Error(`${CLICKHOUSE_SERVER} not found: the cluster test needs Debian's ClickHouse (apt-get install clickhouse-server clickhouse-client)`);
+      throw new Error(`${CLICKHOUSE_SERVER} not found: the ClickHouse tests need Debian's ClickHouse (apt-get install clickhouse-server clickhouse-client)`);
     }
     process.once('exit', this.stopAtExit);
     const ports = [await freePort(), await freePort(), await freePort(), await freePort()];
