@@ -31,8 +31,9 @@ Where the numbers are computed:
   A DUMP of the form clickhouse://HOST:PORT/DATABASE.TABLE is computed on that ClickHouse server (HTTP
   interface), each shard of a Distributed table computing its own queries. The user and password come
   from GAINLINE_CLICKHOUSE_USER and GAINLINE_CLICKHOUSE_PASSWORD; they are never printed.
-  The SQL engines compute every metric but tau, and ERR only without average ties; they leave out the
-  convention sensitivity rows.
+  The SQL engines compute every metric but tau, and ERR only without average ties (naming either in
+  --metrics is refused; without --metrics they compute the rest of the default list, and say so); they
+  leave out the convention sensitivity rows.
 ${conventionHelp}`;
 
 const evalOptions = {

@@ -5,7 +5,7 @@
 import { parseArgs } from 'node:util';
 import { InputError } from '../engine/errors';
 import { describeConventions } from '../engine/report/reportInput';
-import { CLICKHOUSE_SETTINGS, NO_ORDER_RULE, perQuerySql, quoteClickHouse, quoteDuck, SQL_DIALECTS, COUNT_COLUMNS, metricColumns, type SqlDialect } from '../engine/sql/index';
+import { CLICKHOUSE_SETTINGS, sqlDefaultMetrics, NO_ORDER_RULE, perQuerySql, quoteClickHouse, quoteDuck, SQL_DIALECTS, COUNT_COLUMNS, metricColumns, type SqlDialect } from '../engine/sql/index';
 import { conventionOptions, scoringSetupFrom } from './conventionArgs';
 import { UsageError } from './evalCommand';
 import type { CliIO } from './io';
@@ -23,7 +23,8 @@ SQL:
   --columns ROLES       column names, e.g. query=sid,item=pid,label=grade,score=p
                         (default query_id, item_id, label, score)
 Metrics and conventions: as for gainline eval (--metrics, --gain, --ties, --no-relevant,
-  --relevant-from, --max-grade, --rbp-persistence). Without --max-grade, ERR's maximum grade is the
+  --relevant-from, --max-grade, --rbp-persistence). Without --metrics: eval's default list less tau
+  (and less ERR under average ties). Without --max-grade, ERR's maximum grade is the
   highest grade in the table (a subquery).
 The query does not check the grades: exponential gain needs grades >= 0, ERR grades <= its maximum,
 and a gain map a gain for every grade (DuckDB stops with an error; ClickHouse gives NaN).
@@ -56,7 +57,8 @@ export async function runSql(argv: string[], io: CliIO): Promise<number> {
     throw new InputError(`one of ${SQL_DIALECTS.join(', ')}`, '--dialect', undefined, values.dialect);
   }
   const dialect = values.dialect as SqlDialect;
-  const setup = scoringSetupFrom(values);
+  const given = scoringSetupFrom(values);
+  const setup = values.metrics === undefined ? { ...given, metrics: sqlDefaultMetrics(given.metrics, given.conventions) } : given;
   const roles = setup.read.columns ?? {};
   if (roles.rank !== undefined) throw new InputError('query, item, label and score roles (the SQL ranks by score)', '--columns', undefined, values.columns);
   const quote = dialect === 'duckdb' ? quoteDuck : quoteClickHouse;

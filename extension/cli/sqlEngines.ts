@@ -2,6 +2,7 @@
  * Which engine computes the per-query table (`--engine`, or a clickhouse:// dump), and running it.
  */
 import { InputError } from '../engine/errors';
+import { sqlDefaultMetrics } from '../engine/sql/index';
 import type { TableEvaluation } from '../engine/sql/perQueryTable';
 import { isClickHouseUrl } from './clickhouseEngine';
 import type { ScoringSetup } from './conventionArgs';
@@ -9,6 +10,7 @@ import type { ScoringSetup } from './conventionArgs';
 export type EngineName = 'local' | 'duckdb' | 'clickhouse';
 
 export interface EngineValues {
+  readonly metrics?: string | undefined;
   readonly engine?: string | undefined;
   readonly 'memory-limit'?: string | undefined;
   readonly 'order-column'?: string | undefined;
@@ -28,7 +30,18 @@ export function chooseEngine(source: string, values: EngineValues): EngineName {
   return engine;
 }
 
-export async function evaluateElsewhere(engine: Exclude<EngineName, 'local'>, source: string, path: string, setup: ScoringSetup,
+export async function evaluateElsewhere(engine: Exclude<EngineName, 'local'>, source: string, path: string, given: ScoringSetup,
+  values: EngineValues): Promise<TableEvaluation> {
+  const setup = values.metrics === undefined ? { ...given, metrics: sqlDefaultMetrics(given.metrics, given.conventions) } : given;
+  const result = await evaluateOn(engine, source, path, setup, values);
+  if (setup.metrics.length === given.metrics.length) return result;
+  // Said in the report: the default list was shortened, not silently changed.
+  const note = `No --metrics given: computed the default metrics SQL can express exactly (${setup.metrics.map((m) => m.key).join(', ')}); ` +
+    `${given.metrics.filter((m) => !setup.metrics.includes(m)).map((m) => m.key).join(' and ')} only with the local engine.`;
+  return { ...result, evaluation: { ...result.evaluation, warnings: [note, ...result.evaluation.warnings] } };
+}
+
+async function evaluateOn(engine: Exclude<EngineName, 'local'>, source: string, path: string, setup: ScoringSetup,
   values: EngineValues): Promise<TableEvaluation> {
   if (setup.read.judgments !== undefined || setup.read.scores !== undefined) {
     throw new InputError('one table holding query, item, score and grade for the SQL engines', setup.read.judgments !== undefined ? '--judgments' : '--scores');

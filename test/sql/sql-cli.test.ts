@@ -74,7 +74,7 @@ describe('gainline eval --engine duckdb', () => {
 
   it('refuses misuse in one line with exit 2', async () => {
     const cases: [string[], RegExp][] = [
-      [['eval', 'seeded.tsv', '--engine', 'duckdb'], /--metrics: expected err@10 with --ties file-order/],
+      [['eval', 'seeded.tsv', '--engine', 'duckdb', '--metrics', 'ndcg@10,err@10'], /--metrics: expected err@10 with --ties file-order/],
       [['eval', 'seeded.tsv', '--engine', 'duckdb', '--metrics', 'ndcg@10,tau'], /--metrics: expected .*tau/],
       [['eval', 'seeded.tsv', '--engine', 'quantum'], /--engine: expected one of local, duckdb/],
       [['eval', 'seeded.tsv', '--memory-limit', '1GB'], /--memory-limit: expected --engine duckdb/],
@@ -92,6 +92,17 @@ describe('gainline eval --engine duckdb', () => {
       expect(r.err, args.join(' ')).toMatch(message);
       expect(r.err.trim().split('\n')).toHaveLength(1);
       expect(r.err).not.toContain('pw@');
+    }
+  });
+
+  it('without --metrics computes the default list less what SQL cannot express, and says so', async () => {
+    for (const [ties, expected] of [['average', 'ndcg@10, ap, rr, p@5, r@10, rbp'], ['file-order', 'ndcg@10, err@10, ap, rr, p@5, r@10, rbp']]) {
+      const r = await cli(['eval', 'seeded.tsv', '--engine', 'duckdb', '--ties', ties!, '--format', 'json']);
+      expect(r.code, r.err).toBe(0);
+      const doc = JSON.parse(r.out) as { summary: Record<string, number>; warnings: string[] };
+      expect(Object.keys(doc.summary).join(', ')).toBe(`${expected}, rbp_residual`);
+      expect(doc.warnings[0]).toBe(`No --metrics given: computed the default metrics SQL can express exactly (${expected}); ` +
+        `${ties === 'average' ? 'err@10 and tau' : 'tau'} only with the local engine.`);
     }
   });
 });

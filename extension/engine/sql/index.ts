@@ -7,7 +7,7 @@ import { duckdbSql } from './duckdb';
 import { checkExpressible, type SqlRequest } from './request';
 
 export type { SqlDialect, SqlRequest, SqlSource } from './request';
-export { COUNT_COLUMNS, metricColumns, NO_ORDER_RULE, SQL_DIALECTS, checkExpressible } from './request';
+export { COUNT_COLUMNS, metricColumns, NO_ORDER_RULE, SQL_DIALECTS, checkExpressible, sqlDefaultMetrics } from './request';
 export { quoteDuck, stringDuck } from './duckdb';
 export { CLICKHOUSE_SETTINGS, quoteClickHouse } from './clickhouse';
 

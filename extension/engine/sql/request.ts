@@ -60,6 +60,14 @@ export function metricColumns(metrics: readonly MetricSpec[]): string[] {
 }
 
 /**
+ * The metrics an SQL engine computes when none are named: the local default list less what SQL cannot
+ * compute exactly under these conventions (tau always, ERR under average ties).
+ */
+export function sqlDefaultMetrics(defaults: readonly MetricSpec[], conventions: Conventions): MetricSpec[] {
+  return defaults.filter((m) => m.name !== 'tau' && !(m.name === 'err' && conventions.ties === 'average'));
+}
+
+/**
  * Refuses what SQL cannot compute exactly, with the reason, naming the option to change.
  * - Kendall's tau needs a count of discordant pairs (two items ordered one way by score and the other by
  *   grade); neither dialect has an exact set form for it short of a quadratic self-join per query.
