@@ -9,7 +9,8 @@
  */
 import { request } from 'node:http';
 import { InputError } from '../engine/errors';
-import type { Conventions, MetricSpec } from '../engine/metrics/conventions';
+import type { Conventions } from '../engine/metrics/conventions';
+import type { MetricSpec } from '../engine/metrics/registry';
 import { checkTable } from '../engine/sql/checks';
 import { resolveRoles, type ColumnRoles } from '../engine/readers/roles';
 import { checkExpressible, CLICKHOUSE_SETTINGS, NO_ORDER_RULE, perQuerySql, quoteClickHouse, type SqlSource } from '../engine/sql/index';

@@ -1,5 +1,5 @@
 /** The per-query table as columns of plain values, read back from DuckDB or ClickHouse. */
-import type { MetricSpec } from '../engine/metrics/conventions';
+import type { MetricSpec } from '../engine/metrics/registry';
 import { COUNT_COLUMNS, metricColumns } from '../engine/sql/index';
 import type { PerQueryTable } from '../engine/sql/perQueryTable';
 

@@ -60,8 +60,8 @@ describe('ClickHouse cluster against the local engine', () => {
 
   const cases: [string, Conventions][] = [
     ['ndcg@3,dcg,p@2,p,r@3,ap,rr,rbp,rbp@3,err@4,err', { ...DEFAULT_CONVENTIONS, ties: 'file-order' }],
-    ['ndcg@3,ndcg,p@2,r,ap,rr@2,rbp', { ...DEFAULT_CONVENTIONS, ties: 'average', noRelevant: 'zero', gain: { kind: 'linear' } }],
-    ['ndcg@5,ap,rr,err@5', { ...DEFAULT_CONVENTIONS, ties: 'pessimistic', relevantFrom: 2, noRelevant: 'one' }],
+    ['ndcg@3,ndcg,p@2,r,ap,ap@3,rr@2,rbp,hit@2,judged@3', { ...DEFAULT_CONVENTIONS, ties: 'average', noRelevant: 'zero', gain: { kind: 'linear' } }],
+    ['ndcg@5,ap,rr,err@5,hit,judged', { ...DEFAULT_CONVENTIONS, ties: 'pessimistic', relevantFrom: 2, noRelevant: 'one' }],
     ['ndcg@5,p@3,rr', { ...DEFAULT_CONVENTIONS, ties: 'optimistic', gain: { kind: 'map', gains: new Map([[0, 0], [1, 3], [2, 1], [3, 6]]) } }],
   ];
   for (const [metrics, c] of cases) {

@@ -19,7 +19,7 @@ import { expectSameNumbers, seededRows, toDelimited } from './sqlDumps';
 const dir = mkdtempSync(join(tmpdir(), 'gainline-duckdb-test-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
-const ALL = 'ndcg@3,dcg,ndcg,p@2,p,r@3,r,ap,rr,rr@2,rbp,rbp@3,dcg@5,ndcg@20';
+const ALL = 'ndcg@3,dcg,ndcg,p@2,p,r@3,r,ap,ap@3,rr,rr@2,rbp,rbp@3,dcg@5,ndcg@20,hit,hit@2,judged,judged@4';
 const GAINS: GainConvention[] = [
   { kind: 'exponential' },
   { kind: 'linear' },

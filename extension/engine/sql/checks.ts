@@ -5,7 +5,8 @@
  */
 import { InputError } from '../errors';
 import { gainProblem } from '../evaluate/gainLimits';
-import type { Conventions, MetricSpec } from '../metrics/conventions';
+import type { Conventions } from '../metrics/conventions';
+import type { MetricSpec } from '../metrics/registry';
 import { formatGain } from '../metrics/parse';
 import type { GradeRange } from '../model/rowSummary';
 

@@ -38,7 +38,7 @@ const DIALECT: TermDialect = {
     const used = FIELDS.filter((f) => new RegExp(`\\b${f}\\b`).test(term));
     return `arraySum((${used.join(', ')}) -> ${term}, ${used.map((f) => `f_${f}`).join(', ')})`;
   },
-  items: 'length(f_pos)',
+  items: 'toFloat64(length(f_pos))',
   nan: 'nan',
 };
 

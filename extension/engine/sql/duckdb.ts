@@ -20,7 +20,7 @@ export function stringDuck(text: string): string {
 const DIALECT: TermDialect = {
   field: (name) => name,
   sum: (term) => `sum(${term})`,
-  items: 'count(*)',
+  items: 'CAST(count(*) AS DOUBLE)',
   nan: "'NaN'::DOUBLE",
 };
 

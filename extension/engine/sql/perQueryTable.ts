@@ -8,7 +8,8 @@ import { summarise } from '../evaluate/evaluate';
 import { headlineCutoff } from '../evaluate/scorer';
 import type { DegenerateCounts, Evaluation, MetricSummary, PerQueryColumns } from '../evaluate/types';
 import { describeDegenerate } from '../evaluate/warnings';
-import type { Conventions, MetricSpec } from '../metrics/conventions';
+import type { Conventions } from '../metrics/conventions';
+import type { MetricSpec } from '../metrics/registry';
 import { MapStringPool } from '../model/stringPool';
 import { metricColumns } from './request';
 

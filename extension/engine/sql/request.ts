@@ -6,7 +6,8 @@
  * exact value SQL cannot express are refused here, before any SQL is written, never approximated.
  */
 import { InputError } from '../errors';
-import type { Conventions, MetricSpec } from '../metrics/conventions';
+import type { Conventions } from '../metrics/conventions';
+import type { MetricSpec } from '../metrics/registry';
 
 export type SqlDialect = 'duckdb' | 'clickhouse';
 export const SQL_DIALECTS: readonly SqlDialect[] = ['duckdb', 'clickhouse'];

@@ -14,7 +14,8 @@
  * group's slots s+1..s+m equals a sum over its rows at their positions, so every group formula becomes a
  * plain per-row sum. Without `average` ties every group has one row and the same terms give the plain values.
  */
-import type { Conventions, MetricSpec } from '../metrics/conventions';
+import type { Conventions } from '../metrics/conventions';
+import type { MetricSpec } from '../metrics/registry';
 
 export type RowField = 'pos' | 's' | 'm' | 'r' | 'bef' | 'gsum' | 'usum' | 'rel' | 'igain' | 'ipos' | 'err_r' | 'surv';
 
@@ -24,7 +25,7 @@ export interface TermDialect {
   readonly field: (name: RowField) => string;
   /** Sum of a per-row term over the query's rows. */
   readonly sum: (term: string) => string;
-  /** Items of the query (after dropping repeated rows). */
+  /** Items of the query (after dropping repeated rows), as a double (ClickHouse's least() will not mix types). */
   readonly items: string;
   readonly nan: string;
 }
@@ -68,7 +69,7 @@ export function metricExpressions(d: TermDialect, metrics: readonly MetricSpec[]
         value = dcg(k);
         break;
       case 'p':
-        value = `${relevantInTop(k)} / ${k === undefined ? `greatest(${d.items}, 1)` : literal(k)}`;
+        value = `${relevantInTop(k)} / ${k === undefined ? `greatest(${d.items}, 1.0)` : literal(k)}`;
         break;
       case 'r':
         value = normalised(`${relevantInTop(k)} / ${relevantCount}`);
@@ -76,8 +77,9 @@ export function metricExpressions(d: TermDialect, metrics: readonly MetricSpec[]
       case 'ap': {
         // (r/m) Σ_u (bef + 1 + u(r−1)/(m−1)) / (s+u+1) over the group's slots, u = pos − s − 1.
         const inner = `CASE WHEN ${f('m')} > 1 THEN (${f('r')} - 1.0) / (${f('m')} - 1.0) ELSE 0.0 END`;
-        const term = `CASE WHEN ${f('r')} > 0 THEN ${share} * (${f('bef')} + 1.0 + (${f('pos')} - ${f('s')} - 1.0) * ${inner}) / ${f('pos')} ELSE 0.0 END`;
-        value = normalised(`${d.sum(term)} / ${relevantCount}`);
+        // With a cut-off only the slots within it count, and the sum is divided by min(k, R).
+        const term = `CASE WHEN ${f('r')} > 0 AND ${within(k, f('pos'))} THEN ${share} * (${f('bef')} + 1.0 + (${f('pos')} - ${f('s')} - 1.0) * ${inner}) / ${f('pos')} ELSE 0.0 END`;
+        value = normalised(`${d.sum(term)} / ${k === undefined ? relevantCount : `least(${relevantCount}, ${literal(k)})`}`);
         break;
       }
       case 'rr': {
@@ -97,7 +99,7 @@ export function metricExpressions(d: TermDialect, metrics: readonly MetricSpec[]
         const weight = `(1.0 - ${p}) * pow(${p}, ${f('pos')} - 1.0)`;
         value = d.sum(`CASE WHEN ${within(k, f('pos'))} THEN ${share} * ${weight} ELSE 0.0 END`);
         if (i === firstRbp) {
-          const depth = k === undefined ? d.items : `least(${d.items}, ${k})`;
+          const depth = k === undefined ? d.items : `least(${d.items}, ${literal(k)})`;
           const residual = `pow(${p}, ${depth}) + ${d.sum(`CASE WHEN ${within(k, f('pos'))} THEN ${f('usum')} / ${f('m')} * ${weight} ELSE 0.0 END`)}`;
           out.push(value, residual);
           return;
@@ -108,6 +110,23 @@ export function metricExpressions(d: TermDialect, metrics: readonly MetricSpec[]
         // Σ R_i Π_{j<i}(1 − R_j) / i (Chapelle et al. 2009); only without average ties (request.ts).
         value = d.sum(`CASE WHEN ${within(k, f('pos'))} THEN ${f('err_r')} * ${f('surv')} / ${f('pos')} ELSE 0.0 END`);
         break;
+      case 'hit': {
+        // First group holding a relevant item, if it starts within the cut-off: t = its slots inside;
+        // P(no relevant item on them) = C(m−r, t) / C(m, t), by log-gamma. Spread over the group's m rows.
+        const m = f('m');
+        const r = f('r');
+        const t = k === undefined ? m : `least(${m}, ${literal(k)} - ${f('s')})`;
+        const lg = (x: string) => `lgamma(greatest(${x}, 1.0))`;
+        const none = `CASE WHEN ${m} - ${r} < ${t} THEN 0.0 ELSE exp(${lg(`${m} - ${r} + 1.0`)} + ${lg(`${m} - ${t} + 1.0`)} - ${lg(`${m} - ${r} - ${t} + 1.0`)} - ${lg(`${m} + 1.0`)}) END`;
+        value = normalised(d.sum(`CASE WHEN ${r} > 0 AND ${f('bef')} = 0 AND ${k === undefined ? '1 = 1' : `${f('s')} < ${literal(k)}`} THEN (1.0 - ${none}) / ${m} ELSE 0.0 END`));
+        break;
+      }
+      case 'judged': {
+        // Each slot within the cut-off carries its group's judged share; divided by min(k, list length).
+        const depth = k === undefined ? d.items : `least(${d.items}, ${literal(k)})`;
+        value = `${d.sum(`CASE WHEN ${within(k, f('pos'))} THEN (${f('m')} - ${f('usum')}) / ${f('m')} ELSE 0.0 END`)} / ${depth}`;
+        break;
+      }
       case 'tau':
         throw new Error('tau is refused by checkExpressible before any SQL is written');
     }
