@@ -10,7 +10,8 @@ const common = { bundle: true, sourcemap: true, logLevel: 'warning', target: 'es
 const entries = [
   // Command line: plain Node, runnable as `gainline` through package.json "bin".
   { ...common, entryPoints: ['extension/cli/main.ts'], outfile: 'dist/cli.js', platform: 'node', format: 'cjs',
-    banner: { js: '#!/usr/bin/env node' } },
+    // DuckDB is a native module, loaded only by --engine duckdb: it stays outside the bundle.
+    banner: { js: '#!/usr/bin/env node' }, external: ['@duckdb/node-api'] },
   // Engine worker thread used by the CLI and the extension host for parallel reading.
   { ...common, entryPoints: ['extension/worker/engineWorker.ts'], outfile: 'dist/engineWorker.js', platform: 'node', format: 'cjs' },
   // Parse worker: one byte range of a large CSV/TSV per thread (found next to the bundle that starts it).
@@ -22,7 +23,7 @@ const entries = [
 ];
 if (existsSync('extension/host/extension.ts')) {
   entries.push({ ...common, entryPoints: ['extension/host/extension.ts'], outfile: 'dist/extension.js', platform: 'node',
-    format: 'cjs', external: ['vscode'] });
+    format: 'cjs', external: ['vscode', '@duckdb/node-api'] });
 }
 if (existsSync('webview/src/main.ts')) {
   entries.push({ ...common, entryPoints: ['webview/src/main.ts'], outfile: 'dist/webview.js', platform: 'browser',

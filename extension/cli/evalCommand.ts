@@ -11,6 +11,7 @@ import { formatReport, REPORT_FORMATS, type ReportFormat } from '../engine/repor
 import { conventionHelp, conventionOptions, parseCommandArgs, scoringSetupFrom } from './conventionArgs';
 import type { CliIO } from './io';
 import { progressLine } from './progress';
+import { chooseEngine, evaluateElsewhere } from './sqlEngines';
 
 export const evalUsage = `Usage: gainline eval DUMP [options]
 
@@ -21,6 +22,18 @@ Output:
   --format F            table (default) | json | csv | markdown
   --worst N             how many of the worst queries to list (default 10; table and markdown)
   --timings             print how long reading, scoring and writing the report took (standard error)
+Where the numbers are computed:
+  --engine E            local (default) | duckdb: DuckDB embedded computes the per-query table from a
+                        CSV, TSV or Parquet file, or a folder of Parquet parts, in place (needs the npm
+                        package @duckdb/node-api next to gainline)
+  --memory-limit SIZE   DuckDB's memory cap, e.g. 2GB; past it DuckDB spills to a temporary folder
+  --order-column NAME   ClickHouse: the column giving the rows' order (repeated rows, file-order ties)
+  A DUMP of the form clickhouse://HOST:PORT/DATABASE.TABLE is computed on that ClickHouse server (HTTP
+  interface), each shard of a Distributed table computing its own queries. The user and password come
+  from GAINLINE_CLICKHOUSE_USER and GAINLINE_CLICKHOUSE_PASSWORD; they are never printed.
+  The SQL engines compute every metric but tau, and ERR only without average ties (naming either in
+  --metrics is refused; without --metrics they compute the rest of the default list, and say so); they
+  leave out the convention sensitivity rows.
 ${conventionHelp}`;
 
 const evalOptions = {
@@ -28,6 +41,9 @@ const evalOptions = {
   format: { type: 'string' },
   worst: { type: 'string' },
   timings: { type: 'boolean' },
+  engine: { type: 'string' },
+  'memory-limit': { type: 'string' },
+  'order-column': { type: 'string' },
   help: { type: 'boolean', short: 'h' },
 } as const;
 
@@ -55,6 +71,18 @@ export async function runEval(argv: string[], io: CliIO): Promise<number> {
   const setup = scoringSetupFrom(values, (p) => resolve(io.cwd, p));
   if (values['missing-queries'] !== undefined && setup.read.judgments === undefined) {
     throw new InputError('--judgments FILE to go with it', '--missing-queries', undefined, values['missing-queries']);
+  }
+  const engine = chooseEngine(source, values);
+  if (engine !== 'local') {
+    const started = performance.now();
+    const result = await evaluateElsewhere(engine, source, resolve(io.cwd, source), setup, values);
+    const scored = performance.now();
+    io.out(formatReport(format, { ...result, source }, { worst }));
+    if (values.timings) {
+      const s = (ms: number) => (ms / 1000).toFixed(3);
+      io.err(`timings: ${engine} ${s(scored - started)} s, report ${s(performance.now() - scored)} s (${result.rowCount} rows)\n`);
+    }
+    return 0;
   }
   const path = resolve(io.cwd, source);
 
