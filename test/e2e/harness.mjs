@@ -4,16 +4,18 @@
 // into webview frames (outer webview iframe → inner `active-frame`).
 import { join } from 'node:path';
 import { chromium } from 'playwright-core';
-import { E2E_DIR } from '../support/code-server-install.mjs';
+import { RUN_DIR } from '../support/code-server-install.mjs';
 
 const CHROMIUM = process.env.GAINLINE_E2E_CHROMIUM ?? '/usr/bin/chromium';
 
 export async function launchBrowser() {
   // Chromium writes crash-report and dconf folders under $HOME; keep them in the clone.
-  const home = join(E2E_DIR, 'browser-home');
+  const home = join(RUN_DIR, 'browser-home');
   return chromium.launch({
     executablePath: CHROMIUM,
     headless: true,
+    // Headless Chromium hides scrollbars by default; a user sees them, and so should the checks and pictures.
+    ignoreDefaultArgs: ['--hide-scrollbars'],
     env: { ...process.env, HOME: home, XDG_CONFIG_HOME: join(home, '.config'), XDG_CACHE_HOME: join(home, '.cache') },
     args: ['--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update',
       '--disable-sync', '--no-first-run', '--disable-dev-shm-usage',
