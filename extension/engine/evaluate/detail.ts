@@ -53,10 +53,12 @@ export function queryDetail(
     const e = ranking.tieBounds[g + 1]!;
     groupSize.fill(e - s, s, e);
   }
-  // Ideal order: gain descending, then grade descending, then file order.
+  // Ideal order: gain descending, then grade descending, then the model's own order. Any order
+  // within a grade gives the same ideal DCG; keeping the model's order means an item moves only when
+  // its grade says it must, so equal-grade items are never shown as misplaced among themselves.
   const slots = Array.from({ length: n }, (_, i) => i);
   const rowAt = (slot: number) => ranking.row[order[slot]!]!;
-  slots.sort((a, b) => scorer.gain[b]! - scorer.gain[a]! || list.grade[b]! - list.grade[a]! || rowAt(a) - rowAt(b));
+  slots.sort((a, b) => scorer.gain[b]! - scorer.gain[a]! || list.grade[b]! - list.grade[a]! || a - b);
   const idealPosition = new Uint32Array(n);
   slots.forEach((slot, i) => (idealPosition[slot] = i + 1));
   const { discount } = discountTable(n);

@@ -117,7 +117,7 @@ export interface QueryDetail {
   readonly conventions: Conventions;
   readonly k: number;
   readonly positions: readonly PositionRow[];
-  /** Same items in ideal order (grade descending, file order within a grade). Rows refer to the dump. */
+  /** Same items in ideal order (grade descending, the model's order within a grade). Rows refer to the dump. */
   readonly idealOrder: readonly number[];
   readonly dcg: number;
   readonly idealDcg: number;
