@@ -227,6 +227,8 @@ export interface QueryDetailView {
 export interface SegmentRow {
   readonly value: string;
   readonly queries: number;
+  /** Of those, left out of the headline mean (nothing relevant, under the "skip" convention). */
+  readonly skipped: number;
   /** Means aligned with `OverviewModel.metrics`. */
   readonly means: readonly MaybeNumber[];
   /** Headline mean of this segment − overall headline mean. */
@@ -334,6 +336,8 @@ export type HostToView =
   | { readonly kind: 'state'; readonly state: ViewState }
   /** Ask the webview to show a query (from a command or the tree). */
   | { readonly kind: 'showQuery'; readonly query: string }
+  /** Bring the summary screen forward (Overview, or A vs B when comparing): the status bar's click. */
+  | { readonly kind: 'showSummary' }
   | ResponseEnvelope;
 
 export type ViewToHost =
