@@ -2,6 +2,7 @@
  * The few webview requests the host answers itself because they touch the editor: saving or copying
  * an exported table, copying a query as JSON, and revealing a row of the dump in a text editor.
  */
+import * as os from 'node:os';
 import * as path from 'node:path';
 import * as vscode from 'vscode';
 import type { ExportResult, ExportViewParams, RevealResult } from '../protocol/messages';
@@ -15,7 +16,10 @@ export async function exportView(params: ExportViewParams, nearFile: string, con
     void vscode.window.setStatusBarMessage('Gainline: table copied', 3000);
     return { done: true, target: 'clipboard' };
   }
-  const defaultUri = vscode.Uri.file(path.join(path.dirname(nearFile), suggestedFileName(params.title, params.format)));
+  // Offer the workspace folder, not the folder of the runs: exports are reports, and a training job
+  // or a glob over the runs folder should not pick them up as dumps.
+  const folder = vscode.workspace.getWorkspaceFolder(vscode.Uri.file(nearFile))?.uri.fsPath ?? vscode.workspace.workspaceFolders?.[0]?.uri.fsPath ?? os.homedir();
+  const defaultUri = vscode.Uri.file(path.join(folder, suggestedFileName(params.title, params.format)));
   const target = await vscode.window.showSaveDialog({
     defaultUri,
     saveLabel: 'Export',
