@@ -71,6 +71,8 @@ export interface SensitivityView {
   readonly counted: number;
   /** mean − headline mean under the current conventions. */
   readonly delta: MaybeNumber;
+  /** This row's conventions are the current ones (the engine lists them once per dimension). */
+  readonly current: boolean;
 }
 
 /** The engine's counts unchanged (all plain integers). */

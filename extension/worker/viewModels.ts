@@ -90,6 +90,7 @@ export function overviewModel(dump: RankedDump, evaluation: Evaluation, loadMs: 
       mean: toMaybe(row.mean),
       counted: row.counted,
       delta: toMaybe(row.mean - headlineMean),
+      current: JSON.stringify(row.conventions) === JSON.stringify(evaluation.conventions),
     })),
     degenerate: { ...evaluation.degenerate },
     histogram: histogram(evaluation.perQuery.values[evaluation.headline]!),

@@ -132,7 +132,7 @@ export function startFakeHost(options: FakeHostOptions): { send(message: HostToV
         ],
     headline: 0,
     conventions: { gain: 'exponential (2^g − 1)', ties: 'average', noRelevant: 'skip', relevantFrom: 1, maxGrade: null, rbpPersistence: 0.8, summary: 'gain exponential · ties average · no-relevant skip · relevant ≥ 1' },
-    sensitivity: [{ label: 'gain: linear', mean: 0.61, counted: 10, delta: -0.01 }],
+    sensitivity: [{ label: 'gain: exponential (as configured)', mean: 0.62, counted: 10, delta: 0, current: true }, { label: 'gain: linear', mean: 0.61, counted: 10, delta: -0.01, current: false }],
     degenerate: { singleItemQueries: 0, noRelevantQueries: queries.filter((q) => Number.isNaN(q.ndcgA)).length, duplicateRows: 2, missingScoreRows: 1, unjudgedRows: 0, tiedScoreRows: 4 },
     histogram: { lower: 0, upper: 1, counts },
     segmentColumns: ['locale'],

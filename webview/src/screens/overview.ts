@@ -101,7 +101,8 @@ export class OverviewScreen {
         ],
         rows: [
           [{ text: 'current settings' }, { text: formatFixed(num(headline.mean)), title: exactValue(num(headline.mean)) }, '', formatCount(headline.counted)],
-          ...model.sensitivity.map((s) => [
+          // The engine repeats the current conventions once per dimension; the first row says it once.
+          ...model.sensitivity.filter((s) => !s.current).map((s) => [
             s.label,
             { text: formatFixed(num(s.mean)), title: exactValue(num(s.mean)) },
             { text: formatDelta(num(s.delta)), title: `${exactValue(num(s.delta))} (mean under "${s.label}" minus current mean)` },
