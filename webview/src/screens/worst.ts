@@ -84,7 +84,7 @@ export class WorstScreen {
   /** New data. `keep` keeps sort, filters and the active row (live refresh). */
   setModel(model: OverviewModel, keep: boolean): void {
     const headlineKey = model.metrics[model.headline]!.key;
-    const validKeys = new Set([...model.metrics.map((m) => m.key), 'query', 'items', 'relevant', 'inversions', 'inversionCost', 'lossShare']);
+    const validKeys = new Set([...model.metrics.map((m) => m.key), 'query', 'items', 'relevant', 'inversions', 'inversionCost']);
     if (!keep || !validKeys.has(this.sort.key)) this.sort = { key: headlineKey, descending: false };
     this.model = model;
     const segmentColumns = model.segmentColumns;
@@ -129,11 +129,13 @@ export class WorstScreen {
       {
         key: 'lossShare',
         label: 'Share of loss',
-        title: COLUMN_EXPLANATIONS['lossShare']!,
+        // (1 − NDCG_q) / Σ(1 − NDCG): one scale for every query, so it orders the queries exactly as
+        // NDCG does; a sort of its own would only repeat the NDCG sort, so the header does not offer one.
+        title: `${COLUMN_EXPLANATIONS['lossShare']!}\nNot sortable on its own: it orders queries exactly as ${model.metrics[model.headline]!.label} does (sort by that).`,
         value: (r) => r.lossShare,
         format: (v) => (typeof v === 'number' ? formatShare(v) : MISSING),
         numeric: true,
-        sortable: true,
+        sortable: false,
         sample: SAMPLES.share,
         bar: (r) => (r.lossShare === null ? null : Math.min(1, r.lossShare * 20)),
       },
