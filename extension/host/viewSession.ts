@@ -40,7 +40,10 @@ export interface Headline {
   readonly label: string;
   readonly value: number | null;
   readonly conventions: string;
+  /** Queries in the file (single) or in both runs (compare). */
   readonly queries: number;
+  /** Queries that entered the headline mean (single) or its paired comparison (compare). */
+  readonly counted: number;
   readonly compare: boolean;
 }
 
@@ -89,11 +92,11 @@ export class ViewSession implements vscode.Disposable {
   get headline(): Headline | undefined {
     if (this.overview) {
       const m = this.overview.metrics[this.overview.headline]!;
-      return { label: m.label, value: m.mean, conventions: this.overview.conventions.summary, queries: this.overview.queryCount, compare: false };
+      return { label: m.label, value: m.mean, conventions: this.overview.conventions.summary, queries: this.overview.queryCount, counted: m.counted, compare: false };
     }
     if (this.compare) {
       const m = this.compare.metrics[this.compare.headline]!;
-      return { label: `Δ ${m.label}`, value: m.delta, conventions: this.compare.conventions.summary, queries: this.compare.pairedQueries, compare: true };
+      return { label: `Δ ${m.label}`, value: m.delta, conventions: this.compare.conventions.summary, queries: this.compare.pairedQueries, counted: m.wins + m.ties + m.losses, compare: true };
     }
     return undefined;
   }
@@ -111,6 +114,31 @@ export class ViewSession implements vscode.Disposable {
       this.reloadTimer = undefined;
       void this.load(this.overview || this.compare ? 'reloaded' : 'loaded', false);
     }, delayMs);
+  }
+
+  /** The queries worst first (single: headline ascending; compare: headline Δ ascending), for Go to Query. */
+  async listQueries(limit: number): Promise<{ total: number; rows: { query: string; description: string }[] }> {
+    await this.ensureLoaded();
+    const session = this.key;
+    const fixed = (v: number | null): string => (v === null ? '—' : v.toFixed(4));
+    if (this.target.mode === 'single') {
+      const page = await this.deps.worker.call('queryPage', { session, offset: 0, limit });
+      const label = this.overview?.metrics[this.overview.headline]?.label ?? '';
+      return { total: page.total, rows: page.rows.map((r) => ({ query: r.query, description: `${label} ${fixed(r.values[this.overview?.headline ?? 0] ?? null)}` })) };
+    }
+    const page = await this.deps.worker.call('comparePage', { session, offset: 0, limit });
+    const label = this.compare?.metrics[this.compare.headline]?.label ?? '';
+    return { total: page.total, rows: page.rows.map((r) => ({ query: r.query, description: `Δ ${label} ${r.delta !== null && r.delta > 0 ? '+' : ''}${fixed(r.delta)}` })) };
+  }
+
+  /** Asks the webview to show a query (Go to Query…) or its summary screen (status bar). */
+  showQuery(query: string): void {
+    this.selection = query;
+    void this.post({ kind: 'showQuery', query });
+  }
+
+  showSummary(): void {
+    void this.post({ kind: 'showSummary' });
   }
 
   dispose(): void {

@@ -32,6 +32,8 @@ const COMPARE_TABS: TabName[] = ['compare', 'deltas', 'movement', 'detail', 'seg
 interface SavedState {
   readonly tab?: TabName;
   readonly query?: string | null;
+  /** Compare mode: the two runs' paths, so the host can bring the panel back after a reload. */
+  readonly runs?: readonly [string, string];
 }
 
 export class App implements AppContext {
@@ -100,8 +102,9 @@ export class App implements AppContext {
     this.selected = query;
     this.post({ kind: 'selection', query });
     this.selectTab(target);
-    if (target === 'movement') void this.movement.show(query);
-    else void this.detail.show(query);
+    // In compare mode both screens follow the picked query, whichever tab it was picked for.
+    if (target === 'movement' || this.mode === 'compare') void this.movement.show(query);
+    if (target === 'detail' || this.mode === 'compare') void this.detail.show(query);
     this.save();
   }
 
@@ -142,6 +145,10 @@ export class App implements AppContext {
     }
     if (message.kind === 'showQuery') {
       this.openQuery(message.query);
+      return;
+    }
+    if (message.kind === 'showSummary') {
+      if (this.mode !== undefined) this.selectTab(this.mode === 'compare' ? 'compare' : 'overview');
       return;
     }
     if (message.kind === 'state') {
@@ -226,9 +233,31 @@ export class App implements AppContext {
     if (query !== null) {
       void this.detail.show(query);
       if (this.mode === 'compare') void this.movement.show(query);
-    }
+    } else if (this.mode === 'compare') void this.showBiggestMover();
     this.selectTab(tab);
     this.save();
+  }
+
+  /** A new comparison opens Movement and Query detail on the query whose headline moved most. */
+  private async showBiggestMover(): Promise<void> {
+    const model = this.compareModel;
+    try {
+      const [losses, wins] = await Promise.all([
+        this.request('comparePage', { sort: { key: 'delta', descending: false }, offset: 0, limit: 1 }),
+        this.request('comparePage', { sort: { key: 'delta', descending: true }, offset: 0, limit: 1 }),
+      ]);
+      if (model !== this.compareModel || this.selected !== null) return; // the user picked one meanwhile
+      const candidates = [losses.rows[0], wins.rows[0]].filter((r) => r !== undefined && r.delta !== null);
+      const biggest = candidates.sort((x, y) => Math.abs(y!.delta!) - Math.abs(x!.delta!))[0];
+      if (!biggest) return;
+      this.selected = biggest.query;
+      this.post({ kind: 'selection', query: biggest.query });
+      void this.movement.show(biggest.query);
+      void this.detail.show(biggest.query);
+      this.save();
+    } catch {
+      // Movement then keeps its "pick a query" note.
+    }
   }
 
   // ---- layout ----------------------------------------------------------------------------------
@@ -323,6 +352,7 @@ export class App implements AppContext {
   }
 
   private save(): void {
-    this.api.setState({ tab: this.tab, query: this.selected } satisfies SavedState);
+    const runs = this.compareModel ? ([this.compareModel.runA.path, this.compareModel.runB.path] as const) : undefined;
+    this.api.setState({ tab: this.tab, query: this.selected, ...(runs ? { runs } : {}) } satisfies SavedState);
   }
 }
