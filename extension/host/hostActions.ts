@@ -37,8 +37,10 @@ export async function copyText(text: string, what: string): Promise<{ copied: bo
 }
 
 /**
- * Opens the dump as text beside the viewer with the row's line selected. Parquet and compressed files
- * are not text: the row number is shown instead.
+ * Opens the dump as text below the viewer with the row's line selected: beside it, the viewer lost
+ * half its width and clipped the ideal list, while below it keeps its width and the lines stay
+ * readable. A text editor of the file already open in another group is reused. Parquet and
+ * compressed files are not text: the row number is shown instead.
  */
 export async function revealRow(file: string, row: number, line: number): Promise<RevealResult> {
   const name = path.basename(file);
@@ -50,8 +52,16 @@ export async function revealRow(file: string, row: number, line: number): Promis
   const document = await vscode.workspace.openTextDocument(vscode.Uri.file(file));
   const lineIndex = Math.min(line - 1, document.lineCount - 1);
   const range = document.lineAt(lineIndex).range;
+  const viewer = vscode.window.tabGroups.activeTabGroup.viewColumn;
+  const open = vscode.window.visibleTextEditors.find((e) => e.document.uri.fsPath === document.uri.fsPath && e.viewColumn !== viewer);
+  let viewColumn = open?.viewColumn;
+  if (viewColumn === undefined) {
+    // A new group under the viewer's, which becomes the active one.
+    await vscode.commands.executeCommand('workbench.action.newGroupBelow');
+    viewColumn = vscode.ViewColumn.Active;
+  }
   await vscode.window.showTextDocument(document, {
-    viewColumn: vscode.ViewColumn.Beside,
+    viewColumn,
     preserveFocus: false,
     selection: new vscode.Selection(range.start, range.end),
   });
