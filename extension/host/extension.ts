@@ -23,6 +23,9 @@ export function activate(context: vscode.ExtensionContext): void {
   const viewWorker = new EngineWorker(workerScript, onCrash);
   const treeWorker = new EngineWorker(workerScript, onCrash);
 
+  // The extension activates when the workspace holds dumps (package.json): start the views' engine
+  // thread at once, so the first click on a dump does not wait for it.
+  viewWorker.warm();
   const registry = new SessionRegistry();
   const deps: SessionDeps = { worker: viewWorker, getConfig, memory: context.workspaceState, log: (line) => output.info(line) };
   const tree = new RankedListsTree(treeWorker, getConfig, context.workspaceState);

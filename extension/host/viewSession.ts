@@ -69,6 +69,8 @@ export class ViewSession implements vscode.Disposable {
   /** The query the user looks at, kept across reloads. */
   selection: string | null = null;
   private disposed = false;
+  /** When the view was opened: the first load's log line says where the time before computing went. */
+  private readonly openedAt = performance.now();
 
   constructor(
     private readonly webview: vscode.Webview,
@@ -206,12 +208,17 @@ export class ViewSession implements vscode.Disposable {
     };
     const work = (async () => {
       const options = { signal: abort.signal, timeoutMs: LOAD_TIMEOUT_MS, onProgress };
+      const asked = performance.now();
       if (this.target.mode === 'single') {
         const overview = await this.deps.worker.call(
           'load', { session: this.key, source: this.sources[0]!, settings: evaluationSettings(config) }, options);
         this.overview = overview;
         this.setState({ status: kind, mode: 'single', overview });
-        this.deps.log?.(`${kind === 'loaded' ? 'read' : 're-read'} ${this.label}: ${overview.file.rowCount} rows, ${overview.queryCount} queries, ${overview.loadMs} ms`);
+        const answered = performance.now();
+        // Where the time went: before the request (sources, judgments), in the worker, and the rest
+        // (thread start on first use, messages), so a slow first screen can be told apart.
+        const split = firstTime ? ` (${Math.round(asked - this.openedAt)} ms before the request, ${overview.loadMs} ms reading and scoring, ${Math.max(0, Math.round(answered - asked - overview.loadMs))} ms thread start and messages)` : '';
+        this.deps.log?.(`${kind === 'loaded' ? 'read' : 're-read'} ${this.label}: ${overview.file.rowCount} rows, ${overview.queryCount} queries, ${overview.loadMs} ms${split}`);
       } else {
         const compare = await this.deps.worker.call(
           'loadCompare', { session: this.key, a: this.sources[0]!, b: this.sources[1]!, settings: compareSettings(config) }, options);
