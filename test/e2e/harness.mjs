@@ -46,7 +46,8 @@ export async function waitUntil(check, { timeoutMs = 30_000, intervalMs = 200, w
 
 /** Opens the workbench and waits until the explorer shows the folder's files. */
 export async function openWorkbench(page, url) {
-  await page.goto(url, { waitUntil: 'domcontentloaded' });
+  // Without a URL the page is already loading (a reload): only wait for the workbench.
+  if (url) await page.goto(url, { waitUntil: 'domcontentloaded' });
   await page.locator('.monaco-workbench').waitFor({ state: 'visible', timeout: 90_000 });
   await page.locator('.explorer-folders-view .monaco-list-row').first().waitFor({ state: 'visible', timeout: 90_000 });
   // Give the extension host a moment to come up before commands are issued.

@@ -51,10 +51,13 @@ export function makeWorkspace() {
     live: join(e2e, 'live-run.csv'),
     hostile: join(e2e, 'hostile-ids.csv'),
     malformed: join(e2e, 'broken-scores.csv'),
+    unnamedColumns: join(e2e, 'export-unnamed-columns.csv'),
   };
   copyFileSync(files.runA, files.live);
   writeFileSync(files.hostile, hostileDump());
   writeFileSync(files.malformed, malformedDump());
+  // Headers no role name matches: the error must say how to name them.
+  writeFileSync(files.unnamedColumns, 'search_id,sku,stars,model_output\ncordless drill 18v,SKU-DRL-018,2,0.81\n');
   return files;
 }
 
