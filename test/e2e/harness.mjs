@@ -45,6 +45,19 @@ export async function waitUntil(check, { timeoutMs = 30_000, intervalMs = 200, w
 }
 
 /** Opens the workbench and waits until the explorer shows the folder's files. */
+/**
+ * "Developer: Reload Window" (which saves the open editors first, as a user's reload does), then
+ * waits for the workbench with the Explorer in front.
+ */
+export async function reloadWindow(page) {
+  const navigated = page.waitForEvent('framenavigated', { predicate: (f) => f === page.mainFrame(), timeout: 60_000 });
+  await runCommand(page, 'Developer: Reload Window');
+  await navigated;
+  await page.locator('.monaco-workbench').waitFor({ state: 'visible', timeout: 90_000 });
+  await runCommand(page, 'View: Show Explorer');
+  await openWorkbench(page);
+}
+
 export async function openWorkbench(page, url) {
   // Without a URL the page is already loading (a reload): only wait for the workbench.
   if (url) await page.goto(url, { waitUntil: 'domcontentloaded' });

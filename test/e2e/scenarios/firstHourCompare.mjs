@@ -3,7 +3,7 @@
 // tests, the status bar counts the compared queries, the panel survives a window reload, and
 // Gainline's own activity-bar container holds the dumps, the recent comparisons and Go to Query.
 import { basename } from 'node:path';
-import { closeAllEditors, findWebviewFrame, focusWorkbench, frameText, openWorkbench, waitForFrameText, waitUntil } from '../harness.mjs';
+import { closeAllEditors, findWebviewFrame, focusWorkbench, reloadWindow, runCommand, waitForFrameText, waitUntil } from '../harness.mjs';
 import { compareExpectations, evalExpectations } from '../oracle.mjs';
 import { compareFromPalette, integerText, openWithInspect, readHeadline, showTab } from '../views.mjs';
 import { headlineStatus, statusHoverText } from './firstHour.mjs';
@@ -75,8 +75,7 @@ export const compareSurvivesReload = {
     await closeAllEditors(ctx.page);
     const frame = await compareFromPalette(ctx.page, basename(ctx.files.runA), basename(ctx.files.runB));
     assert(await winsShown(frame) === expected.wins, 'wins differ from the CLI before the reload');
-    await ctx.page.reload({ waitUntil: 'domcontentloaded' });
-    await openWorkbench(ctx.page);
+    await reloadWindow(ctx.page);
     const restored = await findWebviewFrame(ctx.page, '#gl-compare', { timeoutMs: 90_000 });
     assert(await winsShown(restored) === expected.wins, 'after the reload the panel shows other wins');
   },
@@ -93,9 +92,10 @@ export const gainlineContainer = {
     await icon.click();
     const sidebar = ctx.page.locator('.sidebar');
     await sidebar.locator('.pane-header', { hasText: 'Ranked Lists' }).waitFor({ state: 'visible', timeout: 15_000 });
-    const dumps = sidebar.locator('.monaco-list-row', { hasText: 'model-a.csv' }).first();
-    await dumps.waitFor({ state: 'visible', timeout: 30_000 });
-    const recent = sidebar.locator('.monaco-list-row', { hasText: `${basename(ctx.files.runA)} ↔ ${basename(ctx.files.runB)}` }).first();
+    const pane = (title) => sidebar.locator('.pane').filter({ has: ctx.page.locator('.pane-header', { hasText: title }) });
+    const dumps = pane('Ranked Lists').locator('.monaco-list-row').filter({ hasText: /^\s*model-a\.csv/ }).first();
+    await dumps.waitFor({ state: 'visible', timeout: 60_000 }).catch(() => { throw new Error('the Ranked Lists view does not list model-a.csv'); });
+    const recent = pane('Recent Comparisons').locator('.monaco-list-row', { hasText: `${basename(ctx.files.runA)} ↔ ${basename(ctx.files.runB)}` }).first();
     await recent.waitFor({ state: 'visible', timeout: 15_000 }).catch(() => { throw new Error('Recent Comparisons does not list the comparison made earlier in the run'); });
     const rect = await sidebar.boundingBox();
     const last = await sidebar.locator('.monaco-list-row').last().boundingBox();
@@ -115,6 +115,6 @@ export const gainlineContainer = {
     await ctx.page.keyboard.press('Enter');
     await waitForFrameText(ctx.page, '#gl-detail-query', (t) => t === target, { timeoutMs: 30_000 });
     await focusWorkbench(ctx.page);
-    assert(await frameText(frame, '#gl-tab-detail').then(() => true), 'detail tab missing');
+    await runCommand(ctx.page, 'View: Show Explorer');
   },
 };

@@ -5,7 +5,7 @@
 // because the machine is shared and a tight bound would fail for reasons outside the code.
 import { readdirSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { closeAllEditors, findWebviewFrame, openWorkbench, sleep, waitUntil } from '../harness.mjs';
+import { closeAllEditors, reloadWindow, sleep, waitUntil } from '../harness.mjs';
 import { evalExpectations } from '../oracle.mjs';
 import { REPO_ROOT, RUN_DIR } from '../../support/code-server-install.mjs';
 import { writeLargeDump } from '../../support/demo-large.mjs';
@@ -102,8 +102,7 @@ export const firstScreenTimes = {
     const expected = evalExpectations(ctx.files.runB);
     // Cold: a reloaded window has a fresh extension host (no editor is restored to start it early).
     await closeAllEditors(ctx.page);
-    await ctx.page.reload({ waitUntil: 'domcontentloaded' });
-    await openWorkbench(ctx.page);
+    await reloadWindow(ctx.page);
     const cold = await timeOpen(ctx, ctx.rel(ctx.files.runB), 60_000);
     assert(cold.value === expected.meanText, `headline ${cold.value}, CLI says ${expected.meanText}`);
     const warm = await timeOpen(ctx, ctx.rel(ctx.files.runB), 60_000);
