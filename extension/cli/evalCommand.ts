@@ -3,13 +3,12 @@
  */
 import { stat } from 'node:fs/promises';
 import { resolve } from 'node:path';
-import { parseArgs } from 'node:util';
 import { InputError } from '../engine/errors';
 import { CoreMeter } from '../engine/evaluate/coreMeter';
 import { evaluateInParallel } from '../engine/evaluate/parallelEvaluate';
 import { readDump } from '../engine/readers/index';
 import { formatReport, REPORT_FORMATS, type ReportFormat } from '../engine/report/index';
-import { conventionHelp, conventionOptions, scoringSetupFrom } from './conventionArgs';
+import { conventionHelp, conventionOptions, parseCommandArgs, scoringSetupFrom } from './conventionArgs';
 import type { CliIO } from './io';
 import { progressLine } from './progress';
 
@@ -36,7 +35,7 @@ const evalOptions = {
 const PROGRESS_FROM_BYTES = 32 * 1024 * 1024;
 
 export async function runEval(argv: string[], io: CliIO): Promise<number> {
-  const { values, positionals } = parseArgs({ args: argv, options: evalOptions, allowPositionals: true, strict: true });
+  const { values, positionals } = parseCommandArgs(argv, evalOptions);
   if (values.help) {
     io.out(evalUsage);
     return 0;

@@ -73,6 +73,8 @@ export interface SensitivityView {
   readonly delta: MaybeNumber;
   /** This row's conventions are the current ones (the engine lists them once per dimension). */
   readonly current: boolean;
+  /** Why there is no mean (the convention cannot score this data); absent when there is one. */
+  readonly unavailable?: string;
 }
 
 /** The engine's counts unchanged (all plain integers). */

@@ -90,7 +90,9 @@ export function overviewModel(dump: RankedDump, evaluation: Evaluation, loadMs: 
       mean: toMaybe(row.mean),
       counted: row.counted,
       delta: toMaybe(row.mean - headlineMean),
-      current: JSON.stringify(row.conventions) === JSON.stringify(evaluation.conventions),
+      // The sensitivity pass reuses the configured gain object for its "as configured" rows.
+      current: row.conventions.gain === evaluation.conventions.gain && row.conventions.ties === evaluation.conventions.ties && row.conventions.noRelevant === evaluation.conventions.noRelevant,
+      ...(row.unavailable !== undefined ? { unavailable: row.unavailable } : {}),
     })),
     degenerate: { ...evaluation.degenerate },
     histogram: histogram(evaluation.perQuery.values[evaluation.headline]!),

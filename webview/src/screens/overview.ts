@@ -102,7 +102,12 @@ export class OverviewScreen {
         rows: [
           [{ text: 'current settings' }, { text: formatFixed(num(headline.mean)), title: exactValue(num(headline.mean)) }, '', formatCount(headline.counted)],
           // The engine repeats the current conventions once per dimension; the first row says it once.
-          ...model.sensitivity.filter((s) => !s.current).map((s) => [
+          ...model.sensitivity.filter((s) => !s.current).map((s) => s.unavailable !== undefined ? [
+            s.label,
+            { text: 'n/a', title: s.unavailable },
+            { text: '', title: s.unavailable },
+            formatCount(s.counted),
+          ] : [
             s.label,
             { text: formatFixed(num(s.mean)), title: exactValue(num(s.mean)) },
             { text: formatDelta(num(s.delta)), title: `${exactValue(num(s.delta))} (mean under "${s.label}" minus current mean)` },
