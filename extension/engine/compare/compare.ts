@@ -6,7 +6,9 @@
 import { evaluate, gradeRange } from '../evaluate/evaluate';
 import type { Evaluation } from '../evaluate/types';
 import { InputError } from '../errors';
-import type { Conventions, MetricSpec } from '../metrics/conventions';
+import type { Conventions } from '../metrics/conventions';
+import { anyNeeds, type MetricSpec } from '../metrics/registry';
+import { DEFAULT_COMPARE_SETTINGS } from '../../presentation/defaults';
 import type { RankedDump } from '../model/dump';
 import { groupByQuery, type QueryGroups } from '../model/groups';
 import { matchRuns, type RunMatch } from './match';
@@ -44,7 +46,7 @@ export interface CompareOptions {
   readonly onProgress?: (fraction: number) => void;
 }
 
-export const DEFAULT_COMPARE_OPTIONS: CompareOptions = { permutations: 10_000, bootstrap: 2_000, seed: 1, tieTolerance: 0 };
+export const DEFAULT_COMPARE_OPTIONS: CompareOptions = { ...DEFAULT_COMPARE_SETTINGS };
 
 /** Adjusted p-values of one test across the compared metrics. */
 export interface AdjustedP {
@@ -124,7 +126,8 @@ export async function compareRuns(
   const loop = { signal: o.signal, onProgress: progress.fraction };
   const pairedOf = perQuery.delta.map(pairedIndices);
 
-  // The interval: metrics paired on the same queries share one resampling pass.
+  // The interval: metrics paired on the same queries share one resampling pass; every pass draws from the
+  // same seeded stream, so a metric's interval does not depend on which metrics share its pass.
   const intervals: Interval[] = new Array(metrics.length);
   const sharing = groupIdentical(pairedOf);
   for (const group of sharing) {
@@ -139,7 +142,7 @@ export async function compareRuns(
     progress.stage(0.2 / metrics.length);
     const rows = pairedOf[m]!;
     const d = gather(perQuery.delta[m]!, rows);
-    const randomization = await signFlipTest(d, { ...loop, permutations: o.permutations, seed: o.seed + m });
+    const randomization = await signFlipTest(d, { ...loop, permutations: o.permutations, seed: o.seed, key: metrics[m]!.key });
     partial.push({
       key: metrics[m]!.key,
       paired: rows.length,
@@ -182,7 +185,7 @@ export async function compareRuns(
  * on different scales, so the higher of the two runs' highest grades is used for both.
  */
 function sharedConventions(a: RankedDump, b: RankedDump, metrics: readonly MetricSpec[], conventions: Conventions): Conventions {
-  if (conventions.maxGrade !== undefined || !metrics.some((m) => m.name === 'err')) return conventions;
+  if (conventions.maxGrade !== undefined || !anyNeeds(metrics, 'maxGrade')) return conventions;
   return { ...conventions, maxGrade: Math.max(gradeRange(a).highest, gradeRange(b).highest) };
 }
 
@@ -261,7 +264,8 @@ function methodNotes(o: CompareOptions, metricCount: number): string[] {
     `Wilcoxon: signed-rank test, two-sided; differences rounded to ${WILCOXON_ROUNDING} before ranking, zero differences dropped; ` +
       `exact for at most 50 pairs without zeros or ties, otherwise normal approximation with tie correction.`,
     `Randomization: paired sign-flip test of the mean Δ, two-sided, ${o.permutations} random sign patterns ` +
-      `(every pattern when 2^n is not more), seed ${o.seed}; p = (1 + as extreme) / (1 + patterns) when sampled.`,
+      `(every pattern when 2^n is not more), seed ${o.seed} with a random stream of its own per metric; ` +
+      `p = (1 + as extreme) / (1 + patterns) when sampled.`,
     `Wins / ties / losses: |Δ| ≤ ${o.tieTolerance} is a tie.`,
     ...(metricCount > 1 ? [`Holm and Benjamini–Hochberg adjustments are across the ${metricCount} metrics compared, per test.`] : []),
   ];
