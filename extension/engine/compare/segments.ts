@@ -111,7 +111,7 @@ export async function segmentSignificance(comparison: Comparison, dumpA: RankedD
   for (const [v, list] of byValue) {
     const d = Float64Array.from(list);
     const [interval] = await bootstrapMeanIntervals([d], { ...loop, resamples: o.bootstrap, seed: o.seed });
-    const randomization = await signFlipTest(d, { ...loop, permutations: o.permutations, seed: o.seed + m });
+    const randomization = await signFlipTest(d, { ...loop, permutations: o.permutations, seed: o.seed, key: comparison.metrics[m]!.key });
     out.push({ value: segment.values.get(v), paired: d.length, interval: interval!, tTest: pairedTTest(d), randomization });
   }
   return out;
