@@ -53,6 +53,9 @@ export async function runEval(argv: string[], io: CliIO): Promise<number> {
     throw new InputError('a whole number of queries, 0 or more', '--worst', undefined, values.worst);
   }
   const setup = scoringSetupFrom(values, (p) => resolve(io.cwd, p));
+  if (values['missing-queries'] !== undefined && setup.read.judgments === undefined) {
+    throw new InputError('--judgments FILE to go with it', '--missing-queries', undefined, values['missing-queries']);
+  }
   const path = resolve(io.cwd, source);
 
   const size = (await stat(path)).size;

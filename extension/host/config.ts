@@ -22,6 +22,8 @@ export interface GainlineConfig {
   readonly conventions: Conventions;
   /** Glob on the file path → column mapping for dumps whose headers are not recognised. */
   readonly columnsByPattern: Readonly<Record<string, ColumnMapping>>;
+  /** Judged queries a dump lacks, when its labels come from a judgments file: left out, or scored 0. */
+  readonly missingQueries: 'skip' | 'zero';
   /** Which files the Ranked Lists view lists. */
   readonly dumpGlob: string;
   readonly dumpExclude: string;
@@ -41,6 +43,7 @@ export const CONFIG_DEFAULTS = {
   gain: DEFAULT_CONVENTION_SETTINGS.gain,
   ties: DEFAULT_CONVENTION_SETTINGS.ties as TieConvention,
   noRelevant: DEFAULT_CONVENTION_SETTINGS.noRelevant as NoRelevantPolicy,
+  missingQueries: 'skip' as 'skip' | 'zero',
   relevantFrom: DEFAULT_CONVENTION_SETTINGS.relevantFrom,
   rbpPersistence: DEFAULT_CONVENTION_SETTINGS.rbpPersistence,
   dumpGlob: '**/*.{csv,tsv,jsonl,parquet,run,gz}',
@@ -56,7 +59,7 @@ const POLICIES: readonly NoRelevantPolicy[] = ['skip', 'zero', 'one'];
 
 /** Settings whose change means open views must be recomputed. */
 export const RECOMPUTE_KEYS = [
-  'metrics', 'cutoffs', 'gain', 'ties', 'noRelevant', 'relevantFrom', 'rbpPersistence', 'maxGrade', 'columnsByPattern',
+  'metrics', 'cutoffs', 'gain', 'ties', 'noRelevant', 'missingQueries', 'relevantFrom', 'rbpPersistence', 'maxGrade', 'columnsByPattern',
   'compare.permutations', 'compare.bootstrapResamples', 'compare.seed', 'compare.tieTolerance',
 ] as const;
 
@@ -107,6 +110,7 @@ export function readConfig(get: SettingGetter): GainlineConfig {
   return {
     metrics,
     conventions,
+    missingQueries: choice('missingQueries', ['skip', 'zero'] as const, CONFIG_DEFAULTS.missingQueries),
     columnsByPattern: readColumnsByPattern(get('columnsByPattern'), reject),
     dumpGlob: stringSetting(get('dumpGlob'), CONFIG_DEFAULTS.dumpGlob, 'dumpGlob', reject),
     dumpExclude: CONFIG_DEFAULTS.dumpExclude,

@@ -1,6 +1,6 @@
 /**
  * What to read for a dump the user opened: the file itself, its column mapping, and for formats that
- * keep grades or scores apart (run files, SVMlight), the side file. No `vscode` import.
+ * keep grades or scores apart (run files, sparse feature lines), the side file. No `vscode` import.
  */
 import { promises as fsp } from 'node:fs';
 import * as path from 'node:path';
@@ -30,7 +30,7 @@ export async function findJudgmentCandidates(runFile: string): Promise<string[]>
   return [];
 }
 
-/** `model.svm` → `model.svm.scores` when that file exists. */
+/** `model.sparse` → `model.sparse.scores` when that file exists. */
 export async function findScoresFile(file: string): Promise<string | undefined> {
   const candidate = `${file}.scores`;
   try {
@@ -53,14 +53,15 @@ export interface SourceChoice {
 export async function sourceFor(file: string, relative: string, config: GainlineConfig, remembered?: string): Promise<SourceChoice> {
   const columns = columnsFor(config, relative);
   const base: DumpSource = { path: file, ...(columns ? { columns } : {}) };
-  if (/\.svm(light)?$/i.test(file)) {
+  if (/\.(sparse|svm(light)?)$/i.test(file)) {
     const scores = await findScoresFile(file);
     return { source: scores ? { ...base, scores } : base };
   }
   if (!needsJudgments(file)) return { source: base };
-  if (remembered) return { source: { ...base, judgments: remembered } };
+  const judged = (judgments: string): DumpSource => ({ ...base, judgments, missingQueries: config.missingQueries });
+  if (remembered) return { source: judged(remembered) };
   const candidates = await findJudgmentCandidates(file);
-  if (candidates.length === 1) return { source: { ...base, judgments: candidates[0]! } };
+  if (candidates.length === 1) return { source: judged(candidates[0]!) };
   return { source: base, judgmentChoices: candidates };
 }
 

@@ -18,6 +18,8 @@ export interface DumpSource {
   readonly judgments?: string;
   /** Separate scores file, when labels and scores come apart. */
   readonly scores?: string;
+  /** With a judgments file: judged queries the dump lacks are left out (`skip`) or score 0 (`zero`). */
+  readonly missingQueries?: 'skip' | 'zero';
 }
 
 export interface EvaluationSettings {

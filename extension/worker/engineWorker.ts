@@ -78,6 +78,7 @@ async function read(source: DumpSource, ctx: HandlerContext, from: number, to: n
     ...(source.columns ? { columns: source.columns } : {}),
     ...(source.judgments ? { judgments: source.judgments } : {}),
     ...(source.scores ? { scores: source.scores } : {}),
+    ...(source.missingQueries ? { missingQueries: source.missingQueries } : {}),
   };
   return readDump(source.path, options);
 }
@@ -210,6 +211,9 @@ const handlers: RequestHandlers<WorkerRequests> = {
         idealPosition: p.idealPosition,
         line: l.dump.line[p.row] || null,
       })),
+      ...(detail.notRetrieved.length > 0
+        ? { notRetrieved: detail.notRetrieved.map((m) => ({ item: m.item, grade: m.label, idealPosition: m.idealPosition })) }
+        : {}),
     };
     return { json: JSON.stringify(json, null, 2) };
   },

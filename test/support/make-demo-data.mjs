@@ -84,11 +84,11 @@ function writeQueryList(file, queries) {
 }
 
 /**
- * SVMlight with the ranking features a learner would see (label qid:N index:value ... # item), and
- * a side file with one model score per line in the same order. SVMlight has no item ids (the
+ * Sparse feature lines with the ranking features a learner would see (label qid:N index:value ... # item), and
+ * a side file with one model score per line in the same order. The format has no item ids (the
  * comment is for people), so repeated rows could not be told apart; they are left out.
  */
-function writeSvmlight(file, scoresFile, rows) {
+function writeSparseFeatures(file, scoresFile, rows) {
   const qidOf = new Map();
   const lines = [];
   const scores = [];
@@ -131,7 +131,7 @@ function writeSmallDemo(demoDir) {
   writeRunFile(join(runs, 'model-b.run'), b, 'model-b');
   writeJudgments(join(judgments, 'grades.qrels'), rows);
   writeQueryList(join(judgments, 'queries.tsv'), queries);
-  writeSvmlight(join(runs, 'model-a.svm'), join(runs, 'model-a.svm.scores'), a);
+  writeSparseFeatures(join(runs, 'model-a.sparse'), join(runs, 'model-a.sparse.scores'), a);
   const duplicates = rows.filter((r) => r.duplicate).length;
   console.log(`demo: ${queries.length} queries, ${rows.length} rows per model (${duplicates} duplicate rows) → ${runs}, ${judgments}`);
 }

@@ -9,10 +9,12 @@ export function csvField(text: string): string {
 export function formatCsv(input: ReportInput): string {
   const { evaluation: ev, queryNames } = input;
   const columns = queryColumns(ev);
-  const lines: string[] = [['query', 'items', 'relevant', 'skipped', ...columns.map((c) => c.key)].map(csvField).join(',')];
+  // With a judgments file, each query's judged items the run never retrieved (they count in the ideal).
+  const notRetrieved = ev.judgments !== undefined ? ev.perQuery.unretrieved : undefined;
+  const lines: string[] = [['query', 'items', 'relevant', ...(notRetrieved ? ['notRetrieved'] : []), 'skipped', ...columns.map((c) => c.key)].map(csvField).join(',')];
   const { items, relevant, skipped } = ev.perQuery;
   for (let q = 0; q < ev.queryCount; q++) {
-    const cells = [csvField(queryNames.get(q)), String(items[q]), String(relevant[q]), skipped[q] ? 'true' : 'false'];
+    const cells = [csvField(queryNames.get(q)), String(items[q]), String(relevant[q]), ...(notRetrieved ? [String(notRetrieved[q])] : []), skipped[q] ? 'true' : 'false'];
     for (const column of columns) {
       const v = column.valueOf(q);
       cells.push(Number.isFinite(v) ? String(v) : '');

@@ -32,11 +32,13 @@ export function formatJson(input: ReportInput): string {
       ...(row.unavailable !== undefined ? { unavailable: row.unavailable } : {}),
     })),
     warnings: ev.warnings,
+    ...(ev.judgments ? { judgments: ev.judgments } : {}),
   };
   const headText = JSON.stringify(head, null, 1);
   if (ev.queryCount === 0) return `${headText.slice(0, -2)},\n "queries": []\n}\n`;
   const records =
-    ev.jsonRecords ?? [renderQueryRecords({ metrics: ev.metrics, names: packNames(input.queryNames) }, ev.perQuery, 0, ev.queryCount)];
+    ev.jsonRecords ?? [renderQueryRecords({ metrics: ev.metrics, names: packNames(input.queryNames), notRetrieved: ev.judgments !== undefined },
+      ev.perQuery, 0, ev.queryCount)];
   // headText ends with "\n}": the records go in before that closing brace.
   return `${headText.slice(0, -2)},\n "queries": [\n${records.join(',\n')}\n ]\n}\n`;
 }

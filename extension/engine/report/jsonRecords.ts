@@ -24,6 +24,8 @@ export type PackedNames = { readonly bytes: Uint8Array; readonly ends: Uint32Arr
 export interface QueryRecordsSpec {
   readonly metrics: readonly MetricSpec[];
   readonly names: PackedNames;
+  /** Add each query's count of judged items the run never retrieved (labels from a judgments file). */
+  readonly notRetrieved?: boolean;
 }
 
 const decoder = new TextDecoder('utf-8');
@@ -62,6 +64,7 @@ export function renderQueryRecords(spec: QueryRecordsSpec, perQuery: PerQueryCol
   const records: Record<string, unknown>[] = new Array(to - from);
   for (let q = from; q < to; q++) {
     const record: Record<string, unknown> = { query: nameOf(spec.names, q), items: items[q], relevant: relevant[q] };
+    if (spec.notRetrieved) record.notRetrieved = perQuery.unretrieved?.[q] ?? 0;
     for (const column of columns) {
       const v = column.values[q]!;
       // NaN and infinities are not JSON: null.
