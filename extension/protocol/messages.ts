@@ -44,6 +44,8 @@ export interface SensitivityView {
   readonly counted: number;
   /** mean − headline mean under the current conventions. */
   readonly delta: MaybeNumber;
+  /** This row's conventions are the current ones (the engine lists them once per dimension). */
+  readonly current: boolean;
   /** Why there is no mean (the convention cannot score this data); absent when there is one. */
   readonly unavailable?: string;
 }
@@ -196,6 +198,8 @@ export interface QueryDetailView {
 export interface SegmentRow {
   readonly value: string;
   readonly queries: number;
+  /** Of those, left out of the headline mean (nothing relevant, under the "skip" convention). */
+  readonly skipped: number;
   /** Means aligned with `OverviewModel.metrics`. */
   readonly means: readonly MaybeNumber[];
   /** Headline mean of this segment − overall headline mean. */
@@ -303,6 +307,8 @@ export type HostToView =
   | { readonly kind: 'state'; readonly state: ViewState }
   /** Ask the webview to show a query (from a command or the tree). */
   | { readonly kind: 'showQuery'; readonly query: string }
+  /** Bring the summary screen forward (Overview, or A vs B when comparing): the status bar's click. */
+  | { readonly kind: 'showSummary' }
   | ResponseEnvelope;
 
 export type ViewToHost =

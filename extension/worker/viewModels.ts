@@ -104,6 +104,8 @@ export function overviewModel(dump: RankedDump, evaluation: Evaluation, loadMs: 
       mean: toMaybe(row.mean),
       counted: row.counted,
       delta: toMaybe(row.mean - headlineMean),
+      // The sensitivity pass reuses the configured gain object for its "as configured" rows.
+      current: row.conventions.gain === evaluation.conventions.gain && row.conventions.ties === evaluation.conventions.ties && row.conventions.noRelevant === evaluation.conventions.noRelevant,
       ...(row.unavailable !== undefined ? { unavailable: row.unavailable } : {}),
     })),
     degenerate: { ...evaluation.degenerate },
@@ -201,11 +203,19 @@ export function segmentTable(dump: RankedDump, evaluation: Evaluation, table: Qu
     shareByValue.set(value, (shareByValue.get(value) ?? 0) + share);
   }
   const anyShare = shareByValue.size > 0;
+  const skippedByValue = new Map<string, number>();
+  const headlineValues = evaluation.perQuery.values[evaluation.headline]!;
+  for (let q = 0; q < ofQuery.length; q++) {
+    if (Number.isFinite(headlineValues[q]!)) continue;
+    const value = values(ofQuery[q]!);
+    skippedByValue.set(value, (skippedByValue.get(value) ?? 0) + 1);
+  }
   return {
     column,
     rows: segmentBreakdown(dump, evaluation, index).map((row) => ({
       value: row.value,
       queries: row.queries,
+      skipped: skippedByValue.get(row.value) ?? 0,
       means: row.means.map(toMaybe),
       headlineDelta: toMaybe(row.means[evaluation.headline]! - overall),
       lossShare: anyShare ? (shareByValue.get(row.value) ?? 0) : null,

@@ -135,7 +135,7 @@ export interface QueryDetail {
   readonly k: number;
   readonly positions: readonly PositionRow[];
   /**
-   * The listed items in ideal order (grade descending, file order within a grade). Rows refer to the dump.
+   * The listed items in ideal order (grade descending, the model's order within a grade). Rows refer to the dump.
    * Their places in the whole ideal ranking, which also holds `notRetrieved`, are the positions' `idealPosition`.
    */
   readonly idealOrder: readonly number[];

@@ -132,7 +132,7 @@ export function startFakeHost(options: FakeHostOptions): { send(message: HostToV
         ],
     headline: 0,
     conventions: { gain: 'exponential (2^g − 1)', ties: 'average', noRelevant: 'skip', relevantFrom: 1, maxGrade: null, rbpPersistence: 0.8, summary: 'gain exponential · ties average · no-relevant skip · relevant ≥ 1' },
-    sensitivity: [{ label: 'gain: linear', mean: 0.61, counted: 10, delta: -0.01 }],
+    sensitivity: [{ label: 'gain: exponential (as configured)', mean: 0.62, counted: 10, delta: 0, current: true }, { label: 'gain: linear', mean: 0.61, counted: 10, delta: -0.01, current: false }],
     degenerate: { singleItemQueries: 0, noRelevantQueries: queries.filter((q) => Number.isNaN(q.ndcgA)).length, duplicateRows: 2, missingScoreRows: 1, unjudgedRows: 0, tiedScoreRows: 4 },
     histogram: { lower: 0, upper: 1, counts },
     segmentColumns: ['locale'],
@@ -241,7 +241,7 @@ export function startFakeHost(options: FakeHostOptions): { send(message: HostToV
       column: p.column,
       rows: LOCALES.map((value) => {
         const qs = queries.filter((q) => q.locale === value);
-        return { value, queries: qs.length, means: [mean(qs.map((q) => q.ndcgA)), null], headlineDelta: 0.01, lossShare: 0.25 };
+        return { value, queries: qs.length, skipped: qs.filter((q) => Number.isNaN(q.ndcgA)).length, means: [mean(qs.map((q) => q.ndcgA)), null], headlineDelta: 0.01, lossShare: 0.25 };
       }),
     }),
     exportView: () => ({ done: true, target: '/tmp/export.md' }),
@@ -285,7 +285,7 @@ export function startFakeHost(options: FakeHostOptions): { send(message: HostToV
         positions,
       };
     },
-    compareSegments: (p) => ({ column: p.column, metric: 'ndcg@10', rows: LOCALES.map((value) => ({ value, queries: 10, meanA: 0.6, meanB: 0.61, delta: 0.01, wins: 5, ties: 2, losses: 3 })) }),
+    compareSegments: (p) => ({ column: p.column, metric: 'ndcg@10', rows: LOCALES.map((value) => ({ value, queries: 10, skipped: 0, meanA: 0.6, meanB: 0.61, delta: 0.01, wins: 5, ties: 2, losses: 3, intervalLow: -0.02, intervalHigh: 0.04, tTestP: 0.41, randomizationP: 0.43 })) }),
   };
 
   const toView = (message: HostToView) => window.dispatchEvent(new MessageEvent('message', { data: JSON.parse(JSON.stringify(message)) }));

@@ -184,9 +184,9 @@ export class DetailScreen {
     const ideal = renderOrderList(
       {
         id: 'gl-ideal-order',
-        label: 'Ideal order (by grade)',
+        label: 'Ideal order (by grade; the model’s order within a grade)',
         headers: [
-          { text: 'Pos', title: 'Position in the ideal order: grade descending, file order within a grade.', numeric: true },
+          { text: 'Pos', title: 'Position in the ideal order: grade descending, and within a grade the order the model gave, so items of equal grade never swap places.', numeric: true },
           { text: 'Item', title: 'Item id.' },
           { text: 'Label', title: 'Graded relevance.', numeric: true },
           { text: 'Gain', title: COLUMN_EXPLANATIONS['gain']!, numeric: true },
@@ -207,17 +207,18 @@ export class DetailScreen {
       },
       (item) => this.pick(item),
     );
-    const links: ConnectorLink[] = d.positions.map((p) => ({ position: p.position, idealPosition: p.idealPosition, gain: p.gain, item: p.item }));
+    // Each line is judged against the gain that belongs at the item's predicted position.
+    const links: ConnectorLink[] = d.positions.map((p) => ({ position: p.position, idealPosition: p.idealPosition, gain: p.gain, slotGain: d.ideal[p.position - 1]?.gain ?? 0, item: p.item }));
     const svg = renderConnector(links, rowsShown, 'Lines joining each item’s predicted position to its ideal position');
     const orders = el('div', { className: 'gl-orders' }, predicted, el('div', {}, svg), ideal);
 
     this.ordersBox.append(
       el('h2', { text: 'Predicted order against the ideal order' }),
       el('div', { className: 'gl-legend' },
-        el('span', {}, el('span', { className: 'gl-swatch up' }), 'belongs higher (ranked too low)'),
-        el('span', {}, el('span', { className: 'gl-swatch down' }), 'belongs lower'),
-        el('span', {}, el('span', { className: 'gl-swatch same' }), 'in place'),
-        el('span', { text: `Stronger lines: larger gain. Dashed: other end beyond the rows shown. Dashed row border: the cut-off @${d.k}.` })),
+        el('span', {}, el('span', { className: 'gl-swatch up' }), 'belongs higher: more gain than its place calls for'),
+        el('span', {}, el('span', { className: 'gl-swatch down' }), 'belongs lower: less gain than its place calls for'),
+        el('span', {}, el('span', { className: 'gl-swatch same' }), 'in place: the gain its place calls for'),
+        el('span', { text: `Stronger lines: larger gain difference. Within a grade the ideal order keeps the model’s order. Dashed: other end beyond the rows shown. Dashed row border: the cut-off @${d.k}.` })),
       orders,
     );
     if (rowsShown < d.positions.length) {

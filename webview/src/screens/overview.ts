@@ -101,7 +101,8 @@ export class OverviewScreen {
         ],
         rows: [
           [{ text: 'current settings' }, { text: formatFixed(num(headline.mean)), title: exactValue(num(headline.mean)) }, '', formatCount(headline.counted)],
-          ...model.sensitivity.map((s) => s.unavailable !== undefined ? [
+          // The engine repeats the current conventions once per dimension; the first row says it once.
+          ...model.sensitivity.filter((s) => !s.current).map((s) => s.unavailable !== undefined ? [
             s.label,
             { text: 'n/a', title: s.unavailable },
             { text: '', title: s.unavailable },
