@@ -12,11 +12,14 @@ import {
 } from '../engine/metrics/conventions';
 import type { DumpFormat } from '../engine/model/dump';
 import { parseColumnRoles, type ReadOptions } from '../engine/readers/index';
+import type { SideTableFiles } from '../engine/tables/join';
 import { parseGain, parseMetricList, parseNoRelevant, parseTies } from '../engine/metrics/parse';
 
 /** node:util parseArgs option definitions; spread them into a command's own table. */
 export const conventionOptions = {
   judgments: { type: 'string' },
+  queries: { type: 'string' },
+  items: { type: 'string' },
   scores: { type: 'string' },
   columns: { type: 'string' },
   'input-format': { type: 'string' },
@@ -39,6 +42,8 @@ export const conventionHelp = `Input:
   --columns ROLES       which column plays which role, e.g. query=sid,item=pid,label=grade,score=p
   --judgments FILE      graded judgments (qrels: query 0 item grade) for a run file
   --scores FILE         one score per line, for an SVMlight file
+  --queries FILE        query id -> text, segments (other columns) and an optional weight column
+  --items FILE          item id -> title and attributes, shown in --query detail and JSON
   --threads N           threads for reading large text files and scoring large dumps (default: from the size)
 Metrics and conventions:
   --metrics LIST        comma-separated; default ${DEFAULT_METRICS}
@@ -59,6 +64,8 @@ export interface ScoringSetup {
   readonly read: DumpReadRequest;
   readonly metrics: MetricSpec[];
   readonly conventions: Conventions;
+  /** Queries and items tables to join to each dump read. */
+  readonly tables: SideTableFiles;
 }
 
 /** Validates the shared options; any bad value is an InputError naming the option. */
@@ -68,6 +75,10 @@ export function scoringSetupFrom(values: ConventionValues, resolvePath: (p: stri
   if (values.columns !== undefined) read.columns = withOptionName('--columns', () => parseColumnRoles(values.columns!));
   if (values.judgments !== undefined) read.judgments = resolvePath(values.judgments);
   if (values.scores !== undefined) read.scores = resolvePath(values.scores);
+  const tables: SideTableFiles = {
+    ...(values.queries !== undefined ? { queries: resolvePath(values.queries) } : {}),
+    ...(values.items !== undefined ? { items: resolvePath(values.items) } : {}),
+  };
   if (values.threads !== undefined) read.threads = integerIn('--threads', values.threads, 1, 64);
 
   const metrics = withOptionName('--metrics', () => parseMetricList(values.metrics ?? DEFAULT_METRICS));
@@ -85,7 +96,7 @@ export function scoringSetupFrom(values: ConventionValues, resolvePath: (p: stri
       values['rbp-persistence'] === undefined ? DEFAULT_CONVENTIONS.rbpPersistence : persistence(values['rbp-persistence']),
     ...(values['max-grade'] !== undefined ? { maxGrade: positiveNumber('--max-grade', values['max-grade']) } : {}),
   };
-  return { read, metrics, conventions };
+  return { read, metrics, conventions, tables };
 }
 
 function oneOf<T extends string>(option: string, text: string, allowed: readonly T[]): T {

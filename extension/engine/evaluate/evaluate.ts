@@ -221,10 +221,11 @@ export class RangeScorer {
 export function finishEvaluation(setup: EvaluationSetup, dump: RankedDump, perQuery: PerQueryColumns, tally: RangeTally,
   sensitivity: SensitivityPass | undefined): Evaluation {
   const { metrics, conventions, queryCount } = setup;
-  const summary: MetricSummary[] = metrics.map((m, i) => summarise(m.key, perQuery.values[i]!));
+  const weights = dump.joined?.queryWeight;
+  const summary: MetricSummary[] = metrics.map((m, i) => summarise(m.key, perQuery.values[i]!, weights));
   if (perQuery.rbpResidual) {
     const first = metrics.find((m) => m.name === 'rbp')!;
-    summary.push(summarise(`${first.key}_residual`, perQuery.rbpResidual));
+    summary.push(summarise(`${first.key}_residual`, perQuery.rbpResidual, weights));
   }
   const warnings = describeDegenerate({
     dump,
@@ -237,10 +238,12 @@ export function finishEvaluation(setup: EvaluationSetup, dump: RankedDump, perQu
     gmax: setup.gmax,
     headlineK: headlineCutoff(metrics),
   });
+  if (weights !== undefined) warnings.push(...weightNotes(dump, weights, sensitivity !== undefined));
   return {
     conventions,
     metrics,
     headline: 0,
+    ...(weights !== undefined ? { weighting: { source: dump.joined?.weightSource ?? 'query weights' } } : {}),
     queryCount,
     perQuery,
     summary,
@@ -250,8 +253,12 @@ export function finishEvaluation(setup: EvaluationSetup, dump: RankedDump, perQu
   };
 }
 
-/** Mean over the queries whose value is not NaN. */
-export function summarise(key: string, column: Float64Array): MetricSummary {
+/**
+ * Mean over the queries whose value is not NaN; with `weights` (by query id), the weighted mean
+ * Σ w·x / Σ w over the queries whose value and weight are both known (numpy.average's definition).
+ */
+export function summarise(key: string, column: Float64Array, weights?: Float64Array): MetricSummary {
+  if (weights !== undefined) return weightedSummary(key, column, weights);
   let sum = 0;
   let counted = 0;
   for (let i = 0; i < column.length; i++) {
@@ -262,4 +269,35 @@ export function summarise(key: string, column: Float64Array): MetricSummary {
     }
   }
   return { key, mean: counted > 0 ? sum / counted : NaN, counted };
+}
+
+function weightedSummary(key: string, column: Float64Array, weights: Float64Array): MetricSummary {
+  let sum = 0;
+  let total = 0;
+  let counted = 0;
+  for (let q = 0; q < column.length; q++) {
+    const v = column[q]!;
+    const w = weights[q]!;
+    if (v === v && w === w) {
+      sum += w * v;
+      total += w;
+      counted++;
+    }
+  }
+  return { key, mean: total > 0 ? sum / total : NaN, counted };
+}
+
+/** What weighting did, in plain sentences (queries without a weight are out of every weighted mean). */
+function weightNotes(dump: RankedDump, weights: Float64Array, sensitivity: boolean): string[] {
+  let unknown = 0;
+  const examples: string[] = [];
+  for (let q = 0; q < weights.length; q++) {
+    if (weights[q] === weights[q]) continue;
+    if (examples.length < 3) examples.push(`'${dump.queries.get(q)}'`);
+    unknown++;
+  }
+  const out = [`Means are weighted by query (Σ w·x / Σ w), weights from ${dump.joined?.weightSource ?? 'the data'}.`];
+  if (unknown > 0) out.push(`${unknown.toLocaleString('en-US')} ${unknown === 1 ? 'query has' : 'queries have'} no weight (e.g. ${examples.join(', ')}); they are left out of the weighted means.`);
+  if (sensitivity) out.push('The rows under other conventions are unweighted means.');
+  return out;
 }
