@@ -6,6 +6,7 @@ import { stat } from 'node:fs/promises';
 import { resolve } from 'node:path';
 import { parseArgs } from 'node:util';
 import { compareRuns, DEFAULT_COMPARE_OPTIONS } from '../engine/compare/compare';
+import { withSideTables } from '../engine/tables/join';
 import { InputError } from '../engine/errors';
 import { COMPARE_FORMATS, formatComparison, type CompareFormat } from '../engine/report/compareReport';
 import { conventionHelp, conventionOptions, scoringSetupFrom } from './conventionArgs';
@@ -77,7 +78,8 @@ export async function runCompare(argv: string[], io: CliIO): Promise<number> {
   const large = (await stat(pathA)).size + sizeB >= PROGRESS_FROM_BYTES;
   const progress = io.isTTY && large ? progressLine(io, `${sourceA} vs ${sourceB}`) : undefined;
   try {
-    const [a, b] = await readRuns(pathA, pathB, setup.read, { sizeB, onProgress: progress?.reading });
+    const [readA, readB] = await readRuns(pathA, pathB, setup.read, { sizeB, onProgress: progress?.reading });
+    const [a, b] = [await withSideTables(readA, setup.tables), await withSideTables(readB, setup.tables)];
     const comparison = await compareRuns(a, b, setup.metrics, setup.conventions, {
       permutations,
       bootstrap,

@@ -9,7 +9,7 @@ import { compressors } from 'hyparquet-compressors';
 import { InputError } from '../errors';
 import { DelimitedParser } from '../readers/delimited';
 import { detectFormat } from '../readers/detect';
-import { LineSink, pumpText, throwIfCancelled } from '../readers/source';
+import { LineSink, pumpText, statStamp, throwIfCancelled } from '../readers/source';
 
 export interface TextTable {
   readonly file: string;
@@ -35,6 +35,7 @@ export interface ReadTableOptions {
 export async function readTextTable(path: string, options: ReadTableOptions = {}): Promise<TextTable> {
   throwIfCancelled(options.signal);
   const purpose = options.purpose ?? 'a table';
+  if ((await statStamp(path)).size === 0) throw new InputError(`${purpose} with a header row naming the columns (the file is empty)`, path);
   const sniffed = await detectFormat(path).catch((e: unknown) => {
     if (e instanceof InputError) throw new InputError(`${purpose} with a header row (CSV, TSV, JSON Lines or Parquet)`, path, e.line, e.found);
     throw e;
