@@ -8,7 +8,7 @@ import * as path from 'node:path';
 import * as vscode from 'vscode';
 import { evaluationSettings, type GainlineConfig } from './config';
 import { formatHeadline } from './exportTable';
-import { sourceFor } from './sources';
+import { isSideTableName, sourceFor } from './sources';
 import { LOAD_TIMEOUT_MS, type EngineWorker } from './workerHost';
 import { VIEW_TYPE } from './panels';
 
@@ -73,7 +73,10 @@ export class RankedListsTree implements vscode.TreeDataProvider<DumpItem>, vscod
   /** Workspace dumps in the order shown (also used by the compare quick pick). */
   async listFiles(): Promise<vscode.Uri[]> {
     const config = this.getConfig();
-    const found = await vscode.workspace.findFiles(config.dumpGlob, config.dumpExclude, MAX_FILES);
+    // Queries and items tables are read with the dumps, not scored on their own.
+    const named = new Set(Object.values(config.sideFilesByPattern).flatMap((f) => Object.values(f) as string[]).map((p) => p.replace(/\\/g, '/')));
+    const found = (await vscode.workspace.findFiles(config.dumpGlob, config.dumpExclude, MAX_FILES))
+      .filter((uri) => !isSideTableName(uri.fsPath) && !named.has(vscode.workspace.asRelativePath(uri, false).replace(/\\/g, '/')));
     return found.sort((a, b) => vscode.workspace.asRelativePath(a).localeCompare(vscode.workspace.asRelativePath(b)));
   }
 

@@ -18,6 +18,12 @@ export interface DumpSource {
   readonly judgments?: string;
   /** Separate scores file, when labels and scores come apart. */
   readonly scores?: string;
+  /** Queries table (query id → text, segments, weight). */
+  readonly queries?: string;
+  /** Items table (item id → title, attributes). */
+  readonly items?: string;
+  /** The queries / items tables were found by the naming rule (used only when they share ids with the dump). */
+  readonly tablesFound?: boolean;
 }
 
 export interface EvaluationSettings {

@@ -19,6 +19,7 @@ import { parseMetricList } from '../engine/metrics/parse';
 import type { RankedDump } from '../engine/model/dump';
 import { groupByQuery, type QueryGroups } from '../engine/model/groups';
 import { readDump, type ReadOptions } from '../engine/readers/index';
+import { withSideTables } from '../engine/tables/join';
 import { conventionsAsJson } from '../engine/report/reportInput';
 import type { Comparison } from '../engine/compare/compare';
 import { RequestServer, type HandlerContext, type RequestHandlers } from '../protocol/request';
@@ -79,7 +80,12 @@ async function read(source: DumpSource, ctx: HandlerContext, from: number, to: n
     ...(source.judgments ? { judgments: source.judgments } : {}),
     ...(source.scores ? { scores: source.scores } : {}),
   };
-  return readDump(source.path, options);
+  const dump = await readDump(source.path, options);
+  return withSideTables(dump, {
+    ...(source.queries ? { queries: source.queries } : {}),
+    ...(source.items ? { items: source.items } : {}),
+    ...(source.tablesFound ? { found: true } : {}),
+  }, ctx.signal);
 }
 
 function loaded(dump: RankedDump, evaluation: Evaluation, groups: QueryGroups): Loaded {

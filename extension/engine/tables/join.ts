@@ -18,15 +18,36 @@ export interface SideTableFiles {
   readonly queries?: string;
   /** Item id → title and attributes. */
   readonly items?: string;
+  /**
+   * The tables were found by the naming rule rather than named by the user: a table that shares no id
+   * with the dump is then left out (with a note) instead of emptying every query's segments.
+   */
+  readonly found?: boolean;
 }
 
 const EXAMPLES = 3;
 
 /** Reads the side tables named in `files` and joins them (and any weight column of the dump) to the dump. */
 export async function withSideTables(dump: RankedDump, files: SideTableFiles, signal?: AbortSignal): Promise<RankedDump> {
-  const queries = files.queries === undefined ? undefined : await readTextTable(files.queries, { signal, purpose: 'a queries table' });
-  const items = files.items === undefined ? undefined : await readTextTable(files.items, { signal, purpose: 'an items table' });
-  return joinTables(dump, queries, items);
+  let queries = files.queries === undefined ? undefined : await readTextTable(files.queries, { signal, purpose: 'a queries table' });
+  let items = files.items === undefined ? undefined : await readTextTable(files.items, { signal, purpose: 'an items table' });
+  const skipped: string[] = [];
+  if (files.found && queries && !sharesAnId(queries, 'queries', dump.queries)) {
+    skipped.push(`${queries.file} was found beside the dump but names none of its queries; it is not used.`);
+    queries = undefined;
+  }
+  if (files.found && items && !sharesAnId(items, 'items', dump.items)) {
+    skipped.push(`${items.file} was found beside the dump but names none of its items; it is not used.`);
+    items = undefined;
+  }
+  const joined = joinTables(dump, queries, items);
+  if (skipped.length === 0) return joined;
+  return { ...joined, joined: { ...(joined.joined ?? {}), notes: [...skipped, ...(joined.joined?.notes ?? [])] } };
+}
+
+function sharesAnId(table: TextTable, kind: SideKind, pool: StringPool): boolean {
+  const keys = table.cells[resolveSideColumns(table, kind).key]!;
+  return keys.some((id) => pool.find(id) >= 0);
 }
 
 /** Pure join of tables already read; returns the dump unchanged when there is nothing to join. */
