@@ -180,6 +180,8 @@ export interface PositionView {
   readonly tieGroupSize: number;
   /** True when the position is within the headline cut-off. */
   readonly withinCutoff: boolean;
+  /** Title from the items table, when one is joined ('' for an item it does not list). */
+  readonly title?: string;
 }
 
 export interface IdealView {
@@ -190,6 +192,8 @@ export interface IdealView {
   readonly gain: number;
   /** Where the model put it. */
   readonly predictedPosition: number;
+  /** Title from the items table, when one is joined. */
+  readonly title?: string;
 }
 
 /** The engine's InvertedPair plus item names and grades, so the webview needs no dump to label it. */
@@ -222,6 +226,8 @@ export interface QueryDetailView {
   readonly values: readonly MaybeNumber[];
   /** Segment values of this query (first row's value per segment column). */
   readonly segments: Readonly<Record<string, string>>;
+  /** Query text from the queries table, when one is joined. */
+  readonly text?: string;
 }
 
 export interface SegmentRow {

@@ -108,11 +108,13 @@ export class QueryTable {
       wanted = this.source.dump.segments.find((c) => c.name === segment.column)!.values.find(segment.value);
       if (wanted < 0) return new Uint32Array(0);
     }
+    const text = dump.joined?.queryText;
     const keep = new Uint32Array(evaluation.queryCount);
     let n = 0;
     for (let q = 0; q < evaluation.queryCount; q++) {
       if (segmentIds && segmentIds[q] !== wanted) continue;
-      if (needle && !dump.queries.get(q).toLowerCase().includes(needle)) continue;
+      // The filter matches the query id and, with a queries table, its text.
+      if (needle && !dump.queries.get(q).toLowerCase().includes(needle) && !(text?.[q]?.toLowerCase().includes(needle) ?? false)) continue;
       keep[n++] = q;
     }
     return keep.slice(0, n);

@@ -104,7 +104,11 @@ export function detailView(dump: RankedDump, evaluation: Evaluation, detail: Que
   const byRow = new Map(detail.positions.map((p) => [p.row, p]));
   const segments: Record<string, string> = {};
   for (const s of dump.segments) segments[s.name] = table.segment(s.name).values(table.segment(s.name).ofQuery[queryId]!);
+  const titles = dump.joined?.itemTitle;
+  const titleOf = (row: number) => (titles ? { title: titles[dump.item[row]!] ?? '' } : {});
+  const text = dump.joined?.queryText?.[queryId];
   return {
+    ...(text !== undefined ? { text } : {}),
     query: detail.query,
     k: detail.k,
     headlineKey: evaluation.metrics[evaluation.headline]!.key,
@@ -123,6 +127,7 @@ export function detailView(dump: RankedDump, evaluation: Evaluation, detail: Que
       idealPosition: p.idealPosition,
       tieGroupSize: p.tieGroupSize,
       withinCutoff: p.position <= detail.k,
+      ...titleOf(p.row),
     })),
     ideal: detail.idealOrder.map((row, i) => {
       const p = byRow.get(row);
@@ -133,6 +138,7 @@ export function detailView(dump: RankedDump, evaluation: Evaluation, detail: Que
         label: label(dump.label[row]!),
         gain: p?.gain ?? 0,
         predictedPosition: p?.position ?? 0,
+        ...titleOf(row),
       };
     }),
     dcg: detail.dcg,
