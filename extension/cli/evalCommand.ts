@@ -12,7 +12,7 @@ import { formatReport, REPORT_FORMATS, type ReportFormat } from '../engine/repor
 import { queryFacts } from '../engine/tables/queryFacts';
 import { withSideTables } from '../engine/tables/join';
 import { conventionHelp, conventionOptions, scoringSetupFrom, type ScoringSetup } from './conventionArgs';
-import { detailJson, detailOf, detailText, findQuery, segmentReport, worstOrder } from './evalViews';
+import { detailJson, detailOf, detailText, diagnosticsReport, findQuery, segmentReport, worstOrder } from './evalViews';
 import { renameInputError, spoolStdin, STDIN_NAME } from './stdin';
 import type { CliIO } from './io';
 import { progressLine } from './progress';
@@ -31,6 +31,8 @@ Output:
   --query Q             one query in detail instead of the report: values, predicted against ideal
                         order with each position's contribution, inverted pairs (table or json)
   --segment COL         the means per value of one segment column instead of the report (table or json)
+  --diagnostics         instead of the report: the score distribution per grade (do the grades separate?)
+                        and each position's share of the ideal DCG, model against ideal (table or json)
   --timings             print how long reading, scoring and writing the report took (standard error)
 ${conventionHelp}`;
 
@@ -41,6 +43,7 @@ const evalOptions = {
   sort: { type: 'string' },
   query: { type: 'string' },
   segment: { type: 'string' },
+  diagnostics: { type: 'boolean' },
   timings: { type: 'boolean' },
   help: { type: 'boolean', short: 'h' },
 } as const;
@@ -67,10 +70,10 @@ export async function runEval(argv: string[], io: CliIO): Promise<number> {
     throw new InputError('a whole number of queries, 0 or more', '--worst', undefined, values.worst);
   }
   const setup = scoringSetupFrom(values, (p) => resolve(io.cwd, p));
-  if (values.query !== undefined && values.segment !== undefined) throw new UsageError('--query and --segment each replace the report; give one of them');
-  const view = values.query !== undefined || values.segment !== undefined;
-  if (view && format !== 'table' && format !== 'json') {
-    throw new InputError('table or json with --query and --segment', '--format', undefined, format);
+  const views = [values.query !== undefined && '--query', values.segment !== undefined && '--segment', values.diagnostics && '--diagnostics'].filter(Boolean);
+  if (views.length > 1) throw new UsageError(`${views.join(' and ')} each replace the report; give one of them`);
+  if (views.length > 0 && format !== 'table' && format !== 'json') {
+    throw new InputError(`table or json with ${views[0]}`, '--format', undefined, format);
   }
   const spooled = source === STDIN_NAME ? await spoolStdin(io) : undefined;
   try {
@@ -83,7 +86,8 @@ export async function runEval(argv: string[], io: CliIO): Promise<number> {
 }
 
 async function evalFile(path: string, source: string, format: ReportFormat, worst: number, setup: ScoringSetup,
-  values: { sort?: string | undefined; query?: string | undefined; segment?: string | undefined; timings?: boolean | undefined }, io: CliIO): Promise<number> {
+  values: { sort?: string | undefined; query?: string | undefined; segment?: string | undefined; diagnostics?: boolean | undefined; timings?: boolean | undefined },
+  io: CliIO): Promise<number> {
   const size = (await stat(path)).size;
   const progress = io.isTTY && size >= PROGRESS_FROM_BYTES ? progressLine(io, source) : undefined;
   const started = performance.now();
@@ -95,6 +99,10 @@ async function evalFile(path: string, source: string, format: ReportFormat, wors
     if (values.query !== undefined) {
       const detail = detailOf(dump, findQuery(dump, values.query), setup.metrics, setup.conventions);
       io.out(format === 'json' ? detailJson(dump, detail, source) : detailText(dump, detail, source));
+      return 0;
+    }
+    if (values.diagnostics) {
+      io.out(diagnosticsReport(dump, setup.metrics, setup.conventions, format === 'json' ? 'json' : 'text', source));
       return 0;
     }
     const facts = queryFacts(dump);

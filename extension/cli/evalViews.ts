@@ -7,6 +7,7 @@
 import { InputError } from '../engine/errors';
 import { queryDetail } from '../engine/evaluate/detail';
 import { lossShares } from '../engine/evaluate/lossShare';
+import { dcgByPosition, scoresByGrade } from '../engine/evaluate/diagnostics';
 import { headlineCutoff } from '../engine/evaluate/scorer';
 import { segmentBreakdown } from '../engine/evaluate/segments';
 import type { Evaluation, QueryDetail } from '../engine/evaluate/types';
@@ -14,6 +15,7 @@ import type { Conventions, MetricSpec } from '../engine/metrics/conventions';
 import type { RankedDump } from '../engine/model/dump';
 import { describeConventions, formatValue, jsonNumber, type WorstOrder } from '../engine/report/reportInput';
 import { alignedTable } from '../engine/report/textTable';
+import { dcgByPositionJson, dcgByPositionText, scoresByGradeJson, scoresByGradeText } from './diagnosticsView';
 
 /** Finds a query by id, or by its text from the queries table when no id matches. */
 export function findQuery(dump: RankedDump, wanted: string): number {
@@ -31,6 +33,7 @@ export function detailOf(dump: RankedDump, query: number, metrics: readonly Metr
 
 /** The detail with item titles and attributes from the items table, as one JSON document. */
 export function detailJson(dump: RankedDump, detail: QueryDetail, source: string): string {
+  const scores = scoresByGrade(dump, detail.positions.map((p) => p.row));
   const titleOf = itemFacts(dump);
   const values: Record<string, number | null> = {};
   for (const [key, v] of Object.entries(detail.values)) values[key] = jsonNumber(v);
@@ -65,6 +68,7 @@ export function detailJson(dump: RankedDump, detail: QueryDetail, source: string
       ndcgRecovered: pair.ndcgRecovered,
     })),
     invertedPairsTotal: detail.invertedPairsTotal,
+    scoresByGrade: scoresByGradeJson(scores),
   };
   return JSON.stringify(doc, null, 1) + '\n';
 }
@@ -92,6 +96,7 @@ export function detailText(dump: RankedDump, detail: QueryDetail, source: string
     rows,
     ['right', 'left', ...(titles ? ['left' as const] : []), 'right', 'right', 'right', 'right', 'right', 'right', 'right', 'right', 'left', 'right'],
   ));
+  sections.push(scoresByGradeText(scoresByGrade(dump, detail.positions.map((p) => p.row), 10)));
   const pairs = detail.invertedPairs.slice(0, 20);
   sections.push(pairs.length === 0 ? 'Inverted pairs\n  (none)' : `Inverted pairs (${pairs.length} of ${detail.invertedPairsTotal}, most NDCG recovered by a swap first)\n` + alignedTable(
     ['above #', 'above item', 'below #', 'below item', 'NDCG recovered'],
@@ -167,4 +172,15 @@ export function worstOrder(evaluation: Evaluation, key: string): WorstOrder {
   for (let q = 0; q < evaluation.queryCount; q++) if (!pq.skipped[q] && Number.isFinite(column[q]!)) ids.push(q);
   ids.sort((a, b) => (ascending ? column[a]! - column[b]! : column[b]! - column[a]!) || a - b);
   return { ids, label, ...(shown ? { column: shown } : {}) };
+}
+
+/** The whole dump's score diagnostics (--diagnostics): scores per grade and DCG by position against the ideal. */
+export function diagnosticsReport(dump: RankedDump, metrics: readonly MetricSpec[], conventions: Conventions, format: 'text' | 'json', source: string): string {
+  const scores = scoresByGrade(dump);
+  const positions = dcgByPosition(dump, metrics, conventions, { ...(dump.joined?.queryWeight ? { weights: dump.joined.queryWeight } : {}) });
+  if (format === 'json') {
+    return JSON.stringify({ source, scoresByGrade: scoresByGradeJson(scores), dcgByPosition: dcgByPositionJson(positions) }, null, 1) + '\n';
+  }
+  const weighted = dump.joined?.queryWeight ? `\n(weighted means: ${dump.joined.weightSource ?? 'query weights'})` : '';
+  return `${source}\n\n${scoresByGradeText(scores)}\n\n${dcgByPositionText(positions)}${weighted}\n`;
 }

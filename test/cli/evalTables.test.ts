@@ -131,3 +131,21 @@ describe('gainline eval - (standard input)', () => {
     expect(r.stderr).toBe('-:2: expected a finite number in column \'grade\' (found "two")\n');
   });
 });
+
+describe('gainline eval --diagnostics', () => {
+  it('gives scores per grade and DCG by position whose model column sums to the mean NDCG@10', () => {
+    const doc = JSON.parse(ok(['eval', 'demo/runs/model-b.csv', '--diagnostics', '--format', 'json'], REPO));
+    const summary = JSON.parse(ok(['eval', 'demo/runs/model-b.csv', '--format', 'json', '--metrics', 'ndcg@10'], REPO)).summary;
+    const positions = doc.dcgByPosition.positions as { predicted: number; ideal: number }[];
+    expect(positions).toHaveLength(11);
+    expect(positions.reduce((s, p) => s + p.predicted, 0)).toBeCloseTo(summary['ndcg@10'], 12);
+    expect(positions.reduce((s, p) => s + p.ideal, 0)).toBeCloseTo(1, 12);
+    const grades = doc.scoresByGrade.grades as { grade: number; count: number; median: number }[];
+    expect(grades.map((g) => g.grade)).toEqual([0, 1, 2, 3, 4]);
+    // The demo's model B separates the grades on average: medians rise with the grade.
+    for (let i = 1; i < grades.length; i++) expect(grades[i]!.median).toBeGreaterThan(grades[i - 1]!.median);
+    const r = runCli(['eval', 'demo/runs/model-b.csv', '--diagnostics', '--segment', 'locale'], REPO);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/--segment and --diagnostics each replace the report/);
+  });
+});
