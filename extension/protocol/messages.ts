@@ -99,6 +99,40 @@ export interface OverviewModel {
   readonly warnings: readonly string[];
   /** Wall-clock time of read + evaluate. */
   readonly loadMs: number;
+  /** Score distribution per grade and DCG by position against the ideal (evaluate/diagnostics.ts). */
+  readonly diagnostics?: ScoreDiagnosticsView;
+}
+
+/** The score distribution of one grade (null grade = unjudged rows); NaN statistics become null. */
+export interface GradeScoresView {
+  readonly grade: number | null;
+  readonly count: number;
+  readonly missing: number;
+  readonly q1: MaybeNumber;
+  readonly median: MaybeNumber;
+  readonly q3: MaybeNumber;
+  readonly mean: MaybeNumber;
+  readonly bins: readonly number[];
+}
+
+export interface ScoresByGradeView {
+  /** Shared histogram edges (bins + 1). */
+  readonly edges: readonly number[];
+  readonly grades: readonly GradeScoresView[];
+}
+
+/** Mean share of each query's ideal DCG@k earned per position, model against ideal; the last entry sums later positions. */
+export interface DcgByPositionView {
+  readonly k: number | null;
+  readonly depth: number;
+  readonly queries: number;
+  readonly predicted: readonly MaybeNumber[];
+  readonly ideal: readonly MaybeNumber[];
+}
+
+export interface ScoreDiagnosticsView {
+  readonly scoresByGrade: ScoresByGradeView;
+  readonly dcgByPosition: DcgByPositionView;
 }
 
 /** Sort keys besides any metric key from `OverviewModel.metrics`. */
@@ -228,6 +262,8 @@ export interface QueryDetailView {
   readonly segments: Readonly<Record<string, string>>;
   /** Query text from the queries table, when one is joined. */
   readonly text?: string;
+  /** This query's scores per grade. */
+  readonly scoresByGrade?: ScoresByGradeView;
 }
 
 export interface SegmentRow {

@@ -26,6 +26,8 @@ import { RequestServer, type HandlerContext, type RequestHandlers } from '../pro
 import type { DumpSource, ProgressEvent, WorkerRequests } from '../protocol/worker';
 import { CompareTable, compareOverviewModel } from './compareTable';
 import { QueryTable } from './queryTable';
+import { scoresByGrade } from '../engine/evaluate/diagnostics';
+import { overviewDiagnostics, scoresByGradeView } from './diagnosticsView';
 import { detailView, metricLabel, movementView, overviewModel, segmentTable } from './viewModels';
 import { isCancelled } from './cancelFlags';
 
@@ -145,7 +147,7 @@ const handlers: RequestHandlers<WorkerRequests> = {
     const evaluation = evaluate(dump, metrics, settings.conventions, { groups, signal: ctx.signal, onProgress: progressReporter(ctx, 0.75, 1, 'Scoring queries…') });
     const entry = loaded(dump, evaluation, groups);
     sessions.set(key, { kind: 'single', ...entry });
-    return overviewModel(dump, evaluation, performance.now() - started);
+    return { ...overviewModel(dump, evaluation, performance.now() - started), diagnostics: overviewDiagnostics(dump, evaluation, groups) };
   },
 
   async loadCompare({ session: key, a: sourceA, b: sourceB, settings }, ctx) {
@@ -192,7 +194,8 @@ const handlers: RequestHandlers<WorkerRequests> = {
   queryDetail({ session: key, query, maxPairs, run }) {
     const l = runOf(key, run);
     const { id, detail } = detailOf(l, query, maxPairs);
-    return detailView(l.dump, l.evaluation, detail, id, l.table);
+    const rows = detail.positions.map((p) => p.row);
+    return { ...detailView(l.dump, l.evaluation, detail, id, l.table), scoresByGrade: scoresByGradeView(scoresByGrade(l.dump, rows, 10)) };
   },
 
   queryJson({ session: key, query, run }) {

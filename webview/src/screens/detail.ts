@@ -9,6 +9,7 @@ import { exportParams, type ColumnDef } from '../model/tableModel';
 import { COLUMN_EXPLANATIONS, explainMetric, metricLabel } from '../model/explain';
 import { exactValue, formatCount, formatFixed } from '../model/format';
 import { twoLineChart } from '../ui/charts';
+import { scoresByGradeSection } from './scoreDiagnostics';
 import type { AppContext } from '../ui/context';
 import { button, clear, el } from '../ui/dom';
 import { highlightItem, renderConnector, renderOrderList, type ConnectorLink } from '../ui/orderLists';
@@ -43,10 +44,11 @@ export class DetailScreen {
   private readonly chartNote = el('p', { className: 'gl-muted' });
   private readonly chartSection = el('section', {}, el('h2', { text: 'Cumulative DCG: model against ideal' }), this.chartNote, el('div', { className: 'gl-chart' }, this.chartCanvas));
   private readonly pairsBox = el('div');
+  private readonly scoresBox = el('div');
   private readonly emptyNote = el('p', { className: 'gl-muted', text: 'Pick a query (Enter or click on its row) to see its ranked list here.' });
 
   constructor(private readonly ctx: AppContext, private readonly options: DetailOptions) {
-    this.element.append(this.emptyNote, this.headBox, this.ordersBox, this.chartSection, this.pairsBox);
+    this.element.append(this.emptyNote, this.headBox, this.ordersBox, this.chartSection, this.scoresBox, this.pairsBox);
     this.renderEmpty();
   }
 
@@ -94,14 +96,15 @@ export class DetailScreen {
   }
 
   private renderEmpty(): void {
-    for (const box of [this.headBox, this.ordersBox, this.pairsBox]) clear(box);
+    for (const box of [this.headBox, this.ordersBox, this.scoresBox, this.pairsBox]) clear(box);
     this.emptyNote.hidden = false;
     this.chartSection.hidden = true;
   }
 
   private render(): void {
     const d = this.detail!;
-    for (const box of [this.headBox, this.ordersBox, this.pairsBox]) clear(box);
+    for (const box of [this.headBox, this.ordersBox, this.scoresBox, this.pairsBox]) clear(box);
+    if (d.scoresByGrade) this.scoresBox.appendChild(scoresByGradeSection(d.scoresByGrade, 'gl-detail-scores-by-grade'));
     this.emptyNote.hidden = true;
     this.chartSection.hidden = false;
     const conv = this.options.conventionsSummary();
