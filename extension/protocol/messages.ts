@@ -99,6 +99,8 @@ export interface OverviewModel {
   readonly warnings: readonly string[];
   /** Wall-clock time of read + evaluate. */
   readonly loadMs: number;
+  /** Where query weights came from, when the means are weighted ("column 'weight' of queries.tsv"). */
+  readonly weighting?: string;
   /** Score distribution per grade and DCG by position against the ideal (evaluate/diagnostics.ts). */
   readonly diagnostics?: ScoreDiagnosticsView;
 }

@@ -147,7 +147,11 @@ const handlers: RequestHandlers<WorkerRequests> = {
     const evaluation = evaluate(dump, metrics, settings.conventions, { groups, signal: ctx.signal, onProgress: progressReporter(ctx, 0.75, 1, 'Scoring queries…') });
     const entry = loaded(dump, evaluation, groups);
     sessions.set(key, { kind: 'single', ...entry });
-    return { ...overviewModel(dump, evaluation, performance.now() - started), diagnostics: overviewDiagnostics(dump, evaluation, groups) };
+    return {
+      ...overviewModel(dump, evaluation, performance.now() - started),
+      ...(evaluation.weighting ? { weighting: evaluation.weighting.source } : {}),
+      diagnostics: overviewDiagnostics(dump, evaluation, groups),
+    };
   },
 
   async loadCompare({ session: key, a: sourceA, b: sourceB, settings }, ctx) {

@@ -73,6 +73,7 @@ export class OverviewScreen {
       ['ERR maximum grade', c.maxGrade === null ? 'highest grade in the data' : String(c.maxGrade), 'g_max in ERR’s stopping probability (2^g − 1) / 2^g_max.'],
       ['RBP persistence', formatFixed(c.rbpPersistence, 2), 'p in rank-biased precision.'],
     ];
+    if (model.weighting) pairs.push(['Query weights', model.weighting, 'Means are weighted by query: Σ w·x / Σ w. Queries without a weight are left out.']);
     for (const [k, v, why] of pairs) conventions.append(el('dt', { text: k, title: why }), el('dd', { text: v, title: why }));
 
     const canvas = el('canvas', {
