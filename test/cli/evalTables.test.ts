@@ -149,3 +149,22 @@ describe('gainline eval --diagnostics', () => {
     expect(r.stderr).toMatch(/--segment and --diagnostics each replace the report/);
   });
 });
+
+describe('gainline compare with query weights', () => {
+  it('weights the means and the difference, and says which statistics stay unweighted', () => {
+    // Run B puts q2's relevant SKU-5 first: rr of q2 goes from 1/2 to 1; q1 and q3 unchanged.
+    const b = DUMP.replace('q2,SKU-4,0,0.4', 'q2,SKU-4,0,0.1');
+    const dir = fixtureDir({ ...files, 'b.csv': b });
+    const doc = JSON.parse(ok(['compare', 'run.csv', 'b.csv', '--queries', 'queries.tsv', '--metrics', 'rr', '--format', 'json', '--permutations', '200'], dir));
+    const rr = doc.metrics[0];
+    // Weights 3, 1, 1 (q1, q2, q3): A (3·1 + 0.5 + 0.5) / 5, B (3·1 + 1 + 0.5) / 5 (hand-derived).
+    expect(rr.meanA).toBeCloseTo(0.8, 12);
+    expect(rr.meanB).toBeCloseTo(0.9, 12);
+    expect(rr.meanDelta).toBeCloseTo(0.1, 12);
+    // Δ is 0.5 on q2 and 0 elsewhere, so every resample's weighted mean lies in [0, 0.5].
+    expect(rr.interval95.low).toBeGreaterThanOrEqual(0);
+    expect(rr.interval95.high).toBeLessThanOrEqual(0.5);
+    expect(doc.weights).toMatch(/column 'weight' of .*queries\.tsv/);
+    expect(doc.methodNotes.join('\n')).toMatch(/draws queries uniformly with replacement .* The t-test, Wilcoxon, randomization test, d_z and wins \/ ties \/ losses are unweighted/);
+  });
+});

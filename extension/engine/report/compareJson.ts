@@ -65,6 +65,7 @@ export function formatCompareJson(input: CompareReportInput, options: CompareRep
     })),
     biggestDrops: drops.map(change),
     biggestGains: gains.map(change),
+    ...(c.weighting ? { weights: c.weighting.source } : {}),
     methodNotes: c.methodNotes,
     warnings: c.warnings,
     perQuery: PER_QUERY_SLOT,
