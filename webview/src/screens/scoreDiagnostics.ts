@@ -40,7 +40,7 @@ export function scoresByGradeSection(s: ScoresByGradeView, id: string, charts?: 
     const labels = s.edges.slice(0, -1).map((e, i) => formatFixed((e + s.edges[i + 1]!) / 2, 2));
     charts.push(seriesLinesChart(canvas, {
       labels,
-      series: s.grades.map((g) => ({ label: gradeName(g.grade), values: g.bins.map((b) => (g.count > 0 ? b / g.count : null)) })),
+      series: s.grades.map((g) => ({ label: gradeName(g.grade), values: g.bins.map((b) => (g.count > 0 ? b / g.count : null)), muted: g.grade === null })),
       xTitle: 'score (bin centre)',
       yTitle: 'share of the grade’s items',
     }));

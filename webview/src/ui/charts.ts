@@ -173,7 +173,8 @@ export function twoLineChart(canvas: HTMLCanvasElement, data: LineSeriesInput): 
 export interface SeriesLinesInput {
   /** Category labels along x. */
   readonly labels: readonly string[];
-  readonly series: readonly { readonly label: string; readonly values: readonly (number | null)[] }[];
+  /** `muted` series (e.g. unjudged rows) are drawn in the muted colour, outside the ramp. */
+  readonly series: readonly { readonly label: string; readonly values: readonly (number | null)[]; readonly muted?: boolean }[];
   readonly xTitle: string;
   readonly yTitle: string;
 }
@@ -184,9 +185,9 @@ export interface SeriesLinesInput {
  */
 export function seriesLinesChart(canvas: HTMLCanvasElement, data: SeriesLinesInput): Chart {
   const colorsOf = (pal: ChartPalette) => {
-    const ramp = [pal.worse, pal.muted, pal.seriesB, pal.seriesA, pal.better];
-    const n = data.series.length;
-    return data.series.map((_, i) => ramp[n <= 1 ? ramp.length - 1 : Math.round((i * (ramp.length - 1)) / (n - 1))]!);
+    const ramp = [pal.worse, pal.seriesB, pal.seriesA, pal.better];
+    const n = data.series.filter((s) => !s.muted).length;
+    return data.series.map((s, i) => (s.muted ? pal.muted : ramp[n <= 1 ? ramp.length - 1 : Math.round((i * (ramp.length - 1)) / (n - 1))]!));
   };
   const dashes = [[], [6, 3], [2, 2], [8, 3, 2, 3], [4, 4]];
   const p = currentPalette();
