@@ -109,7 +109,8 @@ describe('query weights', () => {
     const weightLines = ['query_id\tweight\tmarket'];
     for (let q = 0; q < queryCount; q++) {
       const n = 2 + Math.floor(random() * 12);
-      const grades = Array.from({ length: n }, () => Math.floor(random() * 4));
+      // Every 13th query has nothing relevant (the no-relevant policy decides its value).
+      const grades = Array.from({ length: n }, () => (q % 13 === 7 ? 0 : Math.floor(random() * 4)));
       const scores = Array.from({ length: n }, () => Math.round(random() * 20) / 10);
       rows.push(...queryRows(`q${q}`, grades, scores));
       // Some queries without a weight (left out of weighted means), some with weight 0.
@@ -130,6 +131,17 @@ describe('query weights', () => {
     const refNorth = runReference<(number | null)[]>('weighted_mean.py', { columns: columns.map(north), weights });
     const segment = segmentBreakdown(dump, ev, dump.segments.findIndex((s) => s.name === 'market')).find((r) => r.value === 'north')!;
     segment.means.forEach((mean, m) => expect(mean).toBeCloseTo(refNorth[m]!, 12));
+    // The rows under other conventions are weighted the same way: the configured row is the summary's mean,
+    // "ties: pessimistic" is the weighted mean of a pessimistic evaluation, and "no relevant: zero" is
+    // numpy.average with 0 for the queries that have nothing relevant.
+    const row = (label: string) => ev.sensitivity.find((r) => r.label.startsWith(label))!.mean;
+    expect(row('gain: exponential')).toBeCloseTo(ev.summary[0]!.mean, 12);
+    const pessimistic = evaluate(dump, metrics, { ...DEFAULT_CONVENTIONS, ties: 'pessimistic' }, { sensitivity: false });
+    expect(row('ties: pessimistic')).toBeCloseTo(pessimistic.summary[0]!.mean, 12);
+    const zeroFilled = columns[0]!.map((v, q) => (ev.perQuery.relevant[q] === 0 ? 0 : v));
+    const [refZero] = runReference<(number | null)[]>('weighted_mean.py', { columns: [zeroFilled], weights });
+    expect(ev.perQuery.relevant.some((r) => r === 0)).toBe(true);
+    expect(row('no relevant: zero')).toBeCloseTo(refZero!, 12);
   });
 
   it('takes a weight column of the dump itself, one value per query, and refuses two values for one query', () => {

@@ -12,7 +12,7 @@ import type { Conventions, MetricSpec } from '../metrics/conventions';
 import { checkGainApplies } from '../metrics/gain';
 import { QueryRanking, SeenItems } from './ranking';
 import { headlineCutoff, QueryScorer } from './scorer';
-import { SensitivityPass } from './sensitivity';
+import { SensitivityPass, type SensitivityColumns } from './sensitivity';
 import type { DegenerateCounts, Evaluation, MetricSummary, PerQueryColumns } from './types';
 import { describeDegenerate } from './warnings';
 
@@ -63,9 +63,12 @@ export function evaluate(
   const setup = prepareEvaluation(dump, metrics, conventions, options);
   const perQuery = allocatePerQuery(setup.queryCount, metrics, setup.hasRbp, (bytes) => new ArrayBuffer(bytes));
   const sensitivity = setup.sensitivity ? newSensitivityPass(setup) : undefined;
+  // Weighted means need each query's value under every variant.
+  const recorded = sensitivity && dump.joined?.queryWeight ? sensitivityColumns(sensitivity, setup.queryCount, (n) => new ArrayBuffer(n)) : undefined;
+  if (recorded) sensitivity!.recordInto(recorded);
   const tally = scoreQueryRange(setup, dump, 0, setup.queryCount, perQuery, sensitivity, options);
   options.onProgress?.(1);
-  return finishEvaluation(setup, dump, perQuery, tally, sensitivity);
+  return finishEvaluation(setup, dump, perQuery, tally, sensitivity, recorded);
 }
 
 /** What every range of one evaluation shares: the checked conventions and the query groups. */
@@ -100,6 +103,14 @@ export function prepareEvaluation(dump: RankedDump, metrics: readonly MetricSpec
 
 export function newSensitivityPass(setup: EvaluationSetup): SensitivityPass {
   return new SensitivityPass(setup.conventions, headlineCutoff(setup.metrics), setup.lowestGrade);
+}
+
+/** Per-variant, per-query columns for a sensitivity pass to record into; `allocate` picks plain or shared memory. */
+export function sensitivityColumns(pass: SensitivityPass, queryCount: number, allocate: (bytes: number) => ArrayBufferLike): SensitivityColumns {
+  return {
+    value: Array.from({ length: pass.variantCount }, () => new Float64Array(allocate(queryCount * 8))),
+    entered: Array.from({ length: pass.variantCount }, () => new Uint8Array(allocate(queryCount))),
+  };
 }
 
 /** Per-query columns for every query; `allocate` picks plain or shared memory. */
@@ -219,9 +230,10 @@ export class RangeScorer {
 
 /** Means, warnings and sensitivity rows from filled per-query columns and the summed tallies. */
 export function finishEvaluation(setup: EvaluationSetup, dump: RankedDump, perQuery: PerQueryColumns, tally: RangeTally,
-  sensitivity: SensitivityPass | undefined): Evaluation {
+  sensitivity: SensitivityPass | undefined, recorded?: SensitivityColumns): Evaluation {
   const { metrics, conventions, queryCount } = setup;
   const weights = dump.joined?.queryWeight;
+  if (weights !== undefined && sensitivity && recorded) sensitivity.weighColumns(recorded, weights, perQuery.relevant);
   const summary: MetricSummary[] = metrics.map((m, i) => summarise(m.key, perQuery.values[i]!, weights));
   if (perQuery.rbpResidual) {
     const first = metrics.find((m) => m.name === 'rbp')!;
@@ -238,7 +250,7 @@ export function finishEvaluation(setup: EvaluationSetup, dump: RankedDump, perQu
     gmax: setup.gmax,
     headlineK: headlineCutoff(metrics),
   });
-  if (weights !== undefined) warnings.push(...weightNotes(dump, weights, sensitivity !== undefined));
+  if (weights !== undefined) warnings.push(...weightNotes(dump, weights));
   return {
     conventions,
     metrics,
@@ -288,7 +300,7 @@ function weightedSummary(key: string, column: Float64Array, weights: Float64Arra
 }
 
 /** What weighting did, in plain sentences (queries without a weight are out of every weighted mean). */
-function weightNotes(dump: RankedDump, weights: Float64Array, sensitivity: boolean): string[] {
+function weightNotes(dump: RankedDump, weights: Float64Array): string[] {
   let unknown = 0;
   const examples: string[] = [];
   for (let q = 0; q < weights.length; q++) {
@@ -298,6 +310,5 @@ function weightNotes(dump: RankedDump, weights: Float64Array, sensitivity: boole
   }
   const out = [`Means are weighted by query (Σ w·x / Σ w), weights from ${dump.joined?.weightSource ?? 'the data'}.`];
   if (unknown > 0) out.push(`${unknown.toLocaleString('en-US')} ${unknown === 1 ? 'query has' : 'queries have'} no weight (e.g. ${examples.join(', ')}); they are left out of the weighted means.`);
-  if (sensitivity) out.push('The rows under other conventions are unweighted means.');
   return out;
 }
