@@ -99,6 +99,8 @@ export interface OverviewModel {
   readonly warnings: readonly string[];
   /** Wall-clock time of read + evaluate. */
   readonly loadMs: number;
+  /** True when a queries table gives the queries a text (the worst list shows it). */
+  readonly queryText?: boolean;
   /** Where query weights came from, when the means are weighted ("column 'weight' of queries.tsv"). */
   readonly weighting?: string;
   /** Score distribution per grade and DCG by position against the ideal (evaluate/diagnostics.ts). */
@@ -180,6 +182,8 @@ export interface QueryRow {
   readonly inversionCost: number;
   readonly lossShare: MaybeNumber;
   readonly skipped: boolean;
+  /** Query text from the queries table, when one is joined. */
+  readonly text?: string;
 }
 
 export interface QueryPage {

@@ -150,6 +150,7 @@ const handlers: RequestHandlers<WorkerRequests> = {
     return {
       ...overviewModel(dump, evaluation, performance.now() - started),
       ...(evaluation.weighting ? { weighting: evaluation.weighting.source } : {}),
+      ...(dump.joined?.queryText ? { queryText: true } : {}),
       diagnostics: overviewDiagnostics(dump, evaluation, groups),
     };
   },

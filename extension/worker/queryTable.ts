@@ -69,6 +69,7 @@ export class QueryTable {
       inversionCost: pq.inversionCost[q]!,
       lossShare: toMaybe(this.shares[q]!),
       skipped: pq.skipped[q] === 1,
+      ...(dump.joined?.queryText ? { text: dump.joined.queryText[q] ?? '' } : {}),
     };
   }
 

@@ -6,7 +6,9 @@ import { evaluate } from '../../extension/engine/evaluate/evaluate';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
 import { parseMetricList } from '../../extension/engine/metrics/parse';
 import { readDump } from '../../extension/engine/readers/index';
+import { groupByQuery } from '../../extension/engine/model/groups';
 import { withSideTables } from '../../extension/engine/tables/join';
+import { QueryTable } from '../../extension/worker/queryTable';
 import { CONFIG_DEFAULTS, readConfig } from '../../extension/host/config';
 import { globToRegExp } from '../../extension/host/glob';
 import { isSideTableName, sourceFor } from '../../extension/host/sources';
@@ -38,6 +40,11 @@ describe('side files for the editor', () => {
     expect(dump.joined?.itemTitle?.[dump.items.find('SKU-109817')]).toMatch(/\w/);
     // Every query and every product of the demo run is in the tables: nothing to report.
     expect(dump.joined?.notes).toEqual([]);
+    // The worst-queries table shows the text and its filter matches it.
+    const groups = groupByQuery(dump);
+    const table = new QueryTable({ dump, evaluation: evaluate(dump, parseMetricList('ndcg@10'), DEFAULT_CONVENTIONS, { groups, sensitivity: false }), groups });
+    const page = table.page({ offset: 0, limit: 10, filter: 'gartenschlauch reel' });
+    expect(page.rows.map((r) => [r.query, r.text])).toEqual([['q001', 'gartenschlauch reel']]);
   });
 
   it('leaves out a found queries table that names none of the dump\'s queries, and says so', async () => {
