@@ -40,7 +40,7 @@ Run "gainline COMMAND --help" (or "gainline help COMMAND") for a command's optio
 export async function runCli(argv: readonly string[], io: CliIO): Promise<number> {
   const [first, ...rest] = argv;
   if (first === undefined) {
-    io.err(usage());
+    io.err(`Usage: gainline ${Object.keys(COMMANDS).join('|')} [options] (gainline --help for more)\n`);
     return EXIT_BAD_INPUT;
   }
   if (first === '--help' || first === '-h' || (first === 'help' && rest.length === 0)) {

@@ -4,12 +4,11 @@
  */
 import { stat } from 'node:fs/promises';
 import { resolve } from 'node:path';
-import { parseArgs } from 'node:util';
 import { compareRuns, DEFAULT_COMPARE_OPTIONS } from '../engine/compare/compare';
 import { withSideTables } from '../engine/tables/join';
 import { InputError } from '../engine/errors';
 import { COMPARE_FORMATS, formatComparison, type CompareFormat } from '../engine/report/compareReport';
-import { conventionHelp, conventionOptions, scoringSetupFrom } from './conventionArgs';
+import { conventionHelp, conventionOptions, parseCommandArgs, scoringSetupFrom } from './conventionArgs';
 import { UsageError } from './evalCommand';
 import type { CliIO } from './io';
 import { progressLine } from './progress';
@@ -51,7 +50,7 @@ const compareOptions = {
 const PROGRESS_FROM_BYTES = 32 * 1024 * 1024;
 
 export async function runCompare(argv: string[], io: CliIO): Promise<number> {
-  const { values, positionals } = parseArgs({ args: argv, options: compareOptions, allowPositionals: true, strict: true });
+  const { values, positionals } = parseCommandArgs(argv, compareOptions);
   if (values.help) {
     io.out(compareUsage);
     return 0;
@@ -63,10 +62,11 @@ export async function runCompare(argv: string[], io: CliIO): Promise<number> {
   if (!COMPARE_FORMATS.includes(format)) {
     throw new InputError(`one of ${COMPARE_FORMATS.join(', ')}`, '--format', undefined, values.format);
   }
-  const permutations = wholeNumber('--permutations', values.permutations, DEFAULT_COMPARE_OPTIONS.permutations, 1);
-  const bootstrap = wholeNumber('--bootstrap', values.bootstrap, DEFAULT_COMPARE_OPTIONS.bootstrap, 0);
-  const seed = wholeNumber('--seed', values.seed, DEFAULT_COMPARE_OPTIONS.seed, 0);
-  const top = wholeNumber('--top', values.top, 10, 0);
+  // Upper limits keep a typo (1e12) from running for days; the seed feeds a 32-bit generator.
+  const permutations = wholeNumber('--permutations', values.permutations, DEFAULT_COMPARE_OPTIONS.permutations, 1, 100_000_000);
+  const bootstrap = wholeNumber('--bootstrap', values.bootstrap, DEFAULT_COMPARE_OPTIONS.bootstrap, 0, 10_000_000);
+  const seed = wholeNumber('--seed', values.seed, DEFAULT_COMPARE_OPTIONS.seed, 0, 0xffffffff);
+  const top = wholeNumber('--top', values.top, 10, 0, Number.MAX_SAFE_INTEGER);
   const tieTolerance = numberAtLeastZero('--tie-tolerance', values['tie-tolerance'], DEFAULT_COMPARE_OPTIONS.tieTolerance);
   const alpha = values['fail-if-worse'] === undefined ? undefined : significance(values['fail-if-worse']);
   const setup = scoringSetupFrom(values, (p) => resolve(io.cwd, p));
@@ -104,10 +104,13 @@ export async function runCompare(argv: string[], io: CliIO): Promise<number> {
   }
 }
 
-function wholeNumber(option: string, text: string | undefined, fallback: number, min: number): number {
+function wholeNumber(option: string, text: string | undefined, fallback: number, min: number, max: number): number {
   if (text === undefined) return fallback;
   const n = text.trim() === '' ? Number.NaN : Number(text);
-  if (!Number.isSafeInteger(n) || n < min) throw new InputError(`a whole number, ${min} or more`, option, undefined, text);
+  if (!Number.isSafeInteger(n) || n < min || n > max) {
+    const range = max === Number.MAX_SAFE_INTEGER ? `${min} or more` : `from ${min} to ${max.toLocaleString('en-US')}`;
+    throw new InputError(`a whole number ${range}`, option, undefined, text);
+  }
   return n;
 }
 

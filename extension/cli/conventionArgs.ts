@@ -3,7 +3,10 @@
  * data is, how to read it, which metrics, and under which conventions. One definition so both
  * commands spell and validate them the same way.
  */
+import { parseArgs, type ParseArgsConfig } from 'node:util';
 import { InputError } from '../engine/errors';
+
+type ParseArgsOptionsConfig = NonNullable<ParseArgsConfig['options']>;
 import {
   DEFAULT_CONVENTIONS,
   DEFAULT_METRICS,
@@ -14,6 +17,25 @@ import type { DumpFormat } from '../engine/model/dump';
 import { parseColumnRoles, type ReadOptions } from '../engine/readers/index';
 import type { SideTableFiles } from '../engine/tables/join';
 import { parseGain, parseMetricList, parseNoRelevant, parseTies } from '../engine/metrics/parse';
+
+/**
+ * node:util parseArgs, except that a value starting with a dash is taken as the option's value
+ * ("--permutations -5" reaches the option's own check and its message, instead of the parser's
+ * "ambiguous argument"). Only string options take values, so a following "-5" can mean nothing else.
+ */
+export function parseCommandArgs<T extends ParseArgsOptionsConfig>(argv: readonly string[], options: T) {
+  const joined: string[] = [];
+  for (let i = 0; i < argv.length; i++) {
+    const arg = argv[i]!;
+    const name = arg.startsWith('--') && !arg.includes('=') ? arg.slice(2) : undefined;
+    const next = argv[i + 1];
+    if (name !== undefined && options[name]?.type === 'string' && next !== undefined && next.startsWith('-') && next !== '--') {
+      joined.push(`${arg}=${next}`);
+      i++;
+    } else joined.push(arg);
+  }
+  return parseArgs({ args: joined, options, allowPositionals: true, strict: true });
+}
 
 /** node:util parseArgs option definitions; spread them into a command's own table. */
 export const conventionOptions = {

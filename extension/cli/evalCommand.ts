@@ -3,7 +3,6 @@
  */
 import { stat } from 'node:fs/promises';
 import { resolve } from 'node:path';
-import { parseArgs } from 'node:util';
 import { InputError } from '../engine/errors';
 import { CoreMeter } from '../engine/evaluate/coreMeter';
 import { evaluateInParallel } from '../engine/evaluate/parallelEvaluate';
@@ -11,7 +10,7 @@ import { readDump } from '../engine/readers/index';
 import { formatReport, REPORT_FORMATS, type ReportFormat } from '../engine/report/index';
 import { queryFacts } from '../engine/tables/queryFacts';
 import { withSideTables } from '../engine/tables/join';
-import { conventionHelp, conventionOptions, scoringSetupFrom, type ScoringSetup } from './conventionArgs';
+import { conventionHelp, conventionOptions, parseCommandArgs, scoringSetupFrom, type ScoringSetup } from './conventionArgs';
 import { detailJson, detailOf, detailText, diagnosticsReport, findQuery, segmentReport, worstOrder } from './evalViews';
 import { renameInputError, spoolStdin, STDIN_NAME } from './stdin';
 import type { CliIO } from './io';
@@ -52,7 +51,7 @@ const evalOptions = {
 const PROGRESS_FROM_BYTES = 32 * 1024 * 1024;
 
 export async function runEval(argv: string[], io: CliIO): Promise<number> {
-  const { values, positionals } = parseArgs({ args: argv, options: evalOptions, allowPositionals: true, strict: true });
+  const { values, positionals } = parseCommandArgs(argv, evalOptions);
   if (values.help) {
     io.out(evalUsage);
     return 0;

@@ -71,6 +71,8 @@ export interface SensitivityView {
   readonly counted: number;
   /** mean − headline mean under the current conventions. */
   readonly delta: MaybeNumber;
+  /** Why there is no mean (the convention cannot score this data); absent when there is one. */
+  readonly unavailable?: string;
 }
 
 /** The engine's counts unchanged (all plain integers). */

@@ -90,6 +90,7 @@ export function overviewModel(dump: RankedDump, evaluation: Evaluation, loadMs: 
       mean: toMaybe(row.mean),
       counted: row.counted,
       delta: toMaybe(row.mean - headlineMean),
+      ...(row.unavailable !== undefined ? { unavailable: row.unavailable } : {}),
     })),
     degenerate: { ...evaluation.degenerate },
     histogram: histogram(evaluation.perQuery.values[evaluation.headline]!),

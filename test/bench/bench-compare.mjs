@@ -127,7 +127,7 @@ async function inMemory() {
   const n = 100_000;
   const random = rng(777);
   const d = Float64Array.from({ length: n }, () => Math.round((random() - 0.49) * 20) / 20);
-  const flips = await median(3, () => engine.signFlipTest(d, { permutations: 10_000, seed: 3 }));
+  const flips = await median(3, () => engine.signFlipTest(d, { permutations: 10_000, seed: 3, key: 'ndcg@10' }));
   const boot = await median(1, () => engine.bootstrapMeanIntervals([d], { resamples: defaults.bootstrap, seed: 3 }));
   console.log(`sign-flip test, 10,000 patterns over ${n.toLocaleString('en-US')} differences: ${both(flips)} (p ${flips.last.p.toPrecision(3)})`);
   console.log(`bootstrap interval, ${defaults.bootstrap} resamples over ${n.toLocaleString('en-US')} differences: ${both(boot)}`);

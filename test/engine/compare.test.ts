@@ -12,6 +12,7 @@ import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions'
 import { parseMetricList } from '../../extension/engine/metrics/parse';
 import { CancelledError } from '../../extension/engine/errors';
 import { buildDump, queryRows, type TestRow } from './dumpBuilder';
+import { QUERY_NAMES, seededRandom } from '../reference/random';
 
 const withSegment = (rows: TestRow[], device: string): TestRow[] => rows.map((r) => ({ ...r, segments: { device } }));
 
@@ -205,5 +206,45 @@ describe('queryMovement', () => {
     expect(m.fixedPairs).toEqual([]);
     expect(m.positions).toHaveLength(3);
     expect(m.positions[2]!.itemA).toBe('');
+  });
+});
+
+describe('one random stream per metric', () => {
+  // 80 invented queries with 6 items each; B's scores are drawn the same way as A's (no real difference), so many
+  // sign patterns are as extreme as the observed one. 2^80 patterns: the randomization test samples.
+  const random = seededRandom(31);
+  const rowsA: TestRow[] = [];
+  const rowsB: TestRow[] = [];
+  for (let q = 0; q < 80; q++) {
+    const grades = Array.from({ length: 6 }, () => (random() < 0.7 ? 0 : Math.floor(random() * 3) + 1));
+    const scoresA = grades.map((g) => g * 0.3 + random());
+    rowsA.push(...queryRows(`${QUERY_NAMES[q % QUERY_NAMES.length]} ${q}`, grades, scoresA));
+    rowsB.push(...queryRows(`${QUERY_NAMES[q % QUERY_NAMES.length]} ${q}`, grades, grades.map((g) => g * 0.3 + random())));
+  }
+  const a = buildDump(rowsA);
+  const b = buildDump(rowsB);
+  const options = { permutations: 2000, bootstrap: 400, seed: 7 };
+  const of = async (list: string, key: string, seed = options.seed) =>
+    (await compareRuns(a, b, parseMetricList(list), DEFAULT_CONVENTIONS, { ...options, seed })).byMetric.find((r) => r.key === key)!;
+
+  it('gives a metric the same randomization p and interval alone, amid other metrics, and in another order', async () => {
+    for (const key of ['ap', 'p@5']) {
+      const alone = await of(key, key);
+      expect(alone.randomization.method).toBe('monte-carlo');
+      const amid = await of('ndcg@10,err@10,ap,rr,p@5,r@10,rbp,tau', key);
+      const reordered = await of('tau,p@5,rr,ap,dcg@10,ndcg@3', key);
+      for (const other of [amid, reordered]) {
+        expect(other.randomization).toEqual(alone.randomization);
+        expect(other.interval).toEqual(alone.interval);
+      }
+    }
+  });
+
+  it('still depends on the seed (the sampled results are not fixed by the data alone)', async () => {
+    const one = await of('ap', 'ap');
+    const otherSeed = await of('ap', 'ap', options.seed + 1);
+    expect(one.randomization.asExtreme).toBeGreaterThan(20);
+    expect(otherSeed.randomization.asExtreme).not.toBe(one.randomization.asExtreme);
+    expect(otherSeed.interval).not.toEqual(one.interval);
   });
 });

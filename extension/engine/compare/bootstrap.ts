@@ -2,13 +2,18 @@
  * Percentile bootstrap confidence interval of a mean (Efron & Tibshirani 1993, ch. 13), for paired
  * per-query differences. Several columns that share the same queries are resampled with the SAME
  * drawn queries (one index draw feeds every column), which is both cheaper and keeps the metrics'
- * intervals consistent with each other.
+ * intervals consistent with each other. The draws come from `metricStream('bootstrap', seed, '')`, the
+ * same for every metric, so one metric's interval is the same whether it is resampled alone or beside
+ * others, in any order. (A stream per metric was measured: 2.8× slower over 10k queries × 8 metrics and
+ * 9× over 100k, where each index draw misses the cache, for no gain in that independence.)
  *
  * Quantiles use linear interpolation between order statistics (Hyndman & Fan 1996 type 7, the common
  * default of numerical libraries).
  */
 import { Pacer, type LoopControl } from './pacer';
-import { Xoshiro128 } from './random';
+import { metricStream } from './random';
+
+export const BOOTSTRAP_STREAM = 'bootstrap';
 
 export interface BootstrapOptions extends LoopControl {
   readonly resamples: number;
@@ -44,7 +49,7 @@ export async function bootstrapMeanIntervals(columns: readonly Float64Array[], o
   const means = columns.map(() => new Float64Array(resamples));
   const sparse = summed.map(nonZeroPart);
   const counts = new Float64Array(n);
-  const rng = new Xoshiro128(options.seed);
+  const rng = metricStream(BOOTSTRAP_STREAM, options.seed, '');
   const pacer = new Pacer(options, resamples);
   // About a few million multiply-adds between two cancellation checks, whatever the data size.
   const checkEvery = Math.max(1, Math.floor(4_000_000 / (n * (m + 1))));

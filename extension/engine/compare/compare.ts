@@ -127,7 +127,8 @@ export async function compareRuns(
   const weights = pairWeights(a, match.commonA);
   const pairedOf = perQuery.delta.map((d) => pairedIndices(d, weights));
 
-  // The interval: metrics paired on the same queries share one resampling pass.
+  // The interval: metrics paired on the same queries share one resampling pass; every pass draws from the
+  // same seeded stream, so a metric's interval does not depend on which metrics share its pass.
   const intervals: Interval[] = new Array(metrics.length);
   const sharing = groupIdentical(pairedOf);
   for (const group of sharing) {
@@ -144,7 +145,7 @@ export async function compareRuns(
     progress.stage(0.2 / metrics.length);
     const rows = pairedOf[m]!;
     const d = gather(perQuery.delta[m]!, rows);
-    const randomization = await signFlipTest(d, { ...loop, permutations: o.permutations, seed: o.seed + m });
+    const randomization = await signFlipTest(d, { ...loop, permutations: o.permutations, seed: o.seed, key: metrics[m]!.key });
     partial.push({
       key: metrics[m]!.key,
       paired: rows.length,
@@ -270,7 +271,8 @@ function methodNotes(o: CompareOptions, metricCount: number): string[] {
     `Wilcoxon: signed-rank test, two-sided; differences rounded to ${WILCOXON_ROUNDING} before ranking, zero differences dropped; ` +
       `exact for at most 50 pairs without zeros or ties, otherwise normal approximation with tie correction.`,
     `Randomization: paired sign-flip test of the mean Δ, two-sided, ${o.permutations} random sign patterns ` +
-      `(every pattern when 2^n is not more), seed ${o.seed}; p = (1 + as extreme) / (1 + patterns) when sampled.`,
+      `(every pattern when 2^n is not more), seed ${o.seed} with a random stream of its own per metric; ` +
+      `p = (1 + as extreme) / (1 + patterns) when sampled.`,
     `Wins / ties / losses: |Δ| ≤ ${o.tieTolerance} is a tie.`,
     ...(metricCount > 1 ? [`Holm and Benjamini–Hochberg adjustments are across the ${metricCount} metrics compared, per test.`] : []),
   ];

@@ -3,9 +3,30 @@
  *
  * xoshiro128** (Blackman & Vigna, "Scrambled linear pseudorandom number generators", 2021) uses only
  * 32-bit operations, so in JavaScript it runs on int32 arithmetic without BigInt. Every call yields
- * 32 random bits; the sign-flip test consumes them 8 (or 4) at a time. The state is seeded through
- * splitmix32 so that nearby seeds (1, 2, 3) give unrelated streams.
+ * 32 random bits; the sign-flip test consumes them 8 (or 4) at a time. A plain numeric seed goes through
+ * splitmix32 so that nearby seeds (1, 2, 3) give unrelated streams; the resampling procedures instead take
+ * their streams from `metricStream`.
  */
+import { createHash } from 'node:crypto';
+
+/**
+ * The generator a resampling procedure uses: its 128-bit state is the first 16 bytes of SHA-256 over the
+ * UTF-8 text `<procedure>\n<seed>\n<key>` (read as four little-endian 32-bit words).
+ * - The sign-flip test passes the metric key, so each metric draws from its own stream, fixed by the
+ *   seed and its key alone: its p-value is the same whichever other metrics are compared beside it and
+ *   in whatever order.
+ * - The bootstrap passes an empty key: it draws the same resampled queries for every metric (one draw
+ *   feeds every metric), so a metric's interval depends on the seed, the number of paired queries and
+ *   its own differences only, again not on the other metrics.
+ * The procedure name keeps the two procedures' streams apart. SHA-256 (FIPS 180-4) is used as a
+ * well-mixed hash, not for secrecy; every safe-integer seed gives its own text, so seeds above 2^32 do
+ * not wrap onto smaller ones.
+ */
+export function metricStream(procedure: string, seed: number, key: string): Xoshiro128 {
+  const digest = createHash('sha256').update(`${procedure}\n${seed}\n${key}`, 'utf8').digest();
+  return Xoshiro128.fromState(digest.readInt32LE(0), digest.readInt32LE(4), digest.readInt32LE(8), digest.readInt32LE(12));
+}
+
 export class Xoshiro128 {
   private s0: number;
   private s1: number;
@@ -27,6 +48,17 @@ export class Xoshiro128 {
     this.s2 = next();
     this.s3 = next();
     if ((this.s0 | this.s1 | this.s2 | this.s3) === 0) this.s0 = 1; // the all-zero state is a fixed point
+  }
+
+  /** A generator started from the given 128-bit state (int32 words); the all-zero state is replaced. */
+  static fromState(s0: number, s1: number, s2: number, s3: number): Xoshiro128 {
+    const rng = new Xoshiro128(0);
+    rng.s0 = s0 | 0;
+    rng.s1 = s1 | 0;
+    rng.s2 = s2 | 0;
+    rng.s3 = s3 | 0;
+    if ((rng.s0 | rng.s1 | rng.s2 | rng.s3) === 0) rng.s0 = 1;
+    return rng;
   }
 
   /**

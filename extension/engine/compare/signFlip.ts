@@ -16,14 +16,20 @@
  * and one pattern costs one table look-up per 8 differences. Pattern p's flipped sum accumulates in
  * flipped[p]. Bits are consumed block group by block group: word (g, p) is drawn before (g, p + 1) and
  * all words of group g come before group g + 1; bit j of word (g, p) flips difference 32g + j.
+ * The words come from the metric's own stream, `metricStream('sign-flip', seed, key)`, so the p-value
+ * of one metric does not depend on which other metrics are tested beside it.
  */
 import { Pacer, type LoopControl } from './pacer';
-import { Xoshiro128 } from './random';
+import { metricStream } from './random';
 
 export interface SignFlipOptions extends LoopControl {
   readonly permutations: number;
   readonly seed: number;
+  /** Key of the metric tested (e.g. "ndcg@10"): with the seed, it fixes the random stream. */
+  readonly key: string;
 }
+
+export const SIGN_FLIP_STREAM = 'sign-flip';
 
 export interface SignFlipResult {
   readonly p: number;
@@ -62,7 +68,7 @@ export async function signFlipTest(differences: Float64Array, options: SignFlipO
     return { p: asExtreme / patterns, method: 'exact', patterns, asExtreme };
   }
 
-  const rng = new Xoshiro128(options.seed);
+  const rng = metricStream(SIGN_FLIP_STREAM, options.seed, options.key);
   const permutations = options.permutations;
   const flipped = new Float64Array(permutations);
   const tables = new Float64Array(4 * 256);

@@ -36,8 +36,8 @@ export function queryDetail(
 ): QueryDetail {
   const at = Number.isFinite(k) ? `@${k}` : '';
   const metrics = options.metrics ?? parseMetricList(`ndcg${at},dcg${at},err${at},ap,rr,p${at},r${at},rbp,tau`);
-  const gmax = checkConventions(dump, metrics, conventions, options.gradeRange);
   const rows = rowsOf(dump, queryId, options.groups);
+  const gmax = checkConventions(dump, metrics, conventions, options.gradeRange, rows.length);
   const ranking = new QueryRanking();
   ranking.load(dump, rows, 0, rows.length, new SeenItems());
   const scorer = new QueryScorer(conventions, metrics, gmax, k);

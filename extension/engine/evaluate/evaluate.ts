@@ -2,14 +2,14 @@
  * Evaluates every query of a dump: per-query metric columns, means, degenerate-data counts, convention
  * sensitivity and plain-sentence warnings. One pass over the queries with reused scratch arrays.
  */
-import { CancelledError, InputError } from '../errors';
+import { CancelledError } from '../errors';
 import type { RankedDump } from '../model/dump';
 import { gradeRangeOf, summariseRows, type GradeRange } from '../model/rowSummary';
 
 export type { GradeRange } from '../model/rowSummary';
 import { groupByQuery, type QueryGroups } from '../model/groups';
 import type { Conventions, MetricSpec } from '../metrics/conventions';
-import { checkGainApplies } from '../metrics/gain';
+import { checkGainsAndGrades, gainProblem } from './gainLimits';
 import { QueryRanking, SeenItems } from './ranking';
 import { headlineCutoff, QueryScorer } from './scorer';
 import { SensitivityPass, type SensitivityColumns } from './sensitivity';
@@ -35,23 +35,19 @@ export function gradeRange(dump: RankedDump): GradeRange {
 /**
  * Checks the conventions against the data once, before any query is scored; returns ERR's g_max.
  * Callers that keep the dump's grade range from load time pass it to skip the scan over every row.
+ * `largestQuery` (rows of the largest query) bounds the sums a gain must stay finite over.
  */
-export function checkConventions(dump: RankedDump, metrics: readonly MetricSpec[], c: Conventions, range: GradeRange = gradeRange(dump)): number {
-  return checkAgainstRange(range, metrics, c, dump.path);
+export function checkConventions(dump: RankedDump, metrics: readonly MetricSpec[], c: Conventions, range: GradeRange = gradeRange(dump),
+  largestQuery: number = dump.rowCount): number {
+  return checkGainsAndGrades(dump, metrics, c, range, largestQuery);
 }
 
-function checkAgainstRange(range: GradeRange, metrics: readonly MetricSpec[], c: Conventions, path: string): number {
-  const { lowest, highest } = range;
-  checkGainApplies(c.gain, lowest);
-  if (!(c.rbpPersistence > 0 && c.rbpPersistence < 1)) {
-    throw new InputError('an RBP persistence strictly between 0 and 1', undefined, undefined, String(c.rbpPersistence));
-  }
-  const gmax = c.maxGrade ?? highest;
-  if (metrics.some((m) => m.name === 'err')) {
-    if (lowest < 0) throw new InputError('grades >= 0 for ERR', path, undefined, String(lowest));
-    if (highest > gmax) throw new InputError(`grades <= the maximum grade ${gmax} for ERR`, path, undefined, String(highest));
-  }
-  return gmax;
+/** Rows of the largest query. */
+export function largestQuery(groups: QueryGroups): number {
+  let most = 0;
+  const start = groups.start;
+  for (let q = 0; q + 1 < start.length; q++) most = Math.max(most, start[q + 1]! - start[q]!);
+  return most;
 }
 
 export function evaluate(
@@ -79,7 +75,9 @@ export interface EvaluationSetup {
   readonly queryCount: number;
   /** ERR's g_max. */
   readonly gmax: number;
-  readonly lowestGrade: number;
+  readonly gradeRange: GradeRange;
+  /** Rows of the largest query: the sums a gain must stay finite over. */
+  readonly largestQuery: number;
   readonly hasRbp: boolean;
   readonly sensitivity: boolean;
 }
@@ -87,22 +85,25 @@ export interface EvaluationSetup {
 export function prepareEvaluation(dump: RankedDump, metrics: readonly MetricSpec[], conventions: Conventions,
   options: EvaluateOptions): EvaluationSetup {
   const range = gradeRange(dump);
-  const gmax = checkAgainstRange(range, metrics, conventions, dump.path);
   const groups = options.groups ?? groupByQuery(dump);
+  const largest = largestQuery(groups);
+  const gmax = checkConventions(dump, metrics, conventions, range, largest);
   return {
     metrics,
     conventions,
     groups,
     queryCount: groups.start.length - 1,
     gmax,
-    lowestGrade: range.lowest,
+    gradeRange: range,
+    largestQuery: largest,
     hasRbp: metrics.some((m) => m.name === 'rbp'),
     sensitivity: options.sensitivity !== false,
   };
 }
 
 export function newSensitivityPass(setup: EvaluationSetup): SensitivityPass {
-  return new SensitivityPass(setup.conventions, headlineCutoff(setup.metrics), setup.lowestGrade);
+  return new SensitivityPass(setup.conventions, headlineCutoff(setup.metrics),
+    (gain) => gainProblem(gain, setup.gradeRange, setup.largestQuery)?.why);
 }
 
 /** Per-variant, per-query columns for a sensitivity pass to record into; `allocate` picks plain or shared memory. */
@@ -228,6 +229,27 @@ export class RangeScorer {
   }
 }
 
+/**
+ * A query that is not skipped never carries an unexplained empty value: each metric left undefined for
+ * such queries gets a sentence saying how many and why (tau has its own note in describeDegenerate).
+ */
+export function undefinedValueNotes(metrics: readonly MetricSpec[], perQuery: PerQueryColumns): string[] {
+  const notes: string[] = [];
+  metrics.forEach((m, i) => {
+    if (m.name === 'tau') return;
+    const column = perQuery.values[i]!;
+    let undefinedCount = 0;
+    for (let q = 0; q < column.length; q++) if (perQuery.skipped[q] === 0 && column[q] !== column[q]) undefinedCount++;
+    if (undefinedCount === 0) return;
+    const why = m.name === 'ndcg'
+      ? 'their ideal DCG is not above 0 (the gain convention gives their relevant items no positive gain)'
+      : 'the metric has no value for them';
+    const who = undefinedCount === 1 ? 'query that is' : 'queries that are';
+    notes.push(`${m.key} is undefined for ${undefinedCount.toLocaleString('en-US')} ${who} not skipped: ${why}; left out of its mean.`);
+  });
+  return notes;
+}
+
 /** Means, warnings and sensitivity rows from filled per-query columns and the summed tallies. */
 export function finishEvaluation(setup: EvaluationSetup, dump: RankedDump, perQuery: PerQueryColumns, tally: RangeTally,
   sensitivity: SensitivityPass | undefined, recorded?: SensitivityColumns): Evaluation {
@@ -250,6 +272,7 @@ export function finishEvaluation(setup: EvaluationSetup, dump: RankedDump, perQu
     gmax: setup.gmax,
     headlineK: headlineCutoff(metrics),
   });
+  warnings.push(...undefinedValueNotes(metrics, perQuery));
   if (weights !== undefined) warnings.push(...weightNotes(dump, weights));
   return {
     conventions,

@@ -37,6 +37,8 @@ export class SensitivityPass {
   private readonly gainFns: GainFunction[] = [];
   private readonly monotone: boolean[] = [];
   private readonly variants: Variant[] = [];
+  /** Alternative gains left out, with the reason shown in their row. */
+  private readonly unavailable: { gain: GainConvention; why: string }[] = [];
   private readonly ideal = new IdealGains();
   private gainOfRank: Float64Array[] = [];
   private idealOfGain = new Float64Array(0);
@@ -51,15 +53,20 @@ export class SensitivityPass {
   constructor(
     private readonly base: Conventions,
     private readonly k: number,
-    /** Lowest grade in the data: exponential gain is left out when it is negative. */
-    lowestGrade: number,
+    /** Why an alternative gain cannot score this data (negative grades, gains beyond a double); undefined when it can. */
+    gainProblem: (gain: GainConvention) => string | undefined,
   ) {
     const candidates: GainConvention[] = [base.gain, { kind: 'exponential' }, { kind: 'linear' }];
     const seen = new Set<string>();
     for (const g of candidates) {
       const name = formatGain(g);
-      if (seen.has(name) || (g.kind === 'exponential' && lowestGrade < 0)) continue;
+      if (seen.has(name)) continue;
       seen.add(name);
+      const problem = g === base.gain ? undefined : gainProblem(g);
+      if (problem !== undefined) {
+        this.unavailable.push({ gain: g, why: problem });
+        continue;
+      }
       this.gains.push(g);
       this.gainFns.push(gainFunction(g));
       this.monotone.push(isMonotone(g));
@@ -226,6 +233,15 @@ export class SensitivityPass {
     out.push(rowOf(configured, base.noRelevant, `gain: ${formatGain(base.gain)}${mark(true)}`));
     for (const v of this.variants) {
       if (v.gainSlot !== 0) out.push(rowOf(v, base.noRelevant, `gain: ${formatGain(v.gain)}`));
+    }
+    for (const u of this.unavailable) {
+      out.push({
+        label: `gain: ${formatGain(u.gain)}`,
+        conventions: { ...base, gain: u.gain },
+        mean: NaN,
+        counted: 0,
+        unavailable: `not computed: ${u.why}`,
+      });
     }
     for (const v of this.variants) {
       if (v.gainSlot === 0) out.push(rowOf(v, base.noRelevant, `ties: ${v.ties}${mark(v.ties === base.ties)}`));

@@ -52,6 +52,8 @@ export interface SensitivityRow {
   readonly conventions: Conventions;
   readonly mean: number;
   readonly counted: number;
+  /** Why the row has no mean, when the convention cannot score this data (e.g. a gain beyond a double). */
+  readonly unavailable?: string;
 }
 
 export interface Evaluation {

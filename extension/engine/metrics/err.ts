@@ -162,8 +162,12 @@ function logFactorialTable(n: number): Float64Array {
   return logFactorials;
 }
 
-/** R(g) = (2^g − 1) / 2^gmax (Chapelle et al. 2009). */
+/**
+ * R(g) = (2^g − 1) / 2^gmax (Chapelle et al. 2009), written as 2^(g − gmax) − 2^(−gmax) so that it stays
+ * finite for any gmax (2^1024 is already Infinity in a double). For integer grades below 53 both forms are
+ * exact, so the values are the same bits.
+ */
 export function errStopProbability(gmax: number): (grade: number) => number {
-  const scale = Math.pow(2, gmax);
-  return (g) => (Math.pow(2, g) - 1) / scale;
+  const floor = Math.pow(2, -gmax);
+  return (g) => Math.pow(2, g - gmax) - floor;
 }

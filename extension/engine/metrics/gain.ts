@@ -17,24 +17,11 @@ export function gainFunction(gain: GainConvention): GainFunction {
       const gains = gain.gains;
       return (g) => {
         const v = gains.get(g);
-        if (v === undefined) {
-          throw new InputError(
-            `a gain for grade ${g} in the gain map (unjudged rows count as grade 0)`,
-            undefined,
-            undefined,
-            [...gains.keys()].join(','),
-          );
-        }
+        // evaluate/gainLimits.ts checks every grade of the data against the map first, naming the row.
+        if (v === undefined) throw new InputError(`a gain for grade ${g} in the gain map (unjudged rows count as grade 0)`, '--gain');
         return v;
       };
     }
-  }
-}
-
-/** Exponential gain of a negative grade is negative and meaningless: refuse rather than guess. */
-export function checkGainApplies(gain: GainConvention, lowestGrade: number): void {
-  if (gain.kind === 'exponential' && lowestGrade < 0) {
-    throw new InputError('grades >= 0 for exponential gain (use --gain linear or a gain map)', undefined, undefined, String(lowestGrade));
   }
 }
 

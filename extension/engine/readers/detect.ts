@@ -54,7 +54,7 @@ export async function detectFormat(path: string, hints: DetectHints = {}): Promi
   const gzip = raw.length >= 2 && raw[0] === 0x1f && raw[1] === 0x8b;
   if (hints.format !== undefined) return { format: hints.format, gzip, directory: false };
   if (raw.length >= 4 && raw.toString('latin1', 0, 4) === 'PAR1') return { format: 'parquet', gzip: false, directory: false };
-  const head = gzip ? gunzipHead(raw) : raw;
+  const head = gzip ? gunzipHead(raw, path) : raw;
   if (head.length === 0) throw new InputError('a dump with a header and rows (the file is empty)', path);
   assertTextHead(head, path);
   const fromContent = strongContentFormat(head);
@@ -86,12 +86,15 @@ async function readStart(path: string): Promise<Buffer> {
   }
 }
 
-function gunzipHead(raw: Buffer): Buffer {
+/**
+ * The decompressed start of a gzip file. With a sync flush a stream cut short by the read is not an error,
+ * so any error here (bad header, bad block, wrong checksum) means the file is corrupt, not empty.
+ */
+function gunzipHead(raw: Buffer, path: string): Buffer {
   try {
     return gunzipSync(raw, { finishFlush: zc.Z_SYNC_FLUSH });
-  } catch {
-    // A corrupt stream is reported with its position when the whole file is read.
-    return Buffer.alloc(0);
+  } catch (err) {
+    throw new InputError('a readable gzip stream: the file is corrupt gzip', path, undefined, (err as Error).message);
   }
 }
 

@@ -4,6 +4,7 @@
  * - one list per line: `{"query": "q1", "items": [...], "labels": [...], "scores": [...]}` (equal lengths)
  * Every row of a list shares the list's line number and byte offset.
  */
+import { isWellFormedText } from './textCheck';
 import { InputError } from '../errors';
 import type { RankedDump } from '../model/dump';
 import { RowColumns } from './columns';
@@ -87,7 +88,7 @@ class JsonLinesParser {
     rows.line[row] = this.line;
     rows.offset[row] = offset;
     roles.segments.forEach((column, k) => {
-      rows.segmentIds[k]![row] = rows.segmentPools[k]!.internString(segmentText(obj[keys[column]!]));
+      rows.segmentIds[k]![row] = rows.segmentPools[k]!.internString(this.segment(obj[keys[column]!], keys[column]!, text));
     });
   }
 
@@ -114,7 +115,7 @@ class JsonLinesParser {
       rows.offset[row] = offset;
       roles.segments.forEach((column, k) => {
         const v = obj[keys[column]!];
-        rows.segmentIds[k]![row] = rows.segmentPools[k]!.internString(segmentText(Array.isArray(v) ? v[i] : v));
+        rows.segmentIds[k]![row] = rows.segmentPools[k]!.internString(this.segment(Array.isArray(v) ? v[i] : v, keys[column]!, text));
       });
     }
   }
@@ -132,9 +133,20 @@ class JsonLinesParser {
   }
 
   private id(v: unknown, key: string, text: string): string {
-    if (typeof v === 'string') return v;
+    if (typeof v === 'string') return this.wellFormed(v, key, text);
     if (typeof v === 'number' || typeof v === 'bigint') return String(v);
     throw new InputError(`a string or number in field '${key}'`, this.file, this.line, text);
+  }
+
+  /** Segment values are compared as UTF-8 like ids, so they obey the same rule. */
+  private segment(v: unknown, key: string, text: string): string {
+    return this.wellFormed(segmentText(v), key, text);
+  }
+
+  private wellFormed(v: string, key: string, text: string): string {
+    if (isWellFormedText(v)) return v;
+    throw new InputError(`text without lone UTF-16 surrogates in field '${key}' (an escape such as \\ud800 has no UTF-8 form; values are compared as UTF-8)`,
+      this.file, this.line, text);
   }
 
   private number(v: unknown, key: string, isScore: boolean, _text: string): number {

@@ -5,7 +5,8 @@
  */
 import { promises as fsp } from 'node:fs';
 import { join } from 'node:path';
-import { asyncBufferFromFile, parquetMetadataAsync, parquetRead, parquetSchema } from 'hyparquet';
+import { isUtf8 } from 'node:buffer';
+import { asyncBufferFromFile, parquetMetadataAsync, parquetRead, parquetSchema, type ParquetParsers } from 'hyparquet';
 import { compressors } from 'hyparquet-compressors';
 import { InputError } from '../errors';
 import type { FileStamp, RankedDump } from '../model/dump';
@@ -14,6 +15,7 @@ import type { ReadOptions } from './index';
 import { describeNonNumberText, parseNumberText } from './numbers';
 import { resolveRoles, type ResolvedRoles } from './roles';
 import { fileChangedError, statStamp, throwIfCancelled } from './source';
+import { escapeBytes } from './textCheck';
 
 type Values = ArrayLike<unknown>;
 
@@ -54,13 +56,13 @@ export async function readParquet(path: string, directory: boolean, options: Rea
       const values = new Map<string, unknown[]>();
       try {
         await parquetRead({
-          file, metadata, columns: wanted, rowStart: groupStart, rowEnd: groupEnd, compressors,
+          file, metadata, columns: wanted, rowStart: groupStart, rowEnd: groupEnd, compressors, parsers: STRICT_TEXT,
           onChunk: (chunk) => collect(values, chunk.columnName, chunk.columnData, chunk.rowStart, groupStart, groupEnd),
         });
       } catch (err) {
         throw new InputError('a readable Parquet file', part, undefined, (err as Error).message);
       }
-      storeGroup(rows, roles!, names, values, groupEnd - groupStart, part);
+      storeGroup(rows, roles!, names, values, groupEnd - groupStart, part, groupStart);
       groupStart = groupEnd;
       options.onProgress?.((p + groupStart / Math.max(1, Number(metadata.num_rows))) / parts.length);
     }
@@ -103,7 +105,8 @@ function collect(values: Map<string, unknown[]>, column: string, data: Values, r
   }
 }
 
-function storeGroup(rows: RowColumns, roles: ResolvedRoles, names: string[], values: Map<string, unknown[]>, count: number, file: string): void {
+function storeGroup(rows: RowColumns, roles: ResolvedRoles, names: string[], values: Map<string, unknown[]>, count: number, file: string,
+  firstRow: number): void {
   const get = (index: number): unknown[] => values.get(names[index]!) ?? [];
   const queries = get(roles.query);
   const items = get(roles.item);
@@ -113,27 +116,42 @@ function storeGroup(rows: RowColumns, roles: ResolvedRoles, names: string[], val
   const segments = roles.segments.map(get);
   for (let i = 0; i < count; i++) {
     const row = rows.next();
-    rows.query[row] = rows.queries.internString(idText(queries[i], names[roles.query]!, file));
-    rows.item[row] = rows.items.internString(idText(items[i], names[roles.item]!, file));
-    rows.label[row] = numberOf(labels[i], names[roles.label]!, false, file);
-    const score = numberOf(scores[i], names[roles.score >= 0 ? roles.score : roles.rank]!, true, file);
+    const at = firstRow + i;
+    rows.query[row] = rows.queries.internString(idText(queries[i], names[roles.query]!, file, at));
+    rows.item[row] = rows.items.internString(idText(items[i], names[roles.item]!, file, at));
+    rows.label[row] = numberOf(labels[i], names[roles.label]!, false, file, at);
+    const score = numberOf(scores[i], names[roles.score >= 0 ? roles.score : roles.rank]!, true, file, at);
     rows.score[row] = negate ? -score : score;
     rows.line[row] = 0;
     rows.offset[row] = -1;
     for (let k = 0; k < segments.length; k++) {
       const v = segments[k]![i];
-      rows.segmentIds[k]![row] = rows.segmentPools[k]!.internString(v === null || v === undefined ? '' : String(v));
+      rows.segmentIds[k]![row] = rows.segmentPools[k]!.internString(v === null || v === undefined ? '' : v instanceof NotUtf8 ? escapeBytes(v.bytes) : String(v));
     }
   }
 }
 
-function idText(v: unknown, column: string, file: string): string {
+/** Byte arrays that are not UTF-8 stay bytes (the default decoder would turn them into U+FFFD and merge ids). */
+class NotUtf8 {
+  constructor(readonly bytes: Uint8Array) {}
+}
+const strictDecoder = new TextDecoder('utf-8');
+const STRICT_TEXT = {
+  stringFromBytes: (bytes: Uint8Array | undefined) =>
+    bytes === undefined || bytes === null ? bytes : isUtf8(bytes) ? strictDecoder.decode(bytes) : new NotUtf8(bytes),
+} as unknown as Partial<ParquetParsers>;
+
+function idText(v: unknown, column: string, file: string, row: number): string {
   if (typeof v === 'string') return v;
+  if (v instanceof NotUtf8) {
+    throw new InputError(`UTF-8 text in column '${column}' in row ${row + 1} (ids are compared as text, so write them as UTF-8)`,
+      file, undefined, escapeBytes(v.bytes));
+  }
   if (typeof v === 'number' || typeof v === 'bigint') return String(v);
-  throw new InputError(`a string or number in column '${column}'`, file, undefined, String(v));
+  throw new InputError(`a string or number in column '${column}' in row ${row + 1}`, file, undefined, String(v));
 }
 
-function numberOf(v: unknown, column: string, isScore: boolean, file: string): number {
+function numberOf(v: unknown, column: string, isScore: boolean, file: string, row: number): number {
   if (v === null || v === undefined) return NaN;
   let kind: 'missing' | 'infinite' | 'invalid' = 'invalid';
   if (typeof v === 'number' || typeof v === 'bigint') {
@@ -146,5 +164,5 @@ function numberOf(v: unknown, column: string, isScore: boolean, file: string): n
     kind = Number.isNaN(n) ? describeNonNumberText(v) : 'infinite';
   }
   if (kind === 'missing' || (kind === 'infinite' && isScore)) return NaN;
-  throw new InputError(`a ${isScore ? '' : 'finite '}number in column '${column}'`, file, undefined, String(v));
+  throw new InputError(`a ${isScore ? '' : 'finite '}number in column '${column}' in row ${row + 1}`, file, undefined, String(v));
 }

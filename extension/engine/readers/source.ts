@@ -7,6 +7,7 @@ import { createReadStream, promises as fsp } from 'node:fs';
 import { createGunzip } from 'node:zlib';
 import { CancelledError, InputError } from '../errors';
 import type { FileStamp } from '../model/dump';
+import { assertTextHead, badByteError, firstBadByte, lineAt } from './textCheck';
 
 /** Takes complete records from buf[start, end) and returns where the first unconsumed record starts. */
 export interface RecordSink {
@@ -67,14 +68,31 @@ export async function readHead(path: string, bytes: number): Promise<Buffer> {
   }
 }
 
-/** Rejects content that is not text: NUL bytes or invalid UTF-8 within the first KB. */
-export function assertTextHead(head: Uint8Array, file: string): void {
-  const probe = head.subarray(0, 1024);
-  if (probe.includes(0)) throw new InputError('a text dump, but the first KB holds NUL bytes: binary data, not a text dump', file);
-  try {
-    new TextDecoder('utf-8', { fatal: true }).decode(probe, { stream: true });
-  } catch {
-    throw new InputError('a text dump, but the first KB is not valid UTF-8: binary data, not a text dump', file);
+export { assertTextHead } from './textCheck';
+
+/**
+ * Checks every byte of the text before the sink sees it (textCheck.ts): the complete lines of each chunk,
+ * then the rest at the end. On a bad byte, finds its line by counting newlines from `lineFrom` again.
+ */
+class TextGuard {
+  /** Text offset up to which every byte was checked. */
+  private checkedThrough = 0;
+
+  constructor(private readonly path: string, private readonly gzip: boolean, private readonly lineFrom: number) {
+    this.checkedThrough = lineFrom;
+  }
+
+  async check(buf: Buffer, start: number, end: number, base: number, final: boolean): Promise<void> {
+    const from = Math.max(start, this.checkedThrough - base);
+    if (from >= end) return;
+    const lastNewline = final ? end - 1 : buf.lastIndexOf(10, end - 1);
+    const cut = lastNewline >= from ? lastNewline + 1 : from;
+    const bad = firstBadByte(buf, from, cut, true);
+    if (bad >= 0) {
+      const line = await lineAt(this.path, this.gzip, this.lineFrom, base + bad);
+      throw badByteError(buf, bad, this.path, line, start);
+    }
+    this.checkedThrough = base + cut;
   }
 }
 
@@ -88,7 +106,8 @@ export async function pumpText(path: string, sink: RecordSink, options: PumpOpti
     const progress = { done: 0 };
     await feedChunks(gunzipChunks(path, progress), sink, path, options.signal, () => report(progress.done));
   } else {
-    await feedPlain(path, 0, Infinity, sink, { fileStart: path, signal: options.signal, onBytes: report, chunkBytes: options.chunkBytes });
+    await feedPlain(path, 0, Infinity, sink, { fileStart: path, signal: options.signal, onBytes: report, chunkBytes: options.chunkBytes,
+      guard: new TextGuard(path, false, 0) });
   }
   await checkUnchanged(path, stamp);
   options.onProgress?.(1);
@@ -101,7 +120,7 @@ export async function pumpText(path: string, sink: RecordSink, options: PumpOpti
  */
 export async function pumpRange(path: string, start: number, end: number, sink: RecordSink,
   onBytes: (done: number) => void, chunkBytes = sourceTuning.plainChunkBytes): Promise<void> {
-  await feedPlain(path, start, end, sink, { onBytes: (at) => onBytes(at - start), chunkBytes });
+  await feedPlain(path, start, end, sink, { onBytes: (at) => onBytes(at - start), chunkBytes, guard: new TextGuard(path, false, start) });
 }
 
 /**
@@ -111,7 +130,8 @@ export async function pumpRange(path: string, start: number, end: number, sink: 
  * record outgrows it), so reading makes no garbage however large the file.
  */
 async function feedPlain(path: string, from: number, to: number, sink: RecordSink,
-  options: { fileStart?: string; signal?: AbortSignal; onBytes: (position: number) => void; chunkBytes?: number | undefined }): Promise<void> {
+  options: { fileStart?: string; signal?: AbortSignal; onBytes: (position: number) => void; chunkBytes?: number | undefined;
+    guard: TextGuard }): Promise<void> {
   const fh = await fsp.open(path, 'r');
   const chunk = Math.max(16, options.chunkBytes ?? sourceTuning.plainChunkBytes);
   let room = chunk;
@@ -153,6 +173,7 @@ async function feedPlain(path: string, from: number, to: number, sink: RecordSin
       }
       first = false;
       const bufBase = base - (room - kept);
+      await options.guard.check(buf, start, end, bufBase, false);
       const consumed = sink.feed(buf, start, end, bufBase, false);
       const tail = end - consumed;
       base = bufBase + consumed;
@@ -175,6 +196,7 @@ async function feedPlain(path: string, from: number, to: number, sink: RecordSin
       cur = 1 - cur;
     }
     throwIfCancelled(options.signal);
+    await options.guard.check(buffers[cur]!, room - kept, room, base - (room - kept), true);
     sink.feed(buffers[cur]!, room - kept, room, base - (room - kept), true);
   } finally {
     await pending.catch(() => undefined);
@@ -189,6 +211,7 @@ async function feedChunks(chunks: AsyncIterable<Buffer>, sink: RecordSink, fileS
   let carryBase = 0;
   let nextBase = 0;
   let first = true;
+  const guard = new TextGuard(fileStart, true, 0);
   for await (const chunk of chunks) {
     throwIfCancelled(signal);
     let buf = chunk;
@@ -204,6 +227,7 @@ async function feedChunks(chunks: AsyncIterable<Buffer>, sink: RecordSink, fileS
       if (buf[0] === 0xef && buf[1] === 0xbb && buf[2] === 0xbf) start = 3;
     }
     first = false;
+    await guard.check(buf, start, buf.length, base, false);
     const consumed = sink.feed(buf, start, buf.length, base, false);
     carry = buf.subarray(consumed);
     carryBase = base + consumed;
@@ -211,6 +235,7 @@ async function feedChunks(chunks: AsyncIterable<Buffer>, sink: RecordSink, fileS
   }
   throwIfCancelled(signal);
   const rest = carry ?? Buffer.alloc(0);
+  await guard.check(rest, 0, rest.length, carryBase, true);
   sink.feed(rest, 0, rest.length, carryBase, true);
 }
 

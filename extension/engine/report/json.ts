@@ -30,6 +30,7 @@ export function formatJson(input: ReportInput): string {
       mean: jsonNumber(row.mean),
       counted: row.counted,
       conventions: conventionsAsJson(row.conventions),
+      ...(row.unavailable !== undefined ? { unavailable: row.unavailable } : {}),
     })),
     warnings: ev.warnings,
   };

@@ -35,12 +35,17 @@ export function formatTable(input: ReportInput, options: TableOptions): string {
 
   if (headline && ev.sensitivity.length > 0) {
     const rows: string[][] = [];
+    const why: string[] = [];
     for (const row of ev.sensitivity) {
-      rows.push([row.label, formatValue(row.mean), signed(row.mean - headline.mean), String(row.counted)]);
+      if (row.unavailable !== undefined) {
+        rows.push([row.label, 'n/a', '', String(row.counted)]);
+        why.push(`  n/a ${row.label}: ${row.unavailable}`);
+      } else rows.push([row.label, formatValue(row.mean), signed(row.mean - headline.mean), String(row.counted)]);
     }
     sections.push(
       `${headline.key} under other conventions\n` +
-        alignedTable(['convention', 'mean', 'change', 'queries'], rows, ['left', 'right', 'right', 'right']),
+        alignedTable(['convention', 'mean', 'change', 'queries'], rows, ['left', 'right', 'right', 'right']) +
+        why.map((w) => `\n${w}`).join(''),
     );
   }
 

@@ -106,7 +106,12 @@ export class OverviewScreen {
         ],
         rows: [
           [{ text: 'current settings' }, { text: formatFixed(num(headline.mean)), title: exactValue(num(headline.mean)) }, '', formatCount(headline.counted)],
-          ...model.sensitivity.map((s) => [
+          ...model.sensitivity.map((s) => s.unavailable !== undefined ? [
+            s.label,
+            { text: 'n/a', title: s.unavailable },
+            { text: '', title: s.unavailable },
+            formatCount(s.counted),
+          ] : [
             s.label,
             { text: formatFixed(num(s.mean)), title: exactValue(num(s.mean)) },
             { text: formatDelta(num(s.delta)), title: `${exactValue(num(s.delta))} (mean under "${s.label}" minus current mean)` },
