@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { bootstrapMeanIntervals, quantileSorted } from '../../extension/engine/compare/bootstrap';
-import { Xoshiro128 } from '../../extension/engine/compare/random';
+import { BOOTSTRAP_STREAM, bootstrapMeanIntervals, quantileSorted } from '../../extension/engine/compare/bootstrap';
+import { metricStream } from '../../extension/engine/compare/random';
 import { seededRandom } from '../reference/random';
 
 /**
@@ -10,7 +10,7 @@ import { seededRandom } from '../reference/random';
  */
 function slowWeightedInterval(x: number[], w: number[], resamples: number, seed: number): { low: number; high: number } {
   const n = x.length;
-  const rng = new Xoshiro128(seed);
+  const rng = metricStream(BOOTSTRAP_STREAM, seed, '');
   const counts = new Float64Array(n);
   const means: number[] = [];
   for (let r = 0; r < resamples; r++) {
