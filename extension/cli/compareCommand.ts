@@ -7,6 +7,7 @@ import { resolve } from 'node:path';
 import { compareRuns, DEFAULT_COMPARE_OPTIONS } from '../engine/compare/compare';
 import { withSideTables } from '../engine/tables/join';
 import { InputError } from '../engine/errors';
+import { formatDelta, formatP } from '../presentation/numbers';
 import { COMPARE_FORMATS, formatComparison, type CompareFormat } from '../engine/report/compareReport';
 import { conventionHelp, conventionOptions, parseCommandArgs, scoringSetupFrom } from './conventionArgs';
 import { UsageError } from './evalCommand';
@@ -94,8 +95,8 @@ export async function runCompare(argv: string[], io: CliIO): Promise<number> {
     const worse = headline.summary.meanDifference < 0 && headline.randomization.p <= alpha;
     if (worse) {
       io.err(
-        `gainline compare: B is worse than A on ${headline.key} (Δ ${headline.summary.meanDifference.toFixed(4)}, ` +
-          `randomization p ${headline.randomization.p.toPrecision(3)} <= ${alpha})\n`,
+        `gainline compare: B is worse than A on ${headline.key} (Δ ${formatDelta(headline.summary.meanDifference)}, ` +
+          `randomization p ${formatP(headline.randomization.p)} <= ${alpha})\n`,
       );
     }
     return worse ? 1 : 0;

@@ -5,14 +5,11 @@
  */
 import { parseArgs, type ParseArgsConfig } from 'node:util';
 import { InputError } from '../engine/errors';
+import { DEFAULT_CONVENTIONS, type Conventions } from '../engine/metrics/conventions';
+import { DEFAULT_METRICS, metricSyntax, type MetricSpec } from '../engine/metrics/registry';
+import { DEFAULT_CONVENTION_SETTINGS } from '../presentation/defaults';
 
 type ParseArgsOptionsConfig = NonNullable<ParseArgsConfig['options']>;
-import {
-  DEFAULT_CONVENTIONS,
-  DEFAULT_METRICS,
-  type Conventions,
-  type MetricSpec,
-} from '../engine/metrics/conventions';
 import type { DumpFormat } from '../engine/model/dump';
 import { parseColumnRoles, type ReadOptions } from '../engine/readers/index';
 import type { SideTableFiles } from '../engine/tables/join';
@@ -68,13 +65,14 @@ export const conventionHelp = `Input:
   --items FILE          item id -> title and attributes, shown in --query detail and JSON
   --threads N           threads for reading large text files and scoring large dumps (default: from the size)
 Metrics and conventions:
-  --metrics LIST        comma-separated; default ${DEFAULT_METRICS}
-  --gain G              exponential (2^g-1, default) | linear (g) | map:0=0,1=1,2=3,3=7
-  --ties T              average (default) | pessimistic | optimistic | file-order
-  --no-relevant P       queries with nothing relevant: skip (default) | zero | one
-  --relevant-from N     a grade >= N counts as relevant (default 1)
+  --metrics LIST        comma-separated, first = headline; default ${DEFAULT_METRICS}
+                        keys: ${metricSyntax()}
+  --gain G              exponential (2^g-1) | linear (g) | map:0=0,1=1,2=3,3=7 (default ${DEFAULT_CONVENTION_SETTINGS.gain})
+  --ties T              average | pessimistic | optimistic | file-order (default ${DEFAULT_CONVENTION_SETTINGS.ties})
+  --no-relevant P       queries with nothing relevant: skip | zero | one (default ${DEFAULT_CONVENTION_SETTINGS.noRelevant})
+  --relevant-from N     a grade >= N counts as relevant (default ${DEFAULT_CONVENTION_SETTINGS.relevantFrom})
   --max-grade N         highest grade for ERR (default: highest grade in the data)
-  --rbp-persistence P   RBP persistence, 0 < P < 1 (default 0.8)
+  --rbp-persistence P   RBP persistence, 0 < P < 1 (default ${DEFAULT_CONVENTION_SETTINGS.rbpPersistence})
 `;
 
 const INPUT_FORMATS: readonly DumpFormat[] = ['csv', 'tsv', 'jsonl', 'run', 'svmlight', 'parquet'];

@@ -4,7 +4,9 @@
  * A bad value never stops the viewer: it falls back to the default and is reported in `problems`.
  */
 import { DEFAULT_CONVENTIONS, type Conventions, type NoRelevantPolicy, type TieConvention } from '../engine/metrics/conventions';
-import { formatGain, parseGain } from '../engine/metrics/parse';
+import { parseGain, parseMetricList } from '../engine/metrics/parse';
+import { describeConventions } from '../presentation/conventionsLine';
+import { DEFAULT_COMPARE_SETTINGS, DEFAULT_CONVENTION_SETTINGS, DEFAULT_METRIC_KEYS } from '../presentation/defaults';
 import type { CompareSettings, EvaluationSettings } from '../protocol/worker';
 import { globToRegExp } from './glob';
 
@@ -24,9 +26,7 @@ export interface SideFiles {
 const SIDE_FILE_KEYS = ['judgments', 'queries', 'items'] as const;
 
 export interface GainlineConfig {
-  /** Cut-offs, first = headline: [10, 5] → ndcg@10 (headline), ndcg@5, err@10, p@10, p@5, ... */
-  readonly cutoffs: readonly number[];
-  /** The metric list derived from the cut-offs, as the engine parses it. */
+  /** The metric list, comma-separated as the engine parses it; the first is the headline. */
   readonly metrics: string;
   readonly conventions: Conventions;
   /** Glob on the file path → column mapping for dumps whose headers are not recognised. */
@@ -46,21 +46,20 @@ export interface GainlineConfig {
   readonly problems: readonly string[];
 }
 
+/** The shared defaults (presentation/defaults.ts, also the CLI's) plus the editor's own file settings. */
 export const CONFIG_DEFAULTS = {
-  cutoffs: [10, 5],
-  gain: 'exponential',
-  ties: 'average' as TieConvention,
-  noRelevant: 'skip' as NoRelevantPolicy,
-  relevantFrom: 1,
-  rbpPersistence: 0.8,
+  metrics: DEFAULT_METRIC_KEYS,
+  gain: DEFAULT_CONVENTION_SETTINGS.gain,
+  ties: DEFAULT_CONVENTION_SETTINGS.ties as TieConvention,
+  noRelevant: DEFAULT_CONVENTION_SETTINGS.noRelevant as NoRelevantPolicy,
+  relevantFrom: DEFAULT_CONVENTION_SETTINGS.relevantFrom,
+  rbpPersistence: DEFAULT_CONVENTION_SETTINGS.rbpPersistence,
   dumpGlob: '**/*.{csv,tsv,jsonl,parquet,run,gz}',
   dumpExclude: '**/node_modules/**',
-  permutations: 10_000,
-  // Same as the engine's DEFAULT_COMPARE_OPTIONS.bootstrap (a test holds them equal); not imported so the
-  // extension host bundle stays free of the statistics code.
-  bootstrapResamples: 2_000,
-  seed: 1,
-  tieTolerance: 1e-9,
+  permutations: DEFAULT_COMPARE_SETTINGS.permutations,
+  bootstrapResamples: DEFAULT_COMPARE_SETTINGS.bootstrap,
+  seed: DEFAULT_COMPARE_SETTINGS.seed,
+  tieTolerance: DEFAULT_COMPARE_SETTINGS.tieTolerance,
 } as const;
 
 const TIES: readonly TieConvention[] = ['average', 'pessimistic', 'optimistic', 'file-order'];
@@ -68,7 +67,7 @@ const POLICIES: readonly NoRelevantPolicy[] = ['skip', 'zero', 'one'];
 
 /** Settings whose change means open views must be recomputed. */
 export const RECOMPUTE_KEYS = [
-  'cutoffs', 'gain', 'ties', 'noRelevant', 'relevantFrom', 'rbpPersistence', 'maxGrade', 'columnsByPattern', 'sideFilesByPattern',
+  'metrics', 'cutoffs', 'gain', 'ties', 'noRelevant', 'relevantFrom', 'rbpPersistence', 'maxGrade', 'columnsByPattern', 'sideFilesByPattern',
   'compare.permutations', 'compare.bootstrapResamples', 'compare.seed', 'compare.tieTolerance',
 ] as const;
 
@@ -92,7 +91,7 @@ export function readConfig(get: SettingGetter): GainlineConfig {
     return fallback;
   };
 
-  const cutoffs = readCutoffs(get('cutoffs'), reject);
+  const metrics = readMetrics(get('metrics'), get('cutoffs'), reject, problems);
   const gainText = get('gain');
   let gain = DEFAULT_CONVENTIONS.gain;
   if (gainText !== undefined && gainText !== null) {
@@ -117,8 +116,7 @@ export function readConfig(get: SettingGetter): GainlineConfig {
   };
 
   return {
-    cutoffs,
-    metrics: metricsForCutoffs(cutoffs),
+    metrics,
     conventions,
     columnsByPattern: readColumnsByPattern(get('columnsByPattern'), reject),
     sideFilesByPattern: readSideFilesByPattern(get('sideFilesByPattern'), reject),
@@ -143,16 +141,40 @@ export function metricsForCutoffs(cutoffs: readonly number[]): string {
   return [...at('ndcg'), `err@${first}`, 'ap', 'rr', ...at('p'), ...at('r'), 'rbp', 'tau'].join(',');
 }
 
-function readCutoffs(value: unknown, reject: (k: string, e: string, v: unknown) => void): number[] {
-  if (value === undefined || value === null) return [...CONFIG_DEFAULTS.cutoffs];
+/**
+ * `gainline.metrics` (keys, first = headline). The older `gainline.cutoffs` is still read while
+ * `gainline.metrics` is left at its default, and the note says what it became.
+ */
+function readMetrics(value: unknown, cutoffsValue: unknown, reject: (k: string, e: string, v: unknown) => void,
+  problems: string[]): string {
+  const fallback = CONFIG_DEFAULTS.metrics.join(',');
+  let metrics = fallback;
+  if (value !== undefined && value !== null) {
+    const keys = Array.isArray(value) && value.every((k) => typeof k === 'string') ? (value as string[]) : undefined;
+    try {
+      if (!keys) throw new Error('not a list of strings');
+      metrics = parseMetricList(keys.join(',')).map((m) => m.key).join(',');
+    } catch {
+      reject('metrics', 'a non-empty list of distinct metric keys, e.g. ["ndcg@10", "hit@5", "ap"]', value);
+    }
+  }
+  if (cutoffsValue === undefined || cutoffsValue === null) return metrics;
+  if (metrics !== fallback) {
+    problems.push('gainline.cutoffs: replaced by gainline.metrics, which is set; gainline.cutoffs is ignored');
+    return metrics;
+  }
   const ok =
-    Array.isArray(value) &&
-    value.length > 0 &&
-    value.every((k) => typeof k === 'number' && Number.isInteger(k) && k >= 1) &&
-    new Set(value).size === value.length;
-  if (ok) return value as number[];
-  reject('cutoffs', 'a non-empty list of distinct whole numbers >= 1, e.g. [10, 5]', value);
-  return [...CONFIG_DEFAULTS.cutoffs];
+    Array.isArray(cutoffsValue) &&
+    cutoffsValue.length > 0 &&
+    cutoffsValue.every((k) => typeof k === 'number' && Number.isInteger(k) && k >= 1) &&
+    new Set(cutoffsValue).size === cutoffsValue.length;
+  if (!ok) {
+    reject('cutoffs', 'a non-empty list of distinct whole numbers >= 1, e.g. [10, 5] (better: set gainline.metrics)', cutoffsValue);
+    return metrics;
+  }
+  const derived = metricsForCutoffs(cutoffsValue as number[]);
+  problems.push(`gainline.cutoffs: replaced by gainline.metrics; read as ${JSON.stringify(derived.split(','))}`);
+  return derived;
 }
 
 function readColumnsByPattern(value: unknown, reject: (k: string, e: string, v: unknown) => void): Record<string, ColumnMapping> {
@@ -230,15 +252,5 @@ export function compareSettings(config: GainlineConfig): CompareSettings {
   return { ...evaluationSettings(config), ...config.compare };
 }
 
-/** One line for tooltips: "gain exponential · ties average · no relevant: skip · relevant ≥ 1 · RBP p=0.8". */
-export function conventionsLine(c: Conventions): string {
-  const parts = [
-    `gain ${formatGain(c.gain)}`,
-    `ties ${c.ties}`,
-    `no relevant: ${c.noRelevant}`,
-    `relevant ≥ ${c.relevantFrom}`,
-    `RBP p=${c.rbpPersistence}`,
-  ];
-  if (c.maxGrade !== undefined) parts.push(`ERR max grade ${c.maxGrade}`);
-  return parts.join(' · ');
-}
+/** The conventions line for tooltips: the same wording as every report (presentation module). */
+export const conventionsLine = describeConventions;

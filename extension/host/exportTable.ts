@@ -5,6 +5,7 @@
 import { csvField } from '../engine/report/csv';
 import { markdownTable, type Align } from '../engine/report/textTable';
 import type { ExportViewParams } from '../protocol/messages';
+import { formatDelta, formatFixed, MISSING } from '../presentation/numbers';
 
 type Cell = string | number | null;
 
@@ -13,7 +14,7 @@ function cellText(cell: Cell, format: 'markdown' | 'csv'): string {
   if (cell === null) return '';
   if (typeof cell === 'number') {
     if (!Number.isFinite(cell)) return '';
-    return format === 'markdown' && !Number.isInteger(cell) ? cell.toFixed(4) : String(cell);
+    return format === 'markdown' && !Number.isInteger(cell) ? formatFixed(cell, 4) : String(cell);
   }
   return cell;
 }
@@ -47,8 +48,8 @@ export function suggestedFileName(title: string, format: 'markdown' | 'csv'): st
   return `${stem}.${format === 'csv' ? 'csv' : 'md'}`;
 }
 
-/** "NDCG@10 0.6123" — four decimals like the overview; "—" when no query counted; "+" on gains when signed. */
+/** "NDCG@10 0.6123" — four decimals like the overview; "—" when no query counted; signed for a difference. */
 export function formatHeadline(label: string, value: number | null, signed = false): string {
-  if (value === null || !Number.isFinite(value)) return `${label} —`;
-  return `${label} ${signed && value > 0 ? '+' : ''}${value.toFixed(4)}`;
+  if (value === null || !Number.isFinite(value)) return `${label} ${MISSING}`;
+  return `${label} ${signed ? formatDelta(value) : formatFixed(value, 4)}`;
 }

@@ -4,10 +4,13 @@
  */
 import { basename } from 'node:path';
 import type { RankedDump } from '../engine/model/dump';
-import type { Conventions, MetricSpec } from '../engine/metrics/conventions';
+import type { Conventions } from '../engine/metrics/conventions';
+import type { MetricSpec } from '../engine/metrics/registry';
 import type { Evaluation, QueryDetail } from '../engine/evaluate/types';
 import { segmentBreakdown } from '../engine/evaluate/segments';
-import { describeConventions } from '../engine/report/reportInput';
+import { describeConventions, describeGain } from '../presentation/conventionsLine';
+import { metricLabel as labelOfKey } from '../presentation/metricText';
+import { metricRange } from '../engine/metrics/registry';
 import type { QueryMovement } from '../engine/compare/movement';
 import type {
   ConventionsView,
@@ -21,21 +24,14 @@ import type {
 } from '../protocol/messages';
 import { toMaybe, type QueryTable } from './queryTable';
 
-/** 'ndcg@10' → 'NDCG@10', 'tau' → 'Kendall τ'. */
+/** 'ndcg@10' → 'NDCG@10', 'tau' → "Kendall's τ": the registry's label (presentation module). */
 export function metricLabel(spec: MetricSpec): string {
-  if (spec.name === 'tau') return 'Kendall τ';
-  return spec.k === undefined ? spec.name.toUpperCase() : `${spec.name.toUpperCase()}@${spec.k}`;
+  return labelOfKey(spec.key);
 }
 
 export function conventionsView(c: Conventions): ConventionsView {
-  const gain =
-    c.gain.kind === 'exponential'
-      ? 'exponential (2^g − 1)'
-      : c.gain.kind === 'linear'
-        ? 'linear (g)'
-        : 'map ' + [...c.gain.gains].sort((a, b) => a[0] - b[0]).map(([g, v]) => `${g}→${v}`).join(', ');
   return {
-    gain,
+    gain: describeGain(c.gain),
     ties: c.ties,
     noRelevant: c.noRelevant,
     relevantFrom: c.relevantFrom,
@@ -57,15 +53,27 @@ export function fileInfo(dump: RankedDump): FileInfo {
   };
 }
 
-/** 10 equal bins over [0, 1]; values outside (DCG-like metrics are not bounded) are clamped to the ends. */
-export function histogram(values: Float64Array, bins = 10): Histogram {
+/**
+ * 10 equal bins over the metric's range from the registry ([0, 1], tau's [-1, 1]); a metric unbounded
+ * above (DCG) gets [min(0, lowest value), highest value]. The last bin includes its upper end.
+ */
+export function histogram(values: Float64Array, range?: readonly [number, number], bins = 10): Histogram {
+  let [lower, upper] = range ?? [0, -Infinity];
+  if (!range) {
+    for (const v of values) {
+      if (!Number.isFinite(v)) continue;
+      if (v < lower) lower = v;
+      if (v > upper) upper = v;
+    }
+    if (!(upper > lower)) upper = lower + 1;
+  }
   const counts = new Array<number>(bins).fill(0);
   for (const v of values) {
     if (!Number.isFinite(v)) continue;
-    const bin = Math.min(bins - 1, Math.max(0, Math.floor(v * bins)));
+    const bin = Math.min(bins - 1, Math.max(0, Math.floor(((v - lower) / (upper - lower)) * bins)));
     counts[bin]!++;
   }
-  return { lower: 0, upper: 1, counts };
+  return { lower, upper, counts };
 }
 
 export function metricColumns(evaluation: Evaluation): MetricColumn[] {
@@ -93,7 +101,7 @@ export function overviewModel(dump: RankedDump, evaluation: Evaluation, loadMs: 
       ...(row.unavailable !== undefined ? { unavailable: row.unavailable } : {}),
     })),
     degenerate: { ...evaluation.degenerate },
-    histogram: histogram(evaluation.perQuery.values[evaluation.headline]!),
+    histogram: histogram(evaluation.perQuery.values[evaluation.headline]!, metricRange(evaluation.metrics[evaluation.headline]!)),
     segmentColumns: dump.segments.map((s) => s.name),
     warnings: [...evaluation.warnings, ...dump.notes.messages],
     loadMs: Math.round(loadMs),

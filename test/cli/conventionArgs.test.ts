@@ -1,7 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { scoringSetupFrom } from '../../extension/cli/conventionArgs';
 import { InputError } from '../../extension/engine/errors';
-import { DEFAULT_CONVENTIONS, DEFAULT_METRICS } from '../../extension/engine/metrics/conventions';
+import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
+import { DEFAULT_METRICS } from '../../extension/engine/metrics/registry';
 
 function inputErrorOf(run: () => unknown): InputError {
   try {

@@ -29,9 +29,11 @@ async function input() {
 describe('comparison reports', () => {
   it('number formats', () => {
     expect(formatDelta(0.01234)).toBe('+0.0123');
-    expect(formatDelta(-0.5)).toBe('−0.5000');
-    expect(formatDelta(1e-7)).toBe(' 0.0000');
-    expect(formatInterval(-0.25, 0.5)).toBe('[−0.2500, +0.5000]');
+    expect(formatDelta(-0.5)).toBe('-0.5000');
+    // A tiny difference keeps its sign; exactly zero has none (the shared presentation rule).
+    expect(formatDelta(1e-7)).toBe('+0.0000');
+    expect(formatDelta(0)).toBe('0.0000');
+    expect(formatInterval(-0.25, 0.5)).toBe('[-0.2500, +0.5000]');
     expect(formatP(0.00001)).toBe('<0.0001');
     expect(formatP(Number.NaN)).toBe('—');
   });
@@ -40,7 +42,7 @@ describe('comparison reports', () => {
     const text = formatComparison('table', await input(), { top: 5 });
     // mean P@1: A = 2/4, B = 3/4, Δ = +0.25; 2 wins, 1 tie, 1 loss.
     expect(text).toMatch(/^ {2}p@1 +0\.5000 +0\.7500 +\+0\.2500 .* 2 \/ 1 \/ 1 +4$/m);
-    expect(text).toMatch(/Largest drops in p@1\n.*\n +1 +cordless drill 18v +1\.0000 +0\.0000 +−1\.0000/);
+    expect(text).toMatch(/Largest drops in p@1\n.*\n +1 +cordless drill 18v +1\.0000 +0\.0000 +-1\.0000/);
     expect(text).toMatch(/Largest gains in p@1\n.*\n +1 +wood screws 4x40 .*\n +2 +spirit level 60cm/);
   });
 

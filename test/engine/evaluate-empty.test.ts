@@ -2,7 +2,8 @@
 import { describe, expect, it } from 'vitest';
 import { evaluate } from '../../extension/engine/evaluate/evaluate';
 import { queryDetail } from '../../extension/engine/evaluate/detail';
-import { DEFAULT_CONVENTIONS, DEFAULT_METRICS } from '../../extension/engine/metrics/conventions';
+import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
+import { DEFAULT_METRICS } from '../../extension/engine/metrics/registry';
 import { parseMetricList } from '../../extension/engine/metrics/parse';
 import { MapStringPool } from '../../extension/engine/model/stringPool';
 import { buildDump, queryRows } from './dumpBuilder';

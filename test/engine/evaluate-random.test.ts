@@ -8,12 +8,21 @@ import { evaluate, gradeRange } from '../../extension/engine/evaluate/evaluate';
 import type { Conventions, GainConvention, TieConvention } from '../../extension/engine/metrics/conventions';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
 import { parseMetricList } from '../../extension/engine/metrics/parse';
+import { METRIC_DEFINITIONS, metricRange } from '../../extension/engine/metrics/registry';
 import { headlineCutoff } from '../../extension/engine/evaluate/scorer';
 import { buildDump, type TestRow } from './dumpBuilder';
 import { seededRandom, QUERY_NAMES } from '../reference/random';
-import { slowQuery, type SlowItem } from '../reference/slowMetrics';
+import { SLOW_REFERENCES, slowQuery, type SlowItem } from '../reference/slowMetrics';
 
-const METRICS = parseMetricList('ndcg@3,dcg,ndcg,err@4,err,p@2,p,r@3,ap,rr,rr@2,rbp,rbp@3,tau,dcg@5');
+/**
+ * Every metric of the registry, on the whole list and at two cut-offs that cut into the random lists
+ * (1 to 7 items, many ties), so a new registry entry is checked here without touching this file.
+ */
+const METRICS = parseMetricList(
+  ['ndcg@3', ...METRIC_DEFINITIONS.flatMap((d) => (d.cutoff === 'none' ? [d.name] : [d.name, `${d.name}@2`, `${d.name}@4`]))]
+    .filter((key, i, all) => all.indexOf(key) === i)
+    .join(','),
+);
 const GAINS: GainConvention[] = [
   { kind: 'exponential' },
   { kind: 'linear' },
@@ -50,6 +59,10 @@ function close(actual: number, expected: number, what: string): void {
 }
 
 describe('evaluate() against the slow reference', () => {
+  it('has a slow reference for every metric of the registry, and no other', () => {
+    expect(Object.keys(SLOW_REFERENCES).sort()).toEqual(METRIC_DEFINITIONS.map((d) => d.name).sort());
+  });
+
   let seed = 1;
   for (const gain of GAINS) {
     for (const ties of TIES) {
@@ -69,6 +82,12 @@ describe('evaluate() against the slow reference', () => {
             const q = dump.queries.find(query);
             const slow = slowQuery(items, METRICS, conventions, gmax, hk);
             METRICS.forEach((m, i) => close(evaluation.perQuery.values[i]![q]!, slow.values[m.key]!, `${query} ${m.key}`));
+            // Every value lies in the range the registry states (the editor's chart axes rely on it).
+            METRICS.forEach((m, i) => {
+              const v = evaluation.perQuery.values[i]![q]!;
+              const range = metricRange(m);
+              if (range && !Number.isNaN(v)) expect(v >= range[0] - 1e-12 && v <= range[1] + 1e-12, `${query} ${m.key} = ${v}`).toBe(true);
+            });
             const skipped = slow.noRelevant && noRelevant === 'skip';
             close(evaluation.perQuery.rbpResidual![q]!, slow.values['rbp_residual']!, `${query} rbp_residual`);
             close(evaluation.perQuery.inversions[q]!, skipped ? NaN : slow.discordant, `${query} inversions`);

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { InputError } from '../../extension/engine/errors';
-import { DEFAULT_METRICS } from '../../extension/engine/metrics/conventions';
+import { DEFAULT_METRICS } from '../../extension/engine/metrics/registry';
 import { formatGain, parseGain, parseMetricList, parseNoRelevant, parseTies } from '../../extension/engine/metrics/parse';
 import { groupByQuery } from '../../extension/engine/model/groups';
 import { buildDump } from './dumpBuilder';
@@ -22,7 +22,7 @@ describe('parseMetricList', () => {
   it('accepts spaces and upper case, keys are lower case', () => {
     expect(parseMetricList(' NDCG@5 , dcg').map((m) => m.key)).toEqual(['ndcg@5', 'dcg']);
   });
-  it.each(['ndcg@0', 'mrr', 'ndcg@x', 'tau@5', 'ap@10', '', 'ndcg@10,ndcg@10', 'p@-1'])('rejects %j', (text) => {
+  it.each(['ndcg@0', 'mrr', 'ndcg@x', 'tau@5', 'hit@0', '', 'ndcg@10,ndcg@10', 'p@-1'])('rejects %j', (text) => {
     expect(() => parseMetricList(text)).toThrow(InputError);
   });
 });

@@ -7,6 +7,7 @@ import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions'
 import { parseMetricList } from '../../extension/engine/metrics/parse';
 import { CompareTable, outcomeOf } from '../../extension/worker/compareTable';
 import { conventionsView, histogram, metricLabel } from '../../extension/worker/viewModels';
+import { metricRange } from '../../extension/engine/metrics/registry';
 import { seededRandom } from '../reference/random';
 
 const WORDS = ['drill', 'screws', 'hammer', 'hose', 'ladder', 'paint', 'hinge', 'sealant'];
@@ -93,18 +94,28 @@ describe('CompareTable', () => {
 describe('view models', () => {
   it('labels metrics the way the trade writes them', () => {
     expect(parseMetricList('ndcg@10,err@10,ap,rr,p@5,r@10,rbp,tau').map(metricLabel)).toEqual([
-      'NDCG@10', 'ERR@10', 'AP', 'RR', 'P@5', 'R@10', 'RBP', 'Kendall τ',
+      'NDCG@10', 'ERR@10', 'AP', 'RR', 'P@5', 'R@10', 'RBP', "Kendall's τ",
     ]);
   });
 
   it('bins the headline into ten bins with 1.0 in the last and skipped queries left out', () => {
-    const h = histogram(Float64Array.of(0, 0.05, 0.1, 0.95, 1, NaN, 1.7));
+    const h = histogram(Float64Array.of(0, 0.05, 0.1, 0.95, 1, NaN, 1.7), [0, 1]);
     expect(h.counts).toEqual([2, 1, 0, 0, 0, 0, 0, 0, 0, 3]);
+  });
+
+  it('bins over the metric\'s range from the registry: tau over [-1, 1], DCG over the data', () => {
+    // Bins of width 0.2 from -1: -0.05 falls in [-0.2, 0), 0 in [0, 0.2), 1 in the last (closed) bin.
+    const tau = histogram(Float64Array.of(-1, -0.05, 0, 1), metricRange(parseMetricList('tau')[0]!));
+    expect(tau).toEqual({ lower: -1, upper: 1, counts: [1, 0, 0, 0, 1, 1, 0, 0, 0, 1] });
+    expect(metricRange(parseMetricList('dcg@10')[0]!)).toBeUndefined();
+    const dcg = histogram(Float64Array.of(0, 2.5, 5, NaN));
+    expect(dcg).toEqual({ lower: 0, upper: 5, counts: [1, 0, 0, 0, 0, 1, 0, 0, 0, 1] });
+    expect(histogram(Float64Array.of(0, 0))).toEqual({ lower: 0, upper: 1, counts: [2, 0, 0, 0, 0, 0, 0, 0, 0, 0] });
   });
 
   it('describes a gain map in order and turns Maps into plain JSON', () => {
     const view = conventionsView({ ...DEFAULT_CONVENTIONS, gain: { kind: 'map', gains: new Map([[2, 3], [0, 0], [1, 1]]) } });
-    expect(view.gain).toBe('map 0→0, 1→1, 2→3');
+    expect(view.gain).toBe('map 0=0,1=1,2=3'); // the conventions line's wording (presentation module)
     expect(JSON.parse(JSON.stringify(view))).toEqual(view);
     expect(view.maxGrade).toBeNull();
   });

@@ -10,6 +10,8 @@ import { globToRegExp } from '../../extension/host/glob';
 import { DEFAULT_COMPARE_OPTIONS } from '../../extension/engine/compare/compare';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
 import { parseMetricList } from '../../extension/engine/metrics/parse';
+import { DEFAULT_METRICS } from '../../extension/engine/metrics/registry';
+import { DEFAULT_COMPARE_SETTINGS, DEFAULT_CONVENTION_SETTINGS, DEFAULT_METRIC_KEYS } from '../../extension/presentation/defaults';
 
 const from = (settings: Record<string, unknown>) => (key: string) => settings[key];
 
@@ -18,8 +20,7 @@ describe('readConfig', () => {
     const config = readConfig(from({}));
     expect(config.problems).toEqual([]);
     expect(config.conventions).toEqual(DEFAULT_CONVENTIONS);
-    expect(config.cutoffs).toEqual([10, 5]);
-    expect(config.metrics.split(',')[0]).toBe('ndcg@10');
+    expect(config.metrics).toBe(DEFAULT_METRICS);
     expect(config.dumpGlob).toBe(CONFIG_DEFAULTS.dumpGlob);
     expect(config.compare).toEqual({ permutations: 10_000, bootstrapResamples: 2000, seed: 1, tieTolerance: 1e-9 });
   });
@@ -27,7 +28,7 @@ describe('readConfig', () => {
   it('reads every convention', () => {
     const config = readConfig(
       from({
-        cutoffs: [20, 3],
+        metrics: ['NDCG@20', 'hit@3', 'judged@20', 'ap@100'],
         gain: 'map:0=0,1=1,2=3',
         ties: 'pessimistic',
         noRelevant: 'zero',
@@ -43,15 +44,15 @@ describe('readConfig', () => {
     expect(config.problems).toEqual([]);
     expect(config.conventions.gain).toEqual({ kind: 'map', gains: new Map([[0, 0], [1, 1], [2, 3]]) });
     expect(config.conventions).toMatchObject({ ties: 'pessimistic', noRelevant: 'zero', relevantFrom: 2, rbpPersistence: 0.95, maxGrade: 4 });
-    expect(config.metrics.startsWith('ndcg@20,ndcg@3,err@20,')).toBe(true);
+    expect(config.metrics).toBe('ndcg@20,hit@3,judged@20,ap@100');
     expect(config.compare).toEqual({ permutations: 2000, bootstrapResamples: 0, seed: 7, tieTolerance: 0.001 });
   });
 
   it('falls back per setting and says which one was ignored', () => {
     const config = readConfig(
-      from({ cutoffs: [0], gain: 'cubic', ties: 'random', rbpPersistence: 1, 'compare.permutations': 3, 'compare.bootstrapResamples': 2.5, maxGrade: -1 }),
+      from({ metrics: ['ndcg@0'], gain: 'cubic', ties: 'random', rbpPersistence: 1, 'compare.permutations': 3, 'compare.bootstrapResamples': 2.5, maxGrade: -1 }),
     );
-    expect(config.cutoffs).toEqual([10, 5]);
+    expect(config.metrics).toBe(DEFAULT_METRICS);
     expect(config.conventions.gain).toEqual({ kind: 'exponential' });
     expect(config.conventions.ties).toBe('average');
     expect(config.conventions.rbpPersistence).toBe(0.8);
@@ -60,7 +61,7 @@ describe('readConfig', () => {
     expect(config.compare.bootstrapResamples).toBe(2000);
     const keys = config.problems.map((p) => p.split(':')[0]);
     expect(keys.sort()).toEqual(
-      ['gainline.compare.bootstrapResamples', 'gainline.compare.permutations', 'gainline.cutoffs', 'gainline.gain', 'gainline.maxGrade', 'gainline.rbpPersistence', 'gainline.ties'].sort(),
+      ['gainline.compare.bootstrapResamples', 'gainline.compare.permutations', 'gainline.metrics', 'gainline.gain', 'gainline.maxGrade', 'gainline.rbpPersistence', 'gainline.ties'].sort(),
     );
   });
 
@@ -73,10 +74,47 @@ describe('readConfig', () => {
     expect(DEFAULT_COMPARE_OPTIONS.bootstrap).toBe(2000);
   });
 
-  it('rejects duplicate cut-offs and non-integers', () => {
-    expect(readConfig(from({ cutoffs: [10, 10] })).problems).toHaveLength(1);
-    expect(readConfig(from({ cutoffs: [2.5] })).problems).toHaveLength(1);
-    expect(readConfig(from({ cutoffs: 'ten' })).problems).toHaveLength(1);
+  it('rejects duplicate metrics, unknown keys and non-lists', () => {
+    expect(readConfig(from({ metrics: ['ap', 'AP'] })).problems).toHaveLength(1);
+    expect(readConfig(from({ metrics: ['mrr'] })).problems).toHaveLength(1);
+    expect(readConfig(from({ metrics: 'ndcg@10' })).problems).toHaveLength(1);
+    expect(readConfig(from({ metrics: [] })).problems).toHaveLength(1);
+  });
+
+  it('still reads the older cut-offs setting while the metric list is at its default, and says so', () => {
+    const config = readConfig(from({ cutoffs: [20, 3] }));
+    expect(config.metrics).toBe('ndcg@20,ndcg@3,err@20,ap,rr,p@20,p@3,r@20,r@3,rbp,tau');
+    expect(config.problems).toHaveLength(1);
+    expect(config.problems[0]).toMatch(/^gainline\.cutoffs: replaced by gainline\.metrics/);
+    const both = readConfig(from({ cutoffs: [20], metrics: ['hit@5'] }));
+    expect(both.metrics).toBe('hit@5');
+    expect(both.problems[0]).toContain('ignored');
+    expect(readConfig(from({ cutoffs: [10, 10] })).problems[0]).toContain('distinct whole numbers');
+  });
+
+  it('has every setting default of the manifest equal to the shared presentation defaults', async () => {
+    const manifest = (await import('../../package.json')).default as {
+      contributes: { configuration: { properties: Record<string, { default?: unknown }> } };
+    };
+    const defaults = Object.fromEntries(Object.entries(manifest.contributes.configuration.properties).map(([k, v]) => [k, v.default]));
+    expect(defaults['gainline.metrics']).toEqual([...DEFAULT_METRIC_KEYS]);
+    expect(defaults['gainline.metrics']).toEqual(DEFAULT_METRICS.split(','));
+    expect(defaults['gainline.gain']).toBe(DEFAULT_CONVENTION_SETTINGS.gain);
+    expect(defaults['gainline.ties']).toBe(DEFAULT_CONVENTION_SETTINGS.ties);
+    expect(defaults['gainline.noRelevant']).toBe(DEFAULT_CONVENTION_SETTINGS.noRelevant);
+    expect(defaults['gainline.relevantFrom']).toBe(DEFAULT_CONVENTION_SETTINGS.relevantFrom);
+    expect(defaults['gainline.rbpPersistence']).toBe(DEFAULT_CONVENTION_SETTINGS.rbpPersistence);
+    expect(defaults['gainline.maxGrade']).toBeNull();
+    expect(defaults['gainline.cutoffs']).toBeNull();
+    expect(defaults['gainline.dumpGlob']).toBe(CONFIG_DEFAULTS.dumpGlob);
+    expect(defaults['gainline.compare.permutations']).toBe(DEFAULT_COMPARE_OPTIONS.permutations);
+    expect(defaults['gainline.compare.bootstrapResamples']).toBe(DEFAULT_COMPARE_OPTIONS.bootstrap);
+    expect(defaults['gainline.compare.seed']).toBe(DEFAULT_COMPARE_OPTIONS.seed);
+    expect(defaults['gainline.compare.tieTolerance']).toBe(DEFAULT_COMPARE_OPTIONS.tieTolerance);
+    // The engine's conventions are the same defaults, and so is what readConfig gives with nothing set.
+    expect(readConfig(from({})).conventions).toEqual(DEFAULT_CONVENTIONS);
+    const { permutations, bootstrap, seed, tieTolerance } = DEFAULT_COMPARE_SETTINGS;
+    expect(readConfig(from({})).compare).toEqual({ permutations, bootstrapResamples: bootstrap, seed, tieTolerance });
   });
 
   it('keeps valid column mappings and reports bad ones', () => {
@@ -121,7 +159,7 @@ describe('columnsFor / globToRegExp', () => {
 describe('conventionsLine', () => {
   it('names every convention', () => {
     const line = conventionsLine({ ...DEFAULT_CONVENTIONS, maxGrade: 3 });
-    for (const part of ['gain exponential', 'ties average', 'no relevant: skip', 'relevant ≥ 1', 'RBP p=0.8', 'ERR max grade 3']) {
+    for (const part of ['gain exponential', 'ties average', 'no relevant: skip', 'relevant from grade 1', 'RBP persistence 0.8', 'ERR max grade 3']) {
       expect(line).toContain(part);
     }
   });

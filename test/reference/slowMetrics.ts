@@ -4,7 +4,8 @@
  * Ties under `average` are handled by enumerating every ordering of every tied group and averaging.
  * Only for small lists (the number of orderings grows factorially).
  */
-import type { Conventions, MetricSpec } from '../../extension/engine/metrics/conventions';
+import type { Conventions } from '../../extension/engine/metrics/conventions';
+import { metricDefinition, type MetricName, type MetricSpec } from '../../extension/engine/metrics/registry';
 
 export interface SlowItem {
   readonly item: string;
@@ -76,57 +77,69 @@ function idealOf(list: readonly Placed[], c: Conventions, k: number): number {
   return total;
 }
 
-/** Plain value of one metric on one fully ordered list (no-relevant policy not applied). */
-function plain(list: readonly Placed[], spec: MetricSpec, c: Conventions, gmax: number): number[] {
-  const k = spec.k ?? Infinity;
-  const rel: number[] = list.map((p) => (p.grade >= c.relevantFrom ? 1 : 0));
-  const R = rel.reduce((a, b) => a + b, 0);
-  switch (spec.name) {
-    case 'ndcg':
-      return [dcgOf(list, c, k) / idealOf(list, c, k)];
-    case 'dcg':
-      return [dcgOf(list, c, k)];
-    case 'err': {
-      let total = 0;
-      let reach = 1;
-      for (let i = 0; i < Math.min(k, list.length); i++) {
-        const r = (2 ** list[i]!.grade - 1) / 2 ** gmax;
-        total += (reach * r) / (i + 1);
-        reach *= 1 - r;
-      }
-      return [total];
+type Plain = (list: readonly Placed[], k: number, c: Conventions, gmax: number) => number[];
+
+const relevanceOf = (list: readonly Placed[], c: Conventions): number[] => list.map((p) => (p.grade >= c.relevantFrom ? 1 : 0));
+const sumOf = (xs: readonly number[]): number => xs.reduce((a, b) => a + b, 0);
+
+/**
+ * Plain value of each metric on one fully ordered list (no-relevant policy not applied), straight from
+ * its published or common-practice definition. One entry per registry metric (a test holds them equal).
+ */
+export const SLOW_REFERENCES: Readonly<Record<MetricName, Plain>> = {
+  ndcg: (list, k, c) => [dcgOf(list, c, k) / idealOf(list, c, k)],
+  dcg: (list, k, c) => [dcgOf(list, c, k)],
+  // Chapelle et al. 2009, the cascade written out.
+  err: (list, k, _c, gmax) => {
+    let total = 0;
+    let reach = 1;
+    for (let i = 0; i < Math.min(k, list.length); i++) {
+      const r = (2 ** list[i]!.grade - 1) / 2 ** gmax;
+      total += (reach * r) / (i + 1);
+      reach *= 1 - r;
     }
-    case 'p':
-      return [rel.slice(0, Math.min(k, list.length)).reduce((a, b) => a + b, 0) / (spec.k ?? Math.max(list.length, 1))];
-    case 'r':
-      return [rel.slice(0, Math.min(k, list.length)).reduce((a, b) => a + b, 0) / R];
-    case 'ap': {
-      let hits = 0;
-      let sum = 0;
-      rel.forEach((r, i) => {
-        if (r) sum += ++hits / (i + 1);
-      });
-      return [sum / R];
+    return [total];
+  },
+  p: (list, k, c) => [sumOf(relevanceOf(list, c).slice(0, Math.min(k, list.length))) / (k === Infinity ? Math.max(list.length, 1) : k)],
+  r: (list, k, c) => {
+    const rel = relevanceOf(list, c);
+    return [sumOf(rel.slice(0, Math.min(k, list.length))) / sumOf(rel)];
+  },
+  // Precision at each relevant position within the top k, over min(k, R) (the registry's stated denominator).
+  ap: (list, k, c) => {
+    const rel = relevanceOf(list, c);
+    let hits = 0;
+    let sum = 0;
+    rel.forEach((r, i) => {
+      if (r) hits++;
+      if (r && i < k) sum += hits / (i + 1);
+    });
+    return [sum / Math.min(k, sumOf(rel))];
+  },
+  rr: (list, k, c) => {
+    const first = relevanceOf(list, c).indexOf(1);
+    return [first >= 0 && first < k ? 1 / (first + 1) : 0];
+  },
+  // Moffat & Zobel 2008, with the residual bound.
+  rbp: (list, k, c) => {
+    const rel = relevanceOf(list, c);
+    const p = c.rbpPersistence;
+    const d = Math.min(k, list.length);
+    let value = 0;
+    let residual = p ** d;
+    for (let i = 0; i < d; i++) {
+      value += (1 - p) * p ** i * rel[i]!;
+      if (list[i]!.unjudged) residual += (1 - p) * p ** i;
     }
-    case 'rr': {
-      const first = rel.indexOf(1);
-      return [first >= 0 && first < k ? 1 / (first + 1) : 0];
-    }
-    case 'rbp': {
-      const p = c.rbpPersistence;
-      const d = Math.min(k, list.length);
-      let value = 0;
-      let residual = p ** d;
-      for (let i = 0; i < d; i++) {
-        value += (1 - p) * p ** i * rel[i]!;
-        if (list[i]!.unjudged) residual += (1 - p) * p ** i;
-      }
-      return [value, residual];
-    }
-    case 'tau':
-      return [NaN];
-  }
-}
+    return [value, residual];
+  },
+  tau: () => [NaN], // filled from tauAndDiscordant, which needs the scores
+  hit: (list, k, c) => [relevanceOf(list, c).slice(0, Math.min(k, list.length)).includes(1) ? 1 : 0],
+  judged: (list, k) => {
+    const top = list.slice(0, Math.min(k, list.length));
+    return [top.length === 0 ? 0 : top.filter((p) => !p.unjudged).length / top.length];
+  },
+};
 
 export interface SlowQuery {
   readonly values: Record<string, number>;
@@ -169,9 +182,9 @@ export function slowQuery(items: readonly SlowItem[], specs: readonly MetricSpec
   const values: Record<string, number> = {};
   for (const spec of specs) {
     const sums = [0, 0];
-    for (const list of lists) plain(list, spec, c, gmax).forEach((v, i) => (sums[i] += v));
+    for (const list of lists) SLOW_REFERENCES[spec.name](list, spec.k ?? Infinity, c, gmax).forEach((v, i) => (sums[i] += v));
     let v = sums[0]! / lists.length;
-    if (noRelevant && ['ndcg', 'ap', 'rr', 'r'].includes(spec.name)) v = policy;
+    if (noRelevant && metricDefinition(spec.name).normalised) v = policy;
     values[spec.key] = v;
     if (spec.name === 'rbp') values[`${spec.key}_residual`] = sums[1]! / lists.length;
   }

@@ -1,12 +1,10 @@
 import { describe, expect, it } from 'vitest';
-import { explainMetric, metricLabel, parseMetricKey } from '../../webview/src/model/explain';
+import { explainMetric, metricLabel } from '../../webview/src/model/explain';
 import { cellText, exportParams, type ColumnDef } from '../../webview/src/model/tableModel';
 import { formatFixed } from '../../webview/src/model/format';
 
 describe('metric explanations', () => {
   it('parses keys and labels them as written in papers', () => {
-    expect(parseMetricKey('ndcg@10')).toEqual({ name: 'ndcg', k: 10 });
-    expect(parseMetricKey('ap')).toEqual({ name: 'ap', k: undefined });
     expect(metricLabel('ndcg@10')).toBe('NDCG@10');
     expect(metricLabel('p@5')).toBe('P@5');
     expect(metricLabel('tau')).toBe("Kendall's τ");
@@ -47,7 +45,7 @@ describe('table export', () => {
 
 describe('every default metric has an explanation', () => {
   it('covers the metrics the engine computes by default', async () => {
-    const { DEFAULT_METRICS } = await import('../../extension/engine/metrics/conventions');
+    const { DEFAULT_METRICS } = await import('../../extension/engine/metrics/registry');
     for (const key of DEFAULT_METRICS.split(',')) {
       expect(explainMetric(key, 'x'), key).not.toContain('no description');
     }

@@ -253,10 +253,10 @@ describe('column layout: no number or header is cut short', () => {
     await page.click('#gl-tab-worst');
     await page.waitForSelector('#gl-worst-table [data-query]');
     const headers = await page.$$eval('#gl-worst-table .gl-vt-hcell', (cells) => cells.map((c) => (c.textContent ?? '').replace(/ [▲▼]$/, '')));
-    for (const full of ['#', 'Query', 'NDCG@10', 'NDCG@5', 'Kendall τ', 'Items', 'Relevant', 'Inversions', 'Inversion cost', 'Share of loss']) expect(headers).toContain(full);
+    for (const full of ['#', 'Query', 'NDCG@10', 'NDCG@5', "Kendall's τ", 'Items', 'Relevant', 'Inversions', 'Inversion cost', 'Share of loss']) expect(headers).toContain(full);
     expect(await cutCells(page, '#gl-worst-table')).toEqual([]);
     // Kendall τ is negative for the worst queries: the sign must show in full.
-    const tauColumn = headers.indexOf('Kendall τ') + 1;
+    const tauColumn = headers.indexOf("Kendall's τ") + 1;
     expect(await page.textContent(`#gl-worst-table [data-index="0"] [aria-colindex="${tauColumn}"]`)).toMatch(/^-\d\.\d{4}$/);
     const viewport = await page.$eval('#gl-worst-table .gl-vt-viewport', (v) => ({ scroll: v.scrollWidth, client: v.clientWidth }));
     expect(viewport.scroll).toBeGreaterThan(viewport.client);

@@ -6,7 +6,9 @@
 import { evaluate, gradeRange } from '../evaluate/evaluate';
 import type { Evaluation } from '../evaluate/types';
 import { InputError } from '../errors';
-import type { Conventions, MetricSpec } from '../metrics/conventions';
+import type { Conventions } from '../metrics/conventions';
+import { anyNeeds, type MetricSpec } from '../metrics/registry';
+import { DEFAULT_COMPARE_SETTINGS } from '../../presentation/defaults';
 import type { RankedDump } from '../model/dump';
 import { groupByQuery, type QueryGroups } from '../model/groups';
 import { matchRuns, type RunMatch } from './match';
@@ -44,7 +46,7 @@ export interface CompareOptions {
   readonly onProgress?: (fraction: number) => void;
 }
 
-export const DEFAULT_COMPARE_OPTIONS: CompareOptions = { permutations: 10_000, bootstrap: 2_000, seed: 1, tieTolerance: 0 };
+export const DEFAULT_COMPARE_OPTIONS: CompareOptions = { ...DEFAULT_COMPARE_SETTINGS };
 
 /** Adjusted p-values of one test across the compared metrics. */
 export interface AdjustedP {
@@ -190,7 +192,7 @@ export async function compareRuns(
  * on different scales, so the higher of the two runs' highest grades is used for both.
  */
 function sharedConventions(a: RankedDump, b: RankedDump, metrics: readonly MetricSpec[], conventions: Conventions): Conventions {
-  if (conventions.maxGrade !== undefined || !metrics.some((m) => m.name === 'err')) return conventions;
+  if (conventions.maxGrade !== undefined || !anyNeeds(metrics, 'maxGrade')) return conventions;
   return { ...conventions, maxGrade: Math.max(gradeRange(a).highest, gradeRange(b).highest) };
 }
 

@@ -4,7 +4,8 @@
  */
 import type { RankedDump } from '../model/dump';
 import type { QueryGroups } from '../model/groups';
-import { DEFAULT_CONVENTIONS, type Conventions, type MetricSpec } from '../metrics/conventions';
+import { DEFAULT_CONVENTIONS, type Conventions } from '../metrics/conventions';
+import { residualMetricIndex, type MetricSpec } from '../metrics/registry';
 import { discountTable } from '../metrics/discount';
 import { parseMetricList } from '../metrics/parse';
 import { checkConventions, type GradeRange } from './evaluate';
@@ -98,7 +99,7 @@ export function queryDetail(
   const invertedPairs = topInvertedPairs(ranking, scorer, maxPairs);
   const values: Record<string, number> = {};
   metrics.forEach((m, i) => (values[m.key] = scorer.values[i]!));
-  const rbp = metrics.find((m) => m.name === 'rbp');
+  const rbp = metrics[residualMetricIndex(metrics)];
   if (rbp) values[`${rbp.key}_residual`] = scorer.noRelevant && conventions.noRelevant === 'skip' ? NaN : scorer.rbpResidual;
   const ideal = scorer.idealDcgHeadline;
   return {

@@ -3,7 +3,8 @@
  * in the list is the DCG lost (each position's contribution, averaged over queries, against the ideal's).
  */
 import { quantileSorted } from '../compare/bootstrap';
-import type { Conventions, MetricSpec } from '../metrics/conventions';
+import type { Conventions } from '../metrics/conventions';
+import type { MetricSpec } from '../metrics/registry';
 import { discountTable } from '../metrics/discount';
 import type { RankedDump } from '../model/dump';
 import { groupByQuery, type QueryGroups } from '../model/groups';

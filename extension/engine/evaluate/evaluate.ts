@@ -8,7 +8,8 @@ import { gradeRangeOf, summariseRows, type GradeRange } from '../model/rowSummar
 
 export type { GradeRange } from '../model/rowSummary';
 import { groupByQuery, type QueryGroups } from '../model/groups';
-import type { Conventions, MetricSpec } from '../metrics/conventions';
+import type { Conventions } from '../metrics/conventions';
+import { isPairMeasure, metricDefinition, residualMetricIndex, type MetricSpec } from '../metrics/registry';
 import { checkGainsAndGrades, gainProblem } from './gainLimits';
 import { QueryRanking, SeenItems } from './ranking';
 import { headlineCutoff, QueryScorer } from './scorer';
@@ -96,7 +97,7 @@ export function prepareEvaluation(dump: RankedDump, metrics: readonly MetricSpec
     gmax,
     gradeRange: range,
     largestQuery: largest,
-    hasRbp: metrics.some((m) => m.name === 'rbp'),
+    hasRbp: residualMetricIndex(metrics) >= 0,
     sensitivity: options.sensitivity !== false,
   };
 }
@@ -185,7 +186,7 @@ export class RangeScorer {
     this.columns = dump as RankedDump;
     this.seen = new SeenItems();
     this.scorer = new QueryScorer(setup.conventions, setup.metrics, setup.gmax);
-    this.tauIndex = setup.metrics.findIndex((m) => m.name === 'tau');
+    this.tauIndex = setup.metrics.findIndex(isPairMeasure);
   }
 
   /** Adds queries [from, to) to `tally`. */
@@ -236,14 +237,12 @@ export class RangeScorer {
 export function undefinedValueNotes(metrics: readonly MetricSpec[], perQuery: PerQueryColumns): string[] {
   const notes: string[] = [];
   metrics.forEach((m, i) => {
-    if (m.name === 'tau') return;
+    if (isPairMeasure(m)) return;
     const column = perQuery.values[i]!;
     let undefinedCount = 0;
     for (let q = 0; q < column.length; q++) if (perQuery.skipped[q] === 0 && column[q] !== column[q]) undefinedCount++;
     if (undefinedCount === 0) return;
-    const why = m.name === 'ndcg'
-      ? 'their ideal DCG is not above 0 (the gain convention gives their relevant items no positive gain)'
-      : 'the metric has no value for them';
+    const why = metricDefinition(m.name).undefinedWhen ?? 'the metric has no value for them';
     const who = undefinedCount === 1 ? 'query that is' : 'queries that are';
     notes.push(`${m.key} is undefined for ${undefinedCount.toLocaleString('en-US')} ${who} not skipped: ${why}; left out of its mean.`);
   });
@@ -258,7 +257,7 @@ export function finishEvaluation(setup: EvaluationSetup, dump: RankedDump, perQu
   if (weights !== undefined && sensitivity && recorded) sensitivity.weighColumns(recorded, weights, perQuery.relevant);
   const summary: MetricSummary[] = metrics.map((m, i) => summarise(m.key, perQuery.values[i]!, weights));
   if (perQuery.rbpResidual) {
-    const first = metrics.find((m) => m.name === 'rbp')!;
+    const first = metrics[residualMetricIndex(metrics)]!;
     summary.push(summarise(`${first.key}_residual`, perQuery.rbpResidual, weights));
   }
   const warnings = describeDegenerate({

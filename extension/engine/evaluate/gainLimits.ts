@@ -8,7 +8,8 @@
  * the reason.
  */
 import { InputError } from '../errors';
-import type { Conventions, GainConvention, MetricSpec } from '../metrics/conventions';
+import type { Conventions, GainConvention } from '../metrics/conventions';
+import { anyNeeds, type MetricSpec } from '../metrics/registry';
 import { formatGain } from '../metrics/parse';
 import type { RankedDump } from '../model/dump';
 import type { GradeRange } from '../model/rowSummary';
@@ -93,7 +94,7 @@ export function checkGainsAndGrades(dump: RankedDump, metrics: readonly MetricSp
     throw new InputError('an RBP persistence strictly between 0 and 1', '--rbp-persistence', undefined, String(c.rbpPersistence));
   }
   const gmax = c.maxGrade ?? range.highest;
-  if (metrics.some((m) => m.name === 'err')) {
+  if (anyNeeds(metrics, 'maxGrade')) {
     if (range.lowest < 0) {
       const row = firstRow(dump, (g) => g < 0);
       throw rowError(dump, row, 'grades >= 0 for ERR', String(range.lowest));

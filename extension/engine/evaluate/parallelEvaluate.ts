@@ -13,7 +13,8 @@ import { Worker } from 'node:worker_threads';
 import { CancelledError } from '../errors';
 import type { RankedDump } from '../model/dump';
 import { groupByQuery, type QueryGroups } from '../model/groups';
-import type { Conventions, MetricSpec } from '../metrics/conventions';
+import type { Conventions } from '../metrics/conventions';
+import type { MetricSpec } from '../metrics/registry';
 import {
   addTally,
   allocatePerQuery,

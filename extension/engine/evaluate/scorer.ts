@@ -2,12 +2,15 @@
  * Scores one loaded query under one set of conventions: every requested metric, the pair measures and the
  * headline NDCG parts. Shared by evaluate() (all queries) and queryDetail() (one query).
  */
-import type { Conventions, MetricSpec } from '../metrics/conventions';
+import type { Conventions } from '../metrics/conventions';
+import type { MetricSpec } from '../metrics/registry';
 import { discountTable } from '../metrics/discount';
 import { ErrCalculator, errStopProbability } from '../metrics/err';
 import { gainFunction, isMonotone, type GainFunction } from '../metrics/gain';
-import { averagePrecision, dcg, idealDcg, rankBiasedPrecision, reciprocalRank, relevantInTop } from '../metrics/listMetrics';
+import type { MetricContext, MetricDefinition } from '../metrics/definition';
+import { dcg, idealDcg, type GroupedList } from '../metrics/listMetrics';
 import { PairCounter, type PairInput, type PairResult } from '../metrics/pairs';
+import { metricDefinition } from '../metrics/registry';
 import { GradeIndex } from './grades';
 import type { QueryRanking } from './ranking';
 
@@ -17,7 +20,7 @@ export function headlineCutoff(metrics: readonly MetricSpec[]): number {
   return first ? (first.k ?? Infinity) : 10;
 }
 
-/** Value of a normalised metric for a query with no relevant item under the policy (NaN = skipped). */
+/** Value of a metric the registry marks normalised, for a query with no relevant item under the policy (NaN = skipped). */
 export function noRelevantValue(policy: Conventions['noRelevant']): number {
   return policy === 'zero' ? 0 : policy === 'one' ? 1 : NaN;
 }
@@ -58,7 +61,8 @@ export class IdealGains {
   }
 }
 
-export class QueryScorer {
+/** Scores one query at a time; also the MetricContext the registry's compute functions read. */
+export class QueryScorer implements MetricContext {
   readonly headlineK: number;
   readonly grades = new GradeIndex();
   readonly ideal = new IdealGains();
@@ -76,19 +80,24 @@ export class QueryScorer {
   headlineDiscount = new Float64Array(16);
   gainOfRank = new Float64Array(16);
 
+  readonly err = new ErrCalculator();
+  readonly second = new Float64Array(2);
+  /** The arranged list of the query being scored. */
+  list!: GroupedList;
+
   private readonly gainOf: GainFunction;
   private readonly monotone: boolean;
-  private readonly err = new ErrCalculator();
   private readonly stopOf: (grade: number) => number;
-  private readonly hasErr: boolean;
-  /** ERR's stop probability per arranged slot. */
+  /** ERR's stop probability per arranged slot, filled on first use per query. */
   private stop = new Float64Array(16);
   private stopOfRank = new Float64Array(16);
+  private stopsReady = false;
   private readonly pairCounter = new PairCounter();
   /** Reused for every query. */
   private readonly pairInput: { -readonly [K in keyof PairInput]: PairInput[K] };
-  private readonly rbpOut = new Float64Array(2);
-  private readonly rbpIndex: number;
+  private readonly definitions: readonly MetricDefinition[];
+  /** The first metric with a second figure (RBP's residual); -1 when none. */
+  private readonly residualIndex: number;
 
   constructor(
     readonly conventions: Conventions,
@@ -103,8 +112,8 @@ export class QueryScorer {
     this.gainOf = gainFunction(conventions.gain);
     this.monotone = isMonotone(conventions.gain);
     this.stopOf = errStopProbability(gmax);
-    this.hasErr = metrics.some((m) => m.name === 'err');
-    this.rbpIndex = metrics.findIndex((m) => m.name === 'rbp');
+    this.definitions = metrics.map((m) => metricDefinition(m.name));
+    this.residualIndex = this.definitions.findIndex((d) => d.residual === true);
     this.pairInput = {
       n: 0,
       rank: this.arrangedRank,
@@ -135,62 +144,37 @@ export class QueryScorer {
       this.arrangedRank[i] = r;
       this.gain[i] = this.gainOfRank[r]!;
     }
-    if (this.hasErr) {
-      for (let r = 0; r < d; r++) this.stopOfRank[r] = this.stopOf(grades.values[r]!);
-      for (let i = 0; i < n; i++) this.stop[i] = this.stopOfRank[this.arrangedRank[i]!]!;
-    }
+    this.stopsReady = false;
+    this.list = list;
     this.ideal.build(this.gainOfRank, grades, this.monotone);
     const relevant = grades.atLeast(c.relevantFrom);
     this.relevant = relevant;
     this.noRelevant = relevant === 0;
     const skipAll = this.noRelevant && c.noRelevant === 'skip';
     const policyValue = noRelevantValue(c.noRelevant);
-    const from = c.relevantFrom;
+    // The pair pass first: tau is read from it like any other metric.
+    this.headline(ranking);
 
     for (let m = 0; m < this.metrics.length; m++) {
-      const spec = this.metrics[m]!;
-      const k = spec.k ?? Infinity;
-      let v: number;
-      switch (spec.name) {
-        case 'ndcg': {
-          const ideal = idealDcg(this.ideal.gain, this.ideal.count, this.ideal.distinct, k, n);
-          // A query with relevant items but an ideal DCG of 0 (a gain map giving them 0) has no defined NDCG.
-          v = this.noRelevant ? policyValue : ideal > 0 ? dcg(list, this.gain, k) / ideal : NaN;
-          break;
-        }
-        case 'dcg':
-          v = dcg(list, this.gain, k);
-          break;
-        case 'err':
-          v = this.err.compute(this.stop, list.bounds, list.groups, n, k);
-          break;
-        case 'p':
-          v = relevantInTop(list, from, k) / (spec.k ?? Math.max(n, 1));
-          break;
-        case 'r':
-          v = this.noRelevant ? policyValue : relevantInTop(list, from, k) / relevant;
-          break;
-        case 'ap':
-          v = this.noRelevant ? policyValue : averagePrecision(list, from);
-          break;
-        case 'rr':
-          v = this.noRelevant ? policyValue : reciprocalRank(list, from, k);
-          break;
-        case 'rbp':
-          rankBiasedPrecision(list, from, c.rbpPersistence, k, this.rbpOut);
-          v = this.rbpOut[0]!;
-          if (m === this.rbpIndex) this.rbpResidual = this.rbpOut[1]!;
-          break;
-        case 'tau':
-          v = NaN; // filled after the pair pass
-          break;
-      }
+      const definition = this.definitions[m]!;
+      const v = definition.normalised && this.noRelevant ? policyValue : definition.compute(this, this.metrics[m]!.k ?? Infinity);
+      if (m === this.residualIndex) this.rbpResidual = this.second[1]!;
       this.values[m] = skipAll ? NaN : v;
     }
-    this.headline(ranking);
-    for (let m = 0; m < this.metrics.length; m++) {
-      if (this.metrics[m]!.name === 'tau') this.values[m] = skipAll ? NaN : this.pairs.tau;
+  }
+
+  idealDcg(k: number): number {
+    return idealDcg(this.ideal.gain, this.ideal.count, this.ideal.distinct, k, this.list.n);
+  }
+
+  errStops(): Float64Array {
+    if (!this.stopsReady) {
+      const d = this.grades.distinct;
+      for (let r = 0; r < d; r++) this.stopOfRank[r] = this.stopOf(this.grades.values[r]!);
+      for (let i = 0; i < this.list.n; i++) this.stop[i] = this.stopOfRank[this.arrangedRank[i]!]!;
+      this.stopsReady = true;
     }
+    return this.stop;
   }
 
   /** Headline NDCG parts and the pair pass (tau, inversions, Σ|ΔNDCG|). */
@@ -213,7 +197,7 @@ export class QueryScorer {
       for (let i = s; i < e; i++) applied[i] = mean;
     }
     this.dcgHeadline = dcg(list, this.gain, hk);
-    this.idealDcgHeadline = idealDcg(this.ideal.gain, this.ideal.count, this.ideal.distinct, hk, n);
+    this.idealDcgHeadline = this.idealDcg(hk);
     const input = this.pairInput;
     input.n = n;
     input.rank = this.arrangedRank;

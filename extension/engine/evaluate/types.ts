@@ -2,7 +2,8 @@
  * Result shapes of evaluating one dump. Columnar like the dump itself: one typed array per metric,
  * indexed by query id (the dump's interned query id), so 100k queries cost a few arrays.
  */
-import type { Conventions, MetricSpec } from '../metrics/conventions';
+import type { Conventions } from '../metrics/conventions';
+import type { MetricSpec } from '../metrics/registry';
 
 /** Degenerate data, counted and reported with what was done about it. */
 export interface DegenerateCounts {

@@ -3,7 +3,8 @@
  * result so nobody has to guess why two numbers differ.
  */
 import type { RankedDump } from '../model/dump';
-import type { Conventions, MetricSpec } from '../metrics/conventions';
+import type { Conventions } from '../metrics/conventions';
+import { anyNeeds, metricDefinition, metricLabel, type MetricSpec } from '../metrics/registry';
 import type { DegenerateCounts } from './types';
 
 export interface WarningInput {
@@ -25,6 +26,11 @@ const TIE_TEXT: Record<Conventions['ties'], string> = {
   'file-order': 'keeping file order within each tie',
 };
 
+/** "A, B and C". */
+function listed(items: readonly string[]): string {
+  return items.length <= 1 ? (items[0] ?? '') : `${items.slice(0, -1).join(', ')} and ${items[items.length - 1]}`;
+}
+
 function rows(n: number, one: string, many: string): string {
   return `${n.toLocaleString('en-US')} ${n === 1 ? one : many}`;
 }
@@ -39,9 +45,13 @@ export function describeDegenerate(w: WarningInput): string[] {
       out.push(`${head}; they are left out of every mean (no-relevant policy: skip).`);
     } else {
       const v = c.noRelevant === 'zero' ? 0 : 1;
+      const labels = (normalised: boolean): string =>
+        listed(w.metrics.filter((m) => metricDefinition(m.name).normalised === normalised).map((m) => metricLabel(m.key)));
+      const scored = labels(true);
+      const plain = labels(false);
       out.push(
-        `${head}; NDCG, AP, RR and recall score ${v} for them (no-relevant policy: ${c.noRelevant}), ` +
-          'while DCG, ERR, precision and RBP keep the value their grades give.',
+        `${head}; ${scored || 'no metric listed'} score ${v} for them (no-relevant policy: ${c.noRelevant})` +
+          (plain ? `, while ${plain} keep the value their grades give.` : '.'),
       );
     }
   }
@@ -64,9 +74,13 @@ export function describeDegenerate(w: WarningInput): string[] {
   if (w.tauUndefined > 0) {
     out.push(`Kendall's tau is undefined for ${rows(w.tauUndefined, 'query', 'queries')} (all scores or all grades equal); left out of its mean.`);
   }
-  if (w.metrics.some((m) => m.name === 'err')) {
+  if (anyNeeds(w.metrics, 'maxGrade')) {
     const source = c.maxGrade === undefined ? 'the highest grade in the data' : 'as configured';
     out.push(`ERR uses a maximum grade of ${w.gmax} (${source}).`);
+  }
+  for (const spec of w.metrics) {
+    const note = metricDefinition(spec.name).note?.(spec.key, spec.k);
+    if (note) out.push(note);
   }
   const hk = Number.isFinite(w.headlineK) ? `@${w.headlineK}` : '';
   out.push(`Inversion cost is the NDCG${hk} that swapping each inverted pair would recover, summed per query.`);

@@ -3,6 +3,7 @@
  * every result, because the same run scores differently under each (the usual reason two teams'
  * NDCG@10 disagree).
  */
+import { DEFAULT_CONVENTION_SETTINGS } from '../../presentation/defaults';
 
 /** How a grade becomes a gain. `map` gives an explicit gain per grade (grades not listed are an error). */
 export type GainConvention =
@@ -23,9 +24,8 @@ export type TieConvention = 'average' | 'pessimistic' | 'optimistic' | 'file-ord
  * What a query with no relevant item (no item of grade >= relevantFrom, or no rows at all) scores.
  * - skip (default): the query is left out of every metric's mean (NaN in every column, `skipped` = 1) and
  *   counted, so all means of one evaluation cover the same queries.
- * - zero / one: the metrics normalised by what the query could have achieved (NDCG, AP, RR, recall) score
- *   0 / 1. DCG, ERR, precision and RBP have no such normalisation and keep the value their grades give (0
- *   when no grade is positive); they are counted as usual.
+ * - zero / one: the metrics the registry marks `normalised` (by what the query could have achieved) score
+ *   0 / 1; the others keep the value their grades give (0 when no grade is positive) and are counted as usual.
  * Kendall's tau is NaN whenever it is undefined (all scores or all grades of the query equal) and then left
  * out of its mean, whatever the policy. NDCG is NaN when a query has relevant items whose gains are all 0
  * (possible only with a gain map).
@@ -50,22 +50,9 @@ export interface Conventions {
 }
 
 export const DEFAULT_CONVENTIONS: Conventions = {
-  gain: { kind: 'exponential' },
-  ties: 'average',
-  noRelevant: 'skip',
-  relevantFrom: 1,
-  rbpPersistence: 0.8,
+  gain: { kind: DEFAULT_CONVENTION_SETTINGS.gain },
+  ties: DEFAULT_CONVENTION_SETTINGS.ties,
+  noRelevant: DEFAULT_CONVENTION_SETTINGS.noRelevant,
+  relevantFrom: DEFAULT_CONVENTION_SETTINGS.relevantFrom,
+  rbpPersistence: DEFAULT_CONVENTION_SETTINGS.rbpPersistence,
 };
-
-/** Metric names as the user writes them: `ndcg@10`, `dcg@10`, `err@10`, `p@5`, `r@10`, `ap`, `rr`, `rbp`, `tau`. */
-export type MetricName = 'ndcg' | 'dcg' | 'err' | 'p' | 'r' | 'ap' | 'rr' | 'rbp' | 'tau';
-
-export interface MetricSpec {
-  readonly name: MetricName;
-  /** Cut-off depth; undefined means the whole list. */
-  readonly k?: number;
-  /** The key used in outputs, exactly as written: `ndcg@10`, `ap`, ... */
-  readonly key: string;
-}
-
-export const DEFAULT_METRICS = 'ndcg@10,err@10,ap,rr,p@5,r@10,rbp,tau';

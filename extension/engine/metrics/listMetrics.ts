@@ -125,8 +125,11 @@ export function reciprocalRank(list: GroupedList, from: number, k: number): numb
  * group adds (r/m) Σ_u (before + 1 + u(r−1)/(m−1)) / (s+u+1), `before` = relevant items in earlier groups.
  * Exact, because precision at a fixed slot is linear in those counts. Returns 0 when R = 0 (caller applies
  * the no-relevant policy).
+ * AP@k sums only the slots within the top k and divides by min(k, R), so a top k holding nothing but
+ * relevant items scores 1 (as NDCG@k's ideal is cut at k too); with k = ∞ this is plain AP.
  */
-export function averagePrecision(list: GroupedList, from: number): number {
+export function averagePrecision(list: GroupedList, from: number, k = Infinity): number {
+  const depth = Math.min(k, list.n);
   const b = list.bounds;
   const grade = list.grade;
   let before = 0;
@@ -138,17 +141,20 @@ export function averagePrecision(list: GroupedList, from: number): number {
     let r = 0;
     for (let i = s; i < e; i++) if (grade[i]! >= from) r++;
     if (r === 0) continue;
-    if (m === 1) {
+    if (s >= depth) {
+      // Below the cut-off: counts towards R only.
+    } else if (m === 1) {
       sum += (before + 1) / (s + 1);
     } else {
       const share = (r - 1) / (m - 1);
+      const slots = Math.min(m, depth - s);
       let inner = 0;
-      for (let u = 0; u < m; u++) inner += (before + 1 + u * share) / (s + u + 1);
+      for (let u = 0; u < slots; u++) inner += (before + 1 + u * share) / (s + u + 1);
       sum += (r / m) * inner;
     }
     before += r;
   }
-  return before === 0 ? 0 : sum / before;
+  return before === 0 ? 0 : sum / Math.min(k, before);
 }
 
 /**

@@ -3,13 +3,10 @@
  * Every mistake is an InputError naming what was expected.
  */
 import { InputError } from '../errors';
-import type { GainConvention, MetricName, MetricSpec, NoRelevantPolicy, TieConvention } from './conventions';
+import type { GainConvention, NoRelevantPolicy, TieConvention } from './conventions';
+import { isMetricName, metricDefinition, metricSyntax, type MetricSpec } from './registry';
 
-const METRIC_NAMES: readonly MetricName[] = ['ndcg', 'dcg', 'err', 'p', 'r', 'ap', 'rr', 'rbp', 'tau'];
-/** Metrics that take no cut-off: AP and tau are whole-list measures here. */
-const NO_CUTOFF: ReadonlySet<MetricName> = new Set<MetricName>(['ap', 'tau']);
-const EXPECTED_METRIC =
-  'a metric: ndcg@k, dcg@k, err@k, p@k, r@k, rr or rr@k, rbp or rbp@depth, ap, tau (k a whole number >= 1)';
+const EXPECTED_METRIC = `a metric: ${metricSyntax()} (k a whole number >= 1)`;
 
 /** "ndcg@10,err@10,ap,rr,p@5,r@10,rbp,tau" → specs in the order written. Case-insensitive; keys are lower-case. */
 export function parseMetricList(text: string): MetricSpec[] {
@@ -29,10 +26,10 @@ export function parseMetricList(text: string): MetricSpec[] {
 function parseMetric(part: string): MetricSpec {
   const m = /^([a-z]+)(?:@(\d+))?$/.exec(part.trim().toLowerCase());
   if (!m) throw new InputError(EXPECTED_METRIC, undefined, undefined, part);
-  const name = m[1] as MetricName;
-  if (!METRIC_NAMES.includes(name)) throw new InputError(EXPECTED_METRIC, undefined, undefined, part);
+  const name = m[1]!;
+  if (!isMetricName(name)) throw new InputError(EXPECTED_METRIC, undefined, undefined, part);
   if (m[2] === undefined) return { name, key: name };
-  if (NO_CUTOFF.has(name)) throw new InputError(`${name} without a cut-off`, undefined, undefined, part);
+  if (metricDefinition(name).cutoff === 'none') throw new InputError(`${name} without a cut-off`, undefined, undefined, part);
   const k = Number(m[2]);
   if (!Number.isSafeInteger(k) || k < 1) throw new InputError('a cut-off k >= 1', undefined, undefined, part);
   return { name, k, key: `${name}@${k}` };

@@ -4,7 +4,9 @@
  */
 import type { Comparison, MetricComparison } from '../compare/compare';
 import type { StringPool } from '../model/stringPool';
-import { formatValue } from './reportInput';
+import { formatDelta, formatInterval, formatP, formatValue } from '../../presentation/numbers';
+
+export { formatDelta, formatInterval, formatP };
 
 export interface CompareReportInput {
   readonly comparison: Comparison;
@@ -52,26 +54,6 @@ export function biggestChanges(input: CompareReportInput, limit: number): { drop
     delta: delta[index]!,
   });
   return { drops: down.slice(0, limit).map(change), gains: up.slice(0, limit).map(change) };
-}
-
-/** Signed, 4 decimals: +0.0123 / −0.0045; a dash when undefined. */
-export function formatDelta(x: number): string {
-  if (Number.isNaN(x)) return '—';
-  const text = Math.abs(x).toFixed(4);
-  if (Number(text) === 0) return ' 0.0000';
-  return (x > 0 ? '+' : '−') + text;
-}
-
-export function formatInterval(low: number, high: number): string {
-  if (Number.isNaN(low) || Number.isNaN(high)) return '—';
-  return `[${formatDelta(low)}, ${formatDelta(high)}]`.replaceAll('[ ', '[').replaceAll(',  ', ', ');
-}
-
-/** p-values: 4 decimals, "<0.0001" below that, a dash when the test could not be run. */
-export function formatP(p: number): string {
-  if (Number.isNaN(p)) return '—';
-  if (p < 0.0001) return '<0.0001';
-  return p.toFixed(4);
 }
 
 export function winsTiesLosses(r: MetricComparison): string {

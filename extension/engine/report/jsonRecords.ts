@@ -7,7 +7,7 @@
  * exactly what `JSON.stringify(document, null, 1)` writes for these records, so the two paths agree
  * to the byte (report tests check it against the whole document stringified at once).
  */
-import type { MetricSpec } from '../metrics/conventions';
+import type { MetricSpec } from '../metrics/registry';
 import { BytePool } from '../model/bytePool';
 import type { StringPool } from '../model/stringPool';
 import type { PerQueryColumns } from '../evaluate/types';

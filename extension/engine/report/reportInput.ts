@@ -2,10 +2,15 @@
  * What every report format needs: the evaluation plus the few facts about the dump it came from
  * (query names live in the dump's string pool, not in the evaluation).
  */
-import type { Conventions, GainConvention, MetricSpec } from '../metrics/conventions';
+import type { Conventions, GainConvention } from '../metrics/conventions';
+import { isPairMeasure, residualMetricIndex, type MetricSpec } from '../metrics/registry';
 import type { Evaluation, PerQueryColumns } from '../evaluate/types';
 import type { StringPool } from '../model/stringPool';
 import type { QueryFacts } from '../tables/queryFacts';
+
+// Text formats live in the presentation module, shared with the editor; re-exported for the reports.
+export { describeConventions } from '../../presentation/conventionsLine';
+export { formatValue } from '../../presentation/numbers';
 
 export interface ReportInput {
   readonly evaluation: Evaluation;
@@ -39,11 +44,11 @@ export interface RecordColumn {
 export function recordColumns(metrics: readonly MetricSpec[], perQuery: PerQueryColumns): RecordColumn[] {
   const columns: RecordColumn[] = [];
   // The evaluation keeps the residual of the first RBP metric only.
-  const firstRbp = metrics.findIndex((spec) => spec.name === 'rbp');
+  const firstRbp = residualMetricIndex(metrics);
   metrics.forEach((spec, m) => {
     columns.push({ key: spec.key, values: perQuery.values[m]! });
     if (m === firstRbp && perQuery.rbpResidual) columns.push({ key: `${spec.key}_residual`, values: perQuery.rbpResidual });
-    if (spec.name === 'tau') columns.push({ key: 'inversions', values: perQuery.inversions, whole: true });
+    if (isPairMeasure(spec)) columns.push({ key: 'inversions', values: perQuery.inversions, whole: true });
   });
   return columns;
 }
@@ -93,31 +98,6 @@ function gainAsJson(g: GainConvention): unknown {
   const gains: Record<string, number> = {};
   for (const [grade, gain] of [...g.gains].sort((a, b) => a[0] - b[0])) gains[String(grade)] = gain;
   return { map: gains };
-}
-
-/** One line naming every convention, for text reports. */
-export function describeConventions(c: Conventions): string {
-  const gain =
-    c.gain.kind === 'exponential'
-      ? 'exponential (2^g - 1)'
-      : c.gain.kind === 'linear'
-        ? 'linear (g)'
-        : 'map ' + [...c.gain.gains].sort((a, b) => a[0] - b[0]).map(([g, v]) => `${g}=${v}`).join(',');
-  const parts = [
-    `gain ${gain}`,
-    `ties ${c.ties}`,
-    `no relevant: ${c.noRelevant}`,
-    `relevant from grade ${c.relevantFrom}`,
-    `ERR max grade ${c.maxGrade ?? 'from data'}`,
-    `RBP persistence ${c.rbpPersistence}`,
-  ];
-  return parts.join(' · ');
-}
-
-/** Fixed 4 decimals for metric values (whole numbers for counts); a dash when undefined. */
-export function formatValue(x: number, whole = false): string {
-  if (Number.isNaN(x)) return '—';
-  return whole ? String(Math.round(x)) : x.toFixed(4);
 }
 
 /** NaN and infinities are not JSON; they become null. */

@@ -1,7 +1,8 @@
 // A hand-built evaluation of three invented product-search queries, so report tests do not depend
 // on the metric code: every number below is chosen, not computed.
 import type { Evaluation } from '../../../extension/engine/evaluate/types';
-import { DEFAULT_CONVENTIONS, type MetricSpec } from '../../../extension/engine/metrics/conventions';
+import { DEFAULT_CONVENTIONS } from '../../../extension/engine/metrics/conventions';
+import { type MetricSpec } from '../../../extension/engine/metrics/registry';
 import { MapStringPool } from '../../../extension/engine/model/stringPool';
 import type { ReportInput } from '../../../extension/engine/report/reportInput';
 

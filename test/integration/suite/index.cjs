@@ -13,7 +13,8 @@ const COMMANDS = ['gainline.inspect', 'gainline.compareRuns', 'gainline.refreshR
 // The settings defaults the extension documents in its manifest (package.json, contributes.configuration),
 // written out here so a changed default in the manifest shows up as a failing check.
 const DOCUMENTED_DEFAULTS = {
-  cutoffs: [10, 5],
+  metrics: ['ndcg@10', 'err@10', 'ap', 'rr', 'p@5', 'r@10', 'rbp', 'tau'],
+  cutoffs: null,
   gain: 'exponential',
   ties: 'average',
   noRelevant: 'skip',

@@ -70,7 +70,7 @@ const METRICS = [
   { key: 'ap', label: 'AP' },
 ];
 
-/** The extension's default metric set (two cut-offs), for layout checks: values derived from NDCG, Kendall τ negative. */
+/** The extension's default metric set (two cut-offs), for layout checks: values derived from NDCG, Kendall's τ negative. */
 const FULL_METRICS: readonly { key: string; label: string; of: (ndcg: number) => number }[] = [
   { key: 'ndcg@10', label: 'NDCG@10', of: (x) => x },
   { key: 'ndcg@5', label: 'NDCG@5', of: (x) => x * 0.97 },
@@ -82,7 +82,7 @@ const FULL_METRICS: readonly { key: string; label: string; of: (ndcg: number) =>
   { key: 'r@10', label: 'R@10', of: (x) => x * 0.95 },
   { key: 'r@5', label: 'R@5', of: (x) => x * 0.7 },
   { key: 'rbp', label: 'RBP', of: (x) => x * 0.6 },
-  { key: 'tau', label: 'Kendall τ', of: (x) => 2 * x - 1 },
+  { key: 'tau', label: "Kendall's τ", of: (x) => 2 * x - 1 },
 ];
 
 export interface FakeHostOptions {

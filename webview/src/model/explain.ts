@@ -1,53 +1,10 @@
 /**
- * The sentences behind the tooltips: how each number on screen was computed. Kept beside the
- * formatting so a new metric cannot appear without its explanation (the fallback says so plainly).
+ * The sentences behind the tooltips: how each number on screen was computed. A metric's own sentence
+ * comes from its registry entry, so a new metric cannot appear without its explanation.
  */
 
-/** Splits 'ndcg@10' into its name and cut-off. */
-export function parseMetricKey(key: string): { name: string; k: number | undefined } {
-  const at = key.indexOf('@');
-  if (at < 0) return { name: key.toLowerCase(), k: undefined };
-  const k = Number(key.slice(at + 1));
-  return { name: key.slice(0, at).toLowerCase(), k: Number.isInteger(k) && k > 0 ? k : undefined };
-}
-
-/** How one metric is computed for one query, in one or two sentences. */
-export function explainMetric(key: string, conventionsSummary: string): string {
-  const { name, k } = parseMetricKey(key);
-  const depth = k === undefined ? 'the whole list' : `the top ${k}`;
-  const base = ((): string => {
-    switch (name) {
-      case 'ndcg':
-        return `DCG over ${depth} divided by the DCG of the ideal order over ${depth}. DCG = Σ gain(grade) / log2(position + 1) (Järvelin & Kekäläinen 2002).`;
-      case 'dcg':
-        return `Σ gain(grade) / log2(position + 1) over ${depth}, not normalised.`;
-      case 'err':
-        return `Expected reciprocal rank over ${depth}: Σ (1/r) · R_r · Π_{i<r}(1 − R_i), R = (2^g − 1) / 2^gmax (Chapelle et al. 2009).`;
-      case 'p':
-        return `Share of ${depth} that is relevant (grade ≥ the relevance threshold).`;
-      case 'r':
-        return `Share of the query's relevant items found in ${depth}.`;
-      case 'ap':
-        return `Average precision: mean of precision at the position of each relevant item, over all relevant items.`;
-      case 'rr':
-        return `Reciprocal rank: 1 / position of the first relevant item (0 when none is ranked).`;
-      case 'rbp':
-        return `Rank-biased precision: (1 − p) · Σ rel_i · p^(i−1), p = the persistence (Moffat & Zobel 2008).`;
-      case 'tau':
-        return `Kendall's tau between the order by score and the order by grade (1 = same order, −1 = reversed).`;
-      default:
-        return `Metric '${key}' (no description available).`;
-    }
-  })();
-  return `${base}\nConventions: ${conventionsSummary}.`;
-}
-
-/** Label as users write it in papers: NDCG@10, P@5, AP. */
-export function metricLabel(key: string): string {
-  const { name, k } = parseMetricKey(key);
-  const upper = name === 'tau' ? "Kendall's τ" : name.toUpperCase();
-  return k === undefined ? upper : `${upper}@${k}`;
-}
+// Metric labels and explanations come from the metric registry through the presentation module.
+export { explainMetric, metricLabel } from '../../../extension/presentation/metricText';
 
 export const COLUMN_EXPLANATIONS: Readonly<Record<string, string>> = {
   query: 'Query id as written in the file.',

@@ -1,0 +1,27 @@
+/**
+ * The one set of defaults of the command line and the editor. package.json's `gainline.*` setting
+ * defaults must equal these (test/host/config.test.ts holds them equal). A leaf module: no imports,
+ * so the host, the worker, the webview and the engine can all read it without pulling in other code.
+ */
+
+/** The default metric list, first = headline. Every key must parse against the metric registry. */
+export const DEFAULT_METRIC_KEYS: readonly string[] = ['ndcg@10', 'err@10', 'ap', 'rr', 'p@5', 'r@10', 'rbp', 'tau'];
+
+export const DEFAULT_CONVENTION_SETTINGS = {
+  gain: 'exponential',
+  ties: 'average',
+  noRelevant: 'skip',
+  relevantFrom: 1,
+  rbpPersistence: 0.8,
+} as const;
+
+export const DEFAULT_COMPARE_SETTINGS = {
+  permutations: 10_000,
+  bootstrap: 2_000,
+  seed: 1,
+  /**
+   * |B − A| at or below this counts as a tie. Not 0: the same list scored through different arithmetic
+   * (another tie group split, another summation order) can differ in the last bits, which is no change.
+   */
+  tieTolerance: 1e-9,
+} as const;
