@@ -9,7 +9,7 @@ import { withSideTables } from '../engine/tables/join';
 import { InputError } from '../engine/errors';
 import { formatDelta, formatP } from '../presentation/numbers';
 import { COMPARE_FORMATS, formatComparison, type CompareFormat } from '../engine/report/compareReport';
-import { conventionHelp, conventionOptions, parseCommandArgs, scoringSetupFrom } from './conventionArgs';
+import { conventionHelp, conventionOptions, parseCommandArgs, readRequestFrom, scoringSetupFrom } from './conventionArgs';
 import { UsageError } from './evalCommand';
 import type { CliIO } from './io';
 import { progressLine } from './progress';
@@ -22,6 +22,15 @@ the same conventions, and tests the per-query differences B − A: mean differen
 interval, paired t-test, Wilcoxon signed-rank and sign-flip randomization p-values (with Holm and
 Benjamini–Hochberg adjustments across metrics), wins / ties / losses, and the queries that moved most.
 Queries found in one run only are counted and left out.
+
+Each run may be read its own way: an input option followed by -a or -b applies to that run only and
+replaces the plain option for it, e.g. two formats (--input-format-a run --input-format-b parquet) or
+two judgments files (--judgments-a old.qrels --judgments-b new.qrels). With one --judgments file both
+runs are scored against the same judgments, and --missing-queries zero gives both runs every judged query.
+
+Per run:
+  --input-format-a F, --input-format-b F, --columns-a ROLES, --columns-b ROLES, --judgments-a FILE,
+  --judgments-b FILE, --judgments-columns-a ROLES, --judgments-columns-b ROLES, --scores-a FILE, --scores-b FILE
 
 Statistics:
   --permutations N      random sign patterns for the randomization test (default ${DEFAULT_COMPARE_OPTIONS.permutations})
@@ -36,8 +45,15 @@ ${conventionHelp}
 Exit status: 0 done (and not worse, with --fail-if-worse), 1 B significantly worse, 2 bad input.
 `;
 
+/** The input options that compare also takes per run, with -a / -b appended. */
+const PER_RUN = ['input-format', 'columns', 'judgments', 'judgments-columns', 'scores'] as const;
+const perRunOptions = Object.fromEntries(
+  PER_RUN.flatMap((name) => [[`${name}-a`, { type: 'string' }], [`${name}-b`, { type: 'string' }]]),
+) as Record<`${(typeof PER_RUN)[number]}-${'a' | 'b'}`, { type: 'string' }>;
+
 const compareOptions = {
   ...conventionOptions,
+  ...perRunOptions,
   permutations: { type: 'string' },
   bootstrap: { type: 'string' },
   seed: { type: 'string' },
@@ -70,7 +86,23 @@ export async function runCompare(argv: string[], io: CliIO): Promise<number> {
   const top = wholeNumber('--top', values.top, 10, 0, Number.MAX_SAFE_INTEGER);
   const tieTolerance = numberAtLeastZero('--tie-tolerance', values['tie-tolerance'], DEFAULT_COMPARE_OPTIONS.tieTolerance);
   const alpha = values['fail-if-worse'] === undefined ? undefined : significance(values['fail-if-worse']);
-  const setup = scoringSetupFrom(values, (p) => resolve(io.cwd, p));
+  const resolvePath = (p: string) => resolve(io.cwd, p);
+  const shared = scoringSetupFrom(values, resolvePath);
+  const readA = { ...shared.read, ...readRequestFrom(values, '-a', resolvePath) };
+  const readB = { ...shared.read, ...readRequestFrom(values, '-b', resolvePath) };
+  for (const [read, side] of [[readA, '-a'], [readB, '-b']] as const) {
+    if (read.judgmentsColumns !== undefined && read.judgments === undefined) {
+      throw new InputError(`--judgments${side} or --judgments FILE to go with it`, `--judgments-columns${side}`);
+    }
+  }
+  const judged = readA.judgments !== undefined || readB.judgments !== undefined;
+  if (values['missing-queries'] !== undefined && !judged) {
+    throw new InputError('--judgments FILE to go with it', '--missing-queries', undefined, values['missing-queries']);
+  }
+  const missingQueries = judged ? (shared.conventions.missingQueries ?? 'skip') : undefined;
+  const conventions = missingQueries ? { ...shared.conventions, missingQueries } : shared.conventions;
+  for (const read of [readA, readB]) if (read.judgments !== undefined) read.missingQueries = missingQueries;
+  const setup = { ...shared, conventions };
 
   const [sourceA, sourceB] = positionals as [string, string];
   const pathA = resolve(io.cwd, sourceA);
@@ -79,8 +111,9 @@ export async function runCompare(argv: string[], io: CliIO): Promise<number> {
   const large = (await stat(pathA)).size + sizeB >= PROGRESS_FROM_BYTES;
   const progress = io.isTTY && large ? progressLine(io, `${sourceA} vs ${sourceB}`) : undefined;
   try {
-    const [readA, readB] = await readRuns(pathA, pathB, setup.read, { sizeB, onProgress: progress?.reading });
-    const [a, b] = [await withSideTables(readA, setup.tables), await withSideTables(readB, setup.tables)];
+    const [runA, runB] = await readRuns(pathA, pathB, [readA, readB], { sizeB, onProgress: progress?.reading });
+    // One queries table and one items table serve both runs (the same queries, the same catalogue).
+    const [a, b] = [await withSideTables(runA, setup.tables), await withSideTables(runB, setup.tables)];
     const comparison = await compareRuns(a, b, setup.metrics, setup.conventions, {
       permutations,
       bootstrap,

@@ -39,6 +39,8 @@ export const conventionOptions = {
   judgments: { type: 'string' },
   queries: { type: 'string' },
   items: { type: 'string' },
+  'judgments-columns': { type: 'string' },
+  'missing-queries': { type: 'string' },
   scores: { type: 'string' },
   columns: { type: 'string' },
   'input-format': { type: 'string' },
@@ -57,10 +59,15 @@ export type ConventionValues = { readonly [K in keyof typeof conventionOptions]?
 
 /** Help text lines for the shared options, aligned for the usage screen. */
 export const conventionHelp = `Input:
-  --input-format F      csv | tsv | jsonl | run | svmlight | parquet (default: from the content and name)
+  --input-format F      csv | tsv | jsonl | run | sparse | parquet (default: from the content and name)
   --columns ROLES       which column plays which role, e.g. query=sid,item=pid,label=grade,score=p
-  --judgments FILE      graded judgments (qrels: query 0 item grade) for a run file
-  --scores FILE         one score per line, for an SVMlight file
+  --judgments FILE      graded judgments for any format: qrels lines (query 0 item grade) or a CSV, TSV,
+                        JSON Lines or Parquet table naming query, item and grade; they replace any labels
+                        in the dump, and judged items the run never retrieved count in the ideal ranking
+  --judgments-columns ROLES  column names in a tabular judgments file, e.g. query=sid,item=pid,label=grade
+  --missing-queries M   judged queries with no row in the run: skip (default) | zero (0 on every metric,
+                        as evaluation campaigns count them)
+  --scores FILE         one score per line, for sparse feature lines
   --queries FILE        query id -> text, segments (other columns) and an optional weight column
   --items FILE          item id -> title and attributes, shown in --query detail and JSON
   --threads N           threads for reading large text files and scoring large dumps (default: from the size)
@@ -75,7 +82,10 @@ Metrics and conventions:
   --rbp-persistence P   RBP persistence, 0 < P < 1 (default ${DEFAULT_CONVENTION_SETTINGS.rbpPersistence})
 `;
 
-const INPUT_FORMATS: readonly DumpFormat[] = ['csv', 'tsv', 'jsonl', 'run', 'svmlight', 'parquet'];
+const INPUT_FORMATS: readonly DumpFormat[] = ['csv', 'tsv', 'jsonl', 'run', 'sparse', 'parquet'];
+/** Earlier spellings still read, so existing scripts keep working; not listed in help. */
+const FORMAT_ALIASES: Readonly<Record<string, DumpFormat>> = { svmlight: 'sparse' };
+const MISSING_QUERIES = ['skip', 'zero'] as const;
 
 /** What to pass to the reader besides the path (signal and progress are added by the caller). */
 export type DumpReadRequest = Omit<ReadOptions, 'signal' | 'onProgress'>;
@@ -91,10 +101,11 @@ export interface ScoringSetup {
 /** Validates the shared options; any bad value is an InputError naming the option. */
 export function scoringSetupFrom(values: ConventionValues, resolvePath: (p: string) => string = (p) => p): ScoringSetup {
   const read: DumpReadRequest = {};
-  if (values['input-format'] !== undefined) read.format = oneOf('--input-format', values['input-format'], INPUT_FORMATS);
-  if (values.columns !== undefined) read.columns = withOptionName('--columns', () => parseColumnRoles(values.columns!));
-  if (values.judgments !== undefined) read.judgments = resolvePath(values.judgments);
-  if (values.scores !== undefined) read.scores = resolvePath(values.scores);
+  Object.assign(read, readRequestFrom(values, '', resolvePath));
+  const missingQueries = values['missing-queries'] === undefined ? undefined : oneOf('--missing-queries', values['missing-queries'], MISSING_QUERIES);
+  if (read.judgmentsColumns !== undefined && read.judgments === undefined) {
+    throw new InputError('--judgments FILE to go with it', '--judgments-columns', undefined, values['judgments-columns']);
+  }
   const tables: SideTableFiles = {
     ...(values.queries !== undefined ? { queries: resolvePath(values.queries) } : {}),
     ...(values.items !== undefined ? { items: resolvePath(values.items) } : {}),
@@ -115,8 +126,37 @@ export function scoringSetupFrom(values: ConventionValues, resolvePath: (p: stri
     rbpPersistence:
       values['rbp-persistence'] === undefined ? DEFAULT_CONVENTIONS.rbpPersistence : persistence(values['rbp-persistence']),
     ...(values['max-grade'] !== undefined ? { maxGrade: positiveNumber('--max-grade', values['max-grade']) } : {}),
+    ...(missingQueries !== undefined || read.judgments !== undefined ? { missingQueries: missingQueries ?? 'skip' } : {}),
   };
+  if (conventions.missingQueries !== undefined) read.missingQueries = conventions.missingQueries;
   return { read, metrics, conventions, tables };
+}
+
+/** The per-file input options, spelled `--NAME` + `suffix` (compare's `-a` / `-b` forms use a suffix). */
+export interface InputValues {
+  readonly [name: string]: string | boolean | undefined;
+}
+
+/**
+ * Reads `--input-format`, `--columns`, `--judgments`, `--judgments-columns` and `--scores` (each with the
+ * suffix appended to its name). An option given without the file it belongs to is an error.
+ */
+export function readRequestFrom(values: InputValues, suffix: string, resolvePath: (p: string) => string): DumpReadRequest {
+  const read: DumpReadRequest = {};
+  const text = (name: string) => values[`${name}${suffix}`] as string | undefined;
+  const format = text('input-format');
+  if (format !== undefined) read.format = FORMAT_ALIASES[format] ?? oneOf(`--input-format${suffix}`, format, INPUT_FORMATS);
+  const columns = text('columns');
+  if (columns !== undefined) read.columns = withOptionName(`--columns${suffix}`, () => parseColumnRoles(columns));
+  const judgments = text('judgments');
+  if (judgments !== undefined) read.judgments = resolvePath(judgments);
+  const judgmentsColumns = text('judgments-columns');
+  if (judgmentsColumns !== undefined) {
+    read.judgmentsColumns = withOptionName(`--judgments-columns${suffix}`, () => parseColumnRoles(judgmentsColumns));
+  }
+  const scores = text('scores');
+  if (scores !== undefined) read.scores = resolvePath(scores);
+  return read;
 }
 
 function oneOf<T extends string>(option: string, text: string, allowed: readonly T[]): T {

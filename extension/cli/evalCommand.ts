@@ -69,6 +69,9 @@ export async function runEval(argv: string[], io: CliIO): Promise<number> {
     throw new InputError('a whole number of queries, 0 or more', '--worst', undefined, values.worst);
   }
   const setup = scoringSetupFrom(values, (p) => resolve(io.cwd, p));
+  if (values['missing-queries'] !== undefined && setup.read.judgments === undefined) {
+    throw new InputError('--judgments FILE to go with it', '--missing-queries', undefined, values['missing-queries']);
+  }
   const views = [values.query !== undefined && '--query', values.segment !== undefined && '--segment', values.diagnostics && '--diagnostics'].filter(Boolean);
   if (views.length > 1) throw new UsageError(`${views.join(' and ')} each replace the report; give one of them`);
   if (views.length > 0 && format !== 'table' && format !== 'json') {

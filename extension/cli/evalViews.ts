@@ -50,7 +50,7 @@ export function detailJson(dump: RankedDump, detail: QueryDetail, source: string
     positions: detail.positions.map((p) => ({
       position: p.position,
       item: p.item,
-      ...titleOf(p.row),
+      ...titleOf(dump.item[p.row]!),
       grade: jsonNumber(p.label),
       score: jsonNumber(p.score),
       gain: p.gain,
@@ -62,7 +62,9 @@ export function detailJson(dump: RankedDump, detail: QueryDetail, source: string
       tieGroupSize: p.tieGroupSize,
       line: dump.line[p.row] || null,
     })),
-    idealOrder: detail.idealOrder.map((row) => ({ item: dump.items.get(dump.item[row]!), ...titleOf(row), grade: jsonNumber(dump.label[row]!) })),
+    idealOrder: idealEntries(dump, detail).map((e) => ({
+      item: e.item, ...titleOf(e.itemId), grade: jsonNumber(e.grade), ...(e.retrieved ? {} : { retrieved: false }),
+    })),
     invertedPairs: detail.invertedPairs.map((pair) => ({
       above: { position: pair.abovePosition, item: dump.items.get(dump.item[pair.aboveRow]!) },
       below: { position: pair.belowPosition, item: dump.items.get(dump.item[pair.belowRow]!) },
@@ -78,21 +80,26 @@ export function detailJson(dump: RankedDump, detail: QueryDetail, source: string
 export function detailText(dump: RankedDump, detail: QueryDetail, source: string): string {
   const titles = dump.joined?.itemTitle;
   const text = dump.joined?.queryText?.[dump.queries.find(detail.query)];
-  const idealRows = detail.idealOrder;
+  const ideal = idealEntries(dump, detail);
+  const unretrieved = ideal.length - detail.positions.length;
   const sections = [
     `${source}\nquery ${detail.query}${text ? ` · ${text}` : ''} · ${detail.positions.length} items`,
     'Values\n' + alignedTable(['metric', 'value'], Object.entries(detail.values).map(([k, v]) => [k, formatValue(v)]), ['left', 'right']),
     `Conventions\n  ${describeConventions(detail.conventions)}`,
   ];
-  const rows = detail.positions.map((p, i) => {
-    const ideal = idealRows[i]!;
-    return [
+  // The ideal order also holds judged items the run never retrieved: it may run past the predicted list.
+  const rows = ideal.map((e, i) => {
+    const p = detail.positions[i];
+    const idealItem = e.retrieved ? e.item : `${e.item} (not retrieved)`;
+    const predicted = p === undefined ? Array<string>(titles ? 11 : 10).fill('') : [
       String(p.position), p.item, ...(titles ? [titles[dump.item[p.row]!]!] : []), formatValue(p.label, true), formatValue(p.score),
       formatValue(p.gain), formatValue(p.discount), formatValue(p.contribution), formatValue(p.cumulativeDcg), formatValue(p.idealCumulativeDcg),
-      String(p.idealPosition), dump.items.get(dump.item[ideal]!), formatValue(dump.label[ideal]!, true),
+      String(p.idealPosition),
     ];
+    return [...predicted, idealItem, formatValue(e.grade, true)];
   });
-  sections.push(`Predicted order against the ideal order (contributions at k = ${detail.k})\n` + alignedTable(
+  const beyond = unretrieved > 0 ? `; ${unretrieved} judged item${unretrieved === 1 ? '' : 's'} the run never retrieved ${unretrieved === 1 ? 'counts' : 'count'} in the ideal order only` : '';
+  sections.push(`Predicted order against the ideal order (contributions at k = ${detail.k}${beyond})\n` + alignedTable(
     ['#', 'item', ...(titles ? ['title'] : []), 'grade', 'score', 'gain', 'discount', 'contribution', 'DCG', 'ideal DCG', 'ideal #', 'ideal item', 'ideal grade'],
     rows,
     ['right', 'left', ...(titles ? ['left' as const] : []), 'right', 'right', 'right', 'right', 'right', 'right', 'right', 'right', 'left', 'right'],
@@ -107,12 +114,30 @@ export function detailText(dump: RankedDump, detail: QueryDetail, source: string
   return sections.join('\n\n') + '\n';
 }
 
-function itemFacts(dump: RankedDump): (row: number) => Record<string, unknown> {
+/** One entry of the whole ideal order: a listed row, or a judged item the run never retrieved (row -1). */
+interface IdealEntry {
+  readonly item: string;
+  readonly itemId: number;
+  readonly grade: number;
+  readonly retrieved: boolean;
+}
+
+/** The listed rows and the judged items the run never retrieved, in the order of their ideal positions. */
+function idealEntries(dump: RankedDump, detail: QueryDetail): IdealEntry[] {
+  const positionOf = new Map(detail.positions.map((p) => [p.row, p.idealPosition]));
+  const entries = detail.idealOrder.map((row) => ({
+    at: positionOf.get(row) ?? 0, item: dump.items.get(dump.item[row]!), itemId: dump.item[row]!, grade: dump.label[row]!, retrieved: true,
+  }));
+  for (const m of detail.notRetrieved) entries.push({ at: m.idealPosition, item: m.item, itemId: dump.items.find(m.item), grade: m.label, retrieved: false });
+  return entries.sort((a, b) => a.at - b.at).map(({ at: _at, ...e }) => e);
+}
+
+/** Title and attributes by item id (the items pool also holds judged items that have no row). */
+function itemFacts(dump: RankedDump): (item: number) => Record<string, unknown> {
   const titles = dump.joined?.itemTitle;
   const attributes = dump.joined?.itemAttributes ?? [];
   if (!titles && attributes.length === 0) return () => ({});
-  return (row) => {
-    const item = dump.item[row]!;
+  return (item) => {
     const out: Record<string, unknown> = {};
     if (titles) out.title = titles[item];
     if (attributes.length > 0) out.attributes = Object.fromEntries(attributes.map((a) => [a.name, a.values[item]]));

@@ -17,19 +17,22 @@ export interface ReadRunsOptions {
 }
 
 /** When both reads fail, A's error is the one thrown, as when they are read one after the other. */
-export async function readRuns(pathA: string, pathB: string, read: ReadOptions, options: ReadRunsOptions): Promise<[RankedDump, RankedDump]> {
+/** `read` applies to both runs, or is given per run as [A's, B's]. */
+export async function readRuns(pathA: string, pathB: string, read: ReadOptions | readonly [ReadOptions, ReadOptions], options: ReadRunsOptions):
+  Promise<[RankedDump, RankedDump]> {
+  const [readA, readB] = Array.isArray(read) ? read as readonly [ReadOptions, ReadOptions] : [read as ReadOptions, read as ReadOptions];
   const done = [0, 0];
   const report = (k: number) => options.onProgress && ((f: number) => {
     done[k] = f;
     options.onProgress!((done[0]! + done[1]!) / 2);
   });
   if (options.sizeB < (options.concurrentFromBytes ?? CONCURRENT_FROM_BYTES)) {
-    const a = await readDump(pathA, { ...read, onProgress: report(0) });
-    return [a, await readDump(pathB, { ...read, onProgress: report(1) })];
+    const a = await readDump(pathA, { ...readA, onProgress: report(0) });
+    return [a, await readDump(pathB, { ...readB, onProgress: report(1) })];
   }
   const [a, b] = await Promise.allSettled([
-    readDump(pathA, { ...read, onProgress: report(0) }),
-    readDump(pathB, { ...read, onProgress: report(1), offThread: true }),
+    readDump(pathA, { ...readA, onProgress: report(0) }),
+    readDump(pathB, { ...readB, onProgress: report(1), offThread: true }),
   ]);
   if (a.status === 'rejected') throw a.reason;
   if (b.status === 'rejected') throw b.reason;

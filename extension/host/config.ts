@@ -33,6 +33,8 @@ export interface GainlineConfig {
   readonly columnsByPattern: Readonly<Record<string, ColumnMapping>>;
   /** Glob on the file path → judgments, queries and items files (paths relative to the workspace folder). */
   readonly sideFilesByPattern: Readonly<Record<string, SideFiles>>;
+  /** Judged queries a dump lacks, when its labels come from a judgments file: left out, or scored 0. */
+  readonly missingQueries: 'skip' | 'zero';
   /** Which files the Ranked Lists view lists. */
   readonly dumpGlob: string;
   readonly dumpExclude: string;
@@ -52,6 +54,7 @@ export const CONFIG_DEFAULTS = {
   gain: DEFAULT_CONVENTION_SETTINGS.gain,
   ties: DEFAULT_CONVENTION_SETTINGS.ties as TieConvention,
   noRelevant: DEFAULT_CONVENTION_SETTINGS.noRelevant as NoRelevantPolicy,
+  missingQueries: 'skip' as 'skip' | 'zero',
   relevantFrom: DEFAULT_CONVENTION_SETTINGS.relevantFrom,
   rbpPersistence: DEFAULT_CONVENTION_SETTINGS.rbpPersistence,
   dumpGlob: '**/*.{csv,tsv,jsonl,parquet,run,gz}',
@@ -67,7 +70,8 @@ const POLICIES: readonly NoRelevantPolicy[] = ['skip', 'zero', 'one'];
 
 /** Settings whose change means open views must be recomputed. */
 export const RECOMPUTE_KEYS = [
-  'metrics', 'cutoffs', 'gain', 'ties', 'noRelevant', 'relevantFrom', 'rbpPersistence', 'maxGrade', 'columnsByPattern', 'sideFilesByPattern',
+  'metrics', 'cutoffs', 'gain', 'ties', 'noRelevant', 'missingQueries', 'relevantFrom', 'rbpPersistence', 'maxGrade', 'columnsByPattern',
+  'sideFilesByPattern',
   'compare.permutations', 'compare.bootstrapResamples', 'compare.seed', 'compare.tieTolerance',
 ] as const;
 
@@ -118,6 +122,7 @@ export function readConfig(get: SettingGetter): GainlineConfig {
   return {
     metrics,
     conventions,
+    missingQueries: choice('missingQueries', ['skip', 'zero'] as const, CONFIG_DEFAULTS.missingQueries),
     columnsByPattern: readColumnsByPattern(get('columnsByPattern'), reject),
     sideFilesByPattern: readSideFilesByPattern(get('sideFilesByPattern'), reject),
     dumpGlob: stringSetting(get('dumpGlob'), CONFIG_DEFAULTS.dumpGlob, 'dumpGlob', reject),

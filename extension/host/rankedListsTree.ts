@@ -146,7 +146,7 @@ export class RankedListsTree implements vscode.TreeDataProvider<DumpItem>, vscod
       if (bytes > MAX_BACKGROUND_BYTES) return { state: 'large', bytes };
       const remembered = this.memory.get<string>(`gainline.judgments:${uri.fsPath}`);
       const choice = await sourceFor(uri.fsPath, vscode.workspace.asRelativePath(uri, false), config, remembered);
-      if (choice.judgmentChoices) return { state: 'failed', message: 'Run file: open it once to choose its judgments file.' };
+      if (choice.judgmentChoices && choice.judgmentsRequired) return { state: 'failed', message: 'Run file: open it once to choose its judgments file.' };
       const result = await this.worker.call('headline', { source: choice.source, settings: evaluationSettings(config) }, { timeoutMs: LOAD_TIMEOUT_MS });
       return {
         state: 'done',

@@ -1,6 +1,7 @@
 /**
- * What to read for a dump the user opened: the file itself, its column mapping, and for formats that
- * keep grades or scores apart (run files, SVMlight), the side file. No `vscode` import.
+ * What to read for a dump the user opened: the file itself, its column mapping, its judgments file (any
+ * format; required for run files), a scores file for sparse feature lines, and the queries and items
+ * tables. No `vscode` import.
  */
 import { promises as fsp } from 'node:fs';
 import * as path from 'node:path';
@@ -28,11 +29,11 @@ export function isSideTableName(file: string): boolean {
 }
 
 /**
- * Judgments files near a run file, nearest first: its own folder, then sibling folders of it, then
+ * Judgments files near a dump, nearest first: its own folder, then sibling folders of it, then
  * the parent's folder. Stops at the first level that has any.
  */
-export async function findJudgmentCandidates(runFile: string): Promise<string[]> {
-  return findNear(runFile, JUDGMENT_FILE);
+export async function findJudgmentCandidates(dumpFile: string): Promise<string[]> {
+  return findNear(dumpFile, JUDGMENT_FILE);
 }
 
 /** Files matching `pattern` near `file`, nearest level first (own folder, sibling folders, parent). */
@@ -48,7 +49,7 @@ async function findNear(file: string, pattern: RegExp): Promise<string[]> {
   return [];
 }
 
-/** `model.svm` → `model.svm.scores` when that file exists. */
+/** `model.sparse` → `model.sparse.scores` when that file exists. */
 export async function findScoresFile(file: string): Promise<string | undefined> {
   const candidate = `${file}.scores`;
   try {
@@ -62,6 +63,11 @@ export interface SourceChoice {
   readonly source: DumpSource;
   /** Several judgments files were found and none was remembered: the caller should ask. */
   readonly judgmentChoices?: readonly string[];
+  /**
+   * Run files carry no grades: without a judgments file they cannot be scored. Other formats keep
+   * their own labels when the user picks none of several judgments files.
+   */
+  readonly judgmentsRequired: boolean;
 }
 
 /**
@@ -72,17 +78,22 @@ export async function sourceFor(file: string, relative: string, config: Gainline
   const columns = columnsFor(config, relative);
   const configured = sideFilesFor(config, relative);
   const tables = configured ? configuredTables(file, relative, configured) : await foundTables(file);
-  const base: DumpSource = { path: file, ...(columns ? { columns } : {}), ...tables };
-  if (configured?.judgments !== undefined) return { source: { ...base, judgments: resolveIn(file, relative, configured.judgments) } };
-  if (/\.svm(light)?$/i.test(file)) {
+  let base: DumpSource = { path: file, ...(columns ? { columns } : {}), ...tables };
+  if (/\.(sparse|svm(light)?)$/i.test(file)) {
     const scores = await findScoresFile(file);
-    return { source: scores ? { ...base, scores } : base };
+    if (scores) base = { ...base, scores };
   }
-  if (!needsJudgments(file)) return { source: base };
-  if (remembered) return { source: { ...base, judgments: remembered } };
+  // Labels from a judgments file, for every format (the readers join them to any dump): the setting's
+  // file first, then one the user picked for this dump, then the naming rule (*.qrels, *.judgments nearby).
+  const required = needsJudgments(file);
+  const judged = (judgments: string): DumpSource => ({ ...base, judgments, missingQueries: config.missingQueries });
+  if (configured?.judgments !== undefined) return { source: judged(resolveIn(file, relative, configured.judgments)), judgmentsRequired: required };
+  if (remembered) return { source: judged(remembered), judgmentsRequired: required };
   const candidates = await findJudgmentCandidates(file);
-  if (candidates.length === 1) return { source: { ...base, judgments: candidates[0]! } };
-  return { source: base, judgmentChoices: candidates };
+  // Found for a dump with labels of its own: the worker leaves it out when it shares no query with the dump.
+  if (candidates.length === 1) return { source: { ...judged(candidates[0]!), ...(required ? {} : { judgmentsFound: true }) }, judgmentsRequired: required };
+  if (candidates.length === 0) return { source: base, judgmentsRequired: required };
+  return { source: base, judgmentChoices: candidates, judgmentsRequired: required };
 }
 
 /** Side files named in gainline.sideFilesByPattern, relative to the dump's workspace folder. */

@@ -20,6 +20,8 @@ export function describeConventions(c: Conventions): string {
     `relevant from grade ${c.relevantFrom}`,
     `ERR max grade ${c.maxGrade ?? 'from data'}`,
     `RBP persistence ${c.rbpPersistence}`,
+    // Only with labels from a judgments file: judged queries the run lacks.
+    ...(c.missingQueries !== undefined ? [`missing queries: ${c.missingQueries}`] : []),
   ];
   return parts.join(' · ');
 }

@@ -32,7 +32,7 @@ export interface FileInfo {
   readonly path: string;
   /** Base name for titles. */
   readonly name: string;
-  /** 'csv' | 'tsv' | 'jsonl' | 'run' | 'svmlight' | 'parquet'. */
+  /** 'csv' | 'tsv' | 'jsonl' | 'run' | 'sparse' | 'parquet'. */
   readonly format: string;
   readonly rowCount: number;
   readonly sizeBytes: number;
@@ -85,6 +85,17 @@ export interface Histogram {
   readonly counts: readonly number[];
 }
 
+/** The counts of a judgments-file join, for the overview's data table. */
+export interface JudgmentsView {
+  /** Judged items of the dump's queries that the dump never retrieved (they count in the ideal ranking). */
+  readonly unretrieved: number;
+  /** Judged queries with no row in the dump, and the policy applied to them. */
+  readonly absentQueries: number;
+  readonly missingQueries: 'skip' | 'zero';
+  /** Rows with a label of their own that the judgments contradict. */
+  readonly disagreements: number;
+}
+
 export interface OverviewModel {
   readonly file: FileInfo;
   readonly queryCount: number;
@@ -99,6 +110,8 @@ export interface OverviewModel {
   readonly segmentColumns: readonly string[];
   /** Plain sentences: what was counted, skipped or assumed (engine warnings + reader notes). */
   readonly warnings: readonly string[];
+  /** Present when labels came from a judgments file: what the join found. */
+  readonly judgments?: JudgmentsView;
   /** Wall-clock time of read + evaluate. */
   readonly loadMs: number;
   /** True when a queries table gives the queries a text (the worst list shows it). */
@@ -232,10 +245,12 @@ export interface IdealView {
   readonly item: string;
   readonly label: MaybeNumber;
   readonly gain: number;
-  /** Where the model put it. */
+  /** Where the model put it (0 when the run never retrieved it). */
   readonly predictedPosition: number;
   /** Title from the items table, when one is joined. */
   readonly title?: string;
+  /** False for a judged item the run never retrieved: it counts in the ideal ranking only (row -1). */
+  readonly retrieved: boolean;
 }
 
 /** The engine's InvertedPair plus item names and grades, so the webview needs no dump to label it. */

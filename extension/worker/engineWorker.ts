@@ -18,8 +18,7 @@ import type { Evaluation } from '../engine/evaluate/types';
 import { parseMetricList } from '../engine/metrics/parse';
 import type { RankedDump } from '../engine/model/dump';
 import { groupByQuery, type QueryGroups } from '../engine/model/groups';
-import { readDump, type ReadOptions } from '../engine/readers/index';
-import { withSideTables } from '../engine/tables/join';
+import { readSource } from './readSource';
 import { conventionsAsJson } from '../engine/report/reportInput';
 import type { Comparison } from '../engine/compare/compare';
 import { RequestServer, type HandlerContext, type RequestHandlers } from '../protocol/request';
@@ -72,22 +71,12 @@ function progressReporter(ctx: HandlerContext, from: number, to: number, message
 }
 
 async function read(source: DumpSource, ctx: HandlerContext, from: number, to: number, label = 'Reading'): Promise<RankedDump> {
-  const options: ReadOptions = {
+  return readSource(source, {
     // On two cores or fewer, extra parse threads would starve the extension host and the UI.
     ...(availableParallelism() <= 2 ? { threads: 1 } : {}),
     signal: ctx.signal,
     onProgress: progressReporter(ctx, from, to, `${label} ${source.path.split(/[\\/]/).pop()}…`),
-    ...(source.format ? { format: source.format as ReadOptions['format'] } : {}),
-    ...(source.columns ? { columns: source.columns } : {}),
-    ...(source.judgments ? { judgments: source.judgments } : {}),
-    ...(source.scores ? { scores: source.scores } : {}),
-  };
-  const dump = await readDump(source.path, options);
-  return withSideTables(dump, {
-    ...(source.queries ? { queries: source.queries } : {}),
-    ...(source.items ? { items: source.items } : {}),
-    ...(source.tablesFound ? { found: true } : {}),
-  }, ctx.signal);
+  });
 }
 
 function loaded(dump: RankedDump, evaluation: Evaluation, groups: QueryGroups): Loaded {
@@ -224,6 +213,9 @@ const handlers: RequestHandlers<WorkerRequests> = {
         idealPosition: p.idealPosition,
         line: l.dump.line[p.row] || null,
       })),
+      ...(detail.notRetrieved.length > 0
+        ? { notRetrieved: detail.notRetrieved.map((m) => ({ item: m.item, grade: m.label, idealPosition: m.idealPosition })) }
+        : {}),
     };
     return { json: JSON.stringify(json, null, 2) };
   },

@@ -16,6 +16,8 @@ import type {
   ConventionsView,
   FileInfo,
   Histogram,
+  IdealView,
+  JudgmentsView,
   MetricColumn,
   MovementView,
   OverviewModel,
@@ -85,6 +87,10 @@ export function metricColumns(evaluation: Evaluation): MetricColumn[] {
   }));
 }
 
+function judgmentsView(j: NonNullable<Evaluation['judgments']>): JudgmentsView {
+  return { unretrieved: j.unretrieved, absentQueries: j.absentQueries, missingQueries: j.missingQueries, disagreements: j.disagreements };
+}
+
 export function overviewModel(dump: RankedDump, evaluation: Evaluation, loadMs: number): OverviewModel {
   const headlineMean = evaluation.summary[evaluation.headline]?.mean ?? NaN;
   return {
@@ -104,8 +110,38 @@ export function overviewModel(dump: RankedDump, evaluation: Evaluation, loadMs: 
     histogram: histogram(evaluation.perQuery.values[evaluation.headline]!, metricRange(evaluation.metrics[evaluation.headline]!)),
     segmentColumns: dump.segments.map((s) => s.name),
     warnings: [...evaluation.warnings, ...dump.notes.messages],
+    ...(evaluation.judgments ? { judgments: judgmentsView(evaluation.judgments) } : {}),
     loadMs: Math.round(loadMs),
   };
+}
+
+/**
+ * The whole ideal ranking: listed items at their ideal positions, with the judged items the run never
+ * retrieved in between, marked (`retrieved: false`, predicted position 0).
+ */
+function idealViews(dump: RankedDump, detail: QueryDetail, byRow: ReadonlyMap<number, QueryDetail['positions'][number]>,
+  label: (v: number) => ReturnType<typeof toMaybe>): IdealView[] {
+  // Titles by item id; the items pool also holds judged items with no row, so they get theirs too.
+  const titles = dump.joined?.itemTitle;
+  const titleOf = (item: number) => (titles ? { title: item >= 0 ? titles[item] ?? '' : '' } : {});
+  const views: IdealView[] = detail.idealOrder.map((row) => {
+    const p = byRow.get(row);
+    return {
+      position: p?.idealPosition ?? 0,
+      row,
+      item: p?.item ?? dump.items.get(dump.item[row]!),
+      label: label(dump.label[row]!),
+      gain: p?.gain ?? 0,
+      predictedPosition: p?.position ?? 0,
+      retrieved: true,
+      ...titleOf(dump.item[row]!),
+    };
+  });
+  for (const missing of detail.notRetrieved) {
+    views.push({ position: missing.idealPosition, row: -1, item: missing.item, label: label(missing.label), gain: missing.gain, predictedPosition: 0, retrieved: false,
+      ...titleOf(dump.items.find(missing.item)) });
+  }
+  return views.sort((a, b) => a.position - b.position);
 }
 
 export function detailView(dump: RankedDump, evaluation: Evaluation, detail: QueryDetail, queryId: number, table: QueryTable): QueryDetailView {
@@ -138,18 +174,7 @@ export function detailView(dump: RankedDump, evaluation: Evaluation, detail: Que
       withinCutoff: p.position <= detail.k,
       ...titleOf(p.row),
     })),
-    ideal: detail.idealOrder.map((row, i) => {
-      const p = byRow.get(row);
-      return {
-        position: i + 1,
-        row,
-        item: p?.item ?? dump.items.get(dump.item[row]!),
-        label: label(dump.label[row]!),
-        gain: p?.gain ?? 0,
-        predictedPosition: p?.position ?? 0,
-        ...titleOf(row),
-      };
-    }),
+    ideal: idealViews(dump, detail, byRow, label),
     dcg: detail.dcg,
     idealDcg: detail.idealDcg,
     ndcg: toMaybe(detail.ndcg),

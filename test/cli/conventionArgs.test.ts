@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { scoringSetupFrom } from '../../extension/cli/conventionArgs';
+import { conventionHelp, scoringSetupFrom } from '../../extension/cli/conventionArgs';
 import { InputError } from '../../extension/engine/errors';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
 import { DEFAULT_METRICS } from '../../extension/engine/metrics/registry';
@@ -28,7 +28,9 @@ describe('shared scoring options', () => {
         'input-format': 'tsv',
         columns: 'query=search_id,item=sku,label=grade,score=p',
         judgments: 'judgments/grades.qrels',
-        scores: 'runs/a.svm.scores',
+        'judgments-columns': 'query=sid,item=pid,label=stars',
+        'missing-queries': 'zero',
+        scores: 'runs/a.sparse.scores',
         threads: '2',
         metrics: 'ndcg@5,rbp@20',
         gain: 'map:0=0,1=1,2=3',
@@ -44,7 +46,9 @@ describe('shared scoring options', () => {
       format: 'tsv',
       columns: { query: 'search_id', item: 'sku', label: 'grade', score: 'p' },
       judgments: '/ws/judgments/grades.qrels',
-      scores: '/ws/runs/a.svm.scores',
+      judgmentsColumns: { query: 'sid', item: 'pid', label: 'stars' },
+      missingQueries: 'zero',
+      scores: '/ws/runs/a.sparse.scores',
       threads: 2,
     });
     expect(setup.metrics).toEqual([
@@ -58,7 +62,21 @@ describe('shared scoring options', () => {
       relevantFrom: 2,
       maxGrade: 4,
       rbpPersistence: 0.95,
+      missingQueries: 'zero',
     });
+  });
+
+  it('prints the missing-queries policy with the conventions as soon as a judgments file is given', () => {
+    expect(scoringSetupFrom({ judgments: 'grades.qrels' }).conventions.missingQueries).toBe('skip');
+    expect(scoringSetupFrom({}).conventions.missingQueries).toBeUndefined();
+    expect(() => scoringSetupFrom({ 'judgments-columns': 'query=sid' })).toThrow('--judgments-columns: expected --judgments FILE to go with it');
+    expect(() => scoringSetupFrom({ judgments: 'g', 'missing-queries': 'some' })).toThrow('--missing-queries: expected one of skip, zero');
+  });
+
+  it('reads the earlier sparse-format value silently, and lists only the new one', () => {
+    expect(scoringSetupFrom({ 'input-format': 'svmlight' }).read.format).toBe('sparse');
+    expect(conventionHelp).toContain('sparse');
+    expect(conventionHelp.toLowerCase()).not.toContain('svm');
   });
 
   it.each([

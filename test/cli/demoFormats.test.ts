@@ -14,7 +14,7 @@ describe('demo data formats', () => {
     const csvA = evalMeans(['demo/runs/model-a.csv']);
     expect(evalMeans(['demo/runs/model-a.jsonl.gz'])).toEqual(csvA);
     expect(evalMeans(['demo/runs/model-a.run', '--judgments', 'demo/judgments/grades.qrels'])).toEqual(csvA);
-    expect(evalMeans(['demo/runs/model-a.svm', '--scores', 'demo/runs/model-a.svm.scores'])).toEqual(csvA);
+    expect(evalMeans(['demo/runs/model-a.sparse', '--scores', 'demo/runs/model-a.sparse.scores'])).toEqual(csvA);
     expect(evalMeans(['demo/runs/model-b.parquet'])).toEqual(evalMeans(['demo/runs/model-b.csv']));
   });
 });

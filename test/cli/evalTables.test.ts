@@ -168,3 +168,48 @@ describe('gainline compare with query weights', () => {
     expect(doc.methodNotes.join('\n')).toMatch(/draws queries uniformly with replacement .* The t-test, Wilcoxon, randomization test, d_z and wins \/ ties \/ losses are unweighted/);
   });
 });
+
+describe('side tables with a judgments file', () => {
+  // The same store's searches as judgments: SKU-8 (grade 3) for q1 and all of q4 were never retrieved.
+  const JUDGMENTS = ['q1 0 SKU-1 3', 'q1 0 SKU-2 0', 'q1 0 SKU-3 1', 'q1 0 SKU-8 3', 'q2 0 SKU-4 0', 'q2 0 SKU-5 2',
+    'q3 0 SKU-6 2', 'q3 0 SKU-7 0', 'q4 0 SKU-9 1', 'q5 0 SKU-9 2'].join('\n') + '\n';
+  const IDS = 'qid,item_id,score\n' + DUMP.split('\n').slice(1, -1).map((l) => l.split(',')).map(([q, i, , s]) => `${q},${i},${s}`).join('\n') + '\n';
+  const QUERIES4 = QUERIES.replace('q9\tladder 3 step\tfr-FR\t1\n', 'q4\tladder 3 step\tfr-FR\t4\n');
+  const judgedFiles = { ...files, 'ids.csv': IDS, 'grades.qrels': JUDGMENTS, 'queries4.tsv': QUERIES4 };
+
+  it('weighs judged queries added under --missing-queries zero by the queries table, else 1', () => {
+    const doc = JSON.parse(ok(['eval', 'ids.csv', '--judgments', 'grades.qrels', '--missing-queries', 'zero', '--queries', 'queries4.tsv',
+      '--metrics', 'rr', '--format', 'json'], fixtureDir(judgedFiles)));
+    // rr: q1 1 (w 3), q2 1/2 (w 1), q3 1/2 (w 1), q4 0 (w 4 from the table), q5 0 (no row anywhere: w 1);
+    // (3 + 0.5 + 0.5 + 0 + 0) / 10 (hand-derived).
+    expect(doc.queryCount).toBe(5);
+    expect(doc.summary.rr).toBeCloseTo(0.4, 12);
+    expect(doc.warnings.join('\n')).toMatch(/1 judged query missing from the run \(scored 0\) has no weight of its own \(e\.g\. 'q5'\); it weighs 1\./);
+    expect(doc.queries.find((q: { query: string }) => q.query === 'q4')).toMatchObject({ text: 'ladder 3 step', items: 0, notRetrieved: 1, rr: 0 });
+  });
+
+  it('JSON entries and CSV rows carry both the judged items never retrieved and the text and segments', () => {
+    const dir = fixtureDir(judgedFiles);
+    const doc = JSON.parse(ok(['eval', 'ids.csv', '--judgments', 'grades.qrels', '--queries', 'queries.tsv', '--metrics', 'rr', '--format', 'json'], dir));
+    expect(doc.queries[0]).toMatchObject({ query: 'q1', text: 'cordless drill 18v', notRetrieved: 1, segments: { locale: 'en-GB' } });
+    const csv = ok(['eval', 'ids.csv', '--judgments', 'grades.qrels', '--queries', 'queries.tsv', '--metrics', 'rr', '--format', 'csv'], dir).split('\n');
+    expect(csv[0]).toBe('query,text,locale,items,relevant,notRetrieved,skipped,rr');
+    expect(csv[1]).toBe('q1,cordless drill 18v,en-GB,3,3,1,false,1');
+  });
+
+  it('--query lists the judged items never retrieved in the ideal order, with their titles', () => {
+    const dir = fixtureDir({ ...judgedFiles, 'items8.csv': ITEMS + 'SKU-8,Oakridge drill 18v kit,Oakridge\n' });
+    const doc = JSON.parse(ok(['eval', 'ids.csv', '--judgments', 'grades.qrels', '--items', 'items8.csv', '--query', 'q1', '--format', 'json'], dir));
+    // Grades 3, 0, 1 retrieved and 3 never retrieved: ideal order SKU-1 (3, listed first), SKU-8 (3), SKU-3, SKU-2.
+    expect(doc.idealOrder).toEqual([
+      { item: 'SKU-1', title: 'Oakridge drill 18v', attributes: { brand: 'Oakridge' }, grade: 3 },
+      { item: 'SKU-8', title: 'Oakridge drill 18v kit', attributes: { brand: 'Oakridge' }, grade: 3, retrieved: false },
+      { item: 'SKU-3', title: '', attributes: { brand: '' }, grade: 1 },
+      { item: 'SKU-2', title: 'Vantor drill bits', attributes: { brand: 'Vantor' }, grade: 0 },
+    ]);
+    const text = ok(['eval', 'ids.csv', '--judgments', 'grades.qrels', '--query', 'q1'], dir);
+    expect(text).toMatch(/1 judged item the run never retrieved counts in the ideal order only/);
+    expect(text).toMatch(/\n +SKU-2 +0\n/);
+    expect(text).toMatch(/SKU-8 \(not retrieved\) +3/);
+  });
+});

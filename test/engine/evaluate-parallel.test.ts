@@ -17,6 +17,7 @@ import { buildDump, type TestRow } from './dumpBuilder';
 import { TempDir } from './fixtures/readers/tempFiles';
 import { QUERY_NAMES, seededRandom } from '../reference/random';
 import { useBundledWorkers } from './fixtures/workers';
+import { judgedCollection, joined } from './judgedSets';
 
 const tmp = new TempDir();
 
@@ -86,6 +87,19 @@ describe('parallel scoring', () => {
     const many = await evaluateInParallel(dump, METRICS, conventions, { threads });
     expectIdentical(one, many);
     expect(one.sensitivity.length).toBeGreaterThan(5);
+  });
+
+  it.each(['skip', 'zero'] as const)('with judged items never retrieved and missing queries %s, it matches', async (policy) => {
+    const { rows, judgments } = judgedCollection(41, 2500);
+    const dump = joined(rows, judgments, policy);
+    expect(dump.notes.judgments!.unretrieved).toBeGreaterThan(1000);
+    expect(dump.notes.judgments!.absentQueries).toBeGreaterThan(50);
+    const one = evaluate(dump, METRICS, DEFAULT_CONVENTIONS);
+    const many = await evaluateInParallel(dump, METRICS, DEFAULT_CONVENTIONS, { threads: 3, renderJsonRecords: dump.queries });
+    expectIdentical(one, many);
+    expect(bytesOf(many.perQuery.unretrieved!)).toEqual(bytesOf(one.perQuery.unretrieved!));
+    const input = { queryNames: dump.queries, source: 'runs/a.csv', rowCount: dump.rowCount };
+    expect(formatJson({ ...input, evaluation: many })).toBe(formatJson({ ...input, evaluation: one }));
   });
 
   it('renders the JSON report records on the scoring threads, the same text as rendering after scoring', async () => {

@@ -126,9 +126,13 @@ describe('dump sources', () => {
     const remembered = await sourceFor(run, 'runs/model-a.run', config, '/x/picked.qrels');
     expect(remembered.source.judgments).toBe('/x/picked.qrels');
     expect(remembered.judgmentChoices).toBeUndefined();
+    expect(remembered.source.missingQueries).toBe('skip');
+    const zero = await sourceFor(run, 'runs/model-a.run', readConfig((key) => (key === 'missingQueries' ? 'zero' : undefined)), '/x/picked.qrels');
+    expect(zero.source.missingQueries).toBe('zero');
+    expect(readConfig((key) => (key === 'missingQueries' ? 'none' : undefined)).problems.join(' ')).toMatch(/gainline\.missingQueries: expected one of skip, zero/);
   });
 
-  it('pairs an SVMlight file with its scores file and applies column mappings by pattern', async () => {
+  it('pairs a sparse feature file with its scores file and applies column mappings by pattern', async () => {
     const config = readConfig((key) => (key === 'columnsByPattern' ? { 'exports/*.csv': { query: 'search_id' } } : undefined));
     expect((await sourceFor(join(root, 'runs', 'model.svm'), 'runs/model.svm', config)).source.scores).toBe(join(root, 'runs', 'model.svm.scores'));
     expect((await sourceFor('/w/exports/a.csv', 'exports/a.csv', config)).source.columns).toEqual({ query: 'search_id' });

@@ -34,6 +34,7 @@ const bytes = (...parts: (string | number[])[]) => Buffer.concat(parts.map((p) =
 // Run files split at whitespace, so their ids have none.
 const runRows = rows.map((r) => ({ ...r, query: r.query.replace(/ /g, '_') }));
 const { run, judgments } = runAndJudgments(runRows);
+const judgmentLines = judgments.toString('utf8').split('\n').filter((l) => l.trim() !== '');
 const okGzip = gzipSync(delimited(rows));
 
 /** A large quote-free CSV with a bad byte near its end, read on several threads (--threads 3). */
@@ -183,6 +184,12 @@ export const CASES: readonly HostileCase[] = [
     expect: { error: 'j.txt', says: /sharing queries/ } },
   { name: 'judgments line with three fields', files: { 'r.run': run, 'j.txt': 'q 0 a 1\nq 0 b\n' }, args: ['eval', 'r.run', '--judgments', 'j.txt'],
     expect: { error: 'j.txt:2' } },
+  { name: 'a judged pair given twice', files: { 'r.run': run, 'j.txt': `${judgmentLines.join('\n')}\n${judgmentLines[0]}\n` },
+    args: ['eval', 'r.run', '--judgments', 'j.txt'], expect: { error: `j.txt:${judgmentLines.length + 1}`, says: /judged once/ } },
+  { name: 'a judgments table without a grade column', files: { 'd.csv': delimited(rows), 'j.csv': 'query,item\na,b\n' },
+    args: ['eval', 'd.csv', '--judgments', 'j.csv'], expect: { error: 'j.csv:1', says: /label/ } },
+  { name: '--judgments-columns naming a missing column', files: { 'd.csv': delimited(rows), 'j.csv': 'query,item,grade\na,b,1\n' },
+    args: ['eval', 'd.csv', '--judgments', 'j.csv', '--judgments-columns', 'label=stars'], expect: { error: 'j.csv:1', says: /stars/ } },
   { name: 'run file without --judgments', files: { 'r.run': run }, args: ['eval', 'r.run', '--input-format', 'run'], expect: { error: 'r.run', says: /--judgments/ } },
 
   // Bad options: each names the option.

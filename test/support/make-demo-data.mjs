@@ -101,11 +101,11 @@ function writeItems(file, rows) {
 }
 
 /**
- * SVMlight with the ranking features a learner would see (label qid:N index:value ... # item), and
- * a side file with one model score per line in the same order. SVMlight has no item ids (the
+ * Sparse feature lines with the ranking features a learner would see (label qid:N index:value ... # item), and
+ * a side file with one model score per line in the same order. The format has no item ids (the
  * comment is for people), so repeated rows could not be told apart; they are left out.
  */
-function writeSvmlight(file, scoresFile, rows) {
+function writeSparseFeatures(file, scoresFile, rows) {
   const qidOf = new Map();
   const lines = [];
   const scores = [];
@@ -149,7 +149,7 @@ function writeSmallDemo(demoDir) {
   writeJudgments(join(judgments, 'grades.qrels'), rows);
   writeQueryList(join(judgments, 'queries.tsv'), queries);
   writeItems(join(judgments, 'items.tsv'), rows);
-  writeSvmlight(join(runs, 'model-a.svm'), join(runs, 'model-a.svm.scores'), a);
+  writeSparseFeatures(join(runs, 'model-a.sparse'), join(runs, 'model-a.sparse.scores'), a);
   const duplicates = rows.filter((r) => r.duplicate).length;
   console.log(`demo: ${queries.length} queries, ${rows.length} rows per model (${duplicates} duplicate rows) → ${runs}, ${judgments}`);
 }

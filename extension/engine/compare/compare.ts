@@ -5,6 +5,7 @@
  */
 import { evaluate, gradeRange } from '../evaluate/evaluate';
 import type { Evaluation } from '../evaluate/types';
+import { describeJudgments } from '../evaluate/warnings';
 import { InputError } from '../errors';
 import type { Conventions } from '../metrics/conventions';
 import { anyNeeds, type MetricSpec } from '../metrics/registry';
@@ -100,6 +101,11 @@ export interface Comparison {
   readonly warnings: readonly string[];
 }
 
+/** Each run's judgments-file counts (judged items never retrieved, missing queries), marked with the run. */
+function judgmentNotes(run: 'A' | 'B', dump: RankedDump): string[] {
+  return describeJudgments(dump).map((note) => `${run}: ${note}`);
+}
+
 export async function compareRuns(
   a: RankedDump,
   b: RankedDump,
@@ -183,7 +189,7 @@ export async function compareRuns(
     byMetric,
     methodNotes: [...methodNotes(o, metrics.length), ...(weights ? weightNotes(a) : [])],
     ...(weights ? { weighting: { source: a.joined?.weightSource ?? 'query weights' } } : {}),
-    warnings: [...match.notes, ...skipWarnings(byMetric)],
+    warnings: [...match.notes, ...judgmentNotes('A', a), ...judgmentNotes('B', b), ...skipWarnings(byMetric)],
   };
 }
 

@@ -11,7 +11,8 @@ import { parseMetricList } from '../metrics/parse';
 import { checkConventions, type GradeRange } from './evaluate';
 import { QueryRanking, SeenItems } from './ranking';
 import { noRelevantValue, QueryScorer } from './scorer';
-import type { InvertedPair, PositionRow, QueryDetail } from './types';
+import { gainFunction } from '../metrics/gain';
+import type { InvertedPair, NotRetrievedItem, PositionRow, QueryDetail } from './types';
 
 export interface QueryDetailOptions {
   groups?: QueryGroups;
@@ -41,6 +42,7 @@ export function queryDetail(
   const gmax = checkConventions(dump, metrics, conventions, options.gradeRange, rows.length);
   const ranking = new QueryRanking();
   ranking.load(dump, rows, 0, rows.length, new SeenItems());
+  ranking.setUnretrieved(dump.unretrieved, queryId);
   const scorer = new QueryScorer(conventions, metrics, gmax, k);
   scorer.score(ranking);
   const n = ranking.n;
@@ -54,12 +56,26 @@ export function queryDetail(
     const e = ranking.tieBounds[g + 1]!;
     groupSize.fill(e - s, s, e);
   }
-  // Ideal order: gain descending, then grade descending, then file order.
-  const slots = Array.from({ length: n }, (_, i) => i);
+  // Ideal order: gain descending, then grade descending, then listed items before unretrieved judged items
+  // (which count in the ideal but have no row), then file order.
+  const u = ranking.unretrieved;
+  const gainOf = gainFunction(conventions.gain);
+  const unretrievedGain = Array.from({ length: u }, (_, e) => gainOf(ranking.unretrievedGrade[e]!));
+  const slots = Array.from({ length: n + u }, (_, i) => i);
   const rowAt = (slot: number) => ranking.row[order[slot]!]!;
-  slots.sort((a, b) => scorer.gain[b]! - scorer.gain[a]! || list.grade[b]! - list.grade[a]! || rowAt(a) - rowAt(b));
-  const idealPosition = new Uint32Array(n);
+  const gainAt = (i: number) => (i < n ? scorer.gain[i]! : unretrievedGain[i - n]!);
+  const gradeAt = (i: number) => (i < n ? list.grade[i]! : ranking.unretrievedGrade[i - n]!);
+  slots.sort((a, b) => gainAt(b) - gainAt(a) || gradeAt(b) - gradeAt(a) || (a < n ? 0 : 1) - (b < n ? 0 : 1) ||
+    (a < n && b < n ? rowAt(a) - rowAt(b) : a - b));
+  const idealPosition = new Uint32Array(n + u);
   slots.forEach((slot, i) => (idealPosition[slot] = i + 1));
+  const notRetrieved: NotRetrievedItem[] = [];
+  const side = dump.unretrieved;
+  for (let e = 0; e < u; e++) {
+    const entry = side!.start[queryId]! + e;
+    notRetrieved.push({ item: dump.items.get(side!.item[entry]!), label: side!.grade[entry]!, gain: unretrievedGain[e]!, idealPosition: idealPosition[n + e]! });
+  }
+  notRetrieved.sort((a, b) => a.idealPosition - b.idealPosition);
   const { discount } = discountTable(n);
 
   // Untruncated discount: the position's own, or its tie group's mean under `average`.
@@ -78,7 +94,7 @@ export function queryDetail(
     const row = rowAt(i);
     const contribution = scorer.gain[i]! * scorer.headlineDiscount[i]!;
     cumulative += contribution;
-    if (i < k) idealCumulative += scorer.gain[slots[i]!]! * discount[i]!;
+    if (i < k) idealCumulative += gainAt(slots[i]!) * discount[i]!;
     positions.push({
       position: i + 1,
       row,
@@ -107,7 +123,8 @@ export function queryDetail(
     conventions,
     k,
     positions,
-    idealOrder: slots.map(rowAt),
+    idealOrder: slots.filter((slot) => slot < n).map(rowAt),
+    notRetrieved,
     dcg: scorer.dcgHeadline,
     idealDcg: ideal,
     ndcg: scorer.noRelevant ? noRelevantValue(conventions.noRelevant) : ideal > 0 ? scorer.dcgHeadline / ideal : NaN,

@@ -122,6 +122,7 @@ export function allocatePerQuery(queryCount: number, metrics: readonly MetricSpe
   return {
     items: new Uint32Array(allocate(queryCount * 4)),
     relevant: new Uint32Array(allocate(queryCount * 4)),
+    unretrieved: new Uint32Array(allocate(queryCount * 4)),
     values: metrics.map(f64),
     inversions: f64(),
     inversionCost: f64(),
@@ -134,6 +135,8 @@ export function allocatePerQuery(queryCount: number, metrics: readonly MetricSpe
 export interface RangeTally {
   degenerate: DegenerateCounts;
   emptyQueries: number;
+  /** Judged queries without a row in the run, scored 0 under missing queries `zero`. */
+  absentQueries: number;
   tauUndefined: number;
   /** Queries the sensitivity pass saw with no relevant item. */
   sensitivityNoRelevant: number;
@@ -143,6 +146,7 @@ export function emptyTally(): RangeTally {
   return {
     degenerate: { singleItemQueries: 0, noRelevantQueries: 0, duplicateRows: 0, missingScoreRows: 0, unjudgedRows: 0, tiedScoreRows: 0 },
     emptyQueries: 0,
+    absentQueries: 0,
     tauUndefined: 0,
     sensitivityNoRelevant: 0,
   };
@@ -152,12 +156,13 @@ export function addTally(into: RangeTally, from: RangeTally): void {
   const d = into.degenerate;
   for (const key of Object.keys(d) as (keyof DegenerateCounts)[]) d[key] += from.degenerate[key];
   into.emptyQueries += from.emptyQueries;
+  into.absentQueries += from.absentQueries;
   into.tauUndefined += from.tauUndefined;
   into.sensitivityNoRelevant += from.sensitivityNoRelevant;
 }
 
 /** The dump columns scoring reads (a worker thread gets only these). */
-export type ScoredColumns = Pick<RankedDump, 'item' | 'label' | 'score'>;
+export type ScoredColumns = Pick<RankedDump, 'item' | 'label' | 'score' | 'unretrieved'>;
 
 /** Scores queries [from, to) into `perQuery` (indexed by query id); progress is the fraction of this range. */
 export function scoreQueryRange(setup: EvaluationSetup, dump: RankedDump | ScoredColumns, from: number, to: number,
@@ -175,6 +180,8 @@ export class RangeScorer {
   private readonly seen: SeenItems;
   private readonly columns: RankedDump;
   private readonly tauIndex: number;
+  /** Queries from here on have no row in the run (judged queries added under missing queries `zero`). */
+  private readonly firstAbsent: number;
 
   constructor(
     private readonly setup: EvaluationSetup,
@@ -187,6 +194,7 @@ export class RangeScorer {
     this.seen = new SeenItems();
     this.scorer = new QueryScorer(setup.conventions, setup.metrics, setup.gmax);
     this.tauIndex = setup.metrics.findIndex(isPairMeasure);
+    this.firstAbsent = dump.unretrieved?.firstAbsentQuery ?? Infinity;
   }
 
   /** Adds queries [from, to) to `tally`. */
@@ -206,6 +214,12 @@ export class RangeScorer {
         options.onProgress?.((q - from) / count);
       }
       ranking.load(columns, groups.rowsOfQuery, groups.start[q]!, groups.start[q + 1]!, seen);
+      ranking.setUnretrieved(columns.unretrieved, q);
+      if (perQuery.unretrieved) perQuery.unretrieved[q] = ranking.unretrieved;
+      if (q >= this.firstAbsent) {
+        this.scoreAbsent(q, tally);
+        continue;
+      }
       scorer.score(ranking);
       const n = ranking.n;
       perQuery.items[q] = n;
@@ -224,9 +238,29 @@ export class RangeScorer {
       perQuery.inversionCost[q] = skipped ? NaN : scorer.inversionCost;
       if (perQuery.rbpResidual) perQuery.rbpResidual[q] = skipped ? NaN : scorer.rbpResidual;
       if (tauIndex >= 0 && !skipped && Number.isNaN(scorer.pairs.tau)) tally.tauUndefined++;
-      sensitivity?.add(ranking, scorer.grades, scorer.noRelevant, q);
+      sensitivity?.add(ranking, scorer.grades, scorer.noRelevant, q, scorer.idealGrades);
     }
     tally.sensitivityNoRelevant += (sensitivity?.noRelevantQueries ?? 0) - noRelevantBefore;
+  }
+
+  /**
+   * A judged query the run has no row for, under missing queries `zero`: 0 on every metric and never
+   * skipped, as evaluation campaigns count a topic a system did not answer (common practice). Its judged
+   * items are all unretrieved; nothing is inverted. The sensitivity rows leave it out (no list to vary).
+   */
+  private scoreAbsent(q: number, tally: RangeTally): void {
+    const perQuery = this.perQuery;
+    perQuery.items[q] = 0;
+    let relevant = 0;
+    const side = this.columns.unretrieved!;
+    for (let e = side.start[q]!; e < side.start[q + 1]!; e++) if (side.grade[e]! >= this.setup.conventions.relevantFrom) relevant++;
+    perQuery.relevant[q] = relevant;
+    for (let m = 0; m < this.setup.metrics.length; m++) perQuery.values[m]![q] = 0;
+    perQuery.skipped[q] = 0;
+    perQuery.inversions[q] = 0;
+    perQuery.inversionCost[q] = 0;
+    if (perQuery.rbpResidual) perQuery.rbpResidual[q] = 0;
+    tally.absentQueries++;
   }
 }
 
@@ -273,8 +307,10 @@ export function finishEvaluation(setup: EvaluationSetup, dump: RankedDump, perQu
   });
   warnings.push(...undefinedValueNotes(metrics, perQuery));
   if (weights !== undefined) warnings.push(...weightNotes(dump, weights));
+  // The missing-queries policy was applied when the judgments were joined; it is printed with the rest.
+  const judged = dump.notes.judgments;
   return {
-    conventions,
+    conventions: judged ? { ...conventions, missingQueries: judged.missingQueries } : conventions,
     metrics,
     headline: 0,
     ...(weights !== undefined ? { weighting: { source: dump.joined?.weightSource ?? 'query weights' } } : {}),
@@ -284,6 +320,7 @@ export function finishEvaluation(setup: EvaluationSetup, dump: RankedDump, perQu
     degenerate: tally.degenerate,
     sensitivity: sensitivity ? sensitivity.rows() : [],
     warnings,
+    ...(dump.notes.judgments ? { judgments: dump.notes.judgments } : {}),
   };
 }
 

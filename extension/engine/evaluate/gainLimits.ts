@@ -77,6 +77,17 @@ export function checkGainsAndGrades(dump: RankedDump, metrics: readonly MetricSp
       throw rowError(dump, missing, `a gain for grade ${grade} in the gain map --gain ${formatGain(gain)} (unjudged rows count as grade 0)`,
         String(grade));
     }
+    const unmapped = firstUnretrieved(dump, (g) => !gains.has(g));
+    if (unmapped >= 0) {
+      const grade = dump.unretrieved!.grade[unmapped]!;
+      throw unretrievedError(dump, unmapped, `a gain for grade ${grade} in the gain map --gain ${formatGain(gain)}`, String(grade));
+    }
+    const hugeUnretrieved = firstUnretrieved(dump, (g) => !(Math.abs(gains.get(g)!) <= limit));
+    if (hugeUnretrieved >= 0) {
+      const grade = dump.unretrieved!.grade[hugeUnretrieved]!;
+      const why = `grade ${grade} gives gain ${formatNumber(gains.get(grade)!)} in the gain map, too large to sum over a query of ${largestQuery} items`;
+      throw unretrievedError(dump, hugeUnretrieved, `a grade whose gain is finite and summable: ${why} (${GAIN_HINT})`, String(grade));
+    }
     const huge = firstRow(dump, (g) => !(Math.abs(gains.get(g)!) <= limit));
     if (huge >= 0) {
       const grade = gradeAt(dump, huge);
@@ -87,6 +98,8 @@ export function checkGainsAndGrades(dump: RankedDump, metrics: readonly MetricSp
     const problem = gainProblem(gain, range, largestQuery);
     if (problem !== undefined) {
       const row = firstRow(dump, (g) => g === problem.grade);
+      const entry = row < 0 ? firstUnretrieved(dump, (g) => g === problem.grade) : -1;
+      if (entry >= 0) throw unretrievedError(dump, entry, `a grade whose gain is finite and summable: ${problem.why} (${GAIN_HINT})`, String(problem.grade));
       throw rowError(dump, row, `a grade whose gain is finite and summable: ${problem.why} (${GAIN_HINT})`, String(problem.grade));
     }
   }
@@ -97,10 +110,14 @@ export function checkGainsAndGrades(dump: RankedDump, metrics: readonly MetricSp
   if (anyNeeds(metrics, 'maxGrade')) {
     if (range.lowest < 0) {
       const row = firstRow(dump, (g) => g < 0);
+      const entry = row < 0 ? firstUnretrieved(dump, (g) => g < 0) : -1;
+      if (entry >= 0) throw unretrievedError(dump, entry, 'grades >= 0 for ERR', String(range.lowest));
       throw rowError(dump, row, 'grades >= 0 for ERR', String(range.lowest));
     }
     if (range.highest > gmax) {
       const row = firstRow(dump, (g) => g > gmax);
+      const entry = row < 0 ? firstUnretrieved(dump, (g) => g > gmax) : -1;
+      if (entry >= 0) throw unretrievedError(dump, entry, `grades <= the maximum grade ${gmax} for ERR (--max-grade)`, String(range.highest));
       throw rowError(dump, row, `grades <= the maximum grade ${gmax} for ERR (--max-grade)`, String(range.highest));
     }
   }
@@ -118,11 +135,26 @@ function firstRow(dump: RankedDump, bad: (grade: number) => boolean): number {
   return -1;
 }
 
+/** The first judged-but-unretrieved grade (labels from a judgments file) that is `bad`, or -1. */
+function firstUnretrieved(dump: RankedDump, bad: (grade: number) => boolean): number {
+  const grades = dump.unretrieved?.grade;
+  if (grades === undefined) return -1;
+  for (let e = 0; e < grades.length; e++) if (bad(grades[e]!)) return e;
+  return -1;
+}
+
+/** An InputError at the judgments file's line of a judged item the run never retrieved. */
+function unretrievedError(dump: RankedDump, entry: number, expected: string, found: string): InputError {
+  const line = dump.unretrieved!.line[entry]!;
+  const file = dump.notes.judgments?.path;
+  return new InputError(`${expected} (a judged item the run never retrieved; it counts in the ideal ranking)`, file, line || undefined, found);
+}
+
 /** An InputError at the row's line, or naming the row when the format has no lines (Parquet). */
 function rowError(dump: RankedDump, row: number, expected: string, found: string): InputError {
   const line = row >= 0 ? dump.line[row] ?? 0 : 0;
   const unjudged = row >= 0 && Number.isNaN(dump.label[row]!);
-  const judged = dump.format !== 'run' ? '' : unjudged ? ' (an unjudged item counts as grade 0)' : ' (its grade comes from the judgments file)';
+  const judged = dump.notes.judgments === undefined ? '' : unjudged ? ' (an unjudged item counts as grade 0)' : ' (its grade comes from the judgments file)';
   if (line > 0) return new InputError(`${expected}${judged}`, dump.path, line, found);
   const where = row >= 0 ? ` in row ${row + 1}` : '';
   return new InputError(`${expected}${where}`, dump.path, undefined, found);

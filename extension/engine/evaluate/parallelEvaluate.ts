@@ -130,8 +130,9 @@ async function scoreWithWorkers(dump: RankedDump, metrics: readonly MetricSpec[]
   if (recorded) sensitivity!.recordInto(recorded);
   const bounds = splitByRows(setup.groups.start, Math.min(setup.queryCount, threads * scoringTuning.chunksPerThread));
   const next = new Int32Array(shared(4));
-  const columns: ScoredColumns = { item: dump.item, label: dump.label, score: dump.score };
-  const records = options.renderJsonRecords && { metrics: setup.metrics, names: packNames(options.renderJsonRecords) };
+  const columns: ScoredColumns = { item: dump.item, label: dump.label, score: dump.score, ...(dump.unretrieved ? { unretrieved: dump.unretrieved } : {}) };
+  const records = options.renderJsonRecords &&
+    { metrics: setup.metrics, names: packNames(options.renderJsonRecords), notRetrieved: dump.notes.judgments !== undefined };
   const task: ScoreRangeTask = { setup, columns, bounds, next, perQuery, sensitivity: recorded, ...(records ? { records } : {}) };
   running.post(task);
   const tally = emptyTally();
@@ -220,6 +221,7 @@ function unshared(p: PerQueryColumns): PerQueryColumns {
     inversions: p.inversions.slice(),
     inversionCost: p.inversionCost.slice(),
     skipped: p.skipped.slice(),
+    ...(p.unretrieved ? { unretrieved: p.unretrieved.slice() } : {}),
     ...(p.rbpResidual ? { rbpResidual: p.rbpResidual.slice() } : {}),
   };
 }

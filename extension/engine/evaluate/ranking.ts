@@ -3,7 +3,7 @@
  * (descending; file order among equal scores; items without a score last, in file order), cut into tie
  * groups, then arranged under the tie convention. Nothing here allocates per row.
  */
-import type { RankedDump } from '../model/dump';
+import type { RankedDump, UnretrievedJudged } from '../model/dump';
 import type { TieConvention } from '../metrics/conventions';
 import type { GroupedList } from '../metrics/listMetrics';
 import { IndexSorter } from './sortIndex';
@@ -54,6 +54,12 @@ export class QueryRanking {
   tiedRows = 0;
   /** Items with a score (they occupy the first `scored` slots). */
   scored = 0;
+  /**
+   * Judged items of the query that the list lacks (labels from a judgments file): they count in the
+   * ideal ranking and the judged-set denominators, never in the list itself. Set by `setUnretrieved`.
+   */
+  unretrieved = 0;
+  unretrievedGrade: Float64Array = new Float64Array(0);
 
   // Ranked order: score descending, file order within equal scores, unscored last (score −Infinity here).
   row = new Uint32Array(0);
@@ -103,6 +109,7 @@ export class QueryRanking {
   /** Loads rows[from..to) (one query's rows in file order). */
   load(dump: RankedDump, rows: Uint32Array, from: number, to: number, seen: SeenItems): void {
     this.ensure(to - from);
+    this.unretrieved = 0;
     const stamp = seen.next(to - from);
     const { keys, stamps, mask, shift } = seen;
     const items = dump.item;
@@ -158,6 +165,18 @@ export class QueryRanking {
     this.unjudgedRows = unjudgedRows;
     this.scored = n - missing;
     this.cutGroups();
+  }
+
+  /** Takes the query's judged-but-unretrieved grades from the side table (none when it is absent). */
+  setUnretrieved(side: UnretrievedJudged | undefined, query: number): void {
+    if (side === undefined) {
+      this.unretrieved = 0;
+      return;
+    }
+    const s = side.start[query]!;
+    const e = side.start[query + 1]!;
+    this.unretrieved = e - s;
+    this.unretrievedGrade = side.grade.subarray(s, e);
   }
 
   private cutGroups(): void {

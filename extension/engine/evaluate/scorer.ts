@@ -1,6 +1,13 @@
 /**
  * Scores one loaded query under one set of conventions: every requested metric, the pair measures and the
  * headline NDCG parts. Shared by evaluate() (all queries) and queryDetail() (one query).
+ *
+ * Judged items the run never retrieved (`ranking.unretrieved`, labels from a judgments file) enter what
+ * depends on the judged set: the ideal ranking (NDCG, the inversion cost's normaliser, over the list's
+ * length plus theirs), the relevant count (recall's and AP's denominator) and the no-relevant test. What
+ * describes the list itself stays over the retrieved items: DCG, ERR, precision@k (divided by k), RR, RBP and
+ * its residual, Kendall's tau and the inversions (pairs of retrieved items). Common practice for judged
+ * collections.
  */
 import type { Conventions } from '../metrics/conventions';
 import type { MetricSpec } from '../metrics/registry';
@@ -64,7 +71,16 @@ export class IdealGains {
 /** Scores one query at a time; also the MetricContext the registry's compute functions read. */
 export class QueryScorer implements MetricContext {
   readonly headlineK: number;
+  /** Distinct grades of the ranked list (pairs, DCG, ERR). */
   readonly grades = new GradeIndex();
+  /**
+   * Distinct grades of every judged item of the query: the list's plus those it never retrieved. Built
+   * only for a query with unretrieved judged items; `idealGrades` is this or `grades`.
+   */
+  readonly judgedGrades = new GradeIndex();
+  idealGrades: GradeIndex = this.grades;
+  /** Items the ideal ranking draws from: the list's length plus the unretrieved judged items. */
+  idealN = 0;
   readonly ideal = new IdealGains();
   /** Per metric, same order as `metrics`. */
   readonly values: Float64Array;
@@ -79,6 +95,9 @@ export class QueryScorer implements MetricContext {
   arrangedRank = new Uint32Array(16);
   headlineDiscount = new Float64Array(16);
   gainOfRank = new Float64Array(16);
+  /** Gain per rank of `judgedGrades`. */
+  private judgedGainOfRank = new Float64Array(16);
+  private judgedScratch = new Float64Array(16);
 
   readonly err = new ErrCalculator();
   readonly second = new Float64Array(2);
@@ -146,8 +165,10 @@ export class QueryScorer implements MetricContext {
     }
     this.stopsReady = false;
     this.list = list;
-    this.ideal.build(this.gainOfRank, grades, this.monotone);
-    const relevant = grades.atLeast(c.relevantFrom);
+    this.buildIdeal(ranking);
+    // Relevant items of the whole judged set: recall and AP divide by it, and a query whose only relevant
+    // items were never retrieved is not a no-relevant query (it scores 0, common practice).
+    const relevant = this.idealGrades.atLeast(c.relevantFrom);
     this.relevant = relevant;
     this.noRelevant = relevant === 0;
     const skipAll = this.noRelevant && c.noRelevant === 'skip';
@@ -164,7 +185,7 @@ export class QueryScorer implements MetricContext {
   }
 
   idealDcg(k: number): number {
-    return idealDcg(this.ideal.gain, this.ideal.count, this.ideal.distinct, k, this.list.n);
+    return idealDcg(this.ideal.gain, this.ideal.count, this.ideal.distinct, k, this.idealN);
   }
 
   errStops(): Float64Array {
@@ -209,6 +230,31 @@ export class QueryScorer implements MetricContext {
     input.discount = applied;
     input.gainOfRank = this.gainOfRank;
     this.pairCounter.compute(input, this.pairs);
+  }
+
+  /**
+   * The ideal order's gains. Without unretrieved judged items they are the list's own grades (the common
+   * case, no extra work); otherwise the list's grades (unjudged rows as 0) plus the unretrieved ones.
+   */
+  private buildIdeal(ranking: QueryRanking): void {
+    const n = ranking.n;
+    const u = ranking.unretrieved;
+    this.idealN = n + u;
+    if (u === 0) {
+      this.idealGrades = this.grades;
+      this.ideal.build(this.gainOfRank, this.grades, this.monotone);
+      return;
+    }
+    if (this.judgedScratch.length < n + u) this.judgedScratch = new Float64Array((n + u) * 2);
+    const all = this.judgedScratch;
+    all.set(ranking.grade.subarray(0, n), 0);
+    all.set(ranking.unretrievedGrade.subarray(0, u), n);
+    const judged = this.judgedGrades;
+    judged.build(all, n + u);
+    if (this.judgedGainOfRank.length < judged.distinct) this.judgedGainOfRank = new Float64Array(judged.distinct * 2);
+    for (let r = 0; r < judged.distinct; r++) this.judgedGainOfRank[r] = this.gainOf(judged.values[r]!);
+    this.idealGrades = judged;
+    this.ideal.build(this.judgedGainOfRank, judged, this.monotone);
   }
 
   /** Σ over inverted pairs of |ΔNDCG@headline| (0 when the ideal DCG is 0). */

@@ -43,6 +43,8 @@ export class SensitivityPass {
   private gainOfRank: Float64Array[] = [];
   private idealOfGain = new Float64Array(0);
   private sortedRanks = new Uint32Array(16);
+  /** Gain per rank of the judged set's grades (queries with unretrieved judged items). */
+  private judgedTable = new Float64Array(16);
   /** Queries with no relevant item (the policy decides their value). */
   noRelevantQueries = 0;
   /** Their total weight (= noRelevantQueries when unweighted). */
@@ -147,8 +149,12 @@ export class SensitivityPass {
     });
   }
 
-  /** Adds one query; `grades` indexes the ranked (not arranged) order of `ranking`. */
-  add(ranking: QueryRanking, grades: GradeIndex, noRelevant: boolean, query = 0): void {
+  /**
+   * Adds one query; `grades` indexes the ranked (not arranged) order of `ranking`. `idealGrades` are the
+   * grades of the whole judged set when it is larger than the list (unretrieved judged items); the ideal
+   * DCG is built from them over the list's length plus `ranking.unretrieved`.
+   */
+  add(ranking: QueryRanking, grades: GradeIndex, noRelevant: boolean, query = 0, idealGrades: GradeIndex = grades): void {
     const record = this.record;
     if (record) for (let i = 0; i < this.variants.length; i++) record.entered[i]![query] = 0;
     if (noRelevant) {
@@ -162,8 +168,15 @@ export class SensitivityPass {
       if (this.gainOfRank[i]!.length < d) this.gainOfRank[i] = new Float64Array(d * 2);
       const table = this.gainOfRank[i]!;
       for (let r = 0; r < d; r++) table[r] = this.gainFns[i]!(grades.values[r]!);
-      this.ideal.build(table, grades, this.monotone[i]!);
-      this.idealOfGain[i] = idealDcg(this.ideal.gain, this.ideal.count, this.ideal.distinct, this.k, n);
+      if (idealGrades === grades) {
+        this.ideal.build(table, grades, this.monotone[i]!);
+      } else {
+        const jd = idealGrades.distinct;
+        if (this.judgedTable.length < jd) this.judgedTable = new Float64Array(jd * 2);
+        for (let r = 0; r < jd; r++) this.judgedTable[r] = this.gainFns[i]!(idealGrades.values[r]!);
+        this.ideal.build(this.judgedTable, idealGrades, this.monotone[i]!);
+      }
+      this.idealOfGain[i] = idealDcg(this.ideal.gain, this.ideal.count, this.ideal.distinct, this.k, n + ranking.unretrieved);
     }
     for (let i = 0; i < this.variants.length; i++) {
       const v = this.variants[i]!;

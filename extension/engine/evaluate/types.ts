@@ -4,12 +4,13 @@
  */
 import type { Conventions } from '../metrics/conventions';
 import type { MetricSpec } from '../metrics/registry';
+import type { JudgmentsJoin } from '../model/dump';
 
 /** Degenerate data, counted and reported with what was done about it. */
 export interface DegenerateCounts {
   /** Queries with exactly one item (every ranking metric is trivial for them; kept). */
   singleItemQueries: number;
-  /** Queries with no item of grade >= relevantFrom (handled by the no-relevant policy). */
+  /** Queries with no judged item of grade >= relevantFrom, retrieved or not (handled by the no-relevant policy). */
   noRelevantQueries: number;
   /** Extra rows for a (query, item) pair already seen; the first row is kept, the rest are not ranked. */
   duplicateRows: number;
@@ -24,8 +25,10 @@ export interface DegenerateCounts {
 export interface PerQueryColumns {
   /** Items ranked for the query (after dropping duplicate rows). */
   readonly items: Uint32Array;
-  /** Items with grade >= relevantFrom. */
+  /** Judged items with grade >= relevantFrom, retrieved or not. */
   readonly relevant: Uint32Array;
+  /** Judged items the run never retrieved (0 unless labels came from a judgments file). */
+  readonly unretrieved?: Uint32Array;
   /** One array per requested metric, same order as `metrics`; NaN where the query is skipped. */
   readonly values: readonly Float64Array[];
   /** Discordant pairs: strictly lower score but strictly higher grade. */
@@ -72,6 +75,8 @@ export interface Evaluation {
   readonly sensitivity: readonly SensitivityRow[];
   /** Plain sentences for people: what was counted, skipped or assumed. */
   readonly warnings: readonly string[];
+  /** How labels were joined from a judgments file (absent when the dump had its own labels only). */
+  readonly judgments?: JudgmentsJoin;
   /**
    * The JSON report's query records, already rendered by the scoring threads (when evaluateInParallel
    * is given `renderJsonRecords`): consecutive query ranges in query order, none empty (see
@@ -106,6 +111,15 @@ export interface PositionRow {
   readonly tieGroupSize: number;
 }
 
+/** A judged item that the run never retrieved: it has an ideal place but no predicted one. */
+export interface NotRetrievedItem {
+  readonly item: string;
+  readonly label: number;
+  readonly gain: number;
+  /** 1-based position in the ideal ranking of every judged item of the query. */
+  readonly idealPosition: number;
+}
+
 export interface InvertedPair {
   /** Row of the item ranked higher by score but graded lower. */
   readonly aboveRow: number;
@@ -122,8 +136,13 @@ export interface QueryDetail {
   readonly conventions: Conventions;
   readonly k: number;
   readonly positions: readonly PositionRow[];
-  /** Same items in ideal order (grade descending, file order within a grade). Rows refer to the dump. */
+  /**
+   * The listed items in ideal order (grade descending, file order within a grade). Rows refer to the dump.
+   * Their places in the whole ideal ranking, which also holds `notRetrieved`, are the positions' `idealPosition`.
+   */
   readonly idealOrder: readonly number[];
+  /** Judged items of the query that the list lacks, by ideal position (empty unless labels came from a judgments file). */
+  readonly notRetrieved: readonly NotRetrievedItem[];
   readonly dcg: number;
   readonly idealDcg: number;
   readonly ndcg: number;

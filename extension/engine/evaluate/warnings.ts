@@ -35,10 +35,35 @@ function rows(n: number, one: string, many: string): string {
   return `${n.toLocaleString('en-US')} ${n === 1 ? one : many}`;
 }
 
+/**
+ * Where the labels came from when a judgments file gave them: judged items the run never retrieved (they
+ * count in the ideal ranking and the judged-set denominators), judged queries the run lacks, disagreements
+ * with labels in the dump.
+ */
+export function describeJudgments(dump: RankedDump): string[] {
+  const j = dump.notes.judgments;
+  if (j === undefined) return [];
+  const out = [
+    `${rows(j.unretrieved, 'judged item was', 'judged items were')} never retrieved by the run; they count in the ideal ranking and in the ` +
+      'relevant count of recall and AP (tau, inversions, precision, ERR and RBP stay over the retrieved list).',
+  ];
+  if (j.absentQueries > 0) {
+    out.push(`${rows(j.absentQueries, 'judged query has', 'judged queries have')} no row in the run (e.g. ${j.absentExamples.join(', ')}); ` +
+      (j.missingQueries === 'zero'
+        ? 'each scores 0 on every metric and enters every mean (missing queries: zero, common practice of evaluation campaigns).'
+        : 'they are left out of every mean (missing queries: skip).'));
+  }
+  if (j.inlineLabelRows > 0) {
+    out.push(`The dump has labels too; the judgments file wins: ${rows(j.disagreements, 'labelled row disagrees', 'labelled rows disagree')} ` +
+      `of ${j.inlineLabelRows.toLocaleString('en-US')}${j.disagreementExamples.length > 0 ? ` (e.g. ${j.disagreementExamples.join('; ')})` : ''}.`);
+  }
+  return out;
+}
+
 export function describeDegenerate(w: WarningInput): string[] {
   const c = w.conventions;
   const d = w.degenerate;
-  const out: string[] = [];
+  const out: string[] = [...describeJudgments(w.dump)];
   if (d.noRelevantQueries > 0) {
     const head = `${rows(d.noRelevantQueries, 'query has', 'queries have')} no item with grade >= ${c.relevantFrom}`;
     if (c.noRelevant === 'skip') {

@@ -21,7 +21,9 @@ export type GainConvention =
 export type TieConvention = 'average' | 'pessimistic' | 'optimistic' | 'file-order';
 
 /**
- * What a query with no relevant item (no item of grade >= relevantFrom, or no rows at all) scores.
+ * What a query with no relevant item (no item of grade >= relevantFrom, or no rows at all) scores. With
+ * labels from a judgments file the test is over every judged item of the query, retrieved or not: a query
+ * whose only relevant items were never retrieved has relevant items and scores 0 on NDCG, AP, RR and recall.
  * - skip (default): the query is left out of every metric's mean (NaN in every column, `skipped` = 1) and
  *   counted, so all means of one evaluation cover the same queries.
  * - zero / one: the metrics the registry marks `normalised` (by what the query could have achieved) score
@@ -43,10 +45,20 @@ export interface Conventions {
   readonly noRelevant: NoRelevantPolicy;
   /** Binary relevance threshold: grade >= relevantFrom is relevant. Default 1. */
   readonly relevantFrom: number;
-  /** ERR's g_max; when undefined the highest grade in the data is used. */
+  /**
+   * ERR's g_max; when undefined the highest grade in the data is used (with a judgments file, the highest
+   * judged grade, retrieved or not: the scale belongs to the judgments, not to what one run returned).
+   */
   readonly maxGrade?: number;
   /** RBP persistence p in (0, 1). Default 0.8. */
   readonly rbpPersistence: number;
+  /**
+   * Judged queries with no row in the run, when labels come from a judgments file: left out (`skip`, the
+   * default) or scored 0 on every metric (`zero`, common practice of evaluation campaigns). Applied when the
+   * judgments are joined (readers/judgments.ts); undefined when there is no judgments file. Kept here so
+   * that it is printed with the other conventions.
+   */
+  readonly missingQueries?: 'skip' | 'zero';
 }
 
 export const DEFAULT_CONVENTIONS: Conventions = {

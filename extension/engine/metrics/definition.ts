@@ -21,9 +21,9 @@ export interface MetricContext {
   readonly list: GroupedList;
   /** Gain per arranged slot (gain convention applied). */
   readonly gain: Float64Array;
-  /** Relevant items of the query (grade >= relevantFrom). */
+  /** Relevant judged items of the query (grade >= relevantFrom), retrieved or not (see scorer.ts). */
   readonly relevant: number;
-  /** Ideal DCG at cut-off k from every labelled item of the query. */
+  /** Ideal DCG at cut-off k from every judged item of the query, retrieved or not. */
   idealDcg(k: number): number;
   /** ERR's stop probability per arranged slot (filled on first use for each query). */
   errStops(): Float64Array;

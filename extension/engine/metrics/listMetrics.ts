@@ -50,8 +50,8 @@ export function dcg(list: GroupedList, gain: Float64Array, k: number): number {
 }
 
 /**
- * Ideal DCG@k from every labelled item of the query (not only those in the top k): gains sorted
- * descending. `distinctGain`/`count` list the query's gains (each with its number of items) already in
+ * Ideal DCG@k from every labelled item of the query (not only those in the top k, and with a judgments
+ * file also the judged items the run never retrieved, `n` then counting them): gains sorted descending. `distinctGain`/`count` list the query's gains (each with its number of items) already in
  * descending order of gain, so this is O(distinct gains).
  */
 export function idealDcg(distinctGain: Float64Array, count: Uint32Array, distinct: number, k: number, n: number): number {
@@ -69,7 +69,8 @@ export function idealDcg(distinctGain: Float64Array, count: Uint32Array, distinc
 
 /**
  * Expected number of relevant items (grade ≥ from) in the top k. Precision@k is this / k (divided by k even
- * when the list is shorter, common practice); recall@k is this / (relevant items in the query).
+ * when the list is shorter, common practice); recall@k is this / (relevant items in the query's judged set,
+retrieved or not).
  * Ties: a group with r relevant of size m puts r/m relevant items on each of its slots.
  */
 export function relevantInTop(list: GroupedList, from: number, k: number): number {
@@ -119,7 +120,9 @@ export function reciprocalRank(list: GroupedList, from: number, k: number): numb
 
 /**
  * Average precision = (1/R) Σ over relevant items of precision at their position (common practice;
- * R = relevant items in the query, so relevant items never retrieved count 0). Ties (McSherry & Najork
+ * R = relevant items in the query's whole judged set, so relevant items never retrieved count 0). `judgedRelevant`
+ * gives R when judged items lie outside the list (labels from a judgments file); without it R is the
+ * list's own relevant count. Ties (McSherry & Najork
  * 2008): a relevant item of a group of m with r relevant is equally likely on each slot u = 0..m−1; given
  * slot u the other r−1 relevant items of the group sit before it u(r−1)/(m−1) times on average, so the
  * group adds (r/m) Σ_u (before + 1 + u(r−1)/(m−1)) / (s+u+1), `before` = relevant items in earlier groups.
@@ -128,7 +131,7 @@ export function reciprocalRank(list: GroupedList, from: number, k: number): numb
  * AP@k sums only the slots within the top k and divides by min(k, R), so a top k holding nothing but
  * relevant items scores 1 (as NDCG@k's ideal is cut at k too); with k = ∞ this is plain AP.
  */
-export function averagePrecision(list: GroupedList, from: number, k = Infinity): number {
+export function averagePrecision(list: GroupedList, from: number, k = Infinity, judgedRelevant?: number): number {
   const depth = Math.min(k, list.n);
   const b = list.bounds;
   const grade = list.grade;
@@ -154,7 +157,8 @@ export function averagePrecision(list: GroupedList, from: number, k = Infinity):
     }
     before += r;
   }
-  return before === 0 ? 0 : sum / Math.min(k, before);
+  const denominator = judgedRelevant ?? before;
+  return denominator === 0 ? 0 : sum / Math.min(k, denominator);
 }
 
 /**

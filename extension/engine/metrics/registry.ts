@@ -72,7 +72,7 @@ export const METRIC_DEFINITIONS = [
     needs: ['relevantFrom', 'noRelevant'],
     note: (key, k) =>
       k === undefined ? undefined : `${key} divides the summed precision by min(${k}, relevant items of the query), so a top ${k} of only relevant items scores 1.`,
-    compute: (c, k) => averagePrecision(c.list, c.conventions.relevantFrom, k),
+    compute: (c, k) => averagePrecision(c.list, c.conventions.relevantFrom, k, c.relevant),
   },
   {
     name: 'rr', cutoff: 'optional', normalised: true, label: 'RR', range: [0, 1],

@@ -7,7 +7,47 @@
  */
 import type { StringPool } from './stringPool';
 
-export type DumpFormat = 'csv' | 'tsv' | 'jsonl' | 'run' | 'svmlight' | 'parquet';
+export type DumpFormat = 'csv' | 'tsv' | 'jsonl' | 'run' | 'sparse' | 'parquet';
+
+/**
+ * Judged items of each query that the run never retrieved (labels from a separate judgments file).
+ * They take no place in the ranked list but count in the ideal ranking and in every denominator that
+ * depends on the judged set (recall, AP, the no-relevant test): common practice for judged collections.
+ * Columnar: one offsets column by query, one grade and one item column by entry.
+ */
+export interface UnretrievedJudged {
+  /** queries.size + 1 entries: query q's unretrieved judged items are entries start[q] .. start[q+1). */
+  readonly start: Uint32Array;
+  /** Grade of each entry (finite). */
+  readonly grade: Float64Array;
+  /** Item id of each entry in the dump's `items` pool (which then also holds items that have no row). */
+  readonly item: Uint32Array;
+  /** Line of each entry in the judgments file (0 for Parquet judgments), for errors about its grade. */
+  readonly line: Uint32Array;
+  /**
+   * Queries with an id at or above this have no row in the run: judged queries added under the
+   * `zero` policy for queries missing from the run (equal to queries.size when none were added).
+   */
+  readonly firstAbsentQuery: number;
+}
+
+/** What to do with judged queries the run has no row for. */
+export type MissingQueriesPolicy = 'skip' | 'zero';
+
+/** How labels were joined from a judgments file, for notes and reports. */
+export interface JudgmentsJoin {
+  readonly path: string;
+  /** Judged (query, item) pairs that the run does not return, in queries the run does have. */
+  readonly unretrieved: number;
+  /** Judged queries with no row in the run, and a few of their ids. */
+  readonly absentQueries: number;
+  readonly absentExamples: readonly string[];
+  readonly missingQueries: MissingQueriesPolicy;
+  /** Rows of the dump that had a label of their own, and how many of them the judgments contradict. */
+  readonly inlineLabelRows: number;
+  readonly disagreements: number;
+  readonly disagreementExamples: readonly string[];
+}
 
 /** An extra column kept for slicing results (locale, device, ...): one interned value per row. */
 export interface SegmentColumn {
@@ -40,6 +80,10 @@ export interface ReaderNotes {
    * judged). Readers fill it in the same pass that counts gaps, so scoring need not scan every row again.
    */
   gradeRange?: { readonly lowest: number; readonly highest: number };
+  /** Set when the labels were taken from a judgments file (see readers/judgments.ts). */
+  judgments?: JudgmentsJoin;
+  /** True when the dump itself has no label column (labels must then come from a judgments file). */
+  noLabelColumn?: boolean;
 }
 
 export interface RankedDump {
@@ -64,6 +108,8 @@ export interface RankedDump {
   readonly items: StringPool;
   readonly segments: readonly SegmentColumn[];
   readonly notes: ReaderNotes;
+  /** Present when labels came from a judgments file: the judged items each query's list lacks. */
+  readonly unretrieved?: UnretrievedJudged;
   /** Facts joined from a queries table and an items table (tables/join.ts), when given. */
   readonly joined?: JoinedFacts;
 }

@@ -19,9 +19,11 @@ const BY_EXTENSION: Readonly<Record<string, DumpFormat>> = {
   ndjson: 'jsonl',
   json: 'jsonl',
   run: 'run',
-  svm: 'svmlight',
-  svmlight: 'svmlight',
-  letor: 'svmlight',
+  sparse: 'sparse',
+  // File name endings in use for the same lines.
+  svm: 'sparse',
+  svmlight: 'sparse',
+  letor: 'sparse',
   parquet: 'parquet',
 };
 
@@ -59,11 +61,12 @@ export async function detectFormat(path: string, hints: DetectHints = {}): Promi
   assertTextHead(head, path);
   const fromContent = strongContentFormat(head);
   if (fromContent !== undefined) return { format: fromContent, gzip, directory: false };
-  if (hints.judgments !== undefined) return { format: 'run', gzip, directory: false };
-  if (hints.scores !== undefined) return { format: 'svmlight', gzip, directory: false };
   const ext = extensionOf(path);
   const byName = BY_EXTENSION[ext];
   if (byName !== undefined && byName !== 'parquet') return { format: byName, gzip, directory: false };
+  // Any format may take a judgments file now; without a telling name, a judgments file still suggests a run file.
+  if (hints.judgments !== undefined) return { format: 'run', gzip, directory: false };
+  if (hints.scores !== undefined) return { format: 'sparse', gzip, directory: false };
   return { format: weakContentFormat(head, path), gzip, directory: false };
 }
 
@@ -73,6 +76,14 @@ export function extensionOf(path: string): string {
   const dot = name.lastIndexOf('.');
   const slash = Math.max(name.lastIndexOf('/'), name.lastIndexOf('\\'));
   return dot > slash ? name.slice(dot + 1) : '';
+}
+
+/** The first bytes of a file as text: decompressed when gzip, empty when a folder or unreadable as gzip. */
+export async function textHead(path: string): Promise<Buffer> {
+  const info = await fsp.stat(path);
+  if (info.isDirectory()) return Buffer.alloc(0);
+  const raw = await readStart(path);
+  return raw.length >= 2 && raw[0] === 0x1f && raw[1] === 0x8b ? gunzipHead(raw, path) : raw;
 }
 
 async function readStart(path: string): Promise<Buffer> {
@@ -107,7 +118,7 @@ function strongContentFormat(head: Buffer): DumpFormat | undefined {
   const lines = firstLines(head, 5);
   if (lines.length === 0) return undefined;
   if (lines[0]!.trimStart().startsWith('{')) return 'jsonl';
-  if (lines.every((l) => /^\s*\S+\s+qid:\S+/.test(l))) return 'svmlight';
+  if (lines.every((l) => /^\s*\S+\s+qid:\S+/.test(l))) return 'sparse';
   return undefined;
 }
 
@@ -117,5 +128,5 @@ function weakContentFormat(head: Buffer, path: string): DumpFormat {
   if (first.includes('\t')) return 'tsv';
   if (first.includes(',')) return 'csv';
   if (lines.every((l) => /^\S+\s+\S+\s+\S+\s+\d+\s+\S+(\s+\S+)?\s*$/.test(l))) return 'run';
-  throw new InputError('a recognisable dump: CSV, TSV, JSON Lines, a run file, an SVMlight file or Parquet (set the format to choose)', path, 1, first);
+  throw new InputError('a recognisable dump: CSV, TSV, JSON Lines, a run file, sparse feature lines or Parquet (set the format to choose)', path, 1, first);
 }

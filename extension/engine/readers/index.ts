@@ -2,7 +2,7 @@
  * Public entry of the readers: one call turns any supported dump into the columnar RankedDump.
  *
  * Formats: CSV/TSV with a header (roles from header names or `columns`), JSON Lines (a row or a
- * list per line), run files with a judgments file, SVMlight/LETOR files with a scores file, and
+ * list per line), run files with a judgments file, sparse feature lines with a scores file, and
  * Parquet (a file or a folder of parts). Text formats may be gzip-compressed.
  *
  * Row positions: `line` is the 1-based line where the row starts and `offset` its first byte in the
@@ -11,16 +11,17 @@
  * columns are then views of SharedArrayBuffers (see parallel.ts).
  */
 import { CancelledError, InputError } from '../errors';
-import type { DumpFormat, RankedDump } from '../model/dump';
+import type { DumpFormat, MissingQueriesPolicy, RankedDump } from '../model/dump';
 import { DelimitedParser } from './delimited';
 import { detectFormat } from './detect';
 import { readJsonLines } from './jsonLines';
 import { readParallelDelimited, shouldParseInParallel } from './parallel';
 import { readParquet } from './parquet';
 import type { ColumnRoles } from './roles';
+import { joinJudgments, readJudgmentTable } from './judgments';
 import { readRunFile } from './runFile';
 import { changedSince, fileChangedError, pumpText, statStamp, throwIfCancelled } from './source';
-import { readSvmlight } from './svmlight';
+import { readSparseFeatures } from './sparseFeatures';
 
 export { parseColumnRoles } from './roles';
 export type { ColumnRoles } from './roles';
@@ -31,9 +32,16 @@ export interface ReadOptions {
   format?: DumpFormat;
   /** Explicit column names, e.g. from --columns query=sid,item=pid,label=grade,score=p */
   columns?: ColumnRoles;
-  /** Path of a judgments file (run-file input). */
+  /**
+   * Path of a judgments file: `query unused item grade` lines or a table naming the query, item and grade
+   * columns. Any format takes its labels from it (run files must have one); see judgments.ts.
+   */
   judgments?: string;
-  /** Path of a one-score-per-line file (SVMlight input). */
+  /** Column names in a tabular judgments file, like `columns` (query, item, label). */
+  judgmentsColumns?: ColumnRoles;
+  /** Judged queries with no row in the dump: left out (`skip`, default) or scored 0 on every metric (`zero`). */
+  missingQueries?: MissingQueriesPolicy;
+  /** Path of a one-score-per-line file (sparse feature lines). */
   scores?: string;
   /** Parse threads for big text files; default auto (1 for small files). */
   threads?: number;
@@ -61,6 +69,19 @@ export async function readDump(path: string, options: ReadOptions = {}): Promise
 }
 
 async function readDumpOnce(path: string, options: ReadOptions): Promise<RankedDump> {
+  if (options.judgments === undefined) return readFormat(path, options);
+  const judgmentsPath = options.judgments;
+  // Labels may be absent from the dump when a judgments file gives them.
+  const dumpOptions: ReadOptions = { ...options, columns: { ...options.columns, optional: ['label'] } };
+  const [dump, table] = await Promise.all([
+    readFormat(path, dumpOptions),
+    readJudgmentTable(judgmentsPath, options, (p, o) => readFormat(p, o)),
+  ]);
+  throwIfCancelled(options.signal);
+  return joinJudgments(dump, table, options.missingQueries ?? 'skip');
+}
+
+async function readFormat(path: string, options: ReadOptions): Promise<RankedDump> {
   const sniffed = await detectFormat(path, options);
   switch (sniffed.format) {
     case 'csv':
@@ -72,12 +93,12 @@ async function readDumpOnce(path: string, options: ReadOptions): Promise<RankedD
       if (options.judgments === undefined) {
         throw new InputError('a judgments file (query unused item grade) to go with the run file (on the command line: --judgments FILE)', path);
       }
-      return readRunFile(path, options.judgments, options);
-    case 'svmlight':
+      return readRunFile(path, options);
+    case 'sparse':
       if (options.scores === undefined) {
-        throw new InputError('a scores file (one score per line, same order) to go with the SVMlight file', path);
+        throw new InputError('a scores file (one score per line, same order) to go with the sparse feature file', path);
       }
-      return readSvmlight(path, options.scores, options);
+      return readSparseFeatures(path, options.scores, options);
     case 'parquet':
       return readParquet(path, sniffed.directory, options);
   }

@@ -83,8 +83,8 @@ class JsonLinesParser {
     const row = rows.next();
     rows.query[row] = rows.queries.internString(this.id(obj[keys[roles.query]!], keys[roles.query]!, text));
     rows.item[row] = rows.items.internString(this.id(obj[keys[roles.item]!], keys[roles.item]!, text));
-    rows.label[row] = this.number(obj[keys[roles.label]!], keys[roles.label]!, false, text);
-    rows.score[row] = this.scoreOf(obj, shape, text);
+    rows.label[row] = roles.label >= 0 ? this.number(obj[keys[roles.label]!], keys[roles.label]!, false, text) : NaN;
+    rows.score[row] = roles.score < 0 && roles.rank < 0 ? NaN : this.scoreOf(obj, shape, text);
     rows.line[row] = this.line;
     rows.offset[row] = offset;
     roles.segments.forEach((column, k) => {
@@ -97,9 +97,10 @@ class JsonLinesParser {
     const { keys, roles } = shape;
     const query = rows.queries.internString(this.id(obj[keys[roles.query]!], keys[roles.query]!, text));
     const items = this.array(obj, keys[roles.item]!, text);
-    const labels = this.array(obj, keys[roles.label]!, text);
-    const numberKey = roles.score >= 0 ? keys[roles.score]! : keys[roles.rank]!;
-    const scores = this.array(obj, numberKey, text);
+    // A missing label (labels from a judgments file) or score (a judgments table) reads as NaN per item.
+    const labels = roles.label >= 0 ? this.array(obj, keys[roles.label]!, text) : new Array<undefined>(items.length);
+    const numberKey = roles.score >= 0 ? keys[roles.score]! : roles.rank >= 0 ? keys[roles.rank]! : undefined;
+    const scores = numberKey !== undefined ? this.array(obj, numberKey, text) : new Array<undefined>(items.length);
     if (labels.length !== items.length || scores.length !== items.length) {
       throw new InputError(`arrays of equal length (${keys[roles.item]}: ${items.length}, ${keys[roles.label]}: ${labels.length}, ${numberKey}: ${scores.length})`,
         this.file, this.line, text);
@@ -108,8 +109,8 @@ class JsonLinesParser {
       const row = rows.next();
       rows.query[row] = query;
       rows.item[row] = rows.items.internString(this.id(items[i], keys[roles.item]!, text));
-      rows.label[row] = this.number(labels[i], keys[roles.label]!, false, text);
-      const score = this.number(scores[i], numberKey, true, text);
+      rows.label[row] = roles.label >= 0 ? this.number(labels[i], keys[roles.label]!, false, text) : NaN;
+      const score = numberKey !== undefined ? this.number(scores[i], numberKey, true, text) : NaN;
       rows.score[row] = shape.rankStandsInForScore ? -score : score;
       rows.line[row] = this.line;
       rows.offset[row] = offset;

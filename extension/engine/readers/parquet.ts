@@ -119,8 +119,8 @@ function storeGroup(rows: RowColumns, roles: ResolvedRoles, names: string[], val
     const at = firstRow + i;
     rows.query[row] = rows.queries.internString(idText(queries[i], names[roles.query]!, file, at));
     rows.item[row] = rows.items.internString(idText(items[i], names[roles.item]!, file, at));
-    rows.label[row] = numberOf(labels[i], names[roles.label]!, false, file, at);
-    const score = numberOf(scores[i], names[roles.score >= 0 ? roles.score : roles.rank]!, true, file, at);
+    rows.label[row] = roles.label >= 0 ? numberOf(labels[i], names[roles.label]!, false, file, at) : NaN;
+    const score = roles.score >= 0 || roles.rank >= 0 ? numberOf(scores[i], names[roles.score >= 0 ? roles.score : roles.rank]!, true, file, at) : NaN;
     rows.score[row] = negate ? -score : score;
     rows.line[row] = 0;
     rows.offset[row] = -1;

@@ -9,9 +9,14 @@ export interface ColumnRoles {
   label?: string;
   score?: string;
   rank?: string;
+  /**
+   * Roles the file may lack: the label when labels come from a judgments file, the score (and rank) when
+   * the file read is itself a judgments table. Travels with the names to every reader and parse thread.
+   */
+  optional?: readonly ('label' | 'score')[];
 }
 
-export type Role = keyof ColumnRoles;
+export type Role = Exclude<keyof ColumnRoles, 'optional'>;
 export const ROLES: readonly Role[] = ['query', 'item', 'label', 'score', 'rank'];
 
 /** Header names recognised per role, compared after `normaliseName`. Common practice in exported dumps. */
@@ -97,8 +102,9 @@ export function resolveRoles(
       taken.set(fits[0]!, role);
     }
   }
-  const missing = (['query', 'item', 'label'] as const).filter((r) => index[r] < 0);
-  if (index.score < 0 && index.rank < 0) missing.push('score' as never);
+  const optional = explicit?.optional ?? [];
+  const missing = (['query', 'item', 'label'] as const).filter((r) => index[r] < 0 && !(r === 'label' && optional.includes('label')));
+  if (index.score < 0 && index.rank < 0 && !optional.includes('score')) missing.push('score' as never);
   if (missing.length > 0) {
     const hints = missing.map((r) => `${r} (one of ${candidates[r].join(', ')})`).join('; ');
     throw new InputError(`a header naming the ${missing.join(', ')} column${missing.length > 1 ? 's' : ''}: ${hints}; or name them with columns query=…,item=…,label=…,score=…`,

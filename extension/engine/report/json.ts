@@ -33,11 +33,13 @@ export function formatJson(input: ReportInput): string {
       ...(row.unavailable !== undefined ? { unavailable: row.unavailable } : {}),
     })),
     warnings: ev.warnings,
+    ...(ev.judgments ? { judgments: ev.judgments } : {}),
   };
   const headText = JSON.stringify(head, null, 1);
   if (ev.queryCount === 0) return `${headText.slice(0, -2)},\n "queries": []\n}\n`;
+  const notRetrieved = ev.judgments !== undefined;
   const records = input.facts !== undefined || ev.jsonRecords === undefined
-    ? [renderQueryRecords({ metrics: ev.metrics, names: packNames(input.queryNames), facts: input.facts }, ev.perQuery, 0, ev.queryCount)]
+    ? [renderQueryRecords({ metrics: ev.metrics, names: packNames(input.queryNames), facts: input.facts, notRetrieved }, ev.perQuery, 0, ev.queryCount)]
     : ev.jsonRecords;
   // headText ends with "\n}": the records go in before that closing brace.
   return `${headText.slice(0, -2)},\n "queries": [\n${records.join(',\n')}\n ]\n}\n`;

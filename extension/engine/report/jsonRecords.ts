@@ -27,6 +27,8 @@ export interface QueryRecordsSpec {
   readonly names: PackedNames;
   /** Text and segments from a queries table (rendered on one thread; never sent to score workers). */
   readonly facts?: QueryFacts;
+  /** Add each query's count of judged items the run never retrieved (labels from a judgments file). */
+  readonly notRetrieved?: boolean;
 }
 
 const decoder = new TextDecoder('utf-8');
@@ -68,6 +70,7 @@ export function renderQueryRecords(spec: QueryRecordsSpec, perQuery: PerQueryCol
     if (spec.facts?.text) record.text = spec.facts.text[q];
     record.items = items[q];
     record.relevant = relevant[q];
+    if (spec.notRetrieved) record.notRetrieved = perQuery.unretrieved?.[q] ?? 0;
     for (const column of columns) {
       const v = column.values[q]!;
       // NaN and infinities are not JSON: null.

@@ -90,6 +90,7 @@ export function conventionsAsJson(c: Conventions): Record<string, unknown> {
     relevantFrom: c.relevantFrom,
     maxGrade: c.maxGrade ?? null,
     rbpPersistence: c.rbpPersistence,
+    ...(c.missingQueries !== undefined ? { missingQueries: c.missingQueries } : {}),
   };
 }
 

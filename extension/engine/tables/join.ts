@@ -94,6 +94,7 @@ export function joinTables(dump: RankedDump, queries?: TextTable, items?: TextTa
     if (roles.text >= 0) facts.itemTitle = byId(rowOf, items.cells[roles.text]!);
     facts.itemAttributes = roles.attributes.map((c) => ({ name: items.names[c]!, values: byId(rowOf, items.cells[c]!) }));
   }
+  if (facts.queryWeight !== undefined) notes.push(...weighAbsentQueries(dump, facts.queryWeight));
   segments = segments.filter(Boolean);
   return { ...dump, segments, joined: facts };
 }
@@ -153,6 +154,25 @@ function segmentFromTable(dump: RankedDump, name: string, valueOfQuery: readonly
   const ofRow = new Uint32Array(dump.rowCount);
   for (let r = 0; r < dump.rowCount; r++) ofRow[r] = idOfQuery[dump.query[r]!]!;
   return { name, values, ofRow };
+}
+
+/**
+ * Judged queries added under `--missing-queries zero` have no row in the run, so no weight of the dump's
+ * own; they keep the queries table's weight when it gives one and otherwise weigh 1, so each still counts
+ * as the 0 the policy promises in the weighted means (instead of dropping out as an unknown weight).
+ */
+function weighAbsentQueries(dump: RankedDump, weights: Float64Array): string[] {
+  const first = dump.unretrieved?.firstAbsentQuery ?? weights.length;
+  const examples: string[] = [];
+  let defaulted = 0;
+  for (let q = first; q < weights.length; q++) {
+    if (weights[q] === weights[q]) continue;
+    weights[q] = 1;
+    if (examples.length < EXAMPLES) examples.push(dump.queries.get(q));
+    defaulted++;
+  }
+  if (defaulted === 0) return [];
+  return [`${count(defaulted, 'judged query', 'judged queries')} missing from the run (scored 0) ${defaulted === 1 ? 'has' : 'have'} no weight of ${defaulted === 1 ? 'its' : 'their'} own (e.g. ${quoted(examples)}); ${defaulted === 1 ? 'it weighs' : 'they weigh'} 1.`];
 }
 
 function weightsFromTable(table: TextTable, column: number, rowOf: Int32Array): Float64Array {

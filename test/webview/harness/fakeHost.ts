@@ -193,7 +193,7 @@ export function startFakeHost(options: FakeHostOptions): { send(message: HostToV
       k: 10,
       headlineKey: 'ndcg@10',
       positions,
-      ideal: idealIdx.map((i, p) => ({ position: p + 1, row: i, item: positions[rankPos.get(i)! - 1]!.item, label: q.labels[i]!, gain: 2 ** q.labels[i]! - 1, predictedPosition: rankPos.get(i)! })),
+      ideal: idealIdx.map((i, p) => ({ position: p + 1, row: i, item: positions[rankPos.get(i)! - 1]!.item, label: q.labels[i]!, gain: 2 ** q.labels[i]! - 1, predictedPosition: rankPos.get(i)!, retrieved: true })),
       dcg: cum,
       idealDcg: icum,
       ndcg: nul(q.ndcgA),

@@ -202,14 +202,15 @@ export class DetailScreen {
         ],
         rows: d.ideal.slice(0, rowsShown).map((q) => ({
           item: q.item,
-          className: q.position === d.k + 1 ? 'cutoff' : undefined,
+          className: [q.position === d.k + 1 ? 'cutoff' : '', q.retrieved ? '' : 'not-retrieved'].join(' ').trim() || undefined,
           cells: [
             { text: String(q.position), numeric: true },
-            { text: q.item, title: q.item },
+            { text: q.item, title: q.retrieved ? q.item : `${q.item}: judged, but the run never retrieved it` },
             ...(hasTitles ? [{ text: q.title ?? '', title: q.title ?? '' }] : []),
             { text: grade(q.label), numeric: true },
             { text: formatFixed(q.gain, 2), numeric: true, title: exactValue(q.gain) },
-            { text: String(q.predictedPosition), numeric: true, title: q.predictedPosition === q.position ? 'Same position as ideal.' : `${q.predictedPosition > q.position ? 'ranked' : 'promoted'} ${Math.abs(q.predictedPosition - q.position)} place(s) ${q.predictedPosition > q.position ? 'too low' : 'above its ideal place'}` },
+            q.retrieved ? { text: String(q.predictedPosition), numeric: true, title: q.predictedPosition === q.position ? 'Same position as ideal.' : `${q.predictedPosition > q.position ? 'ranked' : 'promoted'} ${Math.abs(q.predictedPosition - q.position)} place(s) ${q.predictedPosition > q.position ? 'too low' : 'above its ideal place'}` }
+              : { text: 'not retrieved', title: 'Judged for this query but absent from the run: it counts in the ideal ranking only.' },
           ],
         })),
       },

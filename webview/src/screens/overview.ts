@@ -4,7 +4,7 @@
  * and what degenerate data was found and done about.
  */
 import type { Chart } from 'chart.js';
-import type { OverviewModel } from '../../../extension/protocol/messages';
+import type { JudgmentsView, OverviewModel } from '../../../extension/protocol/messages';
 import { DEGENERATE_EXPLANATIONS, explainMetric } from '../model/explain';
 import { exactValue, formatCount, formatDelta, formatFixed, formatShare } from '../model/format';
 import { barChart } from '../ui/charts';
@@ -141,7 +141,7 @@ export class OverviewScreen {
           const ofQueries = key.endsWith('Queries');
           const denominator = ofQueries ? model.queryCount : file.rowCount;
           return [info.label, formatCount(count), denominator > 0 ? formatShare(count / denominator) : '', info.handling];
-        }),
+        }).concat(model.judgments ? judgmentRows(model.judgments, model.queryCount) : []),
       }),
     );
     if (model.warnings.length > 0) {
@@ -181,4 +181,14 @@ export class OverviewScreen {
       rows: model.metrics.map((m) => [m.label, m.mean, m.counted, model.conventions.summary]),
     });
   }
+}
+
+/** Rows of the data table for labels joined from a judgments file. */
+function judgmentRows(j: JudgmentsView, queryCount: number): string[][] {
+  return [
+    ['Judged items never retrieved', formatCount(j.unretrieved), '', 'Counted in the ideal ranking and in recall and AP; not in the list.'],
+    ['Judged queries missing from the run', formatCount(j.absentQueries), queryCount > 0 && j.missingQueries === 'zero' ? formatShare(j.absentQueries / queryCount) : '',
+      j.missingQueries === 'zero' ? 'Scored 0 on every metric (missing queries: zero).' : 'Left out of every mean (missing queries: skip).'],
+    ['Dump labels the judgments overrule', formatCount(j.disagreements), '', 'The judgments file wins.'],
+  ];
 }

@@ -1,6 +1,6 @@
 /**
- * SVMlight / LETOR feature files (`label qid:Q 1:v 2:v ... # docid = X`) with model scores in a
- * separate file, one per line in the same order. Features are skipped; only the label, the query,
+ * Sparse feature lines (`grade qid:Q index:value ... # docid = X`), the text form learning-to-rank
+ * toolkits commonly train on, with model scores in a separate file, one per line in the same order. Features are skipped; only the label, the query,
  * and the item id from the comment are kept. Without a docid, the item id is the row's position
  * within its query (1, 2, ...). Blank lines and lines starting with '#' are skipped in both files.
  */
@@ -37,7 +37,7 @@ export async function readScoresFile(path: string, options: ReadOptions): Promis
   return scores.subarray(0, n);
 }
 
-export async function readSvmlight(path: string, scoresPath: string, options: ReadOptions): Promise<RankedDump> {
+export async function readSparseFeatures(path: string, scoresPath: string, options: ReadOptions): Promise<RankedDump> {
   const scores = await readScoresFile(scoresPath, options);
   throwIfCancelled(options.signal);
   const rows = new RowColumns();
@@ -85,7 +85,7 @@ export async function readSvmlight(path: string, scoresPath: string, options: Re
   }
   if (!sawDocid) rows.notes.messages.push('no docid comments: items are named by their position within the query (1, 2, ...)');
   rows.countGaps();
-  return rows.finish(path, 'svmlight', stamp);
+  return rows.finish(path, 'sparse', stamp);
 }
 
 function trim(buf: Buffer, s: number, e: number): [number, number] {
