@@ -6,5 +6,7 @@ export default defineConfig({
     exclude: ['test/e2e/**', 'node_modules/**'],
     testTimeout: 60_000,
     pool: 'forks',
+    // Builds dist/ before any test when the sources changed since the last build made here.
+    globalSetup: ['test/support/buildOnce.ts'],
   },
 });

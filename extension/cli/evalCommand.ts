@@ -15,6 +15,7 @@ import { detailJson, detailOf, detailText, diagnosticsReport, findQuery, segment
 import { renameInputError, spoolStdin, STDIN_NAME } from './stdin';
 import type { CliIO } from './io';
 import { progressLine } from './progress';
+import { chooseEngine, evaluateElsewhere } from './sqlEngines';
 
 export const evalUsage = `Usage: gainline eval DUMP [options]
 
@@ -33,6 +34,18 @@ Output:
   --diagnostics         instead of the report: the score distribution per grade (do the grades separate?)
                         and each position's share of the ideal DCG, model against ideal (table or json)
   --timings             print how long reading, scoring and writing the report took (standard error)
+Where the numbers are computed:
+  --engine E            local (default) | duckdb: DuckDB embedded computes the per-query table from a
+                        CSV, TSV or Parquet file, or a folder of Parquet parts, in place (needs the npm
+                        package @duckdb/node-api next to gainline)
+  --memory-limit SIZE   DuckDB's memory cap, e.g. 2GB; past it DuckDB spills to a temporary folder
+  --order-column NAME   ClickHouse: the column giving the rows' order (repeated rows, file-order ties)
+  A DUMP of the form clickhouse://HOST:PORT/DATABASE.TABLE is computed on that ClickHouse server (HTTP
+  interface), each shard of a Distributed table computing its own queries. The user and password come
+  from GAINLINE_CLICKHOUSE_USER and GAINLINE_CLICKHOUSE_PASSWORD; they are never printed.
+  The SQL engines compute every metric but tau, and ERR only without average ties (naming either in
+  --metrics is refused; without --metrics they compute the rest of the default list, and say so); they
+  leave out the convention sensitivity rows.
 ${conventionHelp}`;
 
 const evalOptions = {
@@ -44,6 +57,9 @@ const evalOptions = {
   segment: { type: 'string' },
   diagnostics: { type: 'boolean' },
   timings: { type: 'boolean' },
+  engine: { type: 'string' },
+  'memory-limit': { type: 'string' },
+  'order-column': { type: 'string' },
   help: { type: 'boolean', short: 'h' },
 } as const;
 
@@ -76,6 +92,24 @@ export async function runEval(argv: string[], io: CliIO): Promise<number> {
   if (views.length > 1) throw new UsageError(`${views.join(' and ')} each replace the report; give one of them`);
   if (views.length > 0 && format !== 'table' && format !== 'json') {
     throw new InputError(`table or json with ${views[0]}`, '--format', undefined, format);
+  }
+  const engine = chooseEngine(source, values);
+  const local = [setup.tables.queries !== undefined && '--queries', setup.tables.items !== undefined && '--items', values.sort !== undefined && '--sort', ...views]
+    .filter(Boolean);
+  if (engine !== 'local' && local.length > 0) {
+    // The SQL engines compute the per-query table where the data is; side tables and these views need the local engine.
+    throw new InputError(`--engine local with ${local.join(' and ')}`, '--engine', undefined, engine);
+  }
+  if (engine !== 'local') {
+    const started = performance.now();
+    const result = await evaluateElsewhere(engine, source, resolve(io.cwd, source), setup, values);
+    const scored = performance.now();
+    io.out(formatReport(format, { ...result, source }, { worst }));
+    if (values.timings) {
+      const s = (ms: number) => (ms / 1000).toFixed(3);
+      io.err(`timings: ${engine} ${s(scored - started)} s, report ${s(performance.now() - scored)} s (${result.rowCount} rows)\n`);
+    }
+    return 0;
   }
   const spooled = source === STDIN_NAME ? await spoolStdin(io) : undefined;
   try {

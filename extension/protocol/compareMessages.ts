@@ -2,7 +2,7 @@
  * Compare-mode view models of the protocol (two runs of the same queries). Re-exported by
  * `messages.ts`; import from there.
  */
-import type { ConventionsView, FileInfo, MaybeNumber, SegmentFilter, SortSpec } from './messages';
+import type { ConventionsView, FileInfo, MaybeNumber, SegmentFilter, SortSpec } from './viewBasics';
 // Type-only: erased from the webview bundle, which still never loads engine code.
 import type { PairChange as PairChangeView, PositionChange as PositionChangeView } from '../engine/compare/movement';
 

@@ -8,12 +8,12 @@ import { cpus, loadavg } from 'node:os';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { parseArgs } from 'node:util';
+import { PYTHON, pythonHas } from '../reference/python.mjs';
 
 const here = dirname(fileURLToPath(import.meta.url));
 const root = resolve(here, '../..');
 const dataDir = join(here, 'data');
 const cli = join(root, 'dist/cli.js');
-const PYTHON = '/usr/bin/python3';
 const TIME = '/usr/bin/time';
 
 const { values: args } = parseArgs({ options: { only: { type: 'string' }, runs: { type: 'string' } } });
@@ -57,11 +57,6 @@ function ensureDump(size) {
     if (r.status !== 0) throw new Error('generating the benchmark dump failed');
   }
   return file;
-}
-
-function pythonHas(modules) {
-  if (!existsSync(PYTHON)) return false;
-  return spawnSync(PYTHON, ['-c', `import ${modules}`], { stdio: 'ignore' }).status === 0;
 }
 
 async function peer(script, file) {

@@ -9,7 +9,7 @@ import type { RankedDump } from '../../extension/engine/model/dump';
 import { readDump } from '../../extension/engine/readers/index';
 import { seededRandom } from '../reference/random';
 import { TempDir } from '../engine/fixtures/readers/tempFiles';
-import { useBundledWorkers } from '../engine/fixtures/workers';
+import { useBundledWorkers } from '../worker/support/workers';
 
 const tmp = new TempDir();
 

@@ -1,8 +1,8 @@
 // End-to-end: `gainline eval --format json` on seeded random dumps against scikit-learn and scipy.
-import { execFileSync } from 'node:child_process';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
-import { fixtureDir, PYTHON, REPO, requirePython, runCli } from './support/runCli';
+import { requirePython, runPython } from '../reference/python.mjs';
+import { fixtureDir, REPO, runCli } from './support/runCli';
 
 type Reference = Record<string, { ndcg10: number | null; dcg5: number | null; ap: number | null; tau: number | null }>;
 type Ours = { query: string; skipped: boolean; 'ndcg@10': number | null; 'dcg@5': number | null; ap: number | null; tau: number | null };
@@ -37,7 +37,7 @@ function compare(seed: number, tiedScores: boolean) {
   expect(r.code).toBe(0);
   const ours: Ours[] = JSON.parse(r.stdout).queries;
   const script = join(REPO, 'test/cli/support/reference_metrics.py');
-  const reference: Reference = JSON.parse(execFileSync(PYTHON, [script, join(dir, 'dump.csv')], { encoding: 'utf8' }));
+  const reference: Reference = JSON.parse(runPython([script, join(dir, 'dump.csv')], { what: 'the scikit-learn/scipy reference' }));
   return { ours, reference };
 }
 

@@ -5,7 +5,7 @@ import { queryDetail } from '../../extension/engine/evaluate/detail';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
 import { DEFAULT_METRICS } from '../../extension/engine/metrics/registry';
 import { parseMetricList } from '../../extension/engine/metrics/parse';
-import { MapStringPool } from '../../extension/engine/model/stringPool';
+import { type MapStringPool } from '../../extension/engine/model/stringPool';
 import { buildDump, queryRows } from './dumpBuilder';
 
 describe('empty inputs', () => {

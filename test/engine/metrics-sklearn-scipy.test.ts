@@ -1,6 +1,6 @@
 /**
  * NDCG, DCG and Kendall's tau against scikit-learn (dcg_score, ndcg_score) and scipy (kendalltau) on seeded
- * random lists with many tied scores, run through /usr/bin/python3 (test/reference/sklearn_scipy.py).
+ * random lists with many tied scores, run through test/reference/python.mjs (test/reference/sklearn_scipy.py).
  *
  * Where the definitions match:
  * - sklearn uses linear gain (the grade itself) and 1/log2(i+1): compare with gain linear.

@@ -13,7 +13,7 @@ import { readDump, type ReadOptions } from '../../extension/engine/readers/index
 import { sourceTuning } from '../../extension/engine/readers/source';
 import { seededRandom } from '../reference/random';
 import { TempDir } from './fixtures/readers/tempFiles';
-import { useBundledWorkers } from './fixtures/workers';
+import { useBundledWorkers } from '../worker/support/workers';
 
 const tmp = new TempDir();
 const savedTuning = { ...sourceTuning };

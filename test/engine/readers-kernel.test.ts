@@ -16,7 +16,7 @@ import { sourceTuning } from '../../extension/engine/readers/source';
 import { compileRecordKernel } from '../../extension/engine/readers/kernel/compile.mjs';
 import { seededRandom } from '../reference/random';
 import { TempDir } from './fixtures/readers/tempFiles';
-import { useBundledWorkers } from './fixtures/workers';
+import { useBundledWorkers } from '../worker/support/workers';
 
 const tmp = new TempDir();
 const kernel = join(tmp.path, 'simpleRecords.wasm');

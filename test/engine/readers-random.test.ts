@@ -3,13 +3,13 @@
  * against a Map, and whole CSV files against a slow character-by-character reference parser
  * written here (RFC 4180 quoting rules) and against pandas.read_csv (outside reference).
  */
-import { execFileSync } from 'node:child_process';
 import { afterAll, describe, expect, it } from 'vitest';
 import { BytePool } from '../../extension/engine/model/bytePool';
 import { readDump } from '../../extension/engine/readers/index';
 import { describeNonNumber, parseNumber } from '../../extension/engine/readers/numbers';
 import { sourceTuning } from '../../extension/engine/readers/source';
 import { plainRows, TempDir, type PlainRow } from './fixtures/readers/tempFiles';
+import { runPython } from '../reference/python.mjs';
 import { seededRandom } from '../reference/random';
 
 const tmp = new TempDir();
@@ -209,12 +209,7 @@ describe('pandas.read_csv as an outside reference', () => {
       "rows = [[q, i, None if l != l else float(l), float(s) if math.isfinite(float(s)) else None, c] for q, i, l, s, c in df.itertuples(index=False)]",
       'print(json.dumps(rows))',
     ].join('\n');
-    let out: string;
-    try {
-      out = execFileSync('/usr/bin/python3', ['-c', script, path], { encoding: 'utf8', maxBuffer: 64 << 20 });
-    } catch (err) {
-      throw new Error(`the pandas reference script failed; it needs /usr/bin/python3 with pandas (Debian python3-pandas): ${(err as Error).message}`);
-    }
+    const out = runPython(['-c', script, path], { what: 'the pandas reference' });
     const pandasRows = (JSON.parse(out) as [string, string, number | null, number | null, string][])
       .map(([q, i, l, s, c]) => [q, i, l ?? NaN, s ?? NaN, c]);
     const dump = await readDump(path);

@@ -1,5 +1,3 @@
-import { execFileSync } from 'node:child_process';
-import { existsSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { formatCsv } from '../../extension/engine/report/csv';
 import { formatJson } from '../../extension/engine/report/json';
@@ -9,8 +7,8 @@ import { jsonNumber, queryColumns, worstQueries, type ReportInput } from '../../
 import { MapStringPool } from '../../extension/engine/model/stringPool';
 import { formatTable } from '../../extension/engine/report/table';
 import { FIXTURE_QUERIES, fixtureInput } from '../cli/support/evaluationFixture';
+import { runPython } from '../reference/python.mjs';
 
-const PYTHON = '/usr/bin/python3';
 
 describe('JSON report', () => {
   it('keeps the document shape: conventions, summary, queries, warnings, degenerate, sensitivity', () => {
@@ -130,10 +128,9 @@ describe('JSON records rendered by hand', () => {
 describe('CSV report', () => {
   it('quotes per RFC 4180 and reads back identically with Python\'s csv module', () => {
     // Outside reference: Python's standard-library csv reader (RFC 4180 dialect "excel").
-    if (!existsSync(PYTHON)) throw new Error(`${PYTHON} is required for this check (Debian python3)`);
     const text = formatCsv(fixtureInput());
     const script = 'import csv,sys,json; print(json.dumps(list(csv.reader(sys.stdin))))';
-    const rows: string[][] = JSON.parse(execFileSync(PYTHON, ['-c', script], { input: text, encoding: 'utf8' }));
+    const rows: string[][] = JSON.parse(runPython(['-c', script], { input: text, what: "Python's csv reader" }));
     expect(rows[0]).toEqual(['query', 'items', 'relevant', 'skipped', 'ndcg@10', 'ap', 'rbp', 'rbp_residual', 'tau', 'inversions']);
     expect(rows.slice(1).map((r) => r[0])).toEqual(FIXTURE_QUERIES);
     expect(rows[2]).toEqual([FIXTURE_QUERIES[1], '3', '0', 'true', '', '', '0', '0.512', '', '0']);

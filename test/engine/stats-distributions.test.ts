@@ -1,6 +1,6 @@
 /**
  * Tails of the t and normal distributions, and the p-values built on them, against scipy 1.10.1 (Debian's
- * python3-scipy through /usr/bin/python3), to 1e-12 relative:
+ * python3-scipy through test/reference/python.mjs), to 1e-12 relative:
  * - the t tail against `2*scipy.special.stdtr(dof, -|t|)`, the exact expression of `ttest_rel`'s two-sided
  *   p, on a grid of dof 2..100,000 (log-spaced) and |t| from 1e-300 to 1e100;
  * - the normal tail against `scipy.stats.norm.sf`, the tail behind `wilcoxon`'s normal approximation;

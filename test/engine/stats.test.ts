@@ -1,5 +1,5 @@
 /**
- * Paired statistics checked against scipy 1.10 (Debian's python3-scipy through /usr/bin/python3), against
+ * Paired statistics checked against scipy 1.10 (Debian's python3-scipy through test/reference/python.mjs), against
  * worked examples from the papers that define the procedures, and against slow obvious implementations.
  */
 import { describe, expect, it } from 'vitest';

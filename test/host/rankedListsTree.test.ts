@@ -12,12 +12,29 @@ const { readConfig } = await import('../../extension/host/config');
 
 const dir = mkdtempSync(join(tmpdir(), 'gainline-tree-'));
 
-async function settle(tree: InstanceType<typeof RankedListsTree>, calls: () => number, expected: number) {
-  const end = Date.now() + 5000;
-  while (calls() < expected && Date.now() < end) await new Promise((r) => setTimeout(r, 5));
-  await new Promise((r) => setTimeout(r, 20));
-  return tree.getChildren();
+/**
+ * The tree once no headline is pending: waits for the tree's own change events (one per computed
+ * headline) rather than for a stretch of time, so "not read again" below is a fact, not a race.
+ */
+async function settled(tree: InstanceType<typeof RankedListsTree>) {
+  for (;;) {
+    // Listen before asking, so a headline that lands while getChildren runs is not missed.
+    let stop = () => {};
+    const refreshed = new Promise<void>((resolve) => {
+      const listener = tree.onDidChangeTreeData(() => resolve());
+      stop = () => listener.dispose();
+    });
+    const items = await tree.getChildren();
+    if (!items.some((i) => i.description === PENDING)) {
+      stop();
+      return items;
+    }
+    await refreshed;
+    stop();
+  }
 }
+
+const PENDING = '…';
 
 describe('RankedListsTree', () => {
   it('shows a placeholder, then the headline; recomputes only when the file changes', async () => {
@@ -32,19 +49,21 @@ describe('RankedListsTree', () => {
 
     const first = await tree.getChildren();
     expect(first.map((i) => i.label)).toEqual(['huge.csv', 'model-a.csv'].sort());
-    expect(first.find((i) => i.label === 'model-a.csv')!.description).toBe('…');
+    expect(first.find((i) => i.label === 'model-a.csv')!.description).toBe(PENDING);
 
-    let items = await settle(tree, () => call.mock.calls.length, 1);
+    let items = await settled(tree);
     expect(items.find((i) => i.label === 'model-a.csv')!.description).toBe('NDCG@10 0.6123');
     expect(items.find((i) => i.label === 'huge.csv')!.description).toContain('open to compute');
     expect(call).toHaveBeenCalledTimes(1); // the large file was never read
 
-    // Unchanged file: cached. Touched file: computed again.
-    items = await settle(tree, () => call.mock.calls.length, 1);
+    // Unchanged file: cached (shown at once, nothing queued, so nothing can be read later).
+    // Touched file: computed again.
+    items = await tree.getChildren();
+    expect(items.find((i) => i.label === 'model-a.csv')!.description).toBe('NDCG@10 0.6123');
     expect(call).toHaveBeenCalledTimes(1);
     utimesSync(small, new Date(), new Date(Date.now() + 5000));
-    await tree.getChildren();
-    items = await settle(tree, () => call.mock.calls.length, 2);
+    expect((await tree.getChildren()).find((i) => i.label === 'model-a.csv')!.description).toBe(PENDING);
+    items = await settled(tree);
     expect(call).toHaveBeenCalledTimes(2);
     expect(items.find((i) => i.label === 'model-a.csv')!.command).toMatchObject({ command: 'vscode.openWith' });
     tree.dispose();
@@ -58,8 +77,7 @@ describe('RankedListsTree', () => {
       throw new Error('search-log.tsv: expected a column for the item id');
     });
     const tree = new RankedListsTree({ call } as never, () => readConfig(() => undefined), memento() as never);
-    await tree.getChildren();
-    const [item] = await settle(tree, () => call.mock.calls.length, 1);
+    const [item] = await settled(tree);
     expect(item!.description).toContain('not readable');
     expect(item!.tooltip).toContain('expected a column for the item id');
     tree.dispose();

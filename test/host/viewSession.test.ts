@@ -84,12 +84,23 @@ describe('ViewSession', () => {
     expect(page).toMatchObject({ ok: true, result: { total: 1, rows: [{ query: 'cordless drill 18v' }] } });
     webview.incoming.fire({ kind: 'selection', query: 'cordless drill 18v' });
 
-    // Rewrite the file: one debounced recompute however many change events arrive.
+    // Rewrite the file: one debounced recompute however many change events arrive. The debounce
+    // runs on a fake clock: five events leave one timer, and firing it asks the worker once.
     writeFileSync(file, WORSE);
     const before = webview.states().length;
-    for (let i = 0; i < 5; i++) watcher.change.fire(Uri.file(file));
+    const workerCalls = vi.spyOn(worker, 'call');
+    vi.useFakeTimers({ toFake: ['setTimeout', 'clearTimeout'] });
+    try {
+      for (let i = 0; i < 5; i++) watcher.change.fire(Uri.file(file));
+      expect(vi.getTimerCount()).toBe(1);
+      vi.runOnlyPendingTimers();
+    } finally {
+      // The worker answers on the real event loop; timers started by the load stay on the fake clock.
+      vi.useRealTimers();
+    }
     await until(() => webview.states().slice(before).some((s) => s.status === 'reloaded'), 'reloaded');
-    await new Promise((r) => setTimeout(r, 400));
+    expect(workerCalls.mock.calls.filter(([method]) => method === 'load')).toHaveLength(1);
+    workerCalls.mockRestore();
     const after = webview.states().slice(before);
     expect(after.filter((s) => s.status === 'reloaded')).toHaveLength(1);
     expect(after.some((s) => s.status === 'loading')).toBe(false); // no flash of the loading screen

@@ -17,7 +17,7 @@ import { overviewModel } from '../../extension/worker/viewModels';
 import { formatExport, formatHeadline } from '../../extension/host/exportTable';
 import { formatFixed, formatP as webviewP, formatDelta as webviewDelta } from '../../webview/src/model/format';
 import { buildDump, type TestRow } from '../engine/dumpBuilder';
-import { runPython } from '../webview/pythonReference';
+import { pythonJson } from '../reference/python.mjs';
 
 /** One query of 40 items, one relevant at position 1: P@32 = 1/32 exactly. */
 function rows(): TestRow[] {
@@ -31,7 +31,7 @@ describe('one way to print a number', () => {
 
   it('P@32 = 1/32 is 0.0312 in the CLI table, Markdown, the editor, its export and the status bar', () => {
     expect(evaluation.perQuery.values[0]![0]).toBe(1 / 32);
-    const python = runPython<string>('import json,sys\nprint(json.dumps(format(json.load(sys.stdin), ".4f")))', 1 / 32);
+    const python = pythonJson<string>('import json,sys\nprint(json.dumps(format(json.load(sys.stdin), ".4f")))', 1 / 32);
     expect(python).toBe('0.0312'); // Python's format(): round-half-even on the exact value
     const table = formatReport('table', input, { worst: 5 });
     const markdown = formatReport('markdown', input, { worst: 5 });

@@ -1,9 +1,9 @@
 /**
- * Runs test/reference/stats_scipy.py with Debian's /usr/bin/python3 (where python3-scipy lives, not the
- * python3 first on PATH). A missing interpreter or scipy fails the calling test with a clear message.
+ * Runs test/reference/stats_scipy.py through python.mjs (Debian's interpreter, where python3-scipy
+ * lives). A missing interpreter or scipy fails the calling test with a clear message.
  */
-import { spawnSync } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
+import { runPython } from './python.mjs';
 
 export interface ScipyCase {
   readonly a: readonly number[];
@@ -24,14 +24,8 @@ export interface ScipyResult {
   readonly boot_high?: number | null;
 }
 
-const PYTHON = '/usr/bin/python3';
 const SCRIPT = fileURLToPath(new URL('./stats_scipy.py', import.meta.url));
 
 export function scipyReference(cases: readonly ScipyCase[]): ScipyResult[] {
-  const run = spawnSync(PYTHON, [SCRIPT], { input: JSON.stringify(cases), encoding: 'utf8', maxBuffer: 64 << 20 });
-  if (run.error) throw new Error(`cannot run ${PYTHON} for the scipy reference: ${run.error.message}`);
-  if (run.status !== 0) {
-    throw new Error(`scipy reference failed (exit ${run.status}): ${run.stderr.trim() || 'no message'}`);
-  }
-  return JSON.parse(run.stdout) as ScipyResult[];
+  return JSON.parse(runPython([SCRIPT], { input: JSON.stringify(cases), what: 'the scipy reference' })) as ScipyResult[];
 }

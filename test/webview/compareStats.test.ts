@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { benjaminiHochberg, effectSizeDz } from '../../webview/src/model/compareStats';
-import { runPython } from './pythonReference';
+import { pythonJson } from '../reference/python.mjs';
 import { seededRandom } from '../reference/random';
 
 describe('benjaminiHochberg', () => {
@@ -38,7 +38,7 @@ describe('effectSizeDz', () => {
     const rand = seededRandom(12);
     const a = Array.from({ length: 40 }, () => rand());
     const b = a.map((x) => Math.min(1, x + (rand() - 0.4) * 0.2));
-    const ref = runPython<{ t: number; dz: number }>(
+    const ref = pythonJson<{ t: number; dz: number }>(
       [
         'import json,sys',
         'import numpy as np',

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { formatCount, formatDelta, formatFixed, formatP, formatShare, MISSING } from '../../webview/src/model/format';
-import { runPython } from './pythonReference';
+import { pythonJson } from '../reference/python.mjs';
 import { seededRandom } from '../reference/random';
 
 describe('formatFixed', () => {
@@ -44,7 +44,7 @@ describe('formatFixed', () => {
       cases.push([x, d]);
     }
     cases.push([0.5, 0], [1.5, 0], [-2.5, 0], [1e20, 2]);
-    const python = runPython<string[]>(
+    const python = pythonJson<string[]>(
       'import json,sys\nprint(json.dumps([format(x, ".%df" % d) for x, d in json.load(sys.stdin)]))',
       cases,
     );

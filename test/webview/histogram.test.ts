@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { binLabel, binValues, suggestedBins, symmetricRange } from '../../webview/src/model/histogram';
 import { formatFixed } from '../../webview/src/model/format';
-import { runPython } from './pythonReference';
+import { pythonJson } from '../reference/python.mjs';
 import { seededRandom } from '../reference/random';
 
 describe('binValues', () => {
@@ -35,7 +35,7 @@ describe('binValues', () => {
       const values = Array.from({ length: n }, (_, i) => (i % 3 === 0 ? Math.round(rand() * bins) / bins : rand() * 2 - 0.5));
       sets.push({ values, bins, range: s % 2 === 0 ? [0, 1] : null });
     }
-    const numpy = runPython<number[][]>(
+    const numpy = pythonJson<number[][]>(
       [
         'import json,sys',
         'import numpy as np',

@@ -264,7 +264,8 @@ describe('column layout: no number or header is cut short', () => {
     const queryLeft = () => page.$eval('#gl-worst-table [data-index="0"] [aria-colindex="2"]', (c) => Math.round(c.getBoundingClientRect().left));
     const before = await queryLeft();
     await page.$eval('#gl-worst-table .gl-vt-viewport', (v) => (v.scrollLeft = v.scrollWidth));
-    await page.waitForTimeout(100);
+    // Two frames: the scroll event runs in the first, the table redraws in the frame it asked for.
+    await page.evaluate(() => new Promise((done) => requestAnimationFrame(() => requestAnimationFrame(() => done(undefined)))));
     expect(await queryLeft()).toBe(before);
     const last = headers.length;
     const lefts = await page.$$eval(`#gl-worst-table [aria-colindex="${last}"]`, (cells) => cells.slice(0, 2).map((c) => Math.round(c.getBoundingClientRect().left)));

@@ -45,6 +45,18 @@ export interface CompareOptions {
   readonly signal?: AbortSignal;
   /** Overall fraction done, 0..1. */
   readonly onProgress?: (fraction: number) => void;
+  /**
+   * Run A's grouping and evaluations from an earlier comparison against the same A (one baseline,
+   * several candidates): A is scored once per set of shared conventions instead of once per candidate.
+   */
+  readonly baseline?: BaselineMemo;
+}
+
+/** Run A's groups and its evaluation per shared conventions, filled in by compareRuns. */
+export interface BaselineMemo {
+  readonly dump: RankedDump;
+  groups?: QueryGroups;
+  readonly evaluations: Map<string, Evaluation>;
 }
 
 export const DEFAULT_COMPARE_OPTIONS: CompareOptions = { ...DEFAULT_COMPARE_SETTINGS };
@@ -87,7 +99,7 @@ export interface Comparison {
   readonly metrics: readonly MetricSpec[];
   /** Index of the headline metric (the first requested). */
   readonly headline: number;
-  readonly options: Omit<CompareOptions, 'signal' | 'onProgress'>;
+  readonly options: Omit<CompareOptions, 'signal' | 'onProgress' | 'baseline'>;
   readonly match: RunMatch;
   readonly evaluationA: Evaluation;
   readonly evaluationB: Evaluation;
@@ -115,7 +127,9 @@ export async function compareRuns(
 ): Promise<Comparison> {
   const o: CompareOptions = { ...DEFAULT_COMPARE_OPTIONS, ...options };
   const progress = stagedProgress(o.onProgress);
-  const groupsA = groupByQuery(a);
+  const memo = o.baseline?.dump === a ? o.baseline : undefined;
+  const groupsA = memo?.groups ?? groupByQuery(a);
+  if (memo) memo.groups = groupsA;
   const groupsB = groupByQuery(b);
   progress.stage(0.05);
   const match = matchRuns(a, b, groupsA, groupsB);
@@ -126,7 +140,9 @@ export async function compareRuns(
   const evaluateOne = (dump: RankedDump, groups: QueryGroups): Evaluation =>
     evaluate(dump, metrics, shared, { groups, signal: o.signal, sensitivity: false, onProgress: progress.report });
   progress.stage(0.3);
-  const evaluationA = evaluateOne(a, groupsA);
+  const memoKey = JSON.stringify(shared);
+  const evaluationA = memo?.evaluations.get(memoKey) ?? evaluateOne(a, groupsA);
+  memo?.evaluations.set(memoKey, evaluationA);
   progress.stage(0.3);
   const evaluationB = evaluateOne(b, groupsB);
 
@@ -176,7 +192,7 @@ export async function compareRuns(
   }));
   progress.done();
 
-  const { signal: _signal, onProgress: _onProgress, ...used } = o;
+  const { signal: _signal, onProgress: _onProgress, baseline: _baseline, ...used } = o;
   return {
     conventions: shared,
     metrics,

@@ -11,13 +11,13 @@
  * columns are then views of SharedArrayBuffers (see parallel.ts).
  */
 import { CancelledError, InputError } from '../errors';
-import type { DumpFormat, MissingQueriesPolicy, RankedDump } from '../model/dump';
+import type { RankedDump } from '../model/dump';
 import { DelimitedParser } from './delimited';
 import { detectFormat } from './detect';
 import { readJsonLines } from './jsonLines';
 import { readParallelDelimited, shouldParseInParallel } from './parallel';
 import { readParquet } from './parquet';
-import type { ColumnRoles } from './roles';
+import type { ReadOptions } from './readOptions';
 import { joinJudgments, readJudgmentTable } from './judgments';
 import { readRunFile } from './runFile';
 import { changedSince, fileChangedError, pumpText, statStamp, throwIfCancelled } from './source';
@@ -26,34 +26,7 @@ import { readSparseFeatures } from './sparseFeatures';
 export { parseColumnRoles } from './roles';
 export type { ColumnRoles } from './roles';
 export type { DumpFormat, RankedDump } from '../model/dump';
-
-export interface ReadOptions {
-  /** Overrides detection. */
-  format?: DumpFormat;
-  /** Explicit column names, e.g. from --columns query=sid,item=pid,label=grade,score=p */
-  columns?: ColumnRoles;
-  /**
-   * Path of a judgments file: `query unused item grade` lines or a table naming the query, item and grade
-   * columns. Any format takes its labels from it (run files must have one); see judgments.ts.
-   */
-  judgments?: string;
-  /** Column names in a tabular judgments file, like `columns` (query, item, label). */
-  judgmentsColumns?: ColumnRoles;
-  /** Judged queries with no row in the dump: left out (`skip`, default) or scored 0 on every metric (`zero`). */
-  missingQueries?: MissingQueriesPolicy;
-  /** Path of a one-score-per-line file (sparse feature lines). */
-  scores?: string;
-  /** Parse threads for big text files; default auto (1 for small files). */
-  threads?: number;
-  /**
-   * Parse quote-free CSV/TSV on worker threads even where one thread would do, leaving this thread
-   * free meanwhile (to read a second file at the same time). Other inputs are read as usual.
-   */
-  offThread?: boolean;
-  /** Cancellation → CancelledError. */
-  signal?: AbortSignal;
-  onProgress?: (fraction: number) => void;
-}
+export type { ReadOptions } from './readOptions';
 
 export async function readDump(path: string, options: ReadOptions = {}): Promise<RankedDump> {
   throwIfCancelled(options.signal);

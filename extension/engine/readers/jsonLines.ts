@@ -8,7 +8,7 @@ import { isWellFormedText } from './textCheck';
 import { InputError } from '../errors';
 import type { RankedDump } from '../model/dump';
 import { RowColumns } from './columns';
-import type { ReadOptions } from './index';
+import type { ReadOptions } from './readOptions';
 import { describeNonNumberText, parseNumberText } from './numbers';
 import { LIST_ROLE_NAMES, resolveRoles, type ResolvedRoles } from './roles';
 import { LineSink, pumpText } from './source';

@@ -16,7 +16,7 @@ import { BytePool } from '../model/bytePool';
 import type { JudgmentsJoin, MissingQueriesPolicy, RankedDump, UnretrievedJudged } from '../model/dump';
 import { gradeRangeOf, summariseRows } from '../model/rowSummary';
 import { MapStringPool, type StringPool } from '../model/stringPool';
-import type { ReadOptions } from './index';
+import type { ReadOptions } from './readOptions';
 import { parseNumber } from './numbers';
 import { textHead } from './detect';
 import { PairIndex } from './pairIndex';

@@ -15,7 +15,7 @@ import type { RankedDump } from '../model/dump';
 import { addSummaries } from '../model/rowSummary';
 import { RowColumns, type SharedColumns } from './columns';
 import { DelimitedParser } from './delimited';
-import type { ReadOptions } from './index';
+import type { ReadOptions } from './readOptions';
 import { parseRange, type RangeResult, type RangeTask } from './rangeParse';
 import { assertTextHead, checkUnchanged, sourceTuning, statStamp, throwIfCancelled } from './source';
 

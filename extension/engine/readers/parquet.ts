@@ -11,7 +11,7 @@ import { compressors } from 'hyparquet-compressors';
 import { InputError } from '../errors';
 import type { FileStamp, RankedDump } from '../model/dump';
 import { RowColumns } from './columns';
-import type { ReadOptions } from './index';
+import type { ReadOptions } from './readOptions';
 import { describeNonNumberText, parseNumberText } from './numbers';
 import { resolveRoles, type ResolvedRoles } from './roles';
 import { fileChangedError, statStamp, throwIfCancelled } from './source';

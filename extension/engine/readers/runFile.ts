@@ -6,7 +6,7 @@
 import { InputError } from '../errors';
 import type { RankedDump } from '../model/dump';
 import { RowColumns } from './columns';
-import type { ReadOptions } from './index';
+import type { ReadOptions } from './readOptions';
 import { describeNonNumber, parseNumber } from './numbers';
 import { LineSink, pumpText, splitWhitespace } from './source';
 

@@ -12,8 +12,26 @@ import { join } from 'node:path';
 import type { BytePool } from '../model/bytePool';
 import { parseSimpleRecords, POW10, ROLE_ITEM, ROLE_QUERY, ROLE_SEGMENT, type FastState } from './delimitedFast';
 
+/**
+ * The part of the WebAssembly JavaScript API used here. Node provides the global, but Node 20's type
+ * declarations leave its types to the DOM library, which the engine's build target does not load.
+ */
+type WasmModule = object;
+interface WasmMemory {
+  readonly buffer: ArrayBuffer;
+}
+interface WasmApi {
+  readonly Module: new (bytes: Uint8Array) => WasmModule;
+  readonly Memory: new (descriptor: { initial: number }) => WasmMemory;
+  readonly Instance: new (module: WasmModule, imports: Record<string, Record<string, unknown>>) => { readonly exports: unknown };
+}
+/** Looked up when used: under Node's --jitless the global is missing, and the caller falls back. */
+function webAssembly(): WasmApi {
+  return (globalThis as unknown as { WebAssembly: WasmApi }).WebAssembly;
+}
+
 interface KernelExports {
-  readonly memory: WebAssembly.Memory;
+  readonly memory: WasmMemory;
   layout(roles: number, pow10: number, previous: number, fields: number, idSlot: number, idStart: number, idEnd: number,
     idHash: number, label: number, score: number, line: number, start: number, rows: number): void;
   parse(pos: number, limit: number, delimiter: number, line: number, rankIsScore: number): number;
@@ -23,7 +41,7 @@ interface KernelExports {
 
 declare const __dirname: string | undefined;
 let kernelPath: string | undefined = typeof __dirname === 'string' ? join(__dirname, 'simpleRecords.wasm') : undefined;
-let compiled: WebAssembly.Module | null | undefined;
+let compiled: WasmModule | null | undefined;
 
 /** Where the compiled kernel lives (next to the bundle by default; tests point at a fresh build, or undefined for none). */
 export function setRecordKernel(path: string | undefined): void {
@@ -31,10 +49,10 @@ export function setRecordKernel(path: string | undefined): void {
   compiled = undefined;
 }
 
-function kernelModule(): WebAssembly.Module | undefined {
+function kernelModule(): WasmModule | undefined {
   if (compiled === undefined) {
     try {
-      compiled = kernelPath !== undefined && existsSync(kernelPath) ? new WebAssembly.Module(readFileSync(kernelPath)) : null;
+      compiled = kernelPath !== undefined && existsSync(kernelPath) ? new (webAssembly().Module)(readFileSync(kernelPath)) : null;
     } catch {
       // WebAssembly switched off (Node's --jitless, a host policy): the JavaScript loop reads the same rows.
       compiled = null;
@@ -79,7 +97,7 @@ export class SimpleRecordsKernel {
     return module && new SimpleRecordsKernel(module, roleOf);
   }
 
-  private constructor(module: WebAssembly.Module, roleOf: Int32Array) {
+  private constructor(module: WasmModule, roleOf: Int32Array) {
     const fieldCount = roleOf.length;
     let slots = 0;
     this.fields = Array.from(roleOf, (role) => ({ role, slot: isId(role) ? slots++ : -1 }));
@@ -97,8 +115,9 @@ export class SimpleRecordsKernel {
     const lineAt = scoreAt + 8 * this.rowsPerCall;
     const startAt = lineAt + 4 * this.rowsPerCall;
     const end = startAt + 4 * this.rowsPerCall;
-    const memory = new WebAssembly.Memory({ initial: Math.ceil(end / PAGE) + 1 });
-    this.kernel = new WebAssembly.Instance(module, { env: { memory, abort: kernelAbort } }).exports as unknown as KernelExports;
+    const { Instance, Memory } = webAssembly();
+    const memory = new Memory({ initial: Math.ceil(end / PAGE) + 1 });
+    this.kernel = new Instance(module, { env: { memory, abort: kernelAbort } }).exports as unknown as KernelExports;
     const buffer = memory.buffer;
     new Int32Array(buffer, rolesAt, fieldCount).set(roleOf);
     new Float64Array(buffer, pow10At, POW10.length).set(POW10);

@@ -6,7 +6,6 @@ import { join, resolve } from 'node:path';
 
 export const REPO = resolve(__dirname, '../../..');
 export const CLI = join(REPO, 'dist/cli.js');
-export const PYTHON = '/usr/bin/python3';
 
 export interface CliRun {
   readonly code: number | null;
@@ -25,12 +24,4 @@ export function fixtureDir(files: Readonly<Record<string, string>>): string {
   const dir = mkdtempSync(join(tmpdir(), 'gainline-cli-'));
   for (const [name, text] of Object.entries(files)) writeFileSync(join(dir, name), text);
   return dir;
-}
-
-/** Fails loudly (never skips) when the Debian Python stack the reference checks need is absent. */
-export function requirePython(modules: string): void {
-  const r = spawnSync(PYTHON, ['-c', `import ${modules}`], { encoding: 'utf8' });
-  if (r.status !== 0) {
-    throw new Error(`${PYTHON} cannot import ${modules}: install Debian's python3-sklearn python3-scipy python3-pandas (${r.stderr ?? r.error})`);
-  }
 }

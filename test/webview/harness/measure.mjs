@@ -87,7 +87,8 @@ async function scrollJump() {
           const rows = [...document.querySelectorAll('#gl-worst-table .gl-vt-row')];
           const loaded = rows.length > 0 && rows.every((r) => r.dataset.query !== undefined);
           const inView = rows.some((r) => Number(r.dataset.index) >= Math.floor(fraction * 99000));
-          loaded && inView ? resolve() : requestAnimationFrame(check);
+          if (loaded && inView) resolve();
+          else requestAnimationFrame(check);
         };
         requestAnimationFrame(check);
       });

@@ -13,11 +13,11 @@ import type { Conventions } from '../../extension/engine/metrics/conventions';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
 import { parseMetricList } from '../../extension/engine/metrics/parse';
 import { formatJson } from '../../extension/engine/report/json';
-import { buildDump, type TestRow } from './dumpBuilder';
-import { TempDir } from './fixtures/readers/tempFiles';
+import { buildDump, type TestRow } from '../engine/dumpBuilder';
+import { TempDir } from '../engine/fixtures/readers/tempFiles';
 import { QUERY_NAMES, seededRandom } from '../reference/random';
-import { useBundledWorkers } from './fixtures/workers';
-import { judgedCollection, joined } from './judgedSets';
+import { useBundledWorkers } from './support/workers';
+import { judgedCollection, joined } from '../engine/judgedSets';
 
 const tmp = new TempDir();
 

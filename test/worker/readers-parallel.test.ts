@@ -10,9 +10,9 @@ import type { RankedDump } from '../../extension/engine/model/dump';
 import { readDump } from '../../extension/engine/readers/index';
 import { readParallelDelimited } from '../../extension/engine/readers/parallel';
 import { sourceTuning } from '../../extension/engine/readers/source';
-import { TempDir } from './fixtures/readers/tempFiles';
+import { TempDir } from '../engine/fixtures/readers/tempFiles';
 import { seededRandom } from '../reference/random';
-import { useBundledWorkers } from './fixtures/workers';
+import { useBundledWorkers } from './support/workers';
 
 const tmp = new TempDir();
 

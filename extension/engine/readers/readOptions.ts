@@ -1,0 +1,34 @@
+/**
+ * What a caller can ask of the readers. Its own module so that each format's reader can take the
+ * options without importing the readers' entry, which imports every reader.
+ */
+import type { DumpFormat, MissingQueriesPolicy } from '../model/dump';
+import type { ColumnRoles } from './roles';
+
+export interface ReadOptions {
+  /** Overrides detection. */
+  format?: DumpFormat;
+  /** Explicit column names, e.g. from --columns query=sid,item=pid,label=grade,score=p */
+  columns?: ColumnRoles;
+  /**
+   * Path of a judgments file: `query unused item grade` lines or a table naming the query, item and grade
+   * columns. Any format takes its labels from it (run files must have one); see judgments.ts.
+   */
+  judgments?: string;
+  /** Column names in a tabular judgments file, like `columns` (query, item, label). */
+  judgmentsColumns?: ColumnRoles;
+  /** Judged queries with no row in the dump: left out (`skip`, default) or scored 0 on every metric (`zero`). */
+  missingQueries?: MissingQueriesPolicy;
+  /** Path of a one-score-per-line file (sparse feature lines). */
+  scores?: string;
+  /** Parse threads for big text files; default auto (1 for small files). */
+  threads?: number;
+  /**
+   * Parse quote-free CSV/TSV on worker threads even where one thread would do, leaving this thread
+   * free meanwhile (to read a second file at the same time). Other inputs are read as usual.
+   */
+  offThread?: boolean;
+  /** Cancellation → CancelledError. */
+  signal?: AbortSignal;
+  onProgress?: (fraction: number) => void;
+}
