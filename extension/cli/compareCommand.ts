@@ -5,6 +5,7 @@
 import { stat } from 'node:fs/promises';
 import { resolve } from 'node:path';
 import { compareRuns, DEFAULT_COMPARE_OPTIONS } from '../engine/compare/compare';
+import { withSideTables } from '../engine/tables/join';
 import { InputError } from '../engine/errors';
 import { formatDelta, formatP } from '../presentation/numbers';
 import { COMPARE_FORMATS, formatComparison, type CompareFormat } from '../engine/report/compareReport';
@@ -127,7 +128,9 @@ export async function runCompare(argv: string[], io: CliIO): Promise<number> {
   const large = (await stat(pathA)).size + sizeB >= PROGRESS_FROM_BYTES;
   const progress = io.isTTY && large ? progressLine(io, `${sourceA} vs ${sourceB}`) : undefined;
   try {
-    const [a, b] = await readRuns(pathA, pathB, [readA, readB], { sizeB, onProgress: progress?.reading });
+    const [runA, runB] = await readRuns(pathA, pathB, [readA, readB], { sizeB, onProgress: progress?.reading });
+    // One queries table and one items table serve both runs (the same queries, the same catalogue).
+    const [a, b] = [await withSideTables(runA, setup.tables), await withSideTables(runB, setup.tables)];
     const comparison = await compareRuns(a, b, setup.metrics, setup.conventions, {
       permutations,
       bootstrap,

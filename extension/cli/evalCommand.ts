@@ -8,7 +8,11 @@ import { CoreMeter } from '../engine/evaluate/coreMeter';
 import { evaluateInParallel } from '../engine/evaluate/parallelEvaluate';
 import { readDump } from '../engine/readers/index';
 import { formatReport, REPORT_FORMATS, type ReportFormat } from '../engine/report/index';
-import { conventionHelp, conventionOptions, parseCommandArgs, scoringSetupFrom } from './conventionArgs';
+import { queryFacts } from '../engine/tables/queryFacts';
+import { withSideTables } from '../engine/tables/join';
+import { conventionHelp, conventionOptions, parseCommandArgs, scoringSetupFrom, type ScoringSetup } from './conventionArgs';
+import { detailJson, detailOf, detailText, diagnosticsReport, findQuery, segmentReport, worstOrder } from './evalViews';
+import { renameInputError, spoolStdin, STDIN_NAME } from './stdin';
 import type { CliIO } from './io';
 import { progressLine } from './progress';
 import { chooseEngine, evaluateElsewhere } from './sqlEngines';
@@ -17,10 +21,18 @@ export const evalUsage = `Usage: gainline eval DUMP [options]
 
 Scores every query of one prediction dump and prints the means, the conventions used, what was
 skipped or assumed, how the headline metric moves under other conventions, and the worst queries.
+DUMP - reads the dump from standard input (the format, and gzip, found from the content).
 
 Output:
   --format F            table (default) | json | csv | markdown
   --worst N             how many of the worst queries to list (default 10; table and markdown)
+  --sort KEY            order of the worst list: a metric of --metrics (lowest first, default the
+                        first), loss-share (share of the first metric's loss) or inversion-cost
+  --query Q             one query in detail instead of the report: values, predicted against ideal
+                        order with each position's contribution, inverted pairs (table or json)
+  --segment COL         the means per value of one segment column instead of the report (table or json)
+  --diagnostics         instead of the report: the score distribution per grade (do the grades separate?)
+                        and each position's share of the ideal DCG, model against ideal (table or json)
   --timings             print how long reading, scoring and writing the report took (standard error)
 Where the numbers are computed:
   --engine E            local (default) | duckdb: DuckDB embedded computes the per-query table from a
@@ -40,6 +52,10 @@ const evalOptions = {
   ...conventionOptions,
   format: { type: 'string' },
   worst: { type: 'string' },
+  sort: { type: 'string' },
+  query: { type: 'string' },
+  segment: { type: 'string' },
+  diagnostics: { type: 'boolean' },
   timings: { type: 'boolean' },
   engine: { type: 'string' },
   'memory-limit': { type: 'string' },
@@ -72,7 +88,18 @@ export async function runEval(argv: string[], io: CliIO): Promise<number> {
   if (values['missing-queries'] !== undefined && setup.read.judgments === undefined) {
     throw new InputError('--judgments FILE to go with it', '--missing-queries', undefined, values['missing-queries']);
   }
+  const views = [values.query !== undefined && '--query', values.segment !== undefined && '--segment', values.diagnostics && '--diagnostics'].filter(Boolean);
+  if (views.length > 1) throw new UsageError(`${views.join(' and ')} each replace the report; give one of them`);
+  if (views.length > 0 && format !== 'table' && format !== 'json') {
+    throw new InputError(`table or json with ${views[0]}`, '--format', undefined, format);
+  }
   const engine = chooseEngine(source, values);
+  const local = [setup.tables.queries !== undefined && '--queries', setup.tables.items !== undefined && '--items', values.sort !== undefined && '--sort', ...views]
+    .filter(Boolean);
+  if (engine !== 'local' && local.length > 0) {
+    // The SQL engines compute the per-query table where the data is; side tables and these views need the local engine.
+    throw new InputError(`--engine local with ${local.join(' and ')}`, '--engine', undefined, engine);
+  }
   if (engine !== 'local') {
     const started = performance.now();
     const result = await evaluateElsewhere(engine, source, resolve(io.cwd, source), setup, values);
@@ -84,16 +111,37 @@ export async function runEval(argv: string[], io: CliIO): Promise<number> {
     }
     return 0;
   }
-  const path = resolve(io.cwd, source);
+  const spooled = source === STDIN_NAME ? await spoolStdin(io) : undefined;
+  try {
+    return await evalFile(spooled?.path ?? resolve(io.cwd, source), source, format, worst, setup, values, io);
+  } catch (e) {
+    throw spooled ? renameInputError(e, spooled) : e;
+  } finally {
+    await spooled?.remove();
+  }
+}
 
+async function evalFile(path: string, source: string, format: ReportFormat, worst: number, setup: ScoringSetup,
+  values: { sort?: string | undefined; query?: string | undefined; segment?: string | undefined; diagnostics?: boolean | undefined; timings?: boolean | undefined },
+  io: CliIO): Promise<number> {
   const size = (await stat(path)).size;
   const progress = io.isTTY && size >= PROGRESS_FROM_BYTES ? progressLine(io, source) : undefined;
   const started = performance.now();
   // Measures what other programs do during the read, to decide how many threads may score.
   const meter = new CoreMeter();
   try {
-    const dump = await readDump(path, { ...setup.read, onProgress: progress?.reading });
+    const dump = await withSideTables(await readDump(path, { ...setup.read, onProgress: progress?.reading }), setup.tables);
     const read = performance.now();
+    if (values.query !== undefined) {
+      const detail = detailOf(dump, findQuery(dump, values.query), setup.metrics, setup.conventions);
+      io.out(format === 'json' ? detailJson(dump, detail, source) : detailText(dump, detail, source));
+      return 0;
+    }
+    if (values.diagnostics) {
+      io.out(diagnosticsReport(dump, setup.metrics, setup.conventions, format === 'json' ? 'json' : 'text', source));
+      return 0;
+    }
+    const facts = queryFacts(dump);
     // CSV and Markdown do not show the sensitivity rows; skipping them saves a third of the scoring time.
     const sensitivity = format === 'table' || format === 'json';
     const evaluation = await evaluateInParallel(dump, setup.metrics, setup.conventions, {
@@ -101,11 +149,17 @@ export async function runEval(argv: string[], io: CliIO): Promise<number> {
       sensitivity,
       threads: setup.read.threads,
       otherBusyCores: meter.otherBusyCores(),
-      ...(format === 'json' ? { renderJsonRecords: dump.queries } : {}),
+      ...(format === 'json' && facts === undefined ? { renderJsonRecords: dump.queries } : {}),
     });
     const scored = performance.now();
     progress?.done();
-    io.out(formatReport(format, { evaluation, queryNames: dump.queries, source, rowCount: dump.rowCount }, { worst }));
+    if (values.segment !== undefined) {
+      io.out(segmentReport(dump, evaluation, values.segment, format === 'json' ? 'json' : 'text'));
+      return 0;
+    }
+    const worstOrderBy = values.sort === undefined ? undefined : worstOrder(evaluation, values.sort);
+    io.out(formatReport(format, { evaluation, queryNames: dump.queries, source, rowCount: dump.rowCount, ...(facts ? { facts } : {}) },
+      { worst, ...(worstOrderBy ? { worstOrder: worstOrderBy } : {}) }));
     if (values.timings) {
       const s = (ms: number) => (ms / 1000).toFixed(3);
       io.err(`timings: read ${s(read - started)} s, score ${s(scored - read)} s, report ${s(performance.now() - scored)} s (${dump.rowCount} rows)\n`);

@@ -281,6 +281,11 @@ export class ViewSession implements vscode.Disposable {
         continue;
       }
       const judgments = await pickJudgments(uri, choice.judgmentChoices);
+      if (!judgments && !choice.judgmentsRequired) {
+        // Not a run file: with none of the judgments files picked, the dump's own labels are used.
+        out.push(choice.source);
+        continue;
+      }
       if (!judgments) {
         throw new Error(`${path.basename(uri.fsPath)} is a run file: it needs a judgments (qrels) file with the grades, and none was chosen.`);
       }

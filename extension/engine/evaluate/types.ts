@@ -69,6 +69,8 @@ export interface Evaluation {
   readonly perQuery: PerQueryColumns;
   /** summary[i] belongs to metrics[i]; when RBP is requested one more entry follows, keyed `rbp_residual`. */
   readonly summary: readonly MetricSummary[];
+  /** Present when the means are weighted by query (a weight column in the dump or the queries table). */
+  readonly weighting?: { readonly source: string };
   readonly degenerate: DegenerateCounts;
   readonly sensitivity: readonly SensitivityRow[];
   /** Plain sentences for people: what was counted, skipped or assumed. */

@@ -110,5 +110,6 @@ export function describeDegenerate(w: WarningInput): string[] {
   }
   const hk = Number.isFinite(w.headlineK) ? `@${w.headlineK}` : '';
   out.push(`Inversion cost is the NDCG${hk} that swapping each inverted pair would recover, summed per query.`);
+  if (w.dump?.joined) out.push(...w.dump.joined.notes);
   return out;
 }

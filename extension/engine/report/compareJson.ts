@@ -25,6 +25,7 @@ export function formatCompareJson(input: CompareReportInput, options: CompareRep
     metrics: c.byMetric.map((r) => metricJson(r, r.adjusted)),
     biggestDrops: drops.map(change),
     biggestGains: gains.map(change),
+    ...(c.weighting ? { weights: c.weighting.source } : {}),
     methodNotes: c.methodNotes,
     warnings: c.warnings,
     perQuery: PER_QUERY_SLOT,

@@ -138,6 +138,17 @@ export function startFakeHost(options: FakeHostOptions): { send(message: HostToV
     segmentColumns: ['locale'],
     warnings: ['2 duplicate rows: the first of each was kept.'],
     loadMs: 42,
+    diagnostics: {
+      scoresByGrade: {
+        edges: [0, 0.25, 0.5, 0.75, 1],
+        grades: [
+          { grade: 0, count: 40, missing: 1, q1: 0.1, median: 0.2, q3: 0.35, mean: 0.24, bins: [20, 14, 5, 1] },
+          { grade: 2, count: 12, missing: 0, q1: 0.55, median: 0.7, q3: 0.8, mean: 0.66, bins: [0, 2, 4, 6] },
+          { grade: null, count: 3, missing: 0, q1: 0.3, median: 0.4, q3: 0.5, mean: 0.4, bins: [0, 2, 1, 0] },
+        ],
+      },
+      dcgByPosition: { k: 10, depth: 3, queries: 480, predicted: [0.4, 0.15, 0.08, 0.05], ideal: [0.55, 0.25, 0.12, 0.08] },
+    },
   };
   const sortCache = new Map<string, FakeQuery[]>();
   const list = (key: string, descending: boolean, filter?: string, locale?: string): FakeQuery[] => {

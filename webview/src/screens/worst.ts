@@ -118,6 +118,7 @@ export class WorstScreen {
       { key: 'rank', label: '#', title: 'Position in the current order.', value: (r) => r.index + 1, numeric: true, width: 0, sample: SAMPLES.rank, sticky: true },
       { key: 'query', label: 'Query', title: COLUMN_EXPLANATIONS['query']!, value: (r) => r.query, sortable: true, width: 3, sticky: true },
     ];
+    if (model.queryText) cols.push({ key: 'text', label: 'Text', title: 'Query text from the queries table; the filter matches it too.', value: (r) => r.text ?? '', width: 3 });
     model.metrics.forEach((m, i) =>
       cols.push({ key: m.key, label: m.label, title: explainMetric(m.key, conv), value: (r) => r.values[i] ?? null, format: fixed, numeric: true, sortable: true, sample: SAMPLES.unitFixed }),
     );
