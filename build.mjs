@@ -10,17 +10,20 @@ const common = { bundle: true, sourcemap: true, logLevel: 'warning', target: 'es
 const entries = [
   // Command line: plain Node, runnable as `gainline` through package.json "bin".
   { ...common, entryPoints: ['extension/cli/main.ts'], outfile: 'dist/cli.js', platform: 'node', format: 'cjs',
-    banner: { js: '#!/usr/bin/env node' } },
+    // DuckDB is a native module, loaded only by --engine duckdb: it stays outside the bundle.
+    banner: { js: '#!/usr/bin/env node' }, external: ['@duckdb/node-api'] },
   // Engine worker thread used by the CLI and the extension host for parallel reading.
   { ...common, entryPoints: ['extension/worker/engineWorker.ts'], outfile: 'dist/engineWorker.js', platform: 'node', format: 'cjs' },
   // Parse worker: one byte range of a large CSV/TSV per thread (found next to the bundle that starts it).
   { ...common, entryPoints: ['extension/engine/readers/parseWorker.ts'], outfile: 'dist/parseWorker.js', platform: 'node', format: 'cjs' },
+  // Checkpoint worker: `gainline trend` scores every other checkpoint of a series on it.
+  { ...common, entryPoints: ['extension/worker/checkpointWorker.ts'], outfile: 'dist/checkpointWorker.js', platform: 'node', format: 'cjs' },
   // Score worker: one range of queries of a large dump per thread, written into shared columns.
   { ...common, entryPoints: ['extension/worker/scoreWorker.ts'], outfile: 'dist/scoreWorker.js', platform: 'node', format: 'cjs' },
 ];
 if (existsSync('extension/host/extension.ts')) {
   entries.push({ ...common, entryPoints: ['extension/host/extension.ts'], outfile: 'dist/extension.js', platform: 'node',
-    format: 'cjs', external: ['vscode'] });
+    format: 'cjs', external: ['vscode', '@duckdb/node-api'] });
 }
 if (existsSync('webview/src/main.ts')) {
   entries.push({ ...common, entryPoints: ['webview/src/main.ts'], outfile: 'dist/webview.js', platform: 'browser',

@@ -6,7 +6,9 @@ import packageJson from '../../package.json';
 import { CancelledError, InputError } from '../engine/errors';
 import { runCompare } from './compareCommand';
 import { runEval, UsageError } from './evalCommand';
+import { runSql } from './sqlCommand';
 import type { CliIO } from './io';
+import { runTrend } from './trendCommand';
 
 interface Command {
   readonly summary: string;
@@ -16,7 +18,9 @@ interface Command {
 /** Adding a command is one line here. */
 const COMMANDS: Readonly<Record<string, Command>> = {
   eval: { summary: 'score one prediction dump and list its worst queries', run: runEval },
-  compare: { summary: 'test two runs of the same queries against each other, query by query', run: runCompare },
+  compare: { summary: 'test two runs (or a baseline and candidates) of the same queries, query by query', run: runCompare },
+  trend: { summary: 'follow a series of checkpoint dumps over training, per metric and per query', run: runTrend },
+  sql: { summary: 'print the SQL that computes the per-query table in DuckDB or ClickHouse', run: runSql },
 };
 
 export const EXIT_OK = 0;

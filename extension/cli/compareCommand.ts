@@ -6,6 +6,7 @@ import { stat } from 'node:fs/promises';
 import { resolve } from 'node:path';
 import { DEFAULT_COMPARE_OPTIONS } from '../engine/compare/compare';
 import { compareRuns } from '../engine/index';
+import { withSideTables } from '../engine/tables/join';
 import { InputError } from '../engine/errors';
 import { formatDelta, formatP } from '../presentation/numbers';
 import { COMPARE_FORMATS, formatComparison, type CompareFormat } from '../engine/report/compareReport';
@@ -13,9 +14,11 @@ import { conventionHelp, conventionOptions, parseCommandArgs, readRequestFrom, s
 import { UsageError } from './evalCommand';
 import type { CliIO } from './io';
 import { progressLine } from './progress';
+import { compareCandidates } from './candidatesCommand';
 import { readRuns } from './readRuns';
 
 export const compareUsage = `Usage: gainline compare A B [options]
+       gainline compare BASELINE CANDIDATE1 CANDIDATE2 … [options]
 
 Scores two runs (for example yesterday's model as A, today's as B) on the queries they share, under
 the same conventions, and tests the per-query differences B − A: mean difference with a bootstrap
@@ -23,10 +26,18 @@ interval, paired t-test, Wilcoxon signed-rank and sign-flip randomization p-valu
 Benjamini–Hochberg adjustments across metrics), wins / ties / losses, and the queries that moved most.
 Queries found in one run only are counted and left out.
 
+With three or more runs the first is the baseline and every other run a candidate. Each candidate is
+compared with the baseline exactly as "compare BASELINE CANDIDATE" would (same options, same seed, the
+queries that pair shares; queries only in the baseline or only in a candidate are counted per candidate,
+with examples, and left out of that candidate's tests). Holm and Benjamini–Hochberg adjust the p-values
+across all candidates × metrics, separately per test. Candidates are ranked by the mean Δ of the first
+metric, highest first (equal means keep the order given).
+
 Each run may be read its own way: an input option followed by -a or -b applies to that run only and
 replaces the plain option for it, e.g. two formats (--input-format-a run --input-format-b parquet) or
 two judgments files (--judgments-a old.qrels --judgments-b new.qrels). With one --judgments file both
 runs are scored against the same judgments, and --missing-queries zero gives both runs every judged query.
+With several candidates, -a applies to the baseline and -b to every candidate.
 
 Per run:
   --input-format-a F, --input-format-b F, --columns-a ROLES, --columns-b ROLES, --judgments-a FILE,
@@ -37,12 +48,15 @@ Statistics:
   --bootstrap N         bootstrap resamples for the 95% interval (default ${DEFAULT_COMPARE_OPTIONS.bootstrap}; 0 = none)
   --seed S              seed of both resampling procedures (default ${DEFAULT_COMPARE_OPTIONS.seed})
   --tie-tolerance X     |B − A| <= X counts as a tie (default ${DEFAULT_COMPARE_OPTIONS.tieTolerance})
-  --fail-if-worse ALPHA exit 1 when B is worse than A on the first metric with randomization p <= ALPHA
+  --fail-if-worse ALPHA exit 1 when B is worse than A on the first metric with randomization p <= ALPHA;
+                        with several candidates: when any candidate is worse than the baseline on the
+                        first metric with Holm-adjusted randomization p <= ALPHA
 Output:
-  --format F            table (default) | json | markdown
-  --top N               how many of the biggest drops and gains to list (default 10)
+  --format F            table (default) | json | markdown | csv (one row per run × metric)
+  --top N               how many of the biggest drops and gains to list (default 10; two runs only)
 ${conventionHelp}
-Exit status: 0 done (and not worse, with --fail-if-worse), 1 B significantly worse, 2 bad input.
+Exit status: 0 done (and not worse, with --fail-if-worse), 1 B (or any candidate) significantly worse,
+2 bad input.
 `;
 
 /** The input options that compare also takes per run, with -a / -b appended. */
@@ -72,8 +86,8 @@ export async function runCompare(argv: string[], io: CliIO): Promise<number> {
     io.out(compareUsage);
     return 0;
   }
-  if (positionals.length !== 2) {
-    throw new UsageError(`compare needs two runs, A and B; got ${positionals.length} file${positionals.length === 1 ? '' : 's'}`);
+  if (positionals.length < 2) {
+    throw new UsageError(`compare needs two runs, A and B, or a baseline and candidates; got ${positionals.length} file${positionals.length === 1 ? '' : 's'}`);
   }
   const format = (values.format ?? 'table') as CompareFormat;
   if (!COMPARE_FORMATS.includes(format)) {
@@ -103,6 +117,10 @@ export async function runCompare(argv: string[], io: CliIO): Promise<number> {
   const conventions = missingQueries ? { ...shared.conventions, missingQueries } : shared.conventions;
   for (const read of [readA, readB]) if (read.judgments !== undefined) read.missingQueries = missingQueries;
   const setup = { ...shared, conventions };
+  if (positionals.length > 2) {
+    const statistics = { permutations, bootstrap, seed, tieTolerance };
+    return compareCandidates(positionals, { setup, readBaseline: readA, readCandidate: readB, statistics, format, alpha }, io);
+  }
 
   const [sourceA, sourceB] = positionals as [string, string];
   const pathA = resolve(io.cwd, sourceA);
@@ -111,7 +129,9 @@ export async function runCompare(argv: string[], io: CliIO): Promise<number> {
   const large = (await stat(pathA)).size + sizeB >= PROGRESS_FROM_BYTES;
   const progress = io.isTTY && large ? progressLine(io, `${sourceA} vs ${sourceB}`) : undefined;
   try {
-    const [a, b] = await readRuns(pathA, pathB, [readA, readB], { sizeB, onProgress: progress?.reading });
+    const [runA, runB] = await readRuns(pathA, pathB, [readA, readB], { sizeB, onProgress: progress?.reading });
+    // One queries table and one items table serve both runs (the same queries, the same catalogue).
+    const [a, b] = [await withSideTables(runA, setup.tables), await withSideTables(runB, setup.tables)];
     const comparison = await compareRuns(a, b, setup.metrics, setup.conventions, {
       permutations,
       bootstrap,
@@ -137,7 +157,7 @@ export async function runCompare(argv: string[], io: CliIO): Promise<number> {
   }
 }
 
-function wholeNumber(option: string, text: string | undefined, fallback: number, min: number, max: number): number {
+export function wholeNumber(option: string, text: string | undefined, fallback: number, min: number, max: number): number {
   if (text === undefined) return fallback;
   const n = text.trim() === '' ? Number.NaN : Number(text);
   if (!Number.isSafeInteger(n) || n < min || n > max) {

@@ -12,6 +12,7 @@ import { DEFAULT_CONVENTION_SETTINGS } from '../presentation/defaults';
 type ParseArgsOptionsConfig = NonNullable<ParseArgsConfig['options']>;
 import type { DumpFormat } from '../engine/model/dump';
 import { parseColumnRoles, type ReadOptions } from '../engine/readers/index';
+import type { SideTableFiles } from '../engine/tables/join';
 import { parseGain, parseMetricList, parseNoRelevant, parseTies } from '../engine/metrics/parse';
 
 /**
@@ -36,6 +37,8 @@ export function parseCommandArgs<T extends ParseArgsOptionsConfig>(argv: readonl
 /** node:util parseArgs option definitions; spread them into a command's own table. */
 export const conventionOptions = {
   judgments: { type: 'string' },
+  queries: { type: 'string' },
+  items: { type: 'string' },
   'judgments-columns': { type: 'string' },
   'missing-queries': { type: 'string' },
   scores: { type: 'string' },
@@ -65,6 +68,8 @@ export const conventionHelp = `Input:
   --missing-queries M   judged queries with no row in the run: skip (default) | zero (0 on every metric,
                         as evaluation campaigns count them)
   --scores FILE         one score per line, for sparse feature lines
+  --queries FILE        query id -> text, segments (other columns) and an optional weight column
+  --items FILE          item id -> title and attributes, shown in --query detail and JSON
   --threads N           threads for reading large text files and scoring large dumps (default: from the size)
 Metrics and conventions:
   --metrics LIST        comma-separated, first = headline; default ${DEFAULT_METRICS}
@@ -89,6 +94,8 @@ export interface ScoringSetup {
   readonly read: DumpReadRequest;
   readonly metrics: MetricSpec[];
   readonly conventions: Conventions;
+  /** Queries and items tables to join to each dump read. */
+  readonly tables: SideTableFiles;
 }
 
 /** Validates the shared options; any bad value is an InputError naming the option. */
@@ -99,6 +106,10 @@ export function scoringSetupFrom(values: ConventionValues, resolvePath: (p: stri
   if (read.judgmentsColumns !== undefined && read.judgments === undefined) {
     throw new InputError('--judgments FILE to go with it', '--judgments-columns', undefined, values['judgments-columns']);
   }
+  const tables: SideTableFiles = {
+    ...(values.queries !== undefined ? { queries: resolvePath(values.queries) } : {}),
+    ...(values.items !== undefined ? { items: resolvePath(values.items) } : {}),
+  };
   if (values.threads !== undefined) read.threads = integerIn('--threads', values.threads, 1, 64);
 
   const metrics = withOptionName('--metrics', () => parseMetricList(values.metrics ?? DEFAULT_METRICS));
@@ -118,7 +129,7 @@ export function scoringSetupFrom(values: ConventionValues, resolvePath: (p: stri
     ...(missingQueries !== undefined || read.judgments !== undefined ? { missingQueries: missingQueries ?? 'skip' } : {}),
   };
   if (conventions.missingQueries !== undefined) read.missingQueries = conventions.missingQueries;
-  return { read, metrics, conventions };
+  return { read, metrics, conventions, tables };
 }
 
 /** The per-file input options, spelled `--NAME` + `suffix` (compare's `-a` / `-b` forms use a suffix). */

@@ -7,26 +7,58 @@ import { InputError } from '../engine/errors';
 import { evaluateDump, readDump } from '../engine/index';
 import { formatReport, REPORT_FORMATS, type ReportFormat } from '../engine/report/index';
 import { collectQueryRecords } from '../engine/report/jsonRecords';
-import { conventionHelp, conventionOptions, parseCommandArgs, scoringSetupFrom } from './conventionArgs';
+import { queryFacts } from '../engine/tables/queryFacts';
+import { withSideTables } from '../engine/tables/join';
+import { conventionHelp, conventionOptions, parseCommandArgs, scoringSetupFrom, type ScoringSetup } from './conventionArgs';
+import { detailJson, detailOf, detailText, diagnosticsReport, findQuery, segmentReport, worstOrder } from './evalViews';
+import { renameInputError, spoolStdin, STDIN_NAME } from './stdin';
 import type { CliIO } from './io';
 import { progressLine } from './progress';
+import { chooseEngine, evaluateElsewhere } from './sqlEngines';
 
 export const evalUsage = `Usage: gainline eval DUMP [options]
 
 Scores every query of one prediction dump and prints the means, the conventions used, what was
 skipped or assumed, how the headline metric moves under other conventions, and the worst queries.
+DUMP - reads the dump from standard input (the format, and gzip, found from the content).
 
 Output:
   --format F            table (default) | json | csv | markdown
   --worst N             how many of the worst queries to list (default 10; table and markdown)
+  --sort KEY            order of the worst list: a metric of --metrics (lowest first, default the
+                        first), loss-share (share of the first metric's loss) or inversion-cost
+  --query Q             one query in detail instead of the report: values, predicted against ideal
+                        order with each position's contribution, inverted pairs (table or json)
+  --segment COL         the means per value of one segment column instead of the report (table or json)
+  --diagnostics         instead of the report: the score distribution per grade (do the grades separate?)
+                        and each position's share of the ideal DCG, model against ideal (table or json)
   --timings             print how long reading, scoring and writing the report took (standard error)
+Where the numbers are computed:
+  --engine E            local (default) | duckdb: DuckDB embedded computes the per-query table from a
+                        CSV, TSV or Parquet file, or a folder of Parquet parts, in place (needs the npm
+                        package @duckdb/node-api next to gainline)
+  --memory-limit SIZE   DuckDB's memory cap, e.g. 2GB; past it DuckDB spills to a temporary folder
+  --order-column NAME   ClickHouse: the column giving the rows' order (repeated rows, file-order ties)
+  A DUMP of the form clickhouse://HOST:PORT/DATABASE.TABLE is computed on that ClickHouse server (HTTP
+  interface), each shard of a Distributed table computing its own queries. The user and password come
+  from GAINLINE_CLICKHOUSE_USER and GAINLINE_CLICKHOUSE_PASSWORD; they are never printed.
+  The SQL engines compute every metric but tau, and ERR only without average ties (naming either in
+  --metrics is refused; without --metrics they compute the rest of the default list, and say so); they
+  leave out the convention sensitivity rows.
 ${conventionHelp}`;
 
 const evalOptions = {
   ...conventionOptions,
   format: { type: 'string' },
   worst: { type: 'string' },
+  sort: { type: 'string' },
+  query: { type: 'string' },
+  segment: { type: 'string' },
+  diagnostics: { type: 'boolean' },
   timings: { type: 'boolean' },
+  engine: { type: 'string' },
+  'memory-limit': { type: 'string' },
+  'order-column': { type: 'string' },
   help: { type: 'boolean', short: 'h' },
 } as const;
 
@@ -55,18 +87,63 @@ export async function runEval(argv: string[], io: CliIO): Promise<number> {
   if (values['missing-queries'] !== undefined && setup.read.judgments === undefined) {
     throw new InputError('--judgments FILE to go with it', '--missing-queries', undefined, values['missing-queries']);
   }
-  const path = resolve(io.cwd, source);
+  const views = [values.query !== undefined && '--query', values.segment !== undefined && '--segment', values.diagnostics && '--diagnostics'].filter(Boolean);
+  if (views.length > 1) throw new UsageError(`${views.join(' and ')} each replace the report; give one of them`);
+  if (views.length > 0 && format !== 'table' && format !== 'json') {
+    throw new InputError(`table or json with ${views[0]}`, '--format', undefined, format);
+  }
+  const engine = chooseEngine(source, values);
+  const local = [setup.tables.queries !== undefined && '--queries', setup.tables.items !== undefined && '--items', values.sort !== undefined && '--sort', ...views]
+    .filter(Boolean);
+  if (engine !== 'local' && local.length > 0) {
+    // The SQL engines compute the per-query table where the data is; side tables and these views need the local engine.
+    throw new InputError(`--engine local with ${local.join(' and ')}`, '--engine', undefined, engine);
+  }
+  if (engine !== 'local') {
+    const started = performance.now();
+    const result = await evaluateElsewhere(engine, source, resolve(io.cwd, source), setup, values);
+    const scored = performance.now();
+    io.out(formatReport(format, { ...result, source }, { worst }));
+    if (values.timings) {
+      const s = (ms: number) => (ms / 1000).toFixed(3);
+      io.err(`timings: ${engine} ${s(scored - started)} s, report ${s(performance.now() - scored)} s (${result.rowCount} rows)\n`);
+    }
+    return 0;
+  }
+  const spooled = source === STDIN_NAME ? await spoolStdin(io) : undefined;
+  try {
+    return await evalFile(spooled?.path ?? resolve(io.cwd, source), source, format, worst, setup, values, io);
+  } catch (e) {
+    throw spooled ? renameInputError(e, spooled) : e;
+  } finally {
+    await spooled?.remove();
+  }
+}
 
+async function evalFile(path: string, source: string, format: ReportFormat, worst: number, setup: ScoringSetup,
+  values: { sort?: string | undefined; query?: string | undefined; segment?: string | undefined; diagnostics?: boolean | undefined; timings?: boolean | undefined },
+  io: CliIO): Promise<number> {
   const size = (await stat(path)).size;
   const progress = io.isTTY && size >= PROGRESS_FROM_BYTES ? progressLine(io, source) : undefined;
   const started = performance.now();
   try {
-    const dump = await readDump(path, { ...setup.read, onProgress: progress?.reading });
+    const dump = await withSideTables(await readDump(path, { ...setup.read, onProgress: progress?.reading }), setup.tables);
     const read = performance.now();
+    if (values.query !== undefined) {
+      const detail = detailOf(dump, findQuery(dump, values.query), setup.metrics, setup.conventions);
+      io.out(format === 'json' ? detailJson(dump, detail, source) : detailText(dump, detail, source));
+      return 0;
+    }
+    if (values.diagnostics) {
+      io.out(diagnosticsReport(dump, setup.metrics, setup.conventions, format === 'json' ? 'json' : 'text', source));
+      return 0;
+    }
+    const facts = queryFacts(dump);
     // CSV and Markdown do not show the sensitivity rows; skipping them saves a third of the scoring time.
     const sensitivity = format === 'table' || format === 'json';
-    // The JSON report's records are rendered by the scoring threads, chunk by chunk (see report/jsonRecords.ts).
-    const records = format === 'json' ? collectQueryRecords(setup.metrics, dump.queries, dump.notes.judgments !== undefined) : undefined;
+    // The JSON report's records are rendered by the scoring threads, chunk by chunk (see report/jsonRecords.ts);
+    // with a queries table joined they carry query facts and are rendered with the report.
+    const records = format === 'json' && facts === undefined ? collectQueryRecords(setup.metrics, dump.queries, dump.notes.judgments !== undefined) : undefined;
     const evaluation = await evaluateDump(dump, setup.metrics, setup.conventions, {
       onProgress: progress?.scoring,
       sensitivity,
@@ -75,8 +152,14 @@ export async function runEval(argv: string[], io: CliIO): Promise<number> {
     });
     const scored = performance.now();
     progress?.done();
-    const input = { evaluation, queryNames: dump.queries, source, rowCount: dump.rowCount, ...(records ? { queryRecords: records.pieces() } : {}) };
-    io.out(formatReport(format, input, { worst }));
+    if (values.segment !== undefined) {
+      io.out(segmentReport(dump, evaluation, values.segment, format === 'json' ? 'json' : 'text'));
+      return 0;
+    }
+    const worstOrderBy = values.sort === undefined ? undefined : worstOrder(evaluation, values.sort);
+    const input = { evaluation, queryNames: dump.queries, source, rowCount: dump.rowCount, ...(facts ? { facts } : {}),
+      ...(records ? { queryRecords: records.pieces() } : {}) };
+    io.out(formatReport(format, input, { worst, ...(worstOrderBy ? { worstOrder: worstOrderBy } : {}) }));
     if (values.timings) {
       const s = (ms: number) => (ms / 1000).toFixed(3);
       io.err(`timings: read ${s(read - started)} s, score ${s(scored - read)} s, report ${s(performance.now() - scored)} s (${dump.rowCount} rows)\n`);

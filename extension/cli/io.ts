@@ -11,6 +11,8 @@ export interface CliIO {
   readonly isTTY: boolean;
   /** Directory relative paths are resolved against. */
   readonly cwd: string;
+  /** Standard input, for a dump named `-`. */
+  readonly stdin?: () => AsyncIterable<Uint8Array>;
 }
 
 export function processIO(): CliIO {
@@ -23,11 +25,12 @@ export function processIO(): CliIO {
     },
     isTTY: Boolean(process.stderr.isTTY),
     cwd: process.cwd(),
+    stdin: () => process.stdin,
   };
 }
 
 /** An in-memory CliIO for tests: everything written is kept in `stdout` / `stderr`. */
-export function memoryIO(cwd: string = process.cwd()): CliIO & { stdout: () => string; stderr: () => string } {
+export function memoryIO(cwd: string = process.cwd(), input?: Uint8Array): CliIO & { stdout: () => string; stderr: () => string } {
   const outParts: string[] = [];
   const errParts: string[] = [];
   return {
@@ -35,6 +38,7 @@ export function memoryIO(cwd: string = process.cwd()): CliIO & { stdout: () => s
     err: (text) => void errParts.push(text),
     isTTY: false,
     cwd,
+    ...(input !== undefined ? { stdin: async function* () { yield input; } } : {}),
     stdout: () => outParts.join(''),
     stderr: () => errParts.join(''),
   };

@@ -26,12 +26,14 @@ export type { RankedDump, ReadOptions } from './readers/index';
  * Cores other programs kept busy while each dump was read: the read takes a second or more on the
  * dumps that are scored on several threads, long enough to see what the machine is doing now.
  */
-const busyDuringRead = new WeakMap<RankedDump, number>();
+const busyDuringRead = new WeakMap<object, number>();
+/** Keyed by the query column: a dump joined with side tables is a new object over the same columns. */
+const readKey = (dump: RankedDump): object => dump.query;
 
 export async function readDump(path: string, options: ReadOptions = {}): Promise<RankedDump> {
   const meter = new CoreMeter();
   const dump = await readDumpFile(path, options);
-  busyDuringRead.set(dump, meter.otherBusyCores());
+  busyDuringRead.set(readKey(dump), meter.otherBusyCores());
   return dump;
 }
 
@@ -40,7 +42,7 @@ export type EvaluateDumpOptions = Omit<ParallelEvaluateOptions, 'otherBusyCores'
 
 export function evaluateDump(dump: RankedDump, metrics: readonly MetricSpec[], conventions: Conventions,
   options: EvaluateDumpOptions = {}): Promise<Evaluation> {
-  const busy = busyDuringRead.get(dump);
+  const busy = busyDuringRead.get(readKey(dump));
   return evaluateInParallel(dump, metrics, conventions, { ...options, ...(busy !== undefined ? { otherBusyCores: busy } : {}) });
 }
 

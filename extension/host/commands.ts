@@ -11,6 +11,11 @@ export interface CommandContext {
   readonly tree: RankedListsTree;
   readonly openCompare: (a: vscode.Uri, b: vscode.Uri) => void;
   readonly refreshAll: () => void;
+  /** Brings the Gainline view in front (or the last one) forward with its summary screen. */
+  readonly showSummary: () => void;
+  /** The keyboard picker over the queries of the view in front. */
+  readonly goToQuery: () => Promise<void>;
+  readonly clearRecentComparisons: () => Promise<void>;
 }
 
 type Handler = (context: CommandContext, ...args: unknown[]) => unknown;
@@ -34,6 +39,9 @@ export const COMMANDS: Readonly<Record<string, Handler>> = {
     if (!b) return;
     ctx.openCompare(a, b);
   },
+  'gainline.showSummary': (ctx) => ctx.showSummary(),
+  'gainline.goToQuery': (ctx) => ctx.goToQuery(),
+  'gainline.clearRecentComparisons': (ctx) => ctx.clearRecentComparisons(),
   'gainline.refreshRankedLists': (ctx) => {
     ctx.tree.invalidate();
     ctx.refreshAll();

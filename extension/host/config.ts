@@ -16,12 +16,23 @@ export type SettingGetter = (key: string) => unknown;
 /** Column role → column name in the dump (query, item, label, score, rank). */
 export type ColumnMapping = Readonly<Record<string, string>>;
 
+/** Files read with a dump: labels, query facts, item facts. */
+export interface SideFiles {
+  readonly judgments?: string;
+  readonly queries?: string;
+  readonly items?: string;
+}
+
+const SIDE_FILE_KEYS = ['judgments', 'queries', 'items'] as const;
+
 export interface GainlineConfig {
   /** The metric list, comma-separated as the engine parses it; the first is the headline. */
   readonly metrics: string;
   readonly conventions: Conventions;
   /** Glob on the file path → column mapping for dumps whose headers are not recognised. */
   readonly columnsByPattern: Readonly<Record<string, ColumnMapping>>;
+  /** Glob on the file path → judgments, queries and items files (paths relative to the workspace folder). */
+  readonly sideFilesByPattern: Readonly<Record<string, SideFiles>>;
   /** Judged queries a dump lacks, when its labels come from a judgments file: left out, or scored 0. */
   readonly missingQueries: 'skip' | 'zero';
   /** Which files the Ranked Lists view lists. */
@@ -60,6 +71,7 @@ const POLICIES: readonly NoRelevantPolicy[] = ['skip', 'zero', 'one'];
 /** Settings whose change means open views must be recomputed. */
 export const RECOMPUTE_KEYS = [
   'metrics', 'cutoffs', 'gain', 'ties', 'noRelevant', 'missingQueries', 'relevantFrom', 'rbpPersistence', 'maxGrade', 'columnsByPattern',
+  'sideFilesByPattern',
   'compare.permutations', 'compare.bootstrapResamples', 'compare.seed', 'compare.tieTolerance',
 ] as const;
 
@@ -112,6 +124,7 @@ export function readConfig(get: SettingGetter): GainlineConfig {
     conventions,
     missingQueries: choice('missingQueries', ['skip', 'zero'] as const, CONFIG_DEFAULTS.missingQueries),
     columnsByPattern: readColumnsByPattern(get('columnsByPattern'), reject),
+    sideFilesByPattern: readSideFilesByPattern(get('sideFilesByPattern'), reject),
     dumpGlob: stringSetting(get('dumpGlob'), CONFIG_DEFAULTS.dumpGlob, 'dumpGlob', reject),
     dumpExclude: CONFIG_DEFAULTS.dumpExclude,
     compare: {
@@ -187,6 +200,25 @@ function readColumnsByPattern(value: unknown, reject: (k: string, e: string, v: 
   return out;
 }
 
+function readSideFilesByPattern(value: unknown, reject: (k: string, e: string, v: unknown) => void): Record<string, SideFiles> {
+  if (value === undefined || value === null) return {};
+  const out: Record<string, SideFiles> = {};
+  if (typeof value !== 'object' || Array.isArray(value)) {
+    reject('sideFilesByPattern', 'an object { "glob": { "judgments": "path", "queries": "path", "items": "path" } }', value);
+    return out;
+  }
+  for (const [pattern, files] of Object.entries(value as Record<string, unknown>)) {
+    const entries = typeof files === 'object' && files !== null && !Array.isArray(files) ? Object.entries(files) : undefined;
+    const fits = entries?.every(([key, path]) => (SIDE_FILE_KEYS as readonly string[]).includes(key) && typeof path === 'string' && path.length > 0);
+    if (!entries || !fits) {
+      reject(`sideFilesByPattern["${pattern}"]`, `an object with any of ${SIDE_FILE_KEYS.join(', ')} → a file path`, files);
+      continue;
+    }
+    out[pattern] = Object.fromEntries(entries) as SideFiles;
+  }
+  return out;
+}
+
 function stringSetting(value: unknown, fallback: string, key: string, reject: (k: string, e: string, v: unknown) => void): string {
   if (value === undefined || value === null || value === '') return fallback;
   if (typeof value === 'string') return value;
@@ -199,11 +231,20 @@ function stringSetting(value: unknown, fallback: string, key: string, reject: (k
  * its workspace folder, or the bare file name for patterns without a slash.
  */
 export function columnsFor(config: GainlineConfig, relativePath: string): ColumnMapping | undefined {
+  return firstMatching(config.columnsByPattern, relativePath);
+}
+
+/** The side files for a dump, by the same pattern rule as columnsFor; paths as written in the setting. */
+export function sideFilesFor(config: GainlineConfig, relativePath: string): SideFiles | undefined {
+  return firstMatching(config.sideFilesByPattern, relativePath);
+}
+
+function firstMatching<T>(byPattern: Readonly<Record<string, T>>, relativePath: string): T | undefined {
   const normalised = relativePath.replace(/\\/g, '/');
   const base = normalised.slice(normalised.lastIndexOf('/') + 1);
-  for (const [pattern, mapping] of Object.entries(config.columnsByPattern)) {
+  for (const [pattern, value] of Object.entries(byPattern)) {
     const target = pattern.includes('/') ? normalised : base;
-    if (globToRegExp(pattern).test(target)) return mapping;
+    if (globToRegExp(pattern).test(target)) return value;
   }
   return undefined;
 }

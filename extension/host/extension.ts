@@ -5,8 +5,10 @@
 import * as vscode from 'vscode';
 import { readConfig, type GainlineConfig } from './config';
 import { registerCommands } from './commands';
-import { DumpEditorProvider, SessionRegistry, VIEW_TYPE, openComparePanel } from './panels';
+import { COMPARE_VIEW_TYPE, ComparePanelSerializer, DumpEditorProvider, SessionRegistry, VIEW_TYPE, openComparePanel } from './panels';
 import { RankedListsTree } from './rankedListsTree';
+import { RecentComparisons } from './recentComparisons';
+import { goToQuery } from './goToQuery';
 import { HeadlineStatus } from './statusBar';
 import { EngineWorker } from './workerHost';
 import type { SessionDeps } from './viewSession';
@@ -21,10 +23,14 @@ export function activate(context: vscode.ExtensionContext): void {
   const viewWorker = new EngineWorker(workerScript, onCrash);
   const treeWorker = new EngineWorker(workerScript, onCrash);
 
+  // The extension activates when the workspace holds dumps (package.json): start the views' engine
+  // thread at once, so the first click on a dump does not wait for it.
+  viewWorker.warm();
   const registry = new SessionRegistry();
   const deps: SessionDeps = { worker: viewWorker, getConfig, memory: context.workspaceState, log: (line) => output.info(line) };
   const tree = new RankedListsTree(treeWorker, getConfig, context.workspaceState);
   const status = new HeadlineStatus();
+  const recent = new RecentComparisons(context.workspaceState);
 
   context.subscriptions.push(
     output,
@@ -33,17 +39,31 @@ export function activate(context: vscode.ExtensionContext): void {
     registry,
     tree,
     status,
+    recent,
+    vscode.window.createTreeView('gainline.recentComparisons', { treeDataProvider: recent }),
     vscode.window.registerCustomEditorProvider(VIEW_TYPE, new DumpEditorProvider(context.extensionUri, deps, registry), {
       supportsMultipleEditorsPerDocument: true,
       webviewOptions: { enableFindWidget: true },
     }),
+    vscode.window.registerWebviewPanelSerializer(COMPARE_VIEW_TYPE, new ComparePanelSerializer(context.extensionUri, deps, registry)),
     // Several dumps can be selected in the view and compared as a pair.
     vscode.window.createTreeView('gainline.rankedLists', { treeDataProvider: tree, canSelectMany: true, showCollapseAll: false }),
     registry.onDidChangeActive((session) => status.show(session?.headline)),
     ...registerCommands({
       tree,
-      openCompare: (a, b) => openComparePanel(a, b, context.extensionUri, deps, registry),
+      openCompare: (a, b) => {
+        openComparePanel(a, b, context.extensionUri, deps, registry);
+        void recent.remember(a, b);
+      },
+      goToQuery: () => goToQuery(registry),
+      clearRecentComparisons: () => recent.clear(),
       refreshAll: () => registry.all().forEach((s) => s.scheduleReload(0)),
+      showSummary: () => {
+        const current = registry.current();
+        if (!current) return;
+        current.panel.reveal(undefined, false);
+        current.session.showSummary();
+      },
     }),
     vscode.workspace.onDidChangeConfiguration((event) => {
       if (!event.affectsConfiguration('gainline')) return;

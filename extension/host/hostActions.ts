@@ -2,6 +2,7 @@
  * The few webview requests the host answers itself because they touch the editor: saving or copying
  * an exported table, copying a query as JSON, and revealing a row of the dump in a text editor.
  */
+import * as os from 'node:os';
 import * as path from 'node:path';
 import * as vscode from 'vscode';
 import type { ExportResult, ExportViewParams, RevealResult } from '../protocol/messages';
@@ -15,7 +16,10 @@ export async function exportView(params: ExportViewParams, nearFile: string, con
     void vscode.window.setStatusBarMessage('Gainline: table copied', 3000);
     return { done: true, target: 'clipboard' };
   }
-  const defaultUri = vscode.Uri.file(path.join(path.dirname(nearFile), suggestedFileName(params.title, params.format)));
+  // Offer the workspace folder, not the folder of the runs: exports are reports, and a training job
+  // or a glob over the runs folder should not pick them up as dumps.
+  const folder = vscode.workspace.getWorkspaceFolder(vscode.Uri.file(nearFile))?.uri.fsPath ?? vscode.workspace.workspaceFolders?.[0]?.uri.fsPath ?? os.homedir();
+  const defaultUri = vscode.Uri.file(path.join(folder, suggestedFileName(params.title, params.format)));
   const target = await vscode.window.showSaveDialog({
     defaultUri,
     saveLabel: 'Export',
@@ -33,8 +37,10 @@ export async function copyText(text: string, what: string): Promise<{ copied: bo
 }
 
 /**
- * Opens the dump as text beside the viewer with the row's line selected. Parquet and compressed files
- * are not text: the row number is shown instead.
+ * Opens the dump as text below the viewer with the row's line selected: beside it, the viewer lost
+ * half its width and clipped the ideal list, while below it keeps its width and the lines stay
+ * readable. A text editor of the file already open in another group is reused. Parquet and
+ * compressed files are not text: the row number is shown instead.
  */
 export async function revealRow(file: string, row: number, line: number): Promise<RevealResult> {
   const name = path.basename(file);
@@ -46,8 +52,16 @@ export async function revealRow(file: string, row: number, line: number): Promis
   const document = await vscode.workspace.openTextDocument(vscode.Uri.file(file));
   const lineIndex = Math.min(line - 1, document.lineCount - 1);
   const range = document.lineAt(lineIndex).range;
+  const viewer = vscode.window.tabGroups.activeTabGroup.viewColumn;
+  const open = vscode.window.visibleTextEditors.find((e) => e.document.uri.fsPath === document.uri.fsPath && e.viewColumn !== viewer);
+  let viewColumn = open?.viewColumn;
+  if (viewColumn === undefined) {
+    // A new group under the viewer's, which becomes the active one.
+    await vscode.commands.executeCommand('workbench.action.newGroupBelow');
+    viewColumn = vscode.ViewColumn.Active;
+  }
   await vscode.window.showTextDocument(document, {
-    viewColumn: vscode.ViewColumn.Beside,
+    viewColumn,
     preserveFocus: false,
     selection: new vscode.Selection(range.start, range.end),
   });

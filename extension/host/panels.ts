@@ -13,8 +13,10 @@ export const COMPARE_VIEW_TYPE = 'gainline.compareRuns';
 
 /** Tracks every open view and which one is in front (for the status bar and commands). */
 export class SessionRegistry implements vscode.Disposable {
-  private readonly sessions = new Set<ViewSession>();
+  private readonly sessions = new Map<ViewSession, vscode.WebviewPanel>();
   private activeSession: ViewSession | undefined;
+  /** The view in front most recently, so a command run from elsewhere (status bar, palette) still finds it. */
+  private lastActive: ViewSession | undefined;
   private readonly activeEmitter = new vscode.EventEmitter<ViewSession | undefined>();
   readonly onDidChangeActive = this.activeEmitter.event;
 
@@ -23,11 +25,18 @@ export class SessionRegistry implements vscode.Disposable {
   }
 
   all(): ViewSession[] {
-    return [...this.sessions];
+    return [...this.sessions.keys()];
+  }
+
+  /** The view in front, or the one that was last; with its panel, to bring it forward. */
+  current(): { session: ViewSession; panel: vscode.WebviewPanel } | undefined {
+    const session = this.activeSession ?? this.lastActive;
+    const panel = session && this.sessions.get(session);
+    return session && panel ? { session, panel } : undefined;
   }
 
   add(session: ViewSession, panel: vscode.WebviewPanel): void {
-    this.sessions.add(session);
+    this.sessions.set(session, panel);
     const sync = (): void => {
       if (panel.active) this.setActive(session);
       else if (this.activeSession === session) this.setActive(undefined);
@@ -40,6 +49,7 @@ export class SessionRegistry implements vscode.Disposable {
       changes.dispose();
       headline.dispose();
       this.sessions.delete(session);
+      if (this.lastActive === session) this.lastActive = undefined;
       if (this.activeSession === session) this.setActive(undefined);
       session.dispose();
     });
@@ -47,13 +57,14 @@ export class SessionRegistry implements vscode.Disposable {
   }
 
   dispose(): void {
-    for (const s of this.sessions) s.dispose();
+    for (const s of this.sessions.keys()) s.dispose();
     this.sessions.clear();
     this.activeEmitter.dispose();
   }
 
   private setActive(session: ViewSession | undefined): void {
     this.activeSession = session;
+    if (session) this.lastActive = session;
     this.activeEmitter.fire(session);
   }
 }
@@ -98,13 +109,48 @@ export class DumpEditorProvider implements vscode.CustomReadonlyEditorProvider<D
 }
 
 export function openComparePanel(a: vscode.Uri, b: vscode.Uri, extensionUri: vscode.Uri, deps: SessionDeps, registry: SessionRegistry): void {
-  const title = `${path.basename(a.fsPath)} ↔ ${path.basename(b.fsPath)}`;
-  const panel = vscode.window.createWebviewPanel(COMPARE_VIEW_TYPE, title, vscode.ViewColumn.Active, {
+  const panel = vscode.window.createWebviewPanel(COMPARE_VIEW_TYPE, compareTitle(a, b), vscode.ViewColumn.Active, {
     enableFindWidget: true,
     retainContextWhenHidden: false,
   });
+  attachComparePanel(panel, a, b, extensionUri, deps, registry);
+}
+
+function compareTitle(a: vscode.Uri, b: vscode.Uri): string {
+  return `${path.basename(a.fsPath)} ↔ ${path.basename(b.fsPath)}`;
+}
+
+function attachComparePanel(panel: vscode.WebviewPanel, a: vscode.Uri, b: vscode.Uri, extensionUri: vscode.Uri, deps: SessionDeps, registry: SessionRegistry): void {
+  const title = compareTitle(a, b);
+  panel.title = title;
   configureWebview(panel.webview, extensionUri, 'compare', title);
   openSession(panel, { mode: 'compare', a, b }, deps, registry);
+}
+
+/** What the compare webview saves with `setState` (see webview/src/app.ts, SavedState.runs). */
+interface SavedCompareState {
+  readonly runs?: readonly [string, string];
+}
+
+/**
+ * Brings compare panels back after a window reload: the webview saved the two runs' paths in its
+ * state, so the panel is re-attached to a new session on the same files (tab and query come back too).
+ */
+export class ComparePanelSerializer implements vscode.WebviewPanelSerializer<SavedCompareState> {
+  constructor(
+    private readonly extensionUri: vscode.Uri,
+    private readonly deps: SessionDeps,
+    private readonly registry: SessionRegistry,
+  ) {}
+
+  async deserializeWebviewPanel(panel: vscode.WebviewPanel, state: SavedCompareState | undefined): Promise<void> {
+    const runs = state?.runs;
+    if (!Array.isArray(runs) || runs.length !== 2 || !runs.every((r) => typeof r === 'string' && r.length > 0)) {
+      panel.dispose();
+      return;
+    }
+    attachComparePanel(panel, vscode.Uri.file(runs[0]), vscode.Uri.file(runs[1]), this.extensionUri, this.deps, this.registry);
+  }
 }
 
 function openSession(panel: vscode.WebviewPanel, target: SessionTarget, deps: SessionDeps, registry: SessionRegistry): void {

@@ -8,7 +8,7 @@ import * as path from 'node:path';
 import * as vscode from 'vscode';
 import { evaluationSettings, type GainlineConfig } from './config';
 import { formatHeadline } from './exportTable';
-import { sourceFor } from './sources';
+import { isSideTableName, sourceFor } from './sources';
 import { LOAD_TIMEOUT_MS, type EngineWorker } from './workerHost';
 import { VIEW_TYPE } from './panels';
 
@@ -73,7 +73,10 @@ export class RankedListsTree implements vscode.TreeDataProvider<DumpItem>, vscod
   /** Workspace dumps in the order shown (also used by the compare quick pick). */
   async listFiles(): Promise<vscode.Uri[]> {
     const config = this.getConfig();
-    const found = await vscode.workspace.findFiles(config.dumpGlob, config.dumpExclude, MAX_FILES);
+    // Queries and items tables are read with the dumps, not scored on their own.
+    const named = new Set(Object.values(config.sideFilesByPattern).flatMap((f) => Object.values(f) as string[]).map((p) => p.replace(/\\/g, '/')));
+    const found = (await vscode.workspace.findFiles(config.dumpGlob, config.dumpExclude, MAX_FILES))
+      .filter((uri) => !isSideTableName(uri.fsPath) && !named.has(vscode.workspace.asRelativePath(uri, false).replace(/\\/g, '/')));
     return found.sort((a, b) => vscode.workspace.asRelativePath(a).localeCompare(vscode.workspace.asRelativePath(b)));
   }
 
@@ -143,7 +146,7 @@ export class RankedListsTree implements vscode.TreeDataProvider<DumpItem>, vscod
       if (bytes > MAX_BACKGROUND_BYTES) return { state: 'large', bytes };
       const remembered = this.memory.get<string>(`gainline.judgments:${uri.fsPath}`);
       const choice = await sourceFor(uri.fsPath, vscode.workspace.asRelativePath(uri, false), config, remembered);
-      if (choice.judgmentChoices) return { state: 'failed', message: 'Run file: open it once to choose its judgments file.' };
+      if (choice.judgmentChoices && choice.judgmentsRequired) return { state: 'failed', message: 'Run file: open it once to choose its judgments file.' };
       const result = await this.worker.call('headline', { source: choice.source, settings: evaluationSettings(config) }, { timeoutMs: LOAD_TIMEOUT_MS });
       return {
         state: 'done',

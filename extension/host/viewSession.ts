@@ -40,7 +40,10 @@ export interface Headline {
   readonly label: string;
   readonly value: number | null;
   readonly conventions: string;
+  /** Queries in the file (single) or in both runs (compare). */
   readonly queries: number;
+  /** Queries that entered the headline mean (single) or its paired comparison (compare). */
+  readonly counted: number;
   readonly compare: boolean;
 }
 
@@ -66,6 +69,8 @@ export class ViewSession implements vscode.Disposable {
   /** The query the user looks at, kept across reloads. */
   selection: string | null = null;
   private disposed = false;
+  /** When the view was opened: the first load's log line says where the time before computing went. */
+  private readonly openedAt = performance.now();
 
   constructor(
     private readonly webview: vscode.Webview,
@@ -89,11 +94,11 @@ export class ViewSession implements vscode.Disposable {
   get headline(): Headline | undefined {
     if (this.overview) {
       const m = this.overview.metrics[this.overview.headline]!;
-      return { label: m.label, value: m.mean, conventions: this.overview.conventions.summary, queries: this.overview.queryCount, compare: false };
+      return { label: m.label, value: m.mean, conventions: this.overview.conventions.summary, queries: this.overview.queryCount, counted: m.counted, compare: false };
     }
     if (this.compare) {
       const m = this.compare.metrics[this.compare.headline]!;
-      return { label: `Δ ${m.label}`, value: m.delta, conventions: this.compare.conventions.summary, queries: this.compare.pairedQueries, compare: true };
+      return { label: `Δ ${m.label}`, value: m.delta, conventions: this.compare.conventions.summary, queries: this.compare.pairedQueries, counted: m.wins + m.ties + m.losses, compare: true };
     }
     return undefined;
   }
@@ -111,6 +116,31 @@ export class ViewSession implements vscode.Disposable {
       this.reloadTimer = undefined;
       void this.load(this.overview || this.compare ? 'reloaded' : 'loaded', false);
     }, delayMs);
+  }
+
+  /** The queries worst first (single: headline ascending; compare: headline Δ ascending), for Go to Query. */
+  async listQueries(limit: number): Promise<{ total: number; rows: { query: string; description: string }[] }> {
+    await this.ensureLoaded();
+    const session = this.key;
+    const fixed = (v: number | null): string => (v === null ? '—' : v.toFixed(4));
+    if (this.target.mode === 'single') {
+      const page = await this.deps.worker.call('queryPage', { session, offset: 0, limit });
+      const label = this.overview?.metrics[this.overview.headline]?.label ?? '';
+      return { total: page.total, rows: page.rows.map((r) => ({ query: r.query, description: `${label} ${fixed(r.values[this.overview?.headline ?? 0] ?? null)}` })) };
+    }
+    const page = await this.deps.worker.call('comparePage', { session, offset: 0, limit });
+    const label = this.compare?.metrics[this.compare.headline]?.label ?? '';
+    return { total: page.total, rows: page.rows.map((r) => ({ query: r.query, description: `Δ ${label} ${r.delta !== null && r.delta > 0 ? '+' : ''}${fixed(r.delta)}` })) };
+  }
+
+  /** Asks the webview to show a query (Go to Query…) or its summary screen (status bar). */
+  showQuery(query: string): void {
+    this.selection = query;
+    void this.post({ kind: 'showQuery', query });
+  }
+
+  showSummary(): void {
+    void this.post({ kind: 'showSummary' });
   }
 
   dispose(): void {
@@ -178,12 +208,17 @@ export class ViewSession implements vscode.Disposable {
     };
     const work = (async () => {
       const options = { signal: abort.signal, timeoutMs: LOAD_TIMEOUT_MS, onProgress };
+      const asked = performance.now();
       if (this.target.mode === 'single') {
         const overview = await this.deps.worker.call(
           'load', { session: this.key, source: this.sources[0]!, settings: evaluationSettings(config) }, options);
         this.overview = overview;
         this.setState({ status: kind, mode: 'single', overview });
-        this.deps.log?.(`${kind === 'loaded' ? 'read' : 're-read'} ${this.label}: ${overview.file.rowCount} rows, ${overview.queryCount} queries, ${overview.loadMs} ms`);
+        const answered = performance.now();
+        // Where the time went: before the request (sources, judgments), in the worker, and the rest
+        // (thread start on first use, messages), so a slow first screen can be told apart.
+        const split = firstTime ? ` (${Math.round(asked - this.openedAt)} ms before the request, ${overview.loadMs} ms reading and scoring, ${Math.max(0, Math.round(answered - asked - overview.loadMs))} ms thread start and messages)` : '';
+        this.deps.log?.(`${kind === 'loaded' ? 'read' : 're-read'} ${this.label}: ${overview.file.rowCount} rows, ${overview.queryCount} queries, ${overview.loadMs} ms${split}`);
       } else {
         const compare = await this.deps.worker.call(
           'loadCompare', { session: this.key, a: this.sources[0]!, b: this.sources[1]!, settings: compareSettings(config) }, options);
@@ -246,6 +281,11 @@ export class ViewSession implements vscode.Disposable {
         continue;
       }
       const judgments = await pickJudgments(uri, choice.judgmentChoices);
+      if (!judgments && !choice.judgmentsRequired) {
+        // Not a run file: with none of the judgments files picked, the dump's own labels are used.
+        out.push(choice.source);
+        continue;
+      }
       if (!judgments) {
         throw new Error(`${path.basename(uri.fsPath)} is a run file: it needs a judgments (qrels) file with the grades, and none was chosen.`);
       }

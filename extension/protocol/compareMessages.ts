@@ -139,7 +139,16 @@ export interface CompareSegmentsParams {
 
 export interface CompareSegmentRow extends PairedOutcome {
   readonly value: string;
+  /** Queries of the segment in both runs. */
   readonly queries: number;
+  /** Of those, left out of the metric's comparison (undefined in A or B: nothing relevant, skipped). */
+  readonly skipped: number;
+  /** 95% percentile-bootstrap interval of the segment's mean Δ, as in the main table. */
+  readonly intervalLow: MaybeNumber;
+  readonly intervalHigh: MaybeNumber;
+  /** Two-sided p of the paired t-test and of the randomization test on the segment's differences. */
+  readonly tTestP: MaybeNumber;
+  readonly randomizationP: MaybeNumber;
 }
 
 export interface CompareSegmentTable {

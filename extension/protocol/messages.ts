@@ -44,6 +44,8 @@ export interface SensitivityView {
   readonly counted: number;
   /** mean − headline mean under the current conventions. */
   readonly delta: MaybeNumber;
+  /** This row's conventions are the current ones (the engine lists them once per dimension). */
+  readonly current: boolean;
   /** Why there is no mean (the convention cannot score this data); absent when there is one. */
   readonly unavailable?: string;
 }
@@ -87,6 +89,44 @@ export interface OverviewModel {
   readonly judgments?: JudgmentsView;
   /** Wall-clock time of read + evaluate. */
   readonly loadMs: number;
+  /** True when a queries table gives the queries a text (the worst list shows it). */
+  readonly queryText?: boolean;
+  /** Where query weights came from, when the means are weighted ("column 'weight' of queries.tsv"). */
+  readonly weighting?: string;
+  /** Score distribution per grade and DCG by position against the ideal (evaluate/diagnostics.ts). */
+  readonly diagnostics?: ScoreDiagnosticsView;
+}
+
+/** The score distribution of one grade (null grade = unjudged rows); NaN statistics become null. */
+export interface GradeScoresView {
+  readonly grade: number | null;
+  readonly count: number;
+  readonly missing: number;
+  readonly q1: MaybeNumber;
+  readonly median: MaybeNumber;
+  readonly q3: MaybeNumber;
+  readonly mean: MaybeNumber;
+  readonly bins: readonly number[];
+}
+
+export interface ScoresByGradeView {
+  /** Shared histogram edges (bins + 1). */
+  readonly edges: readonly number[];
+  readonly grades: readonly GradeScoresView[];
+}
+
+/** Mean share of each query's ideal DCG@k earned per position, model against ideal; the last entry sums later positions. */
+export interface DcgByPositionView {
+  readonly k: number | null;
+  readonly depth: number;
+  readonly queries: number;
+  readonly predicted: readonly MaybeNumber[];
+  readonly ideal: readonly MaybeNumber[];
+}
+
+export interface ScoreDiagnosticsView {
+  readonly scoresByGrade: ScoresByGradeView;
+  readonly dcgByPosition: DcgByPositionView;
 }
 
 export interface QueryPageParams {
@@ -111,6 +151,8 @@ export interface QueryRow {
   readonly inversionCost: number;
   readonly lossShare: MaybeNumber;
   readonly skipped: boolean;
+  /** Query text from the queries table, when one is joined. */
+  readonly text?: string;
 }
 
 export interface QueryPage {
@@ -147,6 +189,8 @@ export interface PositionView {
   readonly tieGroupSize: number;
   /** True when the position is within the headline cut-off. */
   readonly withinCutoff: boolean;
+  /** Title from the items table, when one is joined ('' for an item it does not list). */
+  readonly title?: string;
 }
 
 export interface IdealView {
@@ -157,6 +201,8 @@ export interface IdealView {
   readonly gain: number;
   /** Where the model put it (0 when the run never retrieved it). */
   readonly predictedPosition: number;
+  /** Title from the items table, when one is joined. */
+  readonly title?: string;
   /** False for a judged item the run never retrieved: it counts in the ideal ranking only (row -1). */
   readonly retrieved: boolean;
 }
@@ -191,11 +237,17 @@ export interface QueryDetailView {
   readonly values: readonly MaybeNumber[];
   /** Segment values of this query (first row's value per segment column). */
   readonly segments: Readonly<Record<string, string>>;
+  /** Query text from the queries table, when one is joined. */
+  readonly text?: string;
+  /** This query's scores per grade. */
+  readonly scoresByGrade?: ScoresByGradeView;
 }
 
 export interface SegmentRow {
   readonly value: string;
   readonly queries: number;
+  /** Of those, left out of the headline mean (nothing relevant, under the "skip" convention). */
+  readonly skipped: number;
   /** Means aligned with `OverviewModel.metrics`. */
   readonly means: readonly MaybeNumber[];
   /** Headline mean of this segment − overall headline mean. */
@@ -303,6 +355,8 @@ export type HostToView =
   | { readonly kind: 'state'; readonly state: ViewState }
   /** Ask the webview to show a query (from a command or the tree). */
   | { readonly kind: 'showQuery'; readonly query: string }
+  /** Bring the summary screen forward (Overview, or A vs B when comparing): the status bar's click. */
+  | { readonly kind: 'showSummary' }
   | ResponseEnvelope;
 
 export type ViewToHost =

@@ -18,6 +18,17 @@ export interface DumpSource {
   readonly judgments?: string;
   /** Separate scores file, when labels and scores come apart. */
   readonly scores?: string;
+  /** Queries table (query id → text, segments, weight). */
+  readonly queries?: string;
+  /** Items table (item id → title, attributes). */
+  readonly items?: string;
+  /** The queries / items tables were found by the naming rule (used only when they share ids with the dump). */
+  readonly tablesFound?: boolean;
+  /**
+   * The judgments file was found by the naming rule for a dump with labels of its own (not a run file):
+   * it is used only when it shares a query with the dump.
+   */
+  readonly judgmentsFound?: boolean;
   /** With a judgments file: judged queries the dump lacks are left out (`skip`) or score 0 (`zero`). */
   readonly missingQueries?: 'skip' | 'zero';
 }

@@ -3,7 +3,7 @@
  * filter by text, outcome and segment, page) and the per-segment deltas.
  */
 import type { Comparison } from '../engine/compare/compare';
-import { segmentDeltas } from '../engine/compare/segments';
+import { segmentDeltas, segmentSignificance } from '../engine/compare/segments';
 import type { RankedDump } from '../engine/model/dump';
 import { groupByQuery } from '../engine/model/groups';
 import type {
@@ -98,23 +98,30 @@ export class CompareTable {
     return this.comparison.perQuery.queryA.indexOf(id);
   }
 
-  segments(column: string, metric: string | undefined): CompareSegmentTable {
+  async segments(column: string, metric: string | undefined): Promise<CompareSegmentTable> {
     const m = this.metricIndex(metric);
     const deltas = segmentDeltas(this.comparison, this.dumpA, column);
+    const tests = new Map((await segmentSignificance(this.comparison, this.dumpA, column, m)).map((t) => [t.value, t]));
     return {
       column,
       metric: this.comparison.metrics[m]!.key,
       rows: deltas.rows.map((row) => {
         const d = row.metrics[m]!;
+        const t = tests.get(row.value);
         return {
           value: row.value,
           queries: row.queries,
+          skipped: row.queries - d.paired,
           meanA: toMaybe(d.meanA),
           meanB: toMaybe(d.meanB),
           delta: toMaybe(d.meanDelta),
           wins: d.wins,
           ties: d.ties,
           losses: d.losses,
+          intervalLow: toMaybe(t?.interval.low ?? NaN),
+          intervalHigh: toMaybe(t?.interval.high ?? NaN),
+          tTestP: toMaybe(t?.tTest.p ?? NaN),
+          randomizationP: toMaybe(t?.randomization.p ?? NaN),
         };
       }),
     };

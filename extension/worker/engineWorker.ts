@@ -12,18 +12,21 @@ import { CancelledError, InputError } from '../engine/errors';
 import { queryMovement } from '../engine/compare/movement';
 import { queryDetail, type GradeRange } from '../engine/evaluate/detail';
 import { gradeRange } from '../engine/evaluate/evaluate';
-import { compareRuns, evaluateDump, readDump, type ReadOptions } from '../engine/index';
+import { compareRuns, evaluateDump } from '../engine/index';
 import { headlineCutoff } from '../engine/evaluate/scorer';
 import type { Evaluation } from '../engine/evaluate/types';
 import { parseMetricList } from '../engine/metrics/parse';
 import type { RankedDump } from '../engine/model/dump';
 import { groupByQuery, type QueryGroups } from '../engine/model/groups';
+import { readSource } from './readSource';
 import { conventionsAsJson } from '../engine/report/reportInput';
 import type { Comparison } from '../engine/compare/compare';
 import { RequestServer, type HandlerContext, type RequestHandlers } from '../protocol/request';
 import type { DumpSource, ProgressEvent, WorkerRequests } from '../protocol/worker';
 import { CompareTable, compareOverviewModel } from './compareTable';
 import { QueryTable } from './queryTable';
+import { scoresByGrade } from '../engine/evaluate/diagnostics';
+import { overviewDiagnostics, scoresByGradeView } from './diagnosticsView';
 import { detailView, metricLabel, movementView, overviewModel, segmentTable } from './viewModels';
 import { isCancelled } from './cancelFlags';
 
@@ -68,18 +71,12 @@ function progressReporter(ctx: HandlerContext, from: number, to: number, message
 }
 
 async function read(source: DumpSource, ctx: HandlerContext, from: number, to: number, label = 'Reading'): Promise<RankedDump> {
-  const options: ReadOptions = {
+  return readSource(source, {
     // On two cores or fewer, extra parse threads would starve the extension host and the UI.
     ...(availableParallelism() <= 2 ? { threads: 1 } : {}),
     signal: ctx.signal,
     onProgress: progressReporter(ctx, from, to, `${label} ${source.path.split(/[\\/]/).pop()}…`),
-    ...(source.format ? { format: source.format as ReadOptions['format'] } : {}),
-    ...(source.columns ? { columns: source.columns } : {}),
-    ...(source.judgments ? { judgments: source.judgments } : {}),
-    ...(source.scores ? { scores: source.scores } : {}),
-    ...(source.missingQueries ? { missingQueries: source.missingQueries } : {}),
-  };
-  return readDump(source.path, options);
+  });
 }
 
 function loaded(dump: RankedDump, evaluation: Evaluation, groups: QueryGroups): Loaded {
@@ -139,7 +136,12 @@ const handlers: RequestHandlers<WorkerRequests> = {
     const evaluation = await evaluateDump(dump, metrics, settings.conventions, { groups, signal: ctx.signal, onProgress: progressReporter(ctx, 0.75, 1, 'Scoring queries…') });
     const entry = loaded(dump, evaluation, groups);
     sessions.set(key, { kind: 'single', ...entry });
-    return overviewModel(dump, evaluation, performance.now() - started);
+    return {
+      ...overviewModel(dump, evaluation, performance.now() - started),
+      ...(evaluation.weighting ? { weighting: evaluation.weighting.source } : {}),
+      ...(dump.joined?.queryText ? { queryText: true } : {}),
+      diagnostics: overviewDiagnostics(dump, evaluation, groups),
+    };
   },
 
   async loadCompare({ session: key, a: sourceA, b: sourceB, settings }, ctx) {
@@ -186,7 +188,8 @@ const handlers: RequestHandlers<WorkerRequests> = {
   queryDetail({ session: key, query, maxPairs, run }) {
     const l = runOf(key, run);
     const { id, detail } = detailOf(l, query, maxPairs);
-    return detailView(l.dump, l.evaluation, detail, id, l.table);
+    const rows = detail.positions.map((p) => p.row);
+    return { ...detailView(l.dump, l.evaluation, detail, id, l.table), scoresByGrade: scoresByGradeView(scoresByGrade(l.dump, rows, 10)) };
   },
 
   queryJson({ session: key, query, run }) {

@@ -5,6 +5,7 @@
 import type { RankedDump } from '../engine/model/dump';
 import type { QueryGroups } from '../engine/model/groups';
 import type { Evaluation } from '../engine/evaluate/types';
+import { lossShares } from '../engine/evaluate/lossShare';
 import type { MaybeNumber, QueryPage, QueryPageParams, QueryRow, SegmentFilter, SortSpec } from '../protocol/messages';
 
 export interface QueryTableSource {
@@ -19,18 +20,6 @@ export function toMaybe(value: number): MaybeNumber {
   return Number.isFinite(value) ? value : null;
 }
 
-/** (1 − v_q) / Σ(1 − v) over queries with a value, for the headline metric (NaN when skipped or Σ = 0). */
-export function lossShares(headlineValues: Float64Array): Float64Array {
-  let total = 0;
-  for (const v of headlineValues) if (Number.isFinite(v)) total += 1 - v;
-  const out = new Float64Array(headlineValues.length);
-  for (let q = 0; q < out.length; q++) {
-    const v = headlineValues[q]!;
-    out[q] = Number.isFinite(v) && total > 0 ? (1 - v) / total : NaN;
-  }
-  return out;
-}
-
 /** Per query, the interned value of a segment column on the query's first row. */
 export function segmentOfQuery(source: QueryTableSource, column: string): { values: (id: number) => string; ofQuery: Uint32Array } {
   const segment = source.dump.segments.find((s) => s.name === column);
@@ -42,6 +31,8 @@ export function segmentOfQuery(source: QueryTableSource, column: string): { valu
   }
   return { values: (id) => segment.values.get(id), ofQuery };
 }
+
+export { lossShares };
 
 export class QueryTable {
   private readonly shares: Float64Array;
@@ -78,6 +69,7 @@ export class QueryTable {
       inversionCost: pq.inversionCost[q]!,
       lossShare: toMaybe(this.shares[q]!),
       skipped: pq.skipped[q] === 1,
+      ...(dump.joined?.queryText ? { text: dump.joined.queryText[q] ?? '' } : {}),
     };
   }
 
@@ -117,11 +109,13 @@ export class QueryTable {
       wanted = this.source.dump.segments.find((c) => c.name === segment.column)!.values.find(segment.value);
       if (wanted < 0) return new Uint32Array(0);
     }
+    const text = dump.joined?.queryText;
     const keep = new Uint32Array(evaluation.queryCount);
     let n = 0;
     for (let q = 0; q < evaluation.queryCount; q++) {
       if (segmentIds && segmentIds[q] !== wanted) continue;
-      if (needle && !dump.queries.get(q).toLowerCase().includes(needle)) continue;
+      // The filter matches the query id and, with a queries table, its text.
+      if (needle && !dump.queries.get(q).toLowerCase().includes(needle) && !(text?.[q]?.toLowerCase().includes(needle) ?? false)) continue;
       keep[n++] = q;
     }
     return keep.slice(0, n);

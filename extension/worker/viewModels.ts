@@ -104,6 +104,8 @@ export function overviewModel(dump: RankedDump, evaluation: Evaluation, loadMs: 
       mean: toMaybe(row.mean),
       counted: row.counted,
       delta: toMaybe(row.mean - headlineMean),
+      // The sensitivity pass reuses the configured gain object for its "as configured" rows.
+      current: row.conventions.gain === evaluation.conventions.gain && row.conventions.ties === evaluation.conventions.ties && row.conventions.noRelevant === evaluation.conventions.noRelevant,
       ...(row.unavailable !== undefined ? { unavailable: row.unavailable } : {}),
     })),
     degenerate: { ...evaluation.degenerate },
@@ -121,6 +123,9 @@ export function overviewModel(dump: RankedDump, evaluation: Evaluation, loadMs: 
  */
 function idealViews(dump: RankedDump, detail: QueryDetail, byRow: ReadonlyMap<number, QueryDetail['positions'][number]>,
   label: (v: number) => ReturnType<typeof toMaybe>): IdealView[] {
+  // Titles by item id; the items pool also holds judged items with no row, so they get theirs too.
+  const titles = dump.joined?.itemTitle;
+  const titleOf = (item: number) => (titles ? { title: item >= 0 ? titles[item] ?? '' : '' } : {});
   const views: IdealView[] = detail.idealOrder.map((row) => {
     const p = byRow.get(row);
     return {
@@ -131,10 +136,12 @@ function idealViews(dump: RankedDump, detail: QueryDetail, byRow: ReadonlyMap<nu
       gain: p?.gain ?? 0,
       predictedPosition: p?.position ?? 0,
       retrieved: true,
+      ...titleOf(dump.item[row]!),
     };
   });
   for (const missing of detail.notRetrieved) {
-    views.push({ position: missing.idealPosition, row: -1, item: missing.item, label: label(missing.label), gain: missing.gain, predictedPosition: 0, retrieved: false });
+    views.push({ position: missing.idealPosition, row: -1, item: missing.item, label: label(missing.label), gain: missing.gain, predictedPosition: 0, retrieved: false,
+      ...titleOf(dump.items.find(missing.item)) });
   }
   return views.sort((a, b) => a.position - b.position);
 }
@@ -144,7 +151,11 @@ export function detailView(dump: RankedDump, evaluation: Evaluation, detail: Que
   const byRow = new Map(detail.positions.map((p) => [p.row, p]));
   const segments: Record<string, string> = {};
   for (const s of dump.segments) segments[s.name] = table.segment(s.name).values(table.segment(s.name).ofQuery[queryId]!);
+  const titles = dump.joined?.itemTitle;
+  const titleOf = (row: number) => (titles ? { title: titles[dump.item[row]!] ?? '' } : {});
+  const text = dump.joined?.queryText?.[queryId];
   return {
+    ...(text !== undefined ? { text } : {}),
     query: detail.query,
     k: detail.k,
     headlineKey: evaluation.metrics[evaluation.headline]!.key,
@@ -163,6 +174,7 @@ export function detailView(dump: RankedDump, evaluation: Evaluation, detail: Que
       idealPosition: p.idealPosition,
       tieGroupSize: p.tieGroupSize,
       withinCutoff: p.position <= detail.k,
+      ...titleOf(p.row),
     })),
     ideal: idealViews(dump, detail, byRow, label),
     dcg: detail.dcg,
@@ -201,11 +213,19 @@ export function segmentTable(dump: RankedDump, evaluation: Evaluation, table: Qu
     shareByValue.set(value, (shareByValue.get(value) ?? 0) + share);
   }
   const anyShare = shareByValue.size > 0;
+  const skippedByValue = new Map<string, number>();
+  const headlineValues = evaluation.perQuery.values[evaluation.headline]!;
+  for (let q = 0; q < ofQuery.length; q++) {
+    if (Number.isFinite(headlineValues[q]!)) continue;
+    const value = values(ofQuery[q]!);
+    skippedByValue.set(value, (skippedByValue.get(value) ?? 0) + 1);
+  }
   return {
     column,
     rows: segmentBreakdown(dump, evaluation, index).map((row) => ({
       value: row.value,
       queries: row.queries,
+      skipped: skippedByValue.get(row.value) ?? 0,
       means: row.means.map(toMaybe),
       headlineDelta: toMaybe(row.means[evaluation.headline]! - overall),
       lossShare: anyShare ? (shareByValue.get(row.value) ?? 0) : null,

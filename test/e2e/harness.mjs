@@ -4,16 +4,18 @@
 // into webview frames (outer webview iframe → inner `active-frame`).
 import { join } from 'node:path';
 import { chromium } from 'playwright-core';
-import { E2E_DIR } from '../support/code-server-install.mjs';
+import { RUN_DIR } from '../support/code-server-install.mjs';
 
 const CHROMIUM = process.env.GAINLINE_E2E_CHROMIUM ?? '/usr/bin/chromium';
 
 export async function launchBrowser() {
   // Chromium writes crash-report and dconf folders under $HOME; keep them in the clone.
-  const home = join(E2E_DIR, 'browser-home');
+  const home = join(RUN_DIR, 'browser-home');
   return chromium.launch({
     executablePath: CHROMIUM,
     headless: true,
+    // Headless Chromium hides scrollbars by default; a user sees them, and so should the checks and pictures.
+    ignoreDefaultArgs: ['--hide-scrollbars'],
     env: { ...process.env, HOME: home, XDG_CONFIG_HOME: join(home, '.config'), XDG_CACHE_HOME: join(home, '.cache') },
     args: ['--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update',
       '--disable-sync', '--no-first-run', '--disable-dev-shm-usage',
@@ -43,8 +45,22 @@ export async function waitUntil(check, { timeoutMs = 30_000, intervalMs = 200, w
 }
 
 /** Opens the workbench and waits until the explorer shows the folder's files. */
+/**
+ * "Developer: Reload Window" (which saves the open editors first, as a user's reload does), then
+ * waits for the workbench with the Explorer in front.
+ */
+export async function reloadWindow(page) {
+  const navigated = page.waitForEvent('framenavigated', { predicate: (f) => f === page.mainFrame(), timeout: 60_000 });
+  await runCommand(page, 'Developer: Reload Window');
+  await navigated;
+  await page.locator('.monaco-workbench').waitFor({ state: 'visible', timeout: 90_000 });
+  await runCommand(page, 'View: Show Explorer');
+  await openWorkbench(page);
+}
+
 export async function openWorkbench(page, url) {
-  await page.goto(url, { waitUntil: 'domcontentloaded' });
+  // Without a URL the page is already loading (a reload): only wait for the workbench.
+  if (url) await page.goto(url, { waitUntil: 'domcontentloaded' });
   await page.locator('.monaco-workbench').waitFor({ state: 'visible', timeout: 90_000 });
   await page.locator('.explorer-folders-view .monaco-list-row').first().waitFor({ state: 'visible', timeout: 90_000 });
   // Give the extension host a moment to come up before commands are issued.

@@ -9,7 +9,7 @@
 import { spawnSync } from 'node:child_process';
 import { copyFileSync, mkdirSync, readFileSync, rmSync } from 'node:fs';
 import { join } from 'node:path';
-import { ensureCodeServer, ensureDebianPackages, E2E_DIR, isInstalled, REPO_ROOT, SYSTEM_PACKAGES } from '../support/code-server-install.mjs';
+import { ensureCodeServer, ensureDebianPackages, RUN_DIR, isInstalled, REPO_ROOT, SYSTEM_PACKAGES } from '../support/code-server-install.mjs';
 import { installVsix, prepareProfile, startCodeServer } from '../support/code-server-launch.mjs';
 import { packageVsix } from '../support/package-vsix.mjs';
 import { launchBrowser, openWorkbench } from './harness.mjs';
@@ -18,9 +18,14 @@ import { openWithShowsHeadline, parquetFromExplorerMenu, reopenWithAndFilter, re
 import { htmlIdsStayText, malformedShowsError } from './scenarios/safety.mjs';
 import { compareWinsLosses } from './scenarios/compare.mjs';
 import { themesReadable } from './scenarios/themes.mjs';
+import { gridsReachEveryColumn, revealKeepsViewerUsable } from './scenarios/layout.mjs';
+import { idealOrderAndStrip, smallThings, statusBarReadable } from './scenarios/firstHour.mjs';
+import { compareFirstHour, compareSurvivesReload, gainlineContainer } from './scenarios/firstHourCompare.mjs';
+import { firstScreenTimes } from './scenarios/firstScreen.mjs';
 
 const SCENARIOS = [openWithShowsHeadline, reopenWithAndFilter, parquetFromExplorerMenu, worstQueryDetail, rewriteKeepsSelection, compareWinsLosses,
-  htmlIdsStayText, malformedShowsError, themesReadable];
+  htmlIdsStayText, malformedShowsError, themesReadable, gridsReachEveryColumn, revealKeepsViewerUsable,
+  idealOrderAndStrip, statusBarReadable, smallThings, compareFirstHour, compareSurvivesReload, gainlineContainer, firstScreenTimes];
 const SCENARIO_TIMEOUT_MS = 240_000;
 
 const args = process.argv.slice(2);
@@ -72,14 +77,14 @@ async function main() {
       log(`built and packaged ${relative({ root: REPO_ROOT }, vsix)} (${seconds(Date.now() - t1)})`);
     }
     const files = makeWorkspace();
-    const profile = prepareProfile(join(E2E_DIR, 'profile-e2e'));
+    const profile = prepareProfile(join(RUN_DIR, 'profile-e2e'));
     installVsix(profile, vsix);
     server = await startCodeServer({ folder: files.root, profile, logFile: join(artifacts, 'code-server.log') });
     interruptCleanup = async () => { await browser?.close().catch(() => {}); await server?.stop().catch(() => {}); };
     log(`code-server on ${server.baseUrl}`);
     browser = await launchBrowser();
-    // A common laptop size: grids scroll sideways rather than cut numbers, so it need not be wider.
-    const page = await browser.newPage({ viewport: { width: 1280, height: 800 } });
+    // The size the README pictures are taken at; grids scroll sideways rather than cut numbers.
+    const page = await browser.newPage({ viewport: { width: 1600, height: 1000 } });
     page.setDefaultTimeout(30_000);
     const dialogs = [];
     page.on('dialog', (dialog) => {

@@ -4,7 +4,7 @@
 // malformed dump. All queries are in the invented hardware-store scenario.
 import { copyFileSync, cpSync, mkdirSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { E2E_DIR, REPO_ROOT } from '../support/code-server-install.mjs';
+import { RUN_DIR, REPO_ROOT } from '../support/code-server-install.mjs';
 
 export const HOSTILE_ITEM = '<img src=x onerror=alert(1)>';
 export const HOSTILE_QUERY = '<b>claw hammer</b> <script>alert(2)</script>';
@@ -38,7 +38,7 @@ function malformedDump() {
 
 /** Creates .e2e/workspace afresh and returns the paths the scenarios use. */
 export function makeWorkspace() {
-  const root = join(E2E_DIR, 'workspace');
+  const root = join(RUN_DIR, 'workspace');
   rmSync(root, { recursive: true, force: true });
   cpSync(join(REPO_ROOT, 'demo'), root, { recursive: true });
   const e2e = join(root, 'e2e');
@@ -51,10 +51,13 @@ export function makeWorkspace() {
     live: join(e2e, 'live-run.csv'),
     hostile: join(e2e, 'hostile-ids.csv'),
     malformed: join(e2e, 'broken-scores.csv'),
+    unnamedColumns: join(e2e, 'export-unnamed-columns.csv'),
   };
   copyFileSync(files.runA, files.live);
   writeFileSync(files.hostile, hostileDump());
   writeFileSync(files.malformed, malformedDump());
+  // Headers no role name matches: the error must say how to name them.
+  writeFileSync(files.unnamedColumns, 'search_id,sku,stars,model_output\ncordless drill 18v,SKU-DRL-018,2,0.81\n');
   return files;
 }
 

@@ -7,7 +7,7 @@ import { describe, expect, it } from 'vitest';
 import { compareRuns } from '../../extension/engine/compare/compare';
 import { matchRuns } from '../../extension/engine/compare/match';
 import { queryMovement } from '../../extension/engine/compare/movement';
-import { segmentDeltas } from '../../extension/engine/compare/segments';
+import { segmentDeltas, segmentSignificance } from '../../extension/engine/compare/segments';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
 import { parseMetricList } from '../../extension/engine/metrics/parse';
 import { CancelledError } from '../../extension/engine/errors';
@@ -169,6 +169,46 @@ describe('segmentDeltas', () => {
     expect(desktop.metrics[0]!.meanDelta).toBeCloseTo(0.5, 12);
     expect(s.mixedQueries).toBe(0);
     expect(() => segmentDeltas(c, runA, 'locale')).toThrow(/segment column/);
+  });
+});
+
+describe('segmentSignificance', () => {
+  it('on a column with one value, gives exactly the whole comparison\'s interval and tests (same data, seed and resamples)', async () => {
+    // Invariant: a segment holding every paired query is the whole comparison, so its interval and
+    // p-values must be bit-identical to the metric row's.
+    const allOneValue = buildDump(
+      [
+        ...withSegment([...queryRows('cordless drill 18v', [2, 0, 1], [0.9, 0.8, 0.1])], 'web'),
+        ...withSegment(queryRows('wood screws 4x40', [1, 1, 0], [0.5, 0.4, 0.9]), 'web'),
+        ...withSegment(queryRows('hex key set', [1, 0], [0.9, 0.5]), 'web'),
+        ...withSegment(queryRows('paint roller 9in', [0, 0], [0.3, 0.2]), 'web'),
+      ],
+      ['device'],
+    );
+    const c = await compareRuns(allOneValue, runB, metrics, DEFAULT_CONVENTIONS, { bootstrap: 200, permutations: 500 });
+    for (let m = 0; m < metrics.length; m++) {
+      const [only] = await segmentSignificance(c, allOneValue, 'device', m);
+      const row = c.byMetric[m]!;
+      expect(only!.value).toBe('web');
+      expect(only!.paired).toBe(row.paired);
+      expect(only!.interval).toEqual(row.interval);
+      expect(only!.tTest.p).toBe(row.tTest.p);
+      expect(only!.randomization.p).toBe(row.randomization.p);
+    }
+  });
+
+  it('tests each segment on its own paired differences (hand case: mobile pairs drill and hex)', async () => {
+    const c = await compareRuns(runA, runB, metrics, DEFAULT_CONVENTIONS, { bootstrap: 100, permutations: 1000 });
+    const tests = await segmentSignificance(c, runA, 'device', 0);
+    const mobile = tests.find((t) => t.value === 'mobile')!;
+    expect(mobile.paired).toBe(2);
+    // Two differences, drill 1 + 3/log2(3) − 3.5 ≈ −0.607 and hex +6.5: the four sign patterns sum to
+    // ±5.89 and ±7.11, all at least as far from 0 as the observed 5.89, so the exact test gives p = 1.
+    expect(mobile.randomization.method).toBe('exact');
+    expect(mobile.randomization.p).toBe(1);
+    expect(mobile.tTest.dof).toBe(1);
+    const desktop = tests.find((t) => t.value === 'desktop')!;
+    expect(desktop.paired).toBe(1);
   });
 });
 

@@ -170,6 +170,13 @@ describe('query detail', () => {
       const idealGrades = d.idealOrder.map((r) => dump.label[r]!);
       for (let i = 1; i < idealGrades.length; i++) expect(idealGrades[i]).toBeLessThanOrEqual(idealGrades[i - 1]!);
       for (const p of d.positions) expect(d.idealOrder[p.idealPosition - 1]).toBe(p.row);
+      // Within a grade the ideal order keeps the model's order, so equal-grade items never cross:
+      // for two items of the same grade, the one the model ranked first is first in the ideal order too.
+      for (const p of d.positions) {
+        for (const q of d.positions) {
+          if (p.position < q.position && dump.label[p.row] === dump.label[q.row]) expect(p.idealPosition).toBeLessThan(q.idealPosition);
+        }
+      }
       // Pairs: full count, sorted by recovery, summing to the evaluation's inversion cost.
       expect(d.invertedPairsTotal).toBe(e.perQuery.inversions[0]);
       expect(d.invertedPairs).toHaveLength(d.invertedPairsTotal);

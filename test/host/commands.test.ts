@@ -22,6 +22,9 @@ function setup() {
     tree: tree as never,
     openCompare: (a, b) => void compared.push([a.fsPath, b.fsPath]),
     refreshAll: () => void refreshed++,
+    showSummary: () => undefined,
+    goToQuery: async () => undefined,
+    clearRecentComparisons: async () => undefined,
   });
   const run = (id: string, ...args: unknown[]) => shared.state.commands.get(id)!(...args);
   return { compared, run, counts: () => ({ refreshed, invalidated }) };

@@ -130,7 +130,8 @@ export function createFakeVscode() {
     ViewColumn: { Beside: -2, Active: -1 },
     window: {
       activeTextEditor: undefined,
-      tabGroups: { get activeTabGroup() { return { activeTab: state.activeTab }; } },
+      tabGroups: { get activeTabGroup() { return { activeTab: state.activeTab, viewColumn: 1 }; } },
+      visibleTextEditors: [] as unknown[],
       async withProgress(options: { location: number }, task: (progress: unknown, token: unknown) => Promise<unknown>) {
         state.progressShown.push(options.location);
         const cancel = new EventEmitter<void>();
@@ -164,6 +165,7 @@ export function createFakeVscode() {
       async openTextDocument(uri: Uri) {
         return {
           file: uri.fsPath,
+          uri,
           lineCount: 1_000_000,
           lineAt: (i: number) => ({ range: { start: { line: i, character: 0 }, end: { line: i, character: 99 } } }),
         };

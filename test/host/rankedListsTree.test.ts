@@ -70,16 +70,26 @@ describe('RankedListsTree', () => {
   });
 
   it('shows why a file could not be read', async () => {
-    const file = join(dir, 'queries.tsv');
+    const file = join(dir, 'search-log.tsv');
     writeFileSync(file, 'id\tquery\n');
     shared.state.workspaceFiles = [Uri.file(file)];
     const call = vi.fn(async () => {
-      throw new Error('queries.tsv: expected a column for the item id');
+      throw new Error('search-log.tsv: expected a column for the item id');
     });
     const tree = new RankedListsTree({ call } as never, () => readConfig(() => undefined), memento() as never);
     const [item] = await settled(tree);
     expect(item!.description).toContain('not readable');
     expect(item!.tooltip).toContain('expected a column for the item id');
+    tree.dispose();
+  });
+
+  it('leaves queries and items tables out: they are read with the dumps, not on their own', async () => {
+    const dump = join(dir, 'run.csv');
+    writeFileSync(dump, 'query,item,label,score\nq1,SKU-1,1,0.5\n');
+    shared.state.workspaceFiles = [Uri.file(join(dir, 'queries.tsv')), Uri.file(dump), Uri.file(join(dir, 'items.parquet'))];
+    const tree = new RankedListsTree({ call: vi.fn(async () => ({ key: 'ndcg@10', label: 'NDCG@10', mean: 1, queryCount: 1, rowCount: 1 })) } as never,
+      () => readConfig(() => undefined), memento() as never);
+    expect((await tree.listFiles()).map((u) => u.fsPath)).toEqual([dump]);
     tree.dispose();
   });
 });

@@ -173,6 +173,8 @@ describe('ViewSession', () => {
     const revealed = await ask(webview, 8, 'revealRow', { row: second.row });
     expect(revealed.result).toEqual({ revealed: true, line: 3 });
     expect(shared.state.shownDocuments.at(-1)).toMatchObject({ file, selection: { start: { line: 2 } } });
+    // Opened in a new group below the viewer, so the viewer keeps its width.
+    expect(shared.state.executed.at(-1)?.id).toBe('workbench.action.newGroupBelow');
     const failed = await ask(webview, 9, 'queryDetail', { query: 'no such query' });
     expect(failed.ok).toBe(false);
     expect(failed.error.message).toContain('no such query');

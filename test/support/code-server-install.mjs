@@ -12,6 +12,9 @@ import { fileURLToPath } from 'node:url';
 export const REPO_ROOT = resolve(dirname(fileURLToPath(import.meta.url)), '..', '..');
 // GAINLINE_E2E_DIR moves the whole install (used to time a fresh install).
 export const E2E_DIR = process.env.GAINLINE_E2E_DIR ? resolve(process.env.GAINLINE_E2E_DIR) : join(REPO_ROOT, '.e2e');
+// What one run writes (workspace copy, profile, browser home) stays in the clone even when the
+// install is shared, so clones running their suites at the same time never touch each other's files.
+export const RUN_DIR = join(REPO_ROOT, '.e2e');
 
 // code-server 4.139 declares engines.node "24"; its native modules must be
 // compiled against the same Node it runs on.

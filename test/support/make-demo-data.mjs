@@ -13,6 +13,7 @@ import { parseArgs } from 'node:util';
 import { gzipSync } from 'node:zlib';
 import { parquetWriteBuffer } from 'hyparquet-writer';
 import { buildScenario } from './demo-scenario.mjs';
+import { PRODUCTS } from './demo-vocabulary.mjs';
 import { writeLargeDump } from './demo-large.mjs';
 
 const repoRoot = resolve(dirname(fileURLToPath(import.meta.url)), '../..');
@@ -84,6 +85,22 @@ function writeQueryList(file, queries) {
 }
 
 /**
+ * The catalogue rows the runs retrieved: product id → title, brand and product family (the items table).
+ * Only retrieved products, in id order, so the table stays small and every row names a product of the runs.
+ */
+function writeItems(file, rows) {
+  const byId = new Map();
+  for (const r of rows) byId.set(r.item.id, r.item);
+  const ids = [...byId.keys()].sort();
+  const lines = ['product_id\ttitle\tbrand\tfamily'];
+  for (const id of ids) {
+    const item = byId.get(id);
+    lines.push(`${id}\t${item.title}\t${item.title.split(' ')[0]}\t${PRODUCTS[item.family].en}`);
+  }
+  writeFileSync(file, lines.join('\n') + '\n');
+}
+
+/**
  * Sparse feature lines with the ranking features a learner would see (label qid:N index:value ... # item), and
  * a side file with one model score per line in the same order. The format has no item ids (the
  * comment is for people), so repeated rows could not be told apart; they are left out.
@@ -131,6 +148,7 @@ function writeSmallDemo(demoDir) {
   writeRunFile(join(runs, 'model-b.run'), b, 'model-b');
   writeJudgments(join(judgments, 'grades.qrels'), rows);
   writeQueryList(join(judgments, 'queries.tsv'), queries);
+  writeItems(join(judgments, 'items.tsv'), rows);
   writeSparseFeatures(join(runs, 'model-a.sparse'), join(runs, 'model-a.sparse.scores'), a);
   const duplicates = rows.filter((r) => r.duplicate).length;
   console.log(`demo: ${queries.length} queries, ${rows.length} rows per model (${duplicates} duplicate rows) → ${runs}, ${judgments}`);

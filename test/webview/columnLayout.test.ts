@@ -8,6 +8,7 @@ import {
   LIST_TEXT_MIN_CH,
   minColumnCh,
   SAMPLES,
+  TEXT_MAX_CH,
   TEXT_MIN_CH,
   textWidthCh,
 } from '../../webview/src/model/columnLayout';
@@ -101,7 +102,7 @@ describe('gridTemplate', () => {
 });
 
 describe('ColumnWidths', () => {
-  it('grows a numeric column for a wider value, never shrinks, and ignores text columns', () => {
+  it('grows a numeric column for a wider value, never shrinks; a text column grows up to TEXT_MAX_CH', () => {
     const w = new ColumnWidths([
       { label: 'Query' },
       { label: 'Items', numeric: true, sample: SAMPLES.count },
@@ -112,8 +113,12 @@ describe('ColumnWidths', () => {
     expect(w.minCh(1)).toBe(textWidthCh(formatCount(12_345_678)));
     expect(w.observe(1, formatCount(3))).toBe(false);
     expect(w.minCh(1)).toBeGreaterThan(start);
-    expect(w.observe(0, 'a very long query id that only gets an ellipsis')).toBe(false);
+    expect(w.observe(0, 'drill')).toBe(false);
     expect(w.minCh(0)).toBe(TEXT_MIN_CH);
+    expect(w.observe(0, 'sandpaper orbital discs 125mm')).toBe(true);
+    expect(w.minCh(0)).toBe(textWidthCh('sandpaper orbital discs 125mm'));
+    expect(w.observe(0, 'x'.repeat(200))).toBe(true);
+    expect(w.minCh(0)).toBe(TEXT_MAX_CH);
   });
 
   it('ends at the widest value seen, whatever the order (seeded comparison with a plain maximum)', () => {

@@ -59,3 +59,25 @@ describe('lineSegments', () => {
     }
   });
 });
+
+describe('lines judged by gain (query detail)', () => {
+  it('marks only the items whose gain differs from the gain that belongs at their predicted position (hand case)', () => {
+    // Predicted grades 0,3,0,1 (gains 0,7,0,1 under 2^g−1); ideal gains by position 7,1,0,0.
+    // Position 1 holds gain 0 where 7 belongs: belongs lower, full weight. Position 2 holds 7 where
+    // 1 belongs: belongs higher, weight 6/7. Position 3 holds 0 where 0 belongs: in place though it
+    // moves one row down in the ideal list. Position 4 holds 1 where 0 belongs: belongs higher, 1/7.
+    const slot = [7, 1, 0, 0];
+    const links = [
+      { position: 1, idealPosition: 3, gain: 0 },
+      { position: 2, idealPosition: 1, gain: 7 },
+      { position: 3, idealPosition: 4, gain: 0 },
+      { position: 4, idealPosition: 2, gain: 1 },
+    ].map((l) => ({ ...l, slotGain: slot[l.position - 1]! }));
+    const s = lineSegments(links, { rowHeight: 10, width: 40, rowsShown: 4 });
+    expect(s.map((x) => x.direction)).toEqual(['down', 'up', 'same', 'up']);
+    expect(s[0]!.weight).toBe(1);
+    expect(s[1]!.weight).toBeCloseTo(6 / 7, 12);
+    expect(s[2]!.weight).toBe(0);
+    expect(s[3]!.weight).toBeCloseTo(1 / 7, 12);
+  });
+});

@@ -59,7 +59,15 @@ describe('single-run screens', () => {
     await page.waitForSelector('#gl-headline-value');
     expect(await page.textContent('#gl-headline-label')).toBe('NDCG@10');
     expect(await page.textContent('#gl-headline-value')).toMatch(/^\d\.\d{4}$/);
-    for (const id of ['#gl-overview', '#gl-conventions', '#gl-sensitivity', '#gl-degenerate']) expect(await page.isVisible(id), id).toBe(true);
+    for (const id of ['#gl-overview', '#gl-conventions', '#gl-sensitivity', '#gl-degenerate', '#gl-scores-by-grade', '#gl-dcg-by-position']) {
+      expect(await page.isVisible(id), id).toBe(true);
+    }
+    // Score diagnostics: one quartile row per grade (unjudged last) and one row per position plus the rest.
+    expect(await page.locator('#gl-scores-by-grade tbody tr').allTextContents()).toEqual([
+      expect.stringMatching(/^grade 0\s*40\s*1\s*0\.1000\s*0\.2000\s*0\.3500\s*0\.2400$/), expect.stringMatching(/^grade 2/), expect.stringMatching(/^unjudged/),
+    ]);
+    expect(await page.locator('#gl-dcg-by-position tbody tr').count()).toBe(4);
+    expect(await page.textContent('#gl-dcg-by-position tbody tr:first-child')).toMatch(/^1\s*0\.4000\s*0\.5500\s*0\.1500$/);
     expect(await page.isVisible('#gl-loading')).toBe(false);
     expect(problems).toEqual([]);
     await page.close();

@@ -84,10 +84,13 @@ describe('CompareTable', () => {
   it('segment rows add up to the paired queries, and wins+ties+losses to the counted ones', async () => {
     const [a, b] = runs(60, 3);
     const comparison = await compareRuns(a, b, parseMetricList('ndcg@5'), DEFAULT_CONVENTIONS, { permutations: 100, bootstrap: 0, seed: 1, tieTolerance: 1e-9 });
-    const segments = new CompareTable(comparison, a).segments('aisle', undefined);
+    const segments = await new CompareTable(comparison, a).segments('aisle', undefined);
     expect(segments.rows.reduce((s, r) => s + r.queries, 0)).toBe(comparison.perQuery.queryA.length);
     const counted = segments.rows.reduce((s, r) => s + r.wins + r.ties + r.losses, 0);
     expect(counted).toBe(comparison.byMetric[0]!.paired);
+    // Each segment: its wins, ties and losses plus its skipped queries are all its queries.
+    for (const r of segments.rows) expect(r.wins + r.ties + r.losses + r.skipped).toBe(r.queries);
+    expect(segments.rows.reduce((s, r) => s + r.skipped, 0)).toBe(comparison.byMetric[0]!.skipped);
   });
 });
 

@@ -5,33 +5,16 @@
 import type { CompareOverviewModel, ExportViewParams, HostToView, OverviewModel, ViewRequests, ViewState, ViewToHost } from '../../extension/protocol/messages';
 import { RequestClient } from '../../extension/protocol/request';
 import { formatCount } from './model/format';
-import { CompareScreen } from './screens/compare';
-import { DeltasScreen } from './screens/deltas';
-import { DetailScreen } from './screens/detail';
-import { MovementScreen } from './screens/movement';
-import { OverviewScreen } from './screens/overview';
-import { SegmentsScreen } from './screens/segments';
-import { WorstScreen } from './screens/worst';
+import { TABS, type TabName } from './tabs';
 import type { AppContext } from './ui/context';
 import { clear, el, icon } from './ui/dom';
-
-type TabName = 'overview' | 'worst' | 'detail' | 'segments' | 'compare' | 'deltas' | 'movement';
-
-const TAB_LABELS: Record<TabName, { label: string; icon: string }> = {
-  overview: { label: 'Overview', icon: 'dashboard' },
-  worst: { label: 'Worst queries', icon: 'list-ordered' },
-  detail: { label: 'Query detail', icon: 'list-tree' },
-  segments: { label: 'Segments', icon: 'group-by-ref-type' },
-  compare: { label: 'A vs B', icon: 'diff' },
-  deltas: { label: 'Per-query Δ', icon: 'arrow-swap' },
-  movement: { label: 'Movement', icon: 'git-compare' },
-};
-const SINGLE_TABS: TabName[] = ['overview', 'worst', 'detail', 'segments'];
-const COMPARE_TABS: TabName[] = ['compare', 'deltas', 'movement', 'detail', 'segments'];
+import type { LoadedView, Screen } from './ui/screen';
 
 interface SavedState {
   readonly tab?: TabName;
   readonly query?: string | null;
+  /** Compare mode: the two runs' paths, so the host can bring the panel back after a reload. */
+  readonly runs?: readonly [string, string];
 }
 
 export class App implements AppContext {
@@ -45,30 +28,17 @@ export class App implements AppContext {
   private readonly panels = el('div', { className: 'gl-panels' });
   private readonly status = el('div', { className: 'gl-statusline', attrs: { role: 'status', 'aria-live': 'polite' } });
   private readonly panelByTab = new Map<TabName, HTMLElement>();
+  /** Created on first use, then kept (a screen keeps its state across reloads and mode switches). */
+  private readonly screens = new Map<TabName, Screen>();
   private tabs: TabName[] = [];
   private tab: TabName = 'overview';
   private mode: 'single' | 'compare' | undefined;
   private selected: string | null = null;
-  private overviewModel: OverviewModel | undefined;
   private compareModel: CompareOverviewModel | undefined;
   private restored: SavedState | undefined;
 
-  private readonly overview = new OverviewScreen(this);
-  private readonly worst = new WorstScreen(this);
-  private readonly detail: DetailScreen;
-  private readonly segments = new SegmentsScreen(this);
-  private readonly compare = new CompareScreen(this);
-  private readonly deltas = new DeltasScreen(this);
-  private readonly movement: MovementScreen;
-
   constructor(private readonly api: VsCodeWebviewApi) {
     this.client = new RequestClient<ViewRequests>((m) => this.post(m as ViewToHost), 60_000);
-    this.detail = new DetailScreen(this, {
-      metricKeys: () => (this.mode === 'compare' ? this.compareModel?.metrics.map((m) => m.key) : this.overviewModel?.metrics.map((m) => m.key)) ?? [],
-      conventionsSummary: () => (this.mode === 'compare' ? this.compareModel?.conventions.summary : this.overviewModel?.conventions.summary) ?? '',
-      compareMode: () => this.mode === 'compare',
-    });
-    this.movement = new MovementScreen(this, () => this.compareModel?.metrics[this.compareModel.headline]?.label ?? '');
     this.restored = (api.getState() as SavedState | undefined) ?? undefined;
     this.errorPanel.hidden = true;
     this.vanished.hidden = true;
@@ -100,8 +70,8 @@ export class App implements AppContext {
     this.selected = query;
     this.post({ kind: 'selection', query });
     this.selectTab(target);
-    if (target === 'movement') void this.movement.show(query);
-    else void this.detail.show(query);
+    // Every screen of the mode that shows a query follows the pick, whichever tab it was made for.
+    this.showQueryEverywhere(query);
     this.save();
   }
 
@@ -144,6 +114,10 @@ export class App implements AppContext {
       this.openQuery(message.query);
       return;
     }
+    if (message.kind === 'showSummary') {
+      if (this.mode !== undefined) this.selectTab(this.mode === 'compare' ? 'compare' : 'overview');
+      return;
+    }
     if (message.kind === 'state') {
       try {
         this.onState(message.state);
@@ -181,31 +155,40 @@ export class App implements AppContext {
   }
 
   private loadSingle(model: OverviewModel, keep: boolean): void {
-    const first = this.mode === undefined;
-    this.mode = 'single';
-    this.overviewModel = model;
     this.compareModel = undefined;
     this.fileLabel.textContent = `${model.file.name} — ${formatCount(model.queryCount)} queries`;
     this.fileLabel.title = model.file.path;
-    this.buildTabs(SINGLE_TABS, { worst: formatCount(model.queryCount) });
-    this.overview.render(model);
-    this.worst.setModel(model, keep);
-    this.segments.configure({ compare: false, columns: model.segmentColumns, metrics: model.metrics, headline: model.headline, conventionsSummary: model.conventions.summary }, keep);
-    this.afterLoad(keep, first, 'overview');
+    this.loadScreens({ mode: 'single', overview: model }, keep);
   }
 
   private loadCompare(model: CompareOverviewModel, keep: boolean): void {
-    const first = this.mode === undefined;
-    this.mode = 'compare';
     this.compareModel = model;
-    this.overviewModel = undefined;
     this.fileLabel.textContent = `${model.runA.name} ↔ ${model.runB.name}`;
     this.fileLabel.title = `A: ${model.runA.path}\nB: ${model.runB.path}`;
-    this.buildTabs(COMPARE_TABS, { deltas: formatCount(model.pairedQueries) });
-    this.compare.render(model, keep);
-    this.deltas.setModel(model, keep);
-    this.segments.configure({ compare: true, columns: model.segmentColumns, metrics: model.metrics, headline: model.headline, conventionsSummary: model.conventions.summary }, keep);
-    this.afterLoad(keep, first, 'compare');
+    this.loadScreens({ mode: 'compare', compare: model }, keep);
+  }
+
+  /** The mode's tabs from the tab table, each screen given the new data; the first tab is home. */
+  private loadScreens(data: LoadedView, keep: boolean): void {
+    const first = this.mode === undefined;
+    this.mode = data.mode;
+    const specs = TABS.filter((t) => t.modes.includes(data.mode));
+    this.buildTabs(specs.map((t) => t.name), Object.fromEntries(specs.map((t) => [t.name, t.badge?.(data)])));
+    for (const spec of specs) this.screen(spec.name).load?.(data, keep);
+    this.afterLoad(keep, first, specs[0]!.name);
+  }
+
+  private screen(name: TabName): Screen {
+    let screen = this.screens.get(name);
+    if (!screen) {
+      screen = TABS.find((t) => t.name === name)!.create(this);
+      this.screens.set(name, screen);
+    }
+    return screen;
+  }
+
+  private showQueryEverywhere(query: string): void {
+    for (const name of this.tabs) void this.screen(name).showQuery?.(query);
   }
 
   /** Keeps the tab and the selected query on a live refresh (or after the panel was re-created). */
@@ -221,14 +204,32 @@ export class App implements AppContext {
     }
     this.restored = undefined;
     this.selected = query;
-    this.detail.clear();
-    this.movement.clear();
-    if (query !== null) {
-      void this.detail.show(query);
-      if (this.mode === 'compare') void this.movement.show(query);
-    }
+    for (const name of this.tabs) this.screen(name).clearQuery?.();
+    if (query !== null) this.showQueryEverywhere(query);
+    else if (this.mode === 'compare') void this.showBiggestMover();
     this.selectTab(tab);
     this.save();
+  }
+
+  /** A new comparison opens Movement and Query detail on the query whose headline moved most. */
+  private async showBiggestMover(): Promise<void> {
+    const model = this.compareModel;
+    try {
+      const [losses, wins] = await Promise.all([
+        this.request('comparePage', { sort: { key: 'delta', descending: false }, offset: 0, limit: 1 }),
+        this.request('comparePage', { sort: { key: 'delta', descending: true }, offset: 0, limit: 1 }),
+      ]);
+      if (model !== this.compareModel || this.selected !== null) return; // the user picked one meanwhile
+      const candidates = [losses.rows[0], wins.rows[0]].filter((r) => r !== undefined && r.delta !== null);
+      const biggest = candidates.sort((x, y) => Math.abs(y!.delta!) - Math.abs(x!.delta!))[0];
+      if (!biggest) return;
+      this.selected = biggest.query;
+      this.post({ kind: 'selection', query: biggest.query });
+      this.showQueryEverywhere(biggest.query);
+      this.save();
+    } catch {
+      // Movement then keeps its "pick a query" note.
+    }
   }
 
   // ---- layout ----------------------------------------------------------------------------------
@@ -256,13 +257,13 @@ export class App implements AppContext {
     this.tabBar.hidden = which !== 'content';
   }
 
-  private buildTabs(names: TabName[], badges: Partial<Record<TabName, string>>): void {
+  private buildTabs(names: TabName[], badges: Partial<Record<TabName, string | undefined>>): void {
     this.tabs = names;
     clear(this.tabBar);
     clear(this.panels);
     this.panelByTab.clear();
     for (const name of names) {
-      const info = TAB_LABELS[name];
+      const info = TABS.find((t) => t.name === name)!;
       const tab = el('button', {
         id: `gl-tab-${name}`,
         className: 'gl-tab',
@@ -276,23 +277,10 @@ export class App implements AppContext {
       }
       tab.addEventListener('click', () => this.selectTab(name));
       this.tabBar.appendChild(tab);
-      const fill = name === 'worst' || name === 'deltas' || name === 'segments';
-      const panel = el('div', { id: `gl-panel-${name}`, className: `gl-panel${fill ? ' fill' : ''}`, attrs: { role: 'tabpanel', 'aria-labelledby': `gl-tab-${name}` } }, this.screenElement(name));
+      const panel = el('div', { id: `gl-panel-${name}`, className: `gl-panel${info.fill ? ' fill' : ''}`, attrs: { role: 'tabpanel', 'aria-labelledby': `gl-tab-${name}` } }, this.screen(name).element);
       panel.hidden = true;
       this.panels.appendChild(panel);
       this.panelByTab.set(name, panel);
-    }
-  }
-
-  private screenElement(name: TabName): HTMLElement {
-    switch (name) {
-      case 'overview': return this.overview.element;
-      case 'worst': return this.worst.element;
-      case 'detail': return this.detail.element;
-      case 'segments': return this.segments.element;
-      case 'compare': return this.compare.element;
-      case 'deltas': return this.deltas.element;
-      case 'movement': return this.movement.element;
     }
   }
 
@@ -323,6 +311,7 @@ export class App implements AppContext {
   }
 
   private save(): void {
-    this.api.setState({ tab: this.tab, query: this.selected } satisfies SavedState);
+    const runs = this.compareModel ? ([this.compareModel.runA.path, this.compareModel.runB.path] as const) : undefined;
+    this.api.setState({ tab: this.tab, query: this.selected, ...(runs ? { runs } : {}) } satisfies SavedState);
   }
 }

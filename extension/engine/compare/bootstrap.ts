@@ -20,6 +20,12 @@ export interface BootstrapOptions extends LoopControl {
   readonly seed: number;
   /** Two-sided confidence level; 0.95 by default. */
   readonly level?: number;
+  /**
+   * Per-row weights (same length as the columns): each resample's statistic is then the weighted mean
+   * Σ c_i·w_i·x_i / Σ c_i·w_i, rows still drawn uniformly with replacement (the plain bootstrap of the
+   * weighted-mean estimator). A resample whose drawn weights sum to 0 has no mean and is left out.
+   */
+  readonly weights?: Float64Array;
 }
 
 export interface Interval {
@@ -35,9 +41,13 @@ export async function bootstrapMeanIntervals(columns: readonly Float64Array[], o
   const resamples = Math.max(0, Math.floor(options.resamples));
   if (n === 0 || resamples === 0) return columns.map(() => ({ low: Number.NaN, high: Number.NaN }));
   for (const column of columns) if (column.length !== n) throw new RangeError('bootstrap columns differ in length');
+  const weights = options.weights;
+  if (weights !== undefined && weights.length !== n) throw new RangeError('bootstrap weights differ in length from the columns');
+  // Weighted: sum w·x over the drawn rows and divide by the drawn weight instead of by n.
+  const summed = weights === undefined ? columns : columns.map((c) => c.map((x, i) => x * weights[i]!));
 
   const means = columns.map(() => new Float64Array(resamples));
-  const sparse = columns.map(nonZeroPart);
+  const sparse = summed.map(nonZeroPart);
   const counts = new Float64Array(n);
   const rng = metricStream(BOOTSTRAP_STREAM, options.seed, '');
   const pacer = new Pacer(options, resamples);
@@ -49,16 +59,18 @@ export async function bootstrapMeanIntervals(columns: readonly Float64Array[], o
       // One resample as multiplicities, then one sequential pass per column.
       counts.fill(0);
       rng.countDraws(counts, n);
+      const divisor = weights === undefined ? n : weightedSum(counts, weights);
       for (let j = 0; j < m; j++) {
         const part = sparse[j];
-        means[j]![done] = (part ? sparseWeightedSum(counts, part.rows, part.values) : weightedSum(counts, columns[j]!)) / n;
+        means[j]![done] = (part ? sparseWeightedSum(counts, part.rows, part.values) : weightedSum(counts, summed[j]!)) / divisor;
       }
     }
     await pacer.tick(done);
   }
   pacer.finish();
   const alpha = 1 - (options.level ?? 0.95);
-  return means.map((column) => {
+  return means.map((all) => {
+    const column = weights === undefined ? all : all.filter((x) => !Number.isNaN(x));
     column.sort();
     return { low: quantileSorted(column, alpha / 2), high: quantileSorted(column, 1 - alpha / 2) };
   });

@@ -45,6 +45,18 @@ export interface CompareOptions {
   readonly signal?: AbortSignal;
   /** Overall fraction done, 0..1. */
   readonly onProgress?: (fraction: number) => void;
+  /**
+   * Run A's grouping and evaluations from an earlier comparison against the same A (one baseline,
+   * several candidates): A is scored once per set of shared conventions instead of once per candidate.
+   */
+  readonly baseline?: BaselineMemo;
+}
+
+/** Run A's groups and its evaluation per shared conventions, filled in by compareRuns. */
+export interface BaselineMemo {
+  readonly dump: RankedDump;
+  groups?: QueryGroups;
+  readonly evaluations: Map<string, Evaluation>;
 }
 
 export const DEFAULT_COMPARE_OPTIONS: CompareOptions = { ...DEFAULT_COMPARE_SETTINGS };
@@ -87,7 +99,7 @@ export interface Comparison {
   readonly metrics: readonly MetricSpec[];
   /** Index of the headline metric (the first requested). */
   readonly headline: number;
-  readonly options: Omit<CompareOptions, 'signal' | 'onProgress'>;
+  readonly options: Omit<CompareOptions, 'signal' | 'onProgress' | 'baseline'>;
   readonly match: RunMatch;
   readonly evaluationA: Evaluation;
   readonly evaluationB: Evaluation;
@@ -95,6 +107,8 @@ export interface Comparison {
   readonly byMetric: readonly MetricComparison[];
   /** How the statistics were computed, for printing beside them. */
   readonly methodNotes: readonly string[];
+  /** Present when means and the interval are weighted by query (weights of run A's queries). */
+  readonly weighting?: { readonly source: string };
   /** Matching notes plus anything skipped or degenerate. */
   readonly warnings: readonly string[];
 }
@@ -118,7 +132,9 @@ export async function compareRuns(
 ): Promise<Comparison> {
   const o: CompareOptions = { ...DEFAULT_COMPARE_OPTIONS, ...options };
   const progress = stagedProgress(o.onProgress);
-  const groupsA = groupByQuery(a);
+  const memo = o.baseline?.dump === a ? o.baseline : undefined;
+  const groupsA = memo?.groups ?? groupByQuery(a);
+  if (memo) memo.groups = groupsA;
   const groupsB = groupByQuery(b);
   progress.stage(0.05);
   const match = matchRuns(a, b, groupsA, groupsB);
@@ -129,13 +145,16 @@ export async function compareRuns(
   const evaluateOne = (dump: RankedDump, groups: QueryGroups): Evaluation | Promise<Evaluation> =>
     evaluateRun(dump, metrics, shared, { groups, ...(o.signal ? { signal: o.signal } : {}), sensitivity: false, onProgress: progress.report });
   progress.stage(0.3);
-  const evaluationA = await evaluateOne(a, groupsA);
+  const memoKey = JSON.stringify(shared);
+  const evaluationA = memo?.evaluations.get(memoKey) ?? await evaluateOne(a, groupsA);
+  memo?.evaluations.set(memoKey, evaluationA);
   progress.stage(0.3);
   const evaluationB = await evaluateOne(b, groupsB);
 
   const perQuery = pairColumns(match, evaluationA, evaluationB);
   const loop = { signal: o.signal, onProgress: progress.fraction };
-  const pairedOf = perQuery.delta.map(pairedIndices);
+  const weights = pairWeights(a, match.commonA);
+  const pairedOf = perQuery.delta.map((d) => pairedIndices(d, weights));
 
   // The interval: metrics paired on the same queries share one resampling pass; every pass draws from the
   // same seeded stream, so a metric's interval does not depend on which metrics share its pass.
@@ -144,7 +163,9 @@ export async function compareRuns(
   for (const group of sharing) {
     progress.stage(0.15 / sharing.length);
     const columns = group.map((m) => gather(perQuery.delta[m]!, pairedOf[m]!));
-    const found = await bootstrapMeanIntervals(columns, { ...loop, resamples: o.bootstrap, seed: o.seed });
+    const found = await bootstrapMeanIntervals(columns, {
+      ...loop, resamples: o.bootstrap, seed: o.seed, ...(weights ? { weights: gather(weights, pairedOf[group[0]!]!) } : {}),
+    });
     group.forEach((m, i) => (intervals[m] = found[i]!));
   }
 
@@ -158,7 +179,8 @@ export async function compareRuns(
       key: metrics[m]!.key,
       paired: rows.length,
       skipped: perQuery.queryA.length - rows.length,
-      summary: pairedSummary(gather(perQuery.a[m]!, rows), gather(perQuery.b[m]!, rows), o.tieTolerance),
+      summary: weighMeans(pairedSummary(gather(perQuery.a[m]!, rows), gather(perQuery.b[m]!, rows), o.tieTolerance),
+        weights && gather(weights, rows), gather(perQuery.a[m]!, rows), gather(perQuery.b[m]!, rows)),
       interval: intervals[m]!,
       tTest: pairedTTest(d),
       wilcoxon: wilcoxonSignedRank(d),
@@ -175,7 +197,7 @@ export async function compareRuns(
   }));
   progress.done();
 
-  const { signal: _signal, onProgress: _onProgress, ...used } = o;
+  const { signal: _signal, onProgress: _onProgress, baseline: _baseline, ...used } = o;
   return {
     conventions: shared,
     metrics,
@@ -186,7 +208,8 @@ export async function compareRuns(
     evaluationB,
     perQuery,
     byMetric,
-    methodNotes: methodNotes(o, metrics.length),
+    methodNotes: [...methodNotes(o, metrics.length), ...(weights ? weightNotes(a) : [])],
+    ...(weights ? { weighting: { source: a.joined?.weightSource ?? 'query weights' } } : {}),
     warnings: [...match.notes, ...judgmentNotes('A', a), ...judgmentNotes('B', b), ...skipWarnings(byMetric)],
   };
 }
@@ -226,11 +249,13 @@ function pairColumns(match: RunMatch, ea: Evaluation, eb: Evaluation): PairedCol
   return { queryA: match.commonA, queryB: match.commonB, a, b, delta };
 }
 
-function pairedIndices(delta: Float64Array): Uint32Array {
+/** Pairs with a defined Δ (and, when weighted, a known weight). */
+function pairedIndices(delta: Float64Array, weights?: Float64Array): Uint32Array {
+  const keep = (i: number) => Number.isFinite(delta[i]!) && (weights === undefined || Number.isFinite(weights[i]!));
   let count = 0;
-  for (let i = 0; i < delta.length; i++) if (Number.isFinite(delta[i]!)) count++;
+  for (let i = 0; i < delta.length; i++) if (keep(i)) count++;
   const rows = new Uint32Array(count);
-  for (let i = 0, k = 0; i < delta.length; i++) if (Number.isFinite(delta[i]!)) rows[k++] = i;
+  for (let i = 0, k = 0; i < delta.length; i++) if (keep(i)) rows[k++] = i;
   return rows;
 }
 
@@ -302,4 +327,34 @@ function stagedProgress(onProgress?: (fraction: number) => void): {
     fraction: (done, total) => report(total > 0 ? done / total : 1),
     done: () => onProgress?.(1),
   };
+}
+
+/** Run A's query weights per common query, when A has weights (the queries table is shared by both runs). */
+function pairWeights(a: RankedDump, commonA: Uint32Array): Float64Array | undefined {
+  const weights = a.joined?.queryWeight;
+  return weights === undefined ? undefined : Float64Array.from(commonA, (q) => weights[q]!);
+}
+
+/** With weights, the means become weighted means Σ w·x / Σ w (numpy.average's definition); the counts stay. */
+function weighMeans(summary: PairedSummary, weights: Float64Array | undefined, a: Float64Array, b: Float64Array): PairedSummary {
+  if (weights === undefined) return summary;
+  let total = 0;
+  let sumA = 0;
+  let sumB = 0;
+  for (let i = 0; i < a.length; i++) {
+    total += weights[i]!;
+    sumA += weights[i]! * a[i]!;
+    sumB += weights[i]! * b[i]!;
+  }
+  const meanA = total > 0 ? sumA / total : NaN;
+  const meanB = total > 0 ? sumB / total : NaN;
+  return { ...summary, meanA, meanB, meanDifference: meanB - meanA };
+}
+
+function weightNotes(a: RankedDump): string[] {
+  return [
+    `Weighted by query (weights from ${a.joined?.weightSource ?? 'the data'}): the means and Δ are Σ w·x / Σ w; the interval is a bootstrap ` +
+      'that draws queries uniformly with replacement and takes the weighted mean of each resample. The t-test, Wilcoxon, ' +
+      'randomization test, d_z and wins / ties / losses are unweighted; queries without a weight are left out of every column.',
+  ];
 }

@@ -57,7 +57,9 @@ export function queryDetail(
     groupSize.fill(e - s, s, e);
   }
   // Ideal order: gain descending, then grade descending, then listed items before unretrieved judged items
-  // (which count in the ideal but have no row), then file order.
+  // (which count in the ideal but have no row), then the model's own order. Any order within a grade gives
+  // the same ideal DCG; keeping the model's order means an item moves only when its grade says it must,
+  // so equal-grade items are never shown as misplaced among themselves.
   const u = ranking.unretrieved;
   const gainOf = gainFunction(conventions.gain);
   const unretrievedGain = Array.from({ length: u }, (_, e) => gainOf(ranking.unretrievedGrade[e]!));
@@ -65,8 +67,7 @@ export function queryDetail(
   const rowAt = (slot: number) => ranking.row[order[slot]!]!;
   const gainAt = (i: number) => (i < n ? scorer.gain[i]! : unretrievedGain[i - n]!);
   const gradeAt = (i: number) => (i < n ? list.grade[i]! : ranking.unretrievedGrade[i - n]!);
-  slots.sort((a, b) => gainAt(b) - gainAt(a) || gradeAt(b) - gradeAt(a) || (a < n ? 0 : 1) - (b < n ? 0 : 1) ||
-    (a < n && b < n ? rowAt(a) - rowAt(b) : a - b));
+  slots.sort((a, b) => gainAt(b) - gainAt(a) || gradeAt(b) - gradeAt(a) || (a < n ? 0 : 1) - (b < n ? 0 : 1) || a - b);
   const idealPosition = new Uint32Array(n + u);
   slots.forEach((slot, i) => (idealPosition[slot] = i + 1));
   const notRetrieved: NotRetrievedItem[] = [];

@@ -14,7 +14,7 @@ import { renderChunk, type ChunkOutput } from './chunkOutput';
 import { checkGainsAndGrades, gainProblem } from './gainLimits';
 import { QueryRanking, SeenItems } from './ranking';
 import { headlineCutoff, QueryScorer } from './scorer';
-import { SensitivityPass } from './sensitivity';
+import { SensitivityPass, type SensitivityColumns } from './sensitivity';
 import type { DegenerateCounts, Evaluation, MetricSummary, PerQueryColumns } from './types';
 import { describeDegenerate } from './warnings';
 
@@ -63,10 +63,13 @@ export function evaluate(
   const setup = prepareEvaluation(dump, metrics, conventions, options);
   const perQuery = allocatePerQuery(setup.queryCount, metrics, setup.hasRbp, (bytes) => new ArrayBuffer(bytes));
   const sensitivity = setup.sensitivity ? newSensitivityPass(setup) : undefined;
+  // Weighted means need each query's value under every variant.
+  const recorded = sensitivity && dump.joined?.queryWeight ? sensitivityColumns(sensitivity, setup.queryCount, (n) => new ArrayBuffer(n)) : undefined;
+  if (recorded) sensitivity!.recordInto(recorded);
   const tally = scoreQueryRange(setup, dump, 0, setup.queryCount, perQuery, sensitivity, options);
   if (options.perChunk) options.perChunk.onChunk(0, setup.queryCount, renderChunk(options.perChunk, perQuery, 0, setup.queryCount));
   options.onProgress?.(1);
-  return finishEvaluation(setup, dump, perQuery, tally, sensitivity);
+  return finishEvaluation(setup, dump, perQuery, tally, sensitivity, recorded);
 }
 
 /** What every range of one evaluation shares: the checked conventions and the query groups. */
@@ -106,6 +109,14 @@ export function prepareEvaluation(dump: RankedDump, metrics: readonly MetricSpec
 export function newSensitivityPass(setup: EvaluationSetup): SensitivityPass {
   return new SensitivityPass(setup.conventions, headlineCutoff(setup.metrics),
     (gain) => gainProblem(gain, setup.gradeRange, setup.largestQuery)?.why);
+}
+
+/** Per-variant, per-query columns for a sensitivity pass to record into; `allocate` picks plain or shared memory. */
+export function sensitivityColumns(pass: SensitivityPass, queryCount: number, allocate: (bytes: number) => ArrayBufferLike): SensitivityColumns {
+  return {
+    value: Array.from({ length: pass.variantCount }, () => new Float64Array(allocate(queryCount * 8))),
+    entered: Array.from({ length: pass.variantCount }, () => new Uint8Array(allocate(queryCount))),
+  };
 }
 
 /** Per-query columns for every query; `allocate` picks plain or shared memory. */
@@ -278,12 +289,14 @@ export function undefinedValueNotes(metrics: readonly MetricSpec[], perQuery: Pe
 
 /** Means, warnings and sensitivity rows from filled per-query columns and the summed tallies. */
 export function finishEvaluation(setup: EvaluationSetup, dump: RankedDump, perQuery: PerQueryColumns, tally: RangeTally,
-  sensitivity: SensitivityPass | undefined): Evaluation {
+  sensitivity: SensitivityPass | undefined, recorded?: SensitivityColumns): Evaluation {
   const { metrics, conventions, queryCount } = setup;
-  const summary: MetricSummary[] = metrics.map((m, i) => summarise(m.key, perQuery.values[i]!));
+  const weights = dump.joined?.queryWeight;
+  if (weights !== undefined && sensitivity && recorded) sensitivity.weighColumns(recorded, weights, perQuery.relevant);
+  const summary: MetricSummary[] = metrics.map((m, i) => summarise(m.key, perQuery.values[i]!, weights));
   if (perQuery.rbpResidual) {
     const first = metrics[residualMetricIndex(metrics)]!;
-    summary.push(summarise(`${first.key}_residual`, perQuery.rbpResidual));
+    summary.push(summarise(`${first.key}_residual`, perQuery.rbpResidual, weights));
   }
   const warnings = describeDegenerate({
     dump,
@@ -297,12 +310,14 @@ export function finishEvaluation(setup: EvaluationSetup, dump: RankedDump, perQu
     headlineK: headlineCutoff(metrics),
   });
   warnings.push(...undefinedValueNotes(metrics, perQuery));
+  if (weights !== undefined) warnings.push(...weightNotes(dump, weights));
   // The missing-queries policy was applied when the judgments were joined; it is printed with the rest.
   const judged = dump.notes.judgments;
   return {
     conventions: judged ? { ...conventions, missingQueries: judged.missingQueries } : conventions,
     metrics,
     headline: 0,
+    ...(weights !== undefined ? { weighting: { source: dump.joined?.weightSource ?? 'query weights' } } : {}),
     queryCount,
     perQuery,
     summary,
@@ -313,8 +328,12 @@ export function finishEvaluation(setup: EvaluationSetup, dump: RankedDump, perQu
   };
 }
 
-/** Mean over the queries whose value is not NaN. */
-export function summarise(key: string, column: Float64Array): MetricSummary {
+/**
+ * Mean over the queries whose value is not NaN; with `weights` (by query id), the weighted mean
+ * Σ w·x / Σ w over the queries whose value and weight are both known (numpy.average's definition).
+ */
+export function summarise(key: string, column: Float64Array, weights?: Float64Array): MetricSummary {
+  if (weights !== undefined) return weightedSummary(key, column, weights);
   let sum = 0;
   let counted = 0;
   for (let i = 0; i < column.length; i++) {
@@ -325,4 +344,34 @@ export function summarise(key: string, column: Float64Array): MetricSummary {
     }
   }
   return { key, mean: counted > 0 ? sum / counted : NaN, counted };
+}
+
+function weightedSummary(key: string, column: Float64Array, weights: Float64Array): MetricSummary {
+  let sum = 0;
+  let total = 0;
+  let counted = 0;
+  for (let q = 0; q < column.length; q++) {
+    const v = column[q]!;
+    const w = weights[q]!;
+    if (v === v && w === w) {
+      sum += w * v;
+      total += w;
+      counted++;
+    }
+  }
+  return { key, mean: total > 0 ? sum / total : NaN, counted };
+}
+
+/** What weighting did, in plain sentences (queries without a weight are out of every weighted mean). */
+function weightNotes(dump: RankedDump, weights: Float64Array): string[] {
+  let unknown = 0;
+  const examples: string[] = [];
+  for (let q = 0; q < weights.length; q++) {
+    if (weights[q] === weights[q]) continue;
+    if (examples.length < 3) examples.push(`'${dump.queries.get(q)}'`);
+    unknown++;
+  }
+  const out = [`Means are weighted by query (Σ w·x / Σ w), weights from ${dump.joined?.weightSource ?? 'the data'}.`];
+  if (unknown > 0) out.push(`${unknown.toLocaleString('en-US')} ${unknown === 1 ? 'query has' : 'queries have'} no weight (e.g. ${examples.join(', ')}); they are left out of the weighted means.`);
+  return out;
 }

@@ -20,6 +20,7 @@ import {
   evaluate,
   finishEvaluation,
   newSensitivityPass,
+  sensitivityColumns,
   emptyTally,
   prepareEvaluation,
   RangeScorer,
@@ -104,10 +105,7 @@ async function scoreWithWorkers(dump: RankedDump, metrics: readonly MetricSpec[]
   const shared = (bytes: number) => new SharedArrayBuffer(bytes);
   const perQuery = allocatePerQuery(setup.queryCount, metrics, setup.hasRbp, shared);
   const sensitivity = setup.sensitivity ? newSensitivityPass(setup) : undefined;
-  const recorded: SensitivityColumns | undefined = sensitivity && {
-    value: Array.from({ length: sensitivity.variantCount }, () => new Float64Array(shared(setup.queryCount * 8))),
-    entered: Array.from({ length: sensitivity.variantCount }, () => new Uint8Array(shared(setup.queryCount))),
-  };
+  const recorded: SensitivityColumns | undefined = sensitivity && sensitivityColumns(sensitivity, setup.queryCount, shared);
   if (recorded) sensitivity!.recordInto(recorded);
   const bounds = splitByRows(setup.groups.start, Math.min(setup.queryCount, threads * engineSettings().tuning.scoreChunksPerThread));
   const next = new Int32Array(shared(4));
@@ -127,7 +125,7 @@ async function scoreWithWorkers(dump: RankedDump, metrics: readonly MetricSpec[]
   }
   options.onProgress?.(1);
   if (sensitivity && recorded) sensitivity.sumColumns(recorded, tally.sensitivityNoRelevant);
-  return finishEvaluation(setup, dump, unshared(perQuery), tally, sensitivity);
+  return finishEvaluation(setup, dump, unshared(perQuery), tally, sensitivity, recorded);
 }
 
 /** Query range starts holding about equal rows each (parts <= queries); the last entry is the query count. */

@@ -1,6 +1,6 @@
 /**
  * Metric means per value of a segment column (locale, device, ...). A query belongs to the value of its
- * first row in the file.
+ * first row in the file. With query weights (dump.joined.queryWeight) the means are weighted like the summary.
  */
 import type { RankedDump } from '../model/dump';
 import type { Evaluation } from './types';
@@ -30,7 +30,9 @@ export function segmentBreakdown(dump: RankedDump, evaluation: Evaluation, segme
   const metricCount = evaluation.metrics.length;
   const queries = new Uint32Array(valueCount);
   const sums = new Float64Array(valueCount * metricCount);
-  const counts = new Uint32Array(valueCount * metricCount);
+  // Weight totals per (value, metric): 1 per query unless the means are weighted by query.
+  const counts = new Float64Array(valueCount * metricCount);
+  const weights = dump.joined?.queryWeight;
   for (let q = 0; q < queryCount; q++) {
     const r = firstRow[q]!;
     if (r < 0) continue;
@@ -38,9 +40,10 @@ export function segmentBreakdown(dump: RankedDump, evaluation: Evaluation, segme
     queries[v]!++;
     for (let m = 0; m < metricCount; m++) {
       const x = evaluation.perQuery.values[m]![q]!;
-      if (x === x) {
-        sums[v * metricCount + m] += x;
-        counts[v * metricCount + m]!++;
+      const w = weights ? weights[q]! : 1;
+      if (x === x && w === w) {
+        sums[v * metricCount + m] += w * x;
+        counts[v * metricCount + m] += w;
       }
     }
   }

@@ -28,6 +28,8 @@ interface Variant {
   readonly gainSlot: number;
   sum: number;
   counted: number;
+  /** Σ weights of the counted queries (= counted when unweighted). */
+  weight: number;
 }
 
 export class SensitivityPass {
@@ -45,6 +47,8 @@ export class SensitivityPass {
   private judgedTable = new Float64Array(16);
   /** Queries with no relevant item (the policy decides their value). */
   noRelevantQueries = 0;
+  /** Their total weight (= noRelevantQueries when unweighted). */
+  private noRelevantWeight = 0;
   /** When set, each variant's per-query value is kept too, so ranges scored apart can be summed in query order. */
   private record?: SensitivityColumns;
 
@@ -71,9 +75,9 @@ export class SensitivityPass {
       this.gainOfRank.push(new Float64Array(16));
     }
     this.idealOfGain = new Float64Array(this.gains.length);
-    for (const ties of TIES) this.variants.push({ gain: base.gain, ties, gainSlot: 0, sum: 0, counted: 0 });
+    for (const ties of TIES) this.variants.push({ gain: base.gain, ties, gainSlot: 0, sum: 0, counted: 0, weight: 0 });
     for (let i = 1; i < this.gains.length; i++) {
-      this.variants.push({ gain: this.gains[i]!, ties: base.ties, gainSlot: i, sum: 0, counted: 0 });
+      this.variants.push({ gain: this.gains[i]!, ties: base.ties, gainSlot: i, sum: 0, counted: 0, weight: 0 });
     }
   }
 
@@ -92,6 +96,7 @@ export class SensitivityPass {
    */
   sumColumns(columns: SensitivityColumns, noRelevantQueries: number): void {
     this.noRelevantQueries = noRelevantQueries;
+    this.noRelevantWeight = noRelevantQueries;
     this.variants.forEach((v, i) => {
       const value = columns.value[i]!;
       const entered = columns.entered[i]!;
@@ -105,6 +110,42 @@ export class SensitivityPass {
       }
       v.sum = sum;
       v.counted = counted;
+      v.weight = counted;
+    });
+  }
+
+  /**
+   * Weighted means Σ w·x / Σ w from recorded columns, as the summary's: queries whose weight is NaN are left
+   * out; `relevant` (per query) tells which queries had nothing relevant (they take the policy's value).
+   */
+  weighColumns(columns: SensitivityColumns, weights: Float64Array, relevant: Uint32Array): void {
+    let noRelevant = 0;
+    let noRelevantWeight = 0;
+    for (let q = 0; q < weights.length; q++) {
+      if (relevant[q] === 0 && weights[q] === weights[q]) {
+        noRelevant++;
+        noRelevantWeight += weights[q]!;
+      }
+    }
+    this.noRelevantQueries = noRelevant;
+    this.noRelevantWeight = noRelevantWeight;
+    this.variants.forEach((v, i) => {
+      const value = columns.value[i]!;
+      const entered = columns.entered[i]!;
+      let sum = 0;
+      let counted = 0;
+      let weight = 0;
+      for (let q = 0; q < value.length; q++) {
+        const w = weights[q]!;
+        if (entered[q] === 1 && w === w) {
+          sum += w * value[q]!;
+          weight += w;
+          counted++;
+        }
+      }
+      v.sum = sum;
+      v.counted = counted;
+      v.weight = weight;
     });
   }
 
@@ -118,6 +159,7 @@ export class SensitivityPass {
     if (record) for (let i = 0; i < this.variants.length; i++) record.entered[i]![query] = 0;
     if (noRelevant) {
       this.noRelevantQueries++;
+      this.noRelevantWeight++;
       return;
     }
     const n = ranking.n;
@@ -143,6 +185,7 @@ export class SensitivityPass {
       const value = this.dcgUnder(ranking, grades, this.gainOfRank[v.gainSlot]!, v.ties) / ideal;
       v.sum += value;
       v.counted++;
+      v.weight++;
       if (record) {
         record.value[i]![query] = value;
         record.entered[i]![query] = 1;
@@ -187,12 +230,14 @@ export class SensitivityPass {
     const mark = (configured: boolean) => (configured ? ' (as configured)' : '');
     const rowOf = (v: Variant, policy: NoRelevantPolicy, label: string): SensitivityRow => {
       const extra = policy === 'skip' ? 0 : this.noRelevantQueries;
+      const extraWeight = policy === 'skip' ? 0 : this.noRelevantWeight;
       const counted = v.counted + extra;
-      const sum = v.sum + (policy === 'skip' ? 0 : noRelevantValue(policy) * extra);
+      const total = v.weight + extraWeight;
+      const sum = v.sum + (policy === 'skip' ? 0 : noRelevantValue(policy) * extraWeight);
       return {
         label,
         conventions: { ...base, gain: v.gain, ties: v.ties, noRelevant: policy },
-        mean: counted > 0 ? sum / counted : NaN,
+        mean: total > 0 ? sum / total : NaN,
         counted,
       };
     };

@@ -69,6 +69,8 @@ export interface Evaluation {
   readonly perQuery: PerQueryColumns;
   /** summary[i] belongs to metrics[i]; when RBP is requested one more entry follows, keyed `rbp_residual`. */
   readonly summary: readonly MetricSummary[];
+  /** Present when the means are weighted by query (a weight column in the dump or the queries table). */
+  readonly weighting?: { readonly source: string };
   readonly degenerate: DegenerateCounts;
   readonly sensitivity: readonly SensitivityRow[];
   /** Plain sentences for people: what was counted, skipped or assumed. */
@@ -129,7 +131,7 @@ export interface QueryDetail {
   readonly k: number;
   readonly positions: readonly PositionRow[];
   /**
-   * The listed items in ideal order (grade descending, file order within a grade). Rows refer to the dump.
+   * The listed items in ideal order (grade descending, the model's order within a grade). Rows refer to the dump.
    * Their places in the whole ideal ranking, which also holds `notRetrieved`, are the positions' `idealPosition`.
    */
   readonly idealOrder: readonly number[];

@@ -8,7 +8,8 @@ import { anyNeeds, metricDefinition, metricLabel, type MetricSpec } from '../met
 import type { DegenerateCounts } from './types';
 
 export interface WarningInput {
-  readonly dump: RankedDump;
+  /** For the judgments notes; callers without a dump in memory (the SQL engines) leave it out. */
+  readonly dump?: RankedDump;
   readonly conventions: Conventions;
   readonly metrics: readonly MetricSpec[];
   readonly queryCount: number;
@@ -63,7 +64,7 @@ export function describeJudgments(dump: RankedDump): string[] {
 export function describeDegenerate(w: WarningInput): string[] {
   const c = w.conventions;
   const d = w.degenerate;
-  const out: string[] = [...describeJudgments(w.dump)];
+  const out: string[] = w.dump ? [...describeJudgments(w.dump)] : [];
   if (d.noRelevantQueries > 0) {
     const head = `${rows(d.noRelevantQueries, 'query has', 'queries have')} no item with grade >= ${c.relevantFrom}`;
     if (c.noRelevant === 'skip') {
@@ -109,5 +110,6 @@ export function describeDegenerate(w: WarningInput): string[] {
   }
   const hk = Number.isFinite(w.headlineK) ? `@${w.headlineK}` : '';
   out.push(`Inversion cost is the NDCG${hk} that swapping each inverted pair would recover, summed per query.`);
+  if (w.dump?.joined) out.push(...w.dump.joined.notes);
   return out;
 }

@@ -110,6 +110,28 @@ export interface RankedDump {
   readonly notes: ReaderNotes;
   /** Present when labels came from a judgments file: the judged items each query's list lacks. */
   readonly unretrieved?: UnretrievedJudged;
+  /** Facts joined from a queries table and an items table (tables/join.ts), when given. */
+  readonly joined?: JoinedFacts;
+}
+
+/** Per-query and per-item facts from side tables, indexed by the dump's interned ids. */
+export interface JoinedFacts {
+  /** The queries table joined, when one was. */
+  readonly queriesFile?: string;
+  /** The items table joined, when one was. */
+  readonly itemsFile?: string;
+  /** Query text by query id ('' when the table has no text for it); absent without a text column. */
+  readonly queryText?: readonly string[];
+  /** Query weight by query id (NaN when unknown); absent when no weight was given (unweighted means). */
+  readonly queryWeight?: Float64Array;
+  /** Where the weights came from, for the conventions line: "column 'weight' of queries.tsv". */
+  readonly weightSource?: string;
+  /** Item title by item id ('' when unknown); absent without an items table or a title column. */
+  readonly itemTitle?: readonly string[];
+  /** The items table's other columns, by item id. */
+  readonly itemAttributes?: readonly { readonly name: string; readonly values: readonly string[] }[];
+  /** Plain sentences: rows naming unknown queries or items, dump ids missing from a table (counts and examples). */
+  readonly notes: readonly string[];
 }
 
 export function emptyNotes(): ReaderNotes {

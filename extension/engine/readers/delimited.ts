@@ -28,6 +28,17 @@ export interface DelimitedSettings {
   readonly shared?: SharedColumns;
   /** First line number of the first record (>1 when a worker parses a later byte range). */
   readonly firstLine?: number;
+  /**
+   * Plain records instead of dump rows: no roles are resolved and no columns are built; each record's
+   * fields go to `record` as text (side tables of queries and items use this).
+   */
+  readonly plain?: PlainRecordSink;
+}
+
+/** Receives the header and each record of a delimited file as text (see DelimitedSettings.plain). */
+export interface PlainRecordSink {
+  header(names: readonly string[], line: number, text: string): void;
+  record(fields: readonly string[], line: number): void;
 }
 
 export class DelimitedParser implements RecordSink, FastState {
@@ -210,6 +221,11 @@ export class DelimitedParser implements RecordSink, FastState {
   }
 
   private setHeader(names: string[], headerText: string): void {
+    if (this.settings.plain) {
+      this.names = names;
+      this.settings.plain.header(names, this.line, headerText);
+      return;
+    }
     const roles = resolveRoles(names, this.settings.columns, { file: this.settings.file, line: this.line, text: headerText });
     this.names = names;
     this.roleOf = new Int32Array(names.length).fill(-1);
@@ -233,6 +249,10 @@ export class DelimitedParser implements RecordSink, FastState {
   }
 
   private storeRecord(buf: Buffer, recordStart: number, recordEnd: number, base: number): void {
+    if (this.settings.plain) {
+      this.storePlain(buf, recordStart, recordEnd);
+      return;
+    }
     const rows = this.rows!;
     const n = this.fieldCount;
     if (n !== this.roleOf.length) {
@@ -275,6 +295,17 @@ export class DelimitedParser implements RecordSink, FastState {
     rows.score[row] = score;
     rows.line[row] = this.line;
     rows.offset[row] = base + recordStart;
+  }
+
+  private storePlain(buf: Buffer, recordStart: number, recordEnd: number): void {
+    const expected = this.names!.length;
+    if (this.fieldCount !== expected) {
+      throw new InputError(`${expected} fields as in the header, not ${this.fieldCount}`, this.settings.file, this.line,
+        buf.toString('utf8', recordStart, Math.min(recordEnd, recordStart + 200)).replace(/\r?\n$/, ''));
+    }
+    const fields: string[] = [];
+    for (let f = 0; f < this.fieldCount; f++) fields.push(this.fieldText(buf, f));
+    this.settings.plain!.record(fields, this.line);
   }
 
   private number(bytes: Uint8Array, s: number, e: number, field: number, isScore: boolean): number {

@@ -23,6 +23,9 @@ import { PairIndex } from './pairIndex';
 import { LineSink, pumpText, splitWhitespace } from './source';
 
 /** One judgment per entry, in file order; ids index the table's own pools. */
+/** The start of the error for a judgments file that names none of the run's queries (the editor tells it apart). */
+export const SHARES_NO_QUERY = 'a judgments file sharing queries with the run';
+
 export interface JudgmentTable {
   readonly path: string;
   readonly queries: StringPool;
@@ -163,7 +166,7 @@ export function joinJudgments(dump: RankedDump, table: JudgmentTable, policy: Mi
     if (queryInDump[q]! >= 0) shared++;
   }
   if (shared === 0) {
-    throw new InputError(`a judgments file sharing queries with the run (none of its ${judgedQueries} queries appear in the run ${dump.path})`, table.path);
+    throw new InputError(`${SHARES_NO_QUERY} (none of its ${judgedQueries} queries appear in the run ${dump.path})`, table.path);
   }
   const itemInDump = new Int32Array(table.items.size);
   let unknownItems = 0;

@@ -107,7 +107,7 @@ export function resolveRoles(
   if (index.score < 0 && index.rank < 0 && !optional.includes('score')) missing.push('score' as never);
   if (missing.length > 0) {
     const hints = missing.map((r) => `${r} (one of ${candidates[r].join(', ')})`).join('; ');
-    throw new InputError(`a header naming the ${missing.join(', ')} column${missing.length > 1 ? 's' : ''}: ${hints}; or name them with columns query=…,item=…,label=…,score=…`,
+    throw new InputError(`a header naming the ${missing.join(', ')} column${missing.length > 1 ? 's' : ''}: ${hints}; or name them with --columns query=…,item=…,label=…,score=… (in the editor, the gainline.columnsByPattern setting)`,
       place.file, place.line, place.text);
   }
   const segments: number[] = [];

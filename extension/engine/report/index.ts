@@ -2,13 +2,13 @@
 import { formatCsv } from './csv';
 import { formatJson } from './json';
 import { formatMarkdown } from './markdown';
-import type { ReportInput } from './reportInput';
+import type { ReportInput, WorstOrder } from './reportInput';
 import { formatTable } from './table';
 
 export type ReportFormat = 'table' | 'json' | 'csv' | 'markdown';
 export const REPORT_FORMATS: readonly ReportFormat[] = ['table', 'json', 'csv', 'markdown'];
 
-export function formatReport(format: ReportFormat, input: ReportInput, options: { readonly worst: number }): string {
+export function formatReport(format: ReportFormat, input: ReportInput, options: { readonly worst: number; readonly worstOrder?: WorstOrder }): string {
   switch (format) {
     case 'table':
       return formatTable(input, options);

@@ -21,6 +21,7 @@ export function formatJson(input: ReportInput): string {
     queryCount: ev.queryCount,
     headline: ev.metrics[ev.headline]?.key ?? null,
     conventions: conventionsAsJson(ev.conventions),
+    ...(ev.weighting ? { weights: ev.weighting.source } : {}),
     summary,
     counted,
     degenerate: ev.degenerate,
@@ -36,9 +37,11 @@ export function formatJson(input: ReportInput): string {
   };
   const headText = JSON.stringify(head, null, 1);
   if (ev.queryCount === 0) return `${headText.slice(0, -2)},\n "queries": []\n}\n`;
-  const records =
-    input.queryRecords ?? [renderQueryRecords({ metrics: ev.metrics, names: packNames(input.queryNames), notRetrieved: ev.judgments !== undefined },
-      ev.perQuery, 0, ev.queryCount)];
+  const notRetrieved = ev.judgments !== undefined;
+  // Records rendered while scoring carry no query facts: with a queries table they are rendered here.
+  const records = input.facts !== undefined || input.queryRecords === undefined
+    ? [renderQueryRecords({ metrics: ev.metrics, names: packNames(input.queryNames), facts: input.facts, notRetrieved }, ev.perQuery, 0, ev.queryCount)]
+    : input.queryRecords;
   // headText ends with "\n}": the records go in before that closing brace.
   return `${headText.slice(0, -2)},\n "queries": [\n${records.join(',\n')}\n ]\n}\n`;
 }

@@ -13,6 +13,7 @@ import type { MetricSpec } from '../metrics/registry';
 import { BytePool } from '../model/bytePool';
 import type { StringPool } from '../model/stringPool';
 import type { PerQueryColumns } from '../evaluate/types';
+import type { QueryFacts } from '../tables/queryFacts';
 import { recordColumns } from './reportInput';
 
 /**
@@ -26,6 +27,8 @@ export type PackedNames = { readonly bytes: Uint8Array; readonly ends: Uint32Arr
 export interface QueryRecordsSpec {
   readonly metrics: readonly MetricSpec[];
   readonly names: PackedNames;
+  /** Text and segments from a queries table (rendered on one thread; never sent to score workers). */
+  readonly facts?: QueryFacts;
   /** Add each query's count of judged items the run never retrieved (labels from a judgments file). */
   readonly notRetrieved?: boolean;
 }
@@ -65,12 +68,20 @@ export function renderQueryRecords(spec: QueryRecordsSpec, perQuery: PerQueryCol
   const { items, relevant, skipped } = perQuery;
   const records: Record<string, unknown>[] = new Array(to - from);
   for (let q = from; q < to; q++) {
-    const record: Record<string, unknown> = { query: nameOf(spec.names, q), items: items[q], relevant: relevant[q] };
+    const record: Record<string, unknown> = { query: nameOf(spec.names, q) };
+    if (spec.facts?.text) record.text = spec.facts.text[q];
+    record.items = items[q];
+    record.relevant = relevant[q];
     if (spec.notRetrieved) record.notRetrieved = perQuery.unretrieved?.[q] ?? 0;
     for (const column of columns) {
       const v = column.values[q]!;
       // NaN and infinities are not JSON: null.
       record[column.key] = Number.isFinite(v) ? v : null;
+    }
+    if (spec.facts) {
+      const segments: Record<string, string> = {};
+      for (const segment of spec.facts.segments) segments[segment.name] = segment.values[q]!;
+      record.segments = segments;
     }
     record.skipped = skipped[q] === 1;
     records[q - from] = record;

@@ -1,13 +1,13 @@
 /** A Markdown summary for pull requests and experiment notes: means, conventions, worst queries. */
-import { describeConventions, formatValue, queryColumns, worstQueries, type ReportInput } from './reportInput';
+import { describeConventions, formatValue, queryColumns, worstQueries, type ReportInput, type WorstOrder } from './reportInput';
 import { markdownTable } from './textTable';
 
-export function formatMarkdown(input: ReportInput, options: { readonly worst: number }): string {
+export function formatMarkdown(input: ReportInput, options: { readonly worst: number; readonly worstOrder?: WorstOrder }): string {
   const ev = input.evaluation;
   const headline = ev.summary[ev.headline];
   const parts: string[] = [];
   parts.push(`### Evaluation of \`${input.source.replaceAll('`', "'")}\``);
-  parts.push(`${input.rowCount} rows, ${ev.queryCount} queries.  \nConventions: ${describeConventions(ev.conventions)}.`);
+  parts.push(`${input.rowCount} rows, ${ev.queryCount} queries.  \nConventions: ${describeConventions(ev.conventions)}.${ev.weighting ? `  \nWeighted means: ${ev.weighting.source}.` : ''}`);
   parts.push(
     markdownTable(
       ['metric', 'mean', 'queries'],
@@ -17,9 +17,9 @@ export function formatMarkdown(input: ReportInput, options: { readonly worst: nu
   );
   if (ev.warnings.length > 0) parts.push(ev.warnings.map((w) => `- ${w}`).join('\n'));
   if (options.worst > 0 && headline) {
-    const ids = worstQueries(ev, options.worst);
-    const columns = queryColumns(ev);
-    parts.push(`#### Worst ${ids.length} ${ids.length === 1 ? 'query' : 'queries'} by ${headline.key}`);
+    const ids = options.worstOrder ? options.worstOrder.ids.slice(0, options.worst) : worstQueries(ev, options.worst);
+    const columns = [...queryColumns(ev), ...(options.worstOrder?.column ? [options.worstOrder.column] : [])];
+    parts.push(`#### Worst ${ids.length} ${ids.length === 1 ? 'query' : 'queries'} by ${options.worstOrder?.label ?? headline.key}`);
     if (ids.length > 0) {
       parts.push(
         markdownTable(

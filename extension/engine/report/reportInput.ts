@@ -6,6 +6,7 @@ import type { Conventions, GainConvention } from '../metrics/conventions';
 import { isPairMeasure, residualMetricIndex, type MetricSpec } from '../metrics/registry';
 import type { Evaluation, PerQueryColumns } from '../evaluate/types';
 import type { StringPool } from '../model/stringPool';
+import type { QueryFacts } from '../tables/queryFacts';
 
 // Text formats live in the presentation module, shared with the editor; re-exported for the reports.
 export { describeConventions } from '../../presentation/conventionsLine';
@@ -18,6 +19,8 @@ export interface ReportInput {
   /** The file that was read, as the user named it. */
   readonly source: string;
   readonly rowCount: number;
+  /** Query text and segments, when a queries table was joined (tables/queryFacts.ts). */
+  readonly facts?: QueryFacts;
   /**
    * The JSON report's query records when they were rendered while scoring (collectQueryRecords in
    * jsonRecords.ts): consecutive query ranges in query order. Other formats ignore them.
@@ -71,6 +74,16 @@ export function worstQueries(evaluation: Evaluation, limit: number): number[] {
   for (let q = 0; q < evaluation.queryCount; q++) if (!skipped[q] && !Number.isNaN(values[q]!)) ids.push(q);
   ids.sort((a, b) => values[a]! - values[b]! || a - b);
   return ids.slice(0, Math.max(0, limit));
+}
+
+/** A worst-first order other than the headline's (the command line's --sort). */
+export interface WorstOrder {
+  /** Query ids, worst first; queries without a value are left out. */
+  readonly ids: readonly number[];
+  /** What the order is by, for the heading: "inversion cost". */
+  readonly label: string;
+  /** A column to show beside the metrics when it is not one of them (loss share, inversion cost). */
+  readonly column?: QueryColumn;
 }
 
 /** A plain-data form of the conventions for JSON output (maps become objects). */

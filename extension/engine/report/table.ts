@@ -1,10 +1,12 @@
 /** The default terminal report: means, conventions, notes, convention sensitivity, worst queries. */
-import { describeConventions, formatValue, queryColumns, worstQueries, type ReportInput } from './reportInput';
+import { describeConventions, formatValue, queryColumns, worstQueries, type ReportInput, type WorstOrder } from './reportInput';
 import { alignedTable, clip } from './textTable';
 
 export interface TableOptions {
   /** How many of the worst queries to list (0 hides the section). */
   readonly worst: number;
+  /** The worst-first order to list instead of the headline's, with what it is sorted by. */
+  readonly worstOrder?: WorstOrder;
 }
 
 const QUERY_WIDTH = 40;
@@ -27,7 +29,7 @@ export function formatTable(input: ReportInput, options: TableOptions): string {
       ),
   );
 
-  sections.push(`Conventions\n  ${describeConventions(ev.conventions)}`);
+  sections.push(`Conventions\n  ${describeConventions(ev.conventions)}${ev.weighting ? `\n  weighted means: ${ev.weighting.source}` : ''}`);
 
   if (ev.warnings.length > 0) sections.push('Notes\n' + ev.warnings.map((w) => `  - ${w}`).join('\n'));
 
@@ -48,25 +50,27 @@ export function formatTable(input: ReportInput, options: TableOptions): string {
   }
 
   if (options.worst > 0 && headline) {
-    const ids = worstQueries(ev, options.worst);
-    const columns = queryColumns(ev);
+    const ids = options.worstOrder ? options.worstOrder.ids.slice(0, options.worst) : worstQueries(ev, options.worst);
+    const columns = [...queryColumns(ev), ...(options.worstOrder?.column ? [options.worstOrder.column] : [])];
+    const text = input.facts?.text;
     const rows = ids.map((q, i) => [
       String(i + 1),
       clip(input.queryNames.get(q), QUERY_WIDTH),
+      ...(text ? [clip(text[q]!, QUERY_WIDTH)] : []),
       String(ev.perQuery.items[q]),
       String(ev.perQuery.relevant[q]),
       ...columns.map((c) => formatValue(c.valueOf(q), c.whole)),
     ]);
-    const title = `Worst ${ids.length} ${ids.length === 1 ? 'query' : 'queries'} by ${headline.key}`;
+    const title = `Worst ${ids.length} ${ids.length === 1 ? 'query' : 'queries'} by ${options.worstOrder?.label ?? headline.key}`;
     sections.push(
       ids.length === 0
         ? `${title}\n  (no query has a ${headline.key} value)`
         : title +
             '\n' +
             alignedTable(
-              ['#', 'query', 'items', 'relevant', ...columns.map((c) => c.key)],
+              ['#', 'query', ...(text ? ['text'] : []), 'items', 'relevant', ...columns.map((c) => c.key)],
               rows,
-              ['right', 'left', 'right', 'right', ...columns.map(() => 'right' as const)],
+              ['right', 'left', ...(text ? ['left' as const] : []), 'right', 'right', ...columns.map(() => 'right' as const)],
             ),
     );
   }

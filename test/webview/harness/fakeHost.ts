@@ -132,12 +132,23 @@ export function startFakeHost(options: FakeHostOptions): { send(message: HostToV
         ],
     headline: 0,
     conventions: { gain: 'exponential (2^g − 1)', ties: 'average', noRelevant: 'skip', relevantFrom: 1, maxGrade: null, rbpPersistence: 0.8, summary: 'gain exponential · ties average · no-relevant skip · relevant ≥ 1' },
-    sensitivity: [{ label: 'gain: linear', mean: 0.61, counted: 10, delta: -0.01 }],
+    sensitivity: [{ label: 'gain: exponential (as configured)', mean: 0.62, counted: 10, delta: 0, current: true }, { label: 'gain: linear', mean: 0.61, counted: 10, delta: -0.01, current: false }],
     degenerate: { singleItemQueries: 0, noRelevantQueries: queries.filter((q) => Number.isNaN(q.ndcgA)).length, duplicateRows: 2, missingScoreRows: 1, unjudgedRows: 0, tiedScoreRows: 4 },
     histogram: { lower: 0, upper: 1, counts },
     segmentColumns: ['locale'],
     warnings: ['2 duplicate rows: the first of each was kept.'],
     loadMs: 42,
+    diagnostics: {
+      scoresByGrade: {
+        edges: [0, 0.25, 0.5, 0.75, 1],
+        grades: [
+          { grade: 0, count: 40, missing: 1, q1: 0.1, median: 0.2, q3: 0.35, mean: 0.24, bins: [20, 14, 5, 1] },
+          { grade: 2, count: 12, missing: 0, q1: 0.55, median: 0.7, q3: 0.8, mean: 0.66, bins: [0, 2, 4, 6] },
+          { grade: null, count: 3, missing: 0, q1: 0.3, median: 0.4, q3: 0.5, mean: 0.4, bins: [0, 2, 1, 0] },
+        ],
+      },
+      dcgByPosition: { k: 10, depth: 3, queries: 480, predicted: [0.4, 0.15, 0.08, 0.05], ideal: [0.55, 0.25, 0.12, 0.08] },
+    },
   };
   const sortCache = new Map<string, FakeQuery[]>();
   const list = (key: string, descending: boolean, filter?: string, locale?: string): FakeQuery[] => {
@@ -241,7 +252,7 @@ export function startFakeHost(options: FakeHostOptions): { send(message: HostToV
       column: p.column,
       rows: LOCALES.map((value) => {
         const qs = queries.filter((q) => q.locale === value);
-        return { value, queries: qs.length, means: [mean(qs.map((q) => q.ndcgA)), null], headlineDelta: 0.01, lossShare: 0.25 };
+        return { value, queries: qs.length, skipped: qs.filter((q) => Number.isNaN(q.ndcgA)).length, means: [mean(qs.map((q) => q.ndcgA)), null], headlineDelta: 0.01, lossShare: 0.25 };
       }),
     }),
     exportView: () => ({ done: true, target: '/tmp/export.md' }),
@@ -285,7 +296,7 @@ export function startFakeHost(options: FakeHostOptions): { send(message: HostToV
         positions,
       };
     },
-    compareSegments: (p) => ({ column: p.column, metric: 'ndcg@10', rows: LOCALES.map((value) => ({ value, queries: 10, meanA: 0.6, meanB: 0.61, delta: 0.01, wins: 5, ties: 2, losses: 3 })) }),
+    compareSegments: (p) => ({ column: p.column, metric: 'ndcg@10', rows: LOCALES.map((value) => ({ value, queries: 10, skipped: 0, meanA: 0.6, meanB: 0.61, delta: 0.01, wins: 5, ties: 2, losses: 3, intervalLow: -0.02, intervalHigh: 0.04, tTestP: 0.41, randomizationP: 0.43 })) }),
   };
 
   const toView = (message: HostToView) => window.dispatchEvent(new MessageEvent('message', { data: JSON.parse(JSON.stringify(message)) }));

@@ -2,8 +2,8 @@
  * Column widths for the grids, so no number and no header is ever cut short.
  *
  * Every numeric column gets a minimum width that fits its widest formatted value and its header;
- * text columns (query ids, segment values) take the remaining space and are the only ones allowed
- * to end in an ellipsis. When the minimums add up to more than the panel is wide, the grid scrolls
+ * text columns (query texts, segment values) fit the texts seen up to `TEXT_MAX_CH`, take the
+ * remaining space and are the only ones allowed to end in an ellipsis. When the minimums add up to more than the panel is wide, the grid scrolls
  * sideways instead of squeezing.
  *
  * Widths are in `ch` (the advance of "0" in the grid's font). Digits are exactly 1ch under
@@ -17,6 +17,12 @@
 export const CELL_PADDING_PX = 16;
 /** Text columns never get narrower than this (room for a recognisable query id). */
 export const TEXT_MIN_CH = 18;
+/**
+ * Text columns grow to fit the texts seen, up to this: a query's whole text is worth more than spare
+ * room spread over number columns (which only scroll sideways, never cut, when the room runs out).
+ * Longer texts end in an ellipsis and show in full in the tooltip.
+ */
+export const TEXT_MAX_CH = 48;
 /** The sort arrow shown after a header label; always reserved so sorting never moves columns. */
 export const SORT_ARROW = ' ▲';
 /** Headers are semibold: wider than the regular "0" that `ch` is measured on. */
@@ -141,8 +147,8 @@ export class ColumnWidths {
   /** A value shown in column `index`; true when the column had to grow for it. */
   observe(index: number, text: string): boolean {
     const c = this.columns[index];
-    if (!c || !c.numeric) return false; // text columns end in an ellipsis instead
-    const w = textWidthCh(text);
+    if (!c) return false;
+    const w = c.numeric ? textWidthCh(text) : Math.min(TEXT_MAX_CH, textWidthCh(text));
     if (w <= this.mins[index]!) return false;
     this.mins[index] = w;
     return true;

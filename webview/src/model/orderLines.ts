@@ -11,6 +11,13 @@ export interface OrderLink {
   /** 1-based position in the ideal order. */
   readonly idealPosition: number;
   readonly gain: number;
+  /**
+   * Gain of the item the ideal order puts at this item's predicted position. When given, a line is
+   * judged by gain rather than by position: it matters only when the item's gain differs from the
+   * gain that belongs where the model put it (an item among equal gains is in place, wherever the
+   * other end lands), and its weight is that gain difference.
+   */
+  readonly slotGain?: number;
 }
 
 export type LinkDirection = 'up' | 'down' | 'same';
@@ -22,11 +29,17 @@ export interface LineSegment {
   readonly y1: number;
   readonly x2: number;
   readonly y2: number;
-  /** 'up': the ideal order puts the item higher than the model did (the model under-ranked it). */
+  /**
+   * 'up': the item belongs higher than the model put it (with `slotGain`: its gain is above the gain
+   * that belongs at its predicted position); 'down': lower; 'same': in place.
+   */
   readonly direction: LinkDirection;
   /** The other end is beyond the rows shown and was clipped to the bottom edge. */
   readonly clipped: boolean;
-  /** 0..1, the item's gain relative to the largest gain: stronger lines for items that matter more. */
+  /**
+   * 0..1 relative to the largest gain: the item's gain, or with `slotGain` the gain difference it
+   * carries, so stronger lines are the ones that cost DCG.
+   */
   readonly weight: number;
 }
 
@@ -53,7 +66,10 @@ export function lineSegments(links: readonly OrderLink[], layout: LineLayout): L
     if (!leftShown && !rightShown) continue;
     const y1 = leftShown ? top + (l.position - 0.5) * rowHeight : bottom;
     const y2 = rightShown ? top + (l.idealPosition - 0.5) * rowHeight : bottom;
-    const direction: LinkDirection = l.idealPosition < l.position ? 'up' : l.idealPosition > l.position ? 'down' : 'same';
+    const byGain = l.slotGain !== undefined;
+    const ahead = byGain ? l.gain - l.slotGain! : l.position - l.idealPosition;
+    const direction: LinkDirection = ahead > 0 ? 'up' : ahead < 0 ? 'down' : 'same';
+    const carried = byGain ? Math.abs(l.gain - l.slotGain!) : l.gain;
     out.push({
       position: l.position,
       idealPosition: l.idealPosition,
@@ -63,7 +79,7 @@ export function lineSegments(links: readonly OrderLink[], layout: LineLayout): L
       y2,
       direction,
       clipped: !(leftShown && rightShown),
-      weight: maxGain > 0 ? l.gain / maxGain : 0,
+      weight: maxGain > 0 ? Math.min(1, carried / maxGain) : 0,
     });
   }
   return out;

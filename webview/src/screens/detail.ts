@@ -9,6 +9,7 @@ import { exportParams, type ColumnDef } from '../model/tableModel';
 import { COLUMN_EXPLANATIONS, explainMetric, metricLabel } from '../model/explain';
 import { exactValue, formatCount, formatFixed } from '../model/format';
 import { twoLineChart } from '../ui/charts';
+import { scoresByGradeSection } from './scoreDiagnostics';
 import type { AppContext } from '../ui/context';
 import { button, clear, el } from '../ui/dom';
 import { highlightItem, renderConnector, renderOrderList, type ConnectorLink } from '../ui/orderLists';
@@ -43,10 +44,11 @@ export class DetailScreen {
   private readonly chartNote = el('p', { className: 'gl-muted' });
   private readonly chartSection = el('section', {}, el('h2', { text: 'Cumulative DCG: model against ideal' }), this.chartNote, el('div', { className: 'gl-chart' }, this.chartCanvas));
   private readonly pairsBox = el('div');
+  private readonly scoresBox = el('div');
   private readonly emptyNote = el('p', { className: 'gl-muted', text: 'Pick a query (Enter or click on its row) to see its ranked list here.' });
 
   constructor(private readonly ctx: AppContext, private readonly options: DetailOptions) {
-    this.element.append(this.emptyNote, this.headBox, this.ordersBox, this.chartSection, this.pairsBox);
+    this.element.append(this.emptyNote, this.headBox, this.ordersBox, this.chartSection, this.scoresBox, this.pairsBox);
     this.renderEmpty();
   }
 
@@ -94,14 +96,15 @@ export class DetailScreen {
   }
 
   private renderEmpty(): void {
-    for (const box of [this.headBox, this.ordersBox, this.pairsBox]) clear(box);
+    for (const box of [this.headBox, this.ordersBox, this.scoresBox, this.pairsBox]) clear(box);
     this.emptyNote.hidden = false;
     this.chartSection.hidden = true;
   }
 
   private render(): void {
     const d = this.detail!;
-    for (const box of [this.headBox, this.ordersBox, this.pairsBox]) clear(box);
+    for (const box of [this.headBox, this.ordersBox, this.scoresBox, this.pairsBox]) clear(box);
+    if (d.scoresByGrade) this.scoresBox.appendChild(scoresByGradeSection(d.scoresByGrade, 'gl-detail-scores-by-grade'));
     this.emptyNote.hidden = true;
     this.chartSection.hidden = false;
     const conv = this.options.conventionsSummary();
@@ -132,6 +135,7 @@ export class DetailScreen {
     this.headBox.append(
       el('div', { className: 'gl-detail-head' },
         el('span', { id: 'gl-detail-query', text: d.query, title: 'Query id' }),
+        ...(d.text ? [el('span', { id: 'gl-detail-query-text', text: d.text, title: 'Query text (queries table)' })] : []),
         el('span', { className: 'gl-muted', text: `${formatCount(d.positions.length)} items · DCG@${d.k} ${formatFixed(d.dcg)} of ideal ${formatFixed(d.idealDcg)}`, title: `NDCG@${d.k} = DCG / ideal DCG = ${exactValue(d.dcg)} / ${exactValue(d.idealDcg)}` })),
       chips,
       actions,
@@ -149,6 +153,7 @@ export class DetailScreen {
 
   private renderOrders(d: QueryDetailView): void {
     const rowsShown = Math.min(this.shown, d.positions.length);
+    const hasTitles = d.positions.some((p) => p.title !== undefined);
     let maxContribution = 0;
     for (const p of d.positions) if (p.contribution > maxContribution) maxContribution = p.contribution;
     const predicted = renderOrderList(
@@ -158,6 +163,7 @@ export class DetailScreen {
         headers: [
           { text: 'Pos', title: 'Position in the predicted order.', numeric: true },
           { text: 'Item', title: 'Item id.' },
+          ...(hasTitles ? [{ text: 'Title', title: 'Item title from the items table.' }] : []),
           { text: 'Label', title: 'Graded relevance from the file.', numeric: true },
           { text: 'Score', title: 'Model score; the list is sorted by it (descending).', numeric: true },
           { text: 'Gain', title: COLUMN_EXPLANATIONS['gain']!, numeric: true },
@@ -171,6 +177,7 @@ export class DetailScreen {
           cells: [
             { text: String(p.position), numeric: true },
             { text: p.item, title: p.item },
+            ...(hasTitles ? [{ text: p.title ?? '', title: p.title ?? '' }] : []),
             { text: grade(p.label), numeric: true },
             { text: p.score === null ? 'missing' : formatFixed(p.score), numeric: true, title: p.score === null ? 'Missing score: ranked after every scored item.' : exactValue(p.score) },
             { text: formatFixed(p.gain, 2), numeric: true, title: exactValue(p.gain) },
@@ -184,10 +191,11 @@ export class DetailScreen {
     const ideal = renderOrderList(
       {
         id: 'gl-ideal-order',
-        label: 'Ideal order (by grade)',
+        label: 'Ideal order (by grade; the model’s order within a grade)',
         headers: [
-          { text: 'Pos', title: 'Position in the ideal order: grade descending, file order within a grade.', numeric: true },
+          { text: 'Pos', title: 'Position in the ideal order: grade descending, and within a grade the order the model gave, so items of equal grade never swap places.', numeric: true },
           { text: 'Item', title: 'Item id.' },
+          ...(hasTitles ? [{ text: 'Title', title: 'Item title from the items table.' }] : []),
           { text: 'Label', title: 'Graded relevance.', numeric: true },
           { text: 'Gain', title: COLUMN_EXPLANATIONS['gain']!, numeric: true },
           { text: 'Model', title: 'Where the model ranked this item.', numeric: true },
@@ -198,6 +206,7 @@ export class DetailScreen {
           cells: [
             { text: String(q.position), numeric: true },
             { text: q.item, title: q.retrieved ? q.item : `${q.item}: judged, but the run never retrieved it` },
+            ...(hasTitles ? [{ text: q.title ?? '', title: q.title ?? '' }] : []),
             { text: grade(q.label), numeric: true },
             { text: formatFixed(q.gain, 2), numeric: true, title: exactValue(q.gain) },
             q.retrieved ? { text: String(q.predictedPosition), numeric: true, title: q.predictedPosition === q.position ? 'Same position as ideal.' : `${q.predictedPosition > q.position ? 'ranked' : 'promoted'} ${Math.abs(q.predictedPosition - q.position)} place(s) ${q.predictedPosition > q.position ? 'too low' : 'above its ideal place'}` }
@@ -207,17 +216,18 @@ export class DetailScreen {
       },
       (item) => this.pick(item),
     );
-    const links: ConnectorLink[] = d.positions.map((p) => ({ position: p.position, idealPosition: p.idealPosition, gain: p.gain, item: p.item }));
+    // Each line is judged against the gain that belongs at the item's predicted position.
+    const links: ConnectorLink[] = d.positions.map((p) => ({ position: p.position, idealPosition: p.idealPosition, gain: p.gain, slotGain: d.ideal[p.position - 1]?.gain ?? 0, item: p.item }));
     const svg = renderConnector(links, rowsShown, 'Lines joining each item’s predicted position to its ideal position');
     const orders = el('div', { className: 'gl-orders' }, predicted, el('div', {}, svg), ideal);
 
     this.ordersBox.append(
       el('h2', { text: 'Predicted order against the ideal order' }),
       el('div', { className: 'gl-legend' },
-        el('span', {}, el('span', { className: 'gl-swatch up' }), 'belongs higher (ranked too low)'),
-        el('span', {}, el('span', { className: 'gl-swatch down' }), 'belongs lower'),
-        el('span', {}, el('span', { className: 'gl-swatch same' }), 'in place'),
-        el('span', { text: `Stronger lines: larger gain. Dashed: other end beyond the rows shown. Dashed row border: the cut-off @${d.k}.` })),
+        el('span', {}, el('span', { className: 'gl-swatch up' }), 'belongs higher: more gain than its place calls for'),
+        el('span', {}, el('span', { className: 'gl-swatch down' }), 'belongs lower: less gain than its place calls for'),
+        el('span', {}, el('span', { className: 'gl-swatch same' }), 'in place: the gain its place calls for'),
+        el('span', { text: `Stronger lines: larger gain difference. Within a grade the ideal order keeps the model’s order. Dashed: other end beyond the rows shown. Dashed row border: the cut-off @${d.k}.` })),
       orders,
     );
     if (rowsShown < d.positions.length) {
@@ -291,6 +301,7 @@ export class DetailScreen {
     const columns: ColumnDef<PositionView>[] = [
       { key: 'position', label: 'Position', title: '', value: (p) => p.position },
       { key: 'item', label: 'Item', title: '', value: (p) => p.item },
+      ...(d.positions.some((p) => p.title !== undefined) ? [{ key: 'title', label: 'Title', title: '', value: (p: PositionView) => p.title ?? '' }] : []),
       { key: 'label', label: 'Label', title: '', value: (p) => p.label },
       { key: 'score', label: 'Score', title: '', value: (p) => p.score },
       { key: 'gain', label: 'Gain', title: '', value: (p) => p.gain },

@@ -11,17 +11,21 @@ import { barChart } from '../ui/charts';
 import type { AppContext } from '../ui/context';
 import { button, clear, el } from '../ui/dom';
 import { staticTable } from '../ui/staticTable';
+import { dcgByPositionSection, scoresByGradeSection } from './scoreDiagnostics';
 
 const num = (v: number | null): number => (v === null ? NaN : v);
 
 export class OverviewScreen {
   readonly element = el('div', { id: 'gl-overview' });
   private chart: Chart | undefined;
+  private diagnosticCharts: Chart[] = [];
 
   constructor(private readonly ctx: AppContext) {}
 
   render(model: OverviewModel): void {
     this.chart?.destroy();
+    for (const c of this.diagnosticCharts) c.destroy();
+    this.diagnosticCharts = [];
     clear(this.element);
     const headline = model.metrics[model.headline]!;
     const conv = model.conventions.summary;
@@ -69,6 +73,7 @@ export class OverviewScreen {
       ['ERR maximum grade', c.maxGrade === null ? 'highest grade in the data' : String(c.maxGrade), 'g_max in ERR’s stopping probability (2^g − 1) / 2^g_max.'],
       ['RBP persistence', formatFixed(c.rbpPersistence, 2), 'p in rank-biased precision.'],
     ];
+    if (model.weighting) pairs.push(['Query weights', model.weighting, 'Means are weighted by query: Σ w·x / Σ w. Queries without a weight are left out.']);
     for (const [k, v, why] of pairs) conventions.append(el('dt', { text: k, title: why }), el('dd', { text: v, title: why }));
 
     const canvas = el('canvas', {
@@ -101,7 +106,8 @@ export class OverviewScreen {
         ],
         rows: [
           [{ text: 'current settings' }, { text: formatFixed(num(headline.mean)), title: exactValue(num(headline.mean)) }, '', formatCount(headline.counted)],
-          ...model.sensitivity.map((s) => s.unavailable !== undefined ? [
+          // The engine repeats the current conventions once per dimension; the first row says it once.
+          ...model.sensitivity.filter((s) => !s.current).map((s) => s.unavailable !== undefined ? [
             s.label,
             { text: 'n/a', title: s.unavailable },
             { text: '', title: s.unavailable },
@@ -115,6 +121,14 @@ export class OverviewScreen {
         ],
       }),
     );
+
+    if (model.diagnostics) {
+      // Appended before the charts are drawn: chart.js sizes a canvas from its place in the page.
+      const box = el('div', { id: 'gl-score-diagnostics', className: 'gl-grid2' });
+      this.element.appendChild(box);
+      box.append(scoresByGradeSection(model.diagnostics.scoresByGrade, 'gl-scores-by-grade', this.diagnosticCharts),
+        dcgByPositionSection(model.diagnostics.dcgByPosition, this.diagnosticCharts));
+    }
 
     this.element.appendChild(el('h2', { text: 'Data found and how it was handled' }));
     const d = model.degenerate as unknown as Record<string, number>;

@@ -4,11 +4,12 @@
  */
 import type { CompareSegmentRow, SegmentRow } from '../../../extension/protocol/messages';
 import { COLUMN_EXPLANATIONS, explainMetric } from '../model/explain';
-import { exactValue, formatCount, formatDelta, formatFixed, formatShare, MISSING } from '../model/format';
+import { exactValue, formatCount, formatDelta, formatFixed, formatP, formatShare, MISSING } from '../model/format';
 import { sortRows, toggleSort, type SortState } from '../model/sortState';
 import { SAMPLES } from '../model/columnLayout';
 import { exportParams, type Cell, type ColumnDef } from '../model/tableModel';
 import type { AppContext } from '../ui/context';
+import { ColumnChooser } from '../ui/columnChooser';
 import { button, el, fillSelect, select } from '../ui/dom';
 import { arraySource, VirtualTable } from '../ui/virtualTable';
 
@@ -17,6 +18,9 @@ type Row = SegmentRow | CompareSegmentRow;
 const fixed = (v: Cell): string => (typeof v === 'number' ? formatFixed(v) : MISSING);
 const delta = (v: Cell): string => (typeof v === 'number' ? formatDelta(v) : MISSING);
 const count = (v: Cell): string => (typeof v === 'number' ? formatCount(v) : MISSING);
+const pValue = (v: Cell): string => (typeof v === 'number' ? formatP(v) : MISSING);
+const interval = (r: CompareSegmentRow): string =>
+  r.intervalLow === null || r.intervalHigh === null ? MISSING : `${formatDelta(r.intervalLow)} to ${formatDelta(r.intervalHigh)}`;
 
 export interface SegmentsSetup {
   readonly compare: boolean;
@@ -38,6 +42,7 @@ export class SegmentsScreen {
   private readonly table: VirtualTable<Row>;
   private readonly note = el('p', { className: 'gl-muted' });
   private token = 0;
+  private readonly chooser = new ColumnChooser('gl-segments-columns', () => this.applyColumns());
 
   constructor(private readonly ctx: AppContext) {
     const col = select({ id: 'gl-segment-column', label: 'Column', values: [] }, () => void this.load());
@@ -64,7 +69,7 @@ export class SegmentsScreen {
       },
     });
     this.element.append(
-      el('div', { className: 'gl-toolbar' }, col.wrapper, met.wrapper, el('span', { className: 'gl-spacer' }),
+      el('div', { className: 'gl-toolbar' }, col.wrapper, met.wrapper, el('span', { className: 'gl-spacer' }), this.chooser.element,
         button('Markdown', { icon: 'markdown', secondary: true, title: 'Export this table as Markdown', onClick: () => this.export('markdown') }),
         button('CSV', { icon: 'export', secondary: true, title: 'Export this table as CSV', onClick: () => this.export('csv') })),
       this.note,
@@ -80,7 +85,8 @@ export class SegmentsScreen {
     fillSelect(this.metricSelect, setup.metrics.map((m) => ({ value: m.key, text: m.label })), previousMetric || setup.metrics[setup.headline]?.key);
     this.metricField.hidden = !setup.compare;
     this.columnSelect.disabled = setup.columns.length === 0;
-    this.table.setColumns(this.columns(setup));
+    this.chooser.setColumns(this.columns(setup));
+    this.applyColumns();
     if (setup.columns.length === 0) {
       this.rows = this.sorted = [];
       this.note.textContent = 'This dump has no extra columns to group by. Name them in the gainline.columnsByPattern setting (for example locale or device).';
@@ -108,6 +114,10 @@ export class SegmentsScreen {
     }
   }
 
+  private applyColumns(): void {
+    if (this.setup) this.table.setColumns(this.chooser.shown(this.columns(this.setup)));
+  }
+
   private applySort(): void {
     const col = this.columns(this.setup!).find((c) => c.key === this.sort.key);
     this.sorted = col ? sortRows(this.rows, col.value, this.sort.descending) : this.rows;
@@ -118,6 +128,18 @@ export class SegmentsScreen {
     const cols: ColumnDef<Row>[] = [
       { key: 'value', label: this.columnSelect.value || 'Value', title: 'Value of the chosen column.', value: (r) => r.value, sortable: true, width: 2, sticky: true },
       { key: 'queries', label: 'Queries', title: COLUMN_EXPLANATIONS['queries']!, value: (r) => r.queries, format: count, numeric: true, sortable: true, sample: SAMPLES.count },
+      {
+        key: 'skipped',
+        label: 'Skipped',
+        title: setup.compare
+          ? 'Queries of this segment left out of the comparison of this metric: it is undefined in A or B (nothing relevant, under the “skip” convention). Wins + ties + losses + skipped = queries.'
+          : 'Queries of this segment left out of the means: nothing relevant, under the “skip” convention.',
+        value: (r) => r.skipped,
+        format: count,
+        numeric: true,
+        sortable: true,
+        sample: SAMPLES.count,
+      },
     ];
     if (setup.compare) {
       const g = (r: Row) => r as CompareSegmentRow;
@@ -128,6 +150,9 @@ export class SegmentsScreen {
         { key: 'wins', label: 'Wins', title: COLUMN_EXPLANATIONS['wins']!, value: (r) => g(r).wins, format: count, numeric: true, sortable: true, sample: SAMPLES.count },
         { key: 'ties', label: 'Ties', title: COLUMN_EXPLANATIONS['ties']!, value: (r) => g(r).ties, format: count, numeric: true, sortable: true, sample: SAMPLES.count },
         { key: 'losses', label: 'Losses', title: COLUMN_EXPLANATIONS['losses']!, value: (r) => g(r).losses, format: count, numeric: true, sortable: true, sample: SAMPLES.count },
+        { key: 'interval', label: '95% interval of Δ', title: 'Percentile bootstrap of the segment’s mean Δ, with the comparison’s resamples and seed (as in the A vs B table).', value: (r) => interval(g(r)), numeric: true, sample: '+0.0000 to +0.0000' },
+        { key: 'tTestP', label: 'p (t-test)', title: 'Two-sided paired t-test on the segment’s per-query differences. Not adjusted for the number of segments.', value: (r) => g(r).tTestP, format: pValue, numeric: true, sortable: true, sample: SAMPLES.p },
+        { key: 'randomizationP', label: 'p (randomization)', title: 'Two-sided paired randomization (sign-flip) test on the segment’s differences, with the comparison’s permutations and seed. Not adjusted for the number of segments.', value: (r) => g(r).randomizationP, format: pValue, numeric: true, sortable: true, sample: SAMPLES.p },
       );
     } else {
       const s = (r: Row) => r as SegmentRow;

@@ -11,6 +11,7 @@ import { normalizeFilter, toggleSort, type SortState } from '../model/sortState'
 import { SAMPLES } from '../model/columnLayout';
 import { exportParams, type Cell, type ColumnDef } from '../model/tableModel';
 import type { AppContext } from '../ui/context';
+import { ColumnChooser } from '../ui/columnChooser';
 import { button, el, fillSelect, select } from '../ui/dom';
 import { pagedSource, VirtualTable } from '../ui/virtualTable';
 
@@ -33,6 +34,7 @@ export class WorstScreen {
   private readonly segValue: HTMLSelectElement;
   private readonly summary = el('span', { className: 'gl-muted', attrs: { 'aria-live': 'polite' } });
   private filterTimer: ReturnType<typeof setTimeout> | undefined;
+  private readonly chooser = new ColumnChooser('gl-worst-columns', () => this.applyColumns());
 
   constructor(private readonly ctx: AppContext) {
     this.cache = new PageCache<QueryRow>((offset, limit) => this.fetch(offset, limit), PAGE, () => this.onRows());
@@ -51,7 +53,7 @@ export class WorstScreen {
     this.filterInput = el('input', {
       id: 'gl-worst-filter',
       className: 'gl-input',
-      attrs: { type: 'search', placeholder: 'Filter by query id…', 'aria-label': 'Filter queries by id (substring, case-insensitive)', spellcheck: 'false' },
+      attrs: { type: 'search', placeholder: 'Filter by query text…', 'aria-label': 'Filter queries by text (substring, case-insensitive)', spellcheck: 'false' },
     });
     this.filterInput.addEventListener('input', () => {
       clearTimeout(this.filterTimer);
@@ -71,7 +73,7 @@ export class WorstScreen {
     this.segValue.setAttribute('aria-label', 'Segment value to keep');
     this.element.append(
       el('div', { className: 'gl-toolbar', attrs: { role: 'toolbar', 'aria-label': 'Worst queries filters' } },
-        this.filterInput, col.wrapper, val.wrapper, el('span', { className: 'gl-spacer' }), this.summary,
+        this.filterInput, col.wrapper, val.wrapper, el('span', { className: 'gl-spacer' }), this.summary, this.chooser.element,
         button('Markdown', { icon: 'markdown', secondary: true, title: 'Export the table in this order (up to 10 000 rows) as Markdown', onClick: () => void this.export('markdown') }),
         button('CSV', { icon: 'export', secondary: true, title: 'Export the table in this order (up to 10 000 rows) as CSV', onClick: () => void this.export('csv') }),
         button('Copy query as JSON', { icon: 'json', secondary: true, title: 'Copy the active query with its items as JSON', onClick: () => this.copyActive() })),
@@ -82,7 +84,7 @@ export class WorstScreen {
   /** New data. `keep` keeps sort, filters and the active row (live refresh). */
   setModel(model: OverviewModel, keep: boolean): void {
     const headlineKey = model.metrics[model.headline]!.key;
-    const validKeys = new Set([...model.metrics.map((m) => m.key), 'query', 'items', 'relevant', 'inversions', 'inversionCost', 'lossShare']);
+    const validKeys = new Set([...model.metrics.map((m) => m.key), 'query', 'items', 'relevant', 'inversions', 'inversionCost']);
     if (!keep || !validKeys.has(this.sort.key)) this.sort = { key: headlineKey, descending: false };
     this.model = model;
     const segmentColumns = model.segmentColumns;
@@ -96,9 +98,14 @@ export class WorstScreen {
       fillSelect(this.segValue, []);
       this.segValue.disabled = true;
     }
-    this.table.setColumns(this.columns(model));
+    this.chooser.setColumns(this.columns(model));
+    this.applyColumns();
     this.cache.reset();
     this.table.refresh(!keep);
+  }
+
+  private applyColumns(): void {
+    if (this.model) this.table.setColumns(this.chooser.shown(this.columns(this.model)));
   }
 
   focusTable(): void {
@@ -111,6 +118,7 @@ export class WorstScreen {
       { key: 'rank', label: '#', title: 'Position in the current order.', value: (r) => r.index + 1, numeric: true, width: 0, sample: SAMPLES.rank, sticky: true },
       { key: 'query', label: 'Query', title: COLUMN_EXPLANATIONS['query']!, value: (r) => r.query, sortable: true, width: 3, sticky: true },
     ];
+    if (model.queryText) cols.push({ key: 'text', label: 'Text', title: 'Query text from the queries table; the filter matches it too.', value: (r) => r.text ?? '', width: 3 });
     model.metrics.forEach((m, i) =>
       cols.push({ key: m.key, label: m.label, title: explainMetric(m.key, conv), value: (r) => r.values[i] ?? null, format: fixed, numeric: true, sortable: true, sample: SAMPLES.unitFixed }),
     );
@@ -122,11 +130,13 @@ export class WorstScreen {
       {
         key: 'lossShare',
         label: 'Share of loss',
-        title: COLUMN_EXPLANATIONS['lossShare']!,
+        // (1 − NDCG_q) / Σ(1 − NDCG): one scale for every query, so it orders the queries exactly as
+        // NDCG does; a sort of its own would only repeat the NDCG sort, so the header does not offer one.
+        title: `${COLUMN_EXPLANATIONS['lossShare']!}\nNot sortable on its own: it orders queries exactly as ${model.metrics[model.headline]!.label} does (sort by that).`,
         value: (r) => r.lossShare,
         format: (v) => (typeof v === 'number' ? formatShare(v) : MISSING),
         numeric: true,
-        sortable: true,
+        sortable: false,
         sample: SAMPLES.share,
         bar: (r) => (r.lossShare === null ? null : Math.min(1, r.lossShare * 20)),
       },

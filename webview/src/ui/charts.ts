@@ -170,6 +170,48 @@ export function twoLineChart(canvas: HTMLCanvasElement, data: LineSeriesInput): 
   });
 }
 
+export interface SeriesLinesInput {
+  /** Category labels along x. */
+  readonly labels: readonly string[];
+  /** `muted` series (e.g. unjudged rows) are drawn in the muted colour, outside the ramp. */
+  readonly series: readonly { readonly label: string; readonly values: readonly (number | null)[]; readonly muted?: boolean }[];
+  readonly xTitle: string;
+  readonly yTitle: string;
+}
+
+/**
+ * Several lines over the same categories (e.g. the score distribution of each grade). Colours run from
+ * the "worse" to the "better" theme colour in series order; dashes differ too, so colour is not the only cue.
+ */
+export function seriesLinesChart(canvas: HTMLCanvasElement, data: SeriesLinesInput): Chart {
+  const colorsOf = (pal: ChartPalette) => {
+    const ramp = [pal.worse, pal.seriesB, pal.seriesA, pal.better];
+    const n = data.series.filter((s) => !s.muted).length;
+    return data.series.map((s, i) => (s.muted ? pal.muted : ramp[n <= 1 ? ramp.length - 1 : Math.round((i * (ramp.length - 1)) / (n - 1))]!));
+  };
+  const dashes = [[], [6, 3], [2, 2], [8, 3, 2, 3], [4, 4]];
+  const p = currentPalette();
+  const colors = colorsOf(p);
+  const config: ChartConfiguration<'line'> = {
+    type: 'line',
+    data: {
+      labels: [...data.labels],
+      datasets: data.series.map((s, i) => ({
+        label: s.label, data: [...s.values], borderColor: colors[i], backgroundColor: colors[i], pointRadius: 1, borderWidth: 2, borderDash: dashes[i % dashes.length],
+      })),
+    },
+    options: { ...baseOptions(p, data.xTitle, data.yTitle), interaction: { mode: 'index', intersect: false } },
+  };
+  const chart = new Chart(canvas, config);
+  return track(chart, (pal) => {
+    const fresh = colorsOf(pal);
+    chart.data.datasets.forEach((ds, i) => {
+      ds.borderColor = ds.backgroundColor = fresh[i]!;
+    });
+    restyleAxes(chart, pal);
+  });
+}
+
 export interface ScatterInput {
   readonly points: readonly { x: number; y: number; query: string }[];
   readonly xTitle: string;

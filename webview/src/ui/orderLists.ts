@@ -8,6 +8,8 @@ import { lineSegments, segmentPath, type OrderLink } from '../model/orderLines';
 import { clear, el } from './dom';
 
 export const ORDER_ROW_HEIGHT = 22;
+/** Width of the strip between the lists (styles.css: .gl-orders, second column). */
+const CONNECTOR_WIDTH = 96;
 /** A cell's horizontal padding (styles.css: .gl-order-row > span, 0 4px). */
 const ORDER_CELL_PADDING_PX = 8;
 const SVG_NS = 'http://www.w3.org/2000/svg';
@@ -97,7 +99,7 @@ export interface ConnectorLink extends OrderLink {
 
 /** The SVG between the lists. `rowsShown` rows are drawn under a header of one row height. */
 export function renderConnector(links: readonly ConnectorLink[], rowsShown: number, label: string): SVGSVGElement {
-  const width = 80;
+  const width = CONNECTOR_WIDTH;
   const height = (rowsShown + 1) * ORDER_ROW_HEIGHT + 6;
   const svg = document.createElementNS(SVG_NS, 'svg');
   svg.setAttribute('class', 'gl-links');
@@ -108,11 +110,15 @@ export function renderConnector(links: readonly ConnectorLink[], rowsShown: numb
   svg.setAttribute('aria-label', label);
   const segments = lineSegments(links, { rowHeight: ORDER_ROW_HEIGHT, width, rowsShown, top: ORDER_ROW_HEIGHT });
   const byPosition = new Map(links.map((l) => [l.position, l.item]));
-  for (const s of segments) {
+  // Lines that carry nothing are drawn first, thin and faint; the ones that cost the most go on top.
+  const drawOrder = [...segments].sort((x, y) => rank(x) - rank(y));
+  for (const s of drawOrder) {
     const path = document.createElementNS(SVG_NS, 'path');
     path.setAttribute('d', segmentPath(s));
-    path.setAttribute('class', `${s.direction}${s.clipped ? ' clipped' : ''}`);
-    path.setAttribute('stroke-opacity', String(0.35 + 0.65 * s.weight));
+    const quiet = s.direction === 'same' || s.weight === 0;
+    path.setAttribute('class', `${quiet ? 'same quiet' : s.direction}${s.clipped ? ' clipped' : ''}`);
+    path.setAttribute('stroke-opacity', quiet ? '0.3' : String(0.55 + 0.45 * s.weight));
+    path.setAttribute('stroke-width', quiet ? '0.8' : String(1.2 + 1.6 * s.weight));
     const item = byPosition.get(s.position) ?? '';
     path.dataset['item'] = item;
     const title = document.createElementNS(SVG_NS, 'title');
@@ -121,6 +127,10 @@ export function renderConnector(links: readonly ConnectorLink[], rowsShown: numb
     svg.appendChild(path);
   }
   return svg;
+}
+
+function rank(s: { direction: string; weight: number }): number {
+  return s.direction === 'same' ? -1 : s.weight;
 }
 
 /** Highlights one item's rows and line across the lists inside `root`. */

@@ -1,0 +1,136 @@
+#!/usr/bin/env node
+// Many runs, end to end through dist/cli.js, timed from outside with /usr/bin/time -v (wall, CPU = user +
+// system over all threads, peak RSS of the process):
+//   1. `trend` over 50 checkpoints of 100k rows each. Target: ≤ 5 s and peak RSS ≤ 1 GB.
+//   2. `compare BASE C1 … C5` on 1M-row runs against `eval` of the same six files one by one.
+//      Target: the comparison takes ≤ 2× the time of evaluating them.
+// Checkpoints and candidates are one generated dump with its scores moved by seeded noise, so queries,
+// items and grades match as they do between checkpoints of one job. Usage: node test/bench/bench-runs.mjs
+// [--only trend|candidates]
+import { spawn, spawnSync } from 'node:child_process';
+import { existsSync, mkdirSync, readFileSync, statSync, writeFileSync } from 'node:fs';
+import { loadavg } from 'node:os';
+import { dirname, join, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { parseArgs } from 'node:util';
+
+const here = dirname(fileURLToPath(import.meta.url));
+const root = resolve(here, '../..');
+const dataDir = join(here, 'data');
+const cli = join(root, 'dist/cli.js');
+const TIME = '/usr/bin/time';
+const { values: args } = parseArgs({ options: { only: { type: 'string' } } });
+
+const fmt = (x, digits = 2) => (Number.isFinite(x) ? x.toFixed(digits) : '—');
+const loadNote = () => `load average ${loadavg().map((x) => x.toFixed(1)).join(' ')}`;
+
+function generate(file, rows, queries, seed) {
+  if (existsSync(file)) return;
+  mkdirSync(dirname(file), { recursive: true });
+  const r = spawnSync(process.execPath, [join(root, 'test/support/make-demo-data.mjs'), '--rows', String(rows), '--queries', String(queries),
+    '--seed', String(seed), '--out', file], { stdio: 'inherit' });
+  if (r.status !== 0) throw new Error(`generating ${file} failed`);
+}
+
+/** xorshift32, seeded: derived files are the same every time. */
+function rng(seed) {
+  let x = seed >>> 0 || 1;
+  return () => {
+    x ^= x << 13;
+    x ^= x >>> 17;
+    x ^= x << 5;
+    return (x >>> 0) / 4294967296;
+  };
+}
+
+/** `source` with the score (4th field) moved by seeded noise of the given spread; no quoted fields in it. */
+function derive(source, file, seed, spread, drift = 0) {
+  if (existsSync(file) && statSync(file).mtimeMs >= statSync(source).mtimeMs) return;
+  mkdirSync(dirname(file), { recursive: true });
+  const random = rng(seed);
+  const lines = readFileSync(source, 'utf8').split('\n');
+  for (let i = 1; i < lines.length; i++) {
+    if (lines[i] === '') continue;
+    const fields = lines[i].split(',');
+    const grade = Number(fields[2]);
+    fields[3] = (Number(fields[3]) + (random() - 0.5) * spread + drift * grade).toFixed(4);
+    lines[i] = fields.join(',');
+  }
+  writeFileSync(file, lines.join('\n'));
+}
+
+function timedCli(argv) {
+  return new Promise((done, fail) => {
+    const start = process.hrtime.bigint();
+    const child = spawn(TIME, ['-v', process.execPath, cli, ...argv], { cwd: root, stdio: ['ignore', 'pipe', 'pipe'] });
+    const out = [];
+    let err = '';
+    child.stdout.on('data', (d) => out.push(d));
+    child.stderr.on('data', (d) => (err += d));
+    child.on('error', fail);
+    child.on('close', (code) => {
+      const seconds = Number(process.hrtime.bigint() - start) / 1e9;
+      if (code !== 0) return fail(new Error(`gainline ${argv.join(' ')} exited ${code}:\n${err.slice(-2000)}`));
+      const user = /User time \(seconds\): ([\d.]+)/.exec(err);
+      const system = /System time \(seconds\): ([\d.]+)/.exec(err);
+      const rss = /Maximum resident set size \(kbytes\): (\d+)/.exec(err);
+      done({ seconds, cpu: Number(user?.[1]) + Number(system?.[1]), peakMB: Number(rss?.[1]) / 1024, stdout: Buffer.concat(out).toString('utf8') });
+    });
+  });
+}
+
+const line = (label, r) => console.log(`  ${label.padEnd(28)} ${fmt(r.seconds)} s wall, ${fmt(r.cpu)} s CPU, peak ${fmt(r.peakMB, 0)} MB`);
+
+async function benchTrend() {
+  const folder = join(dataDir, 'series-50x100k');
+  const base = join(dataDir, 'series-base-100k.csv');
+  generate(base, 100_000, 1_000, 4242);
+  // Training: the scores drift towards the grades over the first checkpoints, then wander.
+  for (let k = 1; k <= 50; k++) derive(base, join(folder, `epoch-${k}.csv`), 1000 + k, 1.5, 0.02 * Math.min(k, 20));
+  console.log(`trend over 50 checkpoints × 100k rows (1,000 queries each) in ${folder} (${loadNote()})`);
+  const r = await timedCli(['trend', folder, '--format', 'json']);
+  line('trend DIR --format json', r);
+  const report = JSON.parse(r.stdout);
+  const headline = report.headline;
+  console.log(`  ${report.runs.length} checkpoints, ${report.querySets.queries} queries; ${headline} ${fmt(report.runs[0].summary[headline], 4)} → ` +
+    `${fmt(report.runs.at(-1).summary[headline], 4)}, peak at ${report.peaks[headline].run}`);
+  console.log(`  target ≤ 5 s: ${fmt(r.seconds)} s → ${r.seconds <= 5 ? 'met' : 'MISSED'}; ` +
+    `peak RSS ≤ 1 GB: ${fmt(r.peakMB, 0)} MB → ${r.peakMB <= 1024 ? 'met' : 'MISSED'}`);
+}
+
+async function benchCandidates() {
+  const base = join(dataDir, 'dump-1m.csv');
+  generate(base, 1_000_000, 10_000, 1);
+  const candidates = [1, 2, 3, 4, 5].map((k) => {
+    const file = join(dataDir, `dump-1m-candidate-${k}.csv`);
+    derive(base, file, 7000 + k, 1.2, 0.05 * (k - 3));
+    return file;
+  });
+  const files = [base, ...candidates];
+  console.log(`one baseline against 5 candidates, 1M rows each (${loadNote()})`);
+  const evals = [];
+  for (const file of files) evals.push(await timedCli(['eval', file, '--format', 'json']));
+  const evalSeconds = evals.reduce((s, r) => s + r.seconds, 0);
+  const evalCpu = evals.reduce((s, r) => s + r.cpu, 0);
+  line('eval each of the 6 (sum)', { seconds: evalSeconds, cpu: evalCpu, peakMB: Math.max(...evals.map((r) => r.peakMB)) });
+  const compare = await timedCli(['compare', ...files, '--format', 'json']);
+  line('compare BASE C1 … C5', compare);
+  // The comparison must have scored what eval scored, or the ratio compares different work.
+  const report = JSON.parse(compare.stdout);
+  const key = report.headline;
+  const agree = report.candidates.every((c, i) => {
+    const m = c.metrics.find((x) => x.key === key);
+    return Math.abs(m.meanA - JSON.parse(evals[0].stdout).summary[key]) < 1e-9 && Math.abs(m.meanB - JSON.parse(evals[i + 1].stdout).summary[key]) < 1e-9;
+  });
+  console.log(`  ranking on ${key}: ${report.ranking.order.map((f) => f.replace(/^.*\//, '')).join(' > ')}; compare and eval means ${agree ? 'agree' : 'DIFFER'}`);
+  if (!agree) process.exitCode = 1;
+  const wall = compare.seconds / evalSeconds;
+  const cpu = compare.cpu / evalCpu;
+  console.log(`  target: compare ≤ 2× (sum of the six evals): wall ${fmt(wall)}×, CPU ${fmt(cpu)}× → ` +
+    `${wall <= 2 ? 'met' : 'MISSED'} on wall time, ${cpu <= 2 ? 'met' : 'MISSED'} on CPU time`);
+}
+
+if (!existsSync(cli)) throw new Error('dist/cli.js is missing: run "npm run build" first (npm run bench does)');
+if (!existsSync(TIME)) throw new Error(`${TIME} is missing (Debian package "time"): it gives peak RSS and CPU time`);
+if (!args.only || args.only === 'trend') await benchTrend();
+if (!args.only || args.only === 'candidates') await benchCandidates();
