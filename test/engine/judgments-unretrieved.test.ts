@@ -94,6 +94,16 @@ describe('missing queries', () => {
     expect(e.summary[0]).toEqual({ key: 'ndcg@10', mean: 1 / 3, counted: 3 });
     expect(e.warnings.join(' ')).toMatch(/2 judged queries have no row in the run/);
   });
+
+  it('zero: the rows under other conventions count the added queries as 0, like the headline', () => {
+    const e = evaluate(joined(rows, judgments, 'zero'), parseMetricList('ndcg@10'), DEFAULT_CONVENTIONS);
+    const configured = e.sensitivity.filter((r) => r.label.includes('as configured'));
+    expect(configured.length).toBeGreaterThan(0);
+    for (const r of configured) expect([r.label, r.mean, r.counted]).toEqual([r.label, 1 / 3, 3]);
+    // q1 is the only query with a list; every other convention scores its single relevant item at the
+    // top (1), and the two added queries stay 0 under each (hand-derived).
+    for (const r of e.sensitivity) if (r.unavailable === undefined) expect([r.label, r.counted]).toEqual([r.label, 3]);
+  });
 });
 
 describe('scikit-learn with the unretrieved items padded below every retrieved score', () => {

@@ -250,7 +250,7 @@ export class RangeScorer {
   /**
    * A judged query the run has no row for, under missing queries `zero`: 0 on every metric and never
    * skipped, as evaluation campaigns count a topic a system did not answer (common practice). Its judged
-   * items are all unretrieved; nothing is inverted. The sensitivity rows leave it out (no list to vary).
+   * items are all unretrieved; nothing is inverted. The rows under other conventions count it as 0 too.
    */
   private scoreAbsent(q: number, tally: RangeTally): void {
     const perQuery = this.perQuery;
@@ -264,6 +264,7 @@ export class RangeScorer {
     perQuery.inversions[q] = 0;
     perQuery.inversionCost[q] = 0;
     if (perQuery.rbpResidual) perQuery.rbpResidual[q] = 0;
+    this.sensitivity?.addAbsent(q);
     tally.absentQueries++;
   }
 }

@@ -150,6 +150,23 @@ export class SensitivityPass {
   }
 
   /**
+   * Adds a judged query the run has no row for (missing queries `zero`): 0 under every variant, as in the
+   * main means, so the rows under other conventions cover the same queries as the headline.
+   */
+  addAbsent(query: number): void {
+    const record = this.record;
+    for (let i = 0; i < this.variants.length; i++) {
+      const v = this.variants[i]!;
+      v.counted++;
+      v.weight++;
+      if (record) {
+        record.value[i]![query] = 0;
+        record.entered[i]![query] = 1;
+      }
+    }
+  }
+
+  /**
    * Adds one query; `grades` indexes the ranked (not arranged) order of `ranking`. `idealGrades` are the
    * grades of the whole judged set when it is larger than the list (unretrieved judged items); the ideal
    * DCG is built from them over the list's length plus `ranking.unretrieved`.
