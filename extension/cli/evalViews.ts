@@ -5,7 +5,7 @@
  * them out as text or JSON.
  */
 import { InputError } from '../engine/errors';
-import { queryDetail } from '../engine/evaluate/detail';
+import { positionDcgParts, queryDetail } from '../engine/evaluate/detail';
 import { lossShares } from '../engine/evaluate/lossShare';
 import { dcgByPosition, scoresByGrade } from '../engine/evaluate/diagnostics';
 import { headlineCutoff } from '../engine/evaluate/scorer';
@@ -53,13 +53,7 @@ export function detailJson(dump: RankedDump, detail: QueryDetail, source: string
       ...titleOf(dump.item[p.row]!),
       grade: jsonNumber(p.label),
       score: jsonNumber(p.score),
-      gain: p.gain,
-      discount: p.discount,
-      contribution: p.contribution,
-      cumulativeDcg: p.cumulativeDcg,
-      idealCumulativeDcg: p.idealCumulativeDcg,
-      idealPosition: p.idealPosition,
-      tieGroupSize: p.tieGroupSize,
+      ...positionDcgParts(p),
       line: dump.line[p.row] || null,
     })),
     idealOrder: idealEntries(dump, detail).map((e) => ({

@@ -8,6 +8,7 @@ import type { Conventions } from '../engine/metrics/conventions';
 import type { MetricSpec } from '../engine/metrics/registry';
 import type { Evaluation, QueryDetail } from '../engine/evaluate/types';
 import { segmentBreakdown } from '../engine/evaluate/segments';
+import { positionDcgParts } from '../engine/evaluate/detail';
 import { describeConventions, describeGain } from '../presentation/conventionsLine';
 import { metricLabel as labelOfKey } from '../presentation/metricText';
 import { metricRange } from '../engine/metrics/registry';
@@ -166,13 +167,7 @@ export function detailView(dump: RankedDump, evaluation: Evaluation, detail: Que
       item: p.item,
       label: label(p.label),
       score: toMaybe(p.score),
-      gain: p.gain,
-      discount: p.discount,
-      contribution: p.contribution,
-      cumulativeDcg: p.cumulativeDcg,
-      idealCumulativeDcg: p.idealCumulativeDcg,
-      idealPosition: p.idealPosition,
-      tieGroupSize: p.tieGroupSize,
+      ...positionDcgParts(p),
       withinCutoff: p.position <= detail.k,
       ...titleOf(p.row),
     })),

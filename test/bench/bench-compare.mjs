@@ -15,6 +15,7 @@ import { tmpdir } from 'node:os';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { parseArgs } from 'node:util';
+import { rng } from './benchTools.mjs';
 import { benchCompareCli } from './compare-cli.mjs';
 
 const { values: args } = parseArgs({ options: { part: { type: 'string' } } });
@@ -43,17 +44,6 @@ if (args.part !== 'cli') await inMemory();
 if (args.part !== 'memory') await benchCompareCli();
 
 async function inMemory() {
-
-  /** xorshift32: deterministic data without touching the engine's generator. */
-  function rng(seed) {
-    let x = seed >>> 0 || 1;
-    return () => {
-      x ^= x << 13;
-      x ^= x >>> 17;
-      x ^= x << 5;
-      return (x >>> 0) / 4294967296;
-    };
-  }
 
   /** Two runs over the same 10k queries × 100 items; B's scores are A's with noise and a small lift for relevant items. */
   function makeRuns(queryCount, itemsPerQuery) {

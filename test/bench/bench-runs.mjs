@@ -7,18 +7,13 @@
 // Checkpoints and candidates are one generated dump with its scores moved by seeded noise, so queries,
 // items and grades match as they do between checkpoints of one job. Usage: node test/bench/bench-runs.mjs
 // [--only trend|candidates]
-import { spawn, spawnSync } from 'node:child_process';
+import { spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, readFileSync, statSync, writeFileSync } from 'node:fs';
 import { loadavg } from 'node:os';
-import { dirname, join, resolve } from 'node:path';
-import { fileURLToPath } from 'node:url';
+import { dirname, join } from 'node:path';
 import { parseArgs } from 'node:util';
+import { cli, dataDir, rng, root, TIME, timedCli } from './benchTools.mjs';
 
-const here = dirname(fileURLToPath(import.meta.url));
-const root = resolve(here, '../..');
-const dataDir = join(here, 'data');
-const cli = join(root, 'dist/cli.js');
-const TIME = '/usr/bin/time';
 const { values: args } = parseArgs({ options: { only: { type: 'string' } } });
 
 const fmt = (x, digits = 2) => (Number.isFinite(x) ? x.toFixed(digits) : '—');
@@ -30,17 +25,6 @@ function generate(file, rows, queries, seed) {
   const r = spawnSync(process.execPath, [join(root, 'test/support/make-demo-data.mjs'), '--rows', String(rows), '--queries', String(queries),
     '--seed', String(seed), '--out', file], { stdio: 'inherit' });
   if (r.status !== 0) throw new Error(`generating ${file} failed`);
-}
-
-/** xorshift32, seeded: derived files are the same every time. */
-function rng(seed) {
-  let x = seed >>> 0 || 1;
-  return () => {
-    x ^= x << 13;
-    x ^= x >>> 17;
-    x ^= x << 5;
-    return (x >>> 0) / 4294967296;
-  };
 }
 
 /** `source` with the score (4th field) moved by seeded noise of the given spread; no quoted fields in it. */
@@ -57,26 +41,6 @@ function derive(source, file, seed, spread, drift = 0) {
     lines[i] = fields.join(',');
   }
   writeFileSync(file, lines.join('\n'));
-}
-
-function timedCli(argv) {
-  return new Promise((done, fail) => {
-    const start = process.hrtime.bigint();
-    const child = spawn(TIME, ['-v', process.execPath, cli, ...argv], { cwd: root, stdio: ['ignore', 'pipe', 'pipe'] });
-    const out = [];
-    let err = '';
-    child.stdout.on('data', (d) => out.push(d));
-    child.stderr.on('data', (d) => (err += d));
-    child.on('error', fail);
-    child.on('close', (code) => {
-      const seconds = Number(process.hrtime.bigint() - start) / 1e9;
-      if (code !== 0) return fail(new Error(`gainline ${argv.join(' ')} exited ${code}:\n${err.slice(-2000)}`));
-      const user = /User time \(seconds\): ([\d.]+)/.exec(err);
-      const system = /System time \(seconds\): ([\d.]+)/.exec(err);
-      const rss = /Maximum resident set size \(kbytes\): (\d+)/.exec(err);
-      done({ seconds, cpu: Number(user?.[1]) + Number(system?.[1]), peakMB: Number(rss?.[1]) / 1024, stdout: Buffer.concat(out).toString('utf8') });
-    });
-  });
 }
 
 const line = (label, r) => console.log(`  ${label.padEnd(28)} ${fmt(r.seconds)} s wall, ${fmt(r.cpu)} s CPU, peak ${fmt(r.peakMB, 0)} MB`);

@@ -3,18 +3,13 @@
 // `compare A B`, all with `--format json` (output captured for a consistency check), best of 2 each, wall and CPU
 // (user + system over all threads) from /usr/bin/time -v. Target from the issue: comparing two 1M-row
 // runs takes at most 1.5× the time of evaluating both.
-import { spawn, spawnSync } from 'node:child_process';
+import { spawnSync } from 'node:child_process';
 import { closeSync, createReadStream, existsSync, mkdirSync, openSync, renameSync, statSync, writeSync } from 'node:fs';
 import { loadavg } from 'node:os';
-import { dirname, join, resolve } from 'node:path';
+import { join } from 'node:path';
 import { createInterface } from 'node:readline';
-import { fileURLToPath } from 'node:url';
+import { cli, dataDir, rng, root, TIME, timedCli } from './benchTools.mjs';
 
-const here = dirname(fileURLToPath(import.meta.url));
-const root = resolve(here, '../..');
-const dataDir = join(here, 'data');
-const cli = join(root, 'dist/cli.js');
-const TIME = '/usr/bin/time';
 const RUNS = 2;
 
 /** Run A: the same 1M-row file the other benchmarks use (10k queries), generated when missing. */
@@ -26,17 +21,6 @@ function ensureRunA() {
   const r = spawnSync(process.execPath, [join(root, 'test/support/make-demo-data.mjs'), '--rows', '1000000', '--queries', '10000', '--out', file], { stdio: 'inherit' });
   if (r.status !== 0) throw new Error('generating run A failed');
   return file;
-}
-
-/** xorshift32, seeded: B is the same file every time. */
-function rng(seed) {
-  let x = seed >>> 0 || 1;
-  return () => {
-    x ^= x << 13;
-    x ^= x >>> 17;
-    x ^= x << 5;
-    return (x >>> 0) / 4294967296;
-  };
 }
 
 /**
@@ -70,27 +54,6 @@ async function ensureRunB(fileA) {
   closeSync(fd);
   renameSync(partial, file);
   return file;
-}
-
-/** One CLI run timed from outside; stdout kept for a consistency check. */
-function timedCli(argv) {
-  return new Promise((done, fail) => {
-    const start = process.hrtime.bigint();
-    const child = spawn(TIME, ['-v', process.execPath, cli, ...argv], { cwd: root, stdio: ['ignore', 'pipe', 'pipe'] });
-    const out = [];
-    let err = '';
-    child.stdout.on('data', (d) => out.push(d));
-    child.stderr.on('data', (d) => (err += d));
-    child.on('error', fail);
-    child.on('close', (code) => {
-      const seconds = Number(process.hrtime.bigint() - start) / 1e9;
-      if (code !== 0) return fail(new Error(`gainline ${argv.join(' ')} exited ${code}:\n${err.slice(-2000)}`));
-      const user = /User time \(seconds\): ([\d.]+)/.exec(err);
-      const system = /System time \(seconds\): ([\d.]+)/.exec(err);
-      const rss = /Maximum resident set size \(kbytes\): (\d+)/.exec(err);
-      done({ seconds, cpu: Number(user?.[1]) + Number(system?.[1]), peakMB: Number(rss?.[1]) / 1024, stdout: Buffer.concat(out).toString('utf8') });
-    });
-  });
 }
 
 /** Best of `RUNS` by wall time and, separately, by CPU time (the least disturbed run of each kind). */

@@ -5,16 +5,11 @@
 import { spawn, spawnSync } from 'node:child_process';
 import { existsSync, readdirSync, statSync, mkdirSync } from 'node:fs';
 import { cpus, loadavg } from 'node:os';
-import { dirname, join, resolve } from 'node:path';
-import { fileURLToPath } from 'node:url';
+import { join } from 'node:path';
 import { parseArgs } from 'node:util';
 import { PYTHON, pythonHas } from '../reference/python.mjs';
+import { benchDir as here, cli, dataDir, root, TIME } from './benchTools.mjs';
 
-const here = dirname(fileURLToPath(import.meta.url));
-const root = resolve(here, '../..');
-const dataDir = join(here, 'data');
-const cli = join(root, 'dist/cli.js');
-const TIME = '/usr/bin/time';
 
 const { values: args } = parseArgs({ options: { only: { type: 'string' }, runs: { type: 'string' } } });
 const SIZES = [

@@ -1,6 +1,9 @@
 // Steps that the scenarios share: open a dump in the Gainline editor, read the
 // headline, switch tabs, open the worst query, all inside the webview frame.
-import { findWebviewFrame, frameText, openFile, openWithFromExplorer, pickQuickItem, reopenWith, runCommand, waitForFrameText } from './harness.mjs';
+import { basename } from 'node:path';
+import { closeAllEditors, findWebviewFrame, frameText, openFile, openWithFromExplorer, pickQuickItem, reopenWith, runCommand, waitForFrameText } from './harness.mjs';
+
+import { compareExpectations, evalExpectations } from './oracle.mjs';
 
 export const EDITOR_LABEL = 'Gainline Ranked Lists';
 const FOUR_DECIMALS = /^-?\d+\.\d{4}$/;
@@ -76,4 +79,21 @@ export async function compareFromPalette(page, baselineLabel, otherLabel) {
 export async function integerText(frame, selector) {
   const text = await frameText(frame, selector);
   return /^\d+$/.test(text) ? Number(text) : NaN;
+}
+
+/** From a clean slate, run A opened with "Inspect" and its headline checked against the CLI. */
+export async function inspectRunA(ctx) {
+  const expected = evalExpectations(ctx.files.runA);
+  await closeAllEditors(ctx.page);
+  await openWithInspect(ctx.page, ctx.rel(ctx.files.runA));
+  const { frame } = await readHeadline(ctx.page, expected.meanText);
+  return { expected, frame };
+}
+
+/** From a clean slate, runs A and B compared from the palette, with the CLI's comparison of them. */
+export async function compareRunsAB(ctx) {
+  const expected = compareExpectations(ctx.files.runA, ctx.files.runB);
+  await closeAllEditors(ctx.page);
+  const frame = await compareFromPalette(ctx.page, basename(ctx.files.runA), basename(ctx.files.runB));
+  return { expected, frame };
 }

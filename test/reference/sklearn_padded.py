@@ -12,8 +12,6 @@ as the common practice for judged collections has it. Writes per case:
                 not retrieved, so they earn nothing) over sklearn dcg_score of the true grades ranked by
                 themselves (the ideal from every judged item): the convention at any k
 """
-import json
-import math
 import sys
 
 try:
@@ -23,40 +21,29 @@ except ImportError as error:  # reported by the test as a failure, never a skip
     sys.stderr.write(f"reference packages missing for /usr/bin/python3: {error}\n")
     sys.exit(3)
 
-
-def number(x):
-    x = float(x)
-    return None if math.isnan(x) else x
+from reference_cases import map_cases, number
 
 
-def main():
-    with open(sys.argv[1]) as f:
-        cases = json.load(f)["cases"]
-    out = []
-    for case in cases:
-        grades = case["grades"] + case["unretrieved"]
-        # -inf in effect: sklearn rejects infinite scores, so the pad is a finite score below every retrieved one.
-        floor = (min(case["scores"]) if case["scores"] else 0.0) - 1.0
-        scores = case["scores"] + [floor] * len(case["unretrieved"])
-        masked = case["grades"] + [0] * len(case["unretrieved"])
-        if len(grades) == 1:
-            # sklearn takes a one-item list for a binary target and refuses it; a grade-0 item at the very
-            # bottom adds nothing to DCG or ideal DCG.
-            grades, scores, masked = grades + [0], scores + [floor - 1.0], masked + [0]
-        y_true = np.asarray([grades], dtype=float)
-        y_score = np.asarray([scores], dtype=float)
-        k = case["k"]
-        ideal = dcg_score(y_true, y_true, k=k, ignore_ties=False)
-        achieved = dcg_score(np.asarray([masked], dtype=float), y_score, k=k, ignore_ties=False)
-        out.append(
-            {
-                "ndcg_padded": number(ndcg_score(y_true, y_score, k=k, ignore_ties=False)),
-                "ndcg_masked": number(achieved / ideal) if ideal > 0 else None,
-            }
-        )
-    with open(sys.argv[2], "w") as f:
-        json.dump({"results": out}, f)
+def reference(case):
+    grades = case["grades"] + case["unretrieved"]
+    # -inf in effect: sklearn rejects infinite scores, so the pad is a finite score below every retrieved one.
+    floor = (min(case["scores"]) if case["scores"] else 0.0) - 1.0
+    scores = case["scores"] + [floor] * len(case["unretrieved"])
+    masked = case["grades"] + [0] * len(case["unretrieved"])
+    if len(grades) == 1:
+        # sklearn takes a one-item list for a binary target and refuses it; a grade-0 item at the very
+        # bottom adds nothing to DCG or ideal DCG.
+        grades, scores, masked = grades + [0], scores + [floor - 1.0], masked + [0]
+    y_true = np.asarray([grades], dtype=float)
+    y_score = np.asarray([scores], dtype=float)
+    k = case["k"]
+    ideal = dcg_score(y_true, y_true, k=k, ignore_ties=False)
+    achieved = dcg_score(np.asarray([masked], dtype=float), y_score, k=k, ignore_ties=False)
+    return {
+        "ndcg_padded": number(ndcg_score(y_true, y_score, k=k, ignore_ties=False)),
+        "ndcg_masked": number(achieved / ideal) if ideal > 0 else None,
+    }
 
 
 if __name__ == "__main__":
-    main()
+    map_cases(reference)

@@ -7,8 +7,6 @@ Each case: {"grades": [...], "scores": [...], "k": int or null}. For each case t
   dcg_as_sorted, ndcg_as_sorted         the same with ignore_ties=True (only meaningful without tied scores)
   tau                                   scipy.stats.kendalltau (tau-b, the default variant)
 """
-import json
-import math
 import sys
 
 try:
@@ -19,33 +17,22 @@ except ImportError as error:  # reported by the test as a failure, never a skip
     sys.stderr.write(f"reference packages missing for /usr/bin/python3: {error}\n")
     sys.exit(3)
 
-
-def number(x):
-    x = float(x)
-    return None if math.isnan(x) else x
+from reference_cases import map_cases, number
 
 
-def main():
-    with open(sys.argv[1]) as f:
-        cases = json.load(f)["cases"]
-    out = []
-    for case in cases:
-        y_true = np.asarray([case["grades"]], dtype=float)
-        y_score = np.asarray([case["scores"]], dtype=float)
-        k = case["k"]
-        tau = kendalltau(case["scores"], case["grades"])
-        out.append(
-            {
-                "dcg_tie_averaged": number(dcg_score(y_true, y_score, k=k, ignore_ties=False)),
-                "ndcg_tie_averaged": number(ndcg_score(y_true, y_score, k=k, ignore_ties=False)),
-                "dcg_as_sorted": number(dcg_score(y_true, y_score, k=k, ignore_ties=True)),
-                "ndcg_as_sorted": number(ndcg_score(y_true, y_score, k=k, ignore_ties=True)),
-                "tau": number(tau[0]),
-            }
-        )
-    with open(sys.argv[2], "w") as f:
-        json.dump({"results": out}, f)
+def reference(case):
+    y_true = np.asarray([case["grades"]], dtype=float)
+    y_score = np.asarray([case["scores"]], dtype=float)
+    k = case["k"]
+    tau = kendalltau(case["scores"], case["grades"])
+    return {
+        "dcg_tie_averaged": number(dcg_score(y_true, y_score, k=k, ignore_ties=False)),
+        "ndcg_tie_averaged": number(ndcg_score(y_true, y_score, k=k, ignore_ties=False)),
+        "dcg_as_sorted": number(dcg_score(y_true, y_score, k=k, ignore_ties=True)),
+        "ndcg_as_sorted": number(ndcg_score(y_true, y_score, k=k, ignore_ties=True)),
+        "tau": number(tau[0]),
+    }
 
 
 if __name__ == "__main__":
-    main()
+    map_cases(reference)

@@ -188,3 +188,16 @@ function trim(pairs: InvertedPair[], limit: number): InvertedPair[] {
   if (pairs.length > limit) pairs.length = limit;
   return pairs;
 }
+
+/** The DCG arithmetic of one position, as every view (CLI JSON, editor) shows it, in one order. */
+export function positionDcgParts(p: PositionRow) {
+  return {
+    gain: p.gain,
+    discount: p.discount,
+    contribution: p.contribution,
+    cumulativeDcg: p.cumulativeDcg,
+    idealCumulativeDcg: p.idealCumulativeDcg,
+    idealPosition: p.idealPosition,
+    tieGroupSize: p.tieGroupSize,
+  };
+}

@@ -1,8 +1,6 @@
 // Two runs compared through the palette; wins, ties and losses against the CLI.
-import { basename } from 'node:path';
-import { closeAllEditors, waitUntil } from '../harness.mjs';
-import { compareExpectations } from '../oracle.mjs';
-import { compareFromPalette, integerText } from '../views.mjs';
+import { waitUntil } from '../harness.mjs';
+import { compareRunsAB, integerText } from '../views.mjs';
 
 function assert(condition, message) {
   if (!condition) throw new Error(message);
@@ -11,9 +9,7 @@ function assert(condition, message) {
 export const compareWinsLosses = {
   name: 'comparing the two demo runs shows the CLI\'s wins, ties and losses',
   async run(ctx) {
-    const expected = compareExpectations(ctx.files.runA, ctx.files.runB);
-    await closeAllEditors(ctx.page);
-    const frame = await compareFromPalette(ctx.page, basename(ctx.files.runA), basename(ctx.files.runB));
+    const { expected, frame } = await compareRunsAB(ctx);
     const shown = await waitUntil(async () => {
       const wins = await integerText(frame, '#gl-compare-wins').catch(() => NaN);
       const losses = await integerText(frame, '#gl-compare-losses').catch(() => NaN);

@@ -3,7 +3,7 @@
 import { copyFileSync, rmSync } from 'node:fs';
 import { closeAllEditors, explorerContextMenu, findWebviewFrame, frameText, waitForFrameText } from '../harness.mjs';
 import { evalExpectations } from '../oracle.mjs';
-import { firstWorstRow, itemIds, openDetailFromRow, openWithInspect, openWithPicker, readHeadline, reopenWithPicker, showTab } from '../views.mjs';
+import { firstWorstRow, inspectRunA, itemIds, openDetailFromRow, openWithInspect, openWithPicker, readHeadline, reopenWithPicker, showTab } from '../views.mjs';
 
 function assert(condition, message) {
   if (!condition) throw new Error(message);
@@ -66,10 +66,7 @@ async function waitUntilRows(frame, predicate) {
 export const worstQueryDetail = {
   name: 'worst-queries table starts with the CLI\'s worst query; its detail shows both orders and inverted pairs',
   async run(ctx) {
-    const expected = evalExpectations(ctx.files.runA);
-    await closeAllEditors(ctx.page);
-    await openWithInspect(ctx.page, ctx.rel(ctx.files.runA));
-    const { frame } = await readHeadline(ctx.page, expected.meanText);
+    const { expected, frame } = await inspectRunA(ctx);
     const { row, query } = await firstWorstRow(frame);
     assert(expected.worstQueries.includes(query),
       `first row is "${query}", CLI's lowest ${expected.headline} (${expected.lowest}) is ${JSON.stringify(expected.worstQueries)}`);

@@ -5,7 +5,7 @@ import { readFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { closeAllEditors, explorerContextMenu, waitForFrameText, waitUntil } from '../harness.mjs';
 import { evalExpectations, evalFailure } from '../oracle.mjs';
-import { firstWorstRow, openDetailFromRow, openWithInspect, readHeadline, showTab } from '../views.mjs';
+import { firstWorstRow, inspectRunA, openDetailFromRow, openWithInspect, readHeadline, showTab } from '../views.mjs';
 import { REPO_ROOT } from '../../support/code-server-install.mjs';
 
 function assert(condition, message) {
@@ -29,10 +29,7 @@ export async function statusHoverText(page, item) {
 export const idealOrderAndStrip = {
   name: 'query detail: within a grade the ideal order keeps the model\'s order, and only lines that carry a gain difference are coloured',
   async run(ctx) {
-    const expected = evalExpectations(ctx.files.runA);
-    await closeAllEditors(ctx.page);
-    await openWithInspect(ctx.page, ctx.rel(ctx.files.runA));
-    const { frame } = await readHeadline(ctx.page, expected.meanText);
+    const { frame } = await inspectRunA(ctx);
     const { row, query } = await firstWorstRow(frame);
     await openDetailFromRow(ctx.page, frame, row, query);
     const lists = await frame.evaluate(() => {

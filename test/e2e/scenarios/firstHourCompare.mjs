@@ -5,7 +5,7 @@
 import { basename } from 'node:path';
 import { closeAllEditors, findWebviewFrame, focusWorkbench, reloadWindow, runCommand, waitForFrameText, waitUntil } from '../harness.mjs';
 import { compareExpectations, evalExpectations } from '../oracle.mjs';
-import { compareFromPalette, integerText, openWithInspect, readHeadline, showTab } from '../views.mjs';
+import { compareFromPalette, compareRunsAB, integerText, openWithInspect, readHeadline, showTab } from '../views.mjs';
 import { headlineStatus, statusHoverText } from './firstHour.mjs';
 
 function assert(condition, message) {
@@ -71,9 +71,7 @@ export const compareFirstHour = {
 export const compareSurvivesReload = {
   name: 'a compare panel comes back after a window reload',
   async run(ctx) {
-    const expected = compareExpectations(ctx.files.runA, ctx.files.runB);
-    await closeAllEditors(ctx.page);
-    const frame = await compareFromPalette(ctx.page, basename(ctx.files.runA), basename(ctx.files.runB));
+    const { expected, frame } = await compareRunsAB(ctx);
     assert(await winsShown(frame) === expected.wins, 'wins differ from the CLI before the reload');
     await reloadWindow(ctx.page);
     const restored = await findWebviewFrame(ctx.page, '#gl-compare', { timeoutMs: 90_000 });

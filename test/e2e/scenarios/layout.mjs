@@ -1,9 +1,8 @@
 // The grids at the README's picture size (1600×1000) with the Explorer open: every column can be
 // reached (shown, or behind a visible horizontal scrollbar), the query column takes the spare room,
 // and the user can choose the columns; Reveal in File leaves the viewer usable.
-import { closeAllEditors, findWebviewFrame, waitUntil } from '../harness.mjs';
-import { evalExpectations } from '../oracle.mjs';
-import { firstWorstRow, openDetailFromRow, openWithInspect, readHeadline, showTab } from '../views.mjs';
+import { findWebviewFrame, waitUntil } from '../harness.mjs';
+import { firstWorstRow, inspectRunA, openDetailFromRow, showTab } from '../views.mjs';
 
 function assert(condition, message) {
   if (!condition) throw new Error(message);
@@ -64,10 +63,7 @@ function reachable(reach, what) {
 export const gridsReachEveryColumn = {
   name: 'at 1600×1000 with the Explorer open, every grid column can be reached, query text is not cut, and columns can be chosen',
   async run(ctx) {
-    const expected = evalExpectations(ctx.files.runA);
-    await closeAllEditors(ctx.page);
-    await openWithInspect(ctx.page, ctx.rel(ctx.files.runA));
-    const { frame } = await readHeadline(ctx.page, expected.meanText);
+    const { frame } = await inspectRunA(ctx);
     await firstWorstRow(frame);
     const worstReach = await gridReach(frame, '#gl-worst-table');
     ctx.log(`  worst queries grid: ${JSON.stringify({ ...worstReach, headers: undefined })}`);
@@ -96,10 +92,7 @@ async function headerLabels(frame, gridSelector) {
 export const revealKeepsViewerUsable = {
   name: 'Reveal in File opens the row and leaves the viewer wide enough to show both ranked lists',
   async run(ctx) {
-    const expected = evalExpectations(ctx.files.runA);
-    await closeAllEditors(ctx.page);
-    await openWithInspect(ctx.page, ctx.rel(ctx.files.runA));
-    const { frame } = await readHeadline(ctx.page, expected.meanText);
+    const { frame } = await inspectRunA(ctx);
     const { row, query } = await firstWorstRow(frame);
     await openDetailFromRow(ctx.page, frame, row, query);
     const second = frame.locator('#gl-predicted-order [data-item]').nth(1);

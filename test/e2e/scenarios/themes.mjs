@@ -1,9 +1,8 @@
 // The overview under light, dark and both high-contrast themes: screenshots,
 // and a WCAG 2.x contrast check on text elements inside the webview frame.
-import { closeAllEditors, findWebviewFrame, runCommand, typeInQuickInput, waitUntil } from '../harness.mjs';
+import { findWebviewFrame, runCommand, typeInQuickInput, waitUntil } from '../harness.mjs';
 import { contrastRatio, sampleColoursInFrame, selfCheckContrast } from '../contrast.mjs';
-import { evalExpectations } from '../oracle.mjs';
-import { openWithInspect, readHeadline, showTab } from '../views.mjs';
+import { inspectRunA, showTab } from '../views.mjs';
 
 const THEMES = [
   { label: 'Light Modern', bodyClass: 'vscode-light' },
@@ -39,10 +38,7 @@ export const themesReadable = {
   name: 'light, dark and high-contrast themes render readable text',
   async run(ctx) {
     selfCheckContrast();
-    const expected = evalExpectations(ctx.files.runA);
-    await closeAllEditors(ctx.page);
-    await openWithInspect(ctx.page, ctx.rel(ctx.files.runA));
-    const { frame } = await readHeadline(ctx.page, expected.meanText);
+    const { frame } = await inspectRunA(ctx);
     await showTab(frame, 'gl-tab-overview');
     const problems = [];
     try {
