@@ -32,23 +32,42 @@ export const idealOrderAndStrip = {
     const { frame } = await inspectRunA(ctx);
     const { row, query } = await firstWorstRow(frame);
     await openDetailFromRow(ctx.page, frame, row, query);
+    // Cells are read by their column header, not by index: an items table adds a Title column, and
+    // titles repeat across items, so a fixed index would compare titles where it means grades.
     const lists = await frame.evaluate(() => {
-      const rows = (id) => [...document.querySelectorAll(`${id} .gl-order-row`)].map((r) => [...r.querySelectorAll('[role="cell"]')].map((c) => (c.textContent ?? '').trim()));
+      const table = (id) => {
+        const headers = [...document.querySelectorAll(`${id} .gl-order-head [role="columnheader"]`)].map((h) => (h.textContent ?? '').trim());
+        const rows = [...document.querySelectorAll(`${id} .gl-order-row`)].map((r) => {
+          const cells = [...r.querySelectorAll('[role="cell"]')].map((c) => (c.textContent ?? '').trim());
+          return Object.fromEntries(headers.map((h, i) => [h, cells[i]]));
+        });
+        return { headers, rows };
+      };
       const paths = [...document.querySelectorAll('#gl-detail .gl-links path')].map((p) => ({ item: p.dataset.item, cls: p.getAttribute('class') ?? '' }));
-      return { predicted: rows('#gl-predicted-order'), ideal: rows('#gl-ideal-order'), paths };
+      return { predicted: table('#gl-predicted-order'), ideal: table('#gl-ideal-order'), paths };
     });
-    // Ideal list columns: Pos, Item, Label, Gain, Model. Within a label, the model's positions rise.
+    for (const [name, list, needed] of [['predicted', lists.predicted, ['Pos', 'Item', 'Label']], ['ideal', lists.ideal, ['Pos', 'Item', 'Label', 'Model']]]) {
+      const absent = needed.filter((h) => !list.headers.includes(h));
+      assert(absent.length === 0, `the ${name} list has no ${absent.join(', ')} column; headers: ${JSON.stringify(list.headers)}`);
+    }
+    // Within a label, the model's positions rise. Judged items the run never retrieved have no model
+    // position ("not retrieved") and sit after the retrieved items of their grade.
     const crossings = [];
-    for (let i = 1; i < lists.ideal.length; i++) {
-      const [, itemA, labelA, , modelA] = lists.ideal[i - 1];
-      const [, itemB, labelB, , modelB] = lists.ideal[i];
-      if (labelA === labelB && Number(modelA) > Number(modelB)) crossings.push(`${itemA} (model ${modelA}) before ${itemB} (model ${modelB}), both grade ${labelA}`);
+    for (let i = 1; i < lists.ideal.rows.length; i++) {
+      const a = lists.ideal.rows[i - 1];
+      const b = lists.ideal.rows[i];
+      if (a.Label !== b.Label) continue;
+      const modelA = a.Model === 'not retrieved' ? Infinity : Number(a.Model);
+      const modelB = b.Model === 'not retrieved' ? Infinity : Number(b.Model);
+      if (Number.isNaN(modelA) || Number.isNaN(modelB)) crossings.push(`unreadable model position "${a.Model}" / "${b.Model}"`);
+      else if (modelA > modelB) crossings.push(`${a.Item} (model ${a.Model}) before ${b.Item} (model ${b.Model}), both grade ${a.Label}`);
     }
     assert(crossings.length === 0, `equal-grade items out of the model's order in the ideal list: ${crossings.slice(0, 3).join('; ')}`);
-    // Predicted columns: Pos, Item, Label, … An item whose grade is the grade the ideal order puts at its
-    // predicted position carries no gain difference: its line must be the quiet "in place" kind.
-    const idealLabelAt = lists.ideal.map((r) => r[2]);
-    const byItem = new Map(lists.predicted.map((r) => [r[1], { position: Number(r[0]), label: r[2] }]));
+    // An item whose grade is the grade the ideal order (not-retrieved rows included, as they count in
+    // the ideal) puts at its predicted position carries no gain difference: its line must be the quiet
+    // "in place" kind.
+    const idealLabelAt = lists.ideal.rows.map((r) => r.Label);
+    const byItem = new Map(lists.predicted.rows.map((r) => [r.Item, { position: Number(r.Pos), label: r.Label }]));
     const loud = lists.paths.filter((p) => {
       const at = byItem.get(p.item);
       return at && idealLabelAt[at.position - 1] === at.label && !/\bsame\b/.test(p.cls);
