@@ -1,7 +1,7 @@
 // End-to-end part of bench-compare.mjs: what a user waits for. Two 1M-row CSV runs of the same queries
 // and items (B = A's scores with seeded noise), then `node dist/cli.js eval A`, `eval B` and
 // `compare A B`, all with `--format json` (output captured for a consistency check), best of 2 each, wall and CPU
-// (user + system over all threads) from /usr/bin/time -v. Target from the issue: comparing two 1M-row
+// (user + system over all threads) from /usr/bin/time -v. Target: comparing two 1M-row
 // runs takes at most 1.5× the time of evaluating both.
 import { spawnSync } from 'node:child_process';
 import { closeSync, createReadStream, existsSync, mkdirSync, openSync, renameSync, statSync, writeSync } from 'node:fs';
