@@ -177,6 +177,20 @@ describe('single-run screens', () => {
     await page.close();
   });
 
+  it('keeps the tab when the host repeats the result it already sent (its answer to a late ready)', async () => {
+    const { page } = await open('queries=100');
+    await page.click('#gl-tab-worst');
+    await page.waitForSelector('#gl-worst-table [data-query]', { state: 'visible' });
+    await page.evaluate(() => {
+      const w = window as unknown as { __host: { send(m: unknown): void; overview: unknown } };
+      w.__host.send({ kind: 'state', state: { status: 'loaded', mode: 'single', overview: w.__host.overview } });
+    });
+    await page.waitForSelector('#gl-worst-table [data-query]', { state: 'visible' });
+    expect(await page.getAttribute('#gl-tab-worst', 'aria-selected')).toBe('true');
+    expect(await page.isVisible('#gl-panel-worst')).toBe(true);
+    await page.close();
+  });
+
   it('lists segment values for a chosen column', async () => {
     const { page } = await open('queries=200');
     await page.click('#gl-tab-segments');

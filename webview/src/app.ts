@@ -33,6 +33,8 @@ export class App implements AppContext {
   private tabs: TabName[] = [];
   private tab: TabName = 'overview';
   private mode: 'single' | 'compare' | undefined;
+  /** Which panel is on screen: a 'loaded' while the content is shown repeats the load already shown. */
+  private showing: 'loading' | 'error' | 'vanished' | 'content' = 'loading';
   private selected: string | null = null;
   private compareModel: CompareOverviewModel | undefined;
   private restored: SavedState | undefined;
@@ -145,7 +147,11 @@ export class App implements AppContext {
         return;
       case 'loaded':
       case 'reloaded': {
-        const keep = state.status === 'reloaded' && this.mode === state.mode;
+        // The host repeats its last state whenever the view says 'ready'. With the extension already
+        // active, the result can reach the view before its 'ready' reaches the host, so the same
+        // 'loaded' comes twice; the repeat must not throw the user back to the first tab.
+        const repeat = state.status === 'loaded' && this.showing === 'content';
+        const keep = (state.status === 'reloaded' || repeat) && this.mode === state.mode;
         if (state.mode === 'single') this.loadSingle(state.overview, keep);
         else this.loadCompare(state.compare, keep);
         this.show('content');
@@ -250,6 +256,7 @@ export class App implements AppContext {
   }
 
   private show(which: 'loading' | 'error' | 'vanished' | 'content'): void {
+    this.showing = which;
     this.loading.hidden = which !== 'loading';
     this.errorPanel.hidden = which !== 'error';
     this.vanished.hidden = which !== 'vanished';
