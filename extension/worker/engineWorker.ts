@@ -27,6 +27,7 @@ import { CompareTable, compareOverviewModel } from './compareTable';
 import { QueryTable } from './queryTable';
 import { scoresByGrade } from '../engine/evaluate/diagnostics';
 import { overviewDiagnostics, scoresByGradeView } from './diagnosticsView';
+import type { ScoreDiagnosticsView } from '../protocol/messages';
 import { detailView, metricLabel, movementView, overviewModel, segmentTable } from './viewModels';
 import { isCancelled } from './cancelFlags';
 
@@ -37,6 +38,8 @@ interface Loaded {
   /** Scanned once here so that each detail request need not scan every grade again. */
   readonly gradeRange: GradeRange;
   readonly table: QueryTable;
+  /** Computed when the overview first asks for it (after its headline is on screen), then kept. */
+  diagnostics?: ScoreDiagnosticsView;
 }
 type Session =
   | ({ readonly kind: 'single' } & Loaded)
@@ -55,6 +58,8 @@ function rowsHeld(s: Session | undefined): number {
 function prepareReload(key: string): void {
   if (rowsHeld(sessions.get(key)) > KEEP_WHILE_RELOADING_ROWS) sessions.delete(key);
 }
+/** When this thread had loaded its code and could take requests (epoch ms), for the first screen's timeline. */
+const readyAt = Date.now();
 const flags: Int32Array | undefined = workerData?.cancelFlags instanceof SharedArrayBuffer ? new Int32Array(workerData.cancelFlags) : undefined;
 
 /** Progress at most every 100 ms, and a CancelledError as soon as the request is cancelled. */
@@ -127,21 +132,31 @@ function detailOf(l: Loaded, query: string, maxPairs?: number) {
 }
 
 const handlers: RequestHandlers<WorkerRequests> = {
+  // Only what the overview's first screen shows: the score diagnostics, a second pass over every
+  // query, come with their own request once the headline is on screen.
   async load({ session: key, source, settings }, ctx) {
+    const received = Date.now();
     const started = performance.now();
     prepareReload(key);
     const dump = await read(source, ctx, 0, 0.75);
+    const readDone = Date.now();
     const groups = groupByQuery(dump);
     const metrics = parseMetricList(settings.metrics);
     const evaluation = await evaluateDump(dump, metrics, settings.conventions, { groups, signal: ctx.signal, onProgress: progressReporter(ctx, 0.75, 1, 'Scoring queries…') });
     const entry = loaded(dump, evaluation, groups);
     sessions.set(key, { kind: 'single', ...entry });
-    return {
+    const overview = {
       ...overviewModel(dump, evaluation, performance.now() - started),
       ...(evaluation.weighting ? { weighting: evaluation.weighting.source } : {}),
       ...(dump.joined?.queryText ? { queryText: true } : {}),
-      diagnostics: overviewDiagnostics(dump, evaluation, groups),
     };
+    return { ...overview, timeline: { threadReady: readyAt, received, read: readDone, scored: Date.now() } };
+  },
+
+  overviewDiagnostics({ session: key }) {
+    const s = single(key);
+    s.diagnostics ??= overviewDiagnostics(s.dump, s.evaluation, s.groups);
+    return s.diagnostics;
   },
 
   async loadCompare({ session: key, a: sourceA, b: sourceB, settings }, ctx) {
