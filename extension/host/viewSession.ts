@@ -223,7 +223,7 @@ export class ViewSession implements vscode.Disposable {
         // (thread start on first use, messages), so a slow first screen can be told apart; the
         // timeline's epoch times let the end-to-end suite line them up with its click.
         const steps = [['activated', this.deps.activatedAt], ['opened', this.openedEpoch], ['asked', askedEpoch], ['thread ready', timeline.threadReady],
-          ['received', timeline.received], ['read', timeline.read], ['scored', timeline.scored], ['answered', Date.now()]] as const;
+          ['warmed up', timeline.warmed], ['received', timeline.received], ['read', timeline.read], ['scored', timeline.scored], ['answered', Date.now()]] as const;
         const split = firstTime ? ` (${Math.round(asked - this.openedAt)} ms before the request, ${overview.loadMs} ms reading and scoring, ${Math.max(0, Math.round(answered - asked - overview.loadMs))} ms thread start and messages; timeline in epoch ms: ${steps.filter(([, t]) => t !== undefined).map(([name, t]) => `${name} ${t}`).join(', ')})` : '';
         this.deps.log?.(`${kind === 'loaded' ? 'read' : 're-read'} ${this.label}: ${overview.file.rowCount} rows, ${overview.queryCount} queries, ${overview.loadMs} ms${split}`);
       } else {

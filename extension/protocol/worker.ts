@@ -80,6 +80,8 @@ export interface HeadlineResult {
 export interface LoadTimeline {
   /** The thread had loaded its code (before this request when it was started early). */
   readonly threadReady: number;
+  /** The thread's warm-up read had finished (absent when it had not, or the thread runs none). */
+  readonly warmed?: number;
   readonly received: number;
   readonly read: number;
   readonly scored: number;

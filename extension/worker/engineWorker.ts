@@ -6,7 +6,6 @@
  * every progress tick, the synchronous evaluation loop too — a cancel message alone could not be seen
  * while the thread is busy.
  */
-import { availableParallelism } from 'node:os';
 import { parentPort, workerData } from 'node:worker_threads';
 import { CancelledError, InputError } from '../engine/errors';
 import { queryMovement } from '../engine/compare/movement';
@@ -30,6 +29,7 @@ import { overviewDiagnostics, scoresByGradeView } from './diagnosticsView';
 import type { ScoreDiagnosticsView } from '../protocol/messages';
 import { detailView, metricLabel, movementView, overviewModel, segmentTable } from './viewModels';
 import { isCancelled } from './cancelFlags';
+import { warmUp } from './warmUp';
 
 interface Loaded {
   readonly dump: RankedDump;
@@ -60,6 +60,8 @@ function prepareReload(key: string): void {
 }
 /** When this thread had loaded its code and could take requests (epoch ms), for the first screen's timeline. */
 const readyAt = Date.now();
+/** When the warm-up read (see warmUp.ts) finished, if this thread ran one. */
+let warmedAt: number | undefined;
 const flags: Int32Array | undefined = workerData?.cancelFlags instanceof SharedArrayBuffer ? new Int32Array(workerData.cancelFlags) : undefined;
 
 /** Progress at most every 100 ms, and a CancelledError as soon as the request is cancelled. */
@@ -76,9 +78,9 @@ function progressReporter(ctx: HandlerContext, from: number, to: number, message
 }
 
 async function read(source: DumpSource, ctx: HandlerContext, from: number, to: number, label = 'Reading'): Promise<RankedDump> {
+  // Threads are the engine's choice, as for the command line's eval: parse threads (started from this
+  // thread, found in the bundle folder) for large files, score threads for large dumps when cores are free.
   return readSource(source, {
-    // On two cores or fewer, extra parse threads would starve the extension host and the UI.
-    ...(availableParallelism() <= 2 ? { threads: 1 } : {}),
     signal: ctx.signal,
     onProgress: progressReporter(ctx, from, to, `${label} ${source.path.split(/[\\/]/).pop()}…`),
   });
@@ -150,7 +152,7 @@ const handlers: RequestHandlers<WorkerRequests> = {
       ...(evaluation.weighting ? { weighting: evaluation.weighting.source } : {}),
       ...(dump.joined?.queryText ? { queryText: true } : {}),
     };
-    return { ...overview, timeline: { threadReady: readyAt, received, read: readDone, scored: Date.now() } };
+    return { ...overview, timeline: { threadReady: readyAt, ...(warmedAt ? { warmed: warmedAt } : {}), received, read: readDone, scored: Date.now() } };
   },
 
   overviewDiagnostics({ session: key }) {
@@ -273,4 +275,6 @@ if (parentPort) {
   port.on('message', (message: unknown) => {
     server.handleMessage(message);
   });
+  // A failed warm-up costs only the speed it was for; the first real read reports its own errors.
+  if (workerData?.warmUp === true) void warmUp().then(() => (warmedAt = Date.now()), () => undefined);
 }
