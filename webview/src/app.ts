@@ -158,6 +158,8 @@ export class App implements AppContext {
         else this.loadCompare(state.compare, keep);
         this.show('content');
         performance.mark('gainline-shown');
+        // The frame that paints the result (its callbacks run just before its paint).
+        requestAnimationFrame(() => performance.mark('gainline-painted'));
         return;
       }
     }

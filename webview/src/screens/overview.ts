@@ -9,7 +9,7 @@ import { DEGENERATE_EXPLANATIONS, explainMetric } from '../model/explain';
 import { exactValue, formatCount, formatDelta, formatFixed, formatShare } from '../model/format';
 import { barChart } from '../ui/charts';
 import type { AppContext } from '../ui/context';
-import { button, clear, el } from '../ui/dom';
+import { afterPaint, button, clear, el } from '../ui/dom';
 import { staticTable } from '../ui/staticTable';
 import { dcgByPositionSection, scoresByGradeSection } from './scoreDiagnostics';
 
@@ -94,7 +94,11 @@ export class OverviewScreen {
           el('p', { className: 'gl-muted', text: 'Change them in the settings under gainline.*; the view recomputes.' })),
       ),
     );
-    this.chart = this.histogram(canvas, model);
+    // Drawn after the first paint: creating the chart costs as much as the rest of the overview, and the
+    // headline should not wait for it.
+    afterPaint(() => {
+      if (generation === this.renders) this.chart = this.histogram(canvas, model);
+    });
 
     this.element.appendChild(el('h2', { text: `How ${headline.label} depends on the conventions` }));
     this.element.appendChild(
@@ -154,14 +158,15 @@ export class OverviewScreen {
         button('Export summary as Markdown', { icon: 'markdown', secondary: true, onClick: () => this.export(model, 'markdown') }),
         button('Export summary as CSV', { icon: 'export', secondary: true, onClick: () => this.export(model, 'csv') })),
     );
-    void this.fillDiagnostics(diagnostics, generation);
+    afterPaint(() => void this.fillDiagnostics(diagnostics, generation));
   }
 
   /**
    * The score diagnostics take another pass over every query, as long as scoring them: they are asked
-   * for once the rest of the overview, headline first, is on the page.
+   * for once the rest of the overview, headline first, has been painted.
    */
   private async fillDiagnostics(box: HTMLElement, generation: number): Promise<void> {
+    if (generation !== this.renders) return;
     try {
       const d = await this.ctx.request('overviewDiagnostics', {});
       if (generation !== this.renders) return;
