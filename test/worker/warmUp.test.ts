@@ -11,7 +11,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { EngineWorker } from '../../extension/host/workerHost';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
 import { readSource } from '../../extension/worker/readSource';
-import { warmUp, warmUpCsv } from '../../extension/worker/warmUp';
+import { warmUp, warmUpFiles } from '../../extension/worker/warmUp';
 
 const dir = mkdtempSync(join(tmpdir(), 'gainline-warm-test-'));
 const script = join(dir, 'engineWorker.js');
@@ -27,15 +27,25 @@ beforeAll(async () => {
 afterAll(() => worker?.dispose());
 
 describe('engine thread warm-up', () => {
-  it('generates a clean dump: 120 queries of 12 items, every grade 0–4, nothing repaired', async () => {
-    const file = join(dir, 'generated.csv');
-    writeFileSync(file, warmUpCsv());
-    const dump = await readSource({ path: file });
+  it('generates a clean dump with its judgments and tables: 120 queries of 12 items, every grade 0–4, nothing repaired', async () => {
+    const files = warmUpFiles();
+    const path = (name: string) => join(dir, name);
+    writeFileSync(path('generated.csv'), files.dump);
+    writeFileSync(path('generated.qrels'), files.judgments);
+    writeFileSync(path('queries.tsv'), files.queries);
+    writeFileSync(path('items.tsv'), files.items);
+    const dump = await readSource({
+      path: path('generated.csv'), judgments: path('generated.qrels'), judgmentsFound: true, missingQueries: 'skip',
+      queries: path('queries.tsv'), items: path('items.tsv'), tablesFound: true,
+    });
     expect(dump.rowCount).toBe(120 * 12);
     expect(dump.queries.size).toBe(120);
     expect(new Set(dump.label)).toEqual(new Set([0, 1, 2, 3, 4]));
-    expect(dump.notes).toMatchObject({ unjudgedRows: 0, missingScoreRows: 0, messages: [] });
-    expect(dump.segments.map((s) => s.name)).toEqual(['locale']);
+    expect(dump.notes).toMatchObject({ unjudgedRows: 0, missingScoreRows: 0, judgmentsWithoutRun: 0, judgedQueriesWithoutRun: 0 });
+    expect(dump.notes.judgments).toMatchObject({ disagreements: 0 });
+    // Both tables joined: the query text, and the queries table's column as a segment.
+    expect(dump.joined?.queryText).toBeDefined();
+    expect(dump.segments.map((s) => s.name).sort()).toEqual(['device', 'locale']);
   });
 
   it('leaves nothing behind in the folder it worked in', async () => {
