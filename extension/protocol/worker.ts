@@ -98,6 +98,8 @@ export type WorkerRequests = {
   /** Read + evaluate without keeping the dump (tree view); freed at once. */
   headline: { params: HeadlineParams; result: HeadlineResult };
   unload: { params: { readonly session: string }; result: { readonly unloaded: boolean } };
+  /** When the thread was ready and had warmed up (see LoadTimeline); asking does not stop the warm-up. */
+  threadTimes: { params: Record<string, never>; result: Pick<LoadTimeline, 'threadReady' | 'warmed'> };
   queryPage: Forwarded<'queryPage'>;
   queryDetail: Forwarded<'queryDetail'>;
   /** The raw JSON of one query's rows and metric values (for the clipboard). */

@@ -62,6 +62,8 @@ function prepareReload(key: string): void {
 const readyAt = Date.now();
 /** When the warm-up read (see warmUp.ts) finished, if this thread ran one. */
 let warmedAt: number | undefined;
+/** A real read arriving stops the warm-up where it is: the user's dump goes first. */
+const warmUpStop = new AbortController();
 const flags: Int32Array | undefined = workerData?.cancelFlags instanceof SharedArrayBuffer ? new Int32Array(workerData.cancelFlags) : undefined;
 
 /** Progress at most every 100 ms, and a CancelledError as soon as the request is cancelled. */
@@ -137,6 +139,7 @@ const handlers: RequestHandlers<WorkerRequests> = {
   // Only what the overview's first screen shows: the score diagnostics, a second pass over every
   // query, come with their own request once the headline is on screen.
   async load({ session: key, source, settings }, ctx) {
+    warmUpStop.abort();
     const received = Date.now();
     const started = performance.now();
     prepareReload(key);
@@ -162,6 +165,7 @@ const handlers: RequestHandlers<WorkerRequests> = {
   },
 
   async loadCompare({ session: key, a: sourceA, b: sourceB, settings }, ctx) {
+    warmUpStop.abort();
     const started = performance.now();
     prepareReload(key);
     const a = await read(sourceA, ctx, 0, 0.3, 'Reading run A,');
@@ -186,12 +190,17 @@ const handlers: RequestHandlers<WorkerRequests> = {
   },
 
   async headline({ source, settings }, ctx) {
+    warmUpStop.abort();
     const dump = await read(source, ctx, 0, 0.8);
     const metrics = parseMetricList(settings.metrics);
     const evaluation = await evaluateDump(dump, metrics, settings.conventions, { signal: ctx.signal, sensitivity: false });
     const h = evaluation.headline;
     const mean = evaluation.summary[h]?.mean ?? NaN;
     return { key: metrics[h]!.key, label: metricLabel(metrics[h]!), mean: Number.isFinite(mean) ? mean : null, queryCount: evaluation.queryCount, rowCount: dump.rowCount };
+  },
+
+  threadTimes() {
+    return { threadReady: readyAt, ...(warmedAt ? { warmed: warmedAt } : {}) };
   },
 
   unload({ session: key }) {
@@ -276,5 +285,5 @@ if (parentPort) {
     server.handleMessage(message);
   });
   // A failed warm-up costs only the speed it was for; the first real read reports its own errors.
-  if (workerData?.warmUp === true) void warmUp().then(() => (warmedAt = Date.now()), () => undefined);
+  if (workerData?.warmUp === true) void warmUp(undefined, warmUpStop.signal).then(() => (warmedAt = Date.now()), () => undefined);
 }

@@ -55,9 +55,10 @@ export function warmUpFiles(): WarmUpFiles {
 
 /**
  * Reads and scores the generated dump with its side files as a view's load would, with the overview
- * and its diagnostics; the files live in a private folder under `parent`, removed afterwards.
+ * and its diagnostics; the files live in a private folder under `parent`, removed afterwards. `signal`
+ * stops it early (a CancelledError), when a real read arrives.
  */
-export async function warmUp(parent = tmpdir()): Promise<void> {
+export async function warmUp(parent = tmpdir(), signal?: AbortSignal): Promise<void> {
   const dir = await mkdtemp(join(parent, 'gainline-warm-up-'));
   try {
     const files = warmUpFiles();
@@ -67,9 +68,10 @@ export async function warmUp(parent = tmpdir()): Promise<void> {
     const dump = await readSource({
       path: path('warm-up.csv'), judgments: path('warm-up.qrels'), judgmentsFound: true, missingQueries: 'skip',
       queries: path('queries.tsv'), items: path('items.tsv'), tablesFound: true,
-    });
+    }, signal ? { signal } : {});
     const groups = groupByQuery(dump);
-    const evaluation = await evaluateDump(dump, parseMetricList(DEFAULT_METRIC_KEYS.join(',')), DEFAULT_CONVENTIONS, { groups });
+    const evaluation = await evaluateDump(dump, parseMetricList(DEFAULT_METRIC_KEYS.join(',')), DEFAULT_CONVENTIONS, { groups, ...(signal ? { signal } : {}) });
+    if (signal?.aborted) return;
     overviewModel(dump, evaluation, 0);
     overviewDiagnostics(dump, evaluation, groups);
   } finally {

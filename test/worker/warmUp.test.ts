@@ -54,22 +54,27 @@ describe('engine thread warm-up', () => {
     expect(readdirSync(parent)).toEqual([]);
   });
 
+  it('stops when its signal is aborted (a real read arrived), still leaving nothing behind', async () => {
+    const parent = mkdtempSync(join(dir, 'stopped-'));
+    const stop = new AbortController();
+    stop.abort();
+    await expect(warmUp(parent, stop.signal)).rejects.toThrow();
+    expect(readdirSync(parent)).toEqual([]);
+  });
+
   it('runs in a thread the host warms, and the load timeline says when it finished', async () => {
     const file = join(dir, 'run.csv');
     writeFileSync(file, 'query,item,grade,score\nhex key set,SKU-1,1,0.4\nhex key set,SKU-2,0,0.9\n');
     worker = new EngineWorker(script);
     worker.warm();
     const settings = { metrics: 'ndcg@10', conventions: DEFAULT_CONVENTIONS };
-    // Polls the real thread until a load is answered after the warm-up (a deadline, no fixed pause).
+    // Polls the real thread until its warm-up has finished (a deadline, no fixed pause); asking does not stop it.
     const deadline = Date.now() + 60_000;
-    let warmed: number | undefined;
-    let threadReady = 0;
-    while (warmed === undefined && Date.now() < deadline) {
-      const { timeline } = await worker.call('load', { session: 'w', source: { path: file }, settings });
-      warmed = timeline.warmed;
-      threadReady = timeline.threadReady;
-    }
-    expect(warmed).toBeGreaterThanOrEqual(threadReady);
+    let times = await worker.call('threadTimes', {});
+    while (times.warmed === undefined && Date.now() < deadline) times = await worker.call('threadTimes', {});
+    expect(times.warmed).toBeGreaterThanOrEqual(times.threadReady);
+    const { timeline } = await worker.call('load', { session: 'w', source: { path: file }, settings });
+    expect(timeline.warmed).toBe(times.warmed);
     // A thread that is not warmed never reports one.
     const cold = new EngineWorker(script);
     try {
