@@ -9,7 +9,7 @@
  */
 import { compareRuns as compareScoredRuns, type CompareOptions, type Comparison } from './compare/compare';
 import { CoreMeter } from './evaluate/coreMeter';
-import { evaluateInParallel, type ParallelEvaluateOptions } from './evaluate/parallelEvaluate';
+import { evaluateInParallel, type ParallelEvaluateOptions } from './threads/parallelEvaluate';
 import type { Evaluation } from './evaluate/types';
 import type { Conventions } from './metrics/conventions';
 import type { MetricSpec } from './metrics/registry';

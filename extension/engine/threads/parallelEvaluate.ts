@@ -28,11 +28,11 @@ import {
   type EvaluationSetup,
   type RangeTally,
   type ScoredColumns,
-} from './evaluate';
-import type { SensitivityColumns } from './sensitivity';
-import { renderChunk, type ChunkWork } from './chunkOutput';
-import type { Evaluation, PerQueryColumns } from './types';
-import { startThread, threadScript } from '../threads/spawn';
+} from '../evaluate/evaluate';
+import type { SensitivityColumns } from '../evaluate/sensitivity';
+import { renderChunk, type ChunkWork } from '../evaluate/chunkOutput';
+import type { Evaluation, PerQueryColumns } from '../evaluate/types';
+import { startThread, threadScript } from './spawn';
 
 /**
  * Below this many rows starting a worker costs more than it saves: on 1M rows (0.4 s of scoring on one

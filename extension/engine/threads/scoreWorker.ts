@@ -5,9 +5,9 @@
  * when asked, the text a reporter wants made from each of those chunks).
  */
 import { parentPort } from 'node:worker_threads';
-import { runScoreRangeTask, type ScoreRangeTask } from '../engine/evaluate/parallelEvaluate';
+import { runScoreRangeTask, type ScoreRangeTask } from './parallelEvaluate';
 // Registers the JSON report's per-chunk renderer in this thread (see engine/evaluate/chunkOutput.ts).
-import '../engine/report/jsonRecords';
+import '../report/jsonRecords';
 
 const port = parentPort!;
 port.once('message', (task: ScoreRangeTask) => {

@@ -3,7 +3,7 @@
  * workerData and posts the columns back, transferring their buffers.
  */
 import { parentPort, workerData } from 'node:worker_threads';
-import { parseRange, transferList, type RangeTask } from './rangeParse';
+import { parseRange, transferList, type RangeTask } from '../readers/rangeParse';
 
 const port = parentPort!;
 parseRange(workerData as RangeTask, (done) => port.postMessage({ progress: done })).then(

@@ -12,12 +12,12 @@ import { CancelledError, InputError } from '../errors';
 import { BytePool, hashBytes, type BytePoolState } from '../model/bytePool';
 import type { RankedDump } from '../model/dump';
 import { addSummaries } from '../model/rowSummary';
-import { ROW_COLUMN_NAMES, ROW_COLUMNS, RowColumns, rowArray, rowArrays, sharedViews, type RowArrays, type RowColumnName, type SharedColumns } from './columns';
-import { DelimitedParser } from './delimited';
-import type { ReadOptions } from './readOptions';
-import { parseRange, type RangeResult, type RangeTask } from './rangeParse';
-import { assertTextHead, checkUnchanged, statStamp, throwIfCancelled } from './source';
-import { startThread, threadScript } from '../threads/spawn';
+import { ROW_COLUMN_NAMES, ROW_COLUMNS, RowColumns, rowArray, rowArrays, sharedViews, type RowArrays, type RowColumnName, type SharedColumns } from '../readers/columns';
+import { DelimitedParser } from '../readers/delimited';
+import type { ReadOptions } from '../readers/readOptions';
+import { parseRange, type RangeResult, type RangeTask } from '../readers/rangeParse';
+import { assertTextHead, checkUnchanged, statStamp, throwIfCancelled } from '../readers/source';
+import { startThread, threadScript } from './spawn';
 
 /**
  * Below this size one thread is faster: a worker starts cold, and the merge re-interns the later
