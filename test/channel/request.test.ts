@@ -8,7 +8,7 @@ import {
   RequestTimeoutError,
   type RequestEnvelope,
   type ResponseEnvelope,
-} from '../../extension/protocol/request';
+} from '../../extension/channel/request';
 
 type TestMap = {
   double: { params: { n: number }; result: number };
