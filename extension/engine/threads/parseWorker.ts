@@ -1,12 +1,18 @@
 /**
- * Entry point of a parse worker thread (bundled to dist/parseWorker.js): parses the byte range in
- * workerData and posts the columns back, transferring their buffers.
+ * Entry point of a parse worker thread (bundled to dist/parseWorker.js): answers the pool's requests
+ * to parse one byte range, reporting the bytes done as progress and transferring the columns' buffers back.
  */
-import { parentPort, workerData } from 'node:worker_threads';
-import { parseRange, transferList, type RangeTask } from '../readers/rangeParse';
+import { CancelledError } from '../errors';
+import { parseRange, transferList } from '../readers/rangeParse';
+import type { ParseRequests } from './parallel';
+import { reportProgress, serveThread, transferring } from './threadServer';
 
-const port = parentPort!;
-parseRange(workerData as RangeTask, (done) => port.postMessage({ progress: done })).then(
-  (result) => port.postMessage({ result }, transferList(result)),
-  (err: unknown) => port.postMessage({ failure: err instanceof Error ? err.stack ?? err.message : String(err) }),
-);
+serveThread<ParseRequests>({
+  parseRange: async (task, context) => {
+    const result = await parseRange(task, (done) => {
+      if (context.signal.aborted) throw new CancelledError();
+      reportProgress(context, done);
+    });
+    return transferring(result, transferList(result));
+  },
+});

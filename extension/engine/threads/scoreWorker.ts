@@ -1,19 +1,15 @@
 /**
- * Entry point of a score worker thread (bundled to dist/scoreWorker.js). The thread is started before
- * its task is ready, so its start-up overlaps the preparation: it waits for one message holding the
- * task, scores chunks of queries into the shared per-query columns and posts back its counts (and,
- * when asked, the text a reporter wants made from each of those chunks).
+ * Entry point of a score worker thread (bundled to dist/scoreWorker.js). The pool starts the thread
+ * before its task is ready, so its start-up overlaps the preparation; it then answers one request
+ * holding the task: it scores chunks of queries into the shared per-query columns, reports progress
+ * once it has claimed its first chunk, and answers with its counts (and, when asked, the text a
+ * reporter wants made from each of those chunks).
  */
-import { parentPort } from 'node:worker_threads';
-import { runScoreRangeTask, type ScoreRangeTask } from './parallelEvaluate';
+import { runScoreRangeTask, type ScoreRequests } from './parallelEvaluate';
+import { reportProgress, serveThread } from './threadServer';
 // Registers the JSON report's per-chunk renderer in this thread (see engine/evaluate/chunkOutput.ts).
 import '../report/jsonRecords';
 
-const port = parentPort!;
-port.once('message', (task: ScoreRangeTask) => {
-  try {
-    port.postMessage({ result: runScoreRangeTask(task, () => port.postMessage({ claimed: true })) });
-  } catch (err) {
-    port.postMessage({ failure: err instanceof Error ? err.stack ?? err.message : String(err) });
-  }
+serveThread<ScoreRequests>({
+  scoreRange: (task, context) => runScoreRangeTask(task, () => reportProgress(context, 0)),
 });
