@@ -18,7 +18,8 @@ import { readDump as readDumpFile, type ReadOptions } from './readers/index';
 
 export { configureEngine, DEFAULT_TUNING, type EngineConfiguration, type EngineSettings, type EngineTuning } from './config';
 export type { ChunkOutput } from './evaluate/chunkOutput';
-export type { CompareOptions, Comparison } from './compare/compare';
+export type { BaselineMemo, CompareOptions, Comparison } from './compare/compare';
+export { combineCandidates } from './compare/candidates';
 export type { Evaluation } from './evaluate/types';
 export type { RankedDump, ReadOptions } from './readers/index';
 
