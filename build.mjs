@@ -26,8 +26,9 @@ if (existsSync('extension/host/extension.ts')) {
     format: 'cjs', external: ['vscode', '@duckdb/node-api'] });
 }
 if (existsSync('webview/src/main.ts')) {
+  // Minified: every view loads it anew, and its first screen waits for it (the source map keeps errors readable).
   entries.push({ ...common, entryPoints: ['webview/src/main.ts'], outfile: 'dist/webview.js', platform: 'browser',
-    format: 'iife', loader: { '.ttf': 'file', '.css': 'text' } });
+    format: 'iife', loader: { '.ttf': 'file', '.css': 'text' }, minify: true });
 }
 
 const present = entries.filter((e) => existsSync(e.entryPoints[0]));

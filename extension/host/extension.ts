@@ -14,6 +14,7 @@ import { EngineWorker } from './workerHost';
 import type { SessionDeps } from './viewSession';
 
 export function activate(context: vscode.ExtensionContext): void {
+  const activatedAt = Date.now();
   const output = vscode.window.createOutputChannel('Gainline', { log: true });
   let config = loadConfig(output);
   const getConfig = (): GainlineConfig => config;
@@ -27,7 +28,7 @@ export function activate(context: vscode.ExtensionContext): void {
   // thread at once, so the first click on a dump does not wait for it.
   viewWorker.warm();
   const registry = new SessionRegistry();
-  const deps: SessionDeps = { worker: viewWorker, getConfig, memory: context.workspaceState, log: (line) => output.info(line) };
+  const deps: SessionDeps = { worker: viewWorker, getConfig, memory: context.workspaceState, log: (line) => output.info(line), activatedAt };
   const tree = new RankedListsTree(treeWorker, getConfig, context.workspaceState);
   const status = new HeadlineStatus();
   const recent = new RecentComparisons(context.workspaceState);

@@ -3,7 +3,7 @@
  * format; required for run files), a scores file for sparse feature lines, and the queries and items
  * tables. No `vscode` import.
  */
-import { promises as fsp } from 'node:fs';
+import { promises as fsp, type Dirent } from 'node:fs';
 import * as path from 'node:path';
 import type { DumpSource } from '../protocol/worker';
 import { columnsFor, sideFilesFor, type GainlineConfig, type SideFiles } from './config';
@@ -32,18 +32,36 @@ export function isSideTableName(file: string): boolean {
  * Judgments files near a dump, nearest first: its own folder, then sibling folders of it, then
  * the parent's folder. Stops at the first level that has any.
  */
-export async function findJudgmentCandidates(dumpFile: string): Promise<string[]> {
-  return findNear(dumpFile, JUDGMENT_FILE);
+export async function findJudgmentCandidates(dumpFile: string, listing: Listing = folderListing()): Promise<string[]> {
+  return findNear(dumpFile, JUDGMENT_FILE, listing);
+}
+
+/** A folder's entries (none when it cannot be read), each folder read once per listing. */
+type Listing = (folder: string) => Promise<readonly Dirent[]>;
+
+/**
+ * One per opened dump: the judgments, queries and items searches look at the same folders, and on
+ * a busy extension host each read waits its turn, before the first screen's read can even start.
+ */
+function folderListing(): Listing {
+  const read = new Map<string, Promise<readonly Dirent[]>>();
+  return (folder) => {
+    let entries = read.get(folder);
+    if (!entries) {
+      entries = fsp.readdir(folder, { withFileTypes: true }).catch(() => []);
+      read.set(folder, entries);
+    }
+    return entries;
+  };
 }
 
 /** Files matching `pattern` near `file`, nearest level first (own folder, sibling folders, parent). */
-async function findNear(file: string, pattern: RegExp): Promise<string[]> {
+async function findNear(file: string, pattern: RegExp, listing: Listing): Promise<string[]> {
   const dir = path.dirname(file);
   const parent = path.dirname(dir);
-  const levels: string[][] = [[dir], await subfolders(parent, dir), [parent]];
+  const levels: string[][] = [[dir], await subfolders(parent, dir, listing), [parent]];
   for (const folders of levels) {
-    const found: string[] = [];
-    for (const folder of folders) found.push(...(await filesMatching(folder, pattern)));
+    const found = (await Promise.all(folders.map((folder) => filesMatching(folder, pattern, listing)))).flat();
     if (found.length > 0) return found.sort();
   }
   return [];
@@ -77,7 +95,11 @@ export interface SourceChoice {
 export async function sourceFor(file: string, relative: string, config: GainlineConfig, remembered?: string): Promise<SourceChoice> {
   const columns = columnsFor(config, relative);
   const configured = sideFilesFor(config, relative);
-  const tables = configured ? configuredTables(file, relative, configured) : await foundTables(file);
+  const listing = folderListing();
+  // Started together: the searches share the folder listings.
+  const judgmentsNearby = configured?.judgments === undefined && !remembered ? findJudgmentCandidates(file, listing) : undefined;
+  judgmentsNearby?.catch(() => undefined);
+  const tables = configured ? configuredTables(file, relative, configured) : await foundTables(file, listing);
   let base: DumpSource = { path: file, ...(columns ? { columns } : {}), ...tables };
   if (/\.(sparse|svm(light)?)$/i.test(file)) {
     const scores = await findScoresFile(file);
@@ -89,7 +111,7 @@ export async function sourceFor(file: string, relative: string, config: Gainline
   const judged = (judgments: string): DumpSource => ({ ...base, judgments, missingQueries: config.missingQueries });
   if (configured?.judgments !== undefined) return { source: judged(resolveIn(file, relative, configured.judgments)), judgmentsRequired: required };
   if (remembered) return { source: judged(remembered), judgmentsRequired: required };
-  const candidates = await findJudgmentCandidates(file);
+  const candidates = await (judgmentsNearby ?? findJudgmentCandidates(file, listing));
   // Found for a dump with labels of its own: the worker leaves it out when it shares no query with the dump.
   if (candidates.length === 1) return { source: { ...judged(candidates[0]!), ...(required ? {} : { judgmentsFound: true }) }, judgmentsRequired: required };
   if (candidates.length === 0) return { source: base, judgmentsRequired: required };
@@ -105,9 +127,8 @@ function configuredTables(file: string, relative: string, files: SideFiles): Pic
 }
 
 /** Side tables found by the naming rule; the worker joins them only when they share ids with the dump. */
-async function foundTables(file: string): Promise<Pick<DumpSource, 'queries' | 'items' | 'tablesFound'>> {
-  const [queries] = await findNear(file, QUERIES_FILE);
-  const [items] = await findNear(file, ITEMS_FILE);
+async function foundTables(file: string, listing: Listing): Promise<Pick<DumpSource, 'queries' | 'items' | 'tablesFound'>> {
+  const [[queries], [items]] = await Promise.all([findNear(file, QUERIES_FILE, listing), findNear(file, ITEMS_FILE, listing)]);
   if (queries === undefined && items === undefined) return {};
   return { ...(queries ? { queries } : {}), ...(items ? { items } : {}), tablesFound: true };
 }
@@ -126,23 +147,13 @@ export function isTextual(file: string): boolean {
   return !/\.(parquet|gz)$/i.test(file);
 }
 
-async function subfolders(parent: string, except: string): Promise<string[]> {
-  try {
-    const entries = await fsp.readdir(parent, { withFileTypes: true });
-    return entries
-      .filter((e) => e.isDirectory() && e.name !== 'node_modules' && !e.name.startsWith('.'))
-      .map((e) => path.join(parent, e.name))
-      .filter((p) => p !== except);
-  } catch {
-    return [];
-  }
+async function subfolders(parent: string, except: string, listing: Listing): Promise<string[]> {
+  return (await listing(parent))
+    .filter((e) => e.isDirectory() && e.name !== 'node_modules' && !e.name.startsWith('.'))
+    .map((e) => path.join(parent, e.name))
+    .filter((p) => p !== except);
 }
 
-async function filesMatching(folder: string, pattern: RegExp): Promise<string[]> {
-  try {
-    const entries = await fsp.readdir(folder, { withFileTypes: true });
-    return entries.filter((e) => e.isFile() && pattern.test(e.name)).map((e) => path.join(folder, e.name));
-  } catch {
-    return [];
-  }
+async function filesMatching(folder: string, pattern: RegExp, listing: Listing): Promise<string[]> {
+  return (await listing(folder)).filter((e) => e.isFile() && pattern.test(e.name)).map((e) => path.join(folder, e.name));
 }

@@ -33,6 +33,8 @@ export interface SessionDeps {
   readonly log?: (line: string) => void;
   /** Overrides the delay before the Cancel-able notification appears (tests). */
   readonly notificationDelayMs?: number;
+  /** When the extension was activated (epoch ms), for the first screen's timeline in the log. */
+  readonly activatedAt?: number;
 }
 
 /** What the status bar shows for the view in front. */
@@ -71,6 +73,7 @@ export class ViewSession implements vscode.Disposable {
   private disposed = false;
   /** When the view was opened: the first load's log line says where the time before computing went. */
   private readonly openedAt = performance.now();
+  private readonly openedEpoch = Date.now();
 
   constructor(
     private readonly webview: vscode.Webview,
@@ -210,14 +213,18 @@ export class ViewSession implements vscode.Disposable {
       const options = { signal: abort.signal, timeoutMs: LOAD_TIMEOUT_MS, onProgress };
       const asked = performance.now();
       if (this.target.mode === 'single') {
-        const overview = await this.deps.worker.call(
+        const askedEpoch = Date.now();
+        const { timeline, ...overview } = await this.deps.worker.call(
           'load', { session: this.key, source: this.sources[0]!, settings: evaluationSettings(config) }, options);
         this.overview = overview;
         this.setState({ status: kind, mode: 'single', overview });
         const answered = performance.now();
         // Where the time went: before the request (sources, judgments), in the worker, and the rest
-        // (thread start on first use, messages), so a slow first screen can be told apart.
-        const split = firstTime ? ` (${Math.round(asked - this.openedAt)} ms before the request, ${overview.loadMs} ms reading and scoring, ${Math.max(0, Math.round(answered - asked - overview.loadMs))} ms thread start and messages)` : '';
+        // (thread start on first use, messages), so a slow first screen can be told apart; the
+        // timeline's epoch times let the end-to-end suite line them up with its click.
+        const steps = [['activated', this.deps.activatedAt], ['opened', this.openedEpoch], ['asked', askedEpoch], ['thread ready', timeline.threadReady],
+          ['warmed up', timeline.warmed], ['received', timeline.received], ['read', timeline.read], ['scored', timeline.scored], ['answered', Date.now()]] as const;
+        const split = firstTime ? ` (${Math.round(asked - this.openedAt)} ms before the request, ${overview.loadMs} ms reading and scoring, ${Math.max(0, Math.round(answered - asked - overview.loadMs))} ms thread start and messages; timeline in epoch ms: ${steps.filter(([, t]) => t !== undefined).map(([name, t]) => `${name} ${t}`).join(', ')})` : '';
         this.deps.log?.(`${kind === 'loaded' ? 'read' : 're-read'} ${this.label}: ${overview.file.rowCount} rows, ${overview.queryCount} queries, ${overview.loadMs} ms${split}`);
       } else {
         const compare = await this.deps.worker.call(
@@ -306,7 +313,8 @@ export class ViewSession implements vscode.Disposable {
   private async reread(): Promise<void> {
     const config = this.deps.getConfig();
     if (this.target.mode === 'single') {
-      this.overview = await this.deps.worker.call('load', { session: this.key, source: this.sources[0]!, settings: evaluationSettings(config) }, { timeoutMs: LOAD_TIMEOUT_MS });
+      const { timeline: _timeline, ...overview } = await this.deps.worker.call('load', { session: this.key, source: this.sources[0]!, settings: evaluationSettings(config) }, { timeoutMs: LOAD_TIMEOUT_MS });
+      this.overview = overview;
     } else {
       this.compare = await this.deps.worker.call('loadCompare', { session: this.key, a: this.sources[0]!, b: this.sources[1]!, settings: compareSettings(config) }, { timeoutMs: LOAD_TIMEOUT_MS });
     }
@@ -324,6 +332,7 @@ export class ViewSession implements vscode.Disposable {
       queryPage: (p, { signal }) => ask(() => w.call('queryPage', { ...p, session }, { signal })),
       queryDetail: (p, { signal }) => ask(() => w.call('queryDetail', { ...p, session }, { signal })),
       segments: (p, { signal }) => ask(() => w.call('segments', { ...p, session }, { signal })),
+      overviewDiagnostics: (_p, { signal }) => ask(() => w.call('overviewDiagnostics', { session }, { signal })),
       comparePage: (p, { signal }) => ask(() => w.call('comparePage', { ...p, session }, { signal })),
       queryMovement: (p, { signal }) => ask(() => w.call('queryMovement', { ...p, session }, { signal })),
       compareSegments: (p, { signal }) => ask(() => w.call('compareSegments', { ...p, session }, { signal })),

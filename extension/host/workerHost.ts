@@ -25,6 +25,8 @@ export class EngineWorker {
   private readonly progress = new Map<number, NonNullable<WorkerCallOptions['onProgress']>>();
   private disposed = false;
   private flags = new Int32Array(createCancelFlags());
+  /** Set by warm(): the thread warms its code up on start (worker/warmUp.ts). */
+  private warmUp = false;
   /** Bumped each time a thread starts; sessions held by an older thread are gone. */
   generation = 0;
 
@@ -61,9 +63,11 @@ export class EngineWorker {
 
   /**
    * Starts the thread now, so the first view does not wait for it to start and load the engine
-   * (measured in the end-to-end run's first-screen figures).
+   * (measured in the end-to-end run's first-screen figures). The thread (and any restart of it) also
+   * reads and scores a small generated dump once, so the first real read runs compiled code.
    */
   warm(): void {
+    this.warmUp = true;
     if (!this.disposed) this.ensureStarted();
   }
 
@@ -81,7 +85,7 @@ export class EngineWorker {
     if (this.client) return this.client;
     const shared = createCancelFlags();
     this.flags = new Int32Array(shared);
-    const worker = new Worker(this.scriptPath, { workerData: { cancelFlags: shared } });
+    const worker = new Worker(this.scriptPath, { workerData: { cancelFlags: shared, warmUp: this.warmUp } });
     const client = new RequestClient<WorkerRequests>((message) => worker.postMessage(message), DEFAULT_TIMEOUT_MS);
     this.generation++;
     worker.on('message', (message: unknown) => {

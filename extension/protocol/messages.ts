@@ -93,8 +93,6 @@ export interface OverviewModel {
   readonly queryText?: boolean;
   /** Where query weights came from, when the means are weighted ("column 'weight' of queries.tsv"). */
   readonly weighting?: string;
-  /** Score distribution per grade and DCG by position against the ideal (evaluate/diagnostics.ts). */
-  readonly diagnostics?: ScoreDiagnosticsView;
 }
 
 /** The score distribution of one grade (null grade = unjudged rows); NaN statistics become null. */
@@ -124,6 +122,10 @@ export interface DcgByPositionView {
   readonly ideal: readonly MaybeNumber[];
 }
 
+/**
+ * Score distribution per grade and DCG by position against the ideal (evaluate/diagnostics.ts). Asked
+ * for by the overview once the headline is on screen: it costs another pass over every query.
+ */
 export interface ScoreDiagnosticsView {
   readonly scoresByGrade: ScoresByGradeView;
   readonly dcgByPosition: DcgByPositionView;
@@ -310,6 +312,7 @@ export type ViewRequests = {
   queryPage: { params: QueryPageParams; result: QueryPage };
   queryDetail: { params: QueryDetailParams; result: QueryDetailView };
   segments: { params: SegmentsParams; result: SegmentTable };
+  overviewDiagnostics: { params: Record<string, never>; result: ScoreDiagnosticsView };
   exportView: { params: ExportViewParams; result: ExportResult };
   copyQueryJson: { params: CopyQueryJsonParams; result: { copied: boolean } };
   revealRow: { params: RevealRowParams; result: RevealResult };

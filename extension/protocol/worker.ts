@@ -73,17 +73,33 @@ export interface HeadlineResult {
   readonly rowCount: number;
 }
 
+/**
+ * When the worker reached each step of one load (epoch ms, the clock the host and the end-to-end
+ * suite share), for the first screen's timeline in the log.
+ */
+export interface LoadTimeline {
+  /** The thread had loaded its code (before this request when it was started early). */
+  readonly threadReady: number;
+  /** The thread's warm-up read had finished (absent when it had not, or the thread runs none). */
+  readonly warmed?: number;
+  readonly received: number;
+  readonly read: number;
+  readonly scored: number;
+}
+
 type Keyed<T> = T & { readonly session: string };
 
 /** A webview request the host passes on unchanged but for the session it belongs to. */
 type Forwarded<M extends keyof ViewRequests> = { params: Keyed<ViewRequests[M]['params']>; result: ViewRequests[M]['result'] };
 
 export type WorkerRequests = {
-  load: { params: LoadParams; result: OverviewModel };
+  load: { params: LoadParams; result: OverviewModel & { readonly timeline: LoadTimeline } };
   loadCompare: { params: LoadCompareParams; result: CompareOverviewModel };
   /** Read + evaluate without keeping the dump (tree view); freed at once. */
   headline: { params: HeadlineParams; result: HeadlineResult };
   unload: { params: { readonly session: string }; result: { readonly unloaded: boolean } };
+  /** When the thread was ready and had warmed up (see LoadTimeline); asking does not stop the warm-up. */
+  threadTimes: { params: Record<string, never>; result: Pick<LoadTimeline, 'threadReady' | 'warmed'> };
   queryPage: Forwarded<'queryPage'>;
   queryDetail: Forwarded<'queryDetail'>;
   /** The raw JSON of one query's rows and metric values (for the clipboard). */
@@ -94,6 +110,7 @@ export type WorkerRequests = {
     result: { readonly line: number; readonly offset: number; readonly path: string };
   };
   segments: Forwarded<'segments'>;
+  overviewDiagnostics: { params: { readonly session: string }; result: ViewRequests['overviewDiagnostics']['result'] };
   comparePage: Forwarded<'comparePage'>;
   queryMovement: Forwarded<'queryMovement'>;
   compareSegments: Forwarded<'compareSegments'>;

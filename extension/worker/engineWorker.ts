@@ -6,7 +6,6 @@
  * every progress tick, the synchronous evaluation loop too — a cancel message alone could not be seen
  * while the thread is busy.
  */
-import { availableParallelism } from 'node:os';
 import { parentPort, workerData } from 'node:worker_threads';
 import { CancelledError, InputError } from '../engine/errors';
 import { queryMovement } from '../engine/compare/movement';
@@ -27,8 +26,10 @@ import { CompareTable, compareOverviewModel } from './compareTable';
 import { QueryTable } from './queryTable';
 import { scoresByGrade } from '../engine/evaluate/diagnostics';
 import { overviewDiagnostics, scoresByGradeView } from './diagnosticsView';
+import type { ScoreDiagnosticsView } from '../protocol/messages';
 import { detailView, metricLabel, movementView, overviewModel, segmentTable } from './viewModels';
 import { isCancelled } from './cancelFlags';
+import { warmUp } from './warmUp';
 
 interface Loaded {
   readonly dump: RankedDump;
@@ -37,6 +38,8 @@ interface Loaded {
   /** Scanned once here so that each detail request need not scan every grade again. */
   readonly gradeRange: GradeRange;
   readonly table: QueryTable;
+  /** Computed when the overview first asks for it (after its headline is on screen), then kept. */
+  diagnostics?: ScoreDiagnosticsView;
 }
 type Session =
   | ({ readonly kind: 'single' } & Loaded)
@@ -55,6 +58,12 @@ function rowsHeld(s: Session | undefined): number {
 function prepareReload(key: string): void {
   if (rowsHeld(sessions.get(key)) > KEEP_WHILE_RELOADING_ROWS) sessions.delete(key);
 }
+/** When this thread had loaded its code and could take requests (epoch ms), for the first screen's timeline. */
+const readyAt = Date.now();
+/** When the warm-up read (see warmUp.ts) finished, if this thread ran one. */
+let warmedAt: number | undefined;
+/** A real read arriving stops the warm-up where it is: the user's dump goes first. */
+const warmUpStop = new AbortController();
 const flags: Int32Array | undefined = workerData?.cancelFlags instanceof SharedArrayBuffer ? new Int32Array(workerData.cancelFlags) : undefined;
 
 /** Progress at most every 100 ms, and a CancelledError as soon as the request is cancelled. */
@@ -71,9 +80,9 @@ function progressReporter(ctx: HandlerContext, from: number, to: number, message
 }
 
 async function read(source: DumpSource, ctx: HandlerContext, from: number, to: number, label = 'Reading'): Promise<RankedDump> {
+  // Threads are the engine's choice, as for the command line's eval: parse threads (started from this
+  // thread, found in the bundle folder) for large files, score threads for large dumps when cores are free.
   return readSource(source, {
-    // On two cores or fewer, extra parse threads would starve the extension host and the UI.
-    ...(availableParallelism() <= 2 ? { threads: 1 } : {}),
     signal: ctx.signal,
     onProgress: progressReporter(ctx, from, to, `${label} ${source.path.split(/[\\/]/).pop()}…`),
   });
@@ -127,24 +136,36 @@ function detailOf(l: Loaded, query: string, maxPairs?: number) {
 }
 
 const handlers: RequestHandlers<WorkerRequests> = {
+  // Only what the overview's first screen shows: the score diagnostics, a second pass over every
+  // query, come with their own request once the headline is on screen.
   async load({ session: key, source, settings }, ctx) {
+    warmUpStop.abort();
+    const received = Date.now();
     const started = performance.now();
     prepareReload(key);
     const dump = await read(source, ctx, 0, 0.75);
+    const readDone = Date.now();
     const groups = groupByQuery(dump);
     const metrics = parseMetricList(settings.metrics);
     const evaluation = await evaluateDump(dump, metrics, settings.conventions, { groups, signal: ctx.signal, onProgress: progressReporter(ctx, 0.75, 1, 'Scoring queries…') });
     const entry = loaded(dump, evaluation, groups);
     sessions.set(key, { kind: 'single', ...entry });
-    return {
+    const overview = {
       ...overviewModel(dump, evaluation, performance.now() - started),
       ...(evaluation.weighting ? { weighting: evaluation.weighting.source } : {}),
       ...(dump.joined?.queryText ? { queryText: true } : {}),
-      diagnostics: overviewDiagnostics(dump, evaluation, groups),
     };
+    return { ...overview, timeline: { threadReady: readyAt, ...(warmedAt ? { warmed: warmedAt } : {}), received, read: readDone, scored: Date.now() } };
+  },
+
+  overviewDiagnostics({ session: key }) {
+    const s = single(key);
+    s.diagnostics ??= overviewDiagnostics(s.dump, s.evaluation, s.groups);
+    return s.diagnostics;
   },
 
   async loadCompare({ session: key, a: sourceA, b: sourceB, settings }, ctx) {
+    warmUpStop.abort();
     const started = performance.now();
     prepareReload(key);
     const a = await read(sourceA, ctx, 0, 0.3, 'Reading run A,');
@@ -169,12 +190,17 @@ const handlers: RequestHandlers<WorkerRequests> = {
   },
 
   async headline({ source, settings }, ctx) {
+    warmUpStop.abort();
     const dump = await read(source, ctx, 0, 0.8);
     const metrics = parseMetricList(settings.metrics);
     const evaluation = await evaluateDump(dump, metrics, settings.conventions, { signal: ctx.signal, sensitivity: false });
     const h = evaluation.headline;
     const mean = evaluation.summary[h]?.mean ?? NaN;
     return { key: metrics[h]!.key, label: metricLabel(metrics[h]!), mean: Number.isFinite(mean) ? mean : null, queryCount: evaluation.queryCount, rowCount: dump.rowCount };
+  },
+
+  threadTimes() {
+    return { threadReady: readyAt, ...(warmedAt ? { warmed: warmedAt } : {}) };
   },
 
   unload({ session: key }) {
@@ -258,4 +284,6 @@ if (parentPort) {
   port.on('message', (message: unknown) => {
     server.handleMessage(message);
   });
+  // A failed warm-up costs only the speed it was for; the first real read reports its own errors.
+  if (workerData?.warmUp === true) void warmUp(undefined, warmUpStop.signal).then(() => (warmedAt = Date.now()), () => undefined);
 }

@@ -73,6 +73,33 @@ describe('single-run screens', () => {
     await page.close();
   });
 
+  it('shows the headline before the score diagnostics, which it asks for afterwards, and says when they fail', async () => {
+    const { page, problems } = await open('queries=200&diagnostics=held');
+    await page.waitForSelector('#gl-headline-value');
+    expect(await page.textContent('#gl-headline-value')).toMatch(/^\d\.\d{4}$/);
+    // The request is out while the headline, sensitivity and data tables are already shown.
+    await page.waitForFunction(() => (window as unknown as { __host: { calls: { method: string }[] } }).__host.calls.some((c) => c.method === 'overviewDiagnostics'));
+    expect(await page.getAttribute('#gl-score-diagnostics', 'aria-busy')).toBe('true');
+    expect(await page.textContent('#gl-score-diagnostics')).toContain('Computing the score diagnostics');
+    expect(await page.isVisible('#gl-sensitivity')).toBe(true);
+    expect(await page.locator('#gl-scores-by-grade').count()).toBe(0);
+    await page.evaluate(() => (window as unknown as { __host: { releaseDiagnostics(): void } }).__host.releaseDiagnostics());
+    await page.waitForSelector('#gl-scores-by-grade tbody tr');
+    expect(await page.getAttribute('#gl-score-diagnostics', 'aria-busy')).toBe(null);
+    expect(await page.locator('#gl-dcg-by-position tbody tr').count()).toBe(4);
+    // A refresh asks again; a failure is said in the box, and the rest of the overview stays.
+    await page.evaluate(() => {
+      const host = (window as unknown as { __host: { send(m: unknown): void; overview: unknown } }).__host;
+      host.send({ kind: 'state', state: { status: 'reloaded', mode: 'single', overview: host.overview } });
+    });
+    await page.waitForSelector('#gl-score-diagnostics[aria-busy="true"]');
+    await page.evaluate(() => (window as unknown as { __host: { releaseDiagnostics(error: string): void } }).__host.releaseDiagnostics('nothing is loaded for this view'));
+    await page.waitForFunction(() => document.querySelector('#gl-score-diagnostics')?.textContent?.includes('Could not compute the score diagnostics: nothing is loaded for this view'));
+    expect(await page.textContent('#gl-headline-value')).toMatch(/^\d\.\d{4}$/);
+    expect(problems).toEqual([]);
+    await page.close();
+  });
+
   it('pages 100k queries into a virtual grid, worst first, with only visible rows in the DOM', async () => {
     const count = 100_000;
     const expected = worstFirst(count);

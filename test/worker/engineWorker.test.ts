@@ -69,6 +69,31 @@ describe('engine worker', () => {
     expect(JSON.stringify(overview)).not.toContain('NaN');
   });
 
+  it('answers the overview’s score diagnostics on their own request, after the load, with hand-derived values', async () => {
+    const overview = await worker.call('load', { session: 's1', source: { path: fileA }, settings });
+    // The load carries only the first screen; its timeline is in step order.
+    expect(overview).not.toHaveProperty('diagnostics');
+    const t = overview.timeline;
+    expect(t.threadReady <= t.received && t.received <= t.read && t.read <= t.scored).toBe(true);
+    const d = await worker.call('overviewDiagnostics', { session: 's1' });
+    // Scores per grade: grade 0 = 0.8, 0.7, 0.5, 0.4; grade 1 = 0.2, 0.1; grade 2 = 0.9.
+    expect(d.scoresByGrade.grades.map((g) => [g.grade, g.count])).toEqual([[0, 4], [1, 2], [2, 1]]);
+    expect(d.scoresByGrade.grades[0]!.mean).toBeCloseTo(0.6, 12);
+    expect(d.scoresByGrade.grades[1]!.mean).toBeCloseTo(0.15, 12);
+    // Each position's share of its query's ideal DCG@10, over the two queries with something relevant:
+    // drill 3/IDCG, 0, (1/2)/IDCG against ideal 3/IDCG, (1/log2 3)/IDCG, 0; screws 0, 1/log2 3 against 1, 0.
+    const idcg = 3 + 1 / Math.log2(3);
+    expect(d.dcgByPosition.queries).toBe(2);
+    expect(d.dcgByPosition.predicted[0]).toBeCloseTo((3 / idcg) / 2, 12);
+    expect(d.dcgByPosition.predicted[1]).toBeCloseTo((1 / Math.log2(3)) / 2, 12);
+    expect(d.dcgByPosition.predicted[2]).toBeCloseTo((0.5 / idcg) / 2, 12);
+    expect(d.dcgByPosition.ideal[0]).toBeCloseTo((3 / idcg + 1) / 2, 12);
+    expect(d.dcgByPosition.ideal[1]).toBeCloseTo((1 / Math.log2(3) / idcg) / 2, 12);
+    // Asked again, the same answer (kept with the session).
+    expect(await worker.call('overviewDiagnostics', { session: 's1' })).toEqual(d);
+    await expect(worker.call('overviewDiagnostics', { session: 'never-loaded' })).rejects.toThrow(/nothing is loaded/);
+  });
+
   it('pages queries worst first with loss shares', async () => {
     const page = await worker.call('queryPage', { session: 's1', offset: 0, limit: 10 });
     expect(page.total).toBe(3);

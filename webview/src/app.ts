@@ -54,6 +54,7 @@ export class App implements AppContext {
     parent.appendChild(this.root);
     window.addEventListener('message', (e: MessageEvent) => this.onMessage(e.data as HostToView));
     this.post({ kind: 'ready' });
+    performance.mark('gainline-ready');
   }
 
   // ---- AppContext ------------------------------------------------------------------------------
@@ -152,9 +153,13 @@ export class App implements AppContext {
         // 'loaded' comes twice; the repeat must not throw the user back to the first tab.
         const repeat = state.status === 'loaded' && this.showing === 'content';
         const keep = (state.status === 'reloaded' || repeat) && this.mode === state.mode;
+        performance.mark('gainline-result');
         if (state.mode === 'single') this.loadSingle(state.overview, keep);
         else this.loadCompare(state.compare, keep);
         this.show('content');
+        performance.mark('gainline-shown');
+        // The frame that paints the result (its callbacks run just before its paint).
+        requestAnimationFrame(() => performance.mark('gainline-painted'));
         return;
       }
     }

@@ -20,6 +20,9 @@ export const openWithShowsHeadline = {
     const label = await frameText(frame, '#gl-headline-label');
     assert(/NDCG@10/i.test(label), `headline label is "${label}", expected NDCG@10`);
     assert(await frame.locator('#gl-overview').isVisible(), '#gl-overview is not visible');
+    // The score diagnostics follow the headline (their own request, after the histogram is drawn).
+    await frame.locator('#gl-scores-by-grade tbody tr').first().waitFor({ state: 'attached', timeout: 30_000 });
+    await frame.locator('#gl-dcg-by-position tbody tr').first().waitFor({ state: 'attached', timeout: 30_000 });
     await ctx.shot('overview', { readme: true });
   },
 };

@@ -12,6 +12,7 @@ import type {
   PositionView,
   QueryDetailView,
   QueryRow,
+  ScoreDiagnosticsView,
   ViewRequests,
   ViewState,
 } from '../../../extension/protocol/messages';
@@ -96,9 +97,20 @@ export interface FakeHostOptions {
   readonly bigItems?: number;
   /** Show the extension's full default metric set instead of two metrics. */
   readonly allMetrics?: boolean;
+  /** The overview's diagnostics are answered only when the page calls `releaseDiagnostics()` (or fail with its message). */
+  readonly holdDiagnostics?: boolean;
 }
 
-export function startFakeHost(options: FakeHostOptions): { send(message: HostToView): void; calls: { method: string; params: unknown }[]; queries: FakeQuery[]; overview: OverviewModel } {
+export interface FakeHost {
+  send(message: HostToView): void;
+  calls: { method: string; params: unknown }[];
+  queries: FakeQuery[];
+  overview: OverviewModel;
+  /** With `holdDiagnostics`: answers the diagnostics requests waiting so far, or fails them with `error`. */
+  releaseDiagnostics(error?: string): void;
+}
+
+export function startFakeHost(options: FakeHostOptions): FakeHost {
   const queries = makeQueries(options.queries, 1, options.bigItems ?? 0);
   const byId = new Map(queries.map((q) => [q.id, q]));
   const calls: { method: string; params: unknown }[] = [];
@@ -138,18 +150,19 @@ export function startFakeHost(options: FakeHostOptions): { send(message: HostToV
     segmentColumns: ['locale'],
     warnings: ['2 duplicate rows: the first of each was kept.'],
     loadMs: 42,
-    diagnostics: {
-      scoresByGrade: {
-        edges: [0, 0.25, 0.5, 0.75, 1],
-        grades: [
-          { grade: 0, count: 40, missing: 1, q1: 0.1, median: 0.2, q3: 0.35, mean: 0.24, bins: [20, 14, 5, 1] },
-          { grade: 2, count: 12, missing: 0, q1: 0.55, median: 0.7, q3: 0.8, mean: 0.66, bins: [0, 2, 4, 6] },
-          { grade: null, count: 3, missing: 0, q1: 0.3, median: 0.4, q3: 0.5, mean: 0.4, bins: [0, 2, 1, 0] },
-        ],
-      },
-      dcgByPosition: { k: 10, depth: 3, queries: 480, predicted: [0.4, 0.15, 0.08, 0.05], ideal: [0.55, 0.25, 0.12, 0.08] },
-    },
   };
+  const diagnostics: ScoreDiagnosticsView = {
+    scoresByGrade: {
+      edges: [0, 0.25, 0.5, 0.75, 1],
+      grades: [
+        { grade: 0, count: 40, missing: 1, q1: 0.1, median: 0.2, q3: 0.35, mean: 0.24, bins: [20, 14, 5, 1] },
+        { grade: 2, count: 12, missing: 0, q1: 0.55, median: 0.7, q3: 0.8, mean: 0.66, bins: [0, 2, 4, 6] },
+        { grade: null, count: 3, missing: 0, q1: 0.3, median: 0.4, q3: 0.5, mean: 0.4, bins: [0, 2, 1, 0] },
+      ],
+    },
+    dcgByPosition: { k: 10, depth: 3, queries: 480, predicted: [0.4, 0.15, 0.08, 0.05], ideal: [0.55, 0.25, 0.12, 0.08] },
+  };
+  const heldDiagnostics: ((error?: string) => void)[] = [];
   const sortCache = new Map<string, FakeQuery[]>();
   const list = (key: string, descending: boolean, filter?: string, locale?: string): FakeQuery[] => {
     const cacheKey = `${key}|${descending}|${filter ?? ''}|${locale ?? ''}`;
@@ -248,6 +261,9 @@ export function startFakeHost(options: FakeHostOptions): { send(message: HostToV
       if (!q) throw new Error(`no query '${p.query}'`);
       return detail(q, p.run);
     },
+    overviewDiagnostics: () => options.holdDiagnostics ? new Promise<ScoreDiagnosticsView>((resolve, reject) => {
+      heldDiagnostics.push((error) => (error === undefined ? resolve(diagnostics) : reject(new Error(error))));
+    }) : diagnostics,
     segments: (p) => ({
       column: p.column,
       rows: LOCALES.map((value) => {
@@ -331,5 +347,8 @@ export function startFakeHost(options: FakeHostOptions): { send(message: HostToV
     getState: () => state,
     setState: (s: unknown) => (state = s),
   });
-  return { send: toView, calls, queries, overview };
+  const releaseDiagnostics = (error?: string) => {
+    for (const answer of heldDiagnostics.splice(0)) answer(error);
+  };
+  return { send: toView, calls, queries, overview, releaseDiagnostics };
 }

@@ -9,5 +9,6 @@ const host = startFakeHost({
   delayMs: Number(params.get('delay') ?? '0'),
   bigItems: Number(params.get('items') ?? '0'),
   allMetrics: params.get('metrics') === 'all',
+  holdDiagnostics: params.get('diagnostics') === 'held',
 });
 (window as unknown as { __host: typeof host }).__host = host;

@@ -9,7 +9,7 @@ import { DEGENERATE_EXPLANATIONS, explainMetric } from '../model/explain';
 import { exactValue, formatCount, formatDelta, formatFixed, formatShare } from '../model/format';
 import { barChart } from '../ui/charts';
 import type { AppContext } from '../ui/context';
-import { button, clear, el } from '../ui/dom';
+import { afterPaint, button, clear, el } from '../ui/dom';
 import { staticTable } from '../ui/staticTable';
 import { dcgByPositionSection, scoresByGradeSection } from './scoreDiagnostics';
 
@@ -19,10 +19,13 @@ export class OverviewScreen {
   readonly element = el('div', { id: 'gl-overview' });
   private chart: Chart | undefined;
   private diagnosticCharts: Chart[] = [];
+  /** Bumped by each render, so diagnostics that arrive for an older model are dropped. */
+  private renders = 0;
 
   constructor(private readonly ctx: AppContext) {}
 
   render(model: OverviewModel): void {
+    const generation = ++this.renders;
     this.chart?.destroy();
     for (const c of this.diagnosticCharts) c.destroy();
     this.diagnosticCharts = [];
@@ -91,7 +94,11 @@ export class OverviewScreen {
           el('p', { className: 'gl-muted', text: 'Change them in the settings under gainline.*; the view recomputes.' })),
       ),
     );
-    this.chart = this.histogram(canvas, model);
+    // Drawn after the first paint: creating the chart costs as much as the rest of the overview, and the
+    // headline should not wait for it.
+    afterPaint(() => {
+      if (generation === this.renders) this.chart = this.histogram(canvas, model);
+    });
 
     this.element.appendChild(el('h2', { text: `How ${headline.label} depends on the conventions` }));
     this.element.appendChild(
@@ -122,13 +129,9 @@ export class OverviewScreen {
       }),
     );
 
-    if (model.diagnostics) {
-      // Appended before the charts are drawn: chart.js sizes a canvas from its place in the page.
-      const box = el('div', { id: 'gl-score-diagnostics', className: 'gl-grid2' });
-      this.element.appendChild(box);
-      box.append(scoresByGradeSection(model.diagnostics.scoresByGrade, 'gl-scores-by-grade', this.diagnosticCharts),
-        dcgByPositionSection(model.diagnostics.dcgByPosition, this.diagnosticCharts));
-    }
+    const diagnostics = el('div', { id: 'gl-score-diagnostics', className: 'gl-grid2', attrs: { 'aria-busy': 'true' } },
+      el('p', { className: 'gl-muted', text: 'Computing the score diagnostics…' }));
+    this.element.appendChild(diagnostics);
 
     this.element.appendChild(el('h2', { text: 'Data found and how it was handled' }));
     const d = model.degenerate as unknown as Record<string, number>;
@@ -155,6 +158,29 @@ export class OverviewScreen {
         button('Export summary as Markdown', { icon: 'markdown', secondary: true, onClick: () => this.export(model, 'markdown') }),
         button('Export summary as CSV', { icon: 'export', secondary: true, onClick: () => this.export(model, 'csv') })),
     );
+    afterPaint(() => void this.fillDiagnostics(diagnostics, generation));
+  }
+
+  /**
+   * The score diagnostics take another pass over every query, as long as scoring them: they are asked
+   * for once the rest of the overview, headline first, has been painted.
+   */
+  private async fillDiagnostics(box: HTMLElement, generation: number): Promise<void> {
+    if (generation !== this.renders) return;
+    try {
+      const d = await this.ctx.request('overviewDiagnostics', {});
+      if (generation !== this.renders) return;
+      clear(box);
+      box.removeAttribute('aria-busy');
+      // The box is in the page before the charts are drawn: chart.js sizes a canvas from its place.
+      box.append(scoresByGradeSection(d.scoresByGrade, 'gl-scores-by-grade', this.diagnosticCharts),
+        dcgByPositionSection(d.dcgByPosition, this.diagnosticCharts));
+    } catch (e) {
+      if (generation !== this.renders) return;
+      clear(box);
+      box.removeAttribute('aria-busy');
+      box.append(el('p', { className: 'gl-muted', text: `Could not compute the score diagnostics: ${(e as Error).message}` }));
+    }
   }
 
   private histogram(canvas: HTMLCanvasElement, model: OverviewModel): Chart {

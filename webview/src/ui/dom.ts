@@ -93,3 +93,8 @@ export function bar(fraction: number | null, className = 'gl-bar'): HTMLElement 
   outer.appendChild(inner);
   return outer;
 }
+
+/** Runs `work` once the page has painted what is in it now (the frame's callbacks run before its paint). */
+export function afterPaint(work: () => void): void {
+  requestAnimationFrame(() => setTimeout(work, 0));
+}
