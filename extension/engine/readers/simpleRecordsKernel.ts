@@ -11,6 +11,7 @@ import { existsSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { engineActivity, engineSettings } from '../config';
 import type { BytePool } from '../model/bytePool';
+import type { RowColumns } from './columns';
 import { parseSimpleRecords, POW10, ROLE_ITEM, ROLE_QUERY, ROLE_SEGMENT, type FastState } from './delimitedFast';
 
 /**
@@ -167,7 +168,7 @@ export class SimpleRecordsKernel {
       if (slot < 0) continue;
       const at = slot * this.rowsPerCall;
       if (role === ROLE_ITEM) {
-        this.internItems(rows.items, rows.item, first, at, count);
+        this.internItems(rows, first, at, count);
       } else if (role === ROLE_QUERY) {
         state.lastQuery = internRuns(rows.queries, rows.query, first, bytes, this.idStart, this.idEnd, this.idHash, at, count, state.lastQuery);
       } else {
@@ -188,8 +189,19 @@ export class SimpleRecordsKernel {
   }
 
   /** Item ids in batches of 64: warm the table slots of a batch first, so their cache misses overlap. */
-  private internItems(pool: BytePool, out: Uint32Array<ArrayBufferLike>, first: number, at: number, count: number): void {
+  private internItems(rows: RowColumns, first: number, at: number, count: number): void {
     const { bytes, idStart, idEnd, idHash, records } = this;
+    const out = rows.item;
+    const texts = rows.itemTexts;
+    if (texts !== undefined) {
+      // Item bytes kept per row (model/rowTexts.ts): the hash now, keys when the read is done.
+      for (let r = 0; r < count; r++) {
+        out[first + r] = idHash[at + r]!;
+        texts.add(bytes, idStart[at + r]!, idEnd[at + r]!);
+      }
+      return;
+    }
+    const pool = rows.items;
     for (let from = 0; from < count; from += 64) {
       const n = Math.min(64, count - from);
       pool.warm(idHash, n, records, at + from);

@@ -1,0 +1,204 @@
+/**
+ * The item id of every row kept as its own bytes, one record per row in row order, with no table of
+ * distinct values. Interning item ids across the whole dump costs one table lookup per row that
+ * misses the CPU caches once items run into the millions (web search, catalogue-scale
+ * recommendation), and a table of that size besides. Scoring needs much less: duplicates are found
+ * within a query, so a key equal for two rows of one query exactly when they name the same item does
+ * (`queryScopedKeys`), and each query's rows are few and close together. The dump-wide ids
+ * (`internAll`) are made only for the callers that match items across queries or files (judgments,
+ * items tables, comparing runs, a query's detail), and are the very ids interning row by row gives.
+ */
+import { BytePool, hashBytes } from './bytePool';
+
+/** The internals of a RowTexts, moved between threads without copying. */
+export interface RowTextsState {
+  readonly arena: Uint8Array;
+  readonly used: number;
+  readonly ends: Uint32Array;
+  readonly count: number;
+}
+
+const decoder = new TextDecoder('utf-8');
+
+export class RowTexts {
+  private arena: Uint8Array;
+  private used = 0;
+  /** Record r is arena[ends[r - 1] (0 for r = 0), ends[r]). */
+  private ends: Uint32Array;
+  private count = 0;
+
+  constructor(rows = 1024, bytesPerRow = 16) {
+    this.ends = new Uint32Array(Math.max(16, rows));
+    this.arena = new Uint8Array(Math.max(256, Math.ceil(rows * bytesPerRow)));
+  }
+
+  get size(): number {
+    return this.count;
+  }
+
+  /** Appends the next row's bytes, bytes[start, end); rows must come in row order, one record each. */
+  add(bytes: Uint8Array, start: number, end: number): void {
+    const len = end - start;
+    const need = this.used + len;
+    if (need > this.arena.length) {
+      if (need > 0xffffffff) throw new RangeError('item ids larger than 4 GB');
+      const grown = new Uint8Array(Math.min(0xffffffff, Math.max(Math.ceil(this.arena.length * 1.5), need)));
+      grown.set(this.arena.subarray(0, this.used));
+      this.arena = grown;
+    }
+    if (this.count === this.ends.length) {
+      const grown = new Uint32Array(Math.ceil(this.ends.length * 1.5));
+      grown.set(this.ends);
+      this.ends = grown;
+    }
+    const arena = this.arena;
+    for (let i = 0, at = this.used; i < len; i++) arena[at + i] = bytes[start + i]!;
+    this.used = need;
+    this.ends[this.count++] = need;
+  }
+
+  /** Row r's bytes (a view into the arena). */
+  bytesOf(row: number): Uint8Array {
+    return this.arena.subarray(this.startOf(row), this.ends[row]!);
+  }
+
+  text(row: number): string {
+    return decoder.decode(this.bytesOf(row));
+  }
+
+  exportState(): RowTextsState {
+    return { arena: this.arena, used: this.used, ends: this.ends, count: this.count };
+  }
+
+  /** The records of several parts one after another (the parts of a file read in ranges, in file order). */
+  static concat(parts: readonly RowTextsState[]): RowTexts {
+    const rows = parts.reduce((n, p) => n + p.count, 0);
+    const bytes = parts.reduce((n, p) => n + p.used, 0);
+    const texts = new RowTexts(rows, 0);
+    texts.arena = new Uint8Array(Math.max(256, bytes));
+    let row = 0;
+    let at = 0;
+    for (const p of parts) {
+      texts.arena.set(p.arena.subarray(0, p.used), at);
+      for (let r = 0; r < p.count; r++) texts.ends[row + r] = p.ends[r]! + at;
+      row += p.count;
+      at += p.used;
+    }
+    texts.used = at;
+    texts.count = row;
+    return texts;
+  }
+
+  /**
+   * Query-scoped keys, written over `column` in place: on entry column[r] is hashBytes of row r's bytes,
+   * on return it is the first row of query[r] whose bytes equal row r's (in file order). So two rows of
+   * one query get the same key exactly when they name the same item; across queries keys mean nothing.
+   */
+  queryScopedKeys(query: Uint32Array, column: Uint32Array, queryCount: number): void {
+    const rows = this.count;
+    const probe = new ItemProbe();
+    // The usual dump keeps each query's rows together, first-seen order: one pass over the rows.
+    let last = -1;
+    let from = 0;
+    let r = 0;
+    for (; r < rows; r++) {
+      const q = query[r]!;
+      if (q === last) continue;
+      if (q !== last + 1) break;
+      if (r > from) probe.keyRun(this, column, from, r, undefined);
+      last = q;
+      from = r;
+    }
+    if (r === rows) {
+      if (rows > from) probe.keyRun(this, column, from, rows, undefined);
+      return;
+    }
+    // Otherwise group the rows by query (a counting sort, file order within a query) and key each group.
+    const start = new Uint32Array(queryCount + 1);
+    for (let i = 0; i < rows; i++) start[query[i]! + 1]++;
+    for (let q = 0; q < queryCount; q++) start[q + 1] += start[q]!;
+    const next = start.slice(0, queryCount);
+    const order = new Uint32Array(rows);
+    for (let i = 0; i < rows; i++) order[next[query[i]!]!++] = i;
+    for (let q = 0; q < queryCount; q++) if (start[q + 1]! > start[q]!) probe.keyRun(this, column, start[q]!, start[q + 1]!, order);
+  }
+
+  /**
+   * Dump-wide ids: each distinct byte string gets the next id in row order (first seen first), the ids a
+   * BytePool gives when every row's item is interned in turn.
+   */
+  internAll(): { readonly pool: BytePool; readonly ids: Uint32Array } {
+    const pool = new BytePool();
+    const ids = new Uint32Array(this.count);
+    const arena = this.arena;
+    const ends = this.ends;
+    const batch = 64;
+    const hashes = new Int32Array(batch);
+    const records = new Int32Array(batch);
+    for (let from = 0; from < this.count; from += batch) {
+      const n = Math.min(batch, this.count - from);
+      for (let b = 0; b < n; b++) hashes[b] = hashBytes(arena, this.startOf(from + b), ends[from + b]!);
+      // Touch the slots of the batch first so their cache misses overlap (see BytePool.warm).
+      pool.warm(hashes, n, records);
+      for (let b = 0; b < n; b++) ids[from + b] = pool.internHashed(arena, this.startOf(from + b), ends[from + b]!, hashes[b]!);
+    }
+    return { pool, ids };
+  }
+
+  /** True when rows a and b hold the same bytes. */
+  equal(a: number, b: number): boolean {
+    const sa = this.startOf(a);
+    const sb = this.startOf(b);
+    const len = this.ends[a]! - sa;
+    if (this.ends[b]! - sb !== len) return false;
+    const arena = this.arena;
+    for (let i = 0; i < len; i++) if (arena[sa + i] !== arena[sb + i]) return false;
+    return true;
+  }
+
+  private startOf(row: number): number {
+    return row === 0 ? 0 : this.ends[row - 1]!;
+  }
+}
+
+/** A small open-addressing set of one query's rows by item hash, emptied per query by a stamp. */
+class ItemProbe {
+  private stamps = new Int32Array(256);
+  private rowAt = new Uint32Array(256);
+  private hashAt = new Int32Array(256);
+  private stamp = 0;
+
+  /** Keys rows from..to of the query (order[from..to) when given, else the rows themselves). */
+  keyRun(texts: RowTexts, column: Uint32Array, from: number, to: number, order: Uint32Array | undefined): void {
+    let size = 256;
+    while (size < 2 * (to - from)) size *= 2;
+    if (size > this.stamps.length) {
+      this.stamps = new Int32Array(size);
+      this.rowAt = new Uint32Array(size);
+      this.hashAt = new Int32Array(size);
+      this.stamp = 0;
+    }
+    const mask = size - 1;
+    const stamp = ++this.stamp;
+    const { stamps, rowAt, hashAt } = this;
+    for (let p = from; p < to; p++) {
+      const r = order === undefined ? p : order[p]!;
+      const h = column[r]! | 0;
+      let slot = h & mask;
+      let key = r;
+      while (stamps[slot] === stamp) {
+        if (hashAt[slot] === h && texts.equal(rowAt[slot]!, r)) {
+          key = rowAt[slot]!;
+          break;
+        }
+        slot = (slot + 1) & mask;
+      }
+      if (key === r) {
+        stamps[slot] = stamp;
+        rowAt[slot] = r;
+        hashAt[slot] = h;
+      }
+      column[r] = key;
+    }
+  }
+}
