@@ -26,6 +26,13 @@ export class RowTexts {
   /** Record r is arena[ends[r - 1] (0 for r = 0), ends[r]). */
   private ends: Uint32Array;
   private count = 0;
+  /**
+   * Records of earlier parts (ranges of a file read on several threads), kept where they were made
+   * rather than copied together: rows firstRow[k] .. firstRow[k + 1] are earlier[k]. The own arena
+   * above then holds nothing (concat fills only these).
+   */
+  private earlier: RowTextsState[] = [];
+  private firstRow: number[] = [0];
 
   constructor(rows = 1024, bytesPerRow = 16) {
     this.ends = new Uint32Array(Math.max(16, rows));
@@ -57,9 +64,13 @@ export class RowTexts {
     this.ends[this.count++] = need;
   }
 
-  /** Row r's bytes (a view into the arena). */
+  /** Row r's bytes (a view into the arena holding them). */
   bytesOf(row: number): Uint8Array {
-    return this.arena.subarray(this.startOf(row), this.ends[row]!);
+    if (this.earlier.length === 0) return this.arena.subarray(row === 0 ? 0 : this.ends[row - 1]!, this.ends[row]!);
+    const part = this.partOf(row);
+    const r = row - this.firstRow[part]!;
+    const { arena, ends } = this.earlier[part]!;
+    return arena.subarray(r === 0 ? 0 : ends[r - 1]!, ends[r]!);
   }
 
   text(row: number): string {
@@ -67,28 +78,30 @@ export class RowTexts {
   }
 
   exportState(): RowTextsState {
+    if (this.earlier.length > 0) throw new Error('internal: a joined RowTexts is not exported');
     return { arena: this.arena, used: this.used, ends: this.ends, count: this.count };
   }
 
-  /** The records of several parts one after another (the parts of a file read in ranges, in file order). */
+  /** The records of several parts one after another (the parts of a file read in ranges, in file order), not copied. */
   static concat(parts: readonly RowTextsState[]): RowTexts {
-    const rows = parts.reduce((n, p) => n + p.count, 0);
-    const bytes = parts.reduce((n, p) => n + p.used, 0);
-    const texts = new RowTexts(rows, 0);
-    texts.arena = new Uint8Array(Math.max(256, bytes));
-    let row = 0;
-    let at = 0;
+    if (parts.length === 1) return RowTexts.fromState(parts[0]!);
+    const texts = new RowTexts(0, 0);
     for (const p of parts) {
-      texts.arena.set(p.arena.subarray(0, p.used), at);
-      for (let r = 0; r < p.count; r++) texts.ends[row + r] = p.ends[r]! + at;
-      row += p.count;
-      at += p.used;
+      texts.earlier.push(p);
+      texts.count += p.count;
+      texts.firstRow.push(texts.count);
     }
-    texts.used = at;
-    texts.count = row;
     return texts;
   }
 
+  private static fromState(state: RowTextsState): RowTexts {
+    const texts = new RowTexts(0, 0);
+    texts.arena = state.arena;
+    texts.used = state.used;
+    texts.ends = state.ends;
+    texts.count = state.count;
+    return texts;
+  }
   /**
    * Query-scoped keys, written over `column` in place: on entry column[r] is hashBytes of row r's bytes,
    * on return it is the first row of query[r] whose bytes equal row r's (in file order). So two rows of
@@ -97,20 +110,22 @@ export class RowTexts {
   queryScopedKeys(query: Uint32Array, column: Uint32Array, queryCount: number): void {
     const rows = this.count;
     const probe = new ItemProbe();
-    // The usual dump keeps each query's rows together, first-seen order: one pass over the rows.
+    // The usual dump keeps each query's rows together, in first-seen order: then each run of rows is a query.
     let last = -1;
-    let from = 0;
     let r = 0;
     for (; r < rows; r++) {
       const q = query[r]!;
       if (q === last) continue;
       if (q !== last + 1) break;
-      if (r > from) probe.keyRun(this, column, from, r, undefined);
       last = q;
-      from = r;
     }
     if (r === rows) {
-      if (rows > from) probe.keyRun(this, column, from, rows, undefined);
+      let from = 0;
+      for (let i = 1; i <= rows; i++) {
+        if (i < rows && query[i] === query[from]) continue;
+        probe.keyRun(this, column, from, i, undefined);
+        from = i;
+      }
       return;
     }
     // Otherwise group the rows by query (a counting sort, file order within a query) and key each group.
@@ -130,34 +145,37 @@ export class RowTexts {
   internAll(): { readonly pool: BytePool; readonly ids: Uint32Array } {
     const pool = new BytePool();
     const ids = new Uint32Array(this.count);
-    const arena = this.arena;
-    const ends = this.ends;
     const batch = 64;
     const hashes = new Int32Array(batch);
     const records = new Int32Array(batch);
+    const views: Uint8Array[] = [];
     for (let from = 0; from < this.count; from += batch) {
       const n = Math.min(batch, this.count - from);
-      for (let b = 0; b < n; b++) hashes[b] = hashBytes(arena, this.startOf(from + b), ends[from + b]!);
+      for (let b = 0; b < n; b++) {
+        const bytes = (views[b] = this.bytesOf(from + b));
+        hashes[b] = hashBytes(bytes, 0, bytes.length);
+      }
       // Touch the slots of the batch first so their cache misses overlap (see BytePool.warm).
       pool.warm(hashes, n, records);
-      for (let b = 0; b < n; b++) ids[from + b] = pool.internHashed(arena, this.startOf(from + b), ends[from + b]!, hashes[b]!);
+      for (let b = 0; b < n; b++) ids[from + b] = pool.internHashed(views[b]!, 0, views[b]!.length, hashes[b]!);
     }
     return { pool, ids };
   }
 
   /** True when rows a and b hold the same bytes. */
   equal(a: number, b: number): boolean {
-    const sa = this.startOf(a);
-    const sb = this.startOf(b);
-    const len = this.ends[a]! - sa;
-    if (this.ends[b]! - sb !== len) return false;
-    const arena = this.arena;
-    for (let i = 0; i < len; i++) if (arena[sa + i] !== arena[sb + i]) return false;
+    const x = this.bytesOf(a);
+    const y = this.bytesOf(b);
+    const len = x.length;
+    if (y.length !== len) return false;
+    for (let i = 0; i < len; i++) if (x[i] !== y[i]) return false;
     return true;
   }
 
-  private startOf(row: number): number {
-    return row === 0 ? 0 : this.ends[row - 1]!;
+  private partOf(row: number): number {
+    let part = 0;
+    while (row >= this.firstRow[part + 1]! && part + 1 < this.earlier.length) part++;
+    return part;
   }
 }
 
