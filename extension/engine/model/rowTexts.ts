@@ -47,21 +47,47 @@ export class RowTexts {
   add(bytes: Uint8Array, start: number, end: number): void {
     const len = end - start;
     const need = this.used + len;
-    if (need > this.arena.length) {
-      if (need > 0xffffffff) throw new RangeError('item ids larger than 4 GB');
-      const grown = new Uint8Array(Math.min(0xffffffff, Math.max(Math.ceil(this.arena.length * 1.5), need)));
-      grown.set(this.arena.subarray(0, this.used));
-      this.arena = grown;
-    }
-    if (this.count === this.ends.length) {
-      const grown = new Uint32Array(Math.ceil(this.ends.length * 1.5));
-      grown.set(this.ends);
-      this.ends = grown;
-    }
+    if (need > this.arena.length || this.count === this.ends.length) this.reserve(this.count + 1, need);
     const arena = this.arena;
     for (let i = 0, at = this.used; i < len; i++) arena[at + i] = bytes[start + i]!;
     this.used = need;
     this.ends[this.count++] = need;
+  }
+
+  /**
+   * Appends `count` rows whose bytes lie one after another at bytes[from, ...): row r's end, counted
+   * from `from`, is ends[r] (so the first row starts at `from`).
+   */
+  addBlock(bytes: Uint8Array, from: number, ends: Uint32Array, count: number): void {
+    if (count === 0) return;
+    const len = ends[count - 1]!;
+    this.reserve(this.count + count, this.used + len);
+    this.arena.set(bytes.subarray(from, from + len), this.used);
+    const own = this.ends;
+    const base = this.used;
+    for (let r = 0; r < count; r++) own[this.count + r] = base + ends[r]!;
+    this.used = base + len;
+    this.count += count;
+  }
+
+  /** Room for `rows` records, the bytes guessed from the records so far. */
+  reserveRows(rows: number): void {
+    this.reserve(rows, this.count > 0 ? Math.ceil((this.used / this.count) * rows * 1.05) : rows * 16);
+  }
+
+  /** Room for `rows` records of `bytes` bytes in all, grown by half again at least when short. */
+  reserve(rows: number, bytes: number): void {
+    if (bytes > this.arena.length) {
+      if (bytes > 0xffffffff) throw new RangeError('item ids larger than 4 GB');
+      const grown = new Uint8Array(Math.min(0xffffffff, Math.max(Math.ceil(this.arena.length * 1.5), bytes)));
+      grown.set(this.arena.subarray(0, this.used));
+      this.arena = grown;
+    }
+    if (rows > this.ends.length) {
+      const grown = new Uint32Array(Math.max(Math.ceil(this.ends.length * 1.5), rows));
+      grown.set(this.ends.subarray(0, this.count));
+      this.ends = grown;
+    }
   }
 
   /** Row r's bytes (a view into the arena holding them). */

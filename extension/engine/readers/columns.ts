@@ -117,6 +117,7 @@ export class RowColumns implements RowArrays {
     const capacity = Math.ceil(rows);
     Object.assign(this, rowArrays((name) => grow(this[name] as Typed, capacity, this.count) as never));
     this.segmentIds = this.segmentIds.map((ids) => grow(ids, capacity, this.count));
+    this.itemTexts?.reserveRows(capacity);
     this.capacity = capacity;
   }
 

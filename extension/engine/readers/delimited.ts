@@ -245,7 +245,7 @@ export class DelimitedParser implements RecordSink, FastState {
     // Item bytes stay per row (see model/rowTexts.ts): scoring needs no dump-wide item ids.
     this.rows = new RowColumns(roles.segments.map((i) => names[i]!), 1024, this.settings.shared, ITEM_BYTES_GUESS);
     this.lastSegment = new Int32Array(roles.segments.length).fill(-1);
-    this.kernel = SimpleRecordsKernel.create(this.roleOf);
+    this.kernel = SimpleRecordsKernel.create(this.roleOf, this.rows.itemTexts !== undefined);
     if (roles.rank >= 0) {
       this.rows.notes.messages.push(this.rankStandsInForScore
         ? `no score column: ranked by '${names[roles.rank]}' (score = -rank)`
