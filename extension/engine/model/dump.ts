@@ -102,6 +102,8 @@ export interface RankedDump {
    * and make `item` and `items` only when they are read. Absent: `item` serves.
    */
   readonly itemKey?: Uint32Array;
+  /** Each row's item as written, when the reader kept the bytes per row: read through `itemOfRow`. */
+  readonly itemTexts?: { text(row: number): string };
   /** Graded relevance per row. NaN = unjudged (metrics treat it as 0 and count it). */
   readonly label: Float64Array;
   /** Model score per row. NaN = missing or non-finite (counted; see conventions for handling). */
@@ -138,6 +140,11 @@ export interface JoinedFacts {
   readonly itemAttributes?: readonly { readonly name: string; readonly values: readonly string[] }[];
   /** Plain sentences: rows naming unknown queries or items, dump ids missing from a table (counts and examples). */
   readonly notes: readonly string[];
+}
+
+/** The item of a row as written, without making dump-wide item ids when the reader kept the bytes per row. */
+export function itemOfRow(dump: RankedDump, row: number): string {
+  return dump.itemTexts !== undefined ? dump.itemTexts.text(row) : dump.items.get(dump.item[row]!);
 }
 
 export function emptyNotes(): ReaderNotes {

@@ -177,7 +177,7 @@ export class RowColumns implements RowArrays {
     if (texts === undefined) return dump;
     const itemKey = dump.item;
     texts.queryScopedKeys(dump.query, itemKey, this.queries.size);
-    return withLazyItemIds({ ...dump, itemKey }, texts);
+    return withLazyItemIds({ ...dump, itemKey, itemTexts: texts }, texts);
   }
 }
 
