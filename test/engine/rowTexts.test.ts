@@ -10,6 +10,7 @@ import { BytePool, hashBytes } from '../../extension/engine/model/bytePool';
 import { RowTexts } from '../../extension/engine/model/rowTexts';
 import { readDump } from '../../extension/engine/readers/index';
 import { evaluateDump } from '../../extension/engine/index';
+import { engineActivity } from '../../extension/engine/config';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
 import { parseMetricList } from '../../extension/engine/metrics/parse';
 import { TempDir } from './fixtures/readers/tempFiles';
@@ -135,6 +136,10 @@ describe('a CSV read keeps item bytes per row', () => {
     c.items.forEach((item, r) => lines.push(`q${c.query[r]},${item},${Math.floor(rnd() * 4)},${(rnd() * 10).toFixed(3)}`));
     const dump = await readDump(tmp.file(`rowtexts-${seed}.csv`, lines.join('\n') + '\n'));
     expect(dump.itemKey).toBeDefined();
+    // Scoring reads the query-scoped keys only: the dump-wide ids are made when first read, once.
+    const made = engineActivity().itemIdsMade;
+    const evaluation = await evaluateDump(dump, parseMetricList('ndcg@10'), DEFAULT_CONVENTIONS, { threads: 1 });
+    expect(engineActivity().itemIdsMade).toBe(made);
     // Keys: the first row of the query naming the item (query ids of the file are q0, q1, ... in first-seen order).
     expect(Array.from(dump.itemKey!)).toEqual(slowKeys({ ...c, query: dump.query }));
     const ids = new Map<string, number>();
@@ -143,8 +148,7 @@ describe('a CSV read keeps item bytes per row', () => {
       return ids.get(item)!;
     }));
     for (const [item, id] of ids) expect(dump.items.get(id)).toBe(item);
-
-    const evaluation = await evaluateDump(dump, parseMetricList('ndcg@10'), DEFAULT_CONVENTIONS, { threads: 1 });
+    expect(engineActivity().itemIdsMade).toBe(made + 1);
     const perQuery = new Map<number, Set<string>>();
     let repeated = 0;
     c.items.forEach((item, r) => {

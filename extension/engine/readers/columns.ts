@@ -1,6 +1,7 @@
 /**
  * Growable typed columns that readers append rows to, and the step that turns them into a RankedDump.
  */
+import { engineActivity } from '../config';
 import { BytePool } from '../model/bytePool';
 import { RowTexts } from '../model/rowTexts';
 import { gradeRangeOf, summariseRows, type RowSummary } from '../model/rowSummary';
@@ -188,7 +189,13 @@ export class RowColumns implements RowArrays {
  */
 function withLazyItemIds(dump: Omit<RankedDump, 'item' | 'items'>, texts: RowTexts): RankedDump {
   let made: ReturnType<RowTexts['internAll']> | undefined;
-  const ids = () => (made ??= texts.internAll());
+  const ids = () => {
+    if (made === undefined) {
+      made = texts.internAll();
+      engineActivity().itemIdsMade++;
+    }
+    return made;
+  };
   return Object.defineProperties(dump, {
     item: { get: () => ids().ids, enumerable: true, configurable: true },
     items: { get: () => ids().pool, enumerable: true, configurable: true },
