@@ -5,7 +5,7 @@ import { stat } from 'node:fs/promises';
 import { resolve } from 'node:path';
 import { InputError } from '../engine/errors';
 import { evaluateDump, readDump } from '../engine/index';
-import { formatReport, REPORT_FORMATS, type ReportFormat } from '../engine/report/index';
+import { formatReport, formatReportPieces, REPORT_FORMATS, type ReportFormat } from '../engine/report/index';
 import { collectQueryRecords } from '../engine/report/jsonRecords';
 import { queryFacts } from '../engine/tables/queryFacts';
 import { withSideTables } from '../engine/tables/join';
@@ -159,7 +159,7 @@ async function evalFile(path: string, source: string, format: ReportFormat, wors
     const worstOrderBy = values.sort === undefined ? undefined : worstOrder(evaluation, values.sort);
     const input = { evaluation, queryNames: dump.queries, source, rowCount: dump.rowCount, ...(facts ? { facts } : {}),
       ...(records ? { queryRecords: records.pieces() } : {}) };
-    io.out(formatReport(format, input, { worst, ...(worstOrderBy ? { worstOrder: worstOrderBy } : {}) }));
+    for (const piece of formatReportPieces(format, input, { worst, ...(worstOrderBy ? { worstOrder: worstOrderBy } : {}) })) io.out(piece);
     if (values.timings) {
       const s = (ms: number) => (ms / 1000).toFixed(3);
       io.err(`timings: read ${s(read - started)} s, score ${s(scored - read)} s, report ${s(performance.now() - scored)} s (${dump.rowCount} rows)\n`);

@@ -13,7 +13,7 @@ import { segmentBreakdown } from '../engine/evaluate/segments';
 import type { Evaluation, QueryDetail } from '../engine/evaluate/types';
 import type { Conventions } from '../engine/metrics/conventions';
 import type { MetricSpec } from '../engine/metrics/registry';
-import type { RankedDump } from '../engine/model/dump';
+import { itemOfRow, type RankedDump } from '../engine/model/dump';
 import { describeConventions, formatValue, jsonNumber, type WorstOrder } from '../engine/report/reportInput';
 import { alignedTable } from '../engine/report/textTable';
 import { dcgByPositionJson, dcgByPositionText, scoresByGradeJson, scoresByGradeText } from './diagnosticsView';
@@ -35,7 +35,9 @@ export function detailOf(dump: RankedDump, query: number, metrics: readonly Metr
 /** The detail with item titles and attributes from the items table, as one JSON document. */
 export function detailJson(dump: RankedDump, detail: QueryDetail, source: string): string {
   const scores = scoresByGrade(dump, detail.positions.map((p) => p.row));
-  const titleOf = itemFacts(dump);
+  const facts = itemFacts(dump);
+  // Only titles and attributes need dump-wide item ids (made on first use when items are kept per row).
+  const titleOf = (item: () => number) => (facts ? facts(item()) : {});
   const values: Record<string, number | null> = {};
   for (const [key, v] of Object.entries(detail.values)) values[key] = jsonNumber(v);
   const text = dump.joined?.queryText?.[dump.queries.find(detail.query)];
@@ -50,7 +52,7 @@ export function detailJson(dump: RankedDump, detail: QueryDetail, source: string
     positions: detail.positions.map((p) => ({
       position: p.position,
       item: p.item,
-      ...titleOf(dump.item[p.row]!),
+      ...titleOf(() => dump.item[p.row]!),
       grade: jsonNumber(p.label),
       score: jsonNumber(p.score),
       ...positionDcgParts(p),
@@ -60,8 +62,8 @@ export function detailJson(dump: RankedDump, detail: QueryDetail, source: string
       item: e.item, ...titleOf(e.itemId), grade: jsonNumber(e.grade), ...(e.retrieved ? {} : { retrieved: false }),
     })),
     invertedPairs: detail.invertedPairs.map((pair) => ({
-      above: { position: pair.abovePosition, item: dump.items.get(dump.item[pair.aboveRow]!) },
-      below: { position: pair.belowPosition, item: dump.items.get(dump.item[pair.belowRow]!) },
+      above: { position: pair.abovePosition, item: itemOfRow(dump, pair.aboveRow) },
+      below: { position: pair.belowPosition, item: itemOfRow(dump, pair.belowRow) },
       ndcgRecovered: pair.ndcgRecovered,
     })),
     invertedPairsTotal: detail.invertedPairsTotal,
@@ -102,7 +104,7 @@ export function detailText(dump: RankedDump, detail: QueryDetail, source: string
   const pairs = detail.invertedPairs.slice(0, 20);
   sections.push(pairs.length === 0 ? 'Inverted pairs\n  (none)' : `Inverted pairs (${pairs.length} of ${detail.invertedPairsTotal}, most NDCG recovered by a swap first)\n` + alignedTable(
     ['above #', 'above item', 'below #', 'below item', 'NDCG recovered'],
-    pairs.map((p) => [String(p.abovePosition), dump.items.get(dump.item[p.aboveRow]!), String(p.belowPosition), dump.items.get(dump.item[p.belowRow]!), formatValue(p.ndcgRecovered)]),
+    pairs.map((p) => [String(p.abovePosition), itemOfRow(dump, p.aboveRow), String(p.belowPosition), itemOfRow(dump, p.belowRow), formatValue(p.ndcgRecovered)]),
     ['right', 'left', 'right', 'left', 'right'],
   ));
   return sections.join('\n\n') + '\n';
@@ -111,7 +113,7 @@ export function detailText(dump: RankedDump, detail: QueryDetail, source: string
 /** One entry of the whole ideal order: a listed row, or a judged item the run never retrieved (row -1). */
 interface IdealEntry {
   readonly item: string;
-  readonly itemId: number;
+  readonly itemId: () => number;
   readonly grade: number;
   readonly retrieved: boolean;
 }
@@ -120,17 +122,17 @@ interface IdealEntry {
 function idealEntries(dump: RankedDump, detail: QueryDetail): IdealEntry[] {
   const positionOf = new Map(detail.positions.map((p) => [p.row, p.idealPosition]));
   const entries = detail.idealOrder.map((row) => ({
-    at: positionOf.get(row) ?? 0, item: dump.items.get(dump.item[row]!), itemId: dump.item[row]!, grade: dump.label[row]!, retrieved: true,
+    at: positionOf.get(row) ?? 0, item: itemOfRow(dump, row), itemId: () => dump.item[row]!, grade: dump.label[row]!, retrieved: true,
   }));
-  for (const m of detail.notRetrieved) entries.push({ at: m.idealPosition, item: m.item, itemId: dump.items.find(m.item), grade: m.label, retrieved: false });
+  for (const m of detail.notRetrieved) entries.push({ at: m.idealPosition, item: m.item, itemId: () => dump.items.find(m.item), grade: m.label, retrieved: false });
   return entries.sort((a, b) => a.at - b.at).map(({ at: _at, ...e }) => e);
 }
 
 /** Title and attributes by item id (the items pool also holds judged items that have no row). */
-function itemFacts(dump: RankedDump): (item: number) => Record<string, unknown> {
+function itemFacts(dump: RankedDump): ((item: number) => Record<string, unknown>) | undefined {
   const titles = dump.joined?.itemTitle;
   const attributes = dump.joined?.itemAttributes ?? [];
-  if (!titles && attributes.length === 0) return () => ({});
+  if (!titles && attributes.length === 0) return undefined;
   return (item) => {
     const out: Record<string, unknown> = {};
     if (titles) out.title = titles[item];

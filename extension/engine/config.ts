@@ -78,9 +78,11 @@ export interface EngineActivity {
   liveThreads: number;
   /** Rows stored from the record kernel's output in this thread, ever. */
   kernelRows: number;
+  /** Dumps whose dump-wide item ids were made from item bytes kept per row (model/rowTexts.ts), ever. */
+  itemIdsMade: number;
 }
 
-const activity: EngineActivity = { liveThreads: 0, kernelRows: 0 };
+const activity: EngineActivity = { liveThreads: 0, kernelRows: 0, itemIdsMade: 0 };
 
 /** The live counters (the engine's threads and kernel add to them). */
 export function engineActivity(): EngineActivity {

@@ -3,7 +3,7 @@
  * Pure functions, tested without a worker.
  */
 import { basename } from 'node:path';
-import type { RankedDump } from '../engine/model/dump';
+import { itemOfRow, type RankedDump } from '../engine/model/dump';
 import type { Conventions } from '../engine/metrics/conventions';
 import type { MetricSpec } from '../engine/metrics/registry';
 import type { Evaluation, QueryDetail } from '../engine/evaluate/types';
@@ -132,17 +132,17 @@ function idealViews(dump: RankedDump, detail: QueryDetail, byRow: ReadonlyMap<nu
     return {
       position: p?.idealPosition ?? 0,
       row,
-      item: p?.item ?? dump.items.get(dump.item[row]!),
+      item: p?.item ?? itemOfRow(dump, row),
       label: label(dump.label[row]!),
       gain: p?.gain ?? 0,
       predictedPosition: p?.position ?? 0,
       retrieved: true,
-      ...titleOf(dump.item[row]!),
+      ...(titles ? titleOf(dump.item[row]!) : {}),
     };
   });
   for (const missing of detail.notRetrieved) {
     views.push({ position: missing.idealPosition, row: -1, item: missing.item, label: label(missing.label), gain: missing.gain, predictedPosition: 0, retrieved: false,
-      ...titleOf(dump.items.find(missing.item)) });
+      ...(titles ? titleOf(dump.items.find(missing.item)) : {}) });
   }
   return views.sort((a, b) => a.position - b.position);
 }

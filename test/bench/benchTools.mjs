@@ -6,7 +6,8 @@ import { fileURLToPath } from 'node:url';
 
 export const benchDir = dirname(fileURLToPath(import.meta.url));
 export const root = resolve(benchDir, '../..');
-export const dataDir = join(benchDir, 'data');
+/** Generated dumps: test/bench/data/, or GAINLINE_BENCH_DATA (a folder with room for a few GB, shared by clones). */
+export const dataDir = process.env.GAINLINE_BENCH_DATA ? resolve(process.env.GAINLINE_BENCH_DATA) : join(benchDir, 'data');
 export const cli = join(root, 'dist/cli.js');
 export const TIME = '/usr/bin/time';
 

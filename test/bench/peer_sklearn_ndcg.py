@@ -4,7 +4,7 @@ scikit-learn ndcg_score call per query.
 ndcg_score treats y_true as the gain, so 2^grade - 1 is passed for exponential gain; its default
 (ignore_ties=False) averages over tied scores (McSherry & Najork 2008), like our default.
 Queries with nothing relevant are skipped; single-item queries score 1 when relevant.
-Prints one JSON line: read and compute seconds, queries counted, mean.
+Reads CSV, or TSV when the name ends in .tsv. Prints one JSON line: read and compute seconds, queries counted, mean.
 """
 import json
 import sys
@@ -19,7 +19,7 @@ K = 10
 
 def main(path: str) -> None:
     t0 = time.perf_counter()
-    df = pd.read_csv(path, usecols=["query", "grade", "score"])
+    df = pd.read_csv(path, sep="\t" if path.endswith(".tsv") else ",", usecols=["query", "grade", "score"])
     t1 = time.perf_counter()
     values = []
     for _, group in df.groupby("query", sort=False):

@@ -88,6 +88,9 @@ function expectSameDump(a: RankedDump, b: RankedDump): void {
   for (const key of ['label', 'score'] as const) {
     expect(Buffer.from(b[key].buffer, b[key].byteOffset, b[key].byteLength).equals(Buffer.from(a[key].buffer, a[key].byteOffset, a[key].byteLength)), key).toBe(true);
   }
+  // Query-scoped item keys (model/rowTexts.ts), what scoring reads, as well as the dump-wide ids.
+  expect(b.itemKey).toBeDefined();
+  expect(Array.from(b.itemKey!)).toEqual(Array.from(a.itemKey!));
   expect(b.items.size).toBe(a.items.size);
   expect(b.queries.size).toBe(a.queries.size);
   for (let i = 0; i < a.items.size; i++) expect(b.items.get(i)).toBe(a.items.get(i));

@@ -1,6 +1,8 @@
 // Writes one large CSV dump in the demo scenario's shape, for benchmarks: the same columns as
 // demo/runs/model-a.csv, query sizes varying around rows/queries, graded 0–4, scores correlated
-// with grades. Streams in chunks so 10M rows never sit in memory.
+// with grades. Streams in chunks so 10M rows never sit in memory. With `distinctItems`, every row names
+// an item no other row names (as in web search or a catalogue-scale recommender) instead of items that
+// recur across queries; a file named *.tsv is written tab-separated.
 import { closeSync, openSync, writeSync } from 'node:fs';
 import { DEVICES, LOCALES, PRODUCTS } from './demo-vocabulary.mjs';
 import { randomTools, seededRandom } from './demo-random.mjs';
@@ -9,11 +11,18 @@ const CHUNK_CHARS = 4 << 20;
 // Cumulative grade probabilities for grades 0..4: most items in a candidate list are not relevant.
 const GRADE_CDF = [0.55, 0.75, 0.88, 0.96, 1];
 
-export function writeLargeDump(file, totalRows, queryCount, seed) {
+// Distinct ids: the row number times a prime coprime to the modulus is a bijection modulo it, so ids
+// never repeat below DISTINCT_SPAN rows while consecutive rows get scattered, catalogue-like numbers.
+const DISTINCT_SPAN = 900_000_000;
+const DISTINCT_STEP = 104729;
+
+export function writeLargeDump(file, totalRows, queryCount, seed, { distinctItems = false } = {}) {
+  if (distinctItems && totalRows > DISTINCT_SPAN) throw new Error(`distinct item ids go up to ${DISTINCT_SPAN} rows`);
+  const sep = file.endsWith('.tsv') ? '\t' : ',';
   const t = randomTools(seededRandom(seed));
   const fd = openSync(file, 'w');
   let bytes = 0;
-  let chunk = 'query,product_id,grade,score,locale,device\n';
+  let chunk = ['query', 'product_id', 'grade', 'score', 'locale', 'device'].join(sep) + '\n';
   const flush = () => {
     bytes += writeSync(fd, chunk);
     chunk = '';
@@ -27,16 +36,18 @@ export function writeLargeDump(file, totalRows, queryCount, seed) {
     const size = Math.max(1, Math.min(target, totalRows - written));
     const product = PRODUCTS[q % PRODUCTS.length];
     const text = `${product.en} ${product.variants[q % product.variants.length]} ${q + 1}`;
-    const tail = `,${LOCALES[q % LOCALES.length]},${t.rand() < 0.58 ? DEVICES[1] : DEVICES[0]}\n`;
+    const tail = `${sep}${LOCALES[q % LOCALES.length]}${sep}${t.rand() < 0.58 ? DEVICES[1] : DEVICES[0]}\n`;
     const shift = t.normal() * 0.4;
     for (let i = 0; i < size; i++) {
       const u = t.rand();
       let grade = 0;
       while (u >= GRADE_CDF[grade]) grade++;
       // Distinct items within a query: i * prime stays distinct modulo 900000 for i < 900000.
-      const sku = 100000 + ((q * 7919 + i * 104729) % 900000);
+      const sku = distinctItems
+        ? 100_000_000 + (((written + i) * DISTINCT_STEP) % DISTINCT_SPAN)
+        : 100000 + ((q * 7919 + i * 104729) % 900000);
       const score = 0.7 * grade + t.normal() + shift;
-      chunk += `${text},SKU-${sku},${grade},${score.toFixed(4)}${tail}`;
+      chunk += `${text}${sep}SKU-${sku}${sep}${grade}${sep}${score.toFixed(4)}${tail}`;
       if (chunk.length >= CHUNK_CHARS) flush();
     }
     written += size;

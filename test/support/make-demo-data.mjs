@@ -2,8 +2,9 @@
 // Writes the demo workspace's data for the invented "Kettlewood Hardware" product search.
 //
 //   node test/support/make-demo-data.mjs [--dir DIR]     small demo files into demo/ (committed) or DIR
-//   node test/support/make-demo-data.mjs --rows N --out FILE [--queries Q] [--seed S]
-//                                                        one large CSV for benchmarks
+//   node test/support/make-demo-data.mjs --rows N --out FILE [--queries Q] [--seed S] [--distinct-items]
+//                                                        one large CSV (TSV when FILE ends in .tsv) for
+//                                                        benchmarks; --distinct-items: no item id repeats
 //
 // Output is deterministic: the same seed gives byte-identical files.
 import { mkdirSync, writeFileSync } from 'node:fs';
@@ -161,16 +162,19 @@ const { values } = parseArgs({
     queries: { type: 'string' },
     seed: { type: 'string' },
     dir: { type: 'string' },
+    'distinct-items': { type: 'boolean' },
   },
 });
 if (values.rows !== undefined) {
   const rows = Number(values.rows);
   if (!Number.isInteger(rows) || rows < 1 || !values.out) {
-    console.error('usage: make-demo-data.mjs --rows N --out FILE [--queries Q] [--seed S]');
+    console.error('usage: make-demo-data.mjs --rows N --out FILE [--queries Q] [--seed S] [--distinct-items]');
     process.exit(2);
   }
   const queries = values.queries ? Number(values.queries) : Math.max(1, Math.round(rows / 100));
-  const written = writeLargeDump(resolve(values.out), rows, queries, values.seed ?? 'kettlewood-large-1');
+  const written = writeLargeDump(resolve(values.out), rows, queries, values.seed ?? 'kettlewood-large-1', {
+    distinctItems: values['distinct-items'] === true,
+  });
   console.log(`wrote ${written.rows} rows, ${written.queries} queries, ${(written.bytes / 1e6).toFixed(1)} MB → ${values.out}`);
 } else {
   writeSmallDemo(values.dir ? resolve(values.dir) : join(repoRoot, 'demo'));

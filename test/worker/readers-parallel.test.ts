@@ -36,6 +36,9 @@ function expectSameDump(a: RankedDump, b: RankedDump): void {
   for (const key of ['query', 'item', 'label', 'score', 'line', 'offset'] as const) {
     expect(Array.from(b[key]), key).toEqual(Array.from(a[key]));
   }
+  // Query-scoped item keys (model/rowTexts.ts), what scoring reads, as well as the dump-wide ids.
+  expect(b.itemKey).toBeDefined();
+  expect(Array.from(b.itemKey!)).toEqual(Array.from(a.itemKey!));
   expect(b.queries.size).toBe(a.queries.size);
   expect(b.items.size).toBe(a.items.size);
   for (let i = 0; i < a.items.size; i++) expect(b.items.get(i)).toBe(a.items.get(i));

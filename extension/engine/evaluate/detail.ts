@@ -2,7 +2,7 @@
  * One query in full: every position with its gain, discount and contribution next to the ideal order,
  * and the inverted pairs ranked by the NDCG a swap would recover.
  */
-import type { RankedDump } from '../model/dump';
+import { itemOfRow, type RankedDump } from '../model/dump';
 import type { QueryGroups } from '../model/groups';
 import { DEFAULT_CONVENTIONS, type Conventions } from '../metrics/conventions';
 import { residualMetricIndex, type MetricSpec } from '../metrics/registry';
@@ -99,7 +99,7 @@ export function queryDetail(
     positions.push({
       position: i + 1,
       row,
-      item: dump.items.get(dump.item[row]!),
+      item: itemOfRow(dump, row),
       label: dump.label[row]!,
       score: dump.score[row]!,
       gain: scorer.gain[i]!,

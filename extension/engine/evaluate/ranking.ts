@@ -107,12 +107,13 @@ export class QueryRanking {
   }
 
   /** Loads rows[from..to) (one query's rows in file order). */
-  load(dump: RankedDump, rows: Uint32Array, from: number, to: number, seen: SeenItems): void {
+  load(dump: Pick<RankedDump, 'item' | 'itemKey' | 'score' | 'label'>, rows: Uint32Array, from: number, to: number, seen: SeenItems): void {
     this.ensure(to - from);
     this.unretrieved = 0;
     const stamp = seen.next(to - from);
     const { keys, stamps, mask, shift } = seen;
-    const items = dump.item;
+    // Repeated items are found within the query, so query-scoped keys do (and spare dump-wide ids).
+    const items = dump.itemKey ?? dump.item;
     const scores = dump.score;
     const labels = dump.label;
     const key = this.key;

@@ -94,8 +94,16 @@ export interface RankedDump {
   readonly rowCount: number;
   /** Interned query id per row (index into `queries`). */
   readonly query: Uint32Array;
-  /** Interned item id per row (index into `items`). */
+  /** Interned item id per row (index into `items`): equal ids are equal items anywhere in the dump. */
   readonly item: Uint32Array;
+  /**
+   * Per row, a key equal for two rows of one query exactly when they name the same item (the key says
+   * nothing across queries). Scoring needs only this; readers that do not intern items dump-wide give it
+   * and make `item` and `items` only when they are read. Absent: `item` serves.
+   */
+  readonly itemKey?: Uint32Array;
+  /** Each row's item as written, when the reader kept the bytes per row: read through `itemOfRow`. */
+  readonly itemTexts?: { text(row: number): string };
   /** Graded relevance per row. NaN = unjudged (metrics treat it as 0 and count it). */
   readonly label: Float64Array;
   /** Model score per row. NaN = missing or non-finite (counted; see conventions for handling). */
@@ -132,6 +140,11 @@ export interface JoinedFacts {
   readonly itemAttributes?: readonly { readonly name: string; readonly values: readonly string[] }[];
   /** Plain sentences: rows naming unknown queries or items, dump ids missing from a table (counts and examples). */
   readonly notes: readonly string[];
+}
+
+/** The item of a row as written, without making dump-wide item ids when the reader kept the bytes per row. */
+export function itemOfRow(dump: RankedDump, row: number): string {
+  return dump.itemTexts !== undefined ? dump.itemTexts.text(row) : dump.items.get(dump.item[row]!);
 }
 
 export function emptyNotes(): ReaderNotes {

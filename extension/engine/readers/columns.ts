@@ -1,7 +1,9 @@
 /**
  * Growable typed columns that readers append rows to, and the step that turns them into a RankedDump.
  */
+import { engineActivity } from '../config';
 import { BytePool } from '../model/bytePool';
+import { RowTexts } from '../model/rowTexts';
 import { gradeRangeOf, summariseRows, type RowSummary } from '../model/rowSummary';
 import type { DumpFormat, FileStamp, RankedDump, ReaderNotes, SegmentColumn } from '../model/dump';
 import { emptyNotes } from '../model/dump';
@@ -15,7 +17,8 @@ import { emptyNotes } from '../model/dump';
  */
 export const ROW_COLUMNS = {
   query: { array: Uint32Array, merge: 'queries' },
-  item: { array: Uint32Array, merge: 'items' },
+  // Readers that keep item bytes per row (RowColumns.itemTexts) store each row's item hash here.
+  item: { array: Uint32Array, merge: 'none' },
   label: { array: Float64Array, merge: 'none' },
   score: { array: Float64Array, merge: 'none' },
   line: { array: Uint32Array, merge: 'lines' },
@@ -72,7 +75,13 @@ export class RowColumns implements RowArrays {
   count = 0;
   capacity: number;
   queries = new BytePool();
+  /** Item ids interned dump-wide, for readers that do not keep `itemTexts`. */
   items = new BytePool();
+  /**
+   * When set, every row's item bytes go here in row order and `item` holds their hash (hashBytes) until
+   * `finish`, which turns it into query-scoped keys; dump-wide ids are made only when asked for.
+   */
+  itemTexts: RowTexts | undefined;
   segmentPools: BytePool[];
   readonly notes: ReaderNotes = emptyNotes();
 
@@ -81,8 +90,11 @@ export class RowColumns implements RowArrays {
     capacity = 1024,
     /** When given, rows go to this slice of shared buffers until it is full (then to private arrays). */
     readonly shared?: SharedColumns,
+    /** Keep item bytes per row (`itemTexts`) instead of interning item ids; bytes per row of a guess at the size. */
+    itemTextBytes?: number,
   ) {
     this.segmentPools = segmentNames.map(() => new BytePool());
+    if (itemTextBytes !== undefined) this.itemTexts = new RowTexts(shared?.rows ?? capacity, itemTextBytes);
     if (shared !== undefined) {
       this.capacity = shared.rows;
       const views = sharedViews(shared, shared.rows);
@@ -106,6 +118,7 @@ export class RowColumns implements RowArrays {
     const capacity = Math.ceil(rows);
     Object.assign(this, rowArrays((name) => grow(this[name] as Typed, capacity, this.count) as never));
     this.segmentIds = this.segmentIds.map((ids) => grow(ids, capacity, this.count));
+    this.itemTexts?.reserveRows(capacity);
     this.capacity = capacity;
   }
 
@@ -139,12 +152,14 @@ export class RowColumns implements RowArrays {
 
   finish(path: string, format: DumpFormat, stamp: FileStamp): RankedDump {
     const n = this.count;
+    const texts = this.itemTexts;
+    if (texts !== undefined && texts.size !== n) throw new Error(`internal: ${texts.size} item records for ${n} rows`);
     const segments: SegmentColumn[] = this.segmentNames.map((name, k) => ({
       name,
       values: this.segmentPools[k]!,
       ofRow: this.segmentIds[k]!.subarray(0, n),
     }));
-    return {
+    const dump = {
       path,
       format,
       stamp,
@@ -160,7 +175,31 @@ export class RowColumns implements RowArrays {
       segments,
       notes: this.notes,
     };
+    if (texts === undefined) return dump;
+    const itemKey = dump.item;
+    texts.queryScopedKeys(dump.query, itemKey, this.queries.size);
+    return withLazyItemIds({ ...dump, itemKey, itemTexts: texts }, texts);
   }
+}
+
+/**
+ * The dump with `item` and `items` made from the row texts on first use (both at once, then kept):
+ * only matching across queries or files needs them. They are enumerable, so a spread copy of the dump
+ * (judgments and tables joins) carries plain values.
+ */
+function withLazyItemIds(dump: Omit<RankedDump, 'item' | 'items'>, texts: RowTexts): RankedDump {
+  let made: ReturnType<RowTexts['internAll']> | undefined;
+  const ids = () => {
+    if (made === undefined) {
+      made = texts.internAll();
+      engineActivity().itemIdsMade++;
+    }
+    return made;
+  };
+  return Object.defineProperties(dump, {
+    item: { get: () => ids().ids, enumerable: true, configurable: true },
+    items: { get: () => ids().pool, enumerable: true, configurable: true },
+  }) as RankedDump;
 }
 
 type Typed = Uint32Array<ArrayBufferLike> | Float64Array<ArrayBufferLike>;

@@ -6,11 +6,15 @@
  * chunks is simply retried with the next chunk; only complete records touch the pools and columns.
  */
 import { InputError } from '../errors';
+import { hashBytes } from '../model/bytePool';
 import { RowColumns, type SharedColumns } from './columns';
 import { describeNonNumber, parseNumber } from './numbers';
 import { resolveRoles, type ColumnRoles } from './roles';
 import type { RecordSink } from './source';
 import { SimpleRecordsKernel } from './simpleRecordsKernel';
+/** Starting room per row for item bytes; the arena grows past it. */
+const ITEM_BYTES_GUESS = 16;
+
 import { parseSimpleRecords, ROLE_ITEM, ROLE_LABEL, ROLE_QUERY, ROLE_RANK, ROLE_SCORE, ROLE_SEGMENT, type FastState } from './delimitedFast';
 
 const QUOTE = 34;
@@ -238,9 +242,10 @@ export class DelimitedParser implements RecordSink, FastState {
     roles.segments.forEach((column, k) => {
       this.roleOf[column] = ROLE_SEGMENT + k;
     });
-    this.rows = new RowColumns(roles.segments.map((i) => names[i]!), 1024, this.settings.shared);
+    // Item bytes stay per row (see model/rowTexts.ts): scoring needs no dump-wide item ids.
+    this.rows = new RowColumns(roles.segments.map((i) => names[i]!), 1024, this.settings.shared, ITEM_BYTES_GUESS);
     this.lastSegment = new Int32Array(roles.segments.length).fill(-1);
-    this.kernel = SimpleRecordsKernel.create(this.roleOf);
+    this.kernel = SimpleRecordsKernel.create(this.roleOf, this.rows.itemTexts !== undefined);
     if (roles.rank >= 0) {
       this.rows.notes.messages.push(this.rankStandsInForScore
         ? `no score column: ranked by '${names[roles.rank]}' (score = -rank)`
@@ -276,7 +281,10 @@ export class DelimitedParser implements RecordSink, FastState {
         const last = this.lastQuery;
         rows.query[row] = last >= 0 && rows.queries.matches(last, bytes, s, e) ? last : (this.lastQuery = rows.queries.intern(bytes, s, e));
       } else if (role === ROLE_ITEM) {
-        rows.item[row] = rows.items.intern(bytes, s, e);
+        if (rows.itemTexts !== undefined) {
+          rows.item[row] = hashBytes(bytes, s, e);
+          rows.itemTexts.add(bytes, s, e);
+        } else rows.item[row] = rows.items.intern(bytes, s, e);
       } else if (role === ROLE_LABEL) {
         label = this.number(bytes, s, e, f, false);
       } else if (role === ROLE_SCORE) {

@@ -6,7 +6,7 @@
  * interning is idempotent and a row is only counted once all of its fields are stored.
  */
 import type { RowColumns } from './columns';
-import { finishHash, HASH_PRIME, HASH_SEED, type BytePool } from '../model/bytePool';
+import { finishHash, HASH_PRIME, HASH_SEED } from '../model/bytePool';
 import { parseNumber } from './numbers';
 
 const TWO_53 = 2 ** 53;
@@ -50,7 +50,18 @@ let previousEnd = new Int32Array(8);
 /** Keeps the warming reads observable. */
 const warmth = { sum: 0 };
 
-function internBatch(items: BytePool, out: Uint32Array, buf: Uint8Array, count: number): void {
+function internBatch(rows: RowColumns, buf: Uint8Array, count: number): void {
+  const out = rows.item;
+  const texts = rows.itemTexts;
+  if (texts !== undefined) {
+    // Item bytes kept per row (model/rowTexts.ts): the hash now, keys when the read is done.
+    for (let b = 0; b < count; b++) {
+      out[batchRow[b]!] = batchHash[b]!;
+      texts.add(buf, batchStart[b]!, batchEnd[b]!);
+    }
+    return;
+  }
+  const items = rows.items;
   warmth.sum += items.warm(batchHash, count, batchRecord);
   for (let b = 0; b < count; b++) out[batchRow[b]!] = items.internHashed(buf, batchStart[b]!, batchEnd[b]!, batchHash[b]!);
 }
@@ -66,7 +77,6 @@ export function parseSimpleRecords(state: FastState, buf: Buffer, pos: number, l
   const fields = roleOf.length;
   const delimiter = state.delimiter;
   const queries = rows.queries;
-  const items = rows.items;
   let line = state.line;
   let lastQuery = state.lastQuery;
   let batched = 0;
@@ -224,11 +234,11 @@ export function parseSimpleRecords(state: FastState, buf: Buffer, pos: number, l
     rows.count = row + 1;
     line++;
     if (batched === ITEM_BATCH) {
-      internBatch(items, rows.item, buf, batched);
+      internBatch(rows, buf, batched);
       batched = 0;
     }
   }
-  internBatch(items, rows.item, buf, batched);
+  internBatch(rows, buf, batched);
   state.line = line;
   state.lastQuery = lastQuery;
   return pos;

@@ -6,6 +6,7 @@
  */
 import { InputError } from '../errors';
 import type { BytePoolState } from '../model/bytePool';
+import type { RowTextsState } from '../model/rowTexts';
 import { summariseRows, type RowSummary } from '../model/rowSummary';
 import { ROW_COLUMN_NAMES, rowArray, rowArrays, type RowArrays, type SharedColumns } from './columns';
 import { DelimitedParser } from './delimited';
@@ -34,7 +35,8 @@ export type RangeRows = Readonly<RowArrays> & {
   readonly inShared: boolean;
   readonly segmentIds: Uint32Array[];
   readonly queries: BytePoolState;
-  readonly items: BytePoolState;
+  /** Each row's item bytes, in row order (the item column holds their hashes). */
+  readonly itemTexts: RowTextsState;
   readonly segmentPools: BytePoolState[];
   /** Gaps and grade extremes of the range, taken here so the main thread need not scan every row. */
   readonly gaps: RowSummary;
@@ -72,7 +74,7 @@ export async function parseRange(task: RangeTask, onBytes: (done: number) => voi
   const n = rows.count;
   const pools = {
     queries: rows.queries.exportState(),
-    items: rows.items.exportState(),
+    itemTexts: rows.itemTexts!.exportState(),
     segmentPools: rows.segmentPools.map((p) => p.exportState()),
     gaps: summariseRows(rows.label, rows.score, 0, n),
   };
@@ -85,7 +87,7 @@ export async function parseRange(task: RangeTask, onBytes: (done: number) => voi
 export function transferList(result: RangeResult): ArrayBuffer[] {
   if (result.kind !== 'rows') return [];
   const columns: ArrayBufferView[] = result.inShared ? [] : [...ROW_COLUMN_NAMES.map((name) => result[name]), ...result.segmentIds];
-  const pools = [result.queries, result.items, ...result.segmentPools];
-  const views: ArrayBufferView[] = [...columns, ...pools.flatMap((p) => [p.arena, p.starts, p.table])];
+  const pools = [result.queries, ...result.segmentPools];
+  const views: ArrayBufferView[] = [...columns, ...pools.flatMap((p) => [p.arena, p.starts, p.table]), result.itemTexts.arena, result.itemTexts.ends];
   return views.map((v) => v.buffer as ArrayBuffer);
 }

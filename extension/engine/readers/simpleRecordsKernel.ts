@@ -11,6 +11,7 @@ import { existsSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { engineActivity, engineSettings } from '../config';
 import type { BytePool } from '../model/bytePool';
+import type { RowColumns } from './columns';
 import { parseSimpleRecords, POW10, ROLE_ITEM, ROLE_QUERY, ROLE_SEGMENT, type FastState } from './delimitedFast';
 
 /**
@@ -34,7 +35,7 @@ function webAssembly(): WasmApi {
 interface KernelExports {
   readonly memory: WasmMemory;
   layout(roles: number, pow10: number, previous: number, fields: number, idSlot: number, idStart: number, idEnd: number,
-    idHash: number, label: number, score: number, line: number, start: number, rows: number): void;
+    idHash: number, label: number, score: number, line: number, start: number, rows: number, itemBytes: number, itemEnd: number): void;
   parse(pos: number, limit: number, delimiter: number, line: number, rankIsScore: number): number;
   stoppedAt(): number;
   lineAfter(): number;
@@ -75,19 +76,25 @@ export class SimpleRecordsKernel {
   private readonly score: Float64Array;
   private readonly line: Uint32Array;
   private readonly start: Uint32Array;
+  /** The item fields of a call's rows, one after another, and where each row's ends (when asked for). */
+  private readonly itemBytesAt: number;
+  private readonly itemEnd: Uint32Array;
   /** Per field: the role and, for id fields, the output slot. */
   private readonly fields: { role: number; slot: number }[];
   private readonly records = new Int32Array(64);
   private readonly rowsPerCall = engineSettings().tuning.kernelRowsPerCall;
   private readonly pieceBytes = engineSettings().tuning.kernelPieceBytes;
 
-  /** Undefined when no compiled kernel is available. */
-  static create(roleOf: Int32Array): SimpleRecordsKernel | undefined {
+  /**
+   * Undefined when no compiled kernel is available. `itemBytes`: the kernel also copies the item fields
+   * out one after another, for readers that keep item bytes per row (RowColumns.itemTexts).
+   */
+  static create(roleOf: Int32Array, itemBytes = false): SimpleRecordsKernel | undefined {
     const module = kernelModule();
-    return module && new SimpleRecordsKernel(module, roleOf);
+    return module && new SimpleRecordsKernel(module, roleOf, itemBytes);
   }
 
-  private constructor(module: WasmModule, roleOf: Int32Array) {
+  private constructor(module: WasmModule, roleOf: Int32Array, itemBytes: boolean) {
     const fieldCount = roleOf.length;
     let slots = 0;
     this.fields = Array.from(roleOf, (role) => ({ role, slot: isId(role) ? slots++ : -1 }));
@@ -104,7 +111,9 @@ export class SimpleRecordsKernel {
     const scoreAt = labelAt + 8 * this.rowsPerCall;
     const lineAt = scoreAt + 8 * this.rowsPerCall;
     const startAt = lineAt + 4 * this.rowsPerCall;
-    const end = startAt + 4 * this.rowsPerCall;
+    const itemEndAt = startAt + 4 * this.rowsPerCall;
+    const itemBytesAt = itemEndAt + 4 * this.rowsPerCall;
+    const end = itemBytesAt + (itemBytes ? this.pieceBytes + 8 : 0);
     const { Instance, Memory } = webAssembly();
     const memory = new Memory({ initial: Math.ceil(end / PAGE) + 1 });
     this.kernel = new Instance(module, { env: { memory, abort: kernelAbort } }).exports as unknown as KernelExports;
@@ -113,7 +122,9 @@ export class SimpleRecordsKernel {
     new Float64Array(buffer, pow10At, POW10.length).set(POW10);
     new Int32Array(buffer, idSlotAt, fieldCount).set(this.fields.map((f) => f.slot));
     this.kernel.layout(rolesAt, pow10At, previousAt, fieldCount, idSlotAt, idStartAt, idEndAt, idHashAt, labelAt, scoreAt, lineAt, startAt,
-      this.rowsPerCall);
+      this.rowsPerCall, itemBytes ? itemBytesAt : 0, itemEndAt);
+    this.itemBytesAt = itemBytes ? itemBytesAt : 0;
+    this.itemEnd = new Uint32Array(buffer, itemEndAt, this.rowsPerCall);
     this.input = inputAt;
     this.bytes = new Uint8Array(buffer);
     this.idStart = new Int32Array(buffer, idStartAt, slots * this.rowsPerCall);
@@ -167,7 +178,7 @@ export class SimpleRecordsKernel {
       if (slot < 0) continue;
       const at = slot * this.rowsPerCall;
       if (role === ROLE_ITEM) {
-        this.internItems(rows.items, rows.item, first, at, count);
+        this.internItems(rows, first, at, count);
       } else if (role === ROLE_QUERY) {
         state.lastQuery = internRuns(rows.queries, rows.query, first, bytes, this.idStart, this.idEnd, this.idHash, at, count, state.lastQuery);
       } else {
@@ -188,8 +199,19 @@ export class SimpleRecordsKernel {
   }
 
   /** Item ids in batches of 64: warm the table slots of a batch first, so their cache misses overlap. */
-  private internItems(pool: BytePool, out: Uint32Array<ArrayBufferLike>, first: number, at: number, count: number): void {
+  private internItems(rows: RowColumns, first: number, at: number, count: number): void {
     const { bytes, idStart, idEnd, idHash, records } = this;
+    const out = rows.item;
+    const texts = rows.itemTexts;
+    if (texts !== undefined) {
+      // Item bytes kept per row (model/rowTexts.ts): the hash now, keys when the read is done; the kernel
+      // copied the bytes out one after another when asked to.
+      for (let r = 0; r < count; r++) out[first + r] = idHash[at + r]!;
+      if (this.itemBytesAt !== 0) texts.addBlock(bytes, this.itemBytesAt, this.itemEnd, count);
+      else for (let r = 0; r < count; r++) texts.add(bytes, idStart[at + r]!, idEnd[at + r]!);
+      return;
+    }
+    const pool = rows.items;
     for (let from = 0; from < count; from += 64) {
       const n = Math.min(64, count - from);
       pool.warm(idHash, n, records, at + from);

@@ -1,6 +1,6 @@
 /** Report formats for one evaluated dump; every one is a pure function of the evaluation. */
 import { formatCsv } from './csv';
-import { formatJson } from './json';
+import { formatJson, formatJsonPieces } from './json';
 import { formatMarkdown } from './markdown';
 import type { ReportInput, WorstOrder } from './reportInput';
 import { formatTable } from './table';
@@ -19,6 +19,11 @@ export function formatReport(format: ReportFormat, input: ReportInput, options: 
     case 'markdown':
       return formatMarkdown(input, options);
   }
+}
+
+/** formatReport's text in pieces to write in turn (JSON splices its records rather than joining them). */
+export function formatReportPieces(format: ReportFormat, input: ReportInput, options: { readonly worst: number; readonly worstOrder?: WorstOrder }): string[] {
+  return format === 'json' ? formatJsonPieces(input) : [formatReport(format, input, options)];
 }
 
 export type { ReportInput } from './reportInput';

@@ -8,6 +8,14 @@ import { conventionsAsJson, jsonNumber, type ReportInput } from './reportInput';
  * so 100k query objects are never built only to be stringified.
  */
 export function formatJson(input: ReportInput): string {
+  return formatJsonPieces(input).join('');
+}
+
+/**
+ * formatJson's text in pieces, to write one after another: on 100k queries the records are tens of MB,
+ * and joining them into one string (then one buffer to write) held two more copies at the peak.
+ */
+export function formatJsonPieces(input: ReportInput): string[] {
   const { evaluation: ev } = input;
   const summary: Record<string, number | null> = {};
   const counted: Record<string, number> = {};
@@ -36,12 +44,15 @@ export function formatJson(input: ReportInput): string {
     ...(ev.judgments ? { judgments: ev.judgments } : {}),
   };
   const headText = JSON.stringify(head, null, 1);
-  if (ev.queryCount === 0) return `${headText.slice(0, -2)},\n "queries": []\n}\n`;
+  if (ev.queryCount === 0) return [`${headText.slice(0, -2)},\n "queries": []\n}\n`];
   const notRetrieved = ev.judgments !== undefined;
   // Records rendered while scoring carry no query facts: with a queries table they are rendered here.
   const records = input.facts !== undefined || input.queryRecords === undefined
     ? [renderQueryRecords({ metrics: ev.metrics, names: packNames(input.queryNames), facts: input.facts, notRetrieved }, ev.perQuery, 0, ev.queryCount)]
     : input.queryRecords;
   // headText ends with "\n}": the records go in before that closing brace.
-  return `${headText.slice(0, -2)},\n "queries": [\n${records.join(',\n')}\n ]\n}\n`;
+  const pieces = [`${headText.slice(0, -2)},\n "queries": [\n`];
+  records.forEach((text, k) => pieces.push(k === 0 ? text : `,\n${text}`));
+  pieces.push('\n ]\n}\n');
+  return pieces;
 }

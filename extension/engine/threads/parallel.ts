@@ -1,8 +1,9 @@
 /**
  * Reads a large quote-free CSV/TSV file on several threads: the file is cut at newlines into one
  * byte range per thread, this thread and the workers each parse a range into its own columns and pools,
- * and the ranges are merged in file order. Ids are re-interned range by range in local first-seen
- * order, which reproduces exactly the ids a single pass would give. Any quote byte in the file
+ * and the ranges are merged in file order. Query and segment ids are re-interned range by range in
+ * local first-seen order, which reproduces exactly the ids a single pass would give; item bytes are kept
+ * per row and simply follow one another. Any quote byte in the file
  * makes the split unsafe; the caller then falls back to one thread.
  */
 import { promises as fsp } from 'node:fs';
@@ -11,6 +12,7 @@ import { engineSettings } from '../config';
 import { CancelledError, InputError } from '../errors';
 import { BytePool, hashBytes, type BytePoolState } from '../model/bytePool';
 import type { RankedDump } from '../model/dump';
+import { RowTexts } from '../model/rowTexts';
 import { addSummaries } from '../model/rowSummary';
 import { ROW_COLUMN_NAMES, ROW_COLUMNS, RowColumns, rowArray, rowArrays, sharedViews, type RowArrays, type RowColumnName, type SharedColumns } from '../readers/columns';
 import { DelimitedParser } from '../readers/delimited';
@@ -222,7 +224,7 @@ function merge(parts: Extract<RangeResult, { kind: 'rows' }>[], lineOffsets: num
   const rows = new RowColumns(headerRows.segmentNames, 16);
   rows.notes.messages.push(...headerRows.notes.messages);
   const total = parts.reduce((sum, p) => sum + p.count, 0);
-  const { queries: queryMaps, items: itemMaps, segments: segmentMaps } = remapPools(rows, parts);
+  const { queries: queryMaps, segments: segmentMaps } = remapPools(rows, parts);
   const columns = parts as unknown as Record<string, unknown>[];
   const take = <T>(key: string): T[] => columns.map((c) => {
     const value = c[key] as T;
@@ -234,7 +236,7 @@ function merge(parts: Extract<RangeResult, { kind: 'rows' }>[], lineOffsets: num
     const ranges = take<RowArrays[typeof name]>(name);
     if (how === 'none') return concat(ranges, rowArray(name, total));
     if (how === 'lines') return shiftLines(ranges as Uint32Array[], lineOffsets, total) as never;
-    return concatMapped(ranges as Uint32Array[], how === 'queries' ? queryMaps : itemMaps, total) as never;
+    return concatMapped(ranges as Uint32Array[], queryMaps, total) as never;
   });
   Object.assign(rows, merged);
   const segmentColumns = take<Uint32Array[]>('segmentIds');
@@ -282,11 +284,11 @@ function remapPools(rows: RowColumns, parts: Extract<RangeResult, { kind: 'rows'
   };
   const first = parts[0]!;
   rows.queries = BytePool.fromState(first.queries);
-  rows.items = BytePool.fromState(first.items);
+  // Item bytes stay per row (model/rowTexts.ts): the ranges' records follow one another, nothing to re-intern.
+  rows.itemTexts = RowTexts.concat(parts.map((p) => p.itemTexts));
   rows.segmentPools = first.segmentPools.map((s) => BytePool.fromState(s));
   return {
     queries: parts.map((p, k) => (k === 0 ? identity(p.queries.count) : remap(rows.queries, p.queries))),
-    items: parts.map((p, k) => (k === 0 ? identity(p.items.count) : remap(rows.items, p.items))),
     segments: parts.map((p, k) => p.segmentPools.map((state, s) => (k === 0 ? identity(state.count) : remap(rows.segmentPools[s]!, state)))),
   };
 }

@@ -105,7 +105,8 @@ async function scoreWithWorkers(dump: RankedDump, metrics: readonly MetricSpec[]
   if (recorded) sensitivity!.recordInto(recorded);
   const bounds = splitByRows(setup.groups.start, Math.min(setup.queryCount, threads * engineSettings().tuning.scoreChunksPerThread));
   const next = new Int32Array(shared(4));
-  const columns: ScoredColumns = { item: dump.item, label: dump.label, score: dump.score, ...(dump.unretrieved ? { unretrieved: dump.unretrieved } : {}) };
+  // Workers only find repeated items within a query: query-scoped keys serve as ids there.
+  const columns: ScoredColumns = { item: dump.itemKey ?? dump.item, label: dump.label, score: dump.score, ...(dump.unretrieved ? { unretrieved: dump.unretrieved } : {}) };
   const output = options.perChunk;
   const work: ChunkWork | undefined = output && { renderer: output.renderer, params: output.params };
   const task: ScoreRangeTask = { setup, columns, bounds, next, perQuery, sensitivity: recorded, ...(work ? { perChunk: work } : {}) };

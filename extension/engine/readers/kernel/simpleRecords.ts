@@ -40,11 +40,19 @@ let labelAt: usize = 0; // f64 per row
 let scoreAt: usize = 0; // f64 per row
 let lineAt: usize = 0; // u32 per row
 let startAt: usize = 0; // u32 per row: record start
+let itemBytesAt: usize = 0; // the item fields' bytes, one after another (0: not written)
+let itemEndAt: usize = 0; // u32 per row: end of the row's item bytes there
 let maxRows: i32 = 0;
 
-/** Where the settings and outputs live; `rows` is the most rows one call may write. */
+/**
+ * Where the settings and outputs live; `rows` is the most rows one call may write. With `itemBytes`
+ * set, the item field of every row is also copied there, one after another, so the host keeps them
+ * with one block copy (the item bytes of a call never exceed its input).
+ */
 export function layout(roles: usize, pow10: usize, previous: usize, fields: i32, idSlot: usize, idStart: usize, idEnd: usize,
-  idHash: usize, label: usize, score: usize, line: usize, start: usize, rows: i32): void {
+  idHash: usize, label: usize, score: usize, line: usize, start: usize, rows: i32, itemBytes: usize, itemEnd: usize): void {
+  itemBytesAt = itemBytes;
+  itemEndAt = itemEnd;
   rolesAt = roles;
   pow10At = pow10;
   previousAt = previous;
@@ -88,6 +96,7 @@ export function parse(pos: u32, limit: u32, delimiter: u32, line: u32, rankIsSco
   const fields = fieldCount;
   for (let f = 0; f < fields; f++) store<i32>(previousAt + (<usize>f << 3), -1);
   let row: i32 = 0;
+  let itemUsed: usize = 0;
   while (pos < limit && row < maxRows) {
     let c: u32 = load<u8>(pos);
     if (c == LF) {
@@ -97,6 +106,7 @@ export function parse(pos: u32, limit: u32, delimiter: u32, line: u32, rankIsSco
     }
     if (c == CR) break;
     const recordStart = pos;
+    const itemUsedBefore = itemUsed;
     let label: f64 = NaN;
     let score: f64 = NaN;
     let ok = true;
@@ -190,6 +200,9 @@ export function parse(pos: u32, limit: u32, delimiter: u32, line: u32, rankIsSco
         if (role != ROLE_ITEM) {
           store<i32>(previousAt + (<usize>f << 3), <i32>s);
           store<i32>(previousAt + (<usize>f << 3), <i32>e, 4);
+        } else if (itemBytesAt != 0) {
+          memory.copy(itemBytesAt + itemUsed, s, e - s);
+          itemUsed += e - s;
         }
       } else if (role == ROLE_LABEL) {
         label = value;
@@ -201,8 +214,10 @@ export function parse(pos: u32, limit: u32, delimiter: u32, line: u32, rankIsSco
     }
     if (!ok) {
       pos = recordStart;
+      itemUsed = itemUsedBefore;
       break;
     }
+    if (itemBytesAt != 0) store<u32>(itemEndAt + (<usize>row << 2), <u32>itemUsed);
     store<f64>(labelAt + (<usize>row << 3), label);
     store<f64>(scoreAt + (<usize>row << 3), score);
     store<u32>(lineAt + (<usize>row << 2), line);

@@ -1,0 +1,248 @@
+/**
+ * The item id of every row kept as its own bytes, one record per row in row order, with no table of
+ * distinct values. Interning item ids across the whole dump costs one table lookup per row that
+ * misses the CPU caches once items run into the millions (web search, catalogue-scale
+ * recommendation), and a table of that size besides. Scoring needs much less: duplicates are found
+ * within a query, so a key equal for two rows of one query exactly when they name the same item does
+ * (`queryScopedKeys`), and each query's rows are few and close together. The dump-wide ids
+ * (`internAll`) are made only for the callers that match items across queries or files (judgments,
+ * items tables, comparing runs, a query's detail), and are the very ids interning row by row gives.
+ */
+import { BytePool, hashBytes } from './bytePool';
+
+/** The internals of a RowTexts, moved between threads without copying. */
+export interface RowTextsState {
+  readonly arena: Uint8Array;
+  readonly used: number;
+  readonly ends: Uint32Array;
+  readonly count: number;
+}
+
+const decoder = new TextDecoder('utf-8');
+
+export class RowTexts {
+  private arena: Uint8Array;
+  private used = 0;
+  /** Record r is arena[ends[r - 1] (0 for r = 0), ends[r]). */
+  private ends: Uint32Array;
+  private count = 0;
+  /**
+   * Records of earlier parts (ranges of a file read on several threads), kept where they were made
+   * rather than copied together: rows firstRow[k] .. firstRow[k + 1] are earlier[k]. The own arena
+   * above then holds nothing (concat fills only these).
+   */
+  private earlier: RowTextsState[] = [];
+  private firstRow: number[] = [0];
+
+  constructor(rows = 1024, bytesPerRow = 16) {
+    this.ends = new Uint32Array(Math.max(16, rows));
+    this.arena = new Uint8Array(Math.max(256, Math.ceil(rows * bytesPerRow)));
+  }
+
+  get size(): number {
+    return this.count;
+  }
+
+  /** Appends the next row's bytes, bytes[start, end); rows must come in row order, one record each. */
+  add(bytes: Uint8Array, start: number, end: number): void {
+    const len = end - start;
+    const need = this.used + len;
+    if (need > this.arena.length || this.count === this.ends.length) this.reserve(this.count + 1, need);
+    const arena = this.arena;
+    for (let i = 0, at = this.used; i < len; i++) arena[at + i] = bytes[start + i]!;
+    this.used = need;
+    this.ends[this.count++] = need;
+  }
+
+  /**
+   * Appends `count` rows whose bytes lie one after another at bytes[from, ...): row r's end, counted
+   * from `from`, is ends[r] (so the first row starts at `from`).
+   */
+  addBlock(bytes: Uint8Array, from: number, ends: Uint32Array, count: number): void {
+    if (count === 0) return;
+    const len = ends[count - 1]!;
+    this.reserve(this.count + count, this.used + len);
+    this.arena.set(bytes.subarray(from, from + len), this.used);
+    const own = this.ends;
+    const base = this.used;
+    for (let r = 0; r < count; r++) own[this.count + r] = base + ends[r]!;
+    this.used = base + len;
+    this.count += count;
+  }
+
+  /** Room for `rows` records, the bytes guessed from the records so far. */
+  reserveRows(rows: number): void {
+    this.reserve(rows, this.count > 0 ? Math.ceil((this.used / this.count) * rows * 1.05) : rows * 16);
+  }
+
+  /** Room for `rows` records of `bytes` bytes in all, grown by half again at least when short. */
+  reserve(rows: number, bytes: number): void {
+    if (bytes > this.arena.length) {
+      if (bytes > 0xffffffff) throw new RangeError('item ids larger than 4 GB');
+      const grown = new Uint8Array(Math.min(0xffffffff, Math.max(Math.ceil(this.arena.length * 1.5), bytes)));
+      grown.set(this.arena.subarray(0, this.used));
+      this.arena = grown;
+    }
+    if (rows > this.ends.length) {
+      const grown = new Uint32Array(Math.max(Math.ceil(this.ends.length * 1.5), rows));
+      grown.set(this.ends.subarray(0, this.count));
+      this.ends = grown;
+    }
+  }
+
+  /** Row r's bytes (a view into the arena holding them). */
+  bytesOf(row: number): Uint8Array {
+    if (this.earlier.length === 0) return this.arena.subarray(row === 0 ? 0 : this.ends[row - 1]!, this.ends[row]!);
+    const part = this.partOf(row);
+    const r = row - this.firstRow[part]!;
+    const { arena, ends } = this.earlier[part]!;
+    return arena.subarray(r === 0 ? 0 : ends[r - 1]!, ends[r]!);
+  }
+
+  text(row: number): string {
+    return decoder.decode(this.bytesOf(row));
+  }
+
+  exportState(): RowTextsState {
+    if (this.earlier.length > 0) throw new Error('internal: a joined RowTexts is not exported');
+    return { arena: this.arena, used: this.used, ends: this.ends, count: this.count };
+  }
+
+  /** The records of several parts one after another (the parts of a file read in ranges, in file order), not copied. */
+  static concat(parts: readonly RowTextsState[]): RowTexts {
+    if (parts.length === 1) return RowTexts.fromState(parts[0]!);
+    const texts = new RowTexts(0, 0);
+    for (const p of parts) {
+      texts.earlier.push(p);
+      texts.count += p.count;
+      texts.firstRow.push(texts.count);
+    }
+    return texts;
+  }
+
+  private static fromState(state: RowTextsState): RowTexts {
+    const texts = new RowTexts(0, 0);
+    texts.arena = state.arena;
+    texts.used = state.used;
+    texts.ends = state.ends;
+    texts.count = state.count;
+    return texts;
+  }
+  /**
+   * Query-scoped keys, written over `column` in place: on entry column[r] is hashBytes of row r's bytes,
+   * on return it is the first row of query[r] whose bytes equal row r's (in file order). So two rows of
+   * one query get the same key exactly when they name the same item; across queries keys mean nothing.
+   */
+  queryScopedKeys(query: Uint32Array, column: Uint32Array, queryCount: number): void {
+    const rows = this.count;
+    const probe = new ItemProbe();
+    // The usual dump keeps each query's rows together, in first-seen order: then each run of rows is a query.
+    let last = -1;
+    let r = 0;
+    for (; r < rows; r++) {
+      const q = query[r]!;
+      if (q === last) continue;
+      if (q !== last + 1) break;
+      last = q;
+    }
+    if (r === rows) {
+      let from = 0;
+      for (let i = 1; i <= rows; i++) {
+        if (i < rows && query[i] === query[from]) continue;
+        probe.keyRun(this, column, from, i, undefined);
+        from = i;
+      }
+      return;
+    }
+    // Otherwise group the rows by query (a counting sort, file order within a query) and key each group.
+    const start = new Uint32Array(queryCount + 1);
+    for (let i = 0; i < rows; i++) start[query[i]! + 1]++;
+    for (let q = 0; q < queryCount; q++) start[q + 1] += start[q]!;
+    const next = start.slice(0, queryCount);
+    const order = new Uint32Array(rows);
+    for (let i = 0; i < rows; i++) order[next[query[i]!]!++] = i;
+    for (let q = 0; q < queryCount; q++) if (start[q + 1]! > start[q]!) probe.keyRun(this, column, start[q]!, start[q + 1]!, order);
+  }
+
+  /**
+   * Dump-wide ids: each distinct byte string gets the next id in row order (first seen first), the ids a
+   * BytePool gives when every row's item is interned in turn.
+   */
+  internAll(): { readonly pool: BytePool; readonly ids: Uint32Array } {
+    const pool = new BytePool();
+    const ids = new Uint32Array(this.count);
+    const batch = 64;
+    const hashes = new Int32Array(batch);
+    const records = new Int32Array(batch);
+    const views: Uint8Array[] = [];
+    for (let from = 0; from < this.count; from += batch) {
+      const n = Math.min(batch, this.count - from);
+      for (let b = 0; b < n; b++) {
+        const bytes = (views[b] = this.bytesOf(from + b));
+        hashes[b] = hashBytes(bytes, 0, bytes.length);
+      }
+      // Touch the slots of the batch first so their cache misses overlap (see BytePool.warm).
+      pool.warm(hashes, n, records);
+      for (let b = 0; b < n; b++) ids[from + b] = pool.internHashed(views[b]!, 0, views[b]!.length, hashes[b]!);
+    }
+    return { pool, ids };
+  }
+
+  /** True when rows a and b hold the same bytes. */
+  equal(a: number, b: number): boolean {
+    const x = this.bytesOf(a);
+    const y = this.bytesOf(b);
+    const len = x.length;
+    if (y.length !== len) return false;
+    for (let i = 0; i < len; i++) if (x[i] !== y[i]) return false;
+    return true;
+  }
+
+  private partOf(row: number): number {
+    let part = 0;
+    while (row >= this.firstRow[part + 1]! && part + 1 < this.earlier.length) part++;
+    return part;
+  }
+}
+
+/** A small open-addressing set of one query's rows by item hash, emptied per query by a stamp. */
+class ItemProbe {
+  private stamps = new Int32Array(256);
+  private rowAt = new Uint32Array(256);
+  private hashAt = new Int32Array(256);
+  private stamp = 0;
+
+  /** Keys rows from..to of the query (order[from..to) when given, else the rows themselves). */
+  keyRun(texts: RowTexts, column: Uint32Array, from: number, to: number, order: Uint32Array | undefined): void {
+    let size = 256;
+    while (size < 2 * (to - from)) size *= 2;
+    if (size > this.stamps.length) {
+      this.stamps = new Int32Array(size);
+      this.rowAt = new Uint32Array(size);
+      this.hashAt = new Int32Array(size);
+      this.stamp = 0;
+    }
+    const mask = size - 1;
+    const stamp = ++this.stamp;
+    const { stamps, rowAt, hashAt } = this;
+    for (let p = from; p < to; p++) {
+      const r = order === undefined ? p : order[p]!;
+      const h = column[r]! | 0;
+      let slot = h & mask;
+      let key = r;
+      while (stamps[slot] === stamp) {
+        if (hashAt[slot] === h && texts.equal(rowAt[slot]!, r)) {
+          key = rowAt[slot]!;
+          break;
+        }
+        slot = (slot + 1) & mask;
+      }
+      if (key === r) {
+        stamps[slot] = stamp;
+        rowAt[slot] = r;
+        hashAt[slot] = h;
+      }
+      column[r] = key;
+    }
+  }
+}

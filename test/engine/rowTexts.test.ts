@@ -1,0 +1,163 @@
+/**
+ * Item bytes kept per row (model/rowTexts.ts) against the slow obvious way, on seeded random rows:
+ * query-scoped keys against a Map of item text per query (the first row naming it), dump-wide ids
+ * against interning every row's item in turn in a Map (first seen, first id), whether the rows of a
+ * query are together or scattered, and whether the records come in one part or several. Then the same
+ * through the CSV reader, and scoring's duplicate count against a Set per query.
+ */
+import { describe, expect, it } from 'vitest';
+import { BytePool, hashBytes } from '../../extension/engine/model/bytePool';
+import { RowTexts } from '../../extension/engine/model/rowTexts';
+import { readDump } from '../../extension/engine/readers/index';
+import { evaluateDump } from '../../extension/engine/index';
+import { engineActivity } from '../../extension/engine/config';
+import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
+import { parseMetricList } from '../../extension/engine/metrics/parse';
+import { TempDir } from './fixtures/readers/tempFiles';
+import { seededRandom } from '../reference/random';
+
+const tmp = new TempDir();
+const encoder = new TextEncoder();
+// Short ids from a small set so that repeats within a query and across queries are common; some share
+// a prefix, one is empty, some are not ASCII.
+const ALPHABET = ['a', 'b', 'ab', 'ba', 'SKU-1', 'SKU-10', 'SKU-100', '', 'Schraube ø4', 'vis à bois', 'x'.repeat(40)];
+
+interface Case {
+  readonly query: Uint32Array;
+  readonly items: string[];
+  readonly queryCount: number;
+}
+
+function randomCase(seed: number, rows: number, grouped: boolean): Case {
+  const rnd = seededRandom(seed);
+  const queryCount = Math.max(1, Math.floor(rows / 7));
+  const query = new Uint32Array(rows);
+  const items: string[] = [];
+  for (let r = 0; r < rows; r++) {
+    // Grouped: query ids climb in first-seen order; scattered: any query at any row.
+    query[r] = grouped ? Math.min(queryCount - 1, Math.floor((r * queryCount) / rows)) : Math.floor(rnd() * queryCount);
+    items.push(rnd() < 0.7 ? ALPHABET[Math.floor(rnd() * ALPHABET.length)]! : `sku-${Math.floor(rnd() * 50)}`);
+  }
+  if (!grouped) {
+    // Ids in first-seen order, as readers give them.
+    const renumber = new Map<number, number>();
+    for (let r = 0; r < rows; r++) {
+      if (!renumber.has(query[r]!)) renumber.set(query[r]!, renumber.size);
+      query[r] = renumber.get(query[r]!)!;
+    }
+    return { query, items, queryCount: renumber.size };
+  }
+  return { query, items, queryCount };
+}
+
+/** The records of `c`, split into `parts` parts joined as a parallel read joins its ranges. */
+function textsOf(c: Case, parts: number): RowTexts {
+  if (parts === 1) {
+    const texts = new RowTexts(4, 2);
+    for (const item of c.items) {
+      const bytes = encoder.encode(item);
+      texts.add(bytes, 0, bytes.length);
+    }
+    return texts;
+  }
+  const states = [];
+  for (let k = 0; k < parts; k++) {
+    const part = new RowTexts(4, 2);
+    const from = Math.floor((k * c.items.length) / parts);
+    const to = Math.floor(((k + 1) * c.items.length) / parts);
+    for (let r = from; r < to; r++) {
+      const bytes = encoder.encode(c.items[r]!);
+      part.add(bytes, 0, bytes.length);
+    }
+    states.push(part.exportState());
+  }
+  return RowTexts.concat(states);
+}
+
+function slowKeys(c: Case): number[] {
+  const firstRow = new Map<string, number>();
+  return c.items.map((item, r) => {
+    const key = `${c.query[r]}\u0000${item}`;
+    if (!firstRow.has(key)) firstRow.set(key, r);
+    return firstRow.get(key)!;
+  });
+}
+
+function hashes(c: Case): Uint32Array {
+  return Uint32Array.from(c.items, (item) => {
+    const bytes = encoder.encode(item);
+    return hashBytes(bytes, 0, bytes.length);
+  });
+}
+
+describe('item bytes per row', () => {
+  it.each([
+    [1, 5_000, true, 1], [2, 5_000, false, 1], [3, 5_000, true, 3], [4, 5_000, false, 4], [5, 3, true, 2], [6, 1, false, 1],
+  ])('seed %i, %i rows, grouped %s, %i parts: keys and ids as the slow way gives them', (seed, rows, grouped, parts) => {
+    const c = randomCase(seed, rows, grouped);
+    const texts = textsOf(c, parts);
+    expect(texts.size).toBe(rows);
+    for (let r = 0; r < rows; r++) expect(texts.text(r)).toBe(c.items[r]);
+
+    const keys = hashes(c);
+    texts.queryScopedKeys(c.query, keys, c.queryCount);
+    expect(Array.from(keys)).toEqual(slowKeys(c));
+
+    const ids = new Map<string, number>();
+    const expected = c.items.map((item) => {
+      if (!ids.has(item)) ids.set(item, ids.size);
+      return ids.get(item)!;
+    });
+    const all = texts.internAll();
+    expect(Array.from(all.ids)).toEqual(expected);
+    expect(all.pool.size).toBe(ids.size);
+    for (const [item, id] of ids) expect(all.pool.get(id)).toBe(item);
+    // The pool is an ordinary BytePool: found by text, and it takes new ids (judgments add items).
+    expect(all.pool).toBeInstanceOf(BytePool);
+    expect(all.pool.find(c.items[0]!)).toBe(0);
+  });
+
+  it('keys can collide on the hash without merging items', () => {
+    // Every row given the same hash: only the byte comparison can tell the items apart.
+    const c = randomCase(7, 2_000, true);
+    const texts = textsOf(c, 1);
+    const keys = new Uint32Array(c.items.length).fill(12345);
+    texts.queryScopedKeys(c.query, keys, c.queryCount);
+    expect(Array.from(keys)).toEqual(slowKeys(c));
+  });
+});
+
+describe('a CSV read keeps item bytes per row', () => {
+  it.each([[21, true], [22, false]])('seed %i (grouped %s): item ids, keys and repeated rows as the slow way finds them', async (seed, grouped) => {
+    const c = randomCase(seed, 4_000, grouped);
+    const rnd = seededRandom(seed + 100);
+    const lines = ['query,item,label,score'];
+    // Items with a comma or quote would be quoted; the alphabet has none. The query text is its id.
+    c.items.forEach((item, r) => lines.push(`q${c.query[r]},${item},${Math.floor(rnd() * 4)},${(rnd() * 10).toFixed(3)}`));
+    const dump = await readDump(tmp.file(`rowtexts-${seed}.csv`, lines.join('\n') + '\n'));
+    expect(dump.itemKey).toBeDefined();
+    // Scoring reads the query-scoped keys only: the dump-wide ids are made when first read, once.
+    const made = engineActivity().itemIdsMade;
+    const evaluation = await evaluateDump(dump, parseMetricList('ndcg@10'), DEFAULT_CONVENTIONS, { threads: 1 });
+    expect(engineActivity().itemIdsMade).toBe(made);
+    // Keys: the first row of the query naming the item (query ids of the file are q0, q1, ... in first-seen order).
+    expect(Array.from(dump.itemKey!)).toEqual(slowKeys({ ...c, query: dump.query }));
+    const ids = new Map<string, number>();
+    expect(Array.from(dump.item)).toEqual(c.items.map((item) => {
+      if (!ids.has(item)) ids.set(item, ids.size);
+      return ids.get(item)!;
+    }));
+    for (const [item, id] of ids) expect(dump.items.get(id)).toBe(item);
+    expect(engineActivity().itemIdsMade).toBe(made + 1);
+    const perQuery = new Map<number, Set<string>>();
+    let repeated = 0;
+    c.items.forEach((item, r) => {
+      const seen = perQuery.get(c.query[r]!) ?? new Set<string>();
+      perQuery.set(c.query[r]!, seen);
+      if (seen.has(item)) repeated++;
+      seen.add(item);
+    });
+    expect(repeated).toBeGreaterThan(0);
+    expect(evaluation.degenerate.duplicateRows).toBe(repeated);
+  });
+});
