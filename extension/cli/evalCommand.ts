@@ -155,7 +155,10 @@ async function evalFile(path: string, source: string, format: ReportFormat, wors
       }
       return 0;
     }
-    if (outcome.tried && values.timings) io.err(`reading: in memory, since ${outcome.why}\n`);
+    // A large file that was meant to stream says why it did not; asking for a stream or for timings always says.
+    if ((outcome.tried && values.reading === 'auto') || (values.timings && (outcome.tried || values.reading === 'stream'))) {
+      io.err(`reading: in memory, since ${outcome.why}\n`);
+    }
     const dump = await withSideTables(outcome.dump, setup.tables);
     const read = performance.now();
     if (values.query !== undefined) {
