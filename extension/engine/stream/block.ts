@@ -19,6 +19,7 @@ import type { MetricSpec } from '../metrics/registry';
 import type { RankedDump } from '../model/dump';
 import { groupByQuery } from '../model/groups';
 import { summariseRows, type RowSummary } from '../model/rowSummary';
+import { ROW_COLUMN_NAMES, ROW_COLUMNS, type RowColumnName, type SharedColumns } from '../readers/columns';
 import { DelimitedParser } from '../readers/delimited';
 import type { ColumnRoles } from '../readers/roles';
 import { pumpRange, type RecordSink } from '../readers/source';
@@ -30,6 +31,8 @@ export interface BlockTask {
   readonly end: number;
   readonly delimiter: number;
   readonly names: string[];
+  /** Columns kept as segments (the header's columns without a role). */
+  readonly segmentCount: number;
   readonly columns?: ColumnRoles;
   readonly metrics: readonly MetricSpec[];
   readonly conventions: Conventions;
@@ -105,9 +108,28 @@ class QuoteGuard implements RecordSink {
   }
 }
 
+/**
+ * Row columns reused from block to block on this thread: a block's rows are scored before the next is
+ * read, and fresh columns for every block cost more time than parsing them (the pages of new memory).
+ */
+let reused: SharedColumns | undefined;
+
+function rowSpace(segments: number, rows: number): SharedColumns {
+  if (reused !== undefined && reused.segmentIds.length === segments && reused.rows >= rows) return reused;
+  const buffers = {} as Record<RowColumnName, SharedArrayBuffer>;
+  for (const name of ROW_COLUMN_NAMES) buffers[name] = new SharedArrayBuffer(rows * ROW_COLUMNS[name].array.BYTES_PER_ELEMENT);
+  reused = { ...buffers, segmentIds: Array.from({ length: segments }, () => new SharedArrayBuffer(rows * 4)), firstRow: 0, rows };
+  return reused;
+}
+
+/** Rows a block of `bytes` bytes is given room for before its columns spill into arrays of their own. */
+const BYTES_PER_ROW_GUESS = 40;
+
 export async function readBlock(task: BlockTask): Promise<BlockResult> {
-  const parser = new DelimitedParser({ file: task.path, delimiter: task.delimiter, columns: task.columns, expectedBytes: task.end - task.start },
-    { names: task.names });
+  // A stitched query is read alone and seldom: it takes fresh arrays and leaves the reused ones alone.
+  const shared = task.whole ? undefined : rowSpace(task.segmentCount, Math.ceil((task.end - task.start) / BYTES_PER_ROW_GUESS));
+  const parser = new DelimitedParser({ file: task.path, delimiter: task.delimiter, columns: task.columns, expectedBytes: task.end - task.start,
+    ...(shared ? { shared } : {}) }, { names: task.names });
   try {
     // Reads of a small range (a stitched query) need no buffers of the full chunk size.
     const chunkBytes = Math.min(engineSettings().tuning.plainChunkBytes, Math.max(4096, task.end - task.start));

@@ -115,7 +115,7 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
   const hasRbp = scoredBlockSetup(metrics, conventions, { rowsOfQuery: new Uint32Array(0), start: new Uint32Array(1) }, 0, 0, false).hasRbp;
   const table = new StreamColumns(metrics.length, hasRbp, spec?.variantCount);
   const mapGain = conventions.gain.kind === 'map';
-  const base = { path, format, delimiter, names: header.names, ...(options.columns ? { columns: options.columns } : {}), metrics, conventions, sensitivity,
+  const base = { path, format, delimiter, names: header.names, segmentCount: header.segmentNames.length, ...(options.columns ? { columns: options.columns } : {}), metrics, conventions, sensitivity,
     distinctGrades: mapGain };
   const threads = Math.max(1, Math.min(16, Math.floor(options.threads ?? Math.min(4, availableParallelism()))));
   const runner = startBlockRunner(threads, options.signal);
