@@ -4,7 +4,8 @@
 import { stat } from 'node:fs/promises';
 import { resolve } from 'node:path';
 import { InputError } from '../engine/errors';
-import { evaluateDump, READING_MODES, streamOrRead, type ReadingMode } from '../engine/index';
+import { evaluateDump, READING_MODES, streamOrRead, type ReadingMode, type StreamPartial } from '../engine/index';
+import { partialHeadlineText, type PartialHeadline } from '../presentation/partialText';
 import { formatReport, REPORT_FORMATS, type ReportFormat } from '../engine/report/index';
 import { collectQueryRecords } from '../engine/report/jsonRecords';
 import { queryFacts } from '../engine/tables/queryFacts';
@@ -141,7 +142,8 @@ async function evalFile(path: string, source: string, format: ReportFormat, wors
     const rowsNeeded = values.query !== undefined || values.diagnostics || values.segment !== undefined
       || setup.tables.queries !== undefined || setup.tables.items !== undefined;
     const outcome = await streamOrRead(path, { ...setup.read, onProgress: progress?.reading }, setup.metrics, setup.conventions,
-      { reading: rowsNeeded ? 'memory' : values.reading, sensitivity, ...(progress ? { onProgress: progress.reading } : {}) });
+      { reading: rowsNeeded ? 'memory' : values.reading, sensitivity,
+        ...(progress ? { onPartial: (p: StreamPartial) => progress.partial(p.bytesRead / p.totalBytes, partialHeadlineText(headlineOf(p))) } : {}) });
     if (outcome.kind === 'streamed') {
       const scored = performance.now();
       progress?.done();
@@ -197,6 +199,12 @@ async function evalFile(path: string, source: string, format: ReportFormat, wors
     progress?.done();
   }
   return 0;
+}
+
+/** The first metric's mean so far, for the progress line while a dump streams in. */
+function headlineOf(p: StreamPartial): PartialHeadline {
+  const first = p.summary[0];
+  return { key: first?.key ?? '', mean: first?.mean ?? NaN, queries: p.queries, rows: p.rows, bytesRead: p.bytesRead, totalBytes: p.totalBytes };
 }
 
 /** Wrong command-line usage: reported on one line with a pointer to help, exit 2. */

@@ -4,6 +4,7 @@
  * byte for byte. Blocks are made tiny so queries straddle block boundaries, and one query spans many.
  * Runs on this thread (no thread scripts under vitest); test/worker/stream-threads.test.ts runs the workers.
  */
+import { statSync } from 'node:fs';
 import { afterAll, describe, expect, it } from 'vitest';
 import { evaluateDump, readDump, streamOrRead } from '../../extension/engine/index';
 import type { Evaluation } from '../../extension/engine/evaluate/types';
@@ -12,6 +13,7 @@ import { DEFAULT_METRICS } from '../../extension/engine/metrics/registry';
 import { parseMetricList } from '../../extension/engine/metrics/parse';
 import type { StringPool } from '../../extension/engine/model/stringPool';
 import { formatReport } from '../../extension/engine/report/index';
+import { blockBounds } from '../../extension/engine/stream/fileBlocks';
 import { streamEvaluate } from '../../extension/engine/stream/streamEvaluate';
 import { TempDir } from './fixtures/readers/tempFiles';
 import { groupedDump, type GroupedShape } from './fixtures/streamFiles';
@@ -170,3 +172,59 @@ describe('conventions settled at the end', () => {
     await expectIdentical(file, linear, parseMetricList('ndcg@10,ap,err@10'));
   });
 });
+
+describe('the headline while the rest streams in', () => {
+  it('reports after every block the mean over the queries scored so far, marked by how much was read', async () => {
+    const file = tmp.file('partial.tsv', groupedDump(17, { queries: 80, maxRows: 10 }));
+    const memory = await evaluateDump(await readDump(file), METRICS, DEFAULT_CONVENTIONS, { threads: 1 });
+    const partials: { queries: number; rows: number; bytesRead: number; totalBytes: number; mean: number; counted: number }[] = [];
+    const s = await streamEvaluate(file, 'tsv', METRICS, DEFAULT_CONVENTIONS, {
+      blockBytes: 600,
+      onPartial: (p) => partials.push({ ...p, mean: p.summary[0]!.mean, counted: p.summary[0]!.counted }),
+    });
+    if (s.kind !== 'streamed') throw new Error('fell back');
+    expect(partials.length).toBe(s.blocks);
+    for (let i = 1; i < partials.length; i++) {
+      expect(partials[i]!.rows).toBeGreaterThan(partials[i - 1]!.rows);
+      expect(partials[i]!.bytesRead).toBeGreaterThan(partials[i - 1]!.bytesRead);
+      expect(partials[i]!.queries).toBeGreaterThanOrEqual(partials[i - 1]!.queries);
+    }
+    const last = partials.at(-1)!;
+    expect(last.bytesRead).toBe(last.totalBytes);
+    expect(last.rows).toBe(s.dump.rowCount);
+    // Each partial mean is the in-memory mean over the queries it counted: those scored inside blocks so
+    // far (the ones cut by a block boundary come at the end, so they are not in it yet).
+    const ndcg = memory.perQuery.values[0]!;
+    const edges = await edgeQueries(file, s.dump.locations, 600);
+    expect(edges.size).toBeGreaterThan(s.blocks);
+    for (const p of partials) {
+      expect(p.counted).toBeLessThan(memory.summary[0]!.counted);
+      let sum = 0;
+      let counted = 0;
+      for (let q = 0; q < p.queries; q++) {
+        if (edges.has(q) || Number.isNaN(ndcg[q]!)) continue;
+        sum += ndcg[q]!;
+        counted++;
+      }
+      expect(p.counted).toBe(counted);
+      expect(p.mean).toBe(counted > 0 ? sum / counted : NaN);
+    }
+    expect(s.evaluation.summary).toEqual(memory.summary);
+  });
+});
+
+/**
+ * The queries a block hands back to be stitched (scored only at the end): in each block, the query of its
+ * first row and the query of its last row, found from each query's byte range.
+ */
+async function edgeQueries(file: string, locations: { start: Float64Array; end: Float64Array }, blockBytes: number): Promise<Set<number>> {
+  const size = statSync(file).size;
+  const bounds = await blockBounds(file, locations.start[0]!, size, blockBytes);
+  const queryAt = (byte: number) => locations.start.findLastIndex((s) => s <= byte);
+  const edges = new Set<number>();
+  for (let k = 0; k + 1 < bounds.length; k++) {
+    edges.add(queryAt(bounds[k]!));
+    edges.add(queryAt(bounds[k + 1]! - 1));
+  }
+  return edges;
+}

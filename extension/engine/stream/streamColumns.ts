@@ -65,6 +65,8 @@ export class StreamColumns {
     if (id >= this.capacity) this.grow(Math.max(id + 1, this.capacity * 2));
     this.count = id + 1;
     this.locations.line[id] = line;
+    // Until scored (a query cut by a block boundary is scored at the end), it counts in no partial mean.
+    for (const column of this.columns.values) column[id] = NaN;
     return id;
   }
 
