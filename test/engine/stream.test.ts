@@ -220,7 +220,11 @@ describe('the headline while the rest streams in', () => {
 async function edgeQueries(file: string, locations: { start: Float64Array; end: Float64Array }, blockBytes: number): Promise<Set<number>> {
   const size = statSync(file).size;
   const bounds = await blockBounds(file, locations.start[0]!, size, blockBytes);
-  const queryAt = (byte: number) => locations.start.findLastIndex((s) => s <= byte);
+  const queryAt = (byte: number) => {
+    let q = 0;
+    while (q + 1 < locations.start.length && locations.start[q + 1]! <= byte) q++;
+    return q;
+  };
   const edges = new Set<number>();
   for (let k = 0; k + 1 < bounds.length; k++) {
     edges.add(queryAt(bounds[k]!));
