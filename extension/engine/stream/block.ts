@@ -17,6 +17,7 @@ import type { PerQueryColumns } from '../evaluate/types';
 import type { Conventions } from '../metrics/conventions';
 import type { MetricSpec } from '../metrics/registry';
 import type { RankedDump } from '../model/dump';
+import { BytePool } from '../model/bytePool';
 import { groupByQuery } from '../model/groups';
 import { summariseRows, type RowSummary } from '../model/rowSummary';
 import { ROW_COLUMN_NAMES, ROW_COLUMNS, type RowColumnName, type SharedColumns } from '../readers/columns';
@@ -122,6 +123,20 @@ function rowSpace(segments: number, rows: number): SharedColumns {
   return reused;
 }
 
+/**
+ * Item ids interned on this thread, kept from block to block: only equality within a query matters
+ * (repeated rows), so any consistent ids do, and a catalogue's items recur across blocks, where a look-up
+ * that finds the item costs far less than adding it again to a fresh pool. Started afresh past
+ * ITEM_POOL_LIMIT items, so distinct ids cannot make it grow with the file.
+ */
+let itemPool: BytePool | undefined;
+const ITEM_POOL_LIMIT = 2_000_000;
+
+function items(): BytePool {
+  if (itemPool === undefined || itemPool.size > ITEM_POOL_LIMIT) itemPool = new BytePool();
+  return itemPool;
+}
+
 /** Rows a block of `bytes` bytes is given room for before its columns spill into arrays of their own. */
 const BYTES_PER_ROW_GUESS = 40;
 
@@ -130,6 +145,7 @@ export async function readBlock(task: BlockTask): Promise<BlockResult> {
   const shared = task.whole ? undefined : rowSpace(task.segmentCount, Math.ceil((task.end - task.start) / BYTES_PER_ROW_GUESS));
   const parser = new DelimitedParser({ file: task.path, delimiter: task.delimiter, columns: task.columns, expectedBytes: task.end - task.start,
     ...(shared ? { shared } : {}) }, { names: task.names });
+  if (!task.whole) parser.columns!.items = items();
   try {
     // Reads of a small range (a stitched query) need no buffers of the full chunk size.
     const chunkBytes = Math.min(engineSettings().tuning.plainChunkBytes, Math.max(4096, task.end - task.start));
