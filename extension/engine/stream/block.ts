@@ -137,6 +137,12 @@ function items(): BytePool {
   return itemPool;
 }
 
+/** Drops the columns and item ids kept for the next block (a thread that lives on after its stream). */
+export function releaseBlockMemory(): void {
+  reused = undefined;
+  itemPool = undefined;
+}
+
 /** Rows a block of `bytes` bytes is given room for before its columns spill into arrays of their own. */
 const BYTES_PER_ROW_GUESS = 40;
 

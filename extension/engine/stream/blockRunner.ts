@@ -6,7 +6,7 @@
 import type { Worker } from 'node:worker_threads';
 import { CancelledError } from '../errors';
 import { startThread, threadScript } from '../threads/spawn';
-import { readBlock, type BlockResult, type BlockTask } from './block';
+import { readBlock, releaseBlockMemory, type BlockResult, type BlockTask } from './block';
 
 export interface BlockRunner {
   /** Settles with the block's result; tasks start in the order they are given. */
@@ -34,7 +34,9 @@ function localRunner(signal: AbortSignal | undefined): BlockRunner {
       chain = next.catch(() => undefined);
       return next;
     },
-    stop() {},
+    stop() {
+      releaseBlockMemory();
+    },
   };
 }
 
