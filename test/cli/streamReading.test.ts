@@ -26,12 +26,13 @@ describe('eval --reading stream', () => {
     expect(streamed.stdout).toBe(memory.stdout);
   });
 
-  it('prints the in-memory report on seeded TSV files with ties, repeated items and non-finite scores', () => {
+  it('prints the in-memory report on seeded TSV files with ties, repeated items, non-finite scores and query weights', () => {
     const dir = fixtureDir({
       'ties.tsv': groupedDump(31, { queries: 300, maxRows: 20, scoreLevels: 3, duplicateShare: 0.05, noRelevantShare: 0.1, badScoreShare: 0.05, segments: true }),
       'late.tsv': groupedDump(32, { queries: 300, maxRows: 20, topGrade: 7, lateTopGrade: true, unjudgedShare: 0.05 }),
+      'weighted.tsv': groupedDump(33, { queries: 300, maxRows: 20, weights: true, scoreLevels: 5 }),
     });
-    for (const file of ['ties.tsv', 'late.tsv']) {
+    for (const file of ['ties.tsv', 'late.tsv', 'weighted.tsv']) {
       const { memory, streamed } = both([file, '--format', 'json', '--metrics', 'ndcg@10,err@10,ap,rbp,tau'], dir);
       expect(streamed.stdout).toBe(memory.stdout);
     }

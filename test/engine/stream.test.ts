@@ -15,6 +15,7 @@ import type { StringPool } from '../../extension/engine/model/stringPool';
 import { formatReport } from '../../extension/engine/report/index';
 import { blockBounds } from '../../extension/engine/stream/fileBlocks';
 import { streamEvaluate } from '../../extension/engine/stream/streamEvaluate';
+import { joinTables } from '../../extension/engine/tables/join';
 import { TempDir } from './fixtures/readers/tempFiles';
 import { groupedDump, type GroupedShape } from './fixtures/streamFiles';
 
@@ -39,7 +40,8 @@ function plain(e: Evaluation): unknown {
 const names = (pool: StringPool) => Array.from({ length: pool.size }, (_, i) => pool.get(i));
 
 async function both(file: string, conventions: Conventions, metrics = METRICS, blockBytes = 700) {
-  const dump = await readDump(file);
+  // As the command line reads it: a weight column of the dump is joined per query (tables/join.ts).
+  const dump = joinTables(await readDump(file));
   const memory = await evaluateDump(dump, metrics, conventions, { threads: 1 });
   const streamed = await streamEvaluate(file, file.endsWith('.csv') ? 'csv' : 'tsv', metrics, conventions, { blockBytes });
   if (streamed.kind !== 'streamed') throw new Error(`fell back: ${streamed.reason}`);
@@ -74,6 +76,7 @@ const SHAPES: [string, GroupedShape][] = [
   ['segments, blank lines and CRLF', { queries: 60, maxRows: 10, segments: true, ragged: true }],
   ['CSV', { queries: 60, maxRows: 10, delimiter: ',', segments: true }],
   ['single-row queries', { queries: 200, maxRows: 1 }],
+  ['query weights', { queries: 60, maxRows: 10, weights: true, noRelevantShare: 0.1, segments: true }],
 ];
 
 describe('streamed against in memory, seeded files of every shape', () => {
@@ -138,11 +141,14 @@ describe('files the stream gives way on', () => {
     expect(r.kind === 'read' && r.tried).toBe(true);
   });
 
-  it('a quoted field, a weight column and grades the conventions cannot score give way too', async () => {
+  it('a quoted field, weights that disagree within a query and grades the conventions cannot score give way too', async () => {
     const quoted = tmp.file('quoted.csv', 'query,item,grade,score\n"drill, cordless",a,1,0.5\n');
     expect((await streamEvaluate(quoted, 'csv', METRICS, DEFAULT_CONVENTIONS)).kind).toBe('fallback');
-    const weighted = tmp.file('weighted.tsv', 'query\titem\tgrade\tscore\tweight\npaint roller\ta\t1\t0.5\t2\n');
-    expect(await streamEvaluate(weighted, 'tsv', METRICS, DEFAULT_CONVENTIONS)).toEqual({ kind: 'fallback', reason: 'the dump has a query weight column' });
+    const weighted = tmp.file('weighted.tsv', 'query\titem\tgrade\tscore\tweight\npaint roller\ta\t1\t0.5\t2\npaint roller\tb\t0\t0.4\t3\n');
+    expect(await streamEvaluate(weighted, 'tsv', METRICS, DEFAULT_CONVENTIONS)).toEqual({ kind: 'fallback',
+      reason: 'the rows of a query disagree on its weight (reading in memory names the row)' });
+    // The in-memory join then names the row, as it always has.
+    await expect(readDump(weighted).then(joinTables)).rejects.toThrow(/weighted\.tsv:3/);
     const negative = tmp.file('negative.tsv', 'query\titem\tgrade\tscore\npaint roller\ta\t-1\t0.5\npaint roller\tb\t1\t0.2\n');
     const s = await streamEvaluate(negative, 'tsv', METRICS, DEFAULT_CONVENTIONS);
     expect(s.kind === 'fallback' && s.reason).toMatch(/^the conventions cannot score this data/);

@@ -24,6 +24,7 @@ import { ROW_COLUMN_NAMES, ROW_COLUMNS, type RowColumnName, type SharedColumns }
 import { DelimitedParser } from '../readers/delimited';
 import type { ColumnRoles } from '../readers/roles';
 import { pumpRange, type RecordSink } from '../readers/source';
+import { joinTables } from '../tables/join';
 
 export interface BlockTask {
   readonly path: string;
@@ -47,6 +48,8 @@ export interface BlockTask {
   readonly gmaxFloor?: number;
   /** Score every run, the first and the last too (a stitched query, a range read again). */
   readonly whole: boolean;
+  /** The dump has a query weight column: each scored query's weight is taken as the in-memory join takes it. */
+  readonly weights: boolean;
   /** Collect the distinct grades (a gain map must list each of them). */
   readonly distinctGrades: boolean;
 }
@@ -70,6 +73,8 @@ export interface ScoredRuns {
   readonly rows: Uint32Array;
   readonly perQuery: PerQueryColumns;
   readonly sensitivity?: SensitivityColumns;
+  /** Each query's weight (NaN when unknown), when the dump has a weight column. */
+  readonly weight?: Float64Array;
 }
 
 export type BlockResult =
@@ -92,6 +97,8 @@ export type BlockResult =
   }
   | { readonly kind: 'empty'; readonly lines: number }
   | { readonly kind: 'quoted' }
+  /** A weight the in-memory join refuses (rows of a query that disagree, a negative weight): its error names the row. */
+  | { readonly kind: 'weights'; readonly why: string }
   /** A query whose rows stop and start again inside the block: the file is not grouped by query. */
   | { readonly kind: 'ungrouped'; readonly query: string; readonly line: number }
   | { readonly kind: 'error'; readonly expected: string; readonly file?: string; readonly line?: number; readonly found?: string };
@@ -183,6 +190,15 @@ function scoreBlock(task: BlockTask, dump: RankedDump, lines: number): BlockResu
     runs++;
     runStart = r;
   }
+  let weights: Float64Array | undefined;
+  if (task.weights) {
+    try {
+      weights = joinTables(dump).joined?.queryWeight;
+    } catch (err) {
+      if (err instanceof InputError) return { kind: 'weights', why: err.expected };
+      throw err;
+    }
+  }
   const gaps = summariseRows(dump.label, dump.score, 0, n);
   const groups = groupByQuery(dump);
   const start = groups.start;
@@ -232,6 +248,7 @@ function scoreBlock(task: BlockTask, dump: RankedDump, lines: number): BlockResu
     scored: {
       names, start: scoredStart, end: scoredEnd, line: scoredLine, rows: scoredRows,
       perQuery: slicePerQuery(perQuery, from, to),
+      ...(weights ? { weight: weights.slice(from, to) } : {}),
       ...(recorded ? { sensitivity: { value: recorded.value.map((v) => v.slice(from, to)), entered: recorded.entered.map((e) => e.slice(from, to)) } } : {}),
     },
     tally,
@@ -268,7 +285,7 @@ export function blockTransferList(result: BlockResult): ArrayBuffer[] {
   if (result.kind !== 'rows') return [];
   const s = result.scored;
   const p = s.perQuery;
-  const views: ArrayBufferView[] = [s.start, s.end, s.line, s.rows, p.items, p.relevant, ...p.values, p.inversions, p.inversionCost, p.skipped,
+  const views: ArrayBufferView[] = [s.start, s.end, s.line, s.rows, ...(s.weight ? [s.weight] : []), p.items, p.relevant, ...p.values, p.inversions, p.inversionCost, p.skipped,
     ...(p.unretrieved ? [p.unretrieved] : []), ...(p.rbpResidual ? [p.rbpResidual] : []),
     ...(s.sensitivity ? [...s.sensitivity.value, ...s.sensitivity.entered] : [])];
   return views.map((v) => v.buffer as ArrayBuffer);

@@ -7,7 +7,6 @@
 import { promises as fsp } from 'node:fs';
 import { detectFormat } from '../readers/detect';
 import type { ReadOptions } from '../readers/readOptions';
-import { isWeightName } from '../tables/sideRoles';
 
 /** `auto`: stream a large plain CSV/TSV file; `stream`: stream whenever the format allows; `memory`: never. */
 export type ReadingMode = 'auto' | 'stream' | 'memory';
@@ -33,9 +32,4 @@ export async function chooseReading(path: string, options: ReadOptions, mode: Re
     if (size < STREAM_FROM_BYTES) return { stream: false, why: `smaller than ${STREAM_FROM_BYTES / (1 << 30)} GiB` };
   }
   return { stream: true, format: sniffed.format };
-}
-
-/** A weight column of the dump is joined per query from its rows in memory (tables/join.ts). */
-export function hasWeightColumn(names: readonly string[]): boolean {
-  return names.some((n) => isWeightName(n));
 }

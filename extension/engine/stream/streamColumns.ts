@@ -40,9 +40,12 @@ export class StreamColumns {
   private columns: PerQueryColumns;
   private sensitivity: { value: Float64Array[]; entered: Uint8Array[] } | undefined;
   private locations: { start: Float64Array; end: Float64Array; line: Uint32Array; rows: Uint32Array };
+  /** Query weights, when the dump has a weight column. */
+  private weight: Float64Array | undefined;
 
-  constructor(private readonly metricCount: number, hasRbp: boolean, variantCount: number | undefined) {
+  constructor(private readonly metricCount: number, hasRbp: boolean, variantCount: number | undefined, weighted = false) {
     const n = this.capacity;
+    if (weighted) this.weight = new Float64Array(n);
     this.columns = {
       items: new Uint32Array(n), relevant: new Uint32Array(n), unretrieved: new Uint32Array(n),
       values: Array.from({ length: metricCount }, () => new Float64Array(n)),
@@ -97,6 +100,7 @@ export class StreamColumns {
       this.sensitivity.value.forEach((v, i) => copy(v, scored.sensitivity!.value[i]!));
       this.sensitivity.entered.forEach((e, i) => copy(e, scored.sensitivity!.entered[i]!));
     }
+    if (this.weight && scored.weight) copy(this.weight, scored.weight);
     if (lineOffset === undefined) return;
     const l = this.locations;
     copy(l.start, scored.start);
@@ -118,7 +122,7 @@ export class StreamColumns {
   }
 
   /** The columns trimmed to the queries added (views; the builder is done with them). */
-  finish(): { perQuery: PerQueryColumns; sensitivity: SensitivityColumns | undefined; locations: QueryLocations } {
+  finish(): { perQuery: PerQueryColumns; sensitivity: SensitivityColumns | undefined; locations: QueryLocations; weight: Float64Array | undefined } {
     const n = this.count;
     const c = this.columns;
     const cut = <T extends Typed>(a: T): T => a.subarray(0, n) as T;
@@ -130,6 +134,7 @@ export class StreamColumns {
       },
       sensitivity: this.sensitivity && { value: this.sensitivity.value.map(cut), entered: this.sensitivity.entered.map(cut) },
       locations: { start: cut(this.locations.start), end: cut(this.locations.end), line: cut(this.locations.line), rows: cut(this.locations.rows) },
+      weight: this.weight && cut(this.weight),
     };
   }
 
@@ -143,6 +148,7 @@ export class StreamColumns {
     if (this.sensitivity) {
       this.sensitivity = { value: this.sensitivity.value.map((v) => grown(v, capacity)), entered: this.sensitivity.entered.map((e) => grown(e, capacity)) };
     }
+    if (this.weight) this.weight = grown(this.weight, capacity);
     const l = this.locations;
     this.locations = { start: grown(l.start, capacity), end: grown(l.end, capacity), line: grown(l.line, capacity), rows: grown(l.rows, capacity) };
     this.capacity = capacity;

@@ -25,6 +25,7 @@ import { availableParallelism } from 'node:os';
 import { CancelledError, InputError } from '../errors';
 import { emptyTally, finishEvaluation, newSensitivityPass, summarise, addTally, type RangeTally } from '../evaluate/evaluate';
 import { checkGainsAndGrades } from '../evaluate/gainLimits';
+import type { SensitivityColumns } from '../evaluate/sensitivity';
 import type { Evaluation, MetricSummary } from '../evaluate/types';
 import type { Conventions } from '../metrics/conventions';
 import { anyNeeds, type MetricSpec } from '../metrics/registry';
@@ -35,7 +36,7 @@ import type { ColumnRoles } from '../readers/roles';
 import { changedSince, checkUnchanged, fileChangedError, statStamp, throwIfCancelled } from '../readers/source';
 import type { BlockResult, BlockTask } from './block';
 import { startBlockRunner, type BlockRunner } from './blockRunner';
-import { hasWeightColumn } from './choose';
+import { isWeightName } from '../tables/sideRoles';
 import { blockBounds, readHeaderLine } from './fileBlocks';
 import { newSensitivityPassWith, scoredBlockSetup } from './setup';
 import { QueryReappeared, StreamColumns, type QueryLocations } from './streamColumns';
@@ -108,15 +109,15 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
   const delimiter = format === 'csv' ? 44 : 9;
   const header = await readHeaderLine(path, delimiter, options.columns);
   if (header === undefined) return { kind: 'fallback', reason: 'the header line holds a quote' };
-  if (hasWeightColumn(header.segmentNames)) return { kind: 'fallback', reason: 'the dump has a query weight column' };
+  const weightColumn = header.segmentNames.find(isWeightName);
   const bounds = await blockBounds(path, header.end, stamp.size, options.blockBytes ?? DEFAULT_BLOCK_BYTES);
   const sensitivity = options.sensitivity !== false;
   const spec = sensitivity ? newSensitivityPassWith(scoredBlockSetup(metrics, conventions, { rowsOfQuery: new Uint32Array(0), start: new Uint32Array(1) }, 0, 0, true), () => undefined) : undefined;
   const hasRbp = scoredBlockSetup(metrics, conventions, { rowsOfQuery: new Uint32Array(0), start: new Uint32Array(1) }, 0, 0, false).hasRbp;
-  const table = new StreamColumns(metrics.length, hasRbp, spec?.variantCount);
+  const table = new StreamColumns(metrics.length, hasRbp, spec?.variantCount, weightColumn !== undefined);
   const mapGain = conventions.gain.kind === 'map';
   const base = { path, format, delimiter, names: header.names, segmentCount: header.segmentNames.length, ...(options.columns ? { columns: options.columns } : {}), metrics, conventions, sensitivity,
-    distinctGrades: mapGain };
+    distinctGrades: mapGain, weights: weightColumn !== undefined };
   const threads = Math.max(1, Math.min(16, Math.floor(options.threads ?? Math.min(4, availableParallelism()))));
   const runner = startBlockRunner(threads, options.signal);
   const blocks = bounds.length - 1;
@@ -148,6 +149,7 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
       throwIfCancelled(options.signal);
       if (result.kind === 'quoted') return { kind: 'fallback', reason: 'a field is quoted (a quoted newline would make cutting the file at newlines unsafe)' };
       if (result.kind === 'ungrouped') return ungrouped(result.query, result.line + state.lineOffset);
+      if (result.kind === 'weights') return weightsRefused(result.why);
       if (result.kind === 'error') throw new InputError(result.expected, result.file, result.line === undefined ? undefined : result.line + state.lineOffset, result.found);
       if (result.kind === 'empty') {
         state.lineOffset += result.lines;
@@ -184,7 +186,7 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
       if (options.onPartial) {
         const view = table.finish();
         options.onPartial({ queries: table.size, rows: state.rows, bytesRead: bounds[k + 1]!, totalBytes: stamp.size,
-          summary: metrics.map((m, i) => summarise(m.key, view.perQuery.values[i]!)) });
+          summary: metrics.map((m, i) => summarise(m.key, view.perQuery.values[i]!, view.weight)) });
       }
     }
     closeOpen();
@@ -195,30 +197,40 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
     const problem = conventionProblem(metrics, conventions, range, state.largest, mapGain ? [...state.grades] : [range.lowest, range.highest]);
     if (problem !== undefined) return { kind: 'fallback', reason: `the conventions cannot score this data (${problem})` };
     const gmax = conventions.maxGrade ?? range.highest;
-    await settleQueries(runner, table, edges, scoredBlocks, taskFor, gmax, anyNeeds(metrics, 'maxGrade'), state.tally);
+    const refused = await settleQueries(runner, table, edges, scoredBlocks, taskFor, gmax, anyNeeds(metrics, 'maxGrade'), state.tally);
+    if (refused !== undefined) return weightsRefused(refused);
     await checkUnchanged(path, stamp);
     const notes = header.notes;
     notes.unjudgedRows = summary.unjudged;
     notes.missingScoreRows = summary.missing;
     notes.gradeRange = range;
     const view = table.finish();
-    const dump: StreamedDump = { path, format, stamp, rowCount: state.rows, queries: table.queries, notes, locations: view.locations };
+    // As the in-memory join gives it (tables/join.ts): the weight of each query from its rows.
+    const joined = view.weight && weightColumn !== undefined ? { notes: [], queryWeight: view.weight, weightSource: `column '${weightColumn}' of ${path}` } : undefined;
+    const dump: StreamedDump = { path, format, stamp, rowCount: state.rows, queries: table.queries, notes, locations: view.locations, ...(joined ? { joined } : {}) };
     const setup = scoredBlockSetup(metrics, conventions, { rowsOfQuery: new Uint32Array(0), start: new Uint32Array(table.size + 1) }, table.size, gmax,
       sensitivity, range, state.largest);
     const pass = sensitivity ? newSensitivityPass(setup) : undefined;
+    let recorded: SensitivityColumns | undefined;
     if (pass && spec && view.sensitivity) {
       // The blocks kept every gain; keep the columns of the variants the in-memory path would have.
       const specKeys = spec.variantKeys();
       const picked = pass.variantKeys().map((key) => specKeys.indexOf(key));
-      pass.sumColumns({ value: picked.map((i) => view.sensitivity!.value[i]!), entered: picked.map((i) => view.sensitivity!.entered[i]!) },
-        state.tally.sensitivityNoRelevant);
+      recorded = { value: picked.map((i) => view.sensitivity!.value[i]!), entered: picked.map((i) => view.sensitivity!.entered[i]!) };
+      pass.sumColumns(recorded, state.tally.sensitivityNoRelevant);
     }
     options.onProgress?.(1);
-    const evaluation = finishEvaluation(setup, { notes, queries: table.queries }, view.perQuery, state.tally, pass);
+    const evaluation = finishEvaluation(setup, { notes, queries: table.queries, ...(joined ? { joined } : {}) }, view.perQuery, state.tally, pass, recorded);
     return { kind: 'streamed', dump, evaluation, threads: runner.lanes, blocks };
   } finally {
     runner.stop();
   }
+}
+
+/** The join's message counts lines from the block's start, so the reason leaves the row to the in-memory path. */
+function weightsRefused(why: string): StreamOutcome {
+  const what = why.startsWith('one ') ? 'the rows of a query disagree on its weight' : 'a weight is not a number of 0 or more';
+  return { kind: 'fallback', reason: `${what} (reading in memory names the row)` };
 }
 
 function ungrouped(query: string, line: number): StreamOutcome {
@@ -231,12 +243,17 @@ function ungrouped(query: string, line: number): StreamOutcome {
  */
 async function settleQueries(runner: BlockRunner, table: StreamColumns, edges: readonly OpenEdge[],
   scoredBlocks: readonly { index: number; firstId: number; count: number; gmax: number }[],
-  taskFor: (k: number, extra: Partial<BlockTask>) => BlockTask, gmax: number, needsGmax: boolean, tally: RangeTally): Promise<void> {
+  taskFor: (k: number, extra: Partial<BlockTask>) => BlockTask, gmax: number, needsGmax: boolean, tally: RangeTally): Promise<string | undefined> {
   const jobs: Promise<void>[] = [];
+  let refused: string | undefined;
   for (const edge of edges) {
     table.place(edge.id, edge.start, edge.end, edge.rows);
     const task = { ...taskFor(0, {}), start: edge.start, end: edge.end, whole: true, gmax, distinctGrades: false };
     jobs.push(runner.run(task).then((result) => {
+      if (result.kind === 'weights') {
+        refused ??= result.why;
+        return;
+      }
       if (result.kind !== 'rows' || result.runs !== 1) throw new Error(`query '${edge.query}' read again gave ${result.kind === 'rows' ? `${result.runs} runs` : result.kind}`);
       table.put(result.scored, 0, 1, edge.id, undefined);
       addTally(tally, result.tally);
@@ -251,6 +268,7 @@ async function settleQueries(runner: BlockRunner, table: StreamColumns, edges: r
   }
   for (const job of jobs) job.catch(() => undefined);
   await Promise.all(jobs);
+  return refused;
 }
 
 /**
