@@ -238,3 +238,15 @@ async function edgeQueries(file: string, locations: { start: Float64Array; end: 
   }
   return edges;
 }
+
+describe('choosing the reading', () => {
+  it('auto reads a file below 1 GiB in memory, and memory never streams', async () => {
+    const file = tmp.file('choice.tsv', groupedDump(23, { queries: 10, maxRows: 5 }));
+    const auto = await streamOrRead(file, {}, METRICS, DEFAULT_CONVENTIONS, { reading: 'auto' });
+    expect(auto.kind === 'read' && [auto.why, auto.tried]).toEqual(['smaller than 1 GiB', false]);
+    const memory = await streamOrRead(file, {}, METRICS, DEFAULT_CONVENTIONS, { reading: 'memory' });
+    expect(memory.kind === 'read' && memory.why).toBe('asked for');
+    const streamed = await streamOrRead(file, {}, METRICS, DEFAULT_CONVENTIONS, { reading: 'stream' });
+    expect(streamed.kind).toBe('streamed');
+  });
+});
