@@ -14,7 +14,10 @@ import { parseMetricList } from '../../extension/engine/metrics/parse';
 import type { StringPool } from '../../extension/engine/model/stringPool';
 import { formatReport } from '../../extension/engine/report/index';
 import { blockBounds } from '../../extension/engine/stream/fileBlocks';
+import { readQueryRows, streamedQueryDetail } from '../../extension/engine/stream/queryDetail';
 import { streamEvaluate } from '../../extension/engine/stream/streamEvaluate';
+import { queryDetail } from '../../extension/engine/evaluate/detail';
+import { gradeRange } from '../../extension/engine/evaluate/evaluate';
 import { joinTables } from '../../extension/engine/tables/join';
 import { TempDir } from './fixtures/readers/tempFiles';
 import { groupedDump, type GroupedShape } from './fixtures/streamFiles';
@@ -248,5 +251,23 @@ describe('choosing the reading', () => {
     expect(memory.kind === 'read' && memory.why).toBe('asked for');
     const streamed = await streamOrRead(file, {}, METRICS, DEFAULT_CONVENTIONS, { reading: 'stream' });
     expect(streamed.kind).toBe('streamed');
+  });
+});
+
+describe('a query in detail from its byte range', () => {
+  it('gives the in-memory detail of every query, rows numbered as in the whole file', async () => {
+    const file = tmp.file('detail.tsv', groupedDump(29, { queries: 40, maxRows: 12, scoreLevels: 3, duplicateShare: 0.1, badScoreShare: 0.05, ragged: true }));
+    const dump = await readDump(file);
+    const s = await streamEvaluate(file, 'tsv', METRICS, DEFAULT_CONVENTIONS, { blockBytes: 500 });
+    if (s.kind !== 'streamed') throw new Error('fell back');
+    const range = gradeRange(dump);
+    for (let q = 0; q < dump.queries.size; q++) {
+      const memory = queryDetail(dump, q, DEFAULT_CONVENTIONS, 10, { metrics: METRICS, gradeRange: range });
+      expect(await streamedQueryDetail(s.dump, q, DEFAULT_CONVENTIONS, 10, { metrics: METRICS })).toEqual(memory);
+      const rows = await readQueryRows(s.dump, q);
+      const first = memory.positions.length > 0 ? Math.min(...memory.positions.map((p) => p.row)) : 0;
+      expect(Array.from(rows.line)).toEqual(Array.from(dump.line.subarray(first, first + rows.rowCount)));
+      expect(Array.from(rows.offset)).toEqual(Array.from(dump.offset.subarray(first, first + rows.rowCount)));
+    }
   });
 });

@@ -76,8 +76,11 @@ export interface StreamedDump {
   readonly queries: StringPool;
   readonly notes: ReaderNotes;
   readonly joined?: RankedDump['joined'];
-  /** Where each query's rows are, to read one query again for its detail. */
+  /** Where each query's rows are, to read one query again for its detail (queryDetail.ts). */
   readonly locations: QueryLocations;
+  /** The header's column names, to read a query's rows again. */
+  readonly names: readonly string[];
+  readonly columns?: ColumnRoles;
 }
 
 export type StreamOutcome =
@@ -112,9 +115,10 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
   const weightColumn = header.segmentNames.find(isWeightName);
   const bounds = await blockBounds(path, header.end, stamp.size, options.blockBytes ?? DEFAULT_BLOCK_BYTES);
   const sensitivity = options.sensitivity !== false;
-  const spec = sensitivity ? newSensitivityPassWith(scoredBlockSetup(metrics, conventions, { rowsOfQuery: new Uint32Array(0), start: new Uint32Array(1) }, 0, 0, true), () => undefined) : undefined;
-  const hasRbp = scoredBlockSetup(metrics, conventions, { rowsOfQuery: new Uint32Array(0), start: new Uint32Array(1) }, 0, 0, false).hasRbp;
-  const table = new StreamColumns(metrics.length, hasRbp, spec?.variantCount, weightColumn !== undefined);
+  const blank = scoredBlockSetup(metrics, conventions, { rowsOfQuery: new Uint32Array(0), start: new Uint32Array(1) }, 0, 0, sensitivity);
+  // The pass the blocks record with (every gain kept), to match its columns with the final pass's.
+  const spec = sensitivity ? newSensitivityPassWith(blank, () => undefined) : undefined;
+  const table = new StreamColumns(metrics.length, blank.hasRbp, spec?.variantCount, weightColumn !== undefined);
   const mapGain = conventions.gain.kind === 'map';
   const base = { path, format, delimiter, names: header.names, segmentCount: header.segmentNames.length, ...(options.columns ? { columns: options.columns } : {}), metrics, conventions, sensitivity,
     distinctGrades: mapGain, weights: weightColumn !== undefined };
@@ -207,7 +211,8 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
     const view = table.finish();
     // As the in-memory join gives it (tables/join.ts): the weight of each query from its rows.
     const joined = view.weight && weightColumn !== undefined ? { notes: [], queryWeight: view.weight, weightSource: `column '${weightColumn}' of ${path}` } : undefined;
-    const dump: StreamedDump = { path, format, stamp, rowCount: state.rows, queries: table.queries, notes, locations: view.locations, ...(joined ? { joined } : {}) };
+    const dump: StreamedDump = { path, format, stamp, rowCount: state.rows, queries: table.queries, notes, locations: view.locations,
+      names: header.names, ...(options.columns ? { columns: options.columns } : {}), ...(joined ? { joined } : {}) };
     const setup = scoredBlockSetup(metrics, conventions, { rowsOfQuery: new Uint32Array(0), start: new Uint32Array(table.size + 1) }, table.size, gmax,
       sensitivity, range, state.largest);
     const pass = sensitivity ? newSensitivityPass(setup) : undefined;
