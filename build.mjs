@@ -18,6 +18,8 @@ const entries = [
   { ...common, entryPoints: ['extension/engine/threads/parseWorker.ts'], outfile: 'dist/parseWorker.js', platform: 'node', format: 'cjs' },
   // Checkpoint worker: `gainline trend` scores every other checkpoint of a series on it.
   { ...common, entryPoints: ['extension/worker/checkpointWorker.ts'], outfile: 'dist/checkpointWorker.js', platform: 'node', format: 'cjs' },
+  // Stream worker: reads and scores one block of a dump grouped by query (engine/stream/).
+  { ...common, entryPoints: ['extension/engine/stream/streamWorker.ts'], outfile: 'dist/streamWorker.js', platform: 'node', format: 'cjs' },
   // Score worker: one range of queries of a large dump per thread, written into shared columns.
   { ...common, entryPoints: ['extension/engine/threads/scoreWorker.ts'], outfile: 'dist/scoreWorker.js', platform: 'node', format: 'cjs' },
 ];

@@ -4,7 +4,8 @@
 import { stat } from 'node:fs/promises';
 import { resolve } from 'node:path';
 import { InputError } from '../engine/errors';
-import { evaluateDump, readDump } from '../engine/index';
+import { evaluateDump, READING_MODES, streamOrRead, type ReadingMode, type StreamPartial } from '../engine/index';
+import { partialHeadlineText, type PartialHeadline } from '../presentation/partialText';
 import { formatReport, formatReportPieces, REPORT_FORMATS, type ReportFormat } from '../engine/report/index';
 import { collectQueryRecords } from '../engine/report/jsonRecords';
 import { queryFacts } from '../engine/tables/queryFacts';
@@ -33,6 +34,9 @@ Output:
   --diagnostics         instead of the report: the score distribution per grade (do the grades separate?)
                         and each position's share of the ideal DCG, model against ideal (table or json)
   --timings             print how long reading, scoring and writing the report took (standard error)
+  --reading R           auto (default) | stream | memory: stream scores a CSV/TSV file whose rows are
+                        grouped by query block by block without keeping its rows (auto: from 1 GiB);
+                        a file that turns out not grouped, or quoted, is read into memory instead
 Where the numbers are computed:
   --engine E            local (default) | duckdb: DuckDB embedded computes the per-query table from a
                         CSV, TSV or Parquet file, or a folder of Parquet parts, in place (needs the npm
@@ -56,6 +60,7 @@ const evalOptions = {
   segment: { type: 'string' },
   diagnostics: { type: 'boolean' },
   timings: { type: 'boolean' },
+  reading: { type: 'string' },
   engine: { type: 'string' },
   'memory-limit': { type: 'string' },
   'order-column': { type: 'string' },
@@ -92,6 +97,8 @@ export async function runEval(argv: string[], io: CliIO): Promise<number> {
   if (views.length > 0 && format !== 'table' && format !== 'json') {
     throw new InputError(`table or json with ${views[0]}`, '--format', undefined, format);
   }
+  const reading = (values.reading ?? 'auto') as ReadingMode;
+  if (!READING_MODES.includes(reading)) throw new InputError(`one of ${READING_MODES.join(', ')}`, '--reading', undefined, values.reading);
   const engine = chooseEngine(source, values);
   const local = [setup.tables.queries !== undefined && '--queries', setup.tables.items !== undefined && '--items', values.sort !== undefined && '--sort', ...views]
     .filter(Boolean);
@@ -112,7 +119,7 @@ export async function runEval(argv: string[], io: CliIO): Promise<number> {
   }
   const spooled = source === STDIN_NAME ? await spoolStdin(io) : undefined;
   try {
-    return await evalFile(spooled?.path ?? resolve(io.cwd, source), source, format, worst, setup, values, io);
+    return await evalFile(spooled?.path ?? resolve(io.cwd, source), source, format, worst, setup, { ...values, reading }, io);
   } catch (e) {
     throw spooled ? renameInputError(e, spooled) : e;
   } finally {
@@ -121,13 +128,40 @@ export async function runEval(argv: string[], io: CliIO): Promise<number> {
 }
 
 async function evalFile(path: string, source: string, format: ReportFormat, worst: number, setup: ScoringSetup,
-  values: { sort?: string | undefined; query?: string | undefined; segment?: string | undefined; diagnostics?: boolean | undefined; timings?: boolean | undefined },
+  values: { sort?: string | undefined; query?: string | undefined; segment?: string | undefined; diagnostics?: boolean | undefined; timings?: boolean | undefined;
+    reading: ReadingMode },
   io: CliIO): Promise<number> {
   const size = (await stat(path)).size;
   const progress = io.isTTY && size >= PROGRESS_FROM_BYTES ? progressLine(io, source) : undefined;
   const started = performance.now();
+  const s = (ms: number) => (ms / 1000).toFixed(3);
+  // CSV and Markdown do not show the sensitivity rows; skipping them saves a third of the scoring time.
+  const sensitivity = format === 'table' || format === 'json';
   try {
-    const dump = await withSideTables(await readDump(path, { ...setup.read, onProgress: progress?.reading }), setup.tables);
+    // The views that read rows, and side tables, need the dump in memory; the report needs only the per-query table.
+    const rowsNeeded = values.query !== undefined || values.diagnostics || values.segment !== undefined
+      || setup.tables.queries !== undefined || setup.tables.items !== undefined;
+    const outcome = await streamOrRead(path, { ...setup.read, onProgress: progress?.reading }, setup.metrics, setup.conventions,
+      { reading: rowsNeeded ? 'memory' : values.reading, sensitivity,
+        ...(progress ? { onPartial: (p: StreamPartial) => progress.partial(p.bytesRead / p.totalBytes, partialHeadlineText(headlineOf(p))) } : {}) });
+    if (outcome.kind === 'streamed') {
+      const scored = performance.now();
+      progress?.done();
+      const { evaluation, dump } = outcome;
+      const worstOrderBy = values.sort === undefined ? undefined : worstOrder(evaluation, values.sort);
+      io.out(formatReport(format, { evaluation, queryNames: dump.queries, source, rowCount: dump.rowCount },
+        { worst, ...(worstOrderBy ? { worstOrder: worstOrderBy } : {}) }));
+      if (values.timings) {
+        io.err(`timings: streamed read and score ${s(scored - started)} s, report ${s(performance.now() - scored)} s (${dump.rowCount} rows; ` +
+          `${outcome.blocks} blocks on ${outcome.threads} threads)\n`);
+      }
+      return 0;
+    }
+    // A large file that was meant to stream says why it did not; asking for a stream or for timings always says.
+    if ((outcome.tried && values.reading === 'auto') || (values.timings && (outcome.tried || values.reading === 'stream'))) {
+      io.err(`reading: in memory, since ${outcome.why}\n`);
+    }
+    const dump = await withSideTables(outcome.dump, setup.tables);
     const read = performance.now();
     if (values.query !== undefined) {
       const detail = detailOf(dump, findQuery(dump, values.query), setup.metrics, setup.conventions);
@@ -139,8 +173,6 @@ async function evalFile(path: string, source: string, format: ReportFormat, wors
       return 0;
     }
     const facts = queryFacts(dump);
-    // CSV and Markdown do not show the sensitivity rows; skipping them saves a third of the scoring time.
-    const sensitivity = format === 'table' || format === 'json';
     // The JSON report's records are rendered by the scoring threads, chunk by chunk (see report/jsonRecords.ts);
     // with a queries table joined they carry query facts and are rendered with the report.
     const records = format === 'json' && facts === undefined ? collectQueryRecords(setup.metrics, dump.queries, dump.notes.judgments !== undefined) : undefined;
@@ -161,13 +193,18 @@ async function evalFile(path: string, source: string, format: ReportFormat, wors
       ...(records ? { queryRecords: records.pieces() } : {}) };
     for (const piece of formatReportPieces(format, input, { worst, ...(worstOrderBy ? { worstOrder: worstOrderBy } : {}) })) io.out(piece);
     if (values.timings) {
-      const s = (ms: number) => (ms / 1000).toFixed(3);
       io.err(`timings: read ${s(read - started)} s, score ${s(scored - read)} s, report ${s(performance.now() - scored)} s (${dump.rowCount} rows)\n`);
     }
   } finally {
     progress?.done();
   }
   return 0;
+}
+
+/** The first metric's mean so far, for the progress line while a dump streams in. */
+function headlineOf(p: StreamPartial): PartialHeadline {
+  const first = p.summary[0];
+  return { key: first?.key ?? '', mean: first?.mean ?? NaN, queries: p.queries, rows: p.rows, bytesRead: p.bytesRead, totalBytes: p.totalBytes };
 }
 
 /** Wrong command-line usage: reported on one line with a pointer to help, exit 2. */

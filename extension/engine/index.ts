@@ -15,6 +15,8 @@ import type { Conventions } from './metrics/conventions';
 import type { MetricSpec } from './metrics/registry';
 import type { RankedDump } from './model/dump';
 import { readDump as readDumpFile, type ReadOptions } from './readers/index';
+import { chooseReading, type ReadingMode } from './stream/choose';
+import { streamEvaluate, type StreamedDump, type StreamEvaluateOptions } from './stream/streamEvaluate';
 
 export { configureEngine, DEFAULT_TUNING, type EngineConfiguration, type EngineSettings, type EngineTuning } from './config';
 export type { ChunkOutput } from './evaluate/chunkOutput';
@@ -22,6 +24,8 @@ export type { BaselineMemo, CompareOptions, Comparison } from './compare/compare
 export { combineCandidates } from './compare/candidates';
 export type { Evaluation } from './evaluate/types';
 export type { RankedDump, ReadOptions } from './readers/index';
+export { READING_MODES, type ReadingMode } from './stream/choose';
+export type { StreamedDump, StreamPartial } from './stream/streamEvaluate';
 
 /**
  * Cores other programs kept busy while each dump was read: the read takes a second or more on the
@@ -45,6 +49,37 @@ export function evaluateDump(dump: RankedDump, metrics: readonly MetricSpec[], c
   options: EvaluateDumpOptions = {}): Promise<Evaluation> {
   const busy = busyDuringRead.get(readKey(dump));
   return evaluateInParallel(dump, metrics, conventions, { ...options, ...(busy !== undefined ? { otherBusyCores: busy } : {}) });
+}
+
+/**
+ * A dump scored as it streamed in (no rows kept), or the dump read into memory for the caller to score
+ * with evaluateDump as usual; `why` says why it was not streamed.
+ */
+export type StreamOrRead =
+  | { readonly kind: 'streamed'; readonly dump: StreamedDump; readonly evaluation: Evaluation; readonly threads: number; readonly blocks: number }
+  | { readonly kind: 'read'; readonly dump: RankedDump; readonly why: string; readonly tried: boolean };
+
+export interface StreamOrReadOptions extends Pick<StreamEvaluateOptions, 'sensitivity' | 'onPartial' | 'onProgress' | 'signal' | 'blockBytes'> {
+  readonly reading?: ReadingMode;
+}
+
+/**
+ * Streams a dump grouped by query when the reading mode, its format and size allow (stream/choose.ts),
+ * else reads it. A stream that finds the file unfit (not grouped, quoted fields, data the conventions
+ * cannot score) gives way to reading it in memory, which gives the same numbers, or the same error.
+ */
+export async function streamOrRead(path: string, read: ReadOptions, metrics: readonly MetricSpec[], conventions: Conventions,
+  options: StreamOrReadOptions = {}): Promise<StreamOrRead> {
+  const choice = await chooseReading(path, read, options.reading ?? 'auto');
+  if (choice.stream) {
+    const outcome = await streamEvaluate(path, choice.format, metrics, conventions, {
+      ...options, ...(read.columns ? { columns: read.columns } : {}), ...(read.threads !== undefined ? { threads: read.threads } : {}),
+      ...(read.signal ? { signal: read.signal } : {}),
+    });
+    if (outcome.kind === 'streamed') return outcome;
+    return { kind: 'read', dump: await readDump(path, read), why: outcome.reason, tried: true };
+  }
+  return { kind: 'read', dump: await readDump(path, read), why: choice.why, tried: false };
 }
 
 /** Scores both runs (each as evaluateDump would) and pairs them query by query. */

@@ -288,8 +288,11 @@ export function undefinedValueNotes(metrics: readonly MetricSpec[], perQuery: Pe
   return notes;
 }
 
+/** What finishing an evaluation reads of the dump: no row columns (a streamed dump has none). */
+export type EvaluatedDump = Pick<RankedDump, 'notes' | 'joined' | 'queries'>;
+
 /** Means, warnings and sensitivity rows from filled per-query columns and the summed tallies. */
-export function finishEvaluation(setup: EvaluationSetup, dump: RankedDump, perQuery: PerQueryColumns, tally: RangeTally,
+export function finishEvaluation(setup: EvaluationSetup, dump: EvaluatedDump, perQuery: PerQueryColumns, tally: RangeTally,
   sensitivity: SensitivityPass | undefined, recorded?: SensitivityColumns): Evaluation {
   const { metrics, conventions, queryCount } = setup;
   const weights = dump.joined?.queryWeight;
@@ -364,7 +367,7 @@ function weightedSummary(key: string, column: Float64Array, weights: Float64Arra
 }
 
 /** What weighting did, in plain sentences (queries without a weight are out of every weighted mean). */
-function weightNotes(dump: RankedDump, weights: Float64Array): string[] {
+function weightNotes(dump: EvaluatedDump, weights: Float64Array): string[] {
   let unknown = 0;
   const examples: string[] = [];
   for (let q = 0; q < weights.length; q++) {

@@ -85,6 +85,11 @@ export class SensitivityPass {
     return this.variants.length;
   }
 
+  /** Each variant's gain and ties in the pass's order, to match the recorded columns of two passes built differently. */
+  variantKeys(): string[] {
+    return this.variants.map((v) => `${formatGain(v.gain)}|${v.ties}`);
+  }
+
   /** Keeps every later query's variant values in `columns` (indexed by the `query` passed to add). */
   recordInto(columns: SensitivityColumns): void {
     this.record = columns;

@@ -9,7 +9,7 @@ import type { DegenerateCounts } from './types';
 
 export interface WarningInput {
   /** For the judgments notes; callers without a dump in memory (the SQL engines) leave it out. */
-  readonly dump?: RankedDump;
+  readonly dump?: Pick<RankedDump, 'notes' | 'joined'>;
   readonly conventions: Conventions;
   readonly metrics: readonly MetricSpec[];
   readonly queryCount: number;
@@ -41,7 +41,7 @@ function rows(n: number, one: string, many: string): string {
  * count in the ideal ranking and the judged-set denominators), judged queries the run lacks, disagreements
  * with labels in the dump.
  */
-export function describeJudgments(dump: RankedDump): string[] {
+export function describeJudgments(dump: Pick<RankedDump, 'notes'>): string[] {
   const j = dump.notes.judgments;
   if (j === undefined) return [];
   const out = [

@@ -1,0 +1,63 @@
+/**
+ * `gainline eval --reading stream` against `--reading memory` through the built command line (the
+ * stream worker threads and the compiled record kernel of dist/): the same report, byte for byte, in
+ * every format, on the demo runs and on seeded files grouped by query; and what it says when it reads
+ * in memory instead.
+ */
+import { describe, expect, it } from 'vitest';
+import { groupedDump } from '../engine/fixtures/streamFiles';
+import { fixtureDir, REPO, runCli } from './support/runCli';
+
+function both(args: string[], cwd: string) {
+  const memory = runCli(['eval', ...args, '--reading', 'memory'], cwd);
+  const streamed = runCli(['eval', ...args, '--reading', 'stream', '--timings'], cwd);
+  expect(memory.code).toBe(0);
+  expect(streamed.code).toBe(0);
+  return { memory, streamed };
+}
+
+describe('eval --reading stream', () => {
+  const demoCases = ['demo/runs/model-a.csv', 'demo/runs/model-b.csv'].flatMap((run) =>
+    [['--format', 'json'], ['--format', 'table'], ['--format', 'csv'], ['--format', 'markdown'], ['--sort', 'inversion-cost', '--worst', '30'],
+      ['--metrics', 'err@10,ndcg@5,tau', '--ties', 'pessimistic', '--no-relevant', 'zero']].map((extra) => [run, ...extra]));
+  it.each(demoCases)('prints the in-memory report byte for byte: %s %s %s', (...args: string[]) => {
+    const { memory, streamed } = both(args, REPO);
+    expect(streamed.stderr).toMatch(/^timings: streamed read and score/);
+    expect(streamed.stdout).toBe(memory.stdout);
+  });
+
+  it('prints the in-memory report on seeded TSV files with ties, repeated items, non-finite scores and query weights', () => {
+    const dir = fixtureDir({
+      'ties.tsv': groupedDump(31, { queries: 300, maxRows: 20, scoreLevels: 3, duplicateShare: 0.05, noRelevantShare: 0.1, badScoreShare: 0.05, segments: true }),
+      'late.tsv': groupedDump(32, { queries: 300, maxRows: 20, topGrade: 7, lateTopGrade: true, unjudgedShare: 0.05 }),
+      'weighted.tsv': groupedDump(33, { queries: 300, maxRows: 20, weights: true, scoreLevels: 5 }),
+    });
+    for (const file of ['ties.tsv', 'late.tsv', 'weighted.tsv']) {
+      const { memory, streamed } = both([file, '--format', 'json', '--metrics', 'ndcg@10,err@10,ap,rbp,tau'], dir);
+      expect(streamed.stdout).toBe(memory.stdout);
+    }
+  });
+
+  it('says why it read in memory: a file not grouped by query, a gzip file, a judgments file', () => {
+    const dir = fixtureDir({
+      'mixed.tsv': 'query\titem\tgrade\tscore\npaint roller\ta\t1\t0.5\nled bulb e27\tb\t0\t0.2\npaint roller\tc\t2\t0.1\n',
+    });
+    const r = runCli(['eval', 'mixed.tsv', '--reading', 'stream', '--format', 'json'], dir);
+    expect(r.code).toBe(0);
+    expect(r.stderr).toBe('');
+    const timed = runCli(['eval', 'mixed.tsv', '--reading', 'stream', '--timings'], dir);
+    expect(timed.stderr.split('\n')[0]).toBe("reading: in memory, since the rows are not grouped by query: query 'paint roller' appears again at line 4 after its rows ended");
+    // Read in memory, the query is one query with its two rows, as always.
+    expect(JSON.parse(r.stdout).queries.find((q: { query: string }) => q.query === 'paint roller').items).toBe(2);
+    const gz = runCli(['eval', 'demo/runs/model-a.jsonl.gz', '--reading', 'stream', '--timings'], REPO);
+    expect(gz.stderr.split('\n')[0]).toBe('reading: in memory, since only CSV and TSV stream (this is jsonl)');
+    const judged = runCli(['eval', 'demo/runs/model-a.run', '--judgments', 'demo/judgments/grades.qrels', '--reading', 'stream', '--timings'], REPO);
+    expect(judged.stderr.split('\n')[0]).toBe('reading: in memory, since labels are joined from a judgments file');
+  });
+
+  it('refuses an unknown reading mode in one line', () => {
+    const r = runCli(['eval', 'demo/runs/model-a.csv', '--reading', 'sideways'], REPO);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toBe("--reading: expected one of auto, stream, memory (found \"sideways\")\n");
+  });
+});
