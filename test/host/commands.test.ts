@@ -25,6 +25,8 @@ function setup() {
     showSummary: () => undefined,
     goToQuery: async () => undefined,
     clearRecentComparisons: async () => undefined,
+    runs: { series: async () => [] } as never,
+    openSeries: () => undefined,
   });
   const run = (id: string, ...args: unknown[]) => shared.state.commands.get(id)!(...args);
   return { compared, run, counts: () => ({ refreshed, invalidated }) };

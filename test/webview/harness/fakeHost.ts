@@ -17,6 +17,7 @@ import type {
 } from '../../../extension/protocol/messages';
 import { RequestServer, type RequestHandlers } from '../../../extension/protocol/request';
 import { seededRandom } from '../../reference/random';
+import { fakeSeries, seriesHandlers } from './fakeSeries';
 
 interface FakeQuery {
   id: string;
@@ -86,7 +87,7 @@ const FULL_METRICS: readonly { key: string; label: string; of: (ndcg: number) =>
 ];
 
 export interface FakeHostOptions {
-  readonly mode: 'single' | 'compare';
+  readonly mode: 'single' | 'compare' | 'series';
   readonly queries: number;
   /** When set, the first state is an error with this message. */
   readonly error?: string;
@@ -98,7 +99,7 @@ export interface FakeHostOptions {
   readonly allMetrics?: boolean;
 }
 
-export function startFakeHost(options: FakeHostOptions): { send(message: HostToView): void; calls: { method: string; params: unknown }[]; queries: FakeQuery[]; overview: OverviewModel } {
+export function startFakeHost(options: FakeHostOptions): { send(message: HostToView): void; calls: { method: string; params: unknown }[]; queries: FakeQuery[]; overview: OverviewModel; growSeries(): void } {
   const queries = makeQueries(options.queries, 1, options.bigItems ?? 0);
   const byId = new Map(queries.map((q) => [q.id, q]));
   const calls: { method: string; params: unknown }[] = [];
@@ -238,6 +239,7 @@ export function startFakeHost(options: FakeHostOptions): { send(message: HostToV
     loadMs: 77,
   };
 
+  let series = fakeSeries(4);
   const handlers: RequestHandlers<ViewRequests> = {
     queryPage: (p) => {
       const rows = list(p.sort?.key ?? 'ndcg@10', p.sort?.descending ?? false, p.filter, p.segment?.value);
@@ -296,6 +298,7 @@ export function startFakeHost(options: FakeHostOptions): { send(message: HostToV
         positions,
       };
     },
+    ...seriesHandlers(() => series),
     compareSegments: (p) => ({ column: p.column, metric: 'ndcg@10', rows: LOCALES.map((value) => ({ value, queries: 10, skipped: 0, meanA: 0.6, meanB: 0.61, delta: 0.01, wins: 5, ties: 2, losses: 3, intervalLow: -0.02, intervalHigh: 0.04, tTestP: 0.41, randomizationP: 0.43 })) }),
   };
 
@@ -320,7 +323,9 @@ export function startFakeHost(options: FakeHostOptions): { send(message: HostToV
     ? { status: 'error', message: options.error }
     : options.mode === 'compare'
       ? { status: 'loaded', mode: 'compare', compare }
-      : { status: 'loaded', mode: 'single', overview };
+      : options.mode === 'series'
+        ? { status: 'loaded', mode: 'series', series }
+        : { status: 'loaded', mode: 'single', overview };
   (window as unknown as { acquireVsCodeApi: () => unknown }).acquireVsCodeApi = () => ({
     postMessage: (message: { kind: string }) => {
       const copy = JSON.parse(JSON.stringify(message));
@@ -331,5 +336,10 @@ export function startFakeHost(options: FakeHostOptions): { send(message: HostToV
     getState: () => state,
     setState: (s: unknown) => (state = s),
   });
-  return { send: toView, calls, queries, overview };
+  /** The training job writes its next checkpoint: the host reads it and sends the grown series. */
+  const growSeries = (): void => {
+    series = fakeSeries(series.checkpoints.length + 1);
+    toView({ kind: 'state', state: { status: 'reloaded', mode: 'series', series } });
+  };
+  return { send: toView, calls, queries, overview, growSeries };
 }
