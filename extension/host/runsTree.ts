@@ -8,6 +8,7 @@ import * as path from 'node:path';
 import * as vscode from 'vscode';
 import type { GainlineConfig } from './config';
 import { VIEW_TYPE } from './panels';
+import { DUMP_WATCH_GLOB } from './rankedListsTree';
 import { folderOf, groupSeries, type SeriesGroup } from './seriesGroups';
 import { RELOAD_DEBOUNCE_MS } from './viewSession';
 
@@ -44,7 +45,7 @@ export class RunsTree implements vscode.TreeDataProvider<Node>, vscode.Disposabl
     private readonly listDumps: () => Promise<vscode.Uri[]>,
     private readonly getConfig: () => GainlineConfig,
   ) {
-    const watcher = vscode.workspace.createFileSystemWatcher('**/*.{csv,tsv,jsonl,parquet,run,gz}');
+    const watcher = vscode.workspace.createFileSystemWatcher(DUMP_WATCH_GLOB);
     let timer: ReturnType<typeof setTimeout> | undefined;
     const onFile = (): void => {
       if (timer) clearTimeout(timer);
