@@ -33,6 +33,16 @@ function readOptionsOf(source: DumpSource): Omit<ReadOptions, 'signal' | 'onProg
   };
 }
 
+/** The order rule's errors name the command line's option; in the editor the setting does that job. */
+function inEditorTerms<T>(run: () => T): T {
+  try {
+    return run();
+  } catch (error) {
+    if (error instanceof InputError) throw new InputError(error.expected.replace('--order time', 'the setting gainline.series.order set to "time"'), error.file, error.line, error.found);
+    throw error;
+  }
+}
+
 function messageOf(error: unknown): string {
   return (error instanceof Error ? error.message : String(error)).split('\n')[0]!;
 }
@@ -59,7 +69,7 @@ export class SeriesStore {
         unread.push({ run: f.name, path: f.source.path, message: messageOf(error) });
       }
     }
-    const ordered = orderSeries(present, params.order);
+    const ordered = inEditorTerms(() => orderSeries(present, params.order));
     const byPath = new Map(present.map((p) => [p.path, p]));
     const metrics = parseMetricList(params.settings.metrics);
     const builder = new TrendBuilder(metrics, { bootstrap: params.bootstrap, seed: params.seed, top: params.top });
