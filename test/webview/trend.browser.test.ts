@@ -61,6 +61,9 @@ describe('trend screen', () => {
   it('opens a checkpoint, compares two, and shows a query’s trajectory', async () => {
     const { page } = await open();
     await page.click('#gl-trend-table tbody tr[data-checkpoint="epoch-2.csv"] button');
+    // On the chart: a click picks the checkpoint nearest along x (index mode); inside the plot near its right edge, the last one.
+    const box = (await page.locator('.gl-trend-metric[data-metric="ndcg@10"] canvas').boundingBox())!;
+    await page.mouse.click(box.x + box.width * 0.88, box.y + box.height * 0.5);
     await page.selectOption('#gl-trend-base', '/demo/training/run-7/epoch-5.csv');
     await page.click('#gl-trend-compare-button');
     await page.click('#gl-trend-peak-to-last tbody button');
@@ -71,6 +74,7 @@ describe('trend screen', () => {
     const asked = (await calls(page)).filter((c) => c.method !== 'selection');
     expect(asked).toEqual([
       { method: 'openCheckpoint', params: { path: '/demo/training/run-7/epoch-2.csv' } },
+      { method: 'openCheckpoint', params: { path: '/demo/training/run-7/epoch-10.csv' } },
       { method: 'compareCheckpoints', params: { base: '/demo/training/run-7/epoch-5.csv', other: '/demo/training/run-7/epoch-10.csv' } },
       { method: 'seriesTrajectory', params: { query: 'wood screws 4x40' } },
     ]);
