@@ -55,6 +55,12 @@ interface Kept {
 export class SeriesStore {
   /** By file path: what was scored and under which key. */
   private readonly kept = new Map<string, Kept>();
+  /**
+   * One string per query name across the kept checkpoints: each checkpoint's read makes its own copies,
+   * and 50 checkpoints of 100k queries would otherwise keep 5M strings instead of 100k.
+   */
+  private readonly names = new Map<string, string>();
+  private readonly sharedAlready = new WeakSet<ScoredCheckpoint>();
   private trend: Trend | undefined;
 
   async load(params: LoadSeriesParams, signal?: AbortSignal): Promise<SeriesOverviewModel> {
@@ -98,7 +104,7 @@ export class SeriesStore {
       for (let i = 0; i < ordered.length; i++) {
         const checkpoint = ordered[i]!;
         try {
-          const result = await scored.results[i]!;
+          const result = this.shareNames(await scored.results[i]!);
           this.kept.set(checkpoint.path, { key: keyOf(scored.tasks[i]!), scored: result });
           await builder.add(checkpoint.name, checkpoint.position, result.columns, result.intervals);
           added.push({ checkpoint });
@@ -142,6 +148,19 @@ export class SeriesStore {
       scoredNow,
       loadMs: Math.round(performance.now() - started),
     };
+  }
+
+  private shareNames(scored: ScoredCheckpoint): ScoredCheckpoint {
+    if (this.sharedAlready.has(scored)) return scored; // kept from an earlier load
+    const shared = scored.columns.queryNames.map((n) => {
+      const known = this.names.get(n);
+      if (known !== undefined) return known;
+      this.names.set(n, n);
+      return n;
+    });
+    const result = { ...scored, columns: { ...scored.columns, queryNames: shared } };
+    this.sharedAlready.add(result);
+    return result;
   }
 
   trajectory(query: string): TrajectoryView {
