@@ -6,7 +6,7 @@ import * as path from 'node:path';
 import * as vscode from 'vscode';
 import { DumpItem, type RankedListsTree } from './rankedListsTree';
 import { VIEW_TYPE } from './panels';
-import { SeriesItem, seriesDescription, type RunsTree } from './runsTree';
+import { CheckpointItem, SeriesItem, seriesDescription, type RunsTree } from './runsTree';
 import type { SeriesGroup } from './seriesGroups';
 
 export interface CommandContext {
@@ -75,7 +75,7 @@ export function registerCommands(context: CommandContext): vscode.Disposable[] {
 
 function uriOf(arg: unknown): vscode.Uri | undefined {
   if (arg instanceof vscode.Uri) return arg;
-  if (arg instanceof DumpItem) return arg.uri;
+  if (arg instanceof DumpItem || arg instanceof CheckpointItem) return arg.uri;
   return undefined;
 }
 
