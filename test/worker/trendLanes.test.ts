@@ -51,7 +51,7 @@ async function waitForThreadsToExit(): Promise<void> {
 
 describe('scoring a series on lanes', () => {
   it('gives each checkpoint what one plain evaluation gives, on any number of lanes', async () => {
-    const slow = [];
+    const slow: { columns: ReturnType<typeof checkpointColumns>; intervals: Awaited<ReturnType<typeof checkpointIntervals>> }[] = [];
     for (const path of paths) {
       const dump = await readDump(path);
       const columns = checkpointColumns(evaluate(dump, METRICS, { ...DEFAULT_CONVENTIONS, maxGrade: 3 }, { sensitivity: false }), (q) => dump.queries.get(q));
