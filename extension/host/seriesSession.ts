@@ -9,7 +9,7 @@
 import * as vscode from 'vscode';
 import { DEFAULT_TREND_SETTINGS } from '../presentation/defaults';
 import type { HostToView, SeriesOverviewModel, UnreadCheckpoint, ViewRequests, ViewState, ViewToHost } from '../protocol/messages';
-import { RequestServer, type RequestHandlers } from '../protocol/request';
+import { RequestServer, type RequestHandlers } from '../channel/request';
 import type { SeriesFileInfo } from '../protocol/worker';
 import { evaluationSettings, type GainlineConfig } from './config';
 import type { SeriesGroup } from './seriesGroups';

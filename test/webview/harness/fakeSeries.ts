@@ -4,7 +4,7 @@
  * rendering can be checked value by value. `grow` adds the next checkpoint, as a training job would.
  */
 import type { SeriesOverviewModel, ViewRequests } from '../../../extension/protocol/messages';
-import type { RequestHandlers } from '../../../extension/protocol/request';
+import type { RequestHandlers } from '../../../extension/channel/request';
 
 type SeriesHandlers = Pick<RequestHandlers<ViewRequests>, 'seriesTrajectory' | 'seriesQueries' | 'openCheckpoint' | 'compareCheckpoints'>;
 
