@@ -45,8 +45,9 @@ const SETTINGS = { metrics: ['ndcg@5', 'err@5', 'rr'] };
 const config = () => readConfig((key) => (SETTINGS as Record<string, unknown>)[key]);
 
 beforeAll(async () => {
-  for (const name of ['engineWorker', 'checkpointWorker']) {
-    await esbuild.build({ entryPoints: [`extension/worker/${name}.ts`], outfile: join(bundles, `${name}.js`), bundle: true, platform: 'node', format: 'cjs', target: 'es2022', logLevel: 'error' });
+  for (const entry of ['extension/worker/engineWorker.ts', 'extension/engine/threads/checkpointWorker.ts']) {
+    const name = entry.replace(/^.*\/|\.ts$/g, '');
+    await esbuild.build({ entryPoints: [entry], outfile: join(bundles, `${name}.js`), bundle: true, platform: 'node', format: 'cjs', target: 'es2022', logLevel: 'error' });
   }
   worker = new EngineWorker(join(bundles, 'engineWorker.js'));
   writeFileSync(join(folder, 'epoch-2.csv'), checkpoint(2, 0.3));

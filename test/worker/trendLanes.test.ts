@@ -36,7 +36,7 @@ function checkpoint(seed: number): string {
 const paths: string[] = [];
 beforeAll(async () => {
   for (let k = 1; k <= 6; k++) paths.push(tmp.file(`epoch-${k}.csv`, checkpoint(k)));
-  await esbuild.build({ entryPoints: ['extension/worker/checkpointWorker.ts'], outfile: join(tmp.path, 'checkpointWorker.js'), bundle: true, platform: 'node', format: 'cjs', logLevel: 'error' });
+  await esbuild.build({ entryPoints: ['extension/engine/threads/checkpointWorker.ts'], outfile: join(tmp.path, 'checkpointWorker.js'), bundle: true, platform: 'node', format: 'cjs', logLevel: 'error' });
   before = configureEngine({ bundleDir: tmp.path });
 }, 60_000);
 afterAll(() => {

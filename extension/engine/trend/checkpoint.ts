@@ -29,6 +29,11 @@ export interface ScoredCheckpoint {
   readonly highestGrade: number;
 }
 
+/** What a checkpoint worker thread (threads/checkpointWorker.ts) answers, through the engine's pool. */
+export type CheckpointRequests = {
+  scoreCheckpoint: { params: CheckpointTask; result: ScoredCheckpoint };
+};
+
 export async function scoreCheckpoint(task: CheckpointTask, signal?: AbortSignal): Promise<ScoredCheckpoint> {
   let dump: Awaited<ReturnType<typeof readDump>> | undefined = await readDump(task.path, { ...task.read, ...(signal ? { signal } : {}) });
   const highestGrade = gradeRange(dump).highest;

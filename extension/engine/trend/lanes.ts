@@ -1,18 +1,14 @@
 /**
  * Scores the checkpoints of a series on several lanes at once: the calling thread and checkpoint worker
- * threads (dist/checkpointWorker.js), each taking the next checkpoint as it finishes the last. A lane
+ * threads (dist/checkpointWorker.js, asked through the engine's pool), each taking the next checkpoint
+ * as it finishes the last. A lane
  * holds one dump at a time and keeps only its per-query columns, so memory grows with the lanes, not
  * with the series. Results come back per checkpoint in series order, whichever lane scored them.
  */
 import { statSync } from 'node:fs';
 import { availableParallelism, totalmem } from 'node:os';
-import { join } from 'node:path';
-import type { Worker } from 'node:worker_threads';
-import { existsSync } from 'node:fs';
-import { engineSettings } from '../config';
-import { InputError } from '../errors';
-import { startThread } from '../threads/spawn';
-import { scoreCheckpoint, type CheckpointTask, type ScoredCheckpoint } from './checkpoint';
+import { ThreadPool } from '../threads/pool';
+import { scoreCheckpoint, type CheckpointRequests, type CheckpointTask, type ScoredCheckpoint } from './checkpoint';
 
 /** More lanes than this wait on the disk and the allocator more than they gain (measured in bench-runs). */
 const MAX_LANES = 4;
@@ -81,65 +77,12 @@ export function scoreOnLanes(indices: readonly number[], task: (i: number) => Ch
       }
     }
   };
-  const workers: CheckpointLane[] = [];
+  const pool = options.lanes > 1 && indices.length > 1 ? ThreadPool.forScript<CheckpointRequests>('checkpointWorker', Math.min(options.lanes, indices.length) - 1) : undefined;
   const lanes = [work((t) => scoreCheckpoint(t, options.signal))];
-  for (let l = 1; l < Math.min(options.lanes, indices.length); l++) {
-    const lane = CheckpointLane.start();
-    if (!lane) break;
-    workers.push(lane);
-    lanes.push(work((t) => lane.score(t)));
+  if (pool) {
+    pool.warm(pool.maxThreads);
+    for (let l = 0; l < pool.maxThreads; l++) lanes.push(work((t) => pool.request('scoreCheckpoint', t, options.signal ? { signal: options.signal } : {})));
   }
-  void Promise.all(lanes).finally(() => workers.forEach((w) => w.close()));
+  void Promise.all(lanes).finally(() => pool?.close());
   return results;
-}
-
-/** One checkpoint worker thread, fed one task at a time. */
-class CheckpointLane {
-  private readonly waiting = new Map<number, { resolve: (s: ScoredCheckpoint) => void; reject: (e: unknown) => void }>();
-  private nextId = 0;
-
-  private constructor(private readonly worker: Worker) {
-    worker.on('message', (m: { id: number; scored?: ScoredCheckpoint; failure?: WorkerFailure }) => {
-      const waiter = this.waiting.get(m.id);
-      this.waiting.delete(m.id);
-      if (m.scored) waiter?.resolve(m.scored);
-      else waiter?.reject(rebuildError(m.failure!));
-    });
-    worker.on('error', (e) => {
-      for (const w of this.waiting.values()) w.reject(e);
-      this.waiting.clear();
-    });
-  }
-
-  /** Undefined when threads are off or the bundle has no checkpoint worker: the calling thread does it all. */
-  static start(): CheckpointLane | undefined {
-    const dir = engineSettings().bundleDir;
-    const script = dir === undefined ? undefined : join(dir, 'checkpointWorker.js');
-    return script && existsSync(script) ? new CheckpointLane(startThread(script)) : undefined;
-  }
-
-  score(task: CheckpointTask): Promise<ScoredCheckpoint> {
-    const id = this.nextId++;
-    return new Promise((resolve, reject) => {
-      this.waiting.set(id, { resolve, reject });
-      this.worker.postMessage({ id, task });
-    });
-  }
-
-  close(): void {
-    void this.worker.terminate();
-  }
-}
-
-interface WorkerFailure {
-  readonly input?: { expected: string; file?: string; line?: number; found?: string };
-  readonly message: string;
-  readonly code?: unknown;
-  readonly path?: unknown;
-}
-
-/** The worker's error as callers' error handling expects it (InputError, or a file error with its code). */
-function rebuildError(f: WorkerFailure): Error {
-  if (f.input) return new InputError(f.input.expected, f.input.file, f.input.line, f.input.found);
-  return Object.assign(new Error(f.message), { code: f.code, path: f.path });
 }
