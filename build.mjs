@@ -16,8 +16,8 @@ const entries = [
   { ...common, entryPoints: ['extension/worker/engineWorker.ts'], outfile: 'dist/engineWorker.js', platform: 'node', format: 'cjs' },
   // Parse worker: one byte range of a large CSV/TSV per thread (found next to the bundle that starts it).
   { ...common, entryPoints: ['extension/engine/threads/parseWorker.ts'], outfile: 'dist/parseWorker.js', platform: 'node', format: 'cjs' },
-  // Checkpoint worker: `gainline trend` scores every other checkpoint of a series on it.
-  { ...common, entryPoints: ['extension/worker/checkpointWorker.ts'], outfile: 'dist/checkpointWorker.js', platform: 'node', format: 'cjs' },
+  // Checkpoint worker: a lane of a training series (`gainline trend`, the editor's trend view) scores checkpoints on it.
+  { ...common, entryPoints: ['extension/engine/threads/checkpointWorker.ts'], outfile: 'dist/checkpointWorker.js', platform: 'node', format: 'cjs' },
   // Stream worker: reads and scores one block of a dump grouped by query (engine/stream/).
   { ...common, entryPoints: ['extension/engine/stream/streamWorker.ts'], outfile: 'dist/streamWorker.js', platform: 'node', format: 'cjs' },
   // Score worker: one range of queries of a large dump per thread, written into shared columns.

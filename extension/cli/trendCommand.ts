@@ -3,16 +3,13 @@
  * and reduced to its per-query metric columns before the next is read, so a long series never holds
  * more than one dump.
  */
-import { existsSync } from 'node:fs';
 import { readdir, stat } from 'node:fs/promises';
-import { Worker } from 'node:worker_threads';
 import { basename, dirname, join, relative, resolve } from 'node:path';
 import { InputError } from '../engine/errors';
 import { formatTrend, TREND_FORMATS, type TrendFormat } from '../engine/report/trendReport';
-import type { Conventions } from '../engine/metrics/conventions';
-import { anyNeeds } from '../engine/metrics/registry';
 import { looksLikeDump, nameMatches, orderSeries, type SeriesFile, type SeriesOrder } from '../engine/trend/series';
-import { scoreCheckpoint, type CheckpointTask, type ScoredCheckpoint } from '../engine/trend/checkpoint';
+import { scoreSeries } from '../engine/trend/scoreSeries';
+import { DEFAULT_TREND_SETTINGS } from '../presentation/defaults';
 import { TrendBuilder } from '../engine/trend/trend';
 import { conventionHelp, conventionOptions, parseCommandArgs, scoringSetupFrom } from './conventionArgs';
 import { UsageError } from './evalCommand';
@@ -20,7 +17,6 @@ import type { CliIO } from './io';
 import { progressLine } from './progress';
 import { wholeNumber } from './compareCommand';
 
-const DEFAULT_BOOTSTRAP = 1000;
 
 export const trendUsage = `Usage: gainline trend DIR|FILE|PATTERN… [options]
 
@@ -38,16 +34,17 @@ Order:
                         A name without digits, or two files with the same number, is an error.
   --order time          by modification time, oldest first
 Statistics:
-  --bootstrap N         bootstrap resamples for each checkpoint's interval (default ${DEFAULT_BOOTSTRAP}; 0 = none)
-  --seed S              seed of the bootstrap (default 1)
-  --top N               how many of the worst queries to list (default 10)
+  --bootstrap N         bootstrap resamples for each checkpoint's interval (default ${DEFAULT_TREND_SETTINGS.bootstrap}; 0 = none)
+  --seed S              seed of the bootstrap (default ${DEFAULT_TREND_SETTINGS.seed})
+  --top N               how many of the worst queries to list (default ${DEFAULT_TREND_SETTINGS.top})
 Output:
   --format F            table (default) | json | markdown | csv (one row per checkpoint)
 ${conventionHelp}
 Checkpoints scoring different query sets are reported (counts and examples per checkpoint), never
 intersected: each mean is over its own checkpoint's queries. ERR's highest grade, unless given, is
-the first checkpoint's. Checkpoints are scored two at a time (this thread and one worker), keeping
-only their per-query values; --threads 1 scores them one by one on this thread.
+the first checkpoint's. Checkpoints are scored several at a time (this thread and checkpoint workers,
+one per core, up to 4, fewer when the dumps are large), keeping only their per-query values;
+--threads 1 scores them one by one on this thread.
 Exit status: 0 done, 2 bad input.
 `;
 
@@ -72,9 +69,9 @@ export async function runTrend(argv: string[], io: CliIO): Promise<number> {
   if (!TREND_FORMATS.includes(format)) throw new InputError(`one of ${TREND_FORMATS.join(', ')}`, '--format', undefined, values.format);
   const order = (values.order ?? 'number') as SeriesOrder;
   if (order !== 'number' && order !== 'time') throw new InputError('number or time', '--order', undefined, values.order);
-  const bootstrap = wholeNumber('--bootstrap', values.bootstrap, DEFAULT_BOOTSTRAP, 0, 10_000_000);
-  const seed = wholeNumber('--seed', values.seed, 1, 0, 0xffffffff);
-  const top = wholeNumber('--top', values.top, 10, 0, Number.MAX_SAFE_INTEGER);
+  const bootstrap = wholeNumber('--bootstrap', values.bootstrap, DEFAULT_TREND_SETTINGS.bootstrap, 0, 10_000_000);
+  const seed = wholeNumber('--seed', values.seed, DEFAULT_TREND_SETTINGS.seed, 0, 0xffffffff);
+  const top = wholeNumber('--top', values.top, DEFAULT_TREND_SETTINGS.top, 0, Number.MAX_SAFE_INTEGER);
   const setup = scoringSetupFrom(values, (p) => resolve(io.cwd, p));
   if (values['missing-queries'] !== undefined && setup.read.judgments === undefined) {
     throw new InputError('--judgments FILE to go with it', '--missing-queries', undefined, values['missing-queries']);
@@ -85,27 +82,30 @@ export async function runTrend(argv: string[], io: CliIO): Promise<number> {
   if (series.length < 2) throw new UsageError(`trend needs at least two checkpoints; found ${series.length}`);
   const builder = new TrendBuilder(setup.metrics, { bootstrap, seed, top });
   const progress = io.isTTY ? progressLine(io, `${series.length} checkpoints`) : undefined;
-  const task = (i: number, conventions: Conventions): CheckpointTask => ({ path: series[i]!.path, read: setup.read, metrics: setup.metrics, conventions });
   let conventions = setup.conventions;
-  // A second lane pays for its start-up from three checkpoints on; --threads 1 keeps everything on this thread.
-  const lane = series.length >= 3 && setup.read.threads !== 1 ? CheckpointLane.start() : undefined;
-  const stop = { stopped: false };
+  // After a failure no lane starts another checkpoint.
+  const stop = new AbortController();
   try {
-    // The first checkpoint alone: it fixes ERR's g_max for the whole series, or ERR values of different
-    // checkpoints would be on different scales.
-    const first = await scoreCheckpoint(task(0, conventions));
-    if (conventions.maxGrade === undefined && anyNeeds(setup.metrics, 'maxGrade') && first.highestGrade > 0) {
-      conventions = { ...conventions, maxGrade: first.highestGrade };
-    }
-    const scored = scoreInTwoLanes(series.length, (i) => task(i, conventions), lane, first, stop);
+    const scored = await scoreSeries({
+      signal: stop.signal,
+      paths: series.map((c) => c.path),
+      read: () => setup.read,
+      metrics: setup.metrics,
+      conventions,
+      bootstrap: { resamples: bootstrap, seed },
+      ...(setup.read.threads === 1 ? { lanes: 1 } : {}),
+    });
+    conventions = scored.conventions;
     for (let i = 0; i < series.length; i++) {
-      await builder.add(series[i]!.name, series[i]!.position, (await scored[i]!).columns);
+      const checkpoint = await scored.results[i]!;
+      await builder.add(series[i]!.name, series[i]!.position, checkpoint.columns, checkpoint.intervals);
       progress?.scoring((i + 1) / series.length);
     }
+  } catch (error) {
+    stop.abort();
+    throw error;
   } finally {
     progress?.done();
-    stop.stopped = true; // after a failure, no lane starts another checkpoint
-    lane?.close();
   }
   const trend = builder.finish();
   const orderRule = order === 'number' ? 'ordered by the checkpoint number in each file name' : 'ordered by modification time, oldest first';
@@ -123,84 +123,6 @@ export async function runTrend(argv: string[], io: CliIO): Promise<number> {
     }),
   );
   return 0;
-}
-
-/**
- * Scores checkpoints 1… on this thread and on the worker lane at once, each taking the next one as it
- * finishes the last, so at most two dumps are in memory. Results are per-query columns only.
- */
-function scoreInTwoLanes(count: number, task: (i: number) => CheckpointTask, lane: CheckpointLane | undefined,
-  first: ScoredCheckpoint, stop: { readonly stopped: boolean }): Promise<ScoredCheckpoint>[] {
-  const settle: { resolve: (s: ScoredCheckpoint) => void; reject: (e: unknown) => void }[] = [];
-  const results = Array.from({ length: count }, (_, i) => {
-    const p = new Promise<ScoredCheckpoint>((resolve, reject) => (settle[i] = { resolve, reject }));
-    p.catch(() => undefined); // awaited in series order by the caller; a later failure must not go unhandled meanwhile
-    return p;
-  });
-  settle[0]!.resolve(first);
-  let next = 1;
-  const work = async (score: (t: CheckpointTask) => Promise<ScoredCheckpoint>) => {
-    while (next < count && !stop.stopped) {
-      const i = next++;
-      try {
-        settle[i]!.resolve(await score(task(i)));
-      } catch (e) {
-        settle[i]!.reject(e);
-      }
-    }
-  };
-  void work(scoreCheckpoint);
-  if (lane) void work((t) => lane.score(t));
-  return results;
-}
-
-/** One checkpoint worker thread, fed one task at a time. */
-class CheckpointLane {
-  private readonly waiting = new Map<number, { resolve: (s: ScoredCheckpoint) => void; reject: (e: unknown) => void }>();
-  private nextId = 0;
-
-  private constructor(private readonly worker: Worker) {
-    worker.on('message', (m: { id: number; scored?: ScoredCheckpoint; failure?: WorkerFailure }) => {
-      const waiter = this.waiting.get(m.id);
-      this.waiting.delete(m.id);
-      if (m.scored) waiter?.resolve(m.scored);
-      else waiter?.reject(rebuildError(m.failure!));
-    });
-    worker.on('error', (e) => {
-      for (const w of this.waiting.values()) w.reject(e);
-      this.waiting.clear();
-    });
-  }
-
-  static start(): CheckpointLane | undefined {
-    const script = join(__dirname, 'checkpointWorker.js');
-    return existsSync(script) ? new CheckpointLane(new Worker(script)) : undefined;
-  }
-
-  score(task: CheckpointTask): Promise<ScoredCheckpoint> {
-    const id = this.nextId++;
-    return new Promise((resolve, reject) => {
-      this.waiting.set(id, { resolve, reject });
-      this.worker.postMessage({ id, task });
-    });
-  }
-
-  close(): void {
-    void this.worker.terminate();
-  }
-}
-
-interface WorkerFailure {
-  readonly input?: { expected: string; file?: string; line?: number; found?: string };
-  readonly message: string;
-  readonly code?: unknown;
-  readonly path?: unknown;
-}
-
-/** The worker's error as the command line's error handling expects it (InputError, or a file error with its code). */
-function rebuildError(f: WorkerFailure): Error {
-  if (f.input) return new InputError(f.input.expected, f.input.file, f.input.line, f.input.found);
-  return Object.assign(new Error(f.message), { code: f.code, path: f.path });
 }
 
 /** Expands folders and name patterns; a file named twice is an error, not a silent merge. */

@@ -6,6 +6,8 @@ import * as path from 'node:path';
 import * as vscode from 'vscode';
 import { DumpItem, type RankedListsTree } from './rankedListsTree';
 import { VIEW_TYPE } from './panels';
+import { CheckpointItem, SeriesItem, seriesDescription, type RunsTree } from './runsTree';
+import type { SeriesGroup } from './seriesGroups';
 
 export interface CommandContext {
   readonly tree: RankedListsTree;
@@ -16,6 +18,9 @@ export interface CommandContext {
   /** The keyboard picker over the queries of the view in front. */
   readonly goToQuery: () => Promise<void>;
   readonly clearRecentComparisons: () => Promise<void>;
+  readonly runs: RunsTree;
+  /** Opens (or brings forward) the trend view of a series. */
+  readonly openSeries: (group: SeriesGroup) => void;
 }
 
 type Handler = (context: CommandContext, ...args: unknown[]) => unknown;
@@ -42,6 +47,20 @@ export const COMMANDS: Readonly<Record<string, Handler>> = {
   'gainline.showSummary': (ctx) => ctx.showSummary(),
   'gainline.goToQuery': (ctx) => ctx.goToQuery(),
   'gainline.clearRecentComparisons': (ctx) => ctx.clearRecentComparisons(),
+  'gainline.openSeries': async (ctx, arg) => {
+    let group = arg instanceof SeriesItem ? arg.group : undefined;
+    if (!group) {
+      const all = await ctx.runs.series();
+      if (all.length === 0) {
+        void vscode.window.showInformationMessage('No training series found: a series is a folder with two or more numbered dumps, or a pattern in the gainline.series.patterns setting.');
+        return;
+      }
+      const picked = await vscode.window.showQuickPick(all.map((g) => ({ label: g.label, description: seriesDescription(g), group: g })), { title: 'Training series', placeHolder: 'Series to show' });
+      group = picked?.group;
+    }
+    if (group) ctx.openSeries(group);
+  },
+  'gainline.refreshRuns': (ctx) => ctx.runs.refresh(),
   'gainline.refreshRankedLists': (ctx) => {
     ctx.tree.invalidate();
     ctx.refreshAll();
@@ -56,7 +75,7 @@ export function registerCommands(context: CommandContext): vscode.Disposable[] {
 
 function uriOf(arg: unknown): vscode.Uri | undefined {
   if (arg instanceof vscode.Uri) return arg;
-  if (arg instanceof DumpItem) return arg.uri;
+  if (arg instanceof DumpItem || arg instanceof CheckpointItem) return arg.uri;
   return undefined;
 }
 

@@ -6,7 +6,7 @@
 import { DEFAULT_CONVENTIONS, type Conventions, type NoRelevantPolicy, type TieConvention } from '../engine/metrics/conventions';
 import { parseGain, parseMetricList } from '../engine/metrics/parse';
 import { describeConventions } from '../presentation/conventionsLine';
-import { DEFAULT_COMPARE_SETTINGS, DEFAULT_CONVENTION_SETTINGS, DEFAULT_METRIC_KEYS } from '../presentation/defaults';
+import { DEFAULT_COMPARE_SETTINGS, DEFAULT_CONVENTION_SETTINGS, DEFAULT_METRIC_KEYS, DEFAULT_SERIES_SETTINGS } from '../presentation/defaults';
 import type { CompareSettings, EvaluationSettings } from '../protocol/worker';
 import { globToRegExp } from './glob';
 
@@ -38,6 +38,12 @@ export interface GainlineConfig {
   /** Which files the Ranked Lists view lists. */
   readonly dumpGlob: string;
   readonly dumpExclude: string;
+  /** How the Runs view groups dumps into training series. */
+  readonly series: {
+    /** Globs on the workspace-relative path, each one series; files no pattern takes are grouped by folder. */
+    readonly patterns: readonly string[];
+    readonly order: 'number' | 'time';
+  };
   readonly compare: {
     readonly permutations: number;
     readonly bootstrapResamples: number;
@@ -59,6 +65,8 @@ export const CONFIG_DEFAULTS = {
   rbpPersistence: DEFAULT_CONVENTION_SETTINGS.rbpPersistence,
   dumpGlob: '**/*.{csv,tsv,jsonl,parquet,run,gz}',
   dumpExclude: '**/node_modules/**',
+  seriesPatterns: DEFAULT_SERIES_SETTINGS.patterns,
+  seriesOrder: DEFAULT_SERIES_SETTINGS.order,
   permutations: DEFAULT_COMPARE_SETTINGS.permutations,
   bootstrapResamples: DEFAULT_COMPARE_SETTINGS.bootstrap,
   seed: DEFAULT_COMPARE_SETTINGS.seed,
@@ -127,6 +135,10 @@ export function readConfig(get: SettingGetter): GainlineConfig {
     sideFilesByPattern: readSideFilesByPattern(get('sideFilesByPattern'), reject),
     dumpGlob: stringSetting(get('dumpGlob'), CONFIG_DEFAULTS.dumpGlob, 'dumpGlob', reject),
     dumpExclude: CONFIG_DEFAULTS.dumpExclude,
+    series: {
+      patterns: readSeriesPatterns(get('series.patterns'), reject),
+      order: choice('series.order', ['number', 'time'] as const, CONFIG_DEFAULTS.seriesOrder),
+    },
     compare: {
       permutations: number('compare.permutations', CONFIG_DEFAULTS.permutations, (n) => Number.isInteger(n) && n >= 100 && n <= 1e7,
         'a whole number from 100 to 10000000'),
@@ -137,6 +149,13 @@ export function readConfig(get: SettingGetter): GainlineConfig {
     },
     problems,
   };
+}
+
+function readSeriesPatterns(value: unknown, reject: (k: string, e: string, v: unknown) => void): readonly string[] {
+  if (value === undefined || value === null) return CONFIG_DEFAULTS.seriesPatterns;
+  if (Array.isArray(value) && value.every((p) => typeof p === 'string' && p.length > 0)) return value as string[];
+  reject('series.patterns', 'a list of glob patterns, e.g. ["training/run-7/epoch-*.csv"]', value);
+  return CONFIG_DEFAULTS.seriesPatterns;
 }
 
 /** [10, 5] → "ndcg@10,ndcg@5,err@10,ap,rr,p@10,p@5,r@10,r@5,rbp,tau" (the first key is the headline). */

@@ -5,9 +5,11 @@
 import * as vscode from 'vscode';
 import { readConfig, type GainlineConfig } from './config';
 import { registerCommands } from './commands';
-import { COMPARE_VIEW_TYPE, ComparePanelSerializer, DumpEditorProvider, SessionRegistry, VIEW_TYPE, openComparePanel } from './panels';
+import { COMPARE_VIEW_TYPE, ComparePanelSerializer, DumpEditorProvider, SeriesPanels, SessionRegistry, VIEW_TYPE, openComparePanel } from './panels';
 import { RankedListsTree } from './rankedListsTree';
 import { RecentComparisons } from './recentComparisons';
+import { RunsTree } from './runsTree';
+import { SeriesSession } from './seriesSession';
 import { goToQuery } from './goToQuery';
 import { HeadlineStatus } from './statusBar';
 import { EngineWorker } from './workerHost';
@@ -32,6 +34,13 @@ export function activate(context: vscode.ExtensionContext): void {
   const tree = new RankedListsTree(treeWorker, getConfig, context.workspaceState);
   const status = new HeadlineStatus();
   const recent = new RecentComparisons(context.workspaceState);
+  const runs = new RunsTree(() => tree.listFiles(), getConfig);
+  const seriesPanels = new SeriesPanels(context.extensionUri);
+  const openCompare = (a: vscode.Uri, b: vscode.Uri): void => {
+    openComparePanel(a, b, context.extensionUri, deps, registry);
+    void recent.remember(a, b);
+  };
+  const seriesSessions = new Set<SeriesSession>();
 
   context.subscriptions.push(
     output,
@@ -41,7 +50,10 @@ export function activate(context: vscode.ExtensionContext): void {
     tree,
     status,
     recent,
+    runs,
+    seriesPanels,
     vscode.window.createTreeView('gainline.recentComparisons', { treeDataProvider: recent }),
+    vscode.window.createTreeView('gainline.runs', { treeDataProvider: runs, showCollapseAll: true }),
     vscode.window.registerCustomEditorProvider(VIEW_TYPE, new DumpEditorProvider(context.extensionUri, deps, registry), {
       supportsMultipleEditorsPerDocument: true,
       webviewOptions: { enableFindWidget: true },
@@ -52,10 +64,23 @@ export function activate(context: vscode.ExtensionContext): void {
     registry.onDidChangeActive((session) => status.show(session?.headline)),
     ...registerCommands({
       tree,
-      openCompare: (a, b) => {
-        openComparePanel(a, b, context.extensionUri, deps, registry);
-        void recent.remember(a, b);
-      },
+      openCompare,
+      runs,
+      openSeries: (group) =>
+        seriesPanels.show(group.key, group.label, (webview) => {
+          const session = new SeriesSession(webview, group.label, {
+            worker: viewWorker, getConfig, memory: context.workspaceState, log: (line) => output.info(line),
+            resolve: () => runs.find(group.key),
+            watchPattern: runs.watchPattern(group),
+            openCheckpoint: (uri) => void vscode.commands.executeCommand('vscode.openWith', uri, VIEW_TYPE),
+            openCompare,
+          });
+          seriesSessions.add(session);
+          return { start: () => session.start(), dispose: () => {
+            seriesSessions.delete(session);
+            session.dispose();
+          } };
+        }),
       goToQuery: () => goToQuery(registry),
       clearRecentComparisons: () => recent.clear(),
       refreshAll: () => registry.all().forEach((s) => s.scheduleReload(0)),
@@ -70,7 +95,9 @@ export function activate(context: vscode.ExtensionContext): void {
       if (!event.affectsConfiguration('gainline')) return;
       config = loadConfig(output);
       tree.invalidate();
+      runs.refresh();
       for (const session of registry.all()) session.scheduleReload(0);
+      for (const session of seriesSessions) session.scheduleReload(0);
     }),
   );
 }

@@ -10,6 +10,7 @@ import { webviewHtml } from './webviewHtml';
 
 export const VIEW_TYPE = 'gainline.rankedListViewer';
 export const COMPARE_VIEW_TYPE = 'gainline.compareRuns';
+export const SERIES_VIEW_TYPE = 'gainline.trainingTrend';
 
 /** Tracks every open view and which one is in front (for the status bar and commands). */
 export class SessionRegistry implements vscode.Disposable {
@@ -83,6 +84,38 @@ export function configureWebview(webview: vscode.Webview, extensionUri: vscode.U
     mode,
     title,
   });
+}
+
+/**
+ * The trend view of a training series: one panel per series (opening it again brings it forward).
+ * `start` makes the session that feeds the panel's webview; the panel disposes it when closed.
+ */
+export class SeriesPanels implements vscode.Disposable {
+  private readonly open = new Map<string, vscode.WebviewPanel>();
+
+  constructor(private readonly extensionUri: vscode.Uri) {}
+
+  show(key: string, title: string, start: (webview: vscode.Webview) => vscode.Disposable & { start(): Promise<void> }): void {
+    const existing = this.open.get(key);
+    if (existing) {
+      existing.reveal();
+      return;
+    }
+    const panel = vscode.window.createWebviewPanel(SERIES_VIEW_TYPE, `Trend: ${title}`, vscode.ViewColumn.Active, { enableFindWidget: true });
+    configureWebview(panel.webview, this.extensionUri, 'series', `Trend: ${title}`);
+    const session = start(panel.webview);
+    this.open.set(key, panel);
+    panel.onDidDispose(() => {
+      this.open.delete(key);
+      session.dispose();
+    });
+    void session.start();
+  }
+
+  dispose(): void {
+    for (const panel of this.open.values()) panel.dispose();
+    this.open.clear();
+  }
 }
 
 /** A dump has no editable model: the document is only its URI. */

@@ -41,6 +41,9 @@ export class DumpItem extends vscode.TreeItem {
   }
 }
 
+/** Files whose creation, change or removal may change the dump listings (this view's and the Runs view's). */
+export const DUMP_WATCH_GLOB = '**/*.{csv,tsv,jsonl,parquet,run,gz}';
+
 const MAX_FILES = 500;
 /** Background headlines skip files this large: reading them would hold hundreds of MB for a tree label. */
 const MAX_BACKGROUND_BYTES = 256 * 2 ** 20;
@@ -59,7 +62,7 @@ export class RankedListsTree implements vscode.TreeDataProvider<DumpItem>, vscod
     private readonly getConfig: () => GainlineConfig,
     private readonly memory: vscode.Memento,
   ) {
-    const watcher = vscode.workspace.createFileSystemWatcher('**/*.{csv,tsv,jsonl,parquet,run,gz}');
+    const watcher = vscode.workspace.createFileSystemWatcher(DUMP_WATCH_GLOB);
     let timer: ReturnType<typeof setTimeout> | undefined;
     const onFile = (): void => {
       // Writers touch a file many times while saving: refresh once things settle.

@@ -49,7 +49,8 @@ export interface Headline {
   readonly compare: boolean;
 }
 
-const RELOAD_DEBOUNCE_MS = 300;
+/** Writers touch a file many times while saving: act once the changes have settled this long. */
+export const RELOAD_DEBOUNCE_MS = 300;
 /** A first read shorter than this shows no notification (it would only flash). */
 const NOTIFICATION_DELAY_MS = 700;
 let sessionCounter = 0;
@@ -349,6 +350,11 @@ export class ViewSession implements vscode.Disposable {
         const where = await ask(() => w.call('rowLocation', { session, row: p.row, ...(p.run ? { run: p.run } : {}) }));
         return revealRow(where.path, p.row, where.line);
       },
+      // A dump or a comparison is not a series; the trend screen lives in the series panel (seriesSession.ts).
+      seriesTrajectory: () => notASeries(),
+      seriesQueries: () => notASeries(),
+      openCheckpoint: () => notASeries(),
+      compareCheckpoints: () => notASeries(),
     };
   }
 
@@ -393,7 +399,11 @@ async function pickJudgments(run: vscode.Uri, candidates: readonly string[]): Pr
   return chosen?.[0]?.fsPath;
 }
 
-function messageOf(error: unknown): string {
+function notASeries(): never {
+  throw new Error('this view shows a dump or a comparison, not a training series');
+}
+
+export function messageOf(error: unknown): string {
   if (error instanceof RemoteError || error instanceof Error) return error.message.split('\n')[0]!;
   return String(error);
 }

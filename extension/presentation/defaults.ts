@@ -25,3 +25,21 @@ export const DEFAULT_COMPARE_SETTINGS = {
    */
   tieTolerance: 1e-9,
 } as const;
+
+/** A training series (`gainline trend`, the editor's Runs view and trend screen). */
+export const DEFAULT_TREND_SETTINGS = {
+  /** Bootstrap resamples of each checkpoint's 95% interval. */
+  bootstrap: 1_000,
+  seed: 1,
+  /** How many of the queries that fell most are listed. */
+  top: 10,
+} as const;
+
+/**
+ * How the Runs view groups dumps into series (settings `gainline.series.patterns` and
+ * `gainline.series.order`): no pattern means one series per folder holding two or more dumps.
+ */
+export const DEFAULT_SERIES_SETTINGS = {
+  patterns: [] as readonly string[],
+  order: 'number' as 'number' | 'time',
+};

@@ -73,6 +73,11 @@ export function formatInterval(low: number, high: number): string {
   return `[${formatDelta(low)}, ${formatDelta(high)}]`;
 }
 
+/** A 95% interval of a mean (not a difference): unsigned bounds, "[0.6100, 0.6400]". */
+export function formatMeanInterval(low: number, high: number): string {
+  return Number.isNaN(low) || Number.isNaN(high) ? MISSING : `[${formatValue(low)}, ${formatValue(high)}]`;
+}
+
 /** A metric value in text reports: 4 decimals, whole numbers for counts, the missing marker when undefined. */
 export function formatValue(x: number, whole = false): string {
   if (Number.isNaN(x)) return MISSING;

@@ -17,9 +17,19 @@ import type {
   MovementView,
   RunSide,
 } from './compareMessages';
+import type {
+  CompareCheckpointsParams,
+  OpenCheckpointParams,
+  SeriesOverviewModel,
+  SeriesQueries,
+  SeriesQueriesParams,
+  TrajectoryParams,
+  TrajectoryView,
+} from './seriesMessages';
 import type { ConventionsView, FileInfo, MaybeNumber, SegmentFilter, SortSpec } from './viewBasics';
 
 export type * from './compareMessages';
+export type * from './seriesMessages';
 export type * from './viewBasics';
 
 // ---------------------------------------------------------------------------------------------
@@ -320,6 +330,14 @@ export type ViewRequests = {
   comparePage: { params: ComparePageParams; result: ComparePage };
   queryMovement: { params: MovementParams; result: MovementView };
   compareSegments: { params: CompareSegmentsParams; result: CompareSegmentTable };
+  /** Series mode: one query's values over the checkpoints. */
+  seriesTrajectory: { params: TrajectoryParams; result: TrajectoryView };
+  /** Series mode: the series' queries matching a filter (to pick one whose trajectory to show). */
+  seriesQueries: { params: SeriesQueriesParams; result: SeriesQueries };
+  /** Series mode: open a checkpoint in the viewer. */
+  openCheckpoint: { params: OpenCheckpointParams; result: { readonly opened: boolean } };
+  /** Series mode: compare two checkpoints in the two-run comparison panel. */
+  compareCheckpoints: { params: CompareCheckpointsParams; result: { readonly opened: boolean } };
 };
 
 export type ViewMethod = keyof ViewRequests;
@@ -328,7 +346,7 @@ export type ViewMethod = keyof ViewRequests;
 // State pushed from the host to the webview
 // ---------------------------------------------------------------------------------------------
 
-export type ViewMode = 'single' | 'compare';
+export type ViewMode = 'single' | 'compare' | 'series';
 
 export type ViewState =
   | {
@@ -346,6 +364,8 @@ export type ViewState =
   /** Recomputed after the file or a setting changed: keep the selected query and tab, refetch pages. */
   | { readonly status: 'reloaded'; readonly mode: 'single'; readonly overview: OverviewModel }
   | { readonly status: 'reloaded'; readonly mode: 'compare'; readonly compare: CompareOverviewModel }
+  /** A training series: first result, then 'reloaded' each time a checkpoint is added or rewritten. */
+  | { readonly status: 'loaded' | 'reloaded'; readonly mode: 'series'; readonly series: SeriesOverviewModel }
   /** One line, e.g. the InputError message "run.csv:12: expected a number in column 'score' (found \"abc\")". */
   | { readonly status: 'error'; readonly message: string }
   | { readonly status: 'vanished'; readonly path: string };

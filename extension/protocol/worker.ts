@@ -4,7 +4,7 @@
  * Every session is keyed: one open editor or compare panel = one session held in worker memory.
  */
 import type { Conventions } from '../engine/metrics/conventions';
-import type { CompareOverviewModel, OverviewModel, QueryDetailParams, ViewRequests } from './messages';
+import type { CompareOverviewModel, OverviewModel, QueryDetailParams, SeriesOverviewModel, UnreadCheckpoint, ViewRequests } from './messages';
 import type { CancelEnvelope, RequestEnvelope, ResponseEnvelope } from '../channel/request';
 
 /** How to read one dump; mirrors the readers' options. */
@@ -87,6 +87,27 @@ export interface LoadTimeline {
   readonly scored: number;
 }
 
+/** One dump file of a series, as the host found it in the folder. */
+export interface SeriesFileInfo {
+  readonly source: DumpSource;
+  /** File name; the worker takes size and time from the file itself. */
+  readonly name: string;
+}
+
+export interface LoadSeriesParams {
+  readonly session: string;
+  /** The series' name in the Runs view. */
+  readonly name: string;
+  readonly files: readonly SeriesFileInfo[];
+  /** Files the host could not turn into a source (a run file without its judgments), shown as unread. */
+  readonly unreadable: readonly UnreadCheckpoint[];
+  readonly order: 'number' | 'time';
+  readonly settings: EvaluationSettings;
+  readonly bootstrap: number;
+  readonly seed: number;
+  readonly top: number;
+}
+
 type Keyed<T> = T & { readonly session: string };
 
 /** A webview request the host passes on unchanged but for the session it belongs to. */
@@ -114,6 +135,10 @@ export type WorkerRequests = {
   comparePage: Forwarded<'comparePage'>;
   queryMovement: Forwarded<'queryMovement'>;
   compareSegments: Forwarded<'compareSegments'>;
+  /** Scores the checkpoints it does not hold yet (by path, size and time) and returns the whole trend. */
+  loadSeries: { params: LoadSeriesParams; result: SeriesOverviewModel };
+  seriesTrajectory: Forwarded<'seriesTrajectory'>;
+  seriesQueries: Forwarded<'seriesQueries'>;
 };
 
 /** Progress while reading/evaluating, sent unsolicited by the worker. */

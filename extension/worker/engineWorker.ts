@@ -30,6 +30,7 @@ import type { ScoreDiagnosticsView } from '../protocol/messages';
 import { detailView, metricLabel, movementView, overviewModel, segmentTable } from './viewModels';
 import { isCancelled } from './cancelFlags';
 import { warmUp } from './warmUp';
+import { SeriesStore } from './seriesStore';
 
 interface Loaded {
   readonly dump: RankedDump;
@@ -43,7 +44,8 @@ interface Loaded {
 }
 type Session =
   | ({ readonly kind: 'single' } & Loaded)
-  | { readonly kind: 'compare'; readonly a: Loaded; readonly b: Loaded; readonly comparison: Comparison; readonly table: CompareTable };
+  | { readonly kind: 'compare'; readonly a: Loaded; readonly b: Loaded; readonly comparison: Comparison; readonly table: CompareTable }
+  | { readonly kind: 'series'; readonly store: SeriesStore };
 
 const sessions = new Map<string, Session>();
 /** Above this, a view's old data is dropped before reading again rather than kept to answer meanwhile. */
@@ -51,6 +53,7 @@ const KEEP_WHILE_RELOADING_ROWS = 2_000_000;
 
 function rowsHeld(s: Session | undefined): number {
   if (!s) return 0;
+  if (s.kind === 'series') return 0; // per-query columns only; kept so a grown series reads only its new files
   return s.kind === 'single' ? s.dump.rowCount : s.a.dump.rowCount + s.b.dump.rowCount;
 }
 
@@ -114,6 +117,7 @@ function compared(key: string): Extract<Session, { kind: 'compare' }> {
 function runOf(key: string, run: 'a' | 'b' | undefined): Loaded {
   const s = session(key);
   if (s.kind === 'single') return s;
+  if (s.kind === 'series') throw new Error('this request needs a dump or a comparison, not a series');
   return run === 'b' ? s.b : s.a;
 }
 
@@ -276,7 +280,28 @@ const handlers: RequestHandlers<WorkerRequests> = {
   compareSegments({ session: key, column, metric }) {
     return compared(key).table.segments(column, metric);
   },
+
+  async loadSeries(params, ctx) {
+    const held = sessions.get(params.session);
+    const store = held?.kind === 'series' ? held.store : new SeriesStore();
+    sessions.set(params.session, { kind: 'series', store });
+    return store.load(params, ctx.signal);
+  },
+
+  seriesTrajectory({ session: key, query }) {
+    return seriesOf(key).trajectory(query);
+  },
+
+  seriesQueries({ session: key, filter, limit }) {
+    return seriesOf(key).queries(filter, limit);
+  },
 };
+
+function seriesOf(key: string): SeriesStore {
+  const s = session(key);
+  if (s.kind !== 'series') throw new Error('this request needs a training series');
+  return s.store;
+}
 
 if (parentPort) {
   const port = parentPort;

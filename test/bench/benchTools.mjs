@@ -24,9 +24,14 @@ export function rng(seed) {
 
 /** One CLI run timed from outside (wall, CPU = user + system over all threads, peak RSS); stdout kept for checks. */
 export function timedCli(argv) {
+  return timedNode([cli, ...argv]);
+}
+
+/** Node with these arguments, timed from outside like timedCli. */
+export function timedNode(nodeArgs) {
   return new Promise((done, fail) => {
     const start = process.hrtime.bigint();
-    const child = spawn(TIME, ['-v', process.execPath, cli, ...argv], { cwd: root, stdio: ['ignore', 'pipe', 'pipe'] });
+    const child = spawn(TIME, ['-v', process.execPath, ...nodeArgs], { cwd: root, stdio: ['ignore', 'pipe', 'pipe'] });
     const out = [];
     let err = '';
     child.stdout.on('data', (d) => out.push(d));
@@ -34,7 +39,7 @@ export function timedCli(argv) {
     child.on('error', fail);
     child.on('close', (code) => {
       const seconds = Number(process.hrtime.bigint() - start) / 1e9;
-      if (code !== 0) return fail(new Error(`gainline ${argv.join(' ')} exited ${code}:\n${err.slice(-2000)}`));
+      if (code !== 0) return fail(new Error(`node ${nodeArgs.join(' ')} exited ${code}:\n${err.slice(-2000)}`));
       const user = /User time \(seconds\): ([\d.]+)/.exec(err);
       const system = /System time \(seconds\): ([\d.]+)/.exec(err);
       const rss = /Maximum resident set size \(kbytes\): (\d+)/.exec(err);

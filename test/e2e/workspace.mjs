@@ -2,7 +2,7 @@
 // demo folder is never modified) plus an e2e/ folder with files made for the
 // scenarios: a live copy to rewrite, a dump whose ids contain HTML, and a
 // malformed dump. All queries are in the invented hardware-store scenario.
-import { copyFileSync, cpSync, mkdirSync, rmSync, writeFileSync } from 'node:fs';
+import { copyFileSync, cpSync, mkdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { RUN_DIR, REPO_ROOT } from '../support/code-server-install.mjs';
 
@@ -36,6 +36,20 @@ function malformedDump() {
   ].join('\n') + '\n';
 }
 
+/**
+ * A checkpoint of a training job made from a demo run: every score moved by a fixed pattern of the row
+ * number times `spread` (no randomness, so every run writes the same files and the CLI reads them too).
+ */
+export function checkpointFrom(run, spread) {
+  const lines = readFileSync(run, 'utf8').split('\n');
+  return lines.map((line, i) => {
+    if (i === 0 || line === '') return line;
+    const fields = line.split(',');
+    fields[3] = (Number(fields[3]) + spread * (((i * 7919) % 13) - 6) / 6).toFixed(4);
+    return fields.join(',');
+  }).join('\n');
+}
+
 /** Creates .e2e/workspace afresh and returns the paths the scenarios use. */
 export function makeWorkspace() {
   const root = join(RUN_DIR, 'workspace');
@@ -54,6 +68,16 @@ export function makeWorkspace() {
     unnamedColumns: join(e2e, 'export-unnamed-columns.csv'),
   };
   copyFileSync(files.runA, files.live);
+  // Two training series: one complete (epochs 1, 2 and 10: 2 sorts before 10), one the live scenario grows.
+  files.training = join(e2e, 'training');
+  files.liveTraining = join(e2e, 'live-training');
+  mkdirSync(files.training, { recursive: true });
+  mkdirSync(files.liveTraining, { recursive: true });
+  writeFileSync(join(files.training, 'epoch-1.csv'), checkpointFrom(files.runA, 0));
+  writeFileSync(join(files.training, 'epoch-2.csv'), checkpointFrom(files.runB, 0));
+  writeFileSync(join(files.training, 'epoch-10.csv'), checkpointFrom(files.runB, 0.8));
+  writeFileSync(join(files.liveTraining, 'step-100.csv'), checkpointFrom(files.runA, 0.2));
+  writeFileSync(join(files.liveTraining, 'step-200.csv'), checkpointFrom(files.runB, 0.2));
   writeFileSync(files.hostile, hostileDump());
   writeFileSync(files.malformed, malformedDump());
   // Headers no role name matches: the error must say how to name them.

@@ -7,10 +7,14 @@ vi.mock('vscode', async () => (await import('./fakeVscode')).shared.api);
 const { registerCommands, COMMANDS } = await import('../../extension/host/commands');
 const { DumpItem } = await import('../../extension/host/rankedListsTree');
 const { VIEW_TYPE } = await import('../../extension/host/panels');
+const { SeriesItem, CheckpointItem } = await import('../../extension/host/runsTree');
 
 const runA = Uri.file('/w/runs/model-a.csv');
 const runB = Uri.file('/w/runs/model-b.csv');
 const runC = Uri.file('/w/runs/model-c.csv');
+
+let seriesListed: { key: string; label: string; files: { path: string; relative: string }[]; folder?: string }[] = [];
+const seriesOpened: string[] = [];
 
 function setup() {
   const compared: [string, string][] = [];
@@ -25,6 +29,8 @@ function setup() {
     showSummary: () => undefined,
     goToQuery: async () => undefined,
     clearRecentComparisons: async () => undefined,
+    runs: { series: async () => seriesListed } as never,
+    openSeries: (group: { key: string }) => void seriesOpened.push(group.key),
   });
   const run = (id: string, ...args: unknown[]) => shared.state.commands.get(id)!(...args);
   return { compared, run, counts: () => ({ refreshed, invalidated }) };
@@ -86,3 +92,29 @@ describe('command table', () => {
     expect(counts()).toEqual({ refreshed: 1, invalidated: 1 });
   });
 });
+
+describe('training series commands', () => {
+  const group = { key: 'folder:training/run-7', label: 'training/run-7/', folder: 'training/run-7', files: [{ path: '/w/training/run-7/epoch-1.csv', relative: 'training/run-7/epoch-1.csv' }] };
+
+  it('opens the series of a Runs view item, or asks which when run from the palette, or says there is none', async () => {
+    const { run } = setup();
+    seriesOpened.length = 0;
+    await run('gainline.openSeries', new SeriesItem(group as never));
+    seriesListed = [group];
+    shared.state.quickPickAnswer = (items) => items.find((i) => i.label === 'training/run-7/');
+    await run('gainline.openSeries');
+    expect(seriesOpened).toEqual([group.key, group.key]);
+    seriesListed = [];
+    await run('gainline.openSeries');
+    expect(shared.state.messages.at(-1)).toMatch(/^No training series found/);
+    expect(seriesOpened).toHaveLength(2);
+  });
+
+  it('inspects a checkpoint of the Runs view in the viewer', async () => {
+    const { run } = setup();
+    shared.state.executed.length = 0;
+    await run('gainline.inspect', new CheckpointItem(Uri.file('/w/training/run-7/epoch-1.csv') as never));
+    expect(shared.state.executed).toEqual([{ id: 'vscode.openWith', args: [Uri.file('/w/training/run-7/epoch-1.csv'), VIEW_TYPE] }]);
+  });
+});
+

@@ -11,7 +11,7 @@ import { DEFAULT_COMPARE_OPTIONS } from '../../extension/engine/compare/compare'
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
 import { parseMetricList } from '../../extension/engine/metrics/parse';
 import { DEFAULT_METRICS } from '../../extension/engine/metrics/registry';
-import { DEFAULT_COMPARE_SETTINGS, DEFAULT_CONVENTION_SETTINGS, DEFAULT_METRIC_KEYS } from '../../extension/presentation/defaults';
+import { DEFAULT_COMPARE_SETTINGS, DEFAULT_CONVENTION_SETTINGS, DEFAULT_METRIC_KEYS, DEFAULT_SERIES_SETTINGS } from '../../extension/presentation/defaults';
 
 const from = (settings: Record<string, unknown>) => (key: string) => settings[key];
 
@@ -22,6 +22,7 @@ describe('readConfig', () => {
     expect(config.conventions).toEqual(DEFAULT_CONVENTIONS);
     expect(config.metrics).toBe(DEFAULT_METRICS);
     expect(config.dumpGlob).toBe(CONFIG_DEFAULTS.dumpGlob);
+    expect(config.series).toEqual({ patterns: [], order: 'number' });
     expect(config.compare).toEqual({ permutations: 10_000, bootstrapResamples: 2000, seed: 1, tieTolerance: 1e-9 });
   });
 
@@ -107,6 +108,8 @@ describe('readConfig', () => {
     expect(defaults['gainline.maxGrade']).toBeNull();
     expect(defaults['gainline.cutoffs']).toBeNull();
     expect(defaults['gainline.dumpGlob']).toBe(CONFIG_DEFAULTS.dumpGlob);
+    expect(defaults['gainline.series.patterns']).toEqual([...DEFAULT_SERIES_SETTINGS.patterns]);
+    expect(defaults['gainline.series.order']).toBe(DEFAULT_SERIES_SETTINGS.order);
     expect(defaults['gainline.compare.permutations']).toBe(DEFAULT_COMPARE_OPTIONS.permutations);
     expect(defaults['gainline.compare.bootstrapResamples']).toBe(DEFAULT_COMPARE_OPTIONS.bootstrap);
     expect(defaults['gainline.compare.seed']).toBe(DEFAULT_COMPARE_OPTIONS.seed);
@@ -162,5 +165,18 @@ describe('conventionsLine', () => {
     for (const part of ['gain exponential', 'ties average', 'no relevant: skip', 'relevant from grade 1', 'RBP persistence 0.8', 'ERR max grade 3']) {
       expect(line).toContain(part);
     }
+  });
+});
+
+describe('training series settings', () => {
+  it('reads patterns and order, and falls back with a note on a bad value', () => {
+    const good = readConfig((key) => ({ 'series.patterns': ['training/*/epoch-*.csv'], 'series.order': 'time' } as Record<string, unknown>)[key]);
+    expect(good.series).toEqual({ patterns: ['training/*/epoch-*.csv'], order: 'time' });
+    const bad = readConfig((key) => ({ 'series.patterns': 'epoch-*.csv', 'series.order': 'name' } as Record<string, unknown>)[key]);
+    expect(bad.series).toEqual({ patterns: [], order: 'number' });
+    expect(bad.problems).toEqual([
+      expect.stringMatching(/^gainline\.series\.patterns: expected a list of glob patterns/),
+      expect.stringMatching(/^gainline\.series\.order: expected one of number, time, found "name"/),
+    ]);
   });
 });

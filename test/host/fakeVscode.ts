@@ -81,6 +81,10 @@ export class TreeItem {
   constructor(readonly label: string, readonly collapsibleState?: number) {}
 }
 
+export class ThemeIcon {
+  constructor(readonly id: string) {}
+}
+
 export class TabInputText {
   constructor(readonly uri: Uri) {}
 }
@@ -116,7 +120,8 @@ export function createFakeVscode() {
     TreeItem,
     TabInputText,
     TabInputCustom,
-    TreeItemCollapsibleState: { None: 0 },
+    TreeItemCollapsibleState: { None: 0, Collapsed: 1 },
+    ThemeIcon,
     commands: {
       registerCommand(id: string, handler: (...args: unknown[]) => unknown) {
         state.commands.set(id, handler);

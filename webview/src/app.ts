@@ -2,7 +2,7 @@
  * The shell: tabs, the loading / error / file-gone panels, the status line, and the routing of host
  * state to the screens. Single-run and compare mode share the bundle; the host's state says which.
  */
-import type { CompareOverviewModel, ExportViewParams, HostToView, OverviewModel, ViewRequests, ViewState, ViewToHost } from '../../extension/protocol/messages';
+import type { CompareOverviewModel, ExportViewParams, HostToView, OverviewModel, SeriesOverviewModel, ViewRequests, ViewState, ViewToHost } from '../../extension/protocol/messages';
 import { RequestClient } from '../../extension/channel/request';
 import { formatCount } from './model/format';
 import { TABS, type TabName } from './tabs';
@@ -32,7 +32,7 @@ export class App implements AppContext {
   private readonly screens = new Map<TabName, Screen>();
   private tabs: TabName[] = [];
   private tab: TabName = 'overview';
-  private mode: 'single' | 'compare' | undefined;
+  private mode: 'single' | 'compare' | 'series' | undefined;
   /** Which panel is on screen: a 'loaded' while the content is shown repeats the load already shown. */
   private showing: 'loading' | 'error' | 'vanished' | 'content' = 'loading';
   private selected: string | null = null;
@@ -69,7 +69,7 @@ export class App implements AppContext {
       this.restored = { tab: tab ?? 'detail', query };
       return;
     }
-    const target: TabName = tab ?? (this.mode === 'compare' ? 'movement' : 'detail');
+    const target: TabName = tab ?? (this.mode === 'compare' ? 'movement' : this.mode === 'series' ? 'trend' : 'detail');
     this.selected = query;
     this.post({ kind: 'selection', query });
     this.selectTab(target);
@@ -118,7 +118,7 @@ export class App implements AppContext {
       return;
     }
     if (message.kind === 'showSummary') {
-      if (this.mode !== undefined) this.selectTab(this.mode === 'compare' ? 'compare' : 'overview');
+      if (this.mode !== undefined) this.selectTab(this.mode === 'compare' ? 'compare' : this.mode === 'series' ? 'trend' : 'overview');
       return;
     }
     if (message.kind === 'state') {
@@ -155,6 +155,7 @@ export class App implements AppContext {
         const keep = (state.status === 'reloaded' || repeat) && this.mode === state.mode;
         performance.mark('gainline-result');
         if (state.mode === 'single') this.loadSingle(state.overview, keep);
+        else if (state.mode === 'series') this.loadSeries(state.series, keep);
         else this.loadCompare(state.compare, keep);
         this.show('content');
         performance.mark('gainline-shown');
@@ -177,6 +178,13 @@ export class App implements AppContext {
     this.fileLabel.textContent = `${model.runA.name} ↔ ${model.runB.name}`;
     this.fileLabel.title = `A: ${model.runA.path}\nB: ${model.runB.path}`;
     this.loadScreens({ mode: 'compare', compare: model }, keep);
+  }
+
+  private loadSeries(model: SeriesOverviewModel, keep: boolean): void {
+    this.compareModel = undefined;
+    this.fileLabel.textContent = `${model.name} — ${formatCount(model.checkpoints.length)} checkpoints`;
+    this.fileLabel.title = model.checkpoints.map((c) => c.path).join('\n');
+    this.loadScreens({ mode: 'series', series: model }, keep);
   }
 
   /** The mode's tabs from the tab table, each screen given the new data; the first tab is home. */

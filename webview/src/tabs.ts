@@ -9,14 +9,15 @@ import { DetailScreen } from './screens/detail';
 import { MovementScreen } from './screens/movement';
 import { OverviewScreen } from './screens/overview';
 import { SegmentsScreen } from './screens/segments';
+import { TrendScreen } from './screens/trend';
 import { WorstScreen } from './screens/worst';
 import type { LoadedView, TabSpec } from './ui/screen';
 
-export type TabName = 'overview' | 'compare' | 'worst' | 'deltas' | 'movement' | 'detail' | 'segments';
+export type TabName = 'overview' | 'compare' | 'worst' | 'deltas' | 'movement' | 'detail' | 'segments' | 'trend';
 
 /** The metric list, conventions and headline of whichever result is loaded. */
 function summaryOf(data: LoadedView | undefined) {
-  const model = data?.mode === 'single' ? data.overview : data?.compare;
+  const model = data?.mode === 'single' ? data.overview : data?.mode === 'compare' ? data.compare : undefined;
   return {
     metrics: model?.metrics ?? [],
     headline: model?.headline ?? 0,
@@ -89,6 +90,19 @@ export const TABS: readonly TabSpec<TabName>[] = [
           const s = summaryOf(d);
           screen.configure({ compare: d.mode === 'compare', columns: s.segmentColumns, metrics: s.metrics, headline: s.headline, conventionsSummary: s.conventions }, keep);
         },
+      };
+    },
+  },
+  {
+    name: 'trend', label: 'Training trend', icon: 'graph-line', modes: ['series'],
+    badge: (d) => (d.mode === 'series' ? formatCount(d.series.checkpoints.length) : undefined),
+    create: (ctx) => {
+      const screen = new TrendScreen(ctx);
+      return {
+        element: screen.element,
+        load: (d, keep) => d.mode === 'series' && screen.render(d.series, keep),
+        showQuery: (q) => screen.show(q),
+        clearQuery: () => screen.clear(),
       };
     },
   },

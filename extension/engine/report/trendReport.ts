@@ -3,7 +3,7 @@ import type { Conventions } from '../metrics/conventions';
 import type { QueryDrop, Trend } from '../trend/trend';
 import { csvField } from './csv';
 import { describeConventions } from '../../presentation/conventionsLine';
-import { formatDelta, formatValue } from '../../presentation/numbers';
+import { formatDelta, formatMeanInterval, formatValue } from '../../presentation/numbers';
 import { conventionsAsJson, jsonNumber } from './reportInput';
 import { alignedTable, clip, markdownTable, type Align } from './textTable';
 
@@ -113,7 +113,7 @@ function trendText(input: TrendReportInput, markdown: boolean): string {
       title(`${spec.key}${peak >= 0 ? ` (peak at ${trend.checkpoints[peak]!.run})` : ''}`) +
         table(
           ['#', 'checkpoint', 'mean', '95% interval', 'queries', ''],
-          trend.checkpoints.map((k, i) => [String(i + 1), k.run, formatValue(k.means[m]!), meanInterval(k.intervals[m]!.low, k.intervals[m]!.high), String(k.counted[m]), i === peak ? 'peak' : '']),
+          trend.checkpoints.map((k, i) => [String(i + 1), k.run, formatValue(k.means[m]!), formatMeanInterval(k.intervals[m]!.low, k.intervals[m]!.high), String(k.counted[m]), i === peak ? 'peak' : '']),
           ['right', 'left', 'right', 'left', 'right', 'left'],
         ),
     );
@@ -135,7 +135,3 @@ function trendText(input: TrendReportInput, markdown: boolean): string {
   return parts.join('\n\n') + '\n';
 }
 
-/** The interval of a mean (not a difference): unsigned bounds. */
-function meanInterval(low: number, high: number): string {
-  return Number.isNaN(low) || Number.isNaN(high) ? formatValue(Number.NaN) : `[${formatValue(low)}, ${formatValue(high)}]`;
-}

@@ -8,7 +8,7 @@ import { Worker } from 'node:worker_threads';
 import { engineActivity, engineSettings } from '../config';
 
 /** The bundled thread entry points (see build.mjs). */
-export type ThreadScript = 'parseWorker' | 'scoreWorker' | 'streamWorker';
+export type ThreadScript = 'parseWorker' | 'scoreWorker' | 'streamWorker' | 'checkpointWorker';
 
 /** The script's path, or undefined when threads are off or the script is not there (work then stays on this thread). */
 export function threadScript(name: ThreadScript): string | undefined {

@@ -101,6 +101,28 @@ export function checkpointColumns(evaluation: Evaluation, queryName: (q: number)
   };
 }
 
+/**
+ * Each metric's 95% interval of one checkpoint's mean. One bootstrap pass per group of metrics counted
+ * on the same queries (usually all of them): the resampled queries are drawn once and feed every column,
+ * as in the comparison's intervals. The seed is the same for every checkpoint, so each interval can be
+ * reproduced on its own, and on whichever thread scored the checkpoint.
+ */
+export async function checkpointIntervals(values: readonly Float64Array[], resamples: number, seed: number): Promise<Interval[]> {
+  const intervals: Interval[] = new Array(values.length);
+  const groups = new Map<string, number[]>();
+  values.forEach((column, m) => {
+    let key = '';
+    for (let q = 0; q < column.length; q++) key += Number.isFinite(column[q]!) ? '1' : '0';
+    groups.set(key, [...(groups.get(key) ?? []), m]);
+  });
+  for (const members of groups.values()) {
+    const columns = members.map((m) => values[m]!.filter(Number.isFinite));
+    const found = await bootstrapMeanIntervals(columns, { resamples, seed });
+    members.forEach((m, i) => (intervals[m] = found[i]!));
+  }
+  return intervals;
+}
+
 interface Stored {
   readonly run: string;
   readonly position: number;
@@ -121,8 +143,12 @@ export class TrendBuilder {
     private readonly options: TrendOptions,
   ) {}
 
-  /** Adds the next checkpoint of the series (in series order). */
-  async add(run: string, position: number, columns: CheckpointColumns): Promise<CheckpointSummary> {
+  /**
+   * Adds the next checkpoint of the series (in series order). `intervals`, when the lane that scored the
+   * checkpoint computed them already, are checkpointIntervals of the same columns with this builder's
+   * bootstrap settings.
+   */
+  async add(run: string, position: number, columns: CheckpointColumns, intervals?: readonly Interval[]): Promise<CheckpointSummary> {
     const n = columns.queryNames.length;
     const ids = new Uint32Array(n);
     for (let q = 0; q < n; q++) {
@@ -136,31 +162,10 @@ export class TrendBuilder {
       ids[q] = id;
     }
     const values = columns.values;
-    const intervals = await this.intervalsOf(values);
-    const summary: CheckpointSummary = { run, position, queries: n, means: columns.means, counted: columns.counted, intervals };
+    const found = intervals ?? (await checkpointIntervals(values, this.options.bootstrap, this.options.seed));
+    const summary: CheckpointSummary = { run, position, queries: n, means: columns.means, counted: columns.counted, intervals: found };
     this.stored.push({ run, position, ids, values, summary });
     return summary;
-  }
-
-  /**
-   * One bootstrap pass per group of metrics counted on the same queries (usually all of them): the
-   * resampled queries are drawn once and feed every column, as in the comparison's intervals. The
-   * seed is the same for every checkpoint, so each interval can be reproduced on its own.
-   */
-  private async intervalsOf(values: readonly Float64Array[]): Promise<Interval[]> {
-    const intervals: Interval[] = new Array(values.length);
-    const groups = new Map<string, number[]>();
-    values.forEach((column, m) => {
-      let key = '';
-      for (let q = 0; q < column.length; q++) key += Number.isFinite(column[q]!) ? '1' : '0';
-      groups.set(key, [...(groups.get(key) ?? []), m]);
-    });
-    for (const members of groups.values()) {
-      const columns = members.map((m) => values[m]!.filter(Number.isFinite));
-      const found = await bootstrapMeanIntervals(columns, { resamples: this.options.bootstrap, seed: this.options.seed });
-      members.forEach((m, i) => (intervals[m] = found[i]!));
-    }
-    return intervals;
   }
 
   finish(): Trend {

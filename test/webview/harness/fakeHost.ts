@@ -18,6 +18,7 @@ import type {
 } from '../../../extension/protocol/messages';
 import { RequestServer, type RequestHandlers } from '../../../extension/channel/request';
 import { seededRandom } from '../../reference/random';
+import { fakeSeries, seriesHandlers } from './fakeSeries';
 
 interface FakeQuery {
   id: string;
@@ -87,7 +88,7 @@ const FULL_METRICS: readonly { key: string; label: string; of: (ndcg: number) =>
 ];
 
 export interface FakeHostOptions {
-  readonly mode: 'single' | 'compare';
+  readonly mode: 'single' | 'compare' | 'series';
   readonly queries: number;
   /** When set, the first state is an error with this message. */
   readonly error?: string;
@@ -108,6 +109,8 @@ export interface FakeHost {
   overview: OverviewModel;
   /** With `holdDiagnostics`: answers the diagnostics requests waiting so far, or fails them with `error`. */
   releaseDiagnostics(error?: string): void;
+  /** The training job writes its next checkpoint: the host reads it and sends the grown series. */
+  growSeries(): void;
 }
 
 export function startFakeHost(options: FakeHostOptions): FakeHost {
@@ -251,6 +254,7 @@ export function startFakeHost(options: FakeHostOptions): FakeHost {
     loadMs: 77,
   };
 
+  let series = fakeSeries(4);
   const handlers: RequestHandlers<ViewRequests> = {
     queryPage: (p) => {
       const rows = list(p.sort?.key ?? 'ndcg@10', p.sort?.descending ?? false, p.filter, p.segment?.value);
@@ -312,6 +316,7 @@ export function startFakeHost(options: FakeHostOptions): FakeHost {
         positions,
       };
     },
+    ...seriesHandlers(() => series),
     compareSegments: (p) => ({ column: p.column, metric: 'ndcg@10', rows: LOCALES.map((value) => ({ value, queries: 10, skipped: 0, meanA: 0.6, meanB: 0.61, delta: 0.01, wins: 5, ties: 2, losses: 3, intervalLow: -0.02, intervalHigh: 0.04, tTestP: 0.41, randomizationP: 0.43 })) }),
   };
 
@@ -336,7 +341,9 @@ export function startFakeHost(options: FakeHostOptions): FakeHost {
     ? { status: 'error', message: options.error }
     : options.mode === 'compare'
       ? { status: 'loaded', mode: 'compare', compare }
-      : { status: 'loaded', mode: 'single', overview };
+      : options.mode === 'series'
+        ? { status: 'loaded', mode: 'series', series }
+        : { status: 'loaded', mode: 'single', overview };
   (window as unknown as { acquireVsCodeApi: () => unknown }).acquireVsCodeApi = () => ({
     postMessage: (message: { kind: string }) => {
       const copy = JSON.parse(JSON.stringify(message));
@@ -350,5 +357,10 @@ export function startFakeHost(options: FakeHostOptions): FakeHost {
   const releaseDiagnostics = (error?: string) => {
     for (const answer of heldDiagnostics.splice(0)) answer(error);
   };
-  return { send: toView, calls, queries, overview, releaseDiagnostics };
+  /** The training job writes its next checkpoint: the host reads it and sends the grown series. */
+  const growSeries = (): void => {
+    series = fakeSeries(series.checkpoints.length + 1);
+    toView({ kind: 'state', state: { status: 'reloaded', mode: 'series', series } });
+  };
+  return { send: toView, calls, queries, overview, releaseDiagnostics, growSeries };
 }

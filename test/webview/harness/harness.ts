@@ -3,7 +3,7 @@ import { startFakeHost } from './fakeHost';
 
 const params = new URLSearchParams(location.search);
 const host = startFakeHost({
-  mode: params.get('mode') === 'compare' ? 'compare' : 'single',
+  mode: params.get('mode') === 'compare' ? 'compare' : params.get('mode') === 'series' ? 'series' : 'single',
   queries: Number(params.get('queries') ?? '500'),
   error: params.get('error') ?? undefined,
   delayMs: Number(params.get('delay') ?? '0'),

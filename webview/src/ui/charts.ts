@@ -8,6 +8,7 @@ import {
   BarElement,
   CategoryScale,
   Chart,
+  Filler,
   Legend,
   LinearScale,
   LineController,
@@ -22,7 +23,7 @@ import {
 import { formatFixed } from '../model/format';
 import { resolvePalette, themeKindFromBodyClass, type ChartPalette } from '../model/themeColors';
 
-Chart.register(BarController, BarElement, CategoryScale, LinearScale, LineController, LineElement, PointElement, ScatterController, Tooltip, Legend);
+Chart.register(BarController, BarElement, CategoryScale, Filler, LinearScale, LineController, LineElement, PointElement, ScatterController, Tooltip, Legend);
 
 let palette: ChartPalette | undefined;
 const live = new Set<{ chart: Chart; restyle: (p: ChartPalette) => void }>();
@@ -281,6 +282,66 @@ export function scatterChart(canvas: HTMLCanvasElement, data: ScatterInput): Cha
     const ds = chart.data.datasets[0] as { pointBackgroundColor?: unknown };
     ds.pointBackgroundColor = pointColors(pal);
     (chart.data.datasets[1] as { borderColor?: unknown }).borderColor = pal.grid;
+    restyleAxes(chart, pal);
+  });
+}
+
+export interface BandInput {
+  /** Category labels along x (one per point). */
+  readonly labels: readonly string[];
+  readonly values: readonly (number | null)[];
+  readonly lower: readonly (number | null)[];
+  readonly upper: readonly (number | null)[];
+  readonly seriesLabel: string;
+  readonly bandLabel: string;
+  /** Index of a point drawn larger (the peak), or null. */
+  readonly marked: number | null;
+  readonly xTitle: string;
+  readonly yTitle: string;
+  /** Tooltip lines of each point. */
+  readonly tooltips: readonly string[];
+  readonly onPick: (index: number) => void;
+}
+
+/**
+ * A line of values with a shaded band between a lower and an upper bound at each point (a mean and its
+ * interval over checkpoints). Clicking a point (or near it on the x axis) picks its index.
+ */
+export function bandChart(canvas: HTMLCanvasElement, data: BandInput): Chart {
+  const p = currentPalette();
+  const radii = data.values.map((_, i) => (i === data.marked ? 6 : 3));
+  const config: ChartConfiguration<'line'> = {
+    type: 'line',
+    data: {
+      labels: [...data.labels],
+      datasets: [
+        { label: `${data.bandLabel} (upper)`, data: [...data.upper], borderWidth: 0, pointRadius: 0, pointHitRadius: 0, fill: false, borderColor: p.seriesAFill, backgroundColor: p.seriesAFill },
+        { label: data.bandLabel, data: [...data.lower], borderWidth: 0, pointRadius: 0, pointHitRadius: 0, fill: '-1', borderColor: p.seriesAFill, backgroundColor: p.seriesAFill },
+        { label: data.seriesLabel, data: [...data.values], borderColor: p.seriesA, backgroundColor: p.seriesA, borderWidth: 2, pointRadius: radii, pointHoverRadius: 7, fill: false },
+      ],
+    },
+    options: {
+      ...baseOptions(p, data.xTitle, data.yTitle),
+      interaction: { mode: 'index', intersect: false },
+      onClick: (_e: ChartEvent, elements: ActiveElement[]) => {
+        const hit = elements.find((e) => e.datasetIndex === 2) ?? elements[0];
+        if (hit) data.onPick(hit.index);
+      },
+      plugins: {
+        ...baseOptions(p, data.xTitle, data.yTitle).plugins,
+        legend: { labels: { color: p.foreground, font: { family: p.font }, filter: (item) => !item.text.endsWith('(upper)') } },
+        tooltip: {
+          filter: (item) => item.datasetIndex === 2,
+          callbacks: { label: (item) => data.tooltips[item.dataIndex] ?? '' },
+        },
+      },
+    },
+  };
+  const chart = new Chart(canvas, config);
+  return track(chart, (pal) => {
+    const [upper, lower, line] = chart.data.datasets;
+    for (const band of [upper, lower]) if (band) band.borderColor = band.backgroundColor = pal.seriesAFill;
+    if (line) line.borderColor = line.backgroundColor = pal.seriesA;
     restyleAxes(chart, pal);
   });
 }

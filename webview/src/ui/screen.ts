@@ -3,13 +3,14 @@
  * (tabs.ts); the shell creates the screens its mode lists, hands each new result to `load`, and a
  * picked query to every screen that shows queries.
  */
-import type { CompareOverviewModel, OverviewModel } from '../../../extension/protocol/messages';
+import type { CompareOverviewModel, OverviewModel, SeriesOverviewModel } from '../../../extension/protocol/messages';
 import type { AppContext } from './context';
 
-/** A result from the host: one run's overview or a comparison. */
+/** A result from the host: one run's overview, a comparison, or a training series. */
 export type LoadedView =
   | { readonly mode: 'single'; readonly overview: OverviewModel }
-  | { readonly mode: 'compare'; readonly compare: CompareOverviewModel };
+  | { readonly mode: 'compare'; readonly compare: CompareOverviewModel }
+  | { readonly mode: 'series'; readonly series: SeriesOverviewModel };
 
 export interface Screen {
   readonly element: HTMLElement;
