@@ -101,7 +101,8 @@ export async function runEval(argv: string[], io: CliIO): Promise<number> {
   }
   if (engine !== 'local') {
     const started = performance.now();
-    const result = await evaluateElsewhere(engine, source, resolve(io.cwd, source), setup, values);
+    // As with the local engine, only the formats that show the sensitivity rows pay for their tables.
+    const result = await evaluateElsewhere(engine, source, resolve(io.cwd, source), setup, values, format === 'table' || format === 'json');
     const scored = performance.now();
     io.out(formatReport(format, { ...result, source }, { worst }));
     if (values.timings) {

@@ -5,7 +5,7 @@
 import * as vscode from 'vscode';
 import { readConfig, type GainlineConfig } from './config';
 import { registerCommands } from './commands';
-import { COMPARE_VIEW_TYPE, ComparePanelSerializer, DumpEditorProvider, SessionRegistry, VIEW_TYPE, openComparePanel } from './panels';
+import { COMPARE_VIEW_TYPE, ComparePanelSerializer, DumpEditorProvider, SessionRegistry, VIEW_TYPE, openComparePanel, openEnginePanel } from './panels';
 import { RankedListsTree } from './rankedListsTree';
 import { RecentComparisons } from './recentComparisons';
 import { goToQuery } from './goToQuery';
@@ -27,7 +27,7 @@ export function activate(context: vscode.ExtensionContext): void {
   // thread at once, so the first click on a dump does not wait for it.
   viewWorker.warm();
   const registry = new SessionRegistry();
-  const deps: SessionDeps = { worker: viewWorker, getConfig, memory: context.workspaceState, log: (line) => output.info(line) };
+  const deps: SessionDeps = { worker: viewWorker, getConfig, memory: context.workspaceState, secrets: context.secrets, log: (line) => output.info(line) };
   const tree = new RankedListsTree(treeWorker, getConfig, context.workspaceState);
   const status = new HeadlineStatus();
   const recent = new RecentComparisons(context.workspaceState);
@@ -55,6 +55,9 @@ export function activate(context: vscode.ExtensionContext): void {
         openComparePanel(a, b, context.extensionUri, deps, registry);
         void recent.remember(a, b);
       },
+      openEngine: (uri, engine) => openEnginePanel(uri, engine, context.extensionUri, deps, registry),
+      secrets: context.secrets,
+      lastTable: { get: () => context.workspaceState.get<string>(LAST_TABLE_KEY), set: (url) => context.workspaceState.update(LAST_TABLE_KEY, url) },
       goToQuery: () => goToQuery(registry),
       clearRecentComparisons: () => recent.clear(),
       refreshAll: () => registry.all().forEach((s) => s.scheduleReload(0)),
@@ -75,6 +78,8 @@ export function activate(context: vscode.ExtensionContext): void {
 }
 
 export function deactivate(): void {}
+
+const LAST_TABLE_KEY = 'gainline.lastClickHouseTable';
 
 function loadConfig(output: vscode.LogOutputChannel): GainlineConfig {
   const settings = vscode.workspace.getConfiguration('gainline');

@@ -9,6 +9,7 @@ import { conventionsLine, compareSettings, evaluationSettings, type GainlineConf
 import { copyText, exportView, revealRow } from './hostActions';
 import { LOAD_TIMEOUT_MS, type EngineWorker } from './workerHost';
 import { sourceFor } from './sources';
+import { engineSource, type SqlEngineName } from './sqlSources';
 import type {
   CompareOverviewModel,
   HostToView,
@@ -21,7 +22,8 @@ import { RemoteError, RequestAbortedError, RequestServer, type RequestHandlers }
 import type { DumpSource } from '../protocol/worker';
 
 export type SessionTarget =
-  | { readonly mode: 'single'; readonly uri: vscode.Uri }
+  /** `engine`: computed where the data lives (a file through DuckDB; `uri` a clickhouse:// table URL). */
+  | { readonly mode: 'single'; readonly uri: vscode.Uri; readonly engine?: SqlEngineName }
   | { readonly mode: 'compare'; readonly a: vscode.Uri; readonly b: vscode.Uri };
 
 export interface SessionDeps {
@@ -31,6 +33,8 @@ export interface SessionDeps {
   readonly memory: vscode.Memento;
   /** One line per load and failure, for the Gainline output channel. */
   readonly log?: (line: string) => void;
+  /** Where the ClickHouse password is kept. */
+  readonly secrets?: vscode.SecretStorage;
   /** Overrides the delay before the Cancel-able notification appears (tests). */
   readonly notificationDelayMs?: number;
 }
@@ -80,7 +84,7 @@ export class ViewSession implements vscode.Disposable {
     this.state = { status: 'loading', mode: target.mode, label: this.label, fraction: null, message: 'Starting…' };
     this.server = new RequestServer<ViewRequests>(this.handlers(), (message) => void this.post(message));
     this.disposables.push(webview.onDidReceiveMessage((message: ViewToHost) => this.onMessage(message)));
-    for (const uri of this.files) this.watch(uri);
+    for (const uri of this.files) if (uri.scheme === 'file') this.watch(uri);
   }
 
   get files(): vscode.Uri[] {
@@ -270,6 +274,11 @@ export class ViewSession implements vscode.Disposable {
   }
 
   private async resolveSources(config: GainlineConfig): Promise<DumpSource[]> {
+    if (this.target.mode === 'single' && this.target.engine) {
+      const { uri, engine } = this.target;
+      const columns = engine === 'duckdb' ? (await sourceFor(uri.fsPath, vscode.workspace.asRelativePath(uri, false), config)).source.columns : undefined;
+      return [await engineSource(engine, uri, config, columns, this.deps.secrets)];
+    }
     const out: DumpSource[] = [];
     for (const uri of this.files) {
       const relative = vscode.workspace.asRelativePath(uri, false);

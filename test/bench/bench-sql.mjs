@@ -8,6 +8,7 @@
 //   node test/bench/bench-sql.mjs --parquet FILE_OR_FOLDER --memory-limit 2GB   (DuckDB only, e.g. 100M rows)
 import { spawn, spawnSync } from 'node:child_process';
 import { createReadStream, existsSync, mkdirSync, statSync } from 'node:fs';
+import { availableParallelism, loadavg } from 'node:os';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { parseArgs } from 'node:util';
@@ -42,7 +43,8 @@ function timedCli(argv, env = {}) {
       const user = Number(/User time \(seconds\): ([\d.]+)/.exec(err)?.[1]);
       const system = Number(/System time \(seconds\): ([\d.]+)/.exec(err)?.[1]);
       const rss = Number(/Maximum resident set size \(kbytes\): (\d+)/.exec(err)?.[1]) / 1024;
-      done({ seconds, cpu: user + system, peakMB: rss, summary: JSON.parse(out).summary });
+      const report = JSON.parse(out);
+      done({ seconds, cpu: user + system, peakMB: rss, summary: report.summary, rows: report.rows ?? report.rowCount ?? NaN, queries: report.queryCount ?? report.queries?.length ?? NaN });
     });
   });
 }
@@ -51,10 +53,14 @@ const fmt = (x, d = 2) => (Number.isFinite(x) ? x.toFixed(d) : '—');
 const line = (label, r, extra = '') =>
   console.log(`${label.padEnd(34)} ${fmt(r.seconds).padStart(7)} s wall ${fmt(r.cpu).padStart(7)} s CPU (this process) ${fmt(r.peakMB, 0).padStart(6)} MB peak${extra}`);
 
+/** The machine is shared: the load average before and after says how much of the wall time was ours. */
+const load = () => loadavg().map((x) => x.toFixed(2)).join(' ');
+
 async function duckdbOnly(path) {
-  console.log(`DuckDB on ${path} (${METRICS}) ${memory.join(' ')}`);
+  console.log(`DuckDB on ${path} (${METRICS}); DuckDB memory_limit ${args['memory-limit'] ?? 'its default (80% of RAM)'}; ${availableParallelism()} cores; load average ${load()}`);
   const r = await timedCli(['eval', path, '--engine', 'duckdb', '--format', 'json', '--metrics', METRICS, ...memory]);
-  line('--engine duckdb', r, `; mean ndcg@10 ${fmt(r.summary['ndcg@10'], 5)}`);
+  line('--engine duckdb', r, `; ${r.rows.toLocaleString('en-US')} rows, ${r.queries.toLocaleString('en-US')} queries; mean ndcg@10 ${fmt(r.summary['ndcg@10'], 5)}`);
+  console.log(`load average after: ${load()} (1, 5, 15 minutes)`);
 }
 
 async function main() {

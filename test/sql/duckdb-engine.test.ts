@@ -8,7 +8,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { parquetWriteBuffer } from 'hyparquet-writer';
 import { afterAll, describe, expect, it } from 'vitest';
-import { evaluateWithDuckDb } from '../../extension/cli/duckdbEngine';
+import { evaluateWithDuckDb } from '../../extension/engine/sql/duckdbRunner';
 import { evaluate } from '../../extension/engine/evaluate/evaluate';
 import type { Conventions, GainConvention, NoRelevantPolicy, TieConvention } from '../../extension/engine/metrics/conventions';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
