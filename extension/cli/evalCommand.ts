@@ -43,8 +43,10 @@ Where the numbers are computed:
   interface), each shard of a Distributed table computing its own queries. The user and password come
   from GAINLINE_CLICKHOUSE_USER and GAINLINE_CLICKHOUSE_PASSWORD; they are never printed.
   The SQL engines compute every metric but tau, and ERR only without average ties (naming either in
-  --metrics is refused; without --metrics they compute the rest of the default list, and say so); they
-  leave out the convention sensitivity rows.
+  --metrics is refused; without --metrics they compute the rest of the default list, and say so). The
+  convention sensitivity rows (table and json formats) cost one more per-query table in SQL for each
+  other gain and tie convention. In the editor: "Gainline: Open Through DuckDB" and "Gainline: Open a
+  ClickHouse Table..." show the same per-query table (settings gainline.duckdb.*, gainline.clickhouse.*).
 ${conventionHelp}`;
 
 const evalOptions = {

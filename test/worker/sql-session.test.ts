@@ -43,7 +43,14 @@ afterAll(() => rmSync(dir, { recursive: true, force: true }));
 async function expectDetailsMatchLocal(session: SqlLoaded, localFile: string, c: Conventions): Promise<void> {
   const dump = await readDump(localFile);
   const metrics = session.evaluation.metrics;
-  const local = evaluate(dump, metrics, c, { sensitivity: false });
+  const local = evaluate(dump, metrics, c);
+  // The sensitivity rows: the same labels, counts and means (each other convention is one more SQL table).
+  expect(session.evaluation.sensitivity.map((r) => [r.label, r.counted, r.unavailable])).toEqual(local.sensitivity.map((r) => [r.label, r.counted, r.unavailable]));
+  session.evaluation.sensitivity.forEach((r, i) => {
+    const expected = local.sensitivity[i]!.mean;
+    if (Number.isNaN(expected)) expect(r.mean, r.label).toBeNaN();
+    else expect(Math.abs(r.mean - expected), r.label).toBeLessThanOrEqual(1e-9);
+  });
   expectSameNumbers({ evaluation: session.evaluation, queryNames: session.table.queryNames }, { evaluation: local, queryNames: dump.queries }, 'overview');
   const k = headlineCutoff(metrics);
   for (let q = 0; q < dump.queries.size; q++) {
@@ -81,7 +88,7 @@ describe('a file served through DuckDB', () => {
     } finally {
       await session.connection.close();
     }
-  });
+  }, 600_000);
 });
 
 describe('a ClickHouse table', () => {
@@ -115,7 +122,8 @@ describe('a ClickHouse table', () => {
     };
     const { session } = await loadSql(source, { metrics: 'ndcg@5,ap,rr,p@3,rbp', conventions: c }, performance.now());
     await expectDetailsMatchLocal(session, file, c);
-  });
+    // One statement per query's detail and per sensitivity table: room for a shared, busy machine.
+  }, 600_000);
 
   it('never shows the password when the server refuses it', async () => {
     const source: DumpSource = {
