@@ -22,12 +22,12 @@ import { gridsReachEveryColumn, revealKeepsViewerUsable } from './scenarios/layo
 import { idealOrderAndStrip, smallThings, statusBarReadable } from './scenarios/firstHour.mjs';
 import { compareFirstHour, compareSurvivesReload, gainlineContainer } from './scenarios/firstHourCompare.mjs';
 import { firstScreenTimes } from './scenarios/firstScreen.mjs';
-import { clickhouseTableUrl, duckdbServedFile } from './scenarios/sqlEngines.mjs';
+import { duckdbServedFile } from './scenarios/sqlEngines.mjs';
 
 const SCENARIOS = [openWithShowsHeadline, reopenWithAndFilter, parquetFromExplorerMenu, worstQueryDetail, rewriteKeepsSelection, compareWinsLosses,
   htmlIdsStayText, malformedShowsError, themesReadable, gridsReachEveryColumn, revealKeepsViewerUsable,
   idealOrderAndStrip, statusBarReadable, smallThings, compareFirstHour, compareSurvivesReload, gainlineContainer, firstScreenTimes,
-  duckdbServedFile, clickhouseTableUrl];
+  duckdbServedFile];
 const SCENARIO_TIMEOUT_MS = 240_000;
 
 const args = process.argv.slice(2);
@@ -80,11 +80,7 @@ async function main() {
     }
     const files = makeWorkspace();
     // The extension ships no native modules: DuckDB is the one installed for the build.
-    const profile = prepareProfile(join(RUN_DIR, 'profile-e2e'), { settings: {
-      'gainline.duckdb.packageFolder': join(REPO_ROOT, 'node_modules', '@duckdb', 'node-api'),
-      // The ClickHouse scenario's table numbers its rows in this column.
-      'gainline.clickhouse.orderColumn': 'row',
-    } });
+    const profile = prepareProfile(join(RUN_DIR, 'profile-e2e'), { settings: { 'gainline.duckdb.packageFolder': join(REPO_ROOT, 'node_modules', '@duckdb', 'node-api') } });
     installVsix(profile, vsix);
     server = await startCodeServer({ folder: files.root, profile, logFile: join(artifacts, 'code-server.log') });
     interruptCleanup = async () => { await browser?.close().catch(() => {}); await server?.stop().catch(() => {}); };
