@@ -17,11 +17,11 @@ const entries = [
     // The editor's views served through DuckDB load it at use, from a folder the user names.
     external: ['@duckdb/node-api'] },
   // Parse worker: one byte range of a large CSV/TSV per thread (found next to the bundle that starts it).
-  { ...common, entryPoints: ['extension/engine/readers/parseWorker.ts'], outfile: 'dist/parseWorker.js', platform: 'node', format: 'cjs' },
+  { ...common, entryPoints: ['extension/engine/threads/parseWorker.ts'], outfile: 'dist/parseWorker.js', platform: 'node', format: 'cjs' },
   // Checkpoint worker: `gainline trend` scores every other checkpoint of a series on it.
   { ...common, entryPoints: ['extension/worker/checkpointWorker.ts'], outfile: 'dist/checkpointWorker.js', platform: 'node', format: 'cjs' },
   // Score worker: one range of queries of a large dump per thread, written into shared columns.
-  { ...common, entryPoints: ['extension/worker/scoreWorker.ts'], outfile: 'dist/scoreWorker.js', platform: 'node', format: 'cjs' },
+  { ...common, entryPoints: ['extension/engine/threads/scoreWorker.ts'], outfile: 'dist/scoreWorker.js', platform: 'node', format: 'cjs' },
 ];
 if (existsSync('extension/host/extension.ts')) {
   entries.push({ ...common, entryPoints: ['extension/host/extension.ts'], outfile: 'dist/extension.js', platform: 'node',

@@ -2,8 +2,9 @@
 //
 // The layers: the engine (extension/engine) is pure and shared by everything else; the protocol
 // (extension/protocol) is the one typed contract between host, worker and webview; the presentation
-// module (extension/presentation) formats numbers and labels without Node or DOM. The webview may
-// reach the extension only through those two. test/lint/boundaries.test.ts feeds each rule a file
+// module (extension/presentation) formats numbers and labels without Node or DOM; the channel
+// (extension/channel) is the request/response helper under the protocol and the engine's threads, and
+// imports nothing. The webview may reach the extension only through those three. test/lint/boundaries.test.ts feeds each rule a file
 // that breaks it, so a rule that stops firing fails the suite.
 import { createNodeResolver, importX } from 'eslint-plugin-import-x';
 import tseslint from 'typescript-eslint';
@@ -25,8 +26,14 @@ export const boundaryZones = [
   {
     target: './webview',
     from: './extension',
-    except: ['./protocol', './presentation'],
-    message: 'The webview reaches the extension only through the protocol and presentation modules.',
+    except: ['./protocol', './presentation', './channel'],
+    message: 'The webview reaches the extension only through the protocol, presentation and channel modules.',
+  },
+  {
+    target: './extension/channel',
+    from: ['./extension/engine', './extension/protocol', './extension/presentation', './extension/host', './extension/worker',
+      './extension/cli', './webview'],
+    message: 'The request/response channel is shared by every layer and depends on none of them.',
   },
   {
     target: './extension/presentation',
@@ -40,7 +47,7 @@ const editorOnly = {
   paths: [{ name: 'vscode', message: 'Only extension/host talks to the editor API.' }],
 };
 
-/** Node built-ins, which do not exist in the webview or in the presentation module. */
+/** Node built-ins, which do not exist in the webview (nor in the modules it shares: presentation, channel). */
 const nodeBuiltins = {
   patterns: [{ regex: '^node:', message: 'The webview and the presentation module run without Node.' }],
   paths: [
@@ -91,7 +98,7 @@ export default tseslint.config(
     rules: { 'no-restricted-imports': ['error', editorOnly] },
   },
   {
-    files: ['webview/**/*.ts', 'extension/presentation/**/*.ts'],
+    files: ['webview/**/*.ts', 'extension/presentation/**/*.ts', 'extension/channel/**/*.ts'],
     rules: { 'no-restricted-imports': ['error', nodeBuiltins] },
   },
 );

@@ -9,10 +9,7 @@
  */
 import { stat } from 'node:fs/promises';
 import { resolve } from 'node:path';
-import { combineCandidates } from '../engine/compare/candidates';
-import { compareRuns, type BaselineMemo, type CompareOptions, type Comparison } from '../engine/compare/compare';
-import type { RankedDump } from '../engine/model/dump';
-import { readDump } from '../engine/readers/index';
+import { combineCandidates, compareRuns, readDump, type BaselineMemo, type CompareOptions, type Comparison, type RankedDump } from '../engine/index';
 import { formatCandidatesJson, formatCandidatesMarkdown, formatCandidatesTable } from '../engine/report/candidatesReport';
 import { formatCandidatesCsv } from '../engine/report/compareCsv';
 import type { CompareFormat } from '../engine/report/compareReport';
@@ -61,6 +58,7 @@ export async function compareCandidates(sources: readonly string[], request: Can
         await compareRuns(base, dump, setup.metrics, setup.conventions, {
           ...statistics,
           baseline: memo,
+          ...(setup.read.threads !== undefined ? { threads: setup.read.threads } : {}),
           onProgress: progress && ((f) => progress.scoring((i + f) / candidates.length)),
         }),
       );

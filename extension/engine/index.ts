@@ -9,7 +9,7 @@
  */
 import { compareRuns as compareScoredRuns, type CompareOptions, type Comparison } from './compare/compare';
 import { CoreMeter } from './evaluate/coreMeter';
-import { evaluateInParallel, type ParallelEvaluateOptions } from './evaluate/parallelEvaluate';
+import { evaluateInParallel, type ParallelEvaluateOptions } from './threads/parallelEvaluate';
 import type { Evaluation } from './evaluate/types';
 import type { Conventions } from './metrics/conventions';
 import type { MetricSpec } from './metrics/registry';
@@ -18,7 +18,8 @@ import { readDump as readDumpFile, type ReadOptions } from './readers/index';
 
 export { configureEngine, DEFAULT_TUNING, type EngineConfiguration, type EngineSettings, type EngineTuning } from './config';
 export type { ChunkOutput } from './evaluate/chunkOutput';
-export type { CompareOptions, Comparison } from './compare/compare';
+export type { BaselineMemo, CompareOptions, Comparison } from './compare/compare';
+export { combineCandidates } from './compare/candidates';
 export type { Evaluation } from './evaluate/types';
 export type { RankedDump, ReadOptions } from './readers/index';
 

@@ -18,7 +18,7 @@ import type {
   ViewState,
   ViewToHost,
 } from '../protocol/messages';
-import { RemoteError, RequestAbortedError, RequestServer, type RequestHandlers } from '../protocol/request';
+import { RemoteError, RequestAbortedError, RequestServer, type RequestHandlers } from '../channel/request';
 import type { DumpSource } from '../protocol/worker';
 
 export type SessionTarget =

@@ -5,7 +5,7 @@
  * No `vscode` import, so the command line and tests use it too.
  */
 import { Worker } from 'node:worker_threads';
-import { RequestAbortedError, RequestClient, RequestTimeoutError, type Method, type ParamsOf, type ResultOf } from '../protocol/request';
+import { RequestAbortedError, RequestClient, RequestTimeoutError, type Method, type ParamsOf, type ResultOf } from '../channel/request';
 import { createCancelFlags, markCancelled } from '../worker/cancelFlags';
 import { isProgressEvent, type WorkerRequests } from '../protocol/worker';
 

@@ -4,7 +4,7 @@
  * undefined number travels as `null`. The webview asks for what it shows, a page at a time; it is
  * never sent a whole dump.
  */
-import type { CancelEnvelope, RequestEnvelope, ResponseEnvelope } from './request';
+import type { CancelEnvelope, RequestEnvelope, ResponseEnvelope } from '../channel/request';
 // Type-only: erased from the webview bundle, which still never loads engine code.
 import type { DegenerateCounts } from '../engine/evaluate/types';
 import type {

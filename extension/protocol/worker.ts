@@ -5,7 +5,7 @@
  */
 import type { Conventions } from '../engine/metrics/conventions';
 import type { CompareOverviewModel, OverviewModel, QueryDetailParams, ViewRequests } from './messages';
-import type { CancelEnvelope, RequestEnvelope, ResponseEnvelope } from './request';
+import type { CancelEnvelope, RequestEnvelope, ResponseEnvelope } from '../channel/request';
 
 /** How to read one dump; mirrors the readers' options. */
 export interface DumpSource {

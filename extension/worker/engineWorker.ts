@@ -21,7 +21,7 @@ import { groupByQuery, type QueryGroups } from '../engine/model/groups';
 import { readSource } from './readSource';
 import { conventionsAsJson } from '../engine/report/reportInput';
 import type { Comparison } from '../engine/compare/compare';
-import { RequestServer, type HandlerContext, type RequestHandlers } from '../protocol/request';
+import { RequestServer, type HandlerContext, type RequestHandlers } from '../channel/request';
 import type { DumpSource, ProgressEvent, WorkerRequests } from '../protocol/worker';
 import { CompareTable, compareOverviewModel } from './compareTable';
 import { QueryTable } from './queryTable';

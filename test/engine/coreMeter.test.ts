@@ -7,7 +7,7 @@ import { spawn } from 'node:child_process';
 import { availableParallelism } from 'node:os';
 import { describe, expect, it } from 'vitest';
 import { CoreMeter, type CoreSample } from '../../extension/engine/evaluate/coreMeter';
-import { scoringThreads } from '../../extension/engine/evaluate/parallelEvaluate';
+import { scoringThreads } from '../../extension/engine/threads/parallelEvaluate';
 
 function scripted(samples: CoreSample[]): () => CoreSample {
   let k = 0;

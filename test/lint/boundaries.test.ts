@@ -80,7 +80,7 @@ const probes: Probe[] = [
     why: 'the webview does not import host code',
     path: 'webview/src/model/probe.ts',
     bad: "import * as config from '../../../extension/host/config';\nexport const c = config;\n",
-    good: "import * as request from '../../../extension/protocol/request';\nexport const r = request;\n",
+    good: "import * as request from '../../../extension/channel/request';\nexport const r = request;\n",
     rule: 'import-x/no-restricted-paths',
   },
   {
@@ -103,6 +103,27 @@ const probes: Probe[] = [
     bad: "import type { GainlineConfig } from '../host/config';\nexport type C = GainlineConfig;\n",
     good: "import type { Conventions } from '../engine/metrics/conventions';\nexport type C = Conventions;\n",
     rule: 'import-x/no-restricted-paths',
+  },
+  {
+    why: 'the engine reaches its threads through the channel, not the protocol',
+    path: 'extension/engine/threads/probe.ts',
+    bad: "import type { WorkerRequests } from '../../protocol/worker';\nexport type W = WorkerRequests;\n",
+    good: "import { RequestClient } from '../../channel/request';\nexport const c = RequestClient;\n",
+    rule: 'import-x/no-restricted-paths',
+  },
+  {
+    why: 'the channel depends on no layer',
+    path: 'extension/channel/probe.ts',
+    bad: "import { InputError } from '../engine/errors';\nexport const e = InputError;\n",
+    good: "import { RemoteError } from './request';\nexport const e = RemoteError;\n",
+    rule: 'import-x/no-restricted-paths',
+  },
+  {
+    why: 'the channel loads no Node built-in (the webview runs it)',
+    path: 'extension/channel/probe.ts',
+    bad: "import { Worker } from 'node:worker_threads';\nexport const w = Worker;\n",
+    good: "export const kinds = ['request', 'response', 'cancel'];\n",
+    rule: 'no-restricted-imports',
   },
   {
     why: 'a source file stays within 400 lines',

@@ -10,7 +10,7 @@ import * as esbuild from 'esbuild';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { EngineWorker } from '../../extension/host/workerHost';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
-import { RemoteError, RequestAbortedError } from '../../extension/protocol/request';
+import { RemoteError, RequestAbortedError } from '../../extension/channel/request';
 import type { EvaluationSettings } from '../../extension/protocol/worker';
 
 const dir = mkdtempSync(join(tmpdir(), 'gainline-worker-'));

@@ -5,7 +5,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { evaluate } from '../../extension/engine/evaluate/evaluate';
-import { evaluateInParallel } from '../../extension/engine/evaluate/parallelEvaluate';
+import { evaluateInParallel } from '../../extension/engine/threads/parallelEvaluate';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
 import { parseMetricList } from '../../extension/engine/metrics/parse';
 import { readDump } from '../../extension/engine/readers/index';

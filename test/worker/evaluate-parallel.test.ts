@@ -8,7 +8,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { CancelledError, InputError } from '../../extension/engine/errors';
 import { evaluate } from '../../extension/engine/evaluate/evaluate';
 import { configureEngine, engineActivity, type EngineSettings } from '../../extension/engine/config';
-import { evaluateInParallel, splitByRows } from '../../extension/engine/evaluate/parallelEvaluate';
+import { evaluateInParallel, splitByRows } from '../../extension/engine/threads/parallelEvaluate';
 import type { Evaluation } from '../../extension/engine/evaluate/types';
 import type { Conventions } from '../../extension/engine/metrics/conventions';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';

@@ -8,7 +8,7 @@ import { CancelledError, InputError } from '../../extension/engine/errors';
 import { gradeRange } from '../../extension/engine/evaluate/evaluate';
 import type { RankedDump } from '../../extension/engine/model/dump';
 import { readDump } from '../../extension/engine/readers/index';
-import { readParallelDelimited } from '../../extension/engine/readers/parallel';
+import { readParallelDelimited } from '../../extension/engine/threads/parallel';
 import { configureEngine } from '../../extension/engine/config';
 import { TempDir } from '../engine/fixtures/readers/tempFiles';
 import { seededRandom } from '../reference/random';

@@ -3,7 +3,7 @@
  * state to the screens. Single-run and compare mode share the bundle; the host's state says which.
  */
 import type { CompareOverviewModel, ExportViewParams, HostToView, OverviewModel, ViewRequests, ViewState, ViewToHost } from '../../extension/protocol/messages';
-import { RequestClient } from '../../extension/protocol/request';
+import { RequestClient } from '../../extension/channel/request';
 import { formatCount } from './model/format';
 import { TABS, type TabName } from './tabs';
 import type { AppContext } from './ui/context';

@@ -15,7 +15,7 @@ import type { RankedDump } from '../model/dump';
 import { DelimitedParser } from './delimited';
 import { detectFormat } from './detect';
 import { readJsonLines } from './jsonLines';
-import { readParallelDelimited, shouldParseInParallel } from './parallel';
+import { readParallelDelimited, shouldParseInParallel } from '../threads/parallel';
 import { readParquet } from './parquet';
 import type { ReadOptions } from './readOptions';
 import { joinJudgments, readJudgmentTable } from './judgments';

@@ -15,7 +15,7 @@ import type {
   ViewRequests,
   ViewState,
 } from '../../../extension/protocol/messages';
-import { RequestServer, type RequestHandlers } from '../../../extension/protocol/request';
+import { RequestServer, type RequestHandlers } from '../../../extension/channel/request';
 import { seededRandom } from '../../reference/random';
 
 interface FakeQuery {

@@ -8,12 +8,13 @@ import {
   RequestTimeoutError,
   type RequestEnvelope,
   type ResponseEnvelope,
-} from '../../extension/protocol/request';
+} from '../../extension/channel/request';
 
 type TestMap = {
   double: { params: { n: number }; result: number };
   fail: { params: { why: string }; result: never };
   slow: { params: { ms: number }; result: string };
+  refuse: { params: { line: number }; result: never };
 };
 
 /** Client and server wired back to back; `deliver` can be swapped to reorder or drop messages. */
@@ -33,6 +34,15 @@ function pair(timeoutMs = 1000) {
           override name = 'InputError';
         }
         throw new InputError(why);
+      },
+      refuse: ({ line }) => {
+        class ShelfError extends Error {
+          override name = 'ShelfError';
+          readonly file = 'stock.tsv';
+          readonly line = line;
+          readonly shelves = [1, 2];
+        }
+        throw new ShelfError(`stock.tsv:${line}: expected a shelf`);
       },
       slow: ({ ms }, { signal, id }) =>
         new Promise((resolve) => {
@@ -68,6 +78,18 @@ describe('RequestClient / RequestServer', () => {
     expect(error).toBeInstanceOf(RemoteError);
     expect(error.message).toBe("run.csv:3: expected a number in column 'score'");
     expect(error.remoteName).toBe('InputError');
+  });
+
+  it("carries the error's own string and number fields, and only those", async () => {
+    const { client, sentToClient } = pair();
+    const error = await client.request('refuse', { line: 7 }).catch((e) => e);
+    expect(error).toBeInstanceOf(RemoteError);
+    expect(error.message).toBe('stock.tsv:7: expected a shelf');
+    expect(error.remoteName).toBe('ShelfError');
+    expect(error.fields).toEqual({ file: 'stock.tsv', line: 7 });
+    // An error without such fields sends none: the envelope stays { name, message }.
+    await client.request('fail', { why: 'no' }).catch(() => undefined);
+    expect(sentToClient.at(-1)).toEqual({ kind: 'response', id: 2, ok: false, error: { name: 'InputError', message: 'no' } });
   });
 
   it('rejects an unknown method instead of hanging', async () => {

@@ -12,12 +12,12 @@ import { CancelledError, InputError } from '../errors';
 import { BytePool, hashBytes, type BytePoolState } from '../model/bytePool';
 import type { RankedDump } from '../model/dump';
 import { addSummaries } from '../model/rowSummary';
-import { ROW_COLUMN_NAMES, ROW_COLUMNS, RowColumns, rowArray, rowArrays, sharedViews, type RowArrays, type RowColumnName, type SharedColumns } from './columns';
-import { DelimitedParser } from './delimited';
-import type { ReadOptions } from './readOptions';
-import { parseRange, type RangeResult, type RangeTask } from './rangeParse';
-import { assertTextHead, checkUnchanged, statStamp, throwIfCancelled } from './source';
-import { startThread, threadScript } from '../threads/spawn';
+import { ROW_COLUMN_NAMES, ROW_COLUMNS, RowColumns, rowArray, rowArrays, sharedViews, type RowArrays, type RowColumnName, type SharedColumns } from '../readers/columns';
+import { DelimitedParser } from '../readers/delimited';
+import type { ReadOptions } from '../readers/readOptions';
+import { parseRange, type RangeResult, type RangeTask } from '../readers/rangeParse';
+import { assertTextHead, checkUnchanged, statStamp, throwIfCancelled } from '../readers/source';
+import { ThreadPool } from './pool';
 
 /**
  * Below this size one thread is faster: a worker starts cold, and the merge re-interns the later
@@ -36,8 +36,8 @@ export async function shouldParseInParallel(path: string, threads: number | unde
 /** Returns undefined when the file cannot be split safely (quotes, no workers available). */
 export async function readParallelDelimited(path: string, format: 'csv' | 'tsv', delimiter: number, threads: number,
   options: ReadOptions): Promise<RankedDump | undefined> {
-  const workerScript = threadScript('parseWorker');
-  if (workerScript === undefined) return undefined;
+  const pool = ThreadPool.forScript<ParseRequests>('parseWorker', Math.max(1, threads - 1));
+  if (pool === undefined) return undefined;
   const stamp = await statStamp(path);
   const header = await readHeader(path, delimiter, options);
   if (header === undefined) return undefined;
@@ -47,7 +47,7 @@ export async function readParallelDelimited(path: string, format: 'csv' | 'tsv',
     path, start, end: bounds[k + 1]!, delimiter, names: header.names, columns: options.columns, chunkBytes: engineSettings().tuning.plainChunkBytes,
     shared: slices[k],
   }));
-  const results = await parseRanges(workerScript, tasks, stamp.size, options);
+  const results = await parseRanges(pool, tasks, stamp.size, options);
   if (results.some((r) => r.kind === 'quoted')) return undefined;
   const lineOffsets = [1];
   for (const r of results) lineOffsets.push(lineOffsets.at(-1)! + (r.kind === 'rows' ? r.lines : 0));
@@ -185,55 +185,36 @@ async function splitPoints(path: string, from: number, size: number, parts: numb
   return points;
 }
 
+/** What a parse thread answers (parseWorker.ts): one byte range of the file, parsed into its own columns and pools. */
+export type ParseRequests = {
+  parseRange: { params: RangeTask; result: RangeResult };
+};
+
 /**
  * Parses the first range on this thread and the others on workers. This thread would otherwise wait
  * idle, and a worker takes about 0.1 s to start: one fewer to start, and that start overlaps useful work.
  */
-function parseRanges(script: string, tasks: RangeTask[], size: number, options: ReadOptions): Promise<RangeResult[]> {
+async function parseRanges(pool: ThreadPool<ParseRequests>, tasks: RangeTask[], size: number, options: ReadOptions): Promise<RangeResult[]> {
   throwIfCancelled(options.signal);
-  return new Promise((resolve, reject) => {
-    const results: (RangeResult | undefined)[] = tasks.map(() => undefined);
-    const done = tasks.map(() => 0);
-    const workers = tasks.slice(1).map((task) => startThread(script, task));
-    let pending = tasks.length;
-    let settled = false;
-    const finish = (err?: Error) => {
-      if (settled) return;
-      settled = true;
-      options.signal?.removeEventListener('abort', onAbort);
-      for (const w of workers) void w.terminate();
-      if (err) reject(err);
-      else resolve(results as RangeResult[]);
-    };
-    const onAbort = () => finish(new CancelledError());
-    options.signal?.addEventListener('abort', onAbort);
-    const progress = (k: number, bytes: number) => {
-      done[k] = bytes;
-      if (size > 0) options.onProgress?.(Math.min(1, done.reduce((a, b) => a + b, 0) / size));
-    };
-    const store = (k: number, result: RangeResult) => {
-      results[k] = result;
-      if (--pending === 0) finish();
-    };
-    workers.forEach((worker, w) => {
-      const k = w + 1;
-      worker.on('message', (msg: { progress?: number; result?: RangeResult; failure?: string }) => {
-        if (msg.progress !== undefined) progress(k, msg.progress);
-        else if (msg.result !== undefined) store(k, msg.result);
-        else if (msg.failure !== undefined) finish(new Error(`parse worker failed: ${msg.failure}`));
-      });
-      worker.on('error', (err) => finish(err));
-      worker.on('exit', (code) => {
-        if (results[k] === undefined) finish(new Error(`parse worker exited with code ${code}`));
-      });
-    });
-    const onBytes = (bytes: number) => {
-      // This thread's parse stops at the next chunk once the read is cancelled or a worker failed.
-      if (settled) throw new CancelledError();
-      progress(0, bytes);
-    };
-    parseRange(tasks[0]!, onBytes).then((result) => store(0, result), (err: unknown) => finish(err instanceof Error ? err : new Error(String(err))));
-  });
+  const done = tasks.map(() => 0);
+  const progress = (k: number, bytes: number) => {
+    done[k] = bytes;
+    if (size > 0) options.onProgress?.(Math.min(1, done.reduce((a, b) => a + b, 0) / size));
+  };
+  let stopped = false;
+  const remote = tasks.slice(1).map((task, w) =>
+    pool.request('parseRange', task, { signal: options.signal, onProgress: (bytes) => progress(w + 1, bytes) }));
+  const onBytes = (bytes: number) => {
+    // This thread's parse stops at the next chunk once the read is cancelled or a worker failed.
+    if (stopped || options.signal?.aborted) throw new CancelledError();
+    progress(0, bytes);
+  };
+  try {
+    return await Promise.all([parseRange(tasks[0]!, onBytes), ...remote]);
+  } finally {
+    stopped = true;
+    void pool.close();
+  }
 }
 
 /** Merges ranges column by column, dropping each range's copy as soon as it is merged to bound peak memory. */

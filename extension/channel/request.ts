@@ -1,5 +1,7 @@
 /**
- * One request/response helper over any postMessage-like transport (webview ⇄ host, host ⇄ worker).
+ * One request/response helper over any postMessage-like transport (webview ⇄ host, host ⇄ worker,
+ * the engine ⇄ its own threads). It imports nothing, so every layer may use it: the engine, which may not
+ * import the protocol, included.
  *
  * Every request carries an id; the answer comes back as a `response` envelope with the same id, in any
  * order. A caller is never left hanging: each request has a timeout, a remote failure rejects with the
@@ -35,11 +37,16 @@ export interface RemoteErrorInfo {
   /** The remote error's class name: 'InputError', 'CancelledError', 'Error', ... */
   readonly name: string;
   readonly message: string;
+  /**
+   * The error's own plain fields (strings and numbers, e.g. an input error's file and line), when it
+   * has any, so the asking side can rebuild an error of the same class with the same message.
+   */
+  readonly fields?: Readonly<Record<string, string | number>>;
 }
 
 /** A failure reported by the other side; `remoteName` keeps the remote class name (e.g. InputError). */
 export class RemoteError extends Error {
-  constructor(readonly remoteName: string, message: string) {
+  constructor(readonly remoteName: string, message: string, readonly fields: Readonly<Record<string, string | number>> = {}) {
     super(message);
     this.name = 'RemoteError';
   }
@@ -155,7 +162,7 @@ export class RequestClient<M extends RequestMap> {
     const entry = this.pending.get(message.id);
     if (!entry) return true; // late answer to a request that timed out or was cancelled
     if (message.ok) this.settle(message.id, undefined, message.result);
-    else this.settle(message.id, new RemoteError(message.error.name, message.error.message));
+    else this.settle(message.id, new RemoteError(message.error.name, message.error.message, message.error.fields));
     return true;
   }
 
@@ -254,7 +261,17 @@ export class RequestServer<M extends RequestMap> {
 }
 
 export function toErrorInfo(error: unknown): RemoteErrorInfo {
-  if (error instanceof RemoteError) return { name: error.remoteName, message: error.message };
-  if (error instanceof Error) return { name: error.name || 'Error', message: error.message };
+  if (error instanceof RemoteError) return withFields({ name: error.remoteName, message: error.message }, error.fields);
+  if (error instanceof Error) return withFields({ name: error.name || 'Error', message: error.message }, error);
   return { name: 'Error', message: String(error) };
+}
+
+/** Adds the source's own string and number fields, but for the ones every error has. */
+function withFields(info: RemoteErrorInfo, source: object): RemoteErrorInfo {
+  const fields: Record<string, string | number> = {};
+  for (const [key, value] of Object.entries(source)) {
+    if (key === 'name' || key === 'message' || key === 'stack' || key === 'remoteName' || key === 'fields') continue;
+    if (typeof value === 'string' || typeof value === 'number') fields[key] = value;
+  }
+  return Object.keys(fields).length > 0 ? { ...info, fields } : info;
 }

@@ -7,9 +7,7 @@
  * evaluate() on one thread (partial sums added together would round differently).
  */
 import { availableParallelism, loadavg } from 'node:os';
-import type { Worker } from 'node:worker_threads';
 import { engineSettings } from '../config';
-import { CancelledError } from '../errors';
 import type { RankedDump } from '../model/dump';
 import { groupByQuery, type QueryGroups } from '../model/groups';
 import type { Conventions } from '../metrics/conventions';
@@ -28,11 +26,11 @@ import {
   type EvaluationSetup,
   type RangeTally,
   type ScoredColumns,
-} from './evaluate';
-import type { SensitivityColumns } from './sensitivity';
-import { renderChunk, type ChunkWork } from './chunkOutput';
-import type { Evaluation, PerQueryColumns } from './types';
-import { startThread, threadScript } from '../threads/spawn';
+} from '../evaluate/evaluate';
+import type { SensitivityColumns } from '../evaluate/sensitivity';
+import { renderChunk, type ChunkWork } from '../evaluate/chunkOutput';
+import type { Evaluation, PerQueryColumns } from '../evaluate/types';
+import { ThreadPool } from './pool';
 
 /**
  * Below this many rows starting a worker costs more than it saves: on 1M rows (0.4 s of scoring on one
@@ -86,21 +84,19 @@ export function scoringThreads(rows: number, threads: number | undefined, otherB
 export async function evaluateInParallel(dump: RankedDump, metrics: readonly MetricSpec[], conventions: Conventions,
   options: ParallelEvaluateOptions = {}): Promise<Evaluation> {
   const threads = Math.min(scoringThreads(dump.rowCount, options.threads, options.otherBusyCores), dump.queries.size);
-  const workerScript = threads <= 1 ? undefined : threadScript('scoreWorker');
-  if (workerScript === undefined) return evaluate(dump, metrics, conventions, options);
+  const pool = threads <= 1 ? undefined : ThreadPool.forScript<ScoreRequests>('scoreWorker', threads - 1);
+  if (pool === undefined) return evaluate(dump, metrics, conventions, options);
   // Started first: a thread takes about 0.1 s to start, time this thread spends grouping and preparing.
-  const running = startWorkers(workerScript, threads - 1, options.signal);
-  // Keep a rejection from going unhandled while this thread is busy with its own chunks.
-  running.catch(() => undefined);
+  pool.warm(threads - 1);
   try {
-    return await scoreWithWorkers(dump, metrics, conventions, options, threads, running);
+    return await scoreWithWorkers(dump, metrics, conventions, options, threads, pool);
   } finally {
-    running.stop();
+    void pool.close();
   }
 }
 
 async function scoreWithWorkers(dump: RankedDump, metrics: readonly MetricSpec[], conventions: Conventions, options: ParallelEvaluateOptions,
-  threads: number, running: Running): Promise<Evaluation> {
+  threads: number, pool: ThreadPool<ScoreRequests>): Promise<Evaluation> {
   const setup = prepareEvaluation(dump, metrics, conventions, { ...options, groups: options.groups ?? sharedGroups(dump) });
   const shared = (bytes: number) => new SharedArrayBuffer(bytes);
   const perQuery = allocatePerQuery(setup.queryCount, metrics, setup.hasRbp, shared);
@@ -113,13 +109,13 @@ async function scoreWithWorkers(dump: RankedDump, metrics: readonly MetricSpec[]
   const output = options.perChunk;
   const work: ChunkWork | undefined = output && { renderer: output.renderer, params: output.params };
   const task: ScoreRangeTask = { setup, columns, bounds, next, perQuery, sensitivity: recorded, ...(work ? { perChunk: work } : {}) };
-  running.post(task);
+  const running = askWorkers(pool, threads - 1, task, options.signal);
   const tally = emptyTally();
   if (engineSettings().tuning.workersFirst) await running.started;
   const scorer = new RangeScorer(setup, dump, perQuery, sensitivity);
   const handOver = output && ((chunk: number, text: string) => output.onChunk(bounds[chunk]!, bounds[chunk + 1]!, text));
   claimChunks(scorer, bounds, next, tally, options, work && handOver && { work, perQuery, into: handOver });
-  for (const result of await running) {
+  for (const result of await running.results) {
     addTally(tally, result.tally);
     if (handOver) for (const [chunk, text] of result.chunkTexts) handOver(chunk, text);
   }
@@ -202,51 +198,27 @@ function unshared(p: PerQueryColumns): PerQueryColumns {
   };
 }
 
-/** Score workers: `post` hands each the task; settles with their results, or rejects on the first failure. */
-type Running = Promise<ScoreRangeResult[]> & { post(task: ScoreRangeTask): void; stop(): void; started: Promise<void> };
+/** What a score thread answers (scoreWorker.ts); it reports progress once, when it claims its first chunk. */
+export type ScoreRequests = {
+  scoreRange: { params: ScoreRangeTask; result: ScoreRangeResult };
+};
 
-function startWorkers(script: string, count: number, signal: AbortSignal | undefined): Running {
-  const workers: Worker[] = [];
-  let stop = () => undefined as void;
-  let markStarted = () => undefined as void;
-  let unstarted = count;
-  const started = new Promise<void>((resolve) => (markStarted = resolve));
-  if (unstarted === 0) markStarted();
-  const promise = new Promise<ScoreRangeResult[]>((resolve, reject) => {
-    const results: (ScoreRangeResult | undefined)[] = new Array(count).fill(undefined);
-    let pending = count;
-    let settled = false;
-    const finish = (err?: Error) => {
-      if (settled) return;
-      settled = true;
-      markStarted();
-      signal?.removeEventListener('abort', onAbort);
-      for (const w of workers) void w.terminate();
-      if (err) reject(err);
-      else resolve(results as ScoreRangeResult[]);
-    };
-    const onAbort = () => finish(new CancelledError());
-    stop = () => finish(new CancelledError());
-    signal?.addEventListener('abort', onAbort);
-    for (let k = 0; k < count; k++) {
-      const worker = startThread(script);
-      workers.push(worker);
-      worker.on('message', (msg: { claimed?: boolean; result?: ScoreRangeResult; failure?: string }) => {
-        if (msg.claimed) {
-          if (--unstarted === 0) markStarted();
-        } else if (msg.result !== undefined) {
-          results[k] = msg.result;
-          if (--pending === 0) finish();
-        } else finish(new Error(`score worker failed: ${msg.failure}`));
-      });
-      worker.on('error', (err) => finish(err));
-      worker.on('exit', (code) => {
-        if (results[k] === undefined) finish(new Error(`score worker exited with code ${code}`));
-      });
-    }
+/** The score workers' answers, and when each has claimed its first chunk (or finished without one). */
+interface Running {
+  readonly results: Promise<ScoreRangeResult[]>;
+  readonly started: Promise<void>;
+}
+
+function askWorkers(pool: ThreadPool<ScoreRequests>, count: number, task: ScoreRangeTask, signal: AbortSignal | undefined): Running {
+  const claims: Promise<void>[] = [];
+  const requests = Array.from({ length: count }, () => {
+    let claimed = () => undefined as void;
+    claims.push(new Promise<void>((resolve) => (claimed = resolve)));
+    const request = pool.request('scoreRange', task, { signal, onProgress: () => claimed() });
+    return request.finally(() => claimed());
   });
-  const post = (task: ScoreRangeTask) => {
-    for (const worker of workers) worker.postMessage(task);
-  };
-  return Object.assign(promise, { post, stop: () => stop(), started });
+  const results = Promise.all(requests);
+  // Keep a rejection from going unhandled while this thread is busy with its own chunks.
+  results.catch(() => undefined);
+  return { results, started: Promise.all(claims).then(() => undefined) };
 }
