@@ -13,7 +13,9 @@ const entries = [
     // DuckDB is a native module, loaded only by --engine duckdb: it stays outside the bundle.
     banner: { js: '#!/usr/bin/env node' }, external: ['@duckdb/node-api'] },
   // Engine worker thread used by the CLI and the extension host for parallel reading.
-  { ...common, entryPoints: ['extension/worker/engineWorker.ts'], outfile: 'dist/engineWorker.js', platform: 'node', format: 'cjs' },
+  { ...common, entryPoints: ['extension/worker/engineWorker.ts'], outfile: 'dist/engineWorker.js', platform: 'node', format: 'cjs',
+    // The editor's views served through DuckDB load it at use, from a folder the user names.
+    external: ['@duckdb/node-api'] },
   // Parse worker: one byte range of a large CSV/TSV per thread (found next to the bundle that starts it).
   { ...common, entryPoints: ['extension/engine/threads/parseWorker.ts'], outfile: 'dist/parseWorker.js', platform: 'node', format: 'cjs' },
   // Checkpoint worker: a lane of a training series (`gainline trend`, the editor's trend view) scores checkpoints on it.

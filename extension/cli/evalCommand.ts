@@ -47,8 +47,10 @@ Where the numbers are computed:
   interface), each shard of a Distributed table computing its own queries. The user and password come
   from GAINLINE_CLICKHOUSE_USER and GAINLINE_CLICKHOUSE_PASSWORD; they are never printed.
   The SQL engines compute every metric but tau, and ERR only without average ties (naming either in
-  --metrics is refused; without --metrics they compute the rest of the default list, and say so); they
-  leave out the convention sensitivity rows.
+  --metrics is refused; without --metrics they compute the rest of the default list, and say so). The
+  convention sensitivity rows (table and json formats) cost one more per-query table in SQL for each
+  other gain and tie convention. In the editor: "Gainline: Open Through DuckDB" and "Gainline: Open a
+  ClickHouse Table..." show the same per-query table (settings gainline.duckdb.*, gainline.clickhouse.*).
 ${conventionHelp}`;
 
 const evalOptions = {
@@ -108,7 +110,8 @@ export async function runEval(argv: string[], io: CliIO): Promise<number> {
   }
   if (engine !== 'local') {
     const started = performance.now();
-    const result = await evaluateElsewhere(engine, source, resolve(io.cwd, source), setup, values);
+    // As with the local engine, only the formats that show the sensitivity rows pay for their tables.
+    const result = await evaluateElsewhere(engine, source, resolve(io.cwd, source), setup, values, format === 'table' || format === 'json');
     const scored = performance.now();
     io.out(formatReport(format, { ...result, source }, { worst }));
     if (values.timings) {

@@ -4,7 +4,7 @@
 import { InputError } from '../engine/errors';
 import { sqlDefaultMetrics } from '../engine/sql/index';
 import type { TableEvaluation } from '../engine/sql/perQueryTable';
-import { isClickHouseUrl } from './clickhouseEngine';
+import { isClickHouseUrl } from '../engine/sql/clickhouseRunner';
 import type { ScoringSetup } from './conventionArgs';
 
 export type EngineName = 'local' | 'duckdb' | 'clickhouse';
@@ -31,9 +31,9 @@ export function chooseEngine(source: string, values: EngineValues): EngineName {
 }
 
 export async function evaluateElsewhere(engine: Exclude<EngineName, 'local'>, source: string, path: string, given: ScoringSetup,
-  values: EngineValues): Promise<TableEvaluation> {
+  values: EngineValues, sensitivity: boolean): Promise<TableEvaluation> {
   const setup = values.metrics === undefined ? { ...given, metrics: sqlDefaultMetrics(given.metrics, given.conventions) } : given;
-  const result = await evaluateOn(engine, source, path, setup, values);
+  const result = await evaluateOn(engine, source, path, setup, values, sensitivity);
   if (setup.metrics.length === given.metrics.length) return result;
   // Said in the report: the default list was shortened, not silently changed.
   const note = `No --metrics given: computed the default metrics SQL can express exactly (${setup.metrics.map((m) => m.key).join(', ')}); ` +
@@ -42,23 +42,23 @@ export async function evaluateElsewhere(engine: Exclude<EngineName, 'local'>, so
 }
 
 async function evaluateOn(engine: Exclude<EngineName, 'local'>, source: string, path: string, setup: ScoringSetup,
-  values: EngineValues): Promise<TableEvaluation> {
+  values: EngineValues, sensitivity: boolean): Promise<TableEvaluation> {
   if (setup.read.judgments !== undefined || setup.read.scores !== undefined) {
     throw new InputError('one table holding query, item, score and grade for the SQL engines', setup.read.judgments !== undefined ? '--judgments' : '--scores');
   }
   if (engine === 'duckdb') {
-    const { evaluateWithDuckDb } = await import('./duckdbEngine');
+    const { evaluateWithDuckDb } = await import('../engine/sql/duckdbRunner');
     const format = setup.read.format;
     if (format !== undefined && format !== 'csv' && format !== 'tsv' && format !== 'parquet') {
       throw new InputError('csv, tsv or parquet for --engine duckdb', '--input-format', undefined, format);
     }
     return evaluateWithDuckDb(path, source, {
       metrics: setup.metrics, conventions: setup.conventions, columns: setup.read.columns, format,
-      memoryLimit: values['memory-limit'], threads: setup.read.threads,
+      memoryLimit: values['memory-limit'], threads: setup.read.threads, sensitivity,
     });
   }
-  const { evaluateWithClickHouse } = await import('./clickhouseEngine');
+  const { evaluateWithClickHouse } = await import('../engine/sql/clickhouseRunner');
   return evaluateWithClickHouse(source, {
-    metrics: setup.metrics, conventions: setup.conventions, columns: setup.read.columns, orderColumn: values['order-column'],
+    metrics: setup.metrics, conventions: setup.conventions, columns: setup.read.columns, orderColumn: values['order-column'], sensitivity,
   });
 }

@@ -8,6 +8,7 @@ import { DumpItem, type RankedListsTree } from './rankedListsTree';
 import { VIEW_TYPE } from './panels';
 import { CheckpointItem, SeriesItem, seriesDescription, type RunsTree } from './runsTree';
 import type { SeriesGroup } from './seriesGroups';
+import { askClickHousePassword, askTableUrl } from './sqlSources';
 
 export interface CommandContext {
   readonly tree: RankedListsTree;
@@ -21,6 +22,11 @@ export interface CommandContext {
   readonly runs: RunsTree;
   /** Opens (or brings forward) the trend view of a series. */
   readonly openSeries: (group: SeriesGroup) => void;
+  /** Opens a view computed by an SQL engine: a file through DuckDB, or a clickhouse:// table URL. */
+  readonly openEngine: (uri: vscode.Uri, engine: 'duckdb' | 'clickhouse') => void;
+  readonly secrets: vscode.SecretStorage;
+  /** The last table URL opened, offered again. */
+  readonly lastTable: { get(): string | undefined; set(url: string): Thenable<void> };
 }
 
 type Handler = (context: CommandContext, ...args: unknown[]) => unknown;
@@ -44,6 +50,17 @@ export const COMMANDS: Readonly<Record<string, Handler>> = {
     if (!b) return;
     ctx.openCompare(a, b);
   },
+  'gainline.openThroughDuckDb': async (ctx, arg) => {
+    const uri = uriOf(arg) ?? activeFile() ?? (await pickDump(ctx, 'File to open through DuckDB'));
+    if (uri) ctx.openEngine(uri, 'duckdb');
+  },
+  'gainline.openClickHouseTable': async (ctx) => {
+    const uri = await askTableUrl(ctx.lastTable.get());
+    if (!uri) return;
+    await ctx.lastTable.set(uri.toString(true));
+    ctx.openEngine(uri, 'clickhouse');
+  },
+  'gainline.setClickHousePassword': (ctx) => askClickHousePassword(ctx.secrets),
   'gainline.showSummary': (ctx) => ctx.showSummary(),
   'gainline.goToQuery': (ctx) => ctx.goToQuery(),
   'gainline.clearRecentComparisons': (ctx) => ctx.clearRecentComparisons(),

@@ -50,8 +50,22 @@ export interface GainlineConfig {
     readonly seed: number;
     readonly tieTolerance: number;
   };
+  /** Views computed where the data lives (ClickHouse tables, files served through DuckDB). */
+  readonly sql: SqlSettings;
   /** One sentence per setting that was ignored. */
   readonly problems: readonly string[];
+}
+
+export interface SqlSettings {
+  readonly clickhouseUser?: string;
+  /** The column giving a ClickHouse table's row order. */
+  readonly clickhouseOrderColumn?: string;
+  /** Column roles of ClickHouse tables whose names are not recognised. */
+  readonly clickhouseColumns?: ColumnMapping;
+  /** DuckDB's memory cap, e.g. "2GB". */
+  readonly duckdbMemoryLimit?: string;
+  /** Folder of an installed @duckdb/node-api (the extension ships no native modules). */
+  readonly duckdbPackageFolder?: string;
 }
 
 /** The shared defaults (presentation/defaults.ts, also the CLI's) plus the editor's own file settings. */
@@ -79,7 +93,7 @@ const POLICIES: readonly NoRelevantPolicy[] = ['skip', 'zero', 'one'];
 /** Settings whose change means open views must be recomputed. */
 export const RECOMPUTE_KEYS = [
   'metrics', 'cutoffs', 'gain', 'ties', 'noRelevant', 'missingQueries', 'relevantFrom', 'rbpPersistence', 'maxGrade', 'columnsByPattern',
-  'sideFilesByPattern',
+  'sideFilesByPattern', 'clickhouse.user', 'clickhouse.orderColumn', 'clickhouse.columns', 'duckdb.memoryLimit', 'duckdb.packageFolder',
   'compare.permutations', 'compare.bootstrapResamples', 'compare.seed', 'compare.tieTolerance',
 ] as const;
 
@@ -147,6 +161,7 @@ export function readConfig(get: SettingGetter): GainlineConfig {
       seed: number('compare.seed', CONFIG_DEFAULTS.seed, Number.isInteger, 'a whole number'),
       tieTolerance: number('compare.tieTolerance', CONFIG_DEFAULTS.tieTolerance, (n) => n >= 0, 'a number >= 0'),
     },
+    sql: readSqlSettings(get, reject),
     problems,
   };
 }
@@ -156,6 +171,29 @@ function readSeriesPatterns(value: unknown, reject: (k: string, e: string, v: un
   if (Array.isArray(value) && value.every((p) => typeof p === 'string' && p.length > 0)) return value as string[];
   reject('series.patterns', 'a list of glob patterns, e.g. ["training/run-7/epoch-*.csv"]', value);
   return CONFIG_DEFAULTS.seriesPatterns;
+}
+
+function readSqlSettings(get: SettingGetter, reject: (k: string, e: string, v: unknown) => void): SqlSettings {
+  const text = (key: string, ok: (v: string) => boolean, expected: string): string | undefined => {
+    const v = get(key);
+    if (v === undefined || v === null || v === '') return undefined;
+    if (typeof v === 'string' && ok(v.trim())) return v.trim();
+    reject(key, expected, v);
+    return undefined;
+  };
+  const user = text('clickhouse.user', () => true, 'a user name');
+  const order = text('clickhouse.orderColumn', () => true, 'a column name');
+  const memory = text('duckdb.memoryLimit', (v) => /^\d+(\.\d+)?\s*(KB|MB|GB|TB|KiB|MiB|GiB|TiB)$/i.test(v), 'a size such as "2GB"');
+  const folder = text('duckdb.packageFolder', () => true, 'a folder path');
+  const columnsValue = get('clickhouse.columns');
+  const columns = columnsValue === undefined || columnsValue === null ? undefined : readColumnsByPattern({ '*': columnsValue }, reject)['*'];
+  return {
+    ...(user ? { clickhouseUser: user } : {}),
+    ...(order ? { clickhouseOrderColumn: order } : {}),
+    ...(columns ? { clickhouseColumns: columns } : {}),
+    ...(memory ? { duckdbMemoryLimit: memory } : {}),
+    ...(folder ? { duckdbPackageFolder: folder } : {}),
+  };
 }
 
 /** [10, 5] → "ndcg@10,ndcg@5,err@10,ap,rr,p@10,p@5,r@10,r@5,rbp,tau" (the first key is the headline). */

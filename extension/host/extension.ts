@@ -5,7 +5,7 @@
 import * as vscode from 'vscode';
 import { readConfig, type GainlineConfig } from './config';
 import { registerCommands } from './commands';
-import { COMPARE_VIEW_TYPE, ComparePanelSerializer, DumpEditorProvider, SeriesPanels, SessionRegistry, VIEW_TYPE, openComparePanel } from './panels';
+import { COMPARE_VIEW_TYPE, ComparePanelSerializer, DumpEditorProvider, SeriesPanels, SessionRegistry, VIEW_TYPE, openComparePanel, openEnginePanel } from './panels';
 import { RankedListsTree } from './rankedListsTree';
 import { RecentComparisons } from './recentComparisons';
 import { RunsTree } from './runsTree';
@@ -30,7 +30,7 @@ export function activate(context: vscode.ExtensionContext): void {
   // thread at once, so the first click on a dump does not wait for it.
   viewWorker.warm();
   const registry = new SessionRegistry();
-  const deps: SessionDeps = { worker: viewWorker, getConfig, memory: context.workspaceState, log: (line) => output.info(line), activatedAt };
+  const deps: SessionDeps = { worker: viewWorker, getConfig, memory: context.workspaceState, log: (line) => output.info(line), secrets: context.secrets, activatedAt };
   const tree = new RankedListsTree(treeWorker, getConfig, context.workspaceState);
   const status = new HeadlineStatus();
   const recent = new RecentComparisons(context.workspaceState);
@@ -81,6 +81,9 @@ export function activate(context: vscode.ExtensionContext): void {
             session.dispose();
           } };
         }),
+      openEngine: (uri, engine) => openEnginePanel(uri, engine, context.extensionUri, deps, registry),
+      secrets: context.secrets,
+      lastTable: { get: () => context.workspaceState.get<string>(LAST_TABLE_KEY), set: (url) => context.workspaceState.update(LAST_TABLE_KEY, url) },
       goToQuery: () => goToQuery(registry),
       clearRecentComparisons: () => recent.clear(),
       refreshAll: () => registry.all().forEach((s) => s.scheduleReload(0)),
@@ -103,6 +106,8 @@ export function activate(context: vscode.ExtensionContext): void {
 }
 
 export function deactivate(): void {}
+
+const LAST_TABLE_KEY = 'gainline.lastClickHouseTable';
 
 function loadConfig(output: vscode.LogOutputChannel): GainlineConfig {
   const settings = vscode.workspace.getConfiguration('gainline');

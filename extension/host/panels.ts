@@ -11,6 +11,7 @@ import { webviewHtml } from './webviewHtml';
 export const VIEW_TYPE = 'gainline.rankedListViewer';
 export const COMPARE_VIEW_TYPE = 'gainline.compareRuns';
 export const SERIES_VIEW_TYPE = 'gainline.trainingTrend';
+export const ENGINE_VIEW_TYPE = 'gainline.computedView';
 
 /** Tracks every open view and which one is in front (for the status bar and commands). */
 export class SessionRegistry implements vscode.Disposable {
@@ -184,6 +185,14 @@ export class ComparePanelSerializer implements vscode.WebviewPanelSerializer<Sav
     }
     attachComparePanel(panel, vscode.Uri.file(runs[0]), vscode.Uri.file(runs[1]), this.extensionUri, this.deps, this.registry);
   }
+}
+
+/** A view computed where the data lives: a ClickHouse table, or a file served through DuckDB. */
+export function openEnginePanel(uri: vscode.Uri, engine: 'duckdb' | 'clickhouse', extensionUri: vscode.Uri, deps: SessionDeps, registry: SessionRegistry): void {
+  const title = `${path.basename(uri.fsPath)} (${engine === 'duckdb' ? 'DuckDB' : 'ClickHouse'})`;
+  const panel = vscode.window.createWebviewPanel(ENGINE_VIEW_TYPE, title, vscode.ViewColumn.Active, { enableFindWidget: true, retainContextWhenHidden: false });
+  configureWebview(panel.webview, extensionUri, 'single', title);
+  openSession(panel, { mode: 'single', uri, engine }, deps, registry);
 }
 
 function openSession(panel: vscode.WebviewPanel, target: SessionTarget, deps: SessionDeps, registry: SessionRegistry): void {

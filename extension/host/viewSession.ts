@@ -8,7 +8,7 @@ import * as vscode from 'vscode';
 import { conventionsLine, compareSettings, evaluationSettings, type GainlineConfig } from './config';
 import { copyText, exportView, revealRow } from './hostActions';
 import { LOAD_TIMEOUT_MS, type EngineWorker } from './workerHost';
-import { sourceFor } from './sources';
+import { resolveViewSources, type SessionTarget } from './viewSources';
 import type {
   CompareOverviewModel,
   HostToView,
@@ -20,9 +20,7 @@ import type {
 import { RemoteError, RequestAbortedError, RequestServer, type RequestHandlers } from '../channel/request';
 import type { DumpSource } from '../protocol/worker';
 
-export type SessionTarget =
-  | { readonly mode: 'single'; readonly uri: vscode.Uri }
-  | { readonly mode: 'compare'; readonly a: vscode.Uri; readonly b: vscode.Uri };
+export type { SessionTarget } from './viewSources';
 
 export interface SessionDeps {
   readonly worker: EngineWorker;
@@ -31,6 +29,8 @@ export interface SessionDeps {
   readonly memory: vscode.Memento;
   /** One line per load and failure, for the Gainline output channel. */
   readonly log?: (line: string) => void;
+  /** Where the ClickHouse password is kept. */
+  readonly secrets?: vscode.SecretStorage;
   /** Overrides the delay before the Cancel-able notification appears (tests). */
   readonly notificationDelayMs?: number;
   /** When the extension was activated (epoch ms), for the first screen's timeline in the log. */
@@ -84,7 +84,7 @@ export class ViewSession implements vscode.Disposable {
     this.state = { status: 'loading', mode: target.mode, label: this.label, fraction: null, message: 'Starting…' };
     this.server = new RequestServer<ViewRequests>(this.handlers(), (message) => void this.post(message));
     this.disposables.push(webview.onDidReceiveMessage((message: ViewToHost) => this.onMessage(message)));
-    for (const uri of this.files) this.watch(uri);
+    for (const uri of this.files) if (uri.scheme === 'file') this.watch(uri);
   }
 
   get files(): vscode.Uri[] {
@@ -189,7 +189,7 @@ export class ViewSession implements vscode.Disposable {
     const config = this.deps.getConfig();
     if (kind === 'loaded') this.setState({ status: 'loading', mode: this.target.mode, label: this.label, fraction: 0, message: 'Reading…' });
     try {
-      this.sources = await this.resolveSources(config);
+      this.sources = await resolveViewSources(this.target, this.files, config, this.deps);
     } catch (error) {
       this.setState({ status: 'error', message: messageOf(error) });
       return;
@@ -277,32 +277,6 @@ export class ViewSession implements vscode.Disposable {
     }
   }
 
-  private async resolveSources(config: GainlineConfig): Promise<DumpSource[]> {
-    const out: DumpSource[] = [];
-    for (const uri of this.files) {
-      const relative = vscode.workspace.asRelativePath(uri, false);
-      const memoryKey = `gainline.judgments:${uri.fsPath}`;
-      const remembered = this.deps.memory.get<string>(memoryKey);
-      const choice = await sourceFor(uri.fsPath, relative, config, remembered);
-      if (!choice.judgmentChoices) {
-        out.push(choice.source);
-        continue;
-      }
-      const judgments = await pickJudgments(uri, choice.judgmentChoices);
-      if (!judgments && !choice.judgmentsRequired) {
-        // Not a run file: with none of the judgments files picked, the dump's own labels are used.
-        out.push(choice.source);
-        continue;
-      }
-      if (!judgments) {
-        throw new Error(`${path.basename(uri.fsPath)} is a run file: it needs a judgments (qrels) file with the grades, and none was chosen.`);
-      }
-      await this.deps.memory.update(memoryKey, judgments);
-      out.push({ ...choice.source, judgments });
-    }
-    return out;
-  }
-
   /** After a worker restart the worker no longer holds this view's data: read it again quietly. */
   private ensureLoaded(): Promise<void> {
     if (this.loadedGeneration === this.deps.worker.generation && this.deps.worker.running) return Promise.resolve();
@@ -379,24 +353,6 @@ export class ViewSession implements vscode.Disposable {
       }),
     );
   }
-}
-
-async function pickJudgments(run: vscode.Uri, candidates: readonly string[]): Promise<string | undefined> {
-  const name = path.basename(run.fsPath);
-  if (candidates.length > 1) {
-    const picked = await vscode.window.showQuickPick(
-      candidates.map((c) => ({ label: path.basename(c), description: vscode.workspace.asRelativePath(c), path: c })),
-      { title: `Judgments (qrels) for ${name}`, placeHolder: 'Which file holds the grades for this run?' },
-    );
-    return picked?.path;
-  }
-  const chosen = await vscode.window.showOpenDialog({
-    title: `Judgments (qrels) for ${name}`,
-    openLabel: 'Use these judgments',
-    canSelectMany: false,
-    defaultUri: vscode.Uri.file(path.dirname(run.fsPath)),
-  });
-  return chosen?.[0]?.fsPath;
 }
 
 function notASeries(): never {

@@ -31,6 +31,18 @@ export interface DumpSource {
   readonly judgmentsFound?: boolean;
   /** With a judgments file: judged queries the dump lacks are left out (`skip`) or score 0 (`zero`). */
   readonly missingQueries?: 'skip' | 'zero';
+  /**
+   * Computed where the data lives instead of read into memory: `duckdb` serves the file at `path`;
+   * `clickhouse` computes on the server of `path` (clickhouse://HOST:PORT/DATABASE.TABLE).
+   */
+  readonly sqlEngine?: 'duckdb' | 'clickhouse';
+  /** ClickHouse: the column giving the rows' order (otherwise the stated no-order rule applies). */
+  readonly orderColumn?: string;
+  /** ClickHouse credentials from the settings and secret storage; never logged or shown. */
+  readonly credentials?: { readonly user?: string; readonly password?: string };
+  /** DuckDB: its memory cap ("2GB"), and the folder of an installed @duckdb/node-api package. */
+  readonly memoryLimit?: string;
+  readonly duckdbModule?: string;
 }
 
 export interface EvaluationSettings {

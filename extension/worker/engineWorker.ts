@@ -31,6 +31,7 @@ import { detailView, metricLabel, movementView, overviewModel, segmentTable } fr
 import { isCancelled } from './cancelFlags';
 import { warmUp } from './warmUp';
 import { SeriesStore } from './seriesStore';
+import { isSqlSource, loadSql, sqlQueryDetail, sqlQueryJson, type SqlLoaded } from './sqlSession';
 
 interface Loaded {
   readonly dump: RankedDump;
@@ -45,7 +46,8 @@ interface Loaded {
 type Session =
   | ({ readonly kind: 'single' } & Loaded)
   | { readonly kind: 'compare'; readonly a: Loaded; readonly b: Loaded; readonly comparison: Comparison; readonly table: CompareTable }
-  | { readonly kind: 'series'; readonly store: SeriesStore };
+  | { readonly kind: 'series'; readonly store: SeriesStore }
+  | SqlLoaded;
 
 const sessions = new Map<string, Session>();
 /** Above this, a view's old data is dropped before reading again rather than kept to answer meanwhile. */
@@ -54,12 +56,26 @@ const KEEP_WHILE_RELOADING_ROWS = 2_000_000;
 function rowsHeld(s: Session | undefined): number {
   if (!s) return 0;
   if (s.kind === 'series') return 0; // per-query columns only; kept so a grown series reads only its new files
-  return s.kind === 'single' ? s.dump.rowCount : s.a.dump.rowCount + s.b.dump.rowCount;
+  return s.kind === 'single' ? s.dump.rowCount : s.kind === 'sql' ? 0 : s.a.dump.rowCount + s.b.dump.rowCount;
+}
+
+/** Forgets a session; an SQL one closes its connection (DuckDB's instance and its spill folder). */
+function drop(key: string): boolean {
+  const s = sessions.get(key);
+  if (s?.kind === 'sql') void s.connection.close();
+  return sessions.delete(key);
+}
+
+/** Keeps a session, closing the one it replaces. */
+function keep(key: string, s: Session): void {
+  const old = sessions.get(key);
+  if (old !== s && old?.kind === 'sql') void old.connection.close();
+  sessions.set(key, s);
 }
 
 /** Small views keep answering pages from their previous data while they are read again. */
 function prepareReload(key: string): void {
-  if (rowsHeld(sessions.get(key)) > KEEP_WHILE_RELOADING_ROWS) sessions.delete(key);
+  if (rowsHeld(sessions.get(key)) > KEEP_WHILE_RELOADING_ROWS) drop(key);
 }
 /** When this thread had loaded its code and could take requests (epoch ms), for the first screen's timeline. */
 const readyAt = Date.now();
@@ -103,6 +119,7 @@ function session(key: string): Session {
 
 function single(key: string): Extract<Session, { kind: 'single' }> {
   const s = session(key);
+  if (s.kind === 'sql') throw new Error('this view is computed by an SQL engine and holds no rows; open the file without an engine for this');
   if (s.kind !== 'single') throw new Error('this request needs a single dump, not a comparison');
   return s;
 }
@@ -118,6 +135,7 @@ function runOf(key: string, run: 'a' | 'b' | undefined): Loaded {
   const s = session(key);
   if (s.kind === 'single') return s;
   if (s.kind === 'series') throw new Error('this request needs a dump or a comparison, not a series');
+  if (s.kind === 'sql') throw new Error('this view is computed by an SQL engine and holds no rows or lines; open the file without an engine for this');
   return run === 'b' ? s.b : s.a;
 }
 
@@ -147,13 +165,20 @@ const handlers: RequestHandlers<WorkerRequests> = {
     const received = Date.now();
     const started = performance.now();
     prepareReload(key);
+    if (isSqlSource(source)) {
+      progressReporter(ctx, 0, 1, `Computing ${source.path.split(/[\\/]/).pop()} in ${source.sqlEngine === 'clickhouse' ? 'ClickHouse' : 'DuckDB'}…`)(0);
+      const { session: loadedSql, overview } = await loadSql(source, settings, started);
+      keep(key, loadedSql);
+      const done = Date.now();
+      return { ...overview, timeline: { threadReady: readyAt, ...(warmedAt ? { warmed: warmedAt } : {}), received, read: done, scored: done } };
+    }
     const dump = await read(source, ctx, 0, 0.75);
     const readDone = Date.now();
     const groups = groupByQuery(dump);
     const metrics = parseMetricList(settings.metrics);
     const evaluation = await evaluateDump(dump, metrics, settings.conventions, { groups, signal: ctx.signal, onProgress: progressReporter(ctx, 0.75, 1, 'Scoring queries…') });
     const entry = loaded(dump, evaluation, groups);
-    sessions.set(key, { kind: 'single', ...entry });
+    keep(key, { kind: 'single', ...entry });
     const overview = {
       ...overviewModel(dump, evaluation, performance.now() - started),
       ...(evaluation.weighting ? { weighting: evaluation.weighting.source } : {}),
@@ -183,7 +208,7 @@ const handlers: RequestHandlers<WorkerRequests> = {
       signal: ctx.signal,
       onProgress: progressReporter(ctx, 0.6, 1, 'Comparing runs…'),
     });
-    sessions.set(key, {
+    keep(key, {
       kind: 'compare',
       a: loaded(a, comparison.evaluationA, groupByQuery(a)),
       b: loaded(b, comparison.evaluationB, groupByQuery(b)),
@@ -195,6 +220,7 @@ const handlers: RequestHandlers<WorkerRequests> = {
 
   async headline({ source, settings }, ctx) {
     warmUpStop.abort();
+    if (isSqlSource(source)) throw new Error('a headline for the tree is read from files, not computed by an SQL engine');
     const dump = await read(source, ctx, 0, 0.8);
     const metrics = parseMetricList(settings.metrics);
     const evaluation = await evaluateDump(dump, metrics, settings.conventions, { signal: ctx.signal, sensitivity: false });
@@ -208,21 +234,26 @@ const handlers: RequestHandlers<WorkerRequests> = {
   },
 
   unload({ session: key }) {
-    return { unloaded: sessions.delete(key) };
+    return { unloaded: drop(key) };
   },
 
   queryPage({ session: key, ...params }) {
-    return single(key).table.page(params);
+    const s = session(key);
+    return (s.kind === 'sql' ? s : single(key)).table.page(params);
   },
 
-  queryDetail({ session: key, query, maxPairs, run }) {
+  async queryDetail({ session: key, query, maxPairs, run }) {
+    const s = session(key);
+    if (s.kind === 'sql') return sqlQueryDetail(s, query, maxPairs);
     const l = runOf(key, run);
     const { id, detail } = detailOf(l, query, maxPairs);
     const rows = detail.positions.map((p) => p.row);
     return { ...detailView(l.dump, l.evaluation, detail, id, l.table), scoresByGrade: scoresByGradeView(scoresByGrade(l.dump, rows, 10)) };
   },
 
-  queryJson({ session: key, query, run }) {
+  async queryJson({ session: key, query, run }) {
+    const s = session(key);
+    if (s.kind === 'sql') return { json: await sqlQueryJson(s, query) };
     const l = runOf(key, run);
     const { id, detail } = detailOf(l, query, 0);
     const values: Record<string, number | null> = {};

@@ -8,10 +8,14 @@ import type { Evaluation } from '../engine/evaluate/types';
 import { lossShares } from '../engine/evaluate/lossShare';
 import type { MaybeNumber, QueryPage, QueryPageParams, QueryRow, SegmentFilter, SortSpec } from '../protocol/messages';
 
+/** The parts of a dump the table reads: an SQL engine's per-query table has query ids and no rows. */
+export type QueryTableDump = Pick<RankedDump, 'queries' | 'segments' | 'joined'>;
+
 export interface QueryTableSource {
-  readonly dump: RankedDump;
+  readonly dump: QueryTableDump;
   readonly evaluation: Evaluation;
-  readonly groups: QueryGroups;
+  /** Rows by query, for segment values; absent when the rows are not held (then there are no segments). */
+  readonly groups?: QueryGroups;
 }
 
 const collator = new Intl.Collator('en', { numeric: true });
@@ -23,7 +27,7 @@ export function toMaybe(value: number): MaybeNumber {
 /** Per query, the interned value of a segment column on the query's first row. */
 export function segmentOfQuery(source: QueryTableSource, column: string): { values: (id: number) => string; ofQuery: Uint32Array } {
   const segment = source.dump.segments.find((s) => s.name === column);
-  if (!segment) throw new Error(`no segment column '${column}'`);
+  if (!segment || !source.groups) throw new Error(`no segment column '${column}'`);
   const { rowsOfQuery, start } = source.groups;
   const ofQuery = new Uint32Array(source.evaluation.queryCount);
   for (let q = 0; q < ofQuery.length; q++) {
@@ -41,6 +45,11 @@ export class QueryTable {
 
   constructor(private readonly source: QueryTableSource) {
     this.shares = lossShares(source.evaluation.perQuery.values[source.evaluation.headline]!);
+  }
+
+  /** Query ids by index into the evaluation's per-query columns. */
+  get queryNames(): QueryTableDump['queries'] {
+    return this.source.dump.queries;
   }
 
   get lossShare(): Float64Array {

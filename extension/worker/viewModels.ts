@@ -93,9 +93,17 @@ function judgmentsView(j: NonNullable<Evaluation['judgments']>): JudgmentsView {
 }
 
 export function overviewModel(dump: RankedDump, evaluation: Evaluation, loadMs: number): OverviewModel {
+  return {
+    ...overviewOf(fileInfo(dump), evaluation, dump.notes.messages, loadMs),
+    segmentColumns: dump.segments.map((s) => s.name),
+  };
+}
+
+/** The overview of an evaluation whose rows are not held here (an SQL engine's per-query table). */
+export function overviewOf(file: FileInfo, evaluation: Evaluation, notes: readonly string[], loadMs: number): OverviewModel {
   const headlineMean = evaluation.summary[evaluation.headline]?.mean ?? NaN;
   return {
-    file: fileInfo(dump),
+    file,
     queryCount: evaluation.queryCount,
     metrics: metricColumns(evaluation),
     headline: evaluation.headline,
@@ -111,8 +119,8 @@ export function overviewModel(dump: RankedDump, evaluation: Evaluation, loadMs: 
     })),
     degenerate: { ...evaluation.degenerate },
     histogram: histogram(evaluation.perQuery.values[evaluation.headline]!, metricRange(evaluation.metrics[evaluation.headline]!)),
-    segmentColumns: dump.segments.map((s) => s.name),
-    warnings: [...evaluation.warnings, ...dump.notes.messages],
+    segmentColumns: [],
+    warnings: [...evaluation.warnings, ...notes],
     ...(evaluation.judgments ? { judgments: judgmentsView(evaluation.judgments) } : {}),
     loadMs: Math.round(loadMs),
   };

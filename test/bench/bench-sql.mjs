@@ -6,8 +6,12 @@
 //
 //   node test/bench/bench-sql.mjs [--rows N] [--queries Q] [--memory-limit 2GB] [--skip-clickhouse]
 //   node test/bench/bench-sql.mjs --parquet FILE_OR_FOLDER --memory-limit 2GB   (DuckDB only, e.g. 100M rows)
+//   node test/bench/bench-sql.mjs --make-parquet FILE --rows 100000000           (writes such a file; not timed)
+// With --format json every engine also computes the convention sensitivity rows (in SQL: one more
+// per-query table per other gain or tie convention), as a user's report would.
 import { spawn, spawnSync } from 'node:child_process';
 import { createReadStream, existsSync, mkdirSync, statSync } from 'node:fs';
+import { availableParallelism, loadavg } from 'node:os';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { parseArgs } from 'node:util';
@@ -20,7 +24,7 @@ const METRICS = 'ndcg@10,ap,rr,p@5,r@10,rbp';
 const { values: args } = parseArgs({
   options: {
     rows: { type: 'string' }, queries: { type: 'string' }, 'memory-limit': { type: 'string' },
-    'skip-clickhouse': { type: 'boolean' }, parquet: { type: 'string' },
+    'skip-clickhouse': { type: 'boolean' }, parquet: { type: 'string' }, 'make-parquet': { type: 'string' },
   },
 });
 const rows = Number(args.rows ?? 10_000_000);
@@ -42,7 +46,8 @@ function timedCli(argv, env = {}) {
       const user = Number(/User time \(seconds\): ([\d.]+)/.exec(err)?.[1]);
       const system = Number(/System time \(seconds\): ([\d.]+)/.exec(err)?.[1]);
       const rss = Number(/Maximum resident set size \(kbytes\): (\d+)/.exec(err)?.[1]) / 1024;
-      done({ seconds, cpu: user + system, peakMB: rss, summary: JSON.parse(out).summary });
+      const report = JSON.parse(out);
+      done({ seconds, cpu: user + system, peakMB: rss, summary: report.summary, rows: report.rows ?? report.rowCount ?? NaN, queries: report.queryCount ?? report.queries?.length ?? NaN });
     });
   });
 }
@@ -51,13 +56,36 @@ const fmt = (x, d = 2) => (Number.isFinite(x) ? x.toFixed(d) : '—');
 const line = (label, r, extra = '') =>
   console.log(`${label.padEnd(34)} ${fmt(r.seconds).padStart(7)} s wall ${fmt(r.cpu).padStart(7)} s CPU (this process) ${fmt(r.peakMB, 0).padStart(6)} MB peak${extra}`);
 
+/** The machine is shared: the load average before and after says how much of the wall time was ours. */
+const load = () => loadavg().map((x) => x.toFixed(2)).join(' ');
+
 async function duckdbOnly(path) {
-  console.log(`DuckDB on ${path} (${METRICS}) ${memory.join(' ')}`);
+  console.log(`DuckDB on ${path} (${METRICS}); DuckDB memory_limit ${args['memory-limit'] ?? 'its default (80% of RAM)'}; ${availableParallelism()} cores; load average ${load()}`);
   const r = await timedCli(['eval', path, '--engine', 'duckdb', '--format', 'json', '--metrics', METRICS, ...memory]);
-  line('--engine duckdb', r, `; mean ndcg@10 ${fmt(r.summary['ndcg@10'], 5)}`);
+  line('--engine duckdb', r, `; ${r.rows.toLocaleString('en-US')} rows, ${r.queries.toLocaleString('en-US')} queries; mean ndcg@10 ${fmt(r.summary['ndcg@10'], 5)}`);
+  console.log(`load average after: ${load()} (1, 5, 15 minutes)`);
+}
+
+/**
+ * A hardware-store dump written by DuckDB straight to Parquet, `queries` queries of rows/queries rows in
+ * query order (so row groups hold whole queries): ids, grades 0–3 and scores from seeded hashes of the row
+ * number, correlated with the grade; some items repeat within a query (drawn from 400,000 SKUs).
+ */
+async function makeParquet(out) {
+  const { DuckDBInstance } = await import('@duckdb/node-api');
+  const db = await DuckDBInstance.create(':memory:', { preserve_insertion_order: 'true' });
+  const c = await db.connect();
+  const perQuery = Math.max(1, Math.round(rows / queries));
+  const grade = `least(3, hash(i, 'grade') % 7 // 2)`;
+  await c.run(`COPY (SELECT 'drill bits set ' || (i // ${perQuery}) AS query, 'SKU-' || (100000 + hash(i, 'item') % 400000) AS product_id,
+    CAST(${grade} AS INTEGER) AS grade, round(${grade} * 0.4 + (hash(i, 'noise') % 100000) / 50000.0 - 1.0, 4) AS score
+    FROM range(${rows}) t(i)) TO '${out.replace(/'/g, "''")}' (FORMAT PARQUET)`);
+  db.closeSync();
+  console.log(`wrote ${out}: ${rows.toLocaleString('en-US')} rows, ${Math.ceil(rows / perQuery).toLocaleString('en-US')} queries`);
 }
 
 async function main() {
+  if (args['make-parquet']) return makeParquet(resolve(args['make-parquet']));
   if (!existsSync(cli)) throw new Error('dist/cli.js is missing: run "npm run build" first');
   if (args.parquet) return duckdbOnly(resolve(args.parquet));
   const dataDir = join(here, 'data');
@@ -80,7 +108,7 @@ async function main() {
     await c.run(`COPY (SELECT query, product_id, CAST(grade AS INTEGER) AS grade, CAST(score AS DOUBLE) AS score FROM ${source}) TO '${parquet}' (FORMAT PARQUET)`);
     db.closeSync();
   }
-  console.log(`${rows.toLocaleString('en-US')} rows, ${queries.toLocaleString('en-US')} queries; metrics ${METRICS}; --format json`);
+  console.log(`${rows.toLocaleString('en-US')} rows, ${queries.toLocaleString('en-US')} queries; metrics ${METRICS}; --format json; ${availableParallelism()} cores; load average ${load()}`);
   const results = [];
   const local = await timedCli(['eval', csv, '--format', 'json', '--metrics', METRICS]);
   line('local engine, CSV', local);
@@ -93,7 +121,7 @@ async function main() {
   if (!args['skip-clickhouse']) results.push(await clickhouse(tsv, local));
   const means = results.map((r) => r.summary['ndcg@10']);
   const agree = means.every((m) => Math.abs(m - means[0]) <= 1e-9);
-  console.log(`mean ndcg@10: ${means.map((m) => fmt(m, 6)).join(', ')} → ${agree ? 'all engines agree' : 'ENGINES DISAGREE'}`);
+  console.log(`mean ndcg@10: ${means.map((m) => fmt(m, 6)).join(', ')} → ${agree ? 'all engines agree' : 'ENGINES DISAGREE'}; load average after: ${load()}`);
   if (!agree) process.exitCode = 1;
 }
 

@@ -23,11 +23,12 @@ import { idealOrderAndStrip, smallThings, statusBarReadable } from './scenarios/
 import { compareFirstHour, compareSurvivesReload, gainlineContainer } from './scenarios/firstHourCompare.mjs';
 import { firstScreenTimes } from './scenarios/firstScreen.mjs';
 import { trendGrowsLive, trendViewMatchesCli } from './scenarios/trend.mjs';
+import { duckdbServedFile } from './scenarios/sqlEngines.mjs';
 
 const SCENARIOS = [openWithShowsHeadline, reopenWithAndFilter, parquetFromExplorerMenu, worstQueryDetail, rewriteKeepsSelection, compareWinsLosses,
   htmlIdsStayText, malformedShowsError, themesReadable, gridsReachEveryColumn, revealKeepsViewerUsable,
   idealOrderAndStrip, statusBarReadable, smallThings, compareFirstHour, compareSurvivesReload, gainlineContainer, firstScreenTimes,
-  trendViewMatchesCli, trendGrowsLive];
+  trendViewMatchesCli, trendGrowsLive, duckdbServedFile];
 const SCENARIO_TIMEOUT_MS = 240_000;
 
 const args = process.argv.slice(2);
@@ -79,7 +80,8 @@ async function main() {
       log(`built and packaged ${relative({ root: REPO_ROOT }, vsix)} (${seconds(Date.now() - t1)})`);
     }
     const files = makeWorkspace();
-    const profile = prepareProfile(join(RUN_DIR, 'profile-e2e'));
+    // The extension ships no native modules: DuckDB is the one installed for the build.
+    const profile = prepareProfile(join(RUN_DIR, 'profile-e2e'), { settings: { 'gainline.duckdb.packageFolder': join(REPO_ROOT, 'node_modules', '@duckdb', 'node-api') } });
     installVsix(profile, vsix);
     server = await startCodeServer({ folder: files.root, profile, logFile: join(artifacts, 'code-server.log') });
     interruptCleanup = async () => { await browser?.close().catch(() => {}); await server?.stop().catch(() => {}); };

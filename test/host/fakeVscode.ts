@@ -21,15 +21,21 @@ export class EventEmitter<T> {
 }
 
 export class Uri {
-  private constructor(readonly fsPath: string, readonly scheme = 'file') {}
+  private constructor(readonly fsPath: string, readonly scheme = 'file', private readonly text?: string) {}
   static file(p: string): Uri {
     return new Uri(p);
+  }
+  /** scheme://authority/path: fsPath is the path, as in the editor's API. */
+  static parse(text: string): Uri {
+    const m = /^([a-z][\w+.-]*):\/\/[^/]*(\/.*)?$/i.exec(text);
+    if (!m) throw new Error(`not a URI: ${text}`);
+    return new Uri(m[2] ?? '/', m[1]!.toLowerCase(), text);
   }
   static joinPath(base: Uri, ...parts: string[]): Uri {
     return new Uri(path.join(base.fsPath, ...parts));
   }
-  toString(): string {
-    return `file://${this.fsPath}`;
+  toString(_skipEncoding?: boolean): string {
+    return this.text ?? `file://${this.fsPath}`;
   }
 }
 
@@ -102,6 +108,8 @@ export interface FakeState {
   shownDocuments: { file: string; selection: Selection }[];
   messages: string[];
   quickPickAnswer: ((items: any[]) => any) | undefined;
+  /** What window.showInputBox answers (undefined: dismissed). */
+  inputBoxAnswer?: ((options: any) => string | undefined) | undefined;
   commands: Map<string, (...args: unknown[]) => unknown>;
   executed: { id: string; args: unknown[] }[];
   activeTab: unknown;
@@ -153,6 +161,7 @@ export function createFakeVscode() {
       showWarningMessage: async (m: string) => void state.messages.push(m),
       setStatusBarMessage: () => ({ dispose() {} }),
       showQuickPick: async (items: any[]) => state.quickPickAnswer?.(items),
+      showInputBox: async (options: any) => state.inputBoxAnswer?.(options),
       showOpenDialog: async () => undefined,
       showSaveDialog: async () => undefined,
       async showTextDocument(document: { file: string }, options: { selection: Selection }) {

@@ -8,7 +8,7 @@ import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { evaluateWithClickHouse } from '../../extension/cli/clickhouseEngine';
+import { evaluateWithClickHouse } from '../../extension/engine/sql/clickhouseRunner';
 import { runCli } from '../../extension/cli/commands';
 import { memoryIO } from '../../extension/cli/io';
 import { evaluate } from '../../extension/engine/evaluate/evaluate';

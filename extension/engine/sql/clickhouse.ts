@@ -28,6 +28,11 @@ export function quoteClickHouse(name: string): string {
   return '`' + name.replace(/\\/g, '\\\\').replace(/`/g, '\\`') + '`';
 }
 
+/** 'text' as a ClickHouse string literal: backslashes and quotes escaped (ClickHouse reads C-style escapes). */
+export function stringClickHouse(text: string): string {
+  return "'" + text.replace(/\\/g, '\\\\').replace(/'/g, "\\'") + "'";
+}
+
 const FIELDS: readonly RowField[] = ['pos', 's', 'm', 'r', 'bef', 'gsum', 'usum', 'rel', 'igain', 'ipos', 'err_r', 'surv'];
 
 const DIALECT: TermDialect = {

@@ -28,7 +28,7 @@ export interface PerQueryTable {
 
 /** Said in every report an SQL engine computed, so the missing rows are never a surprise. */
 export const SQL_ENGINE_NOTE =
-  'Computed in SQL: the convention sensitivity rows, Kendall\'s tau and the inversion counts are left out (the local engine computes them).';
+  'Computed in SQL: Kendall\'s tau and the inversion counts are left out (the local engine computes them).';
 
 export interface TableEvaluation {
   readonly evaluation: Evaluation;

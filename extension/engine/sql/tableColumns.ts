@@ -1,7 +1,7 @@
 /** The per-query table as columns of plain values, read back from DuckDB or ClickHouse. */
-import type { MetricSpec } from '../engine/metrics/registry';
-import { COUNT_COLUMNS, metricColumns } from '../engine/sql/index';
-import type { PerQueryTable } from '../engine/sql/perQueryTable';
+import type { MetricSpec } from '../metrics/registry';
+import { COUNT_COLUMNS, metricColumns } from './request';
+import type { PerQueryTable } from './perQueryTable';
 
 /** Columns as an SQL engine returns them (COUNT_COLUMNS then metric columns; null for NaN) → PerQueryTable. */
 export function tableFromColumns(columns: readonly (readonly unknown[])[], metrics: readonly MetricSpec[]): PerQueryTable {
