@@ -47,7 +47,7 @@ const config = () => readConfig((key) => (SETTINGS as Record<string, unknown>)[k
 beforeAll(async () => {
   for (const entry of ['extension/worker/engineWorker.ts', 'extension/engine/threads/checkpointWorker.ts']) {
     const name = entry.replace(/^.*\/|\.ts$/g, '');
-    await esbuild.build({ entryPoints: [entry], outfile: join(bundles, `${name}.js`), bundle: true, platform: 'node', format: 'cjs', target: 'es2022', logLevel: 'error' });
+    await esbuild.build({ entryPoints: [entry], outfile: join(bundles, `${name}.js`), bundle: true, platform: 'node', format: 'cjs', target: 'es2022', logLevel: 'error', external: ['@duckdb/node-api'] });
   }
   worker = new EngineWorker(join(bundles, 'engineWorker.js'));
   writeFileSync(join(folder, 'epoch-2.csv'), checkpoint(2, 0.3));

@@ -20,7 +20,7 @@ let worker: EngineWorker | undefined;
 beforeAll(async () => {
   await esbuild.build({
     entryPoints: ['extension/worker/engineWorker.ts'], outfile: script, bundle: true, platform: 'node', format: 'cjs',
-    target: 'es2022', logLevel: 'error',
+    target: 'es2022', logLevel: 'error', external: ['@duckdb/node-api'],
   });
 });
 
