@@ -28,7 +28,7 @@ import { duckdbServedFile } from './scenarios/sqlEngines.mjs';
 const SCENARIOS = [openWithShowsHeadline, reopenWithAndFilter, parquetFromExplorerMenu, worstQueryDetail, rewriteKeepsSelection, compareWinsLosses,
   htmlIdsStayText, malformedShowsError, themesReadable, gridsReachEveryColumn, revealKeepsViewerUsable,
   idealOrderAndStrip, statusBarReadable, smallThings, compareFirstHour, compareSurvivesReload, gainlineContainer, firstScreenTimes,
-  trendViewMatchesCli, trendGrowsLive, duckdbServedFile];
+  duckdbServedFile, trendViewMatchesCli, trendGrowsLive];
 const SCENARIO_TIMEOUT_MS = 240_000;
 
 const args = process.argv.slice(2);
