@@ -38,6 +38,15 @@ export function contentSecurityPolicy(cspSource: string, nonce: string): string 
   ].join('; ');
 }
 
+/**
+ * Runs before the bundle is fetched and parsed: keeps the messages that arrive meanwhile (the host
+ * posts a result as soon as it has it, which on a warm engine can be before the bundle has run), so
+ * the app shows them at once instead of waiting for the repeat its 'ready' asks for. The app takes
+ * them from `gainlineEarly` and ends the keeping (webview/src/app.ts, takeEarlyMessages).
+ */
+export const EARLY_MESSAGES = "window.gainlineEarly=[];addEventListener('message',function keep(e){var k=window.gainlineEarly;"
+  + "if(!k){removeEventListener('message',keep);return;}if(k.length===0)performance.mark('gainline-first-message');k.push(e.data);});";
+
 export function webviewHtml(input: WebviewHtmlInput): string {
   const nonce = input.nonce ?? makeNonce();
   const attr = escapeAttribute;
@@ -53,6 +62,7 @@ export function webviewHtml(input: WebviewHtmlInput): string {
 <title>${escapeText(input.title)}</title>
 </head>
 <body data-mode="${attr(input.mode)}">
+<script nonce="${attr(nonce)}">${EARLY_MESSAGES}</script>
 <script nonce="${attr(nonce)}" src="${attr(input.scriptUri)}"></script>
 </body>
 </html>`;

@@ -3,7 +3,7 @@ import { mkdirSync, mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { contentSecurityPolicy, makeNonce, webviewHtml } from '../../extension/host/webviewHtml';
+import { EARLY_MESSAGES, contentSecurityPolicy, makeNonce, webviewHtml } from '../../extension/host/webviewHtml';
 import { formatExport, formatHeadline, suggestedFileName } from '../../extension/host/exportTable';
 import { findJudgmentCandidates, isTextual, needsJudgments, sourceFor } from '../../extension/host/sources';
 import { readConfig } from '../../extension/host/config';
@@ -28,8 +28,29 @@ describe('webview page', () => {
     expect(directives['style-src']).toContain("'nonce-abc123'");
     // Every script element carries the nonce.
     const scripts = page.match(/<script[^>]*>/g)!;
-    expect(scripts).toHaveLength(1);
-    expect(scripts[0]).toContain('nonce="abc123"');
+    expect(scripts).toHaveLength(2);
+    for (const script of scripts) expect(script).toContain('nonce="abc123"');
+  });
+
+  it('keeps the messages that arrive before the bundle has run, and only static code is inline', () => {
+    const inline = /<script nonce="abc123">([^<]*)<\/script>/.exec(page)![1]!;
+    expect(inline).toBe(EARLY_MESSAGES);
+    // The inline script comes first, so it listens before the bundle is fetched.
+    expect(page.indexOf(EARLY_MESSAGES)).toBeLessThan(page.indexOf('dist/webview.js'));
+    // Run it on a stand-in window: messages are kept in order until the app takes them, then ignored.
+    const listeners: ((e: { data: unknown }) => void)[] = [];
+    const win: Record<string, unknown> = {
+      addEventListener: (_: string, f: (e: { data: unknown }) => void) => listeners.push(f),
+      removeEventListener: (_: string, f: (e: { data: unknown }) => void) => listeners.splice(listeners.indexOf(f), 1),
+      performance: { mark: () => undefined },
+    };
+    new Function('window', 'addEventListener', 'removeEventListener', 'performance', inline)(win, win.addEventListener, win.removeEventListener, win.performance);
+    listeners[0]!({ data: { kind: 'state', n: 1 } });
+    listeners[0]!({ data: { kind: 'state', n: 2 } });
+    expect(win.gainlineEarly).toEqual([{ kind: 'state', n: 1 }, { kind: 'state', n: 2 }]);
+    win.gainlineEarly = undefined;
+    listeners[0]!({ data: { kind: 'state', n: 3 } });
+    expect(listeners).toHaveLength(0);
   });
 
   it('links the codicon stylesheet with the id the UI components look for, and escapes the title', () => {

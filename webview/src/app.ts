@@ -53,8 +53,12 @@ export class App implements AppContext {
   mount(parent: HTMLElement): void {
     parent.appendChild(this.root);
     window.addEventListener('message', (e: MessageEvent) => this.onMessage(e.data as HostToView));
+    const early = takeEarlyMessages();
     this.post({ kind: 'ready' });
     performance.mark('gainline-ready');
+    // A result that came before the bundle ran is shown now; the host's repeat after 'ready' is then
+    // a repeat like any other (see onState).
+    for (const message of early) this.onMessage(message);
   }
 
   // ---- AppContext ------------------------------------------------------------------------------
@@ -334,4 +338,15 @@ export class App implements AppContext {
     const runs = this.compareModel ? ([this.compareModel.runA.path, this.compareModel.runB.path] as const) : undefined;
     this.api.setState({ tab: this.tab, query: this.selected, ...(runs ? { runs } : {}) } satisfies SavedState);
   }
+}
+
+/**
+ * The messages kept by the page's inline script (extension/host/webviewHtml.ts, EARLY_MESSAGES) before
+ * this bundle ran; taking them ends the keeping, as the app listens from now on.
+ */
+function takeEarlyMessages(): HostToView[] {
+  const holder = window as unknown as { gainlineEarly?: HostToView[] };
+  const early = holder.gainlineEarly ?? [];
+  holder.gainlineEarly = undefined;
+  return early;
 }
