@@ -13,6 +13,7 @@ import { SeriesSession } from './seriesSession';
 import { goToQuery } from './goToQuery';
 import { HeadlineStatus } from './statusBar';
 import { EngineWorker } from './workerHost';
+import { ForegroundWork } from './foreground';
 import type { SessionDeps } from './viewSession';
 
 export function activate(context: vscode.ExtensionContext): void {
@@ -30,8 +31,10 @@ export function activate(context: vscode.ExtensionContext): void {
   // thread at once, so the first click on a dump does not wait for it.
   viewWorker.warm();
   const registry = new SessionRegistry();
-  const deps: SessionDeps = { worker: viewWorker, getConfig, memory: context.workspaceState, log: (line) => output.info(line), secrets: context.secrets, activatedAt };
-  const tree = new RankedListsTree(treeWorker, getConfig, context.workspaceState);
+  // A view's first screen goes before the tree's background headlines (on two cores they would halve it).
+  const foreground = new ForegroundWork();
+  const deps: SessionDeps = { worker: viewWorker, getConfig, memory: context.workspaceState, log: (line) => output.info(line), secrets: context.secrets, activatedAt, foreground };
+  const tree = new RankedListsTree(treeWorker, getConfig, context.workspaceState, foreground, (line) => output.info(line));
   const status = new HeadlineStatus();
   const recent = new RecentComparisons(context.workspaceState);
   const runs = new RunsTree(() => tree.listFiles(), getConfig);

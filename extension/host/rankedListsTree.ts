@@ -1,7 +1,8 @@
 /**
  * The "Ranked Lists" view: dumps found in the workspace, each with its headline metric. Headlines are
  * computed lazily, one file at a time, on a background worker (so an open view's pages never wait
- * behind them), and cached by file modification time and settings.
+ * behind them), and cached by file modification time and settings. While a view's first screen is
+ * being computed they wait, and one under way is stopped and read again afterwards (foreground.ts).
  */
 import { promises as fsp } from 'node:fs';
 import * as path from 'node:path';
@@ -11,6 +12,8 @@ import { formatHeadline } from './exportTable';
 import { isSideTableName, sourceFor } from './sources';
 import { LOAD_TIMEOUT_MS, type EngineWorker } from './workerHost';
 import { VIEW_TYPE } from './panels';
+import { RequestAbortedError } from '../channel/request';
+import type { ForegroundWork } from './foreground';
 
 type Headline =
   | { readonly state: 'pending' }
@@ -61,6 +64,10 @@ export class RankedListsTree implements vscode.TreeDataProvider<DumpItem>, vscod
     private readonly worker: EngineWorker,
     private readonly getConfig: () => GainlineConfig,
     private readonly memory: vscode.Memento,
+    /** Omitted in tests that do not open views: nothing then waits. */
+    private readonly foreground?: ForegroundWork,
+    /** One line per background read, with its start and end (epoch ms) for the first screen's timeline. */
+    private readonly log?: (line: string) => void,
   ) {
     const watcher = vscode.workspace.createFileSystemWatcher(DUMP_WATCH_GLOB);
     let timer: ReturnType<typeof setTimeout> | undefined;
@@ -131,9 +138,17 @@ export class RankedListsTree implements vscode.TreeDataProvider<DumpItem>, vscod
     if (this.working) return;
     this.working = true;
     try {
-      for (let uri = this.queue.shift(); uri; uri = this.queue.shift()) {
+      for (;;) {
+        await this.foreground?.idle();
+        const uri = this.queue.shift();
+        if (!uri) break;
         const signature = await this.signature(uri);
         const headline = await this.compute(uri);
+        if (headline === 'yielded') {
+          // A first screen started meanwhile: this file is read again once it is shown.
+          this.queue.unshift(uri);
+          continue;
+        }
         this.cache.set(uri.fsPath, { signature, headline });
         this.refresh();
       }
@@ -142,22 +157,33 @@ export class RankedListsTree implements vscode.TreeDataProvider<DumpItem>, vscod
     }
   }
 
-  private async compute(uri: vscode.Uri): Promise<Headline> {
+  private async compute(uri: vscode.Uri): Promise<Headline | 'yielded'> {
     const config = this.getConfig();
+    const yieldTo = new AbortController();
+    const stopListening = this.foreground?.onHold(() => yieldTo.abort());
+    const started = Date.now();
     try {
       const bytes = (await fsp.stat(uri.fsPath)).size;
       if (bytes > MAX_BACKGROUND_BYTES) return { state: 'large', bytes };
       const remembered = this.memory.get<string>(`gainline.judgments:${uri.fsPath}`);
       const choice = await sourceFor(uri.fsPath, vscode.workspace.asRelativePath(uri, false), config, remembered);
       if (choice.judgmentChoices && choice.judgmentsRequired) return { state: 'failed', message: 'Run file: open it once to choose its judgments file.' };
-      const result = await this.worker.call('headline', { source: choice.source, settings: evaluationSettings(config) }, { timeoutMs: LOAD_TIMEOUT_MS });
+      const result = await this.worker.call('headline', { source: choice.source, settings: evaluationSettings(config) },
+        { timeoutMs: LOAD_TIMEOUT_MS, signal: yieldTo.signal });
+      this.log?.(`background headline of ${path.basename(uri.fsPath)}: ${Date.now() - started} ms (epoch ms ${started} to ${Date.now()})`);
       return {
         state: 'done',
         text: formatHeadline(result.label, result.mean),
         tooltip: `${result.queryCount} queries, ${result.rowCount} rows`,
       };
     } catch (error) {
+      if (yieldTo.signal.aborted && error instanceof RequestAbortedError) {
+        this.log?.(`background headline of ${path.basename(uri.fsPath)} stopped for a view's first screen (epoch ms ${started} to ${Date.now()})`);
+        return 'yielded';
+      }
       return { state: 'failed', message: error instanceof Error ? error.message : String(error) };
+    } finally {
+      stopListening?.();
     }
   }
 }

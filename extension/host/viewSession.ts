@@ -18,7 +18,8 @@ import type {
   ViewToHost,
 } from '../protocol/messages';
 import { RemoteError, RequestAbortedError, RequestServer, type RequestHandlers } from '../channel/request';
-import type { DumpSource } from '../protocol/worker';
+import type { DumpSource, FollowUpTimes } from '../protocol/worker';
+import type { ForegroundWork } from './foreground';
 
 export type { SessionTarget } from './viewSources';
 
@@ -35,6 +36,8 @@ export interface SessionDeps {
   readonly notificationDelayMs?: number;
   /** When the extension was activated (epoch ms), for the first screen's timeline in the log. */
   readonly activatedAt?: number;
+  /** Held from the click until the first screen is posted, so background reads wait (foreground.ts). */
+  readonly foreground?: ForegroundWork;
 }
 
 /** What the status bar shows for the view in front. */
@@ -188,9 +191,12 @@ export class ViewSession implements vscode.Disposable {
     let cancelledByUser = false;
     const config = this.deps.getConfig();
     if (kind === 'loaded') this.setState({ status: 'loading', mode: this.target.mode, label: this.label, fraction: 0, message: 'Reading…' });
+    // The first screen goes before background reads; released once it is posted (or failed).
+    const releaseForeground = firstTime ? this.deps.foreground?.hold() : undefined;
     try {
       this.sources = await resolveViewSources(this.target, this.files, config, this.deps);
     } catch (error) {
+      releaseForeground?.();
       this.setState({ status: 'error', message: messageOf(error) });
       return;
     }
@@ -238,6 +244,7 @@ export class ViewSession implements vscode.Disposable {
       this.headlineEmitter.fire(this.headline);
     })();
     const settled = work.then(() => undefined, () => undefined);
+    if (releaseForeground) void settled.then(releaseForeground);
     void vscode.window.withProgress({ location: vscode.ProgressLocation.Window, title: `Gainline: ${this.label}` }, (progress) => {
       attach(progress);
       return settled;
@@ -307,7 +314,16 @@ export class ViewSession implements vscode.Disposable {
       queryPage: (p, { signal }) => ask(() => w.call('queryPage', { ...p, session }, { signal })),
       queryDetail: (p, { signal }) => ask(() => w.call('queryDetail', { ...p, session }, { signal })),
       segments: (p, { signal }) => ask(() => w.call('segments', { ...p, session }, { signal })),
-      overviewDiagnostics: (_p, { signal }) => ask(() => w.call('overviewDiagnostics', { session }, { signal })),
+      overviewDiagnostics: async (_p, { signal }) => {
+        const { times, ...diagnostics } = await ask(() => w.call('overviewDiagnostics', { session }, { signal }));
+        if (times) this.logFollowUp('score diagnostics', times);
+        return diagnostics;
+      },
+      overviewSensitivity: async (_p, { signal }) => {
+        const { rows, times } = await ask(() => w.call('overviewSensitivity', { session }, { signal }));
+        this.logFollowUp('sensitivity rows', times);
+        return rows;
+      },
       comparePage: (p, { signal }) => ask(() => w.call('comparePage', { ...p, session }, { signal })),
       queryMovement: (p, { signal }) => ask(() => w.call('queryMovement', { ...p, session }, { signal })),
       compareSegments: (p, { signal }) => ask(() => w.call('compareSegments', { ...p, session }, { signal })),
@@ -330,6 +346,11 @@ export class ViewSession implements vscode.Disposable {
       openCheckpoint: () => notASeries(),
       compareCheckpoints: () => notASeries(),
     };
+  }
+
+  /** When the worker computed a piece of the overview asked for after its headline, for the first screen's timeline. */
+  private logFollowUp(what: string, times: FollowUpTimes): void {
+    this.deps.log?.(`after the headline of ${this.label}: ${what} in ${times.done - times.started} ms (epoch ms ${times.started} to ${times.done})`);
   }
 
   private conventionsText(): string | undefined {

@@ -9,6 +9,7 @@ vi.mock('vscode', async () => (await import('./fakeVscode')).shared.api);
 
 const { RankedListsTree } = await import('../../extension/host/rankedListsTree');
 const { readConfig } = await import('../../extension/host/config');
+const { RequestAbortedError } = await import('../../extension/channel/request');
 
 const dir = mkdtempSync(join(tmpdir(), 'gainline-tree-'));
 
@@ -91,5 +92,58 @@ describe('RankedListsTree', () => {
       () => readConfig(() => undefined), memento() as never);
     expect((await tree.listFiles()).map((u) => u.fsPath)).toEqual([dump]);
     tree.dispose();
+  });
+});
+
+describe('background headlines and a view\'s first screen (foreground.ts)', () => {
+  it('waits while a first screen is computed, and reads again a headline it stopped for one', async () => {
+    const { ForegroundWork } = await import('../../extension/host/foreground');
+    const file = join(dir, 'model-b.csv');
+    writeFileSync(file, 'query_id,item_id,label,score\nhex key set,k1,1,0.5\n');
+    shared.state.workspaceFiles = [Uri.file(file)];
+    const foreground = new ForegroundWork();
+    const calls: string[] = [];
+    let startedFirst!: () => void;
+    const firstStarted = new Promise<void>((resolve) => (startedFirst = resolve));
+    // The first call hangs until it is aborted (as the worker's read is, by the view's hold); the next answers.
+    const call = vi.fn((_method: string, _params: unknown, options: { signal?: AbortSignal }) => {
+      calls.push(foreground.busy ? 'while held' : 'free');
+      if (calls.length > 1) return Promise.resolve({ key: 'ndcg@10', label: 'NDCG@10', mean: 0.5, queryCount: 1, rowCount: 1 });
+      startedFirst();
+      return new Promise((_resolve, reject) => options.signal!.addEventListener('abort', () => reject(new RequestAbortedError('headline'))));
+    });
+    const lines: string[] = [];
+    const tree = new RankedListsTree({ call } as never, () => readConfig(() => undefined), memento() as never, foreground, (line) => lines.push(line));
+    await tree.getChildren();
+    await firstStarted;
+    const release = foreground.hold();
+    // Stopped, not failed, and not asked again while held: the placeholder stays.
+    await vi.waitFor(() => expect(lines.some((l) => /stopped for a view's first screen/.test(l))).toBe(true));
+    expect((await tree.getChildren())[0]!.description).toBe(PENDING);
+    expect(calls).toEqual(['free']);
+    release();
+    const items = await settled(tree);
+    expect(items[0]!.description).toBe('NDCG@10 0.5000');
+    expect(calls).toEqual(['free', 'free']);
+    expect(lines.at(-1)).toMatch(/^background headline of model-b\.csv: \d+ ms \(epoch ms \d+ to \d+\)$/);
+    tree.dispose();
+  });
+
+  it('counts holds: idle only when every first screen is out, and a release twice counts once', async () => {
+    const { ForegroundWork } = await import('../../extension/host/foreground');
+    const work = new ForegroundWork();
+    const seen: string[] = [];
+    work.onHold(() => seen.push('hold'));
+    const a = work.hold();
+    const b = work.hold();
+    let idle = false;
+    const waiting = work.idle().then(() => (idle = true));
+    a();
+    a();
+    await Promise.resolve();
+    expect([work.busy, idle]).toEqual([true, false]);
+    b();
+    await waiting;
+    expect([work.busy, idle, seen]).toEqual([false, true, ['hold', 'hold']]);
   });
 });
