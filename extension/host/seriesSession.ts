@@ -154,7 +154,7 @@ export class SeriesSession implements vscode.Disposable {
         return { opened: true };
       },
       queryPage: notHere, queryDetail: notHere, segments: notHere, exportView: notHere, copyQueryJson: notHere, revealRow: notHere,
-      compareOverview: notHere, comparePage: notHere, queryMovement: notHere, compareSegments: notHere, overviewDiagnostics: notHere,
+      compareOverview: notHere, comparePage: notHere, queryMovement: notHere, compareSegments: notHere, overviewDiagnostics: notHere, overviewSensitivity: notHere,
     };
   }
 

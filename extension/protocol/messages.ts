@@ -89,6 +89,11 @@ export interface OverviewModel {
   readonly headline: number;
   readonly conventions: ConventionsView;
   readonly sensitivity: readonly SensitivityView[];
+  /**
+   * True when `sensitivity` is left empty so the headline is not kept waiting: the rows take part of a
+   * scoring pass, and the overview asks for them (`overviewSensitivity`) once its headline is painted.
+   */
+  readonly sensitivityLater?: boolean;
   readonly degenerate: DegenerateView;
   readonly histogram: Histogram;
   /** Names of the extra columns available for `segments` and the segment filter. */
@@ -323,6 +328,8 @@ export type ViewRequests = {
   queryDetail: { params: QueryDetailParams; result: QueryDetailView };
   segments: { params: SegmentsParams; result: SegmentTable };
   overviewDiagnostics: { params: Record<string, never>; result: ScoreDiagnosticsView };
+  /** The headline under other conventions, when the overview came with `sensitivityLater`. */
+  overviewSensitivity: { params: Record<string, never>; result: readonly SensitivityView[] };
   exportView: { params: ExportViewParams; result: ExportResult };
   copyQueryJson: { params: CopyQueryJsonParams; result: { copied: boolean } };
   revealRow: { params: RevealRowParams; result: RevealResult };

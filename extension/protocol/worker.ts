@@ -99,6 +99,12 @@ export interface LoadTimeline {
   readonly scored: number;
 }
 
+/** When the worker started and ended a piece of the overview asked for after its headline (epoch ms). */
+export interface FollowUpTimes {
+  readonly started: number;
+  readonly done: number;
+}
+
 /** One dump file of a series, as the host found it in the folder. */
 export interface SeriesFileInfo {
   readonly source: DumpSource;
@@ -143,7 +149,8 @@ export type WorkerRequests = {
     result: { readonly line: number; readonly offset: number; readonly path: string };
   };
   segments: Forwarded<'segments'>;
-  overviewDiagnostics: { params: { readonly session: string }; result: ViewRequests['overviewDiagnostics']['result'] };
+  overviewDiagnostics: { params: { readonly session: string }; result: ViewRequests['overviewDiagnostics']['result'] & { readonly times?: FollowUpTimes } };
+  overviewSensitivity: { params: { readonly session: string }; result: { readonly rows: ViewRequests['overviewSensitivity']['result']; readonly times: FollowUpTimes } };
   comparePage: Forwarded<'comparePage'>;
   queryMovement: Forwarded<'queryMovement'>;
   compareSegments: Forwarded<'compareSegments'>;

@@ -26,7 +26,9 @@ import { CompareTable, compareOverviewModel } from './compareTable';
 import { QueryTable } from './queryTable';
 import { scoresByGrade } from '../engine/evaluate/diagnostics';
 import { overviewDiagnostics, scoresByGradeView } from './diagnosticsView';
-import type { ScoreDiagnosticsView } from '../protocol/messages';
+import type { ScoreDiagnosticsView, SensitivityView } from '../protocol/messages';
+import type { Conventions } from '../engine/metrics/conventions';
+import { sensitivityLater } from './sensitivityLater';
 import { detailView, metricLabel, movementView, overviewModel, segmentTable } from './viewModels';
 import { isCancelled } from './cancelFlags';
 import { warmUp } from './warmUp';
@@ -42,6 +44,10 @@ interface Loaded {
   readonly table: QueryTable;
   /** Computed when the overview first asks for it (after its headline is on screen), then kept. */
   diagnostics?: ScoreDiagnosticsView;
+  /** Set when the load scored without the sensitivity rows: the conventions to score them under. */
+  readonly sensitivityConventions?: Conventions;
+  /** The rows once asked for (after the headline is on screen), then kept. */
+  sensitivity?: Promise<SensitivityView[]>;
 }
 type Session =
   | ({ readonly kind: 'single' } & Loaded)
@@ -176,11 +182,14 @@ const handlers: RequestHandlers<WorkerRequests> = {
     const readDone = Date.now();
     const groups = groupByQuery(dump);
     const metrics = parseMetricList(settings.metrics);
-    const evaluation = await evaluateDump(dump, metrics, settings.conventions, { groups, signal: ctx.signal, onProgress: progressReporter(ctx, 0.75, 1, 'Scoring queries…') });
+    // Without the sensitivity rows: the headline goes first, the rows follow on their own request.
+    const evaluation = await evaluateDump(dump, metrics, settings.conventions,
+      { groups, signal: ctx.signal, onProgress: progressReporter(ctx, 0.75, 1, 'Scoring queries…'), sensitivity: false });
     const entry = loaded(dump, evaluation, groups);
-    keep(key, { kind: 'single', ...entry });
+    keep(key, { kind: 'single', ...entry, sensitivityConventions: settings.conventions });
     const overview = {
       ...overviewModel(dump, evaluation, performance.now() - started),
+      sensitivityLater: true,
       ...(evaluation.weighting ? { weighting: evaluation.weighting.source } : {}),
       ...(dump.joined?.queryText ? { queryText: true } : {}),
     };
@@ -189,8 +198,20 @@ const handlers: RequestHandlers<WorkerRequests> = {
 
   overviewDiagnostics({ session: key }) {
     const s = single(key);
+    const started = Date.now();
     s.diagnostics ??= overviewDiagnostics(s.dump, s.evaluation, s.groups);
-    return s.diagnostics;
+    return { ...s.diagnostics, times: { started, done: Date.now() } };
+  },
+
+  async overviewSensitivity({ session: key }) {
+    const s = single(key);
+    const started = Date.now();
+    const conventions = s.sensitivityConventions;
+    // A session scored with its rows (none is, today) has them in its evaluation already.
+    s.sensitivity ??= conventions ? sensitivityLater(s.dump, s.groups, s.evaluation, conventions) : Promise.resolve(overviewModel(s.dump, s.evaluation, 0).sensitivity.slice());
+    // A failure is not kept: asking again computes again.
+    s.sensitivity.catch(() => (s.sensitivity = undefined));
+    return { rows: await s.sensitivity, times: { started, done: Date.now() } };
   },
 
   async loadCompare({ session: key, a: sourceA, b: sourceB, settings }, ctx) {

@@ -24,6 +24,7 @@ import type {
   OverviewModel,
   QueryDetailView,
   SegmentTable,
+  SensitivityView,
 } from '../protocol/messages';
 import { toMaybe, type QueryTable } from './queryTable';
 
@@ -99,6 +100,22 @@ export function overviewModel(dump: RankedDump, evaluation: Evaluation, loadMs: 
   };
 }
 
+/**
+ * The convention sensitivity rows of `evaluation`, each with its Δ against `headlineMean` (the
+ * overview's headline, which may come from another evaluation of the same dump: see engineWorker.ts).
+ */
+export function sensitivityRows(evaluation: Evaluation, headlineMean: number): SensitivityView[] {
+  return evaluation.sensitivity.map((row) => ({
+    label: row.label,
+    mean: toMaybe(row.mean),
+    counted: row.counted,
+    delta: toMaybe(row.mean - headlineMean),
+    // The sensitivity pass reuses the configured gain object for its "as configured" rows.
+    current: row.conventions.gain === evaluation.conventions.gain && row.conventions.ties === evaluation.conventions.ties && row.conventions.noRelevant === evaluation.conventions.noRelevant,
+    ...(row.unavailable !== undefined ? { unavailable: row.unavailable } : {}),
+  }));
+}
+
 /** The overview of an evaluation whose rows are not held here (an SQL engine's per-query table). */
 export function overviewOf(file: FileInfo, evaluation: Evaluation, notes: readonly string[], loadMs: number): OverviewModel {
   const headlineMean = evaluation.summary[evaluation.headline]?.mean ?? NaN;
@@ -108,15 +125,7 @@ export function overviewOf(file: FileInfo, evaluation: Evaluation, notes: readon
     metrics: metricColumns(evaluation),
     headline: evaluation.headline,
     conventions: conventionsView(evaluation.conventions),
-    sensitivity: evaluation.sensitivity.map((row) => ({
-      label: row.label,
-      mean: toMaybe(row.mean),
-      counted: row.counted,
-      delta: toMaybe(row.mean - headlineMean),
-      // The sensitivity pass reuses the configured gain object for its "as configured" rows.
-      current: row.conventions.gain === evaluation.conventions.gain && row.conventions.ties === evaluation.conventions.ties && row.conventions.noRelevant === evaluation.conventions.noRelevant,
-      ...(row.unavailable !== undefined ? { unavailable: row.unavailable } : {}),
-    })),
+    sensitivity: sensitivityRows(evaluation, headlineMean),
     degenerate: { ...evaluation.degenerate },
     histogram: histogram(evaluation.perQuery.values[evaluation.headline]!, metricRange(evaluation.metrics[evaluation.headline]!)),
     segmentColumns: [],

@@ -90,9 +90,32 @@ describe('engine worker', () => {
     expect(d.dcgByPosition.predicted[2]).toBeCloseTo((0.5 / idcg) / 2, 12);
     expect(d.dcgByPosition.ideal[0]).toBeCloseTo((3 / idcg + 1) / 2, 12);
     expect(d.dcgByPosition.ideal[1]).toBeCloseTo((1 / Math.log2(3) / idcg) / 2, 12);
-    // Asked again, the same answer (kept with the session).
-    expect(await worker.call('overviewDiagnostics', { session: 's1' })).toEqual(d);
+    // Asked again, the same answer (kept with the session); the times say when it was asked.
+    const { times, ...first } = d;
+    const { times: againTimes, ...again } = await worker.call('overviewDiagnostics', { session: 's1' });
+    expect(again).toEqual(first);
+    expect(times!.started <= times!.done && times!.done <= againTimes!.started).toBe(true);
     await expect(worker.call('overviewDiagnostics', { session: 'never-loaded' })).rejects.toThrow(/nothing is loaded/);
+  });
+
+  it('sends the headline without the sensitivity rows, and gives them on their own request, hand-derived', async () => {
+    const overview = await worker.call('load', { session: 's1', source: { path: fileA }, settings });
+    expect(overview.sensitivity).toEqual([]);
+    expect(overview.sensitivityLater).toBe(true);
+    const { rows, times } = await worker.call('overviewSensitivity', { session: 's1' });
+    expect(times.started).toBeGreaterThanOrEqual(overview.timeline.scored);
+    const row = (label: RegExp) => rows.find((r) => label.test(r.label))!;
+    // The current conventions: the headline itself, Δ 0.
+    const current = rows.filter((r) => r.current);
+    expect(current.length).toBeGreaterThan(0);
+    for (const r of current) expect([r.mean, r.delta, r.counted]).toEqual([overview.metrics[0]!.mean, 0, 2]);
+    // "hammer" has nothing relevant: zero enters it as 0 over 3 queries, one as 1 (hand-derived from the values above).
+    expect(row(/zero/).mean).toBeCloseTo((DRILL + SCREWS) / 3, 12);
+    expect(row(/zero/).counted).toBe(3);
+    expect(row(/\bone\b/).mean).toBeCloseTo((DRILL + SCREWS + 1) / 3, 12);
+    // Linear gain: drill DCG = 2 + 1/2 against ideal 2 + 1/log2 3; screws unchanged (grade 1 has gain 1 both ways).
+    expect(row(/linear/).mean).toBeCloseTo((2.5 / (2 + 1 / Math.log2(3)) + SCREWS) / 2, 12);
+    expect(row(/linear/).delta).toBeCloseTo(row(/linear/).mean! - overview.metrics[0]!.mean!, 15);
   });
 
   it('pages queries worst first with loss shares', async () => {

@@ -265,6 +265,7 @@ export function startFakeHost(options: FakeHostOptions): FakeHost {
       if (!q) throw new Error(`no query '${p.query}'`);
       return detail(q, p.run);
     },
+    overviewSensitivity: () => overview.sensitivity,
     overviewDiagnostics: () => options.holdDiagnostics ? new Promise<ScoreDiagnosticsView>((resolve, reject) => {
       heldDiagnostics.push((error) => (error === undefined ? resolve(diagnostics) : reject(new Error(error))));
     }) : diagnostics,

@@ -4,7 +4,7 @@
  * and what degenerate data was found and done about.
  */
 import type { Chart } from 'chart.js';
-import type { JudgmentsView, OverviewModel } from '../../../extension/protocol/messages';
+import type { JudgmentsView, OverviewModel, SensitivityView } from '../../../extension/protocol/messages';
 import { DEGENERATE_EXPLANATIONS, explainMetric } from '../model/explain';
 import { exactValue, formatCount, formatDelta, formatFixed, formatShare } from '../model/format';
 import { barChart } from '../ui/charts';
@@ -101,33 +101,12 @@ export class OverviewScreen {
     });
 
     this.element.appendChild(el('h2', { text: `How ${headline.label} depends on the conventions` }));
-    this.element.appendChild(
-      staticTable({
-        id: 'gl-sensitivity',
-        caption: 'Headline metric under alternative conventions',
-        columns: [
-          { label: 'Convention changed', title: 'One convention changed from the current setting, the rest kept.' },
-          { label: headline.label, numeric: true, title: 'Mean over counted queries under that convention.' },
-          { label: 'Δ vs current', numeric: true, title: 'That mean minus the current headline mean.' },
-          { label: 'Queries counted', numeric: true, title: 'Queries that entered the mean.' },
-        ],
-        rows: [
-          [{ text: 'current settings' }, { text: formatFixed(num(headline.mean)), title: exactValue(num(headline.mean)) }, '', formatCount(headline.counted)],
-          // The engine repeats the current conventions once per dimension; the first row says it once.
-          ...model.sensitivity.filter((s) => !s.current).map((s) => s.unavailable !== undefined ? [
-            s.label,
-            { text: 'n/a', title: s.unavailable },
-            { text: '', title: s.unavailable },
-            formatCount(s.counted),
-          ] : [
-            s.label,
-            { text: formatFixed(num(s.mean)), title: exactValue(num(s.mean)) },
-            { text: formatDelta(num(s.delta)), title: `${exactValue(num(s.delta))} (mean under "${s.label}" minus current mean)` },
-            formatCount(s.counted),
-          ]),
-        ],
-      }),
-    );
+    const sensitivityBox = el('div', { id: 'gl-sensitivity-box' }, sensitivityTable(model, model.sensitivity));
+    if (model.sensitivityLater) {
+      sensitivityBox.setAttribute('aria-busy', 'true');
+      sensitivityBox.append(el('p', { className: 'gl-muted', text: 'Computing the headline under the other conventions…' }));
+    }
+    this.element.appendChild(sensitivityBox);
 
     const diagnostics = el('div', { id: 'gl-score-diagnostics', className: 'gl-grid2', attrs: { 'aria-busy': 'true' } },
       el('p', { className: 'gl-muted', text: 'Computing the score diagnostics…' }));
@@ -158,7 +137,29 @@ export class OverviewScreen {
         button('Export summary as Markdown', { icon: 'markdown', secondary: true, onClick: () => this.export(model, 'markdown') }),
         button('Export summary as CSV', { icon: 'export', secondary: true, onClick: () => this.export(model, 'csv') })),
     );
-    afterPaint(() => void this.fillDiagnostics(diagnostics, generation));
+    // Both follow-ups wait for the first paint, so the headline is never behind them.
+    afterPaint(() => {
+      if (model.sensitivityLater) void this.fillSensitivity(sensitivityBox, model, generation);
+      void this.fillDiagnostics(diagnostics, generation);
+    });
+  }
+
+  /** The headline under other conventions, when the model came without it (asked for after the first paint). */
+  private async fillSensitivity(box: HTMLElement, model: OverviewModel, generation: number): Promise<void> {
+    if (generation !== this.renders) return;
+    let rows: readonly SensitivityView[];
+    try {
+      rows = await this.ctx.request('overviewSensitivity', {});
+    } catch (e) {
+      if (generation !== this.renders) return;
+      box.removeAttribute('aria-busy');
+      box.lastElementChild!.textContent = `Could not compute the headline under the other conventions: ${(e as Error).message}`;
+      return;
+    }
+    if (generation !== this.renders) return;
+    clear(box);
+    box.removeAttribute('aria-busy');
+    box.append(sensitivityTable(model, rows));
   }
 
   /**
@@ -218,4 +219,36 @@ function judgmentRows(j: JudgmentsView, queryCount: number): string[][] {
       j.missingQueries === 'zero' ? 'Scored 0 on every metric (missing queries: zero).' : 'Left out of every mean (missing queries: skip).'],
     ['Dump labels the judgments overrule', formatCount(j.disagreements), '', 'The judgments file wins.'],
   ];
+}
+
+/**
+ * The headline mean under each alternative convention. The current settings come first, once (the
+ * engine repeats them once per dimension); `rows` may be empty while they are being computed.
+ */
+function sensitivityTable(model: OverviewModel, rows: readonly SensitivityView[]): HTMLElement {
+  const headline = model.metrics[model.headline]!;
+  return staticTable({
+    id: 'gl-sensitivity',
+    caption: 'Headline metric under alternative conventions',
+    columns: [
+      { label: 'Convention changed', title: 'One convention changed from the current setting, the rest kept.' },
+      { label: headline.label, numeric: true, title: 'Mean over counted queries under that convention.' },
+      { label: 'Δ vs current', numeric: true, title: 'That mean minus the current headline mean.' },
+      { label: 'Queries counted', numeric: true, title: 'Queries that entered the mean.' },
+    ],
+    rows: [
+      [{ text: 'current settings' }, { text: formatFixed(num(headline.mean)), title: exactValue(num(headline.mean)) }, '', formatCount(headline.counted)],
+      ...rows.filter((s) => !s.current).map((s) => s.unavailable !== undefined ? [
+        s.label,
+        { text: 'n/a', title: s.unavailable },
+        { text: '', title: s.unavailable },
+        formatCount(s.counted),
+      ] : [
+        s.label,
+        { text: formatFixed(num(s.mean)), title: exactValue(num(s.mean)) },
+        { text: formatDelta(num(s.delta)), title: `${exactValue(num(s.delta))} (mean under "${s.label}" minus current mean)` },
+        formatCount(s.counted),
+      ]),
+    ],
+  });
 }
