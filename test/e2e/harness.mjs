@@ -50,9 +50,16 @@ export async function waitUntil(check, { timeoutMs = 30_000, intervalMs = 200, w
  * waits for the workbench with the Explorer in front.
  */
 export async function reloadWindow(page) {
-  const navigated = page.waitForEvent('framenavigated', { predicate: (f) => f === page.mainFrame(), timeout: 60_000 });
-  await runCommand(page, 'Developer: Reload Window');
-  await navigated;
+  // The old page carries a marker; the reload is done when a page without it is there. The command
+  // is run again when the page is still the old one after a while (a palette click can be lost).
+  await page.evaluate(() => { window.__gainlineBeforeReload = true; });
+  const reloaded = () => page.evaluate(() => window.__gainlineBeforeReload !== true).catch(() => false);
+  for (let attempt = 1; ; attempt += 1) {
+    await runCommand(page, 'Developer: Reload Window');
+    const done = await waitUntil(reloaded, { what: 'the window to reload', timeoutMs: 20_000, intervalMs: 250 }).catch(() => false);
+    if (done) break;
+    if (attempt === 3) throw new Error('"Developer: Reload Window" did not reload the window in 3 tries');
+  }
   await page.locator('.monaco-workbench').waitFor({ state: 'visible', timeout: 90_000 });
   await runCommand(page, 'View: Show Explorer');
   await openWorkbench(page);

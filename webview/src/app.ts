@@ -35,6 +35,8 @@ export class App implements AppContext {
   private mode: 'single' | 'compare' | 'series' | undefined;
   /** Which panel is on screen: a 'loaded' while the content is shown repeats the load already shown. */
   private showing: 'loading' | 'error' | 'vanished' | 'content' = 'loading';
+  /** The result on screen as JSON, so the host's repeat of it (its answer to 'ready') is not drawn again. */
+  private shownResult: string | undefined;
   private selected: string | null = null;
   private compareModel: CompareOverviewModel | undefined;
   private restored: SavedState | undefined;
@@ -155,6 +157,8 @@ export class App implements AppContext {
         // The host repeats its last state whenever the view says 'ready'. With the extension already
         // active, the result can reach the view before its 'ready' reaches the host, so the same
         // 'loaded' comes twice; the repeat must not throw the user back to the first tab.
+        const text = JSON.stringify(state);
+        if (this.showing === 'content' && text === this.shownResult) return;
         const repeat = state.status === 'loaded' && this.showing === 'content';
         const keep = (state.status === 'reloaded' || repeat) && this.mode === state.mode;
         performance.mark('gainline-result');
@@ -162,6 +166,7 @@ export class App implements AppContext {
         else if (state.mode === 'series') this.loadSeries(state.series, keep);
         else this.loadCompare(state.compare, keep);
         this.show('content');
+        this.shownResult = text;
         performance.mark('gainline-shown');
         // The frame that paints the result (its callbacks run just before its paint).
         requestAnimationFrame(() => performance.mark('gainline-painted'));

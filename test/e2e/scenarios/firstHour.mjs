@@ -111,7 +111,8 @@ export const smallThings = {
     await closeAllEditors(ctx.page);
     await explorerContextMenu(ctx.page, ctx.rel(ctx.files.runB), step[1].trim());
     const { frame } = await readHeadline(ctx.page, expected.meanText);
-    // Sensitivity: the current mean is listed once.
+    // Sensitivity: the current mean is listed once (the rows follow the headline on their own request).
+    await frame.locator('#gl-sensitivity-box:not([aria-busy])').waitFor({ state: 'attached', timeout: 30_000 });
     const sensitivity = await frame.locator('#gl-sensitivity tbody tr').evaluateAll((rows) => rows.map((r) => [...r.querySelectorAll('td')].map((c) => (c.textContent ?? '').trim())));
     const current = sensitivity.filter((cells) => cells[1] === expected.meanText);
     assert(current.length === 1, `the sensitivity table lists the current value ${expected.meanText} ${current.length} times: ${JSON.stringify(current)}`);
