@@ -73,6 +73,21 @@ describe('single-run screens', () => {
     await page.close();
   });
 
+  it('shows the headline first, then asks for the sensitivity rows and fills the table with them', async () => {
+    const { page, problems } = await open('queries=200&sensitivity=later&diagnostics=held');
+    await page.waitForSelector('#gl-headline-value');
+    const headline = await page.textContent('#gl-headline-value');
+    // The rows arrive on their own request; then the table lists the current settings once, then each other convention.
+    await page.waitForSelector('#gl-sensitivity-box:not([aria-busy])');
+    const calls = await page.evaluate(() => (window as unknown as { __host: { calls: { method: string }[] } }).__host.calls.map((c) => c.method));
+    expect(calls).toContain('overviewSensitivity');
+    const rows = await page.locator('#gl-sensitivity tbody tr').allTextContents();
+    expect(rows).toEqual([expect.stringMatching(new RegExp(`^current settings\\s*${headline}`)), expect.stringMatching(/^gain: linear\s*0\.6100/)]);
+    expect(await page.textContent('#gl-sensitivity-box')).not.toContain('Computing');
+    expect(problems).toEqual([]);
+    await page.close();
+  });
+
   it('shows the headline before the score diagnostics, which it asks for afterwards, and says when they fail', async () => {
     const { page, problems } = await open('queries=200&diagnostics=held');
     await page.waitForSelector('#gl-headline-value');

@@ -100,6 +100,8 @@ export interface FakeHostOptions {
   readonly allMetrics?: boolean;
   /** The overview's diagnostics are answered only when the page calls `releaseDiagnostics()` (or fail with its message). */
   readonly holdDiagnostics?: boolean;
+  /** The overview comes without its sensitivity rows (`sensitivityLater`), as the extension sends it; they come on request. */
+  readonly sensitivityLater?: boolean;
 }
 
 export interface FakeHost {
@@ -344,7 +346,7 @@ export function startFakeHost(options: FakeHostOptions): FakeHost {
       ? { status: 'loaded', mode: 'compare', compare }
       : options.mode === 'series'
         ? { status: 'loaded', mode: 'series', series }
-        : { status: 'loaded', mode: 'single', overview };
+        : { status: 'loaded', mode: 'single', overview: options.sensitivityLater ? { ...overview, sensitivity: [], sensitivityLater: true } : overview };
   (window as unknown as { acquireVsCodeApi: () => unknown }).acquireVsCodeApi = () => ({
     postMessage: (message: { kind: string }) => {
       const copy = JSON.parse(JSON.stringify(message));

@@ -10,5 +10,6 @@ const host = startFakeHost({
   bigItems: Number(params.get('items') ?? '0'),
   allMetrics: params.get('metrics') === 'all',
   holdDiagnostics: params.get('diagnostics') === 'held',
+  sensitivityLater: params.get('sensitivity') === 'later',
 });
 (window as unknown as { __host: typeof host }).__host = host;
