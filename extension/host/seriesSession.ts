@@ -8,13 +8,14 @@
  */
 import * as vscode from 'vscode';
 import { DEFAULT_TREND_SETTINGS } from '../presentation/defaults';
-import type { HostToView, SeriesOverviewModel, UnreadCheckpoint, ViewRequests, ViewState, ViewToHost } from '../protocol/messages';
-import { RequestServer, type RequestHandlers } from '../channel/request';
+import type { SeriesOverviewModel, UnreadCheckpoint, ViewRequests, ViewState } from '../protocol/messages';
+import type { RequestHandlers } from '../channel/request';
 import type { SeriesFileInfo } from '../protocol/worker';
 import { evaluationSettings, type GainlineConfig } from './config';
 import type { SeriesGroup } from './seriesGroups';
 import { sourceFor } from './sources';
 import { messageOf, RELOAD_DEBOUNCE_MS } from './viewSession';
+import { WebviewLink } from './webviewLink';
 import { LOAD_TIMEOUT_MS, type EngineWorker } from './workerHost';
 
 export interface SeriesSessionDeps {
@@ -35,24 +36,21 @@ let seriesCounter = 0;
 
 export class SeriesSession implements vscode.Disposable {
   readonly key = `series-${++seriesCounter}`;
-  private state: ViewState;
   private model: SeriesOverviewModel | undefined;
   private loadAbort: AbortController | undefined;
   private reloadTimer: ReturnType<typeof setTimeout> | undefined;
-  private readonly server: RequestServer<ViewRequests>;
+  private readonly link: WebviewLink;
   private readonly disposables: vscode.Disposable[] = [];
   private disposed = false;
   /** Loads started (tests and the log count them). */
   loads = 0;
 
   constructor(
-    private readonly webview: vscode.Webview,
+    webview: vscode.Webview,
     readonly label: string,
     private readonly deps: SeriesSessionDeps,
   ) {
-    this.state = { status: 'loading', mode: 'series', label, fraction: null, message: 'Starting…' };
-    this.server = new RequestServer<ViewRequests>(this.handlers(), (message) => void this.post(message));
-    this.disposables.push(webview.onDidReceiveMessage((message: ViewToHost) => this.onMessage(message)));
+    this.link = new WebviewLink(webview, { status: 'loading', mode: 'series', label, fraction: null, message: 'Starting…' }, this.handlers());
     const watcher = vscode.workspace.createFileSystemWatcher(deps.watchPattern);
     const changed = (): void => this.scheduleReload();
     this.disposables.push(watcher, watcher.onDidCreate(changed), watcher.onDidChange(changed), watcher.onDidDelete(changed));
@@ -77,7 +75,7 @@ export class SeriesSession implements vscode.Disposable {
     this.disposed = true;
     if (this.reloadTimer) clearTimeout(this.reloadTimer);
     this.loadAbort?.abort();
-    this.server.dispose();
+    this.link.dispose();
     for (const d of this.disposables) d.dispose();
     if (this.deps.worker.running) void this.deps.worker.call('unload', { session: this.key }).catch(() => undefined);
   }
@@ -158,18 +156,7 @@ export class SeriesSession implements vscode.Disposable {
     };
   }
 
-  private onMessage(message: ViewToHost): void {
-    if (message.kind === 'ready') void this.post({ kind: 'state', state: this.state });
-    else if (message.kind !== 'selection') this.server.handleMessage(message);
-  }
-
   private setState(state: ViewState): void {
-    this.state = state;
-    void this.post({ kind: 'state', state });
-  }
-
-  private post(message: HostToView): Thenable<boolean> {
-    if (this.disposed) return Promise.resolve(false);
-    return this.webview.postMessage(message).then(undefined, () => false);
+    this.link.setState(state);
   }
 }

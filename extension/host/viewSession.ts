@@ -9,15 +9,14 @@ import { conventionsLine, compareSettings, evaluationSettings, type GainlineConf
 import { copyText, exportView, revealRow } from './hostActions';
 import { LOAD_TIMEOUT_MS, type EngineWorker } from './workerHost';
 import { resolveViewSources, type SessionTarget } from './viewSources';
+import { WebviewLink } from './webviewLink';
 import type {
   CompareOverviewModel,
-  HostToView,
   OverviewModel,
   ViewRequests,
   ViewState,
-  ViewToHost,
 } from '../protocol/messages';
-import { RemoteError, RequestAbortedError, RequestServer, type RequestHandlers } from '../channel/request';
+import { RemoteError, RequestAbortedError, type RequestHandlers } from '../channel/request';
 import type { DumpSource, FollowUpTimes } from '../protocol/worker';
 import type { ForegroundWork } from './foreground';
 
@@ -60,7 +59,6 @@ let sessionCounter = 0;
 
 export class ViewSession implements vscode.Disposable {
   readonly key = `view-${++sessionCounter}`;
-  private state: ViewState;
   private overview: OverviewModel | undefined;
   private compare: CompareOverviewModel | undefined;
   private loadedGeneration = -1;
@@ -68,7 +66,7 @@ export class ViewSession implements vscode.Disposable {
   private sources: DumpSource[] = [];
   private loadAbort: AbortController | undefined;
   private reloadTimer: ReturnType<typeof setTimeout> | undefined;
-  private readonly server: RequestServer<ViewRequests>;
+  private readonly link: WebviewLink;
   private readonly disposables: vscode.Disposable[] = [];
   private readonly headlineEmitter = new vscode.EventEmitter<Headline | undefined>();
   readonly onDidChangeHeadline = this.headlineEmitter.event;
@@ -80,13 +78,18 @@ export class ViewSession implements vscode.Disposable {
   private readonly openedEpoch = Date.now();
 
   constructor(
-    private readonly webview: vscode.Webview,
+    webview: vscode.Webview,
     readonly target: SessionTarget,
     private readonly deps: SessionDeps,
   ) {
-    this.state = { status: 'loading', mode: target.mode, label: this.label, fraction: null, message: 'Starting…' };
-    this.server = new RequestServer<ViewRequests>(this.handlers(), (message) => void this.post(message));
-    this.disposables.push(webview.onDidReceiveMessage((message: ViewToHost) => this.onMessage(message)));
+    this.link = new WebviewLink(webview, { status: 'loading', mode: target.mode, label: this.label, fraction: null, message: 'Starting…' }, this.handlers(), {
+      // A webview that (re)starts shows again the query the user was looking at.
+      onReady: () => {
+        const status = this.link.state.status;
+        if (this.selection && (status === 'loaded' || status === 'reloaded')) void this.link.post({ kind: 'showQuery', query: this.selection });
+      },
+      onSelection: (query) => (this.selection = query),
+    });
     for (const uri of this.files) if (uri.scheme === 'file') this.watch(uri);
   }
 
@@ -143,11 +146,11 @@ export class ViewSession implements vscode.Disposable {
   /** Asks the webview to show a query (Go to Query…) or its summary screen (status bar). */
   showQuery(query: string): void {
     this.selection = query;
-    void this.post({ kind: 'showQuery', query });
+    void this.link.post({ kind: 'showQuery', query });
   }
 
   showSummary(): void {
-    void this.post({ kind: 'showSummary' });
+    void this.link.post({ kind: 'showSummary' });
   }
 
   dispose(): void {
@@ -155,33 +158,14 @@ export class ViewSession implements vscode.Disposable {
     this.disposed = true;
     if (this.reloadTimer) clearTimeout(this.reloadTimer);
     this.loadAbort?.abort();
-    this.server.dispose();
+    this.link.dispose();
     this.headlineEmitter.dispose();
     for (const d of this.disposables) d.dispose();
     if (this.deps.worker.running) void this.deps.worker.call('unload', { session: this.key }).catch(() => undefined);
   }
 
-  private onMessage(message: ViewToHost): void {
-    if (message.kind === 'ready') {
-      void this.post({ kind: 'state', state: this.state });
-      if (this.selection && (this.state.status === 'loaded' || this.state.status === 'reloaded')) {
-        void this.post({ kind: 'showQuery', query: this.selection });
-      }
-    } else if (message.kind === 'selection') {
-      this.selection = message.query;
-    } else {
-      this.server.handleMessage(message);
-    }
-  }
-
   private setState(state: ViewState): void {
-    this.state = state;
-    void this.post({ kind: 'state', state });
-  }
-
-  private post(message: HostToView): Thenable<boolean> {
-    if (this.disposed) return Promise.resolve(false);
-    return this.webview.postMessage(message).then(undefined, () => false);
+    this.link.setState(state);
   }
 
   private async load(kind: 'loaded' | 'reloaded', firstTime: boolean): Promise<void> {

@@ -18,18 +18,17 @@ import { parseMetricList } from '../engine/metrics/parse';
 import type { RankedDump } from '../engine/model/dump';
 import { groupByQuery, type QueryGroups } from '../engine/model/groups';
 import { readSource } from './readSource';
-import { conventionsAsJson } from '../engine/report/reportInput';
 import type { Comparison } from '../engine/compare/compare';
 import { RequestServer, type HandlerContext, type RequestHandlers } from '../channel/request';
 import type { DumpSource, ProgressEvent, WorkerRequests } from '../protocol/worker';
 import { CompareTable, compareOverviewModel } from './compareTable';
 import { QueryTable } from './queryTable';
-import { scoresByGrade } from '../engine/evaluate/diagnostics';
-import { overviewDiagnostics, scoresByGradeView } from './diagnosticsView';
+import { overviewDiagnostics } from './diagnosticsView';
 import type { ScoreDiagnosticsView, SensitivityView } from '../protocol/messages';
 import type { Conventions } from '../engine/metrics/conventions';
 import { sensitivityLater } from './sensitivityLater';
-import { detailView, metricLabel, movementView, overviewModel, segmentTable } from './viewModels';
+import { metricLabel, movementView, overviewModel, segmentTable } from './viewModels';
+import { detailScreen, queryJsonText } from './queryViews';
 import { isCancelled } from './cancelFlags';
 import { warmUp } from './warmUp';
 import { SeriesStore } from './seriesStore';
@@ -268,8 +267,7 @@ const handlers: RequestHandlers<WorkerRequests> = {
     if (s.kind === 'sql') return sqlQueryDetail(s, query, maxPairs);
     const l = runOf(key, run);
     const { id, detail } = detailOf(l, query, maxPairs);
-    const rows = detail.positions.map((p) => p.row);
-    return { ...detailView(l.dump, l.evaluation, detail, id, l.table), scoresByGrade: scoresByGradeView(scoresByGrade(l.dump, rows, 10)) };
+    return detailScreen(l.dump, l.evaluation, detail, id, l.table);
   },
 
   async queryJson({ session: key, query, run }) {
@@ -277,29 +275,7 @@ const handlers: RequestHandlers<WorkerRequests> = {
     if (s.kind === 'sql') return { json: await sqlQueryJson(s, query) };
     const l = runOf(key, run);
     const { id, detail } = detailOf(l, query, 0);
-    const values: Record<string, number | null> = {};
-    l.evaluation.metrics.forEach((m, i) => {
-      const v = l.evaluation.perQuery.values[i]![id]!;
-      values[m.key] = Number.isFinite(v) ? v : null;
-    });
-    const json = {
-      query,
-      file: l.dump.path,
-      conventions: conventionsAsJson(l.evaluation.conventions),
-      values,
-      items: detail.positions.map((p) => ({
-        position: p.position,
-        item: p.item,
-        grade: Number.isFinite(p.label) ? p.label : null,
-        score: Number.isFinite(p.score) ? p.score : null,
-        idealPosition: p.idealPosition,
-        line: l.dump.line[p.row] || null,
-      })),
-      ...(detail.notRetrieved.length > 0
-        ? { notRetrieved: detail.notRetrieved.map((m) => ({ item: m.item, grade: m.label, idealPosition: m.idealPosition })) }
-        : {}),
-    };
-    return { json: JSON.stringify(json, null, 2) };
+    return { json: queryJsonText(query, l.dump.path, l.evaluation, id, detail, (row) => l.dump.line[row] || null) };
   },
 
   rowLocation({ session: key, row, run }) {

@@ -7,7 +7,6 @@
 import { basename } from 'node:path';
 import { InputError } from '../engine/errors';
 import { queryDetail } from '../engine/evaluate/detail';
-import { scoresByGrade } from '../engine/evaluate/diagnostics';
 import { headlineCutoff } from '../engine/evaluate/scorer';
 import type { Evaluation } from '../engine/evaluate/types';
 import { parseMetricList } from '../engine/metrics/parse';
@@ -17,12 +16,11 @@ import { DuckDbTable } from '../engine/sql/duckdbRunner';
 import type { TableEvaluation } from '../engine/sql/perQueryTable';
 import { dumpOfQueryRows } from '../engine/sql/queryRows';
 import { sqlDefaultMetrics } from '../engine/sql/request';
-import { conventionsAsJson } from '../engine/report/reportInput';
 import type { FileInfo, OverviewModel, QueryDetailView } from '../protocol/messages';
 import type { DumpSource, EvaluationSettings } from '../protocol/worker';
-import { scoresByGradeView } from './diagnosticsView';
 import { QueryTable } from './queryTable';
-import { detailView, overviewOf } from './viewModels';
+import { overviewOf } from './viewModels';
+import { detailScreen, queryJsonText } from './queryViews';
 
 export interface SqlLoaded {
   readonly kind: 'sql';
@@ -109,31 +107,11 @@ function detailOfRows(s: SqlLoaded, dump: RankedDump, id: number, maxPairs: numb
 
 export async function sqlQueryDetail(s: SqlLoaded, query: string, maxPairs: number | undefined): Promise<QueryDetailView> {
   const { dump, id } = await rowsOf(s, query);
-  const detail = detailOfRows(s, dump, id, maxPairs ?? 200);
-  const rows = detail.positions.map((p) => p.row);
-  return { ...detailView(dump, s.evaluation, detail, id, s.table), scoresByGrade: scoresByGradeView(scoresByGrade(dump, rows, 10)) };
+  return detailScreen(dump, s.evaluation, detailOfRows(s, dump, id, maxPairs ?? 200), id, s.table);
 }
 
 export async function sqlQueryJson(s: SqlLoaded, query: string): Promise<string> {
   const { dump, id } = await rowsOf(s, query);
-  const detail = detailOfRows(s, dump, id, 0);
-  const values: Record<string, number | null> = {};
-  s.evaluation.metrics.forEach((m, i) => {
-    const v = s.evaluation.perQuery.values[i]![id]!;
-    values[m.key] = Number.isFinite(v) ? v : null;
-  });
-  return JSON.stringify({
-    query,
-    file: s.source.path,
-    conventions: conventionsAsJson(s.evaluation.conventions),
-    values,
-    items: detail.positions.map((p) => ({
-      position: p.position,
-      item: p.item,
-      grade: Number.isFinite(p.label) ? p.label : null,
-      score: Number.isFinite(p.score) ? p.score : null,
-      idealPosition: p.idealPosition,
-      line: null,
-    })),
-  }, null, 2);
+  // The rows live in a database: no line numbers. A one-query dump has no unretrieved judged items.
+  return queryJsonText(query, s.source.path, s.evaluation, id, detailOfRows(s, dump, id, 0), () => null);
 }

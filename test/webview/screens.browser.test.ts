@@ -4,41 +4,13 @@
  * paging and virtualisation, keyboard navigation, text-only rendering of hostile ids, refresh
  * keeping the selection, the error and file-gone panels, and compare mode.
  */
-import { existsSync } from 'node:fs';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { chromium, type Browser, type Page } from 'playwright-core';
+import { describe, expect, it } from 'vitest';
+import type { Page } from 'playwright-core';
 import { makeQueries } from './harness/fakeHost';
-import { startHarness, type Harness } from './harness/buildHarness';
+import { useHarnessBrowser } from './harness/browserPages';
 
-const CHROMIUM = '/usr/bin/chromium';
-let harness: Harness;
-let browser: Browser;
-
-beforeAll(async () => {
-  if (!existsSync(CHROMIUM)) throw new Error(`${CHROMIUM} is missing: install the chromium package to run the webview browser tests`);
-  harness = await startHarness();
-  browser = await chromium.launch({ executablePath: CHROMIUM, args: ['--no-sandbox'] });
-}, 120_000);
-
-afterAll(async () => {
-  await browser?.close();
-  await harness?.close();
-});
-
-async function open(query: string): Promise<{ page: Page; problems: string[] }> {
-  const page = await browser.newPage({ viewport: { width: 1280, height: 800 } });
-  const problems: string[] = [];
-  page.on('console', (m) => {
-    if (m.type() === 'error') problems.push(m.text());
-  });
-  page.on('pageerror', (e) => problems.push(e.message));
-  page.on('dialog', (d) => {
-    problems.push(`dialog opened: ${d.message()}`);
-    void d.dismiss();
-  });
-  await page.goto(`${harness.url}?${query}`);
-  return { page, problems };
-}
+const web = useHarnessBrowser();
+const open = (query: string) => web.open(query, { width: 1280, height: 800 });
 
 function worstFirst(count: number): string[] {
   // Same order as the fake host: NDCG ascending, skipped (NaN) last, stable.
@@ -299,8 +271,8 @@ describe('column layout: no number or header is cut short', () => {
     );
 
   async function narrow(query: string, width: number): Promise<Page> {
-    const page = await browser.newPage({ viewport: { width, height: 700 } });
-    await page.goto(`${harness.url}?${query}`);
+    const page = await web.browser.newPage({ viewport: { width, height: 700 } });
+    await page.goto(`${web.url}?${query}`);
     return page;
   }
 

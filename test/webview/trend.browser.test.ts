@@ -5,26 +5,12 @@
  * grown series (the host's 'reloaded') extends the charts while the chosen query stays shown.
  * The expected values are the fake host's hand-set numbers.
  */
-import { existsSync } from 'node:fs';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { chromium, type Browser, type Page } from 'playwright-core';
-import { startHarness, type Harness } from './harness/buildHarness';
+import { describe, expect, it } from 'vitest';
+import type { Page } from 'playwright-core';
+import { useHarnessBrowser } from './harness/browserPages';
 import { SERIES_EPOCHS, SERIES_NDCG } from './harness/fakeSeries';
 
-const CHROMIUM = '/usr/bin/chromium';
-let harness: Harness;
-let browser: Browser;
-
-beforeAll(async () => {
-  if (!existsSync(CHROMIUM)) throw new Error(`${CHROMIUM} is missing: install the chromium package to run the webview browser tests`);
-  harness = await startHarness();
-  browser = await chromium.launch({ executablePath: CHROMIUM, args: ['--no-sandbox'] });
-}, 120_000);
-
-afterAll(async () => {
-  await browser?.close();
-  await harness?.close();
-});
+const web = useHarnessBrowser();
 
 type Calls = { method: string; params: unknown }[];
 const calls = (page: Page): Promise<Calls> => page.evaluate(() => (window as unknown as { __host: { calls: Calls } }).__host.calls);
@@ -32,13 +18,9 @@ const chartData = (page: Page, metric: string) =>
   page.$eval(`.gl-trend-metric[data-metric="${metric}"] canvas`, (c) => ({ labels: JSON.parse(c.getAttribute('data-labels')!), values: JSON.parse(c.getAttribute('data-values')!) }));
 
 async function open(): Promise<{ page: Page; problems: string[] }> {
-  const page = await browser.newPage({ viewport: { width: 1280, height: 900 } });
-  const problems: string[] = [];
-  page.on('console', (m) => m.type() === 'error' && problems.push(m.text()));
-  page.on('pageerror', (e) => problems.push(e.message));
-  await page.goto(`${harness.url}?mode=series`);
-  await page.waitForSelector('.gl-trend-metric canvas');
-  return { page, problems };
+  const opened = await web.open('mode=series', { width: 1280, height: 900 });
+  await opened.page.waitForSelector('.gl-trend-metric canvas');
+  return opened;
 }
 
 describe('trend screen', () => {

@@ -4,9 +4,8 @@
  */
 import { promises as fsp } from 'node:fs';
 import type { ReaderNotes } from '../model/dump';
-import { DelimitedParser } from '../readers/delimited';
+import { parseHeaderLine } from '../readers/headerLine';
 import type { ColumnRoles } from '../readers/roles';
-import { assertTextHead } from '../readers/source';
 
 export interface HeaderLine {
   readonly names: string[];
@@ -22,21 +21,9 @@ export interface HeaderLine {
 export async function readHeaderLine(path: string, delimiter: number, columns: ColumnRoles | undefined): Promise<HeaderLine | undefined> {
   const fh = await fsp.open(path, 'r');
   try {
-    let head = Buffer.alloc(0);
-    for (;;) {
-      const more = Buffer.alloc(64 * 1024);
-      const { bytesRead } = await fh.read(more, 0, more.length, head.length);
-      head = Buffer.concat([head, more.subarray(0, bytesRead)]);
-      if (head.indexOf(10) >= 0 || bytesRead === 0) break;
-    }
-    assertTextHead(head, path);
-    const lf = head.indexOf(10);
-    const bom = head[0] === 0xef && head[1] === 0xbb && head[2] === 0xbf ? 3 : 0;
-    if (lf < 0 || head.subarray(0, lf).includes(34)) return undefined;
-    const parser = new DelimitedParser({ file: path, delimiter, ...(columns ? { columns } : {}) });
-    parser.feed(head, bom, lf + 1, 0, false);
-    if (parser.headerNames === undefined || parser.columns === undefined) return undefined;
-    return { names: parser.headerNames, end: lf + 1, notes: parser.columns.notes, segmentNames: parser.columns.segmentNames };
+    const header = await parseHeaderLine(fh, path, delimiter, columns);
+    if (!header) return undefined;
+    return { names: header.names, end: header.end, notes: header.columns.notes, segmentNames: header.columns.segmentNames };
   } finally {
     await fh.close();
   }

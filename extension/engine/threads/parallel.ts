@@ -15,10 +15,10 @@ import type { RankedDump } from '../model/dump';
 import { RowTexts } from '../model/rowTexts';
 import { addSummaries } from '../model/rowSummary';
 import { ROW_COLUMN_NAMES, ROW_COLUMNS, RowColumns, rowArray, rowArrays, sharedViews, type RowArrays, type RowColumnName, type SharedColumns } from '../readers/columns';
-import { DelimitedParser } from '../readers/delimited';
+import { parseHeaderLine } from '../readers/headerLine';
 import type { ReadOptions } from '../readers/readOptions';
 import { parseRange, type RangeResult, type RangeTask } from '../readers/rangeParse';
-import { assertTextHead, checkUnchanged, statStamp, throwIfCancelled } from '../readers/source';
+import { checkUnchanged, statStamp, throwIfCancelled } from '../readers/source';
 import { ThreadPool } from './pool';
 
 /**
@@ -74,25 +74,14 @@ export async function readParallelDelimited(path: string, format: 'csv' | 'tsv',
 async function readHeader(path: string, delimiter: number, options: ReadOptions) {
   const fh = await fsp.open(path, 'r');
   try {
-    let head = Buffer.alloc(0);
-    for (;;) {
-      const more = Buffer.alloc(64 * 1024);
-      const { bytesRead } = await fh.read(more, 0, more.length, head.length);
-      head = Buffer.concat([head, more.subarray(0, bytesRead)]);
-      if (head.indexOf(10) >= 0 || bytesRead === 0) break;
-    }
-    assertTextHead(head, path);
-    const lf = head.indexOf(10);
-    const bom = head[0] === 0xef && head[1] === 0xbb && head[2] === 0xbf ? 3 : 0;
-    if (lf < 0 || head.subarray(0, lf).includes(34)) return undefined;
-    const parser = new DelimitedParser({ file: path, delimiter, columns: options.columns });
-    parser.feed(head, bom, lf + 1, 0, false);
-    if (parser.headerNames === undefined || parser.columns === undefined) return undefined;
+    const header = await parseHeaderLine(fh, path, delimiter, options.columns);
+    if (!header) return undefined;
+    const { parser, names, end } = header;
     const sample = Buffer.alloc(256 * 1024);
-    const { bytesRead } = await fh.read(sample, 0, sample.length, lf + 1);
+    const { bytesRead } = await fh.read(sample, 0, sample.length, end);
     let newlines = 0;
     for (let i = 0; i < bytesRead; i++) if (sample[i] === 10) newlines++;
-    return { names: parser.headerNames, end: lf + 1, parser, bytesPerRow: newlines > 0 ? bytesRead / newlines : 64 };
+    return { names, end, parser, bytesPerRow: newlines > 0 ? bytesRead / newlines : 64 };
   } finally {
     await fh.close();
   }
