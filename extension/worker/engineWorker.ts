@@ -43,7 +43,7 @@ interface Loaded {
   readonly table: QueryTable;
   /** Computed when the overview first asks for it (after its headline is on screen), then kept. */
   diagnostics?: ScoreDiagnosticsView;
-  /** Set when the load scored without the sensitivity rows: the conventions to score them under. */
+  /** The load scores without the sensitivity rows: the conventions to score them under when asked. */
   readonly sensitivityConventions?: Conventions;
   /** The rows once asked for (after the headline is on screen), then kept. */
   sensitivity?: Promise<SensitivityView[]>;
@@ -205,9 +205,7 @@ const handlers: RequestHandlers<WorkerRequests> = {
   async overviewSensitivity({ session: key }) {
     const s = single(key);
     const started = Date.now();
-    const conventions = s.sensitivityConventions;
-    // A session scored with its rows (none is, today) has them in its evaluation already.
-    s.sensitivity ??= conventions ? sensitivityLater(s.dump, s.groups, s.evaluation, conventions) : Promise.resolve(overviewModel(s.dump, s.evaluation, 0).sensitivity.slice());
+    s.sensitivity ??= sensitivityLater(s.dump, s.groups, s.evaluation, s.sensitivityConventions ?? s.evaluation.conventions);
     // A failure is not kept: asking again computes again.
     s.sensitivity.catch(() => (s.sensitivity = undefined));
     return { rows: await s.sensitivity, times: { started, done: Date.now() } };

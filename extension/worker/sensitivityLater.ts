@@ -9,6 +9,7 @@
 import { evaluateDump } from '../engine/index';
 import type { Conventions } from '../engine/metrics/conventions';
 import { parseMetricList } from '../engine/metrics/parse';
+import { headlineCutoff } from '../engine/evaluate/scorer';
 import type { MetricSpec } from '../engine/metrics/registry';
 import type { RankedDump } from '../engine/model/dump';
 import type { QueryGroups } from '../engine/model/groups';
@@ -16,10 +17,10 @@ import type { Evaluation } from '../engine/evaluate/types';
 import type { SensitivityView } from '../protocol/messages';
 import { sensitivityRows } from './viewModels';
 
-/** The one metric whose cut-off the sensitivity rows use: the first NDCG of the list, else NDCG@10 (scorer.ts). */
+/** The one metric whose cut-off the sensitivity rows use: NDCG at the headline cut-off (scorer.ts headlineCutoff). */
 export function sensitivityMetrics(metrics: readonly MetricSpec[]): MetricSpec[] {
-  const ndcg = metrics.find((m) => m.name === 'ndcg');
-  return ndcg ? [ndcg] : parseMetricList('ndcg@10');
+  const k = headlineCutoff(metrics);
+  return parseMetricList(Number.isFinite(k) ? `ndcg@${k}` : 'ndcg');
 }
 
 /**
