@@ -54,6 +54,18 @@ describe('the worker pool', () => {
     expect(pool.size).toBe(1);
   });
 
+  it('posts a request before returning, so a thread works while the caller is in a loop that never yields', async () => {
+    // The caller blocks its own thread until the worker raises the flag. Had the pool held the message
+    // back until the caller's next turn of the event loop, the wait would time out with the flag at 0.
+    const pool = newPool(1);
+    const flag = new Int32Array(new SharedArrayBuffer(4));
+    const answer = pool.request('raise', { flag });
+    const outcome = Atomics.wait(flag, 0, 0, 20_000);
+    expect(outcome === 'ok' || outcome === 'not-equal').toBe(true);
+    expect(Atomics.load(flag, 0)).toBe(1);
+    expect((await answer).thread).toBeGreaterThan(0);
+  });
+
   it('runs requests made together on separate threads, never more than its size, the rest waiting their turn', async () => {
     const pool = newPool(2);
     const answers = await Promise.all(['a', 'b', 'c', 'd', 'e'].map((text) => pool.request('echo', { text })));

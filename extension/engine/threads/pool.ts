@@ -71,9 +71,21 @@ export class ThreadPool<M extends RequestMap> {
     while (!this.closed && this.threads.length < Math.min(count, this.maxThreads)) this.start();
   }
 
-  async request<K extends Method<M>>(method: K, params: ParamsOf<M, K>, options: PoolRequestOptions = {}): Promise<ResultOf<M, K>> {
-    if (options.signal?.aborted) throw new CancelledError();
-    const thread = await this.acquire();
+  /**
+   * Posts the request at once when a thread is idle or can be started, before this call returns: a
+   * caller that goes on to a long synchronous loop (a scoring thread claiming chunks beside its workers)
+   * must not hold the message back until the loop ends, or the workers find no work left.
+   */
+  request<K extends Method<M>>(method: K, params: ParamsOf<M, K>, options: PoolRequestOptions = {}): Promise<ResultOf<M, K>> {
+    if (options.signal?.aborted) return Promise.reject(new CancelledError());
+    if (this.closed) return Promise.reject(this.closedError());
+    const idle = this.takeThread();
+    if (idle !== undefined) return this.run(idle, method, params, options);
+    return new Promise<PoolThread<M>>((resolve, reject) => this.waiting.push({ resolve, reject }))
+      .then((thread) => this.run(thread, method, params, options));
+  }
+
+  private async run<K extends Method<M>>(thread: PoolThread<M>, method: K, params: ParamsOf<M, K>, options: PoolRequestOptions): Promise<ResultOf<M, K>> {
     let id: number | undefined;
     try {
       const result = await thread.client.request(method, params, {
@@ -102,14 +114,15 @@ export class ThreadPool<M extends RequestMap> {
     return Promise.all(stopping).then(() => undefined);
   }
 
-  private acquire(): Promise<PoolThread<M>> {
-    if (this.closed) return Promise.reject(new Error(`the pool of ${basename(this.script)} threads is closed`));
+  private closedError(): Error {
+    return new Error(`the pool of ${basename(this.script)} threads is closed`);
+  }
+
+  /** An idle thread, or a new one when the pool has room, marked busy; undefined when all are taken. */
+  private takeThread(): PoolThread<M> | undefined {
     const thread = this.threads.find((t) => !t.busy) ?? (this.threads.length < this.maxThreads ? this.start() : undefined);
-    if (thread !== undefined) {
-      thread.busy = true;
-      return Promise.resolve(thread);
-    }
-    return new Promise((resolve, reject) => this.waiting.push({ resolve, reject }));
+    if (thread !== undefined) thread.busy = true;
+    return thread;
   }
 
   private release(thread: PoolThread<M>): void {
@@ -120,10 +133,8 @@ export class ThreadPool<M extends RequestMap> {
   /** A waiting request takes an idle thread, or a new one when the pool has room. */
   private handOver(): void {
     if (this.closed || this.waiting.length === 0) return;
-    const thread = this.threads.find((t) => !t.busy) ?? (this.threads.length < this.maxThreads ? this.start() : undefined);
-    if (thread === undefined) return;
-    thread.busy = true;
-    this.waiting.shift()!.resolve(thread);
+    const thread = this.takeThread();
+    if (thread !== undefined) this.waiting.shift()!.resolve(thread);
   }
 
   private discard(thread: PoolThread<M>): void {

@@ -22,6 +22,8 @@ export type ProbeRequests = {
   spin: { params: Record<string, never>; result: never };
   /** Ends the thread with this exit code. */
   exit: { params: { code: number }; result: never };
+  /** Sets flag[0] to 1 and wakes whoever waits on it (flag lives in a SharedArrayBuffer). */
+  raise: { params: { flag: Int32Array }; result: { thread: number } };
 };
 
 serveThread<ProbeRequests>({
@@ -46,4 +48,9 @@ serveThread<ProbeRequests>({
     for (;;) turns = (turns + 1) | 0;
   },
   exit: ({ code }) => process.exit(code),
+  raise: ({ flag }) => {
+    Atomics.store(flag, 0, 1);
+    Atomics.notify(flag, 0);
+    return { thread: threadId };
+  },
 });
