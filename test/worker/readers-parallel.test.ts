@@ -51,9 +51,10 @@ function expectSameDump(a: RankedDump, b: RankedDump): void {
 }
 
 describe('parallel parsing', () => {
-  it.each([[11, 2], [12, 3], [13, 4]])('seed %i with %i threads matches one thread', async (seed, threads) => {
+  // Ranges per thread: 1 (one range each), the default 4, and more ranges than chunks, claimed in turn by the threads.
+  it.each([[11, 2, 1], [12, 3, 4], [13, 4, 4], [14, 2, 16]])('seed %i with %i threads and %i ranges per thread matches one thread', async (seed, threads, ranges) => {
     const path = tmp.file(`par-${seed}.csv`, randomPlainCsv(seed, 20_000));
-    const saved = configureEngine({ tuning: { plainChunkBytes: 10_000 + seed } });
+    const saved = configureEngine({ tuning: { plainChunkBytes: 10_000 + seed, parseRangesPerThread: ranges } });
     try {
       const single = await readDump(path, { threads: 1 });
       // Called directly so a silent fall-back to one thread cannot pass for parallel parsing.
@@ -99,7 +100,7 @@ describe('parallel parsing', () => {
     expect((single as InputError).line).toBe(7001);
   });
 
-  it('reports a bad row in the first range, which this thread parses, with the same message and line', async () => {
+  it('reports a bad row in the first range (which this thread claims first) with the same message and line', async () => {
     const lines = randomPlainCsv(32, 9000).split('\n');
     lines[500] = lines[500]!.replace(/,(\d),/, ',four,');
     const path = tmp.file('par-bad-first.csv', lines.join('\n'));

@@ -83,6 +83,32 @@ export async function parseRange(task: RangeTask, onBytes: (done: number) => voi
   return { kind: 'rows', count: n, lines: parser.line - 1, inShared: rows.inShared, ...columns, segmentIds, ...pools };
 }
 
+/** A thread's share of a read: the ranges it claimed, each with its index in the file's list of ranges. */
+export type ClaimedRanges = [number, RangeResult][];
+
+/**
+ * Parses ranges of `tasks` one after another, each claimed from the shared counter next[0]
+ * (Atomics.add), until none is left: every parsing thread runs this, so a thread slowed by a busy
+ * machine or a late start simply takes fewer ranges. `onBytes` gets the bytes this thread has done.
+ * A quoted range ends the claims of every thread (the caller then reads on one thread).
+ */
+export async function parseClaimedRanges(tasks: readonly RangeTask[], next: Int32Array, onBytes: (done: number) => void): Promise<ClaimedRanges> {
+  const parsed: ClaimedRanges = [];
+  let before = 0;
+  for (;;) {
+    const k = Atomics.add(next, 0, 1);
+    if (k >= tasks.length) return parsed;
+    const task = tasks[k]!;
+    const result = await parseRange(task, (bytes) => onBytes(before + bytes));
+    parsed.push([k, result]);
+    before += task.end - task.start;
+    if (result.kind === 'quoted') {
+      Atomics.store(next, 0, tasks.length);
+      return parsed;
+    }
+  }
+}
+
 /** The buffers of a result, to transfer rather than copy between threads. */
 export function transferList(result: RangeResult): ArrayBuffer[] {
   if (result.kind !== 'rows') return [];
