@@ -12,7 +12,7 @@ import { engineSettings } from '../config';
 import { CancelledError, InputError } from '../errors';
 import { BytePool, hashBytes, type BytePoolState } from '../model/bytePool';
 import type { RankedDump } from '../model/dump';
-import { RowTexts } from '../model/rowTexts';
+import { isGrouped, RowTexts } from '../model/rowTexts';
 import { addSummaries } from '../model/rowSummary';
 import { ROW_COLUMN_NAMES, ROW_COLUMNS, RowColumns, rowArray, rowArrays, sharedViews, type RowArrays, type RowColumnName, type SharedColumns } from '../readers/columns';
 import { parseHeaderLine } from '../readers/headerLine';
@@ -65,6 +65,7 @@ export async function readParallelDelimited(path: string, format: 'csv' | 'tsv',
     ? compactShared(parts, slices, lineOffsets, header.parser.columns!)
     : merge(parts.map((p, k) => (p.inShared ? { ...p, ...sharedViews(slices[k]!, p.count) } : p)), lineOffsets, header.parser.columns!);
   if (rows.count === 0) throw new InputError('at least one data row after the header', path, 2);
+  itemKeysOfRanges(rows, parts);
   await checkUnchanged(path, stamp);
   rows.setGaps(gaps);
   options.onProgress?.(1);
@@ -150,6 +151,43 @@ function compactShared(parts: Extract<RangeResult, { kind: 'rows' }>[], slices: 
   rows.count = total;
   rows.capacity = total;
   return rows;
+}
+
+/**
+ * The ranges' query-scoped item keys as the dump's: when every range keyed its rows and the merged file
+ * is grouped by query, each range's keys are shifted by the rows before it, and the query cut by each
+ * range's end is keyed again as a whole (its rows after the cut were keyed apart from those before).
+ * Otherwise the item column gets its hashes back and `finish` keys the whole dump as one thread does.
+ */
+function itemKeysOfRanges(rows: RowColumns, parts: readonly Extract<RangeResult, { kind: 'rows' }>[]): void {
+  const texts = rows.itemTexts!;
+  const item = rows.item;
+  const query = rows.query;
+  if (!parts.every((p) => p.itemKeys) || !isGrouped(query, rows.count)) {
+    texts.hashRows(item);
+    return;
+  }
+  const starts: number[] = [];
+  let first = 0;
+  for (const p of parts) {
+    starts.push(first);
+    if (first > 0) for (let i = first; i < first + p.count; i++) item[i] = item[i]! + first;
+    first += p.count;
+  }
+  // A range whose first row continues the query of the row before: that query is keyed again as a whole
+  // (once, however many ranges it spans).
+  let rekeyedTo = 0;
+  for (const at of starts) {
+    if (at === 0 || at >= rows.count || at < rekeyedTo || query[at - 1] !== query[at]) continue;
+    const q = query[at]!;
+    let from = at - 1;
+    while (from > 0 && query[from - 1] === q) from--;
+    let to = at;
+    while (to < rows.count && query[to] === q) to++;
+    texts.rekeyRows(item, from, to);
+    rekeyedTo = to;
+  }
+  rows.itemKeysMade = true;
 }
 
 /** Range starts: evenly spaced, each moved just past the next newline. The last entry is the size. */
