@@ -92,6 +92,22 @@ describe('parallel parsing', () => {
     }
   });
 
+  it('matches one thread when records outgrow the read buffers, which each thread hands from range to range', async () => {
+    // Chunks of 128 bytes and records up to 600: the buffers grow in some ranges and are reused, grown, by the next.
+    const rnd = seededRandom(91);
+    const lines = ['query_id,item_id,label,score,note'];
+    for (let r = 0; r < 3000; r++) lines.push(`q${r >> 4},sku-${Math.floor(rnd() * 900)},${r % 3},${(rnd() * 9).toFixed(2)},${'n'.repeat(Math.floor(rnd() ** 4 * 600))}`);
+    const path = tmp.file('par-long-records.csv', lines.join('\n') + '\n');
+    const saved = configureEngine({ tuning: { plainChunkBytes: 128, parseRangesPerThread: 8 } });
+    try {
+      const multi = await readParallelDelimited(path, 'csv', 44, 2, {});
+      expect(multi).toBeDefined();
+      expectSameDump(await readDump(path, { threads: 1 }), multi!);
+    } finally {
+      configureEngine(saved);
+    }
+  });
+
   it('falls back to one thread for a file with quotes and still matches', async () => {
     const text = randomPlainCsv(21, 5000) + '"quoted, query",sku-1,1,0.5,mobile\n';
     const path = tmp.file('par-quoted.csv', text);

@@ -11,7 +11,7 @@ import { summariseRows, type RowSummary } from '../model/rowSummary';
 import { ROW_COLUMN_NAMES, rowArray, rowArrays, type RowArrays, type SharedColumns } from './columns';
 import { DelimitedParser } from './delimited';
 import type { ColumnRoles } from './roles';
-import { pumpRange, type RecordSink } from './source';
+import { pumpRange, type ReadBuffers, type RecordSink } from './source';
 
 export interface RangeTask {
   readonly path: string;
@@ -65,11 +65,11 @@ class QuoteGuard implements RecordSink {
   }
 }
 
-export async function parseRange(task: RangeTask, onBytes: (done: number) => void): Promise<RangeResult> {
+export async function parseRange(task: RangeTask, onBytes: (done: number) => void, reuse?: ReadBuffers): Promise<RangeResult> {
   const parser = new DelimitedParser({ file: task.path, delimiter: task.delimiter, columns: task.columns, expectedBytes: task.end - task.start,
     shared: task.shared }, { names: task.names });
   try {
-    await pumpRange(task.path, task.start, task.end, new QuoteGuard(parser), onBytes, task.chunkBytes);
+    await pumpRange(task.path, task.start, task.end, new QuoteGuard(parser), onBytes, task.chunkBytes, reuse);
   } catch (err) {
     if (err instanceof QuotedRange) return { kind: 'quoted' };
     if (err instanceof InputError) return { kind: 'error', expected: err.expected, file: err.file, line: err.line, found: err.found };
@@ -100,12 +100,13 @@ export type ClaimedRanges = [number, RangeResult][];
  */
 export async function parseClaimedRanges(tasks: readonly RangeTask[], next: Int32Array, onBytes: (done: number) => void): Promise<ClaimedRanges> {
   const parsed: ClaimedRanges = [];
+  const buffers: ReadBuffers = {};
   let before = 0;
   for (;;) {
     const k = Atomics.add(next, 0, 1);
     if (k >= tasks.length) return parsed;
     const task = tasks[k]!;
-    const result = await parseRange(task, (bytes) => onBytes(before + bytes));
+    const result = await parseRange(task, (bytes) => onBytes(before + bytes), buffers);
     parsed.push([k, result]);
     before += task.end - task.start;
     if (result.kind === 'quoted') {

@@ -59,6 +59,8 @@ function kernelModule(): WasmModule | undefined {
   }
   return compiled.module ?? undefined;
 }
+let lastMade: { readonly module: WasmModule; readonly key: string; readonly kernel: SimpleRecordsKernel } | undefined;
+
 /** After the kernel stops early this often in a row, the JavaScript loop takes longer runs (e.g. every score has an exponent). */
 const JS_RUN_AFTER_SHORT_CALL = 256;
 
@@ -91,7 +93,14 @@ export class SimpleRecordsKernel {
    */
   static create(roleOf: Int32Array, itemBytes = false): SimpleRecordsKernel | undefined {
     const module = kernelModule();
-    return module && new SimpleRecordsKernel(module, roleOf, itemBytes);
+    if (module === undefined) return undefined;
+    // The last kernel made on this thread serves again for the same fields and sizes (a parse thread reads
+    // range after range of one file): its memory is already faulted in. Sharing one is safe, since a call
+    // to parse() keeps nothing in the kernel between calls and runs to its end without yielding.
+    const { kernelRowsPerCall, kernelPieceBytes } = engineSettings().tuning;
+    const key = `${roleOf.join(',')}|${itemBytes}|${kernelRowsPerCall}|${kernelPieceBytes}`;
+    if (lastMade?.module !== module || lastMade.key !== key) lastMade = { module, key, kernel: new SimpleRecordsKernel(module, roleOf, itemBytes) };
+    return lastMade.kernel;
   }
 
   private constructor(module: WasmModule, roleOf: Int32Array, itemBytes: boolean) {

@@ -117,8 +117,17 @@ export async function pumpText(path: string, sink: RecordSink, options: PumpOpti
  * Used by parse workers, each taking one newline-aligned range of a large file.
  */
 export async function pumpRange(path: string, start: number, end: number, sink: RecordSink,
-  onBytes: (done: number) => void, chunkBytes = engineSettings().tuning.plainChunkBytes): Promise<void> {
-  await feedPlain(path, start, end, sink, { onBytes: (at) => onBytes(at - start), chunkBytes, guard: new TextGuard(path, false, start) });
+  onBytes: (done: number) => void, chunkBytes = engineSettings().tuning.plainChunkBytes, reuse?: ReadBuffers): Promise<void> {
+  await feedPlain(path, start, end, sink, { onBytes: (at) => onBytes(at - start), chunkBytes, guard: new TextGuard(path, false, start), reuse });
+}
+
+/**
+ * The two read buffers of one read, handed to the next read on the same thread (a parse thread reads
+ * several ranges in turn): fresh memory costs a page fault per page on first touch, which on a busy
+ * machine took longer than reading the bytes into it.
+ */
+export interface ReadBuffers {
+  pair?: Buffer[];
 }
 
 /**
@@ -129,11 +138,17 @@ export async function pumpRange(path: string, start: number, end: number, sink: 
  */
 async function feedPlain(path: string, from: number, to: number, sink: RecordSink,
   options: { fileStart?: string; signal?: AbortSignal; onBytes: (position: number) => void; chunkBytes?: number | undefined;
-    guard: TextGuard }): Promise<void> {
+    guard: TextGuard; reuse?: ReadBuffers | undefined }): Promise<void> {
   const fh = await fsp.open(path, 'r');
   const chunk = Math.max(16, options.chunkBytes ?? engineSettings().tuning.plainChunkBytes);
   let room = chunk;
-  let buffers = [Buffer.allocUnsafe(room + chunk), Buffer.allocUnsafe(room + chunk)];
+  let buffers: Buffer[] = [Buffer.allocUnsafe(room + chunk), Buffer.allocUnsafe(room + chunk)];
+  const earlier = options.reuse?.pair;
+  if (earlier !== undefined && earlier[0]!.length === earlier[1]!.length && earlier[0]!.length >= 2 * chunk) {
+    // The room of an earlier read (grown for a long record, perhaps) comes with its buffers.
+    buffers = earlier;
+    room = earlier[0]!.length - chunk;
+  }
   let position = from;
   let wanted = 0;
   let pending: Promise<{ bytesRead: number }> = Promise.resolve({ bytesRead: 0 });
@@ -199,6 +214,7 @@ async function feedPlain(path: string, from: number, to: number, sink: RecordSin
   } finally {
     await pending.catch(() => undefined);
     await fh.close();
+    if (options.reuse !== undefined) options.reuse.pair = buffers;
   }
 }
 
