@@ -44,7 +44,7 @@ export async function readParallelDelimited(path: string, format: 'csv' | 'tsv',
   const header = await readHeader(path, delimiter, options);
   if (header === undefined) return undefined;
   const bounds = await splitPoints(path, header.end, stamp.size, threads * Math.max(1, engineSettings().tuning.parseRangesPerThread));
-  const slices = sharedSlices(bounds, header.bytesPerRow, header.parser.columns!.segmentNames.length);
+  const slices = sharedSlices(bounds, await rowSizes(path, bounds, header.bytesPerRow), header.parser.columns!.segmentNames.length);
   const tasks: RangeTask[] = bounds.slice(0, -1).map((start, k) => ({
     path, start, end: bounds[k + 1]!, delimiter, names: header.names, columns: options.columns, chunkBytes: engineSettings().tuning.plainChunkBytes,
     shared: slices[k],
@@ -90,8 +90,9 @@ async function readHeader(path: string, delimiter: number, options: ReadOptions)
 }
 
 /** One slice of shared columns per range, sized from the bytes per row of a sample with a margin. */
-function sharedSlices(bounds: number[], bytesPerRow: number, segments: number): SharedColumns[] {
-  const sizes = bounds.slice(0, -1).map((start, k) => Math.ceil(((bounds[k + 1]! - start) / bytesPerRow) * 1.15) + 1024);
+function sharedSlices(bounds: number[], bytesPerRow: number[], segments: number): SharedColumns[] {
+  // The room a range leaves unused ends up above the compacted rows, written and kept: the margin is that memory.
+  const sizes = bounds.slice(0, -1).map((start, k) => Math.ceil(((bounds[k + 1]! - start) / bytesPerRow[k]!) * SLICE_MARGIN) + 1024);
   const total = sizes.reduce((a, b) => a + b, 0);
   const buffers = {} as Record<RowColumnName, SharedArrayBuffer>;
   for (const name of ROW_COLUMN_NAMES) buffers[name] = new SharedArrayBuffer(total * ROW_COLUMNS[name].array.BYTES_PER_ELEMENT);
@@ -188,6 +189,34 @@ function itemKeysOfRanges(rows: RowColumns, parts: readonly Extract<RangeResult,
     rekeyedTo = to;
   }
   rows.itemKeysMade = true;
+}
+
+/**
+ * Rows per range are guessed from samples of the rows at both ends of each range (the smaller bytes per
+ * row of the two, as rows often lengthen along a file: ids with growing numbers); a range that still
+ * outgrows its slice goes on in private arrays, merged by copying (slower, never wrong).
+ */
+const SLICE_MARGIN = 1.06;
+const SAMPLE_BYTES = 64 * 1024;
+
+/** Bytes per row at each range start (the first from the header's sample) and at the file's end, per range the smaller of its two ends. */
+async function rowSizes(path: string, bounds: number[], first: number): Promise<number[]> {
+  const at: number[] = [first];
+  const fh = await fsp.open(path, 'r');
+  try {
+    const probe = Buffer.alloc(SAMPLE_BYTES);
+    for (let k = 1; k < bounds.length; k++) {
+      const last = k === bounds.length - 1;
+      const from = last ? Math.max(bounds[0]!, bounds[k]! - SAMPLE_BYTES) : bounds[k]!;
+      const { bytesRead } = await fh.read(probe, 0, SAMPLE_BYTES, from);
+      let newlines = 0;
+      for (let i = 0; i < bytesRead; i++) if (probe[i] === 10) newlines++;
+      at.push(newlines > 1 ? bytesRead / newlines : at[k - 1]!);
+    }
+  } finally {
+    await fh.close();
+  }
+  return bounds.slice(0, -1).map((_, k) => Math.min(at[k]!, at[k + 1]!));
 }
 
 /** Range starts: evenly spaced, each moved just past the next newline. The last entry is the size. */
