@@ -7,6 +7,7 @@
  */
 import { InputError } from '../errors';
 import { hashBytes } from '../model/bytePool';
+import { indexOfByte } from './byteSearch';
 import { RowColumns, type SharedColumns } from './columns';
 import { describeNonNumber, parseNumber } from './numbers';
 import { resolveRoles, type ColumnRoles } from './roles';
@@ -90,8 +91,8 @@ export class DelimitedParser implements RecordSink, FastState {
     while (pos < end) {
       if (this.rows !== undefined && pos < lineLimit) {
         if (quoteAt < pos) {
-          quoteAt = buf.indexOf(QUOTE, pos);
-          if (quoteAt < 0 || quoteAt >= end) quoteAt = end;
+          quoteAt = indexOfByte(buf, QUOTE, pos, end);
+          if (quoteAt < 0) quoteAt = end;
           quoteLine = quoteAt === end ? end : buf.lastIndexOf(LF, quoteAt) + 1;
         }
         const limit = Math.min(lineLimit, quoteLine);
