@@ -61,6 +61,8 @@ export type StreamOrRead =
 
 export interface StreamOrReadOptions extends Pick<StreamEvaluateOptions, 'sensitivity' | 'onPartial' | 'onProgress' | 'signal' | 'blockBytes'> {
   readonly reading?: ReadingMode;
+  /** With `auto`: stream from this file size (default stream/choose.ts STREAM_FROM_BYTES). */
+  readonly streamFromBytes?: number;
 }
 
 /**
@@ -70,7 +72,7 @@ export interface StreamOrReadOptions extends Pick<StreamEvaluateOptions, 'sensit
  */
 export async function streamOrRead(path: string, read: ReadOptions, metrics: readonly MetricSpec[], conventions: Conventions,
   options: StreamOrReadOptions = {}): Promise<StreamOrRead> {
-  const choice = await chooseReading(path, read, options.reading ?? 'auto');
+  const choice = await chooseReading(path, read, options.reading ?? 'auto', options.streamFromBytes);
   if (choice.stream) {
     const outcome = await streamEvaluate(path, choice.format, metrics, conventions, {
       ...options, ...(read.columns ? { columns: read.columns } : {}), ...(read.threads !== undefined ? { threads: read.threads } : {}),

@@ -10,12 +10,7 @@ import { copyText, exportView, revealRow } from './hostActions';
 import { LOAD_TIMEOUT_MS, type EngineWorker } from './workerHost';
 import { resolveViewSources, type SessionTarget } from './viewSources';
 import { WebviewLink } from './webviewLink';
-import type {
-  CompareOverviewModel,
-  OverviewModel,
-  ViewRequests,
-  ViewState,
-} from '../protocol/messages';
+import type { CompareOverviewModel, OverviewModel, PartialOverview, ViewRequests, ViewState } from '../protocol/messages';
 import { RemoteError, RequestAbortedError, type RequestHandlers } from '../channel/request';
 import type { DumpSource, FollowUpTimes } from '../protocol/worker';
 import type { ForegroundWork } from './foreground';
@@ -187,9 +182,12 @@ export class ViewSession implements vscode.Disposable {
     // Progress goes to the webview, the window status and (for a first read that takes a while) a
     // notification with Cancel; a quick read never flashes a notification.
     const sinks = new Set<(fraction: number | null, message: string) => void>();
-    const onProgress = (fraction: number | null, message: string): void => {
+    // A dump streaming in sends its overview so far; the latest stays on screen until the full one.
+    let partial: PartialOverview | undefined;
+    const onProgress = (fraction: number | null, message: string, next?: PartialOverview): void => {
+      partial = next ?? partial;
       for (const sink of sinks) sink(fraction, message);
-      if (kind === 'loaded') this.setState({ status: 'loading', mode: this.target.mode, label: this.label, fraction, message });
+      if (kind === 'loaded') this.setState({ status: 'loading', mode: this.target.mode, label: this.label, fraction, message, ...(partial ? { partial } : {}) });
     };
     const attach = (progress: vscode.Progress<{ increment?: number; message?: string }>): void => {
       let reported = 0;
@@ -206,7 +204,7 @@ export class ViewSession implements vscode.Disposable {
       if (this.target.mode === 'single') {
         const askedEpoch = Date.now();
         const { timeline, ...overview } = await this.deps.worker.call(
-          'load', { session: this.key, source: this.sources[0]!, settings: evaluationSettings(config) }, options);
+          'load', { session: this.key, source: this.sources[0]!, settings: evaluationSettings(config), streamFromBytes: config.streamFromBytes }, options);
         this.overview = overview;
         this.setState({ status: kind, mode: 'single', overview });
         const answered = performance.now();
@@ -279,7 +277,8 @@ export class ViewSession implements vscode.Disposable {
   private async reread(): Promise<void> {
     const config = this.deps.getConfig();
     if (this.target.mode === 'single') {
-      const { timeline: _timeline, ...overview } = await this.deps.worker.call('load', { session: this.key, source: this.sources[0]!, settings: evaluationSettings(config) }, { timeoutMs: LOAD_TIMEOUT_MS });
+      const { timeline: _timeline, ...overview } = await this.deps.worker.call('load',
+        { session: this.key, source: this.sources[0]!, settings: evaluationSettings(config), streamFromBytes: config.streamFromBytes }, { timeoutMs: LOAD_TIMEOUT_MS });
       this.overview = overview;
     } else {
       this.compare = await this.deps.worker.call('loadCompare', { session: this.key, a: this.sources[0]!, b: this.sources[1]!, settings: compareSettings(config) }, { timeoutMs: LOAD_TIMEOUT_MS });

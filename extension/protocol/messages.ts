@@ -17,19 +17,13 @@ import type {
   MovementView,
   RunSide,
 } from './compareMessages';
-import type {
-  CompareCheckpointsParams,
-  OpenCheckpointParams,
-  SeriesOverviewModel,
-  SeriesQueries,
-  SeriesQueriesParams,
-  TrajectoryParams,
-  TrajectoryView,
-} from './seriesMessages';
+import type { CompareCheckpointsParams, OpenCheckpointParams, SeriesOverviewModel, SeriesQueries, SeriesQueriesParams, TrajectoryParams, TrajectoryView } from './seriesMessages';
+import type { PartialOverview } from './partialOverview';
 import type { ConventionsView, FileInfo, MaybeNumber, SegmentFilter, SortSpec } from './viewBasics';
 
 export type * from './compareMessages';
 export type * from './seriesMessages';
+export type * from './partialOverview';
 export type * from './viewBasics';
 
 // ---------------------------------------------------------------------------------------------
@@ -364,6 +358,8 @@ export type ViewState =
       /** 0..1, or null when unknown. */
       readonly fraction: MaybeNumber;
       readonly message: string;
+      /** A dump streaming in: its overview so far, shown until the full one replaces it. */
+      readonly partial?: PartialOverview;
     }
   /** First result. The webview resets its selection. */
   | { readonly status: 'loaded'; readonly mode: 'single'; readonly overview: OverviewModel }

@@ -5,6 +5,7 @@
 import type { CompareOverviewModel, ExportViewParams, HostToView, OverviewModel, SeriesOverviewModel, ViewRequests, ViewState, ViewToHost } from '../../extension/protocol/messages';
 import { RequestClient } from '../../extension/channel/request';
 import { formatCount } from './model/format';
+import { partialOverviewElement } from './screens/partialOverview';
 import { TABS, type TabName } from './tabs';
 import type { AppContext } from './ui/context';
 import { clear, el, icon } from './ui/dom';
@@ -142,6 +143,11 @@ export class App implements AppContext {
       case 'loading': {
         const pct = state.fraction === null ? '' : ` ${Math.round(state.fraction * 100)}%`;
         this.setLoading(`${state.message}${pct}`, state.fraction, state.label);
+        if (state.partial) {
+          (this.loading.lastElementChild ?? this.loading).append(partialOverviewElement(state.partial));
+          // The end-to-end suite checks that a partial overview came before the full one.
+          if (performance.getEntriesByName('gainline-partial').length === 0) performance.mark('gainline-partial');
+        }
         return;
       }
       case 'error':

@@ -109,6 +109,11 @@ export class StreamColumns {
     for (let i = from; i < to; i++) l.line[at + i - from] = scored.line[i]! + lineOffset;
   }
 
+  /** The metric columns and the weights as they stand (regrown as queries come, so asked for each time). */
+  current(): { values: readonly Float64Array[]; weight: Float64Array | undefined } {
+    return { values: this.columns.values, weight: this.weight };
+  }
+
   /** Sets where a stitched query's rows are before it is scored (its id was added at its first piece). */
   place(id: number, start: number, end: number, rows: number): void {
     this.locations.start[id] = start;

@@ -23,7 +23,7 @@
  */
 import { availableParallelism } from 'node:os';
 import { CancelledError, InputError } from '../errors';
-import { emptyTally, finishEvaluation, newSensitivityPass, summarise, addTally, type RangeTally } from '../evaluate/evaluate';
+import { emptyTally, finishEvaluation, newSensitivityPass, addTally, type RangeTally } from '../evaluate/evaluate';
 import { checkGainsAndGrades } from '../evaluate/gainLimits';
 import type { SensitivityColumns } from '../evaluate/sensitivity';
 import type { Evaluation, MetricSummary } from '../evaluate/types';
@@ -38,6 +38,7 @@ import type { BlockResult, BlockTask } from './block';
 import { startBlockRunner, type BlockRunner } from './blockRunner';
 import { isWeightName } from '../tables/sideRoles';
 import { blockBounds, readHeaderLine } from './fileBlocks';
+import { PartialMeans } from './partialMeans';
 import { newSensitivityPassWith, scoredBlockSetup } from './setup';
 import { QueryReappeared, StreamColumns, type QueryLocations } from './streamColumns';
 
@@ -129,6 +130,7 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
     const state = { highest: -Infinity, lineOffset: 1, rows: 0, tally: emptyTally(), largest: 0, gaps: [] as RowSummary[], grades: new Set<number>() };
     const scoredBlocks: { index: number; firstId: number; count: number; gmax: number }[] = [];
     const edges: OpenEdge[] = [];
+    const partialMeans = options.onPartial ? new PartialMeans(metrics.map((m) => m.key), weightColumn !== undefined) : undefined;
     let open: OpenEdge | undefined;
     const closeOpen = () => {
       if (open) edges.push(open);
@@ -170,8 +172,11 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
         }
         if (result.runs >= 2) {
           closeOpen();
-          scoredBlocks.push({ index: k, firstId: table.size, count: result.scored.names.length, gmax: result.gmax });
+          const firstId = table.size;
+          scoredBlocks.push({ index: k, firstId, count: result.scored.names.length, gmax: result.gmax });
           table.addScored(result.scored, state.lineOffset);
+          const now = table.current();
+          partialMeans?.add(now.values, now.weight, firstId, table.size);
           const l = result.last;
           open = { id: table.add(l.query, l.line + state.lineOffset), query: l.query, start: l.start, end: l.end, rows: l.rows };
         }
@@ -187,10 +192,8 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
       for (const g of result.grades ?? []) state.grades.add(g);
       addTally(state.tally, result.tally);
       options.onProgress?.((bounds[k + 1]! - bounds[0]!) / Math.max(1, stamp.size - bounds[0]!));
-      if (options.onPartial) {
-        const view = table.finish();
-        options.onPartial({ queries: table.size, rows: state.rows, bytesRead: bounds[k + 1]!, totalBytes: stamp.size,
-          summary: metrics.map((m, i) => summarise(m.key, view.perQuery.values[i]!, view.weight)) });
+      if (options.onPartial && partialMeans) {
+        options.onPartial({ queries: table.size, rows: state.rows, bytesRead: bounds[k + 1]!, totalBytes: stamp.size, summary: partialMeans.summary() });
       }
     }
     closeOpen();
