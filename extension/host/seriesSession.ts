@@ -49,6 +49,8 @@ export class SeriesSession implements vscode.Disposable {
     webview: vscode.Webview,
     readonly label: string,
     private readonly deps: SeriesSessionDeps,
+    /** The series' key in the Runs view (SeriesGroup.key). */
+    readonly seriesKey: string,
   ) {
     this.link = new WebviewLink(webview, { status: 'loading', mode: 'series', label, fraction: null, message: 'Starting…' }, this.handlers());
     const watcher = vscode.workspace.createFileSystemWatcher(deps.watchPattern);
@@ -101,7 +103,7 @@ export class SeriesSession implements vscode.Disposable {
       if (abort.signal.aborted || this.disposed) return;
       const kind = this.model ? 'reloaded' : 'loaded';
       this.model = model;
-      this.setState({ status: kind, mode: 'series', series: model });
+      this.setState({ status: kind, mode: 'series', series: model, seriesKey: this.seriesKey });
       this.deps.log?.(`series ${group.label}: ${model.checkpoints.length} checkpoints (${model.scoredNow} read now), ${model.unread.length} unread, ${model.loadMs} ms`);
     } catch (error) {
       if (abort.signal.aborted || this.disposed) return; // superseded by a newer load
