@@ -42,7 +42,7 @@ export function activate(context: vscode.ExtensionContext): void {
   const tree = new RankedListsTree(treeWorker, getConfig, context.workspaceState, foreground, (line) => output.info(line));
   const status = new HeadlineStatus();
   const recent = new RecentComparisons(context.workspaceState);
-  const runs = new RunsTree(() => tree.listFiles(), getConfig);
+  const runs = new RunsTree(() => tree.listing(), getConfig);
   const seriesPanels = new SeriesPanels(context.extensionUri);
   const openCompare = (a: vscode.Uri, b: vscode.Uri): void => {
     openComparePanel(a, b, context.extensionUri, deps, registry);
