@@ -53,6 +53,8 @@ export interface BlockTask {
   readonly weights: boolean;
   /** Collect the distinct grades (a gain map must list each of them). */
   readonly distinctGrades: boolean;
+  /** Give each scored query's segment values (its first row's), for segment means over the streamed queries. */
+  readonly segmentValues?: boolean;
 }
 
 /** A run of one query's rows: its id, first line (counted from 1 at the block start) and byte range. */
@@ -76,6 +78,8 @@ export interface ScoredRuns {
   readonly sensitivity?: SensitivityColumns;
   /** Each query's weight (NaN when unknown), when the dump has a weight column. */
   readonly weight?: Float64Array;
+  /** Per segment column, each query's value on its first row (with `segmentValues`). */
+  readonly segments?: string[][];
 }
 
 export type BlockResult =
@@ -258,6 +262,7 @@ function scoreBlock(task: BlockTask, dump: RankedDump, lines: number): BlockResu
       names, start: scoredStart, end: scoredEnd, line: scoredLine, rows: scoredRows,
       perQuery: slicePerQuery(perQuery, from, to),
       ...(weights ? { weight: weights.slice(from, to) } : {}),
+      ...(task.segmentValues ? { segments: dump.segments.map((c) => names.map((_, i) => c.values.get(c.ofRow[start[from + i]!]!))) } : {}),
       ...(recorded ? { sensitivity: { value: recorded.value.map((v) => v.slice(from, to)), entered: recorded.entered.map((e) => e.slice(from, to)) } } : {}),
     },
     tally,
