@@ -33,7 +33,7 @@ import { isCancelled } from './cancelFlags';
 import { warmUp } from './warmUp';
 import { SeriesStore } from './seriesStore';
 import { isSqlSource, loadSql, sqlQueryDetail, sqlQueryJson, type SqlLoaded } from './sqlSession';
-import { loadStreamOrRead, mayStream, needsRows, streamedDetail, streamedQueryJson, streamedRowLocation, type StreamedLoaded } from './streamSession';
+import { joinedNote, loadStreamOrRead, mayStream, needsRows, streamedDetail, streamedQueryJson, streamedRowLocation, type StreamedLoaded } from './streamSession';
 
 interface Loaded {
   readonly dump: RankedDump;
@@ -193,6 +193,7 @@ const handlers: RequestHandlers<WorkerRequests> = {
     }
     const dump = streamed?.dump ?? await read(source, ctx, 0, 0.75);
     if (streamed?.note) dump.notes.messages.push(streamed.note);
+    else if (streamFromBytes !== undefined && !streamed && dump.stamp.size >= streamFromBytes) dump.notes.messages.push(joinedNote(source));
     const readDone = Date.now();
     const groups = groupByQuery(dump);
     const metrics = parseMetricList(settings.metrics);

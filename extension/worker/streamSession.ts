@@ -49,8 +49,18 @@ export type StreamLoad =
 
 /** Whether the source can stream at all: what is joined from other files needs the rows in memory. */
 export function mayStream(source: DumpSource): boolean {
-  return source.sqlEngine === undefined && source.judgments === undefined && source.scores === undefined
-    && source.queries === undefined && source.items === undefined;
+  return source.sqlEngine === undefined && sideFiles(source).length === 0;
+}
+
+function sideFiles(source: DumpSource): string[] {
+  return [source.judgments !== undefined && `judgments file ${source.judgments}`, source.scores !== undefined && `scores file ${source.scores}`,
+    source.queries !== undefined && `queries table ${source.queries}`, source.items !== undefined && `items table ${source.items}`].filter((f) => f !== false);
+}
+
+/** For a dump large enough to stream that was read into memory because files are joined to it: why, for its overview. */
+export function joinedNote(source: DumpSource): string {
+  return `Read into memory rather than streamed (it is over gainline.reading.streamFromMegabytes), since the ${sideFiles(source).join(' and the ')} ` +
+    `${sideFiles(source).length > 1 ? 'are' : 'is'} joined to it, which needs its rows.`;
 }
 
 /** Streams the source when its format and size allow (engine stream/choose.ts), else reads it. */

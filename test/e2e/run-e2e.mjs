@@ -24,11 +24,12 @@ import { compareFirstHour, compareSurvivesReload, gainlineContainer } from './sc
 import { firstScreenTimes } from './scenarios/firstScreen.mjs';
 import { trendGrowsLive, trendSurvivesReload, trendViewMatchesCli } from './scenarios/trend.mjs';
 import { duckdbServedFile } from './scenarios/sqlEngines.mjs';
+import { streamedOverview } from './scenarios/streaming.mjs';
 
 const SCENARIOS = [openWithShowsHeadline, reopenWithAndFilter, parquetFromExplorerMenu, worstQueryDetail, rewriteKeepsSelection, compareWinsLosses,
   htmlIdsStayText, malformedShowsError, themesReadable, gridsReachEveryColumn, revealKeepsViewerUsable,
   idealOrderAndStrip, statusBarReadable, smallThings, compareFirstHour, compareSurvivesReload, gainlineContainer, firstScreenTimes,
-  duckdbServedFile, trendViewMatchesCli, trendSurvivesReload, trendGrowsLive];
+  duckdbServedFile, streamedOverview, trendViewMatchesCli, trendSurvivesReload, trendGrowsLive];
 const SCENARIO_TIMEOUT_MS = 240_000;
 
 const args = process.argv.slice(2);

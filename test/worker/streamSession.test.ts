@@ -114,6 +114,17 @@ describe('a dump streamed in the editor', () => {
     expect(overview.sensitivityLater).toBe(true);
   });
 
+  it('reads into memory, and says why, when a judgments file is joined to a dump large enough to stream', async () => {
+    const judgments = join(dir, 'kettlewood.judgments.tsv');
+    writeFileSync(judgments, `query_id\titem_id\tlabel\n${QUERY_NAMES[0]} 0\tsku-0-0\t3\n`);
+    const partials: PartialOverview[] = [];
+    const overview = await worker.call('load', { session: 'judged', source: { path: file, judgments }, settings, streamFromBytes: 0 },
+      { onProgress: (_f, _m, partial) => partial && partials.push(partial) });
+    expect(partials).toEqual([]);
+    expect(overview.warnings.filter((w) => w.startsWith('Read into memory rather than streamed'))).toEqual([
+      `Read into memory rather than streamed (it is over gainline.reading.streamFromMegabytes), since the judgments file ${judgments} is joined to it, which needs its rows.`]);
+  });
+
   it('stops when cancelled after the first partial overview, and the worker keeps answering', async () => {
     const abort = new AbortController();
     let partials = 0;

@@ -52,6 +52,8 @@ export interface StreamEvaluateOptions {
   /** Threads that read and score blocks; default: every core, at most 4 (this thread only merges). */
   readonly threads?: number;
   readonly blockBytes?: number;
+  /** Keep each query's segment values (its first row's), for segment means (`StreamedDump.querySegments`). */
+  readonly segments?: boolean;
   readonly signal?: AbortSignal;
   readonly onProgress?: (fraction: number) => void;
   /** Called after each block is taken in, with the headline of the queries scored so far. */
@@ -81,6 +83,11 @@ export interface StreamedDump {
   readonly locations: QueryLocations;
   /** The header's column names, to read a query's rows again. */
   readonly names: readonly string[];
+  /**
+   * With the `segments` option: per segment column (the weight column aside, as the in-memory join leaves
+   * it), each query's value, as `segments` of a dump holding one row per query, each query's first.
+   */
+  readonly querySegments?: readonly { readonly name: string; readonly values: StringPool; readonly ofQuery: Uint32Array }[];
   readonly columns?: ColumnRoles;
 }
 
@@ -119,10 +126,11 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
   const blank = scoredBlockSetup(metrics, conventions, { rowsOfQuery: new Uint32Array(0), start: new Uint32Array(1) }, 0, 0, sensitivity);
   // The pass the blocks record with (every gain kept), to match its columns with the final pass's.
   const spec = sensitivity ? newSensitivityPassWith(blank, () => undefined) : undefined;
-  const table = new StreamColumns(metrics.length, blank.hasRbp, spec?.variantCount, weightColumn !== undefined);
+  const keepSegments = options.segments === true && header.segmentNames.length > 0;
+  const table = new StreamColumns(metrics.length, blank.hasRbp, spec?.variantCount, weightColumn !== undefined, keepSegments ? header.segmentNames.length : 0);
   const mapGain = conventions.gain.kind === 'map';
   const base = { path, format, delimiter, names: header.names, segmentCount: header.segmentNames.length, ...(options.columns ? { columns: options.columns } : {}), metrics, conventions, sensitivity,
-    distinctGrades: mapGain, weights: weightColumn !== undefined };
+    distinctGrades: mapGain, weights: weightColumn !== undefined, segmentValues: keepSegments };
   const threads = Math.max(1, Math.min(16, Math.floor(options.threads ?? Math.min(4, availableParallelism()))));
   const runner = startBlockRunner(threads, options.signal);
   const blocks = bounds.length - 1;
@@ -214,8 +222,10 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
     const view = table.finish();
     // As the in-memory join gives it (tables/join.ts): the weight of each query from its rows.
     const joined = view.weight && weightColumn !== undefined ? { notes: [], queryWeight: view.weight, weightSource: `column '${weightColumn}' of ${path}` } : undefined;
+    const querySegments = keepSegments ? header.segmentNames.map((name, k) => ({ name, values: table.segment(k).pool, ofQuery: table.segment(k).ofQuery }))
+      .filter((s) => s.name !== weightColumn) : undefined;
     const dump: StreamedDump = { path, format, stamp, rowCount: state.rows, queries: table.queries, notes, locations: view.locations,
-      names: header.names, ...(options.columns ? { columns: options.columns } : {}), ...(joined ? { joined } : {}) };
+      names: header.names, ...(options.columns ? { columns: options.columns } : {}), ...(joined ? { joined } : {}), ...(querySegments ? { querySegments } : {}) };
     const setup = scoredBlockSetup(metrics, conventions, { rowsOfQuery: new Uint32Array(0), start: new Uint32Array(table.size + 1) }, table.size, gmax,
       sensitivity, range, state.largest);
     const pass = sensitivity ? newSensitivityPass(setup) : undefined;
