@@ -8,7 +8,6 @@ import { createGunzip } from 'node:zlib';
 import { engineSettings } from '../config';
 import { CancelledError, InputError } from '../errors';
 import type { FileStamp } from '../model/dump';
-import { indexOfByte } from './byteSearch';
 import { assertTextHead, badByteError, firstBadByte, lineAt } from './textCheck';
 
 /** Takes complete records from buf[start, end) and returns where the first unconsumed record starts. */
@@ -278,8 +277,10 @@ export class LineSink implements RecordSink {
   feed(buf: Buffer, start: number, end: number, base: number, final: boolean): number {
     let pos = start;
     while (pos < end) {
-      let lineEnd = indexOfByte(buf, 10, pos, end);
-      if (lineEnd < 0) {
+      // The native search, without a view per line: it stops at the line's end; only a chunk's last,
+      // cut line may search past `end`, once per chunk.
+      let lineEnd = buf.indexOf(10, pos);
+      if (lineEnd < 0 || lineEnd >= end) {
         if (!final) break;
         lineEnd = end;
       }
