@@ -4,7 +4,7 @@
 import { stat } from 'node:fs/promises';
 import { resolve } from 'node:path';
 import { InputError } from '../engine/errors';
-import { evaluateDump, READING_MODES, streamOrRead, type ReadingMode, type StreamPartial } from '../engine/index';
+import { evaluateDump, READING_MODES, segmentRowsOf, streamOrRead, type ReadingMode, type StreamPartial } from '../engine/index';
 import { partialHeadlineText, type PartialHeadline } from '../presentation/partialText';
 import { formatReport, formatReportPieces, REPORT_FORMATS, type ReportFormat } from '../engine/report/index';
 import { collectQueryRecords } from '../engine/report/jsonRecords';
@@ -142,19 +142,22 @@ async function evalFile(path: string, source: string, format: ReportFormat, wors
   // CSV and Markdown do not show the sensitivity rows; skipping them saves a third of the scoring time.
   const sensitivity = format === 'table' || format === 'json';
   try {
-    // The views that read rows, and side tables, need the dump in memory; the report needs only the per-query table.
-    const rowsNeeded = values.query !== undefined || values.diagnostics || values.segment !== undefined
-      || setup.tables.queries !== undefined || setup.tables.items !== undefined;
+    // The views that read rows, and side tables, need the dump in memory; the report and the segment means
+    // need only the per-query table (with each query's segment values).
+    const rowsNeeded = values.query !== undefined || values.diagnostics || setup.tables.queries !== undefined || setup.tables.items !== undefined;
     const outcome = await streamOrRead(path, { ...setup.read, onProgress: progress?.reading }, setup.metrics, setup.conventions,
-      { reading: rowsNeeded ? 'memory' : values.reading, sensitivity,
+      { reading: rowsNeeded ? 'memory' : values.reading, sensitivity, segments: values.segment !== undefined,
         ...(progress ? { onPartial: (p: StreamPartial) => progress.partial(p.bytesRead / p.totalBytes, partialHeadlineText(headlineOf(p))) } : {}) });
     if (outcome.kind === 'streamed') {
       const scored = performance.now();
       progress?.done();
       const { evaluation, dump } = outcome;
-      const worstOrderBy = values.sort === undefined ? undefined : worstOrder(evaluation, values.sort);
-      io.out(formatReport(format, { evaluation, queryNames: dump.queries, source, rowCount: dump.rowCount },
-        { worst, ...(worstOrderBy ? { worstOrder: worstOrderBy } : {}) }));
+      if (values.segment !== undefined) io.out(segmentReport(segmentRowsOf(dump), evaluation, values.segment, format === 'json' ? 'json' : 'text'));
+      else {
+        const worstOrderBy = values.sort === undefined ? undefined : worstOrder(evaluation, values.sort);
+        io.out(formatReport(format, { evaluation, queryNames: dump.queries, source, rowCount: dump.rowCount },
+          { worst, ...(worstOrderBy ? { worstOrder: worstOrderBy } : {}) }));
+      }
       if (values.timings) {
         io.err(`timings: streamed read and score ${s(scored - started)} s, report ${s(performance.now() - scored)} s (${dump.rowCount} rows; ` +
           `${outcome.blocks} blocks on ${outcome.threads} threads)\n`);

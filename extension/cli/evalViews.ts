@@ -9,7 +9,7 @@ import { positionDcgParts, queryDetail } from '../engine/evaluate/detail';
 import { lossShares } from '../engine/evaluate/lossShare';
 import { dcgByPosition, scoresByGrade } from '../engine/evaluate/diagnostics';
 import { headlineCutoff } from '../engine/evaluate/scorer';
-import { segmentBreakdown } from '../engine/evaluate/segments';
+import { segmentBreakdown, type SegmentedRows } from '../engine/evaluate/segments';
 import type { Evaluation, QueryDetail } from '../engine/evaluate/types';
 import type { Conventions } from '../engine/metrics/conventions';
 import type { MetricSpec } from '../engine/metrics/registry';
@@ -142,7 +142,7 @@ function itemFacts(dump: RankedDump): ((item: number) => Record<string, unknown>
 }
 
 /** Per value of one segment column: queries and the mean of every metric (weighted when the means are). */
-export function segmentReport(dump: RankedDump, evaluation: Evaluation, column: string, format: 'text' | 'json'): string {
+export function segmentReport(dump: SegmentedRows, evaluation: Evaluation, column: string, format: 'text' | 'json'): string {
   const index = dump.segments.findIndex((s) => s.name === column);
   if (index < 0) {
     const names = dump.segments.map((s) => s.name);

@@ -26,6 +26,7 @@ export type { Evaluation } from './evaluate/types';
 export type { RankedDump, ReadOptions } from './readers/index';
 export { READING_MODES, type ReadingMode } from './stream/choose';
 export type { StreamedDump, StreamPartial } from './stream/streamEvaluate';
+export { segmentRowsOf } from './stream/segmentRows';
 
 /**
  * Cores other programs kept busy while each dump was read: the read takes a second or more on the
@@ -59,8 +60,10 @@ export type StreamOrRead =
   | { readonly kind: 'streamed'; readonly dump: StreamedDump; readonly evaluation: Evaluation; readonly threads: number; readonly blocks: number }
   | { readonly kind: 'read'; readonly dump: RankedDump; readonly why: string; readonly tried: boolean };
 
-export interface StreamOrReadOptions extends Pick<StreamEvaluateOptions, 'sensitivity' | 'onPartial' | 'onProgress' | 'signal' | 'blockBytes'> {
+export interface StreamOrReadOptions extends Pick<StreamEvaluateOptions, 'sensitivity' | 'onPartial' | 'onProgress' | 'signal' | 'blockBytes' | 'segments'> {
   readonly reading?: ReadingMode;
+  /** With `auto`: stream from this file size (default stream/choose.ts STREAM_FROM_BYTES). */
+  readonly streamFromBytes?: number;
 }
 
 /**
@@ -70,7 +73,7 @@ export interface StreamOrReadOptions extends Pick<StreamEvaluateOptions, 'sensit
  */
 export async function streamOrRead(path: string, read: ReadOptions, metrics: readonly MetricSpec[], conventions: Conventions,
   options: StreamOrReadOptions = {}): Promise<StreamOrRead> {
-  const choice = await chooseReading(path, read, options.reading ?? 'auto');
+  const choice = await chooseReading(path, read, options.reading ?? 'auto', options.streamFromBytes);
   if (choice.stream) {
     const outcome = await streamEvaluate(path, choice.format, metrics, conventions, {
       ...options, ...(read.columns ? { columns: read.columns } : {}), ...(read.threads !== undefined ? { threads: read.threads } : {}),

@@ -6,7 +6,7 @@
 import { DEFAULT_CONVENTIONS, type Conventions, type NoRelevantPolicy, type TieConvention } from '../engine/metrics/conventions';
 import { parseGain, parseMetricList } from '../engine/metrics/parse';
 import { describeConventions } from '../presentation/conventionsLine';
-import { DEFAULT_COMPARE_SETTINGS, DEFAULT_CONVENTION_SETTINGS, DEFAULT_METRIC_KEYS, DEFAULT_SERIES_SETTINGS } from '../presentation/defaults';
+import { DEFAULT_COMPARE_SETTINGS, DEFAULT_CONVENTION_SETTINGS, DEFAULT_METRIC_KEYS, DEFAULT_READING_SETTINGS, DEFAULT_SERIES_SETTINGS } from '../presentation/defaults';
 import type { CompareSettings, EvaluationSettings } from '../protocol/worker';
 import { globToRegExp } from './glob';
 
@@ -50,6 +50,8 @@ export interface GainlineConfig {
     readonly seed: number;
     readonly tieTolerance: number;
   };
+  /** Plain CSV/TSV dumps of this many bytes or more are scored as they stream in (setting in megabytes). */
+  readonly streamFromBytes: number;
   /** Views computed where the data lives (ClickHouse tables, files served through DuckDB). */
   readonly sql: SqlSettings;
   /** One sentence per setting that was ignored. */
@@ -85,6 +87,7 @@ export const CONFIG_DEFAULTS = {
   bootstrapResamples: DEFAULT_COMPARE_SETTINGS.bootstrap,
   seed: DEFAULT_COMPARE_SETTINGS.seed,
   tieTolerance: DEFAULT_COMPARE_SETTINGS.tieTolerance,
+  streamFromMegabytes: DEFAULT_READING_SETTINGS.streamFromMegabytes,
 } as const;
 
 const TIES: readonly TieConvention[] = ['average', 'pessimistic', 'optimistic', 'file-order'];
@@ -94,7 +97,7 @@ const POLICIES: readonly NoRelevantPolicy[] = ['skip', 'zero', 'one'];
 export const RECOMPUTE_KEYS = [
   'metrics', 'cutoffs', 'gain', 'ties', 'noRelevant', 'missingQueries', 'relevantFrom', 'rbpPersistence', 'maxGrade', 'columnsByPattern',
   'sideFilesByPattern', 'clickhouse.user', 'clickhouse.orderColumn', 'clickhouse.columns', 'duckdb.memoryLimit', 'duckdb.packageFolder',
-  'compare.permutations', 'compare.bootstrapResamples', 'compare.seed', 'compare.tieTolerance',
+  'compare.permutations', 'compare.bootstrapResamples', 'compare.seed', 'compare.tieTolerance', 'reading.streamFromMegabytes',
 ] as const;
 
 export function readConfig(get: SettingGetter): GainlineConfig {
@@ -161,6 +164,7 @@ export function readConfig(get: SettingGetter): GainlineConfig {
       seed: number('compare.seed', CONFIG_DEFAULTS.seed, Number.isInteger, 'a whole number'),
       tieTolerance: number('compare.tieTolerance', CONFIG_DEFAULTS.tieTolerance, (n) => n >= 0, 'a number >= 0'),
     },
+    streamFromBytes: number('reading.streamFromMegabytes', CONFIG_DEFAULTS.streamFromMegabytes, (n) => n >= 0, 'a number of megabytes >= 0') * 1e6,
     sql: readSqlSettings(get, reject),
     problems,
   };

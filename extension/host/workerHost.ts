@@ -8,11 +8,13 @@ import { Worker } from 'node:worker_threads';
 import { RequestAbortedError, RequestClient, RequestTimeoutError, type Method, type ParamsOf, type ResultOf } from '../channel/request';
 import { createCancelFlags, markCancelled } from '../worker/cancelFlags';
 import { isProgressEvent, type WorkerRequests } from '../protocol/worker';
+import type { PartialOverview } from '../protocol/partialOverview';
 
 export interface WorkerCallOptions {
   readonly signal?: AbortSignal;
   readonly timeoutMs?: number;
-  readonly onProgress?: (fraction: number | null, message: string) => void;
+  /** `partial`: a dump streaming in, its overview so far. */
+  readonly onProgress?: (fraction: number | null, message: string, partial?: PartialOverview) => void;
 }
 
 /** Loads can take long on big files; page and detail requests should not. */
@@ -89,7 +91,7 @@ export class EngineWorker {
     const client = new RequestClient<WorkerRequests>((message) => worker.postMessage(message), DEFAULT_TIMEOUT_MS);
     this.generation++;
     worker.on('message', (message: unknown) => {
-      if (isProgressEvent(message)) this.progress.get(message.id)?.(message.fraction, message.message);
+      if (isProgressEvent(message)) this.progress.get(message.id)?.(message.fraction, message.message, message.partial);
       else client.handleMessage(message);
     });
     worker.on('error', (error) => {

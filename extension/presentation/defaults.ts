@@ -43,3 +43,13 @@ export const DEFAULT_SERIES_SETTINGS = {
   patterns: [] as readonly string[],
   order: 'number' as 'number' | 'time',
 };
+
+/**
+ * How the editor reads a dump (setting `gainline.reading.streamFromMegabytes`): a plain CSV/TSV file of
+ * this many megabytes (10^6 bytes) or more is scored as it streams in, its overview shown partially
+ * while the rest is read; smaller files are read into memory, where every view (segments, score
+ * diagnostics) is available. 1 000 MB is about where the command line's `--reading auto` streams too.
+ */
+export const DEFAULT_READING_SETTINGS = {
+  streamFromMegabytes: 1000,
+} as const;

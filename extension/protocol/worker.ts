@@ -6,6 +6,7 @@
 import type { Conventions } from '../engine/metrics/conventions';
 import type { CompareOverviewModel, OverviewModel, QueryDetailParams, SeriesOverviewModel, UnreadCheckpoint, ViewRequests } from './messages';
 import type { CancelEnvelope, RequestEnvelope, ResponseEnvelope } from '../channel/request';
+import type { PartialOverview } from './partialOverview';
 
 /** How to read one dump; mirrors the readers' options. */
 export interface DumpSource {
@@ -63,6 +64,11 @@ export interface LoadParams {
   readonly session: string;
   readonly source: DumpSource;
   readonly settings: EvaluationSettings;
+  /**
+   * A plain CSV/TSV dump of this many bytes or more is scored as it streams in, with partial overviews
+   * sent along with the progress (absent: always read into memory).
+   */
+  readonly streamFromBytes?: number;
 }
 
 export interface LoadCompareParams {
@@ -168,6 +174,8 @@ export interface ProgressEvent {
   /** 0..1, or null when unknown. */
   readonly fraction: number | null;
   readonly message: string;
+  /** While a dump streams in: its overview so far. */
+  readonly partial?: PartialOverview;
 }
 
 export type ToWorker = RequestEnvelope<WorkerRequests> | CancelEnvelope;

@@ -33,6 +33,7 @@ import { isCancelled } from './cancelFlags';
 import { warmUp } from './warmUp';
 import { SeriesStore } from './seriesStore';
 import { isSqlSource, loadSql, sqlQueryDetail, sqlQueryJson, type SqlLoaded } from './sqlSession';
+import { joinedNote, loadStreamOrRead, mayStream, needsRows, streamedDetail, streamedQueryJson, streamedRowLocation, type StreamedLoaded } from './streamSession';
 
 interface Loaded {
   readonly dump: RankedDump;
@@ -52,7 +53,8 @@ type Session =
   | ({ readonly kind: 'single' } & Loaded)
   | { readonly kind: 'compare'; readonly a: Loaded; readonly b: Loaded; readonly comparison: Comparison; readonly table: CompareTable }
   | { readonly kind: 'series'; readonly store: SeriesStore }
-  | SqlLoaded;
+  | SqlLoaded
+  | StreamedLoaded;
 
 const sessions = new Map<string, Session>();
 /** Above this, a view's old data is dropped before reading again rather than kept to answer meanwhile. */
@@ -61,7 +63,7 @@ const KEEP_WHILE_RELOADING_ROWS = 2_000_000;
 function rowsHeld(s: Session | undefined): number {
   if (!s) return 0;
   if (s.kind === 'series') return 0; // per-query columns only; kept so a grown series reads only its new files
-  return s.kind === 'single' ? s.dump.rowCount : s.kind === 'sql' ? 0 : s.a.dump.rowCount + s.b.dump.rowCount;
+  return s.kind === 'single' ? s.dump.rowCount : s.kind === 'sql' || s.kind === 'streamed' ? 0 : s.a.dump.rowCount + s.b.dump.rowCount;
 }
 
 /** Forgets a session; an SQL one closes its connection (DuckDB's instance and its spill folder). */
@@ -125,6 +127,7 @@ function session(key: string): Session {
 function single(key: string): Extract<Session, { kind: 'single' }> {
   const s = session(key);
   if (s.kind === 'sql') throw new Error('this view is computed by an SQL engine and holds no rows; open the file without an engine for this');
+  if (s.kind === 'streamed') throw needsRows('Segments and score diagnostics');
   if (s.kind !== 'single') throw new Error('this request needs a single dump, not a comparison');
   return s;
 }
@@ -141,6 +144,7 @@ function runOf(key: string, run: 'a' | 'b' | undefined): Loaded {
   if (s.kind === 'single') return s;
   if (s.kind === 'series') throw new Error('this request needs a dump or a comparison, not a series');
   if (s.kind === 'sql') throw new Error('this view is computed by an SQL engine and holds no rows or lines; open the file without an engine for this');
+  if (s.kind === 'streamed') throw needsRows('Views of rows');
   return run === 'b' ? s.b : s.a;
 }
 
@@ -165,7 +169,7 @@ function detailOf(l: Loaded, query: string, maxPairs?: number) {
 const handlers: RequestHandlers<WorkerRequests> = {
   // Only what the overview's first screen shows: the score diagnostics, a second pass over every
   // query, come with their own request once the headline is on screen.
-  async load({ session: key, source, settings }, ctx) {
+  async load({ session: key, source, settings, streamFromBytes }, ctx) {
     warmUpStop.abort();
     const received = Date.now();
     const started = performance.now();
@@ -177,7 +181,19 @@ const handlers: RequestHandlers<WorkerRequests> = {
       const done = Date.now();
       return { ...overview, timeline: { threadReady: readyAt, ...(warmedAt ? { warmed: warmedAt } : {}), received, read: done, scored: done } };
     }
-    const dump = await read(source, ctx, 0, 0.75);
+    // A large plain CSV/TSV dump is scored as it streams in, its overview so far sent with the progress.
+    const streamed = streamFromBytes !== undefined && mayStream(source) ? await loadStreamOrRead(source, settings, {
+      streamFromBytes, signal: ctx.signal, started, onProgress: progressReporter(ctx, 0, 1, `Streaming ${source.path.split(/[\\/]/).pop()}…`),
+      onPartial: (partial) => parentPort?.postMessage({ kind: 'progress', id: ctx.id, fraction: partial.bytesRead / Math.max(1, partial.totalBytes), message: 'Streaming…', partial } satisfies ProgressEvent),
+    }) : undefined;
+    if (streamed?.kind === 'streamed') {
+      keep(key, streamed.session);
+      const done = Date.now();
+      return { ...streamed.overview, timeline: { threadReady: readyAt, ...(warmedAt ? { warmed: warmedAt } : {}), received, read: done, scored: done } };
+    }
+    const dump = streamed?.dump ?? await read(source, ctx, 0, 0.75);
+    if (streamed?.note) dump.notes.messages.push(streamed.note);
+    else if (streamFromBytes !== undefined && !streamed && dump.stamp.size >= streamFromBytes) dump.notes.messages.push(joinedNote(source));
     const readDone = Date.now();
     const groups = groupByQuery(dump);
     const metrics = parseMetricList(settings.metrics);
@@ -257,12 +273,13 @@ const handlers: RequestHandlers<WorkerRequests> = {
 
   queryPage({ session: key, ...params }) {
     const s = session(key);
-    return (s.kind === 'sql' ? s : single(key)).table.page(params);
+    return (s.kind === 'sql' || s.kind === 'streamed' ? s : single(key)).table.page(params);
   },
 
   async queryDetail({ session: key, query, maxPairs, run }) {
     const s = session(key);
     if (s.kind === 'sql') return sqlQueryDetail(s, query, maxPairs);
+    if (s.kind === 'streamed') return streamedDetail(s, query, maxPairs);
     const l = runOf(key, run);
     const { id, detail } = detailOf(l, query, maxPairs);
     return detailScreen(l.dump, l.evaluation, detail, id, l.table);
@@ -271,12 +288,15 @@ const handlers: RequestHandlers<WorkerRequests> = {
   async queryJson({ session: key, query, run }) {
     const s = session(key);
     if (s.kind === 'sql') return { json: await sqlQueryJson(s, query) };
+    if (s.kind === 'streamed') return { json: await streamedQueryJson(s, query) };
     const l = runOf(key, run);
     const { id, detail } = detailOf(l, query, 0);
     return { json: queryJsonText(query, l.dump.path, l.evaluation, id, detail, (row) => l.dump.line[row] || null) };
   },
 
-  rowLocation({ session: key, row, run }) {
+  async rowLocation({ session: key, row, run }) {
+    const s = session(key);
+    if (s.kind === 'streamed') return streamedRowLocation(s, row);
     const { dump } = runOf(key, run);
     if (!Number.isInteger(row) || row < 0 || row >= dump.rowCount) throw new Error(`row ${row} is outside 0..${dump.rowCount - 1}`);
     return { line: dump.line[row]!, offset: dump.offset[row]!, path: dump.path };

@@ -38,6 +38,27 @@ describe('eval --reading stream', () => {
     }
   });
 
+  it('prints the in-memory segment means byte for byte, weighted too, and the same refusal of an unknown column', () => {
+    const dir = fixtureDir({
+      'segments.tsv': groupedDump(34, { queries: 300, maxRows: 20, segments: true, scoreLevels: 4 }),
+      'weighted.tsv': groupedDump(35, { queries: 300, maxRows: 20, segments: true, weights: true }),
+    });
+    for (const file of ['segments.tsv', 'weighted.tsv']) {
+      for (const column of ['locale', 'device']) {
+        for (const format of ['table', 'json']) {
+          const { memory, streamed } = both([file, '--segment', column, '--format', format], dir);
+          expect(streamed.stderr).toMatch(/^timings: streamed read and score/);
+          expect(streamed.stdout).toBe(memory.stdout);
+        }
+      }
+    }
+    const memory = runCli(['eval', 'weighted.tsv', '--segment', 'weight', '--reading', 'memory'], dir);
+    const streamed = runCli(['eval', 'weighted.tsv', '--segment', 'weight', '--reading', 'stream'], dir);
+    expect(memory.code).toBe(2);
+    expect(streamed.code).toBe(2);
+    expect(streamed.stderr).toBe(memory.stderr);
+  });
+
   it('says why it read in memory: a file not grouped by query, a gzip file, a judgments file', () => {
     const dir = fixtureDir({
       'mixed.tsv': 'query\titem\tgrade\tscore\npaint roller\ta\t1\t0.5\nled bulb e27\tb\t0\t0.2\npaint roller\tc\t2\t0.1\n',

@@ -117,6 +117,23 @@ describe('item bytes per row', () => {
     expect(all.pool.find(c.items[0]!)).toBe(0);
   });
 
+  it('a cleared store holds only the records added after, keys and ids as a fresh one gives (a stream thread reuses one per block)', () => {
+    const first = randomCase(8, 3_000, true);
+    const next = randomCase(9, 1_000, true);
+    const texts = new RowTexts(16, 4);
+    const bytes = new TextEncoder();
+    for (const item of first.items) texts.add(...withRange(bytes.encode(item)));
+    texts.clear();
+    expect(texts.size).toBe(0);
+    for (const item of next.items) texts.add(...withRange(bytes.encode(item)));
+    expect(texts.size).toBe(next.items.length);
+    for (let r = 0; r < next.items.length; r++) expect(texts.text(r)).toBe(next.items[r]);
+    const keys = hashes(next);
+    texts.queryScopedKeys(next.query, keys, next.queryCount);
+    expect(Array.from(keys)).toEqual(slowKeys(next));
+    expect(texts.internAll().pool.size).toBe(new Set(next.items).size);
+  });
+
   it('keys can collide on the hash without merging items', () => {
     // Every row given the same hash: only the byte comparison can tell the items apart.
     const c = randomCase(7, 2_000, true);
@@ -161,3 +178,7 @@ describe('a CSV read keeps item bytes per row', () => {
     expect(evaluation.degenerate.duplicateRows).toBe(repeated);
   });
 });
+
+function withRange(bytes: Uint8Array): [Uint8Array, number, number] {
+  return [bytes, 0, bytes.length];
+}

@@ -11,7 +11,7 @@ import { DEFAULT_COMPARE_OPTIONS } from '../../extension/engine/compare/compare'
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
 import { parseMetricList } from '../../extension/engine/metrics/parse';
 import { DEFAULT_METRICS } from '../../extension/engine/metrics/registry';
-import { DEFAULT_COMPARE_SETTINGS, DEFAULT_CONVENTION_SETTINGS, DEFAULT_METRIC_KEYS, DEFAULT_SERIES_SETTINGS } from '../../extension/presentation/defaults';
+import { DEFAULT_COMPARE_SETTINGS, DEFAULT_CONVENTION_SETTINGS, DEFAULT_METRIC_KEYS, DEFAULT_READING_SETTINGS, DEFAULT_SERIES_SETTINGS } from '../../extension/presentation/defaults';
 
 const from = (settings: Record<string, unknown>) => (key: string) => settings[key];
 
@@ -114,10 +114,20 @@ describe('readConfig', () => {
     expect(defaults['gainline.compare.bootstrapResamples']).toBe(DEFAULT_COMPARE_OPTIONS.bootstrap);
     expect(defaults['gainline.compare.seed']).toBe(DEFAULT_COMPARE_OPTIONS.seed);
     expect(defaults['gainline.compare.tieTolerance']).toBe(DEFAULT_COMPARE_OPTIONS.tieTolerance);
+    expect(defaults['gainline.reading.streamFromMegabytes']).toBe(DEFAULT_READING_SETTINGS.streamFromMegabytes);
+    expect(readConfig(from({})).streamFromBytes).toBe(DEFAULT_READING_SETTINGS.streamFromMegabytes * 1e6);
     // The engine's conventions are the same defaults, and so is what readConfig gives with nothing set.
     expect(readConfig(from({})).conventions).toEqual(DEFAULT_CONVENTIONS);
     const { permutations, bootstrap, seed, tieTolerance } = DEFAULT_COMPARE_SETTINGS;
     expect(readConfig(from({})).compare).toEqual({ permutations, bootstrapResamples: bootstrap, seed, tieTolerance });
+  });
+
+  it('reads the stream threshold in megabytes and refuses a negative one', () => {
+    expect(readConfig(from({ 'reading.streamFromMegabytes': 0 })).streamFromBytes).toBe(0);
+    expect(readConfig(from({ 'reading.streamFromMegabytes': 1.5 })).streamFromBytes).toBe(1_500_000);
+    const bad = readConfig(from({ 'reading.streamFromMegabytes': -1 }));
+    expect(bad.streamFromBytes).toBe(DEFAULT_READING_SETTINGS.streamFromMegabytes * 1e6);
+    expect(bad.problems[0]).toContain('gainline.reading.streamFromMegabytes');
   });
 
   it('keeps valid column mappings and reports bad ones', () => {

@@ -12,8 +12,11 @@ export interface SegmentRow {
   means: number[];
 }
 
+/** What the means read of a dump: its rows' queries and segment values, and the query weights. */
+export type SegmentedRows = Pick<RankedDump, 'rowCount' | 'query' | 'segments' | 'joined'>;
+
 /** Rows sorted by number of queries (most first), then by value. */
-export function segmentBreakdown(dump: RankedDump, evaluation: Evaluation, segmentIndex: number): SegmentRow[] {
+export function segmentBreakdown(dump: SegmentedRows, evaluation: Evaluation, segmentIndex: number): SegmentRow[] {
   const segment = dump.segments[segmentIndex];
   if (!segment) throw new RangeError(`segment ${segmentIndex} out of range 0..${dump.segments.length - 1}`);
   const queryCount = evaluation.queryCount;

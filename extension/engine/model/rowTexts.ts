@@ -43,6 +43,14 @@ export class RowTexts {
     return this.count;
   }
 
+  /** Forgets every record but keeps the memory, for the next block of a stream thread (stream/block.ts). */
+  clear(): void {
+    this.used = 0;
+    this.count = 0;
+    this.earlier = [];
+    this.firstRow = [0];
+  }
+
   /** Appends the next row's bytes, bytes[start, end); rows must come in row order, one record each. */
   add(bytes: Uint8Array, start: number, end: number): void {
     const len = end - start;

@@ -94,9 +94,12 @@ export class RowColumns implements RowArrays {
     readonly shared?: SharedColumns,
     /** Keep item bytes per row (`itemTexts`) instead of interning item ids; bytes per row of a guess at the size. */
     itemTextBytes?: number,
+    /** With `itemTextBytes`: keep them in this store, cleared first, rather than a new one (a stream thread's blocks). */
+    reusedTexts?: RowTexts,
   ) {
     this.segmentPools = segmentNames.map(() => new BytePool());
-    if (itemTextBytes !== undefined) this.itemTexts = new RowTexts(shared?.rows ?? capacity, itemTextBytes);
+    reusedTexts?.clear();
+    if (itemTextBytes !== undefined) this.itemTexts = reusedTexts ?? new RowTexts(shared?.rows ?? capacity, itemTextBytes);
     if (shared !== undefined) {
       this.capacity = shared.rows;
       const views = sharedViews(shared, shared.rows);

@@ -7,6 +7,8 @@
  */
 import { InputError } from '../errors';
 import { hashBytes } from '../model/bytePool';
+import type { RowTexts } from '../model/rowTexts';
+import { indexOfByte } from './byteSearch';
 import { RowColumns, type SharedColumns } from './columns';
 import { describeNonNumber, parseNumber } from './numbers';
 import { resolveRoles, type ColumnRoles } from './roles';
@@ -30,6 +32,8 @@ export interface DelimitedSettings {
   readonly expectedBytes?: number;
   /** Shared buffers to write rows into (parse workers); no up-front sizing is done then. */
   readonly shared?: SharedColumns;
+  /** A store for the rows' item bytes to reuse (cleared first) instead of allocating one: a stream thread's blocks. */
+  readonly itemTexts?: RowTexts;
   /** First line number of the first record (>1 when a worker parses a later byte range). */
   readonly firstLine?: number;
   /**
@@ -90,8 +94,8 @@ export class DelimitedParser implements RecordSink, FastState {
     while (pos < end) {
       if (this.rows !== undefined && pos < lineLimit) {
         if (quoteAt < pos) {
-          quoteAt = buf.indexOf(QUOTE, pos);
-          if (quoteAt < 0 || quoteAt >= end) quoteAt = end;
+          quoteAt = indexOfByte(buf, QUOTE, pos, end);
+          if (quoteAt < 0) quoteAt = end;
           quoteLine = quoteAt === end ? end : buf.lastIndexOf(LF, quoteAt) + 1;
         }
         const limit = Math.min(lineLimit, quoteLine);
@@ -243,7 +247,7 @@ export class DelimitedParser implements RecordSink, FastState {
       this.roleOf[column] = ROLE_SEGMENT + k;
     });
     // Item bytes stay per row (see model/rowTexts.ts): scoring needs no dump-wide item ids.
-    this.rows = new RowColumns(roles.segments.map((i) => names[i]!), 1024, this.settings.shared, ITEM_BYTES_GUESS);
+    this.rows = new RowColumns(roles.segments.map((i) => names[i]!), 1024, this.settings.shared, ITEM_BYTES_GUESS, this.settings.itemTexts);
     this.lastSegment = new Int32Array(roles.segments.length).fill(-1);
     this.kernel = SimpleRecordsKernel.create(this.roleOf, this.rows.itemTexts !== undefined);
     if (roles.rank >= 0) {

@@ -9,6 +9,7 @@ import type { BytePoolState } from '../model/bytePool';
 import type { RowTextsState } from '../model/rowTexts';
 import { summariseRows, type RowSummary } from '../model/rowSummary';
 import { ROW_COLUMN_NAMES, rowArray, rowArrays, type RowArrays, type SharedColumns } from './columns';
+import { indexOfByte } from './byteSearch';
 import { DelimitedParser } from './delimited';
 import type { ColumnRoles } from './roles';
 import { pumpRange, type ReadBuffers, type RecordSink } from './source';
@@ -59,8 +60,7 @@ class QuoteGuard implements RecordSink {
   constructor(private readonly inner: RecordSink) {}
 
   feed(buf: Buffer, start: number, end: number, base: number, final: boolean): number {
-    const quote = buf.indexOf(34, start);
-    if (quote >= 0 && quote < end) throw new QuotedRange();
+    if (indexOfByte(buf, 34, start, end) >= 0) throw new QuotedRange();
     return this.inner.feed(buf, start, end, base, final);
   }
 }

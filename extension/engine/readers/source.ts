@@ -105,7 +105,7 @@ export async function pumpText(path: string, sink: RecordSink, options: PumpOpti
     await feedChunks(gunzipChunks(path, progress), sink, path, options.signal, () => report(progress.done));
   } else {
     await feedPlain(path, 0, Infinity, sink, { fileStart: path, signal: options.signal, onBytes: report, chunkBytes: options.chunkBytes,
-      guard: new TextGuard(path, false, 0) });
+      expectedBytes: stamp.size, guard: new TextGuard(path, false, 0) });
   }
   await checkUnchanged(path, stamp);
   options.onProgress?.(1);
@@ -131,6 +131,16 @@ export interface ReadBuffers {
 }
 
 /**
+ * The chunk for reading `bytes` (when known): no larger than what is to be read, plus one byte so that
+ * a file read in one chunk ends on a short read. Two buffers of the requested size for a small file
+ * cost more in fresh memory than reading it (a series reads dozens of small checkpoint files).
+ */
+function chunkFor(requested: number, bytes: number | undefined): number {
+  const sized = bytes === undefined ? requested : Math.min(requested, Math.max(4096, bytes + 1));
+  return Math.max(16, sized);
+}
+
+/**
  * Reads a plain file through two reused buffers: the next chunk is read into one while the sink parses
  * the other, so the thread never waits for the copy from the page cache. Each buffer keeps room before
  * its chunk for the unfinished record carried over from the previous chunk (the room doubles when a
@@ -138,17 +148,14 @@ export interface ReadBuffers {
  */
 async function feedPlain(path: string, from: number, to: number, sink: RecordSink,
   options: { fileStart?: string; signal?: AbortSignal; onBytes: (position: number) => void; chunkBytes?: number | undefined;
-    guard: TextGuard; reuse?: ReadBuffers | undefined }): Promise<void> {
+    expectedBytes?: number; guard: TextGuard; reuse?: ReadBuffers | undefined }): Promise<void> {
   const fh = await fsp.open(path, 'r');
-  const chunk = Math.max(16, options.chunkBytes ?? engineSettings().tuning.plainChunkBytes);
-  let room = chunk;
-  let buffers: Buffer[] = [Buffer.allocUnsafe(room + chunk), Buffer.allocUnsafe(room + chunk)];
+  const chunk = chunkFor(options.chunkBytes ?? engineSettings().tuning.plainChunkBytes, Number.isFinite(to) ? to - from : options.expectedBytes);
   const earlier = options.reuse?.pair;
-  if (earlier !== undefined && earlier[0]!.length === earlier[1]!.length && earlier[0]!.length >= 2 * chunk) {
-    // The room of an earlier read (grown for a long record, perhaps) comes with its buffers.
-    buffers = earlier;
-    room = earlier[0]!.length - chunk;
-  }
+  // The buffers of an earlier read come with their room (grown for a long record, perhaps) when large enough.
+  const reused = earlier !== undefined && earlier[0]!.length === earlier[1]!.length && earlier[0]!.length >= 2 * chunk;
+  let room = reused ? earlier[0]!.length - chunk : chunk;
+  let buffers: Buffer[] = reused ? earlier : [Buffer.allocUnsafe(room + chunk), Buffer.allocUnsafe(room + chunk)];
   let position = from;
   let wanted = 0;
   let pending: Promise<{ bytesRead: number }> = Promise.resolve({ bytesRead: 0 });
@@ -283,6 +290,8 @@ export class LineSink implements RecordSink {
   feed(buf: Buffer, start: number, end: number, base: number, final: boolean): number {
     let pos = start;
     while (pos < end) {
+      // The native search, without a view per line: it stops at the line's end; only a chunk's last,
+      // cut line may search past `end`, once per chunk.
       let lineEnd = buf.indexOf(10, pos);
       if (lineEnd < 0 || lineEnd >= end) {
         if (!final) break;

@@ -18,6 +18,7 @@ import type { Conventions } from '../metrics/conventions';
 import type { MetricSpec } from '../metrics/registry';
 import type { RankedDump } from '../model/dump';
 import { BytePool } from '../model/bytePool';
+import { RowTexts } from '../model/rowTexts';
 import { groupByQuery } from '../model/groups';
 import { summariseRows, type RowSummary } from '../model/rowSummary';
 import { ROW_COLUMN_NAMES, ROW_COLUMNS, type RowColumnName, type SharedColumns } from '../readers/columns';
@@ -52,6 +53,8 @@ export interface BlockTask {
   readonly weights: boolean;
   /** Collect the distinct grades (a gain map must list each of them). */
   readonly distinctGrades: boolean;
+  /** Give each scored query's segment values (its first row's), for segment means over the streamed queries. */
+  readonly segmentValues?: boolean;
 }
 
 /** A run of one query's rows: its id, first line (counted from 1 at the block start) and byte range. */
@@ -75,6 +78,8 @@ export interface ScoredRuns {
   readonly sensitivity?: SensitivityColumns;
   /** Each query's weight (NaN when unknown), when the dump has a weight column. */
   readonly weight?: Float64Array;
+  /** Per segment column, each query's value on its first row (with `segmentValues`). */
+  readonly segments?: string[][];
 }
 
 export type BlockResult =
@@ -144,10 +149,17 @@ function items(): BytePool {
   return itemPool;
 }
 
+/**
+ * The rows' item bytes, kept from block to block on this thread like the row columns: a fresh store per
+ * block was the largest allocation of a block (zeroed pages for every row's item id).
+ */
+let texts: RowTexts | undefined;
+
 /** Drops the columns and item ids kept for the next block (a thread that lives on after its stream). */
 export function releaseBlockMemory(): void {
   reused = undefined;
   itemPool = undefined;
+  texts = undefined;
 }
 
 /** Rows a block of `bytes` bytes is given room for before its columns spill into arrays of their own. */
@@ -156,8 +168,9 @@ const BYTES_PER_ROW_GUESS = 40;
 export async function readBlock(task: BlockTask): Promise<BlockResult> {
   // A stitched query is read alone and seldom: it takes fresh arrays and leaves the reused ones alone.
   const shared = task.whole ? undefined : rowSpace(task.segmentCount, Math.ceil((task.end - task.start) / BYTES_PER_ROW_GUESS));
+  if (shared) texts ??= new RowTexts(shared.rows, 16);
   const parser = new DelimitedParser({ file: task.path, delimiter: task.delimiter, columns: task.columns, expectedBytes: task.end - task.start,
-    ...(shared ? { shared } : {}) }, { names: task.names });
+    ...(shared ? { shared, itemTexts: texts } : {}) }, { names: task.names });
   if (!task.whole) parser.columns!.items = items();
   try {
     // Reads of a small range (a stitched query) need no buffers of the full chunk size.
@@ -249,6 +262,7 @@ function scoreBlock(task: BlockTask, dump: RankedDump, lines: number): BlockResu
       names, start: scoredStart, end: scoredEnd, line: scoredLine, rows: scoredRows,
       perQuery: slicePerQuery(perQuery, from, to),
       ...(weights ? { weight: weights.slice(from, to) } : {}),
+      ...(task.segmentValues ? { segments: dump.segments.map((c) => names.map((_, i) => c.values.get(c.ofRow[start[from + i]!]!))) } : {}),
       ...(recorded ? { sensitivity: { value: recorded.value.map((v) => v.slice(from, to)), entered: recorded.entered.map((e) => e.slice(from, to)) } } : {}),
     },
     tally,

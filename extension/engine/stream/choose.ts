@@ -20,7 +20,8 @@ export const STREAM_FROM_BYTES = 1 << 30;
 
 export type StreamChoice = { readonly stream: true; readonly format: 'csv' | 'tsv' } | { readonly stream: false; readonly why: string };
 
-export async function chooseReading(path: string, options: ReadOptions, mode: ReadingMode): Promise<StreamChoice> {
+/** `fromBytes` replaces STREAM_FROM_BYTES for `auto` (the editor's setting). */
+export async function chooseReading(path: string, options: ReadOptions, mode: ReadingMode, fromBytes = STREAM_FROM_BYTES): Promise<StreamChoice> {
   if (mode === 'memory') return { stream: false, why: 'asked for' };
   if (options.judgments !== undefined) return { stream: false, why: 'labels are joined from a judgments file' };
   if (options.scores !== undefined) return { stream: false, why: 'scores are joined from a scores file' };
@@ -29,7 +30,9 @@ export async function chooseReading(path: string, options: ReadOptions, mode: Re
   if (sniffed.gzip) return { stream: false, why: 'a gzip file cannot be cut into blocks' };
   if (mode === 'auto') {
     const { size } = await fsp.stat(path);
-    if (size < STREAM_FROM_BYTES) return { stream: false, why: `smaller than ${STREAM_FROM_BYTES / (1 << 30)} GiB` };
+    if (size < fromBytes) {
+      return { stream: false, why: fromBytes === STREAM_FROM_BYTES ? `smaller than ${STREAM_FROM_BYTES / (1 << 30)} GiB` : `smaller than ${fromBytes / 1e6} MB` };
+    }
   }
   return { stream: true, format: sniffed.format };
 }

@@ -42,9 +42,14 @@ export class StreamColumns {
   private locations: { start: Float64Array; end: Float64Array; line: Uint32Array; rows: Uint32Array };
   /** Query weights, when the dump has a weight column. */
   private weight: Float64Array | undefined;
+  /** Per segment column kept, each query's value (its first row's), interned in the order queries come. */
+  private readonly segmentPools: BytePool[];
+  private segmentIds: Uint32Array[];
 
-  constructor(private readonly metricCount: number, hasRbp: boolean, variantCount: number | undefined, weighted = false) {
+  constructor(private readonly metricCount: number, hasRbp: boolean, variantCount: number | undefined, weighted = false, segmentCount = 0) {
     const n = this.capacity;
+    this.segmentPools = Array.from({ length: segmentCount }, () => new BytePool());
+    this.segmentIds = this.segmentPools.map(() => new Uint32Array(n));
     if (weighted) this.weight = new Float64Array(n);
     this.columns = {
       items: new Uint32Array(n), relevant: new Uint32Array(n), unretrieved: new Uint32Array(n),
@@ -101,12 +106,22 @@ export class StreamColumns {
       this.sensitivity.entered.forEach((e, i) => copy(e, scored.sensitivity!.entered[i]!));
     }
     if (this.weight && scored.weight) copy(this.weight, scored.weight);
+    if (scored.segments) {
+      this.segmentPools.forEach((pool, k) => {
+        for (let i = from; i < to; i++) this.segmentIds[k]![at + i - from] = pool.internString(scored.segments![k]![i]!);
+      });
+    }
     if (lineOffset === undefined) return;
     const l = this.locations;
     copy(l.start, scored.start);
     copy(l.end, scored.end);
     copy(l.rows, scored.rows);
     for (let i = from; i < to; i++) l.line[at + i - from] = scored.line[i]! + lineOffset;
+  }
+
+  /** The metric columns and the weights as they stand (regrown as queries come, so asked for each time). */
+  current(): { values: readonly Float64Array[]; weight: Float64Array | undefined } {
+    return { values: this.columns.values, weight: this.weight };
   }
 
   /** Sets where a stitched query's rows are before it is scored (its id was added at its first piece). */
@@ -119,6 +134,11 @@ export class StreamColumns {
   location(id: number): { start: number; end: number; line: number; rows: number } {
     const l = this.locations;
     return { start: l.start[id]!, end: l.end[id]!, line: l.line[id]!, rows: l.rows[id]! };
+  }
+
+  /** Each query's value of segment column `k` (ids into `pool`), trimmed to the queries added. */
+  segment(k: number): { pool: BytePool; ofQuery: Uint32Array } {
+    return { pool: this.segmentPools[k]!, ofQuery: this.segmentIds[k]!.subarray(0, this.count) };
   }
 
   /** The columns trimmed to the queries added (views; the builder is done with them). */
@@ -149,6 +169,7 @@ export class StreamColumns {
       this.sensitivity = { value: this.sensitivity.value.map((v) => grown(v, capacity)), entered: this.sensitivity.entered.map((e) => grown(e, capacity)) };
     }
     if (this.weight) this.weight = grown(this.weight, capacity);
+    this.segmentIds = this.segmentIds.map((ids) => grown(ids, capacity));
     const l = this.locations;
     this.locations = { start: grown(l.start, capacity), end: grown(l.end, capacity), line: grown(l.line, capacity), rows: grown(l.rows, capacity) };
     this.capacity = capacity;

@@ -23,7 +23,7 @@
  */
 import { availableParallelism } from 'node:os';
 import { CancelledError, InputError } from '../errors';
-import { emptyTally, finishEvaluation, newSensitivityPass, summarise, addTally, type RangeTally } from '../evaluate/evaluate';
+import { emptyTally, finishEvaluation, newSensitivityPass, addTally, type RangeTally } from '../evaluate/evaluate';
 import { checkGainsAndGrades } from '../evaluate/gainLimits';
 import type { SensitivityColumns } from '../evaluate/sensitivity';
 import type { Evaluation, MetricSummary } from '../evaluate/types';
@@ -38,6 +38,7 @@ import type { BlockResult, BlockTask } from './block';
 import { startBlockRunner, type BlockRunner } from './blockRunner';
 import { isWeightName } from '../tables/sideRoles';
 import { blockBounds, readHeaderLine } from './fileBlocks';
+import { PartialMeans } from './partialMeans';
 import { newSensitivityPassWith, scoredBlockSetup } from './setup';
 import { QueryReappeared, StreamColumns, type QueryLocations } from './streamColumns';
 
@@ -51,6 +52,8 @@ export interface StreamEvaluateOptions {
   /** Threads that read and score blocks; default: every core, at most 4 (this thread only merges). */
   readonly threads?: number;
   readonly blockBytes?: number;
+  /** Keep each query's segment values (its first row's), for segment means (`StreamedDump.querySegments`). */
+  readonly segments?: boolean;
   readonly signal?: AbortSignal;
   readonly onProgress?: (fraction: number) => void;
   /** Called after each block is taken in, with the headline of the queries scored so far. */
@@ -80,6 +83,11 @@ export interface StreamedDump {
   readonly locations: QueryLocations;
   /** The header's column names, to read a query's rows again. */
   readonly names: readonly string[];
+  /**
+   * With the `segments` option: per segment column (the weight column aside, as the in-memory join leaves
+   * it), each query's value, as `segments` of a dump holding one row per query, each query's first.
+   */
+  readonly querySegments?: readonly { readonly name: string; readonly values: StringPool; readonly ofQuery: Uint32Array }[];
   readonly columns?: ColumnRoles;
 }
 
@@ -118,10 +126,11 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
   const blank = scoredBlockSetup(metrics, conventions, { rowsOfQuery: new Uint32Array(0), start: new Uint32Array(1) }, 0, 0, sensitivity);
   // The pass the blocks record with (every gain kept), to match its columns with the final pass's.
   const spec = sensitivity ? newSensitivityPassWith(blank, () => undefined) : undefined;
-  const table = new StreamColumns(metrics.length, blank.hasRbp, spec?.variantCount, weightColumn !== undefined);
+  const keepSegments = options.segments === true && header.segmentNames.length > 0;
+  const table = new StreamColumns(metrics.length, blank.hasRbp, spec?.variantCount, weightColumn !== undefined, keepSegments ? header.segmentNames.length : 0);
   const mapGain = conventions.gain.kind === 'map';
   const base = { path, format, delimiter, names: header.names, segmentCount: header.segmentNames.length, ...(options.columns ? { columns: options.columns } : {}), metrics, conventions, sensitivity,
-    distinctGrades: mapGain, weights: weightColumn !== undefined };
+    distinctGrades: mapGain, weights: weightColumn !== undefined, segmentValues: keepSegments };
   const threads = Math.max(1, Math.min(16, Math.floor(options.threads ?? Math.min(4, availableParallelism()))));
   const runner = startBlockRunner(threads, options.signal);
   const blocks = bounds.length - 1;
@@ -129,6 +138,7 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
     const state = { highest: -Infinity, lineOffset: 1, rows: 0, tally: emptyTally(), largest: 0, gaps: [] as RowSummary[], grades: new Set<number>() };
     const scoredBlocks: { index: number; firstId: number; count: number; gmax: number }[] = [];
     const edges: OpenEdge[] = [];
+    const partialMeans = options.onPartial ? new PartialMeans(metrics.map((m) => m.key), weightColumn !== undefined) : undefined;
     let open: OpenEdge | undefined;
     const closeOpen = () => {
       if (open) edges.push(open);
@@ -170,8 +180,11 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
         }
         if (result.runs >= 2) {
           closeOpen();
-          scoredBlocks.push({ index: k, firstId: table.size, count: result.scored.names.length, gmax: result.gmax });
+          const firstId = table.size;
+          scoredBlocks.push({ index: k, firstId, count: result.scored.names.length, gmax: result.gmax });
           table.addScored(result.scored, state.lineOffset);
+          const now = table.current();
+          partialMeans?.add(now.values, now.weight, firstId, table.size);
           const l = result.last;
           open = { id: table.add(l.query, l.line + state.lineOffset), query: l.query, start: l.start, end: l.end, rows: l.rows };
         }
@@ -187,10 +200,8 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
       for (const g of result.grades ?? []) state.grades.add(g);
       addTally(state.tally, result.tally);
       options.onProgress?.((bounds[k + 1]! - bounds[0]!) / Math.max(1, stamp.size - bounds[0]!));
-      if (options.onPartial) {
-        const view = table.finish();
-        options.onPartial({ queries: table.size, rows: state.rows, bytesRead: bounds[k + 1]!, totalBytes: stamp.size,
-          summary: metrics.map((m, i) => summarise(m.key, view.perQuery.values[i]!, view.weight)) });
+      if (options.onPartial && partialMeans) {
+        options.onPartial({ queries: table.size, rows: state.rows, bytesRead: bounds[k + 1]!, totalBytes: stamp.size, summary: partialMeans.summary() });
       }
     }
     closeOpen();
@@ -211,8 +222,10 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
     const view = table.finish();
     // As the in-memory join gives it (tables/join.ts): the weight of each query from its rows.
     const joined = view.weight && weightColumn !== undefined ? { notes: [], queryWeight: view.weight, weightSource: `column '${weightColumn}' of ${path}` } : undefined;
+    const querySegments = keepSegments ? header.segmentNames.map((name, k) => ({ name, values: table.segment(k).pool, ofQuery: table.segment(k).ofQuery }))
+      .filter((s) => s.name !== weightColumn) : undefined;
     const dump: StreamedDump = { path, format, stamp, rowCount: state.rows, queries: table.queries, notes, locations: view.locations,
-      names: header.names, ...(options.columns ? { columns: options.columns } : {}), ...(joined ? { joined } : {}) };
+      names: header.names, ...(options.columns ? { columns: options.columns } : {}), ...(joined ? { joined } : {}), ...(querySegments ? { querySegments } : {}) };
     const setup = scoredBlockSetup(metrics, conventions, { rowsOfQuery: new Uint32Array(0), start: new Uint32Array(table.size + 1) }, table.size, gmax,
       sensitivity, range, state.largest);
     const pass = sensitivity ? newSensitivityPass(setup) : undefined;

@@ -14,6 +14,7 @@
 import { bootstrapMeanIntervals, type Interval } from '../compare/bootstrap';
 import type { Evaluation } from '../evaluate/types';
 import type { MetricSpec } from '../metrics/registry';
+import { SeriesQueryIds } from './queryIds';
 
 const EXAMPLES = 5;
 
@@ -126,7 +127,7 @@ export async function checkpointIntervals(values: readonly Float64Array[], resam
 interface Stored {
   readonly run: string;
   readonly position: number;
-  /** Series-wide query id of each of the checkpoint's queries. */
+  /** Series-wide query id of each of the checkpoint's queries (shared between checkpoints with the first one's queries). */
   readonly ids: Uint32Array;
   /** Per metric, the checkpoint's per-query values (NaN where skipped). */
   readonly values: Float64Array[];
@@ -134,8 +135,7 @@ interface Stored {
 }
 
 export class TrendBuilder {
-  private readonly ids = new Map<string, number>();
-  private readonly names: string[] = [];
+  private readonly queryIds = new SeriesQueryIds();
   private readonly stored: Stored[] = [];
 
   constructor(
@@ -150,17 +150,7 @@ export class TrendBuilder {
    */
   async add(run: string, position: number, columns: CheckpointColumns, intervals?: readonly Interval[]): Promise<CheckpointSummary> {
     const n = columns.queryNames.length;
-    const ids = new Uint32Array(n);
-    for (let q = 0; q < n; q++) {
-      const name = columns.queryNames[q]!;
-      let id = this.ids.get(name);
-      if (id === undefined) {
-        id = this.names.length;
-        this.ids.set(name, id);
-        this.names.push(name);
-      }
-      ids[q] = id;
-    }
+    const ids = this.queryIds.idsOf(columns.queryNames);
     const values = columns.values;
     const found = intervals ?? (await checkpointIntervals(values, this.options.bootstrap, this.options.seed));
     const summary: CheckpointSummary = { run, position, queries: n, means: columns.means, counted: columns.counted, intervals: found };
@@ -169,7 +159,7 @@ export class TrendBuilder {
   }
 
   finish(): Trend {
-    const queryCount = this.names.length;
+    const queryCount = this.queryIds.all.length;
     const c = this.stored.length;
     const trajectories = this.metrics.map((_, m) => {
       const matrix = new Float64Array(queryCount * c).fill(Number.NaN);
@@ -197,7 +187,7 @@ export class TrendBuilder {
     return {
       metrics: this.metrics,
       checkpoints: this.stored.map((s) => s.summary),
-      queryNames: this.names,
+      queryNames: this.queryIds.all,
       trajectories,
       peaks,
       worstFirstToLast: firstToLast,
@@ -210,14 +200,14 @@ export class TrendBuilder {
   }
 
   private missingFrom(s: Stored): QuerySetDifference {
-    const here = new Uint8Array(this.names.length);
+    const here = new Uint8Array(this.queryIds.all.length);
     for (let i = 0; i < s.ids.length; i++) here[s.ids[i]!] = 1;
     const missingExamples: string[] = [];
     let missing = 0;
     for (let q = 0; q < here.length; q++) {
       if (here[q]) continue;
       missing++;
-      if (missingExamples.length < EXAMPLES) missingExamples.push(this.names[q]!);
+      if (missingExamples.length < EXAMPLES) missingExamples.push(this.queryIds.all[q]!);
     }
     return { run: s.run, missing, missingExamples };
   }
@@ -228,18 +218,18 @@ export class TrendBuilder {
     const peakToLast: QueryDrop[] = [];
     const c = this.stored.length;
     const lastIndex = c - 1;
-    for (let id = 0; id < this.names.length; id++) {
+    for (let id = 0; id < this.queryIds.all.length; id++) {
       const row = matrix.subarray(id * c, id * c + c);
       const last = row[lastIndex]!;
       if (!Number.isFinite(last)) continue;
       const first = row[0]!;
       if (Number.isFinite(first) && lastIndex > 0) {
-        firstToLast.push({ query: this.names[id]!, id, from: first, fromCheckpoint: 0, last, delta: last - first });
+        firstToLast.push({ query: this.queryIds.all[id]!, id, from: first, fromCheckpoint: 0, last, delta: last - first });
       }
       let peak = -1;
       for (let k = 0; k < lastIndex; k++) if (Number.isFinite(row[k]!) && (peak < 0 || row[k]! > row[peak]!)) peak = k;
       if (peak >= 0 && row[peak]! > last) {
-        peakToLast.push({ query: this.names[id]!, id, from: row[peak]!, fromCheckpoint: peak, last, delta: last - row[peak]! });
+        peakToLast.push({ query: this.queryIds.all[id]!, id, from: row[peak]!, fromCheckpoint: peak, last, delta: last - row[peak]! });
       }
     }
     const comparable = firstToLast.length;

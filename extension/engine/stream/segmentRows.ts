@@ -1,0 +1,20 @@
+/**
+ * A streamed dump as the segment means read a dump (evaluate/segments.ts): one row per query, its first,
+ * carrying the query's segment values. A query belongs to the value of its first row in either case, and
+ * the means are summed over queries in query order both ways, so `segmentBreakdown` gives the in-memory
+ * rows to the bit (test/engine/stream-segments.test.ts).
+ */
+import type { SegmentedRows } from '../evaluate/segments';
+import type { StreamedDump } from './streamEvaluate';
+
+export function segmentRowsOf(dump: StreamedDump): SegmentedRows {
+  const n = dump.queries.size;
+  const query = new Uint32Array(n);
+  for (let q = 0; q < n; q++) query[q] = q;
+  return {
+    rowCount: n,
+    query,
+    segments: (dump.querySegments ?? []).map((s) => ({ name: s.name, values: s.values, ofRow: s.ofQuery })),
+    ...(dump.joined ? { joined: dump.joined } : {}),
+  };
+}

@@ -1,0 +1,144 @@
+/**
+ * The editor's worker streaming a dump (worker/streamSession.ts): the real worker thread, bundled from
+ * source, driven through the host's EngineWorker handle. The same file is loaded twice, read into memory
+ * (no threshold) and streamed (threshold 0), and every view the streamed session gives is compared with
+ * the in-memory one, to the bit: the overview, the sensitivity rows, pages, a query's detail and JSON,
+ * a row's line. Partial overviews must come before the answer, each over more of the file.
+ */
+import { mkdtempSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import * as esbuild from 'esbuild';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { EngineWorker } from '../../extension/host/workerHost';
+import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
+import { RemoteError, RequestAbortedError } from '../../extension/channel/request';
+import type { PartialOverview } from '../../extension/protocol/partialOverview';
+import type { EvaluationSettings } from '../../extension/protocol/worker';
+import { editorBlockBytes } from '../../extension/worker/streamSession';
+import { QUERY_NAMES, seededRandom } from '../reference/random';
+
+const dir = mkdtempSync(join(tmpdir(), 'gainline-stream-session-'));
+const script = join(dir, 'engineWorker.js');
+const file = join(dir, 'kettlewood-grouped.csv');
+let worker: EngineWorker;
+const settings: EvaluationSettings = { metrics: 'ndcg@10,err@10,ap,rr,p@5,rbp,tau', conventions: DEFAULT_CONVENTIONS };
+
+/** Rows grouped by query, grades 0–4 (many 0), scores on a coarse grid so ties happen, some queries with nothing relevant. */
+function groupedDump(queries: number, seed: number): string {
+  const rand = seededRandom(seed);
+  const lines = ['query_id,item_id,label,score,aisle'];
+  for (let q = 0; q < queries; q++) {
+    const name = `${QUERY_NAMES[q % QUERY_NAMES.length]} ${q}`;
+    const size = 1 + Math.floor(rand() * 40);
+    const hopeless = rand() < 0.05;
+    for (let i = 0; i < size; i++) {
+      const grade = hopeless ? 0 : Math.max(0, Math.floor(rand() * 7) - 2);
+      lines.push(`${name},sku-${q}-${i},${grade},${(Math.round((grade * 0.2 + rand()) * 20) / 20).toFixed(2)},aisle-${q % 7}`);
+    }
+  }
+  return lines.join('\n') + '\n';
+}
+
+beforeAll(async () => {
+  await esbuild.build({
+    entryPoints: ['extension/worker/engineWorker.ts'], outfile: script, bundle: true, platform: 'node', format: 'cjs',
+    target: 'es2022', logLevel: 'error', external: ['@duckdb/node-api'],
+  });
+  writeFileSync(file, groupedDump(6000, 16));
+  worker = new EngineWorker(script);
+});
+
+afterAll(() => worker?.dispose());
+
+describe('a dump streamed in the editor', () => {
+  it('cuts files of a few MB into blocks of at least 1 MB, about sixteen per file, at most the engine\'s 32 MB', () => {
+    expect(editorBlockBytes(100)).toBe(1 << 20);
+    expect(editorBlockBytes(160e6)).toBe(1e7);
+    expect(editorBlockBytes(6e9)).toBe(32 << 20);
+  });
+
+  it('sends partial overviews, then the overview of the in-memory read to the bit, and answers pages, details and lines as it does', async () => {
+    const memory = await worker.call('load', { session: 'memory', source: { path: file }, settings });
+    const partials: PartialOverview[] = [];
+    const streamed = await worker.call('load', { session: 'stream', source: { path: file }, settings, streamFromBytes: 0 },
+      { onProgress: (_f, _m, partial) => partial && partials.push(partial) });
+    // The file is about 4 MB, cut into blocks of 1 MB: several partials, each over more of the file.
+    expect(partials.length).toBeGreaterThanOrEqual(3);
+    for (let i = 1; i < partials.length; i++) {
+      expect(partials[i]!.bytesRead).toBeGreaterThan(partials[i - 1]!.bytesRead);
+      expect(partials[i]!.queries).toBeGreaterThan(partials[i - 1]!.queries);
+    }
+    expect(partials[0]!.metrics.map((m) => m.label)).toEqual(memory.metrics.map((m) => m.label));
+    expect(partials[0]!.queries).toBeLessThan(memory.queryCount);
+    expect(partials.at(-1)!.metrics[0]!.counted).toBeLessThanOrEqual(memory.metrics[0]!.counted);
+
+    expect(streamed.metrics).toEqual(memory.metrics);
+    expect(streamed.queryCount).toBe(memory.queryCount);
+    expect(streamed.histogram).toEqual(memory.histogram);
+    expect(streamed.degenerate).toEqual(memory.degenerate);
+    expect(streamed.file).toEqual(memory.file);
+    expect(streamed.warnings.some((w) => w.startsWith('Streamed:'))).toBe(true);
+    // The stream scores the sensitivity rows in its one pass; in memory they come on their own request.
+    expect(streamed.sensitivityLater).toBeUndefined();
+    const { rows: sensitivity } = await worker.call('overviewSensitivity', { session: 'memory' });
+    expect(streamed.sensitivity).toEqual(sensitivity);
+
+    for (const sort of [undefined, { key: 'ap', descending: true }, { key: 'query', descending: false }]) {
+      const page = { offset: 5, limit: 40, ...(sort ? { sort } : {}) };
+      expect(await worker.call('queryPage', { session: 'stream', ...page })).toEqual(await worker.call('queryPage', { session: 'memory', ...page }));
+    }
+    const worst = (await worker.call('queryPage', { session: 'memory', offset: 0, limit: 3 })).rows.map((r) => r.query);
+    const last = (await worker.call('queryPage', { session: 'memory', offset: 0, limit: 1, sort: { key: 'query', descending: true } })).rows[0]!.query;
+    for (const query of [...worst, last]) {
+      const inMemory = await worker.call('queryDetail', { session: 'memory', query });
+      expect(await worker.call('queryDetail', { session: 'stream', query })).toEqual(inMemory);
+      expect(await worker.call('queryJson', { session: 'stream', query })).toEqual(await worker.call('queryJson', { session: 'memory', query }));
+      const row = inMemory.positions.at(-1)!.row;
+      expect(await worker.call('rowLocation', { session: 'stream', row })).toEqual(await worker.call('rowLocation', { session: 'memory', row }));
+    }
+  });
+
+  it('refuses the views that need every row with a sentence naming the setting', async () => {
+    await worker.call('load', { session: 'stream', source: { path: file }, settings, streamFromBytes: 0 });
+    await expect(worker.call('segments', { session: 'stream', column: 'aisle' })).rejects.toThrow(/streamed.*gainline\.reading\.streamFromMegabytes/);
+    await expect(worker.call('overviewDiagnostics', { session: 'stream' })).rejects.toBeInstanceOf(RemoteError);
+  });
+
+  it('reads into memory below the threshold', async () => {
+    const partials: PartialOverview[] = [];
+    const overview = await worker.call('load', { session: 'small', source: { path: file }, settings, streamFromBytes: 1e9 },
+      { onProgress: (_f, _m, partial) => partial && partials.push(partial) });
+    expect(partials).toEqual([]);
+    expect(overview.segmentColumns).toEqual(['aisle']);
+    expect(overview.sensitivityLater).toBe(true);
+  });
+
+  it('reads into memory, and says why, when a judgments file is joined to a dump large enough to stream', async () => {
+    const judgments = join(dir, 'kettlewood.judgments.tsv');
+    writeFileSync(judgments, `query_id\titem_id\tlabel\n${QUERY_NAMES[0]} 0\tsku-0-0\t3\n`);
+    const partials: PartialOverview[] = [];
+    const overview = await worker.call('load', { session: 'judged', source: { path: file, judgments }, settings, streamFromBytes: 0 },
+      { onProgress: (_f, _m, partial) => partial && partials.push(partial) });
+    expect(partials).toEqual([]);
+    expect(overview.warnings.filter((w) => w.startsWith('Read into memory rather than streamed'))).toEqual([
+      `Read into memory rather than streamed (it is over gainline.reading.streamFromMegabytes), since the judgments file ${judgments} is joined to it, which needs its rows.`]);
+  });
+
+  it('stops when cancelled after the first partial overview, and the worker keeps answering', async () => {
+    const abort = new AbortController();
+    let partials = 0;
+    const load = worker.call('load', { session: 'cancelled', source: { path: file }, settings, streamFromBytes: 0 }, {
+      signal: abort.signal,
+      onProgress: (_f, _m, partial) => {
+        if (partial && ++partials === 1) abort.abort();
+      },
+    });
+    await expect(load).rejects.toBeInstanceOf(RequestAbortedError);
+    expect(partials).toBe(1);
+    // Another whole stream meanwhile: had the cancelled one gone on, it would have ended and kept its session.
+    const again = await worker.call('load', { session: 'after-cancel', source: { path: file }, settings, streamFromBytes: 0 });
+    expect(again.queryCount).toBe(6000);
+    await expect(worker.call('queryPage', { session: 'cancelled', offset: 0, limit: 1 })).rejects.toThrow(/nothing is loaded/);
+  });
+});
