@@ -59,8 +59,9 @@ function sideFiles(source: DumpSource): string[] {
 
 /** For a dump large enough to stream that was read into memory because files are joined to it: why, for its overview. */
 export function joinedNote(source: DumpSource): string {
-  return `Read into memory rather than streamed (it is over gainline.reading.streamFromMegabytes), since the ${sideFiles(source).join(' and the ')} ` +
-    `${sideFiles(source).length > 1 ? 'are' : 'is'} joined to it, which needs its rows.`;
+  const files = sideFiles(source);
+  return `Read into memory rather than streamed (it is over gainline.reading.streamFromMegabytes), since the ${files.join(' and the ')} ` +
+    `${files.length > 1 ? 'go' : 'goes'} with it, and joining needs its rows.`;
 }
 
 /** Streams the source when its format and size allow (engine stream/choose.ts), else reads it. */

@@ -122,7 +122,7 @@ describe('a dump streamed in the editor', () => {
       { onProgress: (_f, _m, partial) => partial && partials.push(partial) });
     expect(partials).toEqual([]);
     expect(overview.warnings.filter((w) => w.startsWith('Read into memory rather than streamed'))).toEqual([
-      `Read into memory rather than streamed (it is over gainline.reading.streamFromMegabytes), since the judgments file ${judgments} is joined to it, which needs its rows.`]);
+      `Read into memory rather than streamed (it is over gainline.reading.streamFromMegabytes), since the judgments file ${judgments} goes with it, and joining needs its rows.`]);
   });
 
   it('stops when cancelled after the first partial overview, and the worker keeps answering', async () => {
