@@ -14,6 +14,7 @@ import { conventionHelp, conventionOptions, parseCommandArgs, scoringSetupFrom, 
 import { detailJson, detailOf, detailText, diagnosticsReport, findQuery, segmentReport, worstOrder } from './evalViews';
 import { renameInputError, spoolStdin, STDIN_NAME } from './stdin';
 import type { CliIO } from './io';
+import { largePagesOn } from './largePages';
 import { progressLine } from './progress';
 import { chooseEngine, evaluateElsewhere } from './sqlEngines';
 
@@ -199,7 +200,8 @@ async function evalFile(path: string, source: string, format: ReportFormat, wors
       ...(records ? { queryRecords: records.pieces() } : {}) };
     for (const piece of formatReportPieces(format, input, { worst, ...(worstOrderBy ? { worstOrder: worstOrderBy } : {}) })) io.out(piece);
     if (values.timings) {
-      io.err(`timings: read ${s(read - started)} s, score ${s(scored - read)} s, report ${s(performance.now() - scored)} s (${dump.rowCount} rows)\n`);
+      io.err(`timings: read ${s(read - started)} s, score ${s(scored - read)} s, report ${s(performance.now() - scored)} s (${dump.rowCount} rows` +
+        `${largePagesOn() ? '; large pages' : ''})\n`);
     }
   } finally {
     progress?.done();

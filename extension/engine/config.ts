@@ -10,6 +10,8 @@ export interface EngineTuning {
   readonly plainChunkBytes: number;
   /** Bytes of compressed input per read of a gzip file. */
   readonly gzipChunkBytes: number;
+  /** Byte ranges per parsing thread, claimed in turn: enough that a slowed thread leaves little for the others to wait on. */
+  readonly parseRangesPerThread: number;
   /** Query chunks per scoring thread: enough that a slowed thread leaves little for the others to wait on. */
   readonly scoreChunksPerThread: number;
   /** Rows per call of the WebAssembly record kernel (read when a kernel is created). */
@@ -34,6 +36,7 @@ export interface EngineSettings {
 export const DEFAULT_TUNING: EngineTuning = {
   plainChunkBytes: 8 << 20,
   gzipChunkBytes: 1 << 20,
+  parseRangesPerThread: 4,
   scoreChunksPerThread: 16,
   kernelRowsPerCall: 16384,
   kernelPieceBytes: 1 << 20,

@@ -5,7 +5,12 @@
 import * as vscode from 'vscode';
 import { readConfig, type GainlineConfig } from './config';
 import { registerCommands } from './commands';
-import { COMPARE_VIEW_TYPE, ComparePanelSerializer, DumpEditorProvider, SeriesPanels, SessionRegistry, VIEW_TYPE, openComparePanel, openEnginePanel } from './panels';
+import {
+  COMPARE_VIEW_TYPE, DumpEditorProvider, PanelRestorer, SERIES_VIEW_TYPE, SeriesPanels, SessionRegistry, VIEW_TYPE, compareRestorer, openComparePanel, openEnginePanel,
+  type SeriesStarter,
+} from './panels';
+import { savedSeriesKey } from './savedState';
+import type { SeriesGroup } from './seriesGroups';
 import { RankedListsTree } from './rankedListsTree';
 import { RecentComparisons } from './recentComparisons';
 import { RunsTree } from './runsTree';
@@ -37,13 +42,33 @@ export function activate(context: vscode.ExtensionContext): void {
   const tree = new RankedListsTree(treeWorker, getConfig, context.workspaceState, foreground, (line) => output.info(line));
   const status = new HeadlineStatus();
   const recent = new RecentComparisons(context.workspaceState);
-  const runs = new RunsTree(() => tree.listFiles(), getConfig);
+  const runs = new RunsTree(() => tree.listing(), getConfig);
   const seriesPanels = new SeriesPanels(context.extensionUri);
   const openCompare = (a: vscode.Uri, b: vscode.Uri): void => {
     openComparePanel(a, b, context.extensionUri, deps, registry);
     void recent.remember(a, b);
   };
   const seriesSessions = new Set<SeriesSession>();
+  const seriesStarter = (group: SeriesGroup): SeriesStarter => (webview) => {
+    const session = new SeriesSession(webview, group.label, {
+      worker: viewWorker, getConfig, memory: context.workspaceState, log: (line) => output.info(line),
+      resolve: () => runs.find(group.key),
+      watchPattern: runs.watchPattern(group),
+      openCheckpoint: (uri) => void vscode.commands.executeCommand('vscode.openWith', uri, VIEW_TYPE),
+      openCompare,
+    }, group.key);
+    seriesSessions.add(session);
+    return { start: () => session.start(), dispose: () => {
+      seriesSessions.delete(session);
+      session.dispose();
+    } };
+  };
+  // After a window reload: the series the page saved, as the Runs view groups it now (gone: the panel closes).
+  const seriesRestorer = new PanelRestorer(savedSeriesKey, async (panel, key) => {
+    const group = await runs.find(key);
+    if (group) seriesPanels.attach(panel, group.key, group.label, seriesStarter(group));
+    return group !== undefined;
+  });
 
   context.subscriptions.push(
     output,
@@ -61,7 +86,8 @@ export function activate(context: vscode.ExtensionContext): void {
       supportsMultipleEditorsPerDocument: true,
       webviewOptions: { enableFindWidget: true },
     }),
-    vscode.window.registerWebviewPanelSerializer(COMPARE_VIEW_TYPE, new ComparePanelSerializer(context.extensionUri, deps, registry)),
+    vscode.window.registerWebviewPanelSerializer(COMPARE_VIEW_TYPE, compareRestorer(context.extensionUri, deps, registry)),
+    vscode.window.registerWebviewPanelSerializer(SERIES_VIEW_TYPE, seriesRestorer),
     // Several dumps can be selected in the view and compared as a pair.
     vscode.window.createTreeView('gainline.rankedLists', { treeDataProvider: tree, canSelectMany: true, showCollapseAll: false }),
     registry.onDidChangeActive((session) => status.show(session?.headline)),
@@ -69,21 +95,7 @@ export function activate(context: vscode.ExtensionContext): void {
       tree,
       openCompare,
       runs,
-      openSeries: (group) =>
-        seriesPanels.show(group.key, group.label, (webview) => {
-          const session = new SeriesSession(webview, group.label, {
-            worker: viewWorker, getConfig, memory: context.workspaceState, log: (line) => output.info(line),
-            resolve: () => runs.find(group.key),
-            watchPattern: runs.watchPattern(group),
-            openCheckpoint: (uri) => void vscode.commands.executeCommand('vscode.openWith', uri, VIEW_TYPE),
-            openCompare,
-          });
-          seriesSessions.add(session);
-          return { start: () => session.start(), dispose: () => {
-            seriesSessions.delete(session);
-            session.dispose();
-          } };
-        }),
+      openSeries: (group) => seriesPanels.show(group.key, group.label, seriesStarter(group)),
       openEngine: (uri, engine) => openEnginePanel(uri, engine, context.extensionUri, deps, registry),
       secrets: context.secrets,
       lastTable: { get: () => context.workspaceState.get<string>(LAST_TABLE_KEY), set: (url) => context.workspaceState.update(LAST_TABLE_KEY, url) },

@@ -6,6 +6,7 @@ import * as path from 'node:path';
 import * as vscode from 'vscode';
 import type { ViewMode } from '../protocol/messages';
 import { ViewSession, type SessionDeps, type SessionTarget } from './viewSession';
+import { savedRuns } from './savedState';
 import { webviewHtml } from './webviewHtml';
 
 export const VIEW_TYPE = 'gainline.rankedListViewer';
@@ -87,6 +88,9 @@ export function configureWebview(webview: vscode.Webview, extensionUri: vscode.U
   });
 }
 
+/** Makes the session that feeds a trend panel's webview; the panel disposes it when closed. */
+export type SeriesStarter = (webview: vscode.Webview) => vscode.Disposable & { start(): Promise<void> };
+
 /**
  * The trend view of a training series: one panel per series (opening it again brings it forward).
  * `start` makes the session that feeds the panel's webview; the panel disposes it when closed.
@@ -96,13 +100,25 @@ export class SeriesPanels implements vscode.Disposable {
 
   constructor(private readonly extensionUri: vscode.Uri) {}
 
-  show(key: string, title: string, start: (webview: vscode.Webview) => vscode.Disposable & { start(): Promise<void> }): void {
+  show(key: string, title: string, start: SeriesStarter): void {
     const existing = this.open.get(key);
     if (existing) {
       existing.reveal();
       return;
     }
-    const panel = vscode.window.createWebviewPanel(SERIES_VIEW_TYPE, `Trend: ${title}`, vscode.ViewColumn.Active, { enableFindWidget: true });
+    this.attach(vscode.window.createWebviewPanel(SERIES_VIEW_TYPE, `Trend: ${title}`, vscode.ViewColumn.Active, { enableFindWidget: true }), key, title, start);
+  }
+
+  /** Feeds `panel` (new, or brought back after a window reload) from a session on the series `key`. */
+  attach(panel: vscode.WebviewPanel, key: string, title: string, start: SeriesStarter): void {
+    const existing = this.open.get(key);
+    if (existing && existing !== panel) {
+      // Two panels saved on one series: one view per series, as opening it again does.
+      panel.dispose();
+      existing.reveal();
+      return;
+    }
+    panel.title = `Trend: ${title}`;
     configureWebview(panel.webview, this.extensionUri, 'series', `Trend: ${title}`);
     const session = start(panel.webview);
     this.open.set(key, panel);
@@ -161,30 +177,30 @@ function attachComparePanel(panel: vscode.WebviewPanel, a: vscode.Uri, b: vscode
   openSession(panel, { mode: 'compare', a, b }, deps, registry);
 }
 
-/** What the compare webview saves with `setState` (see webview/src/app.ts, SavedState.runs). */
-interface SavedCompareState {
-  readonly runs?: readonly [string, string];
-}
-
 /**
- * Brings compare panels back after a window reload: the webview saved the two runs' paths in its
- * state, so the panel is re-attached to a new session on the same files (tab and query come back too).
+ * Brings panels of one view type back after a window reload. VS Code hands back what the page saved
+ * with `setState` (webview/src/app.ts, SavedState); `read` takes from it what the panel stands for
+ * (undefined when the state holds nothing usable), and `attach` re-opens the panel on it, answering
+ * false when that is gone. A panel that cannot be brought back is closed rather than left blank.
  */
-export class ComparePanelSerializer implements vscode.WebviewPanelSerializer<SavedCompareState> {
+export class PanelRestorer<T> implements vscode.WebviewPanelSerializer<unknown> {
   constructor(
-    private readonly extensionUri: vscode.Uri,
-    private readonly deps: SessionDeps,
-    private readonly registry: SessionRegistry,
+    private readonly read: (state: unknown) => T | undefined,
+    private readonly attach: (panel: vscode.WebviewPanel, saved: T) => boolean | Promise<boolean>,
   ) {}
 
-  async deserializeWebviewPanel(panel: vscode.WebviewPanel, state: SavedCompareState | undefined): Promise<void> {
-    const runs = state?.runs;
-    if (!Array.isArray(runs) || runs.length !== 2 || !runs.every((r) => typeof r === 'string' && r.length > 0)) {
-      panel.dispose();
-      return;
-    }
-    attachComparePanel(panel, vscode.Uri.file(runs[0]), vscode.Uri.file(runs[1]), this.extensionUri, this.deps, this.registry);
+  async deserializeWebviewPanel(panel: vscode.WebviewPanel, state: unknown): Promise<void> {
+    const saved = this.read(state);
+    if (saved === undefined || !(await this.attach(panel, saved))) panel.dispose();
   }
+}
+
+/** A compare panel: the two runs' paths (SavedState.runs); the panel comes back on the same files, with its tab and query. */
+export function compareRestorer(extensionUri: vscode.Uri, deps: SessionDeps, registry: SessionRegistry): PanelRestorer<readonly [string, string]> {
+  return new PanelRestorer(savedRuns, (panel, runs) => {
+    attachComparePanel(panel, vscode.Uri.file(runs[0]), vscode.Uri.file(runs[1]), extensionUri, deps, registry);
+    return true;
+  });
 }
 
 /** A view computed where the data lives: a ClickHouse table, or a file served through DuckDB. */

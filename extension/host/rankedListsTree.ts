@@ -14,6 +14,7 @@ import { LOAD_TIMEOUT_MS, type EngineWorker } from './workerHost';
 import { VIEW_TYPE } from './panels';
 import { RequestAbortedError } from '../channel/request';
 import type { ForegroundWork } from './foreground';
+import { listingOf, moreTooltip, searchLimit, shownInRankedLists, type DumpListing } from './dumpListing';
 
 type Headline =
   | { readonly state: 'pending' }
@@ -44,15 +45,26 @@ export class DumpItem extends vscode.TreeItem {
   }
 }
 
+/** The last row when the view does not show every dump found: how many more, and where they are. */
+export class MoreDumpsItem extends vscode.TreeItem {
+  constructor(text: string, tooltip: string) {
+    super(text, vscode.TreeItemCollapsibleState.None);
+    this.contextValue = 'gainline.moreDumps';
+    this.iconPath = new vscode.ThemeIcon('ellipsis');
+    this.tooltip = tooltip;
+  }
+}
+
+type Row = DumpItem | MoreDumpsItem;
+
 /** Files whose creation, change or removal may change the dump listings (this view's and the Runs view's). */
 export const DUMP_WATCH_GLOB = '**/*.{csv,tsv,jsonl,parquet,run,gz}';
 
-const MAX_FILES = 500;
 /** Background headlines skip files this large: reading them would hold hundreds of MB for a tree label. */
 const MAX_BACKGROUND_BYTES = 256 * 2 ** 20;
 
-export class RankedListsTree implements vscode.TreeDataProvider<DumpItem>, vscode.Disposable {
-  private readonly changed = new vscode.EventEmitter<DumpItem | undefined>();
+export class RankedListsTree implements vscode.TreeDataProvider<Row>, vscode.Disposable {
+  private readonly changed = new vscode.EventEmitter<Row | undefined>();
   readonly onDidChangeTreeData = this.changed.event;
   private readonly cache = new Map<string, { signature: string; headline: Headline }>();
   private readonly queue: vscode.Uri[] = [];
@@ -80,14 +92,23 @@ export class RankedListsTree implements vscode.TreeDataProvider<DumpItem>, vscod
     this.disposables.push(this.changed, watcher, watcher.onDidCreate(onFile), watcher.onDidDelete(onFile), watcher.onDidChange(onFile));
   }
 
-  /** Workspace dumps in the order shown (also used by the compare quick pick). */
-  async listFiles(): Promise<vscode.Uri[]> {
+  /** Workspace dumps in listing order, up to MAX_LISTED_DUMPS, and whether the search found more. */
+  async listing(): Promise<DumpListing<vscode.Uri>> {
     const config = this.getConfig();
     // Queries and items tables are read with the dumps, not scored on their own.
     const named = new Set(Object.values(config.sideFilesByPattern).flatMap((f) => Object.values(f) as string[]).map((p) => p.replace(/\\/g, '/')));
-    const found = (await vscode.workspace.findFiles(config.dumpGlob, config.dumpExclude, MAX_FILES))
-      .filter((uri) => !isSideTableName(uri.fsPath) && !named.has(vscode.workspace.asRelativePath(uri, false).replace(/\\/g, '/')));
-    return found.sort((a, b) => vscode.workspace.asRelativePath(a).localeCompare(vscode.workspace.asRelativePath(b)));
+    const found = await vscode.workspace.findFiles(config.dumpGlob, config.dumpExclude, searchLimit());
+    const listing = listingOf(found);
+    const keyed = listing.files
+      .map((uri) => ({ uri, relative: vscode.workspace.asRelativePath(uri, false).replace(/\\/g, '/') }))
+      .filter((f) => !isSideTableName(f.uri.fsPath) && !named.has(f.relative))
+      .sort((a, b) => a.relative.localeCompare(b.relative));
+    return { files: keyed.map((f) => f.uri), searchStopped: listing.searchStopped };
+  }
+
+  /** Workspace dumps in listing order (the Runs view and the compare quick pick take them all). */
+  async listFiles(): Promise<vscode.Uri[]> {
+    return [...(await this.listing()).files];
   }
 
   refresh(): void {
@@ -100,14 +121,16 @@ export class RankedListsTree implements vscode.TreeDataProvider<DumpItem>, vscod
     this.refresh();
   }
 
-  getTreeItem(element: DumpItem): DumpItem {
+  getTreeItem(element: Row): Row {
     return element;
   }
 
-  async getChildren(element?: DumpItem): Promise<DumpItem[]> {
+  async getChildren(element?: Row): Promise<Row[]> {
     if (element) return [];
-    this.files = await this.listFiles();
-    const items: DumpItem[] = [];
+    const listing = await this.listing();
+    const { shown, more } = shownInRankedLists(listing);
+    this.files = [...shown];
+    const items: Row[] = [];
     for (const uri of this.files) {
       const signature = await this.signature(uri);
       const cached = this.cache.get(uri.fsPath);
@@ -117,6 +140,7 @@ export class RankedListsTree implements vscode.TreeDataProvider<DumpItem>, vscod
       }
       items.push(new DumpItem(uri, this.cache.get(uri.fsPath)!.headline));
     }
+    if (more !== undefined) items.push(new MoreDumpsItem(more, moreTooltip(listing)));
     void this.drain();
     return items;
   }

@@ -8,6 +8,7 @@ import * as path from 'node:path';
 import * as vscode from 'vscode';
 import type { GainlineConfig } from './config';
 import { VIEW_TYPE } from './panels';
+import { MAX_LISTED_DUMPS, type DumpListing } from './dumpListing';
 import { DUMP_WATCH_GLOB } from './rankedListsTree';
 import { folderOf, groupSeries, type SeriesGroup } from './seriesGroups';
 import { RELOAD_DEBOUNCE_MS } from './viewSession';
@@ -33,7 +34,17 @@ export class CheckpointItem extends vscode.TreeItem {
   }
 }
 
-type Node = SeriesItem | CheckpointItem;
+/** The last row when the workspace search stopped at MAX_LISTED_DUMPS: series may lack checkpoints. */
+export class SearchStoppedItem extends vscode.TreeItem {
+  constructor() {
+    super(`More than ${MAX_LISTED_DUMPS.toLocaleString('en-US')} dumps: the rest are not grouped`, vscode.TreeItemCollapsibleState.None);
+    this.contextValue = 'gainline.searchStopped';
+    this.iconPath = new vscode.ThemeIcon('warning');
+    this.tooltip = `The workspace search stops at ${MAX_LISTED_DUMPS.toLocaleString('en-US')} dumps, so a series may lack some of its checkpoints. Narrow gainline.dumpGlob to the series you want.`;
+  }
+}
+
+type Node = SeriesItem | CheckpointItem | SearchStoppedItem;
 
 export class RunsTree implements vscode.TreeDataProvider<Node>, vscode.Disposable {
   private readonly changed = new vscode.EventEmitter<Node | undefined>();
@@ -41,8 +52,8 @@ export class RunsTree implements vscode.TreeDataProvider<Node>, vscode.Disposabl
   private readonly disposables: vscode.Disposable[] = [];
 
   constructor(
-    /** The workspace's dumps, as the Ranked Lists view lists them. */
-    private readonly listDumps: () => Promise<vscode.Uri[]>,
+    /** The workspace's dumps, as the Ranked Lists view finds them (all of them, not only the rows it shows). */
+    private readonly listDumps: () => Promise<DumpListing<vscode.Uri>>,
     private readonly getConfig: () => GainlineConfig,
   ) {
     const watcher = vscode.workspace.createFileSystemWatcher(DUMP_WATCH_GLOB);
@@ -60,9 +71,14 @@ export class RunsTree implements vscode.TreeDataProvider<Node>, vscode.Disposabl
   }
 
   async series(): Promise<SeriesGroup[]> {
+    return (await this.grouped()).groups;
+  }
+
+  private async grouped(): Promise<{ groups: SeriesGroup[]; searchStopped: boolean }> {
     const config = this.getConfig();
-    const files = (await this.listDumps()).map((uri) => ({ path: uri.fsPath, relative: vscode.workspace.asRelativePath(uri, false).replace(/\\/g, '/') }));
-    return groupSeries(files, config.series.patterns, config.series.order);
+    const listing = await this.listDumps();
+    const files = listing.files.map((uri) => ({ path: uri.fsPath, relative: vscode.workspace.asRelativePath(uri, false).replace(/\\/g, '/') }));
+    return { groups: groupSeries(files, config.series.patterns, config.series.order), searchStopped: listing.searchStopped };
   }
 
   /** The series with this key as it stands now (its files may have changed since it was listed). */
@@ -87,9 +103,12 @@ export class RunsTree implements vscode.TreeDataProvider<Node>, vscode.Disposabl
   }
 
   async getChildren(element?: Node): Promise<Node[]> {
-    if (element instanceof CheckpointItem) return [];
     if (element instanceof SeriesItem) return element.group.files.map((f) => new CheckpointItem(vscode.Uri.file(f.path)));
-    return (await this.series()).map((g) => new SeriesItem(g));
+    if (element) return [];
+    const { groups, searchStopped } = await this.grouped();
+    const rows: Node[] = groups.map((g) => new SeriesItem(g));
+    if (searchStopped) rows.push(new SearchStoppedItem());
+    return rows;
   }
 
   dispose(): void {

@@ -15,6 +15,7 @@ import { evaluationSettings, type GainlineConfig } from './config';
 import type { SeriesGroup } from './seriesGroups';
 import { sourceFor } from './sources';
 import { messageOf, RELOAD_DEBOUNCE_MS } from './viewSession';
+import { SessionLife } from './sessionLife';
 import { WebviewLink } from './webviewLink';
 import { LOAD_TIMEOUT_MS, type EngineWorker } from './workerHost';
 
@@ -37,11 +38,8 @@ let seriesCounter = 0;
 export class SeriesSession implements vscode.Disposable {
   readonly key = `series-${++seriesCounter}`;
   private model: SeriesOverviewModel | undefined;
-  private loadAbort: AbortController | undefined;
-  private reloadTimer: ReturnType<typeof setTimeout> | undefined;
   private readonly link: WebviewLink;
-  private readonly disposables: vscode.Disposable[] = [];
-  private disposed = false;
+  private readonly life: SessionLife;
   /** Loads started (tests and the log count them). */
   loads = 0;
 
@@ -49,11 +47,14 @@ export class SeriesSession implements vscode.Disposable {
     webview: vscode.Webview,
     readonly label: string,
     private readonly deps: SeriesSessionDeps,
+    /** The series' key in the Runs view (SeriesGroup.key). */
+    readonly seriesKey: string,
   ) {
     this.link = new WebviewLink(webview, { status: 'loading', mode: 'series', label, fraction: null, message: 'Starting…' }, this.handlers());
+    this.life = new SessionLife(deps.worker, this.key, this.link);
     const watcher = vscode.workspace.createFileSystemWatcher(deps.watchPattern);
     const changed = (): void => this.scheduleReload();
-    this.disposables.push(watcher, watcher.onDidCreate(changed), watcher.onDidChange(changed), watcher.onDidDelete(changed));
+    this.life.disposables.push(watcher, watcher.onDidCreate(changed), watcher.onDidChange(changed), watcher.onDidDelete(changed));
   }
 
   start(): Promise<void> {
@@ -62,29 +63,16 @@ export class SeriesSession implements vscode.Disposable {
 
   /** Debounced: a job writing a checkpoint touches it many times; the series is read once things settle. */
   scheduleReload(delayMs = RELOAD_DEBOUNCE_MS): void {
-    if (this.disposed) return;
-    if (this.reloadTimer) clearTimeout(this.reloadTimer);
-    this.reloadTimer = setTimeout(() => {
-      this.reloadTimer = undefined;
-      void this.load();
-    }, delayMs);
+    this.life.debounce(delayMs, () => void this.load());
   }
 
   dispose(): void {
-    if (this.disposed) return;
-    this.disposed = true;
-    if (this.reloadTimer) clearTimeout(this.reloadTimer);
-    this.loadAbort?.abort();
-    this.link.dispose();
-    for (const d of this.disposables) d.dispose();
-    if (this.deps.worker.running) void this.deps.worker.call('unload', { session: this.key }).catch(() => undefined);
+    this.life.dispose();
   }
 
   private async load(): Promise<void> {
     this.loads++;
-    this.loadAbort?.abort();
-    const abort = new AbortController();
-    this.loadAbort = abort;
+    const abort = this.life.nextLoad();
     const config = this.deps.getConfig();
     if (!this.model) this.setState({ status: 'loading', mode: 'series', label: this.label, fraction: null, message: 'Reading the checkpoints…' });
     try {
@@ -98,13 +86,13 @@ export class SeriesSession implements vscode.Disposable {
         session: this.key, name: group.label, files, unreadable, order: config.series.order, settings: evaluationSettings(config),
         bootstrap: DEFAULT_TREND_SETTINGS.bootstrap, seed: DEFAULT_TREND_SETTINGS.seed, top: DEFAULT_TREND_SETTINGS.top,
       }, { signal: abort.signal, timeoutMs: LOAD_TIMEOUT_MS });
-      if (abort.signal.aborted || this.disposed) return;
+      if (abort.signal.aborted || this.life.disposed) return;
       const kind = this.model ? 'reloaded' : 'loaded';
       this.model = model;
-      this.setState({ status: kind, mode: 'series', series: model });
+      this.setState({ status: kind, mode: 'series', series: model, seriesKey: this.seriesKey });
       this.deps.log?.(`series ${group.label}: ${model.checkpoints.length} checkpoints (${model.scoredNow} read now), ${model.unread.length} unread, ${model.loadMs} ms`);
     } catch (error) {
-      if (abort.signal.aborted || this.disposed) return; // superseded by a newer load
+      if (abort.signal.aborted || this.life.disposed) return; // superseded by a newer load
       this.model = undefined;
       this.setState({ status: 'error', message: messageOf(error) });
       this.deps.log?.(`could not read series ${this.label}: ${messageOf(error)}`);

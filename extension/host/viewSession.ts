@@ -9,6 +9,7 @@ import { conventionsLine, compareSettings, evaluationSettings, type GainlineConf
 import { copyText, exportView, revealRow } from './hostActions';
 import { LOAD_TIMEOUT_MS, type EngineWorker } from './workerHost';
 import { resolveViewSources, type SessionTarget } from './viewSources';
+import { SessionLife } from './sessionLife';
 import { WebviewLink } from './webviewLink';
 import type { CompareOverviewModel, OverviewModel, PartialOverview, ViewRequests, ViewState } from '../protocol/messages';
 import { RemoteError, RequestAbortedError, type RequestHandlers } from '../channel/request';
@@ -59,15 +60,12 @@ export class ViewSession implements vscode.Disposable {
   private loadedGeneration = -1;
   private rereading: Promise<void> | undefined;
   private sources: DumpSource[] = [];
-  private loadAbort: AbortController | undefined;
-  private reloadTimer: ReturnType<typeof setTimeout> | undefined;
   private readonly link: WebviewLink;
-  private readonly disposables: vscode.Disposable[] = [];
+  private readonly life: SessionLife;
   private readonly headlineEmitter = new vscode.EventEmitter<Headline | undefined>();
   readonly onDidChangeHeadline = this.headlineEmitter.event;
   /** The query the user looks at, kept across reloads. */
   selection: string | null = null;
-  private disposed = false;
   /** When the view was opened: the first load's log line says where the time before computing went. */
   private readonly openedAt = performance.now();
   private readonly openedEpoch = Date.now();
@@ -85,6 +83,7 @@ export class ViewSession implements vscode.Disposable {
       },
       onSelection: (query) => (this.selection = query),
     });
+    this.life = new SessionLife(deps.worker, this.key, this.link);
     for (const uri of this.files) if (uri.scheme === 'file') this.watch(uri);
   }
 
@@ -115,12 +114,7 @@ export class ViewSession implements vscode.Disposable {
 
   /** Debounced recompute after a file change or a settings change. */
   scheduleReload(delayMs = RELOAD_DEBOUNCE_MS): void {
-    if (this.disposed) return;
-    if (this.reloadTimer) clearTimeout(this.reloadTimer);
-    this.reloadTimer = setTimeout(() => {
-      this.reloadTimer = undefined;
-      void this.load(this.overview || this.compare ? 'reloaded' : 'loaded', false);
-    }, delayMs);
+    this.life.debounce(delayMs, () => void this.load(this.overview || this.compare ? 'reloaded' : 'loaded', false));
   }
 
   /** The queries worst first (single: headline ascending; compare: headline Δ ascending), for Go to Query. */
@@ -149,14 +143,9 @@ export class ViewSession implements vscode.Disposable {
   }
 
   dispose(): void {
-    if (this.disposed) return;
-    this.disposed = true;
-    if (this.reloadTimer) clearTimeout(this.reloadTimer);
-    this.loadAbort?.abort();
-    this.link.dispose();
+    if (this.life.disposed) return;
+    this.life.dispose();
     this.headlineEmitter.dispose();
-    for (const d of this.disposables) d.dispose();
-    if (this.deps.worker.running) void this.deps.worker.call('unload', { session: this.key }).catch(() => undefined);
   }
 
   private setState(state: ViewState): void {
@@ -164,9 +153,7 @@ export class ViewSession implements vscode.Disposable {
   }
 
   private async load(kind: 'loaded' | 'reloaded', firstTime: boolean): Promise<void> {
-    this.loadAbort?.abort();
-    const abort = new AbortController();
-    this.loadAbort = abort;
+    const abort = this.life.nextLoad();
     let cancelledByUser = false;
     const config = this.deps.getConfig();
     if (kind === 'loaded') this.setState({ status: 'loading', mode: this.target.mode, label: this.label, fraction: 0, message: 'Reading…' });
@@ -235,7 +222,7 @@ export class ViewSession implements vscode.Disposable {
       let finished = false;
       void settled.then(() => (finished = true));
       const timer = setTimeout(() => {
-        if (finished || this.disposed) return;
+        if (finished || this.life.disposed) return;
         void vscode.window.withProgress(
           { location: vscode.ProgressLocation.Notification, title: `Gainline: reading ${this.label}`, cancellable: true },
           (progress, token) => {
@@ -253,7 +240,7 @@ export class ViewSession implements vscode.Disposable {
     try {
       await work;
     } catch (error) {
-      if (this.disposed || (abort.signal.aborted && !cancelledByUser)) return; // superseded by a newer load
+      if (this.life.disposed || (abort.signal.aborted && !cancelledByUser)) return; // superseded by a newer load
       if (cancelledByUser || error instanceof RequestAbortedError) {
         this.setState({ status: 'error', message: `Reading ${this.label} was cancelled. Run "Gainline: Refresh Ranked Lists" or reopen the file to read it again.` });
       } else {
@@ -343,13 +330,12 @@ export class ViewSession implements vscode.Disposable {
   private watch(uri: vscode.Uri): void {
     const pattern = new vscode.RelativePattern(vscode.Uri.file(path.dirname(uri.fsPath)), path.basename(uri.fsPath));
     const watcher = vscode.workspace.createFileSystemWatcher(pattern);
-    this.disposables.push(
+    this.life.disposables.push(
       watcher,
       watcher.onDidChange(() => this.scheduleReload()),
       watcher.onDidCreate(() => this.scheduleReload()),
       watcher.onDidDelete(() => {
-        if (this.reloadTimer) clearTimeout(this.reloadTimer);
-        this.loadAbort?.abort();
+        this.life.stop();
         this.overview = undefined;
         this.compare = undefined;
         this.headlineEmitter.fire(undefined);

@@ -367,8 +367,8 @@ export type ViewState =
   /** Recomputed after the file or a setting changed: keep the selected query and tab, refetch pages. */
   | { readonly status: 'reloaded'; readonly mode: 'single'; readonly overview: OverviewModel }
   | { readonly status: 'reloaded'; readonly mode: 'compare'; readonly compare: CompareOverviewModel }
-  /** A training series: first result, then 'reloaded' each time a checkpoint is added or rewritten. */
-  | { readonly status: 'loaded' | 'reloaded'; readonly mode: 'series'; readonly series: SeriesOverviewModel }
+  /** A training series: first result, then 'reloaded' on each change; the page saves `seriesKey` (Runs view key) for a window reload. */
+  | { readonly status: 'loaded' | 'reloaded'; readonly mode: 'series'; readonly series: SeriesOverviewModel; readonly seriesKey: string }
   /** One line, e.g. the InputError message "run.csv:12: expected a number in column 'score' (found \"abc\")". */
   | { readonly status: 'error'; readonly message: string }
   | { readonly status: 'vanished'; readonly path: string };

@@ -22,14 +22,14 @@ import { gridsReachEveryColumn, revealKeepsViewerUsable } from './scenarios/layo
 import { idealOrderAndStrip, smallThings, statusBarReadable } from './scenarios/firstHour.mjs';
 import { compareFirstHour, compareSurvivesReload, gainlineContainer } from './scenarios/firstHourCompare.mjs';
 import { firstScreenTimes } from './scenarios/firstScreen.mjs';
-import { trendGrowsLive, trendViewMatchesCli } from './scenarios/trend.mjs';
+import { trendGrowsLive, trendSurvivesReload, trendViewMatchesCli } from './scenarios/trend.mjs';
 import { duckdbServedFile } from './scenarios/sqlEngines.mjs';
 import { streamedOverview } from './scenarios/streaming.mjs';
 
 const SCENARIOS = [openWithShowsHeadline, reopenWithAndFilter, parquetFromExplorerMenu, worstQueryDetail, rewriteKeepsSelection, compareWinsLosses,
   htmlIdsStayText, malformedShowsError, themesReadable, gridsReachEveryColumn, revealKeepsViewerUsable,
   idealOrderAndStrip, statusBarReadable, smallThings, compareFirstHour, compareSurvivesReload, gainlineContainer, firstScreenTimes,
-  duckdbServedFile, streamedOverview, trendViewMatchesCli, trendGrowsLive];
+  duckdbServedFile, streamedOverview, trendViewMatchesCli, trendSurvivesReload, trendGrowsLive];
 const SCENARIO_TIMEOUT_MS = 240_000;
 
 const args = process.argv.slice(2);

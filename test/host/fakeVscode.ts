@@ -174,7 +174,7 @@ export function createFakeVscode() {
         state.watchers.push(w);
         return w;
       },
-      findFiles: async () => [...state.workspaceFiles],
+      findFiles: async (_include: unknown, _exclude?: unknown, maxResults?: number) => state.workspaceFiles.slice(0, maxResults ?? Infinity),
       asRelativePath: (p: Uri | string) => path.basename(typeof p === 'string' ? p : p.fsPath),
       async openTextDocument(uri: Uri) {
         return {

@@ -3,6 +3,7 @@ import { mkdtempSync, truncateSync, utimesSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it, vi } from 'vitest';
+import { MAX_LISTED_DUMPS, RANKED_LISTS_SHOWN } from '../../extension/host/dumpListing';
 import { memento, shared, Uri } from './fakeVscode';
 
 vi.mock('vscode', async () => (await import('./fakeVscode')).shared.api);
@@ -10,6 +11,7 @@ vi.mock('vscode', async () => (await import('./fakeVscode')).shared.api);
 const { RankedListsTree } = await import('../../extension/host/rankedListsTree');
 const { readConfig } = await import('../../extension/host/config');
 const { RequestAbortedError } = await import('../../extension/channel/request');
+const { RunsTree } = await import('../../extension/host/runsTree');
 
 const dir = mkdtempSync(join(tmpdir(), 'gainline-tree-'));
 
@@ -145,5 +147,39 @@ describe('background headlines and a view\'s first screen (foreground.ts)', () =
     b();
     await waiting;
     expect([work.busy, idle, seen]).toEqual([false, true, ['hold', 'hold']]);
+  });
+});
+
+describe('many dumps: the Ranked Lists view shows the first 500 and counts the rest; the Runs view groups them all', () => {
+  // Paths only: a file that is not there is a headline that fails, which these checks do not look at.
+  const checkpoints = (n: number) => Array.from({ length: n }, (_, i) => Uri.file(join(dir, 'job', `step-${String(i).padStart(5, '0')}.csv`)));
+  const headline = async () => ({ key: 'ndcg@10', label: 'NDCG@10', mean: 0.5, queryCount: 1, rowCount: 1 });
+
+  it('700 dumps: 500 rows and one saying 200 more; listFiles and the Runs view have all 700', async () => {
+    shared.state.workspaceFiles = checkpoints(700);
+    const tree = new RankedListsTree({ call: vi.fn(headline) } as never, () => readConfig(() => undefined), memento() as never);
+    const rows = await tree.getChildren();
+    expect(rows).toHaveLength(RANKED_LISTS_SHOWN + 1);
+    expect(rows.slice(0, RANKED_LISTS_SHOWN).every((r) => r.resourceUri !== undefined)).toBe(true);
+    expect(rows.at(-1)!.label).toBe('200 more dumps not listed');
+    expect(rows.at(-1)!.command).toBeUndefined();
+    expect(await tree.listFiles()).toHaveLength(700);
+    const runs = new RunsTree(() => tree.listing(), () => readConfig(() => undefined));
+    const [series, ...rest] = await runs.getChildren();
+    expect(rest).toEqual([]);
+    expect(series!.description).toBe('700 checkpoints');
+    runs.dispose();
+    tree.dispose();
+  });
+
+  it('past the search limit: the rows say so in both views', async () => {
+    shared.state.workspaceFiles = checkpoints(MAX_LISTED_DUMPS + 5);
+    const tree = new RankedListsTree({ call: vi.fn(headline) } as never, () => readConfig(() => undefined), memento() as never);
+    expect((await tree.getChildren()).at(-1)!.label).toBe('19,500+ more dumps not listed');
+    const runs = new RunsTree(() => tree.listing(), () => readConfig(() => undefined));
+    const rows = await runs.getChildren();
+    expect(rows.map((r) => r.description ?? r.label)).toEqual([`${MAX_LISTED_DUMPS} checkpoints`, 'More than 20,000 dumps: the rest are not grouped']);
+    runs.dispose();
+    tree.dispose();
   });
 });

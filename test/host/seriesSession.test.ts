@@ -64,7 +64,7 @@ function open() {
   const session = new SeriesSession(webview as never, 'run-7/', {
     worker, getConfig: config, memory: memento() as never, resolve, watchPattern: folder,
     openCheckpoint: (uri) => opened.push(uri.fsPath), openCompare: (a, b) => compared.push([a.fsPath, b.fsPath]),
-  });
+  }, 'folder:run-7');
   return { webview, session, watcher: shared.state.watchers.at(-1)!, opened, compared };
 }
 
@@ -103,6 +103,8 @@ describe('a training series in a trend view', () => {
     await session.start();
     const state = webview.states().at(-1);
     expect(state.status).toBe('loaded');
+    // The page saves the key, so the panel comes back after a window reload (extension.ts, PanelRestorer).
+    expect(state.seriesKey).toBe('folder:run-7');
     expect(state.series.checkpoints.map((c: any) => c.run)).toEqual(['epoch-1.csv', 'epoch-2.csv', 'epoch-10.csv']);
     expectSameAsCli(state.series);
     webview.incoming.fire({ kind: 'request', id: 1, method: 'openCheckpoint', params: { path: join(folder, 'epoch-2.csv') } });

@@ -51,9 +51,10 @@ function expectSameDump(a: RankedDump, b: RankedDump): void {
 }
 
 describe('parallel parsing', () => {
-  it.each([[11, 2], [12, 3], [13, 4]])('seed %i with %i threads matches one thread', async (seed, threads) => {
+  // Ranges per thread: 1 (one range each), the default 4, and more ranges than chunks, claimed in turn by the threads.
+  it.each([[11, 2, 1], [12, 3, 4], [13, 4, 4], [14, 2, 16]])('seed %i with %i threads and %i ranges per thread matches one thread', async (seed, threads, ranges) => {
     const path = tmp.file(`par-${seed}.csv`, randomPlainCsv(seed, 20_000));
-    const saved = configureEngine({ tuning: { plainChunkBytes: 10_000 + seed } });
+    const saved = configureEngine({ tuning: { plainChunkBytes: 10_000 + seed, parseRangesPerThread: ranges } });
     try {
       const single = await readDump(path, { threads: 1 });
       // Called directly so a silent fall-back to one thread cannot pass for parallel parsing.
@@ -61,6 +62,31 @@ describe('parallel parsing', () => {
       expect(multi).toBeDefined();
       expectSameDump(single, multi!);
       expectSameDump(single, await readDump(path, { threads }));
+    } finally {
+      configureEngine(saved);
+    }
+  });
+
+  // Item keys are made by each parse thread for its own ranges; a query cut by a range's end is keyed again whole.
+  it.each([
+    ['grouped, long queries cut by range ends', (r: number) => `drill ${Math.floor(r / 700)}`],
+    ['queries interleaved (not grouped): keyed on this thread', (r: number) => `drill ${r % 13}`],
+    ['grouped, one query across every range', () => 'drill'],
+  ])('item keys with items repeated in every query match one thread: %s', async (_, queryOf) => {
+    const rnd = seededRandom(77);
+    const lines = ['query_id,item_id,label,score'];
+    for (let r = 0; r < 12_000; r++) lines.push(`${queryOf(r)},sku-${Math.floor(rnd() * 40)},${Math.floor(rnd() * 3)},${(rnd() * 4).toFixed(3)}`);
+    const path = tmp.file(`par-keys-${queryOf(1).length}-${queryOf(13)}.csv`, lines.join('\n') + '\n');
+    const saved = configureEngine({ tuning: { plainChunkBytes: 4099, parseRangesPerThread: 5 } });
+    try {
+      const single = await readDump(path, { threads: 1 });
+      const multi = await readParallelDelimited(path, 'csv', 44, 3, {});
+      expect(multi).toBeDefined();
+      expectSameDump(single, multi!);
+      // Repeats within a query are what the keys are for: the check would be empty without them.
+      let repeats = 0;
+      single.itemKey!.forEach((key, row) => (repeats += key === row ? 0 : 1));
+      expect(repeats).toBeGreaterThan(1000);
     } finally {
       configureEngine(saved);
     }
@@ -99,7 +125,7 @@ describe('parallel parsing', () => {
     expect((single as InputError).line).toBe(7001);
   });
 
-  it('reports a bad row in the first range, which this thread parses, with the same message and line', async () => {
+  it('reports a bad row in the first range (which this thread claims first) with the same message and line', async () => {
     const lines = randomPlainCsv(32, 9000).split('\n');
     lines[500] = lines[500]!.replace(/,(\d),/, ',four,');
     const path = tmp.file('par-bad-first.csv', lines.join('\n'));

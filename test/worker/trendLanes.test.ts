@@ -6,6 +6,7 @@
  * Invented hardware-store queries, seeded scores.
  */
 import { join } from 'node:path';
+import { availableParallelism } from 'node:os';
 import * as esbuild from 'esbuild';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { configureEngine, engineActivity, type EngineSettings } from '../../extension/engine/config';
@@ -93,5 +94,15 @@ describe('scoring a series on lanes', () => {
     expect(seriesLanes(50, 2 ** 40)).toBe(1); // a terabyte per file: one lane, whatever the cores
     expect(seriesLanes(50, 1000, 3)).toBe(3);
     expect(seriesLanes(2, 1000, 3)).toBe(2);
+  });
+
+  it('takes only the cores other programs leave free, keeping at least one lane', () => {
+    const cores = availableParallelism();
+    expect(seriesLanes(50, 1000, undefined, cores)).toBe(1);
+    expect(seriesLanes(50, 1000, undefined, cores + 8)).toBe(1);
+    expect(seriesLanes(50, 1000, undefined, 0)).toBe(Math.min(4, cores));
+    expect(seriesLanes(50, 1000, undefined, 0.6)).toBe(Math.max(1, Math.min(4, cores - 1)));
+    // Asked for explicitly: the caller's number, whatever the load.
+    expect(seriesLanes(50, 1000, 3, cores)).toBe(3);
   });
 });

@@ -16,6 +16,8 @@ interface SavedState {
   readonly query?: string | null;
   /** Compare mode: the two runs' paths, so the host can bring the panel back after a reload. */
   readonly runs?: readonly [string, string];
+  /** Series mode: the series' key in the Runs view, for the same reason. */
+  readonly series?: string;
 }
 
 export class App implements AppContext {
@@ -41,10 +43,13 @@ export class App implements AppContext {
   private selected: string | null = null;
   private compareModel: CompareOverviewModel | undefined;
   private restored: SavedState | undefined;
+  /** Series mode: the key the host sent with the series (kept from the saved state until then). */
+  private seriesKey: string | undefined;
 
   constructor(private readonly api: VsCodeWebviewApi) {
     this.client = new RequestClient<ViewRequests>((m) => this.post(m as ViewToHost), 60_000);
     this.restored = (api.getState() as SavedState | undefined) ?? undefined;
+    this.seriesKey = this.restored?.series;
     this.errorPanel.hidden = true;
     this.vanished.hidden = true;
     this.panels.hidden = true;
@@ -169,7 +174,7 @@ export class App implements AppContext {
         const keep = (state.status === 'reloaded' || repeat) && this.mode === state.mode;
         performance.mark('gainline-result');
         if (state.mode === 'single') this.loadSingle(state.overview, keep);
-        else if (state.mode === 'series') this.loadSeries(state.series, keep);
+        else if (state.mode === 'series') this.loadSeries(state.series, state.seriesKey, keep);
         else this.loadCompare(state.compare, keep);
         this.show('content');
         this.shownResult = text;
@@ -195,8 +200,9 @@ export class App implements AppContext {
     this.loadScreens({ mode: 'compare', compare: model }, keep);
   }
 
-  private loadSeries(model: SeriesOverviewModel, keep: boolean): void {
+  private loadSeries(model: SeriesOverviewModel, key: string, keep: boolean): void {
     this.compareModel = undefined;
+    this.seriesKey = key;
     this.fileLabel.textContent = `${model.name} — ${formatCount(model.checkpoints.length)} checkpoints`;
     this.fileLabel.title = model.checkpoints.map((c) => c.path).join('\n');
     this.loadScreens({ mode: 'series', series: model }, keep);
@@ -347,7 +353,8 @@ export class App implements AppContext {
 
   private save(): void {
     const runs = this.compareModel ? ([this.compareModel.runA.path, this.compareModel.runB.path] as const) : undefined;
-    this.api.setState({ tab: this.tab, query: this.selected, ...(runs ? { runs } : {}) } satisfies SavedState);
+    const series = this.seriesKey;
+    this.api.setState({ tab: this.tab, query: this.selected, ...(runs ? { runs } : {}), ...(series !== undefined ? { series } : {}) } satisfies SavedState);
   }
 }
 

@@ -144,24 +144,7 @@ export class RowTexts {
   queryScopedKeys(query: Uint32Array, column: Uint32Array, queryCount: number): void {
     const rows = this.count;
     const probe = new ItemProbe();
-    // The usual dump keeps each query's rows together, in first-seen order: then each run of rows is a query.
-    let last = -1;
-    let r = 0;
-    for (; r < rows; r++) {
-      const q = query[r]!;
-      if (q === last) continue;
-      if (q !== last + 1) break;
-      last = q;
-    }
-    if (r === rows) {
-      let from = 0;
-      for (let i = 1; i <= rows; i++) {
-        if (i < rows && query[i] === query[from]) continue;
-        probe.keyRun(this, column, from, i, undefined);
-        from = i;
-      }
-      return;
-    }
+    if (this.groupedKeys(query, column, probe)) return;
     // Otherwise group the rows by query (a counting sort, file order within a query) and key each group.
     const start = new Uint32Array(queryCount + 1);
     for (let i = 0; i < rows; i++) start[query[i]! + 1]++;
@@ -170,6 +153,38 @@ export class RowTexts {
     const order = new Uint32Array(rows);
     for (let i = 0; i < rows; i++) order[next[query[i]!]!++] = i;
     for (let q = 0; q < queryCount; q++) if (start[q + 1]! > start[q]!) probe.keyRun(this, column, start[q]!, start[q + 1]!, order);
+  }
+
+  /**
+   * queryScopedKeys for the usual dump, which keeps each query's rows together in first-seen order (the
+   * query id climbs by at most one per row, from 0): each run of rows is a query. Returns false, with
+   * `column` unchanged, for any other order. A parse thread keys its own range of a file this way, with
+   * the range's own query ids and row numbers (see `rekeyRows` for a query cut by a range's end).
+   */
+  groupedKeys(query: Uint32Array, column: Uint32Array, probe = new ItemProbe()): boolean {
+    const rows = this.count;
+    if (!isGrouped(query, rows)) return false;
+    let from = 0;
+    for (let i = 1; i <= rows; i++) {
+      if (i < rows && query[i] === query[from]) continue;
+      probe.keyRun(this, column, from, i, undefined);
+      from = i;
+    }
+    return true;
+  }
+
+  /** Query-scoped keys of rows [from, to), all of one query, made again from their bytes (whatever `column` held there). */
+  rekeyRows(column: Uint32Array, from: number, to: number): void {
+    this.hashRows(column, from, to);
+    new ItemProbe().keyRun(this, column, from, to, undefined);
+  }
+
+  /** Writes hashBytes of rows [from, to) into `column`: what a reader stores before the keys are made. */
+  hashRows(column: Uint32Array, from = 0, to = this.count): void {
+    for (let r = from; r < to; r++) {
+      const bytes = this.bytesOf(r);
+      column[r] = hashBytes(bytes, 0, bytes.length);
+    }
   }
 
   /**
@@ -211,6 +226,18 @@ export class RowTexts {
     while (row >= this.firstRow[part + 1]! && part + 1 < this.earlier.length) part++;
     return part;
   }
+}
+
+/** True when query ids climb by at most one per row from 0 over the first `rows` rows (each query's rows together, in first-seen order). */
+export function isGrouped(query: Uint32Array, rows: number): boolean {
+  let last = -1;
+  for (let r = 0; r < rows; r++) {
+    const q = query[r]!;
+    if (q === last) continue;
+    if (q !== last + 1) return false;
+    last = q;
+  }
+  return true;
 }
 
 /** A small open-addressing set of one query's rows by item hash, emptied per query by a stamp. */

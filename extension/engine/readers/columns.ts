@@ -82,6 +82,8 @@ export class RowColumns implements RowArrays {
    * `finish`, which turns it into query-scoped keys; dump-wide ids are made only when asked for.
    */
   itemTexts: RowTexts | undefined;
+  /** Set when `item` holds query-scoped keys already (made by the parse threads of a parallel read), not hashes. */
+  itemKeysMade = false;
   segmentPools: BytePool[];
   readonly notes: ReaderNotes = emptyNotes();
 
@@ -180,7 +182,7 @@ export class RowColumns implements RowArrays {
     };
     if (texts === undefined) return dump;
     const itemKey = dump.item;
-    texts.queryScopedKeys(dump.query, itemKey, this.queries.size);
+    if (!this.itemKeysMade) texts.queryScopedKeys(dump.query, itemKey, this.queries.size);
     return withLazyItemIds({ ...dump, itemKey, itemTexts: texts }, texts);
   }
 }

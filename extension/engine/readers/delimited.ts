@@ -8,6 +8,7 @@
 import { InputError } from '../errors';
 import { hashBytes } from '../model/bytePool';
 import type { RowTexts } from '../model/rowTexts';
+import { indexOfByte } from './byteSearch';
 import { RowColumns, type SharedColumns } from './columns';
 import { describeNonNumber, parseNumber } from './numbers';
 import { resolveRoles, type ColumnRoles } from './roles';
@@ -93,8 +94,8 @@ export class DelimitedParser implements RecordSink, FastState {
     while (pos < end) {
       if (this.rows !== undefined && pos < lineLimit) {
         if (quoteAt < pos) {
-          quoteAt = buf.indexOf(QUOTE, pos);
-          if (quoteAt < 0 || quoteAt >= end) quoteAt = end;
+          quoteAt = indexOfByte(buf, QUOTE, pos, end);
+          if (quoteAt < 0) quoteAt = end;
           quoteLine = quoteAt === end ? end : buf.lastIndexOf(LF, quoteAt) + 1;
         }
         const limit = Math.min(lineLimit, quoteLine);

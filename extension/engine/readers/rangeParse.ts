@@ -9,6 +9,7 @@ import type { BytePoolState } from '../model/bytePool';
 import type { RowTextsState } from '../model/rowTexts';
 import { summariseRows, type RowSummary } from '../model/rowSummary';
 import { ROW_COLUMN_NAMES, rowArray, rowArrays, type RowArrays, type SharedColumns } from './columns';
+import { indexOfByte } from './byteSearch';
 import { DelimitedParser } from './delimited';
 import type { ColumnRoles } from './roles';
 import { pumpRange, type RecordSink } from './source';
@@ -35,8 +36,13 @@ export type RangeRows = Readonly<RowArrays> & {
   readonly inShared: boolean;
   readonly segmentIds: Uint32Array[];
   readonly queries: BytePoolState;
-  /** Each row's item bytes, in row order (the item column holds their hashes). */
+  /** Each row's item bytes, in row order (the item column holds their hashes, or keys: see itemKeys). */
   readonly itemTexts: RowTextsState;
+  /**
+   * True when the range's rows are grouped by query and the item column holds query-scoped keys
+   * (RowTexts.groupedKeys) counted from the range's first row, made here so the main thread need not.
+   */
+  readonly itemKeys: boolean;
   readonly segmentPools: BytePoolState[];
   /** Gaps and grade extremes of the range, taken here so the main thread need not scan every row. */
   readonly gaps: RowSummary;
@@ -54,8 +60,7 @@ class QuoteGuard implements RecordSink {
   constructor(private readonly inner: RecordSink) {}
 
   feed(buf: Buffer, start: number, end: number, base: number, final: boolean): number {
-    const quote = buf.indexOf(34, start);
-    if (quote >= 0 && quote < end) throw new QuotedRange();
+    if (indexOfByte(buf, 34, start, end) >= 0) throw new QuotedRange();
     return this.inner.feed(buf, start, end, base, final);
   }
 }
@@ -72,6 +77,7 @@ export async function parseRange(task: RangeTask, onBytes: (done: number) => voi
   }
   const rows = parser.columns!;
   const n = rows.count;
+  const itemKeys = rows.itemTexts!.groupedKeys(rows.query, rows.item);
   const pools = {
     queries: rows.queries.exportState(),
     itemTexts: rows.itemTexts!.exportState(),
@@ -80,7 +86,33 @@ export async function parseRange(task: RangeTask, onBytes: (done: number) => voi
   };
   const columns = rowArrays((name) => (rows.inShared ? rowArray(name, 0) : rows[name].subarray(0, n) as never));
   const segmentIds = rows.inShared ? [] : rows.segmentIds.map((ids) => ids.subarray(0, n)) as Uint32Array[];
-  return { kind: 'rows', count: n, lines: parser.line - 1, inShared: rows.inShared, ...columns, segmentIds, ...pools };
+  return { kind: 'rows', count: n, lines: parser.line - 1, inShared: rows.inShared, ...columns, segmentIds, ...pools, itemKeys };
+}
+
+/** A thread's share of a read: the ranges it claimed, each with its index in the file's list of ranges. */
+export type ClaimedRanges = [number, RangeResult][];
+
+/**
+ * Parses ranges of `tasks` one after another, each claimed from the shared counter next[0]
+ * (Atomics.add), until none is left: every parsing thread runs this, so a thread slowed by a busy
+ * machine or a late start simply takes fewer ranges. `onBytes` gets the bytes this thread has done.
+ * A quoted range ends the claims of every thread (the caller then reads on one thread).
+ */
+export async function parseClaimedRanges(tasks: readonly RangeTask[], next: Int32Array, onBytes: (done: number) => void): Promise<ClaimedRanges> {
+  const parsed: ClaimedRanges = [];
+  let before = 0;
+  for (;;) {
+    const k = Atomics.add(next, 0, 1);
+    if (k >= tasks.length) return parsed;
+    const task = tasks[k]!;
+    const result = await parseRange(task, (bytes) => onBytes(before + bytes));
+    parsed.push([k, result]);
+    before += task.end - task.start;
+    if (result.kind === 'quoted') {
+      Atomics.store(next, 0, tasks.length);
+      return parsed;
+    }
+  }
 }
 
 /** The buffers of a result, to transfer rather than copy between threads. */

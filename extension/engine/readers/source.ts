@@ -8,6 +8,7 @@ import { createGunzip } from 'node:zlib';
 import { engineSettings } from '../config';
 import { CancelledError, InputError } from '../errors';
 import type { FileStamp } from '../model/dump';
+import { indexOfByte } from './byteSearch';
 import { assertTextHead, badByteError, firstBadByte, lineAt } from './textCheck';
 
 /** Takes complete records from buf[start, end) and returns where the first unconsumed record starts. */
@@ -105,7 +106,7 @@ export async function pumpText(path: string, sink: RecordSink, options: PumpOpti
     await feedChunks(gunzipChunks(path, progress), sink, path, options.signal, () => report(progress.done));
   } else {
     await feedPlain(path, 0, Infinity, sink, { fileStart: path, signal: options.signal, onBytes: report, chunkBytes: options.chunkBytes,
-      guard: new TextGuard(path, false, 0) });
+      expectedBytes: stamp.size, guard: new TextGuard(path, false, 0) });
   }
   await checkUnchanged(path, stamp);
   options.onProgress?.(1);
@@ -122,6 +123,16 @@ export async function pumpRange(path: string, start: number, end: number, sink: 
 }
 
 /**
+ * The chunk for reading `bytes` (when known): no larger than what is to be read, plus one byte so that
+ * a file read in one chunk ends on a short read. Two buffers of the requested size for a small file
+ * cost more in fresh memory than reading it (a series reads dozens of small checkpoint files).
+ */
+function chunkFor(requested: number, bytes: number | undefined): number {
+  const sized = bytes === undefined ? requested : Math.min(requested, Math.max(4096, bytes + 1));
+  return Math.max(16, sized);
+}
+
+/**
  * Reads a plain file through two reused buffers: the next chunk is read into one while the sink parses
  * the other, so the thread never waits for the copy from the page cache. Each buffer keeps room before
  * its chunk for the unfinished record carried over from the previous chunk (the room doubles when a
@@ -129,9 +140,9 @@ export async function pumpRange(path: string, start: number, end: number, sink: 
  */
 async function feedPlain(path: string, from: number, to: number, sink: RecordSink,
   options: { fileStart?: string; signal?: AbortSignal; onBytes: (position: number) => void; chunkBytes?: number | undefined;
-    guard: TextGuard }): Promise<void> {
+    expectedBytes?: number; guard: TextGuard }): Promise<void> {
   const fh = await fsp.open(path, 'r');
-  const chunk = Math.max(16, options.chunkBytes ?? engineSettings().tuning.plainChunkBytes);
+  const chunk = chunkFor(options.chunkBytes ?? engineSettings().tuning.plainChunkBytes, Number.isFinite(to) ? to - from : options.expectedBytes);
   let room = chunk;
   let buffers = [Buffer.allocUnsafe(room + chunk), Buffer.allocUnsafe(room + chunk)];
   let position = from;
@@ -267,8 +278,8 @@ export class LineSink implements RecordSink {
   feed(buf: Buffer, start: number, end: number, base: number, final: boolean): number {
     let pos = start;
     while (pos < end) {
-      let lineEnd = buf.indexOf(10, pos);
-      if (lineEnd < 0 || lineEnd >= end) {
+      let lineEnd = indexOfByte(buf, 10, pos, end);
+      if (lineEnd < 0) {
         if (!final) break;
         lineEnd = end;
       }

@@ -7,6 +7,7 @@
 import { InputError } from '../errors';
 import type { RankedDump } from '../model/dump';
 import { RowColumns } from './columns';
+import { indexOfByte } from './byteSearch';
 import type { ReadOptions } from './readOptions';
 import { describeNonNumber, parseNumber } from './numbers';
 import { LineSink, pumpText, throwIfCancelled } from './source';
@@ -46,8 +47,8 @@ export async function readSparseFeatures(path: string, scoresPath: string, optio
   const stamp = await pumpText(path, new LineSink((buf, s, e, line, offset) => {
     const [from, to] = trim(buf, s, e);
     if (from === to || buf[from] === HASH) return;
-    let hash = buf.indexOf(HASH, from);
-    if (hash < 0 || hash >= to) hash = to;
+    let hash = indexOfByte(buf, HASH, from, to);
+    if (hash < 0) hash = to;
     const labelEnd = tokenEnd(buf, from, hash);
     let label = parseNumber(buf, from, labelEnd);
     if (!Number.isFinite(label)) {

@@ -8,6 +8,7 @@ import { isUtf8 } from 'node:buffer';
 import { createReadStream } from 'node:fs';
 import { createGunzip } from 'node:zlib';
 import { InputError } from '../errors';
+import { indexOfByte } from './byteSearch';
 
 /** Refuses a head that is UTF-16 or binary, or holds bytes that are not UTF-8 (the last, cut sequence excepted). */
 export function assertTextHead(head: Uint8Array, file: string): void {
@@ -29,8 +30,7 @@ export function assertTextHead(head: Uint8Array, file: string): void {
  * sequence cut by `end` is not an error (the next chunk completes it).
  */
 export function firstBadByte(buf: Uint8Array, start: number, end: number, complete: boolean): number {
-  const nul = buf.indexOf(0, start);
-  const nulAt = nul >= 0 && nul < end ? nul : -1;
+  const nulAt = indexOfByte(buf, 0, start, end);
   const limit = nulAt >= 0 ? nulAt : end;
   if (isUtf8(buf.subarray(start, limit))) return nulAt;
   // Slow path, only on bad input: walk the sequences.
@@ -65,7 +65,7 @@ function isUtf8Prefix(buf: Uint8Array, i: number, end: number): boolean {
 
 export function countNewlines(buf: Uint8Array, start: number, end: number): number {
   let n = 0;
-  for (let i = buf.indexOf(10, start); i >= 0 && i < end; i = buf.indexOf(10, i + 1)) n++;
+  for (let i = indexOfByte(buf, 10, start, end); i >= 0; i = indexOfByte(buf, 10, i + 1, end)) n++;
   return n;
 }
 

@@ -1,7 +1,7 @@
 /**
- * Reads a large quote-free CSV/TSV file on several threads: the file is cut at newlines into one
- * byte range per thread, this thread and the workers each parse a range into its own columns and pools,
- * and the ranges are merged in file order. Query and segment ids are re-interned range by range in
+ * Reads a large quote-free CSV/TSV file on several threads: the file is cut at newlines into a few
+ * byte ranges per thread, this thread and the workers claim ranges in turn and parse each into its own
+ * columns and pools, and the ranges are merged in file order. Query and segment ids are re-interned range by range in
  * local first-seen order, which reproduces exactly the ids a single pass would give; item bytes are kept
  * per row and simply follow one another. Any quote byte in the file
  * makes the split unsafe; the caller then falls back to one thread.
@@ -12,12 +12,12 @@ import { engineSettings } from '../config';
 import { CancelledError, InputError } from '../errors';
 import { BytePool, hashBytes, type BytePoolState } from '../model/bytePool';
 import type { RankedDump } from '../model/dump';
-import { RowTexts } from '../model/rowTexts';
+import { isGrouped, RowTexts } from '../model/rowTexts';
 import { addSummaries } from '../model/rowSummary';
 import { ROW_COLUMN_NAMES, ROW_COLUMNS, RowColumns, rowArray, rowArrays, sharedViews, type RowArrays, type RowColumnName, type SharedColumns } from '../readers/columns';
 import { parseHeaderLine } from '../readers/headerLine';
 import type { ReadOptions } from '../readers/readOptions';
-import { parseRange, type RangeResult, type RangeTask } from '../readers/rangeParse';
+import { parseClaimedRanges, type ClaimedRanges, type RangeResult, type RangeTask } from '../readers/rangeParse';
 import { checkUnchanged, statStamp, throwIfCancelled } from '../readers/source';
 import { ThreadPool } from './pool';
 
@@ -43,13 +43,14 @@ export async function readParallelDelimited(path: string, format: 'csv' | 'tsv',
   const stamp = await statStamp(path);
   const header = await readHeader(path, delimiter, options);
   if (header === undefined) return undefined;
-  const bounds = await splitPoints(path, header.end, stamp.size, threads);
+  const bounds = await splitPoints(path, header.end, stamp.size, threads * Math.max(1, engineSettings().tuning.parseRangesPerThread));
   const slices = sharedSlices(bounds, header.bytesPerRow, header.parser.columns!.segmentNames.length);
   const tasks: RangeTask[] = bounds.slice(0, -1).map((start, k) => ({
     path, start, end: bounds[k + 1]!, delimiter, names: header.names, columns: options.columns, chunkBytes: engineSettings().tuning.plainChunkBytes,
     shared: slices[k],
   }));
   const results = await parseRanges(pool, tasks, stamp.size, options);
+  // A quoted range stopped the claims (later ranges may be missing): the file is read on one thread.
   if (results.some((r) => r.kind === 'quoted')) return undefined;
   const lineOffsets = [1];
   for (const r of results) lineOffsets.push(lineOffsets.at(-1)! + (r.kind === 'rows' ? r.lines : 0));
@@ -64,6 +65,7 @@ export async function readParallelDelimited(path: string, format: 'csv' | 'tsv',
     ? compactShared(parts, slices, lineOffsets, header.parser.columns!)
     : merge(parts.map((p, k) => (p.inShared ? { ...p, ...sharedViews(slices[k]!, p.count) } : p)), lineOffsets, header.parser.columns!);
   if (rows.count === 0) throw new InputError('at least one data row after the header', path, 2);
+  itemKeysOfRanges(rows, parts);
   await checkUnchanged(path, stamp);
   rows.setGaps(gaps);
   options.onProgress?.(1);
@@ -151,6 +153,43 @@ function compactShared(parts: Extract<RangeResult, { kind: 'rows' }>[], slices: 
   return rows;
 }
 
+/**
+ * The ranges' query-scoped item keys as the dump's: when every range keyed its rows and the merged file
+ * is grouped by query, each range's keys are shifted by the rows before it, and the query cut by each
+ * range's end is keyed again as a whole (its rows after the cut were keyed apart from those before).
+ * Otherwise the item column gets its hashes back and `finish` keys the whole dump as one thread does.
+ */
+function itemKeysOfRanges(rows: RowColumns, parts: readonly Extract<RangeResult, { kind: 'rows' }>[]): void {
+  const texts = rows.itemTexts!;
+  const item = rows.item;
+  const query = rows.query;
+  if (!parts.every((p) => p.itemKeys) || !isGrouped(query, rows.count)) {
+    texts.hashRows(item);
+    return;
+  }
+  const starts: number[] = [];
+  let first = 0;
+  for (const p of parts) {
+    starts.push(first);
+    if (first > 0) for (let i = first; i < first + p.count; i++) item[i] = item[i]! + first;
+    first += p.count;
+  }
+  // A range whose first row continues the query of the row before: that query is keyed again as a whole
+  // (once, however many ranges it spans).
+  let rekeyedTo = 0;
+  for (const at of starts) {
+    if (at === 0 || at >= rows.count || at < rekeyedTo || query[at - 1] !== query[at]) continue;
+    const q = query[at]!;
+    let from = at - 1;
+    while (from > 0 && query[from - 1] === q) from--;
+    let to = at;
+    while (to < rows.count && query[to] === q) to++;
+    texts.rekeyRows(item, from, to);
+    rekeyedTo = to;
+  }
+  rows.itemKeysMade = true;
+}
+
 /** Range starts: evenly spaced, each moved just past the next newline. The last entry is the size. */
 async function splitPoints(path: string, from: number, size: number, parts: number): Promise<number[]> {
   const points = [from];
@@ -176,34 +215,43 @@ async function splitPoints(path: string, from: number, size: number, parts: numb
   return points;
 }
 
-/** What a parse thread answers (parseWorker.ts): one byte range of the file, parsed into its own columns and pools. */
+/** What a parse thread answers (parseWorker.ts): the ranges it claimed, each parsed into its own columns and pools. */
 export type ParseRequests = {
-  parseRange: { params: RangeTask; result: RangeResult };
+  parseRanges: { params: { tasks: readonly RangeTask[]; next: Int32Array }; result: ClaimedRanges };
 };
 
 /**
- * Parses the first range on this thread and the others on workers. This thread would otherwise wait
- * idle, and a worker takes about 0.1 s to start: one fewer to start, and that start overlaps useful work.
+ * This thread and the workers claim ranges from one shared counter until none is left. This thread
+ * would otherwise wait idle, and a worker takes about 0.1 s to start: this thread claims the first
+ * ranges meanwhile. Results come back in file order (a quoted range stops the claims: holes are left).
  */
 async function parseRanges(pool: ThreadPool<ParseRequests>, tasks: RangeTask[], size: number, options: ReadOptions): Promise<RangeResult[]> {
   throwIfCancelled(options.signal);
-  const done = tasks.map(() => 0);
-  const progress = (k: number, bytes: number) => {
-    done[k] = bytes;
+  const workers = pool.maxThreads;
+  const done = new Array<number>(workers + 1).fill(0);
+  const progress = (thread: number, bytes: number) => {
+    done[thread] = bytes;
     if (size > 0) options.onProgress?.(Math.min(1, done.reduce((a, b) => a + b, 0) / size));
   };
+  const next = new Int32Array(new SharedArrayBuffer(4));
   let stopped = false;
-  const remote = tasks.slice(1).map((task, w) =>
-    pool.request('parseRange', task, { signal: options.signal, onProgress: (bytes) => progress(w + 1, bytes) }));
+  const remote = Array.from({ length: workers }, (_, w) =>
+    pool.request('parseRanges', { tasks, next }, { signal: options.signal, onProgress: (bytes) => progress(w + 1, bytes) }));
   const onBytes = (bytes: number) => {
     // This thread's parse stops at the next chunk once the read is cancelled or a worker failed.
     if (stopped || options.signal?.aborted) throw new CancelledError();
     progress(0, bytes);
   };
   try {
-    return await Promise.all([parseRange(tasks[0]!, onBytes), ...remote]);
+    const results = new Array<RangeResult>(tasks.length);
+    for (const parsed of await Promise.all([parseClaimedRanges(tasks, next, onBytes), ...remote])) {
+      for (const [k, result] of parsed) results[k] = result;
+    }
+    return results;
   } finally {
     stopped = true;
+    // Claims end too, so a worker still parsing takes no further range before the pool stops it.
+    Atomics.store(next, 0, tasks.length);
     void pool.close();
   }
 }

@@ -21,15 +21,19 @@ const LANE_BYTES_PER_FILE_BYTE = 10;
 const LANE_MEMORY_BUDGET = Math.min(1 << 30, totalmem() / 4);
 
 /**
- * Lanes for `count` checkpoints whose largest file has `largestBytes`: one per core (at most
- * MAX_LANES), fewer when the dumps are so large that the lanes' memory would pass the budget, and a
- * single lane for two checkpoints or fewer (a worker's start costs about what a small checkpoint does).
+ * Lanes for `count` checkpoints whose largest file has `largestBytes`: one per core that other programs
+ * leave free (`otherBusyCores`, as the scoring threads of one dump count them; at most MAX_LANES),
+ * fewer when the dumps are so large that the lanes' memory would pass the budget, and a single lane for
+ * two checkpoints or fewer (a worker's start costs about what a small checkpoint does). A lane on a core
+ * that is busy anyway costs a fifth more CPU in all (its start, a second heap) and made the series
+ * slower, not faster, under a load of 12 on 2 cores (bench-runs).
  */
-export function seriesLanes(count: number, largestBytes: number, requested?: number): number {
+export function seriesLanes(count: number, largestBytes: number, requested?: number, otherBusyCores = 0): number {
   if (requested !== undefined) return Math.max(1, Math.min(requested, count));
   if (count <= 2) return 1;
   const byMemory = Math.max(1, Math.floor(LANE_MEMORY_BUDGET / Math.max(1, largestBytes * LANE_BYTES_PER_FILE_BYTE)));
-  return Math.max(1, Math.min(MAX_LANES, availableParallelism(), byMemory, count));
+  const freeCores = Math.floor(availableParallelism() - otherBusyCores + 0.5);
+  return Math.max(1, Math.min(MAX_LANES, freeCores, byMemory, count));
 }
 
 /** The largest of the files (0 for one that cannot be read now: its own read reports why). */

@@ -4,6 +4,7 @@
  * as many lanes as the cores and memory allow. Checkpoints the caller already holds under the same
  * settings (a live series that grew by one) are not read again.
  */
+import { CoreMeter } from '../evaluate/coreMeter';
 import type { Conventions } from '../metrics/conventions';
 import { anyNeeds, type MetricSpec } from '../metrics/registry';
 import type { ReadOptions } from '../readers/index';
@@ -45,6 +46,8 @@ export async function scoreSeries(input: SeriesScoringInput): Promise<ScoredSeri
   let conventions = input.conventions;
   const firstTask = taskFor(0, conventions);
   let scoredNow = 0;
+  // What other programs keep busy while the first checkpoint is scored decides the lanes for the rest.
+  const meter = new CoreMeter();
   let first = input.known?.(0, firstTask);
   if (!first) {
     first = await scoreCheckpoint(firstTask, input.signal);
@@ -65,7 +68,7 @@ export async function scoreSeries(input: SeriesScoringInput): Promise<ScoredSeri
     else missing.push(i);
   });
   if (missing.length > 0) {
-    const lanes = seriesLanes(missing.length, largestFile(missing.map((i) => tasks[i]!.path)), input.lanes);
+    const lanes = seriesLanes(missing.length, largestFile(missing.map((i) => tasks[i]!.path)), input.lanes, meter.otherBusyCores());
     const scored = scoreOnLanes(missing, (i) => tasks[i]!, { lanes, ...(input.signal ? { signal: input.signal } : {}) });
     for (const [i, p] of scored) results[i] = p;
     scoredNow += missing.length;

@@ -5,7 +5,7 @@
 import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { spawnSync } from 'node:child_process';
-import { closeAllEditors, findWebviewFrame, frameText, waitForFrameText, waitUntil } from '../harness.mjs';
+import { closeAllEditors, findWebviewFrame, frameText, reloadWindow, runCommand, waitForFrameText, waitUntil } from '../harness.mjs';
 import { evalExpectations } from '../oracle.mjs';
 import { readHeadline } from '../views.mjs';
 import { checkpointFrom } from '../workspace.mjs';
@@ -83,6 +83,33 @@ export const trendViewMatchesCli = {
     const canvas = frame.locator(`.gl-trend-metric[data-metric="${cli.headline}"] canvas`);
     await canvas.click({ position: await canvas.boundingBox().then((b) => ({ x: b.width * 0.88, y: b.height * 0.5 })) });
     await readHeadline(ctx.page, evalExpectations(last).meanText);
+  },
+};
+
+/** Waits until the frame charts every checkpoint of `cli`, then holds the charts to it. */
+async function expectCharts(frame, cli) {
+  const shown = await waitUntil(async () => {
+    const c = await charts(frame).catch(() => []);
+    return c.length > 0 && c[0].labels.length === cli.runs.length ? c : null;
+  }, { timeoutMs: 90_000, what: 'the charts of every checkpoint' });
+  assertChartsMatch(shown, cli);
+}
+
+export const trendSurvivesReload = {
+  name: 'trend view: a trend panel comes back after a window reload, on the same series',
+  async run(ctx) {
+    const cli = cliTrend(ctx.files.training);
+    await closeAllEditors(ctx.page);
+    await expectCharts(await openSeries(ctx, 'e2e/training/'), cli);
+    // The side bar comes back as it was left; the reload helper waits for the Explorer's rows.
+    await runCommand(ctx.page, 'View: Show Explorer');
+    await reloadWindow(ctx.page);
+    // No click: the panel is restored from what its page saved, and reads the series again.
+    const restored = await findWebviewFrame(ctx.page, '.gl-trend-metric canvas', { timeoutMs: 90_000 })
+      .catch(() => { throw new Error('after the reload no trend panel came back'); });
+    await expectCharts(restored, cli);
+    const tab = ctx.page.locator('.tabs-container .tab', { hasText: 'Trend: e2e/training/' });
+    assert(await tab.count() === 1, `after the reload ${await tab.count()} tabs are titled "Trend: e2e/training/"`);
   },
 };
 

@@ -345,7 +345,7 @@ export function startFakeHost(options: FakeHostOptions): FakeHost {
     : options.mode === 'compare'
       ? { status: 'loaded', mode: 'compare', compare }
       : options.mode === 'series'
-        ? { status: 'loaded', mode: 'series', series }
+        ? { status: 'loaded', mode: 'series', series, seriesKey: 'folder:run-7' }
         : { status: 'loaded', mode: 'single', overview: options.sensitivityLater ? { ...overview, sensitivity: [], sensitivityLater: true } : overview };
   (window as unknown as { acquireVsCodeApi: () => unknown }).acquireVsCodeApi = () => ({
     postMessage: (message: { kind: string }) => {
@@ -363,7 +363,7 @@ export function startFakeHost(options: FakeHostOptions): FakeHost {
   /** The training job writes its next checkpoint: the host reads it and sends the grown series. */
   const growSeries = (): void => {
     series = fakeSeries(series.checkpoints.length + 1);
-    toView({ kind: 'state', state: { status: 'reloaded', mode: 'series', series } });
+    toView({ kind: 'state', state: { status: 'reloaded', mode: 'series', series, seriesKey: 'folder:run-7' } });
   };
   return { send: toView, calls, queries, overview, releaseDiagnostics, growSeries };
 }
