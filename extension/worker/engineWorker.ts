@@ -184,6 +184,7 @@ const handlers: RequestHandlers<WorkerRequests> = {
     // A large plain CSV/TSV dump is scored as it streams in, its overview so far sent with the progress.
     const streamed = streamFromBytes !== undefined && mayStream(source) ? await loadStreamOrRead(source, settings, {
       streamFromBytes, signal: ctx.signal, started, onProgress: progressReporter(ctx, 0, 1, `Streaming ${source.path.split(/[\\/]/).pop()}…`),
+      onReadProgress: progressReporter(ctx, 0, 0.75, `Reading ${source.path.split(/[\\/]/).pop()}…`),
       onPartial: (partial) => parentPort?.postMessage({ kind: 'progress', id: ctx.id, fraction: partial.bytesRead / Math.max(1, partial.totalBytes), message: 'Streaming…', partial } satisfies ProgressEvent),
     }) : undefined;
     if (streamed?.kind === 'streamed') {

@@ -42,6 +42,8 @@ export interface StreamLoadOptions {
   readonly streamFromBytes: number;
   readonly signal: AbortSignal;
   readonly onProgress: (fraction: number) => void;
+  /** Progress of reading into memory instead (a file below the threshold, or one unfit to stream). */
+  readonly onReadProgress: (fraction: number) => void;
   readonly onPartial: (partial: PartialOverview) => void;
   /** performance.now() when the load was asked for. */
   readonly started: number;
@@ -74,7 +76,7 @@ export async function loadStreamOrRead(source: DumpSource, settings: EvaluationS
   const metrics = parseMetricList(settings.metrics);
   const read = {
     signal: options.signal,
-    onProgress: options.onProgress,
+    onProgress: options.onReadProgress,
     ...(source.format ? { format: source.format as never } : {}),
     ...(source.columns ? { columns: source.columns } : {}),
   };

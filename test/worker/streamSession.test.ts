@@ -116,9 +116,14 @@ describe('a dump streamed in the editor', () => {
 
   it('reads into memory below the threshold', async () => {
     const partials: PartialOverview[] = [];
+    const progress: [number | null, string][] = [];
     const overview = await worker.call('load', { session: 'small', source: { path: file }, settings, streamFromBytes: 1e9 },
-      { onProgress: (_f, _m, partial) => partial && partials.push(partial) });
+      { onProgress: (f, m, partial) => (partial ? partials.push(partial) : progress.push([f, m])) });
     expect(partials).toEqual([]);
+    // The progress of an in-memory load: reading, then scoring, never going back.
+    expect(progress.length).toBeGreaterThan(0);
+    expect(progress.every(([, m]) => /^(Reading kettlewood-grouped\.csv…|Scoring queries…)$/.test(m))).toBe(true);
+    for (let i = 1; i < progress.length; i++) expect(progress[i]![0]!).toBeGreaterThanOrEqual(progress[i - 1]![0]!);
     // Read as without a threshold: the weight column joined (weighted means), not left as a segment.
     const { loadMs: _a, timeline: _t, ...plain } = overview;
     const { loadMs: _b, timeline: _u, ...expected } = await worker.call('load', { session: 'small-plain', source: { path: file }, settings });
