@@ -12,7 +12,7 @@ import { InputError } from '../engine/errors';
 import { queryDetail, type GradeRange } from '../engine/evaluate/detail';
 import { headlineCutoff } from '../engine/evaluate/scorer';
 import type { Evaluation } from '../engine/evaluate/types';
-import { segmentRowsOf, streamOrRead, type RankedDump, type StreamedDump, type StreamPartial } from '../engine/index';
+import { readDump, segmentRowsOf, streamOrRead, type RankedDump, type StreamedDump, type StreamPartial } from '../engine/index';
 import type { SegmentedRows } from '../engine/evaluate/segments';
 import { parseMetricList } from '../engine/metrics/parse';
 import { readQueryRows } from '../engine/stream/queryDetail';
@@ -83,7 +83,9 @@ export async function loadStreamOrRead(source: DumpSource, settings: EvaluationS
   const conventions = describeConventions(settings.conventions);
   const fileName = source.path.split(/[\\/]/).pop() ?? source.path;
   const onPartial = (p: StreamPartial): void => options.onPartial(partialOverview(p, fileName, conventions, performance.now() - options.started));
-  const size = (await stat(source.path)).size;
+  // A file that cannot be looked at is the reader's to name, in its words (file: expected …).
+  const size = await stat(source.path).then((s) => s.size, () => undefined);
+  if (size === undefined) return { kind: 'read', dump: await withSideTables(await readDump(source.path, read), {}, options.signal) };
   const outcome = await streamOrRead(source.path, read, metrics, settings.conventions, { reading: 'auto', streamFromBytes: options.streamFromBytes,
     sensitivity: true, segments: true, onPartial, onProgress: options.onProgress, signal: options.signal, blockBytes: editorBlockBytes(size) });
   if (outcome.kind === 'read') {

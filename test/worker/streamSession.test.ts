@@ -144,6 +144,14 @@ describe('a dump streamed in the editor', () => {
       `Read into memory rather than streamed (it is over gainline.reading.streamFromMegabytes), since the judgments file ${judgments} goes with it, and joining needs its rows.`]);
   });
 
+  it('names a missing file in the same words with or without a threshold', async () => {
+    const missing = join(dir, 'gone.csv');
+    const plain = await worker.call('load', { session: 'gone', source: { path: missing }, settings }).catch((e: Error) => e.message);
+    const streamed = await worker.call('load', { session: 'gone', source: { path: missing }, settings, streamFromBytes: 0 }).catch((e: Error) => e.message);
+    expect(plain).toContain('gone.csv');
+    expect(streamed).toBe(plain);
+  });
+
   it('stops when cancelled after the first partial overview, and the worker keeps answering', async () => {
     const abort = new AbortController();
     let partials = 0;
