@@ -127,7 +127,7 @@ function session(key: string): Session {
 function single(key: string): Extract<Session, { kind: 'single' }> {
   const s = session(key);
   if (s.kind === 'sql') throw new Error('this view is computed by an SQL engine and holds no rows; open the file without an engine for this');
-  if (s.kind === 'streamed') throw needsRows('Segments and score diagnostics');
+  if (s.kind === 'streamed') throw needsRows('The score diagnostics');
   if (s.kind !== 'single') throw new Error('this request needs a single dump, not a comparison');
   return s;
 }
@@ -184,6 +184,7 @@ const handlers: RequestHandlers<WorkerRequests> = {
     // A large plain CSV/TSV dump is scored as it streams in, its overview so far sent with the progress.
     const streamed = streamFromBytes !== undefined && mayStream(source) ? await loadStreamOrRead(source, settings, {
       streamFromBytes, signal: ctx.signal, started, onProgress: progressReporter(ctx, 0, 1, `Streaming ${source.path.split(/[\\/]/).pop()}…`),
+      onReadProgress: progressReporter(ctx, 0, 0.75, `Reading ${source.path.split(/[\\/]/).pop()}…`),
       onPartial: (partial) => parentPort?.postMessage({ kind: 'progress', id: ctx.id, fraction: partial.bytesRead / Math.max(1, partial.totalBytes), message: 'Streaming…', partial } satisfies ProgressEvent),
     }) : undefined;
     if (streamed?.kind === 'streamed') {
@@ -303,6 +304,8 @@ const handlers: RequestHandlers<WorkerRequests> = {
   },
 
   segments({ session: key, column }) {
+    const held = session(key);
+    if (held.kind === 'streamed') return segmentTable(held.rows, held.evaluation, held.table, column);
     const s = single(key);
     return segmentTable(s.dump, s.evaluation, s.table, column);
   },

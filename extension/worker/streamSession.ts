@@ -3,17 +3,20 @@
  * where each query's rows are in the file, never the rows, so memory stays flat whatever the file's
  * size. While it streams, the overview of the queries scored so far goes to the view (`onPartial`);
  * the final overview is the in-memory path's to the bit (the stream's own guarantee). A query's detail
- * reads that query's rows again from its byte range. Segments and the score diagnostics need every row
- * and are refused with a sentence saying why.
+ * reads that query's rows again from its byte range. Each query's segment values are kept as it streams
+ * (engine stream/segmentRows.ts: one row per query), so the segment views and filters work as in memory;
+ * the score diagnostics need every row and are refused with a sentence saying why.
  */
 import { stat } from 'node:fs/promises';
 import { InputError } from '../engine/errors';
 import { queryDetail, type GradeRange } from '../engine/evaluate/detail';
 import { headlineCutoff } from '../engine/evaluate/scorer';
 import type { Evaluation } from '../engine/evaluate/types';
-import { streamOrRead, type RankedDump, type StreamedDump, type StreamPartial } from '../engine/index';
+import { readDump, segmentRowsOf, streamOrRead, type RankedDump, type StreamedDump, type StreamPartial } from '../engine/index';
+import type { SegmentedRows } from '../engine/evaluate/segments';
 import { parseMetricList } from '../engine/metrics/parse';
 import { readQueryRows } from '../engine/stream/queryDetail';
+import { withSideTables } from '../engine/tables/join';
 import { DEFAULT_BLOCK_BYTES } from '../engine/stream/streamEvaluate';
 import { describeConventions } from '../presentation/conventionsLine';
 import { metricLabel } from '../presentation/metricText';
@@ -29,6 +32,8 @@ export interface StreamedLoaded {
   readonly dump: StreamedDump;
   readonly evaluation: Evaluation;
   readonly table: QueryTable;
+  /** One row per query with its segment values, as the segment views read a dump. */
+  readonly rows: SegmentedRows;
   /** Row number (file order) of each query's first row, then the row count; made on first use. */
   firstRows?: Float64Array;
 }
@@ -37,6 +42,8 @@ export interface StreamLoadOptions {
   readonly streamFromBytes: number;
   readonly signal: AbortSignal;
   readonly onProgress: (fraction: number) => void;
+  /** Progress of reading into memory instead (a file below the threshold, or one unfit to stream). */
+  readonly onReadProgress: (fraction: number) => void;
   readonly onPartial: (partial: PartialOverview) => void;
   /** performance.now() when the load was asked for. */
   readonly started: number;
@@ -59,8 +66,9 @@ function sideFiles(source: DumpSource): string[] {
 
 /** For a dump large enough to stream that was read into memory because files are joined to it: why, for its overview. */
 export function joinedNote(source: DumpSource): string {
-  return `Read into memory rather than streamed (it is over gainline.reading.streamFromMegabytes), since the ${sideFiles(source).join(' and the ')} ` +
-    `${sideFiles(source).length > 1 ? 'are' : 'is'} joined to it, which needs its rows.`;
+  const files = sideFiles(source);
+  return `Read into memory rather than streamed (it is over gainline.reading.streamFromMegabytes), since the ${files.join(' and the ')} ` +
+    `${files.length > 1 ? 'go' : 'goes'} with it, and joining needs its rows.`;
 }
 
 /** Streams the source when its format and size allow (engine stream/choose.ts), else reads it. */
@@ -68,26 +76,34 @@ export async function loadStreamOrRead(source: DumpSource, settings: EvaluationS
   const metrics = parseMetricList(settings.metrics);
   const read = {
     signal: options.signal,
-    onProgress: options.onProgress,
+    onProgress: options.onReadProgress,
     ...(source.format ? { format: source.format as never } : {}),
     ...(source.columns ? { columns: source.columns } : {}),
   };
   const conventions = describeConventions(settings.conventions);
   const fileName = source.path.split(/[\\/]/).pop() ?? source.path;
   const onPartial = (p: StreamPartial): void => options.onPartial(partialOverview(p, fileName, conventions, performance.now() - options.started));
-  const size = (await stat(source.path)).size;
+  // A file that cannot be looked at is the reader's to name, in its words (file: expected …).
+  const size = await stat(source.path).then((s) => s.size, () => undefined);
+  if (size === undefined) return { kind: 'read', dump: await withSideTables(await readDump(source.path, read), {}, options.signal) };
   const outcome = await streamOrRead(source.path, read, metrics, settings.conventions, { reading: 'auto', streamFromBytes: options.streamFromBytes,
-    sensitivity: true, onPartial, onProgress: options.onProgress, signal: options.signal, blockBytes: editorBlockBytes(size) });
+    sensitivity: true, segments: true, onPartial, onProgress: options.onProgress, signal: options.signal, blockBytes: editorBlockBytes(size) });
   if (outcome.kind === 'read') {
-    return { kind: 'read', dump: outcome.dump, ...(outcome.tried ? { note: `Read into memory rather than streamed, since ${outcome.why}.` } : {}) };
+    // As readSource gives it: the dump's own weight column joined (mayStream left no side table to join).
+    const dump = await withSideTables(outcome.dump, {}, options.signal);
+    return { kind: 'read', dump, ...(outcome.tried ? { note: `Read into memory rather than streamed, since ${outcome.why}.` } : {}) };
   }
   const { dump, evaluation } = outcome;
-  const table = new QueryTable({ dump: { queries: dump.queries, segments: [], ...(dump.joined ? { joined: dump.joined } : {}) }, evaluation });
+  const rows = segmentRowsOf(dump);
+  // Each query is its own one-row group: the table's segment of a query is the value of that row.
+  const groups = { rowsOfQuery: rows.query, start: Uint32Array.from({ length: rows.rowCount + 1 }, (_, q) => q) };
+  const table = new QueryTable({ dump: { queries: dump.queries, segments: rows.segments, ...(dump.joined ? { joined: dump.joined } : {}) }, evaluation, groups });
   const file = { path: dump.path, name: fileName, format: dump.format, rowCount: dump.rowCount, sizeBytes: dump.stamp.size, textual: true };
   const streamedNote = `Streamed: scored as the file was read (${outcome.blocks} blocks on ${outcome.threads} threads), without keeping its rows in memory; ` +
-    'segments and score diagnostics need the rows (raise gainline.reading.streamFromMegabytes above the file\'s size to read it into memory).';
-  const overview = overviewOf(file, evaluation, [...dump.notes.messages, streamedNote], performance.now() - options.started);
-  return { kind: 'streamed', session: { kind: 'streamed', dump, evaluation, table }, overview };
+    'the score diagnostics need the rows (raise gainline.reading.streamFromMegabytes above the file\'s size to read it into memory).';
+  const overview = { ...overviewOf(file, evaluation, [...dump.notes.messages, streamedNote], performance.now() - options.started),
+    segmentColumns: rows.segments.map((c) => c.name), ...(evaluation.weighting ? { weighting: evaluation.weighting.source } : {}) };
+  return { kind: 'streamed', session: { kind: 'streamed', dump, evaluation, table, rows }, overview };
 }
 
 /**
@@ -148,13 +164,13 @@ function firstRows(s: StreamedLoaded): Float64Array {
 export async function streamedDetail(s: StreamedLoaded, query: string, maxPairs: number | undefined): Promise<QueryDetailView> {
   const id = queryId(s, query);
   const { rows, detail } = await detailOf(s, id, maxPairs ?? 200);
-  // The table holds no segment columns: the query's values are those of its first row, as in memory.
+  // The query's segment values come from the table (its first row's, the weight column aside, as in memory).
   const view = detailScreen({ ...rows, segments: [] }, s.evaluation, detail, id, s.table);
   const shift = firstRows(s)[id]!;
   const at = (row: number) => (row < 0 ? row : row + shift);
   return {
     ...view,
-    segments: Object.fromEntries(rows.segments.map((c) => [c.name, c.values.get(c.ofRow[0]!)])),
+    segments: Object.fromEntries(s.rows.segments.map((c) => [c.name, c.values.get(c.ofRow[id]!)])),
     positions: view.positions.map((p) => ({ ...p, row: at(p.row) })),
     ideal: view.ideal.map((p) => ({ ...p, row: at(p.row) })),
     invertedPairs: view.invertedPairs.map((p) => ({ ...p, aboveRow: at(p.aboveRow), belowRow: at(p.belowRow) })),

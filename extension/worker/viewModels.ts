@@ -7,7 +7,7 @@ import { itemOfRow, type RankedDump } from '../engine/model/dump';
 import type { Conventions } from '../engine/metrics/conventions';
 import type { MetricSpec } from '../engine/metrics/registry';
 import type { Evaluation, QueryDetail } from '../engine/evaluate/types';
-import { segmentBreakdown } from '../engine/evaluate/segments';
+import { segmentBreakdown, type SegmentedRows } from '../engine/evaluate/segments';
 import { positionDcgParts } from '../engine/evaluate/detail';
 import { describeConventions, describeGain } from '../presentation/conventionsLine';
 import { metricLabel as labelOfKey } from '../presentation/metricText';
@@ -211,7 +211,7 @@ export function detailView(dump: RankedDump, evaluation: Evaluation, detail: Que
 }
 
 /** Segment means from the engine, plus the headline gap to the overall mean and the share of the loss. */
-export function segmentTable(dump: RankedDump, evaluation: Evaluation, table: QueryTable, column: string): SegmentTable {
+export function segmentTable(dump: SegmentedRows, evaluation: Evaluation, table: QueryTable, column: string): SegmentTable {
   const index = dump.segments.findIndex((s) => s.name === column);
   if (index < 0) throw new Error(`no segment column '${column}' (columns: ${dump.segments.map((s) => s.name).join(', ') || 'none'})`);
   const overall = evaluation.summary[evaluation.headline]?.mean ?? NaN;

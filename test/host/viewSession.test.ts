@@ -3,12 +3,13 @@
  * thread bundled from source. Checks the state flow the webview relies on: loading → loaded, requests
  * answered, live reload after a file change (reloaded, selection kept), vanished, errors, cancel, reveal.
  */
-import { mkdtempSync, unlinkSync, writeFileSync } from 'node:fs';
+import { mkdirSync, mkdtempSync, unlinkSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import * as esbuild from 'esbuild';
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { shared, memento, FakeWebview, Uri } from './fakeVscode';
+import { groupedDump } from '../engine/fixtures/streamFiles';
 
 vi.mock('vscode', async () => (await import('./fakeVscode')).shared.api);
 
@@ -35,11 +36,11 @@ beforeAll(async () => {
 });
 afterAll(() => worker?.dispose());
 
-function open(file: string, notificationDelayMs?: number) {
+function open(file: string, notificationDelayMs?: number, settings: Record<string, unknown> = {}) {
   const webview = new FakeWebview();
   const session = new ViewSession(webview as never, { mode: 'single', uri: Uri.file(file) as never }, {
     worker,
-    getConfig: () => readConfig(() => undefined),
+    getConfig: () => readConfig((key) => settings[key]),
     memory: memento() as never,
     ...(notificationDelayMs !== undefined ? { notificationDelayMs } : {}),
   });
@@ -63,6 +64,26 @@ async function ask(webview: FakeWebview, id: number, method: string, params: unk
 }
 
 describe('ViewSession', () => {
+  it('shows a dump over gainline.reading.streamFromMegabytes partially while it streams in, then the full overview', async () => {
+    // Two folders down: tables that other tests leave in sibling temp folders are not near enough to be joined.
+    mkdirSync(join(dir, 'nightly', 'streamed'), { recursive: true });
+    const file = join(dir, 'nightly', 'streamed', 'streamed.tsv');
+    writeFileSync(file, groupedDump(61, { queries: 20_000, maxRows: 20, segments: true }));
+    const { webview, session } = open(file, 10_000, { 'reading.streamFromMegabytes': 1 });
+    await session.start();
+    const states = webview.states();
+    const partials = states.filter((st) => st.status === 'loading' && st.partial).map((st) => st.partial);
+    // About 3 MB in blocks of 1 MB (worker/streamSession.ts editorBlockBytes): a partial overview per block.
+    expect(partials.length).toBeGreaterThanOrEqual(2);
+    expect(partials.at(-1).bytesRead).toBeGreaterThan(partials[0].bytesRead);
+    const last = states.at(-1);
+    expect(last).toMatchObject({ status: 'loaded', mode: 'single' });
+    expect(states.findIndex((st) => st.status === 'loading' && st.partial)).toBeLessThan(states.length - 1);
+    expect(last.overview.warnings.some((w: string) => w.startsWith('Streamed:'))).toBe(true);
+    expect(partials[0].metrics[0].counted).toBeLessThan(last.overview.metrics[0].counted);
+    session.dispose();
+  });
+
   it('loads, answers pages, reloads after a change keeping the selection, then reports the file vanished', async () => {
     const file = join(dir, 'live.csv');
     writeFileSync(file, GOOD);

@@ -191,6 +191,36 @@ describe('single-run screens', () => {
     await page.close();
   });
 
+  it('shows a dump streaming in as a partial overview in the loading panel, replaced by the full overview', async () => {
+    const { page, problems } = await open('queries=100');
+    await page.waitForSelector('#gl-headline-value');
+    const partial = {
+      fileName: '<img src=x onerror=alert(1)>.tsv', headline: 0, queries: 12_345, rows: 1_234_567, bytesRead: 1.2e9, totalBytes: 6.3e9,
+      conventions: 'gain exponential', elapsedMs: 4321,
+      metrics: [{ key: 'ndcg@10', label: 'NDCG@10', mean: 0.69814, counted: 12_000 }, { key: 'ap', label: 'AP', mean: null, counted: 0 }],
+    };
+    await page.evaluate((p) => {
+      const w = window as unknown as { __host: { send(m: unknown): void } };
+      w.__host.send({ kind: 'state', state: { status: 'loading', mode: 'single', label: 'big.tsv', fraction: 0.19, message: 'Streaming…', partial: p } });
+    }, partial);
+    await page.waitForSelector('#gl-partial-overview', { state: 'visible' });
+    expect(await page.isVisible('#gl-overview')).toBe(false);
+    expect(await page.textContent('#gl-partial-headline-value')).toBe('0.6981');
+    // presentation/partialText.ts: the same words as the command line's progress line.
+    expect(await page.textContent('#gl-partial-summary')).toMatch(/^partial: ndcg@10 0\.6981 over 12.345 queries \(1.234.567 rows, 1\.2 of 6\.3 GB read\)$/);
+    expect(await page.locator('#gl-partial-overview .gl-card .label').allTextContents()).toEqual(['NDCG@10 so far', 'AP so far']);
+    expect(await page.textContent('#gl-partial-overview')).toContain('<img src=x onerror=alert(1)>.tsv');
+    expect(await page.locator('#gl-partial-overview img').count()).toBe(0);
+    await page.evaluate(() => {
+      const w = window as unknown as { __host: { send(m: unknown): void; overview: unknown } };
+      w.__host.send({ kind: 'state', state: { status: 'loaded', mode: 'single', overview: w.__host.overview } });
+    });
+    await page.waitForSelector('#gl-overview', { state: 'visible' });
+    expect(await page.isVisible('#gl-partial-overview')).toBe(false);
+    expect(problems).toEqual([]);
+    await page.close();
+  });
+
   it('keeps the tab when the host repeats the result it already sent (its answer to a late ready)', async () => {
     const { page } = await open('queries=100');
     await page.click('#gl-tab-worst');

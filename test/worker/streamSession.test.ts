@@ -24,17 +24,20 @@ const file = join(dir, 'kettlewood-grouped.csv');
 let worker: EngineWorker;
 const settings: EvaluationSettings = { metrics: 'ndcg@10,err@10,ap,rr,p@5,rbp,tau', conventions: DEFAULT_CONVENTIONS };
 
-/** Rows grouped by query, grades 0–4 (many 0), scores on a coarse grid so ties happen, some queries with nothing relevant. */
+/**
+ * Rows grouped by query, grades 0–4 (many 0), scores on a coarse grid so ties happen, some queries with nothing
+ * relevant, an aisle segment and a query weight column (so the means are weighted, as the join takes it).
+ */
 function groupedDump(queries: number, seed: number): string {
   const rand = seededRandom(seed);
-  const lines = ['query_id,item_id,label,score,aisle'];
+  const lines = ['query_id,item_id,label,score,aisle,weight'];
   for (let q = 0; q < queries; q++) {
     const name = `${QUERY_NAMES[q % QUERY_NAMES.length]} ${q}`;
     const size = 1 + Math.floor(rand() * 40);
     const hopeless = rand() < 0.05;
     for (let i = 0; i < size; i++) {
       const grade = hopeless ? 0 : Math.max(0, Math.floor(rand() * 7) - 2);
-      lines.push(`${name},sku-${q}-${i},${grade},${(Math.round((grade * 0.2 + rand()) * 20) / 20).toFixed(2)},aisle-${q % 7}`);
+      lines.push(`${name},sku-${q}-${i},${grade},${(Math.round((grade * 0.2 + rand()) * 20) / 20).toFixed(2)},aisle-${q % 7},${1 + (q % 3)}`);
     }
   }
   return lines.join('\n') + '\n';
@@ -83,6 +86,12 @@ describe('a dump streamed in the editor', () => {
     expect(streamed.sensitivityLater).toBeUndefined();
     const { rows: sensitivity } = await worker.call('overviewSensitivity', { session: 'memory' });
     expect(streamed.sensitivity).toEqual(sensitivity);
+    expect(streamed.segmentColumns).toEqual(['aisle']);
+    expect(streamed.segmentColumns).toEqual(memory.segmentColumns);
+    expect(streamed.weighting).toBe(memory.weighting);
+    expect(await worker.call('segments', { session: 'stream', column: 'aisle' })).toEqual(await worker.call('segments', { session: 'memory', column: 'aisle' }));
+    const inAisle = { offset: 0, limit: 50, segment: { column: 'aisle', value: 'aisle-3' } };
+    expect(await worker.call('queryPage', { session: 'stream', ...inAisle })).toEqual(await worker.call('queryPage', { session: 'memory', ...inAisle }));
 
     for (const sort of [undefined, { key: 'ap', descending: true }, { key: 'query', descending: false }]) {
       const page = { offset: 5, limit: 40, ...(sort ? { sort } : {}) };
@@ -99,18 +108,28 @@ describe('a dump streamed in the editor', () => {
     }
   });
 
-  it('refuses the views that need every row with a sentence naming the setting', async () => {
+  it('refuses the score diagnostics, which need every row, with a sentence naming the setting', async () => {
     await worker.call('load', { session: 'stream', source: { path: file }, settings, streamFromBytes: 0 });
-    await expect(worker.call('segments', { session: 'stream', column: 'aisle' })).rejects.toThrow(/streamed.*gainline\.reading\.streamFromMegabytes/);
     await expect(worker.call('overviewDiagnostics', { session: 'stream' })).rejects.toBeInstanceOf(RemoteError);
+    await expect(worker.call('overviewDiagnostics', { session: 'stream' })).rejects.toThrow(/^The score diagnostics need the rows.*streamed.*gainline\.reading\.streamFromMegabytes/);
   });
 
   it('reads into memory below the threshold', async () => {
     const partials: PartialOverview[] = [];
+    const progress: [number | null, string][] = [];
     const overview = await worker.call('load', { session: 'small', source: { path: file }, settings, streamFromBytes: 1e9 },
-      { onProgress: (_f, _m, partial) => partial && partials.push(partial) });
+      { onProgress: (f, m, partial) => (partial ? partials.push(partial) : progress.push([f, m])) });
     expect(partials).toEqual([]);
+    // The progress of an in-memory load: reading, then scoring, never going back.
+    expect(progress.length).toBeGreaterThan(0);
+    expect(progress.every(([, m]) => /^(Reading kettlewood-grouped\.csv…|Scoring queries…)$/.test(m))).toBe(true);
+    for (let i = 1; i < progress.length; i++) expect(progress[i]![0]!).toBeGreaterThanOrEqual(progress[i - 1]![0]!);
+    // Read as without a threshold: the weight column joined (weighted means), not left as a segment.
+    const { loadMs: _a, timeline: _t, ...plain } = overview;
+    const { loadMs: _b, timeline: _u, ...expected } = await worker.call('load', { session: 'small-plain', source: { path: file }, settings });
+    expect(plain).toEqual(expected);
     expect(overview.segmentColumns).toEqual(['aisle']);
+    expect(overview.weighting).toMatch(/^column 'weight' of /);
     expect(overview.sensitivityLater).toBe(true);
   });
 
@@ -122,7 +141,15 @@ describe('a dump streamed in the editor', () => {
       { onProgress: (_f, _m, partial) => partial && partials.push(partial) });
     expect(partials).toEqual([]);
     expect(overview.warnings.filter((w) => w.startsWith('Read into memory rather than streamed'))).toEqual([
-      `Read into memory rather than streamed (it is over gainline.reading.streamFromMegabytes), since the judgments file ${judgments} is joined to it, which needs its rows.`]);
+      `Read into memory rather than streamed (it is over gainline.reading.streamFromMegabytes), since the judgments file ${judgments} goes with it, and joining needs its rows.`]);
+  });
+
+  it('names a missing file in the same words with or without a threshold', async () => {
+    const missing = join(dir, 'gone.csv');
+    const plain = await worker.call('load', { session: 'gone', source: { path: missing }, settings }).catch((e: Error) => e.message);
+    const streamed = await worker.call('load', { session: 'gone', source: { path: missing }, settings, streamFromBytes: 0 }).catch((e: Error) => e.message);
+    expect(plain).toContain('gone.csv');
+    expect(streamed).toBe(plain);
   });
 
   it('stops when cancelled after the first partial overview, and the worker keeps answering', async () => {
