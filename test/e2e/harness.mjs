@@ -195,16 +195,24 @@ export async function reopenWith(page, editorLabel) {
 export async function explorerContextMenu(page, relativePath, entry, { timeoutMs = 30_000 } = {}) {
   const tree = page.locator('.explorer-folders-view');
   const parts = relativePath.split('/');
-  for (const folder of parts.slice(0, -1)) {
-    const row = tree.locator(`.monaco-list-row[aria-label=${JSON.stringify(folder)}]`).first();
-    await row.waitFor({ state: 'visible', timeout: 15_000 })
-      .catch(() => { throw new Error(`Explorer shows no folder ${folder}`); });
-    if (await row.getAttribute('aria-expanded') === 'false') await row.click();
-  }
   const name = parts[parts.length - 1];
   const fileRow = tree.locator(`.monaco-list-row[aria-label=${JSON.stringify(name)}]`).first();
-  await fileRow.waitFor({ state: 'visible', timeout: 15_000 })
-    .catch(() => { throw new Error(`Explorer shows no file ${name}`); });
+  // The Explorer only renders the rows in its viewport: after earlier scenarios expanded other folders
+  // the path can lie below it. The walk is tried as things are, then once more from collapsed folders.
+  const walk = async (waitMs) => {
+    for (const folder of parts.slice(0, -1)) {
+      const row = tree.locator(`.monaco-list-row[aria-label=${JSON.stringify(folder)}]`).first();
+      await row.waitFor({ state: 'visible', timeout: waitMs })
+        .catch(() => { throw new Error(`Explorer shows no folder ${folder}`); });
+      if (await row.getAttribute('aria-expanded') === 'false') await row.click();
+    }
+    await fileRow.waitFor({ state: 'visible', timeout: waitMs })
+      .catch(() => { throw new Error(`Explorer shows no file ${name}`); });
+  };
+  await walk(5_000).catch(async () => {
+    await runCommand(page, 'Collapse Folders in Explorer');
+    await walk(15_000);
+  });
   const menuItem = page.locator('.monaco-menu .action-label', { hasText: exactLabel(entry) });
   const deadline = Date.now() + timeoutMs;
   for (;;) {
