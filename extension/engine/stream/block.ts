@@ -25,6 +25,7 @@ import { ROW_COLUMN_NAMES, ROW_COLUMNS, type RowColumnName, type SharedColumns }
 import { DelimitedParser } from '../readers/delimited';
 import type { ColumnRoles } from '../readers/roles';
 import { pumpRange, type RecordSink } from '../readers/source';
+import { indexOfByte } from '../readers/byteSearch';
 import { joinTables } from '../tables/join';
 
 export interface BlockTask {
@@ -115,8 +116,8 @@ class QuoteGuard implements RecordSink {
   constructor(private readonly inner: RecordSink) {}
 
   feed(buf: Buffer, start: number, end: number, base: number, final: boolean): number {
-    const quote = buf.indexOf(34, start);
-    if (quote >= 0 && quote < end) throw new QuotedBlock();
+    // Bounded: past `end` the buffer holds stale bytes of an earlier read.
+    if (indexOfByte(buf, 34, start, end) >= 0) throw new QuotedBlock();
     return this.inner.feed(buf, start, end, base, final);
   }
 }
