@@ -7,7 +7,7 @@
  * the scoring that followed ran on one thread with the second core idle. Measuring the span that
  * just ended (a large read takes a second or more) sees what the other programs are doing now.
  */
-import { cpus, loadavg } from 'node:os';
+import { availableParallelism, cpus, loadavg } from 'node:os';
 
 export interface CoreSample {
   /** Busy milliseconds summed over every core. */
@@ -43,4 +43,12 @@ export class CoreMeter {
     const others = end.busyMs - this.start.busyMs - (end.ownMs - this.start.ownMs);
     return Math.max(0, others / span);
   }
+}
+
+/**
+ * Whole cores left for our own threads when other programs keep `otherBusyCores` busy (rounded to the
+ * nearest core; 0 or more). One rule for the scoring threads of a dump and the lanes of a series.
+ */
+export function freeCores(otherBusyCores: number): number {
+  return Math.max(0, Math.floor(availableParallelism() - otherBusyCores + 0.5));
 }

@@ -6,7 +6,7 @@
  * and the sensitivity means over recorded per-query values, so the result is bit-identical to
  * evaluate() on one thread (partial sums added together would round differently).
  */
-import { availableParallelism, loadavg } from 'node:os';
+import { loadavg } from 'node:os';
 import { engineSettings } from '../config';
 import type { RankedDump } from '../model/dump';
 import { groupByQuery, type QueryGroups } from '../model/groups';
@@ -30,6 +30,7 @@ import {
 import type { SensitivityColumns } from '../evaluate/sensitivity';
 import { renderChunk, type ChunkWork } from '../evaluate/chunkOutput';
 import type { Evaluation, PerQueryColumns } from '../evaluate/types';
+import { freeCores } from '../evaluate/coreMeter';
 import { ThreadPool } from './pool';
 
 /**
@@ -77,8 +78,7 @@ export interface ScoreRangeResult {
 export function scoringThreads(rows: number, threads: number | undefined, otherBusyCores: number = loadavg()[0]!): number {
   if (threads !== undefined) return Math.max(1, Math.min(16, Math.floor(threads)));
   if (rows < PARALLEL_FROM_ROWS) return 1;
-  const freeCores = Math.floor(availableParallelism() - otherBusyCores + 0.5);
-  return Math.max(1, Math.min(MAX_THREADS, freeCores));
+  return Math.max(1, Math.min(MAX_THREADS, freeCores(otherBusyCores)));
 }
 
 export async function evaluateInParallel(dump: RankedDump, metrics: readonly MetricSpec[], conventions: Conventions,

@@ -6,7 +6,8 @@
  * with the series. Results come back per checkpoint in series order, whichever lane scored them.
  */
 import { statSync } from 'node:fs';
-import { availableParallelism, totalmem } from 'node:os';
+import { totalmem } from 'node:os';
+import { freeCores } from '../evaluate/coreMeter';
 import { ThreadPool } from '../threads/pool';
 import { scoreCheckpoint, type CheckpointRequests, type CheckpointTask, type ScoredCheckpoint } from './checkpoint';
 
@@ -32,8 +33,7 @@ export function seriesLanes(count: number, largestBytes: number, requested?: num
   if (requested !== undefined) return Math.max(1, Math.min(requested, count));
   if (count <= 2) return 1;
   const byMemory = Math.max(1, Math.floor(LANE_MEMORY_BUDGET / Math.max(1, largestBytes * LANE_BYTES_PER_FILE_BYTE)));
-  const freeCores = Math.floor(availableParallelism() - otherBusyCores + 0.5);
-  return Math.max(1, Math.min(MAX_LANES, freeCores, byMemory, count));
+  return Math.max(1, Math.min(MAX_LANES, freeCores(otherBusyCores), byMemory, count));
 }
 
 /** The largest of the files (0 for one that cannot be read now: its own read reports why). */
