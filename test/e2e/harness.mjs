@@ -234,6 +234,36 @@ export async function explorerContextMenu(page, relativePath, entry, { timeoutMs
   throw new Error(`clicking "${entry}" in the Explorer context menu did nothing`);
 }
 
+/**
+ * "Gainline: Inspect Ranked Lists" from the command palette with no editor open: the command offers the
+ * workspace's dumps in a quick pick, found by a fresh file search. Unlike the Explorer walk, this does not
+ * depend on which folders earlier scenarios expanded (the Explorer renders only the rows in its viewport)
+ * nor on the Explorer's watcher having shown a folder created moments ago. The row is the one labelled with
+ * the file's name whose description is its folder.
+ */
+export async function inspectFromPalette(page, relativePath, { timeoutMs = 30_000 } = {}) {
+  const parts = relativePath.split('/');
+  const name = parts.pop();
+  const folder = parts.join('/');
+  const deadline = Date.now() + timeoutMs;
+  for (;;) {
+    await runCommand(page, 'Gainline: Inspect Ranked Lists', { timeoutMs });
+    const widget = await quickInput(page);
+    await widget.locator('input.input').fill(name);
+    const row = widget.locator('.quick-input-list .monaco-list-row')
+      .filter({ has: page.locator('.label-name', { hasText: exactLabel(name) }) })
+      .filter({ has: page.locator('.label-description', { hasText: exactLabel(folder) }) }).first();
+    if (await row.waitFor({ state: 'visible', timeout: 5_000 }).then(() => true, () => false)) {
+      await row.click();
+      return;
+    }
+    // The search can miss a file written a moment ago; ask again.
+    await page.keyboard.press('Escape');
+    if (Date.now() > deadline) throw new Error(`the "Inspect Ranked Lists" quick pick offers no ${name} in ${folder}`);
+    await sleep(1_000);
+  }
+}
+
 /** The real "Open With…" from the Explorer, then the editor by its label. */
 export async function openWithFromExplorer(page, relativePath, editorLabel) {
   await explorerContextMenu(page, relativePath, 'Open With...');

@@ -5,7 +5,7 @@
 // command line's numbers for the same file.
 import { existsSync, mkdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
-import { closeAllEditors, explorerContextMenu, frameText, waitUntil } from '../harness.mjs';
+import { closeAllEditors, frameText, inspectFromPalette, waitUntil } from '../harness.mjs';
 import { evalExpectations, fourDecimals } from '../oracle.mjs';
 import { readHeadline } from '../views.mjs';
 import { writeLargeDump } from '../../support/demo-large.mjs';
@@ -56,7 +56,7 @@ export const streamedOverview = {
       // (its overview then has no "Streamed:" note), so open it again until the note is there.
       const { frame, marks } = await waitUntil(async () => {
         await closeAllEditors(ctx.page);
-        await explorerContextMenu(ctx.page, ctx.rel(file), 'Inspect Ranked Lists');
+        await inspectFromPalette(ctx.page, ctx.rel(file));
         const { frame: shown } = await readHeadline(ctx.page, undefined, { timeoutMs: 120_000 });
         const notes = await shown.locator('.gl-warnings li').allTextContents();
         if (!notes.some((n) => n.startsWith('Streamed:'))) return null;
