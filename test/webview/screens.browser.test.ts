@@ -209,6 +209,10 @@ describe('single-run screens', () => {
     // presentation/partialText.ts: the same words as the command line's progress line.
     expect(await page.textContent('#gl-partial-summary')).toMatch(/^partial: ndcg@10 0\.6981 over 12.345 queries \(1.234.567 rows, 1\.2 of 6\.3 GB read\)$/);
     expect(await page.locator('#gl-partial-overview .gl-card .label').allTextContents()).toEqual(['NDCG@10 so far', 'AP so far']);
+    // The card's tooltip counts queries as the card does (presentation's formatCount), not as raw digits.
+    const cardCount = await page.textContent('#gl-partial-overview .gl-card .sub');
+    expect(cardCount).toMatch(/^12.000 queries$/);
+    expect(await page.getAttribute('#gl-partial-overview .gl-card', 'title')).toContain(`Mean over the ${cardCount} scored so far`);
     expect(await page.textContent('#gl-partial-overview')).toContain('<img src=x onerror=alert(1)>.tsv');
     expect(await page.locator('#gl-partial-overview img').count()).toBe(0);
     await page.evaluate(() => {

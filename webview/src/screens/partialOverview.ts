@@ -19,7 +19,7 @@ export function partialOverviewElement(p: PartialOverview): HTMLElement {
     const value = el('div', { className: 'value', text: formatFixed(num(m.mean), 4) });
     if (i === p.headline) value.id = 'gl-partial-headline-value';
     cards.append(el('div', { className: i === p.headline ? 'gl-card headline' : 'gl-card', attrs: { role: 'listitem' },
-      title: `Mean over the ${m.counted} queries scored so far; exact value ${exactValue(num(m.mean))}. It changes as the rest of the file is read.` },
+      title: `Mean over the ${formatCount(m.counted)} queries scored so far; exact value ${exactValue(num(m.mean))}. It changes as the rest of the file is read.` },
     el('div', { className: 'label', text: `${m.label} so far` }), value, el('div', { className: 'sub', text: `${formatCount(m.counted)} queries` })));
   });
   const share = p.totalBytes > 0 ? formatShare(p.bytesRead / p.totalBytes) : '';
