@@ -3,9 +3,7 @@
  * then its queries and items tables. Kept apart from the worker's message loop so tests read a source
  * exactly as the editor does.
  */
-import { InputError } from '../engine/errors';
 import { readDump, type RankedDump, type ReadOptions } from '../engine/index';
-import { SHARES_NO_QUERY } from '../engine/readers/judgments';
 import { withSideTables } from '../engine/tables/join';
 import type { DumpSource } from '../protocol/worker';
 
@@ -16,32 +14,15 @@ export async function readSource(source: DumpSource, extra: Pick<ReadOptions, 't
     ...(source.format ? { format: source.format as ReadOptions['format'] } : {}),
     ...(source.columns ? { columns: source.columns } : {}),
     ...(source.judgments ? { judgments: source.judgments } : {}),
+    // Found beside the dump rather than named: the engine leaves it out when it names none of the dump's queries.
+    ...(source.judgments && source.judgmentsFound ? { judgmentsFound: true } : {}),
     ...(source.scores ? { scores: source.scores } : {}),
     ...(source.missingQueries ? { missingQueries: source.missingQueries } : {}),
   };
-  const dump = await readWithFoundJudgments(source, options);
+  const dump = await readDump(source.path, options);
   return withSideTables(dump, {
     ...(source.queries ? { queries: source.queries } : {}),
     ...(source.items ? { items: source.items } : {}),
     ...(source.tablesFound ? { found: true } : {}),
   }, extra.signal);
-}
-
-/**
- * A judgments file found by the naming rule for a dump with labels of its own (never a run file, which
- * needs one) that shares no query with the dump belongs to other data: the dump keeps its own labels,
- * and a note says why the file was not used. Any other problem in that file is reported as usual.
- */
-async function readWithFoundJudgments(source: DumpSource, options: ReadOptions): Promise<RankedDump> {
-  try {
-    return await readDump(source.path, options);
-  } catch (error) {
-    const unrelated = source.judgmentsFound === true && error instanceof InputError && error.file === options.judgments
-      && error.expected.startsWith(SHARES_NO_QUERY);
-    if (!unrelated) throw error;
-    const { judgments, missingQueries: _policy, ...ownLabels } = options;
-    const own = await readDump(source.path, ownLabels);
-    const note = `${judgments} was found beside the dump but names none of its queries; it is not used (the dump's own labels are).`;
-    return { ...own, notes: { ...own.notes, messages: [note, ...own.notes.messages] } };
-  }
 }

@@ -18,7 +18,7 @@ import { readJsonLines } from './jsonLines';
 import { readParallelDelimited, shouldParseInParallel } from '../threads/parallel';
 import { readParquet } from './parquet';
 import type { ReadOptions } from './readOptions';
-import { joinJudgments, readJudgmentTable } from './judgments';
+import { joinJudgments, readJudgmentTable, sharesQuery } from './judgments';
 import { readRunFile } from './runFile';
 import { changedSince, fileChangedError, pumpText, statStamp, throwIfCancelled } from './source';
 import { readSparseFeatures } from './sparseFeatures';
@@ -51,7 +51,24 @@ async function readDumpOnce(path: string, options: ReadOptions): Promise<RankedD
     readJudgmentTable(judgmentsPath, options, (p, o) => readFormat(p, o)),
   ]);
   throwIfCancelled(options.signal);
+  if (options.judgmentsFound === true && !sharesQuery(dump, table)) return withOwnLabels(path, dump, options);
   return joinJudgments(dump, table, options.missingQueries ?? 'skip');
+}
+
+/**
+ * The dump of a found judgments file that names none of its queries, as read without the file, with a
+ * first note saying why it was not used. The rows already read are that dump when some row has a label
+ * (so the label column exists, and making it optional changed nothing) and the judgments file did not
+ * decide the format; otherwise the file is read again without it, which reports a missing label column
+ * as any read does. Reading twice doubled the editor's first screen whenever an unrelated judgments
+ * folder sat beside the dumps (the demo's CSV runs key queries by text, its judgments by id).
+ */
+async function withOwnLabels(path: string, read: RankedDump, options: ReadOptions): Promise<RankedDump> {
+  const { judgments, judgmentsFound: _found, missingQueries: _policy, ...ownOptions } = options;
+  const labelled = read.notes.unjudgedRows < read.rowCount;
+  const own = labelled && (await detectFormat(path, ownOptions)).format === read.format ? read : await readFormat(path, ownOptions);
+  const note = `${judgments} was found beside the dump but names none of its queries; it is not used (the dump's own labels are).`;
+  return { ...own, notes: { ...own.notes, messages: [note, ...own.notes.messages] } };
 }
 
 async function readFormat(path: string, options: ReadOptions): Promise<RankedDump> {

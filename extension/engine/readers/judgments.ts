@@ -23,7 +23,7 @@ import { PairIndex } from './pairIndex';
 import { LineSink, pumpText, splitWhitespace } from './source';
 
 /** One judgment per entry, in file order; ids index the table's own pools. */
-/** The start of the error for a judgments file that names none of the run's queries (the editor tells it apart). */
+/** The start of the error for a judgments file that names none of the run's queries. */
 export const SHARES_NO_QUERY = 'a judgments file sharing queries with the run';
 
 export interface JudgmentTable {
@@ -146,6 +146,12 @@ function idIn(from: StringPool, id: number, to: StringPool): number {
     return to.findBytes(bytes, 0, bytes.length);
   }
   return to.find(from.get(id));
+}
+
+/** True when some query of the judgments occurs in the dump (joinJudgments refuses a table where none does). */
+export function sharesQuery(dump: RankedDump, table: JudgmentTable): boolean {
+  for (let q = 0; q < table.queries.size; q++) if (idIn(table.queries, q, dump.queries) >= 0) return true;
+  return false;
 }
 
 /** Adds a string to a dump's pool (both pool kinds intern). */

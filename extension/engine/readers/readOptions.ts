@@ -15,6 +15,12 @@ export interface ReadOptions {
    * columns. Any format takes its labels from it (run files must have one); see judgments.ts.
    */
   judgments?: string;
+  /**
+   * The judgments file was found beside the dump by the naming rule, not named by the user: when it names
+   * none of the dump's queries and the dump has labels of its own, it belongs to other data, so the dump
+   * keeps its labels and its first note says why the file was not used (the dump is read once either way).
+   */
+  judgmentsFound?: boolean;
   /** Column names in a tabular judgments file, like `columns` (query, item, label). */
   judgmentsColumns?: ColumnRoles;
   /** Judged queries with no row in the dump: left out (`skip`, default) or scored 0 on every metric (`zero`). */
