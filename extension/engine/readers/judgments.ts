@@ -22,10 +22,10 @@ import { textHead } from './detect';
 import { PairIndex } from './pairIndex';
 import { LineSink, pumpText, splitWhitespace } from './source';
 
-/** One judgment per entry, in file order; ids index the table's own pools. */
 /** The start of the error for a judgments file that names none of the run's queries. */
 export const SHARES_NO_QUERY = 'a judgments file sharing queries with the run';
 
+/** One judgment per entry, in file order; ids index the table's own pools. */
 export interface JudgmentTable {
   readonly path: string;
   readonly queries: StringPool;
@@ -165,15 +165,11 @@ function addTo(pool: StringPool, text: string): number {
 export function joinJudgments(dump: RankedDump, table: JudgmentTable, policy: MissingQueriesPolicy = 'skip'): RankedDump {
   const judgedQueries = table.queries.size;
   const dumpQueries = dump.queries.size;
-  const queryInDump = new Int32Array(judgedQueries);
-  let shared = 0;
-  for (let q = 0; q < judgedQueries; q++) {
-    queryInDump[q] = idIn(table.queries, q, dump.queries);
-    if (queryInDump[q]! >= 0) shared++;
-  }
-  if (shared === 0) {
+  if (!sharesQuery(dump, table)) {
     throw new InputError(`${SHARES_NO_QUERY} (none of its ${judgedQueries} queries appear in the run ${dump.path})`, table.path);
   }
+  const queryInDump = new Int32Array(judgedQueries);
+  for (let q = 0; q < judgedQueries; q++) queryInDump[q] = idIn(table.queries, q, dump.queries);
   const itemInDump = new Int32Array(table.items.size);
   let unknownItems = 0;
   for (let i = 0; i < itemInDump.length; i++) {
