@@ -66,23 +66,36 @@ export interface StreamOrReadOptions extends Pick<StreamEvaluateOptions, 'sensit
   readonly streamFromBytes?: number;
 }
 
+/** A dump scored as it streamed in, or why it was not (`tried`: a stream began and gave way). */
+export type StreamIfFit =
+  | Extract<StreamOrRead, { kind: 'streamed' }>
+  | { readonly kind: 'declined'; readonly why: string; readonly tried: boolean };
+
 /**
- * Streams a dump grouped by query when the reading mode, its format and size allow (stream/choose.ts),
- * else reads it. A stream that finds the file unfit (not grouped, quoted fields, data the conventions
- * cannot score) gives way to reading it in memory, which gives the same numbers, or the same error.
+ * Streams a dump grouped by query when the reading mode, its format and size allow (stream/choose.ts);
+ * otherwise, or when the stream finds the file unfit (not grouped, quoted fields, data the conventions
+ * cannot score), says why and leaves the file for the caller to read.
+ */
+export async function streamIfFit(path: string, read: ReadOptions, metrics: readonly MetricSpec[], conventions: Conventions,
+  options: StreamOrReadOptions = {}): Promise<StreamIfFit> {
+  const choice = await chooseReading(path, read, options.reading ?? 'auto', options.streamFromBytes);
+  if (!choice.stream) return { kind: 'declined', why: choice.why, tried: false };
+  const outcome = await streamEvaluate(path, choice.format, metrics, conventions, {
+    ...options, ...(read.columns ? { columns: read.columns } : {}), ...(read.threads !== undefined ? { threads: read.threads } : {}),
+    ...(read.signal ? { signal: read.signal } : {}),
+  });
+  return outcome.kind === 'streamed' ? outcome : { kind: 'declined', why: outcome.reason, tried: true };
+}
+
+/**
+ * streamIfFit, reading the dump in memory when it does not stream, which gives the same numbers, or the
+ * same error.
  */
 export async function streamOrRead(path: string, read: ReadOptions, metrics: readonly MetricSpec[], conventions: Conventions,
   options: StreamOrReadOptions = {}): Promise<StreamOrRead> {
-  const choice = await chooseReading(path, read, options.reading ?? 'auto', options.streamFromBytes);
-  if (choice.stream) {
-    const outcome = await streamEvaluate(path, choice.format, metrics, conventions, {
-      ...options, ...(read.columns ? { columns: read.columns } : {}), ...(read.threads !== undefined ? { threads: read.threads } : {}),
-      ...(read.signal ? { signal: read.signal } : {}),
-    });
-    if (outcome.kind === 'streamed') return outcome;
-    return { kind: 'read', dump: await readDump(path, read), why: outcome.reason, tried: true };
-  }
-  return { kind: 'read', dump: await readDump(path, read), why: choice.why, tried: false };
+  const outcome = await streamIfFit(path, read, metrics, conventions, options);
+  if (outcome.kind === 'streamed') return outcome;
+  return { kind: 'read', dump: await readDump(path, read), why: outcome.why, tried: outcome.tried };
 }
 
 /** Scores both runs (each as evaluateDump would) and pairs them query by query. */

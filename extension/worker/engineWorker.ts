@@ -192,9 +192,9 @@ const handlers: RequestHandlers<WorkerRequests> = {
       const done = Date.now();
       return { ...streamed.overview, timeline: { threadReady: readyAt, ...(warmedAt ? { warmed: warmedAt } : {}), received, read: done, scored: done } };
     }
-    const dump = streamed?.dump ?? await read(source, ctx, 0, 0.75);
+    const dump = streamed?.kind === 'read' ? streamed.dump : await read(source, ctx, 0, 0.75);
     if (streamed?.note) dump.notes.messages.push(streamed.note);
-    else if (streamFromBytes !== undefined && !streamed && dump.stamp.size >= streamFromBytes) dump.notes.messages.push(joinedNote(source));
+    else if (streamFromBytes !== undefined && streamed === undefined && dump.stamp.size >= streamFromBytes) dump.notes.messages.push(joinedNote(source));
     const readDone = Date.now();
     const groups = groupByQuery(dump);
     const metrics = parseMetricList(settings.metrics);

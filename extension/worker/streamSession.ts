@@ -12,11 +12,14 @@ import { InputError } from '../engine/errors';
 import { queryDetail, type GradeRange } from '../engine/evaluate/detail';
 import { headlineCutoff } from '../engine/evaluate/scorer';
 import type { Evaluation } from '../engine/evaluate/types';
-import { readDump, segmentRowsOf, streamOrRead, type RankedDump, type StreamedDump, type StreamPartial } from '../engine/index';
+import { readDump, segmentRowsOf, streamIfFit, streamOrRead, type RankedDump, type StreamedDump, type StreamIfFit, type StreamPartial } from '../engine/index';
+import { judgmentsShareQuery } from '../engine/readers/index';
+import { unusedJudgmentsNote } from '../engine/readers/judgments';
+import type { StringPool } from '../engine/model/stringPool';
 import type { SegmentedRows } from '../engine/evaluate/segments';
 import { parseMetricList } from '../engine/metrics/parse';
 import { readQueryRows } from '../engine/stream/queryDetail';
-import { withSideTables } from '../engine/tables/join';
+import { tableSharesId, unusedTableNote, withSideTables } from '../engine/tables/join';
 import { DEFAULT_BLOCK_BYTES } from '../engine/stream/streamEvaluate';
 import { describeConventions } from '../presentation/conventionsLine';
 import { metricLabel } from '../presentation/metricText';
@@ -51,12 +54,21 @@ export interface StreamLoadOptions {
 
 export type StreamLoad =
   | { readonly kind: 'streamed'; readonly session: StreamedLoaded; readonly overview: OverviewModel }
-  /** Not streamed: the dump read into memory (`why` is a note for the overview when a stream gave way). */
-  | { readonly kind: 'read'; readonly dump: RankedDump; readonly note?: string };
+  /** Not streamed: the dump read into memory (`note` is for the overview when a stream gave way). */
+  | { readonly kind: 'read'; readonly dump: RankedDump; readonly note?: string }
+  /** Not streamed, and not read: files found beside it are joined, so the caller reads it with them (readSource). */
+  | { readonly kind: 'declined'; readonly note?: string };
 
-/** Whether the source can stream at all: what is joined from other files needs the rows in memory. */
+/**
+ * Whether the source can stream at all: what is joined from other files needs the rows in memory, except
+ * files found beside the dump by the naming rule (none named by the user), which often belong to other
+ * data: the stream goes ahead and checks them against the queries it saw (loadStreamOrRead).
+ */
 export function mayStream(source: DumpSource): boolean {
-  return source.sqlEngine === undefined && sideFiles(source).length === 0;
+  if (source.sqlEngine !== undefined || source.scores !== undefined) return false;
+  const judgments = source.judgments === undefined || source.judgmentsFound === true;
+  const tables = (source.queries === undefined && source.items === undefined) || source.tablesFound === true;
+  return judgments && tables;
 }
 
 function sideFiles(source: DumpSource): string[] {
@@ -85,14 +97,64 @@ export async function loadStreamOrRead(source: DumpSource, settings: EvaluationS
   const onPartial = (p: StreamPartial): void => options.onPartial(partialOverview(p, fileName, conventions, performance.now() - options.started));
   // A file that cannot be looked at is the reader's to name, in its words (file: expected …).
   const size = await stat(source.path).then((s) => s.size, () => undefined);
-  if (size === undefined) return { kind: 'read', dump: await withSideTables(await readDump(source.path, read), {}, options.signal) };
-  const outcome = await streamOrRead(source.path, read, metrics, settings.conventions, { reading: 'auto', streamFromBytes: options.streamFromBytes,
-    sensitivity: true, segments: true, onPartial, onProgress: options.onProgress, signal: options.signal, blockBytes: editorBlockBytes(size) });
-  if (outcome.kind === 'read') {
-    // As readSource gives it: the dump's own weight column joined (mayStream left no side table to join).
-    const dump = await withSideTables(outcome.dump, {}, options.signal);
-    return { kind: 'read', dump, ...(outcome.tried ? { note: `Read into memory rather than streamed, since ${outcome.why}.` } : {}) };
+  const found = foundFiles(source);
+  if (size === undefined) {
+    return found.length > 0 ? { kind: 'declined' } : { kind: 'read', dump: await withSideTables(await readDump(source.path, read), {}, options.signal) };
   }
+  const streamOptions = { reading: 'auto' as const, streamFromBytes: options.streamFromBytes,
+    sensitivity: true, segments: true, onPartial, onProgress: options.onProgress, signal: options.signal, blockBytes: editorBlockBytes(size) };
+  const gaveWay = (why: string) => `Read into memory rather than streamed, since ${why}.`;
+  if (found.length > 0) {
+    // The files found beside it are joined when the dump is read, so one that does not stream is left to the caller.
+    const outcome = await streamIfFit(source.path, read, metrics, settings.conventions, streamOptions);
+    if (outcome.kind === 'declined') return { kind: 'declined', ...(outcome.tried ? { note: gaveWay(outcome.why) } : {}) };
+    const check = await checkFoundFiles(source, outcome.dump.queries, options.signal);
+    if (check.related.length > 0) {
+      return { kind: 'declined', note: `Read into memory rather than streamed: ${check.related.join(' and ')}, found beside it, ` +
+        `${check.related.length > 1 ? 'name' : 'names'} its queries, and joining needs its rows.` };
+    }
+    return { kind: 'streamed', ...streamedSession(outcome, fileName, options.started, check.notes) };
+  }
+  const outcome = await streamOrRead(source.path, read, metrics, settings.conventions, streamOptions);
+  if (outcome.kind === 'read') {
+    // As readSource gives it: the dump's own weight column joined (there is no side table to join).
+    const dump = await withSideTables(outcome.dump, {}, options.signal);
+    return { kind: 'read', dump, ...(outcome.tried ? { note: gaveWay(outcome.why) } : {}) };
+  }
+  return { kind: 'streamed', ...streamedSession(outcome, fileName, options.started, []) };
+}
+
+/** The side files found beside the dump (there are none else when mayStream holds). */
+function foundFiles(source: DumpSource): string[] {
+  return [source.judgments, source.queries, source.items].filter((f): f is string => f !== undefined);
+}
+
+/**
+ * The found files checked against the streamed dump's queries, as the in-memory read checks them: a
+ * judgments file or queries table that names one of them goes with the dump (`related`); one that names
+ * none is left out, with the read's note. An items table can only be checked against item ids, which a
+ * stream does not keep: it is left out, with a note saying so (it only adds titles to a query's detail).
+ */
+async function checkFoundFiles(source: DumpSource, queries: StringPool, signal: AbortSignal): Promise<{ related: string[]; notes: string[] }> {
+  const related: string[] = [];
+  const notes: string[] = [];
+  if (source.judgments !== undefined) {
+    if (await judgmentsShareQuery(source.judgments, queries, { signal })) related.push(`the judgments file ${source.judgments}`);
+    else notes.push(unusedJudgmentsNote(source.judgments));
+  }
+  if (source.queries !== undefined) {
+    if (await tableSharesId(source.queries, 'queries', queries, signal)) related.push(`the queries table ${source.queries}`);
+    else notes.push(unusedTableNote(source.queries, 'queries'));
+  }
+  if (source.items !== undefined) {
+    notes.push(`${source.items} was found beside the dump; it is not used while streaming (item titles need the dump's rows).`);
+  }
+  return { related, notes };
+}
+
+/** The session and overview of a streamed dump; `notes` go before the dump's own. */
+function streamedSession(outcome: Extract<StreamIfFit, { kind: 'streamed' }>, fileName: string, started: number, notes: readonly string[]):
+  { readonly session: StreamedLoaded; readonly overview: OverviewModel } {
   const { dump, evaluation } = outcome;
   const rows = segmentRowsOf(dump);
   // Each query is its own one-row group: the table's segment of a query is the value of that row.
@@ -101,9 +163,9 @@ export async function loadStreamOrRead(source: DumpSource, settings: EvaluationS
   const file = { path: dump.path, name: fileName, format: dump.format, rowCount: dump.rowCount, sizeBytes: dump.stamp.size, textual: true };
   const streamedNote = `Streamed: scored as the file was read (${outcome.blocks} blocks on ${outcome.threads} threads), without keeping its rows in memory; ` +
     'the score diagnostics need the rows (raise gainline.reading.streamFromMegabytes above the file\'s size to read it into memory).';
-  const overview = { ...overviewOf(file, evaluation, [...dump.notes.messages, streamedNote], performance.now() - options.started),
+  const overview = { ...overviewOf(file, evaluation, [...notes, ...dump.notes.messages, streamedNote], performance.now() - started),
     segmentColumns: rows.segments.map((c) => c.name), ...(evaluation.weighting ? { weighting: evaluation.weighting.source } : {}) };
-  return { kind: 'streamed', session: { kind: 'streamed', dump, evaluation, table, rows }, overview };
+  return { session: { kind: 'streamed', dump, evaluation, table, rows }, overview };
 }
 
 /**

@@ -18,7 +18,8 @@ import { readJsonLines } from './jsonLines';
 import { readParallelDelimited, shouldParseInParallel } from '../threads/parallel';
 import { readParquet } from './parquet';
 import type { ReadOptions } from './readOptions';
-import { joinJudgments, readJudgmentTable, sharesQuery } from './judgments';
+import { joinJudgments, readJudgmentTable, sharesQuery, unusedJudgmentsNote } from './judgments';
+import type { StringPool } from '../model/stringPool';
 import { readRunFile } from './runFile';
 import { changedSince, fileChangedError, pumpText, statStamp, throwIfCancelled } from './source';
 import { readSparseFeatures } from './sparseFeatures';
@@ -51,7 +52,7 @@ async function readDumpOnce(path: string, options: ReadOptions): Promise<RankedD
     readJudgmentTable(judgmentsPath, options, (p, o) => readFormat(p, o)),
   ]);
   throwIfCancelled(options.signal);
-  if (options.judgmentsFound === true && !sharesQuery(dump, table)) return withOwnLabels(path, dump, options);
+  if (options.judgmentsFound === true && !sharesQuery(dump.queries, table)) return withOwnLabels(path, dump, options);
   return joinJudgments(dump, table, options.missingQueries ?? 'skip');
 }
 
@@ -67,8 +68,15 @@ async function withOwnLabels(path: string, read: RankedDump, options: ReadOption
   const { judgments, judgmentsFound: _found, missingQueries: _policy, ...ownOptions } = options;
   const labelled = read.notes.unjudgedRows < read.rowCount;
   const own = labelled && (await detectFormat(path, ownOptions)).format === read.format ? read : await readFormat(path, ownOptions);
-  const note = `${judgments} was found beside the dump but names none of its queries; it is not used (the dump's own labels are).`;
-  return { ...own, notes: { ...own.notes, messages: [note, ...own.notes.messages] } };
+  return { ...own, notes: { ...own.notes, messages: [unusedJudgmentsNote(judgments!), ...own.notes.messages] } };
+}
+
+/**
+ * Whether a judgments file names any of `queries` (a streamed dump's, which keeps no rows to join), the
+ * file read as a dump's judgments are.
+ */
+export async function judgmentsShareQuery(judgments: string, queries: StringPool, options: Pick<ReadOptions, 'judgmentsColumns' | 'signal'> = {}): Promise<boolean> {
+  return sharesQuery(queries, await readJudgmentTable(judgments, options, (p, o) => readFormat(p, o)));
 }
 
 async function readFormat(path: string, options: ReadOptions): Promise<RankedDump> {

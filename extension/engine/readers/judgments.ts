@@ -148,10 +148,15 @@ function idIn(from: StringPool, id: number, to: StringPool): number {
   return to.find(from.get(id));
 }
 
-/** True when some query of the judgments occurs in the dump (joinJudgments refuses a table where none does). */
-export function sharesQuery(dump: RankedDump, table: JudgmentTable): boolean {
-  for (let q = 0; q < table.queries.size; q++) if (idIn(table.queries, q, dump.queries) >= 0) return true;
+/** True when some query of the judgments is one of `queries` (a dump's; joinJudgments refuses a table where none is). */
+export function sharesQuery(queries: StringPool, table: JudgmentTable): boolean {
+  for (let q = 0; q < table.queries.size; q++) if (idIn(table.queries, q, queries) >= 0) return true;
   return false;
+}
+
+/** The note of a dump that keeps its own labels because the judgments file found beside it names none of its queries. */
+export function unusedJudgmentsNote(judgments: string): string {
+  return `${judgments} was found beside the dump but names none of its queries; it is not used (the dump's own labels are).`;
 }
 
 /** Adds a string to a dump's pool (both pool kinds intern). */
@@ -165,7 +170,7 @@ function addTo(pool: StringPool, text: string): number {
 export function joinJudgments(dump: RankedDump, table: JudgmentTable, policy: MissingQueriesPolicy = 'skip'): RankedDump {
   const judgedQueries = table.queries.size;
   const dumpQueries = dump.queries.size;
-  if (!sharesQuery(dump, table)) {
+  if (!sharesQuery(dump.queries, table)) {
     throw new InputError(`${SHARES_NO_QUERY} (none of its ${judgedQueries} queries appear in the run ${dump.path})`, table.path);
   }
   const queryInDump = new Int32Array(judgedQueries);

@@ -33,16 +33,26 @@ export async function withSideTables(dump: RankedDump, files: SideTableFiles, si
   let items = files.items === undefined ? undefined : await readTextTable(files.items, { signal, purpose: 'an items table' });
   const skipped: string[] = [];
   if (files.found && queries && !sharesAnId(queries, 'queries', dump.queries)) {
-    skipped.push(`${queries.file} was found beside the dump but names none of its queries; it is not used.`);
+    skipped.push(unusedTableNote(queries.file, 'queries'));
     queries = undefined;
   }
   if (files.found && items && !sharesAnId(items, 'items', dump.items)) {
-    skipped.push(`${items.file} was found beside the dump but names none of its items; it is not used.`);
+    skipped.push(unusedTableNote(items.file, 'items'));
     items = undefined;
   }
   const joined = joinTables(dump, queries, items);
   if (skipped.length === 0) return joined;
   return { ...joined, joined: { ...(joined.joined ?? {}), notes: [...skipped, ...(joined.joined?.notes ?? [])] } };
+}
+
+/** The note of a table found beside the dump that names none of its queries (or items), and so is not used. */
+export function unusedTableNote(file: string, kind: SideKind): string {
+  return `${file} was found beside the dump but names none of its ${kind}; it is not used.`;
+}
+
+/** Whether the table at `path` names any of `pool`'s ids (a streamed dump's queries, which keeps no rows to join). */
+export async function tableSharesId(path: string, kind: SideKind, pool: StringPool, signal?: AbortSignal): Promise<boolean> {
+  return sharesAnId(await readTextTable(path, { signal, purpose: kind === 'queries' ? 'a queries table' : 'an items table' }), kind, pool);
 }
 
 function sharesAnId(table: TextTable, kind: SideKind, pool: StringPool): boolean {

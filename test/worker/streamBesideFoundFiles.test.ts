@@ -1,0 +1,117 @@
+/**
+ * The editor's worker streaming a dump that has a judgments file, a queries table or an items table found
+ * beside it by the naming rule (worker/streamSession.ts). Such files often belong to other data (the demo's
+ * judgments key queries by id, its CSV runs by text), so the stream goes ahead and checks them against the
+ * queries it saw, as the in-memory read checks them: a file that names none of them is left out with the
+ * read's note, and one that names some of them sends the dump to the in-memory read, which joins it. The
+ * expectations are the in-memory loads of the same sources, through the same real worker thread.
+ */
+import { mkdirSync, mkdtempSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import * as esbuild from 'esbuild';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { EngineWorker } from '../../extension/host/workerHost';
+import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
+import type { PartialOverview } from '../../extension/protocol/partialOverview';
+import type { DumpSource, EvaluationSettings } from '../../extension/protocol/worker';
+import { QUERY_NAMES, seededRandom } from '../reference/random';
+
+const dir = mkdtempSync(join(tmpdir(), 'gainline-stream-found-'));
+const script = join(dir, 'engineWorker.js');
+const runs = join(dir, 'runs');
+const side = join(dir, 'judgments');
+const file = join(runs, 'kettlewood-grouped.csv');
+const unrelated = { judgments: join(side, 'grades.qrels'), queries: join(side, 'queries.tsv'), items: join(side, 'items.tsv') };
+let worker: EngineWorker;
+const settings: EvaluationSettings = { metrics: 'ndcg@10,err@10,ap,rr,p@5,rbp,tau', conventions: DEFAULT_CONVENTIONS };
+
+/** Rows grouped by query (queries keyed by text), grades 0–4, scores on a coarse grid so ties happen. */
+function groupedDump(queries: number, seed: number): string {
+  const rand = seededRandom(seed);
+  const lines = ['query_id,item_id,label,score'];
+  for (let q = 0; q < queries; q++) {
+    const size = 1 + Math.floor(rand() * 30);
+    for (let i = 0; i < size; i++) {
+      const grade = Math.max(0, Math.floor(rand() * 7) - 2);
+      lines.push(`${QUERY_NAMES[q % QUERY_NAMES.length]} ${q},sku-${q}-${i},${grade},${(Math.round((grade * 0.2 + rand()) * 20) / 20).toFixed(2)}`);
+    }
+  }
+  return lines.join('\n') + '\n';
+}
+
+beforeAll(async () => {
+  await esbuild.build({
+    entryPoints: ['extension/worker/engineWorker.ts'], outfile: script, bundle: true, platform: 'node', format: 'cjs',
+    target: 'es2022', logLevel: 'error', external: ['@duckdb/node-api'],
+  });
+  mkdirSync(runs, { recursive: true });
+  mkdirSync(side, { recursive: true });
+  writeFileSync(file, groupedDump(4000, 23));
+  // Keyed by ids the dump does not use (q001…), as the demo's are; the items table names some of its items.
+  writeFileSync(unrelated.judgments, 'q001 0 sku-0-0 3\nq002 0 sku-1-0 1\n');
+  writeFileSync(unrelated.queries, 'id\tquery\tdevice\nq001\tcordless drill\tmobile\nq002\twood screws\tdesktop\n');
+  writeFileSync(unrelated.items, 'item_id\ttitle\nsku-0-0\tKettlewood drill\nsku-1-0\tKettlewood screws\n');
+  worker = new EngineWorker(script);
+});
+
+afterAll(() => worker?.dispose());
+
+async function loadBoth(name: string, source: DumpSource) {
+  const memory = await worker.call('load', { session: `${name}-memory`, source, settings });
+  const partials: PartialOverview[] = [];
+  const streamed = await worker.call('load', { session: `${name}-stream`, source, settings, streamFromBytes: 0 },
+    { onProgress: (_f, _m, partial) => partial && partials.push(partial) });
+  return { memory, streamed, partials };
+}
+
+describe('streaming beside files found by the naming rule', () => {
+  it('streams when the found files name none of its queries, leaving them out with the read\'s notes', async () => {
+    const source: DumpSource = { path: file, ...unrelated, judgmentsFound: true, tablesFound: true };
+    const { memory, streamed, partials } = await loadBoth('unrelated', source);
+    expect(partials.length).toBeGreaterThan(0);
+    expect(streamed.warnings.some((w) => w.startsWith('Streamed:'))).toBe(true);
+    expect(streamed.metrics).toEqual(memory.metrics);
+    expect(streamed.queryCount).toBe(memory.queryCount);
+    // The same words as the in-memory read for the judgments file and the queries table…
+    const judgmentsNote = `${unrelated.judgments} was found beside the dump but names none of its queries; it is not used (the dump's own labels are).`;
+    const queriesNote = `${unrelated.queries} was found beside the dump but names none of its queries; it is not used.`;
+    expect(memory.warnings).toContain(judgmentsNote);
+    expect(streamed.warnings).toContain(judgmentsNote);
+    expect(streamed.warnings).toContain(queriesNote);
+    // …and the items table, which only a read of the rows can check, is said to be left out.
+    expect(streamed.warnings).toContain(`${unrelated.items} was found beside the dump; it is not used while streaming (item titles need the dump's rows).`);
+    // Nothing about a read into memory.
+    expect(streamed.warnings.filter((w) => w.startsWith('Read into memory'))).toEqual([]);
+  });
+
+  it('reads into memory, joined, when a found judgments file names its queries', async () => {
+    const judgments = join(side, 'kettlewood.judgments.tsv');
+    writeFileSync(judgments, `query_id\titem_id\tlabel\n${QUERY_NAMES[0]} 0\tsku-0-0\t4\n${QUERY_NAMES[1]} 1\tsku-1-9\t2\n`);
+    const source: DumpSource = { path: file, judgments, judgmentsFound: true };
+    const { memory, streamed } = await loadBoth('related', source);
+    expect(streamed.metrics).toEqual(memory.metrics);
+    expect(streamed.queryCount).toBe(memory.queryCount);
+    expect(streamed.warnings.some((w) => w.startsWith('Streamed:'))).toBe(false);
+    expect(streamed.warnings).toContain(`Read into memory rather than streamed: the judgments file ${judgments}, found beside it, names its queries, and joining needs its rows.`);
+    // The join happened: nearly every row is unjudged, which the dump's own labels are not.
+    const own = await worker.call('load', { session: 'related-own', source: { path: file }, settings });
+    expect(streamed.metrics).not.toEqual(own.metrics);
+  });
+
+  it('reads into memory, joined, when a found queries table names its queries', async () => {
+    const queries = join(side, 'queries-by-text.tsv');
+    writeFileSync(queries, `query_id\tdevice\n${QUERY_NAMES[0]} 0\tmobile\n`);
+    const source: DumpSource = { path: file, queries, tablesFound: true };
+    const { memory, streamed } = await loadBoth('related-table', source);
+    expect(streamed.metrics).toEqual(memory.metrics);
+    expect(streamed.segmentColumns).toEqual(memory.segmentColumns);
+    expect(memory.segmentColumns).toContain('device');
+    expect(streamed.warnings).toContain(`Read into memory rather than streamed: the queries table ${queries}, found beside it, names its queries, and joining needs its rows.`);
+  });
+
+  it('still reads into memory, and says why, when the judgments file was named rather than found', async () => {
+    const source: DumpSource = { path: file, judgments: unrelated.judgments };
+    await expect(worker.call('load', { session: 'named', source, settings, streamFromBytes: 0 })).rejects.toThrow(/sharing queries with the run/);
+  });
+});
