@@ -6,10 +6,10 @@
 import { mkdirSync, mkdtempSync, unlinkSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import * as esbuild from 'esbuild';
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { shared, memento, FakeWebview, Uri } from './fakeVscode';
 import { groupedDump } from '../engine/fixtures/streamFiles';
+import { bundleEngineWorker } from '../worker/support/workers';
 
 vi.mock('vscode', async () => (await import('./fakeVscode')).shared.api);
 
@@ -18,7 +18,8 @@ const { EngineWorker } = await import('../../extension/host/workerHost');
 const { readConfig } = await import('../../extension/host/config');
 
 const dir = mkdtempSync(join(tmpdir(), 'gainline-session-'));
-const script = join(dir, 'engineWorker.js');
+/** The engine worker bundled from source (beforeAll). */
+let script = '';
 let worker: InstanceType<typeof EngineWorker>;
 
 // "cordless drill 18v": grades by score order 1, 0 → NDCG@10 = 1 (hand-derived: the only relevant item is first).
@@ -27,11 +28,7 @@ const GOOD = 'query_id,item_id,label,score\ncordless drill 18v,drill-a,1,0.9\nco
 const WORSE = 'query_id,item_id,label,score\ncordless drill 18v,drill-a,1,0.1\ncordless drill 18v,drill-b,0,0.9\n';
 
 beforeAll(async () => {
-  await esbuild.build({
-    entryPoints: ['extension/worker/engineWorker.ts'], outfile: script, bundle: true, platform: 'node', format: 'cjs',
-    // As build.mjs: DuckDB, a native module, is loaded at use and stays outside the bundle.
-    target: 'es2022', logLevel: 'error', external: ['@duckdb/node-api'],
-  });
+  script = await bundleEngineWorker(dir);
   worker = new EngineWorker(script);
 });
 afterAll(() => worker?.dispose());

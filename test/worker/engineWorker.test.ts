@@ -6,15 +6,16 @@
 import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import * as esbuild from 'esbuild';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { EngineWorker } from '../../extension/host/workerHost';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
 import { RemoteError, RequestAbortedError } from '../../extension/channel/request';
 import type { EvaluationSettings } from '../../extension/protocol/worker';
+import { bundleEngineWorker } from './support/workers';
 
 const dir = mkdtempSync(join(tmpdir(), 'gainline-worker-'));
-const script = join(dir, 'engineWorker.js');
+/** The engine worker bundled from source (beforeAll). */
+let script = '';
 let worker: EngineWorker;
 
 // Three queries of an invented hardware store. Hand-derived NDCG@10, exponential gain 2^g − 1,
@@ -43,11 +44,7 @@ const fileA = join(dir, 'run-a.csv');
 const fileB = join(dir, 'run-b.csv');
 
 beforeAll(async () => {
-  await esbuild.build({
-    entryPoints: ['extension/worker/engineWorker.ts'], outfile: script, bundle: true, platform: 'node', format: 'cjs',
-    // As build.mjs: DuckDB, a native module, is loaded at use and stays outside the bundle.
-    target: 'es2022', logLevel: 'error', external: ['@duckdb/node-api'],
-  });
+  script = await bundleEngineWorker(dir);
   writeFileSync(fileA, RUN_A + '\n');
   writeFileSync(fileB, RUN_B + '\n');
   worker = new EngineWorker(script);

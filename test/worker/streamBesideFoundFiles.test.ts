@@ -9,16 +9,18 @@
 import { mkdirSync, mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import * as esbuild from 'esbuild';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { EngineWorker } from '../../extension/host/workerHost';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
 import type { PartialOverview } from '../../extension/protocol/partialOverview';
 import type { DumpSource, EvaluationSettings } from '../../extension/protocol/worker';
-import { QUERY_NAMES, seededRandom } from '../reference/random';
+import { QUERY_NAMES } from '../reference/random';
+import { groupedEditorDump } from './support/groupedEditorDump';
+import { bundleEngineWorker } from './support/workers';
 
 const dir = mkdtempSync(join(tmpdir(), 'gainline-stream-found-'));
-const script = join(dir, 'engineWorker.js');
+/** The engine worker bundled from source (beforeAll). */
+let script = '';
 const runs = join(dir, 'runs');
 const side = join(dir, 'judgments');
 const file = join(runs, 'kettlewood-grouped.csv');
@@ -26,28 +28,11 @@ const unrelated = { judgments: join(side, 'grades.qrels'), queries: join(side, '
 let worker: EngineWorker;
 const settings: EvaluationSettings = { metrics: 'ndcg@10,err@10,ap,rr,p@5,rbp,tau', conventions: DEFAULT_CONVENTIONS };
 
-/** Rows grouped by query (queries keyed by text), grades 0–4, scores on a coarse grid so ties happen. */
-function groupedDump(queries: number, seed: number): string {
-  const rand = seededRandom(seed);
-  const lines = ['query_id,item_id,label,score'];
-  for (let q = 0; q < queries; q++) {
-    const size = 1 + Math.floor(rand() * 30);
-    for (let i = 0; i < size; i++) {
-      const grade = Math.max(0, Math.floor(rand() * 7) - 2);
-      lines.push(`${QUERY_NAMES[q % QUERY_NAMES.length]} ${q},sku-${q}-${i},${grade},${(Math.round((grade * 0.2 + rand()) * 20) / 20).toFixed(2)}`);
-    }
-  }
-  return lines.join('\n') + '\n';
-}
-
 beforeAll(async () => {
-  await esbuild.build({
-    entryPoints: ['extension/worker/engineWorker.ts'], outfile: script, bundle: true, platform: 'node', format: 'cjs',
-    target: 'es2022', logLevel: 'error', external: ['@duckdb/node-api'],
-  });
+  script = await bundleEngineWorker(dir);
   mkdirSync(runs, { recursive: true });
   mkdirSync(side, { recursive: true });
-  writeFileSync(file, groupedDump(4000, 23));
+  writeFileSync(file, groupedEditorDump(4000, 23));
   // Keyed by ids the dump does not use (q001…), as the demo's are; the items table names some of its items.
   writeFileSync(unrelated.judgments, 'q001 0 sku-0-0 3\nq002 0 sku-1-0 1\n');
   writeFileSync(unrelated.queries, 'id\tquery\tdevice\nq001\tcordless drill\tmobile\nq002\twood screws\tdesktop\n');

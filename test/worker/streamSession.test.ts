@@ -8,7 +8,6 @@
 import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import * as esbuild from 'esbuild';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { EngineWorker } from '../../extension/host/workerHost';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
@@ -16,39 +15,20 @@ import { RemoteError, RequestAbortedError } from '../../extension/channel/reques
 import type { PartialOverview } from '../../extension/protocol/partialOverview';
 import type { EvaluationSettings } from '../../extension/protocol/worker';
 import { editorBlockBytes } from '../../extension/worker/streamSession';
-import { QUERY_NAMES, seededRandom } from '../reference/random';
+import { QUERY_NAMES } from '../reference/random';
+import { groupedEditorDump } from './support/groupedEditorDump';
+import { bundleEngineWorker } from './support/workers';
 
 const dir = mkdtempSync(join(tmpdir(), 'gainline-stream-session-'));
-const script = join(dir, 'engineWorker.js');
+/** The engine worker bundled from source (beforeAll). */
+let script = '';
 const file = join(dir, 'kettlewood-grouped.csv');
 let worker: EngineWorker;
 const settings: EvaluationSettings = { metrics: 'ndcg@10,err@10,ap,rr,p@5,rbp,tau', conventions: DEFAULT_CONVENTIONS };
 
-/**
- * Rows grouped by query, grades 0–4 (many 0), scores on a coarse grid so ties happen, some queries with nothing
- * relevant, an aisle segment and a query weight column (so the means are weighted, as the join takes it).
- */
-function groupedDump(queries: number, seed: number): string {
-  const rand = seededRandom(seed);
-  const lines = ['query_id,item_id,label,score,aisle,weight'];
-  for (let q = 0; q < queries; q++) {
-    const name = `${QUERY_NAMES[q % QUERY_NAMES.length]} ${q}`;
-    const size = 1 + Math.floor(rand() * 40);
-    const hopeless = rand() < 0.05;
-    for (let i = 0; i < size; i++) {
-      const grade = hopeless ? 0 : Math.max(0, Math.floor(rand() * 7) - 2);
-      lines.push(`${name},sku-${q}-${i},${grade},${(Math.round((grade * 0.2 + rand()) * 20) / 20).toFixed(2)},aisle-${q % 7},${1 + (q % 3)}`);
-    }
-  }
-  return lines.join('\n') + '\n';
-}
-
 beforeAll(async () => {
-  await esbuild.build({
-    entryPoints: ['extension/worker/engineWorker.ts'], outfile: script, bundle: true, platform: 'node', format: 'cjs',
-    target: 'es2022', logLevel: 'error', external: ['@duckdb/node-api'],
-  });
-  writeFileSync(file, groupedDump(6000, 16));
+  script = await bundleEngineWorker(dir);
+  writeFileSync(file, groupedEditorDump(6000, 16));
   worker = new EngineWorker(script);
 });
 

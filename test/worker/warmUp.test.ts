@@ -6,22 +6,20 @@
 import { mkdtempSync, readdirSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import * as esbuild from 'esbuild';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { EngineWorker } from '../../extension/host/workerHost';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
 import { readSource } from '../../extension/worker/readSource';
 import { warmUp, warmUpFiles } from '../../extension/worker/warmUp';
+import { bundleEngineWorker } from './support/workers';
 
 const dir = mkdtempSync(join(tmpdir(), 'gainline-warm-test-'));
-const script = join(dir, 'engineWorker.js');
+/** The engine worker bundled from source (beforeAll). */
+let script = '';
 let worker: EngineWorker | undefined;
 
 beforeAll(async () => {
-  await esbuild.build({
-    entryPoints: ['extension/worker/engineWorker.ts'], outfile: script, bundle: true, platform: 'node', format: 'cjs',
-    target: 'es2022', logLevel: 'error', external: ['@duckdb/node-api'],
-  });
+  script = await bundleEngineWorker(dir);
 });
 
 afterAll(() => worker?.dispose());
