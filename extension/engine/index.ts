@@ -14,7 +14,7 @@ import type { Evaluation } from './evaluate/types';
 import type { Conventions } from './metrics/conventions';
 import type { MetricSpec } from './metrics/registry';
 import type { RankedDump } from './model/dump';
-import { readDump as readDumpFile, type ReadOptions } from './readers/index';
+import { readDump as readDumpFile, readJudgments, type ReadOptions } from './readers/index';
 import { chooseReading, type ReadingMode } from './stream/choose';
 import { streamEvaluate, type StreamedDump, type StreamEvaluateOptions } from './stream/streamEvaluate';
 
@@ -80,9 +80,12 @@ export async function streamIfFit(path: string, read: ReadOptions, metrics: read
   options: StreamOrReadOptions = {}): Promise<StreamIfFit> {
   const choice = await chooseReading(path, read, options.reading ?? 'auto', options.streamFromBytes);
   if (!choice.stream) return { kind: 'declined', why: choice.why, tried: false };
+  // A named judgments file is read first, so its errors come before the stream's work, as the read's do.
+  const judgments = read.judgments === undefined ? undefined
+    : { table: await readJudgments(read.judgments, read), missingQueries: read.missingQueries ?? 'skip' as const };
   const outcome = await streamEvaluate(path, choice.format, metrics, conventions, {
     ...options, ...(read.columns ? { columns: read.columns } : {}), ...(read.threads !== undefined ? { threads: read.threads } : {}),
-    ...(read.signal ? { signal: read.signal } : {}),
+    ...(read.signal ? { signal: read.signal } : {}), ...(judgments ? { judgments } : {}),
   });
   return outcome.kind === 'streamed' ? outcome : { kind: 'declined', why: outcome.reason, tried: true };
 }

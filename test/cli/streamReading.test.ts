@@ -59,7 +59,7 @@ describe('eval --reading stream', () => {
     expect(streamed.stderr).toBe(memory.stderr);
   });
 
-  it('says why it read in memory: a file not grouped by query, a gzip file, a judgments file', () => {
+  it('says why it read in memory: a file not grouped by query, a gzip file, a run file\'s format', () => {
     const dir = fixtureDir({
       'mixed.tsv': 'query\titem\tgrade\tscore\npaint roller\ta\t1\t0.5\nled bulb e27\tb\t0\t0.2\npaint roller\tc\t2\t0.1\n',
     });
@@ -73,7 +73,23 @@ describe('eval --reading stream', () => {
     const gz = runCli(['eval', 'demo/runs/model-a.jsonl.gz', '--reading', 'stream', '--timings'], REPO);
     expect(gz.stderr.split('\n')[0]).toBe('reading: in memory, since only CSV and TSV stream (this is jsonl)');
     const judged = runCli(['eval', 'demo/runs/model-a.run', '--judgments', 'demo/judgments/grades.qrels', '--reading', 'stream', '--timings'], REPO);
-    expect(judged.stderr.split('\n')[0]).toBe('reading: in memory, since labels are joined from a judgments file');
+    expect(judged.stderr.split('\n')[0]).toBe('reading: in memory, since only CSV and TSV stream (this is run)');
+  });
+
+  it('streams a TSV whose labels come from --judgments, with the in-memory report byte for byte', () => {
+    const dir = fixtureDir({
+      'scores.tsv': 'query\titem\tscore\nq1\tsku-1\t0.9\nq1\tsku-2\t0.4\nq1\tsku-3\t0.1\nq2\tsku-4\t0.8\nq2\tsku-5\t0.7\n',
+      'grades.qrels': 'q1 0 sku-2 2\nq1 0 sku-9 3\nq2 0 sku-4 1\nq3 0 sku-1 1\n',
+    });
+    const args = ['eval', 'scores.tsv', '--judgments', 'grades.qrels', '--missing-queries', 'zero', '--format', 'json'];
+    const streamed = runCli([...args, '--reading', 'stream', '--timings'], dir);
+    expect(streamed.code).toBe(0);
+    expect(streamed.stderr).toMatch(/^timings: streamed read and score/);
+    const memory = runCli([...args, '--reading', 'memory'], dir);
+    expect(streamed.stdout).toBe(memory.stdout);
+    const report = JSON.parse(streamed.stdout);
+    // q3 is judged but has no row: scored 0 under --missing-queries zero; sku-9 was never retrieved.
+    expect(report.queryCount).toBe(3);
   });
 
   it('refuses an unknown reading mode in one line', () => {

@@ -21,24 +21,12 @@ import { gradeRange } from '../../extension/engine/evaluate/evaluate';
 import { joinTables } from '../../extension/engine/tables/join';
 import { TempDir } from './fixtures/readers/tempFiles';
 import { groupedDump, type GroupedShape } from './fixtures/streamFiles';
+import { plainEvaluation } from './fixtures/plainEvaluation';
 
 const tmp = new TempDir();
 afterAll(() => tmp.remove());
 
 const METRICS = parseMetricList(DEFAULT_METRICS);
-
-/** Every value of the evaluation, typed arrays as plain arrays (Object.is equality: NaN = NaN, 0 ≠ -0). */
-function plain(e: Evaluation): unknown {
-  const p = e.perQuery;
-  return {
-    ...e,
-    perQuery: {
-      items: [...p.items], relevant: [...p.relevant], unretrieved: p.unretrieved ? [...p.unretrieved] : undefined,
-      values: p.values.map((v) => [...v]), inversions: [...p.inversions], inversionCost: [...p.inversionCost], skipped: [...p.skipped],
-      rbpResidual: p.rbpResidual ? [...p.rbpResidual] : undefined,
-    },
-  };
-}
 
 const names = (pool: StringPool) => Array.from({ length: pool.size }, (_, i) => pool.get(i));
 
@@ -54,7 +42,7 @@ async function both(file: string, conventions: Conventions, metrics = METRICS, b
 async function expectIdentical(file: string, conventions: Conventions, metrics = METRICS, blockBytes = 700): Promise<number> {
   const { dump, memory, streamed } = await both(file, conventions, metrics, blockBytes);
   expect(streamed.blocks).toBeGreaterThan(3);
-  expect(plain(streamed.evaluation)).toEqual(plain(memory));
+  expect(plainEvaluation(streamed.evaluation)).toEqual(plainEvaluation(memory));
   // toEqual treats NaN as NaN but not 0 as -0 everywhere; the report bytes settle the rest.
   for (let m = 0; m < metrics.length; m++) {
     const a = memory.perQuery.values[m]!;
@@ -123,7 +111,7 @@ describe('streamed against in memory, seeded files of every shape', () => {
     for (const blockBytes of [1, 50, 333, 4096, 1 << 20]) {
       const s = await streamEvaluate(file, 'tsv', METRICS, DEFAULT_CONVENTIONS, { blockBytes });
       expect(s.kind).toBe('streamed');
-      if (s.kind === 'streamed') expect(plain(s.evaluation)).toEqual(plain(memory));
+      if (s.kind === 'streamed') expect(plainEvaluation(s.evaluation)).toEqual(plainEvaluation(memory));
     }
   });
 });

@@ -11,7 +11,8 @@ import { parseMetricList } from '../../extension/engine/metrics/parse';
 import { DEFAULT_METRICS } from '../../extension/engine/metrics/registry';
 import { streamEvaluate } from '../../extension/engine/stream/streamEvaluate';
 import { TempDir } from '../engine/fixtures/readers/tempFiles';
-import { groupedDump } from '../engine/fixtures/streamFiles';
+import { groupedDump, judgmentsFor } from '../engine/fixtures/streamFiles';
+import { readJudgments } from '../../extension/engine/readers/index';
 import { useBundledWorkers } from './support/workers';
 
 const tmp = new TempDir();
@@ -31,6 +32,24 @@ describe('streaming on worker threads', () => {
       expect(s.blocks).toBeGreaterThan(10);
       expect(JSON.stringify(s.evaluation, replacer)).toBe(JSON.stringify(memory, replacer));
     }
+  });
+
+  it('joins a judgments file on the threads (the table shared, not copied) as the in-memory read joins it', async () => {
+    const text = groupedDump(22, { queries: 120, maxRows: 12, scoreLevels: 4, duplicateShare: 0.05 });
+    const file = tmp.file('judged.tsv', text);
+    const judgments = tmp.file('judged.judgments.tsv', judgmentsFor(text, 5, { unretrievedPerQuery: 4, unretrievedTopGrade: 6 }));
+    const dump = await readDump(file, { judgments, missingQueries: 'zero' });
+    const memory = await evaluateDump(dump, METRICS, DEFAULT_CONVENTIONS, { threads: 1 });
+    const table = await readJudgments(judgments);
+    for (const threads of [1, 2]) {
+      const s = await streamEvaluate(file, 'tsv', METRICS, DEFAULT_CONVENTIONS, { blockBytes: 900, threads, judgments: { table, missingQueries: 'zero' } });
+      if (s.kind !== 'streamed') throw new Error(`fell back: ${s.reason}`);
+      expect(s.threads).toBe(threads);
+      expect(JSON.stringify(s.evaluation, replacer)).toBe(JSON.stringify(memory, replacer));
+      // The judged items no row names are counted from marks every thread left in the shared table.
+      expect(s.dump.notes).toEqual(dump.notes);
+    }
+    await waitForThreads();
   });
 
   it('reports a bad row at its line and leaves no thread behind', async () => {

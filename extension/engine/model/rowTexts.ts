@@ -107,6 +107,20 @@ export class RowTexts {
     return arena.subarray(r === 0 ? 0 : ends[r - 1]!, ends[r]!);
   }
 
+  /** out[r] = the id of row r's bytes in `pool`, or -1 when the pool lacks them (no view made per row). */
+  findEachIn(pool: BytePool, out: Int32Array): void {
+    const parts = this.earlier.length === 0 ? [this.exportState()] : this.earlier;
+    let row = 0;
+    for (const { arena, ends, count } of parts) {
+      let from = 0;
+      for (let r = 0; r < count; r++, row++) {
+        const to = ends[r]!;
+        out[row] = pool.findBytes(arena, from, to);
+        from = to;
+      }
+    }
+  }
+
   text(row: number): string {
     return decoder.decode(this.bytesOf(row));
   }

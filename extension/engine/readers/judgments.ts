@@ -159,6 +159,11 @@ export function unusedJudgmentsNote(judgments: string): string {
   return `${judgments} was found beside the dump but names none of its queries; it is not used (the dump's own labels are).`;
 }
 
+/** The error of a judgments file that names none of the run's queries (nothing to take labels from). */
+export function noSharedQueryError(table: JudgmentTable, runPath: string): InputError {
+  return new InputError(`${SHARES_NO_QUERY} (none of its ${table.queries.size} queries appear in the run ${runPath})`, table.path);
+}
+
 /** Adds a string to a dump's pool (both pool kinds intern). */
 function addTo(pool: StringPool, text: string): number {
   if (pool instanceof BytePool) return pool.internString(text);
@@ -170,9 +175,7 @@ function addTo(pool: StringPool, text: string): number {
 export function joinJudgments(dump: RankedDump, table: JudgmentTable, policy: MissingQueriesPolicy = 'skip'): RankedDump {
   const judgedQueries = table.queries.size;
   const dumpQueries = dump.queries.size;
-  if (!sharesQuery(dump.queries, table)) {
-    throw new InputError(`${SHARES_NO_QUERY} (none of its ${judgedQueries} queries appear in the run ${dump.path})`, table.path);
-  }
+  if (!sharesQuery(dump.queries, table)) throw noSharedQueryError(table, dump.path);
   const queryInDump = new Int32Array(judgedQueries);
   for (let q = 0; q < judgedQueries; q++) queryInDump[q] = idIn(table.queries, q, dump.queries);
   const itemInDump = new Int32Array(table.items.size);
@@ -271,7 +274,7 @@ function sideTable(dump: RankedDump, table: JudgmentTable, queryInDump: Int32Arr
 }
 
 /** Reader notes; the counts of the join are told by the evaluation's warnings (evaluate/warnings.ts). */
-function describeJoin(join: JudgmentsJoin, unknownItems: number): string[] {
+export function describeJoin(join: JudgmentsJoin, unknownItems: number): string[] {
   const notes = [`labels from the judgments file ${join.path}`];
   if (unknownItems > 0) notes.push(`${unknownItems} judged items do not occur anywhere in the run`);
   return notes;

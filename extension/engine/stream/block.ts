@@ -27,6 +27,7 @@ import type { ColumnRoles } from '../readers/roles';
 import { pumpRange, type RecordSink } from '../readers/source';
 import { indexOfByte } from '../readers/byteSearch';
 import { joinTables } from '../tables/join';
+import { judgmentLookup, labelOptional, releaseJudgmentLookup, type BlockJudged, type SharedJudgments } from './sharedJudgments';
 
 export interface BlockTask {
   readonly path: string;
@@ -56,6 +57,8 @@ export interface BlockTask {
   readonly distinctGrades: boolean;
   /** Give each scored query's segment values (its first row's), for segment means over the streamed queries. */
   readonly segmentValues?: boolean;
+  /** Labels come from this judgments table (the dump's label column is then optional), joined block by block. */
+  readonly judgments?: SharedJudgments;
 }
 
 /** A run of one query's rows: its id, first line (counted from 1 at the block start) and byte range. */
@@ -100,6 +103,8 @@ export type BlockResult =
     readonly tally: RangeTally;
     readonly largestQuery: number;
     readonly grades?: number[];
+    /** The join's counts over the block's rows, when labels come from a judgments table. */
+    readonly judged?: BlockJudged;
   }
   | { readonly kind: 'empty'; readonly lines: number }
   | { readonly kind: 'quoted' }
@@ -161,6 +166,7 @@ export function releaseBlockMemory(): void {
   reused = undefined;
   itemPool = undefined;
   texts = undefined;
+  releaseJudgmentLookup();
 }
 
 /** Rows a block of `bytes` bytes is given room for before its columns spill into arrays of their own. */
@@ -170,7 +176,7 @@ export async function readBlock(task: BlockTask): Promise<BlockResult> {
   // A stitched query is read alone and seldom: it takes fresh arrays and leaves the reused ones alone.
   const shared = task.whole ? undefined : rowSpace(task.segmentCount, Math.ceil((task.end - task.start) / BYTES_PER_ROW_GUESS));
   if (shared) texts ??= new RowTexts(shared.rows, 16);
-  const parser = new DelimitedParser({ file: task.path, delimiter: task.delimiter, columns: task.columns, expectedBytes: task.end - task.start,
+  const parser = new DelimitedParser({ file: task.path, delimiter: task.delimiter, columns: task.judgments ? labelOptional(task.columns) : task.columns, expectedBytes: task.end - task.start,
     ...(shared ? { shared, itemTexts: texts } : {}) }, { names: task.names });
   if (!task.whole) parser.columns!.items = items();
   try {
@@ -204,6 +210,8 @@ function scoreBlock(task: BlockTask, dump: RankedDump, lines: number): BlockResu
     runs++;
     runStart = r;
   }
+  // As in memory, the judgments are joined before the weights (readers, then tables/join.ts).
+  const judged = task.judgments ? judgmentLookup(task.judgments).joinBlock(dump) : undefined;
   let weights: Float64Array | undefined;
   if (task.weights) {
     try {
@@ -214,6 +222,11 @@ function scoreBlock(task: BlockTask, dump: RankedDump, lines: number): BlockResu
     }
   }
   const gaps = summariseRows(dump.label, dump.score, 0, n);
+  // The in-memory join's grade range counts the unretrieved judged grades too (readers/judgments.ts).
+  for (const g of dump.unretrieved?.grade ?? []) {
+    if (g < gaps.lowest) gaps.lowest = g;
+    if (g > gaps.highest) gaps.highest = g;
+  }
   const groups = groupByQuery(dump);
   const start = groups.start;
   const piece = (q: number): RunPiece => ({
@@ -268,7 +281,8 @@ function scoreBlock(task: BlockTask, dump: RankedDump, lines: number): BlockResu
     },
     tally,
     largestQuery: largestScored,
-    ...(task.distinctGrades ? { grades: distinctGrades(dump.label) } : {}),
+    ...(task.distinctGrades ? { grades: distinctGrades(dump.label, dump.unretrieved?.grade) } : {}),
+    ...(judged ? { judged } : {}),
   };
 }
 
@@ -285,15 +299,17 @@ function slicePerQuery(p: PerQueryColumns, from: number, to: number): PerQueryCo
   };
 }
 
-/** Grades as metrics see them (unjudged = 0), each once. */
-function distinctGrades(label: Float64Array): number[] {
+/** Grades as metrics see them (unjudged = 0), each once, with the unretrieved judged grades. */
+function distinctGrades(label: Float64Array, unretrieved: Float64Array | undefined): number[] {
   const seen = new Set<number>();
   for (let r = 0; r < label.length; r++) {
     const g = label[r]!;
     seen.add(g !== g ? 0 : g);
   }
+  for (const g of unretrieved ?? []) seen.add(g);
   return [...seen];
 }
+
 
 /** The buffers of a result, to transfer rather than copy between threads. */
 export function blockTransferList(result: BlockResult): ArrayBuffer[] {

@@ -2,7 +2,8 @@
  * Whether a dump is scored as it streams in or read into memory first. Streaming serves what only needs
  * the per-query table (the report, the worst queries, the sensitivity rows); it holds no row columns, so
  * the views that read rows (segments of the dump's own columns, diagnostics, a query's detail read from
- * memory) and the joins (judgments, side tables) take the in-memory path.
+ * memory) and the joins of side tables take the in-memory path. A judgments file streams: each block is
+ * joined to it (sharedJudgments.ts).
  */
 import { promises as fsp } from 'node:fs';
 import { detectFormat } from '../readers/detect';
@@ -23,7 +24,9 @@ export type StreamChoice = { readonly stream: true; readonly format: 'csv' | 'ts
 /** `fromBytes` replaces STREAM_FROM_BYTES for `auto` (the editor's setting). */
 export async function chooseReading(path: string, options: ReadOptions, mode: ReadingMode, fromBytes = STREAM_FROM_BYTES): Promise<StreamChoice> {
   if (mode === 'memory') return { stream: false, why: 'asked for' };
-  if (options.judgments !== undefined) return { stream: false, why: 'labels are joined from a judgments file' };
+  // A named judgments file is joined block by block; one found beside the dump is joined only when it names
+  // the dump's queries, which is known once the dump is read.
+  if (options.judgments !== undefined && options.judgmentsFound === true) return { stream: false, why: 'a judgments file found beside it may belong to other data' };
   if (options.scores !== undefined) return { stream: false, why: 'scores are joined from a scores file' };
   const sniffed = await detectFormat(path, options);
   if (sniffed.format !== 'csv' && sniffed.format !== 'tsv') return { stream: false, why: `only CSV and TSV stream (this is ${sniffed.format})` };

@@ -12,19 +12,24 @@ import type { RankedDump } from '../model/dump';
 import { DelimitedParser } from '../readers/delimited';
 import { pumpRange } from '../readers/source';
 import type { StreamedDump } from './streamEvaluate';
+import { joinQueryRows } from './streamJudgments';
+import { labelOptional } from './sharedJudgments';
 
 /** The rows of query `query` read again: a dump holding that one query. */
 export async function readQueryRows(dump: StreamedDump, query: number): Promise<RankedDump> {
   const { start, end, line } = dump.locations;
-  const parser = new DelimitedParser({ file: dump.path, delimiter: dump.format === 'csv' ? 44 : 9, ...(dump.columns ? { columns: dump.columns } : {}),
+  const parser = new DelimitedParser({ file: dump.path, delimiter: dump.format === 'csv' ? 44 : 9, ...(dump.judgments ? { columns: labelOptional(dump.columns) } : dump.columns ? { columns: dump.columns } : {}),
     firstLine: line[query]! }, { names: [...dump.names] });
   await pumpRange(dump.path, start[query]!, end[query]!, parser, () => undefined, Math.max(4096, end[query]! - start[query]!));
   const rows = parser.columns!;
   const read = rows.finish(dump.path, dump.format, dump.stamp);
-  if (read.queries.size !== 1 || read.queries.get(0) !== dump.queries.get(query)) {
-    throw new InputError(`the rows of query '${dump.queries.get(query)}' where they were read (the file changed?)`, dump.path, line[query]);
+  const name = dump.queries.get(query);
+  // A judged query the run lacks (missing queries `zero`) has no rows: its detail is its judged items.
+  const absent = dump.judgments !== undefined && dump.locations.rows[query] === 0 && read.rowCount === 0;
+  if (!absent && (read.queries.size !== 1 || read.queries.get(0) !== name)) {
+    throw new InputError(`the rows of query '${name}' where they were read (the file changed?)`, dump.path, line[query]);
   }
-  return read;
+  return dump.judgments ? joinQueryRows(read, name, dump.judgments) : read;
 }
 
 export async function streamedQueryDetail(dump: StreamedDump, query: number, conventions: Conventions, k: number,

@@ -41,6 +41,8 @@ import { blockBounds, readHeaderLine } from './fileBlocks';
 import { PartialMeans } from './partialMeans';
 import { newSensitivityPassWith, scoredBlockSetup } from './setup';
 import { QueryReappeared, StreamColumns, type QueryLocations } from './streamColumns';
+import { labelOptional, shareJudgments } from './sharedJudgments';
+import { absentQueries, absentQueriesUnfit, JoinCounts, joinedNotes, scoreAbsentQueries, type StreamJudgments } from './streamJudgments';
 
 /** Bytes per block: large enough that a block's fixed costs vanish, small enough that two in flight stay small. */
 export const DEFAULT_BLOCK_BYTES = 32 << 20;
@@ -58,6 +60,8 @@ export interface StreamEvaluateOptions {
   readonly onProgress?: (fraction: number) => void;
   /** Called after each block is taken in, with the headline of the queries scored so far. */
   readonly onPartial?: (partial: StreamPartial) => void;
+  /** Labels from a judgments table, joined block by block as the in-memory read joins them (sharedJudgments.ts). */
+  readonly judgments?: StreamJudgments;
 }
 
 /** The queries scored so far, while the rest of the file is still being read. */
@@ -89,6 +93,8 @@ export interface StreamedDump {
    */
   readonly querySegments?: readonly { readonly name: string; readonly values: StringPool; readonly ofQuery: Uint32Array }[];
   readonly columns?: ColumnRoles;
+  /** The judgments the labels came from, to join a query read again for its detail. */
+  readonly judgments?: StreamJudgments;
 }
 
 export type StreamOutcome =
@@ -118,7 +124,8 @@ export async function streamEvaluate(path: string, format: 'csv' | 'tsv', metric
 async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp, metrics: readonly MetricSpec[], conventions: Conventions,
   options: StreamEvaluateOptions): Promise<StreamOutcome> {
   const delimiter = format === 'csv' ? 44 : 9;
-  const header = await readHeaderLine(path, delimiter, options.columns);
+  const judging = options.judgments;
+  const header = await readHeaderLine(path, delimiter, judging ? labelOptional(options.columns) : options.columns);
   if (header === undefined) return { kind: 'fallback', reason: 'the header line holds a quote' };
   const weightColumn = header.segmentNames.find(isWeightName);
   const bounds = await blockBounds(path, header.end, stamp.size, options.blockBytes ?? DEFAULT_BLOCK_BYTES);
@@ -129,8 +136,10 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
   const keepSegments = options.segments === true && header.segmentNames.length > 0;
   const table = new StreamColumns(metrics.length, blank.hasRbp, spec?.variantCount, weightColumn !== undefined, keepSegments ? header.segmentNames.length : 0);
   const mapGain = conventions.gain.kind === 'map';
+  const sharedJudgments = judging ? shareJudgments(judging.table) : undefined;
+  const joinCounts = new JoinCounts();
   const base = { path, format, delimiter, names: header.names, segmentCount: header.segmentNames.length, ...(options.columns ? { columns: options.columns } : {}), metrics, conventions, sensitivity,
-    distinctGrades: mapGain, weights: weightColumn !== undefined, segmentValues: keepSegments };
+    distinctGrades: mapGain, weights: weightColumn !== undefined, segmentValues: keepSegments, ...(sharedJudgments ? { judgments: sharedJudgments } : {}) };
   const threads = Math.max(1, Math.min(16, Math.floor(options.threads ?? Math.min(4, availableParallelism()))));
   const runner = startBlockRunner(threads, options.signal);
   const blocks = bounds.length - 1;
@@ -199,6 +208,7 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
       state.largest = Math.max(state.largest, result.largestQuery);
       for (const g of result.grades ?? []) state.grades.add(g);
       addTally(state.tally, result.tally);
+      joinCounts.add(result.judged);
       options.onProgress?.((bounds[k + 1]! - bounds[0]!) / Math.max(1, stamp.size - bounds[0]!));
       if (options.onPartial && partialMeans) {
         options.onPartial({ queries: table.size, rows: state.rows, bytesRead: bounds[k + 1]!, totalBytes: stamp.size, summary: partialMeans.summary() });
@@ -206,6 +216,15 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
     }
     closeOpen();
     if (state.rows === 0) return { kind: 'fallback', reason: 'the file has no data row' };
+    const absent = judging && sharedJudgments ? absentQueries(judging, sharedJudgments, table.queries, path) : undefined;
+    const unfit = absent && absentQueriesUnfit(absent, judging!, weightColumn !== undefined, keepSegments);
+    if (unfit) return { kind: 'fallback', reason: unfit };
+    // Under missing queries `zero` the judged queries without rows join the dump, and their grades its range.
+    const zeroAbsent = absent && judging!.missingQueries === 'zero' && absent.names.length > 0 ? absent : undefined;
+    if (zeroAbsent) {
+      state.gaps.push(zeroAbsent.range);
+      for (const g of zeroAbsent.side.grade) state.grades.add(g);
+    }
     const summary = addSummaries(state.gaps);
     const range = gradeRangeOf(summary);
     for (const e of edges) state.largest = Math.max(state.largest, e.rows);
@@ -214,18 +233,26 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
     const gmax = conventions.maxGrade ?? range.highest;
     const refused = await settleQueries(runner, table, edges, scoredBlocks, taskFor, gmax, anyNeeds(metrics, 'maxGrade'), state.tally);
     if (refused !== undefined) return weightsRefused(refused);
+    const runQueries = table.size;
+    if (zeroAbsent) {
+      const absentScored = scoreAbsentQueries(zeroAbsent, metrics, conventions, gmax, sensitivity);
+      table.addScored(absentScored.scored, 0);
+      addTally(state.tally, absentScored.tally);
+    }
     await checkUnchanged(path, stamp);
     const notes = header.notes;
     notes.unjudgedRows = summary.unjudged;
     notes.missingScoreRows = summary.missing;
     notes.gradeRange = range;
     const view = table.finish();
+    if (judging && sharedJudgments && absent) joinedNotes(notes, judging, sharedJudgments, joinCounts, absent, view.perQuery, runQueries);
     // As the in-memory join gives it (tables/join.ts): the weight of each query from its rows.
     const joined = view.weight && weightColumn !== undefined ? { notes: [], queryWeight: view.weight, weightSource: `column '${weightColumn}' of ${path}` } : undefined;
     const querySegments = keepSegments ? header.segmentNames.map((name, k) => ({ name, values: table.segment(k).pool, ofQuery: table.segment(k).ofQuery }))
       .filter((s) => s.name !== weightColumn) : undefined;
     const dump: StreamedDump = { path, format, stamp, rowCount: state.rows, queries: table.queries, notes, locations: view.locations,
-      names: header.names, ...(options.columns ? { columns: options.columns } : {}), ...(joined ? { joined } : {}), ...(querySegments ? { querySegments } : {}) };
+      names: header.names, ...(options.columns ? { columns: options.columns } : {}), ...(joined ? { joined } : {}), ...(querySegments ? { querySegments } : {}),
+      ...(judging ? { judgments: judging } : {}) };
     const setup = scoredBlockSetup(metrics, conventions, { rowsOfQuery: new Uint32Array(0), start: new Uint32Array(table.size + 1) }, table.size, gmax,
       sensitivity, range, state.largest);
     const pass = sensitivity ? newSensitivityPass(setup) : undefined;

@@ -1,0 +1,156 @@
+/**
+ * What a judgments join needs of the whole streamed file, settled once every block is in: the blocks
+ * joined their own rows (sharedJudgments.ts); here the judged queries with no row are found (counted, and
+ * under missing queries `zero` added after the run's queries as queries without rows, scored 0 as the
+ * in-memory path scores them), the judged items no row names are counted, and the dump's notes are
+ * written as the in-memory join writes them (readers/judgments.ts `joinJudgments`).
+ */
+import { allocatePerQuery, emptyTally, RangeScorer, sensitivityColumns, type RangeTally } from '../evaluate/evaluate';
+import type { PerQueryColumns } from '../evaluate/types';
+import type { Conventions } from '../metrics/conventions';
+import type { MetricSpec } from '../metrics/registry';
+import type { JudgmentsJoin, MissingQueriesPolicy, RankedDump, ReaderNotes, UnretrievedJudged } from '../model/dump';
+import type { RowSummary } from '../model/rowSummary';
+import type { StringPool } from '../model/stringPool';
+import { describeJoin, joinJudgments, noSharedQueryError, sharesQuery, type JudgmentTable } from '../readers/judgments';
+import { BytePool } from '../model/bytePool';
+import type { ScoredRuns } from './block';
+import { JOIN_EXAMPLES, type BlockJudged, type SharedJudgments } from './sharedJudgments';
+import { newSensitivityPassWith, scoredBlockSetup } from './setup';
+
+/** Labels for a streamed dump from a judgments table (read before the stream, so its errors come first). */
+export interface StreamJudgments {
+  readonly table: JudgmentTable;
+  readonly missingQueries: MissingQueriesPolicy;
+}
+
+/** The blocks' row-level join counts, added in file order. */
+export class JoinCounts {
+  inlineRows = 0;
+  disagreements = 0;
+  readonly examples: string[] = [];
+
+  add(block: BlockJudged | undefined): void {
+    if (block === undefined) return;
+    this.inlineRows += block.inlineRows;
+    this.disagreements += block.disagreements;
+    for (const e of block.examples) if (this.examples.length < JOIN_EXAMPLES) this.examples.push(e);
+  }
+}
+
+/** Judged queries with no row in the run, in the judgments' order, with their judgments as a side table. */
+export interface AbsentQueries {
+  readonly names: string[];
+  /** Judgment lines whose query has no row in the run. */
+  readonly lines: number;
+  /** Their judgments, grouped by absent query (`firstAbsentQuery` 0: every query of it is absent). */
+  readonly side: UnretrievedJudged;
+  /** Their grades' extremes as a row summary of no rows (the in-memory range counts them under `zero`). */
+  readonly range: RowSummary;
+}
+
+/**
+ * The judged queries the streamed queries lack. A table that shares no query with them is the in-memory
+ * join's error (the stream then gives no result, as the read gives none).
+ */
+export function absentQueries(judging: StreamJudgments, shared: SharedJudgments, streamed: StringPool, dumpPath: string): AbsentQueries {
+  const { table } = judging;
+  if (!sharesQuery(streamed, table)) throw noSharedQueryError(table, dumpPath);
+  const names: string[] = [];
+  const absent: number[] = [];
+  for (let q = 0; q < table.queries.size; q++) {
+    const name = table.queries.get(q);
+    if (streamed.find(name) >= 0) continue;
+    names.push(name);
+    absent.push(q);
+  }
+  const start = new Uint32Array(absent.length + 1);
+  absent.forEach((q, k) => (start[k + 1] = start[k]! + shared.start[q + 1]! - shared.start[q]!));
+  const total = start[absent.length]!;
+  const grade = new Float64Array(total);
+  const item = new Uint32Array(total);
+  const line = new Uint32Array(total);
+  const range: RowSummary = { unjudged: 0, missing: 0, lowest: Infinity, highest: -Infinity };
+  let at = 0;
+  for (const q of absent) {
+    for (let e = shared.start[q]!; e < shared.start[q + 1]!; e++) {
+      const j = shared.order[e]!;
+      grade[at] = shared.grade[j]!;
+      item[at] = shared.item[j]!;
+      line[at++] = shared.line[j]!;
+      range.lowest = Math.min(range.lowest, shared.grade[j]!);
+      range.highest = Math.max(range.highest, shared.grade[j]!);
+    }
+  }
+  return { names, lines: total, side: { start, grade, item, line, firstAbsentQuery: 0 }, range };
+}
+
+/**
+ * The absent queries scored as the in-memory path scores a judged query without rows (0 on every metric,
+ * never skipped; evaluate.ts `scoreAbsent`), as a block's scored runs with no place in the file.
+ */
+export function scoreAbsentQueries(absent: AbsentQueries, metrics: readonly MetricSpec[], conventions: Conventions, gmax: number,
+  sensitivity: boolean): { scored: ScoredRuns; tally: RangeTally } {
+  const n = absent.names.length;
+  const setup = scoredBlockSetup(metrics, conventions, { rowsOfQuery: new Uint32Array(0), start: new Uint32Array(n + 1) }, n, gmax, sensitivity);
+  const perQuery = allocatePerQuery(n, metrics, setup.hasRbp, (bytes) => new ArrayBuffer(bytes));
+  const pass = sensitivity ? newSensitivityPassWith(setup, () => undefined) : undefined;
+  const recorded = pass ? sensitivityColumns(pass, n, (bytes) => new ArrayBuffer(bytes)) : undefined;
+  if (pass && recorded) pass.recordInto(recorded);
+  const tally = emptyTally();
+  const columns = { item: new Uint32Array(0), label: new Float64Array(0), score: new Float64Array(0), unretrieved: absent.side };
+  new RangeScorer(setup, columns, perQuery, pass).score(0, n, tally);
+  const nowhere = new Float64Array(n);
+  return {
+    scored: { names: absent.names, start: nowhere, end: nowhere, line: new Uint32Array(n), rows: new Uint32Array(n), perQuery, ...(recorded ? { sensitivity: recorded } : {}) },
+    tally,
+  };
+}
+
+/** The dump's notes after the join, as `joinJudgments` leaves them; `runQueries` are the streamed queries (absent ones follow). */
+export function joinedNotes(notes: ReaderNotes, judging: StreamJudgments, shared: SharedJudgments, counts: JoinCounts, absent: AbsentQueries,
+  perQuery: PerQueryColumns, runQueries: number): void {
+  let unretrieved = 0;
+  for (let q = 0; q < runQueries; q++) unretrieved += perQuery.unretrieved![q]!;
+  let unknownItems = 0;
+  for (let i = 0; i < judging.table.items.size; i++) unknownItems += 1 - shared.seenItems[i]!;
+  const join: JudgmentsJoin = {
+    path: judging.table.path, unretrieved, absentQueries: absent.names.length, absentExamples: absent.names.slice(0, JOIN_EXAMPLES),
+    missingQueries: judging.missingQueries, inlineLabelRows: counts.inlineRows, disagreements: counts.disagreements, disagreementExamples: counts.examples,
+  };
+  notes.judgments = join;
+  notes.judgmentsWithoutRun = absent.lines;
+  notes.judgedQueriesWithoutRun = absent.names.length;
+  notes.messages.push(...describeJoin(join, unknownItems));
+}
+
+/** Why a stream of this shape gives way to the in-memory read, or undefined when it can go on. */
+export function absentQueriesUnfit(absent: AbsentQueries, judging: StreamJudgments, weighted: boolean, segments: boolean): string | undefined {
+  if (judging.missingQueries !== 'zero' || absent.names.length === 0) return undefined;
+  if (weighted) return 'judged queries missing from the run are scored 0 and need weights of their own (reading in memory gives them)';
+  if (segments) return 'judged queries missing from the run are scored 0 and have no segment value (reading in memory gives them)';
+  return undefined;
+}
+
+/**
+ * A query read again for its detail (a dump of that one query, maybe without rows: a judged query the
+ * run lacks), joined to its own judgments by the in-memory join, so the detail lists its unretrieved
+ * judged items by name.
+ */
+export function joinQueryRows(rows: RankedDump, query: string, judging: StreamJudgments): RankedDump {
+  const { table } = judging;
+  const own = table.queries.find(query);
+  const queries = new BytePool();
+  queries.internString(query);
+  const items = new BytePool();
+  const picked: number[] = [];
+  for (let j = 0; j < table.grade.length; j++) if (table.query[j] === own) picked.push(j);
+  if (picked.length === 0) return { ...rows, label: new Float64Array(rows.rowCount).fill(NaN) };
+  const sub: JudgmentTable = {
+    path: table.path, queries, items, query: new Uint32Array(picked.length),
+    item: Uint32Array.from(picked, (j) => items.internString(table.items.get(table.item[j]!))),
+    grade: Float64Array.from(picked, (j) => table.grade[j]!), line: Uint32Array.from(picked, (j) => table.line[j]!),
+  };
+  if (rows.queries.size === 0) (rows.queries as BytePool).internString(query);
+  return joinJudgments(rows, sub, 'skip');
+}

@@ -1,0 +1,190 @@
+/**
+ * A dump that streams with its labels from a judgments file, against the in-memory read of the same
+ * files (readDump with `judgments`, then evaluateDump): every per-query value, count, note and warning
+ * bit for bit, the JSON report byte for byte, and each query's detail. Blocks are tiny so that queries
+ * straddle block boundaries and are joined again whole. Runs on this thread (no thread scripts under
+ * vitest); test/worker/stream-threads.test.ts runs the join on worker threads.
+ *
+ * The rules themselves (a judgment replaces the row's label, judged items a query lacks count in its
+ * ideal ranking and its judged-set denominators) are the in-memory join's, checked against published
+ * definitions in test/engine/judgments*.test.ts; here the stream must give exactly what it gives.
+ */
+import { afterAll, describe, expect, it } from 'vitest';
+import { evaluateDump, readDump, streamOrRead } from '../../extension/engine/index';
+import type { Evaluation } from '../../extension/engine/evaluate/types';
+import { queryDetail } from '../../extension/engine/evaluate/detail';
+import { gradeRange } from '../../extension/engine/evaluate/evaluate';
+import { DEFAULT_CONVENTIONS, type Conventions } from '../../extension/engine/metrics/conventions';
+import { parseMetricList } from '../../extension/engine/metrics/parse';
+import { DEFAULT_METRICS } from '../../extension/engine/metrics/registry';
+import type { MissingQueriesPolicy } from '../../extension/engine/model/dump';
+import type { StringPool } from '../../extension/engine/model/stringPool';
+import { readJudgments } from '../../extension/engine/readers/index';
+import { formatReport } from '../../extension/engine/report/index';
+import { streamedQueryDetail } from '../../extension/engine/stream/queryDetail';
+import { streamEvaluate } from '../../extension/engine/stream/streamEvaluate';
+import { TempDir } from './fixtures/readers/tempFiles';
+import { plainEvaluation } from './fixtures/plainEvaluation';
+import { groupedDump, judgmentsFor, type GroupedShape, type JudgmentsShape } from './fixtures/streamFiles';
+
+const tmp = new TempDir();
+afterAll(() => tmp.remove());
+
+const METRICS = parseMetricList(DEFAULT_METRICS);
+const names = (pool: StringPool) => Array.from({ length: pool.size }, (_, i) => pool.get(i));
+
+/** The dump's text without its grade column: a score-only dump whose labels live in the judgments alone. */
+function withoutGrades(text: string): string {
+  return text.split('\n').map((line) => line.split('\t').filter((_, k) => k !== 2).join('\t')).join('\n');
+}
+
+async function streamJoined(file: string, judgments: string, policy: MissingQueriesPolicy, conventions: Conventions, metrics = METRICS, blockBytes = 700) {
+  const table = await readJudgments(judgments);
+  return streamEvaluate(file, 'tsv', metrics, conventions, { blockBytes, judgments: { table, missingQueries: policy } });
+}
+
+async function expectIdentical(file: string, judgments: string, policy: MissingQueriesPolicy, conventions: Conventions = DEFAULT_CONVENTIONS,
+  metrics = METRICS): Promise<Evaluation> {
+  const dump = await readDump(file, { judgments, missingQueries: policy });
+  const memory = await evaluateDump(dump, metrics, conventions, { threads: 1 });
+  const streamed = await streamJoined(file, judgments, policy, conventions, metrics);
+  if (streamed.kind !== 'streamed') throw new Error(`fell back: ${streamed.reason}`);
+  expect(streamed.blocks).toBeGreaterThan(3);
+  expect(plainEvaluation(streamed.evaluation)).toEqual(plainEvaluation(memory));
+  for (let m = 0; m < metrics.length; m++) {
+    const a = memory.perQuery.values[m]!;
+    const b = streamed.evaluation.perQuery.values[m]!;
+    for (let q = 0; q < a.length; q++) if (!Object.is(a[q], b[q])) throw new Error(`${metrics[m]!.key} of query ${q}: ${a[q]} vs ${b[q]}`);
+  }
+  expect(names(streamed.dump.queries)).toEqual(names(dump.queries));
+  expect(streamed.dump.rowCount).toBe(dump.rowCount);
+  expect(streamed.dump.notes).toEqual(dump.notes);
+  const report = (evaluation: Evaluation, queryNames: StringPool) => formatReport('json', { evaluation, queryNames, source: 'dump', rowCount: dump.rowCount }, { worst: 10 });
+  expect(report(streamed.evaluation, streamed.dump.queries)).toBe(report(memory, dump.queries));
+  return memory;
+}
+
+const CASES: [string, GroupedShape, JudgmentsShape][] = [
+  ['the usual mix', { queries: 60, maxRows: 12 }, {}],
+  ['ties, repeated items and unjudged rows', { queries: 60, maxRows: 12, scoreLevels: 3, duplicateShare: 0.15, unjudgedShare: 0.1 }, { skipRowShare: 0.3 }],
+  ['many unretrieved judged items', { queries: 50, maxRows: 8 }, { unretrievedPerQuery: 12, disagreeShare: 0.3 }],
+  ['no relevant queries and bad scores', { queries: 60, maxRows: 10, noRelevantShare: 0.3, badScoreShare: 0.1 }, { unjudgedQueryShare: 0.3 }],
+  ['one query longer than many blocks', { queries: 10, maxRows: 200, scoreLevels: 5 }, { unretrievedPerQuery: 5 }],
+];
+
+describe('streamed with a judgments file against in memory, seeded files', () => {
+  for (const [name, shape, judged] of CASES) {
+    it(name, async () => {
+      for (const seed of [1, 2]) {
+        const text = groupedDump(seed, shape);
+        const file = tmp.file(`${name.replace(/\W+/g, '-')}-${seed}.tsv`, text);
+        const judgments = tmp.file(`${name.replace(/\W+/g, '-')}-${seed}.judgments.tsv`, judgmentsFor(text, seed + 100, judged));
+        const memory = await expectIdentical(file, judgments, 'skip');
+        // The fixture is what it claims: labels replaced, judged items unretrieved, judged queries absent.
+        const notes = (await readDump(file, { judgments })).notes;
+        expect(notes.judgments!.disagreements).toBeGreaterThan(0);
+        expect(notes.judgments!.unretrieved).toBeGreaterThan(0);
+        expect(notes.judgedQueriesWithoutRun).toBe(3);
+        expect(memory.perQuery.unretrieved!.some((u) => u > 0)).toBe(true);
+        await expectIdentical(file, judgments, 'zero');
+      }
+    });
+  }
+
+  it('a score-only dump (no grade column): every label from the judgments', async () => {
+    const text = groupedDump(3, { queries: 60, maxRows: 10 });
+    const file = tmp.file('scores-only.tsv', withoutGrades(text));
+    const judgments = tmp.file('scores-only.judgments.tsv', judgmentsFor(text, 7));
+    const memory = await expectIdentical(file, judgments, 'skip');
+    expect((await readDump(file, { judgments })).notes.judgments!.inlineLabelRows).toBe(0);
+    expect(memory.summary[0]!.counted).toBeGreaterThan(30);
+  });
+
+  it('under other conventions and metric lists, with ERR\'s highest grade only among unretrieved judged items', async () => {
+    const text = groupedDump(9, { queries: 50, maxRows: 10, scoreLevels: 4, noRelevantShare: 0.2 });
+    const file = tmp.file('conventions.tsv', text);
+    // Grade 6 appears only on judged items no row names: g_max must come from them, in memory and streamed.
+    const judgments = tmp.file('conventions.judgments.tsv', judgmentsFor(text, 19, { unretrievedPerQuery: 4, unretrievedTopGrade: 6 }));
+    const variants: Conventions[] = [
+      { ...DEFAULT_CONVENTIONS, ties: 'pessimistic' },
+      { ...DEFAULT_CONVENTIONS, ties: 'optimistic', noRelevant: 'zero' },
+      { ...DEFAULT_CONVENTIONS, ties: 'file-order', noRelevant: 'one' },
+      { ...DEFAULT_CONVENTIONS, gain: { kind: 'linear' }, relevantFrom: 2 },
+      { ...DEFAULT_CONVENTIONS, gain: { kind: 'map', gains: new Map([[0, 0], [1, 1], [2, 3], [3, 7], [4, 15], [6, 40]]) } },
+    ];
+    for (const c of variants) await expectIdentical(file, judgments, 'skip', c);
+    const memory = await expectIdentical(file, judgments, 'zero', DEFAULT_CONVENTIONS, parseMetricList('err@5,ndcg,tau,judged@5,r@10,ap'));
+    expect(memory.warnings.join(' ')).toMatch(/never retrieved/);
+    const notes = (await readDump(file, { judgments })).notes;
+    expect(notes.gradeRange?.highest).toBe(6);
+  });
+});
+
+describe('what the join needs of the whole file', () => {
+  it('a judgments file that shares no query is the in-memory error, word for word', async () => {
+    const file = tmp.file('unrelated.tsv', groupedDump(5, { queries: 20, maxRows: 5 }));
+    const judgments = tmp.file('unrelated.qrels', 'tap-washer 0 SKU-1 1\ntap-washer 0 SKU-2 0\n');
+    const memory = await readDump(file, { judgments }).then(() => 'read', (e: Error) => e.message);
+    const streamed = await streamJoined(file, judgments, 'skip', DEFAULT_CONVENTIONS).then(() => 'read', (e: Error) => e.message);
+    expect(memory).toMatch(/judgments file sharing queries with the run/);
+    expect(streamed).toBe(memory);
+  });
+
+  it('judgment lines (query unused item grade) and the items no row names are counted as in memory', async () => {
+    const rows = ['query\titem\tscore'];
+    for (let q = 1; q <= 30; q++) for (let i = 1; i <= 6; i++) rows.push(`q${q}\tSKU-${q * 10 + i}\t${(7 - i) / 10}`);
+    const file = tmp.file('lines.tsv', rows.join('\n') + '\n');
+    const qrels: string[] = [];
+    for (let q = 1; q <= 32; q++) for (const i of [1, 3, 8]) qrels.push(`q${q} 0 SKU-${q * 10 + i} ${i % 3}`);
+    const judgments = tmp.file('lines.qrels', qrels.join('\n') + '\n');
+    await expectIdentical(file, judgments, 'skip');
+    const notes = (await readDump(file, { judgments })).notes;
+    // Named by no row: SKU-q8 of each of the 30 run queries (rows name SKU-q1 to SKU-q6), and the three
+    // items of each of the 2 judged queries the run lacks: 36.
+    expect(notes.messages).toContain('36 judged items do not occur anywhere in the run');
+    expect(notes.judgedQueriesWithoutRun).toBe(2);
+  });
+
+  it('under missing queries zero, a weight column or kept segments make the stream give way with the reason', async () => {
+    const text = groupedDump(12, { queries: 30, maxRows: 6, weights: true });
+    const file = tmp.file('weighted.tsv', text);
+    const judgments = tmp.file('weighted.judgments.tsv', judgmentsFor(text, 3));
+    const s = await streamJoined(file, judgments, 'zero', DEFAULT_CONVENTIONS);
+    expect(s.kind === 'fallback' && s.reason).toMatch(/need weights of their own/);
+    // Without judged queries missing from the run, or under `skip`, it streams.
+    expect((await streamJoined(file, judgments, 'skip', DEFAULT_CONVENTIONS)).kind).toBe('streamed');
+  });
+
+  it('through the engine entry, a named judgments file no longer stops a stream', async () => {
+    const text = groupedDump(14, { queries: 30, maxRows: 6 });
+    const file = tmp.file('entry.tsv', text);
+    const judgments = tmp.file('entry.judgments.tsv', judgmentsFor(text, 4));
+    const outcome = await streamOrRead(file, { judgments, missingQueries: 'zero' }, METRICS, DEFAULT_CONVENTIONS, { reading: 'stream' });
+    expect(outcome.kind).toBe('streamed');
+    const memory = await evaluateDump(await readDump(file, { judgments, missingQueries: 'zero' }), METRICS, DEFAULT_CONVENTIONS, { threads: 1 });
+    if (outcome.kind === 'streamed') expect(plainEvaluation(outcome.evaluation)).toEqual(plainEvaluation(memory));
+    // A file found beside the dump (not named) is joined only if it names the dump's queries: that is known after a read.
+    const found = await streamOrRead(file, { judgments, judgmentsFound: true }, METRICS, DEFAULT_CONVENTIONS, { reading: 'stream' });
+    expect(found.kind === 'read' && found.why).toBe('a judgments file found beside it may belong to other data');
+  });
+});
+
+describe('a query in detail', () => {
+  it('gives the in-memory detail of every query, unretrieved judged items by name, judged queries the run lacks too', async () => {
+    const text = groupedDump(31, { queries: 30, maxRows: 10, scoreLevels: 3, duplicateShare: 0.1 });
+    const file = tmp.file('detail.tsv', text);
+    const judgments = tmp.file('detail.judgments.tsv', judgmentsFor(text, 8, { unretrievedPerQuery: 3 }));
+    const dump = await readDump(file, { judgments, missingQueries: 'zero' });
+    const s = await streamJoined(file, judgments, 'zero', DEFAULT_CONVENTIONS, METRICS, 500);
+    if (s.kind !== 'streamed') throw new Error('fell back');
+    const range = gradeRange(dump);
+    let unretrievedShown = 0;
+    for (let q = 0; q < dump.queries.size; q++) {
+      const memory = queryDetail(dump, q, DEFAULT_CONVENTIONS, 10, { metrics: METRICS, gradeRange: range });
+      const streamed = await streamedQueryDetail(s.dump, q, DEFAULT_CONVENTIONS, 10, { metrics: METRICS });
+      expect(streamed).toEqual(memory);
+      unretrievedShown += memory.notRetrieved?.length ?? 0;
+    }
+    expect(unretrievedShown).toBeGreaterThan(10);
+  });
+});
