@@ -12,7 +12,7 @@ import { InputError } from '../engine/errors';
 import { queryDetail, type GradeRange } from '../engine/evaluate/detail';
 import { headlineCutoff } from '../engine/evaluate/scorer';
 import type { Evaluation } from '../engine/evaluate/types';
-import { readDump, segmentRowsOf, streamIfFit, streamOrRead, type RankedDump, type StreamedDump, type StreamIfFit, type StreamPartial } from '../engine/index';
+import { readDump, segmentRowsOf, streamIfFit, streamOrRead, type RankedDump, type ReadOptions, type StreamedDump, type StreamIfFit, type StreamPartial } from '../engine/index';
 import { judgmentsShareQuery } from '../engine/readers/index';
 import { unusedJudgmentsNote } from '../engine/readers/judgments';
 import type { StringPool } from '../engine/model/stringPool';
@@ -60,19 +60,24 @@ export type StreamLoad =
   | { readonly kind: 'declined'; readonly note?: string };
 
 /**
- * Whether the source can stream at all: what is joined from other files needs the rows in memory, except
- * files found beside the dump by the naming rule (none named by the user), which often belong to other
- * data: the stream goes ahead and checks them against the queries it saw (loadStreamOrRead).
+ * Whether the source can stream at all. A judgments file, named or found, is joined block by block (engine
+ * stream/sharedJudgments.ts). Side tables and a scores file need the rows in memory, except tables found
+ * beside the dump by the naming rule (none named by the user), which often belong to other data: the
+ * stream goes ahead and checks them against the queries it saw (loadStreamOrRead).
  */
 export function mayStream(source: DumpSource): boolean {
   if (source.sqlEngine !== undefined || source.scores !== undefined) return false;
-  const judgments = source.judgments === undefined || source.judgmentsFound === true;
-  const tables = (source.queries === undefined && source.items === undefined) || source.tablesFound === true;
-  return judgments && tables;
+  return (source.queries === undefined && source.items === undefined) || source.tablesFound === true;
+}
+
+/** The read options of a judgments file joined as the dump streams (the missing-queries policy with it). */
+function judgedBy(source: DumpSource): Pick<ReadOptions, 'judgments' | 'missingQueries'> {
+  return { judgments: source.judgments, ...(source.missingQueries ? { missingQueries: source.missingQueries } : {}) };
 }
 
 function sideFiles(source: DumpSource): string[] {
-  return [source.judgments !== undefined && `judgments file ${source.judgments}`, source.scores !== undefined && `scores file ${source.scores}`,
+  // A judgments file streams with the dump (mayStream), so it is never why a dump was read into memory.
+  return [source.scores !== undefined && `scores file ${source.scores}`,
     source.queries !== undefined && `queries table ${source.queries}`, source.items !== undefined && `items table ${source.items}`].filter((f) => f !== false);
 }
 
@@ -91,6 +96,8 @@ export async function loadStreamOrRead(source: DumpSource, settings: EvaluationS
     onProgress: options.onReadProgress,
     ...(source.format ? { format: source.format as never } : {}),
     ...(source.columns ? { columns: source.columns } : {}),
+    // A judgments file named for the dump is joined as it streams; one found beside it only once it is known to name its queries.
+    ...(source.judgments !== undefined && source.judgmentsFound !== true ? judgedBy(source) : {}),
   };
   const conventions = describeConventions(settings.conventions);
   const fileName = source.path.split(/[\\/]/).pop() ?? source.path;
@@ -109,6 +116,15 @@ export async function loadStreamOrRead(source: DumpSource, settings: EvaluationS
     const outcome = await streamIfFit(source.path, read, metrics, settings.conventions, streamOptions);
     if (outcome.kind === 'declined') return { kind: 'declined', ...(outcome.tried ? { note: gaveWay(outcome.why) } : {}) };
     const check = await checkFoundFiles(source, outcome.dump.queries, options.signal);
+    if (check.related.length === 1 && check.judgmentsRelated) {
+      // The found judgments name its queries: streamed again with them joined, so memory stays flat.
+      const joined = await streamIfFit(source.path, { ...read, ...judgedBy(source) }, metrics, settings.conventions, streamOptions);
+      if (joined.kind === 'streamed') {
+        const note = `${source.judgments} was found beside the dump and names its queries: the dump was streamed a second time to join its labels.`;
+        return { kind: 'streamed', ...streamedSession(joined, fileName, options.started, [note, ...check.notes]) };
+      }
+      return { kind: 'declined', ...(joined.tried ? { note: gaveWay(joined.why) } : {}) };
+    }
     if (check.related.length > 0) {
       return { kind: 'declined', note: `Read into memory rather than streamed: ${check.related.join(' and ')}, found beside it, ` +
         `${check.related.length > 1 ? 'name' : 'names'} its queries, and joining needs its rows.` };
@@ -124,9 +140,9 @@ export async function loadStreamOrRead(source: DumpSource, settings: EvaluationS
   return { kind: 'streamed', ...streamedSession(outcome, fileName, options.started, []) };
 }
 
-/** The side files found beside the dump (there are none else when mayStream holds). */
+/** The side files found beside the dump, not named for it (a named judgments file streams with it; named tables do not stream). */
 function foundFiles(source: DumpSource): string[] {
-  return [source.judgments, source.queries, source.items].filter((f): f is string => f !== undefined);
+  return [source.judgmentsFound === true ? source.judgments : undefined, source.queries, source.items].filter((f): f is string => f !== undefined);
 }
 
 /**
@@ -135,11 +151,13 @@ function foundFiles(source: DumpSource): string[] {
  * none is left out, with the read's note. An items table can only be checked against item ids, which a
  * stream does not keep: it is left out, with a note saying so (it only adds titles to a query's detail).
  */
-async function checkFoundFiles(source: DumpSource, queries: StringPool, signal: AbortSignal): Promise<{ related: string[]; notes: string[] }> {
+async function checkFoundFiles(source: DumpSource, queries: StringPool, signal: AbortSignal): Promise<{ related: string[]; notes: string[]; judgmentsRelated: boolean }> {
   const related: string[] = [];
   const notes: string[] = [];
-  if (source.judgments !== undefined) {
-    if (await judgmentsShareQuery(source.judgments, queries, { signal })) related.push(`the judgments file ${source.judgments}`);
+  let judgmentsRelated = false;
+  if (source.judgments !== undefined && source.judgmentsFound === true) {
+    judgmentsRelated = await judgmentsShareQuery(source.judgments, queries, { signal });
+    if (judgmentsRelated) related.push(`the judgments file ${source.judgments}`);
     else notes.push(unusedJudgmentsNote(source.judgments));
   }
   if (source.queries !== undefined) {
@@ -149,7 +167,7 @@ async function checkFoundFiles(source: DumpSource, queries: StringPool, signal: 
   if (source.items !== undefined) {
     notes.push(`${source.items} was found beside the dump; it is not used while streaming (item titles need the dump's rows).`);
   }
-  return { related, notes };
+  return { related, notes, judgmentsRelated };
 }
 
 /** The session and overview of a streamed dump; `notes` go before the dump's own. */

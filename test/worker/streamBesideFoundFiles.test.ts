@@ -70,18 +70,26 @@ describe('streaming beside files found by the naming rule', () => {
     expect(streamed.warnings.filter((w) => w.startsWith('Read into memory'))).toEqual([]);
   });
 
-  it('reads into memory, joined, when a found judgments file names its queries', async () => {
+  it('streams again with the labels joined when a found judgments file names its queries', async () => {
     const judgments = join(side, 'kettlewood.judgments.tsv');
-    writeFileSync(judgments, `query_id\titem_id\tlabel\n${QUERY_NAMES[0]} 0\tsku-0-0\t4\n${QUERY_NAMES[1]} 1\tsku-1-9\t2\n`);
+    writeFileSync(judgments, `query_id\titem_id\tlabel\n${QUERY_NAMES[0]} 0\tsku-0-0\t4\n${QUERY_NAMES[1]} 1\tsku-1-9\t2\n${QUERY_NAMES[1]} 1\tsku-1-unseen\t3\n`);
     const source: DumpSource = { path: file, judgments, judgmentsFound: true };
-    const { memory, streamed } = await loadBoth('related', source);
+    const { memory, streamed, partials } = await loadBoth('related', source);
     expect(streamed.metrics).toEqual(memory.metrics);
     expect(streamed.queryCount).toBe(memory.queryCount);
-    expect(streamed.warnings.some((w) => w.startsWith('Streamed:'))).toBe(false);
-    expect(streamed.warnings).toContain(`Read into memory rather than streamed: the judgments file ${judgments}, found beside it, names its queries, and joining needs its rows.`);
+    expect(streamed.degenerate).toEqual(memory.degenerate);
+    expect(partials.length).toBeGreaterThan(0);
+    expect(streamed.warnings.some((w) => w.startsWith('Streamed:'))).toBe(true);
+    expect(streamed.warnings).toContain(`${judgments} was found beside the dump and names its queries: the dump was streamed a second time to join its labels.`);
+    expect(streamed.warnings.filter((w) => w.startsWith('Read into memory'))).toEqual([]);
     // The join happened: nearly every row is unjudged, which the dump's own labels are not.
     const own = await worker.call('load', { session: 'related-own', source: { path: file }, settings });
     expect(streamed.metrics).not.toEqual(own.metrics);
+    // A joined query's detail lists its judged item the run never retrieved, as in memory.
+    const query = `${QUERY_NAMES[1]} 1`;
+    const detail = await worker.call('queryDetail', { session: 'related-stream', query });
+    expect(detail).toEqual(await worker.call('queryDetail', { session: 'related-memory', query }));
+    expect(JSON.stringify(detail)).toContain('sku-1-unseen');
   });
 
   it('reads into memory, joined, when a found queries table names its queries', async () => {
@@ -95,8 +103,11 @@ describe('streaming beside files found by the naming rule', () => {
     expect(streamed.warnings).toContain(`Read into memory rather than streamed: the queries table ${queries}, found beside it, names its queries, and joining needs its rows.`);
   });
 
-  it('still reads into memory, and says why, when the judgments file was named rather than found', async () => {
+  it('a named judgments file streams with the dump, and one that names none of its queries is the read\'s error', async () => {
     const source: DumpSource = { path: file, judgments: unrelated.judgments };
-    await expect(worker.call('load', { session: 'named', source, settings, streamFromBytes: 0 })).rejects.toThrow(/sharing queries with the run/);
+    const memory = await worker.call('load', { session: 'named-memory', source, settings }).catch((e: Error) => e.message);
+    const streamed = await worker.call('load', { session: 'named', source, settings, streamFromBytes: 0 }).catch((e: Error) => e.message);
+    expect(memory).toMatch(/sharing queries with the run/);
+    expect(streamed).toBe(memory);
   });
 });

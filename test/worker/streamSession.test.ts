@@ -113,15 +113,37 @@ describe('a dump streamed in the editor', () => {
     expect(overview.sensitivityLater).toBe(true);
   });
 
-  it('reads into memory, and says why, when a judgments file is joined to a dump large enough to stream', async () => {
+  it('streams with a named judgments file, giving the in-memory views of the joined dump', async () => {
     const judgments = join(dir, 'kettlewood.judgments.tsv');
-    writeFileSync(judgments, `query_id\titem_id\tlabel\n${QUERY_NAMES[0]} 0\tsku-0-0\t3\n`);
+    const lines = ['query_id\titem_id\tlabel'];
+    for (let q = 0; q < 6000; q += 3) lines.push(`${QUERY_NAMES[q % QUERY_NAMES.length]} ${q}\tsku-${q}-0\t${q % 5}`, `${QUERY_NAMES[q % QUERY_NAMES.length]} ${q}\tsku-${q}-judged-only\t3`);
+    writeFileSync(judgments, lines.join('\n') + '\n');
+    const source = { path: file, judgments, missingQueries: 'skip' as const };
+    const memory = await worker.call('load', { session: 'judged-memory', source, settings });
     const partials: PartialOverview[] = [];
-    const overview = await worker.call('load', { session: 'judged', source: { path: file, judgments }, settings, streamFromBytes: 0 },
+    const streamed = await worker.call('load', { session: 'judged', source, settings, streamFromBytes: 0 },
+      { onProgress: (_f, _m, partial) => partial && partials.push(partial) });
+    expect(partials.length).toBeGreaterThan(0);
+    expect(streamed.warnings.some((w) => w.startsWith('Streamed:'))).toBe(true);
+    expect(streamed.metrics).toEqual(memory.metrics);
+    expect(streamed.degenerate).toEqual(memory.degenerate);
+    const { rows: sensitivity } = await worker.call('overviewSensitivity', { session: 'judged-memory' });
+    expect(streamed.sensitivity).toEqual(sensitivity);
+    const query = `${QUERY_NAMES[0]} 0`;
+    const detail = await worker.call('queryDetail', { session: 'judged', query });
+    expect(detail).toEqual(await worker.call('queryDetail', { session: 'judged-memory', query }));
+    expect(JSON.stringify(detail)).toContain('sku-0-judged-only');
+  });
+
+  it('reads into memory, and says why, when a named queries table is joined to a dump large enough to stream', async () => {
+    const queries = join(dir, 'kettlewood.queries.tsv');
+    writeFileSync(queries, `query_id\tdevice\n${QUERY_NAMES[0]} 0\tmobile\n`);
+    const partials: PartialOverview[] = [];
+    const overview = await worker.call('load', { session: 'tabled', source: { path: file, queries }, settings, streamFromBytes: 0 },
       { onProgress: (_f, _m, partial) => partial && partials.push(partial) });
     expect(partials).toEqual([]);
     expect(overview.warnings.filter((w) => w.startsWith('Read into memory rather than streamed'))).toEqual([
-      `Read into memory rather than streamed (it is over gainline.reading.streamFromMegabytes), since the judgments file ${judgments} goes with it, and joining needs its rows.`]);
+      `Read into memory rather than streamed (it is over gainline.reading.streamFromMegabytes), since the queries table ${queries} goes with it, and joining needs its rows.`]);
   });
 
   it('names a missing file in the same words with or without a threshold', async () => {
