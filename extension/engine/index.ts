@@ -17,6 +17,7 @@ import type { RankedDump } from './model/dump';
 import { readDump as readDumpFile, readJudgments, type ReadOptions } from './readers/index';
 import { chooseReading, type ReadingMode } from './stream/choose';
 import { streamEvaluate, type StreamedDump, type StreamEvaluateOptions } from './stream/streamEvaluate';
+import { streamJudgments } from './stream/streamJudgments';
 
 export { configureEngine, DEFAULT_TUNING, type EngineConfiguration, type EngineSettings, type EngineTuning } from './config';
 export type { ChunkOutput } from './evaluate/chunkOutput';
@@ -82,7 +83,7 @@ export async function streamIfFit(path: string, read: ReadOptions, metrics: read
   if (!choice.stream) return { kind: 'declined', why: choice.why, tried: false };
   // A named judgments file is read first, so its errors come before the stream's work, as the read's do.
   const judgments = read.judgments === undefined ? undefined
-    : { table: await readJudgments(read.judgments, read), missingQueries: read.missingQueries ?? 'skip' as const };
+    : streamJudgments(await readJudgments(read.judgments, read), read.missingQueries ?? 'skip');
   const outcome = await streamEvaluate(path, choice.format, metrics, conventions, {
     ...options, ...(read.columns ? { columns: read.columns } : {}), ...(read.threads !== undefined ? { threads: read.threads } : {}),
     ...(read.signal ? { signal: read.signal } : {}), ...(judgments ? { judgments } : {}),

@@ -23,6 +23,7 @@ import { readJudgments } from '../../extension/engine/readers/index';
 import { formatReport } from '../../extension/engine/report/index';
 import { streamedQueryDetail } from '../../extension/engine/stream/queryDetail';
 import { streamEvaluate } from '../../extension/engine/stream/streamEvaluate';
+import { streamJudgments } from '../../extension/engine/stream/streamJudgments';
 import { TempDir } from './fixtures/readers/tempFiles';
 import { plainEvaluation } from './fixtures/plainEvaluation';
 import { groupedDump, judgmentsFor, type GroupedShape, type JudgmentsShape } from './fixtures/streamFiles';
@@ -40,7 +41,7 @@ function withoutGrades(text: string): string {
 
 async function streamJoined(file: string, judgments: string, policy: MissingQueriesPolicy, conventions: Conventions, metrics = METRICS, blockBytes = 700) {
   const table = await readJudgments(judgments);
-  return streamEvaluate(file, 'tsv', metrics, conventions, { blockBytes, judgments: { table, missingQueries: policy } });
+  return streamEvaluate(file, 'tsv', metrics, conventions, { blockBytes, judgments: streamJudgments(table, policy) });
 }
 
 async function expectIdentical(file: string, judgments: string, policy: MissingQueriesPolicy, conventions: Conventions = DEFAULT_CONVENTIONS,

@@ -10,6 +10,7 @@ import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions'
 import { parseMetricList } from '../../extension/engine/metrics/parse';
 import { DEFAULT_METRICS } from '../../extension/engine/metrics/registry';
 import { streamEvaluate } from '../../extension/engine/stream/streamEvaluate';
+import { streamJudgments } from '../../extension/engine/stream/streamJudgments';
 import { TempDir } from '../engine/fixtures/readers/tempFiles';
 import { groupedDump, judgmentsFor } from '../engine/fixtures/streamFiles';
 import { readJudgments } from '../../extension/engine/readers/index';
@@ -42,7 +43,7 @@ describe('streaming on worker threads', () => {
     const memory = await evaluateDump(dump, METRICS, DEFAULT_CONVENTIONS, { threads: 1 });
     const table = await readJudgments(judgments);
     for (const threads of [1, 2]) {
-      const s = await streamEvaluate(file, 'tsv', METRICS, DEFAULT_CONVENTIONS, { blockBytes: 900, threads, judgments: { table, missingQueries: 'zero' } });
+      const s = await streamEvaluate(file, 'tsv', METRICS, DEFAULT_CONVENTIONS, { blockBytes: 900, threads, judgments: streamJudgments(table, 'zero') });
       if (s.kind !== 'streamed') throw new Error(`fell back: ${s.reason}`);
       expect(s.threads).toBe(threads);
       expect(JSON.stringify(s.evaluation, replacer)).toBe(JSON.stringify(memory, replacer));

@@ -107,7 +107,11 @@ export class BytePool implements StringPool {
 
   /** The id of bytes[start, end), or -1 when never interned. */
   findBytes(bytes: Uint8Array, start: number, end: number): number {
-    const hash = hashBytes(bytes, start, end);
+    return this.findHashed(bytes, start, end, hashBytes(bytes, start, end));
+  }
+
+  /** `findBytes` for callers that computed `hashBytes(bytes, start, end)` already. */
+  findHashed(bytes: Uint8Array, start: number, end: number, hash: number): number {
     let slot = hash & this.mask;
     for (;;) {
       const record = this.table[2 * slot]!;

@@ -107,16 +107,29 @@ export class RowTexts {
     return arena.subarray(r === 0 ? 0 : ends[r - 1]!, ends[r]!);
   }
 
-  /** out[r] = the id of row r's bytes in `pool`, or -1 when the pool lacks them (no view made per row). */
+  /**
+   * out[r] = the id of row r's bytes in `pool`, or -1 when the pool lacks them. Rows are looked up in
+   * batches whose table slots are read first (BytePool.warm), so the cache misses of a large pool overlap.
+   */
   findEachIn(pool: BytePool, out: Int32Array): void {
     const parts = this.earlier.length === 0 ? [this.exportState()] : this.earlier;
+    const batch = 64;
+    const hashes = new Int32Array(batch);
+    const records = new Int32Array(batch);
+    const starts = new Uint32Array(batch);
     let row = 0;
     for (const { arena, ends, count } of parts) {
-      let from = 0;
-      for (let r = 0; r < count; r++, row++) {
-        const to = ends[r]!;
-        out[row] = pool.findBytes(arena, from, to);
-        from = to;
+      for (let from = 0; from < count; from += batch) {
+        const n = Math.min(batch, count - from);
+        for (let b = 0; b < n; b++) {
+          const r = from + b;
+          const s = r === 0 ? 0 : ends[r - 1]!;
+          starts[b] = s;
+          hashes[b] = hashBytes(arena, s, ends[r]!);
+        }
+        pool.warm(hashes, n, records);
+        for (let b = 0; b < n; b++) out[row + b] = pool.findHashed(arena, starts[b]!, ends[from + b]!, hashes[b]!);
+        row += n;
       }
     }
   }

@@ -15,7 +15,6 @@ import { itemOfRow, type RankedDump, type UnretrievedJudged } from '../model/dum
 import { RowTexts } from '../model/rowTexts';
 import type { StringPool } from '../model/stringPool';
 import type { JudgmentTable } from '../readers/judgments';
-import { PairIndex } from '../readers/pairIndex';
 import type { ColumnRoles } from '../readers/roles';
 
 /** A judgment table in shared memory, handed to every block task without copying. */
@@ -94,7 +93,12 @@ export function shareJudgments(table: JudgmentTable): SharedJudgments {
 export class JudgmentLookup {
   readonly queries: BytePool;
   readonly items: BytePool;
-  private readonly pairs: PairIndex;
+  /**
+   * Judgment + 1 of each judged item within the query being joined (0: not judged for it), set from the
+   * query's own judgments and cleared after its rows: four bytes per judged item, where an index of every
+   * (query, item) pair would take twelve per judgment on every thread.
+   */
+  private readonly entryOfItem: Int32Array;
   /** Marks the judgments a block's rows use; cleared again for each query once its side table is made. */
   private readonly used: Uint8Array;
   private itemIds = new Int32Array(1024);
@@ -102,10 +106,8 @@ export class JudgmentLookup {
   constructor(readonly table: SharedJudgments) {
     this.queries = BytePool.fromState(table.queries);
     this.items = BytePool.fromState(table.items);
-    const n = table.grade.length;
-    this.pairs = new PairIndex(n);
-    for (let j = 0; j < n; j++) this.pairs.add(table.query[j]!, table.item[j]!, j);
-    this.used = new Uint8Array(n);
+    this.entryOfItem = new Int32Array(table.items.count);
+    this.used = new Uint8Array(table.grade.length);
   }
 
   /**
@@ -123,14 +125,22 @@ export class JudgmentLookup {
     const { query, label } = dump;
     const { seenItems, grade } = t;
     const used = this.used;
+    const entryOfItem = this.entryOfItem;
     let inlineRows = 0;
     let disagreements = 0;
     const examples: string[] = [];
+    let current = -1;
     for (let r = 0; r < n; r++) {
       const ti = itemIds[r]!;
       if (ti >= 0) seenItems[ti] = 1;
       const tq = judgedQuery[query[r]!]!;
-      const j = tq >= 0 && ti >= 0 ? this.pairs.find(tq, ti) : -1;
+      if (tq !== current) {
+        // A new query (once per run of rows: a block's rows are grouped by query when they are joined).
+        this.markItems(current, 0);
+        this.markItems(tq, 1);
+        current = tq;
+      }
+      const j = tq >= 0 && ti >= 0 ? entryOfItem[ti]! - 1 : -1;
       const judged = j < 0 ? NaN : grade[j]!;
       if (j >= 0) used[j] = 1;
       const inline = label[r]!;
@@ -145,8 +155,19 @@ export class JudgmentLookup {
       }
       label[r] = judged;
     }
+    this.markItems(current, 0);
     (dump as { unretrieved?: UnretrievedJudged }).unretrieved = this.sideTable(judgedQuery);
     return { inlineRows, disagreements, examples };
+  }
+
+  /** Sets entryOfItem for the items judged for query `tq` of the table (judgment + 1), or clears it (`on` 0). */
+  private markItems(tq: number, on: 0 | 1): void {
+    if (tq < 0) return;
+    const t = this.table;
+    for (let e = t.start[tq]!; e < t.start[tq + 1]!; e++) {
+      const j = t.order[e]!;
+      this.entryOfItem[t.item[j]!] = on * (j + 1);
+    }
   }
 
   /** The judged items each block query's rows did not name, file order within a query (as the in-memory side table). */

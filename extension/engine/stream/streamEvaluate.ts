@@ -41,7 +41,7 @@ import { blockBounds, readHeaderLine } from './fileBlocks';
 import { PartialMeans } from './partialMeans';
 import { newSensitivityPassWith, scoredBlockSetup } from './setup';
 import { QueryReappeared, StreamColumns, type QueryLocations } from './streamColumns';
-import { labelOptional, shareJudgments } from './sharedJudgments';
+import { labelOptional } from './sharedJudgments';
 import { absentQueries, absentQueriesUnfit, JoinCounts, joinedNotes, scoreAbsentQueries, type StreamJudgments } from './streamJudgments';
 
 /** Bytes per block: large enough that a block's fixed costs vanish, small enough that two in flight stay small. */
@@ -136,10 +136,11 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
   const keepSegments = options.segments === true && header.segmentNames.length > 0;
   const table = new StreamColumns(metrics.length, blank.hasRbp, spec?.variantCount, weightColumn !== undefined, keepSegments ? header.segmentNames.length : 0);
   const mapGain = conventions.gain.kind === 'map';
-  const sharedJudgments = judging ? shareJudgments(judging.table) : undefined;
   const joinCounts = new JoinCounts();
+  // The marks of a stream before (the same table streamed again) would count items this one never saw.
+  judging?.shared.seenItems.fill(0);
   const base = { path, format, delimiter, names: header.names, segmentCount: header.segmentNames.length, ...(options.columns ? { columns: options.columns } : {}), metrics, conventions, sensitivity,
-    distinctGrades: mapGain, weights: weightColumn !== undefined, segmentValues: keepSegments, ...(sharedJudgments ? { judgments: sharedJudgments } : {}) };
+    distinctGrades: mapGain, weights: weightColumn !== undefined, segmentValues: keepSegments, ...(judging ? { judgments: judging.shared } : {}) };
   const threads = Math.max(1, Math.min(16, Math.floor(options.threads ?? Math.min(4, availableParallelism()))));
   const runner = startBlockRunner(threads, options.signal);
   const blocks = bounds.length - 1;
@@ -216,7 +217,7 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
     }
     closeOpen();
     if (state.rows === 0) return { kind: 'fallback', reason: 'the file has no data row' };
-    const absent = judging && sharedJudgments ? absentQueries(judging, sharedJudgments, table.queries, path) : undefined;
+    const absent = judging ? absentQueries(judging, table.queries, path) : undefined;
     const unfit = absent && absentQueriesUnfit(absent, judging!, weightColumn !== undefined, keepSegments);
     if (unfit) return { kind: 'fallback', reason: unfit };
     // Under missing queries `zero` the judged queries without rows join the dump, and their grades its range.
@@ -245,7 +246,7 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
     notes.missingScoreRows = summary.missing;
     notes.gradeRange = range;
     const view = table.finish();
-    if (judging && sharedJudgments && absent) joinedNotes(notes, judging, sharedJudgments, joinCounts, absent, view.perQuery, runQueries);
+    if (judging && absent) joinedNotes(notes, judging, joinCounts, absent, view.perQuery, runQueries);
     // As the in-memory join gives it (tables/join.ts): the weight of each query from its rows.
     const joined = view.weight && weightColumn !== undefined ? { notes: [], queryWeight: view.weight, weightSource: `column '${weightColumn}' of ${path}` } : undefined;
     const querySegments = keepSegments ? header.segmentNames.map((name, k) => ({ name, values: table.segment(k).pool, ofQuery: table.segment(k).ofQuery }))

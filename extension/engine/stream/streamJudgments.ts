@@ -15,13 +15,28 @@ import type { StringPool } from '../model/stringPool';
 import { describeJoin, joinJudgments, noSharedQueryError, sharesQuery, type JudgmentTable } from '../readers/judgments';
 import { BytePool } from '../model/bytePool';
 import type { ScoredRuns } from './block';
-import { JOIN_EXAMPLES, type BlockJudged, type SharedJudgments } from './sharedJudgments';
+import { JOIN_EXAMPLES, shareJudgments, type BlockJudged, type SharedJudgments } from './sharedJudgments';
 import { newSensitivityPassWith, scoredBlockSetup } from './setup';
 
 /** Labels for a streamed dump from a judgments table (read before the stream, so its errors come first). */
 export interface StreamJudgments {
+  /** The table as the threads share it (`table` reads the same memory). */
+  readonly shared: SharedJudgments;
   readonly table: JudgmentTable;
   readonly missingQueries: MissingQueriesPolicy;
+}
+
+/**
+ * A judgments table made ready to stream with: copied into shared memory, and read from there on this
+ * thread too, so the table as read can be dropped (one copy of a large table, not two).
+ */
+export function streamJudgments(read: JudgmentTable, missingQueries: MissingQueriesPolicy): StreamJudgments {
+  const shared = shareJudgments(read);
+  const table: JudgmentTable = {
+    path: shared.path, queries: BytePool.fromState(shared.queries), items: BytePool.fromState(shared.items),
+    query: shared.query, item: shared.item, grade: shared.grade, line: shared.line,
+  };
+  return { shared, table, missingQueries };
 }
 
 /** The blocks' row-level join counts, added in file order. */
@@ -53,8 +68,8 @@ export interface AbsentQueries {
  * The judged queries the streamed queries lack. A table that shares no query with them is the in-memory
  * join's error (the stream then gives no result, as the read gives none).
  */
-export function absentQueries(judging: StreamJudgments, shared: SharedJudgments, streamed: StringPool, dumpPath: string): AbsentQueries {
-  const { table } = judging;
+export function absentQueries(judging: StreamJudgments, streamed: StringPool, dumpPath: string): AbsentQueries {
+  const { table, shared } = judging;
   if (!sharesQuery(streamed, table)) throw noSharedQueryError(table, dumpPath);
   const names: string[] = [];
   const absent: number[] = [];
@@ -108,8 +123,9 @@ export function scoreAbsentQueries(absent: AbsentQueries, metrics: readonly Metr
 }
 
 /** The dump's notes after the join, as `joinJudgments` leaves them; `runQueries` are the streamed queries (absent ones follow). */
-export function joinedNotes(notes: ReaderNotes, judging: StreamJudgments, shared: SharedJudgments, counts: JoinCounts, absent: AbsentQueries,
+export function joinedNotes(notes: ReaderNotes, judging: StreamJudgments, counts: JoinCounts, absent: AbsentQueries,
   perQuery: PerQueryColumns, runQueries: number): void {
+  const { shared } = judging;
   let unretrieved = 0;
   for (let q = 0; q < runQueries; q++) unretrieved += perQuery.unretrieved![q]!;
   let unknownItems = 0;
