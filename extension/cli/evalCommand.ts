@@ -36,8 +36,9 @@ Output:
                         and each position's share of the ideal DCG, model against ideal (table or json)
   --timings             print how long reading, scoring and writing the report took (standard error)
   --reading R           auto (default) | stream | memory: stream scores a CSV/TSV file whose rows are
-                        grouped by query block by block without keeping its rows (auto: from 1 GiB);
-                        a file that turns out not grouped, or quoted, is read into memory instead
+                        grouped by query block by block without keeping its rows (auto: from 1 GiB),
+                        joining --judgments block by block; a file that turns out not grouped, or
+                        quoted, is read into memory instead
 Where the numbers are computed:
   --engine E            local (default) | duckdb: DuckDB embedded computes the per-query table from a
                         CSV, TSV or Parquet file, or a folder of Parquet parts, in place (needs the npm

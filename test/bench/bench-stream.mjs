@@ -2,8 +2,11 @@
 // Streamed scoring of dumps grouped by query: `gainline eval` on a 100M-row TSV (about 6 GB; auto picks
 // the stream from 1 GiB), timed end to end with its peak memory, against the targets of at most 40 s wall
 // and 2 GB peak; and on a 10M-row TSV the stream against reading in memory, in the same run, with the two
-// reports checked equal byte for byte. The load average is printed beside every figure: on a shared
-// machine it says how much the seconds mean.
+// reports checked equal byte for byte. Then the same two files with their labels in a judgments file
+// (the dump without its grade column, test/bench/judgedVariant.mjs): the stream joins each block to the
+// judgments; on 10M rows against the in-memory join, reports checked equal; on 100M rows its time and peak
+// beside the inline-label run (no target: the judgments' own size adds to the peak). The load average is
+// printed beside every figure: on a shared machine it says how much the seconds mean.
 //
 //   node test/bench/bench-stream.mjs [--data-dir DIR] [--only 10m|100m] [--runs N]
 // The files are generated once (seeded, test/bench/groupedDump.mjs) into DIR (default $GAINLINE_BENCH_DATA,
@@ -14,6 +17,7 @@ import { join } from 'node:path';
 import { parseArgs } from 'node:util';
 import { dataDir, timedCli } from './benchTools.mjs';
 import { writeGroupedTsv } from './groupedDump.mjs';
+import { writeJudgedVariant } from './judgedVariant.mjs';
 
 const { values: args } = parseArgs({ options: { 'data-dir': { type: 'string' }, only: { type: 'string' }, runs: { type: 'string' } } });
 const dir = args['data-dir'] ?? process.env.GAINLINE_BENCH_DATA ?? dataDir;
@@ -31,6 +35,19 @@ function ensureFile(size) {
     writeGroupedTsv(file, size.rows, size.queries, 'kettlewood-grouped-1');
   }
   return file;
+}
+
+/** The score-only dump and its judgments file, made once from the grouped dump. */
+function ensureJudged(file) {
+  const base = file.replace(/\.tsv$/, '');
+  const scores = `${base}-scores.tsv`;
+  const judgments = `${base}-judgments.tsv`;
+  if (!existsSync(scores) || !existsSync(judgments)) {
+    console.log(`writing ${scores} and ${judgments}…`);
+    const w = writeJudgedVariant(file, scores, judgments);
+    console.log(`  ${w.judged.toLocaleString('en-US')} judgments for ${w.queries.toLocaleString('en-US')} queries`);
+  }
+  return { scores, judgments };
 }
 
 const load = () => loadavg().map((x) => x.toFixed(1)).join(' ');
@@ -59,6 +76,15 @@ for (const size of SIZES) {
     const same = s.stdout === m.stdout;
     console.log(`  stream / memory: ${(s.seconds / m.seconds).toFixed(2)}× wall, ${(s.cpu / m.cpu).toFixed(2)}× CPU, ${(s.peakMB / m.peakMB).toFixed(2)}× peak; ` +
       `reports ${same ? 'identical' : 'DIFFER'}`);
+    if (!same) process.exitCode = 1;
+  }
+  const { scores, judgments } = ensureJudged(file);
+  console.log(`  labels from ${judgments} (${(statSync(judgments).size / 1e6).toFixed(0)} MB):`);
+  const js = await measure('eval --judgments, streamed', ['eval', scores, '--judgments', judgments, '--format', 'json', '--reading', 'stream']);
+  if (size.name === '10m') {
+    const jm = await measure('eval --judgments, in memory', ['eval', scores, '--judgments', judgments, '--format', 'json', '--reading', 'memory']);
+    const same = js.stdout === jm.stdout;
+    console.log(`  stream / memory: ${(js.seconds / jm.seconds).toFixed(2)}× wall, ${(js.peakMB / jm.peakMB).toFixed(2)}× peak; reports ${same ? 'identical' : 'DIFFER'}`);
     if (!same) process.exitCode = 1;
   }
 }
