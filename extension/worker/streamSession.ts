@@ -13,7 +13,8 @@ import { queryDetail, type GradeRange } from '../engine/evaluate/detail';
 import { headlineCutoff } from '../engine/evaluate/scorer';
 import type { Evaluation } from '../engine/evaluate/types';
 import { readDump, segmentRowsOf, streamIfFit, streamOrRead, type RankedDump, type ReadOptions, type StreamedDump, type StreamIfFit, type StreamPartial } from '../engine/index';
-import { judgmentsShareQuery } from '../engine/readers/index';
+import { judgmentsShareQuery, readJudgments } from '../engine/readers/index';
+import { judgesFirstQueries } from '../engine/stream/firstQueries';
 import { unusedJudgmentsNote } from '../engine/readers/judgments';
 import type { StringPool } from '../engine/model/stringPool';
 import type { SegmentedRows } from '../engine/evaluate/segments';
@@ -112,12 +113,15 @@ export async function loadStreamOrRead(source: DumpSource, settings: EvaluationS
     sensitivity: true, segments: true, onPartial, onProgress: options.onProgress, signal: options.signal, blockBytes: editorBlockBytes(size) };
   const gaveWay = (why: string) => `Read into memory rather than streamed, since ${why}.`;
   if (found.length > 0) {
+    // A found judgments file that judges the dump's first queries goes with it: joined in the one stream.
+    const joinedAtOnce = source.judgmentsFound === true && source.judgments !== undefined
+      && await judgesFirstQueries(source.path, await readJudgments(source.judgments, { signal: options.signal }), read);
     // The files found beside it are joined when the dump is read, so one that does not stream is left to the caller.
-    const outcome = await streamIfFit(source.path, read, metrics, settings.conventions, streamOptions);
+    const outcome = await streamIfFit(source.path, joinedAtOnce ? { ...read, ...judgedBy(source) } : read, metrics, settings.conventions, streamOptions);
     if (outcome.kind === 'declined') return { kind: 'declined', ...(outcome.tried ? { note: gaveWay(outcome.why) } : {}) };
-    const check = await checkFoundFiles(source, outcome.dump.queries, options.signal);
+    const check = await checkFoundFiles(source, outcome.dump.queries, options.signal, joinedAtOnce);
     if (check.related.length === 1 && check.judgmentsRelated) {
-      // The found judgments name its queries: streamed again with them joined, so memory stays flat.
+      // Related after all, though none of the first queries is judged: streamed again with them joined.
       const joined = await streamIfFit(source.path, { ...read, ...judgedBy(source) }, metrics, settings.conventions, streamOptions);
       if (joined.kind === 'streamed') {
         const note = `${source.judgments} was found beside the dump and names its queries: the dump was streamed a second time to join its labels.`;
@@ -151,11 +155,12 @@ function foundFiles(source: DumpSource): string[] {
  * none is left out, with the read's note. An items table can only be checked against item ids, which a
  * stream does not keep: it is left out, with a note saying so (it only adds titles to a query's detail).
  */
-async function checkFoundFiles(source: DumpSource, queries: StringPool, signal: AbortSignal): Promise<{ related: string[]; notes: string[]; judgmentsRelated: boolean }> {
+async function checkFoundFiles(source: DumpSource, queries: StringPool, signal: AbortSignal, judgmentsJoined: boolean):
+  Promise<{ related: string[]; notes: string[]; judgmentsRelated: boolean }> {
   const related: string[] = [];
   const notes: string[] = [];
   let judgmentsRelated = false;
-  if (source.judgments !== undefined && source.judgmentsFound === true) {
+  if (source.judgments !== undefined && source.judgmentsFound === true && !judgmentsJoined) {
     judgmentsRelated = await judgmentsShareQuery(source.judgments, queries, { signal });
     if (judgmentsRelated) related.push(`the judgments file ${source.judgments}`);
     else notes.push(unusedJudgmentsNote(source.judgments));

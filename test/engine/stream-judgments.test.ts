@@ -9,6 +9,7 @@
  * ideal ranking and its judged-set denominators) are the in-memory join's, checked against published
  * definitions in test/engine/judgments*.test.ts; here the stream must give exactly what it gives.
  */
+import { gzipSync } from 'node:zlib';
 import { afterAll, describe, expect, it } from 'vitest';
 import { evaluateDump, readDump, streamOrRead } from '../../extension/engine/index';
 import type { Evaluation } from '../../extension/engine/evaluate/types';
@@ -22,6 +23,7 @@ import type { StringPool } from '../../extension/engine/model/stringPool';
 import { readJudgments } from '../../extension/engine/readers/index';
 import { formatReport } from '../../extension/engine/report/index';
 import { streamedQueryDetail } from '../../extension/engine/stream/queryDetail';
+import { firstQueries, judgesFirstQueries } from '../../extension/engine/stream/firstQueries';
 import { streamEvaluate } from '../../extension/engine/stream/streamEvaluate';
 import { streamJudgments } from '../../extension/engine/stream/streamJudgments';
 import { TempDir } from './fixtures/readers/tempFiles';
@@ -187,5 +189,28 @@ describe('a query in detail', () => {
       unretrievedShown += memory.notRetrieved?.length ?? 0;
     }
     expect(unretrievedShown).toBeGreaterThan(10);
+  });
+});
+
+describe('the first queries of a dump, for a judgments file found beside it', () => {
+  it('are the queries of whole lines from the first bytes; other formats and gzip give none', async () => {
+    const text = groupedDump(41, { queries: 400, maxRows: 10 });
+    const file = tmp.file('first.tsv', text);
+    const all = (await readDump(file)).queries;
+    const whole = await firstQueries(file, {});
+    expect(names(whole!)).toEqual(names(all));
+    // A few hundred bytes: the queries of the lines those bytes reach (the last line read whole), in order.
+    const some = await firstQueries(file, {}, 300);
+    const upTo = text.indexOf('\n', text.indexOf('\n') + 1 + 300 - 1) + 1;
+    const expected = [...new Set(text.slice(text.indexOf('\n') + 1, upTo).split('\n').filter((l) => l).map((l) => l.split('\t')[0]))];
+    expect(names(some!)).toEqual(expected);
+    expect(expected.length).toBeLessThan(all.size);
+    expect(await firstQueries(tmp.file('first.jsonl', '{"query":"a","item":"b","label":1,"score":0.5}\n'), {})).toBeUndefined();
+    expect(await firstQueries(tmp.file('first.tsv.gz', gzipSync(text)), {})).toBeUndefined();
+    // Judgments of a late query only: not known to go with the dump from its first lines.
+    const judgments = await readJudgments(tmp.file('late.judgments.tsv', `query\tproduct_id\tgrade\n${all.get(all.size - 1)}\tSKU-1\t1\n`));
+    expect(await judgesFirstQueries(file, judgments, {})).toBe(true);
+    const firstOnly = tmp.file('first-only.tsv', text.slice(0, upTo));
+    expect(await judgesFirstQueries(firstOnly, judgments, {})).toBe(false);
   });
 });

@@ -70,7 +70,7 @@ describe('streaming beside files found by the naming rule', () => {
     expect(streamed.warnings.filter((w) => w.startsWith('Read into memory'))).toEqual([]);
   });
 
-  it('streams again with the labels joined when a found judgments file names its queries', async () => {
+  it('streams joined at once when a found judgments file judges the first queries, in memory\'s numbers', async () => {
     const judgments = join(side, 'kettlewood.judgments.tsv');
     writeFileSync(judgments, `query_id\titem_id\tlabel\n${QUERY_NAMES[0]} 0\tsku-0-0\t4\n${QUERY_NAMES[1]} 1\tsku-1-9\t2\n${QUERY_NAMES[1]} 1\tsku-1-unseen\t3\n`);
     const source: DumpSource = { path: file, judgments, judgmentsFound: true };
@@ -80,8 +80,8 @@ describe('streaming beside files found by the naming rule', () => {
     expect(streamed.degenerate).toEqual(memory.degenerate);
     expect(partials.length).toBeGreaterThan(0);
     expect(streamed.warnings.some((w) => w.startsWith('Streamed:'))).toBe(true);
-    expect(streamed.warnings).toContain(`${judgments} was found beside the dump and names its queries: the dump was streamed a second time to join its labels.`);
-    expect(streamed.warnings.filter((w) => w.startsWith('Read into memory'))).toEqual([]);
+    // One stream: no second pass, no read into memory.
+    expect(streamed.warnings.filter((w) => w.includes('a second time') || w.startsWith('Read into memory'))).toEqual([]);
     // The join happened: nearly every row is unjudged, which the dump's own labels are not.
     const own = await worker.call('load', { session: 'related-own', source: { path: file }, settings });
     expect(streamed.metrics).not.toEqual(own.metrics);
@@ -90,6 +90,17 @@ describe('streaming beside files found by the naming rule', () => {
     const detail = await worker.call('queryDetail', { session: 'related-stream', query });
     expect(detail).toEqual(await worker.call('queryDetail', { session: 'related-memory', query }));
     expect(JSON.stringify(detail)).toContain('sku-1-unseen');
+  });
+
+  it('streams a second time, joined, when a found judgments file judges only later queries', async () => {
+    const judgments = join(side, 'kettlewood-late.judgments.tsv');
+    const late = `${QUERY_NAMES[3999 % QUERY_NAMES.length]} 3999`;
+    writeFileSync(judgments, `query_id\titem_id\tlabel\n${late}\tsku-3999-0\t4\n`);
+    const source: DumpSource = { path: file, judgments, judgmentsFound: true };
+    const { memory, streamed } = await loadBoth('related-late', source);
+    expect(streamed.metrics).toEqual(memory.metrics);
+    expect(streamed.warnings).toContain(`${judgments} was found beside the dump and names its queries: the dump was streamed a second time to join its labels.`);
+    expect(streamed.warnings.filter((w) => w.startsWith('Read into memory'))).toEqual([]);
   });
 
   it('reads into memory, joined, when a found queries table names its queries', async () => {
