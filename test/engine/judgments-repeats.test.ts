@@ -1,0 +1,68 @@
+/**
+ * A (query, item) pair judged twice is refused, naming the first repeat in file order and the judgment it
+ * repeats. Judgments grouped by query take a fast path (per-item marks); any other order takes the pair
+ * index. Seeded tables with and without repeats: both give the same answer on every grouped table.
+ */
+import { describe, expect, it } from 'vitest';
+import { BytePool } from '../../extension/engine/model/bytePool';
+import { firstRepeatAnyOrder, firstRepeatGrouped, isGrouped, type JudgmentTable } from '../../extension/engine/readers/judgments';
+import { seededRandom } from '../reference/random';
+
+/** Judgments grouped by query (ids in first-seen order), items drawn from a small catalogue so they recur across queries. */
+function groupedTable(seed: number, repeats: number): JudgmentTable {
+  const rand = seededRandom(seed);
+  const queries = new BytePool();
+  const items = new BytePool();
+  const query: number[] = [];
+  const item: number[] = [];
+  for (let q = 0; q < 40; q++) {
+    queries.internString(`q${q}`);
+    const picked = new Set<number>();
+    const size = 1 + Math.floor(rand() * 12);
+    while (picked.size < size) picked.add(Math.floor(rand() * 60));
+    for (const i of picked) {
+      query.push(q);
+      item.push(items.internString(`sku-${i}`));
+    }
+  }
+  // Repeats: a judgment copied to a later place within its own query's run.
+  for (let k = 0; k < repeats; k++) {
+    const j = Math.floor(rand() * query.length);
+    let end = j;
+    while (end < query.length && query[end] === query[j]) end++;
+    const at = j + 1 + Math.floor(rand() * (end - j));
+    query.splice(at, 0, query[j]!);
+    item.splice(at, 0, item[j]!);
+  }
+  const n = query.length;
+  return { path: 'j', queries, items, query: Uint32Array.from(query), item: Uint32Array.from(item), grade: new Float64Array(n), line: Uint32Array.from({ length: n }, (_, j) => j + 1) };
+}
+
+/** The slow obvious answer: for each judgment in file order, look back for the same pair. */
+function firstRepeatSlow(t: JudgmentTable): [number, number] | undefined {
+  for (let j = 0; j < t.grade.length; j++) {
+    for (let e = 0; e < j; e++) if (t.query[e] === t.query[j] && t.item[e] === t.item[j]) return [e, j];
+  }
+  return undefined;
+}
+
+describe('judgments judged twice', () => {
+  it('the grouped fast path and the pair index name the same first repeat as the slow search, on seeded tables', () => {
+    let found = 0;
+    for (let seed = 1; seed <= 60; seed++) {
+      const t = groupedTable(seed, seed % 3);
+      expect(isGrouped(t.query)).toBe(true);
+      const slow = firstRepeatSlow(t);
+      if (slow) found++;
+      expect(firstRepeatGrouped(t)).toEqual(slow);
+      expect(firstRepeatAnyOrder(t)).toEqual(slow);
+    }
+    expect(found).toBeGreaterThan(20);
+  });
+
+  it('tells grouped judgments from others', () => {
+    expect(isGrouped(Uint32Array.from([0, 0, 1, 2, 2]))).toBe(true);
+    expect(isGrouped(Uint32Array.from([0, 1, 0]))).toBe(false);
+    expect(isGrouped(Uint32Array.from([0, 2, 1]))).toBe(false);
+  });
+});
