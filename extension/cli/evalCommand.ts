@@ -156,8 +156,10 @@ async function evalFile(path: string, source: string, format: ReportFormat, wors
       if (values.segment !== undefined) io.out(segmentReport(segmentRowsOf(dump), evaluation, values.segment, format === 'json' ? 'json' : 'text'));
       else {
         const worstOrderBy = values.sort === undefined ? undefined : worstOrder(evaluation, values.sort);
-        io.out(formatReport(format, { evaluation, queryNames: dump.queries, source, rowCount: dump.rowCount },
-          { worst, ...(worstOrderBy ? { worstOrder: worstOrderBy } : {}) }));
+        // In pieces: the JSON records of a million queries are hundreds of MB as one string.
+        const pieces = formatReportPieces(format, { evaluation, queryNames: dump.queries, source, rowCount: dump.rowCount },
+          { worst, ...(worstOrderBy ? { worstOrder: worstOrderBy } : {}) });
+        for (const piece of pieces) io.out(piece);
       }
       if (values.timings) {
         io.err(`timings: streamed read and score ${s(scored - started)} s, report ${s(performance.now() - scored)} s (${dump.rowCount} rows; ` +

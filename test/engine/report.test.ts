@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { formatCsv } from '../../extension/engine/report/csv';
 import { formatJson } from '../../extension/engine/report/json';
+import { formatReportPieces } from '../../extension/engine/report/index';
 import { formatMarkdown } from '../../extension/engine/report/markdown';
 import { packNames, renderQueryRecords } from '../../extension/engine/report/jsonRecords';
 import { jsonNumber, queryColumns, worstQueries, type ReportInput } from '../../extension/engine/report/reportInput';
@@ -111,6 +112,25 @@ describe('JSON records rendered by hand', () => {
     const input = { ...base, evaluation: { ...base.evaluation, queryCount: 0 } };
     expect(formatJson(input)).toBe(JSON.stringify({ ...JSON.parse(formatJson(input)) }, null, 1) + '\n');
     expect(JSON.parse(formatJson(input)).queries).toEqual([]);
+  });
+
+  it('records rendered in pieces (more queries than one piece holds) are the same text', () => {
+    // Outside reference: JSON.stringify (ECMA-262) on the same records built as plain objects.
+    const base = fixtureInput();
+    const n = 40_000;
+    const column = (k: number) => Float64Array.from({ length: n }, (_, q) => (q % 97 === k ? NaN : ((q * 7 + k) % 1000) / 999));
+    const perQuery = {
+      items: Uint32Array.from({ length: n }, (_, q) => q % 50), relevant: Uint32Array.from({ length: n }, (_, q) => q % 7),
+      values: base.evaluation.metrics.map((_, k) => column(k)), inversions: column(90), inversionCost: column(91),
+      skipped: Uint8Array.from({ length: n }, (_, q) => (q % 11 === 0 ? 1 : 0)),
+      ...(base.evaluation.perQuery.rbpResidual ? { rbpResidual: column(92) } : {}),
+    };
+    const names = new MapStringPool();
+    for (let q = 0; q < n; q++) names.intern(`drill bit ${q}`);
+    const input = { ...base, queryNames: names, evaluation: { ...base.evaluation, queryCount: n, perQuery } };
+    const pieces = [...formatReportPieces('json', input, { worst: 10 })];
+    expect(pieces.length).toBeGreaterThan(4);
+    expect(pieces.join('')).toBe(slowJson(input));
   });
 
   it('pre-rendered chunks are joined in order, and the same text comes out', () => {

@@ -21,8 +21,8 @@ export function formatReport(format: ReportFormat, input: ReportInput, options: 
   }
 }
 
-/** formatReport's text in pieces to write in turn (JSON splices its records rather than joining them). */
-export function formatReportPieces(format: ReportFormat, input: ReportInput, options: { readonly worst: number; readonly worstOrder?: WorstOrder }): string[] {
+/** formatReport's text in pieces to write in turn, each made as it is asked for (JSON splices its records rather than joining them). */
+export function formatReportPieces(format: ReportFormat, input: ReportInput, options: { readonly worst: number; readonly worstOrder?: WorstOrder }): Iterable<string> {
   return format === 'json' ? formatJsonPieces(input) : [formatReport(format, input, options)];
 }
 

@@ -8,14 +8,17 @@ import { conventionsAsJson, jsonNumber, type ReportInput } from './reportInput';
  * so 100k query objects are never built only to be stringified.
  */
 export function formatJson(input: ReportInput): string {
-  return formatJsonPieces(input).join('');
+  return [...formatJsonPieces(input)].join('');
 }
+
+/** Records rendered here (none came rendered) are rendered this many queries at a time, each piece written before the next is made. */
+const RECORDS_PER_PIECE = 16384;
 
 /**
  * formatJson's text in pieces, to write one after another: on 100k queries the records are tens of MB,
  * and joining them into one string (then one buffer to write) held two more copies at the peak.
  */
-export function formatJsonPieces(input: ReportInput): string[] {
+export function* formatJsonPieces(input: ReportInput): Generator<string> {
   const { evaluation: ev } = input;
   const summary: Record<string, number | null> = {};
   const counted: Record<string, number> = {};
@@ -44,15 +47,22 @@ export function formatJsonPieces(input: ReportInput): string[] {
     ...(ev.judgments ? { judgments: ev.judgments } : {}),
   };
   const headText = JSON.stringify(head, null, 1);
-  if (ev.queryCount === 0) return [`${headText.slice(0, -2)},\n "queries": []\n}\n`];
+  if (ev.queryCount === 0) {
+    yield `${headText.slice(0, -2)},\n "queries": []\n}\n`;
+    return;
+  }
   const notRetrieved = ev.judgments !== undefined;
-  // Records rendered while scoring carry no query facts: with a queries table they are rendered here.
-  const records = input.facts !== undefined || input.queryRecords === undefined
-    ? [renderQueryRecords({ metrics: ev.metrics, names: packNames(input.queryNames), facts: input.facts, notRetrieved }, ev.perQuery, 0, ev.queryCount)]
-    : input.queryRecords;
   // headText ends with "\n}": the records go in before that closing brace.
-  const pieces = [`${headText.slice(0, -2)},\n "queries": [\n`];
-  records.forEach((text, k) => pieces.push(k === 0 ? text : `,\n${text}`));
-  pieces.push('\n ]\n}\n');
-  return pieces;
+  yield `${headText.slice(0, -2)},\n "queries": [\n`;
+  if (input.facts === undefined && input.queryRecords !== undefined) {
+    for (let k = 0; k < input.queryRecords.length; k++) yield k === 0 ? input.queryRecords[k]! : `,\n${input.queryRecords[k]!}`;
+  } else {
+    // Records rendered while scoring carry no query facts: with a queries table (or none rendered) they are rendered here.
+    const spec = { metrics: ev.metrics, names: packNames(input.queryNames), facts: input.facts, notRetrieved };
+    for (let from = 0; from < ev.queryCount; from += RECORDS_PER_PIECE) {
+      const text = renderQueryRecords(spec, ev.perQuery, from, Math.min(ev.queryCount, from + RECORDS_PER_PIECE));
+      yield from === 0 ? text : `,\n${text}`;
+    }
+  }
+  yield '\n ]\n}\n';
 }
