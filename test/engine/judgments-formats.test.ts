@@ -12,6 +12,7 @@ import type { Evaluation } from '../../extension/engine/evaluate/types';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
 import { parseMetricList } from '../../extension/engine/metrics/parse';
 import { readDump, type ReadOptions } from '../../extension/engine/readers';
+import { streamOrRead } from '../../extension/engine/index';
 import { seededRandom } from '../reference/random';
 import { TempDir } from './fixtures/readers/tempFiles';
 
@@ -112,6 +113,14 @@ describe('labels from a judgments file against the same labels inline', () => {
   it.each(['csv', 'tsv', 'jsonl', 'parquet'])('csv dump with a %s judgments table', async (layout) => {
     const dump = await readDump(dumps.csv!.path, { judgments: judgments[layout]! });
     expectSameNumbers(evaluate(dump, METRICS, DEFAULT_CONVENTIONS), reference);
+  });
+
+  it.each(['lines', 'csv', 'tsv', 'jsonl', 'parquet'])('csv and tsv dumps streamed with a %s judgments file, joined block by block', async (layout) => {
+    for (const format of ['csv', 'tsv']) {
+      const outcome = await streamOrRead(dumps[format]!.path, { judgments: judgments[layout]! }, METRICS, DEFAULT_CONVENTIONS, { reading: 'stream', blockBytes: 400 });
+      expect(outcome.kind).toBe('streamed');
+      if (outcome.kind === 'streamed') expectSameNumbers(outcome.evaluation, reference);
+    }
   });
 
   it('the sparse file\'s own grades lose to the judgments, and every disagreement is counted', async () => {

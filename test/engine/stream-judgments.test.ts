@@ -9,6 +9,7 @@
  * ideal ranking and its judged-set denominators) are the in-memory join's, checked against published
  * definitions in test/engine/judgments*.test.ts; here the stream must give exactly what it gives.
  */
+import { readFileSync } from 'node:fs';
 import { gzipSync } from 'node:zlib';
 import { afterAll, describe, expect, it } from 'vitest';
 import { evaluateDump, readDump, streamOrRead } from '../../extension/engine/index';
@@ -146,6 +147,25 @@ describe('what the join needs of the whole file', () => {
     // items of each of the 2 judged queries the run lacks: 36.
     expect(notes.messages).toContain('36 judged items do not occur anywhere in the run');
     expect(notes.judgedQueriesWithoutRun).toBe(2);
+  });
+
+  it('a judged grade the gain cannot take (2^2000 − 1), unretrieved or not, makes the stream give way; in memory names the line', async () => {
+    const text = groupedDump(15, { queries: 30, maxRows: 6 });
+    const file = tmp.file('huge.tsv', text);
+    for (const item of ['SKU-NEVER-RETRIEVED', text.split('\n')[40]!.split('\t')[1]!]) {
+      const query = text.split('\n')[40]!.split('\t')[0]!;
+      // The pair's own judgment, if any, is taken out first: a pair judged twice is another error.
+      const others = judgmentsFor(text, 6).replace(new RegExp(`^${query}\t${item}\t\\d+\n`, 'm'), '');
+      const judgments = tmp.file('huge.judgments.tsv', `${others}${query}\t${item}\t2000\n`);
+      const s = await streamJoined(file, judgments, 'skip', DEFAULT_CONVENTIONS);
+      expect(s.kind === 'fallback' && s.reason).toMatch(/^the conventions cannot score this data/);
+      // In memory the error names the judgment line of an unretrieved item, the dump's row of a retrieved one.
+      const lineOfHuge = readFileSync(judgments, 'utf8').split('\n').findIndex((l) => l.endsWith('\t2000')) + 1;
+      const where = item === 'SKU-NEVER-RETRIEVED' ? `huge.judgments.tsv:${lineOfHuge}:` : 'huge.tsv:41:';
+      const memory = readDump(file, { judgments }).then((d) => evaluateDump(d, METRICS, DEFAULT_CONVENTIONS));
+      await expect(memory).rejects.toThrow(where);
+      await expect(memory).rejects.toThrow(/grade 2000 gives gain Infinity/);
+    }
   });
 
   it('under missing queries zero, a weight column or kept segments make the stream give way with the reason', async () => {
