@@ -2,10 +2,14 @@
  * A (query, item) pair judged twice is refused, naming the first repeat in file order and the judgment it
  * repeats. Judgments grouped by query take a fast path (per-item marks); any other order takes the pair
  * index. Seeded tables with and without repeats: both give the same answer on every grouped table.
+ * Likewise the judgment of each row: found by query runs in a grouped dump, by a pair index otherwise.
  */
 import { describe, expect, it } from 'vitest';
 import { BytePool } from '../../extension/engine/model/bytePool';
-import { firstRepeatAnyOrder, firstRepeatGrouped, isGrouped, type JudgmentTable } from '../../extension/engine/readers/judgments';
+import { firstRepeatAnyOrder, firstRepeatGrouped, isGrouped, judgmentsByPair, judgmentsByQueryRun, type JudgmentTable } from '../../extension/engine/readers/judgments';
+import { readDump, readJudgments } from '../../extension/engine/readers/index';
+import { TempDir } from './fixtures/readers/tempFiles';
+import { groupedDump, judgmentsFor } from './fixtures/streamFiles';
 import { seededRandom } from '../reference/random';
 
 /** Judgments grouped by query (ids in first-seen order), items drawn from a small catalogue so they recur across queries. */
@@ -64,5 +68,30 @@ describe('judgments judged twice', () => {
     expect(isGrouped(Uint32Array.from([0, 0, 1, 2, 2]))).toBe(true);
     expect(isGrouped(Uint32Array.from([0, 1, 0]))).toBe(false);
     expect(isGrouped(Uint32Array.from([0, 2, 1]))).toBe(false);
+  });
+});
+
+describe('the judgment of each row', () => {
+  it('found by query runs (grouped dumps) is the pair index\'s, row for row, on seeded dumps and judgments', async () => {
+    const tmp = new TempDir();
+    try {
+      for (const seed of [1, 2, 3, 4]) {
+        const text = groupedDump(seed, { queries: 80, maxRows: 12, duplicateShare: 0.1 });
+        const file = tmp.file(`runs-${seed}.tsv`, text);
+        const table = await readJudgments(tmp.file(`runs-${seed}.judgments.tsv`, judgmentsFor(text, seed + 50, { unretrievedPerQuery: 3 })));
+        const dump = await readDump(file);
+        expect(isGrouped(dump.query)).toBe(true);
+        const queryInDump = Int32Array.from({ length: table.queries.size }, (_, q) => dump.queries.find(table.queries.get(q)));
+        const itemInDump = Int32Array.from({ length: table.items.size }, (_, i) => dump.items.find(table.items.get(i)));
+        const byRun = judgmentsByQueryRun(dump, table, queryInDump, itemInDump);
+        expect([...byRun]).toEqual([...judgmentsByPair(dump, table, queryInDump, itemInDump)]);
+        // Not a vacuous match: most rows are judged, some are not.
+        const judged = byRun.filter((j) => j >= 0).length;
+        expect(judged).toBeGreaterThan(dump.rowCount / 2);
+        expect(judged).toBeLessThan(dump.rowCount);
+      }
+    } finally {
+      tmp.remove();
+    }
   });
 });

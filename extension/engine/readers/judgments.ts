@@ -129,7 +129,7 @@ function fromDump(dump: RankedDump): JudgmentTable {
 
 /** A pair judged twice is an error naming both places: which grade should win is not ours to guess. */
 function rejectRepeats(table: JudgmentTable): void {
-  const repeat = table.grade.length > 0 && isGrouped(table.query) ? firstRepeatGrouped(table) : firstRepeatAnyOrder(table);
+  const repeat = isGrouped(table.query) ? firstRepeatGrouped(table) : firstRepeatAnyOrder(table);
   if (repeat === undefined) return;
   const [seen, j] = repeat;
   const place = (i: number) => (table.line[i] ? `line ${table.line[i]}` : `row ${i + 1}`);
@@ -139,6 +139,7 @@ function rejectRepeats(table: JudgmentTable): void {
 
 /** True when each query's judgments are together, queries in first-seen order (ids climb by at most one). */
 export function isGrouped(query: Uint32Array): boolean {
+  if (query.length === 0) return true;
   let highest = query[0]!;
   for (let j = 1; j < query.length; j++) {
     const q = query[j]!;
@@ -221,13 +222,7 @@ export function joinJudgments(dump: RankedDump, table: JudgmentTable, policy: Mi
     itemInDump[i] = idIn(table.items, i, dump.items);
     if (itemInDump[i]! < 0) unknownItems++;
   }
-  // (dump query, dump item) → judgment, for the judgments whose query and item both occur in the dump.
-  const judgmentOf = new PairIndex(table.grade.length);
-  for (let j = 0; j < table.grade.length; j++) {
-    const q = queryInDump[table.query[j]!]!;
-    const i = itemInDump[table.item[j]!]!;
-    if (q >= 0 && i >= 0) judgmentOf.add(q, i, j);
-  }
+  const judgmentOf = isGrouped(dump.query) ? judgmentsByQueryRun(dump, table, queryInDump, itemInDump) : judgmentsByPair(dump, table, queryInDump, itemInDump);
 
   const label = new Float64Array(dump.rowCount);
   const used = new Uint8Array(table.grade.length);
@@ -235,7 +230,7 @@ export function joinJudgments(dump: RankedDump, table: JudgmentTable, policy: Mi
   let disagreements = 0;
   const disagreementExamples: string[] = [];
   for (let r = 0; r < dump.rowCount; r++) {
-    const j = judgmentOf.find(dump.query[r]!, dump.item[r]!);
+    const j = judgmentOf[r]!;
     const judged = j < 0 ? NaN : table.grade[j]!;
     if (j >= 0) used[j] = 1;
     const inline = dump.label[r]!;
@@ -280,6 +275,58 @@ export function joinJudgments(dump: RankedDump, table: JudgmentTable, policy: Mi
   notes.judgedQueriesWithoutRun = absentQueries;
   notes.messages.push(...describeJoin(join, unknownItems));
   return { ...dump, label, notes, unretrieved };
+}
+
+/**
+ * The judgment of each row (-1 for none), for any row order: an index of every (dump query, dump item)
+ * pair of the judgments that occur in the dump, one look-up per row.
+ */
+export function judgmentsByPair(dump: RankedDump, table: JudgmentTable, queryInDump: Int32Array, itemInDump: Int32Array): Int32Array {
+  const judgmentOf = new PairIndex(table.grade.length);
+  for (let j = 0; j < table.grade.length; j++) {
+    const q = queryInDump[table.query[j]!]!;
+    const i = itemInDump[table.item[j]!]!;
+    if (q >= 0 && i >= 0) judgmentOf.add(q, i, j);
+  }
+  const out = new Int32Array(dump.rowCount);
+  for (let r = 0; r < dump.rowCount; r++) out[r] = judgmentOf.find(dump.query[r]!, dump.item[r]!);
+  return out;
+}
+
+/**
+ * judgmentsByPair for a dump whose rows are grouped by query (the usual dump): for each query's run of
+ * rows its judgments mark their items (judgment + 1 in an array by dump item id), each row reads its
+ * item's mark, and the marks are cleared. The rows of a query name their items in first-seen order, so
+ * the reads run along the array, where a pair index misses the cache on nearly every row.
+ */
+export function judgmentsByQueryRun(dump: RankedDump, table: JudgmentTable, queryInDump: Int32Array, itemInDump: Int32Array): Int32Array {
+  const queries = dump.queries.size;
+  // The judgments of each dump query whose item occurs in the dump, file order within a query (a counting sort).
+  const start = new Uint32Array(queries + 1);
+  for (let j = 0; j < table.grade.length; j++) {
+    const q = queryInDump[table.query[j]!]!;
+    if (q >= 0 && q < queries && itemInDump[table.item[j]!]! >= 0) start[q + 1]!++;
+  }
+  for (let q = 0; q < queries; q++) start[q + 1]! += start[q]!;
+  const order = new Uint32Array(start[queries]!);
+  const next = start.slice(0, queries);
+  for (let j = 0; j < table.grade.length; j++) {
+    const q = queryInDump[table.query[j]!]!;
+    if (q >= 0 && q < queries && itemInDump[table.item[j]!]! >= 0) order[next[q]!++] = j;
+  }
+  const mark = new Int32Array(dump.items.size);
+  const out = new Int32Array(dump.rowCount);
+  const { query, item } = dump;
+  for (let r = 0; r < dump.rowCount;) {
+    const q = query[r]!;
+    let end = r + 1;
+    while (end < dump.rowCount && query[end] === q) end++;
+    for (let e = start[q]!; e < start[q + 1]!; e++) mark[itemInDump[table.item[order[e]!]!]!] = order[e]! + 1;
+    for (let k = r; k < end; k++) out[k] = mark[item[k]!]! - 1;
+    for (let e = start[q]!; e < start[q + 1]!; e++) mark[itemInDump[table.item[order[e]!]!]!] = 0;
+    r = end;
+  }
+  return out;
 }
 
 /** Judged items each query's list lacks, grouped by dump query id (a counting sort). */
