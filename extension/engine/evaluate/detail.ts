@@ -74,7 +74,7 @@ export function queryDetail(
   const side = dump.unretrieved;
   for (let e = 0; e < u; e++) {
     const entry = side!.start[queryId]! + e;
-    notRetrieved.push({ item: dump.items.get(side!.item[entry]!), label: side!.grade[entry]!, gain: unretrievedGain[e]!, idealPosition: idealPosition[n + e]! });
+    notRetrieved.push({ item: (side!.items ?? dump.items).get(side!.item[entry]!), label: side!.grade[entry]!, gain: unretrievedGain[e]!, idealPosition: idealPosition[n + e]! });
   }
   notRetrieved.sort((a, b) => a.idealPosition - b.idealPosition);
   const { discount } = discountTable(n);

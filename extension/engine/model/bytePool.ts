@@ -147,6 +147,14 @@ export class BytePool implements StringPool {
     return this.recordEquals(this.starts[id]!, bytes, start, end);
   }
 
+  /** `pool` itself when it is a BytePool; otherwise a BytePool of its strings with the same ids (interned in id order). */
+  static copyOf(pool: StringPool): BytePool {
+    if (pool instanceof BytePool) return pool;
+    const bytes = new BytePool();
+    for (let id = 0; id < pool.size; id++) bytes.internString(pool.get(id));
+    return bytes;
+  }
+
   /** The pool's internals (shared, not copied: stop using this pool afterwards). */
   exportState(): BytePoolState {
     return { arena: this.arena, arenaUsed: this.arenaUsed, starts: this.starts, count: this.count, table: this.table, mask: this.mask };

@@ -20,8 +20,13 @@ export interface UnretrievedJudged {
   readonly start: Uint32Array;
   /** Grade of each entry (finite). */
   readonly grade: Float64Array;
-  /** Item id of each entry in the dump's `items` pool (which then also holds items that have no row). */
+  /** Item id of each entry in `items` (or the dump's `items` pool, which then also holds items that have no row). */
   readonly item: Uint32Array;
+  /**
+   * The pool the entries' `item` ids index; absent: the dump's `items` (a join that did not make the dump's
+   * item ids keeps the judgments' own, readers/judgments.ts).
+   */
+  readonly items?: StringPool;
   /** Line of each entry in the judgments file (0 for Parquet judgments), for errors about its grade. */
   readonly line: Uint32Array;
   /**

@@ -13,13 +13,14 @@
 import { promises as fsp } from 'node:fs';
 import { InputError } from '../errors';
 import { BytePool } from '../model/bytePool';
-import type { JudgmentsJoin, MissingQueriesPolicy, RankedDump, UnretrievedJudged } from '../model/dump';
+import { itemOfRow, type JudgmentsJoin, type MissingQueriesPolicy, type RankedDump, type UnretrievedJudged } from '../model/dump';
+import { RowTexts } from '../model/rowTexts';
 import { gradeRangeOf, summariseRows } from '../model/rowSummary';
 import { MapStringPool, type StringPool } from '../model/stringPool';
 import type { ReadOptions } from './readOptions';
 import { parseNumber } from './numbers';
 import { textHead } from './detect';
-import { PairIndex } from './pairIndex';
+import { firstRepeatAnyOrder, firstRepeatGrouped, isGrouped, judgmentsByPair, judgmentsByQueryRun, type RowsAndJudgments } from './judgmentMatch';
 import { LineSink, pumpText, splitWhitespace } from './source';
 
 /** The start of the error for a judgments file that names none of the run's queries. */
@@ -129,52 +130,12 @@ function fromDump(dump: RankedDump): JudgmentTable {
 
 /** A pair judged twice is an error naming both places: which grade should win is not ours to guess. */
 function rejectRepeats(table: JudgmentTable): void {
-  const repeat = isGrouped(table.query) ? firstRepeatGrouped(table) : firstRepeatAnyOrder(table);
+  const repeat = isGrouped(table.query) ? firstRepeatGrouped(table, table.items.size) : firstRepeatAnyOrder(table);
   if (repeat === undefined) return;
   const [seen, j] = repeat;
   const place = (i: number) => (table.line[i] ? `line ${table.line[i]}` : `row ${i + 1}`);
   throw new InputError(`each (query, item) pair judged once; '${table.queries.get(table.query[j]!)}' / '${table.items.get(table.item[j]!)}' is already judged on ${place(seen)}`,
     table.path, table.line[j] || undefined, table.line[j] ? undefined : place(j));
-}
-
-/** True when each query's judgments are together, queries in first-seen order (ids climb by at most one). */
-export function isGrouped(query: Uint32Array): boolean {
-  if (query.length === 0) return true;
-  let highest = query[0]!;
-  for (let j = 1; j < query.length; j++) {
-    const q = query[j]!;
-    if (q === query[j - 1]) continue;
-    if (q !== highest + 1) return false;
-    highest = q;
-  }
-  return true;
-}
-
-/**
- * The first judgment (file order) whose pair was judged before, and that earlier one, for judgments grouped
- * by query: each item remembers the query and judgment that named it last, eight bytes per item, where an
- * index of every pair takes twelve bytes per slot (twice the judgments) and a cache miss per look-up.
- */
-export function firstRepeatGrouped(table: JudgmentTable): [number, number] | undefined {
-  // Per item, side by side (one cache line): the query that last named it + 1, and that judgment.
-  const last = new Int32Array(2 * table.items.size);
-  for (let j = 0; j < table.grade.length; j++) {
-    const q = table.query[j]! + 1;
-    const at = 2 * table.item[j]!;
-    if (last[at] === q) return [last[at + 1]!, j];
-    last[at] = q;
-    last[at + 1] = j;
-  }
-  return undefined;
-}
-
-export function firstRepeatAnyOrder(table: JudgmentTable): [number, number] | undefined {
-  const first = new PairIndex(table.grade.length);
-  for (let j = 0; j < table.grade.length; j++) {
-    const seen = first.add(table.query[j]!, table.item[j]!, j);
-    if (seen >= 0) return [seen, j];
-  }
-  return undefined;
 }
 
 /** Id of `id` of pool `from` in pool `to` (-1 when absent), comparing bytes when both pools keep them. */
@@ -216,15 +177,12 @@ export function joinJudgments(dump: RankedDump, table: JudgmentTable, policy: Mi
   if (!sharesQuery(dump.queries, table)) throw noSharedQueryError(table, dump.path);
   const queryInDump = new Int32Array(judgedQueries);
   for (let q = 0; q < judgedQueries; q++) queryInDump[q] = idIn(table.queries, q, dump.queries);
-  const itemInDump = new Int32Array(table.items.size);
-  let unknownItems = 0;
-  for (let i = 0; i < itemInDump.length; i++) {
-    itemInDump[i] = idIn(table.items, i, dump.items);
-    if (itemInDump[i]! < 0) unknownItems++;
-  }
-  const judgmentOf = isGrouped(dump.query) ? judgmentsByQueryRun(dump, table, queryInDump, itemInDump) : judgmentsByPair(dump, table, queryInDump, itemInDump);
+  const matched = dump.itemTexts instanceof RowTexts && isGrouped(dump.query)
+    ? matchByItemBytes(dump, dump.itemTexts, table, queryInDump) : matchByItemIds(dump, table, queryInDump);
+  const judgmentOf = matched.judgmentOf;
 
-  const label = new Float64Array(dump.rowCount);
+  // In shared memory when the dump's columns are (a parallel read): scoring threads then share it, not copy it.
+  const label = new Float64Array(dump.label.buffer instanceof SharedArrayBuffer ? new SharedArrayBuffer(dump.rowCount * 8) : new ArrayBuffer(dump.rowCount * 8));
   const used = new Uint8Array(table.grade.length);
   let inlineRows = 0;
   let disagreements = 0;
@@ -239,7 +197,7 @@ export function joinJudgments(dump: RankedDump, table: JudgmentTable, policy: Mi
       if (inline !== judged) {
         disagreements++;
         if (disagreementExamples.length < EXAMPLES) {
-          disagreementExamples.push(`${dump.queries.get(dump.query[r]!)}/${dump.items.get(dump.item[r]!)}: ${inline} in the dump, ${judged === judged ? judged : 'unjudged'} in the judgments`);
+          disagreementExamples.push(`${dump.queries.get(dump.query[r]!)}/${itemOfRow(dump, r)}: ${inline} in the dump, ${judged === judged ? judged : 'unjudged'} in the judgments`);
         }
       }
     }
@@ -255,7 +213,7 @@ export function joinJudgments(dump: RankedDump, table: JudgmentTable, policy: Mi
     if (absentExamples.length < EXAMPLES) absentExamples.push(table.queries.get(q));
     if (policy === 'zero') queryInDump[q] = addTo(dump.queries, table.queries.get(q));
   }
-  const unretrieved = sideTable(dump, table, queryInDump, itemInDump, used, dumpQueries);
+  const { side: unretrieved, inFileOrder } = sideTable(dump.queries.size, table, queryInDump, used, dumpQueries, matched.sideItems);
   let unretrievedInRun = 0;
   for (let q = 0; q < dumpQueries; q++) unretrievedInRun += unretrieved.start[q + 1]! - unretrieved.start[q]!;
 
@@ -273,66 +231,105 @@ export function joinJudgments(dump: RankedDump, table: JudgmentTable, policy: Mi
   for (let j = 0; j < table.grade.length; j++) if (queryInDump[table.query[j]!]! < 0 || queryInDump[table.query[j]!]! >= dumpQueries) absentLines++;
   notes.judgmentsWithoutRun = absentLines;
   notes.judgedQueriesWithoutRun = absentQueries;
-  notes.messages.push(...describeJoin(join, unknownItems));
-  return { ...dump, label, notes, unretrieved };
+  notes.messages.push(...describeJoin(join, matched.unknownItems));
+  return matched.finish(dump, { label, notes, unretrieved }, inFileOrder);
+}
+
+/** How rows found their judgments, and what the side table's item ids mean. */
+interface Matched {
+  readonly judgmentOf: Int32Array;
+  /** Judged items no row names. */
+  readonly unknownItems: number;
+  /** The side table's item id of judgment j. */
+  readonly sideItems: { readonly pool: StringPool | undefined; of(j: number): number };
+  /** The joined dump; `judgedItems` are the side table's item ids in file order. */
+  finish(dump: RankedDump, fields: Pick<RankedDump, 'label' | 'notes' | 'unretrieved'>, judgedItems: Uint32Array): RankedDump;
 }
 
 /**
- * The judgment of each row (-1 for none), for any row order: an index of every (dump query, dump item)
- * pair of the judgments that occur in the dump, one look-up per row.
+ * Rows matched by dump-wide item ids (a dump that has them, or rows in any order). The judged items the run
+ * never retrieved join the dump's item pool, so that the side table's ids are the dump's.
  */
-export function judgmentsByPair(dump: RankedDump, table: JudgmentTable, queryInDump: Int32Array, itemInDump: Int32Array): Int32Array {
-  const judgmentOf = new PairIndex(table.grade.length);
-  for (let j = 0; j < table.grade.length; j++) {
-    const q = queryInDump[table.query[j]!]!;
-    const i = itemInDump[table.item[j]!]!;
-    if (q >= 0 && i >= 0) judgmentOf.add(q, i, j);
+function matchByItemIds(dump: RankedDump, table: JudgmentTable, queryInDump: Int32Array): Matched {
+  const itemInDump = new Int32Array(table.items.size);
+  let unknownItems = 0;
+  for (let i = 0; i < itemInDump.length; i++) {
+    itemInDump[i] = idIn(table.items, i, dump.items);
+    if (itemInDump[i]! < 0) unknownItems++;
   }
-  const out = new Int32Array(dump.rowCount);
-  for (let r = 0; r < dump.rowCount; r++) out[r] = judgmentOf.find(dump.query[r]!, dump.item[r]!);
-  return out;
+  const ids: RowsAndJudgments = {
+    rowQuery: dump.query, rowItem: dump.item, itemCount: dump.items.size, judgments: table.grade.length,
+    queryOf: (j) => queryInDump[table.query[j]!]!, itemOf: (j) => itemInDump[table.item[j]!]!,
+  };
+  return {
+    judgmentOf: isGrouped(dump.query) ? judgmentsByQueryRun(ids) : judgmentsByPair(ids),
+    unknownItems,
+    sideItems: {
+      pool: undefined,
+      of: (j) => {
+        let i = itemInDump[table.item[j]!]!;
+        if (i < 0) i = itemInDump[table.item[j]!] = addTo(dump.items, table.items.get(table.item[j]!));
+        return i;
+      },
+    },
+    finish: (d, fields) => ({ ...d, ...fields }),
+  };
 }
 
 /**
- * judgmentsByPair for a dump whose rows are grouped by query (the usual dump): for each query's run of
- * rows its judgments mark their items (judgment + 1 in an array by dump item id), each row reads its
- * item's mark, and the marks are cleared. The rows of a query name their items in first-seen order, so
- * the reads run along the array, where a pair index misses the cache on nearly every row.
+ * Rows matched by their item bytes (a grouped dump that keeps them per row): each row's item is looked up
+ * in the judgments' item pool, so the dump-wide item ids, costly on millions of distinct items, are not
+ * made for the join. The side table's ids are the judgments' own (`unretrieved.items`); when the dump's
+ * ids are made later, the judged items the run never retrieved join its pool as they would have here.
  */
-export function judgmentsByQueryRun(dump: RankedDump, table: JudgmentTable, queryInDump: Int32Array, itemInDump: Int32Array): Int32Array {
-  const queries = dump.queries.size;
-  // The judgments of each dump query whose item occurs in the dump, file order within a query (a counting sort).
-  const start = new Uint32Array(queries + 1);
-  for (let j = 0; j < table.grade.length; j++) {
-    const q = queryInDump[table.query[j]!]!;
-    if (q >= 0 && q < queries && itemInDump[table.item[j]!]! >= 0) start[q + 1]!++;
-  }
-  for (let q = 0; q < queries; q++) start[q + 1]! += start[q]!;
-  const order = new Uint32Array(start[queries]!);
-  const next = start.slice(0, queries);
-  for (let j = 0; j < table.grade.length; j++) {
-    const q = queryInDump[table.query[j]!]!;
-    if (q >= 0 && q < queries && itemInDump[table.item[j]!]! >= 0) order[next[q]!++] = j;
-  }
-  const mark = new Int32Array(dump.items.size);
-  const out = new Int32Array(dump.rowCount);
-  const { query, item } = dump;
-  for (let r = 0; r < dump.rowCount;) {
-    const q = query[r]!;
-    let end = r + 1;
-    while (end < dump.rowCount && query[end] === q) end++;
-    for (let e = start[q]!; e < start[q + 1]!; e++) mark[itemInDump[table.item[order[e]!]!]!] = order[e]! + 1;
-    for (let k = r; k < end; k++) out[k] = mark[item[k]!]! - 1;
-    for (let e = start[q]!; e < start[q + 1]!; e++) mark[itemInDump[table.item[order[e]!]!]!] = 0;
-    r = end;
-  }
-  return out;
+function matchByItemBytes(dump: RankedDump, texts: RowTexts, table: JudgmentTable, queryInDump: Int32Array): Matched {
+  const items = BytePool.copyOf(table.items);
+  const rowItem = new Int32Array(dump.rowCount);
+  texts.findEachIn(items, rowItem);
+  const seen = new Uint8Array(items.size);
+  for (let r = 0; r < rowItem.length; r++) if (rowItem[r]! >= 0) seen[rowItem[r]!] = 1;
+  let unknownItems = 0;
+  for (let i = 0; i < seen.length; i++) unknownItems += 1 - seen[i]!;
+  const judgmentOf = judgmentsByQueryRun({
+    rowQuery: dump.query, rowItem, itemCount: items.size, judgments: table.grade.length,
+    queryOf: (j) => queryInDump[table.query[j]!]!, itemOf: (j) => table.item[j]!,
+  });
+  return {
+    judgmentOf,
+    unknownItems,
+    sideItems: { pool: items, of: (j) => table.item[j]! },
+    finish: (d, fields, judgedItems) => withJudgedItems(d, fields, items, judgedItems),
+  };
 }
 
-/** Judged items each query's list lacks, grouped by dump query id (a counting sort). */
-function sideTable(dump: RankedDump, table: JudgmentTable, queryInDump: Int32Array, itemInDump: Int32Array, used: Uint8Array,
-  dumpQueries: number): UnretrievedJudged {
-  const queries = dump.queries.size;
+/**
+ * The joined dump, keeping `item` and `items` made on first use: when they are, the side table's items
+ * join the pool in judgment order (file order), as matchByItemIds adds them.
+ */
+function withJudgedItems(dump: RankedDump, fields: Pick<RankedDump, 'label' | 'notes' | 'unretrieved'>, judged: StringPool, judgedItems: Uint32Array): RankedDump {
+  const copy = Object.defineProperties({}, Object.getOwnPropertyDescriptors(dump)) as RankedDump;
+  Object.assign(copy, fields);
+  let added = false;
+  const pool = (): StringPool => {
+    const own = dump.items;
+    if (!added) {
+      added = true;
+      for (const i of judgedItems) addTo(own, judged.get(i));
+    }
+    return own;
+  };
+  return Object.defineProperties(copy, {
+    items: { get: pool, enumerable: true, configurable: true },
+    item: { get: () => (pool(), dump.item), enumerable: true, configurable: true },
+  });
+}
+
+/**
+ * Judged items each query's list lacks, grouped by dump query id (a counting sort), file order within a
+ * query; with the side table's item ids in file order (the order they join a pool).
+ */
+function sideTable(queries: number, table: JudgmentTable, queryInDump: Int32Array, used: Uint8Array, dumpQueries: number,
+  sideItems: Matched['sideItems']): { side: UnretrievedJudged; inFileOrder: Uint32Array } {
   const start = new Uint32Array(queries + 1);
   for (let j = 0; j < table.grade.length; j++) {
     const q = queryInDump[table.query[j]!]!;
@@ -343,18 +340,21 @@ function sideTable(dump: RankedDump, table: JudgmentTable, queryInDump: Int32Arr
   const grade = new Float64Array(total);
   const item = new Uint32Array(total);
   const line = new Uint32Array(total);
+  const inFileOrder = new Uint32Array(total);
   const next = start.slice(0, queries);
+  let k = 0;
   for (let j = 0; j < table.grade.length; j++) {
     const q = queryInDump[table.query[j]!]!;
     if (q < 0 || used[j] === 1) continue;
-    let i = itemInDump[table.item[j]!]!;
-    if (i < 0) i = itemInDump[table.item[j]!] = addTo(dump.items, table.items.get(table.item[j]!));
+    const i = sideItems.of(j);
     const at = next[q]!++;
     grade[at] = table.grade[j]!;
     item[at] = i;
     line[at] = table.line[j]!;
+    inFileOrder[k++] = i;
   }
-  return { start, grade, item, line, firstAbsentQuery: dumpQueries };
+  const side = { start, grade, item, line, firstAbsentQuery: dumpQueries, ...(sideItems.pool ? { items: sideItems.pool } : {}) };
+  return { side, inFileOrder };
 }
 
 /** Reader notes; the counts of the join are told by the evaluation's warnings (evaluate/warnings.ts). */

@@ -59,17 +59,10 @@ function shared<T extends Uint8Array | Uint32Array | Int32Array | Float64Array>(
   return copy;
 }
 
-/** A pool's state in shared memory; a pool of another kind is interned afresh first (same ids: in id order). */
+/** A pool's state in shared memory (a pool of another kind is interned afresh first: same ids). */
 function sharedPool(pool: StringPool): BytePoolState {
-  let bytes: BytePool;
-  if (pool instanceof BytePool) {
-    bytes = pool;
-  } else {
-    bytes = new BytePool();
-    for (let id = 0; id < pool.size; id++) bytes.internString(pool.get(id));
-  }
   // The pool's own arrays, only read here: the copies are what the threads get.
-  const s = bytes.exportState();
+  const s = BytePool.copyOf(pool).exportState();
   return { arena: shared(s.arena, s.arenaUsed), arenaUsed: s.arenaUsed, starts: shared(s.starts, s.count), count: s.count, table: shared(s.table), mask: s.mask };
 }
 
@@ -201,7 +194,7 @@ export class JudgmentLookup {
         line[at++] = t.line[j]!;
       }
     }
-    return { start, grade, item, line, firstAbsentQuery: queryCount };
+    return { start, grade, item, line, firstAbsentQuery: queryCount, items: this.items };
   }
 
   /** Each row's item as an id of the judgments' item pool (-1 when no judgment names it). */

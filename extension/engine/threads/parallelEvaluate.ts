@@ -106,7 +106,10 @@ async function scoreWithWorkers(dump: RankedDump, metrics: readonly MetricSpec[]
   const bounds = splitByRows(setup.groups.start, Math.min(setup.queryCount, threads * engineSettings().tuning.scoreChunksPerThread));
   const next = new Int32Array(shared(4));
   // Workers only find repeated items within a query: query-scoped keys serve as ids there.
-  const columns: ScoredColumns = { item: dump.itemKey ?? dump.item, label: dump.label, score: dump.score, ...(dump.unretrieved ? { unretrieved: dump.unretrieved } : {}) };
+  // The side table goes without its item pool: scoring reads only the grades (and a pool would be copied).
+  const side = dump.unretrieved && { start: dump.unretrieved.start, grade: dump.unretrieved.grade, item: dump.unretrieved.item, line: dump.unretrieved.line,
+    firstAbsentQuery: dump.unretrieved.firstAbsentQuery };
+  const columns: ScoredColumns = { item: dump.itemKey ?? dump.item, label: dump.label, score: dump.score, ...(side ? { unretrieved: side } : {}) };
   const output = options.perChunk;
   const work: ChunkWork | undefined = output && { renderer: output.renderer, params: output.params };
   const task: ScoreRangeTask = { setup, columns, bounds, next, perQuery, sensitivity: recorded, ...(work ? { perChunk: work } : {}) };

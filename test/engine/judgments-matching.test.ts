@@ -6,7 +6,14 @@
  */
 import { describe, expect, it } from 'vitest';
 import { BytePool } from '../../extension/engine/model/bytePool';
-import { firstRepeatAnyOrder, firstRepeatGrouped, isGrouped, judgmentsByPair, judgmentsByQueryRun, type JudgmentTable } from '../../extension/engine/readers/judgments';
+import { joinJudgments, type JudgmentTable } from '../../extension/engine/readers/judgments';
+import type { RankedDump } from '../../extension/engine/model/dump';
+import { evaluateDump } from '../../extension/engine/index';
+import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
+import { parseMetricList } from '../../extension/engine/metrics/parse';
+import { DEFAULT_METRICS } from '../../extension/engine/metrics/registry';
+import { plainEvaluation } from './fixtures/plainEvaluation';
+import { firstRepeatAnyOrder, firstRepeatGrouped, isGrouped, judgmentsByPair, judgmentsByQueryRun } from '../../extension/engine/readers/judgmentMatch';
 import { readDump, readJudgments } from '../../extension/engine/readers/index';
 import { TempDir } from './fixtures/readers/tempFiles';
 import { groupedDump, judgmentsFor } from './fixtures/streamFiles';
@@ -58,7 +65,7 @@ describe('judgments judged twice', () => {
       expect(isGrouped(t.query)).toBe(true);
       const slow = firstRepeatSlow(t);
       if (slow) found++;
-      expect(firstRepeatGrouped(t)).toEqual(slow);
+      expect(firstRepeatGrouped(t, t.items.size)).toEqual(slow);
       expect(firstRepeatAnyOrder(t)).toEqual(slow);
     }
     expect(found).toBeGreaterThan(20);
@@ -83,12 +90,54 @@ describe('the judgment of each row', () => {
         expect(isGrouped(dump.query)).toBe(true);
         const queryInDump = Int32Array.from({ length: table.queries.size }, (_, q) => dump.queries.find(table.queries.get(q)));
         const itemInDump = Int32Array.from({ length: table.items.size }, (_, i) => dump.items.find(table.items.get(i)));
-        const byRun = judgmentsByQueryRun(dump, table, queryInDump, itemInDump);
-        expect([...byRun]).toEqual([...judgmentsByPair(dump, table, queryInDump, itemInDump)]);
+        const ids = { rowQuery: dump.query, rowItem: dump.item, itemCount: dump.items.size, judgments: table.grade.length,
+          queryOf: (j: number) => queryInDump[table.query[j]!]!, itemOf: (j: number) => itemInDump[table.item[j]!]! };
+        const byRun = judgmentsByQueryRun(ids);
+        expect([...byRun]).toEqual([...judgmentsByPair(ids)]);
         // Not a vacuous match: most rows are judged, some are not.
         const judged = byRun.filter((j) => j >= 0).length;
         expect(judged).toBeGreaterThan(dump.rowCount / 2);
         expect(judged).toBeLessThan(dump.rowCount);
+      }
+    } finally {
+      tmp.remove();
+    }
+  });
+});
+
+describe('joining a dump by its item bytes', () => {
+  it('gives the join by dump-wide item ids exactly: labels, notes, side table, item pool and numbers, under skip and zero', async () => {
+    const tmp = new TempDir();
+    try {
+      for (const seed of [5, 6, 7]) {
+        const text = groupedDump(seed, { queries: 70, maxRows: 10, duplicateShare: 0.1, unjudgedShare: 0.05 });
+        const file = tmp.file(`bytes-${seed}.tsv`, text);
+        const table = await readJudgments(tmp.file(`bytes-${seed}.judgments.tsv`, judgmentsFor(text, seed + 70, { unretrievedPerQuery: 3 })));
+        for (const policy of ['skip', 'zero'] as const) {
+          const fresh = await readDump(file);
+          expect(fresh.itemTexts).toBeDefined();
+          const byBytes = joinJudgments(fresh, table, policy);
+          // The same rows with dump-wide item ids made first (a spread makes them) and no item bytes: the other path.
+          const withIds = await readDump(file);
+          const byIds = joinJudgments({ ...withIds, itemTexts: undefined }, table, policy);
+          expect(byBytes.unretrieved!.items).toBeDefined();
+          expect(byIds.unretrieved!.items).toBeUndefined();
+          expect([...byBytes.label]).toEqual([...byIds.label]);
+          expect(byBytes.notes).toEqual(byIds.notes);
+          const side = (d: RankedDump) => {
+            const s = d.unretrieved!;
+            return { start: [...s.start], grade: [...s.grade], line: [...s.line], first: s.firstAbsentQuery, items: [...s.item].map((i) => (s.items ?? d.items).get(i)) };
+          };
+          expect(side(byBytes)).toEqual(side(byIds));
+          expect(byBytes.unretrieved!.grade.length).toBeGreaterThan(0);
+          const metrics = parseMetricList(DEFAULT_METRICS);
+          expect(plainEvaluation(await evaluateDump(byBytes, metrics, DEFAULT_CONVENTIONS, { threads: 1 })))
+            .toEqual(plainEvaluation(await evaluateDump(byIds, metrics, DEFAULT_CONVENTIONS, { threads: 1 })));
+          // Made afterwards, the dump's item ids and pool are those of the other path, judged-only items included.
+          const names = (d: RankedDump) => Array.from({ length: d.items.size }, (_, i) => d.items.get(i));
+          expect(names(byBytes)).toEqual(names(byIds));
+          expect([...byBytes.item]).toEqual([...byIds.item]);
+        }
       }
     } finally {
       tmp.remove();
