@@ -20,22 +20,20 @@ import { DEFAULT_CONVENTIONS, type Conventions } from '../../extension/engine/me
 import { parseMetricList } from '../../extension/engine/metrics/parse';
 import { DEFAULT_METRICS } from '../../extension/engine/metrics/registry';
 import type { MissingQueriesPolicy } from '../../extension/engine/model/dump';
-import type { StringPool } from '../../extension/engine/model/stringPool';
 import { readJudgments } from '../../extension/engine/readers/index';
-import { formatReport } from '../../extension/engine/report/index';
 import { streamedQueryDetail } from '../../extension/engine/stream/queryDetail';
 import { firstQueries, judgesFirstQueries } from '../../extension/engine/stream/firstQueries';
 import { streamEvaluate } from '../../extension/engine/stream/streamEvaluate';
 import { streamJudgments } from '../../extension/engine/stream/streamJudgments';
 import { TempDir } from './fixtures/readers/tempFiles';
 import { plainEvaluation } from './fixtures/plainEvaluation';
+import { expectStreamedAsInMemory, poolNames as names } from './fixtures/streamedAsInMemory';
 import { groupedDump, judgmentsFor, type GroupedShape, type JudgmentsShape } from './fixtures/streamFiles';
 
 const tmp = new TempDir();
 afterAll(() => tmp.remove());
 
 const METRICS = parseMetricList(DEFAULT_METRICS);
-const names = (pool: StringPool) => Array.from({ length: pool.size }, (_, i) => pool.get(i));
 
 /** The dump's text without its grade column: a score-only dump whose labels live in the judgments alone. */
 function withoutGrades(text: string): string {
@@ -51,20 +49,7 @@ async function expectIdentical(file: string, judgments: string, policy: MissingQ
   metrics = METRICS): Promise<Evaluation> {
   const dump = await readDump(file, { judgments, missingQueries: policy });
   const memory = await evaluateDump(dump, metrics, conventions, { threads: 1 });
-  const streamed = await streamJoined(file, judgments, policy, conventions, metrics);
-  if (streamed.kind !== 'streamed') throw new Error(`fell back: ${streamed.reason}`);
-  expect(streamed.blocks).toBeGreaterThan(3);
-  expect(plainEvaluation(streamed.evaluation)).toEqual(plainEvaluation(memory));
-  for (let m = 0; m < metrics.length; m++) {
-    const a = memory.perQuery.values[m]!;
-    const b = streamed.evaluation.perQuery.values[m]!;
-    for (let q = 0; q < a.length; q++) if (!Object.is(a[q], b[q])) throw new Error(`${metrics[m]!.key} of query ${q}: ${a[q]} vs ${b[q]}`);
-  }
-  expect(names(streamed.dump.queries)).toEqual(names(dump.queries));
-  expect(streamed.dump.rowCount).toBe(dump.rowCount);
-  expect(streamed.dump.notes).toEqual(dump.notes);
-  const report = (evaluation: Evaluation, queryNames: StringPool) => formatReport('json', { evaluation, queryNames, source: 'dump', rowCount: dump.rowCount }, { worst: 10 });
-  expect(report(streamed.evaluation, streamed.dump.queries)).toBe(report(memory, dump.queries));
+  expectStreamedAsInMemory(await streamJoined(file, judgments, policy, conventions, metrics), memory, dump, metrics);
   return memory;
 }
 

@@ -7,12 +7,10 @@
 import { statSync } from 'node:fs';
 import { afterAll, describe, expect, it } from 'vitest';
 import { evaluateDump, readDump, streamOrRead } from '../../extension/engine/index';
-import type { Evaluation, MetricSummary } from '../../extension/engine/evaluate/types';
+import type { MetricSummary } from '../../extension/engine/evaluate/types';
 import { DEFAULT_CONVENTIONS, type Conventions } from '../../extension/engine/metrics/conventions';
 import { DEFAULT_METRICS } from '../../extension/engine/metrics/registry';
 import { parseMetricList } from '../../extension/engine/metrics/parse';
-import type { StringPool } from '../../extension/engine/model/stringPool';
-import { formatReport } from '../../extension/engine/report/index';
 import { blockBounds } from '../../extension/engine/stream/fileBlocks';
 import { readQueryRows, streamedQueryDetail } from '../../extension/engine/stream/queryDetail';
 import { streamEvaluate } from '../../extension/engine/stream/streamEvaluate';
@@ -22,13 +20,13 @@ import { joinTables } from '../../extension/engine/tables/join';
 import { TempDir } from './fixtures/readers/tempFiles';
 import { groupedDump, type GroupedShape } from './fixtures/streamFiles';
 import { plainEvaluation } from './fixtures/plainEvaluation';
+import { expectStreamedAsInMemory } from './fixtures/streamedAsInMemory';
 
 const tmp = new TempDir();
 afterAll(() => tmp.remove());
 
 const METRICS = parseMetricList(DEFAULT_METRICS);
 
-const names = (pool: StringPool) => Array.from({ length: pool.size }, (_, i) => pool.get(i));
 
 async function both(file: string, conventions: Conventions, metrics = METRICS, blockBytes = 700) {
   // As the command line reads it: a weight column of the dump is joined per query (tables/join.ts).
@@ -41,20 +39,7 @@ async function both(file: string, conventions: Conventions, metrics = METRICS, b
 
 async function expectIdentical(file: string, conventions: Conventions, metrics = METRICS, blockBytes = 700): Promise<number> {
   const { dump, memory, streamed } = await both(file, conventions, metrics, blockBytes);
-  expect(streamed.blocks).toBeGreaterThan(3);
-  expect(plainEvaluation(streamed.evaluation)).toEqual(plainEvaluation(memory));
-  // toEqual treats NaN as NaN but not 0 as -0 everywhere; the report bytes settle the rest.
-  for (let m = 0; m < metrics.length; m++) {
-    const a = memory.perQuery.values[m]!;
-    const b = streamed.evaluation.perQuery.values[m]!;
-    for (let q = 0; q < a.length; q++) if (!Object.is(a[q], b[q])) throw new Error(`${metrics[m]!.key} of query ${q}: ${a[q]} vs ${b[q]}`);
-  }
-  expect(names(streamed.dump.queries)).toEqual(names(dump.queries));
-  expect(streamed.dump.rowCount).toBe(dump.rowCount);
-  expect(streamed.dump.notes).toEqual(dump.notes);
-  const report = (evaluation: Evaluation, queryNames: StringPool) => formatReport('json', { evaluation, queryNames, source: 'dump', rowCount: dump.rowCount }, { worst: 10 });
-  expect(report(streamed.evaluation, streamed.dump.queries)).toBe(report(memory, dump.queries));
-  return streamed.blocks;
+  return expectStreamedAsInMemory(streamed, memory, dump, metrics).blocks;
 }
 
 const SHAPES: [string, GroupedShape][] = [
