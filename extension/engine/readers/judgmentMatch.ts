@@ -83,16 +83,16 @@ export function judgmentsByPair(m: RowsAndJudgments): Int32Array {
   return out;
 }
 
-/**
- * judgmentsByPair for rows grouped by query (the usual dump): for each query's run of rows its judgments
- * mark their items (judgment + 1 in an array by item id), each row reads its item's mark, and the marks
- * are cleared. A pair index misses the cache on nearly every row; the marks take four bytes per item.
- */
-export function judgmentsByQueryRun(m: RowsAndJudgments): Int32Array {
-  const rows = m.rowQuery.length;
+/** The judgments of each row query: judgment indices order[start[q]] .. order[start[q + 1] - 1], file order. */
+export interface JudgmentsByQuery {
+  readonly start: Uint32Array;
+  readonly order: Uint32Array;
+}
+
+/** The judgments of each row query, by a counting sort over every judgment (judgments whose item no row names left out). */
+export function judgmentsByRowQuery(m: RowsAndJudgments): JudgmentsByQuery {
   let queries = 0;
-  for (let r = 0; r < rows; r++) queries = Math.max(queries, m.rowQuery[r]! + 1);
-  // The judgments of each row query, file order within a query (a counting sort).
+  for (let r = 0; r < m.rowQuery.length; r++) queries = Math.max(queries, m.rowQuery[r]! + 1);
   const start = new Uint32Array(queries + 1);
   for (let j = 0; j < m.judgments; j++) {
     const q = m.queryOf(j);
@@ -105,7 +105,20 @@ export function judgmentsByQueryRun(m: RowsAndJudgments): Int32Array {
     const q = m.queryOf(j);
     if (q >= 0 && q < queries && m.itemOf(j) >= 0) order[next[q]!++] = j;
   }
-  const mark = new Int32Array(m.itemCount);
+  return { start, order };
+}
+
+/**
+ * judgmentsByPair for rows grouped by query (the usual dump): for each query's run of rows its judgments
+ * (`groups`, judgmentsByRowQuery's by default) mark their items (judgment + 1 in an array by item id), each
+ * row reads its item's mark, and the marks are cleared. A pair index misses the cache on nearly every row;
+ * the marks take four bytes per item. `mark`, when given, is all zeros and is left so (reused by a caller
+ * that joins many blocks).
+ */
+export function judgmentsByQueryRun(m: Pick<RowsAndJudgments, 'rowQuery' | 'rowItem' | 'itemCount' | 'itemOf'> & Partial<RowsAndJudgments>,
+  groups: JudgmentsByQuery = judgmentsByRowQuery(m as RowsAndJudgments), mark: Int32Array<ArrayBufferLike> = new Int32Array(m.itemCount)): Int32Array {
+  const rows = m.rowQuery.length;
+  const { start, order } = groups;
   const out = new Int32Array(rows);
   const { rowQuery, rowItem } = m;
   for (let r = 0; r < rows;) {
@@ -121,4 +134,41 @@ export function judgmentsByQueryRun(m: RowsAndJudgments): Int32Array {
     r = end;
   }
   return out;
+}
+
+/** Row-level counts of a join: rows with a label of their own, how many the judgments contradict, the first few. */
+export interface JoinCounts {
+  readonly inlineRows: number;
+  readonly disagreements: number;
+  readonly examples: readonly string[];
+}
+
+/** How many disagreements a join words (readers/judgments.ts notes, the stream's blocks alike). */
+export const JOIN_EXAMPLES = 5;
+
+/**
+ * The join's rule for each row: its label becomes its judgment's grade, NaN (unjudged) without one; a row
+ * with a label of its own that the judgment contradicts is a disagreement. `label` may be `inline` itself
+ * (a stream block joins in place). Marks each used judgment in `used`; `rowName` words a row for the examples.
+ */
+export function applyJudgments(judgmentOf: Int32Array, grade: Float64Array, inline: Float64Array, label: Float64Array, used: Uint8Array,
+  rowName: (row: number) => string): JoinCounts {
+  let inlineRows = 0;
+  let disagreements = 0;
+  const examples: string[] = [];
+  for (let r = 0; r < judgmentOf.length; r++) {
+    const j = judgmentOf[r]!;
+    const judged = j < 0 ? NaN : grade[j]!;
+    if (j >= 0) used[j] = 1;
+    const own = inline[r]!;
+    if (own === own) {
+      inlineRows++;
+      if (own !== judged) {
+        disagreements++;
+        if (examples.length < JOIN_EXAMPLES) examples.push(`${rowName(r)}: ${own} in the dump, ${judged === judged ? judged : 'unjudged'} in the judgments`);
+      }
+    }
+    label[r] = judged;
+  }
+  return { inlineRows, disagreements, examples };
 }

@@ -20,7 +20,7 @@ import { MapStringPool, type StringPool } from '../model/stringPool';
 import type { ReadOptions } from './readOptions';
 import { parseNumber } from './numbers';
 import { textHead } from './detect';
-import { firstRepeatAnyOrder, firstRepeatGrouped, isGrouped, judgmentsByPair, judgmentsByQueryRun, type RowsAndJudgments } from './judgmentMatch';
+import { applyJudgments, firstRepeatAnyOrder, firstRepeatGrouped, isGrouped, JOIN_EXAMPLES, judgmentsByPair, judgmentsByQueryRun, type RowsAndJudgments } from './judgmentMatch';
 import { LineSink, pumpText, splitWhitespace } from './source';
 
 /** The start of the error for a judgments file that names none of the run's queries. */
@@ -38,8 +38,6 @@ export interface JudgmentTable {
   readonly line: Uint32Array;
 }
 
-/** How many examples a note lists. */
-const EXAMPLES = 5;
 
 /**
  * Reads a judgments file in either layout. `readTable` reads a tabular file (the dump readers, passed in
@@ -179,30 +177,12 @@ export function joinJudgments(dump: RankedDump, table: JudgmentTable, policy: Mi
   for (let q = 0; q < judgedQueries; q++) queryInDump[q] = idIn(table.queries, q, dump.queries);
   const matched = dump.itemTexts instanceof RowTexts && isGrouped(dump.query)
     ? matchByItemBytes(dump, dump.itemTexts, table, queryInDump) : matchByItemIds(dump, table, queryInDump);
-  const judgmentOf = matched.judgmentOf;
 
   // In shared memory when the dump's columns are (a parallel read): scoring threads then share it, not copy it.
   const label = new Float64Array(dump.label.buffer instanceof SharedArrayBuffer ? new SharedArrayBuffer(dump.rowCount * 8) : new ArrayBuffer(dump.rowCount * 8));
   const used = new Uint8Array(table.grade.length);
-  let inlineRows = 0;
-  let disagreements = 0;
-  const disagreementExamples: string[] = [];
-  for (let r = 0; r < dump.rowCount; r++) {
-    const j = judgmentOf[r]!;
-    const judged = j < 0 ? NaN : table.grade[j]!;
-    if (j >= 0) used[j] = 1;
-    const inline = dump.label[r]!;
-    if (inline === inline) {
-      inlineRows++;
-      if (inline !== judged) {
-        disagreements++;
-        if (disagreementExamples.length < EXAMPLES) {
-          disagreementExamples.push(`${dump.queries.get(dump.query[r]!)}/${itemOfRow(dump, r)}: ${inline} in the dump, ${judged === judged ? judged : 'unjudged'} in the judgments`);
-        }
-      }
-    }
-    label[r] = judged;
-  }
+  const { inlineRows, disagreements, examples: disagreementExamples } = applyJudgments(matched.judgmentOf, table.grade, dump.label, label, used,
+    (r) => `${dump.queries.get(dump.query[r]!)}/${itemOfRow(dump, r)}`);
 
   // Judged queries the run lacks: counted; under `zero` they join the dump as queries without rows.
   let absentQueries = 0;
@@ -210,7 +190,7 @@ export function joinJudgments(dump: RankedDump, table: JudgmentTable, policy: Mi
   for (let q = 0; q < judgedQueries; q++) {
     if (queryInDump[q]! >= 0) continue;
     absentQueries++;
-    if (absentExamples.length < EXAMPLES) absentExamples.push(table.queries.get(q));
+    if (absentExamples.length < JOIN_EXAMPLES) absentExamples.push(table.queries.get(q));
     if (policy === 'zero') queryInDump[q] = addTo(dump.queries, table.queries.get(q));
   }
   const { side: unretrieved, inFileOrder } = sideTable(dump.queries.size, table, queryInDump, used, dumpQueries, matched.sideItems);

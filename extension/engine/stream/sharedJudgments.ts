@@ -12,6 +12,7 @@
  */
 import { BytePool, type BytePoolState } from '../model/bytePool';
 import { itemOfRow, type RankedDump, type UnretrievedJudged } from '../model/dump';
+import { applyJudgments, judgmentsByQueryRun, type JoinCounts } from '../readers/judgmentMatch';
 import { RowTexts } from '../model/rowTexts';
 import type { StringPool } from '../model/stringPool';
 import type { JudgmentTable } from '../readers/judgments';
@@ -36,15 +37,7 @@ export interface SharedJudgments {
 }
 
 /** Row-level counts of one block's join; blocks add up (a query read again whole adds nothing). */
-export interface BlockJudged {
-  readonly inlineRows: number;
-  readonly disagreements: number;
-  /** The first few disagreements of the block, as the in-memory join words them. */
-  readonly examples: readonly string[];
-}
-
-/** How many disagreement examples a block gives (the in-memory join keeps as many). */
-export const JOIN_EXAMPLES = 5;
+export type BlockJudged = JoinCounts;
 
 let nextKey = 1;
 
@@ -87,9 +80,8 @@ export class JudgmentLookup {
   readonly queries: BytePool;
   readonly items: BytePool;
   /**
-   * Judgment + 1 of each judged item within the query being joined (0: not judged for it), set from the
-   * query's own judgments and cleared after its rows: four bytes per judged item, where an index of every
-   * (query, item) pair would take twelve per judgment on every thread.
+   * The marks of judgmentsByQueryRun, kept zeroed between blocks: four bytes per judged item, where an index
+   * of every (query, item) pair would take twelve per judgment on every thread.
    */
   private readonly entryOfItem: Int32Array;
   /** Marks the judgments a block's rows use; cleared again for each query once its side table is made. */
@@ -113,54 +105,24 @@ export class JudgmentLookup {
     const queryCount = dump.queries.size;
     const judgedQuery = new Int32Array(queryCount);
     for (let q = 0; q < queryCount; q++) judgedQuery[q] = findIn(this.queries, dump.queries, q);
-    const n = dump.rowCount;
-    const itemIds = this.itemIdsOf(dump);
-    const { query, label } = dump;
-    const { seenItems, grade } = t;
-    const used = this.used;
-    const entryOfItem = this.entryOfItem;
-    let inlineRows = 0;
-    let disagreements = 0;
-    const examples: string[] = [];
-    let current = -1;
-    for (let r = 0; r < n; r++) {
-      const ti = itemIds[r]!;
-      if (ti >= 0) seenItems[ti] = 1;
-      const tq = judgedQuery[query[r]!]!;
-      if (tq !== current) {
-        // A new query (once per run of rows: a block's rows are grouped by query when they are joined).
-        this.markItems(current, 0);
-        this.markItems(tq, 1);
-        current = tq;
-      }
-      const j = tq >= 0 && ti >= 0 ? entryOfItem[ti]! - 1 : -1;
-      const judged = j < 0 ? NaN : grade[j]!;
-      if (j >= 0) used[j] = 1;
-      const inline = label[r]!;
-      if (inline === inline) {
-        inlineRows++;
-        if (inline !== judged) {
-          disagreements++;
-          if (examples.length < JOIN_EXAMPLES) {
-            examples.push(`${dump.queries.get(query[r]!)}/${itemOfRow(dump, r)}: ${inline} in the dump, ${judged === judged ? judged : 'unjudged'} in the judgments`);
-          }
-        }
-      }
-      label[r] = judged;
+    const rowItem = this.itemIdsOf(dump);
+    for (let r = 0; r < dump.rowCount; r++) if (rowItem[r]! >= 0) t.seenItems[rowItem[r]!] = 1;
+    // The judgments of each block query, from the table's grouping (only the block's queries are visited).
+    const start = new Uint32Array(queryCount + 1);
+    for (let q = 0; q < queryCount; q++) {
+      const tq = judgedQuery[q]!;
+      start[q + 1] = start[q]! + (tq < 0 ? 0 : t.start[tq + 1]! - t.start[tq]!);
     }
-    this.markItems(current, 0);
+    const order = new Uint32Array(start[queryCount]!);
+    for (let q = 0; q < queryCount; q++) {
+      const tq = judgedQuery[q]!;
+      if (tq >= 0) order.set(t.order.subarray(t.start[tq]!, t.start[tq + 1]!), start[q]!);
+    }
+    const judgmentOf = judgmentsByQueryRun({ rowQuery: dump.query, rowItem: rowItem.subarray(0, dump.rowCount), itemCount: this.entryOfItem.length,
+      itemOf: (j) => t.item[j]! }, { start, order }, this.entryOfItem);
+    const counts = applyJudgments(judgmentOf, t.grade, dump.label, dump.label, this.used, (r) => `${dump.queries.get(dump.query[r]!)}/${itemOfRow(dump, r)}`);
     (dump as { unretrieved?: UnretrievedJudged }).unretrieved = this.sideTable(judgedQuery);
-    return { inlineRows, disagreements, examples };
-  }
-
-  /** Sets entryOfItem for the items judged for query `tq` of the table (judgment + 1), or clears it (`on` 0). */
-  private markItems(tq: number, on: 0 | 1): void {
-    if (tq < 0) return;
-    const t = this.table;
-    for (let e = t.start[tq]!; e < t.start[tq + 1]!; e++) {
-      const j = t.order[e]!;
-      this.entryOfItem[t.item[j]!] = on * (j + 1);
-    }
+    return counts;
   }
 
   /** The judged items each block query's rows did not name, file order within a query (as the in-memory side table). */

@@ -15,7 +15,8 @@ import type { StringPool } from '../model/stringPool';
 import { describeJoin, joinJudgments, noSharedQueryError, sharesQuery, type JudgmentTable } from '../readers/judgments';
 import { BytePool } from '../model/bytePool';
 import type { ScoredRuns } from './block';
-import { JOIN_EXAMPLES, shareJudgments, type BlockJudged, type SharedJudgments } from './sharedJudgments';
+import { shareJudgments, type BlockJudged, type SharedJudgments } from './sharedJudgments';
+import { JOIN_EXAMPLES } from '../readers/judgmentMatch';
 import { newSensitivityPassWith, scoredBlockSetup } from './setup';
 
 /** Labels for a streamed dump from a judgments table (read before the stream, so its errors come first). */
