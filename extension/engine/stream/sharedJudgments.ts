@@ -75,7 +75,7 @@ export function shareJudgments(table: JudgmentTable): SharedJudgments {
   };
 }
 
-/** A thread's view of a shared table, with the (query, item) index built once. */
+/** A thread's view of a shared table, made once per thread, with the scratch its block joins reuse. */
 export class JudgmentLookup {
   readonly queries: BytePool;
   readonly items: BytePool;
