@@ -15,6 +15,7 @@ import type { Conventions } from './metrics/conventions';
 import type { MetricSpec } from './metrics/registry';
 import type { RankedDump } from './model/dump';
 import { readDump as readDumpFile, readJudgments, type ReadOptions } from './readers/index';
+import type { JudgmentTable } from './readers/judgments';
 import { chooseReading, type ReadingMode } from './stream/choose';
 import { streamEvaluate, type StreamedDump, type StreamEvaluateOptions } from './stream/streamEvaluate';
 import { streamJudgments } from './stream/streamJudgments';
@@ -65,6 +66,8 @@ export interface StreamOrReadOptions extends Pick<StreamEvaluateOptions, 'sensit
   readonly reading?: ReadingMode;
   /** With `auto`: stream from this file size (default stream/choose.ts STREAM_FROM_BYTES). */
   readonly streamFromBytes?: number;
+  /** The judgments file `read.judgments` names, already read by the caller (it is not read again). */
+  readonly judgmentTable?: JudgmentTable;
 }
 
 /** A dump scored as it streamed in, or why it was not (`tried`: a stream began and gave way). */
@@ -82,10 +85,11 @@ export async function streamIfFit(path: string, read: ReadOptions, metrics: read
   const choice = await chooseReading(path, read, options.reading ?? 'auto', options.streamFromBytes);
   if (!choice.stream) return { kind: 'declined', why: choice.why, tried: false };
   // A named judgments file is read first, so its errors come before the stream's work, as the read's do.
+  const { judgmentTable, ...streamOptions } = options;
   const judgments = read.judgments === undefined ? undefined
-    : streamJudgments(await readJudgments(read.judgments, read), read.missingQueries ?? 'skip');
+    : streamJudgments(judgmentTable ?? await readJudgments(read.judgments, read), read.missingQueries ?? 'skip');
   const outcome = await streamEvaluate(path, choice.format, metrics, conventions, {
-    ...options, ...(read.columns ? { columns: read.columns } : {}), ...(read.threads !== undefined ? { threads: read.threads } : {}),
+    ...streamOptions, ...(read.columns ? { columns: read.columns } : {}), ...(read.threads !== undefined ? { threads: read.threads } : {}),
     ...(read.signal ? { signal: read.signal } : {}), ...(judgments ? { judgments } : {}),
   });
   return outcome.kind === 'streamed' ? outcome : { kind: 'declined', why: outcome.reason, tried: true };

@@ -13,9 +13,9 @@ import { queryDetail, type GradeRange } from '../engine/evaluate/detail';
 import { headlineCutoff } from '../engine/evaluate/scorer';
 import type { Evaluation } from '../engine/evaluate/types';
 import { readDump, segmentRowsOf, streamIfFit, streamOrRead, type RankedDump, type ReadOptions, type StreamedDump, type StreamIfFit, type StreamPartial } from '../engine/index';
-import { judgmentsShareQuery, readJudgments } from '../engine/readers/index';
+import { readJudgments } from '../engine/readers/index';
 import { judgesFirstQueries } from '../engine/stream/firstQueries';
-import { unusedJudgmentsNote } from '../engine/readers/judgments';
+import { sharesQuery, unusedJudgmentsNote, type JudgmentTable } from '../engine/readers/judgments';
 import type { StringPool } from '../engine/model/stringPool';
 import type { SegmentedRows } from '../engine/evaluate/segments';
 import { parseMetricList } from '../engine/metrics/parse';
@@ -113,16 +113,19 @@ export async function loadStreamOrRead(source: DumpSource, settings: EvaluationS
     sensitivity: true, segments: true, onPartial, onProgress: options.onProgress, signal: options.signal, blockBytes: editorBlockBytes(size) };
   const gaveWay = (why: string) => `Read into memory rather than streamed, since ${why}.`;
   if (found.length > 0) {
-    // A found judgments file that judges the dump's first queries goes with it: joined in the one stream.
-    const joinedAtOnce = source.judgmentsFound === true && source.judgments !== undefined
-      && await judgesFirstQueries(source.path, await readJudgments(source.judgments, { signal: options.signal }), read);
+    // A found judgments file is read once, here: checked, and joined if it goes with the dump.
+    const foundTable = source.judgmentsFound === true && source.judgments !== undefined ? await readJudgments(source.judgments, { signal: options.signal }) : undefined;
+    const joinedOptions = { ...streamOptions, ...(foundTable ? { judgmentTable: foundTable } : {}) };
+    // One that judges the dump's first queries goes with it: joined in the one stream.
+    const joinedAtOnce = foundTable !== undefined && await judgesFirstQueries(source.path, foundTable, read);
     // The files found beside it are joined when the dump is read, so one that does not stream is left to the caller.
-    const outcome = await streamIfFit(source.path, joinedAtOnce ? { ...read, ...judgedBy(source) } : read, metrics, settings.conventions, streamOptions);
+    const outcome = joinedAtOnce ? await streamIfFit(source.path, { ...read, ...judgedBy(source) }, metrics, settings.conventions, joinedOptions)
+      : await streamIfFit(source.path, read, metrics, settings.conventions, streamOptions);
     if (outcome.kind === 'declined') return { kind: 'declined', ...(outcome.tried ? { note: gaveWay(outcome.why) } : {}) };
-    const check = await checkFoundFiles(source, outcome.dump.queries, options.signal, joinedAtOnce);
+    const check = await checkFoundFiles(source, outcome.dump.queries, options.signal, joinedAtOnce ? undefined : foundTable);
     if (check.related.length === 1 && check.judgmentsRelated) {
       // Related after all, though none of the first queries is judged: streamed again with them joined.
-      const joined = await streamIfFit(source.path, { ...read, ...judgedBy(source) }, metrics, settings.conventions, streamOptions);
+      const joined = await streamIfFit(source.path, { ...read, ...judgedBy(source) }, metrics, settings.conventions, joinedOptions);
       if (joined.kind === 'streamed') {
         const note = `${source.judgments} was found beside the dump and names its queries: the dump was streamed a second time to join its labels.`;
         return { kind: 'streamed', ...streamedSession(joined, fileName, options.started, [note, ...check.notes]) };
@@ -155,13 +158,13 @@ function foundFiles(source: DumpSource): string[] {
  * none is left out, with the read's note. An items table can only be checked against item ids, which a
  * stream does not keep: it is left out, with a note saying so (it only adds titles to a query's detail).
  */
-async function checkFoundFiles(source: DumpSource, queries: StringPool, signal: AbortSignal, judgmentsJoined: boolean):
+async function checkFoundFiles(source: DumpSource, queries: StringPool, signal: AbortSignal, judgments: JudgmentTable | undefined):
   Promise<{ related: string[]; notes: string[]; judgmentsRelated: boolean }> {
   const related: string[] = [];
   const notes: string[] = [];
   let judgmentsRelated = false;
-  if (source.judgments !== undefined && source.judgmentsFound === true && !judgmentsJoined) {
-    judgmentsRelated = await judgmentsShareQuery(source.judgments, queries, { signal });
+  if (source.judgments !== undefined && judgments !== undefined) {
+    judgmentsRelated = sharesQuery(queries, judgments);
     if (judgmentsRelated) related.push(`the judgments file ${source.judgments}`);
     else notes.push(unusedJudgmentsNote(source.judgments));
   }

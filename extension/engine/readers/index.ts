@@ -19,7 +19,6 @@ import { readParallelDelimited, shouldParseInParallel } from '../threads/paralle
 import { readParquet } from './parquet';
 import type { ReadOptions } from './readOptions';
 import { joinJudgments, readJudgmentTable, sharesQuery, unusedJudgmentsNote, type JudgmentTable } from './judgments';
-import type { StringPool } from '../model/stringPool';
 import { readRunFile } from './runFile';
 import { changedSince, fileChangedError, pumpText, statStamp, throwIfCancelled } from './source';
 import { readSparseFeatures } from './sparseFeatures';
@@ -74,14 +73,6 @@ async function withOwnLabels(path: string, read: RankedDump, options: ReadOption
 /** A judgments file read as a dump's judgments are (for a dump that streams and is joined block by block). */
 export function readJudgments(judgments: string, options: Pick<ReadOptions, 'judgmentsColumns' | 'signal'> = {}): Promise<JudgmentTable> {
   return readJudgmentTable(judgments, options, (p, o) => readFormat(p, o));
-}
-
-/**
- * Whether a judgments file names any of `queries` (a streamed dump's, which keeps no rows to join), the
- * file read as a dump's judgments are.
- */
-export async function judgmentsShareQuery(judgments: string, queries: StringPool, options: Pick<ReadOptions, 'judgmentsColumns' | 'signal'> = {}): Promise<boolean> {
-  return sharesQuery(queries, await readJudgments(judgments, options));
 }
 
 async function readFormat(path: string, options: ReadOptions): Promise<RankedDump> {
