@@ -25,15 +25,18 @@ export function toMaybe(value: number): MaybeNumber {
 }
 
 /** Per query, the interned value of a segment column on the query's first row. */
+/** The segment value id of a query without rows (a judged query the run lacks, under missing queries `zero`): it belongs to no value. */
+export const NO_SEGMENT_VALUE = 0xffffffff;
+
 export function segmentOfQuery(source: QueryTableSource, column: string): { values: (id: number) => string; ofQuery: Uint32Array } {
   const segment = source.dump.segments.find((s) => s.name === column);
   if (!segment || !source.groups) throw new Error(`no segment column '${column}'`);
   const { rowsOfQuery, start } = source.groups;
   const ofQuery = new Uint32Array(source.evaluation.queryCount);
   for (let q = 0; q < ofQuery.length; q++) {
-    ofQuery[q] = start[q + 1]! > start[q]! ? segment.ofRow[rowsOfQuery[start[q]!]!]! : 0;
+    ofQuery[q] = start[q + 1]! > start[q]! ? segment.ofRow[rowsOfQuery[start[q]!]!]! : NO_SEGMENT_VALUE;
   }
-  return { values: (id) => segment.values.get(id), ofQuery };
+  return { values: (id) => (id === NO_SEGMENT_VALUE ? '' : segment.values.get(id)), ofQuery };
 }
 
 export { lossShares };

@@ -183,8 +183,9 @@ function streamedSession(outcome: Extract<StreamIfFit, { kind: 'streamed' }>, fi
   { readonly session: StreamedLoaded; readonly overview: OverviewModel } {
   const { dump, evaluation } = outcome;
   const rows = segmentRowsOf(dump);
-  // Each query is its own one-row group: the table's segment of a query is the value of that row.
-  const groups = { rowsOfQuery: rows.query, start: Uint32Array.from({ length: rows.rowCount + 1 }, (_, q) => q) };
+  // Each query is its own one-row group: the table's segment of a query is the value of that row. Judged
+  // queries the run lacks (missing queries `zero`) come last, with no row, as in memory.
+  const groups = { rowsOfQuery: rows.query, start: Uint32Array.from({ length: evaluation.queryCount + 1 }, (_, q) => Math.min(q, rows.rowCount)) };
   const table = new QueryTable({ dump: { queries: dump.queries, segments: rows.segments, ...(dump.joined ? { joined: dump.joined } : {}) }, evaluation, groups });
   const file = { path: dump.path, name: fileName, format: dump.format, rowCount: dump.rowCount, sizeBytes: dump.stamp.size, textual: true };
   const streamedNote = `Streamed: scored as the file was read (${outcome.blocks} blocks on ${outcome.threads} threads), without keeping its rows in memory; ` +
@@ -258,7 +259,8 @@ export async function streamedDetail(s: StreamedLoaded, query: string, maxPairs:
   const at = (row: number) => (row < 0 ? row : row + shift);
   return {
     ...view,
-    segments: Object.fromEntries(s.rows.segments.map((c) => [c.name, c.values.get(c.ofRow[id]!)])),
+    // A judged query the run lacks has no row, so no segment value (as in memory).
+    segments: Object.fromEntries(s.rows.segments.filter((c) => id < c.ofRow.length).map((c) => [c.name, c.values.get(c.ofRow[id]!)])),
     positions: view.positions.map((p) => ({ ...p, row: at(p.row) })),
     ideal: view.ideal.map((p) => ({ ...p, row: at(p.row) })),
     invertedPairs: view.invertedPairs.map((p) => ({ ...p, aboveRow: at(p.aboveRow), belowRow: at(p.belowRow) })),

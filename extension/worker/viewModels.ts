@@ -26,7 +26,7 @@ import type {
   SegmentTable,
   SensitivityView,
 } from '../protocol/messages';
-import { toMaybe, type QueryTable } from './queryTable';
+import { NO_SEGMENT_VALUE, toMaybe, type QueryTable } from './queryTable';
 
 /** 'ndcg@10' → 'NDCG@10', 'tau' → "Kendall's τ": the registry's label (presentation module). */
 export function metricLabel(spec: MetricSpec): string {
@@ -168,7 +168,10 @@ export function detailView(dump: RankedDump, evaluation: Evaluation, detail: Que
   const label = (v: number) => toMaybe(v);
   const byRow = new Map(detail.positions.map((p) => [p.row, p]));
   const segments: Record<string, string> = {};
-  for (const s of dump.segments) segments[s.name] = table.segment(s.name).values(table.segment(s.name).ofQuery[queryId]!);
+  for (const s of dump.segments) {
+    const { values, ofQuery } = table.segment(s.name);
+    if (ofQuery[queryId] !== NO_SEGMENT_VALUE) segments[s.name] = values(ofQuery[queryId]!);
+  }
   const titles = dump.joined?.itemTitle;
   const titleOf = (row: number) => (titles ? { title: titles[dump.item[row]!] ?? '' } : {});
   const text = dump.joined?.queryText?.[queryId];
@@ -220,7 +223,7 @@ export function segmentTable(dump: SegmentedRows, evaluation: Evaluation, table:
   const shares = table.lossShare;
   for (let q = 0; q < ofQuery.length; q++) {
     const share = shares[q]!;
-    if (!Number.isFinite(share)) continue;
+    if (!Number.isFinite(share) || ofQuery[q] === NO_SEGMENT_VALUE) continue;
     const value = values(ofQuery[q]!);
     shareByValue.set(value, (shareByValue.get(value) ?? 0) + share);
   }
@@ -228,7 +231,7 @@ export function segmentTable(dump: SegmentedRows, evaluation: Evaluation, table:
   const skippedByValue = new Map<string, number>();
   const headlineValues = evaluation.perQuery.values[evaluation.headline]!;
   for (let q = 0; q < ofQuery.length; q++) {
-    if (Number.isFinite(headlineValues[q]!)) continue;
+    if (Number.isFinite(headlineValues[q]!) || ofQuery[q] === NO_SEGMENT_VALUE) continue;
     const value = values(ofQuery[q]!);
     skippedByValue.set(value, (skippedByValue.get(value) ?? 0) + 1);
   }

@@ -22,6 +22,9 @@ import { DEFAULT_METRICS } from '../../extension/engine/metrics/registry';
 import type { MissingQueriesPolicy } from '../../extension/engine/model/dump';
 import { readJudgments } from '../../extension/engine/readers/index';
 import { streamedQueryDetail } from '../../extension/engine/stream/queryDetail';
+import { segmentRowsOf } from '../../extension/engine/stream/segmentRows';
+import { segmentBreakdown } from '../../extension/engine/evaluate/segments';
+import { joinTables } from '../../extension/engine/tables/join';
 import { firstQueries, judgesFirstQueries } from '../../extension/engine/stream/firstQueries';
 import { streamEvaluate } from '../../extension/engine/stream/streamEvaluate';
 import { streamJudgments } from '../../extension/engine/stream/streamJudgments';
@@ -153,14 +156,22 @@ describe('what the join needs of the whole file', () => {
     }
   });
 
-  it('under missing queries zero, a weight column or kept segments make the stream give way with the reason', async () => {
-    const text = groupedDump(12, { queries: 30, maxRows: 6, weights: true });
+  it('under missing queries zero with a weight column and segments: absent queries weigh 1 and belong to no segment, as in memory', async () => {
+    const text = groupedDump(12, { queries: 40, maxRows: 6, weights: true, segments: true });
     const file = tmp.file('weighted.tsv', text);
     const judgments = tmp.file('weighted.judgments.tsv', judgmentsFor(text, 3));
-    const s = await streamJoined(file, judgments, 'zero', DEFAULT_CONVENTIONS);
-    expect(s.kind === 'fallback' && s.reason).toMatch(/need weights of their own/);
-    // Without judged queries missing from the run, or under `skip`, it streams.
-    expect((await streamJoined(file, judgments, 'skip', DEFAULT_CONVENTIONS)).kind).toBe('streamed');
+    // As the command line reads it: the weight column joined per query, after the judgments.
+    const dump = joinTables(await readDump(file, { judgments, missingQueries: 'zero' }));
+    const memory = await evaluateDump(dump, METRICS, DEFAULT_CONVENTIONS, { threads: 1 });
+    expect(dump.joined!.notes.join(' ')).toMatch(/3 judged queries missing from the run \(scored 0\) have no weight of their own/);
+    const table = await readJudgments(judgments);
+    const streamed = expectStreamedAsInMemory(await streamEvaluate(file, 'tsv', METRICS, DEFAULT_CONVENTIONS,
+      { blockBytes: 700, segments: true, judgments: streamJudgments(table, 'zero') }), memory, dump, METRICS);
+    expect(streamed.dump.joined?.notes).toEqual(dump.joined!.notes);
+    const rows = segmentRowsOf(streamed.dump);
+    expect(rows.segments.map((c) => c.name)).toEqual(['locale', 'device']);
+    expect(dump.segments.map((c) => c.name)).toEqual(['locale', 'device']);
+    for (const column of [0, 1]) expect(segmentBreakdown(rows, streamed.evaluation, column)).toEqual(segmentBreakdown(dump, memory, column));
   });
 
   it('through the engine entry, a named judgments file no longer stops a stream', async () => {

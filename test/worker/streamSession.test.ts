@@ -135,6 +135,34 @@ describe('a dump streamed in the editor', () => {
     expect(JSON.stringify(detail)).toContain('sku-0-judged-only');
   });
 
+  it('streams under missing queries zero with its weight and aisle columns: the judged queries it lacks weigh 1, in no aisle, as in memory', async () => {
+    const judgments = join(dir, 'kettlewood-zero.judgments.tsv');
+    const lines = ['query_id\titem_id\tlabel'];
+    for (let q = 0; q < 6000; q += 5) lines.push(`${QUERY_NAMES[q % QUERY_NAMES.length]} ${q}\tsku-${q}-1\t${q % 4}`);
+    lines.push('tile cutter 1\tsku-t-1\t3', 'tile cutter 2\tsku-t-2\t1');
+    writeFileSync(judgments, lines.join('\n') + '\n');
+    const source = { path: file, judgments, missingQueries: 'zero' as const };
+    const memory = await worker.call('load', { session: 'zero-memory', source, settings });
+    const streamed = await worker.call('load', { session: 'zero', source, settings, streamFromBytes: 0 });
+    expect(streamed.warnings.some((w) => w.startsWith('Streamed:'))).toBe(true);
+    expect(streamed.queryCount).toBe(6002);
+    expect(streamed.metrics).toEqual(memory.metrics);
+    expect(streamed.weighting).toBe(memory.weighting);
+    expect(await worker.call('segments', { session: 'zero', column: 'aisle' })).toEqual(await worker.call('segments', { session: 'zero-memory', column: 'aisle' }));
+    const last = { offset: 0, limit: 5, sort: { key: 'query', descending: true } };
+    expect(await worker.call('queryPage', { session: 'zero', ...last })).toEqual(await worker.call('queryPage', { session: 'zero-memory', ...last }));
+    const absentDetail = await worker.call('queryDetail', { session: 'zero', query: 'tile cutter 1' });
+    expect(absentDetail).toEqual(await worker.call('queryDetail', { session: 'zero-memory', query: 'tile cutter 1' }));
+    expect(absentDetail.segments).toEqual({});
+    // Without rows, a judged query the run lacks is in no aisle: no aisle's filter lists it, in memory or streamed.
+    for (const session of ['zero', 'zero-memory']) {
+      for (let a = 0; a < 7; a++) {
+        const page = await worker.call('queryPage', { session, offset: 0, limit: 2000, segment: { column: 'aisle', value: `aisle-${a}` } });
+        expect(page.rows.some((r) => r.query.startsWith('tile cutter'))).toBe(false);
+      }
+    }
+  });
+
   it('reads into memory, and says why, when a named queries table is joined to a dump large enough to stream', async () => {
     const queries = join(dir, 'kettlewood.queries.tsv');
     writeFileSync(queries, `query_id\tdevice\n${QUERY_NAMES[0]} 0\tmobile\n`);

@@ -8,13 +8,14 @@ import type { SegmentedRows } from '../evaluate/segments';
 import type { StreamedDump } from './streamEvaluate';
 
 export function segmentRowsOf(dump: StreamedDump): SegmentedRows {
-  const n = dump.queries.size;
+  // Judged queries the run lacks (missing queries `zero`) have no row, as in memory: they belong to no segment.
+  const n = dump.firstAbsentQuery ?? dump.queries.size;
   const query = new Uint32Array(n);
   for (let q = 0; q < n; q++) query[q] = q;
   return {
     rowCount: n,
     query,
-    segments: (dump.querySegments ?? []).map((s) => ({ name: s.name, values: s.values, ofRow: s.ofQuery })),
+    segments: (dump.querySegments ?? []).map((s) => ({ name: s.name, values: s.values, ofRow: s.ofQuery.subarray(0, n) })),
     ...(dump.joined ? { joined: dump.joined } : {}),
   };
 }

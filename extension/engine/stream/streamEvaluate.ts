@@ -37,12 +37,13 @@ import { changedSince, checkUnchanged, fileChangedError, statStamp, throwIfCance
 import type { BlockResult, BlockTask } from './block';
 import { startBlockRunner, type BlockRunner } from './blockRunner';
 import { isWeightName } from '../tables/sideRoles';
+import { weighAbsentQueries } from '../tables/join';
 import { blockBounds, readHeaderLine } from './fileBlocks';
 import { PartialMeans } from './partialMeans';
 import { newSensitivityPassWith, scoredBlockSetup } from './setup';
 import { QueryReappeared, StreamColumns, type QueryLocations } from './streamColumns';
 import { labelOptional } from './sharedJudgments';
-import { absentQueries, absentQueriesUnfit, JoinCounts, joinedNotes, scoreAbsentQueries, type StreamJudgments } from './streamJudgments';
+import { absentQueries, JoinCounts, joinedNotes, scoreAbsentQueries, type StreamJudgments } from './streamJudgments';
 
 /** Bytes per block: large enough that a block's fixed costs vanish, small enough that two in flight stay small. */
 export const DEFAULT_BLOCK_BYTES = 32 << 20;
@@ -95,6 +96,8 @@ export interface StreamedDump {
   readonly columns?: ColumnRoles;
   /** The judgments the labels came from, to join a query read again for its detail. */
   readonly judgments?: StreamJudgments;
+  /** Queries from here on are judged queries the run lacks (missing queries `zero`): no rows, no segment values. */
+  readonly firstAbsentQuery?: number;
 }
 
 export type StreamOutcome =
@@ -218,8 +221,6 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
     closeOpen();
     if (state.rows === 0) return { kind: 'fallback', reason: 'the file has no data row' };
     const absent = judging ? absentQueries(judging, table.queries, path) : undefined;
-    const unfit = absent && absentQueriesUnfit(absent, judging!, weightColumn !== undefined, keepSegments);
-    if (unfit) return { kind: 'fallback', reason: unfit };
     // Under missing queries `zero` the judged queries without rows join the dump, and their grades its range.
     const zeroAbsent = absent && judging!.missingQueries === 'zero' && absent.names.length > 0 ? absent : undefined;
     if (zeroAbsent) {
@@ -248,12 +249,14 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
     const view = table.finish();
     if (judging && absent) joinedNotes(notes, judging, joinCounts, absent, view.perQuery, runQueries);
     // As the in-memory join gives it (tables/join.ts): the weight of each query from its rows.
-    const joined = view.weight && weightColumn !== undefined ? { notes: [], queryWeight: view.weight, weightSource: `column '${weightColumn}' of ${path}` } : undefined;
+    // Judged queries added under `zero` have no rows, so no weight of their own: they weigh 1, with the join's note.
+    const absentWeights = view.weight && zeroAbsent ? weighAbsentQueries(table.queries, runQueries, view.weight.fill(NaN, runQueries)) : [];
+    const joined = view.weight && weightColumn !== undefined ? { notes: absentWeights, queryWeight: view.weight, weightSource: `column '${weightColumn}' of ${path}` } : undefined;
     const querySegments = keepSegments ? header.segmentNames.map((name, k) => ({ name, values: table.segment(k).pool, ofQuery: table.segment(k).ofQuery }))
       .filter((s) => s.name !== weightColumn) : undefined;
     const dump: StreamedDump = { path, format, stamp, rowCount: state.rows, queries: table.queries, notes, locations: view.locations,
       names: header.names, ...(options.columns ? { columns: options.columns } : {}), ...(joined ? { joined } : {}), ...(querySegments ? { querySegments } : {}),
-      ...(judging ? { judgments: judging } : {}) };
+      ...(judging ? { judgments: judging } : {}), ...(zeroAbsent ? { firstAbsentQuery: runQueries } : {}) };
     const setup = scoredBlockSetup(metrics, conventions, { rowsOfQuery: new Uint32Array(0), start: new Uint32Array(table.size + 1) }, table.size, gmax,
       sensitivity, range, state.largest);
     const pass = sensitivity ? newSensitivityPass(setup) : undefined;

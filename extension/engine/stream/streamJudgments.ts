@@ -141,14 +141,6 @@ export function joinedNotes(notes: ReaderNotes, judging: StreamJudgments, counts
   notes.messages.push(...describeJoin(join, unknownItems));
 }
 
-/** Why a stream of this shape gives way to the in-memory read, or undefined when it can go on. */
-export function absentQueriesUnfit(absent: AbsentQueries, judging: StreamJudgments, weighted: boolean, segments: boolean): string | undefined {
-  if (judging.missingQueries !== 'zero' || absent.names.length === 0) return undefined;
-  if (weighted) return 'judged queries missing from the run are scored 0 and need weights of their own (reading in memory gives them)';
-  if (segments) return 'judged queries missing from the run are scored 0 and have no segment value (reading in memory gives them)';
-  return undefined;
-}
-
 /**
  * A query read again for its detail (a dump of that one query, maybe without rows: a judged query the
  * run lacks), joined to its own judgments by the in-memory join, so the detail lists its unretrieved

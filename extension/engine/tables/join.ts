@@ -104,7 +104,7 @@ export function joinTables(dump: RankedDump, queries?: TextTable, items?: TextTa
     if (roles.text >= 0) facts.itemTitle = byId(rowOf, items.cells[roles.text]!);
     facts.itemAttributes = roles.attributes.map((c) => ({ name: items.names[c]!, values: byId(rowOf, items.cells[c]!) }));
   }
-  if (facts.queryWeight !== undefined) notes.push(...weighAbsentQueries(dump, facts.queryWeight));
+  if (facts.queryWeight !== undefined) notes.push(...weighAbsentQueries(dump.queries, dump.unretrieved?.firstAbsentQuery ?? facts.queryWeight.length, facts.queryWeight));
   segments = segments.filter(Boolean);
   return { ...dump, segments, joined: facts };
 }
@@ -171,14 +171,13 @@ function segmentFromTable(dump: RankedDump, name: string, valueOfQuery: readonly
  * own; they keep the queries table's weight when it gives one and otherwise weigh 1, so each still counts
  * as the 0 the policy promises in the weighted means (instead of dropping out as an unknown weight).
  */
-function weighAbsentQueries(dump: RankedDump, weights: Float64Array): string[] {
-  const first = dump.unretrieved?.firstAbsentQuery ?? weights.length;
+export function weighAbsentQueries(queries: StringPool, first: number, weights: Float64Array): string[] {
   const examples: string[] = [];
   let defaulted = 0;
   for (let q = first; q < weights.length; q++) {
     if (weights[q] === weights[q]) continue;
     weights[q] = 1;
-    if (examples.length < EXAMPLES) examples.push(dump.queries.get(q));
+    if (examples.length < EXAMPLES) examples.push(queries.get(q));
     defaulted++;
   }
   if (defaulted === 0) return [];
