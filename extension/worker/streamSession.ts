@@ -113,8 +113,10 @@ export async function loadStreamOrRead(source: DumpSource, settings: EvaluationS
     sensitivity: true, segments: true, onPartial, onProgress: options.onProgress, signal: options.signal, blockBytes: editorBlockBytes(size) };
   const gaveWay = (why: string) => `Read into memory rather than streamed, since ${why}.`;
   if (found.length > 0) {
-    // A found judgments file is read once, here: checked, and joined if it goes with the dump.
-    const foundTable = source.judgmentsFound === true && source.judgments !== undefined ? await readJudgments(source.judgments, { signal: options.signal }) : undefined;
+    // A found judgments file is read once, here: checked, and joined if it goes with the dump. Not for a dump
+    // too small to stream (the usual one): the read into memory reads and checks it.
+    const mayJoin = source.judgmentsFound === true && source.judgments !== undefined && size >= options.streamFromBytes;
+    const foundTable = mayJoin ? await readJudgments(source.judgments!, { signal: options.signal }) : undefined;
     const joinedOptions = { ...streamOptions, ...(foundTable ? { judgmentTable: foundTable } : {}) };
     // One that judges the dump's first queries goes with it: joined in the one stream.
     const joinedAtOnce = foundTable !== undefined && await judgesFirstQueries(source.path, foundTable, read);
