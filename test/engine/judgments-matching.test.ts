@@ -13,7 +13,7 @@ import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions'
 import { parseMetricList } from '../../extension/engine/metrics/parse';
 import { DEFAULT_METRICS } from '../../extension/engine/metrics/registry';
 import { plainEvaluation } from './fixtures/plainEvaluation';
-import { firstRepeatAnyOrder, firstRepeatGrouped, isGrouped, judgmentsByPair, judgmentsByQueryRun } from '../../extension/engine/readers/judgmentMatch';
+import { firstRepeatAnyOrder, firstRepeatGrouped, isGrouped, judgmentsByPair, judgmentsByQueryRun, judgmentsByRowQuery } from '../../extension/engine/readers/judgmentMatch';
 import { readDump, readJudgments } from '../../extension/engine/readers/index';
 import { TempDir } from './fixtures/readers/tempFiles';
 import { groupedDump, judgmentsFor } from './fixtures/streamFiles';
@@ -92,7 +92,7 @@ describe('the judgment of each row', () => {
         const itemInDump = Int32Array.from({ length: table.items.size }, (_, i) => dump.items.find(table.items.get(i)));
         const ids = { rowQuery: dump.query, rowItem: dump.item, itemCount: dump.items.size, judgments: table.grade.length,
           queryOf: (j: number) => queryInDump[table.query[j]!]!, itemOf: (j: number) => itemInDump[table.item[j]!]! };
-        const byRun = judgmentsByQueryRun(ids);
+        const byRun = judgmentsByQueryRun(ids, judgmentsByRowQuery(ids));
         expect([...byRun]).toEqual([...judgmentsByPair(ids)]);
         // Not a vacuous match: most rows are judged, some are not.
         const judged = byRun.filter((j) => j >= 0).length;

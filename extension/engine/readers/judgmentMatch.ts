@@ -110,13 +110,13 @@ export function judgmentsByRowQuery(m: RowsAndJudgments): JudgmentsByQuery {
 
 /**
  * judgmentsByPair for rows grouped by query (the usual dump): for each query's run of rows its judgments
- * (`groups`, judgmentsByRowQuery's by default) mark their items (judgment + 1 in an array by item id), each
+ * (`groups`: judgmentsByRowQuery's, or a stream block's own) mark their items (judgment + 1 in an array by item id), each
  * row reads its item's mark, and the marks are cleared. A pair index misses the cache on nearly every row;
  * the marks take four bytes per item. `mark`, when given, is all zeros and is left so (reused by a caller
  * that joins many blocks).
  */
-export function judgmentsByQueryRun(m: Pick<RowsAndJudgments, 'rowQuery' | 'rowItem' | 'itemCount' | 'itemOf'> & Partial<RowsAndJudgments>,
-  groups: JudgmentsByQuery = judgmentsByRowQuery(m as RowsAndJudgments), mark: Int32Array<ArrayBufferLike> = new Int32Array(m.itemCount)): Int32Array {
+export function judgmentsByQueryRun(m: Pick<RowsAndJudgments, 'rowQuery' | 'rowItem' | 'itemCount' | 'itemOf'>, groups: JudgmentsByQuery,
+  mark: Int32Array<ArrayBufferLike> = new Int32Array(m.itemCount)): Int32Array {
   const rows = m.rowQuery.length;
   const { start, order } = groups;
   const out = new Int32Array(rows);

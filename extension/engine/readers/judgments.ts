@@ -20,7 +20,7 @@ import { MapStringPool, type StringPool } from '../model/stringPool';
 import type { ReadOptions } from './readOptions';
 import { parseNumber } from './numbers';
 import { textHead } from './detect';
-import { applyJudgments, firstRepeatAnyOrder, firstRepeatGrouped, isGrouped, JOIN_EXAMPLES, judgmentsByPair, judgmentsByQueryRun, type RowsAndJudgments } from './judgmentMatch';
+import { applyJudgments, firstRepeatAnyOrder, firstRepeatGrouped, isGrouped, JOIN_EXAMPLES, judgmentsByPair, judgmentsByQueryRun, judgmentsByRowQuery, type RowsAndJudgments } from './judgmentMatch';
 import { LineSink, pumpText, splitWhitespace } from './source';
 
 /** The start of the error for a judgments file that names none of the run's queries. */
@@ -242,7 +242,7 @@ function matchByItemIds(dump: RankedDump, table: JudgmentTable, queryInDump: Int
     queryOf: (j) => queryInDump[table.query[j]!]!, itemOf: (j) => itemInDump[table.item[j]!]!,
   };
   return {
-    judgmentOf: isGrouped(dump.query) ? judgmentsByQueryRun(ids) : judgmentsByPair(ids),
+    judgmentOf: isGrouped(dump.query) ? judgmentsByQueryRun(ids, judgmentsByRowQuery(ids)) : judgmentsByPair(ids),
     unknownItems,
     sideItems: {
       pool: undefined,
@@ -270,10 +270,11 @@ function matchByItemBytes(dump: RankedDump, texts: RowTexts, table: JudgmentTabl
   for (let r = 0; r < rowItem.length; r++) if (rowItem[r]! >= 0) seen[rowItem[r]!] = 1;
   let unknownItems = 0;
   for (let i = 0; i < seen.length; i++) unknownItems += 1 - seen[i]!;
-  const judgmentOf = judgmentsByQueryRun({
+  const byBytes: RowsAndJudgments = {
     rowQuery: dump.query, rowItem, itemCount: items.size, judgments: table.grade.length,
     queryOf: (j) => queryInDump[table.query[j]!]!, itemOf: (j) => table.item[j]!,
-  });
+  };
+  const judgmentOf = judgmentsByQueryRun(byBytes, judgmentsByRowQuery(byBytes));
   return {
     judgmentOf,
     unknownItems,

@@ -27,7 +27,8 @@ import type { ColumnRoles } from '../readers/roles';
 import { pumpRange, type RecordSink } from '../readers/source';
 import { indexOfByte } from '../readers/byteSearch';
 import { joinTables } from '../tables/join';
-import { judgmentLookup, labelOptional, releaseJudgmentLookup, type BlockJudged, type SharedJudgments } from './sharedJudgments';
+import { judgmentLookup, labelOptional, releaseJudgmentLookup, type SharedJudgments } from './sharedJudgments';
+import type { JoinCounts } from '../readers/judgmentMatch';
 
 export interface BlockTask {
   readonly path: string;
@@ -103,8 +104,8 @@ export type BlockResult =
     readonly tally: RangeTally;
     readonly largestQuery: number;
     readonly grades?: number[];
-    /** The join's counts over the block's rows, when labels come from a judgments table. */
-    readonly judged?: BlockJudged;
+    /** The join's counts over the block's rows, when labels come from a judgments table (a query read again whole adds nothing). */
+    readonly judged?: JoinCounts;
   }
   | { readonly kind: 'empty'; readonly lines: number }
   | { readonly kind: 'quoted' }

@@ -36,9 +36,6 @@ export interface SharedJudgments {
   readonly seenItems: Uint8Array;
 }
 
-/** Row-level counts of one block's join; blocks add up (a query read again whole adds nothing). */
-export type BlockJudged = JoinCounts;
-
 let nextKey = 1;
 
 /** Column roles for a dump whose labels come from judgments: its own label column may be absent, as in memory (readers/index.ts). */
@@ -100,7 +97,7 @@ export class JudgmentLookup {
    * the dump gets the side table of its queries' unretrieved judged items (their `item` ids are the
    * judgment table's: a block keeps no dump-wide item ids, and scoring reads only the grades).
    */
-  joinBlock(dump: RankedDump): BlockJudged {
+  joinBlock(dump: RankedDump): JoinCounts {
     const t = this.table;
     const queryCount = dump.queries.size;
     const judgedQuery = new Int32Array(queryCount);

@@ -43,7 +43,7 @@ import { PartialMeans } from './partialMeans';
 import { newSensitivityPassWith, scoredBlockSetup } from './setup';
 import { QueryReappeared, StreamColumns, type QueryLocations } from './streamColumns';
 import { labelOptional } from './sharedJudgments';
-import { absentQueries, JoinCounts, joinedNotes, scoreAbsentQueries, type StreamJudgments } from './streamJudgments';
+import { absentQueries, JoinTotals, joinedNotes, scoreAbsentQueries, type StreamJudgments } from './streamJudgments';
 
 /** Bytes per block: large enough that a block's fixed costs vanish, small enough that two in flight stay small. */
 export const DEFAULT_BLOCK_BYTES = 32 << 20;
@@ -139,7 +139,7 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
   const keepSegments = options.segments === true && header.segmentNames.length > 0;
   const table = new StreamColumns(metrics.length, blank.hasRbp, spec?.variantCount, weightColumn !== undefined, keepSegments ? header.segmentNames.length : 0);
   const mapGain = conventions.gain.kind === 'map';
-  const joinCounts = new JoinCounts();
+  const joinCounts = new JoinTotals();
   // The marks of a stream before (the same table streamed again) would count items this one never saw.
   judging?.shared.seenItems.fill(0);
   const base = { path, format, delimiter, names: header.names, segmentCount: header.segmentNames.length, ...(options.columns ? { columns: options.columns } : {}), metrics, conventions, sensitivity,

@@ -15,8 +15,8 @@ import type { StringPool } from '../model/stringPool';
 import { describeJoin, joinJudgments, noSharedQueryError, sharesQuery, type JudgmentTable } from '../readers/judgments';
 import { BytePool } from '../model/bytePool';
 import type { ScoredRuns } from './block';
-import { shareJudgments, type BlockJudged, type SharedJudgments } from './sharedJudgments';
-import { JOIN_EXAMPLES } from '../readers/judgmentMatch';
+import { shareJudgments, type SharedJudgments } from './sharedJudgments';
+import { JOIN_EXAMPLES, type JoinCounts } from '../readers/judgmentMatch';
 import { newSensitivityPassWith, scoredBlockSetup } from './setup';
 
 /** Labels for a streamed dump from a judgments table (read before the stream, so its errors come first). */
@@ -41,12 +41,12 @@ export function streamJudgments(read: JudgmentTable, missingQueries: MissingQuer
 }
 
 /** The blocks' row-level join counts, added in file order. */
-export class JoinCounts {
+export class JoinTotals {
   inlineRows = 0;
   disagreements = 0;
   readonly examples: string[] = [];
 
-  add(block: BlockJudged | undefined): void {
+  add(block: JoinCounts | undefined): void {
     if (block === undefined) return;
     this.inlineRows += block.inlineRows;
     this.disagreements += block.disagreements;
@@ -124,7 +124,7 @@ export function scoreAbsentQueries(absent: AbsentQueries, metrics: readonly Metr
 }
 
 /** The dump's notes after the join, as `joinJudgments` leaves them; `runQueries` are the streamed queries (absent ones follow). */
-export function joinedNotes(notes: ReaderNotes, judging: StreamJudgments, counts: JoinCounts, absent: AbsentQueries,
+export function joinedNotes(notes: ReaderNotes, judging: StreamJudgments, counts: JoinTotals, absent: AbsentQueries,
   perQuery: PerQueryColumns, runQueries: number): void {
   const { shared } = judging;
   let unretrieved = 0;
@@ -147,13 +147,13 @@ export function joinedNotes(notes: ReaderNotes, judging: StreamJudgments, counts
  * judged items by name.
  */
 export function joinQueryRows(rows: RankedDump, query: string, judging: StreamJudgments): RankedDump {
-  const { table } = judging;
+  const { table, shared } = judging;
   const own = table.queries.find(query);
   const queries = new BytePool();
   queries.internString(query);
   const items = new BytePool();
-  const picked: number[] = [];
-  for (let j = 0; j < table.grade.length; j++) if (table.query[j] === own) picked.push(j);
+  // The query's own judgments, file order, from the table's grouping (not a scan of every judgment per detail).
+  const picked = own < 0 ? [] : Array.from(shared.order.subarray(shared.start[own]!, shared.start[own + 1]!));
   if (picked.length === 0) return { ...rows, label: new Float64Array(rows.rowCount).fill(NaN) };
   const sub: JudgmentTable = {
     path: table.path, queries, items, query: new Uint32Array(picked.length),
