@@ -6,6 +6,7 @@
  * Hand-made files; the expectations are the plain reads of the same files.
  */
 import { afterAll, describe, expect, it } from 'vitest';
+import { engineActivity } from '../../extension/engine/config';
 import { readDump } from '../../extension/engine/index';
 import type { RankedDump } from '../../extension/engine/model/dump';
 import { readSource } from '../../extension/worker/readSource';
@@ -84,5 +85,31 @@ describe('a judgments file found beside a dump that names none of its queries', 
     expect(found.notes.judgments?.unretrieved).toBe(1);
     // Labels come from the judgments: SKU-1 is 3 there (2 inline), SKU-2 unjudged.
     expect(Array.from(found.label.subarray(0, 2))).toEqual([3, NaN]);
+  });
+
+  it('leaves the dump-wide item ids unmade, with found tables too, until they are read (they cost 0.15 s per million items)', async () => {
+    const dump = tmp.file('lazy.csv', LABELLED);
+    const judgments = tmp.file('unrelated.qrels', UNRELATED);
+    const queries = tmp.file('queries.tsv', 'id\tquery\nq001\tgarden hose\n');
+    const items = tmp.file('items.tsv', 'product_id\ttitle\nSKU-77\tpipe wrench\n');
+    const made = engineActivity().itemIdsMade;
+    const found = await readSource({ path: dump, judgments, judgmentsFound: true, queries, items, tablesFound: true });
+    // Neither the unrelated judgments, nor the tables naming none of the dump's queries or items, made them.
+    expect(engineActivity().itemIdsMade).toBe(made);
+    expect(found.joined?.notes.filter((n) => /was found beside the dump but names none of its (queries|items)/.test(n))).toHaveLength(2);
+    // Made when read, the same as a plain read's.
+    const plain = await readDump(dump);
+    expect(Array.from(found.item)).toEqual(Array.from(plain.item));
+    expect(Array.from({ length: found.items.size }, (_, i) => found.items.get(i))).toEqual(['SKU-1', 'SKU-2', 'SKU-3', 'SKU-4']);
+    expect(engineActivity().itemIdsMade).toBe(made + 2);
+  });
+
+  it('joins a found items table that names one of the dump\'s items, found by its bytes', async () => {
+    const dump = tmp.file('titled.csv', LABELLED);
+    const items = tmp.file('items.tsv', 'product_id\ttitle\nSKU-77\tpipe wrench\nSKU-3\twood screws 4x40\n');
+    const found = await readSource({ path: dump, items, tablesFound: true });
+    expect(found.joined?.itemsFile).toBe(items);
+    expect(found.joined?.itemTitle?.[found.items.find('SKU-3')]).toBe('wood screws 4x40');
+    expect(found.joined?.itemTitle?.[found.items.find('SKU-1')]).toBe('');
   });
 });

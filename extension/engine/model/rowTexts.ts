@@ -134,6 +134,19 @@ export class RowTexts {
     }
   }
 
+  /** True when some row's bytes are in `pool` (a small pool: an items table's keys); stops at the first. */
+  namesAnyOf(pool: BytePool): boolean {
+    if (pool.size === 0) return false;
+    const parts = this.earlier.length === 0 ? [this.exportState()] : this.earlier;
+    for (const { arena, ends, count } of parts) {
+      for (let r = 0; r < count; r++) {
+        const s = r === 0 ? 0 : ends[r - 1]!;
+        if (pool.findBytes(arena, s, ends[r]!) >= 0) return true;
+      }
+    }
+    return false;
+  }
+
   text(row: number): string {
     return decoder.decode(this.bytesOf(row));
   }

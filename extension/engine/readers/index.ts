@@ -11,7 +11,7 @@
  * columns are then views of SharedArrayBuffers (see parallel.ts).
  */
 import { CancelledError, InputError } from '../errors';
-import type { RankedDump } from '../model/dump';
+import { withFields, type RankedDump } from '../model/dump';
 import { DelimitedParser } from './delimited';
 import { detectFormat } from './detect';
 import { readJsonLines } from './jsonLines';
@@ -67,7 +67,7 @@ async function withOwnLabels(path: string, read: RankedDump, options: ReadOption
   const { judgments, judgmentsFound: _found, missingQueries: _policy, ...ownOptions } = options;
   const labelled = read.notes.unjudgedRows < read.rowCount;
   const own = labelled && (await detectFormat(path, ownOptions)).format === read.format ? read : await readFormat(path, ownOptions);
-  return { ...own, notes: { ...own.notes, messages: [unusedJudgmentsNote(judgments!), ...own.notes.messages] } };
+  return withFields(own, { notes: { ...own.notes, messages: [unusedJudgmentsNote(judgments!), ...own.notes.messages] } });
 }
 
 /** A judgments file read as a dump's judgments are (for a dump that streams and is joined block by block). */

@@ -13,7 +13,7 @@
 import { promises as fsp } from 'node:fs';
 import { InputError } from '../errors';
 import { BytePool } from '../model/bytePool';
-import { itemOfRow, type JudgmentsJoin, type MissingQueriesPolicy, type RankedDump, type UnretrievedJudged } from '../model/dump';
+import { itemOfRow, withFields, type JudgmentsJoin, type MissingQueriesPolicy, type RankedDump, type UnretrievedJudged } from '../model/dump';
 import { RowTexts } from '../model/rowTexts';
 import { gradeRangeOf, summariseRows } from '../model/rowSummary';
 import { MapStringPool, type StringPool } from '../model/stringPool';
@@ -288,8 +288,7 @@ function matchByItemBytes(dump: RankedDump, texts: RowTexts, table: JudgmentTabl
  * join the pool in judgment order (file order), as matchByItemIds adds them.
  */
 function withJudgedItems(dump: RankedDump, fields: Pick<RankedDump, 'label' | 'notes' | 'unretrieved'>, judged: StringPool, judgedItems: Uint32Array): RankedDump {
-  const copy = Object.defineProperties({}, Object.getOwnPropertyDescriptors(dump)) as RankedDump;
-  Object.assign(copy, fields);
+  const copy = withFields(dump, fields);
   let added = false;
   const pool = (): StringPool => {
     const own = dump.items;

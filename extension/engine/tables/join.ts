@@ -8,7 +8,9 @@
  * table row, are counted with examples. A key given twice is an error naming both lines.
  */
 import { InputError } from '../errors';
-import type { JoinedFacts, RankedDump, SegmentColumn } from '../model/dump';
+import { BytePool } from '../model/bytePool';
+import { withFields, type JoinedFacts, type RankedDump, type SegmentColumn } from '../model/dump';
+import { RowTexts } from '../model/rowTexts';
 import { MapStringPool, type StringPool } from '../model/stringPool';
 import { readTextTable, type TextTable } from './readTable';
 import { isWeightName, resolveSideColumns, type SideKind } from './sideRoles';
@@ -36,13 +38,13 @@ export async function withSideTables(dump: RankedDump, files: SideTableFiles, si
     skipped.push(unusedTableNote(queries.file, 'queries'));
     queries = undefined;
   }
-  if (files.found && items && !sharesAnId(items, 'items', dump.items)) {
+  if (files.found && items && !namesAnItemOf(items, dump)) {
     skipped.push(unusedTableNote(items.file, 'items'));
     items = undefined;
   }
   const joined = joinTables(dump, queries, items);
   if (skipped.length === 0) return joined;
-  return { ...joined, joined: { ...(joined.joined ?? {}), notes: [...skipped, ...(joined.joined?.notes ?? [])] } };
+  return withFields(joined, { joined: { ...(joined.joined ?? {}), notes: [...skipped, ...(joined.joined?.notes ?? [])] } });
 }
 
 /** The note of a table found beside the dump that names none of its queries (or items), and so is not used. */
@@ -53,6 +55,17 @@ export function unusedTableNote(file: string, kind: SideKind): string {
 /** Whether the table at `path` names any of `pool`'s ids (a streamed dump's queries, which keeps no rows to join). */
 export async function tableSharesId(path: string, kind: SideKind, pool: StringPool, signal?: AbortSignal): Promise<boolean> {
   return sharesAnId(await readTextTable(path, { signal, purpose: kind === 'queries' ? 'a queries table' : 'an items table' }), kind, pool);
+}
+
+/**
+ * Whether an items table names any of the dump's items. A dump that keeps item bytes per row is searched
+ * by those bytes, so checking a table found beside it does not make the dump-wide item ids.
+ */
+function namesAnItemOf(table: TextTable, dump: RankedDump): boolean {
+  if (!(dump.itemTexts instanceof RowTexts)) return sharesAnId(table, 'items', dump.items);
+  const keys = new BytePool();
+  for (const key of table.cells[resolveSideColumns(table, 'items').key]!) keys.internString(key);
+  return dump.itemTexts.namesAnyOf(keys);
 }
 
 function sharesAnId(table: TextTable, kind: SideKind, pool: StringPool): boolean {
@@ -106,7 +119,7 @@ export function joinTables(dump: RankedDump, queries?: TextTable, items?: TextTa
   }
   if (facts.queryWeight !== undefined) notes.push(...weighAbsentQueries(dump.queries, dump.unretrieved?.firstAbsentQuery ?? facts.queryWeight.length, facts.queryWeight));
   segments = segments.filter(Boolean);
-  return { ...dump, segments, joined: facts };
+  return withFields(dump, { segments, joined: facts });
 }
 
 /**
