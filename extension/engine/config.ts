@@ -30,6 +30,13 @@ export interface EngineSettings {
    * record kernel (simpleRecords.wasm); undefined runs everything on the calling thread in JavaScript. Default: the folder of the bundle the engine was built into.
    */
   readonly bundleDir: string | undefined;
+  /**
+   * Keep the engine's parse and score threads alive between reads (threads/keptPools.ts), for a process
+   * that reads dump after dump (the editor's engine thread): a kept thread has started and compiled its
+   * code already, so reading and scoring mid-sized dumps on several threads pays. Off for the command
+   * line, which reads once and would only wait for threads to start.
+   */
+  readonly keepThreads: boolean;
   readonly tuning: EngineTuning;
 }
 
@@ -50,11 +57,13 @@ let current: EngineSettings = {
   // Bundled by esbuild into dist/, __dirname is dist/ where the thread scripts sit; under vitest it is a
   // source folder without them, and everything runs on one thread unless a test bundles the scripts.
   bundleDir: typeof __dirname === 'string' ? __dirname : undefined,
+  keepThreads: false,
   tuning: DEFAULT_TUNING,
 };
 
 export interface EngineConfiguration {
   readonly bundleDir?: string | undefined;
+  readonly keepThreads?: boolean;
   readonly tuning?: Partial<EngineTuning>;
 }
 
@@ -66,6 +75,7 @@ export function configureEngine(change: EngineConfiguration): EngineSettings {
   const before = current;
   current = {
     bundleDir: 'bundleDir' in change ? change.bundleDir : before.bundleDir,
+    keepThreads: change.keepThreads ?? before.keepThreads,
     tuning: { ...before.tuning, ...change.tuning },
   };
   return before;

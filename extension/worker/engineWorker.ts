@@ -11,7 +11,7 @@ import { CancelledError, InputError } from '../engine/errors';
 import { queryMovement } from '../engine/compare/movement';
 import { queryDetail, type GradeRange } from '../engine/evaluate/detail';
 import { gradeRange } from '../engine/evaluate/evaluate';
-import { compareRuns, evaluateDump } from '../engine/index';
+import { compareRuns, configureEngine, evaluateDump } from '../engine/index';
 import { headlineCutoff } from '../engine/evaluate/scorer';
 import type { Evaluation } from '../engine/evaluate/types';
 import { parseMetricList } from '../engine/metrics/parse';
@@ -353,6 +353,9 @@ function seriesOf(key: string): SeriesStore {
 }
 
 if (parentPort) {
+  // This thread reads dump after dump for as long as the editor runs: its parse and score threads are
+  // kept, and warmed up below, so mid-sized dumps are read and scored on several threads too.
+  configureEngine({ keepThreads: true });
   const port = parentPort;
   const server = new RequestServer<WorkerRequests>(handlers, (message) => port.postMessage(message));
   port.on('message', (message: unknown) => {

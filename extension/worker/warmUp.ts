@@ -5,9 +5,10 @@
  * first read and score of a fresh thread took about ten times as long as the next ones.
  */
 import { mkdtemp, rm, writeFile } from 'node:fs/promises';
-import { tmpdir } from 'node:os';
+import { availableParallelism, tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { evaluateDump } from '../engine/index';
+import { engineSettings } from '../engine/config';
+import { evaluateDump, readDump } from '../engine/index';
 import { DEFAULT_CONVENTIONS } from '../engine/metrics/conventions';
 import { parseMetricList } from '../engine/metrics/parse';
 import { groupByQuery } from '../engine/model/groups';
@@ -54,6 +55,19 @@ export function warmUpFiles(): WarmUpFiles {
 }
 
 /**
+ * When the engine keeps its threads (engineSettings().keepThreads), reads and scores the dump again on
+ * every kept thread, so they are started, and their code compiled, before the first real read asks.
+ */
+async function warmKeptThreads(dump: string, signal: AbortSignal | undefined): Promise<void> {
+  if (!engineSettings().keepThreads) return;
+  const threads = Math.min(availableParallelism(), 4);
+  if (threads < 2) return;
+  const read = await readDump(dump, { threads, ...(signal ? { signal } : {}) });
+  if (signal?.aborted) return;
+  await evaluateDump(read, parseMetricList(DEFAULT_METRIC_KEYS.join(',')), DEFAULT_CONVENTIONS, { threads, ...(signal ? { signal } : {}) });
+}
+
+/**
  * Reads and scores the generated dump with its side files as a view's load would, with the overview
  * and its diagnostics; the files live in a private folder under `parent`, removed afterwards. `signal`
  * stops it early (a CancelledError), when a real read arrives.
@@ -74,6 +88,7 @@ export async function warmUp(parent = tmpdir(), signal?: AbortSignal): Promise<v
     if (signal?.aborted) return;
     overviewModel(dump, evaluation, 0);
     overviewDiagnostics(dump, evaluation, groups);
+    await warmKeptThreads(path('warm-up.csv'), signal);
   } finally {
     await rm(dir, { recursive: true, force: true });
   }

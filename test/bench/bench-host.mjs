@@ -97,13 +97,23 @@ console.log(`  idle main thread, 3 s: longest stall ${fmt(idleStall.longestMs)} 
 
 // 1. Starting the thread (once per editor session), then load + overview + first page, with the
 // main thread probed throughout.
+// Started as the extension starts it at activation (EngineWorker.warm): the thread warms its code and
+// its kept parse and score threads up on a small generated dump; the first screen is timed after that, as
+// a user's first click comes seconds after the editor opened.
 const worker = new host.EngineWorker(workerScript);
+worker.warm();
 probe = stallProbe();
 let started = performance.now();
 await worker.call('unload', { session: 'none' });
 const startMs = performance.now() - started;
 const startStall = probe.stop();
-console.log(`  worker thread start: ${fmt(startMs)}, longest main-thread stall ${fmt(startStall.longestMs)}`);
+let warmedMs = NaN;
+for (let polls = 0; polls < 500 && Number.isNaN(warmedMs); polls++) {
+  const times = await worker.call('threadTimes', {});
+  if (times.warmed !== undefined) warmedMs = times.warmed - times.threadReady;
+  else await new Promise((r) => setTimeout(r, 20));
+}
+console.log(`  worker thread start: ${fmt(startMs)}, longest main-thread stall ${fmt(startStall.longestMs)}; its warm-up done ${fmt(warmedMs)} after it was ready`);
 probe = stallProbe();
 started = performance.now();
 const overview = await worker.call('load', { session: 'bench', source: { path: file }, settings }, { timeoutMs: host.LOAD_TIMEOUT_MS });
@@ -111,7 +121,7 @@ const firstPage = await worker.call('queryPage', { session: 'bench', offset: 0, 
 const firstScreenMs = performance.now() - started;
 const workerStall = probe.stop();
 console.log(`  rows ${overview.file.rowCount}, queries ${overview.queryCount}, ${overview.metrics[0].label} ${overview.metrics[0].mean?.toFixed(4)}`);
-console.log(`  first screen (load + overview + first page of ${firstPage.rows.length}): ${fmt(firstScreenMs)} (worker-side load ${overview.loadMs} ms)`);
+console.log(`  first screen (load + overview + first page of ${firstPage.rows.length}): ${fmt(firstScreenMs)} (worker-side load ${overview.loadMs} ms: read ${overview.timeline.read - overview.timeline.received} ms, scored ${overview.timeline.scored - overview.timeline.read} ms)`);
 console.log(`  main-thread longest stall while the worker loads: ${fmt(workerStall.longestMs)} at ${fmt(workerStall.atMs)} (event-loop delay max ${fmt(workerStall.histogramMaxMs)}, p99 ${fmt(workerStall.p99Ms)})`);
 console.log(`  main-thread busy time during that load: ${fmt(workerStall.busyMs)} (${(workerStall.utilization * 100).toFixed(1)}% of the loop)`);
 

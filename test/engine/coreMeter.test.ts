@@ -31,6 +31,27 @@ describe('CoreMeter', () => {
     expect(meter.otherBusyCores()).toBe(1.25);
   });
 
+  it('measures a short span from an earlier meter of the same sampler, within the last minute', () => {
+    // Samples in order: meter 1 starts (t=0), meter 1 ends (t=2000), meter 2 starts (t=5000), meter 2 ends (t=5100).
+    // Meter 2's 100 ms is too short for the counters: it measures from t=2000 instead (3.1 s, others 0.5 cores),
+    // neither from t=0 (a later sample is newer and far enough back) nor from the load average.
+    const samples: CoreSample[] = [
+      { busyMs: 0, ownMs: 0, atMs: 0 },
+      { busyMs: 4_000, ownMs: 3_900, atMs: 2_000 },
+      { busyMs: 5_500, ownMs: 3_900, atMs: 5_000 },
+      { busyMs: 5_750, ownMs: 4_000, atMs: 5_100 },
+    ];
+    const sampler = scripted(samples);
+    expect(new CoreMeter(sampler, () => 9).otherBusyCores()).toBeCloseTo(0.05, 12);
+    expect(new CoreMeter(sampler, () => 9).otherBusyCores()).toBeCloseTo((5_750 - 4_000 - (4_000 - 3_900)) / 3_100, 12);
+  });
+
+  it('falls back to the load average when the earlier samples are over a minute old', () => {
+    const sampler = scripted([{ busyMs: 0, ownMs: 0, atMs: 0 }, { busyMs: 0, ownMs: 0, atMs: 61_000 }, { busyMs: 50, ownMs: 0, atMs: 61_100 }]);
+    new CoreMeter(sampler, () => 9);
+    expect(new CoreMeter(sampler, () => 0.75).otherBusyCores()).toBe(0.75);
+  });
+
   it('sees another program spinning a core now', async () => {
     const meter = new CoreMeter();
     const child = spawn(process.execPath, ['-e', 'const end = Date.now() + 900; while (Date.now() < end);'], { stdio: 'ignore' });

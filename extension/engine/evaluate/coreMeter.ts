@@ -17,8 +17,18 @@ export interface CoreSample {
   readonly atMs: number;
 }
 
-/** Spans shorter than this fall back to the load average: the kernel counters tick every 10 ms. */
+/** Spans shorter than this look further back, or fall back to the load average: the kernel counters tick every 10 ms. */
 const SHORTEST_SPAN_MS = 250;
+/** How far back a short span may look (as far as the 1-minute load average does, without our own threads in it). */
+const LONGEST_LOOKBACK_MS = 60_000;
+/** Samples kept per sampler for looking back. */
+const KEPT_SAMPLES = 8;
+
+/**
+ * The samples earlier meters of this thread took, newest last, per sampling function (a test's scripted
+ * samples never mix with the real counters).
+ */
+const earlierSamples = new WeakMap<() => CoreSample, CoreSample[]>();
 
 /** The real counters. */
 export function sampleCores(): CoreSample {
@@ -33,16 +43,39 @@ export class CoreMeter {
 
   constructor(private readonly sample: () => CoreSample = sampleCores, private readonly loadAverage = () => loadavg()[0]!) {
     this.start = sample();
+    remember(sample, this.start);
   }
 
-  /** Cores busy with other programs since the meter started (0 or more; the load average for short spans). */
+  /**
+   * Cores busy with other programs since the meter started (0 or more). A span too short for the counters
+   * (a mid-sized read) is measured from an earlier meter's sample of the last few seconds instead, and
+   * from the load average only when there is none: a process that reads dump after dump (the editor's
+   * engine thread) would otherwise see its own earlier reads in the load average and stay on one thread.
+   */
   otherBusyCores(): number {
     const end = this.sample();
-    const span = end.atMs - this.start.atMs;
-    if (span < SHORTEST_SPAN_MS) return this.loadAverage();
-    const others = end.busyMs - this.start.busyMs - (end.ownMs - this.start.ownMs);
-    return Math.max(0, others / span);
+    let from: CoreSample | undefined = this.start;
+    if (end.atMs - from.atMs < SHORTEST_SPAN_MS) {
+      from = undefined;
+      const earlier = earlierSamples.get(this.sample) ?? [];
+      // The newest sample far enough back.
+      for (let k = earlier.length - 1; k >= 0 && from === undefined; k--) {
+        const age = end.atMs - earlier[k]!.atMs;
+        if (age >= SHORTEST_SPAN_MS && age <= LONGEST_LOOKBACK_MS) from = earlier[k];
+      }
+    }
+    remember(this.sample, end);
+    if (from === undefined) return this.loadAverage();
+    const others = end.busyMs - from.busyMs - (end.ownMs - from.ownMs);
+    return Math.max(0, others / (end.atMs - from.atMs));
   }
+}
+
+function remember(sampler: () => CoreSample, sample: CoreSample): void {
+  let list = earlierSamples.get(sampler);
+  if (list === undefined) earlierSamples.set(sampler, (list = []));
+  list.push(sample);
+  if (list.length > KEPT_SAMPLES) list.shift();
 }
 
 /**

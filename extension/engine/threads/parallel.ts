@@ -19,7 +19,7 @@ import { parseHeaderLine } from '../readers/headerLine';
 import type { ReadOptions } from '../readers/readOptions';
 import { parseClaimedRanges, type ClaimedRanges, type RangeResult, type RangeTask } from '../readers/rangeParse';
 import { checkUnchanged, statStamp, throwIfCancelled } from '../readers/source';
-import { ThreadPool } from './pool';
+import { idleKeptThreads, leasePool, type PoolLease } from './keptPools';
 
 /**
  * Below this size one thread is faster: a worker starts cold, and the merge re-interns the later
@@ -27,19 +27,27 @@ import { ThreadPool } from './pool';
  * 0.49–0.63 s on two (this thread and one worker); 150 MB in 1.07–1.19 s on one and 1.02–1.11 s on two.
  */
 const PARALLEL_FROM_BYTES = 96 << 20;
+/**
+ * From this size when a kept parse thread is idle (keptPools.ts: started and compiled already). Best
+ * of 5 warm reads on 2 cores, one thread against two: 5.9 MB 26 ms and 27 ms; 14.8 MB 58 and 45 ms;
+ * 30 MB 98–105 and 76–86 ms; 60 MB 183–190 and 164–180 ms (the merge on this thread grows with the rows).
+ */
+const KEPT_PARALLEL_FROM_BYTES = 12 << 20;
 const MAX_THREADS = 4;
 
 export async function shouldParseInParallel(path: string, threads: number | undefined): Promise<number> {
   if (threads !== undefined) return Math.max(1, Math.min(16, Math.floor(threads)));
   const { size } = await statStamp(path);
+  const kept = idleKeptThreads('parseWorker');
+  if (kept > 0 && size >= KEPT_PARALLEL_FROM_BYTES) return Math.min(MAX_THREADS, availableParallelism(), kept + 1);
   return size < PARALLEL_FROM_BYTES ? 1 : Math.min(MAX_THREADS, availableParallelism());
 }
 
 /** Returns undefined when the file cannot be split safely (quotes, no workers available). */
 export async function readParallelDelimited(path: string, format: 'csv' | 'tsv', delimiter: number, threads: number,
   options: ReadOptions): Promise<RankedDump | undefined> {
-  const pool = ThreadPool.forScript<ParseRequests>('parseWorker', Math.max(1, threads - 1));
-  if (pool === undefined) return undefined;
+  const lease = leasePool<ParseRequests>('parseWorker', Math.max(1, threads - 1));
+  if (lease === undefined) return undefined;
   const stamp = await statStamp(path);
   const header = await readHeader(path, delimiter, options);
   if (header === undefined) return undefined;
@@ -49,7 +57,7 @@ export async function readParallelDelimited(path: string, format: 'csv' | 'tsv',
     path, start, end: bounds[k + 1]!, delimiter, names: header.names, columns: options.columns, chunkBytes: engineSettings().tuning.plainChunkBytes,
     shared: slices[k],
   }));
-  const results = await parseRanges(pool, tasks, stamp.size, options);
+  const results = await parseRanges(lease, tasks, stamp.size, options);
   // A quoted range stopped the claims (later ranges may be missing): the file is read on one thread.
   if (results.some((r) => r.kind === 'quoted')) return undefined;
   const lineOffsets = [1];
@@ -254,9 +262,9 @@ export type ParseRequests = {
  * would otherwise wait idle, and a worker takes about 0.1 s to start: this thread claims the first
  * ranges meanwhile. Results come back in file order (a quoted range stops the claims: holes are left).
  */
-async function parseRanges(pool: ThreadPool<ParseRequests>, tasks: RangeTask[], size: number, options: ReadOptions): Promise<RangeResult[]> {
+async function parseRanges({ pool, workers, done: release }: PoolLease<ParseRequests>, tasks: RangeTask[], size: number,
+  options: ReadOptions): Promise<RangeResult[]> {
   throwIfCancelled(options.signal);
-  const workers = pool.maxThreads;
   const done = new Array<number>(workers + 1).fill(0);
   const progress = (thread: number, bytes: number) => {
     done[thread] = bytes;
@@ -281,7 +289,7 @@ async function parseRanges(pool: ThreadPool<ParseRequests>, tasks: RangeTask[], 
     stopped = true;
     // Claims end too, so a worker still parsing takes no further range before the pool stops it.
     Atomics.store(next, 0, tasks.length);
-    void pool.close();
+    release();
   }
 }
 

@@ -31,13 +31,20 @@ import type { SensitivityColumns } from '../evaluate/sensitivity';
 import { renderChunk, type ChunkWork } from '../evaluate/chunkOutput';
 import type { Evaluation, PerQueryColumns } from '../evaluate/types';
 import { freeCores } from '../evaluate/coreMeter';
-import { ThreadPool } from './pool';
+import { idleKeptThreads, leasePool } from './keptPools';
+import type { ThreadPool } from './pool';
 
 /**
  * Below this many rows starting a worker costs more than it saves: on 1M rows (0.4 s of scoring on one
  * thread) a second thread, starting cold, made scoring slower on the 2-core machine we measured on.
  */
 const PARALLEL_FROM_ROWS = 2_000_000;
+/**
+ * From this many rows when a kept score thread is idle (keptPools.ts: started and compiled already). Best
+ * of 5 warm scorings (default metrics, 25 rows per query) on 2 cores, one thread against two: 100k rows
+ * 22 ms and 16 ms; 250k 51 and 27 ms; 500k 95–99 and 50–52 ms; 1M 181–200 and 105–114 ms.
+ */
+const KEPT_PARALLEL_FROM_ROWS = 100_000;
 const MAX_THREADS = 4;
 
 export interface ParallelEvaluateOptions extends EvaluateOptions {
@@ -75,23 +82,25 @@ export interface ScoreRangeResult {
  * thread costs a fifth more CPU in all (a cold start, the merge), so on a core that is busy anyway it
  * made eval slower in our measurements rather than faster.
  */
-export function scoringThreads(rows: number, threads: number | undefined, otherBusyCores: number = loadavg()[0]!): number {
+export function scoringThreads(rows: number, threads: number | undefined, otherBusyCores: number = loadavg()[0]!,
+  keptIdle: number = idleKeptThreads('scoreWorker')): number {
   if (threads !== undefined) return Math.max(1, Math.min(16, Math.floor(threads)));
-  if (rows < PARALLEL_FROM_ROWS) return 1;
-  return Math.max(1, Math.min(MAX_THREADS, freeCores(otherBusyCores)));
+  const free = Math.max(1, Math.min(MAX_THREADS, freeCores(otherBusyCores)));
+  if (keptIdle > 0 && rows >= KEPT_PARALLEL_FROM_ROWS) return Math.min(free, keptIdle + 1);
+  return rows < PARALLEL_FROM_ROWS ? 1 : free;
 }
 
 export async function evaluateInParallel(dump: RankedDump, metrics: readonly MetricSpec[], conventions: Conventions,
   options: ParallelEvaluateOptions = {}): Promise<Evaluation> {
   const threads = Math.min(scoringThreads(dump.rowCount, options.threads, options.otherBusyCores), dump.queries.size);
-  const pool = threads <= 1 ? undefined : ThreadPool.forScript<ScoreRequests>('scoreWorker', threads - 1);
-  if (pool === undefined) return evaluate(dump, metrics, conventions, options);
+  const lease = threads <= 1 ? undefined : leasePool<ScoreRequests>('scoreWorker', threads - 1);
+  if (lease === undefined) return evaluate(dump, metrics, conventions, options);
   // Started first: a thread takes about 0.1 s to start, time this thread spends grouping and preparing.
-  pool.warm(threads - 1);
+  lease.pool.warm(lease.workers);
   try {
-    return await scoreWithWorkers(dump, metrics, conventions, options, threads, pool);
+    return await scoreWithWorkers(dump, metrics, conventions, options, lease.workers + 1, lease.pool);
   } finally {
-    void pool.close();
+    lease.done();
   }
 }
 

@@ -52,18 +52,31 @@ export class ThreadPool<M extends RequestMap> {
   private closed = false;
 
   /** A pool over a bundled thread script; undefined when threads are off or the script is not there. */
-  static forScript<M extends RequestMap>(name: ThreadScript, maxThreads: number): ThreadPool<M> | undefined {
+  static forScript<M extends RequestMap>(name: ThreadScript, maxThreads: number, idleUnref = false): ThreadPool<M> | undefined {
     const script = threadScript(name);
-    return script === undefined ? undefined : new ThreadPool<M>(script, maxThreads);
+    return script === undefined ? undefined : new ThreadPool<M>(script, maxThreads, idleUnref);
   }
 
-  constructor(private readonly script: string, readonly maxThreads: number) {
+  constructor(
+    private readonly script: string,
+    readonly maxThreads: number,
+    /**
+     * An idle thread does not keep the process alive (a pool kept between reads, keptPools.ts): a process
+     * that has nothing left to do exits with its kept threads idle, as it would without them.
+     */
+    private readonly idleUnref = false,
+  ) {
     if (!(maxThreads >= 1)) throw new RangeError(`a thread pool needs at least one thread (got ${maxThreads})`);
   }
 
   /** Threads started and not yet stopped. */
   get size(): number {
     return this.threads.length;
+  }
+
+  /** Threads started and not answering a request now. */
+  get idle(): number {
+    return this.threads.filter((t) => !t.busy).length;
   }
 
   /** Starts threads up to `count` before their requests, so their start-up overlaps other work. */
@@ -121,12 +134,16 @@ export class ThreadPool<M extends RequestMap> {
   /** An idle thread, or a new one when the pool has room, marked busy; undefined when all are taken. */
   private takeThread(): PoolThread<M> | undefined {
     const thread = this.threads.find((t) => !t.busy) ?? (this.threads.length < this.maxThreads ? this.start() : undefined);
-    if (thread !== undefined) thread.busy = true;
+    if (thread !== undefined) {
+      thread.busy = true;
+      if (this.idleUnref) thread.worker.ref();
+    }
     return thread;
   }
 
   private release(thread: PoolThread<M>): void {
     thread.busy = false;
+    if (this.idleUnref) thread.worker.unref();
     this.handOver();
   }
 
@@ -157,6 +174,7 @@ export class ThreadPool<M extends RequestMap> {
       progress: new Map(),
       busy: false,
     };
+    if (this.idleUnref) worker.unref();
     worker.on('message', (message: unknown) => {
       if (thread.client.handleMessage(message)) return;
       if (isProgressEnvelope(message)) thread.progress.get(message.id)?.(message.value);
