@@ -8,7 +8,7 @@ import { evaluateDump, READING_MODES, segmentRowsOf, streamOrRead, type ReadingM
 import { partialHeadlineText, type PartialHeadline } from '../presentation/partialText';
 import { formatReport, formatReportPieces, REPORT_FORMATS, type ReportFormat } from '../engine/report/index';
 import { collectQueryRecords } from '../engine/report/jsonRecords';
-import { queryFacts } from '../engine/tables/queryFacts';
+import { queryFacts, streamedQueryFacts } from '../engine/tables/queryFacts';
 import { withSideTables } from '../engine/tables/join';
 import { conventionHelp, conventionOptions, parseCommandArgs, scoringSetupFrom, type ScoringSetup } from './conventionArgs';
 import { detailJson, detailOf, detailText, diagnosticsReport, findQuery, segmentReport, worstOrder } from './evalViews';
@@ -37,8 +37,9 @@ Output:
   --timings             print how long reading, scoring and writing the report took (standard error)
   --reading R           auto (default) | stream | memory: stream scores a CSV/TSV file whose rows are
                         grouped by query block by block without keeping its rows (auto: from 1 GiB),
-                        joining --judgments block by block; a file that turns out not grouped, or
-                        quoted, is read into memory instead
+                        joining --judgments block by block and --queries once every query is
+                        known; a file that turns out not grouped, or quoted, is read into memory
+                        instead, as is one with --items, --query or --diagnostics
 Where the numbers are computed:
   --engine E            local (default) | duckdb: DuckDB embedded computes the per-query table from a
                         CSV, TSV or Parquet file, or a folder of Parquet parts, in place (needs the npm
@@ -143,11 +144,15 @@ async function evalFile(path: string, source: string, format: ReportFormat, wors
   // CSV and Markdown do not show the sensitivity rows; skipping them saves a third of the scoring time.
   const sensitivity = format === 'table' || format === 'json';
   try {
-    // The views that read rows, and side tables, need the dump in memory; the report and the segment means
-    // need only the per-query table (with each query's segment values).
-    const rowsNeeded = values.query !== undefined || values.diagnostics || setup.tables.queries !== undefined || setup.tables.items !== undefined;
+    // The views that read rows, and an items table (joined by item), need the dump in memory; the report and
+    // the segment means need only the per-query table (with each query's segment values), and a queries
+    // table joins to that.
+    const rowsNeeded = values.query !== undefined ? '--query reads the rows of its query'
+      : values.diagnostics ? '--diagnostics reads every row'
+      : setup.tables.items !== undefined ? 'an items table (--items) joins by item, which needs the rows' : undefined;
     const outcome = await streamOrRead(path, { ...setup.read, onProgress: progress?.reading }, setup.metrics, setup.conventions,
-      { reading: rowsNeeded ? 'memory' : values.reading, sensitivity, segments: values.segment !== undefined,
+      { reading: rowsNeeded !== undefined ? 'memory' : values.reading, sensitivity, segments: values.segment !== undefined,
+        ...(setup.tables.queries !== undefined ? { queriesTable: { path: setup.tables.queries } } : {}),
         ...(progress ? { onPartial: (p: StreamPartial) => progress.partial(p.bytesRead / p.totalBytes, partialHeadlineText(headlineOf(p))) } : {}) });
     if (outcome.kind === 'streamed') {
       const scored = performance.now();
@@ -157,7 +162,8 @@ async function evalFile(path: string, source: string, format: ReportFormat, wors
       else {
         const worstOrderBy = values.sort === undefined ? undefined : worstOrder(evaluation, values.sort);
         // In pieces: the JSON records of a million queries are hundreds of MB as one string.
-        const pieces = formatReportPieces(format, { evaluation, queryNames: dump.queries, source, rowCount: dump.rowCount },
+        const facts = streamedQueryFacts(dump);
+        const pieces = formatReportPieces(format, { evaluation, queryNames: dump.queries, source, rowCount: dump.rowCount, ...(facts ? { facts } : {}) },
           { worst, ...(worstOrderBy ? { worstOrder: worstOrderBy } : {}) });
         for (const piece of pieces) io.out(piece);
       }
@@ -169,7 +175,7 @@ async function evalFile(path: string, source: string, format: ReportFormat, wors
     }
     // A large file that was meant to stream says why it did not; asking for a stream or for timings always says.
     if ((outcome.tried && values.reading === 'auto') || (values.timings && (outcome.tried || values.reading === 'stream'))) {
-      io.err(`reading: in memory, since ${outcome.why}\n`);
+      io.err(`reading: in memory, since ${rowsNeeded ?? outcome.why}\n`);
     }
     const dump = await withSideTables(outcome.dump, setup.tables);
     const read = performance.now();

@@ -19,6 +19,7 @@ import type { JudgmentTable } from './readers/judgments';
 import { chooseReading, type ReadingMode } from './stream/choose';
 import { streamEvaluate, type StreamedDump, type StreamEvaluateOptions } from './stream/streamEvaluate';
 import { streamJudgments } from './stream/streamJudgments';
+import { readTextTable } from './tables/readTable';
 
 export { configureEngine, DEFAULT_TUNING, type EngineConfiguration, type EngineSettings, type EngineTuning } from './config';
 export type { ChunkOutput } from './evaluate/chunkOutput';
@@ -68,6 +69,11 @@ export interface StreamOrReadOptions extends Pick<StreamEvaluateOptions, 'sensit
   readonly streamFromBytes?: number;
   /** The judgments file `read.judgments` names, already read by the caller (it is not read again). */
   readonly judgmentTable?: JudgmentTable;
+  /**
+   * A queries table to join (text, segments, weights), read once the dump is known to stream; `found`:
+   * found beside the dump rather than named, so left out when it names none of the dump's queries.
+   */
+  readonly queriesTable?: { readonly path: string; readonly found?: boolean };
 }
 
 /** A dump scored as it streamed in, or why it was not (`tried`: a stream began and gave way). */
@@ -85,12 +91,16 @@ export async function streamIfFit(path: string, read: ReadOptions, metrics: read
   const choice = await chooseReading(path, read, options.reading ?? 'auto', options.streamFromBytes);
   if (!choice.stream) return { kind: 'declined', why: choice.why, tried: false };
   // A named judgments file is read first, so its errors come before the stream's work, as the read's do.
-  const { judgmentTable, ...streamOptions } = options;
+  const { judgmentTable, queriesTable, ...streamOptions } = options;
   const judgments = read.judgments === undefined ? undefined
     : streamJudgments(judgmentTable ?? await readJudgments(read.judgments, read), read.missingQueries ?? 'skip');
+  const queries = queriesTable && {
+    table: await readTextTable(queriesTable.path, { ...(read.signal ? { signal: read.signal } : {}), purpose: 'a queries table' }),
+    ...(queriesTable.found ? { found: true } : {}),
+  };
   const outcome = await streamEvaluate(path, choice.format, metrics, conventions, {
     ...streamOptions, ...(read.columns ? { columns: read.columns } : {}), ...(read.threads !== undefined ? { threads: read.threads } : {}),
-    ...(read.signal ? { signal: read.signal } : {}), ...(judgments ? { judgments } : {}),
+    ...(read.signal ? { signal: read.signal } : {}), ...(judgments ? { judgments } : {}), ...(queries ? { queriesTable: queries } : {}),
   });
   return outcome.kind === 'streamed' ? outcome : { kind: 'declined', why: outcome.reason, tried: true };
 }

@@ -92,6 +92,25 @@ describe('eval --reading stream', () => {
     expect(report.queryCount).toBe(3);
   });
 
+  it('streams with a --queries table: every format and the table\'s segments as in memory; --items reads in memory and says why', () => {
+    const text = groupedDump(36, { queries: 300, maxRows: 20, segments: true, weights: true });
+    const names = [...new Set(text.split('\n').slice(1).filter(Boolean).map((l) => l.split('\t')[0]!))];
+    // Every other query, with text, a weight (some empty) and a `device` that replaces the dump's own; one query the dump lacks.
+    const table = ['query\ttext\tdevice\tquery_weight', ...names.filter((_, k) => k % 2 === 0).map((n, k) => `${n}\tthe words of ${n}\t${k % 3 === 0 ? 'kiosk' : 'tablet'}\t${k % 7 === 0 ? '' : (k % 5) + 0.5}`),
+      'stepladder 9\tno such query\tkiosk\t1'];
+    const dir = fixtureDir({ 'weighted.tsv': text, 'queries.tsv': table.join('\n') + '\n', 'items.tsv': 'product_id\ttitle\nSKU-10000\tpipe wrench\n' });
+    for (const extra of [['--format', 'json'], ['--format', 'table'], ['--format', 'csv'], ['--format', 'markdown'], ['--segment', 'device'], ['--segment', 'locale', '--format', 'json']]) {
+      const { memory, streamed } = both(['weighted.tsv', '--queries', 'queries.tsv', ...extra], dir);
+      expect(streamed.stderr).toMatch(/^timings: streamed read and score/);
+      expect(streamed.stdout).toBe(memory.stdout);
+    }
+    const json = JSON.parse(runCli(['eval', 'weighted.tsv', '--queries', 'queries.tsv', '--format', 'json', '--reading', 'stream'], dir).stdout);
+    expect(json.queries[0].text).toBe(`the words of ${names[0]}`);
+    const items = runCli(['eval', 'weighted.tsv', '--queries', 'queries.tsv', '--items', 'items.tsv', '--reading', 'stream', '--timings'], dir);
+    expect(items.code).toBe(0);
+    expect(items.stderr.split('\n')[0]).toBe('reading: in memory, since an items table (--items) joins by item, which needs the rows');
+  });
+
   it('refuses an unknown reading mode in one line', () => {
     const r = runCli(['eval', 'demo/runs/model-a.csv', '--reading', 'sideways'], REPO);
     expect(r.code).toBe(2);

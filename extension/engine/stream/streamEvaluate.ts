@@ -37,12 +37,12 @@ import { changedSince, checkUnchanged, fileChangedError, statStamp, throwIfCance
 import type { BlockResult, BlockTask } from './block';
 import { startBlockRunner, type BlockRunner } from './blockRunner';
 import { isWeightName } from '../tables/sideRoles';
-import { weighAbsentQueries } from '../tables/join';
 import { blockBounds, readHeaderLine } from './fileBlocks';
 import { PartialMeans } from './partialMeans';
 import { newSensitivityPassWith, scoredBlockSetup } from './setup';
 import { QueryReappeared, StreamColumns, type QueryLocations } from './streamColumns';
 import { labelOptional } from './sharedJudgments';
+import { joinStreamedQueries, partialWeights, type StreamQueriesTable } from './streamTables';
 import { absentQueries, JoinTotals, joinedNotes, scoreAbsentQueries, type StreamJudgments } from './streamJudgments';
 
 /** Bytes per block: large enough that a block's fixed costs vanish, small enough that two in flight stay small. */
@@ -63,6 +63,8 @@ export interface StreamEvaluateOptions {
   readonly onPartial?: (partial: StreamPartial) => void;
   /** Labels from a judgments table, joined block by block as the in-memory read joins them (sharedJudgments.ts). */
   readonly judgments?: StreamJudgments;
+  /** A queries table, joined once every query is known, before the means (streamTables.ts). */
+  readonly queriesTable?: StreamQueriesTable;
 }
 
 /** The queries scored so far, while the rest of the file is still being read. */
@@ -136,7 +138,8 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
   const blank = scoredBlockSetup(metrics, conventions, { rowsOfQuery: new Uint32Array(0), start: new Uint32Array(1) }, 0, 0, sensitivity);
   // The pass the blocks record with (every gain kept), to match its columns with the final pass's.
   const spec = sensitivity ? newSensitivityPassWith(blank, () => undefined) : undefined;
-  const keepSegments = options.segments === true && header.segmentNames.length > 0;
+  // A queries table's segments replace the dump's own of the same name, so the dump's are kept to compare.
+  const keepSegments = (options.segments === true || options.queriesTable !== undefined) && header.segmentNames.length > 0;
   const table = new StreamColumns(metrics.length, blank.hasRbp, spec?.variantCount, weightColumn !== undefined, keepSegments ? header.segmentNames.length : 0);
   const mapGain = conventions.gain.kind === 'map';
   const joinCounts = new JoinTotals();
@@ -151,7 +154,9 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
     const state = { highest: -Infinity, lineOffset: 1, rows: 0, tally: emptyTally(), largest: 0, gaps: [] as RowSummary[], grades: new Set<number>() };
     const scoredBlocks: { index: number; firstId: number; count: number; gmax: number }[] = [];
     const edges: OpenEdge[] = [];
-    const partialMeans = options.onPartial ? new PartialMeans(metrics.map((m) => m.key), weightColumn !== undefined) : undefined;
+    const tableWeights = partialWeights(options.queriesTable);
+    const partialMeans = options.onPartial ? new PartialMeans(metrics.map((m) => m.key), weightColumn !== undefined || tableWeights !== undefined) : undefined;
+    let weightSoFar: Float64Array<ArrayBufferLike> = new Float64Array(0);
     let open: OpenEdge | undefined;
     const closeOpen = () => {
       if (open) edges.push(open);
@@ -197,7 +202,11 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
           scoredBlocks.push({ index: k, firstId, count: result.scored.names.length, gmax: result.gmax });
           table.addScored(result.scored, state.lineOffset);
           const now = table.current();
-          partialMeans?.add(now.values, now.weight, firstId, table.size);
+          if (partialMeans && tableWeights) {
+            if (weightSoFar.length < table.size) weightSoFar = grownTo(weightSoFar, table.size * 2);
+            for (let q = firstId; q < table.size; q++) weightSoFar[q] = tableWeights.get(table.queries.get(q)) ?? NaN;
+          }
+          partialMeans?.add(now.values, tableWeights ? weightSoFar : now.weight, firstId, table.size);
           const l = result.last;
           open = { id: table.add(l.query, l.line + state.lineOffset), query: l.query, start: l.start, end: l.end, rows: l.rows };
         }
@@ -248,14 +257,14 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
     notes.gradeRange = range;
     const view = table.finish();
     if (judging && absent) joinedNotes(notes, judging, joinCounts, absent, view.perQuery, runQueries);
-    // As the in-memory join gives it (tables/join.ts): the weight of each query from its rows.
-    // Judged queries added under `zero` have no rows, so no weight of their own: they weigh 1, with the join's note.
-    const absentWeights = view.weight && zeroAbsent ? weighAbsentQueries(table.queries, runQueries, view.weight.fill(NaN, runQueries)) : [];
-    const joined = view.weight && weightColumn !== undefined ? { notes: absentWeights, queryWeight: view.weight, weightSource: `column '${weightColumn}' of ${path}` } : undefined;
-    const querySegments = keepSegments ? header.segmentNames.map((name, k) => ({ name, values: table.segment(k).pool, ofQuery: table.segment(k).ofQuery }))
-      .filter((s) => s.name !== weightColumn) : undefined;
+    // As the in-memory joins give them (tables/join.ts): the weight of each query from its rows, then the queries table.
+    const ownSegments = keepSegments ? header.segmentNames.map((name, k) => ({ name, values: table.segment(k).pool, ofQuery: table.segment(k).ofQuery }))
+      .filter((s) => s.name !== weightColumn) : [];
+    const ownWeight = view.weight && weightColumn !== undefined ? { weight: view.weight.fill(NaN, runQueries), source: `column '${weightColumn}' of ${path}` } : undefined;
+    const { joined, querySegments } = joinStreamedQueries({ queries: table.queries, runQueries, ownSegments, ...(ownWeight ? { ownWeight } : {}) },
+      options.queriesTable);
     const dump: StreamedDump = { path, format, stamp, rowCount: state.rows, queries: table.queries, notes, locations: view.locations,
-      names: header.names, ...(options.columns ? { columns: options.columns } : {}), ...(joined ? { joined } : {}), ...(querySegments ? { querySegments } : {}),
+      names: header.names, ...(options.columns ? { columns: options.columns } : {}), ...(joined ? { joined } : {}), ...(keepSegments || querySegments.length > 0 ? { querySegments } : {}),
       ...(judging ? { judgments: judging } : {}), ...(zeroAbsent ? { firstAbsentQuery: runQueries } : {}) };
     const setup = scoredBlockSetup(metrics, conventions, { rowsOfQuery: new Uint32Array(0), start: new Uint32Array(table.size + 1) }, table.size, gmax,
       sensitivity, range, state.largest);
@@ -341,4 +350,10 @@ function conventionProblem(metrics: readonly MetricSpec[], conventions: Conventi
     if (err instanceof InputError) return err.expected;
     throw err;
   }
+}
+
+function grownTo(old: Float64Array<ArrayBufferLike>, length: number): Float64Array<ArrayBufferLike> {
+  const grown = new Float64Array(length).fill(NaN);
+  grown.set(old);
+  return grown;
 }

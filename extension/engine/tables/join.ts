@@ -68,7 +68,7 @@ function namesAnItemOf(table: TextTable, dump: RankedDump): boolean {
   return dump.itemTexts.namesAnyOf(keys);
 }
 
-function sharesAnId(table: TextTable, kind: SideKind, pool: StringPool): boolean {
+export function sharesAnId(table: TextTable, kind: SideKind, pool: StringPool): boolean {
   const keys = table.cells[resolveSideColumns(table, kind).key]!;
   return keys.some((id) => pool.find(id) >= 0);
 }
@@ -88,25 +88,18 @@ export function joinTables(dump: RankedDump, queries?: TextTable, items?: TextTa
     segments.splice(dumpWeight, 1);
   }
   if (queries !== undefined) {
+    const joined = joinQueriesTable(queries, dump.queries, segments.map((s) => s.name), facts.queryWeight !== undefined);
+    notes.push(...joined.notes);
     facts.queriesFile = queries.file;
-    const roles = resolveSideColumns(queries, 'queries');
-    const rowOf = keyRows(queries, roles.key, dump.queries, 'queries', notes);
-    const keyName = queries.names[roles.key]!;
-    notes.push(...missingNote(rowOf, dump.queries, 'query', 'queries', queries.file));
-    if (roles.text >= 0) facts.queryText = byId(rowOf, queries.cells[roles.text]!);
-    if (roles.weight >= 0) {
-      if (facts.queryWeight !== undefined) notes.push(`Query weights come from ${queries.file}; the dump's own weight column is not used.`);
-      facts.queryWeight = weightsFromTable(queries, roles.weight, rowOf);
-      facts.weightSource = `column '${queries.names[roles.weight]}' of ${queries.file}`;
+    if (joined.text) facts.queryText = joined.text;
+    if (joined.weight) {
+      facts.queryWeight = joined.weight;
+      facts.weightSource = joined.weightSource;
     }
-    for (const c of roles.attributes) {
-      const name = queries.names[c]!;
+    for (const { name, valueOfQuery } of joined.attributes) {
       const replaced = segments.findIndex((s) => s.name === name);
-      if (replaced >= 0) {
-        segments.splice(replaced, 1);
-        notes.push(`Segment '${name}' comes from ${queries.file} (by ${keyName}); the dump's own '${name}' column is not used.`);
-      }
-      segments.push(segmentFromTable(dump, name, byId(rowOf, queries.cells[c]!)));
+      if (replaced >= 0) segments.splice(replaced, 1);
+      segments.push(segmentFromTable(dump, name, valueOfQuery));
     }
   }
   if (items !== undefined) {
@@ -120,6 +113,40 @@ export function joinTables(dump: RankedDump, queries?: TextTable, items?: TextTa
   if (facts.queryWeight !== undefined) notes.push(...weighAbsentQueries(dump.queries, dump.unretrieved?.firstAbsentQuery ?? facts.queryWeight.length, facts.queryWeight));
   segments = segments.filter(Boolean);
   return withFields(dump, { segments, joined: facts });
+}
+
+/** What a queries table gives each query of a dump, and the join's notes in the order joinTables words them. */
+export interface QueriesTableJoin {
+  readonly text?: string[];
+  readonly weight?: Float64Array;
+  readonly weightSource?: string;
+  /** The table's other columns, each query's value: each becomes a segment, replacing the dump's own of that name. */
+  readonly attributes: readonly { readonly name: string; readonly valueOfQuery: readonly string[] }[];
+  readonly notes: readonly string[];
+}
+
+/**
+ * Joins a queries table to the query ids of `queries` (a dump's, read in memory or streamed). `ownSegments`:
+ * the dump's own segment columns (a table column of the same name replaces one, with a note); `ownWeight`:
+ * the dump has a weight column (the table's weight column replaces it, with a note).
+ */
+export function joinQueriesTable(table: TextTable, queries: StringPool, ownSegments: readonly string[], ownWeight: boolean): QueriesTableJoin {
+  const notes: string[] = [];
+  const roles = resolveSideColumns(table, 'queries');
+  const rowOf = keyRows(table, roles.key, queries, 'queries', notes);
+  const keyName = table.names[roles.key]!;
+  notes.push(...missingNote(rowOf, queries, 'query', 'queries', table.file));
+  let weight: Pick<QueriesTableJoin, 'weight' | 'weightSource'> = {};
+  if (roles.weight >= 0) {
+    if (ownWeight) notes.push(`Query weights come from ${table.file}; the dump's own weight column is not used.`);
+    weight = { weight: weightsFromTable(table, roles.weight, rowOf), weightSource: `column '${table.names[roles.weight]}' of ${table.file}` };
+  }
+  const attributes = roles.attributes.map((c) => {
+    const name = table.names[c]!;
+    if (ownSegments.includes(name)) notes.push(`Segment '${name}' comes from ${table.file} (by ${keyName}); the dump's own '${name}' column is not used.`);
+    return { name, valueOfQuery: byId(rowOf, table.cells[c]!) };
+  });
+  return { ...(roles.text >= 0 ? { text: byId(rowOf, table.cells[roles.text]!) } : {}), ...weight, attributes, notes };
 }
 
 /**

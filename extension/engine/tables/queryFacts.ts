@@ -4,6 +4,8 @@
  * as the segment views do.
  */
 import type { RankedDump } from '../model/dump';
+import { segmentRowsOf } from '../stream/segmentRows';
+import type { StreamedDump } from '../stream/streamEvaluate';
 
 export interface QueryFacts {
   /** Text by query id; absent when the queries table has no text column. */
@@ -12,7 +14,7 @@ export interface QueryFacts {
 }
 
 /** undefined when no queries table was joined (reports then keep their plain shape). */
-export function queryFacts(dump: RankedDump): QueryFacts | undefined {
+export function queryFacts(dump: Pick<RankedDump, 'joined' | 'queries' | 'rowCount' | 'query' | 'segments'>): QueryFacts | undefined {
   if (dump.joined?.queriesFile === undefined) return undefined;
   const queryCount = dump.queries.size;
   const firstRow = new Int32Array(queryCount).fill(-1);
@@ -22,4 +24,9 @@ export function queryFacts(dump: RankedDump): QueryFacts | undefined {
     values: Array.from(firstRow, (r) => (r < 0 ? '' : s.values.get(s.ofRow[r]!))),
   }));
   return { ...(dump.joined.queryText ? { text: dump.joined.queryText } : {}), segments };
+}
+
+/** queryFacts of a streamed dump: its rows are one per query, each query's first (stream/segmentRows.ts). */
+export function streamedQueryFacts(dump: StreamedDump): QueryFacts | undefined {
+  return queryFacts({ ...segmentRowsOf(dump), queries: dump.queries });
 }
