@@ -16,11 +16,12 @@ import { readDump, segmentRowsOf, streamIfFit, streamOrRead, type RankedDump, ty
 import { readJudgments } from '../engine/readers/index';
 import { judgesFirstQueries } from '../engine/stream/firstQueries';
 import { sharesQuery, unusedJudgmentsNote, type JudgmentTable } from '../engine/readers/judgments';
+import { withFields } from '../engine/model/dump';
 import type { StringPool } from '../engine/model/stringPool';
 import type { SegmentedRows } from '../engine/evaluate/segments';
 import { parseMetricList } from '../engine/metrics/parse';
 import { readQueryRows } from '../engine/stream/queryDetail';
-import { tableSharesId, unusedTableNote, withSideTables } from '../engine/tables/join';
+import { withSideTables } from '../engine/tables/join';
 import { DEFAULT_BLOCK_BYTES } from '../engine/stream/streamEvaluate';
 import { describeConventions } from '../presentation/conventionsLine';
 import { metricLabel } from '../presentation/metricText';
@@ -62,13 +63,13 @@ export type StreamLoad =
 
 /**
  * Whether the source can stream at all. A judgments file, named or found, is joined block by block (engine
- * stream/sharedJudgments.ts). Side tables and a scores file need the rows in memory, except tables found
- * beside the dump by the naming rule (none named by the user), which often belong to other data: the
- * stream goes ahead and checks them against the queries it saw (loadStreamOrRead).
+ * stream/sharedJudgments.ts), a queries table once every query is known (engine stream/streamTables.ts).
+ * A scores file and a named items table need the rows in memory; an items table found beside the dump by
+ * the naming rule often belongs to other data, so the stream goes ahead without it (loadStreamOrRead).
  */
 export function mayStream(source: DumpSource): boolean {
   if (source.sqlEngine !== undefined || source.scores !== undefined) return false;
-  return (source.queries === undefined && source.items === undefined) || source.tablesFound === true;
+  return source.items === undefined || source.tablesFound === true;
 }
 
 /** The read options of a judgments file joined as the dump streams (the missing-queries policy with it). */
@@ -77,9 +78,9 @@ function judgedBy(source: DumpSource): Pick<ReadOptions, 'judgments' | 'missingQ
 }
 
 function sideFiles(source: DumpSource): string[] {
-  // A judgments file streams with the dump (mayStream), so it is never why a dump was read into memory.
+  // A judgments file and a queries table stream with the dump (mayStream), so they are never why a dump was read into memory.
   return [source.scores !== undefined && `scores file ${source.scores}`,
-    source.queries !== undefined && `queries table ${source.queries}`, source.items !== undefined && `items table ${source.items}`].filter((f) => f !== false);
+    source.items !== undefined && source.tablesFound !== true && `items table ${source.items}`].filter((f) => f !== false);
 }
 
 /** For a dump large enough to stream that was read into memory because files are joined to it: why, for its overview. */
@@ -106,11 +107,14 @@ export async function loadStreamOrRead(source: DumpSource, settings: EvaluationS
   // A file that cannot be looked at is the reader's to name, in its words (file: expected …).
   const size = await stat(source.path).then((s) => s.size, () => undefined);
   const found = foundFiles(source);
+  // A named queries table (mayStream: no named items table with it) is joined once every query is known.
+  const namedTables = source.queries !== undefined && source.tablesFound !== true ? { queries: source.queries } : {};
   if (size === undefined) {
-    return found.length > 0 ? { kind: 'declined' } : { kind: 'read', dump: await withSideTables(await readDump(source.path, read), {}, options.signal) };
+    return found.length > 0 ? { kind: 'declined' } : { kind: 'read', dump: await withSideTables(await readDump(source.path, read), namedTables, options.signal) };
   }
+  const queriesTable = source.queries === undefined ? {} : { queriesTable: { path: source.queries, ...(source.tablesFound === true ? { found: true } : {}) } };
   const streamOptions = { reading: 'auto' as const, streamFromBytes: options.streamFromBytes,
-    sensitivity: true, segments: true, onPartial, onProgress: options.onProgress, signal: options.signal, blockBytes: editorBlockBytes(size) };
+    sensitivity: true, segments: true, onPartial, onProgress: options.onProgress, signal: options.signal, blockBytes: editorBlockBytes(size), ...queriesTable };
   const gaveWay = (why: string) => `Read into memory rather than streamed, since ${why}.`;
   if (found.length > 0) {
     // A found judgments file is read once, here: checked, and joined if it goes with the dump. Not for a dump
@@ -124,8 +128,8 @@ export async function loadStreamOrRead(source: DumpSource, settings: EvaluationS
     const outcome = joinedAtOnce ? await streamIfFit(source.path, { ...read, ...judgedBy(source) }, metrics, settings.conventions, joinedOptions)
       : await streamIfFit(source.path, read, metrics, settings.conventions, streamOptions);
     if (outcome.kind === 'declined') return { kind: 'declined', ...(outcome.tried ? { note: gaveWay(outcome.why) } : {}) };
-    const check = await checkFoundFiles(source, outcome.dump.queries, options.signal, joinedAtOnce ? undefined : foundTable);
-    if (check.related.length === 1 && check.judgmentsRelated) {
+    const check = checkFoundFiles(source, outcome.dump.queries, joinedAtOnce ? undefined : foundTable);
+    if (check.judgmentsRelated) {
       // Related after all, though none of the first queries is judged: streamed again with them joined.
       const joined = await streamIfFit(source.path, { ...read, ...judgedBy(source) }, metrics, settings.conventions, joinedOptions);
       if (joined.kind === 'streamed') {
@@ -134,50 +138,41 @@ export async function loadStreamOrRead(source: DumpSource, settings: EvaluationS
       }
       return { kind: 'declined', ...(joined.tried ? { note: gaveWay(joined.why) } : {}) };
     }
-    if (check.related.length > 0) {
-      return { kind: 'declined', note: `Read into memory rather than streamed: ${check.related.join(' and ')}, found beside it, ` +
-        `${check.related.length > 1 ? 'name' : 'names'} its queries, and joining needs its rows.` };
-    }
     return { kind: 'streamed', ...streamedSession(outcome, fileName, options.started, check.notes) };
   }
   const outcome = await streamOrRead(source.path, read, metrics, settings.conventions, streamOptions);
   if (outcome.kind === 'read') {
-    // As readSource gives it: the dump's own weight column joined (there is no side table to join).
-    const dump = await withSideTables(outcome.dump, {}, options.signal);
+    // As readSource gives it: the named queries table and the dump's own weight column joined.
+    const dump = await withSideTables(outcome.dump, namedTables, options.signal);
     return { kind: 'read', dump, ...(outcome.tried ? { note: gaveWay(outcome.why) } : {}) };
   }
   return { kind: 'streamed', ...streamedSession(outcome, fileName, options.started, []) };
 }
 
-/** The side files found beside the dump, not named for it (a named judgments file streams with it; named tables do not stream). */
+/** The side files found beside the dump, not named for it (named judgments and queries tables stream with it). */
 function foundFiles(source: DumpSource): string[] {
-  return [source.judgmentsFound === true ? source.judgments : undefined, source.queries, source.items].filter((f): f is string => f !== undefined);
+  const tables = source.tablesFound === true ? [source.queries, source.items] : [];
+  return [source.judgmentsFound === true ? source.judgments : undefined, ...tables].filter((f): f is string => f !== undefined);
 }
 
 /**
  * The found files checked against the streamed dump's queries, as the in-memory read checks them: a
- * judgments file or queries table that names one of them goes with the dump (`related`); one that names
- * none is left out, with the read's note. An items table can only be checked against item ids, which a
- * stream does not keep: it is left out, with a note saying so (it only adds titles to a query's detail).
+ * judgments file that names one of them goes with the dump (`related`); one that names none is left out,
+ * with the read's note. A found queries table was checked, and joined or left out, by the stream itself.
+ * An items table can only be checked against item ids, which a stream does not keep: it is left out, with
+ * a note saying so (it only adds titles to a query's detail).
  */
-async function checkFoundFiles(source: DumpSource, queries: StringPool, signal: AbortSignal, judgments: JudgmentTable | undefined):
-  Promise<{ related: string[]; notes: string[]; judgmentsRelated: boolean }> {
-  const related: string[] = [];
+function checkFoundFiles(source: DumpSource, queries: StringPool, judgments: JudgmentTable | undefined): { notes: string[]; judgmentsRelated: boolean } {
   const notes: string[] = [];
   let judgmentsRelated = false;
   if (source.judgments !== undefined && judgments !== undefined) {
     judgmentsRelated = sharesQuery(queries, judgments);
-    if (judgmentsRelated) related.push(`the judgments file ${source.judgments}`);
-    else notes.push(unusedJudgmentsNote(source.judgments));
-  }
-  if (source.queries !== undefined) {
-    if (await tableSharesId(source.queries, 'queries', queries, signal)) related.push(`the queries table ${source.queries}`);
-    else notes.push(unusedTableNote(source.queries, 'queries'));
+    if (!judgmentsRelated) notes.push(unusedJudgmentsNote(source.judgments));
   }
   if (source.items !== undefined) {
     notes.push(`${source.items} was found beside the dump; it is not used while streaming (item titles need the dump's rows).`);
   }
-  return { related, notes, judgmentsRelated };
+  return { notes, judgmentsRelated };
 }
 
 /** The session and overview of a streamed dump; `notes` go before the dump's own. */
@@ -255,8 +250,10 @@ function firstRows(s: StreamedLoaded): Float64Array {
 export async function streamedDetail(s: StreamedLoaded, query: string, maxPairs: number | undefined): Promise<QueryDetailView> {
   const id = queryId(s, query);
   const { rows, detail } = await detailOf(s, id, maxPairs ?? 200);
-  // The query's segment values come from the table (its first row's, the weight column aside, as in memory).
-  const view = detailScreen({ ...rows, segments: [] }, s.evaluation, detail, id, s.table);
+  // The query's segment values come from the table (its first row's, the weight column aside, as in memory),
+  // its text from the queries table joined to the stream.
+  const joinedText = s.dump.joined?.queryText ? { joined: { notes: [], queryText: s.dump.joined.queryText } } : {};
+  const view = detailScreen(withFields(rows, { segments: [], ...joinedText }), s.evaluation, detail, id, s.table);
   const shift = firstRows(s)[id]!;
   const at = (row: number) => (row < 0 ? row : row + shift);
   return {

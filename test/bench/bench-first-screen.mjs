@@ -2,7 +2,7 @@
 // The editor's first screen, from the click on "Inspect Ranked Lists" to the painted headline, in a real
 // VS Code (code-server + Chromium): the end-to-end suite's first-screen scenario run with N samples of
 // each case (demo after a window reload, demo again, 1M rows), best of N against the targets: 1 s on the
-// demo and 3 s on 1M rows. Opt-in, as it installs and drives code-server for minutes:
+// demo and on 1M rows. Opt-in, as it installs and drives code-server for minutes:
 //   GAINLINE_BENCH_FIRST_SCREEN=N GAINLINE_E2E_DIR=/work/e2e npm run bench
 // or on its own: GAINLINE_BENCH_FIRST_SCREEN=3 node test/bench/bench-first-screen.mjs
 import { spawnSync } from 'node:child_process';

@@ -163,15 +163,26 @@ describe('a dump streamed in the editor', () => {
     }
   });
 
-  it('reads into memory, and says why, when a named queries table is joined to a dump large enough to stream', async () => {
+  it('streams with a named queries table, its weights and segments as in memory; a named items table reads into memory and says why', async () => {
     const queries = join(dir, 'kettlewood.queries.tsv');
-    writeFileSync(queries, `query_id\tdevice\n${QUERY_NAMES[0]} 0\tmobile\n`);
+    const lines = ['query_id\tdevice\tweight'];
+    for (let q = 0; q < 6000; q += 3) lines.push(`${QUERY_NAMES[q % QUERY_NAMES.length]} ${q}\t${q % 2 === 0 ? 'mobile' : 'kiosk'}\t${q % 7 === 0 ? '' : (q % 4) + 1}`);
+    writeFileSync(queries, lines.join('\n') + '\n');
     const partials: PartialOverview[] = [];
+    const memory = await worker.call('load', { session: 'tabled-memory', source: { path: file, queries }, settings });
     const overview = await worker.call('load', { session: 'tabled', source: { path: file, queries }, settings, streamFromBytes: 0 },
       { onProgress: (_f, _m, partial) => partial && partials.push(partial) });
-    expect(partials).toEqual([]);
-    expect(overview.warnings.filter((w) => w.startsWith('Read into memory rather than streamed'))).toEqual([
-      `Read into memory rather than streamed (it is over gainline.reading.streamFromMegabytes), since the queries table ${queries} goes with it, and joining needs its rows.`]);
+    expect(partials.length).toBeGreaterThan(0);
+    expect(overview.warnings.some((w) => w.startsWith('Streamed:'))).toBe(true);
+    expect(overview.metrics).toEqual(memory.metrics);
+    expect(overview.weighting).toBe(memory.weighting);
+    expect(overview.weighting).toMatch(/column 'weight' of .*kettlewood\.queries\.tsv/);
+    expect(await worker.call('segments', { session: 'tabled', column: 'device' })).toEqual(await worker.call('segments', { session: 'tabled-memory', column: 'device' }));
+    const items = join(dir, 'kettlewood.items.tsv');
+    writeFileSync(items, 'item_id\ttitle\nsku-0-0\tKettlewood drill\n');
+    const withItems = await worker.call('load', { session: 'itemized', source: { path: file, queries, items }, settings, streamFromBytes: 0 });
+    expect(withItems.warnings.filter((w) => w.startsWith('Read into memory rather than streamed'))).toEqual([
+      `Read into memory rather than streamed (it is over gainline.reading.streamFromMegabytes), since the items table ${items} goes with it, and joining needs its rows.`]);
   });
 
   it('names a missing file in the same words with or without a threshold', async () => {
