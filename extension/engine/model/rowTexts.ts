@@ -221,10 +221,14 @@ export class RowTexts {
 
   /** Writes hashBytes of rows [from, to) into `column`: what a reader stores before the keys are made. */
   hashRows(column: Uint32Array, from = 0, to = this.count): void {
-    for (let r = from; r < to; r++) {
-      const bytes = this.bytesOf(r);
-      column[r] = hashBytes(bytes, 0, bytes.length);
-    }
+    const parts = this.earlier.length === 0 ? [this.exportState()] : this.earlier;
+    parts.forEach(({ arena, ends, count }, k) => {
+      const first = this.earlier.length === 0 ? 0 : this.firstRow[k]!;
+      for (let r = Math.max(from, first); r < Math.min(to, first + count); r++) {
+        const i = r - first;
+        column[r] = hashBytes(arena, i === 0 ? 0 : ends[i - 1]!, ends[i]!);
+      }
+    });
   }
 
   /**
@@ -237,16 +241,24 @@ export class RowTexts {
     const batch = 64;
     const hashes = new Int32Array(batch);
     const records = new Int32Array(batch);
-    const views: Uint8Array[] = [];
-    for (let from = 0; from < this.count; from += batch) {
-      const n = Math.min(batch, this.count - from);
-      for (let b = 0; b < n; b++) {
-        const bytes = (views[b] = this.bytesOf(from + b));
-        hashes[b] = hashBytes(bytes, 0, bytes.length);
+    const starts = new Uint32Array(batch);
+    // Straight from each part's arena: a view per row (bytesOf) cost more than the hashing on a million rows.
+    const parts = this.earlier.length === 0 ? [this.exportState()] : this.earlier;
+    let row = 0;
+    for (const { arena, ends, count } of parts) {
+      for (let from = 0; from < count; from += batch) {
+        const n = Math.min(batch, count - from);
+        for (let b = 0; b < n; b++) {
+          const r = from + b;
+          const s = r === 0 ? 0 : ends[r - 1]!;
+          starts[b] = s;
+          hashes[b] = hashBytes(arena, s, ends[r]!);
+        }
+        // Touch the slots of the batch first so their cache misses overlap (see BytePool.warm).
+        pool.warm(hashes, n, records);
+        for (let b = 0; b < n; b++) ids[row + b] = pool.internHashed(arena, starts[b]!, ends[from + b]!, hashes[b]!);
+        row += n;
       }
-      // Touch the slots of the batch first so their cache misses overlap (see BytePool.warm).
-      pool.warm(hashes, n, records);
-      for (let b = 0; b < n; b++) ids[from + b] = pool.internHashed(views[b]!, 0, views[b]!.length, hashes[b]!);
     }
     return { pool, ids };
   }
