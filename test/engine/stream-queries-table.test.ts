@@ -153,6 +153,18 @@ describe('a queries table joined to a streamed dump', () => {
     await expect(streamOrRead(file, {}, METRICS, DEFAULT_CONVENTIONS, { reading: 'stream', queriesTable: { path: queries } })).rejects.toThrow(inMemory);
   });
 
+  it('a weight that is no number of 0 or more, and an empty table, are the in-memory join\'s errors', async () => {
+    const text = groupedDump(68, { queries: 20, maxRows: 5 });
+    const file = tmp.file('badweight.tsv', text);
+    const first = text.split('\n')[1]!.split('\t')[0]!;
+    for (const [name, body] of [['negative', `query\tweight\n${first}\t-2\n`], ['word', `query\tweight\nsomething\t1\n${first}\theavy\n`], ['empty', '']] as const) {
+      const queries = tmp.file(`${name}.queries.tsv`, body);
+      const inMemory = await withSideTables(await readDump(file), { queries }).then(() => 'joined', (e: Error) => e.message);
+      expect(inMemory).toContain(`${name}.queries.tsv`);
+      await expect(streamOrRead(file, {}, METRICS, DEFAULT_CONVENTIONS, { reading: 'stream', queriesTable: { path: queries } })).rejects.toThrow(inMemory);
+    }
+  });
+
   it('the join itself is the in-memory one: joinTables over the dump gives the same facts', async () => {
     // A guard on the fixture: the dump's own weight column is a weight to joinTables, as to the stream.
     const text = groupedDump(67, { queries: 10, maxRows: 4, weights: true });
