@@ -160,7 +160,7 @@ async function evalFile(path: string, source: string, format: ReportFormat, wors
       const { evaluation, dump } = outcome;
       if (values.segment !== undefined) io.out(segmentReport(segmentRowsOf(dump), evaluation, values.segment, format === 'json' ? 'json' : 'text'));
       else {
-        const worstOrderBy = values.sort === undefined ? undefined : worstOrder(evaluation, values.sort);
+        const worstOrderBy = values.sort === undefined ? undefined : worstOrder(evaluation, values.sort, worst);
         // In pieces: the JSON records of a million queries are hundreds of MB as one string.
         const facts = streamedQueryFacts(dump);
         const pieces = formatReportPieces(format, { evaluation, queryNames: dump.queries, source, rowCount: dump.rowCount, ...(facts ? { facts } : {}) },
@@ -204,7 +204,7 @@ async function evalFile(path: string, source: string, format: ReportFormat, wors
       io.out(segmentReport(dump, evaluation, values.segment, format === 'json' ? 'json' : 'text'));
       return 0;
     }
-    const worstOrderBy = values.sort === undefined ? undefined : worstOrder(evaluation, values.sort);
+    const worstOrderBy = values.sort === undefined ? undefined : worstOrder(evaluation, values.sort, worst);
     const input = { evaluation, queryNames: dump.queries, source, rowCount: dump.rowCount, ...(facts ? { facts } : {}),
       ...(records ? { queryRecords: records.pieces() } : {}) };
     for (const piece of formatReportPieces(format, input, { worst, ...(worstOrderBy ? { worstOrder: worstOrderBy } : {}) })) io.out(piece);

@@ -14,7 +14,7 @@ import type { Evaluation, QueryDetail } from '../engine/evaluate/types';
 import type { Conventions } from '../engine/metrics/conventions';
 import type { MetricSpec } from '../engine/metrics/registry';
 import { itemOfRow, type RankedDump } from '../engine/model/dump';
-import { describeConventions, formatValue, jsonNumber, type WorstOrder } from '../engine/report/reportInput';
+import { describeConventions, formatValue, jsonNumber, lowestIds, type WorstOrder } from '../engine/report/reportInput';
 import { alignedTable } from '../engine/report/textTable';
 import { dcgByPositionJson, dcgByPositionText, scoresByGradeJson, scoresByGradeText } from './diagnosticsView';
 
@@ -169,7 +169,7 @@ export function segmentReport(dump: SegmentedRows, evaluation: Evaluation, colum
 export const SORT_KEYS = ['loss-share', 'inversion-cost'] as const;
 
 /** Worst-first order by a metric (lowest first), by share of the headline loss, or by inversion cost (highest first). */
-export function worstOrder(evaluation: Evaluation, key: string): WorstOrder {
+export function worstOrder(evaluation: Evaluation, key: string, limit: number): WorstOrder {
   const pq = evaluation.perQuery;
   const m = evaluation.metrics.findIndex((spec) => spec.key === key);
   let column: Float64Array;
@@ -190,9 +190,9 @@ export function worstOrder(evaluation: Evaluation, key: string): WorstOrder {
   } else {
     throw new InputError(`a metric of --metrics (${evaluation.metrics.map((s) => s.key).join(', ')}) or one of ${SORT_KEYS.join(', ')}`, '--sort', undefined, key);
   }
-  const ids: number[] = [];
-  for (let q = 0; q < evaluation.queryCount; q++) if (!pq.skipped[q] && Number.isFinite(column[q]!)) ids.push(q);
-  ids.sort((a, b) => (ascending ? column[a]! - column[b]! : column[b]! - column[a]!) || a - b);
+  // Lowest first: the column itself, or its negation when higher is worse.
+  const lowFirst = ascending ? column : column.map((v) => -v);
+  const ids = lowestIds(evaluation.queryCount, lowFirst, limit, (q) => !pq.skipped[q] && Number.isFinite(column[q]!));
   return { ids, label, ...(shown ? { column: shown } : {}) };
 }
 

@@ -168,13 +168,15 @@ describe('worst queries', () => {
   it('matches a slow reference on seeded random values with many ties', () => {
     let seed = 12345;
     const rand = () => ((seed = (Math.imul(seed, 1103515245) + 12345) >>> 0) / 2 ** 32);
-    for (let trial = 0; trial < 50; trial++) {
-      const n = 1 + Math.floor(rand() * 60);
-      const values = Float64Array.from({ length: n }, () => (rand() < 0.1 ? NaN : Math.round(rand() * 5) / 5));
+    // Values with ties, NaN (left out), ±0 and ±Infinity; lists long enough to keep the selection's heap busy.
+    const special = [NaN, 0, -0, Infinity, -Infinity];
+    for (let trial = 0; trial < 80; trial++) {
+      const n = 1 + Math.floor(rand() * (trial % 4 === 0 ? 3000 : 60));
+      const values = Float64Array.from({ length: n }, () => (rand() < 0.15 ? special[Math.floor(rand() * special.length)]! : Math.round(rand() * 5) / 5));
       const skipped = Uint8Array.from({ length: n }, () => (rand() < 0.1 ? 1 : 0));
       const base = fixtureInput().evaluation;
       const ev = { ...base, queryCount: n, perQuery: { ...base.perQuery, values: [values], skipped }, headline: 0 };
-      const limit = Math.floor(rand() * 15);
+      const limit = Math.floor(rand() * (trial % 4 === 0 ? 200 : 15));
       // Slow and obvious: collect (value, id) pairs, sort by value then id.
       const pairs: [number, number][] = [];
       for (let q = 0; q < n; q++) if (!skipped[q] && !Number.isNaN(values[q]!)) pairs.push([values[q]!, q]);
