@@ -8,6 +8,7 @@ import { evaluate } from '../../extension/engine/evaluate/evaluate';
 import { gainProblem, largestSafeGain } from '../../extension/engine/evaluate/gainLimits';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
 import { errStopProbability } from '../../extension/engine/metrics/err';
+import { gainFunction } from '../../extension/engine/metrics/gain';
 import { parseMetricList } from '../../extension/engine/metrics/parse';
 import { assertTextHead, firstBadByte } from '../../extension/engine/readers/textCheck';
 import { seededRandom } from '../reference/random';
@@ -81,6 +82,18 @@ describe('ERR stop probability 2^(g−gmax) − 2^(−gmax)', () => {
     expect(stop(2000)).toBe(1);
     expect(stop(0)).toBe(0);
     expect(stop(1999)).toBe(0.5);
+  });
+});
+
+describe('gains and stop probabilities looked up for small grades', () => {
+  it('give the bits of the plain formula for every grade, small integers, fractions, negatives and huge ones alike', () => {
+    const grades = [...Array.from({ length: 70 }, (_, g) => g), -1, -0, 0.5, 2.25, 63.5, 1e3, -1e3, 1e300, NaN, Infinity];
+    const exponential = gainFunction({ kind: 'exponential' });
+    for (const g of grades) expect(Object.is(exponential(g), Math.pow(2, g) - 1), `gain of ${g}`).toBe(true);
+    for (const gmax of [0, 1, 4, 30, 63, 64, 2000]) {
+      const stop = errStopProbability(gmax);
+      for (const g of grades) expect(Object.is(stop(g), Math.pow(2, g - gmax) - Math.pow(2, -gmax)), `R(${g}) with gmax ${gmax}`).toBe(true);
+    }
   });
 });
 

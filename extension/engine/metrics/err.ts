@@ -17,6 +17,8 @@
  * the cut-off: cheap for ERR@k, and for whole-list ERR while few tied items can stop the user; a whole-list
  * ERR over a huge tied group of mostly relevant items is quadratic in the group size.
  */
+import { withSmallGrades } from './gain';
+
 export class ErrCalculator {
   private mean = new Float64Array(16);
   private terms = new Float64Array(16);
@@ -169,5 +171,5 @@ function logFactorialTable(n: number): Float64Array {
  */
 export function errStopProbability(gmax: number): (grade: number) => number {
   const floor = Math.pow(2, -gmax);
-  return (g) => Math.pow(2, g - gmax) - floor;
+  return withSmallGrades((g) => Math.pow(2, g - gmax) - floor);
 }

@@ -10,7 +10,7 @@ export type GainFunction = (grade: number) => number;
 export function gainFunction(gain: GainConvention): GainFunction {
   switch (gain.kind) {
     case 'exponential':
-      return (g) => Math.pow(2, g) - 1;
+      return withSmallGrades((g) => Math.pow(2, g) - 1);
     case 'linear':
       return (g) => g;
     case 'map': {
@@ -23,6 +23,18 @@ export function gainFunction(gain: GainConvention): GainFunction {
       };
     }
   }
+}
+
+/** Integer grades below this are looked up: every query asks for the gain of each of its grades. */
+const SMALL_GRADES = 64;
+
+/**
+ * `f` with its values for the grades 0..SMALL_GRADES-1 computed once: the same bits (the same call made
+ * them), without a Math.pow per grade per query, which cost a tenth of scoring a million small queries.
+ */
+export function withSmallGrades(f: (grade: number) => number): (grade: number) => number {
+  const table = Float64Array.from({ length: SMALL_GRADES }, (_, g) => f(g));
+  return (g) => ((g | 0) === g && g >= 0 && g < SMALL_GRADES ? table[g]! : f(g));
 }
 
 /** True when a higher grade never has a lower gain, so the ideal order is simply grade-descending. */
