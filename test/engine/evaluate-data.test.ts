@@ -101,9 +101,14 @@ describe('convention sensitivity', () => {
   it('every row equals the headline mean of a separate evaluation under that row’s conventions', () => {
     const rand = seededRandom(5);
     const rows: TestRow[] = [];
-    for (let q = 0; q < 40; q++) {
+    for (let q = 0; q < 60; q++) {
       const n = 1 + Math.floor(rand() * 15);
-      for (let i = 0; i < n; i++) rows.push({ query: `drill bits ${q}`, item: `sku-${i}`, label: Math.floor(rand() * rand() * 4), score: Math.floor(rand() * 4) });
+      // A third of the queries with distinct scores (no tie above the cut-off: the tie rows share a DCG there),
+      // the rest with scores 0–3, tied.
+      const distinct = q % 3 === 0;
+      for (let i = 0; i < n; i++) {
+        rows.push({ query: `drill bits ${q}`, item: `sku-${i}`, label: Math.floor(rand() * rand() * 4), score: distinct ? rand() : Math.floor(rand() * 4) });
+      }
     }
     const dump = buildDump(rows);
     const metrics = parseMetricList('ap,ndcg@5,err@10');

@@ -42,6 +42,8 @@ export class SensitivityPass {
   private readonly ideal = new IdealGains();
   private gainOfRank: Float64Array[] = [];
   private idealOfGain = new Float64Array(0);
+  /** The query's DCG under each gain, shared by the tie conventions when no score above the cut-off is tied (NaN: not yet). */
+  private dcgOfGain = new Float64Array(0);
   private sortedRanks = new Uint32Array(16);
   /** Gain per rank of the judged set's grades (queries with unretrieved judged items). */
   private judgedTable = new Float64Array(16);
@@ -75,6 +77,7 @@ export class SensitivityPass {
       this.gainOfRank.push(new Float64Array(16));
     }
     this.idealOfGain = new Float64Array(this.gains.length);
+    this.dcgOfGain = new Float64Array(this.gains.length);
     for (const ties of TIES) this.variants.push({ gain: base.gain, ties, gainSlot: 0, sum: 0, counted: 0, weight: 0 });
     for (let i = 1; i < this.gains.length; i++) {
       this.variants.push({ gain: this.gains[i]!, ties: base.ties, gainSlot: i, sum: 0, counted: 0, weight: 0 });
@@ -200,11 +203,19 @@ export class SensitivityPass {
       }
       this.idealOfGain[i] = idealDcg(this.ideal.gain, this.ideal.count, this.ideal.distinct, this.k, n + ranking.unretrieved);
     }
+    // With no tied scores above the cut-off every tie convention takes the same path: one DCG per gain.
+    const untied = this.untiedTop(ranking);
+    this.dcgOfGain.fill(NaN);
     for (let i = 0; i < this.variants.length; i++) {
       const v = this.variants[i]!;
       const ideal = this.idealOfGain[v.gainSlot]!;
       if (!(ideal > 0)) continue;
-      const value = this.dcgUnder(ranking, grades, this.gainOfRank[v.gainSlot]!, v.ties) / ideal;
+      let dcg = untied ? this.dcgOfGain[v.gainSlot]! : NaN;
+      if (Number.isNaN(dcg)) {
+        dcg = this.dcgUnder(ranking, grades, this.gainOfRank[v.gainSlot]!, v.ties);
+        if (untied) this.dcgOfGain[v.gainSlot] = dcg;
+      }
+      const value = dcg / ideal;
       v.sum += value;
       v.counted++;
       v.weight++;
@@ -213,6 +224,14 @@ export class SensitivityPass {
         record.entered[i]![query] = 1;
       }
     }
+  }
+
+  /** True when every tie group that starts above the cut-off holds one item (dcgUnder is then the same under every tie convention). */
+  private untiedTop(ranking: QueryRanking): boolean {
+    const depth = Math.min(this.k, ranking.n);
+    const b = ranking.tieBounds;
+    for (let g = 0; g < ranking.tieGroups && b[g]! < depth; g++) if (b[g + 1]! - b[g]! !== 1) return false;
+    return true;
   }
 
   /** DCG@k of the ranked list under a tie convention, from the ranked order and its tie groups. */
