@@ -155,6 +155,29 @@ export class BytePool implements StringPool {
     return bytes;
   }
 
+  /**
+   * Room for `entries` ids in all and `bytes` more bytes of arena (each id's text with its 8-byte header, as
+   * another pool's `arenaUsed` counts them), made at once: a merge that knows how much is coming then grows
+   * the table and the arena once, not by doubling as it goes.
+   */
+  reserve(entries: number, bytes: number): void {
+    const needBytes = this.arenaUsed + bytes;
+    if (needBytes > this.arena.length && needBytes <= 0x7fffffff) {
+      const grown = new Uint8Array(needBytes);
+      grown.set(this.arena.subarray(0, this.arenaUsed));
+      this.arena = grown;
+    }
+    if (entries > this.starts.length) {
+      const grownStarts = new Uint32Array(entries);
+      grownStarts.set(this.starts.subarray(0, this.count));
+      this.starts = grownStarts;
+    }
+    // The load factor add() keeps: at most one half.
+    let size = this.mask + 1;
+    while (entries * 2 > size) size *= 2;
+    if (size > this.mask + 1) this.rehash(size);
+  }
+
   /** The pool's internals (shared, not copied: stop using this pool afterwards). */
   exportState(): BytePoolState {
     return { arena: this.arena, arenaUsed: this.arenaUsed, starts: this.starts, count: this.count, table: this.table, mask: this.mask };
@@ -236,8 +259,7 @@ export class BytePool implements StringPool {
     return id;
   }
 
-  private rehash(): void {
-    const size = (this.mask + 1) * 2;
+  private rehash(size = (this.mask + 1) * 2): void {
     const table = new Int32Array(2 * size).fill(EMPTY_SLOT);
     const mask = size - 1;
     const old = this.table;

@@ -358,6 +358,8 @@ function remapPools(rows: RowColumns, parts: Extract<RangeResult, { kind: 'rows'
   };
   const first = parts[0]!;
   rows.queries = BytePool.fromState(first.queries);
+  // Every later range's queries may be new (a grouped file's are, but for the query cut by each range's start).
+  rows.queries.reserve(parts.reduce((n, p) => n + p.queries.count, 0), parts.slice(1).reduce((n, p) => n + p.queries.arenaUsed, 0));
   // Item bytes stay per row (model/rowTexts.ts): the ranges' records follow one another, nothing to re-intern.
   rows.itemTexts = RowTexts.concat(parts.map((p) => p.itemTexts));
   rows.segmentPools = first.segmentPools.map((s) => BytePool.fromState(s));
