@@ -129,11 +129,29 @@ describe('parallel scoring', () => {
     const rendered = formatJson({ ...input, evaluation: many, queryRecords: records.pieces() });
     expect(rendered).toBe(formatJson({ ...input, evaluation: one }));
     expect(JSON.parse(rendered).queries).toHaveLength(dump.queries.size);
-    // On one thread the same output arrives as one chunk of every query.
+    // On one thread the same output arrives in pieces of at most 16,384 queries, in order.
     const single = collectQueryRecords(METRICS, dump.queries, false);
-    evaluate(dump, METRICS, DEFAULT_CONVENTIONS, { perChunk: single.output });
-    expect(single.pieces()).toHaveLength(1);
+    const pieces: [number, number][] = [];
+    evaluate(dump, METRICS, DEFAULT_CONVENTIONS, { perChunk: { ...single.output, onChunk: (from, to, text) => {
+      pieces.push([from, to]);
+      single.output.onChunk(from, to, text);
+    } } });
+    expect(pieces).toEqual([[0, dump.queries.size]]);
     expect(formatJson({ ...input, evaluation: one, queryRecords: single.pieces() })).toBe(rendered);
+  });
+
+  it('on one thread, hands the records over in pieces of 16,384 queries (all at once could pass V8\'s longest string)', () => {
+    const rows = Array.from({ length: 40_000 }, (_, q) => ({ query: `tape measure ${q}`, item: 'sku-1', label: q % 3, score: q % 7 }));
+    const dump = buildDump(rows);
+    const single = collectQueryRecords(METRICS, dump.queries, false);
+    const pieces: [number, number][] = [];
+    const one = evaluate(dump, METRICS, DEFAULT_CONVENTIONS, { perChunk: { ...single.output, onChunk: (from, to, text) => {
+      pieces.push([from, to]);
+      single.output.onChunk(from, to, text);
+    } } });
+    expect(pieces).toEqual([[0, 16_384], [16_384, 32_768], [32_768, 40_000]]);
+    const input = { queryNames: dump.queries, source: 'runs/a.csv', rowCount: dump.rowCount };
+    expect(formatJson({ ...input, evaluation: one, queryRecords: single.pieces() })).toBe(formatJson({ ...input, evaluation: one }));
   });
 
   it.each([1, 3, 200])('with %i chunks per thread it still matches', async (chunksPerThread) => {

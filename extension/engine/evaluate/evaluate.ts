@@ -67,10 +67,18 @@ export function evaluate(
   const recorded = sensitivity && dump.joined?.queryWeight ? sensitivityColumns(sensitivity, setup.queryCount, (n) => new ArrayBuffer(n)) : undefined;
   if (recorded) sensitivity!.recordInto(recorded);
   const tally = scoreQueryRange(setup, dump, 0, setup.queryCount, perQuery, sensitivity, options);
-  if (options.perChunk) options.perChunk.onChunk(0, setup.queryCount, renderChunk(options.perChunk, perQuery, 0, setup.queryCount));
+  // In pieces, as the scoring threads hand them over: the text of every query at once can pass the longest
+  // string V8 allows (about 500 MB, some 1.4M JSON records).
+  for (let from = 0; options.perChunk && from < setup.queryCount; from += RENDERED_PER_PIECE) {
+    const to = Math.min(setup.queryCount, from + RENDERED_PER_PIECE);
+    options.perChunk.onChunk(from, to, renderChunk(options.perChunk, perQuery, from, to));
+  }
   options.onProgress?.(1);
   return finishEvaluation(setup, dump, perQuery, tally, sensitivity, recorded);
 }
+
+/** Queries per piece of text a caller's per-chunk renderer makes on one thread. */
+const RENDERED_PER_PIECE = 16384;
 
 /** What every range of one evaluation shares: the checked conventions and the query groups. */
 export interface EvaluationSetup {
