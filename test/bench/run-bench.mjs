@@ -4,7 +4,7 @@
 // files in the same run: DuckDB computing NDCG@10 in SQL, vectorised numpy, and pandas groupby +
 // scikit-learn per query (1M only). Each is timed best of N. Then runs every other
 // test/bench/bench-*.mjs script (not with --eval-only).
-// Usage: npm run bench [-- --only 1m|10m|10m-distinct] [-- --runs N] [-- --eval-only]
+// Usage: npm run bench [-- --only 1m|10m|10m-distinct|10m-distinct-1mq] [-- --runs N] [-- --eval-only]
 // GAINLINE_BENCH_DATA=DIR puts the generated dumps (about 1.3 GB) there instead of test/bench/data/.
 import { spawn, spawnSync } from 'node:child_process';
 import { existsSync, readdirSync, statSync, mkdirSync } from 'node:fs';
@@ -21,6 +21,8 @@ const SIZES = [
   { name: '1m', file: 'dump-1m.csv', rows: 1_000_000, queries: 10_000, runs: 3, sklearn: true },
   { name: '10m', file: 'dump-10m.csv', rows: 10_000_000, queries: 100_000, runs: 3, sklearn: false },
   { name: '10m-distinct', file: 'dump-10m-distinct.tsv', rows: 10_000_000, queries: 100_000, runs: 3, sklearn: false, distinct: true },
+  // The same rows in ten times as many, ten-row queries (a reranker's candidate lists): what costs per query shows here.
+  { name: '10m-distinct-1mq', file: 'dump-10m-distinct-1mq.tsv', rows: 10_000_000, queries: 1_000_000, runs: 3, sklearn: false, distinct: true },
 ].filter((s) => !args.only || s.name === args.only);
 const PEERS = [
   // DuckDB and scikit-learn average tied scores as we do, so their means agree to rounding; the numpy peer
@@ -156,6 +158,12 @@ for (const r of results) {
       console.log(`  (the default table output, best of ${r.table.all.length}: ${fmt(r.table.seconds)} s, CPU ${fmt(r.table.cpu)} s; numpy/ours wall ${fmt(numpy.seconds / r.table.seconds, 1)}×)`);
     }
     if (numpy) await printFloors(r, numpy.seconds / 5);
+  }
+  if (r.size.name === '10m-distinct-1mq') {
+    const vs = (p, label) => (p ? `; ${label}/ours wall ${fmt(p.seconds / r.seconds, 1)}×` : '');
+    console.log(`  10M distinct ids in 1M queries of about 10 rows, the 10M-distinct targets on another shape: ${fmt(r.seconds)} s → ${verdict(r.seconds <= 3)}, ` +
+      `${fmt(r.peakMB, 0)} MB → ${verdict(r.peakMB <= 1024)}${vs(duckdb, 'DuckDB')}${vs(numpy, 'numpy')}` +
+      `${r.table ? ` (the default table output: ${fmt(r.table.seconds)} s, ${fmt(r.table.peakMB, 0)} MB)` : ''}`);
   }
   if (r.size.name === '10m') console.log(`  10M rows, repeated ids ≤ 3 s: ${fmt(r.seconds)} s → ${verdict(r.seconds <= 3)} (CPU ${fmt(r.cpu)} s)`);
   if (r.size.name === '1m' && numpy) {
