@@ -27,11 +27,8 @@ import { idleKeptThreads, leasePool, type PoolLease } from './keptPools';
  * 0.49–0.63 s on two (this thread and one worker); 150 MB in 1.07–1.19 s on one and 1.02–1.11 s on two.
  */
 const PARALLEL_FROM_BYTES = 96 << 20;
-/**
- * From this size when a kept parse thread is idle (keptPools.ts: started and compiled already). Best
- * of 5 warm reads on 2 cores, one thread against two: 5.9 MB 26 ms and 27 ms; 14.8 MB 58 and 45 ms;
- * 30 MB 98–105 and 76–86 ms; 60 MB 183–190 and 164–180 ms (the merge on this thread grows with the rows).
- */
+/** With a kept parse thread idle (keptPools.ts), from this size. Best of 5 warm reads on 2 cores, one thread
+ * against two: 5.9 MB 26 and 27 ms; 14.8 MB 58 and 45 ms; 30 MB 98–105 and 76–86 ms; 60 MB 183–190 and 164–180 ms. */
 const KEPT_PARALLEL_FROM_BYTES = 12 << 20;
 const MAX_THREADS = 4;
 
