@@ -107,11 +107,17 @@ export class RowTexts {
     return arena.subarray(r === 0 ? 0 : ends[r - 1]!, ends[r]!);
   }
 
-  /**
-   * out[r] = the id of row r's bytes in `pool`, or -1 when the pool lacks them. Rows are looked up in
-   * batches whose table slots are read first (BytePool.warm), so the cache misses of a large pool overlap.
-   */
+  /** out[r] = the id of row r's bytes in `pool`, or -1 when the pool lacks them. */
   findEachIn(pool: BytePool, out: Int32Array): void {
+    this.lookUpEach(pool, out, false);
+  }
+
+  /**
+   * Each row's bytes looked up in `pool` (interned when `intern`, else -1 when absent) into out[row], in
+   * batches of 64 whose table slots are touched first (BytePool.warm) so their cache misses overlap; read
+   * straight from each part's arena (a view per row cost more than the hashing on a million rows).
+   */
+  private lookUpEach(pool: BytePool, out: Int32Array | Uint32Array, intern: boolean): void {
     const parts = this.earlier.length === 0 ? [this.exportState()] : this.earlier;
     const batch = 64;
     const hashes = new Int32Array(batch);
@@ -128,11 +134,14 @@ export class RowTexts {
           hashes[b] = hashBytes(arena, s, ends[r]!);
         }
         pool.warm(hashes, n, records);
-        for (let b = 0; b < n; b++) out[row + b] = pool.findHashed(arena, starts[b]!, ends[from + b]!, hashes[b]!);
+        for (let b = 0; b < n; b++) {
+          out[row + b] = intern ? pool.internHashed(arena, starts[b]!, ends[from + b]!, hashes[b]!) : pool.findHashed(arena, starts[b]!, ends[from + b]!, hashes[b]!);
+        }
         row += n;
       }
     }
   }
+
 
   /** True when some row's bytes are in `pool` (a small pool: an items table's keys); stops at the first. */
   namesAnyOf(pool: BytePool): boolean {
@@ -238,28 +247,7 @@ export class RowTexts {
   internAll(): { readonly pool: BytePool; readonly ids: Uint32Array } {
     const pool = new BytePool();
     const ids = new Uint32Array(this.count);
-    const batch = 64;
-    const hashes = new Int32Array(batch);
-    const records = new Int32Array(batch);
-    const starts = new Uint32Array(batch);
-    // Straight from each part's arena: a view per row (bytesOf) cost more than the hashing on a million rows.
-    const parts = this.earlier.length === 0 ? [this.exportState()] : this.earlier;
-    let row = 0;
-    for (const { arena, ends, count } of parts) {
-      for (let from = 0; from < count; from += batch) {
-        const n = Math.min(batch, count - from);
-        for (let b = 0; b < n; b++) {
-          const r = from + b;
-          const s = r === 0 ? 0 : ends[r - 1]!;
-          starts[b] = s;
-          hashes[b] = hashBytes(arena, s, ends[r]!);
-        }
-        // Touch the slots of the batch first so their cache misses overlap (see BytePool.warm).
-        pool.warm(hashes, n, records);
-        for (let b = 0; b < n; b++) ids[row + b] = pool.internHashed(arena, starts[b]!, ends[from + b]!, hashes[b]!);
-        row += n;
-      }
-    }
+    this.lookUpEach(pool, ids, true);
     return { pool, ids };
   }
 

@@ -10,7 +10,7 @@
  */
 import type { JoinedFacts } from '../model/dump';
 import { MapStringPool, type StringPool } from '../model/stringPool';
-import { joinQueriesTable, sharesAnId, unusedTableNote, weighAbsentQueries } from '../tables/join';
+import { addQueriesTable, sharesAnId, unusedTableNote, weighAbsentQueries, type JoiningFacts } from '../tables/join';
 import type { TextTable } from '../tables/readTable';
 import { resolveSideColumns } from '../tables/sideRoles';
 
@@ -51,27 +51,17 @@ export function joinStreamedQueries(own: StreamedQueryFacts, queriesTable: Strea
     return { ...(skipped.length > 0 ? { joined: { notes: skipped } } : {}), querySegments: own.ownSegments };
   }
   const notes: string[] = [];
-  const facts: { -readonly [K in keyof JoinedFacts]: JoinedFacts[K] } = { notes };
+  const facts: JoiningFacts = { notes };
   if (own.ownWeight) {
     facts.queryWeight = own.ownWeight.weight;
     facts.weightSource = own.ownWeight.source;
   }
   const segments = [...own.ownSegments];
   if (table !== undefined) {
-    const joined = joinQueriesTable(table, own.queries, segments.map((s) => s.name), facts.queryWeight !== undefined);
-    notes.push(...joined.notes);
-    facts.queriesFile = table.file;
-    if (joined.text) facts.queryText = joined.text;
-    if (joined.weight) {
-      facts.queryWeight = joined.weight;
-      facts.weightSource = joined.weightSource;
-    }
-    for (const { name, valueOfQuery } of joined.attributes) {
-      const replaced = segments.findIndex((s) => s.name === name);
-      if (replaced >= 0) segments.splice(replaced, 1);
+    addQueriesTable(facts, notes, segments, table, own.queries, (name, valueOfQuery) => {
       const values = new MapStringPool();
-      segments.push({ name, values, ofQuery: Uint32Array.from(valueOfQuery, (v) => values.intern(v)) });
-    }
+      return { name, values, ofQuery: Uint32Array.from(valueOfQuery, (v) => values.intern(v)) };
+    });
   }
   if (facts.queryWeight !== undefined) notes.push(...weighAbsentQueries(own.queries, own.runQueries, facts.queryWeight));
   return { joined: { ...facts, notes: [...skipped, ...notes] }, querySegments: segments };

@@ -79,7 +79,7 @@ export function joinTables(dump: RankedDump, queries?: TextTable, items?: TextTa
   if (queries === undefined && items === undefined && dumpWeight < 0) return dump;
   const notes: string[] = [];
   let segments = [...dump.segments];
-  const facts: { -readonly [K in keyof JoinedFacts]: JoinedFacts[K] } = { notes };
+  const facts: JoiningFacts = { notes };
 
   if (dumpWeight >= 0) {
     const column = segments[dumpWeight]!;
@@ -87,21 +87,7 @@ export function joinTables(dump: RankedDump, queries?: TextTable, items?: TextTa
     facts.weightSource = `column '${column.name}' of ${dump.path}`;
     segments.splice(dumpWeight, 1);
   }
-  if (queries !== undefined) {
-    const joined = joinQueriesTable(queries, dump.queries, segments.map((s) => s.name), facts.queryWeight !== undefined);
-    notes.push(...joined.notes);
-    facts.queriesFile = queries.file;
-    if (joined.text) facts.queryText = joined.text;
-    if (joined.weight) {
-      facts.queryWeight = joined.weight;
-      facts.weightSource = joined.weightSource;
-    }
-    for (const { name, valueOfQuery } of joined.attributes) {
-      const replaced = segments.findIndex((s) => s.name === name);
-      if (replaced >= 0) segments.splice(replaced, 1);
-      segments.push(segmentFromTable(dump, name, valueOfQuery));
-    }
-  }
+  if (queries !== undefined) addQueriesTable(facts, notes, segments, queries, dump.queries, (name, valueOfQuery) => segmentFromTable(dump, name, valueOfQuery));
   if (items !== undefined) {
     facts.itemsFile = items.file;
     const roles = resolveSideColumns(items, 'items');
@@ -115,8 +101,33 @@ export function joinTables(dump: RankedDump, queries?: TextTable, items?: TextTa
   return withFields(dump, { segments, joined: facts });
 }
 
+/** The facts being joined to a dump, writable while the join runs. */
+export type JoiningFacts = { -readonly [K in keyof JoinedFacts]: JoinedFacts[K] };
+
+/**
+ * Joins a queries table to the query ids of `queries` (a dump's, read in memory or streamed): its text and
+ * weights go to `facts`, its notes to `notes`, and each of its other columns becomes a segment made by
+ * `segmentOf`, replacing one of `segments` of that name.
+ */
+export function addQueriesTable<S extends { readonly name: string }>(facts: JoiningFacts, notes: string[], segments: S[], table: TextTable,
+  queries: StringPool, segmentOf: (name: string, valueOfQuery: readonly string[]) => S): void {
+  const joined = joinQueriesTable(table, queries, segments.map((s) => s.name), facts.queryWeight !== undefined);
+  notes.push(...joined.notes);
+  facts.queriesFile = table.file;
+  if (joined.text) facts.queryText = joined.text;
+  if (joined.weight) {
+    facts.queryWeight = joined.weight;
+    facts.weightSource = joined.weightSource;
+  }
+  for (const { name, valueOfQuery } of joined.attributes) {
+    const replaced = segments.findIndex((s) => s.name === name);
+    if (replaced >= 0) segments.splice(replaced, 1);
+    segments.push(segmentOf(name, valueOfQuery));
+  }
+}
+
 /** What a queries table gives each query of a dump, and the join's notes in the order joinTables words them. */
-export interface QueriesTableJoin {
+interface QueriesTableJoin {
   readonly text?: string[];
   readonly weight?: Float64Array;
   readonly weightSource?: string;
@@ -130,7 +141,7 @@ export interface QueriesTableJoin {
  * the dump's own segment columns (a table column of the same name replaces one, with a note); `ownWeight`:
  * the dump has a weight column (the table's weight column replaces it, with a note).
  */
-export function joinQueriesTable(table: TextTable, queries: StringPool, ownSegments: readonly string[], ownWeight: boolean): QueriesTableJoin {
+function joinQueriesTable(table: TextTable, queries: StringPool, ownSegments: readonly string[], ownWeight: boolean): QueriesTableJoin {
   const notes: string[] = [];
   const roles = resolveSideColumns(table, 'queries');
   const rowOf = keyRows(table, roles.key, queries, 'queries', notes);
