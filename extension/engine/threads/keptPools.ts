@@ -21,19 +21,18 @@ const KEPT_THREADS = 4;
 /** Only the scripts a read and its scoring use are kept; a stream or a series starts its own. */
 export type KeptScript = Extract<ThreadScript, 'parseWorker' | 'scoreWorker'>;
 
+/** One pool per script; each is asked only that script's requests (the type each caller names). */
 const kept = new Map<KeptScript, ThreadPool<RequestMap>>();
 
 /** The kept pool of `name`, made on first use; undefined when threads are not kept or the script is missing. */
 export function keptPool<M extends RequestMap>(name: KeptScript): ThreadPool<M> | undefined {
   if (!engineSettings().keepThreads) return undefined;
-  let pool = kept.get(name);
-  if (pool === undefined) {
-    const made = ThreadPool.forScript<M>(name, Math.min(KEPT_THREADS, Math.max(1, availableParallelism() - 1)), true);
+  if (!kept.has(name)) {
+    const made = ThreadPool.forScript<RequestMap>(name, Math.min(KEPT_THREADS, Math.max(1, availableParallelism() - 1)), true);
     if (made === undefined) return undefined;
-    kept.set(name, made as unknown as ThreadPool<RequestMap>);
-    pool = made as unknown as ThreadPool<RequestMap>;
+    kept.set(name, made);
   }
-  return pool as unknown as ThreadPool<M>;
+  return kept.get(name) as ThreadPool<M> | undefined;
 }
 
 /** Started threads of `name`'s kept pool idle now (0 when threads are not kept). */
