@@ -157,7 +157,7 @@ function foundFiles(source: DumpSource): string[] {
 
 /**
  * The found files checked against the streamed dump's queries, as the in-memory read checks them: a
- * judgments file that names one of them goes with the dump (`related`); one that names none is left out,
+ * judgments file that names one of them goes with the dump (`judgmentsRelated`); one that names none is left out,
  * with the read's note. A found queries table was checked, and joined or left out, by the stream itself.
  * An items table can only be checked against item ids, which a stream does not keep: it is left out, with
  * a note saying so (it only adds titles to a query's detail).

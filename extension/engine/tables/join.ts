@@ -52,11 +52,6 @@ export function unusedTableNote(file: string, kind: SideKind): string {
   return `${file} was found beside the dump but names none of its ${kind}; it is not used.`;
 }
 
-/** Whether the table at `path` names any of `pool`'s ids (a streamed dump's queries, which keeps no rows to join). */
-export async function tableSharesId(path: string, kind: SideKind, pool: StringPool, signal?: AbortSignal): Promise<boolean> {
-  return sharesAnId(await readTextTable(path, { signal, purpose: kind === 'queries' ? 'a queries table' : 'an items table' }), kind, pool);
-}
-
 /**
  * Whether an items table names any of the dump's items. A dump that keeps item bytes per row is searched
  * by those bytes, so checking a table found beside it does not make the dump-wide item ids.
