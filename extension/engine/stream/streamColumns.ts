@@ -68,14 +68,21 @@ export class StreamColumns {
 
   /** A new query's id; a query already seen is the file not being grouped. */
   add(query: string, line: number): number {
-    if (this.queries.find(query) >= 0) throw new QueryReappeared(query, line);
+    // One look-up: an id below the count before it is a query met before.
+    const before = this.queries.size;
     const id = this.queries.internString(query);
+    if (id < before) throw new QueryReappeared(query, line);
     if (id >= this.capacity) this.grow(Math.max(id + 1, this.capacity * 2));
     this.count = id + 1;
     this.locations.line[id] = line;
     // Until scored (a query cut by a block boundary is scored at the end), it counts in no partial mean.
     for (const column of this.columns.values) column[id] = NaN;
     return id;
+  }
+
+  /** Room for `queries` queries at once (an estimate from the blocks so far): the columns then grow once, not by doubling. */
+  reserve(queries: number): void {
+    if (queries > this.capacity) this.grow(Math.ceil(queries));
   }
 
   /** Adds each scored query of a block as a new query, in order; `lineOffset` turns block lines into file lines. */

@@ -45,6 +45,9 @@ import { labelOptional } from './sharedJudgments';
 import { joinStreamedQueries, partialWeights, type StreamQueriesTable } from './streamTables';
 import { absentQueries, JoinTotals, joinedNotes, scoreAbsentQueries, type StreamJudgments } from './streamJudgments';
 
+/** The most queries the per-query table makes room for ahead (about 0.8 GB of columns); past it the table grows by doubling. */
+const RESERVED_QUERIES = 1 << 22;
+
 /** Bytes per block: large enough that a block's fixed costs vanish, small enough that two in flight stay small. */
 export const DEFAULT_BLOCK_BYTES = 32 << 20;
 
@@ -158,6 +161,7 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
     const partialMeans = options.onPartial ? new PartialMeans(metrics.map((m) => m.key), weightColumn !== undefined || tableWeights !== undefined) : undefined;
     let weightSoFar: Float64Array<ArrayBufferLike> = new Float64Array(0);
     let open: OpenEdge | undefined;
+    let sized = false;
     const closeOpen = () => {
       if (open) edges.push(open);
       open = undefined;
@@ -213,6 +217,12 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
       } catch (err) {
         if (err instanceof QueryReappeared) return ungrouped(err.query, err.line);
         throw err;
+      }
+      // After the first block with queries, room for as many queries as the whole file holds at its density (a tenth more).
+      if (!sized && table.size > 0) {
+        // At most RESERVED_QUERIES: a dense first block would otherwise reserve for queries that never come.
+        table.reserve(Math.min(RESERVED_QUERIES, (table.size / (bounds[k + 1]! - bounds[0]!)) * (stamp.size - bounds[0]!) * 1.1));
+        sized = true;
       }
       state.lineOffset += result.lines;
       state.rows += result.rowCount;
