@@ -19,6 +19,7 @@ import type { MissingQueriesPolicy, RankedDump } from '../../extension/engine/mo
 import { formatReport } from '../../extension/engine/report/index';
 import { streamEvaluate, type StreamPartial } from '../../extension/engine/stream/streamEvaluate';
 import { streamJudgments } from '../../extension/engine/stream/streamJudgments';
+import { partialWeights } from '../../extension/engine/stream/streamTables';
 import { joinTables, withSideTables } from '../../extension/engine/tables/join';
 import { queryFacts, streamedQueryFacts } from '../../extension/engine/tables/queryFacts';
 import { readTextTable } from '../../extension/engine/tables/readTable';
@@ -163,6 +164,15 @@ describe('a queries table joined to a streamed dump', () => {
       expect(inMemory).toContain(`${name}.queries.tsv`);
       await expect(streamOrRead(file, {}, METRICS, DEFAULT_CONVENTIONS, { reading: 'stream', queriesTable: { path: queries } })).rejects.toThrow(inMemory);
     }
+  });
+
+  it('the means shown while streaming take a named table\'s weights, leaving out weights the join will refuse', async () => {
+    const table = await readTextTable(tmp.file('partial.queries.tsv', 'query\tweight\na\t2\nb\t-1\nc\theavy\nd\t\ne\tInfinity\n'));
+    const weights = partialWeights({ table })!;
+    expect([...weights]).toEqual([['a', 2], ['b', NaN], ['c', NaN], ['d', NaN], ['e', NaN]]);
+    // A found table may belong to other data, and a table without weights weighs nothing: no partial weights.
+    expect(partialWeights({ table, found: true })).toBeUndefined();
+    expect(partialWeights({ table: await readTextTable(tmp.file('plain.queries.tsv', 'query\ttext\na\twords\n')) })).toBeUndefined();
   });
 
   it('the join itself is the in-memory one: joinTables over the dump gives the same facts', async () => {

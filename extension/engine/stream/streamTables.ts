@@ -77,6 +77,10 @@ export function partialWeights(queriesTable: StreamQueriesTable | undefined): Ma
   const roles = resolveSideColumns(table, 'queries');
   if (roles.weight < 0) return undefined;
   const weights = new Map<string, number>();
-  for (let r = 0; r < table.rowCount; r++) weights.set(table.cells[roles.key]![r]!, Number(table.cells[roles.weight]![r]!.trim() || NaN));
+  for (let r = 0; r < table.rowCount; r++) {
+    // A weight the join will refuse (negative, not a number) weighs nothing in the means shown meanwhile.
+    const w = Number(table.cells[roles.weight]![r]!.trim() || NaN);
+    weights.set(table.cells[roles.key]![r]!, Number.isFinite(w) && w >= 0 ? w : NaN);
+  }
   return weights;
 }
