@@ -1,39 +1,35 @@
 /**
- * Large pages for big inputs. A large read fills a gigabyte of fresh memory (the row columns, the
- * item bytes), and with 4 KB pages the kernel takes one page fault per 4 KB of it: measured on the
- * 10M-row TSV (632 MB), 239,000 minor faults and 5.3 s of user time; with glibc's malloc asking for
- * transparent huge pages (the tunable below, glibc 2.35 or later; Node's large ArrayBuffers come from
- * malloc) 52,000 faults and 3.7 s. A tunable is read when the process starts, so the command line
- * runs itself again once, with the tunable set, when an input file is at least LARGE_INPUT_BYTES.
- * Standard input, output and error are handed over as they are and the exit code comes back.
+ * Large pages for malloc, on request. A large read fills up to a gigabyte of fresh memory, and with
+ * glibc's malloc asking for transparent huge pages (the tunable below, glibc 2.35 or later) the kernel
+ * faults it in 2 MB pages instead of 4 KB ones. A tunable is read when the process starts, so the
+ * command line runs itself again once with it set.
  *
- * GAINLINE_LARGE_PAGES=0 never re-runs; =1 re-runs whatever the size (for tests); unset: by size.
+ * Off unless GAINLINE_LARGE_PAGES=1: measured on the 10M-row distinct-id TSV (632 MB) on the 2-core
+ * machine, interleaved, `eval --format json`: with huge pages 2.84–3.37 s wall, 0.83–1.83 s system
+ * time (74,000 minor faults); without 2.49–2.53 s, 0.45–0.58 s (245,000). User time was the same
+ * (3.8–4.1 s), so the fewer faults saved nothing while the kernel spent more system time handing out
+ * huge pages, and more still the first time a process asks for them after a while. On the 100M-row
+ * stream: 22.3–27.8 s with, 22.8–23.6 s without. (An earlier reader measured 5.3 s of user time
+ * falling to 3.7 s with them; today's gains nothing.)
+ *
  * The marker variable says a process is the re-run one, so it never runs itself again.
  */
 import { spawn } from 'node:child_process';
-import { statSync } from 'node:fs';
-import { resolve } from 'node:path';
 
 export const LARGE_PAGES_VARIABLE = 'GAINLINE_LARGE_PAGES';
 /** Set in the re-run process (value: the tunable it was given). */
 export const LARGE_PAGES_MARKER = 'GAINLINE_LARGE_PAGES_RUN';
 const TUNABLE = 'glibc.malloc.hugetlb=1';
-/** Below this the re-run's start (about 0.1 s) costs more than the faults it saves. */
-export const LARGE_INPUT_BYTES = 128 << 20;
-
 type Env = Readonly<Record<string, string | undefined>>;
 
 /**
- * The environment to run again with, or undefined to run here: on Linux only, not when already re-run,
- * not when switched off or when GLIBC_TUNABLES already says something about hugetlb.
+ * The environment to run again with, or undefined to run here: on Linux only when GAINLINE_LARGE_PAGES=1,
+ * not when already re-run and not when GLIBC_TUNABLES already says something about hugetlb.
  */
-export function largePagesEnv(argv: readonly string[], env: Env, cwd: string, platform: string = process.platform,
-  sizeOf: (path: string) => number = fileSize): Record<string, string> | undefined {
-  const setting = env[LARGE_PAGES_VARIABLE];
-  if (platform !== 'linux' || env[LARGE_PAGES_MARKER] !== undefined || setting === '0') return undefined;
+export function largePagesEnv(env: Env, platform: string = process.platform): Record<string, string> | undefined {
+  if (platform !== 'linux' || env[LARGE_PAGES_MARKER] !== undefined || env[LARGE_PAGES_VARIABLE] !== '1') return undefined;
   const tunables = env.GLIBC_TUNABLES ?? '';
   if (tunables.includes('glibc.malloc.hugetlb')) return undefined;
-  if (setting !== '1' && !argv.some((arg) => !arg.startsWith('-') && sizeOf(resolve(cwd, arg)) >= LARGE_INPUT_BYTES)) return undefined;
   const next: Record<string, string> = {};
   for (const [key, value] of Object.entries(env)) if (value !== undefined) next[key] = value;
   next.GLIBC_TUNABLES = tunables === '' ? TUNABLE : `${tunables}:${TUNABLE}`;
@@ -44,16 +40,6 @@ export function largePagesEnv(argv: readonly string[], env: Env, cwd: string, pl
 /** True in a process started by runWithLargePages. */
 export function largePagesOn(env: Env = process.env): boolean {
   return env[LARGE_PAGES_MARKER] !== undefined;
-}
-
-/** Size of a regular file, 0 for anything else (an option's value, a folder, a missing path). */
-function fileSize(path: string): number {
-  try {
-    const s = statSync(path);
-    return s.isFile() ? s.size : 0;
-  } catch {
-    return 0;
-  }
 }
 
 /**

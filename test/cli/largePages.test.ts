@@ -1,6 +1,6 @@
 import { spawnSync } from 'node:child_process';
 import { describe, expect, it } from 'vitest';
-import { LARGE_INPUT_BYTES, LARGE_PAGES_MARKER, largePagesEnv } from '../../extension/cli/largePages';
+import { LARGE_PAGES_MARKER, largePagesEnv } from '../../extension/cli/largePages';
 import { CLI, fixtureDir } from './support/runCli';
 
 const SMALL = [
@@ -11,32 +11,24 @@ const SMALL = [
   'wood screws 4x40,SKU-200002,0,0.3',
 ].join('\n') + '\n';
 
-const sizes = (big: number) => (path: string) => (path.endsWith('big.tsv') ? big : 10);
-
 describe('largePagesEnv: when the command line runs itself again with large pages', () => {
-  const argv = ['eval', 'big.tsv', '--format', 'json'];
-
-  it('re-runs for an input of at least LARGE_INPUT_BYTES, adding the tunable and the marker', () => {
-    const env = largePagesEnv(argv, { PATH: '/bin' }, '/data', 'linux', sizes(LARGE_INPUT_BYTES));
-    expect(env).toEqual({ PATH: '/bin', GLIBC_TUNABLES: 'glibc.malloc.hugetlb=1', [LARGE_PAGES_MARKER]: 'glibc.malloc.hugetlb=1' });
+  it('re-runs only when GAINLINE_LARGE_PAGES=1, adding the tunable and the marker', () => {
+    const env = largePagesEnv({ PATH: '/bin', GAINLINE_LARGE_PAGES: '1' }, 'linux');
+    expect(env).toEqual({ PATH: '/bin', GAINLINE_LARGE_PAGES: '1', GLIBC_TUNABLES: 'glibc.malloc.hugetlb=1', [LARGE_PAGES_MARKER]: 'glibc.malloc.hugetlb=1' });
+    expect(largePagesEnv({ PATH: '/bin' }, 'linux')).toBeUndefined();
+    expect(largePagesEnv({ GAINLINE_LARGE_PAGES: '0' }, 'linux')).toBeUndefined();
   });
 
   it('keeps tunables already set, appended with a colon (glibc tunables syntax)', () => {
-    const env = largePagesEnv(argv, { GLIBC_TUNABLES: 'glibc.malloc.arena_max=2' }, '/data', 'linux', sizes(LARGE_INPUT_BYTES));
+    const env = largePagesEnv({ GAINLINE_LARGE_PAGES: '1', GLIBC_TUNABLES: 'glibc.malloc.arena_max=2' }, 'linux');
     expect(env?.GLIBC_TUNABLES).toBe('glibc.malloc.arena_max=2:glibc.malloc.hugetlb=1');
   });
 
-  it('runs here below the size, off Linux, once re-run, when switched off, or when hugetlb is already chosen', () => {
-    expect(largePagesEnv(argv, {}, '/data', 'linux', sizes(LARGE_INPUT_BYTES - 1))).toBeUndefined();
-    expect(largePagesEnv(argv, {}, '/data', 'darwin', sizes(LARGE_INPUT_BYTES))).toBeUndefined();
-    expect(largePagesEnv(argv, { [LARGE_PAGES_MARKER]: 'x' }, '/data', 'linux', sizes(LARGE_INPUT_BYTES))).toBeUndefined();
-    expect(largePagesEnv(argv, { GAINLINE_LARGE_PAGES: '0' }, '/data', 'linux', sizes(LARGE_INPUT_BYTES))).toBeUndefined();
-    expect(largePagesEnv(argv, { GLIBC_TUNABLES: 'glibc.malloc.hugetlb=0' }, '/data', 'linux', sizes(LARGE_INPUT_BYTES))).toBeUndefined();
-  });
-
-  it('re-runs whatever the size when asked to, and looks at positional arguments only', () => {
-    expect(largePagesEnv(['eval', 'small.csv'], { GAINLINE_LARGE_PAGES: '1' }, '/data', 'linux', sizes(0))).toBeDefined();
-    expect(largePagesEnv(['eval', '--big.tsv'], {}, '/data', 'linux', sizes(LARGE_INPUT_BYTES))).toBeUndefined();
+  it('runs here off Linux, once re-run, or when hugetlb is already chosen', () => {
+    const on = { GAINLINE_LARGE_PAGES: '1' };
+    expect(largePagesEnv(on, 'darwin')).toBeUndefined();
+    expect(largePagesEnv({ ...on, [LARGE_PAGES_MARKER]: 'x' }, 'linux')).toBeUndefined();
+    expect(largePagesEnv({ ...on, GLIBC_TUNABLES: 'glibc.malloc.hugetlb=0' }, 'linux')).toBeUndefined();
   });
 });
 
