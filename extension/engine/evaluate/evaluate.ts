@@ -174,7 +174,7 @@ export function addTally(into: RangeTally, from: RangeTally): void {
 }
 
 /** The dump columns scoring reads (a worker thread gets only these). */
-export type ScoredColumns = Pick<RankedDump, 'item' | 'label' | 'score' | 'unretrieved'>;
+export type ScoredColumns = Pick<RankedDump, 'itemKey' | 'label' | 'score' | 'unretrieved'> & { readonly item?: Uint32Array };
 
 /** Scores queries [from, to) into `perQuery` (indexed by query id); progress is the fraction of this range. */
 export function scoreQueryRange(setup: EvaluationSetup, dump: RankedDump | ScoredColumns, from: number, to: number,

@@ -106,35 +106,52 @@ export class QueryRanking {
     for (let i = 0; i <= size; i++) this.singletons[i] = i;
   }
 
-  /** Loads rows[from..to) (one query's rows in file order). */
+  /**
+   * Loads rows[from..to) (one query's rows in file order). A repeated item keeps its first row. With
+   * query-scoped keys (`itemKey`: a row's key is the first row of its query naming the same item) a row
+   * is a repeat exactly when its key is not itself, so no set of the query's items is needed.
+   */
   load(dump: Pick<RankedDump, 'item' | 'itemKey' | 'score' | 'label'>, rows: Uint32Array, from: number, to: number, seen: SeenItems): void {
     this.ensure(to - from);
     this.unretrieved = 0;
-    const stamp = seen.next(to - from);
-    const { keys, stamps, mask, shift } = seen;
-    // Repeated items are found within the query, so query-scoped keys do (and spare dump-wide ids).
-    const items = dump.itemKey ?? dump.item;
     const scores = dump.score;
     const labels = dump.label;
     const key = this.key;
     const localRow = this.localRow;
     const localGrade = this.localGrade;
     const idx = this.idx;
+    const firstRows = dump.itemKey;
     let n = 0;
-    for (let p = from; p < to; p++) {
-      const r = rows[p]!;
-      const item = items[r]! | 0;
-      let slot = Math.imul(item, SPREAD) >>> shift;
-      while (stamps[slot] === stamp && keys[slot] !== item) slot = (slot + 1) & mask;
-      if (stamps[slot] === stamp) continue;
-      stamps[slot] = stamp;
-      keys[slot] = item;
-      const s = scores[r]!;
-      key[n] = s === s ? s : -Infinity;
-      localRow[n] = r;
-      localGrade[n] = labels[r]!;
-      idx[n] = n;
-      n++;
+    if (firstRows !== undefined) {
+      for (let p = from; p < to; p++) {
+        const r = rows[p]!;
+        if (firstRows[r] !== r) continue;
+        const s = scores[r]!;
+        key[n] = s === s ? s : -Infinity;
+        localRow[n] = r;
+        localGrade[n] = labels[r]!;
+        idx[n] = n;
+        n++;
+      }
+    } else {
+      const stamp = seen.next(to - from);
+      const { keys, stamps, mask, shift } = seen;
+      const items = dump.item;
+      for (let p = from; p < to; p++) {
+        const r = rows[p]!;
+        const item = items[r]! | 0;
+        let slot = Math.imul(item, SPREAD) >>> shift;
+        while (stamps[slot] === stamp && keys[slot] !== item) slot = (slot + 1) & mask;
+        if (stamps[slot] === stamp) continue;
+        stamps[slot] = stamp;
+        keys[slot] = item;
+        const s = scores[r]!;
+        key[n] = s === s ? s : -Infinity;
+        localRow[n] = r;
+        localGrade[n] = labels[r]!;
+        idx[n] = n;
+        n++;
+      }
     }
     this.n = n;
     this.duplicates = to - from - n;

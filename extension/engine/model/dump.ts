@@ -102,9 +102,10 @@ export interface RankedDump {
   /** Interned item id per row (index into `items`): equal ids are equal items anywhere in the dump. */
   readonly item: Uint32Array;
   /**
-   * Per row, a key equal for two rows of one query exactly when they name the same item (the key says
-   * nothing across queries). Scoring needs only this; readers that do not intern items dump-wide give it
-   * and make `item` and `items` only when they are read. Absent: `item` serves.
+   * Per row, the first row of its query (in file order) that names the same item: equal for two rows of
+   * one query exactly when they name the same item, and a row's own index unless it repeats an item (the
+   * key says nothing across queries). Scoring needs only this; readers that do not intern items dump-wide
+   * give it and make `item` and `items` only when they are read. Absent: `item` serves.
    */
   readonly itemKey?: Uint32Array;
   /** Each row's item as written, when the reader kept the bytes per row: read through `itemOfRow`. */

@@ -118,7 +118,8 @@ async function scoreWithWorkers(dump: RankedDump, metrics: readonly MetricSpec[]
   // The side table goes without its item pool: scoring reads only the grades (and a pool would be copied).
   const side = dump.unretrieved && { start: dump.unretrieved.start, grade: dump.unretrieved.grade, item: dump.unretrieved.item, line: dump.unretrieved.line,
     firstAbsentQuery: dump.unretrieved.firstAbsentQuery };
-  const columns: ScoredColumns = { item: dump.itemKey ?? dump.item, label: dump.label, score: dump.score, ...(side ? { unretrieved: side } : {}) };
+  const items = dump.itemKey !== undefined ? { itemKey: dump.itemKey } : { item: dump.item };
+  const columns: ScoredColumns = { ...items, label: dump.label, score: dump.score, ...(side ? { unretrieved: side } : {}) };
   const output = options.perChunk;
   const work: ChunkWork | undefined = output && { renderer: output.renderer, params: output.params };
   const task: ScoreRangeTask = { setup, columns, bounds, next, perQuery, sensitivity: recorded, ...(work ? { perChunk: work } : {}) };
