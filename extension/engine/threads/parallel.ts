@@ -1,25 +1,23 @@
 /**
  * Reads a large quote-free CSV/TSV file on several threads: the file is cut at newlines into a few
  * byte ranges per thread, this thread and the workers claim ranges in turn and parse each into its own
- * columns and pools, and the ranges are merged in file order. Query and segment ids are re-interned range by range in
- * local first-seen order, which reproduces exactly the ids a single pass would give; item bytes are kept
- * per row and simply follow one another. Any quote byte in the file
- * makes the split unsafe; the caller then falls back to one thread.
+ * columns and pools, and the ranges are put together in file order (mergeRanges.ts). Any quote byte
+ * in the file makes the split unsafe; the caller then falls back to one thread.
  */
 import { promises as fsp } from 'node:fs';
 import { availableParallelism } from 'node:os';
 import { engineSettings } from '../config';
 import { CancelledError, InputError } from '../errors';
-import { BytePool, hashBytes, type BytePoolState } from '../model/bytePool';
 import type { RankedDump } from '../model/dump';
-import { isGrouped, RowTexts } from '../model/rowTexts';
 import { addSummaries } from '../model/rowSummary';
-import { ROW_COLUMN_NAMES, ROW_COLUMNS, RowColumns, rowArray, rowArrays, sharedViews, type RowArrays, type RowColumnName, type SharedColumns } from '../readers/columns';
+import { ROW_COLUMN_NAMES, ROW_COLUMNS, sharedViews, type RowColumnName, type RowColumns, type SharedColumns } from '../readers/columns';
 import { parseHeaderLine } from '../readers/headerLine';
 import type { ReadOptions } from '../readers/readOptions';
 import { parseClaimedRanges, type ClaimedRanges, type RangeResult, type RangeTask } from '../readers/rangeParse';
 import { checkUnchanged, statStamp, throwIfCancelled } from '../readers/source';
+import type { CompactTask } from './compactRanges';
 import { idleKeptThreads, leasePool, type PoolLease } from './keptPools';
+import { compactShared, itemKeysOfRanges, merge, type RangeRows } from './mergeRanges';
 
 /**
  * Below this size one thread is faster: a worker starts cold, and the merge re-interns the later
@@ -45,6 +43,15 @@ export async function readParallelDelimited(path: string, format: 'csv' | 'tsv',
   options: ReadOptions): Promise<RankedDump | undefined> {
   const lease = leasePool<ParseRequests>('parseWorker', Math.max(1, threads - 1));
   if (lease === undefined) return undefined;
+  try {
+    return await readInRanges(lease, path, format, delimiter, threads, options);
+  } finally {
+    lease.done();
+  }
+}
+
+async function readInRanges(lease: PoolLease<ParseRequests>, path: string, format: 'csv' | 'tsv', delimiter: number, threads: number,
+  options: ReadOptions): Promise<RankedDump | undefined> {
   const stamp = await statStamp(path);
   const header = await readHeader(path, delimiter, options);
   if (header === undefined) return undefined;
@@ -64,13 +71,16 @@ export async function readParallelDelimited(path: string, format: 'csv' | 'tsv',
     const e = results[failed] as Extract<RangeResult, { kind: 'error' }>;
     throw new InputError(e.expected, e.file, e.line === undefined ? undefined : e.line + lineOffsets[failed]!, e.found);
   }
-  const parts = results.splice(0) as Extract<RangeResult, { kind: 'rows' }>[];
+  const parts = results.splice(0) as RangeRows[];
   const gaps = addSummaries(parts.map((p) => p.gaps));
-  const rows = parts.every((p) => p.inShared)
-    ? compactShared(parts, slices, lineOffsets, header.parser.columns!)
-    : merge(parts.map((p, k) => (p.inShared ? { ...p, ...sharedViews(slices[k]!, p.count) } : p)), lineOffsets, header.parser.columns!);
+  const helper = lease.pool.idle > 0 ? (task: CompactTask) => lease.pool.request('compactColumns', task, { signal: options.signal }).then(() => undefined) : undefined;
+  let rows: RowColumns;
+  if (parts.every((p) => p.inShared)) rows = await compactShared(parts, slices, lineOffsets, header.parser.columns!, helper);
+  else {
+    rows = merge(parts.map((p, k) => (p.inShared ? { ...p, ...sharedViews(slices[k]!, p.count) } : p)), lineOffsets, header.parser.columns!);
+    itemKeysOfRanges(rows, parts);
+  }
   if (rows.count === 0) throw new InputError('at least one data row after the header', path, 2);
-  itemKeysOfRanges(rows, parts);
   await checkUnchanged(path, stamp);
   rows.setGaps(gaps);
   options.onProgress?.(1);
@@ -108,92 +118,6 @@ function sharedSlices(bounds: number[], bytesPerRow: number[], segments: number)
     firstRow += rows;
     return slice;
   });
-}
-
-/**
- * Moves every range down to follow the previous one inside the shared buffers (never overwriting
- * rows not yet moved, since each slice starts at or after the rows before it end), remapping ids
- * and shifting lines on the way. The dump keeps views of the shared buffers: copying them out would
- * double the peak memory of a large read. (Posting such a column to another thread shares it.)
- */
-function compactShared(parts: Extract<RangeResult, { kind: 'rows' }>[], slices: SharedColumns[], lineOffsets: number[], headerRows: RowColumns): RowColumns {
-  const rows = new RowColumns(headerRows.segmentNames, 16);
-  rows.notes.messages.push(...headerRows.notes.messages);
-  const total = parts.reduce((sum, p) => sum + p.count, 0);
-  const maps = remapPools(rows, parts);
-  const buffers = slices[0]!;
-  const moveIds = (buffer: SharedArrayBuffer, mapOf: (k: number) => Uint32Array | undefined, shift: (k: number) => number): Uint32Array => {
-    const column = new Uint32Array(buffer);
-    let to = 0;
-    parts.forEach((p, k) => {
-      const from = slices[k]!.firstRow;
-      const map = mapOf(k);
-      const add = shift(k);
-      if (map !== undefined) {
-        // The first range's ids are final already (its pools were adopted as they are).
-        if (k > 0) for (let i = 0; i < p.count; i++) column[to + i] = map[column[from + i]!]!;
-      } else if (add !== 0 || from !== to) for (let i = 0; i < p.count; i++) column[to + i] = column[from + i]! + add;
-      to += p.count;
-    });
-    return column.subarray(0, total);
-  };
-  const moveRows = <K extends RowColumnName>(name: K): RowArrays[K] => {
-    const column = rowArray(name, buffers[name].byteLength / ROW_COLUMNS[name].array.BYTES_PER_ELEMENT, buffers[name]);
-    let to = 0;
-    parts.forEach((p, k) => {
-      if (to !== slices[k]!.firstRow) column.copyWithin(to, slices[k]!.firstRow, slices[k]!.firstRow + p.count);
-      to += p.count;
-    });
-    return column.subarray(0, total) as RowArrays[K];
-  };
-  const merged = rowArrays((name) => {
-    const how = ROW_COLUMNS[name].merge;
-    if (how === 'none') return moveRows(name);
-    if (how === 'lines') return moveIds(buffers[name], () => undefined, (k) => lineOffsets[k]!) as never;
-    return moveIds(buffers[name], (k) => maps[how][k], () => 0) as never;
-  });
-  Object.assign(rows, merged);
-  rows.segmentIds = buffers.segmentIds.map((b, s) => moveIds(b, (k) => maps.segments[k]![s], () => 0));
-  rows.count = total;
-  rows.capacity = total;
-  return rows;
-}
-
-/**
- * The ranges' query-scoped item keys as the dump's: when every range keyed its rows and the merged file
- * is grouped by query, each range's keys are shifted by the rows before it, and the query cut by each
- * range's end is keyed again as a whole (its rows after the cut were keyed apart from those before).
- * Otherwise the item column gets its hashes back and `finish` keys the whole dump as one thread does.
- */
-function itemKeysOfRanges(rows: RowColumns, parts: readonly Extract<RangeResult, { kind: 'rows' }>[]): void {
-  const texts = rows.itemTexts!;
-  const item = rows.item;
-  const query = rows.query;
-  if (!parts.every((p) => p.itemKeys) || !isGrouped(query, rows.count)) {
-    texts.hashRows(item);
-    return;
-  }
-  const starts: number[] = [];
-  let first = 0;
-  for (const p of parts) {
-    starts.push(first);
-    if (first > 0) for (let i = first; i < first + p.count; i++) item[i] = item[i]! + first;
-    first += p.count;
-  }
-  // A range whose first row continues the query of the row before: that query is keyed again as a whole
-  // (once, however many ranges it spans).
-  let rekeyedTo = 0;
-  for (const at of starts) {
-    if (at === 0 || at >= rows.count || at < rekeyedTo || query[at - 1] !== query[at]) continue;
-    const q = query[at]!;
-    let from = at - 1;
-    while (from > 0 && query[from - 1] === q) from--;
-    let to = at;
-    while (to < rows.count && query[to] === q) to++;
-    texts.rekeyRows(item, from, to);
-    rekeyedTo = to;
-  }
-  rows.itemKeysMade = true;
 }
 
 /**
@@ -252,6 +176,8 @@ async function splitPoints(path: string, from: number, size: number, parts: numb
 /** What a parse thread answers (parseWorker.ts): the ranges it claimed, each parsed into its own columns and pools. */
 export type ParseRequests = {
   parseRanges: { params: { tasks: readonly RangeTask[]; next: Int32Array }; result: ClaimedRanges };
+  /** A share of the columns of a read's shared compaction (mergeRanges.ts). */
+  compactColumns: { params: CompactTask; result: true };
 };
 
 /**
@@ -259,7 +185,7 @@ export type ParseRequests = {
  * would otherwise wait idle, and a worker takes about 0.1 s to start: this thread claims the first
  * ranges meanwhile. Results come back in file order (a quoted range stops the claims: holes are left).
  */
-async function parseRanges({ pool, workers, done: release }: PoolLease<ParseRequests>, tasks: RangeTask[], size: number,
+async function parseRanges({ pool, workers }: PoolLease<ParseRequests>, tasks: RangeTask[], size: number,
   options: ReadOptions): Promise<RangeResult[]> {
   throwIfCancelled(options.signal);
   const done = new Array<number>(workers + 1).fill(0);
@@ -286,114 +212,5 @@ async function parseRanges({ pool, workers, done: release }: PoolLease<ParseRequ
     stopped = true;
     // Claims end too, so a worker still parsing takes no further range before the pool stops it.
     Atomics.store(next, 0, tasks.length);
-    release();
   }
-}
-
-/** Merges ranges column by column, dropping each range's copy as soon as it is merged to bound peak memory. */
-function merge(parts: Extract<RangeResult, { kind: 'rows' }>[], lineOffsets: number[], headerRows: RowColumns): RowColumns {
-  const rows = new RowColumns(headerRows.segmentNames, 16);
-  rows.notes.messages.push(...headerRows.notes.messages);
-  const total = parts.reduce((sum, p) => sum + p.count, 0);
-  const { queries: queryMaps, segments: segmentMaps } = remapPools(rows, parts);
-  const columns = parts as unknown as Record<string, unknown>[];
-  const take = <T>(key: string): T[] => columns.map((c) => {
-    const value = c[key] as T;
-    c[key] = undefined;
-    return value;
-  });
-  const merged = rowArrays((name) => {
-    const how = ROW_COLUMNS[name].merge;
-    const ranges = take<RowArrays[typeof name]>(name);
-    if (how === 'none') return concat(ranges, rowArray(name, total));
-    if (how === 'lines') return shiftLines(ranges as Uint32Array[], lineOffsets, total) as never;
-    return concatMapped(ranges as Uint32Array[], queryMaps, total) as never;
-  });
-  Object.assign(rows, merged);
-  const segmentColumns = take<Uint32Array[]>('segmentIds');
-  rows.segmentIds = headerRows.segmentNames.map((_, k) =>
-    concatMapped(segmentColumns.map((ids) => ids[k]!), segmentMaps.map((m) => m[k]!), total));
-  rows.count = total;
-  rows.capacity = total;
-  return rows;
-}
-
-/**
- * The first range's pools become the result's pools as they are (its ids are already final); later
- * ranges are interned into them range by range, each in its own first-seen order, which gives
- * exactly the ids of a single pass.
- */
-function remapPools(rows: RowColumns, parts: Extract<RangeResult, { kind: 'rows' }>[]) {
-  // Batched like the row parser's item lookups: warm the slots of 64 values, then intern them.
-  const starts = new Int32Array(64);
-  const ends = new Int32Array(64);
-  const hashes = new Int32Array(64);
-  const records = new Int32Array(64);
-  const remap = (pool: BytePool, state: BytePoolState): Uint32Array => {
-    const ids = new Uint32Array(state.count);
-    let done = 0;
-    let n = 0;
-    const flush = () => {
-      pool.warm(hashes, n, records);
-      for (let b = 0; b < n; b++) ids[done++] = pool.internHashed(state.arena, starts[b]!, ends[b]!, hashes[b]!);
-      n = 0;
-    };
-    BytePool.forEachInState(state, (arena, start, end) => {
-      starts[n] = start;
-      ends[n] = end;
-      hashes[n++] = hashBytes(arena, start, end);
-      if (n === 64) flush();
-    });
-    flush();
-    return ids;
-  };
-  // A plain loop: Uint32Array.from with a map callback takes about ten times as long for a million ids.
-  const identity = (n: number) => {
-    const ids = new Uint32Array(n);
-    for (let i = 0; i < n; i++) ids[i] = i;
-    return ids;
-  };
-  const first = parts[0]!;
-  rows.queries = BytePool.fromState(first.queries);
-  // Every later range's queries may be new (a grouped file's are, but for the query cut by each range's start).
-  rows.queries.reserve(parts.reduce((n, p) => n + p.queries.count, 0), parts.slice(1).reduce((n, p) => n + p.queries.arenaUsed, 0));
-  // Item bytes stay per row (model/rowTexts.ts): the ranges' records follow one another, nothing to re-intern.
-  rows.itemTexts = RowTexts.concat(parts.map((p) => p.itemTexts));
-  rows.segmentPools = first.segmentPools.map((s) => BytePool.fromState(s));
-  return {
-    queries: parts.map((p, k) => (k === 0 ? identity(p.queries.count) : remap(rows.queries, p.queries))),
-    segments: parts.map((p, k) => p.segmentPools.map((state, s) => (k === 0 ? identity(state.count) : remap(rows.segmentPools[s]!, state)))),
-  };
-}
-
-function concatMapped(columns: Uint32Array[], maps: Uint32Array[], total: number): Uint32Array {
-  const out = new Uint32Array(total);
-  let at = 0;
-  columns.forEach((ids, k) => {
-    const map = maps[k]!;
-    for (let i = 0; i < ids.length; i++) out[at + i] = map[ids[i]!]!;
-    at += ids.length;
-  });
-  return out;
-}
-
-/** Line numbers of each range, counted from 1 at its start, shifted by the lines before it. */
-function shiftLines(ranges: Uint32Array[], lineOffsets: number[], total: number): Uint32Array {
-  const out = new Uint32Array(total);
-  let at = 0;
-  ranges.forEach((lines, k) => {
-    const shift = lineOffsets[k]!;
-    for (let i = 0; i < lines.length; i++) out[at + i] = lines[i]! + shift;
-    at += lines.length;
-  });
-  return out;
-}
-
-function concat<T extends Uint32Array<ArrayBufferLike> | Float64Array<ArrayBufferLike>>(columns: T[], out: T): T {
-  let at = 0;
-  for (const c of columns) {
-    out.set(c, at);
-    at += c.length;
-  }
-  return out;
 }

@@ -1,10 +1,12 @@
 /**
  * Entry point of a parse worker thread (bundled to dist/parseWorker.js): answers the pool's requests
  * to parse byte ranges claimed one at a time from a shared counter, reporting the bytes done as
- * progress and transferring the columns' buffers back.
+ * progress and transferring the columns' buffers back, and to move a share of the columns when the
+ * ranges are put together.
  */
 import { CancelledError } from '../errors';
 import { parseClaimedRanges, transferList } from '../readers/rangeParse';
+import { compactColumns } from './compactRanges';
 import type { ParseRequests } from './parallel';
 import { reportProgress, serveThread, transferring } from './threadServer';
 
@@ -15,5 +17,9 @@ serveThread<ParseRequests>({
       reportProgress(context, done);
     });
     return transferring(parsed, parsed.flatMap(([, result]) => transferList(result)));
+  },
+  compactColumns: async (task) => {
+    compactColumns(task);
+    return true;
   },
 });
