@@ -126,6 +126,35 @@ describe('the record kernel', () => {
     }
   });
 
+  // The kernel's rows are summarised as they are handed over, other rows from the columns (columns.ts): one
+  // extreme grade anywhere, in a call of any size, must still reach the notes, as must every gap.
+  it.each([[1, 16384], [2, 37], [3, 1]])('seed %i: gaps and grade extremes as a full scan finds them (%i rows per kernel call)', async (seed, rowsPerCall) => {
+    const rnd = seededRandom(seed);
+    const rows = 3000;
+    const high = Math.floor(rnd() * rows);
+    const low = Math.floor(rnd() * rows);
+    let unjudged = 0;
+    let missing = 0;
+    const lines = ['query,item,label,score'];
+    for (let r = 0; r < rows; r++) {
+      const gap = r !== high && r !== low && rnd() < 0.02;
+      const noScore = rnd() < 0.02;
+      if (gap) unjudged++;
+      if (noScore) missing++;
+      const label = r === high ? '9' : r === low ? '-2' : gap ? '' : '1';
+      lines.push(`drill ${Math.floor(r / 50)},sku-${r},${label},${noScore ? 'NaN' : (rnd() * 4).toFixed(2)}`);
+    }
+    const path = tmp.file(`kernel-gaps-${seed}.csv`, lines.join('\n') + '\n');
+    configureEngine({ tuning: { recordKernel: true, kernelRowsPerCall: rowsPerCall, plainChunkBytes: 7001 } });
+    for (const threads of [1, 3]) {
+      const dump = await readDump(path, { threads });
+      expect(dump.notes.gradeRange).toEqual({ lowest: -2, highest: 9 });
+      expect(dump.notes.unjudgedRows).toBe(unjudged);
+      expect(dump.notes.missingScoreRows).toBe(missing);
+    }
+    expect(unjudged).toBeGreaterThan(20);
+  });
+
   it('a bad number is reported with its line, as without the kernel', async () => {
     const path = tmp.file('kernel-bad.csv', 'query,item,label,score\nq,a,1,0.5\nq,b,1,0.25\nq,c,x,0.1\n');
     const [reference, kernelRead] = await readBoth(path, 1);

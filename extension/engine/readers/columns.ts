@@ -4,7 +4,7 @@
 import { engineActivity } from '../config';
 import { BytePool } from '../model/bytePool';
 import { RowTexts } from '../model/rowTexts';
-import { gradeRangeOf, summariseRows, type RowSummary } from '../model/rowSummary';
+import { addSummaries, gradeRangeOf, summariseRows, type RowSummary } from '../model/rowSummary';
 import type { DumpFormat, FileStamp, RankedDump, ReaderNotes, SegmentColumn } from '../model/dump';
 import { emptyNotes } from '../model/dump';
 
@@ -86,6 +86,9 @@ export class RowColumns implements RowArrays {
   itemKeysMade = false;
   segmentPools: BytePool[];
   readonly notes: ReaderNotes = emptyNotes();
+  /** Gaps of rows [0, summarisedTo), kept as rows are appended (summariseAppending). */
+  private summary = addSummaries([]);
+  private summarisedTo = 0;
 
   constructor(
     readonly segmentNames: readonly string[] = [],
@@ -143,9 +146,33 @@ export class RowColumns implements RowArrays {
     this.offset[row] = offset;
   }
 
+  /**
+   * Adds `count` rows about to be appended at `count` to the summary of the rows so far, from `label` and
+   * `score` as the record kernel hands them over (still in the CPU's caches: a pass over the columns at
+   * the end read 16 bytes a row from memory again). Rows appended since the last call by other paths
+   * are summarised from the columns first, so the summary always covers rows [0, summarisedTo).
+   */
+  summariseAppending(label: Float64Array, score: Float64Array, count: number): void {
+    this.catchUpSummary();
+    this.summary = addSummaries([this.summary, summariseRows(label, score, 0, count)]);
+    this.summarisedTo = this.count + count;
+  }
+
+  /** Unjudged and missing-score rows and the grade extremes of every row appended. */
+  gaps(): RowSummary {
+    this.catchUpSummary();
+    return this.summary;
+  }
+
   /** Counts NaN labels and scores and finds the grade range, into the notes (done once at the end, not per row). */
   countGaps(): void {
-    this.setGaps(summariseRows(this.label, this.score, 0, this.count));
+    this.setGaps(this.gaps());
+  }
+
+  private catchUpSummary(): void {
+    if (this.summarisedTo >= this.count) return;
+    this.summary = addSummaries([this.summary, summariseRows(this.label, this.score, this.summarisedTo, this.count)]);
+    this.summarisedTo = this.count;
   }
 
   /** Notes from row summaries already taken (parse workers summarise their own ranges). */

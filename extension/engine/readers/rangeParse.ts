@@ -7,7 +7,7 @@
 import { InputError } from '../errors';
 import type { BytePoolState } from '../model/bytePool';
 import type { RowTextsState } from '../model/rowTexts';
-import { summariseRows, type RowSummary } from '../model/rowSummary';
+import type { RowSummary } from '../model/rowSummary';
 import { ROW_COLUMN_NAMES, rowArray, rowArrays, type RowArrays, type SharedColumns } from './columns';
 import { indexOfByte } from './byteSearch';
 import { DelimitedParser } from './delimited';
@@ -82,7 +82,7 @@ export async function parseRange(task: RangeTask, onBytes: (done: number) => voi
     queries: rows.queries.exportState(),
     itemTexts: rows.itemTexts!.exportState(),
     segmentPools: rows.segmentPools.map((p) => p.exportState()),
-    gaps: summariseRows(rows.label, rows.score, 0, n),
+    gaps: rows.gaps(),
   };
   const columns = rowArrays((name) => (rows.inShared ? rowArray(name, 0) : rows[name].subarray(0, n) as never));
   const segmentIds = rows.inShared ? [] : rows.segmentIds.map((ids) => ids.subarray(0, n)) as Uint32Array[];

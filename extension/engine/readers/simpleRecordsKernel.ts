@@ -196,6 +196,7 @@ export class SimpleRecordsKernel {
           state.lastSegment[k]!);
       }
     }
+    rows.summariseAppending(this.label, this.score, count);
     rows.label.set(this.label.subarray(0, count), first);
     rows.score.set(this.score.subarray(0, count), first);
     rows.line.set(this.line.subarray(0, count), first);
