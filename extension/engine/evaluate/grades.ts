@@ -2,6 +2,9 @@
  * The distinct grades of one query, ascending, with a rank per slot: what the pair counter's Fenwick trees
  * and the O(distinct grades) ideal DCG need.
  */
+/** Whole grades below this are counted by value (buildSmall). */
+const SMALL = 16;
+
 export class GradeIndex {
   distinct = 0;
   /** Distinct grades, ascending. */
@@ -15,6 +18,10 @@ export class GradeIndex {
   /** Distinct grades in first-seen order while collecting (a handful in practice). */
   private seen = new Float64Array(16);
   private seenRank = new Uint32Array(16);
+  /** Per whole grade 0 .. SMALL - 1: items, the first grade seen equal to it, its rank (buildSmall). */
+  private readonly bySmall = new Uint32Array(SMALL);
+  private readonly firstSmall = new Float64Array(SMALL);
+  private readonly rankOfSmall = new Uint32Array(SMALL);
 
   build(grade: Float64Array, n: number): void {
     if (this.sorted.length < n) {
@@ -24,7 +31,36 @@ export class GradeIndex {
       this.count = new Uint32Array(size);
       this.rank = new Uint32Array(size);
     }
-    if (!this.buildFew(grade, n)) this.buildMany(grade, n);
+    if (!this.buildSmall(grade, n) && !this.buildFew(grade, n)) this.buildMany(grade, n);
+  }
+
+  /**
+   * Every grade a whole number from 0 to SMALL - 1 (the usual scales): counted by value, so no item's
+   * grade is searched for. Each value keeps the first grade seen equal to it, as buildFew does (-0 and
+   * 0 are one grade). Gives up at the first grade of any other kind, before changing anything visible.
+   */
+  private buildSmall(grade: Float64Array, n: number): boolean {
+    const bySmall = this.bySmall;
+    bySmall.fill(0);
+    for (let i = 0; i < n; i++) {
+      const g = grade[i]!;
+      const s = g | 0;
+      if (s !== g || s < 0 || s >= SMALL) return false;
+      if (bySmall[s]++ === 0) this.firstSmall[s] = g;
+    }
+    let distinct = 0;
+    for (let s = 0; s < SMALL; s++) {
+      const c = bySmall[s]!;
+      if (c === 0) continue;
+      this.values[distinct] = this.firstSmall[s]!;
+      this.count[distinct] = c;
+      this.rankOfSmall[s] = distinct++;
+    }
+    const rank = this.rank;
+    const rankOfSmall = this.rankOfSmall;
+    for (let i = 0; i < n; i++) rank[i] = rankOfSmall[grade[i]! | 0]!;
+    this.distinct = distinct;
+    return true;
   }
 
   /**
