@@ -5,7 +5,7 @@
 import type { Comparison } from '../engine/compare/compare';
 import { segmentDeltas, segmentSignificance } from '../engine/compare/segments';
 import type { RankedDump } from '../engine/model/dump';
-import { groupByQuery } from '../engine/model/groups';
+import { groupByQuery, rowOf } from '../engine/model/groups';
 import type {
   CompareOverviewModel,
   ComparePage,
@@ -171,7 +171,7 @@ export class CompareTable {
     const segment = this.dumpA.segments.find((s) => s.name === column)!;
     const groups = groupByQuery(this.dumpA);
     const queryA = this.comparison.perQuery.queryA;
-    cached = Uint32Array.from(queryA, (q) => segment.ofRow[groups.rowsOfQuery[groups.start[q]!]!]!);
+    cached = Uint32Array.from(queryA, (q) => segment.ofRow[rowOf(groups, groups.start[q]!)]!);
     this.segmentOfPair.set(column, cached);
     return cached;
   }

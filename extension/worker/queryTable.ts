@@ -3,7 +3,7 @@
  * orders are cached per (sort, filter, segment) so scrolling through pages costs only the page.
  */
 import type { RankedDump } from '../engine/model/dump';
-import type { QueryGroups } from '../engine/model/groups';
+import { rowOf, type QueryGroups } from '../engine/model/groups';
 import type { Evaluation } from '../engine/evaluate/types';
 import { lossShares } from '../engine/evaluate/lossShare';
 import type { MaybeNumber, QueryPage, QueryPageParams, QueryRow, SegmentFilter, SortSpec } from '../protocol/messages';
@@ -31,10 +31,11 @@ export const NO_SEGMENT_VALUE = 0xffffffff;
 export function segmentOfQuery(source: QueryTableSource, column: string): { values: (id: number) => string; ofQuery: Uint32Array } {
   const segment = source.dump.segments.find((s) => s.name === column);
   if (!segment || !source.groups) throw new Error(`no segment column '${column}'`);
-  const { rowsOfQuery, start } = source.groups;
+  const groups = source.groups;
+  const start = groups.start;
   const ofQuery = new Uint32Array(source.evaluation.queryCount);
   for (let q = 0; q < ofQuery.length; q++) {
-    ofQuery[q] = start[q + 1]! > start[q]! ? segment.ofRow[rowsOfQuery[start[q]!]!]! : NO_SEGMENT_VALUE;
+    ofQuery[q] = start[q + 1]! > start[q]! ? segment.ofRow[rowOf(groups, start[q]!)]! : NO_SEGMENT_VALUE;
   }
   return { values: (id) => (id === NO_SEGMENT_VALUE ? '' : segment.values.get(id)), ofQuery };
 }

@@ -5,7 +5,7 @@
  * items differ, are counted with a few examples for the report.
  */
 import type { RankedDump } from '../model/dump';
-import { groupByQuery, type QueryGroups } from '../model/groups';
+import { groupByQuery, rowOf, type QueryGroups } from '../model/groups';
 
 /** How many example names each kind of mismatch keeps for display. */
 const EXAMPLES = 5;
@@ -131,7 +131,7 @@ function compareItemSets(
     const qb = commonB[c]!;
     let distinctB = 0;
     for (let k = gb.start[qb]!; k < gb.start[qb + 1]!; k++) {
-      const item = b.item[gb.rowsOfQuery[k]!]!;
+      const item = b.item[rowOf(gb, k)]!;
       if (stampB[item] !== c) {
         stampB[item] = c;
         distinctB++;
@@ -140,7 +140,7 @@ function compareItemSets(
     let inBoth = 0;
     let aOnly = 0;
     for (let k = ga.start[qa]!; k < ga.start[qa + 1]!; k++) {
-      const item = a.item[ga.rowsOfQuery[k]!]!;
+      const item = a.item[rowOf(ga, k)]!;
       if (seenA[item] === c) continue;
       seenA[item] = c;
       let mapped = bItemOfA[item]!;

@@ -5,7 +5,7 @@
  */
 import { InputError } from '../errors';
 import type { RankedDump } from '../model/dump';
-import { groupByQuery } from '../model/groups';
+import { groupByQuery, rowOf } from '../model/groups';
 import type { Comparison } from './compare';
 import type { LoopControl } from './pacer';
 import { bootstrapMeanIntervals, pairedTTest, signFlipTest, type Interval, type SignFlipResult, type TTestResult } from './stats';
@@ -130,10 +130,10 @@ function pairValues(comparison: Comparison, dumpA: RankedDump, column: string) {
   let mixedQueries = 0;
   for (let i = 0; i < queryA.length; i++) {
     const q = queryA[i]!;
-    const first = segment.ofRow[groups.rowsOfQuery[groups.start[q]!]!]!;
+    const first = segment.ofRow[rowOf(groups, groups.start[q]!)]!;
     valueOfPair[i] = first;
     for (let k = groups.start[q]! + 1; k < groups.start[q + 1]!; k++) {
-      if (segment.ofRow[groups.rowsOfQuery[k]!] !== first) {
+      if (segment.ofRow[rowOf(groups, k)] !== first) {
         mixedQueries++;
         break;
       }

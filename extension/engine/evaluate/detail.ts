@@ -3,7 +3,7 @@
  * and the inverted pairs ranked by the NDCG a swap would recover.
  */
 import { itemOfRow, type RankedDump } from '../model/dump';
-import type { QueryGroups } from '../model/groups';
+import { rowsOfGroup, type QueryGroups } from '../model/groups';
 import { DEFAULT_CONVENTIONS, type Conventions } from '../metrics/conventions';
 import { residualMetricIndex, type MetricSpec } from '../metrics/registry';
 import { discountTable } from '../metrics/discount';
@@ -137,7 +137,7 @@ export function queryDetail(
 
 function rowsOf(dump: RankedDump, queryId: number, groups?: QueryGroups): Uint32Array {
   if (queryId < 0 || queryId >= dump.queries.size) throw new RangeError(`query id ${queryId} out of range`);
-  if (groups) return groups.rowsOfQuery.subarray(groups.start[queryId]!, groups.start[queryId + 1]!);
+  if (groups) return rowsOfGroup(groups, queryId);
   let count = 0;
   for (let r = 0; r < dump.rowCount; r++) if (dump.query[r] === queryId) count++;
   const rows = new Uint32Array(count);

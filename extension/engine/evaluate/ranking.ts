@@ -107,11 +107,12 @@ export class QueryRanking {
   }
 
   /**
-   * Loads rows[from..to) (one query's rows in file order). A repeated item keeps its first row. With
-   * query-scoped keys (`itemKey`: a row's key is the first row of its query naming the same item) a row
-   * is a repeat exactly when its key is not itself, so no set of the query's items is needed.
+   * Loads rows[from..to) (one query's rows in file order; without `rows`, rows from..to themselves). A
+   * repeated item keeps its first row. With query-scoped keys (`itemKey`: a row's key is the first row of
+   * its query naming the same item) a row is a repeat exactly when its key is not itself, so no set of
+   * the query's items is needed.
    */
-  load(dump: Pick<RankedDump, 'item' | 'itemKey' | 'score' | 'label'>, rows: Uint32Array, from: number, to: number, seen: SeenItems): void {
+  load(dump: Pick<RankedDump, 'item' | 'itemKey' | 'score' | 'label'>, rows: Uint32Array | undefined, from: number, to: number, seen: SeenItems): void {
     this.ensure(to - from);
     this.unretrieved = 0;
     const scores = dump.score;
@@ -124,7 +125,7 @@ export class QueryRanking {
     let n = 0;
     if (firstRows !== undefined) {
       for (let p = from; p < to; p++) {
-        const r = rows[p]!;
+        const r = rows === undefined ? p : rows[p]!;
         if (firstRows[r] !== r) continue;
         const s = scores[r]!;
         key[n] = s === s ? s : -Infinity;
@@ -138,7 +139,7 @@ export class QueryRanking {
       const { keys, stamps, mask, shift } = seen;
       const items = dump.item;
       for (let p = from; p < to; p++) {
-        const r = rows[p]!;
+        const r = rows === undefined ? p : rows[p]!;
         const item = items[r]! | 0;
         let slot = Math.imul(item, SPREAD) >>> shift;
         while (stamps[slot] === stamp && keys[slot] !== item) slot = (slot + 1) & mask;
