@@ -8,7 +8,7 @@ import { DEFAULT_COMPARE_OPTIONS } from '../engine/compare/compare';
 import { compareRuns } from '../engine/index';
 import { withSideTables } from '../engine/tables/join';
 import { InputError } from '../engine/errors';
-import { formatDelta, formatP } from '../presentation/numbers';
+import { formatDelta, formatP, formatCountInText } from '../presentation/numbers';
 import { COMPARE_FORMATS, formatComparison, type CompareFormat } from '../engine/report/compareReport';
 import { conventionHelp, conventionOptions, parseCommandArgs, readRequestFrom, scoringSetupFrom } from './conventionArgs';
 import { UsageError } from './evalCommand';
@@ -161,7 +161,7 @@ export function wholeNumber(option: string, text: string | undefined, fallback: 
   if (text === undefined) return fallback;
   const n = text.trim() === '' ? Number.NaN : Number(text);
   if (!Number.isSafeInteger(n) || n < min || n > max) {
-    const range = max === Number.MAX_SAFE_INTEGER ? `${min} or more` : `from ${min} to ${max.toLocaleString('en-US')}`;
+    const range = max === Number.MAX_SAFE_INTEGER ? `${min} or more` : `from ${min} to ${formatCountInText(max)}`;
     throw new InputError(`a whole number ${range}`, option, undefined, text);
   }
   return n;

@@ -8,6 +8,7 @@
  * - The Ranked Lists view shows the first RANKED_LISTS_SHOWN (each row reads its file for a headline)
  *   and ends with a row counting the rest. Nothing found is dropped without a row saying so.
  */
+import { formatCountInText } from '../presentation/numbers';
 
 /** The most dumps the workspace search returns (and the Runs view groups into series). */
 export const MAX_LISTED_DUMPS = 20_000;
@@ -42,7 +43,7 @@ export function shownInRankedLists<T>(listing: DumpListing<T>, limit = RANKED_LI
   const hidden = Math.max(0, listing.files.length - limit);
   const shown = hidden > 0 ? listing.files.slice(0, limit) : listing.files;
   if (hidden === 0 && !listing.searchStopped) return { shown, more: undefined };
-  const count = `${hidden.toLocaleString('en-US')}${listing.searchStopped ? '+' : ''}`;
+  const count = `${formatCountInText(hidden)}${listing.searchStopped ? '+' : ''}`;
   return { shown, more: `${count} more dump${hidden === 1 && !listing.searchStopped ? '' : 's'} not listed` };
 }
 
@@ -50,7 +51,7 @@ export function shownInRankedLists<T>(listing: DumpListing<T>, limit = RANKED_LI
 export function moreTooltip(listing: DumpListing<unknown>, limit = RANKED_LISTS_SHOWN): string {
   const shown = Math.min(limit, listing.files.length);
   const found = listing.searchStopped
-    ? `The workspace holds more than ${MAX_LISTED_DUMPS.toLocaleString('en-US')} dumps; the first ${MAX_LISTED_DUMPS.toLocaleString('en-US')} are grouped in the Runs view.`
-    : `${listing.files.length.toLocaleString('en-US')} dumps found; all of them are grouped in the Runs view.`;
-  return `This view shows the first ${shown.toLocaleString('en-US')}. ${found} Narrow gainline.dumpGlob or open a dump from the Explorer.`;
+    ? `The workspace holds more than ${formatCountInText(MAX_LISTED_DUMPS)} dumps; the first ${formatCountInText(MAX_LISTED_DUMPS)} are grouped in the Runs view.`
+    : `${formatCountInText(listing.files.length)} dumps found; all of them are grouped in the Runs view.`;
+  return `This view shows the first ${formatCountInText(shown)}. ${found} Narrow gainline.dumpGlob or open a dump from the Explorer.`;
 }

@@ -12,6 +12,7 @@ import { MAX_LISTED_DUMPS, type DumpListing } from './dumpListing';
 import { DUMP_WATCH_GLOB } from './rankedListsTree';
 import { folderOf, groupSeries, type SeriesGroup } from './seriesGroups';
 import { RELOAD_DEBOUNCE_MS } from './viewSession';
+import { formatCountInText } from '../presentation/numbers';
 
 export class SeriesItem extends vscode.TreeItem {
   constructor(readonly group: SeriesGroup) {
@@ -37,10 +38,10 @@ export class CheckpointItem extends vscode.TreeItem {
 /** The last row when the workspace search stopped at MAX_LISTED_DUMPS: series may lack checkpoints. */
 export class SearchStoppedItem extends vscode.TreeItem {
   constructor() {
-    super(`More than ${MAX_LISTED_DUMPS.toLocaleString('en-US')} dumps: the rest are not grouped`, vscode.TreeItemCollapsibleState.None);
+    super(`More than ${formatCountInText(MAX_LISTED_DUMPS)} dumps: the rest are not grouped`, vscode.TreeItemCollapsibleState.None);
     this.contextValue = 'gainline.searchStopped';
     this.iconPath = new vscode.ThemeIcon('warning');
-    this.tooltip = `The workspace search stops at ${MAX_LISTED_DUMPS.toLocaleString('en-US')} dumps, so a series may lack some of its checkpoints. Narrow gainline.dumpGlob to the series you want.`;
+    this.tooltip = `The workspace search stops at ${formatCountInText(MAX_LISTED_DUMPS)} dumps, so a series may lack some of its checkpoints. Narrow gainline.dumpGlob to the series you want.`;
   }
 }
 

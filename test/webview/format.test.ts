@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { formatCount, formatDelta, formatFixed, formatP, formatShare, MISSING } from '../../webview/src/model/format';
+import { formatCountInText } from '../../extension/presentation/numbers';
 import { pythonJson } from '../reference/python.mjs';
 import { seededRandom } from '../reference/random';
 
@@ -71,5 +72,16 @@ describe('other formats', () => {
     expect(formatShare(0.0001)).toBe('<0.1%');
     expect(formatShare(0)).toBe('0.0%');
     expect(formatFixed(-0, 4)).toBe('0.0000');
+  });
+});
+
+describe('formatCountInText', () => {
+  it("groups whole counts with commas exactly as toLocaleString('en-US') does (ICU, the outside reference; seeded random)", () => {
+    const rnd = seededRandom(12);
+    const cases = [0, 1, 999, 1000, 1001, 999_999, 1_000_000, -1, -1000, -123_456_789, Number.MAX_SAFE_INTEGER, -Number.MAX_SAFE_INTEGER];
+    for (let i = 0; i < 2000; i++) cases.push(Math.floor(rnd() * 10 ** Math.floor(rnd() * 16)) * (rnd() < 0.2 ? -1 : 1));
+    for (const n of cases) expect(formatCountInText(n), String(n)).toBe(n.toLocaleString('en-US'));
+    // Values that are not safe integers are left to the locale call itself.
+    for (const x of [1.5, 1e20, NaN, Infinity]) expect(formatCountInText(x)).toBe(x.toLocaleString('en-US'));
   });
 });

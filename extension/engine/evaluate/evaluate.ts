@@ -17,6 +17,7 @@ import { headlineCutoff, QueryScorer } from './scorer';
 import { SensitivityPass, type SensitivityColumns } from './sensitivity';
 import type { DegenerateCounts, Evaluation, MetricSummary, PerQueryColumns } from './types';
 import { describeDegenerate } from './warnings';
+import { formatCountInText } from '../../presentation/numbers';
 
 export interface EvaluateOptions {
   groups?: QueryGroups;
@@ -291,7 +292,7 @@ export function undefinedValueNotes(metrics: readonly MetricSpec[], perQuery: Pe
     if (undefinedCount === 0) return;
     const why = metricDefinition(m.name).undefinedWhen ?? 'the metric has no value for them';
     const who = undefinedCount === 1 ? 'query that is' : 'queries that are';
-    notes.push(`${m.key} is undefined for ${undefinedCount.toLocaleString('en-US')} ${who} not skipped: ${why}; left out of its mean.`);
+    notes.push(`${m.key} is undefined for ${formatCountInText(undefinedCount)} ${who} not skipped: ${why}; left out of its mean.`);
   });
   return notes;
 }
@@ -384,6 +385,6 @@ function weightNotes(dump: EvaluatedDump, weights: Float64Array): string[] {
     unknown++;
   }
   const out = [`Means are weighted by query (Σ w·x / Σ w), weights from ${dump.joined?.weightSource ?? 'the data'}.`];
-  if (unknown > 0) out.push(`${unknown.toLocaleString('en-US')} ${unknown === 1 ? 'query has' : 'queries have'} no weight (e.g. ${examples.join(', ')}); they are left out of the weighted means.`);
+  if (unknown > 0) out.push(`${formatCountInText(unknown)} ${unknown === 1 ? 'query has' : 'queries have'} no weight (e.g. ${examples.join(', ')}); they are left out of the weighted means.`);
   return out;
 }

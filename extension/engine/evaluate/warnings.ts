@@ -6,6 +6,7 @@ import type { RankedDump } from '../model/dump';
 import type { Conventions } from '../metrics/conventions';
 import { anyNeeds, metricDefinition, metricLabel, type MetricSpec } from '../metrics/registry';
 import type { DegenerateCounts } from './types';
+import { formatCountInText } from '../../presentation/numbers';
 
 export interface WarningInput {
   /** For the judgments notes; callers without a dump in memory (the SQL engines) leave it out. */
@@ -33,7 +34,7 @@ function listed(items: readonly string[]): string {
 }
 
 function rows(n: number, one: string, many: string): string {
-  return `${n.toLocaleString('en-US')} ${n === 1 ? one : many}`;
+  return `${formatCountInText(n)} ${n === 1 ? one : many}`;
 }
 
 /**
@@ -56,7 +57,7 @@ export function describeJudgments(dump: Pick<RankedDump, 'notes'>): string[] {
   }
   if (j.inlineLabelRows > 0) {
     out.push(`The dump has labels too; the judgments file wins: ${rows(j.disagreements, 'labelled row disagrees', 'labelled rows disagree')} ` +
-      `of ${j.inlineLabelRows.toLocaleString('en-US')}${j.disagreementExamples.length > 0 ? ` (e.g. ${j.disagreementExamples.join('; ')})` : ''}.`);
+      `of ${formatCountInText(j.inlineLabelRows)}${j.disagreementExamples.length > 0 ? ` (e.g. ${j.disagreementExamples.join('; ')})` : ''}.`);
   }
   return out;
 }

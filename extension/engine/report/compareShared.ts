@@ -4,7 +4,7 @@
  */
 import type { Comparison, MetricComparison } from '../compare/compare';
 import type { StringPool } from '../model/stringPool';
-import { formatDelta, formatInterval, formatP, formatValue } from '../../presentation/numbers';
+import { formatDelta, formatInterval, formatP, formatValue, formatCountInText } from '../../presentation/numbers';
 
 export { formatDelta, formatInterval, formatP };
 
@@ -87,5 +87,5 @@ export function coverageLine(input: CompareReportInput): string {
   if (match.onlyInA > 0) extra.push(`${match.onlyInA} only in A`);
   if (match.onlyInB > 0) extra.push(`${match.onlyInB} only in B`);
   if (match.differingItemSets > 0) extra.push(`${match.differingItemSets} with different candidate items`);
-  return `${match.commonA.length.toLocaleString('en-US')} queries in both runs${extra.length ? ` (${extra.join(', ')})` : ''}`;
+  return `${formatCountInText(match.commonA.length)} queries in both runs${extra.length ? ` (${extra.join(', ')})` : ''}`;
 }

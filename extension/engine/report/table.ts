@@ -1,6 +1,7 @@
 /** The default terminal report: means, conventions, notes, convention sensitivity, worst queries. */
 import { describeConventions, formatValue, queryColumns, worstQueries, type ReportInput, type WorstOrder } from './reportInput';
 import { alignedTable, clip } from './textTable';
+import { formatCountInText } from '../../presentation/numbers';
 
 export interface TableOptions {
   /** How many of the worst queries to list (0 hides the section). */
@@ -15,9 +16,9 @@ export function formatTable(input: ReportInput, options: TableOptions): string {
   const ev = input.evaluation;
   const headline = ev.summary[ev.headline];
   const sections: string[] = [];
-  const counted = headline ? ` · ${headline.counted.toLocaleString('en-US')} in the ${headline.key} mean` : '';
+  const counted = headline ? ` · ${formatCountInText(headline.counted)} in the ${headline.key} mean` : '';
   sections.push(
-    `${input.source}\n${input.rowCount.toLocaleString('en-US')} rows · ${ev.queryCount.toLocaleString('en-US')} queries${counted}`,
+    `${input.source}\n${formatCountInText(input.rowCount)} rows · ${formatCountInText(ev.queryCount)} queries${counted}`,
   );
 
   sections.push(

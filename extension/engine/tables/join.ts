@@ -14,6 +14,7 @@ import { RowTexts } from '../model/rowTexts';
 import { MapStringPool, type StringPool } from '../model/stringPool';
 import { readTextTable, type TextTable } from './readTable';
 import { isWeightName, resolveSideColumns, type SideKind } from './sideRoles';
+import { formatCountInText } from '../../presentation/numbers';
 
 export interface SideTableFiles {
   /** Query id → text, segments and weight. */
@@ -269,7 +270,7 @@ function checkWeight(text: string, file: string, line: number, name: string, par
 }
 
 function count(n: number, one: string, many: string): string {
-  return `${n.toLocaleString('en-US')} ${n === 1 ? one : many}`;
+  return `${formatCountInText(n)} ${n === 1 ? one : many}`;
 }
 
 function quoted(ids: readonly string[]): string {
