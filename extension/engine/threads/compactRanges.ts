@@ -29,21 +29,34 @@ export function compactColumns(task: CompactTask): void {
 }
 
 function compactColumn(move: ColumnMove, firstRows: readonly number[], counts: readonly number[]): void {
-  const column = move.float ? new Float64Array(move.buffer) : new Uint32Array(move.buffer);
+  if (move.float) {
+    const values = new Float64Array(move.buffer);
+    let to = 0;
+    for (let k = 0; k < counts.length; k++) {
+      if (firstRows[k] !== to) values.copyWithin(to, firstRows[k]!, firstRows[k]! + counts[k]!);
+      to += counts[k]!;
+    }
+    return;
+  }
+  // One loop per kind, over a Uint32Array only: a loop written for either array type ran at a third of the speed.
+  const ids = new Uint32Array(move.buffer);
   let to = 0;
   for (let k = 0; k < counts.length; k++) {
     const from = firstRows[k]!;
     const n = counts[k]!;
     const map = k > 0 ? move.maps?.[k] : undefined;
     const add = move.adds?.[k] ?? 0;
-    if (map !== undefined) {
-      const ids = column as Uint32Array;
-      for (let i = 0; i < n; i++) ids[to + i] = map[ids[from + i]!]!;
-    } else if (add !== 0) {
-      for (let i = 0; i < n; i++) column[to + i] = column[from + i]! + add;
-    } else if (from !== to) {
-      column.copyWithin(to, from, from + n);
-    }
+    if (map !== undefined) mapIds(ids, map, from, to, n);
+    else if (add !== 0) addToIds(ids, add, from, to, n);
+    else if (from !== to) ids.copyWithin(to, from, from + n);
     to += n;
   }
+}
+
+function mapIds(ids: Uint32Array, map: Uint32Array, from: number, to: number, n: number): void {
+  for (let i = 0; i < n; i++) ids[to + i] = map[ids[from + i]!]!;
+}
+
+function addToIds(ids: Uint32Array, add: number, from: number, to: number, n: number): void {
+  for (let i = 0; i < n; i++) ids[to + i] = ids[from + i]! + add;
 }
