@@ -18,8 +18,8 @@ serveThread<ParseRequests>({
     });
     return transferring(parsed, parsed.flatMap(([, result]) => transferList(result)));
   },
-  compactColumns: async (task) => {
+  compactColumns: (task) => {
     compactColumns(task);
-    return true;
+    return true as const;
   },
 });
