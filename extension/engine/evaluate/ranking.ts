@@ -38,6 +38,17 @@ export class SeenItems {
     this.shift = shift;
     return ++this.stamp;
   }
+
+  /** True when `item` is in the set under `stamp` already; otherwise adds it. */
+  met(item: number, stamp: number): boolean {
+    const { keys, stamps, mask } = this;
+    let slot = Math.imul(item, SPREAD) >>> this.shift;
+    while (stamps[slot] === stamp && keys[slot] !== item) slot = (slot + 1) & mask;
+    if (stamps[slot] === stamp) return true;
+    stamps[slot] = stamp;
+    keys[slot] = item;
+    return false;
+  }
 }
 
 /** Fibonacci hashing (Knuth): the top bits of id × 2^32/φ spread nearby ids over the whole table. */
@@ -122,37 +133,20 @@ export class QueryRanking {
     const localGrade = this.localGrade;
     const idx = this.idx;
     const firstRows = dump.itemKey;
+    // Without keys, the query's items go through the set (a new stamp empties it). With them, `item` is
+    // not even read: a reader that keeps item bytes per row makes it on first use, at a cost.
+    const items = firstRows === undefined ? dump.item : undefined;
+    const stamp = firstRows === undefined ? seen.next(to - from) : 0;
     let n = 0;
-    if (firstRows !== undefined) {
-      for (let p = from; p < to; p++) {
-        const r = rows === undefined ? p : rows[p]!;
-        if (firstRows[r] !== r) continue;
-        const s = scores[r]!;
-        key[n] = s === s ? s : -Infinity;
-        localRow[n] = r;
-        localGrade[n] = labels[r]!;
-        idx[n] = n;
-        n++;
-      }
-    } else {
-      const stamp = seen.next(to - from);
-      const { keys, stamps, mask, shift } = seen;
-      const items = dump.item;
-      for (let p = from; p < to; p++) {
-        const r = rows === undefined ? p : rows[p]!;
-        const item = items[r]! | 0;
-        let slot = Math.imul(item, SPREAD) >>> shift;
-        while (stamps[slot] === stamp && keys[slot] !== item) slot = (slot + 1) & mask;
-        if (stamps[slot] === stamp) continue;
-        stamps[slot] = stamp;
-        keys[slot] = item;
-        const s = scores[r]!;
-        key[n] = s === s ? s : -Infinity;
-        localRow[n] = r;
-        localGrade[n] = labels[r]!;
-        idx[n] = n;
-        n++;
-      }
+    for (let p = from; p < to; p++) {
+      const r = rows === undefined ? p : rows[p]!;
+      if (firstRows !== undefined ? firstRows[r] !== r : seen.met(items![r]! | 0, stamp)) continue;
+      const s = scores[r]!;
+      key[n] = s === s ? s : -Infinity;
+      localRow[n] = r;
+      localGrade[n] = labels[r]!;
+      idx[n] = n;
+      n++;
     }
     this.n = n;
     this.duplicates = to - from - n;
