@@ -1,10 +1,10 @@
+/** Whole grades below this are counted by value (buildSmall). */
+const SMALL = 16;
+
 /**
  * The distinct grades of one query, ascending, with a rank per slot: what the pair counter's Fenwick trees
  * and the O(distinct grades) ideal DCG need.
  */
-/** Whole grades below this are counted by value (buildSmall). */
-const SMALL = 16;
-
 export class GradeIndex {
   distinct = 0;
   /** Distinct grades, ascending. */

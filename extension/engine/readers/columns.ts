@@ -147,8 +147,8 @@ export class RowColumns implements RowArrays {
   }
 
   /**
-   * Adds `count` rows about to be appended at `count` to the summary of the rows so far, from `label` and
-   * `score` as the record kernel hands them over (still in the CPU's caches: a pass over the columns at
+   * Adds `count` rows about to be appended (from row `this.count` on) to the summary of the rows so far,
+   * from `label` and `score` as the record kernel hands them over (still in the CPU's caches: a pass over the columns at
    * the end read 16 bytes a row from memory again). Rows appended since the last call by other paths
    * are summarised from the columns first, so the summary always covers rows [0, summarisedTo).
    */
