@@ -38,7 +38,7 @@ export async function compactShared(parts: RangeRows[], slices: SharedColumns[],
     compactColumns({ ...place, moves: [{ buffer: buffers.query, float: false, maps: queryMaps }] });
     // Ranges keyed their items from their first row: shifted by the rows before them, while moving.
     const keyed = parts.every((p) => p.itemKeys) && mergedStaysGrouped(queryMaps);
-    const starts = place.counts.map((_, k) => place.counts.slice(0, k).reduce((a, b) => a + b, 0));
+    const starts = rangeStarts(place.counts);
     if (keyed) compactColumns({ ...place, moves: [{ buffer: buffers.item, float: false, adds: starts }] });
     Object.assign(rows, rowArrays((name) => rowArray(name, buffers[name].byteLength / ROW_COLUMNS[name].array.BYTES_PER_ELEMENT, buffers[name])
       .subarray(0, total) as never));
@@ -68,14 +68,18 @@ export function itemKeysOfRanges(rows: RowColumns, parts: readonly RangeRows[]):
     texts.hashRows(item);
     return;
   }
-  const starts: number[] = [];
-  let first = 0;
-  for (const p of parts) {
-    starts.push(first);
+  const starts = rangeStarts(parts.map((p) => p.count));
+  parts.forEach((p, k) => {
+    const first = starts[k]!;
     if (first > 0) for (let i = first; i < first + p.count; i++) item[i] = item[i]! + first;
-    first += p.count;
-  }
+  });
   rekeyCutQueries(rows, starts);
+}
+
+/** The first row of each range in the merged rows: the rows of the ranges before it. */
+function rangeStarts(counts: readonly number[]): number[] {
+  let first = 0;
+  return counts.map((n) => (first += n) - n);
 }
 
 /**
