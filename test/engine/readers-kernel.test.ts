@@ -39,6 +39,8 @@ function number(rnd: () => number, label: boolean): string {
   if (x < 0.83) return ['NaN', '', 'inf', '-Infinity', '+1.5', '.25', '7.', '-0', '-0.0'][Math.floor(rnd() * 9)]!;
   if (x < 0.86) return '1234567890123456789';
   if (x < 0.88) return '0.' + '1'.repeat(23);
+  // Around the largest mantissa the kernel takes (2^53), and 20 digits that are still small.
+  if (x < 0.9) return ['9007199254740992', '9007199254740993', '-900719925474099.3', '000000000000000000001.5', '0000000000000000001'][Math.floor(rnd() * 5)]!;
   return String(Math.floor(rnd() * 1000) - 500);
 }
 
@@ -59,14 +61,17 @@ function randomCsv(seed: number, rows: number): string {
   for (let r = 0; r < rows; r++) {
     if (rnd() < 0.06) query++;
     if (rnd() < 0.01) out += eol;
+    const item = Math.floor(rnd() * 3000);
     const value: Record<string, string> = {
-      query: rnd() < 0.02 ? `tĕnon saw ${query}` : `mitre saw ${query}`,
-      item: quotes && rnd() < 0.01 ? `"sku,${r}"` : `sku-${Math.floor(rnd() * 3000)}`,
+      // Some ids longer than the 16 bytes the kernel scans at a time, and a rare control byte inside one.
+      query: (rnd() < 0.02 ? `tĕnon saw ${query}` : `mitre saw ${query}`) + (query % 3 === 0 ? ' with a blade longer than sixteen bytes' : ''),
+      item: quotes && rnd() < 0.01 ? `"sku,${r}"` : rnd() < 0.005 ? `sku\v${r}` : `sku-${item}${'x'.repeat(item % 37)}`,
       label: number(rnd, true),
       score: number(rnd, false),
       rank: String(1 + (r % 40)),
       locale: rnd() < 0.9 ? 'en-GB' : 'de-DE',
-      device: rnd() < 0.5 ? 'mobile' : 'desktop',
+      // One value a prefix of another: a field is the previous row's only when the lengths match too.
+      device: ['mobile', 'desktop', 'mobile app'][Math.floor(rnd() * 3)]!,
     };
     out += columns.map((c) => value[c]).join(',') + eol;
   }

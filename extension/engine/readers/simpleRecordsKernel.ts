@@ -113,7 +113,8 @@ export class SimpleRecordsKernel {
     const previousAt = align(pow10At + 8 * POW10.length);
     const idSlotAt = align(previousAt + 8 * fieldCount);
     const inputAt = align(idSlotAt + 4 * fieldCount);
-    const idStartAt = align(inputAt + this.pieceBytes + 8);
+    // Room after the input: the kernel finds field ends 16 bytes at a time, reading up to 15 bytes past its limit.
+    const idStartAt = align(inputAt + this.pieceBytes + 16);
     const idEndAt = idStartAt + 4 * slots * this.rowsPerCall;
     const idHashAt = idEndAt + 4 * slots * this.rowsPerCall;
     const labelAt = align(idHashAt + 4 * slots * this.rowsPerCall);
@@ -122,7 +123,8 @@ export class SimpleRecordsKernel {
     const startAt = lineAt + 4 * this.rowsPerCall;
     const itemEndAt = startAt + 4 * this.rowsPerCall;
     const itemBytesAt = itemEndAt + 4 * this.rowsPerCall;
-    const end = itemBytesAt + (itemBytes ? this.pieceBytes + 8 : 0);
+    // The kernel copies item bytes 16 at a time: up to 15 bytes past the last item's end.
+    const end = itemBytesAt + (itemBytes ? this.pieceBytes + 16 : 0);
     const { Instance, Memory } = webAssembly();
     const memory = new Memory({ initial: Math.ceil(end / PAGE) + 1 });
     this.kernel = new Instance(module, { env: { memory, abort: kernelAbort } }).exports as unknown as KernelExports;
@@ -157,6 +159,8 @@ export class SimpleRecordsKernel {
       }
       if (pieceEnd === pos) return parseSimpleRecords(state, buf, pos, limit, base);
       this.bytes.set(buf.subarray(pos, pieceEnd), this.input);
+      // The kernel's field scans stop at this byte at the latest (kernel/simpleRecords.ts).
+      this.bytes[this.input + (pieceEnd - pos)] = 0;
       const rows = this.kernel.parse(this.input, this.input + (pieceEnd - pos), state.delimiter, state.line, state.rankStandsInForScore ? 1 : 0);
       this.store(state, rows, pos - this.input, base);
       state.line = this.kernel.lineAfter();
