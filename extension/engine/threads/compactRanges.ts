@@ -44,13 +44,24 @@ function compactColumn(move: ColumnMove, firstRows: readonly number[], counts: r
   for (let k = 0; k < counts.length; k++) {
     const from = firstRows[k]!;
     const n = counts[k]!;
-    const map = k > 0 ? move.maps?.[k] : undefined;
-    const add = move.adds?.[k] ?? 0;
+    const given = k > 0 ? move.maps?.[k] : undefined;
+    // A map of consecutive ids (a range's queries of a grouped file) is a shift: adding is cheaper than looking up.
+    const shift = given === undefined ? undefined : shiftOf(given);
+    const map = shift === undefined ? given : undefined;
+    const add = shift ?? move.adds?.[k] ?? 0;
     if (map !== undefined) mapIds(ids, map, from, to, n);
     else if (add !== 0) addToIds(ids, add, from, to, n);
     else if (from !== to) ids.copyWithin(to, from, from + n);
     to += n;
   }
+}
+
+/** m when map[i] = i + m for every i (m ≥ 0), else undefined. */
+export function shiftOf(map: Uint32Array): number | undefined {
+  if (map.length === 0) return undefined;
+  const m = map[0]!;
+  for (let i = 1; i < map.length; i++) if (map[i] !== m + i) return undefined;
+  return m;
 }
 
 function mapIds(ids: Uint32Array, map: Uint32Array, from: number, to: number, n: number): void {
