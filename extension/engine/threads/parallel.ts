@@ -43,6 +43,8 @@ export async function readParallelDelimited(path: string, format: 'csv' | 'tsv',
   options: ReadOptions): Promise<RankedDump | undefined> {
   const lease = leasePool<ParseRequests>('parseWorker', Math.max(1, threads - 1));
   if (lease === undefined) return undefined;
+  // Started now, the threads' start-up overlaps reading the header and choosing the ranges.
+  lease.pool.warm(lease.workers);
   try {
     return await readInRanges(lease, path, format, delimiter, threads, options);
   } finally {
