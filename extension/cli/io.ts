@@ -3,8 +3,8 @@
  * in-process and capture everything they print.
  */
 export interface CliIO {
-  /** Writes to standard output as-is (callers add their own newlines). */
-  readonly out: (text: string) => void;
+  /** Writes to standard output as-is (callers add their own newlines); bytes are UTF-8 text already encoded. */
+  readonly out: (text: string | Uint8Array) => void;
   /** Writes to standard error as-is. */
   readonly err: (text: string) => void;
   /** True when standard error is a terminal; progress lines are shown only then. */
@@ -32,9 +32,10 @@ export function processIO(): CliIO {
 /** An in-memory CliIO for tests: everything written is kept in `stdout` / `stderr`. */
 export function memoryIO(cwd: string = process.cwd(), input?: Uint8Array): CliIO & { stdout: () => string; stderr: () => string } {
   const outParts: string[] = [];
+  const decoder = new TextDecoder();
   const errParts: string[] = [];
   return {
-    out: (text) => void outParts.push(text),
+    out: (text) => void outParts.push(typeof text === 'string' ? text : decoder.decode(text)),
     err: (text) => void errParts.push(text),
     isTTY: false,
     cwd,

@@ -9,7 +9,7 @@ import { describe, expect, it } from 'vitest';
 import { isGrouped } from '../../extension/engine/model/rowTexts';
 import { mergedStaysGrouped } from '../../extension/engine/threads/mergeRanges';
 import { compactColumns, shiftOf } from '../../extension/engine/threads/compactRanges';
-import { rangeEnds } from '../../extension/engine/threads/parallel';
+import { shrinkingEnds } from '../../extension/engine/threads/shrinkingShares';
 import { seededRandom } from '../reference/random';
 
 /** Random ranges of a file: per range, its rows' local query ids and the map of local ids to merged ids. */
@@ -111,9 +111,9 @@ describe('moving ranges together (compactRanges.ts)', () => {
   });
 });
 
-describe('range sizes of a parallel read', () => {
+describe('shrinking pieces of a parallel read or scoring', () => {
   it.each([1, 2, 3, 8, 16])('%i ranges: cover the file, each smaller than the one before, the last 1/n² of it', (parts) => {
-    const ends = rangeEnds(parts);
+    const ends = shrinkingEnds(parts);
     expect(ends).toHaveLength(parts);
     expect(ends.at(-1)).toBe(1);
     const sizes = ends.map((e, k) => e - (k === 0 ? 0 : ends[k - 1]!));

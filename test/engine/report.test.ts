@@ -133,13 +133,26 @@ describe('JSON records rendered by hand', () => {
     expect(pieces.join('')).toBe(slowJson(input));
   });
 
+  it('pre-rendered chunks are written as their bytes, between text pieces, in order', () => {
+    const input = fixtureInput();
+    const spec = { metrics: input.evaluation.metrics, names: packNames(input.queryNames) };
+    const perQuery = input.evaluation.perQuery;
+    const encode = (text: string) => new TextEncoder().encode(text);
+    const chunks = [encode(renderQueryRecords(spec, perQuery, 0, 1)), encode(renderQueryRecords(spec, perQuery, 1, 3))];
+    const pieces = [...formatReportPieces('json', { ...input, queryRecords: chunks }, { worst: 10 })];
+    // The very buffers handed in, not copies; every other piece is text.
+    expect(pieces.filter((p) => typeof p !== 'string')).toEqual(chunks);
+    expect(pieces.filter((p) => typeof p !== 'string')[0]).toBe(chunks[0]);
+    expect(Buffer.concat(pieces.map((p) => (typeof p === 'string' ? Buffer.from(p) : p))).toString()).toBe(slowJson(input));
+  });
+
   it('pre-rendered chunks are joined in order, and the same text comes out', () => {
     const input = fixtureInput();
     const spec = { metrics: input.evaluation.metrics, names: packNames(input.queryNames) };
     const perQuery = input.evaluation.perQuery;
     const chunks = [renderQueryRecords(spec, perQuery, 0, 1), renderQueryRecords(spec, perQuery, 1, 3)];
     expect(renderQueryRecords(spec, perQuery, 2, 2)).toBe('');
-    const withChunks = { ...input, queryRecords: chunks };
+    const withChunks = { ...input, queryRecords: chunks.map((text) => new TextEncoder().encode(text)) };
     expect(formatJson(withChunks)).toBe(formatJson(input));
     expect(formatJson(input)).toBe(slowJson(input));
   });

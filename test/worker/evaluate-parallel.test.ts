@@ -111,7 +111,7 @@ describe('parallel scoring', () => {
     const one = evaluate(dump, METRICS, DEFAULT_CONVENTIONS);
     const records = collectQueryRecords(METRICS, dump.queries, false);
     const chunks: [number, number][] = [];
-    const output = { ...records.output, onChunk: (from: number, to: number, text: string) => {
+    const output = { ...records.output, onChunk: (from: number, to: number, text: Uint8Array) => {
       chunks.push([from, to]);
       records.output.onChunk(from, to, text);
     } };
@@ -177,11 +177,14 @@ describe('parallel scoring', () => {
     }
   });
 
-  it('splits queries into ranges of about equal rows', () => {
-    // Rows per query: 10, 10, 10, 70 → two parts of 50 rows each cut before the big query.
+  it('splits queries into ranges of shrinking rows', () => {
+    // Rows per query: 10, 10, 10, 70 → two parts, the first ending near 3/4 of the rows (75): before the big query.
     const start = Uint32Array.from([0, 10, 20, 30, 100]);
     expect(splitByRows(start, 2)).toEqual([0, 3, 4]);
     expect(splitByRows(start, 1)).toEqual([0, 4]);
+    // 100 queries of 10 rows in 4 parts: 7/16, 5/16, 3/16 and 1/16 of the rows.
+    const even = Uint32Array.from({ length: 101 }, (_, q) => 10 * q);
+    expect(splitByRows(even, 4)).toEqual([0, 44, 75, 94, 100]);
   });
 
   it('bad input found while preparing is reported, and the workers started before it are stopped', async () => {

@@ -1,6 +1,6 @@
 /** Report formats for one evaluated dump; every one is a pure function of the evaluation. */
 import { formatCsv } from './csv';
-import { formatJson, formatJsonPieces } from './json';
+import { formatJson, formatJsonPieces, type ReportPiece } from './json';
 import { formatMarkdown } from './markdown';
 import type { ReportInput, WorstOrder } from './reportInput';
 import { formatTable } from './table';
@@ -22,8 +22,9 @@ export function formatReport(format: ReportFormat, input: ReportInput, options: 
 }
 
 /** formatReport's text in pieces to write in turn, each made as it is asked for (JSON splices its records rather than joining them). */
-export function formatReportPieces(format: ReportFormat, input: ReportInput, options: { readonly worst: number; readonly worstOrder?: WorstOrder }): Iterable<string> {
+export function formatReportPieces(format: ReportFormat, input: ReportInput, options: { readonly worst: number; readonly worstOrder?: WorstOrder }): Iterable<ReportPiece> {
   return format === 'json' ? formatJsonPieces(input) : [formatReport(format, input, options)];
 }
 
 export type { ReportInput } from './reportInput';
+export type { ReportPiece } from './json';

@@ -8,8 +8,12 @@ import { conventionsAsJson, jsonNumber, type ReportInput } from './reportInput';
  * so 100k query objects are never built only to be stringified.
  */
 export function formatJson(input: ReportInput): string {
-  return [...formatJsonPieces(input)].join('');
+  const decoder = new TextDecoder();
+  return [...formatJsonPieces(input)].map((piece) => (typeof piece === 'string' ? piece : decoder.decode(piece))).join('');
 }
+
+/** A piece of a report to write as it is: text, or text already encoded as UTF-8 (records rendered while scoring). */
+export type ReportPiece = string | Uint8Array;
 
 /** Records rendered here (none came rendered) are rendered this many queries at a time, each piece written before the next is made. */
 const RECORDS_PER_PIECE = 16384;
@@ -18,7 +22,7 @@ const RECORDS_PER_PIECE = 16384;
  * formatJson's text in pieces, to write one after another: on 100k queries the records are tens of MB,
  * and joining them into one string (then one buffer to write) held two more copies at the peak.
  */
-export function* formatJsonPieces(input: ReportInput): Generator<string> {
+export function* formatJsonPieces(input: ReportInput): Generator<ReportPiece> {
   const { evaluation: ev } = input;
   const summary: Record<string, number | null> = {};
   const counted: Record<string, number> = {};
@@ -55,7 +59,10 @@ export function* formatJsonPieces(input: ReportInput): Generator<string> {
   // headText ends with "\n}": the records go in before that closing brace.
   yield `${headText.slice(0, -2)},\n "queries": [\n`;
   if (input.facts === undefined && input.queryRecords !== undefined) {
-    for (let k = 0; k < input.queryRecords.length; k++) yield k === 0 ? input.queryRecords[k]! : `,\n${input.queryRecords[k]!}`;
+    for (let k = 0; k < input.queryRecords.length; k++) {
+      if (k > 0) yield ',\n';
+      yield input.queryRecords[k]!;
+    }
   } else {
     // Records rendered while scoring carry no query facts: with a queries table (or none rendered) they are rendered here.
     const spec = { metrics: ev.metrics, names: packNames(input.queryNames), facts: input.facts, notRetrieved };

@@ -98,16 +98,16 @@ registerChunkRenderer(QUERY_RECORDS, renderQueryRecords);
 export interface QueryRecordsCollector {
   /** For the engine's `perChunk` option. */
   readonly output: ChunkOutput;
-  /** The pieces received so far, in query order, empty ones left out (for ReportInput.queryRecords). */
-  pieces(): string[];
+  /** The pieces received so far (UTF-8), in query order, empty ones left out (for ReportInput.queryRecords). */
+  pieces(): Uint8Array[];
 }
 
 /** `notRetrieved`: the dump's labels came from a judgments file (records then count judged items never retrieved). */
 export function collectQueryRecords(metrics: readonly MetricSpec[], names: StringPool, notRetrieved: boolean): QueryRecordsCollector {
-  const received: { from: number; text: string }[] = [];
+  const received: { from: number; text: Uint8Array }[] = [];
   const spec: QueryRecordsSpec = { metrics, names: packNames(names), notRetrieved };
   return {
     output: { renderer: QUERY_RECORDS, params: spec, onChunk: (from, _to, text) => received.push({ from, text }) },
-    pieces: () => received.filter((r) => r.text !== '').sort((a, b) => a.from - b.from).map((r) => r.text),
+    pieces: () => received.filter((r) => r.text.length > 0).sort((a, b) => a.from - b.from).map((r) => r.text),
   };
 }

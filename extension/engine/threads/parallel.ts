@@ -17,6 +17,7 @@ import { parseClaimedRanges, type ClaimedRanges, type RangeResult, type RangeTas
 import { checkUnchanged, statStamp, throwIfCancelled } from '../readers/source';
 import type { CompactTask } from './compactRanges';
 import { idleKeptThreads, leasePool, type PoolLease } from './keptPools';
+import { shrinkingEnds } from './shrinkingShares';
 import { compactShared, itemKeysOfRanges, merge, type RangeRows } from './mergeRanges';
 
 /**
@@ -153,7 +154,8 @@ async function rowSizes(path: string, bounds: number[], first: number): Promise<
 /** Range starts: evenly spaced, each moved just past the next newline. The last entry is the size. */
 async function splitPoints(path: string, from: number, size: number, parts: number): Promise<number[]> {
   const points = [from];
-  const ends = rangeEnds(parts);
+  // Shrinking ranges (shrinkingShares.ts): the threads run out of ranges together.
+  const ends = shrinkingEnds(parts);
   const fh = await fsp.open(path, 'r');
   try {
     const probe = Buffer.alloc(64 * 1024);
@@ -174,22 +176,6 @@ async function splitPoints(path: string, from: number, size: number, parts: numb
   }
   points.push(size);
   return points;
-}
-
-/**
- * Where each of `parts` ranges ends, as a fraction of the file: shrinking range by range in the ratio
- * 2·parts−1 : 2·parts−3 : … : 1. Threads claim ranges in order, so the last ones claimed are the small
- * ones and the threads run out of work at nearly the same time. With equal ranges (an eighth of the file
- * each on 2 threads) one thread sat idle for most of a range, 0.09 s on 10M rows, while the other
- * finished its last.
- */
-export function rangeEnds(parts: number): number[] {
-  const total = parts * parts;
-  let done = 0;
-  return Array.from({ length: parts }, (_, k) => {
-    done += 2 * (parts - k) - 1;
-    return k === parts - 1 ? 1 : done / total;
-  });
 }
 
 /** What a parse thread answers (parseWorker.ts): the ranges it claimed, each parsed into its own columns and pools. */

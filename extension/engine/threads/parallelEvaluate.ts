@@ -32,6 +32,7 @@ import { renderChunk, type ChunkWork } from '../evaluate/chunkOutput';
 import type { Evaluation, PerQueryColumns } from '../evaluate/types';
 import { freeCores } from '../evaluate/coreMeter';
 import { idleKeptThreads, leasePool } from './keptPools';
+import { shrinkingEnds } from './shrinkingShares';
 import type { ThreadPool } from './pool';
 
 /**
@@ -71,10 +72,10 @@ export interface ScoreRangeTask {
   readonly perChunk?: ChunkWork;
 }
 
-/** What a scoring thread hands back: its counts, and the text of each chunk it scored as [chunk, text] pairs. */
+/** What a scoring thread hands back: its counts, and the text of each chunk it scored as [chunk, UTF-8 bytes] pairs. */
 export interface ScoreRangeResult {
   readonly tally: RangeTally;
-  readonly chunkTexts: [number, string][];
+  readonly chunkTexts: [number, Uint8Array][];
 }
 
 /**
@@ -127,7 +128,7 @@ async function scoreWithWorkers(dump: RankedDump, metrics: readonly MetricSpec[]
   const tally = emptyTally();
   if (engineSettings().tuning.workersFirst) await running.started;
   const scorer = new RangeScorer(setup, dump, perQuery, sensitivity);
-  const handOver = output && ((chunk: number, text: string) => output.onChunk(bounds[chunk]!, bounds[chunk + 1]!, text));
+  const handOver = output && ((chunk: number, text: Uint8Array) => output.onChunk(bounds[chunk]!, bounds[chunk + 1]!, text));
   claimChunks(scorer, bounds, next, tally, options, work && handOver && { work, perQuery, into: handOver });
   for (const result of await running.results) {
     addTally(tally, result.tally);
@@ -140,13 +141,17 @@ async function scoreWithWorkers(dump: RankedDump, metrics: readonly MetricSpec[]
   return finishEvaluation(setup, dump, perQuery, tally, sensitivity, recorded);
 }
 
-/** Query range starts holding about equal rows each (parts <= queries); the last entry is the query count. */
+/**
+ * Query range starts (parts <= queries; the last entry is the query count), the rows of each range
+ * shrinking along the dump as shrinkingEnds says, so the scoring threads finish together.
+ */
 export function splitByRows(start: Uint32Array, parts: number): number[] {
   const queries = start.length - 1;
   const rows = start[queries]!;
   const bounds = [0];
+  const ends = shrinkingEnds(parts);
   for (let k = 1; k < parts; k++) {
-    const target = (rows * k) / parts;
+    const target = rows * ends[k - 1]!;
     let lo = bounds.at(-1)!;
     let hi = queries;
     while (lo < hi) {
@@ -167,8 +172,8 @@ export function runScoreRangeTask(task: ScoreRangeTask, onFirstClaim?: () => voi
   const sensitivity = task.sensitivity ? newSensitivityPass(task.setup) : undefined;
   if (sensitivity && task.sensitivity) sensitivity.recordInto(task.sensitivity);
   const tally = emptyTally();
-  const chunkTexts: [number, string][] = [];
-  const rendering = task.perChunk && { work: task.perChunk, perQuery: task.perQuery, into: (chunk: number, text: string) => chunkTexts.push([chunk, text]) };
+  const chunkTexts: [number, Uint8Array][] = [];
+  const rendering = task.perChunk && { work: task.perChunk, perQuery: task.perQuery, into: (chunk: number, text: Uint8Array) => chunkTexts.push([chunk, text]) };
   claimChunks(new RangeScorer(task.setup, task.columns, task.perQuery, sensitivity), task.bounds, task.next, tally, {}, rendering, onFirstClaim);
   return { tally, chunkTexts };
 }
@@ -177,7 +182,7 @@ interface ChunkRendering {
   readonly work: ChunkWork;
   readonly perQuery: PerQueryColumns;
   /** Receives the text of each chunk this thread scored. */
-  readonly into: (chunk: number, text: string) => void;
+  readonly into: (chunk: number, text: Uint8Array) => void;
 }
 
 function claimChunks(scorer: RangeScorer, bounds: readonly number[], next: Int32Array, tally: RangeTally,

@@ -6,10 +6,14 @@
  * reporter wants made from each of those chunks).
  */
 import { runScoreRangeTask, type ScoreRequests } from './parallelEvaluate';
-import { reportProgress, serveThread } from './threadServer';
+import { reportProgress, serveThread, transferring } from './threadServer';
 // Registers the JSON report's per-chunk renderer in this thread (see engine/evaluate/chunkOutput.ts).
 import '../report/jsonRecords';
 
 serveThread<ScoreRequests>({
-  scoreRange: (task, context) => runScoreRangeTask(task, () => reportProgress(context, 0)),
+  scoreRange: (task, context) => {
+    const result = runScoreRangeTask(task, () => reportProgress(context, 0));
+    // Each chunk's bytes have a buffer of their own (chunkOutput.ts): handed over, not copied.
+    return transferring(result, result.chunkTexts.map(([, bytes]) => bytes.buffer as ArrayBuffer));
+  },
 });
