@@ -151,10 +151,9 @@ async function rowSizes(path: string, bounds: number[], first: number): Promise<
   return bounds.slice(0, -1).map((_, k) => Math.min(at[k]!, at[k + 1]!));
 }
 
-/** Range starts: evenly spaced, each moved just past the next newline. The last entry is the size. */
+/** Range starts: shrinking along the file (shrinkingShares.ts), each moved just past the next newline. The last entry is the size. */
 async function splitPoints(path: string, from: number, size: number, parts: number): Promise<number[]> {
   const points = [from];
-  // Shrinking ranges (shrinkingShares.ts): the threads run out of ranges together.
   const ends = shrinkingEnds(parts);
   const fh = await fsp.open(path, 'r');
   try {
