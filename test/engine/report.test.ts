@@ -3,7 +3,7 @@ import { formatCsv } from '../../extension/engine/report/csv';
 import { formatJson } from '../../extension/engine/report/json';
 import { formatReportPieces } from '../../extension/engine/report/index';
 import { formatMarkdown } from '../../extension/engine/report/markdown';
-import { packNames, renderQueryRecords } from '../../extension/engine/report/jsonRecords';
+import { packNames, stringifyQueryRecords } from '../../extension/engine/report/jsonRecords';
 import { jsonNumber, queryColumns, worstQueries, type ReportInput } from '../../extension/engine/report/reportInput';
 import { MapStringPool } from '../../extension/engine/model/stringPool';
 import { formatTable } from '../../extension/engine/report/table';
@@ -138,7 +138,7 @@ describe('JSON records rendered by hand', () => {
     const spec = { metrics: input.evaluation.metrics, names: packNames(input.queryNames) };
     const perQuery = input.evaluation.perQuery;
     const encode = (text: string) => new TextEncoder().encode(text);
-    const chunks = [encode(renderQueryRecords(spec, perQuery, 0, 1)), encode(renderQueryRecords(spec, perQuery, 1, 3))];
+    const chunks = [encode(stringifyQueryRecords(spec, perQuery, 0, 1)), encode(stringifyQueryRecords(spec, perQuery, 1, 3))];
     const pieces = [...formatReportPieces('json', { ...input, queryRecords: chunks }, { worst: 10 })];
     // The very buffers handed in, not copies; every other piece is text.
     expect(pieces.filter((p) => typeof p !== 'string')).toEqual(chunks);
@@ -150,8 +150,8 @@ describe('JSON records rendered by hand', () => {
     const input = fixtureInput();
     const spec = { metrics: input.evaluation.metrics, names: packNames(input.queryNames) };
     const perQuery = input.evaluation.perQuery;
-    const chunks = [renderQueryRecords(spec, perQuery, 0, 1), renderQueryRecords(spec, perQuery, 1, 3)];
-    expect(renderQueryRecords(spec, perQuery, 2, 2)).toBe('');
+    const chunks = [stringifyQueryRecords(spec, perQuery, 0, 1), stringifyQueryRecords(spec, perQuery, 1, 3)];
+    expect(stringifyQueryRecords(spec, perQuery, 2, 2)).toBe('');
     const withChunks = { ...input, queryRecords: chunks.map((text) => new TextEncoder().encode(text)) };
     expect(formatJson(withChunks)).toBe(formatJson(input));
     expect(formatJson(input)).toBe(slowJson(input));

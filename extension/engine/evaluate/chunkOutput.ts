@@ -12,8 +12,8 @@
  */
 import type { PerQueryColumns } from './types';
 
-/** Text for queries [from, to) of filled per-query columns. */
-export type ChunkRenderer<P> = (params: P, perQuery: PerQueryColumns, from: number, to: number) => string;
+/** Text for queries [from, to) of filled per-query columns, or its UTF-8 bytes. */
+export type ChunkRenderer<P> = (params: P, perQuery: PerQueryColumns, from: number, to: number) => string | Uint8Array;
 
 /** What a thread needs to run the renderer: the name and the data (structured-cloneable). */
 export interface ChunkWork {
@@ -38,11 +38,12 @@ export function registerChunkRenderer<P>(name: string, render: ChunkRenderer<P>)
 const utf8 = new TextEncoder();
 
 /**
- * Runs the named renderer over one chunk and encodes its text, in a buffer of its own (transferable);
+ * Runs the named renderer over one chunk and encodes its text (unless it made bytes), in a buffer of its own (transferable);
  * a name no module registered in this thread is a programming error.
  */
 export function renderChunk(work: ChunkWork, perQuery: PerQueryColumns, from: number, to: number): Uint8Array {
   const render = renderers.get(work.renderer) as ChunkRenderer<unknown> | undefined;
   if (render === undefined) throw new Error(`no chunk renderer '${work.renderer}' is registered in this thread`);
-  return utf8.encode(render(work.params, perQuery, from, to));
+  const made = render(work.params, perQuery, from, to);
+  return typeof made === 'string' ? utf8.encode(made) : made;
 }

@@ -7,30 +7,11 @@
  * the careful parser, as before. Without the compiled kernel (a test that did not build it) callers
  * fall back to parseSimpleRecords alone.
  */
-import { existsSync, readFileSync } from 'node:fs';
-import { join } from 'node:path';
 import { engineActivity, engineSettings } from '../config';
 import type { BytePool } from '../model/bytePool';
+import { instantiateKernel, kernelModule, type WasmMemory, type WasmModule } from '../wasmKernels';
 import type { RowColumns } from './columns';
 import { parseSimpleRecords, POW10, ROLE_ITEM, ROLE_QUERY, ROLE_SEGMENT, type FastState } from './delimitedFast';
-
-/**
- * The part of the WebAssembly JavaScript API used here. Node provides the global, but Node 20's type
- * declarations leave its types to the DOM library, which the engine's build target does not load.
- */
-type WasmModule = object;
-interface WasmMemory {
-  readonly buffer: ArrayBuffer;
-}
-interface WasmApi {
-  readonly Module: new (bytes: Uint8Array) => WasmModule;
-  readonly Memory: new (descriptor: { initial: number }) => WasmMemory;
-  readonly Instance: new (module: WasmModule, imports: Record<string, Record<string, unknown>>) => { readonly exports: unknown };
-}
-/** Looked up when used: under Node's --jitless the global is missing, and the caller falls back. */
-function webAssembly(): WasmApi {
-  return (globalThis as unknown as { WebAssembly: WasmApi }).WebAssembly;
-}
 
 interface KernelExports {
   readonly memory: WasmMemory;
@@ -41,30 +22,11 @@ interface KernelExports {
   lineAfter(): number;
 }
 
-/** The compiled kernel of the configured bundle folder, compiled once per folder. */
-let compiled: { readonly path: string; readonly module: WasmModule | null } | undefined;
-
-function kernelModule(): WasmModule | undefined {
-  const { bundleDir, tuning } = engineSettings();
-  if (bundleDir === undefined || !tuning.recordKernel) return undefined;
-  const path = join(bundleDir, 'simpleRecords.wasm');
-  if (compiled?.path !== path) {
-    let module: WasmModule | null = null;
-    try {
-      if (existsSync(path)) module = new (webAssembly().Module)(readFileSync(path));
-    } catch {
-      // WebAssembly switched off (Node's --jitless, a host policy): the JavaScript loop reads the same rows.
-    }
-    compiled = { path, module };
-  }
-  return compiled.module ?? undefined;
-}
 let lastMade: { readonly module: WasmModule; readonly key: string; readonly kernel: SimpleRecordsKernel } | undefined;
 
 /** After the kernel stops early this often in a row, the JavaScript loop takes longer runs (e.g. every score has an exponent). */
 const JS_RUN_AFTER_SHORT_CALL = 256;
 
-const PAGE = 65536;
 const align = (n: number) => (n + 7) & ~7;
 
 export class SimpleRecordsKernel {
@@ -92,7 +54,8 @@ export class SimpleRecordsKernel {
    * out one after another, for readers that keep item bytes per row (RowColumns.itemTexts).
    */
   static create(roleOf: Int32Array, itemBytes = false): SimpleRecordsKernel | undefined {
-    const module = kernelModule();
+    if (!engineSettings().tuning.recordKernel) return undefined;
+    const module = kernelModule('simpleRecords.wasm');
     if (module === undefined) return undefined;
     // The last kernel made on this thread serves again for the same fields and sizes (a parse thread reads
     // range after range of one file): its memory is already faulted in. Sharing one is safe, since a call
@@ -125,9 +88,8 @@ export class SimpleRecordsKernel {
     const itemBytesAt = itemEndAt + 4 * this.rowsPerCall;
     // The kernel copies item bytes 16 at a time: up to 15 bytes past the last item's end.
     const end = itemBytesAt + (itemBytes ? this.pieceBytes + 16 : 0);
-    const { Instance, Memory } = webAssembly();
-    const memory = new Memory({ initial: Math.ceil(end / PAGE) + 1 });
-    this.kernel = new Instance(module, { env: { memory, abort: kernelAbort } }).exports as unknown as KernelExports;
+    const { exports, memory } = instantiateKernel<KernelExports>(module, end, kernelAbort);
+    this.kernel = exports;
     const buffer = memory.buffer;
     new Int32Array(buffer, rolesAt, fieldCount).set(roleOf);
     new Float64Array(buffer, pow10At, POW10.length).set(POW10);

@@ -67,8 +67,8 @@ export function* formatJsonPieces(input: ReportInput): Generator<ReportPiece> {
     // Records rendered while scoring carry no query facts: with a queries table (or none rendered) they are rendered here.
     const spec = { metrics: ev.metrics, names: packNames(input.queryNames), facts: input.facts, notRetrieved };
     for (let from = 0; from < ev.queryCount; from += RECORDS_PER_PIECE) {
-      const text = renderQueryRecords(spec, ev.perQuery, from, Math.min(ev.queryCount, from + RECORDS_PER_PIECE));
-      yield from === 0 ? text : `,\n${text}`;
+      if (from > 0) yield ',\n';
+      yield renderQueryRecords(spec, ev.perQuery, from, Math.min(ev.queryCount, from + RECORDS_PER_PIECE));
     }
   }
   yield '\n ]\n}\n';

@@ -15,6 +15,7 @@ import type { StringPool } from '../model/stringPool';
 import type { PerQueryColumns } from '../evaluate/types';
 import type { QueryFacts } from '../tables/queryFacts';
 import { recordColumns } from './reportInput';
+import { escapedName, escapedText, recordBytes, type RecordField } from './recordTextKernel';
 
 /**
  * Query names in a form copied to workers cheaply: UTF-8 bytes one after another (name q is
@@ -47,9 +48,12 @@ export function packNames(pool: StringPool): PackedNames {
   return { bytes, ends };
 }
 
+function nameBytes(names: { readonly bytes: Uint8Array; readonly ends: Uint32Array }, q: number): Uint8Array {
+  return names.bytes.subarray(q === 0 ? 0 : names.ends[q - 1]!, names.ends[q]!);
+}
+
 function nameOf(names: PackedNames, q: number): string {
-  if ('texts' in names) return names.texts[q]!;
-  return decoder.decode(names.bytes.subarray(q === 0 ? 0 : names.ends[q - 1]!, names.ends[q]!));
+  return 'texts' in names ? names.texts[q]! : decoder.decode(nameBytes(names, q));
 }
 
 /** What `JSON.stringify({ queries: [...] }, null, 1)` writes around the records, cut off so they stay two spaces deep. */
@@ -58,11 +62,40 @@ const WRAPPER_TAIL = '\n ]\n}'.length;
 
 /**
  * Records of queries [from, to), each as `JSON.stringify(…, null, 1)` writes an element of the
- * document's `queries` array (two spaces deep), separated by ",\n"; "" for an empty range.
- * They are built as objects and stringified: V8's serializer turns numbers into text without a
+ * document's `queries` array (two spaces deep), separated by ",\n"; "" for an empty range. Written as
+ * UTF-8 bytes by the record writer (recordTextKernel.ts) when it can run here and the records carry no
+ * query facts; otherwise as text by stringifyQueryRecords. The two agree to the byte.
+ */
+export function renderQueryRecords(spec: QueryRecordsSpec, perQuery: PerQueryColumns, from: number, to: number): string | Uint8Array {
+  if (to <= from) return '';
+  if (spec.facts === undefined) {
+    const bytes = recordBytes(recordFields(spec, perQuery), from, to);
+    if (bytes !== undefined) return bytes;
+  }
+  return stringifyQueryRecords(spec, perQuery, from, to);
+}
+
+/** The records' properties in order, for the record writer. */
+function recordFields(spec: QueryRecordsSpec, perQuery: PerQueryColumns): RecordField[] {
+  const { names } = spec;
+  const fields: RecordField[] = [
+    'texts' in names
+      ? { key: 'query', kind: 'name', escaped: (q) => escapedText(names.texts[q]!) }
+      : { key: 'query', kind: 'name', escaped: (q) => escapedName(nameBytes(names, q)), packed: names },
+    { key: 'items', kind: 'uint', values: perQuery.items },
+    { key: 'relevant', kind: 'uint', values: perQuery.relevant },
+  ];
+  if (spec.notRetrieved) fields.push({ key: 'notRetrieved', kind: 'uint', values: perQuery.unretrieved ?? new Uint32Array(perQuery.items.length) });
+  for (const column of recordColumns(spec.metrics, perQuery)) fields.push({ key: column.key, kind: 'number', values: column.values });
+  fields.push({ key: 'skipped', kind: 'flag', values: perQuery.skipped });
+  return fields;
+}
+
+/**
+ * renderQueryRecords as text, from objects stringified: V8's serializer turns numbers into text without a
  * string per number, which measured 1.5× faster than concatenating the text by hand.
  */
-export function renderQueryRecords(spec: QueryRecordsSpec, perQuery: PerQueryColumns, from: number, to: number): string {
+export function stringifyQueryRecords(spec: QueryRecordsSpec, perQuery: PerQueryColumns, from: number, to: number): string {
   if (to <= from) return '';
   const columns = recordColumns(spec.metrics, perQuery);
   const { items, relevant, skipped } = perQuery;
