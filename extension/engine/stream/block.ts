@@ -310,15 +310,3 @@ function distinctGrades(label: Float64Array, unretrieved: Float64Array | undefin
   for (const g of unretrieved ?? []) seen.add(g);
   return [...seen];
 }
-
-
-/** The buffers of a result, to transfer rather than copy between threads. */
-export function blockTransferList(result: BlockResult): ArrayBuffer[] {
-  if (result.kind !== 'rows') return [];
-  const s = result.scored;
-  const p = s.perQuery;
-  const views: ArrayBufferView[] = [s.start, s.end, s.line, s.rows, ...(s.weight ? [s.weight] : []), p.items, p.relevant, ...p.values, p.inversions, p.inversionCost, p.skipped,
-    ...(p.unretrieved ? [p.unretrieved] : []), ...(p.rbpResidual ? [p.rbpResidual] : []),
-    ...(s.sensitivity ? [...s.sensitivity.value, ...s.sensitivity.entered] : [])];
-  return views.map((v) => v.buffer as ArrayBuffer);
-}
