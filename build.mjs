@@ -2,7 +2,7 @@
 // packaged extension ships no node_modules.
 import * as esbuild from 'esbuild';
 import { chmodSync, copyFileSync, existsSync, mkdirSync } from 'node:fs';
-import { compileRecordKernel, compileRecordTextKernel } from './extension/engine/readers/kernel/compile.mjs';
+import { compileKeySortKernel, compileRecordKernel, compileRecordTextKernel } from './extension/engine/readers/kernel/compile.mjs';
 
 const watch = process.argv.includes('--watch');
 const common = { bundle: true, sourcemap: true, logLevel: 'warning', target: 'es2022' };
@@ -40,8 +40,9 @@ if (watch) {
   for (const e of present) (await esbuild.context(e)).watch();
 } else {
   mkdirSync('dist', { recursive: true });
-  // The WebAssembly kernels (reading delimited text, writing the JSON report's records) are found next to the bundles.
-  await Promise.all([...present.map((e) => esbuild.build(e)), compileRecordKernel('dist/simpleRecords.wasm'), compileRecordTextKernel('dist/recordText.wasm')]);
+  // The WebAssembly kernels (reading delimited text, sorting a query's items, writing the JSON report's records) are found next to the bundles.
+  await Promise.all([...present.map((e) => esbuild.build(e)), compileRecordKernel('dist/simpleRecords.wasm'), compileKeySortKernel('dist/keySort.wasm'),
+    compileRecordTextKernel('dist/recordText.wasm')]);
   if (existsSync('dist/cli.js')) chmodSync('dist/cli.js', 0o755);
 }
 

@@ -59,7 +59,7 @@ const nodeBuiltins = {
 
 export default tseslint.config(
   {
-    ignores: ['dist/**', 'node_modules/**', '.e2e/**', 'test-artifacts/**', 'extension/engine/readers/kernel/**', 'extension/engine/report/kernel/**',
+    ignores: ['dist/**', 'node_modules/**', '.e2e/**', 'test-artifacts/**', 'extension/engine/readers/kernel/**', 'extension/engine/report/kernel/**', 'extension/engine/evaluate/kernel/**',
       'test/lint/fixtures/**', '**/*.d.mts'],
   },
   ...tseslint.configs.recommended,

@@ -18,6 +18,8 @@ import { readDump as readDumpFile, readJudgments, type ReadOptions } from './rea
 import type { JudgmentTable } from './readers/judgments';
 import { chooseReading, type ReadingMode } from './stream/choose';
 import { streamEvaluate, type StreamedDump, type StreamEvaluateOptions } from './stream/streamEvaluate';
+// Lets the scoring sort with the WebAssembly kernel (evaluate/ranking.ts).
+import './evaluate/keySortKernel';
 import { streamJudgments } from './stream/streamJudgments';
 import { readTextTable } from './tables/readTable';
 

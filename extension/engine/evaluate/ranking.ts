@@ -9,6 +9,23 @@ import type { GroupedList } from '../metrics/listMetrics';
 import { IndexSorter } from './sortIndex';
 
 /**
+ * A faster sort giving IndexSorter's order, into whose memory the keys are written (the WebAssembly one,
+ * keySortKernel.ts, which registers itself when a Node entry point loads it; this module also runs where
+ * there is no Node).
+ */
+export interface KeyOrderSorter {
+  readonly capacity: number;
+  readonly keys: Float64Array;
+  readonly order: Uint32Array;
+  sort(n: number): void;
+}
+let kernelSorter: () => KeyOrderSorter | undefined = () => undefined;
+
+export function useKernelSorter(make: () => KeyOrderSorter | undefined): void {
+  kernelSorter = make;
+}
+
+/**
  * The items already met in the current query: a small open-addressing set, sized to the query and
  * emptied by moving to a new stamp. (One mark per item of the whole dump was simpler, but with
  * millions of items nearly every look-up missed the CPU caches.)
@@ -96,6 +113,8 @@ export class QueryRanking {
   private arrangedUnjudged = new Uint8Array(0);
   private singletons = new Uint32Array(0);
   private readonly sorter = new IndexSorter();
+  /** The WebAssembly sort of this thread, when it can run (the same order, faster). */
+  private readonly kernel = kernelSorter();
 
   private ensure(n: number): void {
     if (this.row.length >= n) return;
@@ -128,10 +147,12 @@ export class QueryRanking {
     this.unretrieved = 0;
     const scores = dump.score;
     const labels = dump.label;
-    const key = this.key;
+    // The kernel's arrays are views of its memory: the keys go straight in and the order comes straight out.
+    const kernel = this.kernel !== undefined && to - from <= this.kernel.capacity ? this.kernel : undefined;
+    const key = kernel?.keys ?? this.key;
     const localRow = this.localRow;
     const localGrade = this.localGrade;
-    const idx = this.idx;
+    const idx = kernel?.order ?? this.idx;
     const firstRows = dump.itemKey;
     // Without keys, the query's items go through the set (a new stamp empties it). With them, `item` is
     // not even read: a reader that keeps item bytes per row makes it on first use, at a cost.
@@ -145,12 +166,16 @@ export class QueryRanking {
       key[n] = s === s ? s : -Infinity;
       localRow[n] = r;
       localGrade[n] = labels[r]!;
-      idx[n] = n;
       n++;
     }
     this.n = n;
     this.duplicates = to - from - n;
-    this.sorter.sortDescending(idx, key, n);
+    if (kernel !== undefined) {
+      if (n > 0) kernel.sort(n);
+    } else {
+      for (let i = 0; i < n; i++) idx[i] = i;
+      this.sorter.sortDescending(idx, key, n);
+    }
 
     const row = this.row;
     const score = this.score;

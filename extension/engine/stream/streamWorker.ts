@@ -7,6 +7,8 @@
  */
 import { parentPort } from 'node:worker_threads';
 import { readBlock, type BlockTask } from './block';
+// Lets the scoring sort with the WebAssembly kernel.
+import '../evaluate/keySortKernel';
 
 const port = parentPort!;
 port.on('message', (task: BlockTask) => {

@@ -9,6 +9,8 @@ import { runScoreRangeTask, type ScoreRequests } from './parallelEvaluate';
 import { reportProgress, serveThread, transferring } from './threadServer';
 // Registers the JSON report's per-chunk renderer in this thread (see engine/evaluate/chunkOutput.ts).
 import '../report/jsonRecords';
+// Lets the scoring sort with the WebAssembly kernel.
+import '../evaluate/keySortKernel';
 
 serveThread<ScoreRequests>({
   scoreRange: (task, context) => {

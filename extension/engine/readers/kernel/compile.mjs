@@ -1,5 +1,6 @@
 // Compiles the WebAssembly kernels from AssemblyScript (used by build.mjs and by the tests): the record
-// kernel that reads delimited text, and the writer of the JSON report's records.
+// kernel that reads delimited text, the sort of a query's items by score, and the writer of the JSON
+// report's records.
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 
@@ -21,6 +22,10 @@ async function compileKernel(source, outFile, virtual = {}) {
 
 export async function compileRecordKernel(outFile) {
   await compileKernel(join(here, 'simpleRecords.ts'), outFile);
+}
+
+export async function compileKeySortKernel(outFile) {
+  await compileKernel(join(here, '../../evaluate/kernel/keySort.ts'), outFile);
 }
 
 export async function compileRecordTextKernel(outFile) {
