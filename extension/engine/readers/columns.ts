@@ -86,7 +86,7 @@ export class RowColumns implements RowArrays {
   itemKeysMade = false;
   segmentPools: BytePool[];
   readonly notes: ReaderNotes = emptyNotes();
-  /** Gaps of rows [0, summarisedTo), kept as rows are appended (summariseAppending). */
+  /** Gaps of rows [0, summarisedTo), kept as rows are appended (appendSummary). */
   private summary = addSummaries([]);
   private summarisedTo = 0;
 
@@ -148,13 +148,13 @@ export class RowColumns implements RowArrays {
 
   /**
    * Adds `count` rows about to be appended (from row `this.count` on) to the summary of the rows so far,
-   * from `label` and `score` as the record kernel hands them over (still in the CPU's caches: a pass over the columns at
-   * the end read 16 bytes a row from memory again). Rows appended since the last call by other paths
+   * as the record kernel counted them while parsing (a pass over the columns at the end read 16 bytes a row
+   * from memory again). Rows appended since the last call by other paths
    * are summarised from the columns first, so the summary always covers rows [0, summarisedTo).
    */
-  summariseAppending(label: Float64Array, score: Float64Array, count: number): void {
+  appendSummary(summary: RowSummary, count: number): void {
     this.catchUpSummary();
-    this.summary = addSummaries([this.summary, summariseRows(label, score, 0, count)]);
+    this.summary = addSummaries([this.summary, summary]);
     this.summarisedTo = this.count + count;
   }
 

@@ -16,10 +16,15 @@ import { parseSimpleRecords, POW10, ROLE_ITEM, ROLE_QUERY, ROLE_SEGMENT, type Fa
 interface KernelExports {
   readonly memory: WasmMemory;
   layout(roles: number, pow10: number, previous: number, fields: number, idSlot: number, idStart: number, idEnd: number,
-    idHash: number, label: number, score: number, line: number, start: number, rows: number, itemBytes: number, itemEnd: number): void;
+    idHash: number, label: number, score: number, line: number, start: number, rows: number, itemBytes: number, itemEnd: number,
+    changes: number, changeCount: number): void;
   parse(pos: number, limit: number, delimiter: number, line: number, rankIsScore: number): number;
   stoppedAt(): number;
   lineAfter(): number;
+  unjudgedRows(): number;
+  missingScores(): number;
+  lowestGrade(): number;
+  highestGrade(): number;
 }
 
 let lastMade: { readonly module: WasmModule; readonly key: string; readonly kernel: SimpleRecordsKernel } | undefined;
@@ -43,6 +48,9 @@ export class SimpleRecordsKernel {
   /** The item fields of a call's rows, one after another, and where each row's ends (when asked for). */
   private readonly itemBytesAt: number;
   private readonly itemEnd: Uint32Array;
+  /** Per id slot: the rows of a call whose query or segment bytes differ from the row before, and how many. */
+  private readonly changes: Int32Array;
+  private readonly changeCount: Int32Array;
   /** Per field: the role and, for id fields, the output slot. */
   private readonly fields: { role: number; slot: number }[];
   private readonly records = new Int32Array(64);
@@ -75,7 +83,8 @@ export class SimpleRecordsKernel {
     const pow10At = align(rolesAt + 4 * fieldCount);
     const previousAt = align(pow10At + 8 * POW10.length);
     const idSlotAt = align(previousAt + 8 * fieldCount);
-    const inputAt = align(idSlotAt + 4 * fieldCount);
+    const changeCountAt = align(idSlotAt + 4 * fieldCount);
+    const inputAt = align(changeCountAt + 4 * fieldCount);
     // Room after the input: the kernel finds field ends 16 bytes at a time, reading up to 15 bytes past its limit.
     const idStartAt = align(inputAt + this.pieceBytes + 16);
     const idEndAt = idStartAt + 4 * slots * this.rowsPerCall;
@@ -87,7 +96,8 @@ export class SimpleRecordsKernel {
     const itemEndAt = startAt + 4 * this.rowsPerCall;
     const itemBytesAt = itemEndAt + 4 * this.rowsPerCall;
     // The kernel copies item bytes 16 at a time: up to 15 bytes past the last item's end.
-    const end = itemBytesAt + (itemBytes ? this.pieceBytes + 16 : 0);
+    const changesAt = align(itemBytesAt + (itemBytes ? this.pieceBytes + 16 : 0));
+    const end = changesAt + 4 * slots * this.rowsPerCall;
     const { exports, memory } = instantiateKernel<KernelExports>(module, end, kernelAbort);
     this.kernel = exports;
     const buffer = memory.buffer;
@@ -95,7 +105,9 @@ export class SimpleRecordsKernel {
     new Float64Array(buffer, pow10At, POW10.length).set(POW10);
     new Int32Array(buffer, idSlotAt, fieldCount).set(this.fields.map((f) => f.slot));
     this.kernel.layout(rolesAt, pow10At, previousAt, fieldCount, idSlotAt, idStartAt, idEndAt, idHashAt, labelAt, scoreAt, lineAt, startAt,
-      this.rowsPerCall, itemBytes ? itemBytesAt : 0, itemEndAt);
+      this.rowsPerCall, itemBytes ? itemBytesAt : 0, itemEndAt, changesAt, changeCountAt);
+    this.changes = new Int32Array(buffer, changesAt, slots * this.rowsPerCall);
+    this.changeCount = new Int32Array(buffer, changeCountAt, fieldCount);
     this.itemBytesAt = itemBytes ? itemBytesAt : 0;
     this.itemEnd = new Uint32Array(buffer, itemEndAt, this.rowsPerCall);
     this.input = inputAt;
@@ -147,7 +159,6 @@ export class SimpleRecordsKernel {
     const rows = state.rows!;
     if (rows.count + count > rows.capacity) rows.reserve(Math.max(rows.count + count, rows.capacity * 1.5 + 1024));
     const first = rows.count;
-    const bytes = this.bytes;
     for (let f = 0; f < this.fields.length; f++) {
       const { role, slot } = this.fields[f]!;
       if (slot < 0) continue;
@@ -155,14 +166,15 @@ export class SimpleRecordsKernel {
       if (role === ROLE_ITEM) {
         this.internItems(rows, first, at, count);
       } else if (role === ROLE_QUERY) {
-        state.lastQuery = internRuns(rows.queries, rows.query, first, bytes, this.idStart, this.idEnd, this.idHash, at, count, state.lastQuery);
+        state.lastQuery = this.internRuns(rows.queries, rows.query, first, slot, count, state.lastQuery);
       } else {
         const k = role - ROLE_SEGMENT;
-        state.lastSegment[k] = internRuns(rows.segmentPools[k]!, rows.segmentIds[k]!, first, bytes, this.idStart, this.idEnd, this.idHash, at, count,
-          state.lastSegment[k]!);
+        state.lastSegment[k] = this.internRuns(rows.segmentPools[k]!, rows.segmentIds[k]!, first, slot, count, state.lastSegment[k]!);
       }
     }
-    rows.summariseAppending(this.label, this.score, count);
+    const kernel = this.kernel;
+    rows.appendSummary({ unjudged: kernel.unjudgedRows(), missing: kernel.missingScores(), lowest: kernel.lowestGrade(), highest: kernel.highestGrade() },
+      count);
     rows.label.set(this.label.subarray(0, count), first);
     rows.score.set(this.score.subarray(0, count), first);
     rows.line.set(this.line.subarray(0, count), first);
@@ -172,6 +184,27 @@ export class SimpleRecordsKernel {
     for (let r = 0; r < count; r++) offset[first + r] = start[r]! + add;
     rows.count = first + count;
     engineActivity().kernelRows += count;
+  }
+
+  /**
+   * Query and segment ids of the `count` rows from `first`, from the rows the kernel listed as changing
+   * (every other row repeats the row before: one fill per run); a changed row tries the last id first.
+   */
+  private internRuns(pool: BytePool, out: Uint32Array<ArrayBufferLike>, first: number, slot: number, count: number, last: number): number {
+    const at = slot * this.rowsPerCall;
+    const { bytes, idStart, idEnd, idHash, changes } = this;
+    let row = 0;
+    // A record the kernel gave back after reading its ids may be listed last: it is not among the rows.
+    for (let k = 0; k < this.changeCount[slot]! && changes[at + k]! < count; k++) {
+      const changed = changes[at + k]!;
+      if (changed > row) out.fill(last, first + row, first + changed);
+      const i = at + changed;
+      if (last < 0 || !pool.matches(last, bytes, idStart[i]!, idEnd[i]!)) last = pool.internHashed(bytes, idStart[i]!, idEnd[i]!, idHash[i]!);
+      out[first + changed] = last;
+      row = changed + 1;
+    }
+    if (count > row) out.fill(last, first + row, first + count);
+    return last;
   }
 
   /** Item ids in batches of 64: warm the table slots of a batch first, so their cache misses overlap. */
@@ -197,20 +230,6 @@ export class SimpleRecordsKernel {
       }
     }
   }
-}
-
-/** Query and segment ids: a start of -1 means the same bytes as the row before; otherwise try the last id first. */
-function internRuns(pool: BytePool, out: Uint32Array<ArrayBufferLike>, first: number, bytes: Uint8Array, idStart: Int32Array, idEnd: Int32Array,
-  idHash: Int32Array, at: number, count: number, last: number): number {
-  for (let r = 0; r < count; r++) {
-    const s = idStart[at + r]!;
-    if (s >= 0) {
-      const e = idEnd[at + r]!;
-      if (last < 0 || !pool.matches(last, bytes, s, e)) last = pool.internHashed(bytes, s, e, idHash[at + r]!);
-    }
-    out[first + r] = last;
-  }
-  return last;
 }
 
 function isId(role: number): boolean {
