@@ -17,14 +17,10 @@ interface KernelExports {
   readonly memory: WasmMemory;
   layout(roles: number, pow10: number, previous: number, fields: number, idSlot: number, idStart: number, idEnd: number,
     idHash: number, label: number, score: number, line: number, start: number, rows: number, itemBytes: number, itemEnd: number,
-    changes: number, changeCount: number): void;
+    changes: number, changeCount: number, summary: number): void;
   parse(pos: number, limit: number, delimiter: number, line: number, rankIsScore: number): number;
   stoppedAt(): number;
   lineAfter(): number;
-  unjudgedRows(): number;
-  missingScores(): number;
-  lowestGrade(): number;
-  highestGrade(): number;
 }
 
 let lastMade: { readonly module: WasmModule; readonly key: string; readonly kernel: SimpleRecordsKernel } | undefined;
@@ -51,6 +47,8 @@ export class SimpleRecordsKernel {
   /** Per id slot: the rows of a call whose query or segment bytes differ from the row before, and how many. */
   private readonly changes: Int32Array;
   private readonly changeCount: Int32Array;
+  /** The last call's rows without a grade, rows without a score, lowest and highest grade. */
+  private readonly summary: Float64Array;
   /** Per field: the role and, for id fields, the output slot. */
   private readonly fields: { role: number; slot: number }[];
   private readonly records = new Int32Array(64);
@@ -84,7 +82,8 @@ export class SimpleRecordsKernel {
     const previousAt = align(pow10At + 8 * POW10.length);
     const idSlotAt = align(previousAt + 8 * fieldCount);
     const changeCountAt = align(idSlotAt + 4 * fieldCount);
-    const inputAt = align(changeCountAt + 4 * fieldCount);
+    const summaryAt = align(changeCountAt + 4 * fieldCount);
+    const inputAt = align(summaryAt + 8 * 4);
     // Room after the input: the kernel finds field ends 16 bytes at a time, reading up to 15 bytes past its limit.
     const idStartAt = align(inputAt + this.pieceBytes + 16);
     const idEndAt = idStartAt + 4 * slots * this.rowsPerCall;
@@ -105,7 +104,8 @@ export class SimpleRecordsKernel {
     new Float64Array(buffer, pow10At, POW10.length).set(POW10);
     new Int32Array(buffer, idSlotAt, fieldCount).set(this.fields.map((f) => f.slot));
     this.kernel.layout(rolesAt, pow10At, previousAt, fieldCount, idSlotAt, idStartAt, idEndAt, idHashAt, labelAt, scoreAt, lineAt, startAt,
-      this.rowsPerCall, itemBytes ? itemBytesAt : 0, itemEndAt, changesAt, changeCountAt);
+      this.rowsPerCall, itemBytes ? itemBytesAt : 0, itemEndAt, changesAt, changeCountAt, summaryAt);
+    this.summary = new Float64Array(buffer, summaryAt, 4);
     this.changes = new Int32Array(buffer, changesAt, slots * this.rowsPerCall);
     this.changeCount = new Int32Array(buffer, changeCountAt, fieldCount);
     this.itemBytesAt = itemBytes ? itemBytesAt : 0;
@@ -172,9 +172,8 @@ export class SimpleRecordsKernel {
         state.lastSegment[k] = this.internRuns(rows.segmentPools[k]!, rows.segmentIds[k]!, first, slot, count, state.lastSegment[k]!);
       }
     }
-    const kernel = this.kernel;
-    rows.appendSummary({ unjudged: kernel.unjudgedRows(), missing: kernel.missingScores(), lowest: kernel.lowestGrade(), highest: kernel.highestGrade() },
-      count);
+    const summary = this.summary;
+    rows.appendSummary({ unjudged: summary[0]!, missing: summary[1]!, lowest: summary[2]!, highest: summary[3]! }, count);
     rows.label.set(this.label.subarray(0, count), first);
     rows.score.set(this.score.subarray(0, count), first);
     rows.line.set(this.line.subarray(0, count), first);

@@ -44,6 +44,7 @@ let itemBytesAt: usize = 0; // the item fields' bytes, one after another (0: not
 let itemEndAt: usize = 0; // u32 per row: end of the row's item bytes there
 let changesAt: usize = 0; // per id slot, per row: i32 rows whose query or segment bytes differ from the row before
 let changeCountAt: usize = 0; // i32 per id slot: how many rows are listed there
+let summaryAt: usize = 0; // f64 × 4: the last call's unjudged rows, rows without a score, lowest and highest grade
 let maxRows: i32 = 0;
 
 /**
@@ -53,7 +54,8 @@ let maxRows: i32 = 0;
  */
 export function layout(roles: usize, pow10: usize, previous: usize, fields: i32, idSlot: usize, idStart: usize, idEnd: usize,
   idHash: usize, label: usize, score: usize, line: usize, start: usize, rows: i32, itemBytes: usize, itemEnd: usize, changes: usize,
-  changeCount: usize): void {
+  changeCount: usize, summary: usize): void {
+  summaryAt = summary;
   changesAt = changes;
   changeCountAt = changeCount;
   itemBytesAt = itemBytes;
@@ -77,27 +79,12 @@ export function layout(roles: usize, pow10: usize, previous: usize, fields: i32,
 let endPosition: u32 = 0;
 let endLine: u32 = 0;
 // Over the rows of the last call, as model/rowSummary.ts counts them: rows without a grade, rows without a
-// score, and the judged grades' extremes (Infinity and -Infinity when none is judged).
+// score, and the judged grades' extremes (Infinity and -Infinity when none is judged), written at the
+// end of a call as four doubles at summaryAt.
 let unjudged: i32 = 0;
 let missing: i32 = 0;
 let lowest: f64 = Infinity;
 let highest: f64 = -Infinity;
-
-export function unjudgedRows(): i32 {
-  return unjudged;
-}
-
-export function missingScores(): i32 {
-  return missing;
-}
-
-export function lowestGrade(): f64 {
-  return lowest;
-}
-
-export function highestGrade(): f64 {
-  return highest;
-}
 
 export function stoppedAt(): u32 {
   return endPosition;
@@ -287,5 +274,9 @@ export function parse(pos: u32, limit: u32, delimiter: u32, line: u32, rankIsSco
   }
   endPosition = pos;
   endLine = line;
+  store<f64>(summaryAt, <f64>unjudged);
+  store<f64>(summaryAt, <f64>missing, 8);
+  store<f64>(summaryAt, lowest, 16);
+  store<f64>(summaryAt, highest, 24);
   return row;
 }

@@ -124,41 +124,42 @@ function shortest(ieeeMantissa: u64, ieeeExponent: i32): void {
   let e10: i32;
   let vmIsTrailingZeros = false;
   let vrIsTrailingZeros = false;
+  // The three bounds times 10^-e10, from the table entry of 5^-q (e2 ≥ 0) or 5^i (e2 < 0).
+  let q: i32;
+  let shift: i32;
+  let lo: u64;
+  let hi: u64;
   if (e2 >= 0) {
-    const q = log10Pow2(e2) - (e2 > 3 ? 1 : 0);
+    q = log10Pow2(e2) - (e2 > 3 ? 1 : 0);
     e10 = q;
-    const k = POW5_INV_BITCOUNT + pow5bits(q) - 1;
-    const i = -e2 + q + k;
-    const lo = unchecked(POW5_INV_SPLIT[q << 1]);
-    const hi = unchecked(POW5_INV_SPLIT[(q << 1) + 1]);
-    vr = multiplyShift(mv, lo, hi, i);
-    vp = multiplyShift(mp, lo, hi, i);
-    vm = multiplyShift(mm, lo, hi, i);
+    shift = -e2 + q + POW5_INV_BITCOUNT + pow5bits(q) - 1;
+    lo = unchecked(POW5_INV_SPLIT[q << 1]);
+    hi = unchecked(POW5_INV_SPLIT[(q << 1) + 1]);
+  } else {
+    q = log10Pow5(-e2) - (-e2 > 1 ? 1 : 0);
+    e10 = q + e2;
+    const i = -e2 - q;
+    shift = q - (pow5bits(i) - POW5_BITCOUNT);
+    lo = unchecked(POW5_SPLIT[i << 1]);
+    hi = unchecked(POW5_SPLIT[(i << 1) + 1]);
+  }
+  vr = multiplyShift(mv, lo, hi, shift);
+  vp = multiplyShift(mp, lo, hi, shift);
+  vm = multiplyShift(mm, lo, hi, shift);
+  if (e2 >= 0) {
     if (q <= 21) {
       // At most one of mp, mv and mm is a multiple of 5.
       if (mv % 5 == 0) vrIsTrailingZeros = multipleOfPowerOf5(mv, q);
       else if (acceptBounds) vmIsTrailingZeros = multipleOfPowerOf5(mm, q);
       else vp -= multipleOfPowerOf5(mp, q) ? 1 : 0;
     }
-  } else {
-    const q = log10Pow5(-e2) - (-e2 > 1 ? 1 : 0);
-    e10 = q + e2;
-    const i = -e2 - q;
-    const k = pow5bits(i) - POW5_BITCOUNT;
-    const j = q - k;
-    const lo = unchecked(POW5_SPLIT[i << 1]);
-    const hi = unchecked(POW5_SPLIT[(i << 1) + 1]);
-    vr = multiplyShift(mv, lo, hi, j);
-    vp = multiplyShift(mp, lo, hi, j);
-    vm = multiplyShift(mm, lo, hi, j);
-    if (q <= 1) {
-      // mv = 4·m2 has at least two trailing zero bits; mm has one exactly when mmShift is 1; mp always has one.
-      vrIsTrailingZeros = true;
-      if (acceptBounds) vmIsTrailingZeros = mmShift == 1;
-      else vp--;
-    } else if (q < 63) {
-      vrIsTrailingZeros = multipleOfPowerOf2(mv, q);
-    }
+  } else if (q <= 1) {
+    // mv = 4·m2 has at least two trailing zero bits; mm has one exactly when mmShift is 1; mp always has one.
+    vrIsTrailingZeros = true;
+    if (acceptBounds) vmIsTrailingZeros = mmShift == 1;
+    else vp--;
+  } else if (q < 63) {
+    vrIsTrailingZeros = multipleOfPowerOf2(mv, q);
   }
 
   // Drop digits while the interval still holds a shorter number.
