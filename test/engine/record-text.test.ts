@@ -153,6 +153,18 @@ describe('records', () => {
     expect(Buffer.from(written).equals(Buffer.from(encoder.encode(stringifyQueryRecords(spec, perQuery, 0, n))))).toBe(true);
   });
 
+  it('sizes its batches for the widest numbers there are: 25 bytes', () => {
+    // "-0.0000012345678901234567" is as long as a double's text gets; a batch sized for less would overrun.
+    const { spec, perQuery } = randomCase(11, 20_000);
+    // Every value as wide as it gets: the batch must still fit.
+    for (const column of [...perQuery.values, perQuery.inversions, perQuery.rbpResidual!]) column.fill(-1.2345678901234567e-6);
+    for (const column of [perQuery.items, perQuery.relevant, perQuery.unretrieved].filter((c) => c !== undefined)) column.fill(4294967295);
+    perQuery.skipped.fill(0);
+    const written = renderQueryRecords(spec, perQuery, 0, 20_000) as Uint8Array;
+    expect(written).toBeInstanceOf(Uint8Array);
+    expect(Buffer.from(written).equals(Buffer.from(encoder.encode(stringifyQueryRecords(spec, perQuery, 0, 20_000))))).toBe(true);
+  });
+
   it('leaves to the object path what it cannot write: a record larger than its memory, keys an object would reorder', () => {
     const { spec, perQuery } = randomCase(3, 3);
     const huge = new BytePool();
