@@ -1,7 +1,7 @@
 /**
  * Runs the WebAssembly sort (kernel/keySort.ts) of a query's items by score: the order IndexSorter gives
- * (a stable sort's result is unique; `evaluate-sort.test.ts` compares the two on random lists), about
- * three times as fast. The keys are written straight into the kernel's memory through `keys`, and the
+ * (a stable sort's result is unique; `evaluate-sort.test.ts` compares the two on random lists), faster
+ * (17 against 24 ns an item on 100-item lists of random scores). The keys are written straight into the kernel's memory through `keys`, and the
  * order read from `order`, so nothing is copied. A list longer than `capacity`, or a thread without the
  * compiled kernel, is sorted by IndexSorter. Loading this module makes QueryRanking use it: every Node
  * entry point that scores imports it (engine/index.ts and the thread scripts).
