@@ -9,12 +9,11 @@
  */
 import { engineActivity, engineSettings } from '../config';
 import type { BytePool } from '../model/bytePool';
-import { instantiateKernel, kernelModule, type WasmMemory, type WasmModule } from '../wasmKernels';
+import { instantiateKernel, kernelModule, type WasmModule } from '../wasmKernels';
 import type { RowColumns } from './columns';
 import { parseSimpleRecords, POW10, ROLE_ITEM, ROLE_QUERY, ROLE_SEGMENT, type FastState } from './delimitedFast';
 
 interface KernelExports {
-  readonly memory: WasmMemory;
   layout(roles: number, pow10: number, previous: number, fields: number, idSlot: number, idStart: number, idEnd: number,
     idHash: number, label: number, score: number, line: number, start: number, rows: number, itemBytes: number, itemEnd: number,
     changes: number, changeCount: number, summary: number): void;
