@@ -134,6 +134,18 @@ describe('item bytes per row', () => {
     expect(texts.internAll().pool.size).toBe(new Set(next.items).size);
   });
 
+  // Queries up to 4096 rows probe a table eight times their size, longer ones a table twice theirs: both
+  // sides of that line, mostly distinct items with repeats among them, against the slow way.
+  it.each([[4096], [4097], [9000]])('one query of %i rows keys as the slow way gives it', (rows) => {
+    const rnd = seededRandom(rows);
+    const items = Array.from({ length: rows }, (_, r) => (rnd() < 0.1 ? `sku-${Math.floor(rnd() * 30)}` : `sku-unique-${r}`));
+    const c: Case = { query: new Uint32Array(rows), items, queryCount: 1 };
+    const texts = textsOf(c, 1);
+    const keys = hashes(c);
+    texts.queryScopedKeys(c.query, keys, 1);
+    expect(Array.from(keys)).toEqual(slowKeys(c));
+  });
+
   it('keys can collide on the hash without merging items', () => {
     // Every row given the same hash: only the byte comparison can tell the items apart.
     const c = randomCase(7, 2_000, true);
