@@ -6,8 +6,7 @@ import { resolve } from 'node:path';
 import { InputError } from '../engine/errors';
 import { evaluateDump, READING_MODES, segmentRowsOf, streamOrRead, type ReadingMode, type StreamPartial } from '../engine/index';
 import { partialHeadlineText, type PartialHeadline } from '../presentation/partialText';
-import { formatReport, formatReportPieces, REPORT_FORMATS, type ReportFormat } from '../engine/report/index';
-import { collectQueryRecords } from '../engine/report/jsonRecords';
+import { formatReport, REPORT_FORMATS, writeReport, type ReportFormat } from '../engine/report/index';
 import { queryFacts, streamedQueryFacts } from '../engine/tables/queryFacts';
 import { withSideTables } from '../engine/tables/join';
 import { conventionHelp, conventionOptions, parseCommandArgs, scoringSetupFrom, type ScoringSetup } from './conventionArgs';
@@ -163,9 +162,8 @@ async function evalFile(path: string, source: string, format: ReportFormat, wors
         const worstOrderBy = values.sort === undefined ? undefined : worstOrder(evaluation, values.sort, worst);
         // In pieces: the JSON records of a million queries are hundreds of MB as one string.
         const facts = streamedQueryFacts(dump);
-        const pieces = formatReportPieces(format, { evaluation, queryNames: dump.queries, source, rowCount: dump.rowCount, ...(facts ? { facts } : {}) },
-          { worst, ...(worstOrderBy ? { worstOrder: worstOrderBy } : {}) });
-        for (const piece of pieces) io.out(piece);
+        await writeReport(format, { evaluation, queryNames: dump.queries, source, rowCount: dump.rowCount, ...(facts ? { facts } : {}) },
+          { worst, ...(worstOrderBy ? { worstOrder: worstOrderBy } : {}) }, io.out, setup.read.threads);
       }
       if (values.timings) {
         io.err(`timings: streamed read and score ${s(scored - started)} s, report ${s(performance.now() - scored)} s (${dump.rowCount} rows; ` +
@@ -189,14 +187,10 @@ async function evalFile(path: string, source: string, format: ReportFormat, wors
       return 0;
     }
     const facts = queryFacts(dump);
-    // The JSON report's records are rendered by the scoring threads, chunk by chunk (see report/jsonRecords.ts);
-    // with a queries table joined they carry query facts and are rendered with the report.
-    const records = format === 'json' && facts === undefined ? collectQueryRecords(setup.metrics, dump.queries, dump.notes.judgments !== undefined) : undefined;
     const evaluation = await evaluateDump(dump, setup.metrics, setup.conventions, {
       onProgress: progress?.scoring,
       sensitivity,
       threads: setup.read.threads,
-      ...(records ? { perChunk: records.output } : {}),
     });
     const scored = performance.now();
     progress?.done();
@@ -205,9 +199,8 @@ async function evalFile(path: string, source: string, format: ReportFormat, wors
       return 0;
     }
     const worstOrderBy = values.sort === undefined ? undefined : worstOrder(evaluation, values.sort, worst);
-    const input = { evaluation, queryNames: dump.queries, source, rowCount: dump.rowCount, ...(facts ? { facts } : {}),
-      ...(records ? { queryRecords: records.pieces() } : {}) };
-    for (const piece of formatReportPieces(format, input, { worst, ...(worstOrderBy ? { worstOrder: worstOrderBy } : {}) })) io.out(piece);
+    const input = { evaluation, queryNames: dump.queries, source, rowCount: dump.rowCount, ...(facts ? { facts } : {}) };
+    await writeReport(format, input, { worst, ...(worstOrderBy ? { worstOrder: worstOrderBy } : {}) }, io.out, setup.read.threads);
     if (values.timings) {
       io.err(`timings: read ${s(read - started)} s, score ${s(scored - read)} s, report ${s(performance.now() - scored)} s (${dump.rowCount} rows` +
         `${largePagesOn() ? '; large pages' : ''})\n`);

@@ -93,9 +93,11 @@ export interface EngineActivity {
   kernelRows: number;
   /** Dumps whose dump-wide item ids were made from item bytes kept per row (model/rowTexts.ts), ever. */
   itemIdsMade: number;
+  /** Chunks of report text other threads rendered for this thread (threads/renderInOrder.ts), ever. */
+  chunksRenderedElsewhere: number;
 }
 
-const activity: EngineActivity = { liveThreads: 0, kernelRows: 0, itemIdsMade: 0 };
+const activity: EngineActivity = { liveThreads: 0, kernelRows: 0, itemIdsMade: 0, chunksRenderedElsewhere: 0 };
 
 /** The live counters (the engine's threads and kernel add to them). */
 export function engineActivity(): EngineActivity {

@@ -24,7 +24,8 @@ import { streamJudgments } from './stream/streamJudgments';
 import { readTextTable } from './tables/readTable';
 
 export { configureEngine, DEFAULT_TUNING, type EngineConfiguration, type EngineSettings, type EngineTuning } from './config';
-export type { ChunkOutput } from './evaluate/chunkOutput';
+export type { ChunkWork } from './evaluate/chunkOutput';
+export { renderInOrder } from './threads/renderInOrder';
 export type { BaselineMemo, CompareOptions, Comparison } from './compare/compare';
 export { combineCandidates } from './compare/candidates';
 export type { Evaluation } from './evaluate/types';

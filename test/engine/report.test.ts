@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { formatCsv } from '../../extension/engine/report/csv';
-import { formatJson } from '../../extension/engine/report/json';
-import { formatReportPieces } from '../../extension/engine/report/index';
+import { formatJson, jsonFrame } from '../../extension/engine/report/json';
+import { formatReportPieces, writeReport } from '../../extension/engine/report/index';
 import { formatMarkdown } from '../../extension/engine/report/markdown';
 import { packNames, stringifyQueryRecords } from '../../extension/engine/report/jsonRecords';
 import { jsonNumber, queryColumns, worstQueries, type ReportInput } from '../../extension/engine/report/reportInput';
@@ -133,28 +133,30 @@ describe('JSON records rendered by hand', () => {
     expect(pieces.join('')).toBe(slowJson(input));
   });
 
-  it('pre-rendered chunks are written as their bytes, between text pieces, in order', () => {
+  it('written piece by piece (records rendered on this thread), the same bytes as formatJson, records between the frame\'s two halves', async () => {
     const input = fixtureInput();
+    const pieces: (string | Uint8Array)[] = [];
+    await writeReport('json', input, { worst: 10 }, (piece) => pieces.push(piece));
+    const text = Buffer.concat(pieces.map((p) => (typeof p === 'string' ? Buffer.from(p) : p))).toString();
+    expect(text).toBe(formatJson(input));
+    expect(text).toBe(slowJson(input));
+    const frame = jsonFrame(input);
+    expect(pieces[0]).toBe(frame.before);
+    expect(pieces.at(-1)).toBe(frame.after);
+    // Every record is in the one piece between them (three queries, one chunk), rendered as bytes.
+    expect(pieces).toHaveLength(3);
+    expect(pieces[1]).toBeInstanceOf(Uint8Array);
     const spec = { metrics: input.evaluation.metrics, names: packNames(input.queryNames) };
-    const perQuery = input.evaluation.perQuery;
-    const encode = (text: string) => new TextEncoder().encode(text);
-    const chunks = [encode(stringifyQueryRecords(spec, perQuery, 0, 1)), encode(stringifyQueryRecords(spec, perQuery, 1, 3))];
-    const pieces = [...formatReportPieces('json', { ...input, queryRecords: chunks }, { worst: 10 })];
-    // The very buffers handed in, not copies; every other piece is text.
-    expect(pieces.filter((p) => typeof p !== 'string')).toEqual(chunks);
-    expect(pieces.filter((p) => typeof p !== 'string')[0]).toBe(chunks[0]);
-    expect(Buffer.concat(pieces.map((p) => (typeof p === 'string' ? Buffer.from(p) : p))).toString()).toBe(slowJson(input));
+    expect(new TextDecoder().decode(pieces[1] as Uint8Array)).toBe(stringifyQueryRecords(spec, input.evaluation.perQuery, 0, 3));
+    expect(stringifyQueryRecords(spec, input.evaluation.perQuery, 2, 2)).toBe('');
   });
 
-  it('pre-rendered chunks are joined in order, and the same text comes out', () => {
+  it('with no queries the frame alone is the document, and parses', () => {
     const input = fixtureInput();
-    const spec = { metrics: input.evaluation.metrics, names: packNames(input.queryNames) };
-    const perQuery = input.evaluation.perQuery;
-    const chunks = [stringifyQueryRecords(spec, perQuery, 0, 1), stringifyQueryRecords(spec, perQuery, 1, 3)];
-    expect(stringifyQueryRecords(spec, perQuery, 2, 2)).toBe('');
-    const withChunks = { ...input, queryRecords: chunks.map((text) => new TextEncoder().encode(text)) };
-    expect(formatJson(withChunks)).toBe(formatJson(input));
-    expect(formatJson(input)).toBe(slowJson(input));
+    const empty = { ...input, evaluation: { ...input.evaluation, queryCount: 0 } };
+    const frame = jsonFrame(empty);
+    expect(JSON.parse(frame.before + frame.after).queries).toEqual([]);
+    expect(formatJson(empty)).toBe(frame.before + frame.after);
   });
 });
 

@@ -13,8 +13,6 @@ import type { Evaluation } from '../../extension/engine/evaluate/types';
 import type { Conventions } from '../../extension/engine/metrics/conventions';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
 import { parseMetricList } from '../../extension/engine/metrics/parse';
-import { formatJson } from '../../extension/engine/report/json';
-import { collectQueryRecords } from '../../extension/engine/report/jsonRecords';
 import { buildDump, type TestRow } from '../engine/dumpBuilder';
 import { TempDir } from '../engine/fixtures/readers/tempFiles';
 import { QUERY_NAMES, seededRandom } from '../reference/random';
@@ -98,60 +96,9 @@ describe('parallel scoring', () => {
     expect(dump.notes.judgments!.unretrieved).toBeGreaterThan(1000);
     expect(dump.notes.judgments!.absentQueries).toBeGreaterThan(50);
     const one = evaluate(dump, METRICS, DEFAULT_CONVENTIONS);
-    const records = collectQueryRecords(METRICS, dump.queries, true);
-    const many = await evaluateInParallel(dump, METRICS, DEFAULT_CONVENTIONS, { threads: 3, perChunk: records.output });
+    const many = await evaluateInParallel(dump, METRICS, DEFAULT_CONVENTIONS, { threads: 3 });
     expectIdentical(one, many);
     expect(bytesOf(many.perQuery.unretrieved!)).toEqual(bytesOf(one.perQuery.unretrieved!));
-    const input = { queryNames: dump.queries, source: 'runs/a.csv', rowCount: dump.rowCount };
-    expect(formatJson({ ...input, evaluation: many, queryRecords: records.pieces() })).toBe(formatJson({ ...input, evaluation: one }));
-  });
-
-  it('renders the JSON report records on the scoring threads, the same text as rendering after scoring', async () => {
-    const dump = buildDump(randomRows(31, 2500));
-    const one = evaluate(dump, METRICS, DEFAULT_CONVENTIONS);
-    const records = collectQueryRecords(METRICS, dump.queries, false);
-    const chunks: [number, number][] = [];
-    const output = { ...records.output, onChunk: (from: number, to: number, text: Uint8Array) => {
-      chunks.push([from, to]);
-      records.output.onChunk(from, to, text);
-    } };
-    const many = await evaluateInParallel(dump, METRICS, DEFAULT_CONVENTIONS, { threads: 3, perChunk: output });
-    expectIdentical(one, many);
-    // 3 threads × 16 chunks, each rendered by whichever thread scored it; together they cover every query once.
-    expect(chunks).toHaveLength(48);
-    chunks.sort((a, b) => a[0] - b[0]);
-    chunks.forEach(([from, to], c) => {
-      expect(from).toBe(c === 0 ? 0 : chunks[c - 1]![1]);
-      expect(to).toBeGreaterThan(from);
-    });
-    expect(chunks.at(-1)![1]).toBe(dump.queries.size);
-    const input = { queryNames: dump.queries, source: 'runs/a.csv', rowCount: dump.rowCount };
-    const rendered = formatJson({ ...input, evaluation: many, queryRecords: records.pieces() });
-    expect(rendered).toBe(formatJson({ ...input, evaluation: one }));
-    expect(JSON.parse(rendered).queries).toHaveLength(dump.queries.size);
-    // On one thread the same output arrives in pieces of at most 16,384 queries, in order.
-    const single = collectQueryRecords(METRICS, dump.queries, false);
-    const pieces: [number, number][] = [];
-    evaluate(dump, METRICS, DEFAULT_CONVENTIONS, { perChunk: { ...single.output, onChunk: (from, to, text) => {
-      pieces.push([from, to]);
-      single.output.onChunk(from, to, text);
-    } } });
-    expect(pieces).toEqual([[0, dump.queries.size]]);
-    expect(formatJson({ ...input, evaluation: one, queryRecords: single.pieces() })).toBe(rendered);
-  });
-
-  it('on one thread, hands the records over in pieces of 16,384 queries (all at once could pass V8\'s longest string)', () => {
-    const rows = Array.from({ length: 40_000 }, (_, q) => ({ query: `tape measure ${q}`, item: 'sku-1', label: q % 3, score: q % 7 }));
-    const dump = buildDump(rows);
-    const single = collectQueryRecords(METRICS, dump.queries, false);
-    const pieces: [number, number][] = [];
-    const one = evaluate(dump, METRICS, DEFAULT_CONVENTIONS, { perChunk: { ...single.output, onChunk: (from, to, text) => {
-      pieces.push([from, to]);
-      single.output.onChunk(from, to, text);
-    } } });
-    expect(pieces).toEqual([[0, 16_384], [16_384, 32_768], [32_768, 40_000]]);
-    const input = { queryNames: dump.queries, source: 'runs/a.csv', rowCount: dump.rowCount };
-    expect(formatJson({ ...input, evaluation: one, queryRecords: single.pieces() })).toBe(formatJson({ ...input, evaluation: one }));
   });
 
   it.each([1, 3, 200])('with %i chunks per thread it still matches', async (chunksPerThread) => {

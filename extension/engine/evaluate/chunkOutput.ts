@@ -1,11 +1,9 @@
 /**
- * Work a caller (a reporter) wants done on each chunk of queries right after the chunk is scored,
- * on whichever thread scored it, while the chunk's values are still in cache. The engine knows
- * nothing of what is made: the caller names a renderer that every thread has registered, gives it
- * plain data (copied to the score threads), and receives each chunk's text through `onChunk`, as
- * UTF-8 bytes encoded on the thread that made it. Bytes cross from a score thread without a copy
- * (strings were copied, by the worker after its last chunk and again here: 0.02 s of waiting at the
- * end of a 10M-row scoring), and they are what the writer writes.
+ * Text a reporter makes from a range of scored queries (the JSON report's records), on whichever thread
+ * is free: the engine knows nothing of what is made. The caller names a renderer that every thread has
+ * registered and gives it plain data; threads/renderInOrder.ts hands out the chunks and returns their
+ * text in query order, as UTF-8 bytes encoded on the thread that made them (bytes cross from a thread
+ * without a copy, and they are what the writer writes).
  *
  * A function cannot cross to another thread, so the renderer is found by name: the module that
  * defines one registers it when loaded, and the score thread's entry point loads that module.
@@ -19,15 +17,15 @@ export type ChunkRenderer<P> = (params: P, perQuery: PerQueryColumns, from: numb
 export interface ChunkWork {
   readonly renderer: string;
   readonly params: unknown;
+  /**
+   * The params keep their bulk in shared memory (typed arrays on SharedArrayBuffers), so sending them
+   * with every chunk costs next to nothing; otherwise every chunk is rendered on the calling thread.
+   */
+  readonly shared?: boolean;
 }
 
-export interface ChunkOutput extends ChunkWork {
-  /**
-   * Called on the calling thread once per chunk, chunks in any order; together the chunks cover
-   * every query exactly once (on one thread: a single chunk of all queries).
-   */
-  readonly onChunk: (from: number, to: number, utf8: Uint8Array) => void;
-}
+/** Queries per chunk: 16,384 JSON records are about 6 MB of text (the records of a million pass V8's longest string). */
+export const QUERIES_PER_CHUNK = 16_384;
 
 const renderers = new Map<string, ChunkRenderer<never>>();
 

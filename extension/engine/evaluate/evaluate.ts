@@ -10,7 +10,6 @@ export type { GradeRange } from '../model/rowSummary';
 import { groupByQuery, type QueryGroups } from '../model/groups';
 import type { Conventions } from '../metrics/conventions';
 import { isPairMeasure, metricDefinition, residualMetricIndex, type MetricSpec } from '../metrics/registry';
-import { renderChunk, type ChunkOutput } from './chunkOutput';
 import { checkGainsAndGrades, gainProblem } from './gainLimits';
 import { QueryRanking, SeenItems } from './ranking';
 import { headlineCutoff, QueryScorer } from './scorer';
@@ -25,8 +24,6 @@ export interface EvaluateOptions {
   onProgress?: (fraction: number) => void;
   /** Compute the convention sensitivity rows (default true). */
   sensitivity?: boolean;
-  /** Text the caller wants made from each chunk of scored queries (see chunkOutput.ts). */
-  perChunk?: ChunkOutput;
 }
 
 /**
@@ -68,18 +65,9 @@ export function evaluate(
   const recorded = sensitivity && dump.joined?.queryWeight ? sensitivityColumns(sensitivity, setup.queryCount, (n) => new ArrayBuffer(n)) : undefined;
   if (recorded) sensitivity!.recordInto(recorded);
   const tally = scoreQueryRange(setup, dump, 0, setup.queryCount, perQuery, sensitivity, options);
-  // In pieces, as the scoring threads hand them over: the text of every query at once can pass the longest
-  // string V8 allows (about 500 MB, some 1.4M JSON records).
-  for (let from = 0; options.perChunk && from < setup.queryCount; from += RENDERED_PER_PIECE) {
-    const to = Math.min(setup.queryCount, from + RENDERED_PER_PIECE);
-    options.perChunk.onChunk(from, to, renderChunk(options.perChunk, perQuery, from, to));
-  }
   options.onProgress?.(1);
   return finishEvaluation(setup, dump, perQuery, tally, sensitivity, recorded);
 }
-
-/** Queries per piece of text a caller's per-chunk renderer makes on one thread. */
-const RENDERED_PER_PIECE = 16384;
 
 /** What every range of one evaluation shares: the checked conventions and the query groups. */
 export interface EvaluationSetup {

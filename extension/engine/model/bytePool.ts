@@ -142,6 +142,28 @@ export class BytePool implements StringPool {
     return this.arena.subarray(record + HEADER, record + HEADER + this.lengthAt(record));
   }
 
+  /**
+   * Every id's bytes one after another in id order (id q is bytes[ends[q - 1] (0 for q = 0), ends[q])),
+   * in memory from `allocate`. One loop over the arena: a view per id took twice as long.
+   */
+  packed(allocate: (bytes: number) => ArrayBufferLike): { bytes: Uint8Array; ends: Uint32Array } {
+    const count = this.count;
+    const starts = this.starts;
+    let total = 0;
+    for (let id = 0; id < count; id++) total += this.lengthAt(starts[id]!);
+    const bytes = new Uint8Array(allocate(total));
+    const ends = new Uint32Array(allocate(count * 4));
+    const arena = this.arena;
+    let at = 0;
+    for (let id = 0; id < count; id++) {
+      const from = starts[id]! + HEADER;
+      const to = from + this.lengthAt(starts[id]!);
+      for (let i = from; i < to; i++) bytes[at++] = arena[i]!;
+      ends[id] = at;
+    }
+    return { bytes, ends };
+  }
+
   /** True when id's bytes equal bytes[start, end). */
   matches(id: number, bytes: Uint8Array, start: number, end: number): boolean {
     return this.recordEquals(this.starts[id]!, bytes, start, end);

@@ -1,6 +1,8 @@
 /** Report formats for one evaluated dump; every one is a pure function of the evaluation. */
+import { renderInOrder } from '../threads/renderInOrder';
 import { formatCsv } from './csv';
-import { formatJson, formatJsonPieces, type ReportPiece } from './json';
+import { formatJson, formatJsonPieces, jsonFrame, RECORD_SEPARATOR, type ReportPiece } from './json';
+import { queryRecordsWork } from './jsonRecords';
 import { formatMarkdown } from './markdown';
 import type { ReportInput, WorstOrder } from './reportInput';
 import { formatTable } from './table';
@@ -24,6 +26,28 @@ export function formatReport(format: ReportFormat, input: ReportInput, options: 
 /** formatReport's text in pieces to write in turn, each made as it is asked for (JSON splices its records rather than joining them). */
 export function formatReportPieces(format: ReportFormat, input: ReportInput, options: { readonly worst: number; readonly worstOrder?: WorstOrder }): Iterable<ReportPiece> {
   return format === 'json' ? formatJsonPieces(input) : [formatReport(format, input, options)];
+}
+
+/**
+ * Writes formatReport's text piece by piece. The JSON report's records (without query facts, which are
+ * rendered here) are rendered on this thread and, for many queries, a score thread at once
+ * (threads/renderInOrder.ts), and written in query order as they come; `threads` as renderInOrder takes them.
+ */
+export async function writeReport(format: ReportFormat, input: ReportInput, options: { readonly worst: number; readonly worstOrder?: WorstOrder },
+  write: (piece: ReportPiece) => void, threads?: number): Promise<void> {
+  if (format !== 'json' || input.facts !== undefined) {
+    for (const piece of formatReportPieces(format, input, options)) write(piece);
+    return;
+  }
+  const ev = input.evaluation;
+  const frame = jsonFrame(input);
+  write(frame.before);
+  const work = queryRecordsWork(ev.metrics, input.queryNames, ev.judgments !== undefined);
+  await renderInOrder(work, ev.perQuery, ev.queryCount, (utf8, chunk) => {
+    if (chunk > 0) write(RECORD_SEPARATOR);
+    write(utf8);
+  }, { ...(threads !== undefined ? { threads } : {}) });
+  write(frame.after);
 }
 
 export type { ReportInput } from './reportInput';

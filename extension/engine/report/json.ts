@@ -1,28 +1,46 @@
 /** The evaluation as one JSON document, for scripts and notebooks. */
+import { QUERIES_PER_CHUNK } from '../evaluate/chunkOutput';
 import { packNames, renderQueryRecords } from './jsonRecords';
 import { conventionsAsJson, jsonNumber, type ReportInput } from './reportInput';
 
 /**
  * The document `JSON.stringify(document, null, 1)` would write with a `queries` array of records last.
- * The records are rendered by jsonRecords.ts (or were already, while scoring: `queryRecords`) and spliced in,
- * so 100k query objects are never built only to be stringified.
+ * The records are rendered by jsonRecords.ts and spliced in, so 100k query objects are never built only
+ * to be stringified.
  */
 export function formatJson(input: ReportInput): string {
   const decoder = new TextDecoder();
   return [...formatJsonPieces(input)].map((piece) => (typeof piece === 'string' ? piece : decoder.decode(piece))).join('');
 }
 
-/** A piece of a report to write as it is: text, or text already encoded as UTF-8 (records rendered while scoring). */
+/** A piece of a report to write as it is: text, or text already encoded as UTF-8 (rendered records). */
 export type ReportPiece = string | Uint8Array;
-
-/** Records rendered here (none came rendered) are rendered this many queries at a time, each piece written before the next is made. */
-const RECORDS_PER_PIECE = 16384;
 
 /**
  * formatJson's text in pieces, to write one after another: on 100k queries the records are tens of MB,
- * and joining them into one string (then one buffer to write) held two more copies at the peak.
+ * and joining them into one string (then one buffer to write) held two more copies at the peak. Records
+ * are rendered QUERIES_PER_CHUNK at a time, each piece written before the next is made.
  */
 export function* formatJsonPieces(input: ReportInput): Generator<ReportPiece> {
+  const frame = jsonFrame(input);
+  yield frame.before;
+  const { evaluation: ev } = input;
+  const spec = { metrics: ev.metrics, names: packNames(input.queryNames), facts: input.facts, notRetrieved: ev.judgments !== undefined };
+  for (let from = 0; from < ev.queryCount; from += QUERIES_PER_CHUNK) {
+    if (from > 0) yield RECORD_SEPARATOR;
+    yield renderQueryRecords(spec, ev.perQuery, from, Math.min(ev.queryCount, from + QUERIES_PER_CHUNK));
+  }
+  yield frame.after;
+}
+
+/** Written between two pieces of records (each piece is records separated by the same). */
+export const RECORD_SEPARATOR = ',\n';
+
+/**
+ * The document around its records: `before` ends just inside the `queries` array, `after` closes it and
+ * the document. The records (two spaces deep, RECORD_SEPARATOR between them) go in between.
+ */
+export function jsonFrame(input: ReportInput): { readonly before: string; readonly after: string } {
   const { evaluation: ev } = input;
   const summary: Record<string, number | null> = {};
   const counted: Record<string, number> = {};
@@ -51,25 +69,7 @@ export function* formatJsonPieces(input: ReportInput): Generator<ReportPiece> {
     ...(ev.judgments ? { judgments: ev.judgments } : {}),
   };
   const headText = JSON.stringify(head, null, 1);
-  if (ev.queryCount === 0) {
-    yield `${headText.slice(0, -2)},\n "queries": []\n}\n`;
-    return;
-  }
-  const notRetrieved = ev.judgments !== undefined;
   // headText ends with "\n}": the records go in before that closing brace.
-  yield `${headText.slice(0, -2)},\n "queries": [\n`;
-  if (input.facts === undefined && input.queryRecords !== undefined) {
-    for (let k = 0; k < input.queryRecords.length; k++) {
-      if (k > 0) yield ',\n';
-      yield input.queryRecords[k]!;
-    }
-  } else {
-    // Records rendered while scoring carry no query facts: with a queries table (or none rendered) they are rendered here.
-    const spec = { metrics: ev.metrics, names: packNames(input.queryNames), facts: input.facts, notRetrieved };
-    for (let from = 0; from < ev.queryCount; from += RECORDS_PER_PIECE) {
-      if (from > 0) yield ',\n';
-      yield renderQueryRecords(spec, ev.perQuery, from, Math.min(ev.queryCount, from + RECORDS_PER_PIECE));
-    }
-  }
-  yield '\n ]\n}\n';
+  if (ev.queryCount === 0) return { before: `${headText.slice(0, -2)},\n "queries": [`, after: ']\n}\n' };
+  return { before: `${headText.slice(0, -2)},\n "queries": [\n`, after: '\n ]\n}\n' };
 }

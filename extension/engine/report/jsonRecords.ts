@@ -1,14 +1,13 @@
 /**
  * The per-query records of the JSON report, rendered as text a range of queries at a time.
  *
- * Rendering 100k records turns about 1.4M doubles into text, which on one thread took as long as a
- * third of the scoring. So the scoring threads render each chunk of queries right after scoring it
- * (collectQueryRecords hands the engine this module's renderer as a per-chunk output), and formatJson
- * only joins the pieces. The text is
- * exactly what `JSON.stringify(document, null, 1)` writes for these records, so the two paths agree
- * to the byte (report tests check it against the whole document stringified at once).
+ * Rendering 1M records turns about 15M doubles into text: 0.77 s on one thread. So the command line
+ * has them rendered by this thread and a score thread at once, chunk by chunk, and written as they come
+ * (queryRecordsWork hands threads/renderInOrder.ts this module's renderer); formatJson renders them here.
+ * The text is exactly what `JSON.stringify(document, null, 1)` writes for these records, so the paths
+ * agree to the byte (report tests check it against the whole document stringified at once).
  */
-import { registerChunkRenderer, type ChunkOutput } from '../evaluate/chunkOutput';
+import { registerChunkRenderer, type ChunkWork } from '../evaluate/chunkOutput';
 import type { MetricSpec } from '../metrics/registry';
 import { BytePool } from '../model/bytePool';
 import type { StringPool } from '../model/stringPool';
@@ -36,16 +35,10 @@ export interface QueryRecordsSpec {
 
 const decoder = new TextDecoder('utf-8');
 
+/** Packed in shared memory: sent with every chunk a score thread renders, they are shared rather than copied. */
 export function packNames(pool: StringPool): PackedNames {
-  const count = pool.size;
-  if (!(pool instanceof BytePool)) return { texts: Array.from({ length: count }, (_, q) => pool.get(q)) };
-  let total = 0;
-  const ends = new Uint32Array(count);
-  for (let q = 0; q < count; q++) ends[q] = total += pool.bytesOf(q).length;
-  const bytes = new Uint8Array(total);
-  // bytesOf is a view of the pool's arena: no string is decoded here.
-  for (let q = 0; q < count; q++) bytes.set(pool.bytesOf(q), q === 0 ? 0 : ends[q - 1]!);
-  return { bytes, ends };
+  if (!(pool instanceof BytePool)) return { texts: Array.from({ length: pool.size }, (_, q) => pool.get(q)) };
+  return pool.packed((bytes) => new SharedArrayBuffer(bytes));
 }
 
 function nameBytes(names: { readonly bytes: Uint8Array; readonly ends: Uint32Array }, q: number): Uint8Array {
@@ -127,20 +120,12 @@ export function stringifyQueryRecords(spec: QueryRecordsSpec, perQuery: PerQuery
 const QUERY_RECORDS = 'json-query-records';
 registerChunkRenderer(QUERY_RECORDS, renderQueryRecords);
 
-/** Records rendered chunk by chunk while scoring, and gathered here in query order. */
-export interface QueryRecordsCollector {
-  /** For the engine's `perChunk` option. */
-  readonly output: ChunkOutput;
-  /** The pieces received so far (UTF-8), in query order, empty ones left out (for ReportInput.queryRecords). */
-  pieces(): Uint8Array[];
-}
-
-/** `notRetrieved`: the dump's labels came from a judgments file (records then count judged items never retrieved). */
-export function collectQueryRecords(metrics: readonly MetricSpec[], names: StringPool, notRetrieved: boolean): QueryRecordsCollector {
-  const received: { from: number; text: Uint8Array }[] = [];
+/**
+ * The records of an evaluation's queries as work for renderInOrder. `notRetrieved`: the dump's labels came
+ * from a judgments file (records then count judged items never retrieved). Names a pool holds as strings
+ * (which may not survive UTF-8) are cloned with each chunk sent to a thread: those are rendered here.
+ */
+export function queryRecordsWork(metrics: readonly MetricSpec[], names: StringPool, notRetrieved: boolean): ChunkWork {
   const spec: QueryRecordsSpec = { metrics, names: packNames(names), notRetrieved };
-  return {
-    output: { renderer: QUERY_RECORDS, params: spec, onChunk: (from, _to, text) => received.push({ from, text }) },
-    pieces: () => received.filter((r) => r.text.length > 0).sort((a, b) => a.from - b.from).map((r) => r.text),
-  };
+  return { renderer: QUERY_RECORDS, params: spec, shared: !('texts' in spec.names) };
 }

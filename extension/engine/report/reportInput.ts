@@ -21,11 +21,6 @@ export interface ReportInput {
   readonly rowCount: number;
   /** Query text and segments, when a queries table was joined (tables/queryFacts.ts). */
   readonly facts?: QueryFacts;
-  /**
-   * The JSON report's query records when they were rendered while scoring (collectQueryRecords in
-   * jsonRecords.ts): consecutive query ranges in query order, as UTF-8. Other formats ignore them.
-   */
-  readonly queryRecords?: readonly Uint8Array[];
 }
 
 /** Extra per-query columns shown next to a metric: RBP's residual, tau's inversion count. */

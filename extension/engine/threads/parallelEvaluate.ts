@@ -28,7 +28,6 @@ import {
   type ScoredColumns,
 } from '../evaluate/evaluate';
 import type { SensitivityColumns } from '../evaluate/sensitivity';
-import { renderChunk, type ChunkWork } from '../evaluate/chunkOutput';
 import type { Evaluation, PerQueryColumns } from '../evaluate/types';
 import { freeCores } from '../evaluate/coreMeter';
 import { idleKeptThreads, leasePool } from './keptPools';
@@ -68,14 +67,11 @@ export interface ScoreRangeTask {
   readonly next: Int32Array;
   readonly perQuery: PerQueryColumns;
   readonly sensitivity?: SensitivityColumns;
-  /** Set when the caller wants text made from each chunk too (see chunkOutput.ts). */
-  readonly perChunk?: ChunkWork;
 }
 
-/** What a scoring thread hands back: its counts, and the text of each chunk it scored as [chunk, UTF-8 bytes] pairs. */
+/** What a scoring thread hands back: its counts. */
 export interface ScoreRangeResult {
   readonly tally: RangeTally;
-  readonly chunkTexts: [number, Uint8Array][];
 }
 
 /**
@@ -121,19 +117,12 @@ async function scoreWithWorkers(dump: RankedDump, metrics: readonly MetricSpec[]
     firstAbsentQuery: dump.unretrieved.firstAbsentQuery };
   const items = dump.itemKey !== undefined ? { itemKey: dump.itemKey } : { item: dump.item };
   const columns: ScoredColumns = { ...items, label: dump.label, score: dump.score, ...(side ? { unretrieved: side } : {}) };
-  const output = options.perChunk;
-  const work: ChunkWork | undefined = output && { renderer: output.renderer, params: output.params };
-  const task: ScoreRangeTask = { setup, columns, bounds, next, perQuery, sensitivity: recorded, ...(work ? { perChunk: work } : {}) };
+  const task: ScoreRangeTask = { setup, columns, bounds, next, perQuery, sensitivity: recorded };
   const running = askWorkers(pool, threads - 1, task, options.signal);
   const tally = emptyTally();
   if (engineSettings().tuning.workersFirst) await running.started;
-  const scorer = new RangeScorer(setup, dump, perQuery, sensitivity);
-  const handOver = output && ((chunk: number, text: Uint8Array) => output.onChunk(bounds[chunk]!, bounds[chunk + 1]!, text));
-  claimChunks(scorer, bounds, next, tally, options, work && handOver && { work, perQuery, into: handOver });
-  for (const result of await running.results) {
-    addTally(tally, result.tally);
-    if (handOver) for (const [chunk, text] of result.chunkTexts) handOver(chunk, text);
-  }
+  claimChunks(new RangeScorer(setup, dump, perQuery, sensitivity), bounds, next, tally, options);
+  for (const result of await running.results) addTally(tally, result.tally);
   options.onProgress?.(1);
   if (sensitivity && recorded) sensitivity.sumColumns(recorded, tally.sensitivityNoRelevant);
   // The columns stay in shared memory: nothing transfers an evaluation, and posting one shares them, which
@@ -172,21 +161,12 @@ export function runScoreRangeTask(task: ScoreRangeTask, onFirstClaim?: () => voi
   const sensitivity = task.sensitivity ? newSensitivityPass(task.setup) : undefined;
   if (sensitivity && task.sensitivity) sensitivity.recordInto(task.sensitivity);
   const tally = emptyTally();
-  const chunkTexts: [number, Uint8Array][] = [];
-  const rendering = task.perChunk && { work: task.perChunk, perQuery: task.perQuery, into: (chunk: number, text: Uint8Array) => chunkTexts.push([chunk, text]) };
-  claimChunks(new RangeScorer(task.setup, task.columns, task.perQuery, sensitivity), task.bounds, task.next, tally, {}, rendering, onFirstClaim);
-  return { tally, chunkTexts };
-}
-
-interface ChunkRendering {
-  readonly work: ChunkWork;
-  readonly perQuery: PerQueryColumns;
-  /** Receives the text of each chunk this thread scored. */
-  readonly into: (chunk: number, text: Uint8Array) => void;
+  claimChunks(new RangeScorer(task.setup, task.columns, task.perQuery, sensitivity), task.bounds, task.next, tally, {}, onFirstClaim);
+  return { tally };
 }
 
 function claimChunks(scorer: RangeScorer, bounds: readonly number[], next: Int32Array, tally: RangeTally,
-  options: Pick<EvaluateOptions, 'signal' | 'onProgress'>, rendering: ChunkRendering | undefined, onFirstClaim?: () => void): void {
+  options: Pick<EvaluateOptions, 'signal' | 'onProgress'>, onFirstClaim?: () => void): void {
   const chunks = bounds.length - 1;
   for (;;) {
     const c = Atomics.add(next, 0, 1);
@@ -195,8 +175,6 @@ function claimChunks(scorer: RangeScorer, bounds: readonly number[], next: Int32
     onFirstClaim = undefined;
     options.onProgress?.(c / chunks);
     scorer.score(bounds[c]!, bounds[c + 1]!, tally, { signal: options.signal });
-    // The chunk's values are final once scored, so its text can be made while they are still in cache.
-    if (rendering) rendering.into(c, renderChunk(rendering.work, rendering.perQuery, bounds[c]!, bounds[c + 1]!));
   }
 }
 
