@@ -31,11 +31,14 @@ function randomPlainCsv(seed: number, rows: number): string {
   return out;
 }
 
-function expectSameDump(a: RankedDump, b: RankedDump): void {
+/** `offsets` false: `b` was read without row offsets (ReadOptions.rowOffsets), and has none; all else is the same. */
+function expectSameDump(a: RankedDump, b: RankedDump, offsets = true): void {
   expect(b.rowCount).toBe(a.rowCount);
-  for (const key of ['query', 'item', 'label', 'score', 'line', 'offset'] as const) {
+  for (const key of ['query', 'item', 'label', 'score', 'line', ...(offsets ? ['offset' as const] : [])] as const) {
     expect(Array.from(b[key]), key).toEqual(Array.from(a[key]));
   }
+  if (!offsets) expect(b.offset).toHaveLength(0);
+  expect(a.offset).toHaveLength(a.rowCount);
   // Query-scoped item keys (model/rowTexts.ts), what scoring reads, as well as the dump-wide ids.
   expect(b.itemKey).toBeDefined();
   expect(Array.from(b.itemKey!)).toEqual(Array.from(a.itemKey!));
@@ -62,6 +65,8 @@ describe('parallel parsing', () => {
       expect(multi).toBeDefined();
       expectSameDump(single, multi!);
       expectSameDump(single, await readDump(path, { threads }));
+      // Without row offsets: the parse threads write none, and every other column is the same.
+      expectSameDump(single, (await readParallelDelimited(path, 'csv', 44, threads, { rowOffsets: false }))!, false);
     } finally {
       configureEngine(saved);
     }
@@ -117,7 +122,7 @@ describe('parallel parsing', () => {
     expectSameDump(await readDump(path, { threads: 1 }), await readDump(path, { threads: 3 }));
   });
 
-  it('matches one thread when a range holds more rows than its shared slice was sized for', async () => {
+  it('matches one thread when long rows come first and many short ones after (sizing the slices from both ends of each range)', async () => {
     // Long rows first (they set the bytes-per-row estimate), then many short ones.
     const long = Array.from({ length: 3000 }, (_, i) => `q${i >> 5},sku-${i},1,0.5,${'x'.repeat(200)}`);
     const short = Array.from({ length: 40_000 }, (_, i) => `r${i >> 5},s${i % 977},${i % 3},${i % 11},d`);
@@ -125,6 +130,40 @@ describe('parallel parsing', () => {
     const multi = await readParallelDelimited(path, 'csv', 44, 2, {});
     expect(multi).toBeDefined();
     expectSameDump(await readDump(path, { threads: 1 }), multi!);
+  });
+
+  it('a range far outgrowing its slice goes on in private arrays, merged by copying: the same rows, with or without offsets', async () => {
+    // Two ranges, the second from 3/4 of the rows' bytes (shrinkingShares.ts). Its slice is sized from samples at
+    // its two ends, where the rows are long, but short rows fill its middle: it outgrows the slice many times over.
+    const header = 'query_id,item_id,label,score,device\n';
+    let text = '';
+    let row = 0;
+    const add = (bytes: number, long: boolean) => {
+      for (const end = text.length + bytes; text.length < end; row++) text += `q${row >> 4},sku-${row % 977},${row % 3},${row % 11},${long ? 'x'.repeat(220) : 'd'}\n`;
+    };
+    add(1_580_000, false);
+    add(140_000, true);
+    add(400_000, false);
+    add(80_000, true);
+    const path = tmp.file('par-outgrown.csv', header + text);
+    const saved = configureEngine({ tuning: { parseRangesPerThread: 1 } });
+    try {
+      const single = await readDump(path, { threads: 1 });
+      const multi = await readParallelDelimited(path, 'csv', 44, 2, {});
+      // Merged by copying into fresh arrays (a compaction in place would leave them in shared memory).
+      expect(multi!.query.buffer).not.toBeInstanceOf(SharedArrayBuffer);
+      expectSameDump(single, multi!);
+      const lean = await readParallelDelimited(path, 'csv', 44, 2, { rowOffsets: false });
+      expect(lean!.query.buffer).not.toBeInstanceOf(SharedArrayBuffer);
+      expectSameDump(single, lean!, false);
+    } finally {
+      configureEngine(saved);
+    }
+  });
+
+  it('a read on one thread keeps its row offsets even when not asked to (they cost it little)', async () => {
+    const path = tmp.file('par-one-thread-offsets.csv', randomPlainCsv(31, 500));
+    expectSameDump(await readDump(path, { threads: 1 }), await readDump(path, { threads: 1, rowOffsets: false }));
   });
 
   it('handles more threads than lines', async () => {

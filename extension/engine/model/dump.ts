@@ -116,7 +116,10 @@ export interface RankedDump {
   readonly score: Float64Array;
   /** 1-based line number of the row in the decompressed text (0 when the format has no lines, e.g. Parquet). */
   readonly line: Uint32Array;
-  /** Byte offset of the row's first byte in the decompressed text (-1 when not applicable). */
+  /**
+   * Byte offset of the row's first byte in the decompressed text (-1 when not applicable). Empty when the
+   * read was asked to keep none (ReadOptions.rowOffsets).
+   */
   readonly offset: Float64Array;
   readonly queries: StringPool;
   readonly items: StringPool;

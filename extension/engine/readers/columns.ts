@@ -32,10 +32,15 @@ type ArrayOf<K extends RowColumnName> = (typeof ROW_COLUMNS)[K]['array'] extends
 /** One typed array per row column. */
 export type RowArrays = { -readonly [K in RowColumnName]: ArrayOf<K> };
 
-/** A typed array of `rows` elements of the column's type over `buffer` from row `at` (a fresh array without a buffer). */
+/**
+ * A typed array of `rows` elements of the column's type over `buffer` from row `at` (a fresh array without a
+ * buffer). A buffer of no bytes is a column the read does not keep (the row offsets, see sharedSlices in
+ * threads/parallel.ts): its arrays are empty whatever the rows.
+ */
 export function rowArray<K extends RowColumnName>(name: K, rows: number, buffer?: ArrayBufferLike, at = 0): ArrayOf<K> {
   const Typed = ROW_COLUMNS[name].array as unknown as { new (n: number): ArrayOf<K>; new (b: ArrayBufferLike, at: number, n: number): ArrayOf<K>; BYTES_PER_ELEMENT: number };
-  return buffer === undefined ? new Typed(rows) : new Typed(buffer, at * Typed.BYTES_PER_ELEMENT, rows);
+  if (buffer === undefined) return new Typed(rows);
+  return buffer.byteLength === 0 ? new Typed(0) : new Typed(buffer, at * Typed.BYTES_PER_ELEMENT, rows);
 }
 
 /** Every row column as arrays made by `make`. */
@@ -84,6 +89,11 @@ export class RowColumns implements RowArrays {
   itemTexts: RowTexts | undefined;
   /** Set when `item` holds query-scoped keys already (made by the parse threads of a parallel read), not hashes. */
   itemKeysMade = false;
+  /**
+   * False when the shared slice keeps no row offsets (its offset buffer has no bytes): `offset` then stays
+   * empty, and a write to it is a no-op (a typed array ignores writes past its end).
+   */
+  readonly keepsOffsets: boolean;
   segmentPools: BytePool[];
   readonly notes: ReaderNotes = emptyNotes();
   /** Gaps of rows [0, summarisedTo), kept as rows are appended (appendSummary). */
@@ -101,6 +111,7 @@ export class RowColumns implements RowArrays {
     reusedTexts?: RowTexts,
   ) {
     this.segmentPools = segmentNames.map(() => new BytePool());
+    this.keepsOffsets = shared === undefined || shared.offset.byteLength > 0;
     reusedTexts?.clear();
     if (itemTextBytes !== undefined) this.itemTexts = reusedTexts ?? new RowTexts(shared?.rows ?? capacity, itemTextBytes);
     if (shared !== undefined) {
@@ -124,7 +135,7 @@ export class RowColumns implements RowArrays {
   reserve(rows: number): void {
     if (rows <= this.capacity) return;
     const capacity = Math.ceil(rows);
-    Object.assign(this, rowArrays((name) => grow(this[name] as Typed, capacity, this.count) as never));
+    Object.assign(this, rowArrays((name) => (name === 'offset' && !this.keepsOffsets ? this.offset : grow(this[name] as Typed, capacity, this.count)) as never));
     this.segmentIds = this.segmentIds.map((ids) => grow(ids, capacity, this.count));
     this.itemTexts?.reserveRows(capacity);
     this.capacity = capacity;

@@ -16,6 +16,12 @@ export interface ReadOptions {
    */
   judgments?: string;
   /**
+   * False when the caller never goes back to a row's bytes (a query's rows as written, the editor's views):
+   * a large delimited file read on several threads then keeps no offset column, and the dump's `offset` is
+   * empty. Other reads keep it either way (it costs them little). Default true.
+   */
+  rowOffsets?: boolean;
+  /**
    * The judgments file was found beside the dump by the naming rule, not named by the user: when it names
    * none of the dump's queries and the dump has labels of its own, it belongs to other data, so the dump
    * keeps its labels and its first note says why the file was not used (the dump is read once either way).

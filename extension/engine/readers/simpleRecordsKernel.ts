@@ -179,7 +179,7 @@ export class SimpleRecordsKernel {
     const offset = rows.offset;
     const start = this.start;
     const add = base + shift;
-    for (let r = 0; r < count; r++) offset[first + r] = start[r]! + add;
+    if (rows.keepsOffsets) for (let r = 0; r < count; r++) offset[first + r] = start[r]! + add;
     rows.count = first + count;
     engineActivity().kernelRows += count;
   }

@@ -37,7 +37,7 @@ export async function compactShared(parts: RangeRows[], slices: SharedColumns[],
   const moved = helper !== undefined ? helper(away) : Promise.resolve(compactColumns(away));
   try {
     const queryMaps = pools.queryMaps();
-    compactColumns({ ...place, moves: [{ buffer: buffers.query, float: false, maps: queryMaps }, plain('offset'),
+    compactColumns({ ...place, moves: [{ buffer: buffers.query, float: false, maps: queryMaps }, ...(buffers.offset.byteLength > 0 ? [plain('offset')] : []),
       { buffer: buffers.line, float: false, adds: lineOffsets }] });
     // Ranges keyed their items from their first row: shifted by the rows before them, while moving.
     const keyed = parts.every((p) => p.itemKeys) && mergedStaysGrouped(queryMaps);
@@ -140,6 +140,8 @@ export function merge(parts: RangeRows[], lineOffsets: number[], headerRows: Row
   const merged = rowArrays((name) => {
     const how = ROW_COLUMNS[name].merge;
     const ranges = take<RowArrays[typeof name]>(name);
+    // A column some range did not keep (the row offsets, when not asked for) is kept by none.
+    if (ranges.some((column, k) => column.length < parts[k]!.count)) return rowArray(name, 0);
     if (how === 'none') return concat(ranges, rowArray(name, total));
     if (how === 'lines') return shiftLines(ranges as Uint32Array[], lineOffsets, total) as never;
     return concatMapped(ranges as Uint32Array[], queryMaps, total) as never;
