@@ -7,7 +7,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { configureEngine, engineSettings } from '../../extension/engine/config';
 import { evaluate } from '../../extension/engine/evaluate/evaluate';
 import { keySortKernel } from '../../extension/engine/evaluate/keySortKernel';
-import { useKernelSorter } from '../../extension/engine/evaluate/ranking';
+import { insertionOrder, useKernelSorter } from '../../extension/engine/evaluate/ranking';
 import { IndexSorter } from '../../extension/engine/evaluate/sortIndex';
 import { parseMetricList } from '../../extension/engine/metrics/parse';
 import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
@@ -24,6 +24,8 @@ const shapes: Record<string, (r: () => number, i: number) => number> = {
   'missing scores as -Infinity': (r) => (r() < 0.3 ? -Infinity : Math.floor(r() * 20) / 7),
   'range too wide to bucket': (r) => (r() < 0.5 ? -1.5e308 : 1.5e308 * r()),
   'heavy tail': (r) => Math.exp(r() * 40),
+  // Equal to a comparison, so a stable sort keeps their order whatever their sign.
+  'signed zeros': (r) => (r() < 0.5 ? 0 : -0),
 };
 
 describe('IndexSorter.sortDescending', () => {
@@ -75,6 +77,23 @@ describe('the WebAssembly sort', () => {
       }
     });
   }
+
+  it('lists of up to 16, which scoring orders by insertion rather than in the kernel, come out in the kernel\'s order', () => {
+    const kernel = keySortKernel()!;
+    for (const [name, draw] of Object.entries(shapes)) {
+      const rand = seededRandom(name.length * 7);
+      for (let trial = 0; trial < 400; trial++) {
+        const n = 1 + (trial % 16);
+        const key = Float64Array.from({ length: n }, (_, i) => draw(rand, i));
+        if (trial % 10 === 0) key.sort().reverse();
+        kernel.keys.set(key);
+        kernel.sort(n);
+        const idx = new Uint32Array(n);
+        insertionOrder(key, idx, n);
+        expect(Array.from(idx), name).toEqual(Array.from(kernel.order.subarray(0, n)));
+      }
+    }
+  });
 
   it('leaves every metric, tie and duplicate as the JavaScript sort does', () => {
     const rand = seededRandom(91);
