@@ -221,7 +221,7 @@ export class ViewSession implements vscode.Disposable {
     if (firstTime) {
       let finished = false;
       void settled.then(() => (finished = true));
-      const timer = setTimeout(() => {
+      const notify = () => {
         if (finished || this.life.disposed) return;
         void vscode.window.withProgress(
           { location: vscode.ProgressLocation.Notification, title: `Gainline: reading ${this.label}`, cancellable: true },
@@ -234,8 +234,14 @@ export class ViewSession implements vscode.Disposable {
             return settled;
           },
         );
-      }, this.deps.notificationDelayMs ?? NOTIFICATION_DELAY_MS);
-      void settled.then(() => clearTimeout(timer));
+      };
+      // No delay: shown at once, before the worker can answer (a timer of 0 ms raced a quick read).
+      const delay = this.deps.notificationDelayMs ?? NOTIFICATION_DELAY_MS;
+      if (delay <= 0) notify();
+      else {
+        const timer = setTimeout(notify, delay);
+        void settled.then(() => clearTimeout(timer));
+      }
     }
     try {
       await work;
