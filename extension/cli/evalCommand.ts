@@ -149,9 +149,13 @@ async function evalFile(path: string, source: string, format: ReportFormat, wors
     const rowsNeeded = values.query !== undefined ? '--query reads the rows of its query'
       : values.diagnostics ? '--diagnostics reads every row'
       : setup.tables.items !== undefined ? 'an items table (--items) joins by item, which needs the rows' : undefined;
-    // Without those, nothing goes back to a row's bytes: a large file's read keeps no row offsets.
-    const outcome = await streamOrRead(path, { ...setup.read, onProgress: progress?.reading, ...(rowsNeeded === undefined ? { rowOffsets: false } : {}) },
-      setup.metrics, setup.conventions,
+    // Without those, nothing goes back to a row's bytes: a large file's read keeps no row offsets. Segment
+    // columns are read only for --segment and for a queries table's facts (the other views show none).
+    const lean = rowsNeeded === undefined;
+    const segmentsShown = values.segment !== undefined || setup.tables.queries !== undefined;
+    const readOptions = { ...setup.read, onProgress: progress?.reading, ...(lean ? { rowOffsets: false } : {}),
+      ...(lean && !segmentsShown ? { columns: { ...setup.read.columns, others: 'skipped' as const } } : {}) };
+    const outcome = await streamOrRead(path, readOptions, setup.metrics, setup.conventions,
       { reading: rowsNeeded !== undefined ? 'memory' : values.reading, sensitivity, segments: values.segment !== undefined,
         ...(setup.tables.queries !== undefined ? { queriesTable: { path: setup.tables.queries } } : {}),
         ...(progress ? { onPartial: (p: StreamPartial) => progress.partial(p.bytesRead / p.totalBytes, partialHeadlineText(headlineOf(p))) } : {}) });

@@ -10,6 +10,7 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { RankedDump } from '../../extension/engine/model/dump';
 import { readDump } from '../../extension/engine/readers/index';
+import type { ColumnRoles } from '../../extension/engine/readers/roles';
 import { configureEngine, DEFAULT_TUNING, engineActivity, engineSettings } from '../../extension/engine/config';
 // @ts-expect-error a plain ES module without types
 import { compileRecordKernel } from '../../extension/engine/readers/kernel/compile.mjs';
@@ -78,8 +79,8 @@ function randomCsv(seed: number, rows: number): string {
   return rnd() < 0.5 ? out : out.slice(0, -eol.length);
 }
 
-async function readBoth(path: string, threads: number): Promise<[RankedDump | Error, RankedDump | Error]> {
-  const read = () => readDump(path, { threads }).catch((e: Error) => e);
+async function readBoth(path: string, threads: number, columns?: ColumnRoles): Promise<[RankedDump | Error, RankedDump | Error]> {
+  const read = () => readDump(path, { threads, ...(columns ? { columns } : {}) }).catch((e: Error) => e);
   configureEngine({ tuning: { recordKernel: false } });
   const reference = await read();
   configureEngine({ tuning: { recordKernel: true } });
@@ -128,6 +129,32 @@ describe('the record kernel', () => {
       expectSameDump(reference, kernelRead as RankedDump);
       // On one thread the kernel runs here; it must have taken most rows, not handed them all back.
       if (threads === 1) expect(engineActivity().kernelRows - before).toBeGreaterThan(reference.rowCount / 3);
+    }
+  });
+
+  // Columns of no role skipped unread (the command line's report when it shows no segments): the kernel and the
+  // JavaScript loops must still agree, and every column but the segments must be what a full read gives.
+  it.each([[120], [121], [122], [123], [124], [125]])('seed %i with the columns of no role skipped reads as the JavaScript loops do, and as a full read but for the segments', async (seed) => {
+    configureEngine({ tuning: { plainChunkBytes: 700 + seed * 31, ...(seed % 2 === 0 ? { kernelRowsPerCall: 7, kernelPieceBytes: 900 } : {}) } });
+    const text = randomCsv(seed, 6_000);
+    const path = tmp.file(`kernel-skip-${seed}.csv`, text);
+    const withSegments = /locale/.test(text.slice(0, text.indexOf('\n')));
+    for (const threads of [1, 3]) {
+      const before = engineActivity().kernelRows;
+      const [reference, kernelRead] = await readBoth(path, threads, { others: 'skipped' });
+      // A skipped column must not send its rows back to JavaScript: the kernel takes most of them.
+      if (threads === 1 && !(reference instanceof Error)) expect(engineActivity().kernelRows - before).toBeGreaterThan(reference.rowCount / 3);
+      const full = await readDump(path, { threads }).catch((e: Error) => e);
+      if (full instanceof Error) {
+        // The same complaint either way (a skipped column is never the one at fault here: segments take any text).
+        expect((kernelRead as Error).message).toBe(full.message);
+        expect((reference as Error).message).toBe(full.message);
+        continue;
+      }
+      expectSameDump(reference as RankedDump, kernelRead as RankedDump);
+      expectSameDump(full, kernelRead as RankedDump);
+      expect((kernelRead as RankedDump).segments).toHaveLength(0);
+      expect(full.segments).toHaveLength(withSegments ? 2 : 0);
     }
   });
 

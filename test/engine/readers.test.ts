@@ -242,3 +242,34 @@ describe('parseColumnRoles', () => {
     expect(() => parseColumnRoles(text)).toThrow(InputError);
   });
 });
+
+describe('columns of no role skipped (ColumnRoles.others)', () => {
+  // The command line's report reads no segment columns unless it shows them: delimited text then gives the
+  // same rows, ids, grades and scores as a full read, without segments.
+  it('CSV reads the same but for its segments', async () => {
+    const full = await readDump('demo/runs/model-a.csv');
+    const lean = await readDump('demo/runs/model-a.csv', { columns: { others: 'skipped' } });
+    expect(full.segments.length).toBeGreaterThan(0);
+    expect(lean.segments).toHaveLength(0);
+    expect(lean.rowCount).toBe(full.rowCount);
+    for (const key of ['query', 'label', 'score', 'line', 'offset'] as const) expect(Array.from(lean[key]), key).toEqual(Array.from(full[key]));
+    expect(Array.from(lean.itemKey!)).toEqual(Array.from(full.itemKey!));
+    expect(lean.notes).toEqual(full.notes);
+  });
+
+  // JSON Lines and Parquet check a value as they read it: skipping a column would let a bad value through
+  // (test/hostile has one), so they read every column either way.
+  it.each(['demo/runs/model-a.jsonl.gz', 'demo/runs/model-b.parquet'])('%s reads every column all the same', async (path) => {
+    const full = await readDump(path);
+    const asked = await readDump(path, { columns: { others: 'skipped' } });
+    expect(full.segments.length).toBeGreaterThan(0);
+    expect(asked.segments.map((s) => s.name)).toEqual(full.segments.map((s) => s.name));
+    asked.segments.forEach((s, k) => expect(Array.from(s.ofRow)).toEqual(Array.from(full.segments[k]!.ofRow)));
+  });
+
+  it('a bad value in a column of no role fails a JSON Lines read whether or not the others are skipped', async () => {
+    const path = tmp.file('skip-surrogate.jsonl', '{"query":"q","item":"a","score":1,"grade":1,"locale":"de"}\n{"query":"q","item":"b","score":1,"grade":0,"locale":"\\udc00"}\n');
+    await expect(readDump(path)).rejects.toThrow(/'locale'/);
+    await expect(readDump(path, { columns: { others: 'skipped' } })).rejects.toThrow(/'locale'/);
+  });
+});

@@ -131,6 +131,13 @@ export function parseSimpleRecords(state: FastState, buf: Buffer, pos: number, l
       }
       if (repeated) {
         // Same id as the previous row (set below).
+      } else if (role < 0) {
+        // A column of no role (ColumnRoles.others 'skipped'): only its end is looked for.
+        while (pos < limit) {
+          c = buf[pos]!;
+          if (c < 14 || c === delimiter) break;
+          pos++;
+        }
       } else if (role === ROLE_ITEM || role === ROLE_QUERY || role >= ROLE_SEGMENT) {
         // Scan and hash in one pass; the hash is only used when the id is looked up.
         let h = HASH_SEED;
@@ -209,7 +216,7 @@ export function parseSimpleRecords(state: FastState, buf: Buffer, pos: number, l
         score = value;
       } else if (role === ROLE_RANK) {
         if (state.rankStandsInForScore) score = -value;
-      } else {
+      } else if (role >= ROLE_SEGMENT) {
         const k = role - ROLE_SEGMENT;
         const pool = rows.segmentPools[k]!;
         let id = state.lastSegment[k]!;

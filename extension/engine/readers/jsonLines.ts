@@ -10,7 +10,7 @@ import type { RankedDump } from '../model/dump';
 import { RowColumns } from './columns';
 import type { ReadOptions } from './readOptions';
 import { describeNonNumberText, parseNumberText } from './numbers';
-import { LIST_ROLE_NAMES, resolveRoles, type ResolvedRoles } from './roles';
+import { everyColumn, LIST_ROLE_NAMES, resolveRoles, type ResolvedRoles } from './roles';
 import { LineSink, pumpText } from './source';
 
 type Json = Record<string, unknown>;
@@ -65,7 +65,7 @@ class JsonLinesParser {
   private learnShape(obj: Json, text: string): Shape {
     const keys = Object.keys(obj);
     const list = keys.some((k) => Array.isArray(obj[k]));
-    const roles = resolveRoles(keys, this.options.columns, { file: this.file, line: this.line, text }, list ? LIST_ROLE_NAMES : undefined);
+    const roles = resolveRoles(keys, everyColumn(this.options.columns), { file: this.file, line: this.line, text }, list ? LIST_ROLE_NAMES : undefined);
     const rows = new RowColumns(roles.segments.map((i) => keys[i]!));
     if (roles.rank >= 0) {
       rows.notes.messages.push(roles.score < 0

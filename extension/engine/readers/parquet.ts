@@ -13,7 +13,7 @@ import type { FileStamp, RankedDump } from '../model/dump';
 import { RowColumns } from './columns';
 import type { ReadOptions } from './readOptions';
 import { describeNonNumberText, parseNumberText } from './numbers';
-import { resolveRoles, type ResolvedRoles } from './roles';
+import { everyColumn, resolveRoles, type ResolvedRoles } from './roles';
 import { fileChangedError, statStamp, throwIfCancelled } from './source';
 import { escapeBytes } from './textCheck';
 
@@ -39,7 +39,7 @@ export async function readParquet(path: string, directory: boolean, options: Rea
     const columns = parquetSchema(metadata).children.filter((c) => c.children.length === 0).map((c) => c.element.name);
     if (rows === undefined) {
       names = columns;
-      roles = resolveRoles(columns, options.columns, { file: part, line: 0, text: columns.join(', ') });
+      roles = resolveRoles(columns, everyColumn(options.columns), { file: part, line: 0, text: columns.join(', ') });
       rows = new RowColumns(roles.segments.map((i) => columns[i]!), Number(metadata.num_rows) * (directory ? parts.length : 1));
       if (roles.rank >= 0) {
         rows.notes.messages.push(roles.score < 0 ? `no score column: ranked by '${columns[roles.rank]}' (score = -rank)`

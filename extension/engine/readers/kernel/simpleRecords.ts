@@ -19,7 +19,7 @@ const HASH_SEED: i32 = 0x811c9dc5;
 const HASH_PRIME: i32 = 0x01000193;
 const TWO_53: u64 = 9007199254740992;
 
-// Roles, as in delimitedFast.ts.
+// Roles, as in delimitedFast.ts; a field of no role (below 0) is skipped unread.
 const ROLE_QUERY: i32 = 0;
 const ROLE_ITEM: i32 = 1;
 const ROLE_LABEL: i32 = 2;
@@ -177,7 +177,7 @@ export function parse(pos: u32, limit: u32, delimiter: u32, line: u32, rankIsSco
           for (let p = s; p < e; p++) h = (h ^ <i32>load<u8>(p)) * HASH_PRIME;
           hash = finishHash(h);
         }
-      } else {
+      } else if (role >= 0) {
         // A plain decimal: an optional minus, digits and at most one dot. The digits are summed as an
         // integer, exact up to 19 digits (the float sum they replace was exact up to 2^53, the largest
         // mantissa taken), then divided once by the power of ten, as the JavaScript parsers do.
