@@ -25,7 +25,6 @@ import { readTextTable } from './tables/readTable';
 
 export { configureEngine, DEFAULT_TUNING, type EngineConfiguration, type EngineSettings, type EngineTuning } from './config';
 export type { ChunkWork } from './evaluate/chunkOutput';
-export { renderInOrder } from './threads/renderInOrder';
 export type { BaselineMemo, CompareOptions, Comparison } from './compare/compare';
 export { combineCandidates } from './compare/candidates';
 export type { Evaluation } from './evaluate/types';
