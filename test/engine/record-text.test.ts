@@ -18,6 +18,7 @@ import { BytePool } from '../../extension/engine/model/bytePool';
 import { MapStringPool } from '../../extension/engine/model/stringPool';
 import { packNames, renderQueryRecords, stringifyQueryRecords, type QueryRecordsSpec } from '../../extension/engine/report/jsonRecords';
 import { recordBytes } from '../../extension/engine/report/recordTextKernel';
+import { csvRowsText, renderCsvRows } from '../../extension/engine/report/csv';
 // @ts-expect-error a plain ES module without types
 import { compileRecordTextKernel } from '../../extension/engine/readers/kernel/compile.mjs';
 import { seededRandom } from '../reference/random';
@@ -93,7 +94,8 @@ describe('number printer', () => {
 
 describe('records', () => {
   const encoder = new TextEncoder();
-  const NAMES = ['cordless drill 18v', 'say "hi"', 'back\\slash', 'tab\there', 'line\nbreak', 'bell\u0007', 'größe 10', '电钻', 'del\u007f', '', 'emoji 🔧'];
+  const NAMES = ['cordless drill 18v', 'say "hi"', 'back\\slash', 'tab\there', 'line\nbreak', 'bell\u0007', 'größe 10', '电钻', 'del\u007f', '', 'emoji 🔧',
+    'bolts, 10 mm', 'cr\rlf', '"quoted"'];
 
   function randomValue(rnd: () => number): number {
     const x = rnd();
@@ -141,6 +143,28 @@ describe('records', () => {
           .toBe(true);
       }
     }
+  });
+
+  // The CSV report's rows come from the same writer in its CSV style: the same bytes as the cell-by-cell text
+  // (RFC 4180 quoting of names with commas, quotes and line breaks; empty cells for values not finite).
+  it('in the CSV style are the bytes of the rows written cell by cell, for random columns, names and ranges', () => {
+    for (let seed = 1; seed <= 40; seed++) {
+      const n = 1 + Math.floor(seededRandom(seed)() * 300);
+      const { spec, perQuery, rnd } = randomCase(seed, n);
+      for (let k = 0; k < 4; k++) {
+        const from = Math.floor(rnd() * n);
+        const to = from + 1 + Math.floor(rnd() * (n - from));
+        const written = renderCsvRows(spec, perQuery, from, to);
+        expect(written, `seed ${seed}: the writer ran`).toBeInstanceOf(Uint8Array);
+        expect(Buffer.from(written as Uint8Array).equals(Buffer.from(encoder.encode(csvRowsText(spec, perQuery, from, to)))), `seed ${seed} [${from}, ${to})`)
+          .toBe(true);
+      }
+    }
+    // Batches: a range larger than the writer's memory at once.
+    const { spec, perQuery } = randomCase(9, 60_000);
+    const written = renderCsvRows(spec, perQuery, 0, 60_000) as Uint8Array;
+    expect(written.length).toBeGreaterThan(4 << 20);
+    expect(Buffer.from(written).equals(Buffer.from(encoder.encode(csvRowsText(spec, perQuery, 0, 60_000))))).toBe(true);
   });
 
   it('split into batches when a range does not fit the writer at once, and joined in order', () => {

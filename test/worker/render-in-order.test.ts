@@ -14,6 +14,7 @@ import { parseMetricList } from '../../extension/engine/metrics/parse';
 import { BytePool } from '../../extension/engine/model/bytePool';
 import { MapStringPool, type StringPool } from '../../extension/engine/model/stringPool';
 import { writeReport } from '../../extension/engine/report/index';
+import { csvRowsWork, formatCsv } from '../../extension/engine/report/csv';
 import { formatJson, jsonFrame } from '../../extension/engine/report/json';
 import { queryRecordsWork } from '../../extension/engine/report/jsonRecords';
 import type { ReportInput } from '../../extension/engine/report/reportInput';
@@ -91,6 +92,25 @@ describe('rendering the records after scoring', () => {
     expect(engineActivity().chunksRenderedElsewhere - before).toBeGreaterThan(0);
     expect(text).toBe(recordsOf(inputOf(dump, one)));
     expect(JSON.parse(`[${text}]`)).toHaveLength(dump.queries.size);
+  });
+
+  it('the CSV report\'s rows too: small chunks on three threads, the same bytes as formatCsv on one', async () => {
+    const one = evaluate(dump, METRICS, DEFAULT_CONVENTIONS);
+    const many = await evaluateInParallel(dump, METRICS, DEFAULT_CONVENTIONS, { threads: 3 });
+    const { header, work } = csvRowsWork(inputOf(dump, many, names));
+    expect(work.shared).toBe(true);
+    const before = engineActivity().chunksRenderedElsewhere;
+    const parts: Uint8Array[] = [];
+    await renderInOrder(work, many.perQuery, many.queryCount, (utf8, chunk) => {
+      if (chunk > 0) parts.push(Buffer.from('\n'));
+      parts.push(utf8);
+    }, { threads: 3, chunkQueries: 300 });
+    expect(engineActivity().chunksRenderedElsewhere - before).toBeGreaterThan(0);
+    expect(`${header}\n${Buffer.concat(parts).toString()}\n`).toBe(formatCsv(inputOf(dump, one)));
+    // And writeReport's whole document, on two threads.
+    const pieces: (string | Uint8Array)[] = [];
+    await writeReport('csv', inputOf(dump, many, names), { worst: 10 }, (piece) => pieces.push(piece), 2);
+    expect(Buffer.concat(pieces.map((p) => (typeof p === 'string' ? Buffer.from(p) : p))).toString()).toBe(formatCsv(inputOf(dump, one)));
   });
 
   it('writeReport writes the whole document as formatJson does, on several threads', async () => {

@@ -1,6 +1,6 @@
 /** Report formats for one evaluated dump; every one is a pure function of the evaluation. */
 import { renderInOrder } from '../threads/renderInOrder';
-import { formatCsv } from './csv';
+import { csvRowsWork, formatCsv } from './csv';
 import { formatJson, formatJsonPieces, jsonFrame, RECORD_SEPARATOR, type ReportPiece } from './json';
 import { queryRecordsWork } from './jsonRecords';
 import { formatMarkdown } from './markdown';
@@ -29,12 +29,24 @@ export function formatReportPieces(format: ReportFormat, input: ReportInput, opt
 }
 
 /**
- * Writes formatReport's text piece by piece. The JSON report's records (without query facts, which are
- * rendered here) are rendered on this thread and, for many queries, a score thread at once
- * (threads/renderInOrder.ts), and written in query order as they come; `threads` as renderInOrder takes them.
+ * Writes formatReport's text piece by piece. The JSON report's records and the CSV report's rows are
+ * rendered on this thread and, for many queries, a score thread at once (threads/renderInOrder.ts; rows
+ * with query facts on this thread only), and written in query order as they come; `threads` as
+ * renderInOrder takes them.
  */
 export async function writeReport(format: ReportFormat, input: ReportInput, options: { readonly worst: number; readonly worstOrder?: WorstOrder },
   write: (piece: ReportPiece) => void, threads?: number): Promise<void> {
+  const renderOptions = threads !== undefined ? { threads } : {};
+  if (format === 'csv') {
+    const { header, work } = csvRowsWork(input);
+    write(`${header}\n`);
+    await renderInOrder(work, input.evaluation.perQuery, input.evaluation.queryCount, (utf8, chunk) => {
+      if (chunk > 0) write('\n');
+      write(utf8);
+    }, renderOptions);
+    if (input.evaluation.queryCount > 0) write('\n');
+    return;
+  }
   if (format !== 'json' || input.facts !== undefined) {
     for (const piece of formatReportPieces(format, input, options)) write(piece);
     return;
@@ -46,7 +58,7 @@ export async function writeReport(format: ReportFormat, input: ReportInput, opti
   await renderInOrder(work, ev.perQuery, ev.queryCount, (utf8, chunk) => {
     if (chunk > 0) write(RECORD_SEPARATOR);
     write(utf8);
-  }, { ...(threads !== undefined ? { threads } : {}) });
+  }, renderOptions);
   write(frame.after);
 }
 

@@ -41,11 +41,11 @@ export function packNames(pool: StringPool): PackedNames {
   return pool.packed((bytes) => new SharedArrayBuffer(bytes));
 }
 
-function nameBytes(names: { readonly bytes: Uint8Array; readonly ends: Uint32Array }, q: number): Uint8Array {
+export function nameBytes(names: { readonly bytes: Uint8Array; readonly ends: Uint32Array }, q: number): Uint8Array {
   return names.bytes.subarray(q === 0 ? 0 : names.ends[q - 1]!, names.ends[q]!);
 }
 
-function nameOf(names: PackedNames, q: number): string {
+export function nameOf(names: PackedNames, q: number): string {
   return 'texts' in names ? names.texts[q]! : decoder.decode(nameBytes(names, q));
 }
 

@@ -12,11 +12,69 @@
  * and the caller stringifies objects.
  */
 import { instantiateKernel, kernelModule, type WasmMemory } from '../wasmKernels';
+import { csvField } from './csvField';
 
 interface RecordTextExports {
   dataEnd(): number;
-  writeRecords(count: number, fields: number, fieldCount: number, names: number, tail: number, tailLength: number, out: number): number;
+  writeRecords(count: number, fields: number, fieldCount: number, names: number, tail: number, tailLength: number, out: number,
+    separator: number, separatorLength: number, notFinite: number, notFiniteLength: number): number;
 }
+
+/** How records are laid out around their values: the JSON report's objects or the CSV report's rows. */
+export interface RecordStyle {
+  readonly name: string;
+  /** The literal written before each field's value, then the tail written after a record's last value. */
+  literals(fields: readonly RecordField[]): string[];
+  /** Between two records. */
+  readonly separator: string;
+  /** A number that is not finite. */
+  readonly notFinite: string;
+  /** True when a name's UTF-8 bytes are written as they are. */
+  plain(bytes: Uint8Array): boolean;
+  /** A name as written, when its bytes are not plain. */
+  escape(text: string): string;
+}
+
+/** `JSON.stringify(document, null, 1)`'s elements of an array two levels deep; NaN and infinities are null. */
+export const JSON_RECORDS: RecordStyle = {
+  name: 'json',
+  // A literal ends where a value starts: a name's opening quote is its literal's, its closing one the next's.
+  literals: (fields) => [
+    ...fields.map((field, f) => {
+      const closeName = f > 0 && fields[f - 1]!.kind === 'name' ? '"' : '';
+      return `${closeName}${f === 0 ? '  {\n   ' : ',\n   '}${JSON.stringify(field.key)}: ${field.kind === 'name' ? '"' : ''}`;
+    }),
+    `${fields.at(-1)?.kind === 'name' ? '"' : ''}\n  }`,
+  ],
+  separator: ',\n',
+  notFinite: 'null',
+  // Printable ASCII other than a quote or a backslash: JSON writes it as it is.
+  plain: (bytes) => {
+    for (let i = 0; i < bytes.length; i++) {
+      const b = bytes[i]!;
+      if (b < 0x20 || b > 0x7e || b === 0x22 || b === 0x5c) return false;
+    }
+    return true;
+  },
+  escape: (text) => JSON.stringify(text).slice(1, -1),
+};
+
+/** RFC 4180 rows, cells joined by commas (keys are the header's business); a value not finite is an empty cell. */
+export const CSV_ROWS: RecordStyle = {
+  name: 'csv',
+  literals: (fields) => [...fields.map((_, f) => (f === 0 ? '' : ',')), ''],
+  separator: '\n',
+  notFinite: '',
+  // Printable ASCII other than a comma or a quote is written as it is (anything else goes through csvField).
+  plain: (bytes) => {
+    for (let i = 0; i < bytes.length; i++) {
+      const b = bytes[i]!;
+      if (b < 0x20 || b > 0x7e || b === 0x22 || b === 0x2c) return false;
+    }
+    return true;
+  },
+  escape: csvField,
+};
 
 /** A field of a record, in order; `values` is indexed by query id. */
 export type RecordField =
@@ -49,20 +107,11 @@ const encoder = new TextEncoder();
 const decoder = new TextDecoder('utf-8');
 
 /**
- * UTF-8 name bytes as JSON.stringify writes the name between its quotes, the bytes decoded as TextDecoder
+ * UTF-8 name bytes as the style writes the name (JSON: between its quotes), the bytes decoded as TextDecoder
  * does (malformed sequences as U+FFFD), escaped, encoded.
  */
-export function escapedName(bytes: Uint8Array): Uint8Array {
-  return needsEscaping(bytes) ? escapedText(decoder.decode(bytes)) : bytes;
-}
-
-/** False when every byte is printable ASCII other than a quote or a backslash: JSON writes such text as it is. */
-function needsEscaping(bytes: Uint8Array): boolean {
-  for (let i = 0; i < bytes.length; i++) {
-    const b = bytes[i]!;
-    if (b < 0x20 || b > 0x7e || b === 0x22 || b === 0x5c) return true;
-  }
-  return false;
+export function escapedName(bytes: Uint8Array, style: RecordStyle = JSON_RECORDS): Uint8Array {
+  return style.plain(bytes) ? bytes : escapedText(decoder.decode(bytes), style);
 }
 
 /**
@@ -72,8 +121,6 @@ function needsEscaping(bytes: Uint8Array): boolean {
  * batches that fit.
  */
 const MEMORY_BYTES = 4 << 20;
-/** Between records, as the kernel writes it within a batch. */
-const SEPARATOR = new TextEncoder().encode(',\n');
 
 class RecordTextKernel {
   private readonly bytes: Uint8Array;
@@ -82,6 +129,10 @@ class RecordTextKernel {
   private fieldsAt = 0;
   private tailAt = 0;
   private tailLength = 0;
+  private separatorAt = 0;
+  private notFiniteAt = 0;
+  private separator = encoder.encode(JSON_RECORDS.separator);
+  private notFinite = encoder.encode(JSON_RECORDS.notFinite);
   /** Per record: literal bytes plus the widest values (names apart) and column bytes. */
   private perRecord = 0;
   private columnsAt = 0;
@@ -92,10 +143,10 @@ class RecordTextKernel {
   }
 
   /** Records of queries [from, to), as recordBytes describes; undefined when one record alone does not fit. */
-  write(fields: readonly RecordField[], from: number, to: number): Uint8Array | undefined {
-    if (!this.setLayout(fields)) return undefined;
+  write(fields: readonly RecordField[], from: number, to: number, style: RecordStyle): Uint8Array | undefined {
+    if (!this.setLayout(fields, style)) return undefined;
     const nameField = fields.find((f) => f.kind === 'name');
-    const names = nameField === undefined ? undefined : namesOf(nameField, from, to);
+    const names = nameField === undefined ? undefined : namesOf(nameField, from, to, style);
     // Room for the columns' alignment and the pieces' room, whatever the batch.
     const room = this.bytes.length - this.columnsAt - (fields.length + 3) * 2 * ROOM;
     const pieces: Uint8Array[] = [];
@@ -109,7 +160,7 @@ class RecordTextKernel {
         end++;
       }
       if (end === start) return undefined;
-      if (start > from) pieces.push(SEPARATOR);
+      if (start > from) pieces.push(this.separator);
       pieces.push(this.writeBatch(fields, names, from, start, end));
       start = end;
     }
@@ -144,21 +195,19 @@ class RecordTextKernel {
     const namesAt = at;
     if (names !== undefined) bytes.set(names.bytes.subarray(nameStart, nameEnd), namesAt);
     const outAt = align(namesAt + (nameEnd - nameStart) + ROOM);
-    const written = this.kernel.writeRecords(count, this.fieldsAt, fields.length, namesAt, this.tailAt, this.tailLength, outAt);
+    const written = this.kernel.writeRecords(count, this.fieldsAt, fields.length, namesAt, this.tailAt, this.tailLength, outAt,
+      this.separatorAt, this.separator.length, this.notFiniteAt, this.notFinite.length);
     return bytes.slice(outAt, written);
   }
 
-  /** The fields' kinds and literals, written once per set of keys; false when they leave no room for records. */
-  private setLayout(fields: readonly RecordField[]): boolean {
-    const key = fields.map((f) => `${f.kind}:${f.key}`).join('\n');
+  /** The fields' kinds and the style's literals, written once per set of keys; false when they leave no room for records. */
+  private setLayout(fields: readonly RecordField[], style: RecordStyle): boolean {
+    const key = `${style.name}\n${fields.map((f) => `${f.kind}:${f.key}`).join('\n')}`;
     if (key === this.layoutKey) return true;
-    // A literal ends where a value starts: a name's opening quote is its literal's, its closing one the next's.
-    const literals = fields.map((field, f) => {
-      const closeName = f > 0 && fields[f - 1]!.kind === 'name' ? '"' : '';
-      return `${closeName}${f === 0 ? '  {\n   ' : ',\n   '}${JSON.stringify(field.key)}: ${field.kind === 'name' ? '"' : ''}`;
-    });
-    const tail = `${fields.at(-1)?.kind === 'name' ? '"' : ''}\n  }`;
-    const encoded = [...literals, tail].map((text) => encoder.encode(text));
+    this.separator = encoder.encode(style.separator);
+    this.notFinite = encoder.encode(style.notFinite);
+    // The literals, the tail, then the separator and the text of a number not finite.
+    const encoded = [...style.literals(fields), style.separator, style.notFinite].map((text) => encoder.encode(text));
     this.layoutKey = '';
     this.fieldsAt = this.base;
     let at = align(this.fieldsAt + fields.length * 16);
@@ -177,9 +226,12 @@ class RecordTextKernel {
     encoded.forEach((literal, i) => this.bytes.set(literal, starts[i]!));
     this.tailAt = starts[fields.length]!;
     this.tailLength = encoded[fields.length]!.length;
-    const literalBytes = encoded.reduce((sum, literal) => sum + literal.length, 0);
-    // Output: literals, ",\n", the widest values; columns: 8 bytes a number, 4 a count or a name's end, 1 a flag.
-    this.perRecord = literalBytes + 2 + fields.reduce((sum, f) => sum + WIDEST[f.kind] + (f.kind === 'number' ? 8 : f.kind === 'flag' ? 1 : 4), 0);
+    this.separatorAt = starts[fields.length + 1]!;
+    this.notFiniteAt = starts[fields.length + 2]!;
+    const literalBytes = encoded.slice(0, fields.length + 2).reduce((sum, literal) => sum + literal.length, 0);
+    // Output: literals, the separator, the widest values; columns: 8 bytes a number, 4 a count or a name's end, 1 a flag.
+    const widest = (f: RecordField) => (f.kind === 'number' ? Math.max(WIDEST.number, this.notFinite.length) : WIDEST[f.kind]);
+    this.perRecord = literalBytes + fields.reduce((sum, f) => sum + widest(f) + (f.kind === 'number' ? 8 : f.kind === 'flag' ? 1 : 4), 0);
     this.columnsAt = at;
     this.layoutKey = key;
     return true;
@@ -198,12 +250,12 @@ function joined(pieces: readonly Uint8Array[]): Uint8Array {
 }
 
 /** The escaped names of queries [from, to) one after another, and where each ends (from the first's start). */
-function namesOf(field: Extract<RecordField, { kind: 'name' }>, from: number, to: number): PackedBytes {
+function namesOf(field: Extract<RecordField, { kind: 'name' }>, from: number, to: number, style: RecordStyle): PackedBytes {
   const packed = field.packed;
   if (packed !== undefined) {
     const start = from === 0 ? 0 : packed.ends[from - 1]!;
     const bytes = packed.bytes.subarray(start, packed.ends[to - 1]!);
-    if (!needsEscaping(bytes)) {
+    if (style.plain(bytes)) {
       const ends = packed.ends.slice(from, to);
       for (let i = 0; i < ends.length; i++) ends[i]! -= start;
       return { bytes, ends };
@@ -234,20 +286,21 @@ function recordTextKernel(): RecordTextKernel | undefined {
 /**
  * Records of queries [from, to) as `JSON.stringify` writes elements of an array two levels deep
  * (`JSON.stringify(document, null, 1)`), one object per query with `fields` as its properties in order,
- * separated by ",\n", UTF-8 encoded. Undefined when the kernel cannot run here, for keys an object would
- * not keep in order (repeated, or array indices, which objects put first), or for more than one name.
+ * separated by ",\n", UTF-8 encoded; or, in the CSV style, as rows of the CSV report. Undefined when the
+ * kernel cannot run here, for keys an object would not keep in order (repeated, or array indices, which
+ * objects put first), or for more than one name.
  */
-export function recordBytes(fields: readonly RecordField[], from: number, to: number): Uint8Array | undefined {
+export function recordBytes(fields: readonly RecordField[], from: number, to: number, style: RecordStyle = JSON_RECORDS): Uint8Array | undefined {
   const keys = new Set(fields.map((f) => f.key));
   if (keys.size !== fields.length || fields.some((f) => /^(0|[1-9]\d*)$/.test(f.key))) return undefined;
   if (fields.filter((f) => f.kind === 'name').length > 1) return undefined;
   if (fields.length === 0 || to <= from) return undefined;
-  return recordTextKernel()?.write(fields, from, to);
+  return recordTextKernel()?.write(fields, from, to, style);
 }
 
-/** A name held as a string (it may hold a lone surrogate, which JSON escapes and UTF-8 cannot carry). */
-export function escapedText(text: string): Uint8Array {
-  return encoder.encode(JSON.stringify(text).slice(1, -1));
+/** A name held as a string, as the style writes it (it may hold a lone surrogate, which JSON escapes). */
+export function escapedText(text: string, style: RecordStyle = JSON_RECORDS): Uint8Array {
+  return encoder.encode(style.escape(text));
 }
 
 function kernelAbort(): never {

@@ -9,8 +9,9 @@ import { renderChunk } from '../evaluate/chunkOutput';
 import { runScoreRangeTask, type ScoreRequests } from './parallelEvaluate';
 import type { RenderRequests } from './renderInOrder';
 import { reportProgress, serveThread, transferring } from './threadServer';
-// Registers the JSON report's chunk renderer in this thread (see engine/evaluate/chunkOutput.ts).
+// Registers the JSON and CSV reports' chunk renderers in this thread (see engine/evaluate/chunkOutput.ts).
 import '../report/jsonRecords';
+import '../report/csv';
 // Lets the scoring sort with the WebAssembly kernel.
 import '../evaluate/keySortKernel';
 

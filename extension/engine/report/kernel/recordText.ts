@@ -1,10 +1,11 @@
 // AssemblyScript, compiled to WebAssembly by build.mjs (not part of the TypeScript program).
 //
 // Writes the JSON report's per-query records as UTF-8 bytes: the text `JSON.stringify(…, null, 1)`
-// gives them, to the byte. The host (../recordTextKernel.ts) lays out a record as a list of fields,
-// each a literal (keys, punctuation, indentation, made by JSON.stringify on the host) followed by a
-// value from a column: a query name (already escaped by the host), an unsigned integer, a number
-// (null when not finite) or a flag. Rendering records as objects and stringifying them cost V8 about
+// gives them, to the byte; and the CSV report's rows the same way. The host (../recordTextKernel.ts) lays
+// out a record as a list of fields, each a literal (keys, punctuation, indentation, made by
+// JSON.stringify on the host; for CSV a comma) followed by a value from a column: a query name (already
+// escaped by the host), an unsigned integer, a number (the host's text for one not finite: JSON's null,
+// CSV's empty cell) or a flag. Rendering records as objects and stringifying them cost V8 about
 // 3 µs a record; most of that was building the objects, the rest printing the numbers.
 //
 // Numbers are printed as JavaScript prints them (numberText.ts).
@@ -33,17 +34,15 @@ const KIND_FLAG: i32 = 3; // u8 column: true when 1
 }
 
 /**
- * Writes `count` records at `out` (separated by ",\n"); returns the end. `fields` holds four i32 per
+ * Writes `count` records at `out`, `separator` between them; returns the end. `fields` holds four i32 per
  * field: kind, literal address, literal length, column address (for names: the ends' address, with the
- * bytes at `names`). `tail` is written after each record's last field.
+ * bytes at `names`). `tail` is written after each record's last field, `notFinite` for a number that is not.
  */
-export function writeRecords(count: i32, fields: usize, fieldCount: i32, names: usize, tail: usize, tailLength: usize, out: usize): usize {
+export function writeRecords(count: i32, fields: usize, fieldCount: i32, names: usize, tail: usize, tailLength: usize, out: usize,
+  separator: usize, separatorLength: usize, notFinite: usize, notFiniteLength: usize): usize {
   let p = out;
   for (let q = 0; q < count; q++) {
-    if (q > 0) {
-      store<u16>(p, 0x0a2c); // ",\n"
-      p += 2;
-    }
+    if (q > 0) p = copyBytes(p, separator, separatorLength);
     for (let f = 0; f < fieldCount; f++) {
       const field = fields + (<usize>f << 4);
       const kind = load<i32>(field);
@@ -52,10 +51,7 @@ export function writeRecords(count: i32, fields: usize, fieldCount: i32, names: 
       if (kind == KIND_NUMBER) {
         const v = load<f64>(column + (<usize>q << 3));
         if (v - v == 0) p = writeNumber(v, p);
-        else {
-          store<u32>(p, 0x6c6c756e); // "null"
-          p += 4;
-        }
+        else p = copyBytes(p, notFinite, notFiniteLength);
       } else if (kind == KIND_UINT) {
         const count = writeDigits(<u64>load<u32>(column + (<usize>q << 2)), DIGITS + 32);
         p = copyDigits(p, DIGITS + 32 - <usize>count, count);
