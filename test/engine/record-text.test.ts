@@ -130,37 +130,28 @@ describe('records', () => {
     return { spec, perQuery, rnd };
   }
 
-  it('are the bytes of the stringified objects, for random columns, names and ranges', () => {
+  // The CSV report's rows come from the same writer in its CSV style: the same bytes as the cell-by-cell text
+  // (RFC 4180 quoting of names with commas, quotes and line breaks; empty cells for values not finite).
+  type Render = (spec: QueryRecordsSpec, perQuery: PerQueryColumns, from: number, to: number) => string | Uint8Array;
+  it.each([
+    ['the JSON records are the bytes of the stringified objects', renderQueryRecords, stringifyQueryRecords],
+    ['the CSV rows are the bytes of the rows written cell by cell', renderCsvRows, csvRowsText],
+  ] as [string, Render, Render][])('%s, for random columns, names and ranges', (_, render, text) => {
     for (let seed = 1; seed <= 40; seed++) {
       const n = 1 + Math.floor(seededRandom(seed)() * 300);
       const { spec, perQuery, rnd } = randomCase(seed, n);
       for (let k = 0; k < 4; k++) {
         const from = Math.floor(rnd() * n);
         const to = from + 1 + Math.floor(rnd() * (n - from));
-        const written = renderQueryRecords(spec, perQuery, from, to);
+        const written = render(spec, perQuery, from, to);
         expect(written, `seed ${seed}: the writer ran`).toBeInstanceOf(Uint8Array);
-        expect(Buffer.from(written as Uint8Array).equals(Buffer.from(encoder.encode(stringifyQueryRecords(spec, perQuery, from, to)))), `seed ${seed} [${from}, ${to})`)
+        expect(Buffer.from(written as Uint8Array).equals(Buffer.from(encoder.encode(text(spec, perQuery, from, to) as string))), `seed ${seed} [${from}, ${to})`)
           .toBe(true);
       }
     }
   });
 
-  // The CSV report's rows come from the same writer in its CSV style: the same bytes as the cell-by-cell text
-  // (RFC 4180 quoting of names with commas, quotes and line breaks; empty cells for values not finite).
-  it('in the CSV style are the bytes of the rows written cell by cell, for random columns, names and ranges', () => {
-    for (let seed = 1; seed <= 40; seed++) {
-      const n = 1 + Math.floor(seededRandom(seed)() * 300);
-      const { spec, perQuery, rnd } = randomCase(seed, n);
-      for (let k = 0; k < 4; k++) {
-        const from = Math.floor(rnd() * n);
-        const to = from + 1 + Math.floor(rnd() * (n - from));
-        const written = renderCsvRows(spec, perQuery, from, to);
-        expect(written, `seed ${seed}: the writer ran`).toBeInstanceOf(Uint8Array);
-        expect(Buffer.from(written as Uint8Array).equals(Buffer.from(encoder.encode(csvRowsText(spec, perQuery, from, to)))), `seed ${seed} [${from}, ${to})`)
-          .toBe(true);
-      }
-    }
-    // Batches: a range larger than the writer's memory at once.
+  it('in the CSV style, split into batches when a range does not fit the writer at once', () => {
     const { spec, perQuery } = randomCase(9, 60_000);
     const written = renderCsvRows(spec, perQuery, 0, 60_000) as Uint8Array;
     expect(written.length).toBeGreaterThan(4 << 20);

@@ -12,8 +12,8 @@ import type { PerQueryColumns } from '../evaluate/types';
 import type { MetricSpec } from '../metrics/registry';
 import type { QueryFacts } from '../tables/queryFacts';
 import { csvField } from './csvField';
-import { nameBytes, nameOf, packNames, type PackedNames } from './jsonRecords';
-import { CSV_ROWS, escapedName, escapedText, recordBytes, type RecordField } from './recordTextKernel';
+import { nameOf, packNames, queryNameField, type PackedNames } from './jsonRecords';
+import { CSV_ROWS, recordBytes, type RecordField } from './recordTextKernel';
 import { recordColumns, type ReportInput } from './reportInput';
 
 export { csvField } from './csvField';
@@ -48,11 +48,8 @@ export function renderCsvRows(spec: CsvRowsSpec, perQuery: PerQueryColumns, from
 
 /** The cells in order, for the record writer. */
 function csvFields(spec: CsvRowsSpec, perQuery: PerQueryColumns): RecordField[] {
-  const { names } = spec;
   const fields: RecordField[] = [
-    'texts' in names
-      ? { key: 'query', kind: 'name', escaped: (q) => escapedText(names.texts[q]!, CSV_ROWS) }
-      : { key: 'query', kind: 'name', escaped: (q) => escapedName(nameBytes(names, q), CSV_ROWS), packed: names },
+    queryNameField(spec.names, CSV_ROWS),
     { key: 'items', kind: 'uint', values: perQuery.items },
     { key: 'relevant', kind: 'uint', values: perQuery.relevant },
   ];

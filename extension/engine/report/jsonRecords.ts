@@ -14,7 +14,7 @@ import type { StringPool } from '../model/stringPool';
 import type { PerQueryColumns } from '../evaluate/types';
 import type { QueryFacts } from '../tables/queryFacts';
 import { recordColumns } from './reportInput';
-import { escapedName, escapedText, recordBytes, type RecordField } from './recordTextKernel';
+import { escapedName, escapedText, JSON_RECORDS, recordBytes, type RecordField, type RecordStyle } from './recordTextKernel';
 
 /**
  * Query names in a form copied to workers cheaply: UTF-8 bytes one after another (name q is
@@ -41,7 +41,7 @@ export function packNames(pool: StringPool): PackedNames {
   return pool.packed((bytes) => new SharedArrayBuffer(bytes));
 }
 
-export function nameBytes(names: { readonly bytes: Uint8Array; readonly ends: Uint32Array }, q: number): Uint8Array {
+function nameBytes(names: { readonly bytes: Uint8Array; readonly ends: Uint32Array }, q: number): Uint8Array {
   return names.bytes.subarray(q === 0 ? 0 : names.ends[q - 1]!, names.ends[q]!);
 }
 
@@ -68,13 +68,17 @@ export function renderQueryRecords(spec: QueryRecordsSpec, perQuery: PerQueryCol
   return stringifyQueryRecords(spec, perQuery, from, to);
 }
 
+/** The query name, as the record writer takes it in the style given (packed names are copied a range at a time). */
+export function queryNameField(names: PackedNames, style: RecordStyle = JSON_RECORDS): RecordField {
+  return 'texts' in names
+    ? { key: 'query', kind: 'name', escaped: (q) => escapedText(names.texts[q]!, style) }
+    : { key: 'query', kind: 'name', escaped: (q) => escapedName(nameBytes(names, q), style), packed: names };
+}
+
 /** The records' properties in order, for the record writer. */
 function recordFields(spec: QueryRecordsSpec, perQuery: PerQueryColumns): RecordField[] {
-  const { names } = spec;
   const fields: RecordField[] = [
-    'texts' in names
-      ? { key: 'query', kind: 'name', escaped: (q) => escapedText(names.texts[q]!) }
-      : { key: 'query', kind: 'name', escaped: (q) => escapedName(nameBytes(names, q)), packed: names },
+    queryNameField(spec.names),
     { key: 'items', kind: 'uint', values: perQuery.items },
     { key: 'relevant', kind: 'uint', values: perQuery.relevant },
   ];

@@ -20,6 +20,17 @@ interface RecordTextExports {
     separator: number, separatorLength: number, notFinite: number, notFiniteLength: number): number;
 }
 
+/** True when every byte is printable ASCII other than `a` and `b` (a style writes such a name as it is). */
+function printableExcept(a: number, b: number): (bytes: Uint8Array) => boolean {
+  return (bytes) => {
+    for (let i = 0; i < bytes.length; i++) {
+      const x = bytes[i]!;
+      if (x < 0x20 || x > 0x7e || x === a || x === b) return false;
+    }
+    return true;
+  };
+}
+
 /** How records are laid out around their values: the JSON report's objects or the CSV report's rows. */
 export interface RecordStyle {
   readonly name: string;
@@ -49,13 +60,7 @@ export const JSON_RECORDS: RecordStyle = {
   separator: ',\n',
   notFinite: 'null',
   // Printable ASCII other than a quote or a backslash: JSON writes it as it is.
-  plain: (bytes) => {
-    for (let i = 0; i < bytes.length; i++) {
-      const b = bytes[i]!;
-      if (b < 0x20 || b > 0x7e || b === 0x22 || b === 0x5c) return false;
-    }
-    return true;
-  },
+  plain: printableExcept(0x22, 0x5c),
   escape: (text) => JSON.stringify(text).slice(1, -1),
 };
 
@@ -65,14 +70,8 @@ export const CSV_ROWS: RecordStyle = {
   literals: (fields) => [...fields.map((_, f) => (f === 0 ? '' : ',')), ''],
   separator: '\n',
   notFinite: '',
-  // Printable ASCII other than a comma or a quote is written as it is (anything else goes through csvField).
-  plain: (bytes) => {
-    for (let i = 0; i < bytes.length; i++) {
-      const b = bytes[i]!;
-      if (b < 0x20 || b > 0x7e || b === 0x22 || b === 0x2c) return false;
-    }
-    return true;
-  },
+  // Printable ASCII other than a quote or a comma is written as it is (anything else goes through csvField).
+  plain: printableExcept(0x22, 0x2c),
   escape: csvField,
 };
 
