@@ -95,9 +95,11 @@ export interface EngineActivity {
   itemIdsMade: number;
   /** Chunks of report text other threads rendered for this thread (threads/renderInOrder.ts), ever. */
   chunksRenderedElsewhere: number;
+  /** Queries a parse worker keyed from the hashes alone, for a read not grouped by query (threads/keyUngrouped.ts), ever. */
+  queriesKeyedElsewhere: number;
 }
 
-const activity: EngineActivity = { liveThreads: 0, kernelRows: 0, itemIdsMade: 0, chunksRenderedElsewhere: 0 };
+const activity: EngineActivity = { liveThreads: 0, kernelRows: 0, itemIdsMade: 0, chunksRenderedElsewhere: 0, queriesKeyedElsewhere: 0 };
 
 /** The live counters (the engine's threads and kernel add to them). */
 export function engineActivity(): EngineActivity {

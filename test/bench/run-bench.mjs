@@ -1,11 +1,12 @@
 #!/usr/bin/env node
 // End-to-end benchmark of `gainline eval` on generated dumps (1M rows; 10M rows whose item ids repeat
-// across queries; 10M rows whose item ids are all distinct, as a TSV), against peers run on the same
+// across queries; 10M rows whose item ids are all distinct, as a TSV, grouped by query in 100k or 1M
+// queries or in random order), against peers run on the same
 // files in the same run: DuckDB computing NDCG@10 in SQL, vectorised numpy, and pandas groupby +
 // scikit-learn per query (1M only). Each is timed best of N. Then runs every other
 // test/bench/bench-*.mjs script (not with --eval-only).
-// Usage: npm run bench [-- --only 1m|10m|10m-distinct|10m-distinct-1mq] [-- --runs N] [-- --eval-only]
-// GAINLINE_BENCH_DATA=DIR puts the generated dumps (about 1.3 GB) there instead of test/bench/data/.
+// Usage: npm run bench [-- --only 1m|10m|10m-distinct|10m-distinct-1mq|10m-distinct-scattered] [-- --runs N] [-- --eval-only]
+// GAINLINE_BENCH_DATA=DIR puts the generated dumps (about 2.6 GB) there instead of test/bench/data/.
 import { spawn, spawnSync } from 'node:child_process';
 import { existsSync, readdirSync, statSync, mkdirSync } from 'node:fs';
 import { cpus, loadavg } from 'node:os';
@@ -23,6 +24,9 @@ const SIZES = [
   { name: '10m-distinct', file: 'dump-10m-distinct.tsv', rows: 10_000_000, queries: 100_000, runs: 3, sklearn: false, distinct: true },
   // The same rows in ten times as many, ten-row queries (a reranker's candidate lists): what costs per query shows here.
   { name: '10m-distinct-1mq', file: 'dump-10m-distinct-1mq.tsv', rows: 10_000_000, queries: 1_000_000, runs: 3, sklearn: false, distinct: true },
+  // The same rows in a random order, a query's rows spread over the file (many inference jobs appending to one dump).
+  { name: '10m-distinct-scattered', file: 'dump-10m-distinct-scattered.tsv', rows: 10_000_000, queries: 100_000, runs: 3, sklearn: false, distinct: true,
+    scattered: true },
 ].filter((s) => !args.only || s.name === args.only);
 const PEERS = [
   // DuckDB and scikit-learn average tied scores as we do, so their means agree to rounding; the numpy peer
@@ -62,9 +66,9 @@ function ensureDump(size) {
   mkdirSync(dataDir, { recursive: true });
   const file = join(dataDir, size.file);
   if (!existsSync(file) || statSync(file).size < size.rows * 30) {
-    console.log(`generating ${file} (${size.rows.toLocaleString('en-US')} rows, ${size.queries.toLocaleString('en-US')} queries${size.distinct ? ', every item id distinct' : ''})…`);
+    console.log(`generating ${file} (${size.rows.toLocaleString('en-US')} rows, ${size.queries.toLocaleString('en-US')} queries${size.distinct ? ', every item id distinct' : ''}${size.scattered ? ', rows in random order' : ''})…`);
     const r = spawnSync(process.execPath, [join(root, 'test/support/make-demo-data.mjs'), '--rows', String(size.rows), '--queries', String(size.queries), '--out', file,
-      ...(size.distinct ? ['--distinct-items'] : [])], { stdio: 'inherit' });
+      ...(size.distinct ? ['--distinct-items'] : []), ...(size.scattered ? ['--scattered'] : [])], { stdio: 'inherit' });
     if (r.status !== 0) throw new Error('generating the benchmark dump failed');
   }
   return file;
@@ -162,6 +166,12 @@ for (const r of results) {
   if (r.size.name === '10m-distinct-1mq') {
     const vs = (p, label) => (p ? `; ${label}/ours wall ${fmt(p.seconds / r.seconds, 1)}×` : '');
     console.log(`  10M distinct ids in 1M queries of about 10 rows, the 10M-distinct targets on another shape: ${fmt(r.seconds)} s → ${verdict(r.seconds <= 3)}, ` +
+      `${fmt(r.peakMB, 0)} MB → ${verdict(r.peakMB <= 1024)}${vs(duckdb, 'DuckDB')}${vs(numpy, 'numpy')}` +
+      `${r.table ? ` (the default table output: ${fmt(r.table.seconds)} s, ${fmt(r.table.peakMB, 0)} MB)` : ''}`);
+  }
+  if (r.size.name === '10m-distinct-scattered') {
+    const vs = (p, label) => (p ? `; ${label}/ours wall ${fmt(p.seconds / r.seconds, 1)}×` : '');
+    console.log(`  10M distinct ids with the rows in random order, the 10M-distinct targets on another shape: ${fmt(r.seconds)} s → ${verdict(r.seconds <= 3)}, ` +
       `${fmt(r.peakMB, 0)} MB → ${verdict(r.peakMB <= 1024)}${vs(duckdb, 'DuckDB')}${vs(numpy, 'numpy')}` +
       `${r.table ? ` (the default table output: ${fmt(r.table.seconds)} s, ${fmt(r.table.peakMB, 0)} MB)` : ''}`);
   }

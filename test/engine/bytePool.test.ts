@@ -4,7 +4,7 @@
  * and whether it is more or less than what comes.
  */
 import { describe, expect, it } from 'vitest';
-import { BytePool } from '../../extension/engine/model/bytePool';
+import { BytePool, hashBytes } from '../../extension/engine/model/bytePool';
 import { seededRandom } from '../reference/random';
 
 function strings(seed: number, count: number): string[] {
@@ -31,4 +31,28 @@ describe('BytePool.reserve', () => {
       all.forEach((text, i) => expect(reserved.find(text)).toBe(ids[i]));
       expect(reserved.find('not a hose')).toBe(-1);
     });
+});
+
+describe('BytePool look-ups compare four bytes at a time', () => {
+  // Same length and, when forced, the same hash as a stored value, differing in one byte at every position
+  // (the four-byte steps and the byte tail both), at offsets of every alignment in the caller's array.
+  it.each([[0], [1], [3], [7], [8], [9], [12], [31], [40]])('values of %i bytes differing in one byte are told apart', (length) => {
+    const pool = new BytePool();
+    const rand = seededRandom(length + 1);
+    const value = Uint8Array.from({ length }, () => 97 + Math.floor(rand() * 26));
+    const id = pool.intern(value, 0, length);
+    for (let shift = 0; shift < 4; shift++) {
+      // A view that starts inside its buffer, as a slice of a file buffer does.
+      const room = new Uint8Array(length + shift + 8).subarray(5);
+      room.set(value, shift);
+      expect(pool.findBytes(room, shift, shift + length)).toBe(id);
+      const hash = hashBytes(value, 0, length);
+      for (let at = 0; at < length; at++) {
+        room[shift + at] ^= 1;
+        // The stored value's hash, so only the comparison can refuse it.
+        expect(pool.findHashed(room, shift, shift + length, hash)).toBe(-1);
+        room[shift + at] ^= 1;
+      }
+    }
+  });
 });

@@ -2,12 +2,13 @@
 // Writes the demo workspace's data for the invented "Kettlewood Hardware" product search.
 //
 //   node test/support/make-demo-data.mjs [--dir DIR]     small demo files into demo/ (committed) or DIR
-//   node test/support/make-demo-data.mjs --rows N --out FILE [--queries Q] [--seed S] [--distinct-items]
+//   node test/support/make-demo-data.mjs --rows N --out FILE [--queries Q] [--seed S] [--distinct-items] [--scattered]
 //                                                        one large CSV (TSV when FILE ends in .tsv) for
-//                                                        benchmarks; --distinct-items: no item id repeats
+//                                                        benchmarks; --distinct-items: no item id repeats;
+//                                                        --scattered: the rows in a random order, not by query
 //
 // Output is deterministic: the same seed gives byte-identical files.
-import { mkdirSync, writeFileSync } from 'node:fs';
+import { mkdirSync, rmSync, writeFileSync } from 'node:fs';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { parseArgs } from 'node:util';
@@ -15,7 +16,7 @@ import { gzipSync } from 'node:zlib';
 import { parquetWriteBuffer } from 'hyparquet-writer';
 import { buildScenario } from './demo-scenario.mjs';
 import { PRODUCTS } from './demo-vocabulary.mjs';
-import { writeLargeDump } from './demo-large.mjs';
+import { scatterRows, writeLargeDump } from './demo-large.mjs';
 
 const repoRoot = resolve(dirname(fileURLToPath(import.meta.url)), '../..');
 
@@ -163,18 +164,25 @@ const { values } = parseArgs({
     seed: { type: 'string' },
     dir: { type: 'string' },
     'distinct-items': { type: 'boolean' },
+    scattered: { type: 'boolean' },
   },
 });
 if (values.rows !== undefined) {
   const rows = Number(values.rows);
   if (!Number.isInteger(rows) || rows < 1 || !values.out) {
-    console.error('usage: make-demo-data.mjs --rows N --out FILE [--queries Q] [--seed S] [--distinct-items]');
+    console.error('usage: make-demo-data.mjs --rows N --out FILE [--queries Q] [--seed S] [--distinct-items] [--scattered]');
     process.exit(2);
   }
   const queries = values.queries ? Number(values.queries) : Math.max(1, Math.round(rows / 100));
-  const written = writeLargeDump(resolve(values.out), rows, queries, values.seed ?? 'kettlewood-large-1', {
+  const out = resolve(values.out);
+  const grouped = values.scattered ? `${out}.grouped` : out;
+  const written = writeLargeDump(grouped, rows, queries, values.seed ?? 'kettlewood-large-1', {
     distinctItems: values['distinct-items'] === true,
   });
+  if (values.scattered) {
+    scatterRows(grouped, out, `${values.seed ?? 'kettlewood-large-1'}-scattered`);
+    rmSync(grouped);
+  }
   console.log(`wrote ${written.rows} rows, ${written.queries} queries, ${(written.bytes / 1e6).toFixed(1)} MB → ${values.out}`);
 } else {
   writeSmallDemo(values.dir ? resolve(values.dir) : join(repoRoot, 'demo'));

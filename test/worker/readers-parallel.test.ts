@@ -7,9 +7,10 @@ import { describe, expect, it } from 'vitest';
 import { CancelledError, InputError } from '../../extension/engine/errors';
 import { gradeRange } from '../../extension/engine/evaluate/evaluate';
 import type { RankedDump } from '../../extension/engine/model/dump';
+import { groupByQuery } from '../../extension/engine/model/groups';
 import { readDump } from '../../extension/engine/readers/index';
 import { readParallelDelimited } from '../../extension/engine/threads/parallel';
-import { configureEngine } from '../../extension/engine/config';
+import { configureEngine, engineActivity } from '../../extension/engine/config';
 import { TempDir } from '../engine/fixtures/readers/tempFiles';
 import { seededRandom } from '../reference/random';
 import { useBundledWorkers } from './support/workers';
@@ -79,6 +80,8 @@ describe('parallel parsing', () => {
     ['grouped, one query across every range', () => 'drill'],
     // Every range grouped on its own, but a query's block comes back later in the file: the merge must not take the file as grouped.
     ['each range grouped, a query returning in a later range', (r: number) => `drill ${Math.floor(r / 3000) % 2}`],
+    // Ranges of the first half keyed their rows, the others kept their hashes: only the keyed get hashes back.
+    ['grouped first half, interleaved second half', (r: number) => (r < 6000 ? `drill ${Math.floor(r / 700)}` : `saw ${r % 13}`)],
   ])('item keys with items repeated in every query match one thread: %s', async (label, queryOf) => {
     const rnd = seededRandom(77);
     const lines = ['query_id,item_id,label,score'];
@@ -94,6 +97,41 @@ describe('parallel parsing', () => {
       let repeats = 0;
       single.itemKey!.forEach((key, row) => (repeats += key === row ? 0 : 1));
       expect(repeats).toBeGreaterThan(1000);
+    } finally {
+      configureEngine(saved);
+    }
+  });
+
+  // Rows not grouped by query are grouped and keyed on this thread and a parse worker (keyUngrouped.ts); the
+  // worker keys from hashes alone and leaves a query with a repeat to this thread. Mostly distinct items
+  // take the worker's way; the grouping made is the one scoring gets.
+  it.each([[0], [0.05]])('rows scattered over the file, items repeated in %f of the rows: the keys and grouping of one thread', async (repeats) => {
+    const rnd = seededRandom(78);
+    const lines = ['query_id,item_id,label,score'];
+    const lastOf = new Map<number, string>();
+    for (let r = 0; r < 12_000; r++) {
+      const q = Math.floor(rnd() * 300);
+      const item = rnd() < repeats && lastOf.has(q) ? lastOf.get(q)! : `sku-${r}`;
+      lastOf.set(q, item);
+      lines.push(`drill ${q},${item},${Math.floor(rnd() * 3)},${(rnd() * 4).toFixed(3)}`);
+    }
+    const path = tmp.file(`par-scattered-${repeats}.csv`, lines.join('\n') + '\n');
+    const saved = configureEngine({ tuning: { plainChunkBytes: 4099, parseRangesPerThread: 3 } });
+    try {
+      const single = await readDump(path, { threads: 1 });
+      const keyedBefore = engineActivity().queriesKeyedElsewhere;
+      const multi = (await readParallelDelimited(path, 'csv', 44, 2, {}))!;
+      // The worker's share: about half of the 300 queries, all of them when no item repeats.
+      const keyedThere = engineActivity().queriesKeyedElsewhere - keyedBefore;
+      expect(keyedThere).toBeGreaterThan(repeats === 0 ? 100 : 0);
+      expectSameDump(single, multi);
+      const mine = groupByQuery(single);
+      const theirs = groupByQuery(multi);
+      expect(Array.from(theirs.start)).toEqual(Array.from(mine.start));
+      expect(Array.from(theirs.rowsOfQuery!)).toEqual(Array.from(mine.rowsOfQuery!));
+      expect(theirs.rowsOfQuery!.buffer).toBeInstanceOf(SharedArrayBuffer);
+      const repeated = Array.from(single.itemKey!).filter((key, row) => key !== row).length;
+      expect(repeated > 0).toBe(repeats > 0);
     } finally {
       configureEngine(saved);
     }

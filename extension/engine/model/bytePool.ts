@@ -39,6 +39,11 @@ export class BytePool implements StringPool {
   private lastText: string | undefined;
   private lastId = -1;
   private scratch = new Uint8Array(64);
+  /** recordEquals' views, made again only when the arena or the caller's array changes. */
+  private arenaViewOf: Uint8Array | undefined;
+  private arenaDataView: DataView<ArrayBufferLike> = new DataView(new ArrayBuffer(0));
+  private callerViewOf: Uint8Array | undefined;
+  private callerDataView: DataView<ArrayBufferLike> = new DataView(new ArrayBuffer(0));
 
   get size(): number {
     return this.count;
@@ -241,8 +246,35 @@ export class BytePool implements StringPool {
     if (this.lengthAt(record) !== len) return false;
     const arena = this.arena;
     const from = record + HEADER;
-    for (let i = 0; i < len; i++) if (arena[from + i] !== bytes[start + i]) return false;
+    let i = 0;
+    if (len >= 8) {
+      // Four bytes at a time through DataViews: a lookup that finds its value compares every byte, and a byte
+      // loop took 78 against 36 ns for 26 bytes (a file not grouped by query looks up every row's query).
+      const mine = this.arenaView(arena);
+      const theirs = this.viewOf(bytes);
+      const at = bytes.byteOffset + start;
+      for (; i + 4 <= len; i += 4) if (mine.getInt32(from + i) !== theirs.getInt32(at + i)) return false;
+    }
+    for (; i < len; i++) if (arena[from + i] !== bytes[start + i]) return false;
     return true;
+  }
+
+  /** A DataView of the arena as it is now (it is replaced when it grows). */
+  private arenaView(arena: Uint8Array): DataView<ArrayBufferLike> {
+    if (this.arenaViewOf !== arena) {
+      this.arenaViewOf = arena;
+      this.arenaDataView = new DataView(arena.buffer, arena.byteOffset, arena.byteLength);
+    }
+    return this.arenaDataView;
+  }
+
+  /** A DataView of the whole buffer under `bytes` (offsets then count from the buffer's start), kept for the next call with the same array. */
+  private viewOf(bytes: Uint8Array): DataView<ArrayBufferLike> {
+    if (this.callerViewOf !== bytes) {
+      this.callerViewOf = bytes;
+      this.callerDataView = new DataView(bytes.buffer);
+    }
+    return this.callerDataView;
   }
 
   private add(bytes: Uint8Array, start: number, end: number, hash: number, slot: number): number {

@@ -31,12 +31,17 @@ export function rowsOfGroup(groups: QueryGroups, q: number): Uint32Array {
 
 /**
  * O(rows + queries): count rows per query, prefix-sum, then place rows in file order. `allocate`
- * makes the two columns (shared memory when score workers will read them).
+ * makes the two columns (shared memory when score workers will read them). A grouping the read made
+ * already for this very query column (`rememberGroups`) is given back instead.
  */
 export function groupByQuery(dump: RankedDump, allocate: (length: number) => Uint32Array = (n) => new Uint32Array(n)): QueryGroups {
-  const queryCount = dump.queries.size;
-  const rows = dump.rowCount;
-  const query = dump.query;
+  const known = remembered.get(dump.query);
+  if (known !== undefined && known.start.length === dump.queries.size + 1 && known.start[known.start.length - 1] === dump.rowCount) return known;
+  return groupRows(dump.query, dump.rowCount, dump.queries.size, allocate);
+}
+
+/** groupByQuery of the first `rows` rows of a query column with ids below `queryCount`. */
+export function groupRows(query: Uint32Array, rows: number, queryCount: number, allocate: (length: number) => Uint32Array): QueryGroups {
   const start = allocate(queryCount + 1);
   // Dumps usually keep each query's rows together, and ids are interned in first-seen order, so the
   // query column then climbs by at most one per row and the grouping is the file order itself: one
@@ -57,9 +62,35 @@ export function groupByQuery(dump: RankedDump, allocate: (length: number) => Uin
   }
   const rowsOfQuery = allocate(rows);
   start.fill(0);
-  for (let r = 0; r < rows; r++) start[query[r]! + 1]++;
+  countRowsPerQuery(query, 0, rows, start.subarray(1));
   for (let q = 0; q < queryCount; q++) start[q + 1] += start[q]!;
-  const next = start.slice(0, queryCount);
-  for (let r = 0; r < rows; r++) rowsOfQuery[next[query[r]!]!++] = r;
+  placeRows(query, 0, rows, start.slice(0, queryCount), rowsOfQuery);
   return { rowsOfQuery, start };
+}
+
+/** counts[q] += the rows of query q among rows [from, to): the first pass of the counting sort, by parts on several threads. */
+export function countRowsPerQuery(query: Uint32Array, from: number, to: number, counts: Uint32Array): void {
+  for (let r = from; r < to; r++) counts[query[r]!]++;
+}
+
+/** out[next[query[r]]++] = r for rows [from, to) in order: the second pass, `next` holding where each query's rows of this part begin. */
+export function placeRows(query: Uint32Array, from: number, to: number, next: Uint32Array, out: Uint32Array): void {
+  for (let r = from; r < to; r++) out[next[query[r]!]!++] = r;
+}
+
+/**
+ * Groupings made while reading (a file not grouped by query is grouped to key its items), by the query
+ * column they group: groupByQuery of a dump with that very column returns it. Weak, so a dump let go
+ * takes its grouping with it. Kept in shared memory, as score workers read it.
+ */
+const remembered = new WeakMap<Uint32Array, QueryGroups>();
+
+/** Lets groupByQuery return `groups` for dumps whose query column is `query` (that object, unchanged). */
+export function rememberGroups(query: Uint32Array, groups: QueryGroups): void {
+  remembered.set(query, groups);
+}
+
+/** A column in shared memory, for a grouping score workers will read. */
+export function sharedColumn(length: number): Uint32Array {
+  return new Uint32Array(new SharedArrayBuffer(length * 4));
 }

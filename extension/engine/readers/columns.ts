@@ -3,6 +3,7 @@
  */
 import { engineActivity } from '../config';
 import { BytePool } from '../model/bytePool';
+import { rememberGroups, type QueryGroups } from '../model/groups';
 import { RowTexts } from '../model/rowTexts';
 import { addSummaries, gradeRangeOf, summariseRows, type RowSummary } from '../model/rowSummary';
 import type { DumpFormat, FileStamp, RankedDump, ReaderNotes, SegmentColumn } from '../model/dump';
@@ -89,6 +90,8 @@ export class RowColumns implements RowArrays {
   itemTexts: RowTexts | undefined;
   /** Set when `item` holds query-scoped keys already (made by the parse threads of a parallel read), not hashes. */
   itemKeysMade = false;
+  /** The grouping by query made to key the items of rows not grouped by query, kept for scoring (groupByQuery). */
+  groups: QueryGroups | undefined;
   /**
    * False when the shared slice keeps no row offsets (its offset buffer has no bytes): `offset` then stays
    * empty, and a write to it is a no-op (a typed array ignores writes past its end).
@@ -220,7 +223,8 @@ export class RowColumns implements RowArrays {
     };
     if (texts === undefined) return dump;
     const itemKey = dump.item;
-    if (!this.itemKeysMade) texts.queryScopedKeys(dump.query, itemKey, this.queries.size);
+    if (!this.itemKeysMade) this.groups = texts.queryScopedKeys(dump.query, itemKey, this.queries.size);
+    if (this.groups !== undefined) rememberGroups(dump.query, this.groups);
     return withLazyItemIds({ ...dump, itemKey, itemTexts: texts }, texts);
   }
 }

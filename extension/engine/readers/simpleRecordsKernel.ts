@@ -51,6 +51,8 @@ export class SimpleRecordsKernel {
   /** Per field: the role and, for id fields, the output slot. */
   private readonly fields: { role: number; slot: number }[];
   private readonly records = new Int32Array(64);
+  /** The hashes of a batch of listed rows (internRuns). */
+  private readonly batchHashes = new Int32Array(64);
   private readonly rowsPerCall = engineSettings().tuning.kernelRowsPerCall;
   private readonly pieceBytes = engineSettings().tuning.kernelPieceBytes;
 
@@ -186,20 +188,30 @@ export class SimpleRecordsKernel {
 
   /**
    * Query and segment ids of the `count` rows from `first`, from the rows the kernel listed as changing
-   * (every other row repeats the row before: one fill per run); a changed row tries the last id first.
+   * (every other row repeats the row before: one fill per run). Only a call's first row can repeat the
+   * last id (the kernel compares it with nothing); every other listed row differs from the row before.
+   * Listed rows are interned in batches of 64 whose table slots are warmed first, so their cache misses
+   * overlap: in a file not grouped by query every row is listed (0.13 µs a row against ...).
    */
   private internRuns(pool: BytePool, out: Uint32Array<ArrayBufferLike>, first: number, slot: number, count: number, last: number): number {
     const at = slot * this.rowsPerCall;
-    const { bytes, idStart, idEnd, idHash, changes } = this;
-    let row = 0;
+    const { bytes, idStart, idEnd, idHash, changes, records, batchHashes } = this;
     // A record the kernel gave back after reading its ids may be listed last: it is not among the rows.
-    for (let k = 0; k < this.changeCount[slot]! && changes[at + k]! < count; k++) {
-      const changed = changes[at + k]!;
-      if (changed > row) out.fill(last, first + row, first + changed);
-      const i = at + changed;
-      if (last < 0 || !pool.matches(last, bytes, idStart[i]!, idEnd[i]!)) last = pool.internHashed(bytes, idStart[i]!, idEnd[i]!, idHash[i]!);
-      out[first + changed] = last;
-      row = changed + 1;
+    let listed = this.changeCount[slot]!;
+    while (listed > 0 && changes[at + listed - 1]! >= count) listed--;
+    let row = 0;
+    for (let from = 0; from < listed; from += 64) {
+      const n = Math.min(64, listed - from);
+      for (let b = 0; b < n; b++) batchHashes[b] = idHash[at + changes[at + from + b]!]!;
+      pool.warm(batchHashes, n, records);
+      for (let b = 0; b < n; b++) {
+        const changed = changes[at + from + b]!;
+        if (changed > row) out.fill(last, first + row, first + changed);
+        const i = at + changed;
+        if (changed !== 0 || last < 0 || !pool.matches(last, bytes, idStart[i]!, idEnd[i]!)) last = pool.internHashed(bytes, idStart[i]!, idEnd[i]!, idHash[i]!);
+        out[first + changed] = last;
+        row = changed + 1;
+      }
     }
     if (count > row) out.fill(last, first + row, first + count);
     return last;

@@ -18,6 +18,7 @@ import { checkUnchanged, statStamp, throwIfCancelled } from '../readers/source';
 import type { CompactTask } from './compactRanges';
 import { idleKeptThreads, leasePool, type PoolLease } from './keptPools';
 import { shrinkingEnds } from './shrinkingShares';
+import { keyUngroupedRows, type GroupAnswer, type GroupTask } from './keyUngrouped';
 import { compactShared, itemKeysOfRanges, merge, type RangeRows } from './mergeRanges';
 
 /**
@@ -85,6 +86,9 @@ async function readInRanges(lease: PoolLease<ParseRequests>, path: string, forma
     itemKeysOfRanges(rows, parts);
   }
   if (rows.count === 0) throw new InputError('at least one data row after the header', path, 2);
+  if (parts.every((p) => p.inShared) && lease.pool.idle > 0) {
+    await keyUngroupedRows(rows, (task) => lease.pool.request('groupRows', task, { signal: options.signal }));
+  }
   await checkUnchanged(path, stamp);
   rows.setGaps(gaps);
   options.onProgress?.(1);
@@ -187,6 +191,8 @@ export type ParseRequests = {
   parseRanges: { params: { tasks: readonly RangeTask[]; next: Int32Array }; result: ClaimedRanges };
   /** A share of the columns of a read's shared compaction (mergeRanges.ts). */
   compactColumns: { params: CompactTask; result: true };
+  /** A step of grouping and keying rows not grouped by query (keyUngrouped.ts). */
+  groupRows: { params: GroupTask; result: GroupAnswer };
 };
 
 /**

@@ -9,7 +9,7 @@
 import { loadavg } from 'node:os';
 import { engineSettings } from '../config';
 import type { RankedDump } from '../model/dump';
-import { groupByQuery, type QueryGroups } from '../model/groups';
+import { groupByQuery, sharedColumn, type QueryGroups } from '../model/groups';
 import type { Conventions } from '../metrics/conventions';
 import type { MetricSpec } from '../metrics/registry';
 import {
@@ -180,7 +180,7 @@ function claimChunks(scorer: RangeScorer, bounds: readonly number[], next: Int32
 
 /** groupByQuery written straight into shared memory, so workers read it without a copy. */
 function sharedGroups(dump: RankedDump): QueryGroups {
-  return groupByQuery(dump, (length) => new Uint32Array(new SharedArrayBuffer(length * 4)));
+  return groupByQuery(dump, sharedColumn);
 }
 
 /** What a score thread answers (scoreWorker.ts); it reports progress once, when it claims its first chunk. */
