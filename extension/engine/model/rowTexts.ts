@@ -308,9 +308,10 @@ class ItemProbe {
   private gathered = new Int32Array(256);
 
   /**
-   * The hashes of rows from..to, read in a loop of loads alone: through `order` the rows lie anywhere in the
-   * file, and a tight loop keeps many of those cache misses in flight at once where the probing loop kept few
-   * (10M rows not grouped by query: keying took ... against ... ms).
+   * The hashes of rows from..to, read in a loop of loads alone: through `order` the rows lie anywhere in
+   * the file, and a tight loop keeps more of those cache misses in flight than the probing loop does (10M
+   * rows in random order: the worker's half took 0.15–0.18 against 0.18–0.23 s; this thread's, which
+   * compares bytes, about the same either way).
    */
   private gather(column: Uint32Array, from: number, to: number, order: Uint32Array | undefined): Int32Array {
     if (to - from > this.gathered.length) this.gathered = new Int32Array(2 * (to - from));
