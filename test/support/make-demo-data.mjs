@@ -175,7 +175,8 @@ if (values.rows !== undefined) {
   }
   const queries = values.queries ? Number(values.queries) : Math.max(1, Math.round(rows / 100));
   const out = resolve(values.out);
-  const grouped = values.scattered ? `${out}.grouped` : out;
+  // The same extension, which picks the separator.
+  const grouped = values.scattered ? out.replace(/(\.[^./]*)?$/, (ext) => `.grouped${ext}`) : out;
   const written = writeLargeDump(grouped, rows, queries, values.seed ?? 'kettlewood-large-1', {
     distinctItems: values['distinct-items'] === true,
   });
