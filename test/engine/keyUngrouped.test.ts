@@ -6,8 +6,8 @@
  * serves scoring only for the very query column it was made from.
  */
 import { describe, expect, it } from 'vitest';
-import { countRowsPerQuery, groupByQuery, groupRows, placeRows, rememberGroups, sharedColumn } from '../../extension/engine/model/groups';
-import { keyGroupsByHash } from '../../extension/engine/model/rowTexts';
+import { countRowsPerQuery, groupByQuery, groupRows, placeRows, rememberGroups, sharedColumn, usableValues } from '../../extension/engine/model/groups';
+import { keyGroupsByHash } from '../../extension/engine/model/itemProbe';
 import type { RankedDump } from '../../extension/engine/model/dump';
 import { readDump } from '../../extension/engine/readers/index';
 import { RowColumns } from '../../extension/engine/readers/columns';
@@ -111,6 +111,9 @@ describe('keyUngroupedRows', () => {
     rows.query.set(c.query);
     rows.item = sharedColumn(c.items.length);
     rows.item.set(hashes(c));
+    const rnd = seededRandom(c.items.length);
+    rows.score = new Float64Array(new SharedArrayBuffer(c.items.length * 8)).map(() => (rnd() < 0.05 ? NaN : rnd()));
+    rows.label = new Float64Array(new SharedArrayBuffer(c.items.length * 8)).map(() => (rnd() < 0.1 ? NaN : Math.floor(rnd() * 5)));
     rows.count = c.items.length;
     for (let q = 0; q < c.queryCount; q++) rows.queries.internString(`q${q}`);
     return rows;
@@ -130,6 +133,21 @@ describe('keyUngroupedRows', () => {
     const whole = groupRows(c.query, c.items.length, c.queryCount, (n) => new Uint32Array(n));
     expect(Array.from(rows.groups!.start)).toEqual(Array.from(whole.start));
     expect(Array.from(rows.groups!.rowsOfQuery!)).toEqual(Array.from(whole.rowsOfQuery!));
+    // The values carried along: each position holds its row's score and grade, and whether its item comes first in its query.
+    const values = rows.groups!.values!;
+    const keys = slowKeys(c);
+    const order = whole.rowsOfQuery!;
+    expect(Array.from(values.score)).toEqual(Array.from(order, (r) => rows.score[r]));
+    expect(Array.from(values.label)).toEqual(Array.from(order, (r) => rows.label[r]));
+    expect(Array.from(values.first)).toEqual(Array.from(order, (r) => (keys[r] === r ? 1 : 0)));
+    expect(values.first.includes(0)).toBe(true);
+    // They serve scoring for these very columns only.
+    const columns = { score: rows.score.subarray(0, rows.count), label: rows.label.subarray(0, rows.count), itemKey: rows.item.subarray(0, rows.count) };
+    expect(usableValues(rows.groups!, columns).values).toBe(values);
+    expect(usableValues(rows.groups!, { ...columns, label: Float64Array.from(columns.label) }).values).toBeUndefined();
+    expect(usableValues(rows.groups!, { ...columns, score: columns.score.subarray(1) }).values).toBeUndefined();
+    expect(usableValues(rows.groups!, { ...columns, itemKey: undefined }).values).toBeUndefined();
+    expect(usableValues(rows.groups!, { ...columns, label: Float64Array.from(columns.label) }).rowsOfQuery).toBe(rows.groups!.rowsOfQuery);
   });
 
   it('leaves grouped rows to the reader (each range keyed them) and asks nothing', async () => {

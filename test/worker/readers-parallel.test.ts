@@ -7,8 +7,12 @@ import { describe, expect, it } from 'vitest';
 import { CancelledError, InputError } from '../../extension/engine/errors';
 import { gradeRange } from '../../extension/engine/evaluate/evaluate';
 import type { RankedDump } from '../../extension/engine/model/dump';
-import { groupByQuery } from '../../extension/engine/model/groups';
-import { readDump } from '../../extension/engine/readers/index';
+import { groupByQuery, usableValues } from '../../extension/engine/model/groups';
+import { evaluateDump } from '../../extension/engine/index';
+import { DEFAULT_CONVENTIONS } from '../../extension/engine/metrics/conventions';
+import { parseMetricList } from '../../extension/engine/metrics/parse';
+import { joinJudgments } from '../../extension/engine/readers/judgments';
+import { readDump, readJudgments } from '../../extension/engine/readers/index';
 import { readParallelDelimited } from '../../extension/engine/threads/parallel';
 import { configureEngine, engineActivity } from '../../extension/engine/config';
 import { TempDir } from '../engine/fixtures/readers/tempFiles';
@@ -132,6 +136,22 @@ describe('parallel parsing', () => {
       expect(theirs.rowsOfQuery!.buffer).toBeInstanceOf(SharedArrayBuffer);
       const repeated = Array.from(single.itemKey!).filter((key, row) => key !== row).length;
       expect(repeated > 0).toBe(repeats > 0);
+      // Scoring reads the values carried along in grouped order (GroupedValues): the same evaluation, on
+      // one thread and on two; and with grades from a judgments file, which the carried values must not give.
+      expect(usableValues(theirs, multi).values).toBeDefined();
+      const metrics = parseMetricList('ndcg@10,err@10,ap,tau');
+      for (const threads of [1, 2]) {
+        expect(await evaluateDump(multi, metrics, DEFAULT_CONVENTIONS, { threads })).toEqual(await evaluateDump(single, metrics, DEFAULT_CONVENTIONS, { threads: 1 }));
+      }
+      // Two rows of every three judged, each (query, item) pair once.
+      const pairs = new Set(lines.slice(1).filter((_, r) => r % 3 > 0).map((line) => line.split(',').slice(0, 2).join('\t')));
+      const judgments = ['query_id\titem_id\tgrade', ...[...pairs].map((pair, r) => `${pair}\t${(r * 7) % 5}`)];
+      const table = await readJudgments(tmp.file(`par-scattered-${repeats}.judgments.tsv`, judgments.join('\n') + '\n'));
+      const joined = joinJudgments(multi, table);
+      expect(usableValues(groupByQuery(joined), joined).values).toBeUndefined();
+      const expected = await evaluateDump(joinJudgments(single, table), metrics, DEFAULT_CONVENTIONS, { threads: 1 });
+      expect(await evaluateDump(joined, metrics, DEFAULT_CONVENTIONS, { threads: 2 })).toEqual(expected);
+      expect(expected.summary[0]!.mean).not.toBeCloseTo((await evaluateDump(single, metrics, DEFAULT_CONVENTIONS, { threads: 1 })).summary[0]!.mean, 3);
     } finally {
       configureEngine(saved);
     }

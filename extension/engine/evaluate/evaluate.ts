@@ -7,7 +7,7 @@ import type { RankedDump } from '../model/dump';
 import { gradeRangeOf, summariseRows, type GradeRange } from '../model/rowSummary';
 
 export type { GradeRange } from '../model/rowSummary';
-import { groupByQuery, type QueryGroups } from '../model/groups';
+import { groupByQuery, usableValues, type QueryGroups } from '../model/groups';
 import type { Conventions } from '../metrics/conventions';
 import { isPairMeasure, metricDefinition, residualMetricIndex, type MetricSpec } from '../metrics/registry';
 import { checkGainsAndGrades, gainProblem } from './gainLimits';
@@ -87,7 +87,8 @@ export interface EvaluationSetup {
 export function prepareEvaluation(dump: RankedDump, metrics: readonly MetricSpec[], conventions: Conventions,
   options: EvaluateOptions): EvaluationSetup {
   const range = gradeRange(dump);
-  const groups = options.groups ?? groupByQuery(dump);
+  // Values carried along in grouped order serve only the dump they came from.
+  const groups = usableValues(options.groups ?? groupByQuery(dump), dump);
   const largest = largestQuery(groups);
   const gmax = checkConventions(dump, metrics, conventions, range, largest);
   return {
@@ -214,7 +215,7 @@ export class RangeScorer {
         if (options.signal?.aborted) throw new CancelledError();
         options.onProgress?.((q - from) / count);
       }
-      ranking.load(columns, groups.rowsOfQuery, groups.start[q]!, groups.start[q + 1]!, seen);
+      ranking.load(columns, groups.rowsOfQuery, groups.start[q]!, groups.start[q + 1]!, seen, groups.values);
       ranking.setUnretrieved(columns.unretrieved, q);
       if (perQuery.unretrieved) perQuery.unretrieved[q] = ranking.unretrieved;
       if (q >= this.firstAbsent) {

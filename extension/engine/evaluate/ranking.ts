@@ -4,6 +4,7 @@
  * groups, then arranged under the tie convention. Nothing here allocates per row.
  */
 import type { RankedDump, UnretrievedJudged } from '../model/dump';
+import type { GroupedValues } from '../model/groups';
 import type { TieConvention } from '../metrics/conventions';
 import type { GroupedList } from '../metrics/listMetrics';
 import { IndexSorter } from './sortIndex';
@@ -165,7 +166,8 @@ export class QueryRanking {
    * its query naming the same item) a row is a repeat exactly when its key is not itself, so no set of
    * the query's items is needed.
    */
-  load(dump: Pick<RankedDump, 'item' | 'itemKey' | 'score' | 'label'>, rows: Uint32Array | undefined, from: number, to: number, seen: SeenItems): void {
+  load(dump: Pick<RankedDump, 'item' | 'itemKey' | 'score' | 'label'>, rows: Uint32Array | undefined, from: number, to: number, seen: SeenItems,
+    inOrder?: GroupedValues): void {
     this.ensure(to - from);
     this.unretrieved = 0;
     const scores = dump.score;
@@ -182,7 +184,8 @@ export class QueryRanking {
     const items = firstRows === undefined ? dump.item : undefined;
     const stamp = firstRows === undefined ? seen.next(to - from) : 0;
     let n = 0;
-    for (let p = from; p < to; p++) {
+    if (inOrder !== undefined && rows !== undefined) n = this.collectInOrder(inOrder, rows, from, to, key);
+    else for (let p = from; p < to; p++) {
       const r = rows === undefined ? p : rows[p]!;
       if (firstRows !== undefined ? firstRows[r] !== r : seen.met(items![r]! | 0, stamp)) continue;
       const s = scores[r]!;
@@ -227,6 +230,25 @@ export class QueryRanking {
     this.unjudgedRows = unjudgedRows;
     this.scored = n - missing;
     this.cutGroups();
+  }
+
+  /**
+   * load's first loop over values in grouped order (GroupedValues, made with the grouping): the same rows,
+   * keys and grades, read side by side at positions from..to instead of at rows anywhere in the dump.
+   */
+  private collectInOrder(inOrder: GroupedValues, rows: Uint32Array, from: number, to: number, key: Float64Array): number {
+    const { score, label, first } = inOrder;
+    const { localRow, localGrade } = this;
+    let n = 0;
+    for (let p = from; p < to; p++) {
+      if (first[p] === 0) continue;
+      const s = score[p]!;
+      key[n] = s === s ? s : -Infinity;
+      localRow[n] = rows[p]!;
+      localGrade[n] = label[p]!;
+      n++;
+    }
+    return n;
   }
 
   /** Takes the query's judged-but-unretrieved grades from the side table (none when it is absent). */

@@ -12,6 +12,22 @@ export interface QueryGroups {
   readonly rowsOfQuery?: Uint32Array;
   /** queryCount + 1 entries: the rows of query q are rowsOfQuery[start[q] .. start[q+1]). */
   readonly start: Uint32Array;
+  /** What scoring reads of each row, in the order of rowsOfQuery, when the grouping carried it along. */
+  readonly values?: GroupedValues;
+}
+
+/**
+ * A scattered dump's scored values in grouped order: position p holds row rowsOfQuery[p]'s score and
+ * grade, and 1 in `first` when that row's item is the first of its query to name it (its key is its own
+ * row). Made while grouping, which reads the rows in file order and writes each to its query's place,
+ * so scoring then reads a query's rows side by side instead of from anywhere in 200 MB of columns
+ * (threads/keyUngrouped.ts). Only a dump with the very columns they came from may use them
+ * (`usableValues`): a judgments join, for one, gives the rows other grades.
+ */
+export interface GroupedValues {
+  readonly score: Float64Array;
+  readonly label: Float64Array;
+  readonly first: Uint8Array;
 }
 
 /** The row at position p of the grouped order. */
@@ -88,6 +104,44 @@ const remembered = new WeakMap<Uint32Array, QueryGroups>();
 /** Lets groupByQuery return `groups` for dumps whose query column is `query` (that object, unchanged). */
 export function rememberGroups(query: Uint32Array, groups: QueryGroups): void {
   remembered.set(query, groups);
+}
+
+/**
+ * placeRows, also writing the rows' item hashes, scores and grades to their places (`hashes`, `score` and
+ * `label` of GroupedValues in the making): the reads go in file order, the writes to each query's place.
+ */
+export function placeRowsWithValues(query: Uint32Array, from: number, to: number, next: Uint32Array, out: Uint32Array,
+  rowOrder: { readonly hash: Uint32Array; readonly score: Float64Array; readonly label: Float64Array },
+  placed: { readonly hash: Uint32Array; readonly score: Float64Array; readonly label: Float64Array }): void {
+  const { hash, score, label } = rowOrder;
+  const toHash = placed.hash;
+  const toScore = placed.score;
+  const toLabel = placed.label;
+  for (let r = from; r < to; r++) {
+    const at = next[query[r]!]!++;
+    out[at] = r;
+    toHash[at] = hash[r]!;
+    toScore[at] = score[r]!;
+    toLabel[at] = label[r]!;
+  }
+}
+
+/** The row-order columns each GroupedValues was made from. */
+const valuesSource = new WeakMap<GroupedValues, { readonly score: Float64Array; readonly label: Float64Array; readonly itemKey: Uint32Array }>();
+
+/** Notes the row-order columns `values` were made from (with the keys of `itemKey`). */
+export function noteValuesSource(values: GroupedValues, source: { score: Float64Array; label: Float64Array; itemKey: Uint32Array }): void {
+  valuesSource.set(values, source);
+}
+
+/** `groups` without its values unless they came from this very dump's score, grade and item key columns. */
+export function usableValues(groups: QueryGroups, dump: Pick<RankedDump, 'score' | 'label' | 'itemKey'>): QueryGroups {
+  if (groups.values === undefined) return groups;
+  const source = valuesSource.get(groups.values);
+  const same = (a: Float64Array | Uint32Array | undefined, b: Float64Array | Uint32Array) =>
+    a !== undefined && a.buffer === b.buffer && a.byteOffset === b.byteOffset && a.length === b.length;
+  if (source !== undefined && same(dump.score, source.score) && same(dump.label, source.label) && same(dump.itemKey, source.itemKey)) return groups;
+  return { start: groups.start, ...(groups.rowsOfQuery ? { rowsOfQuery: groups.rowsOfQuery } : {}) };
 }
 
 /** A column in shared memory, for a grouping score workers will read. */

@@ -10,6 +10,7 @@
  */
 import { BytePool, hashBytes } from './bytePool';
 import { groupRows, sharedColumn, type QueryGroups } from './groups';
+import { ItemProbe, type KeysInOrder } from './itemProbe';
 
 /** The internals of a RowTexts, moved between threads without copying. */
 export interface RowTextsState {
@@ -201,10 +202,10 @@ export class RowTexts {
     return groups;
   }
 
-  /** Keys the rows of queries [fromQuery, toQuery) of a grouping (see queryScopedKeys). */
-  keyGroups(column: Uint32Array, groups: QueryGroups, fromQuery: number, toQuery: number, probe = new ItemProbe()): void {
+  /** Keys the rows of queries [fromQuery, toQuery) of a grouping (see queryScopedKeys and ItemProbe.keyRun). */
+  keyGroups(column: Uint32Array, groups: QueryGroups, fromQuery: number, toQuery: number, probe = new ItemProbe(), inOrder?: KeysInOrder): void {
     const { start, rowsOfQuery } = groups;
-    for (let q = fromQuery; q < toQuery; q++) if (start[q + 1]! > start[q]!) probe.keyRun(this, column, start[q]!, start[q + 1]!, rowsOfQuery);
+    for (let q = fromQuery; q < toQuery; q++) if (start[q + 1]! > start[q]!) probe.keyRun(this, column, start[q]!, start[q + 1]!, rowsOfQuery, inOrder);
   }
 
   /**
@@ -281,114 +282,4 @@ export function isGrouped(query: Uint32Array, rows: number): boolean {
     last = q;
   }
   return true;
-}
-
-/**
- * queryScopedKeys' keys for queries [fromQuery, toQuery) of a grouping from the hashes alone, for a
- * thread that holds no item bytes: a query whose rows all hash apart is keyed (each row its own key);
- * a query where two rows share a hash is left as it is (its hashes) and listed, for a thread with the
- * bytes to key (keyGroups). Two distinct ids share a 32-bit hash about once in 4e9 pairs of rows.
- */
-export function keyGroupsByHash(column: Uint32Array, groups: QueryGroups, fromQuery: number, toQuery: number): number[] {
-  const { start, rowsOfQuery } = groups;
-  const probe = new ItemProbe();
-  const left: number[] = [];
-  for (let q = fromQuery; q < toQuery; q++) {
-    if (start[q + 1]! > start[q]! && !probe.keyRunByHash(column, start[q]!, start[q + 1]!, rowsOfQuery)) left.push(q);
-  }
-  return left;
-}
-
-/** A small open-addressing set of one query's rows by item hash, emptied per query by a stamp. */
-class ItemProbe {
-  private stamps = new Int32Array(256);
-  private rowAt = new Uint32Array(256);
-  private hashAt = new Int32Array(256);
-  private stamp = 0;
-  private gathered = new Int32Array(256);
-
-  /**
-   * The hashes of rows from..to, read in a loop of loads alone: through `order` the rows lie anywhere in
-   * the file, and a tight loop keeps more of those cache misses in flight than the probing loop does (10M
-   * rows in random order: the worker's half took 0.15–0.18 against 0.18–0.23 s; this thread's, which
-   * compares bytes, about the same either way).
-   */
-  private gather(column: Uint32Array, from: number, to: number, order: Uint32Array | undefined): Int32Array {
-    if (to - from > this.gathered.length) this.gathered = new Int32Array(2 * (to - from));
-    const out = this.gathered;
-    if (order === undefined) for (let p = from; p < to; p++) out[p - from] = column[p]!;
-    else for (let p = from; p < to; p++) out[p - from] = column[order[p]!]!;
-    return out;
-  }
-
-  /** Sizes the table for a query of `rows` rows; returns the slot mask. */
-  private prepare(rows: number): number {
-    // Sparse tables probe less (0.05 extra probes a row at an eighth full, 0.31 at 40%: on 100-row queries
-    // 55 against 92–144 ms for 10M rows alone); very long queries get a table twice their size.
-    let size = 256;
-    while (size < (rows <= 4096 ? 8 : 2) * rows) size *= 2;
-    if (size > this.stamps.length) {
-      this.stamps = new Int32Array(size);
-      this.rowAt = new Uint32Array(size);
-      this.hashAt = new Int32Array(size);
-      this.stamp = 0;
-    }
-    return size - 1;
-  }
-
-  /**
-   * keyRun without the bytes: when no two rows of the query share a hash, each row is its own key (written,
-   * true); otherwise nothing is written (false).
-   */
-  keyRunByHash(column: Uint32Array, from: number, to: number, order: Uint32Array | undefined): boolean {
-    const mask = this.prepare(to - from);
-    const stamp = ++this.stamp;
-    const { stamps, rowAt, hashAt } = this;
-    const hashes = this.gather(column, from, to, order);
-    for (let p = from; p < to; p++) {
-      const r = order === undefined ? p : order[p]!;
-      const h = hashes[p - from]!;
-      let slot = h & mask;
-      while (stamps[slot] === stamp) {
-        if (hashAt[slot] === h) {
-          // Rare: the rows keyed so far get their hashes back (one pass that writes as it goes, not two).
-          for (let s = 0; s <= mask; s++) if (stamps[s] === stamp) column[rowAt[s]!] = hashAt[s]!;
-          return false;
-        }
-        slot = (slot + 1) & mask;
-      }
-      stamps[slot] = stamp;
-      rowAt[slot] = r;
-      hashAt[slot] = h;
-      column[r] = r;
-    }
-    return true;
-  }
-
-  /** Keys rows from..to of the query (order[from..to) when given, else the rows themselves). */
-  keyRun(texts: RowTexts, column: Uint32Array, from: number, to: number, order: Uint32Array | undefined): void {
-    const mask = this.prepare(to - from);
-    const stamp = ++this.stamp;
-    const { stamps, rowAt, hashAt } = this;
-    const hashes = this.gather(column, from, to, order);
-    for (let p = from; p < to; p++) {
-      const r = order === undefined ? p : order[p]!;
-      const h = hashes[p - from]!;
-      let slot = h & mask;
-      let key = r;
-      while (stamps[slot] === stamp) {
-        if (hashAt[slot] === h && texts.equal(rowAt[slot]!, r)) {
-          key = rowAt[slot]!;
-          break;
-        }
-        slot = (slot + 1) & mask;
-      }
-      if (key === r) {
-        stamps[slot] = stamp;
-        rowAt[slot] = r;
-        hashAt[slot] = h;
-      }
-      column[r] = key;
-    }
-  }
 }
