@@ -107,20 +107,17 @@ export function rememberGroups(query: Uint32Array, groups: QueryGroups): void {
 }
 
 /**
- * placeRows, also writing the rows' item hashes, scores and grades to their places (`hashes`, `score` and
- * `label` of GroupedValues in the making): the reads go in file order, the writes to each query's place.
+ * placeRows, also writing the rows' scores and grades to their places (those of GroupedValues in the
+ * making): the reads go in file order, the writes to each query's place.
  */
 export function placeRowsWithValues(query: Uint32Array, from: number, to: number, next: Uint32Array, out: Uint32Array,
-  rowOrder: { readonly hash: Uint32Array; readonly score: Float64Array; readonly label: Float64Array },
-  placed: { readonly hash: Uint32Array; readonly score: Float64Array; readonly label: Float64Array }): void {
-  const { hash, score, label } = rowOrder;
-  const toHash = placed.hash;
+  rowOrder: { readonly score: Float64Array; readonly label: Float64Array }, placed: { readonly score: Float64Array; readonly label: Float64Array }): void {
+  const { score, label } = rowOrder;
   const toScore = placed.score;
   const toLabel = placed.label;
   for (let r = from; r < to; r++) {
     const at = next[query[r]!]!++;
     out[at] = r;
-    toHash[at] = hash[r]!;
     toScore[at] = score[r]!;
     toLabel[at] = label[r]!;
   }

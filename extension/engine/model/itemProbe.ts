@@ -11,12 +11,10 @@ export interface ItemBytes {
 }
 
 /**
- * The items' hashes in the grouping's order (position p holds the hash of row rowsOfQuery[p]), and where
- * to note which positions keep their own row as key (1) or repeat an item (0): what a grouping that
- * carried the values along (threads/keyUngrouped.ts) gives the keying, and the scoring after it.
+ * Where keying notes, by position in the grouping's order, which rows keep their own row as key (1) or
+ * repeat an item of their query (0): GroupedValues.first, for the scoring after (threads/keyUngrouped.ts).
  */
 export interface KeysInOrder {
-  readonly hashes: Uint32Array;
   readonly first: Uint8Array;
 }
 
@@ -51,11 +49,10 @@ export class ItemProbe {
     const mask = this.prepare(to - from);
     const stamp = ++this.stamp;
     const { stamps, rowAt, hashAt } = this;
-    const hashes = inOrder?.hashes ?? this.gather(column, from, to, order);
-    const base = inOrder === undefined ? from : 0;
+    const hashes = this.gather(column, from, to, order);
     for (let p = from; p < to; p++) {
       const r = order === undefined ? p : order[p]!;
-      const h = hashes[p - base]! | 0;
+      const h = hashes[p - from]!;
       let slot = h & mask;
       while (stamps[slot] === stamp) {
         if (hashAt[slot] === h) {
@@ -76,17 +73,16 @@ export class ItemProbe {
 
   /**
    * Keys rows from..to of the query (order[from..to) when given, else the rows themselves): on entry
-   * column[r] (or, given `inOrder`, the hash at the row's position) is the hash of row r's bytes.
+   * column[r] is the hash of row r's bytes.
    */
   keyRun(texts: ItemBytes, column: Uint32Array, from: number, to: number, order: Uint32Array | undefined, inOrder?: KeysInOrder): void {
     const mask = this.prepare(to - from);
     const stamp = ++this.stamp;
     const { stamps, rowAt, hashAt } = this;
-    const hashes = inOrder?.hashes ?? this.gather(column, from, to, order);
-    const base = inOrder === undefined ? from : 0;
+    const hashes = this.gather(column, from, to, order);
     for (let p = from; p < to; p++) {
       const r = order === undefined ? p : order[p]!;
-      const h = hashes[p - base]! | 0;
+      const h = hashes[p - from]!;
       let slot = h & mask;
       let key = r;
       while (stamps[slot] === stamp) {

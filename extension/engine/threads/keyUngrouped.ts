@@ -16,7 +16,6 @@ import type { RowColumns } from '../readers/columns';
 
 /** Row-order columns read by placement, and the grouped-order columns it writes. */
 interface ValueColumns {
-  readonly hash: Uint32Array;
   readonly score: Float64Array;
   readonly label: Float64Array;
 }
@@ -73,16 +72,16 @@ export async function keyUngroupedRows(rows: RowColumns, helper: (task: GroupTas
   const rowsOfQuery = sharedColumn(n);
   const score = rows.score.subarray(0, n);
   const label = rows.label.subarray(0, n);
-  const rowOrder: ValueColumns = { hash: column, score, label };
+  const rowOrder: ValueColumns = { score, label };
   const placedValues: ValueColumns = {
-    hash: sharedColumn(n), score: new Float64Array(new SharedArrayBuffer(n * 8)), label: new Float64Array(new SharedArrayBuffer(n * 8)) };
+    score: new Float64Array(new SharedArrayBuffer(n * 8)), label: new Float64Array(new SharedArrayBuffer(n * 8)) };
   const placed = helper({ kind: 'place', query, from: mid, to: n, next: theirs, out: rowsOfQuery, rowOrder, placed: placedValues });
   placeRowsWithValues(query, 0, mid, start.slice(0, queryCount), rowsOfQuery, rowOrder, placedValues);
   await placed;
   const values: GroupedValues = { score: placedValues.score, label: placedValues.label, first: new Uint8Array(new SharedArrayBuffer(n)) };
   const groups: QueryGroups = { rowsOfQuery, start, values };
-  // The hashes side by side in each query's place: the keying reads them there, not from all over the column.
-  const inOrder: KeysInOrder = { hashes: placedValues.hash, first: values.first };
+  // The keying notes which rows repeat an item of their query, by place, for the scoring.
+  const inOrder: KeysInOrder = { first: values.first };
   // Queries split where the rows are halved.
   let split = 0;
   while (split < queryCount && start[split]! < mid) split++;
