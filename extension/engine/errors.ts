@@ -18,6 +18,12 @@ export class InputError extends Error {
   }
 }
 
+/**
+ * A quoted field still open where the text ends. At the end of a file it is the reader's error; at the
+ * end of a range of a file read in parallel it may be a quoted newline the cut fell on (threads/parallel.ts).
+ */
+export class UnclosedQuoteError extends InputError {}
+
 function formatInputError(expected: string, file?: string, line?: number, found?: string): string {
   const where = file ? (line ? `${file}:${line}: ` : `${file}: `) : '';
   const got = found !== undefined ? ` (found ${JSON.stringify(found.length > 60 ? found.slice(0, 57) + '...' : found)})` : '';

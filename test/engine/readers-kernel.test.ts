@@ -1,8 +1,9 @@
 /**
  * The WebAssembly record kernel must read exactly what the JavaScript loops read: same rows, ids,
  * labels and scores to the bit, lines, offsets, segments and notes, and the same error for bad
- * input. Random files mix what the kernel takes (plain decimals, repeated queries) with what it must
- * hand back (exponents, NaN, empty fields, quotes, CRLF, blank lines, a rank column for the score),
+ * input. Random files mix what the kernel takes (plain decimals, repeated queries, simply quoted ids)
+ * with what it must hand back (exponents, NaN, empty fields, doubled or multi-line quotes, quoted
+ * numbers, CRLF, blank lines, a rank column for the score),
  * read in chunks of random sizes, on one thread and on several. The reference is the same reader
  * with the kernel switched off, itself checked against pandas in readers.test.ts.
  */
@@ -57,6 +58,8 @@ function randomCsv(seed: number, rows: number): string {
   }
   const eol = rnd() < 0.3 ? '\r\n' : '\n';
   const quotes = rnd() < 0.3;
+  // Quoted fields in most rows: ids the kernel takes (commas inside), and what it must hand back.
+  const heavyQuotes = rnd() < 0.4;
   let out = columns.join(',') + eol;
   let query = 0;
   for (let r = 0; r < rows; r++) {
@@ -74,9 +77,33 @@ function randomCsv(seed: number, rows: number): string {
       // One value a prefix of another: a field is the previous row's only when the lengths match too.
       device: ['mobile', 'desktop', 'mobile app'][Math.floor(rnd() * 3)]!,
     };
+    if (heavyQuotes) quoteSome(rnd, value, r);
     out += columns.map((c) => value[c]).join(',') + eol;
   }
   return rnd() < 0.5 ? out : out.slice(0, -eol.length);
+}
+
+/**
+ * Quotes fields as CSV writers do, and some as they rarely do: simply quoted ids (the kernel's), doubled
+ * quotes, a line end or a carriage return inside quotes, an empty quoted id, a quoted number, a quote
+ * inside an unquoted field (text, not a quote).
+ */
+function quoteSome(rnd: () => number, value: Record<string, string>, row: number): void {
+  const x = rnd();
+  if (value.query!.length > 0 && !value.query!.includes('"')) {
+    if (x < 0.6) value.query = `"${value.query}"`;
+    else if (x < 0.7) value.query = `"${value.query}, corded"`;
+  }
+  const y = rnd();
+  if (y < 0.01) value.query = `"${value.query!.replaceAll('"', '')} ""pro"""`;
+  else if (y < 0.015) value.query = `"${value.query!.replaceAll('"', '')}\nsecond line"`;
+  else if (y < 0.02) value.query = `"${value.query!.replaceAll('"', '')}\r"`;
+  else if (y < 0.025) value.item = '""';
+  else if (y < 0.03) value.label = `"${value.label}"`;
+  else if (y < 0.035) value.item = `5" nails ${row % 50}`;
+  else if (y < 0.045) value.locale = `"${value.locale}"`;
+  else if (y < 0.05) value.device = `"${value.device}"`;
+  else if (y < 0.06) value.item = `"sku-${row % 300}"`;
 }
 
 async function readBoth(path: string, threads: number, columns?: ColumnRoles): Promise<[RankedDump | Error, RankedDump | Error]> {
@@ -109,6 +136,13 @@ function expectSameDump(a: RankedDump, b: RankedDump): void {
 }
 
 describe('the record kernel', () => {
+  it('the random files include heavily quoted ones that read without error (the comparisons below are not empty)', async () => {
+    const quoted = Array.from({ length: 12 }, (_, i) => randomCsv(100 + i, 6_000)).filter((text) => (text.match(/"/g) ?? []).length > 3000);
+    expect(quoted.length).toBeGreaterThanOrEqual(3);
+    configureEngine({ tuning: { recordKernel: true } });
+    for (const [k, text] of quoted.entries()) expect((await readDump(tmp.file(`kernel-quoted-${k}.csv`, text), { threads: 1 })).rowCount).toBeGreaterThan(5_000);
+  });
+
   it.each(Array.from({ length: 12 }, (_, i) => [100 + i]))('seed %i reads as the JavaScript loops do', async (seed) => {
     const rnd = seededRandom(seed * 7);
     const plainChunkBytes = 500 + Math.floor(rnd() * 40_000);
@@ -185,6 +219,26 @@ describe('the record kernel', () => {
       expect(dump.notes.missingScoreRows).toBe(missing);
     }
     expect(unjudged).toBeGreaterThan(20);
+  });
+
+  it('simply quoted ids are the kernel\'s: the text inside the quotes, commas and all, as the careful parser reads it', async () => {
+    const lines = ['query,item,label,score'];
+    for (let r = 0; r < 3000; r++) lines.push(`"drill, cordless ${Math.floor(r / 7)}","sku-${r}",${r % 5},${(r % 97) / 8}`);
+    const path = tmp.file('kernel-quoted.csv', lines.join('\n') + '\n');
+    const before = engineActivity().kernelRows;
+    const [reference, kernelRead] = await readBoth(path, 1);
+    expectSameDump(reference as RankedDump, kernelRead as RankedDump);
+    expect(engineActivity().kernelRows - before).toBe(3000);
+    expect((kernelRead as RankedDump).queries.get(1)).toBe('drill, cordless 1');
+    expect((kernelRead as RankedDump).items.get(2)).toBe('sku-2');
+  });
+
+  it('text after a closing quote is reported with its line, as without the kernel', async () => {
+    const path = tmp.file('kernel-after-quote.csv', 'query,item,label,score\n"q",a,1,0.5\n"q",b,1,0.25\n"q"x,c,1,0.1\n');
+    const [reference, kernelRead] = await readBoth(path, 1);
+    expect(reference).toBeInstanceOf(Error);
+    expect((kernelRead as Error).message).toBe((reference as Error).message);
+    expect((kernelRead as Error).message).toMatch(/:4\b/);
   });
 
   it('a bad number is reported with its line, as without the kernel', async () => {

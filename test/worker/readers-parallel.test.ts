@@ -173,11 +173,40 @@ describe('parallel parsing', () => {
     }
   });
 
-  it('falls back to one thread for a file with quotes and still matches', async () => {
-    const text = randomPlainCsv(21, 5000) + '"quoted, query",sku-1,1,0.5,mobile\n';
-    const path = tmp.file('par-quoted.csv', text);
+  // Quoted fields are parsed in each range as on one thread; a range ending inside quotes means a cut fell
+  // on a quoted newline, and the file is read on one thread (rangeParse.ts).
+  it('reads quoted fields in parallel, as one thread does, when no cut falls inside quotes', async () => {
+    const lines = randomPlainCsv(21, 6000).trimEnd().split('\n');
+    const quoted = lines.map((line, r) => (r === 0 ? line : line.replace(/^cordless drill (\d+)/, (_, q) => `"drill, cordless ${q}"`)
+      .replace(/,(sku-\d+),/, r % 5 === 0 ? ',"$1 ""pro""",' : ',$1,')));
+    const path = tmp.file('par-quoted.csv', quoted.join('\n') + '\n');
+    const multi = await readParallelDelimited(path, 'csv', 44, 3, {});
+    expect(multi).toBeDefined();
+    const single = await readDump(path, { threads: 1 });
+    expectSameDump(single, multi!);
+    expect(single.queries.get(0)).toBe('drill, cordless 0');
+    // Doubled quotes inside a quoted id are one quote (row 5 of the file has one).
+    expect(single.items.find(`sku-${/sku-(\d+)/.exec(lines[5]!)![1]} "pro"`)).toBeGreaterThanOrEqual(0);
+  });
+
+  it('falls back to one thread when a cut falls on a newline inside quotes, and still matches', async () => {
+    // Three of every four newlines inside quotes: some of the cuts land inside a quoted field.
+    const lines = ['query,item,label,score'];
+    for (let r = 0; r < 4000; r++) lines.push(`"drill ${Math.floor(r / 9)}\nline two\nline three",sku-${r},${r % 4},${(r % 89) / 4}`);
+    const path = tmp.file('par-quoted-newlines.csv', lines.join('\n') + '\n');
     expect(await readParallelDelimited(path, 'csv', 44, 3, {})).toBeUndefined();
-    expectSameDump(await readDump(path, { threads: 1 }), await readDump(path, { threads: 3 }));
+    const single = await readDump(path, { threads: 1 });
+    expectSameDump(single, await readDump(path, { threads: 3 }));
+    expect(single.rowCount).toBe(4000);
+    expect(single.queries.get(0)).toBe('drill 0\nline two\nline three');
+  });
+
+  it('a file ending inside quotes is reported as one thread reports it', async () => {
+    const path = tmp.file('par-unclosed.csv', randomPlainCsv(22, 6000) + '"drill, cordless,sku-1,1,0.5,mobile\n');
+    const one = await readDump(path, { threads: 1 }).catch((e: Error) => e);
+    const three = await readDump(path, { threads: 3 }).catch((e: Error) => e);
+    expect(one).toBeInstanceOf(InputError);
+    expect((three as Error).message).toBe((one as Error).message);
   });
 
   it('matches one thread when long rows come first and many short ones after (sizing the slices from both ends of each range)', async () => {

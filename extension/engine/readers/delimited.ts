@@ -5,7 +5,7 @@
  * Each record is first cut into field bounds without side effects, so a record split across two
  * chunks is simply retried with the next chunk; only complete records touch the pools and columns.
  */
-import { InputError } from '../errors';
+import { InputError, UnclosedQuoteError } from '../errors';
 import { hashBytes } from '../model/bytePool';
 import type { RowTexts } from '../model/rowTexts';
 import { indexOfByte } from './byteSearch';
@@ -87,18 +87,23 @@ export class DelimitedParser implements RecordSink, FastState {
 
   feed(buf: Buffer, start: number, end: number, base: number, final: boolean): number {
     let pos = start;
-    // Records before `lineLimit` are complete; before `quoteLine` they hold no quote byte.
+    // Records before `lineLimit` are complete; before `quoteLine` they hold no quote byte (looked for without the kernel).
     const lineLimit = final ? end : Math.max(start, buf.lastIndexOf(LF, end - 1) + 1);
     let quoteAt = -1;
     let quoteLine = start;
     while (pos < end) {
       if (this.rows !== undefined && pos < lineLimit) {
-        if (quoteAt < pos) {
-          quoteAt = indexOfByte(buf, QUOTE, pos, end);
-          if (quoteAt < 0) quoteAt = end;
-          quoteLine = quoteAt === end ? end : buf.lastIndexOf(LF, quoteAt) + 1;
+        // The kernel takes simply quoted ids itself and leaves other quoted records to the loop below; the
+        // JavaScript loop stops at every quoted record, so it is not called on lines holding a quote.
+        let limit = lineLimit;
+        if (this.kernel === undefined) {
+          if (quoteAt < pos) {
+            quoteAt = indexOfByte(buf, QUOTE, pos, end);
+            if (quoteAt < 0) quoteAt = end;
+            quoteLine = quoteAt === end ? end : buf.lastIndexOf(LF, quoteAt) + 1;
+          }
+          limit = Math.min(lineLimit, quoteLine);
         }
-        const limit = Math.min(lineLimit, quoteLine);
         if (pos < limit) {
           pos = this.kernel ? this.kernel.parse(this, buf, pos, limit, base) : parseSimpleRecords(this, buf, pos, limit, base);
           if (pos >= end) break;
@@ -154,7 +159,7 @@ export class DelimitedParser implements RecordSink, FastState {
           }
           if (q >= end) {
             if (!final) return -1;
-            throw new InputError('a closing quote before the end of the file', this.settings.file, this.line, latin1Head(buf, pos, end));
+            throw new UnclosedQuoteError('a closing quote before the end of the file', this.settings.file, this.line, latin1Head(buf, pos, end));
           }
           if (q + 1 < end && buf[q + 1] === QUOTE) {
             escaped = 1;

@@ -1,5 +1,5 @@
 /**
- * The hot loop for delimited text: complete, quote-free records with plain numbers, parsed in one
+ * The hot loop for delimited text: complete records without quoted fields and with plain numbers, parsed in one
  * pass with everything in locals. Any record it is unsure about (quotes, wrong field count, odd
  * control bytes, a number that is not a plain decimal) is left to the careful parser, which then
  * either stores it or reports the problem with its line. Stopping early has no visible effect:
@@ -22,6 +22,7 @@ export const ROLE_SEGMENT = 5;
 
 const LF = 10;
 const CR = 13;
+const QUOTE = 34;
 
 export interface FastState {
   readonly delimiter: number;
@@ -68,7 +69,7 @@ function internBatch(rows: RowColumns, buf: Uint8Array, count: number): void {
 
 /**
  * Stores records from buf[pos, limit), where limit is a line start (or the end of the last buffer),
- * and no quote byte lies before it; at most `maxRecords` of them. Returns the start of the first
+ * at most `maxRecords` of them. A record with a quoted field ends the run. Returns the start of the first
  * record it did not store.
  */
 export function parseSimpleRecords(state: FastState, buf: Buffer, pos: number, limit: number, base: number, maxRecords = Infinity): number {
@@ -105,6 +106,11 @@ export function parseSimpleRecords(state: FastState, buf: Buffer, pos: number, l
     let ok = true;
     for (let f = 0; f < fields; f++) {
       const s = pos;
+      // A quoted field is the careful parser's (a quote inside an unquoted field is text, there as here).
+      if (pos < limit && buf[pos] === QUOTE) {
+        ok = false;
+        break;
+      }
       const role = roleOf[f]!;
       let value = 0;
       c = 0;

@@ -1,18 +1,19 @@
 /**
  * Parses one newline-aligned byte range of a large CSV/TSV file into its own columns and pools.
  * Runs inside a parse worker; the main thread merges ranges in file order (see parallel.ts).
- * A range holding any quote byte is refused, because a quoted newline makes byte-range splitting
- * unsafe; the caller then reads the whole file on one thread.
+ * Quoted fields are parsed as on one thread. A cut at a newline may fall inside a quoted field (a quoted
+ * newline): the range before it then ends inside the quotes, and is answered `quoted`, for the caller
+ * to read the whole file on one thread. A range that ends outside any quotes ended on a record's end,
+ * so when every range does, each began on a record's start (the first one does), as one thread sees it.
  */
-import { InputError } from '../errors';
+import { InputError, UnclosedQuoteError } from '../errors';
 import type { BytePoolState } from '../model/bytePool';
 import type { RowTextsState } from '../model/rowTexts';
 import type { RowSummary } from '../model/rowSummary';
 import { ROW_COLUMN_NAMES, rowArray, rowArrays, type RowArrays, type SharedColumns } from './columns';
-import { indexOfByte } from './byteSearch';
 import { DelimitedParser } from './delimited';
 import type { ColumnRoles } from './roles';
-import { pumpRange, type ReadBuffers, type RecordSink } from './source';
+import { pumpRange, type ReadBuffers } from './source';
 
 export interface RangeTask {
   readonly path: string;
@@ -53,25 +54,13 @@ export type RangeResult =
   | { readonly kind: 'quoted' }
   | { readonly kind: 'error'; readonly expected: string; readonly file?: string; readonly line?: number; readonly found?: string };
 
-class QuotedRange extends Error {}
-
-/** Refuses any chunk with a quote byte before handing it to the parser. */
-class QuoteGuard implements RecordSink {
-  constructor(private readonly inner: RecordSink) {}
-
-  feed(buf: Buffer, start: number, end: number, base: number, final: boolean): number {
-    if (indexOfByte(buf, 34, start, end) >= 0) throw new QuotedRange();
-    return this.inner.feed(buf, start, end, base, final);
-  }
-}
-
 export async function parseRange(task: RangeTask, onBytes: (done: number) => void, reuse?: ReadBuffers): Promise<RangeResult> {
   const parser = new DelimitedParser({ file: task.path, delimiter: task.delimiter, columns: task.columns, expectedBytes: task.end - task.start,
     shared: task.shared }, { names: task.names });
   try {
-    await pumpRange(task.path, task.start, task.end, new QuoteGuard(parser), onBytes, task.chunkBytes, reuse);
+    await pumpRange(task.path, task.start, task.end, parser, onBytes, task.chunkBytes, reuse);
   } catch (err) {
-    if (err instanceof QuotedRange) return { kind: 'quoted' };
+    if (err instanceof UnclosedQuoteError) return { kind: 'quoted' };
     if (err instanceof InputError) return { kind: 'error', expected: err.expected, file: err.file, line: err.line, found: err.found };
     throw err;
   }
@@ -96,7 +85,7 @@ export type ClaimedRanges = [number, RangeResult][];
  * Parses ranges of `tasks` one after another, each claimed from the shared counter next[0]
  * (Atomics.add), until none is left: every parsing thread runs this, so a thread slowed by a busy
  * machine or a late start simply takes fewer ranges. `onBytes` gets the bytes this thread has done.
- * A quoted range ends the claims of every thread (the caller then reads on one thread).
+ * A range ending inside quotes ends the claims of every thread (the caller then reads on one thread).
  */
 export async function parseClaimedRanges(tasks: readonly RangeTask[], next: Int32Array, onBytes: (done: number) => void): Promise<ClaimedRanges> {
   const parsed: ClaimedRanges = [];

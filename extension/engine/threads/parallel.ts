@@ -1,8 +1,9 @@
 /**
- * Reads a large quote-free CSV/TSV file on several threads: the file is cut at newlines into a few
- * byte ranges per thread, this thread and the workers claim ranges in turn and parse each into its own
- * columns and pools, and the ranges are put together in file order (mergeRanges.ts). Any quote byte
- * in the file makes the split unsafe; the caller then falls back to one thread.
+ * Reads a large CSV/TSV file on several threads: the file is cut at newlines into a few byte ranges per
+ * thread, this thread and the workers claim ranges in turn and parse each into its own columns and
+ * pools, and the ranges are put together in file order (mergeRanges.ts). A cut that fell on a newline
+ * inside a quoted field shows as a range ending inside quotes (rangeParse.ts); the caller then falls
+ * back to one thread.
  */
 import { promises as fsp } from 'node:fs';
 import { availableParallelism } from 'node:os';
@@ -40,7 +41,7 @@ export async function shouldParseInParallel(path: string, threads: number | unde
   return size < PARALLEL_FROM_BYTES ? 1 : Math.min(MAX_THREADS, availableParallelism());
 }
 
-/** Returns undefined when the file cannot be split safely (quotes, no workers available). */
+/** Returns undefined when the file cannot be split safely (a cut inside a quoted field, no workers available). */
 export async function readParallelDelimited(path: string, format: 'csv' | 'tsv', delimiter: number, threads: number,
   options: ReadOptions): Promise<RankedDump | undefined> {
   const lease = leasePool<ParseRequests>('parseWorker', Math.max(1, threads - 1));
@@ -67,7 +68,7 @@ async function readInRanges(lease: PoolLease<ParseRequests>, path: string, forma
     shared: slices[k],
   }));
   const results = await parseRanges(lease, tasks, stamp.size, options);
-  // A quoted range stopped the claims (later ranges may be missing): the file is read on one thread.
+  // A range ending inside quotes stopped the claims (later ranges may be missing): the file is read on one thread.
   if (results.some((r) => r.kind === 'quoted')) return undefined;
   const lineOffsets = [1];
   for (const r of results) lineOffsets.push(lineOffsets.at(-1)! + (r.kind === 'rows' ? r.lines : 0));
@@ -198,7 +199,7 @@ export type ParseRequests = {
 /**
  * This thread and the workers claim ranges from one shared counter until none is left. This thread
  * would otherwise wait idle, and a worker takes about 0.1 s to start: this thread claims the first
- * ranges meanwhile. Results come back in file order (a quoted range stops the claims: holes are left).
+ * ranges meanwhile. Results come back in file order (a range ending inside quotes stops the claims: holes are left).
  */
 async function parseRanges({ pool, workers }: PoolLease<ParseRequests>, tasks: RangeTask[], size: number,
   options: ReadOptions): Promise<RangeResult[]> {

@@ -1,11 +1,12 @@
 // AssemblyScript, compiled to WebAssembly by build.mjs (not part of the TypeScript program).
 //
-// The byte loop of delimited text, for the same records delimitedFast.ts takes: complete, quote-free
-// records whose numbers are plain decimals. It cuts fields, hashes id fields, compares query and
-// segment fields with the previous row's bytes and parses numbers, writing one row of plain values
-// per record; interning stays in JavaScript. Any record it is unsure about ends the call and is left
-// to the JavaScript parsers, so everything here must give bit-identical results to delimitedFast.ts
-// (the equivalence tests compare the two on random files). A loop in WebAssembly runs without the
+// The byte loop of delimited text, for the records delimitedFast.ts takes (complete records whose
+// numbers are plain decimals), and also those whose id fields are quoted simply (no doubled quote, no
+// line end inside). It cuts fields, hashes id fields, compares query and segment fields with the
+// previous row's bytes and parses numbers, writing one row of plain values per record; interning stays
+// in JavaScript. Any record it is unsure about ends the call and is left to the JavaScript parsers, so
+// everything here must give bit-identical results to delimitedFast.ts, and to the careful parser for
+// quoted ids (the equivalence tests compare them on random files). A loop in WebAssembly runs without the
 // bounds checks and type guards of the same loop in JavaScript, which made it the cheaper one.
 //
 // Memory layout (byte offsets set by the host with `layout`): the settings block, the input bytes,
@@ -15,6 +16,7 @@ const LF: u32 = 10;
 const CR: u32 = 13;
 const MINUS: u32 = 45;
 const DOT: u32 = 46;
+const QUOTE: u32 = 34;
 const HASH_SEED: i32 = 0x811c9dc5;
 const HASH_PRIME: i32 = 0x01000193;
 const TWO_53: u64 = 9007199254740992;
@@ -120,6 +122,7 @@ export function parse(pos: u32, limit: u32, delimiter: u32, line: u32, rankIsSco
   let row: i32 = 0;
   let itemUsed: usize = 0;
   const delimiterBytes = i8x16.splat(<i8>delimiter);
+  const quoteBytes = i8x16.splat(<i8>QUOTE);
   const controlBytes = i8x16.splat(14);
   while (pos < limit && row < maxRows) {
     let c: u32 = load<u8>(pos);
@@ -135,24 +138,54 @@ export function parse(pos: u32, limit: u32, delimiter: u32, line: u32, rankIsSco
     let score: f64 = NaN;
     let ok = true;
     for (let f = 0; f < fields; f++) {
-      const s = pos;
+      let s = pos;
       const role = load<i32>(rolesAt + (<usize>f << 2));
       const isId = role == ROLE_QUERY || role == ROLE_ITEM || role >= ROLE_SEGMENT;
       // The field ends at its first delimiter or control byte, found 16 bytes at a time, so the loops below
       // know their length instead of testing every byte for the end. The host puts a 0 byte at the limit,
       // which ends the last field there; loads may read up to 15 bytes past it, room the host leaves.
       let e = pos;
-      while (true) {
-        const v = v128.load(e);
-        const found = i8x16.bitmask(v128.or(i8x16.eq(v, delimiterBytes), i8x16.lt_u(v, controlBytes)));
-        if (found != 0) {
-          e += ctz(found);
+      // Where the field's text ends: `e`, or after the closing quote of a quoted field.
+      let after = pos;
+      if (pos < limit && <u32>load<u8>(pos) == QUOTE) {
+        // A quoted field (RFC 4180) is an id's text when it holds no quote and no control byte (no doubled
+        // quote, no line end) and its closing quote ends the field; anything else, and a quoted number, is
+        // the careful parser's. A quote inside an unquoted field is text, as the careful parser takes it.
+        if (!isId && role >= 0) {
+          ok = false;
           break;
         }
-        e += 16;
+        let q = pos + 1;
+        while (true) {
+          const v = v128.load(q);
+          const found = i8x16.bitmask(v128.or(i8x16.eq(v, quoteBytes), i8x16.lt_u(v, controlBytes)));
+          if (found != 0) {
+            q += ctz(found);
+            break;
+          }
+          q += 16;
+        }
+        if (q >= limit || <u32>load<u8>(q) != QUOTE) {
+          ok = false;
+          break;
+        }
+        s = pos + 1;
+        e = q;
+        after = q + 1;
+      } else {
+        while (true) {
+          const v = v128.load(e);
+          const found = i8x16.bitmask(v128.or(i8x16.eq(v, delimiterBytes), i8x16.lt_u(v, controlBytes)));
+          if (found != 0) {
+            e += ctz(found);
+            break;
+          }
+          e += 16;
+        }
+        if (e > limit) e = limit; // only without the 0 byte at the limit
+        after = e;
       }
-      if (e > limit) e = limit; // only without the 0 byte at the limit
-      c = e < limit ? <u32>load<u8>(e) : 0;
+      c = after < limit ? <u32>load<u8>(after) : 0;
       let repeated = false;
       let hash: i32 = 0;
       let value: f64 = 0;
@@ -212,7 +245,7 @@ export function parse(pos: u32, limit: u32, delimiter: u32, line: u32, rankIsSco
           break;
         }
       }
-      pos = e;
+      pos = after;
       if (f < fields - 1) {
         if (pos >= limit || c != delimiter) {
           ok = false;
