@@ -20,6 +20,8 @@ export interface EngineTuning {
   readonly kernelPieceBytes: number;
   /** Tests switch the record kernel off to get the JavaScript loops' reading to compare with. */
   readonly recordKernel: boolean;
+  /** Tests switch the JSON Lines byte loop off (readers/jsonLinesFast.ts) to get JSON.parse's reading to compare with. */
+  readonly jsonLinesFastRows: boolean;
   /** Tests only: this thread claims score chunks only after every worker has claimed one, so workers surely take part. */
   readonly workersFirst: boolean;
 }
@@ -48,6 +50,7 @@ export const DEFAULT_TUNING: EngineTuning = {
   kernelRowsPerCall: 16384,
   kernelPieceBytes: 1 << 20,
   recordKernel: true,
+  jsonLinesFastRows: true,
   workersFirst: false,
 };
 

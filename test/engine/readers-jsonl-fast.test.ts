@@ -1,0 +1,140 @@
+/**
+ * The JSON Lines byte loop (readers/jsonLinesFast.ts) must read exactly what JSON.parse reads: the same
+ * rows, ids, grades and scores to the bit, lines, offsets, segments and notes, and the same error for
+ * bad input. Seeded random files mix lines it takes (plain strings and decimals, spaces, null grades)
+ * with lines it must hand over (escapes, exponents, keys in another order or missing or extra, numbers
+ * as ids, nested values, raw tabs in a string, leading zeros). The reference is the same reader with
+ * the loop switched off, itself checked against pandas in readers.test.ts.
+ */
+import { afterAll, describe, expect, it } from 'vitest';
+import { configureEngine, engineSettings } from '../../extension/engine/config';
+import type { RankedDump } from '../../extension/engine/model/dump';
+import { readDump } from '../../extension/engine/readers/index';
+import { seededRandom } from '../reference/random';
+import { TempDir } from './fixtures/readers/tempFiles';
+
+const tmp = new TempDir();
+const saved = engineSettings();
+afterAll(() => {
+  configureEngine(saved);
+});
+
+/** One line's text: usually plain, now and then something only JSON.parse should take (or refuse). */
+function randomLine(rnd: () => number, r: number, keys: readonly string[], withRank: boolean): string {
+  const query = `drill ${Math.floor(r / 9)}${r % 7 === 0 ? ' ø, "cordless"'.replace(/"/g, '') : ''}`;
+  const value: Record<string, string> = {
+    query: JSON.stringify(query),
+    item: JSON.stringify(`sku-${r}${r % 11 === 0 ? ' € 5/8"' : ''}`),
+    label: rnd() < 0.05 ? 'null' : String(Math.floor(rnd() * 5)),
+    score: (rnd() * 20 - 10).toFixed(Math.floor(rnd() * 8)),
+    rank: String(1 + (r % 30)),
+    locale: JSON.stringify(rnd() < 0.8 ? 'en-GB' : 'de-DE'),
+  };
+  const x = rnd();
+  // What the byte loop hands over (or what JSON itself refuses: a leading zero, a raw tab in a string).
+  if (x < 0.01) value.item = '"sku\\u00e9"';
+  else if (x < 0.02) value.score = '1.5e-3';
+  else if (x < 0.025) value.label = '"2"';
+  else if (x < 0.03) value.query = '17';
+  else if (x < 0.035) value.locale = '{"lang":"en"}';
+  else if (x < 0.04) value.score = '9007199254740993';
+  else if (x < 0.045) value.score = '-0';
+  else if (x < 0.05) value.score = '123456789012.123456789012345';
+  else if (x < 0.052) value.score = '0.5.5';
+  else if (x < 0.053) value.label = '01';
+  else if (x < 0.054) value.item = '"sku\tx"';
+  const order = rnd() < 0.01 ? [...keys].reverse() : rnd() < 0.01 ? keys.slice(0, -1) : keys;
+  const space = rnd() < 0.3 ? ' ' : '';
+  const fields = order.map((k) => `"${k}":${space}${value[k === 'score' && withRank ? 'rank' : k]}`);
+  if (rnd() < 0.01) fields.push('"extra": true');
+  if (rnd() < 0.005) fields.push('"note": [1, 2]');
+  return `${rnd() < 0.02 ? '  ' : ''}{${fields.join(`,${space}`)}}${rnd() < 0.02 ? ' ' : ''}`;
+}
+
+function randomJsonLines(seed: number, rows: number): string {
+  const rnd = seededRandom(seed);
+  const withRank = rnd() < 0.25;
+  const keys = ['query', 'item', 'label', withRank ? 'rank' : 'score', ...(rnd() < 0.6 ? ['locale'] : [])];
+  const eol = rnd() < 0.3 ? '\r\n' : '\n';
+  const lines: string[] = [];
+  for (let r = 0; r < rows; r++) {
+    if (rnd() < 0.01) lines.push('');
+    lines.push(randomLine(rnd, r, keys, withRank));
+  }
+  return lines.join(eol) + (rnd() < 0.5 ? eol : '');
+}
+
+async function readBoth(path: string): Promise<[RankedDump | Error, RankedDump | Error]> {
+  const read = () => readDump(path).catch((e: Error) => e);
+  configureEngine({ tuning: { jsonLinesFastRows: false } });
+  const reference = await read();
+  configureEngine({ tuning: { jsonLinesFastRows: true } });
+  return [reference, await read()];
+}
+
+function expectSameDump(a: RankedDump, b: RankedDump): void {
+  expect(b.rowCount).toBe(a.rowCount);
+  for (const key of ['query', 'item', 'line', 'offset'] as const) expect(Array.from(b[key]), key).toEqual(Array.from(a[key]));
+  for (const key of ['label', 'score'] as const) {
+    expect(Buffer.from(b[key].buffer, b[key].byteOffset, b[key].byteLength).equals(Buffer.from(a[key].buffer, a[key].byteOffset, a[key].byteLength)), key).toBe(true);
+  }
+  expect(Array.from(b.itemKey!)).toEqual(Array.from(a.itemKey!));
+  expect(b.items.size).toBe(a.items.size);
+  for (let i = 0; i < a.items.size; i++) expect(b.items.get(i)).toBe(a.items.get(i));
+  expect(b.queries.size).toBe(a.queries.size);
+  for (let i = 0; i < a.queries.size; i++) expect(b.queries.get(i)).toBe(a.queries.get(i));
+  b.segments.forEach((s, k) => {
+    expect(Array.from(s.ofRow)).toEqual(Array.from(a.segments[k]!.ofRow));
+    for (let i = 0; i < s.values.size; i++) expect(s.values.get(i)).toBe(a.segments[k]!.values.get(i));
+  });
+  expect(b.notes).toEqual(a.notes);
+}
+
+describe('the JSON Lines byte loop', () => {
+  it.each(Array.from({ length: 10 }, (_, i) => [300 + i]))('seed %i reads as JSON.parse does (or fails the same way)', async (seed) => {
+    // Every other seed without the lines JSON refuses, so most comparisons are of whole dumps.
+    const text = randomJsonLines(seed, 5_000);
+    const clean = seed % 2 === 0 ? text.split(/\r?\n/).filter((l) => !/"01"|:\s*01|0\.5\.5|sku\\t|\t/.test(l)).join('\n') : text;
+    const path = tmp.file(`fast-${seed}.jsonl`, clean);
+    const [reference, fast] = await readBoth(path);
+    if (reference instanceof Error) {
+      expect(seed % 2).toBe(1);
+      expect((fast as Error).message).toBe(reference.message);
+      return;
+    }
+    expect(fast).not.toBeInstanceOf(Error);
+    expectSameDump(reference, fast as RankedDump);
+    expect(reference.rowCount).toBeGreaterThan(4_000);
+  });
+
+  // Numbers JSON does not allow must fail as JSON.parse fails them, not be read as the digits suggest.
+  it.each([['01'], ['-01'], ['1.'], ['.5'], ['-'], ['+1'], ['1e'], ['0x10'], ['1..2'], ['NaN']])('a grade written %s is refused with the same message', async (bad) => {
+    const lines = ['{"query":"q","item":"a","label":1,"score":0.5}', '{"query":"q","item":"b","label":2,"score":0.25}', `{"query":"q","item":"c","label":${bad},"score":0.1}`];
+    const [reference, fast] = await readBoth(tmp.file(`fast-bad-${bad}.jsonl`, lines.join('\n') + '\n'));
+    expect(reference).toBeInstanceOf(Error);
+    expect((fast as Error).message).toBe((reference as Error).message);
+    expect((fast as Error).message).toMatch(/:3\b/);
+  });
+
+  it('takes plain lines itself: a line it hands over costs a JSON.parse, and the plain file reads the same', async () => {
+    const lines = Array.from({ length: 3000 }, (_, r) => `{"query": "drill, cordless ${Math.floor(r / 7)}", "item": "sku-${r}", "label": ${r % 5}, "score": ${(r % 97) / 8}}`);
+    const path = tmp.file('fast-plain.jsonl', lines.join('\n') + '\n');
+    const parse = JSON.parse;
+    let parsed = 0;
+    JSON.parse = ((text: string, reviver?: never) => {
+      parsed++;
+      return parse(text, reviver);
+    }) as typeof JSON.parse;
+    let fast: RankedDump;
+    try {
+      fast = await readDump(path);
+    } finally {
+      JSON.parse = parse;
+    }
+    // The first line sets the keys through JSON.parse; the loop takes every other one.
+    expect(parsed).toBe(1);
+    const [reference] = await readBoth(path);
+    expectSameDump(reference as RankedDump, fast);
+    expect(fast.queries.get(1)).toBe('drill, cordless 1');
+  });
+});
