@@ -12,6 +12,7 @@ import type { RankedDump } from '../../extension/engine/model/dump';
 import { readDump } from '../../extension/engine/readers/index';
 import { seededRandom } from '../reference/random';
 import { TempDir } from './fixtures/readers/tempFiles';
+import { expectSameReading, readOffThenOn } from './fixtures/sameReading';
 
 const tmp = new TempDir();
 const saved = engineSettings();
@@ -65,30 +66,10 @@ function randomJsonLines(seed: number, rows: number): string {
 }
 
 async function readBoth(path: string): Promise<[RankedDump | Error, RankedDump | Error]> {
-  const read = () => readDump(path).catch((e: Error) => e);
-  configureEngine({ tuning: { jsonLinesFastRows: false } });
-  const reference = await read();
-  configureEngine({ tuning: { jsonLinesFastRows: true } });
-  return [reference, await read()];
+  return readOffThenOn('jsonLinesFastRows', () => readDump(path));
 }
 
-function expectSameDump(a: RankedDump, b: RankedDump): void {
-  expect(b.rowCount).toBe(a.rowCount);
-  for (const key of ['query', 'item', 'line', 'offset'] as const) expect(Array.from(b[key]), key).toEqual(Array.from(a[key]));
-  for (const key of ['label', 'score'] as const) {
-    expect(Buffer.from(b[key].buffer, b[key].byteOffset, b[key].byteLength).equals(Buffer.from(a[key].buffer, a[key].byteOffset, a[key].byteLength)), key).toBe(true);
-  }
-  expect(Array.from(b.itemKey!)).toEqual(Array.from(a.itemKey!));
-  expect(b.items.size).toBe(a.items.size);
-  for (let i = 0; i < a.items.size; i++) expect(b.items.get(i)).toBe(a.items.get(i));
-  expect(b.queries.size).toBe(a.queries.size);
-  for (let i = 0; i < a.queries.size; i++) expect(b.queries.get(i)).toBe(a.queries.get(i));
-  b.segments.forEach((s, k) => {
-    expect(Array.from(s.ofRow)).toEqual(Array.from(a.segments[k]!.ofRow));
-    for (let i = 0; i < s.values.size; i++) expect(s.values.get(i)).toBe(a.segments[k]!.values.get(i));
-  });
-  expect(b.notes).toEqual(a.notes);
-}
+const expectSameDump = expectSameReading;
 
 describe('the JSON Lines byte loop', () => {
   it.each(Array.from({ length: 10 }, (_, i) => [300 + i]))('seed %i reads as JSON.parse does (or fails the same way)', async (seed) => {

@@ -17,6 +17,7 @@ import { configureEngine, DEFAULT_TUNING, engineActivity, engineSettings } from 
 import { compileRecordKernel } from '../../extension/engine/readers/kernel/compile.mjs';
 import { seededRandom } from '../reference/random';
 import { TempDir } from './fixtures/readers/tempFiles';
+import { expectSameReading, readOffThenOn } from './fixtures/sameReading';
 import { useBundledWorkers } from '../worker/support/workers';
 
 const tmp = new TempDir();
@@ -107,33 +108,10 @@ function quoteSome(rnd: () => number, value: Record<string, string>, row: number
 }
 
 async function readBoth(path: string, threads: number, columns?: ColumnRoles): Promise<[RankedDump | Error, RankedDump | Error]> {
-  const read = () => readDump(path, { threads, ...(columns ? { columns } : {}) }).catch((e: Error) => e);
-  configureEngine({ tuning: { recordKernel: false } });
-  const reference = await read();
-  configureEngine({ tuning: { recordKernel: true } });
-  return [reference, await read()];
+  return readOffThenOn('recordKernel', () => readDump(path, { threads, ...(columns ? { columns } : {}) }));
 }
 
-function expectSameDump(a: RankedDump, b: RankedDump): void {
-  expect(b.rowCount).toBe(a.rowCount);
-  for (const key of ['query', 'item', 'line', 'offset'] as const) expect(Array.from(b[key]), key).toEqual(Array.from(a[key]));
-  // Bits, so NaN payloads and signed zeros count.
-  for (const key of ['label', 'score'] as const) {
-    expect(Buffer.from(b[key].buffer, b[key].byteOffset, b[key].byteLength).equals(Buffer.from(a[key].buffer, a[key].byteOffset, a[key].byteLength)), key).toBe(true);
-  }
-  // Query-scoped item keys (model/rowTexts.ts), what scoring reads, as well as the dump-wide ids.
-  expect(b.itemKey).toBeDefined();
-  expect(Array.from(b.itemKey!)).toEqual(Array.from(a.itemKey!));
-  expect(b.items.size).toBe(a.items.size);
-  expect(b.queries.size).toBe(a.queries.size);
-  for (let i = 0; i < a.items.size; i++) expect(b.items.get(i)).toBe(a.items.get(i));
-  for (let i = 0; i < a.queries.size; i++) expect(b.queries.get(i)).toBe(a.queries.get(i));
-  b.segments.forEach((s, k) => {
-    expect(s.values.size).toBe(a.segments[k]!.values.size);
-    expect(Array.from(s.ofRow)).toEqual(Array.from(a.segments[k]!.ofRow));
-  });
-  expect(b.notes).toEqual(a.notes);
-}
+const expectSameDump = expectSameReading;
 
 describe('the record kernel', () => {
   it('the random files include heavily quoted ones that read without error (the comparisons below are not empty)', async () => {
@@ -233,17 +211,11 @@ describe('the record kernel', () => {
     expect((kernelRead as RankedDump).items.get(2)).toBe('sku-2');
   });
 
-  it('text after a closing quote is reported with its line, as without the kernel', async () => {
-    const path = tmp.file('kernel-after-quote.csv', 'query,item,label,score\n"q",a,1,0.5\n"q",b,1,0.25\n"q"x,c,1,0.1\n');
-    const [reference, kernelRead] = await readBoth(path, 1);
-    expect(reference).toBeInstanceOf(Error);
-    expect((kernelRead as Error).message).toBe((reference as Error).message);
-    expect((kernelRead as Error).message).toMatch(/:4\b/);
-  });
-
-  it('a bad number is reported with its line, as without the kernel', async () => {
-    const path = tmp.file('kernel-bad.csv', 'query,item,label,score\nq,a,1,0.5\nq,b,1,0.25\nq,c,x,0.1\n');
-    const [reference, kernelRead] = await readBoth(path, 1);
+  it.each([
+    ['text after a closing quote', 'query,item,label,score\n"q",a,1,0.5\n"q",b,1,0.25\n"q"x,c,1,0.1\n'],
+    ['a bad number', 'query,item,label,score\nq,a,1,0.5\nq,b,1,0.25\nq,c,x,0.1\n'],
+  ])('%s is reported with its line, as without the kernel', async (what, text) => {
+    const [reference, kernelRead] = await readBoth(tmp.file(`kernel-bad-${what.replace(/\W+/g, '-')}.csv`, text), 1);
     expect(reference).toBeInstanceOf(Error);
     expect((kernelRead as Error).message).toBe((reference as Error).message);
     expect((kernelRead as Error).message).toMatch(/:4\b/);

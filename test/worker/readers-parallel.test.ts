@@ -16,6 +16,7 @@ import { readDump, readJudgments } from '../../extension/engine/readers/index';
 import { readParallelDelimited } from '../../extension/engine/threads/parallel';
 import { configureEngine, engineActivity } from '../../extension/engine/config';
 import { TempDir } from '../engine/fixtures/readers/tempFiles';
+import { expectSameReading } from '../engine/fixtures/sameReading';
 import { seededRandom } from '../reference/random';
 import { useBundledWorkers } from './support/workers';
 
@@ -38,22 +39,10 @@ function randomPlainCsv(seed: number, rows: number): string {
 
 /** `offsets` false: `b` was read without row offsets (ReadOptions.rowOffsets), and has none; all else is the same. */
 function expectSameDump(a: RankedDump, b: RankedDump, offsets = true): void {
-  expect(b.rowCount).toBe(a.rowCount);
-  for (const key of ['query', 'item', 'label', 'score', 'line', ...(offsets ? ['offset' as const] : [])] as const) {
-    expect(Array.from(b[key]), key).toEqual(Array.from(a[key]));
-  }
+  expectSameReading(a, b, { offsets });
   if (!offsets) expect(b.offset).toHaveLength(0);
   expect(a.offset).toHaveLength(a.rowCount);
-  // Query-scoped item keys (model/rowTexts.ts), what scoring reads, as well as the dump-wide ids.
-  expect(b.itemKey).toBeDefined();
-  expect(Array.from(b.itemKey!)).toEqual(Array.from(a.itemKey!));
-  expect(b.queries.size).toBe(a.queries.size);
-  expect(b.items.size).toBe(a.items.size);
-  for (let i = 0; i < a.items.size; i++) expect(b.items.get(i)).toBe(a.items.get(i));
-  for (let i = 0; i < a.queries.size; i++) expect(b.queries.get(i)).toBe(a.queries.get(i));
   expect(b.segments.map((s) => s.name)).toEqual(a.segments.map((s) => s.name));
-  b.segments.forEach((s, k) => expect(Array.from(s.ofRow)).toEqual(Array.from(a.segments[k]!.ofRow)));
-  expect(b.notes).toEqual(a.notes);
   // The grade range noted while reading is the one a full scan of the labels finds.
   expect(b.notes.gradeRange).toEqual(gradeRange({ ...a, notes: { ...a.notes, gradeRange: undefined } }));
 }

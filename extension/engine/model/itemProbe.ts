@@ -41,41 +41,18 @@ export class ItemProbe {
   private stamp = 0;
   private gathered = new Int32Array(256);
 
-  /**
-   * keyRun without the bytes: when no two rows of the query share a hash, each row is its own key (written,
-   * true); otherwise nothing is written (false).
-   */
+  /** keyRun without the bytes (`keyRun(undefined, ...)`): true when the query was keyed, false when two rows share a hash. */
   keyRunByHash(column: Uint32Array, from: number, to: number, order: Uint32Array | undefined, inOrder?: KeysInOrder): boolean {
-    const mask = this.prepare(to - from);
-    const stamp = ++this.stamp;
-    const { stamps, rowAt, hashAt } = this;
-    const hashes = this.gather(column, from, to, order);
-    for (let p = from; p < to; p++) {
-      const r = order === undefined ? p : order[p]!;
-      const h = hashes[p - from]!;
-      let slot = h & mask;
-      while (stamps[slot] === stamp) {
-        if (hashAt[slot] === h) {
-          // Rare: the rows keyed so far get their hashes back (one pass that writes as it goes, not two).
-          for (let s = 0; s <= mask; s++) if (stamps[s] === stamp) column[rowAt[s]!] = hashAt[s]!;
-          return false;
-        }
-        slot = (slot + 1) & mask;
-      }
-      stamps[slot] = stamp;
-      rowAt[slot] = r;
-      hashAt[slot] = h;
-      column[r] = r;
-    }
-    if (inOrder !== undefined) inOrder.first.fill(1, from, to);
-    return true;
+    return this.keyRun(undefined, column, from, to, order, inOrder);
   }
 
   /**
    * Keys rows from..to of the query (order[from..to) when given, else the rows themselves): on entry
-   * column[r] is the hash of row r's bytes.
+   * column[r] is the hash of row r's bytes. Without `texts` (a thread that holds no item bytes) two rows
+   * sharing a hash cannot be told apart: the rows keyed so far get their hashes back and the answer is
+   * false, for a thread with the bytes to key the query.
    */
-  keyRun(texts: ItemBytes, column: Uint32Array, from: number, to: number, order: Uint32Array | undefined, inOrder?: KeysInOrder): void {
+  keyRun(texts: ItemBytes | undefined, column: Uint32Array, from: number, to: number, order: Uint32Array | undefined, inOrder?: KeysInOrder): boolean {
     const mask = this.prepare(to - from);
     const stamp = ++this.stamp;
     const { stamps, rowAt, hashAt } = this;
@@ -86,9 +63,16 @@ export class ItemProbe {
       let slot = h & mask;
       let key = r;
       while (stamps[slot] === stamp) {
-        if (hashAt[slot] === h && texts.equal(rowAt[slot]!, r)) {
-          key = rowAt[slot]!;
-          break;
+        if (hashAt[slot] === h) {
+          if (texts === undefined) {
+            // Rare: one pass that writes as it goes, undone, rather than two passes every time.
+            for (let s = 0; s <= mask; s++) if (stamps[s] === stamp) column[rowAt[s]!] = hashAt[s]!;
+            return false;
+          }
+          if (texts.equal(rowAt[slot]!, r)) {
+            key = rowAt[slot]!;
+            break;
+          }
         }
         slot = (slot + 1) & mask;
       }
@@ -100,6 +84,7 @@ export class ItemProbe {
       column[r] = key;
       if (inOrder !== undefined) inOrder.first[p] = key === r ? 1 : 0;
     }
+    return true;
   }
 
   /**

@@ -103,6 +103,16 @@ export function lineAfter(): u32 {
   return h;
 }
 
+/** The first byte from `at` on that equals a byte of `these` or is below a byte of `below`, 16 bytes at a time. */
+@inline function firstOf(at: usize, these: v128, below: v128): usize {
+  while (true) {
+    const v = v128.load(at);
+    const found = i8x16.bitmask(v128.or(i8x16.eq(v, these), i8x16.lt_u(v, below)));
+    if (found != 0) return at + ctz(found);
+    at += 16;
+  }
+}
+
 /**
  * Parses records from [pos, limit) (limit is a line start or the end of the input; the byte at limit
  * must be 0, and 16 bytes past it readable), starting at line
@@ -155,16 +165,7 @@ export function parse(pos: u32, limit: u32, delimiter: u32, line: u32, rankIsSco
           ok = false;
           break;
         }
-        let q = pos + 1;
-        while (true) {
-          const v = v128.load(q);
-          const found = i8x16.bitmask(v128.or(i8x16.eq(v, quoteBytes), i8x16.lt_u(v, controlBytes)));
-          if (found != 0) {
-            q += ctz(found);
-            break;
-          }
-          q += 16;
-        }
+        const q = firstOf(pos + 1, quoteBytes, controlBytes);
         if (q >= limit || <u32>load<u8>(q) != QUOTE) {
           ok = false;
           break;
@@ -173,15 +174,7 @@ export function parse(pos: u32, limit: u32, delimiter: u32, line: u32, rankIsSco
         e = q;
         after = q + 1;
       } else {
-        while (true) {
-          const v = v128.load(e);
-          const found = i8x16.bitmask(v128.or(i8x16.eq(v, delimiterBytes), i8x16.lt_u(v, controlBytes)));
-          if (found != 0) {
-            e += ctz(found);
-            break;
-          }
-          e += 16;
-        }
+        e = firstOf(pos, delimiterBytes, controlBytes);
         if (e > limit) e = limit; // only without the 0 byte at the limit
         after = e;
       }
