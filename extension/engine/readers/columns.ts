@@ -2,7 +2,7 @@
  * Growable typed columns that readers append rows to, and the step that turns them into a RankedDump.
  */
 import { engineActivity } from '../config';
-import { BytePool } from '../model/bytePool';
+import { BytePool, hashBytes } from '../model/bytePool';
 import { rememberGroups, type QueryGroups } from '../model/groups';
 import { RowTexts } from '../model/rowTexts';
 import { addSummaries, gradeRangeOf, summariseRows, type RowSummary } from '../model/rowSummary';
@@ -16,6 +16,10 @@ import { emptyNotes } from '../model/dump';
  * order: ids re-interned through the merged pool of that name, line numbers shifted by the lines
  * before the range, or nothing. (Segment columns are a list of id columns, one per segment pool.)
  */
+
+const textEncoder = new TextEncoder();
+/** setItemText's encoding buffer, reused. */
+let textScratch = new Uint8Array(256);
 export const ROW_COLUMNS = {
   query: { array: Uint32Array, merge: 'queries' },
   // Readers that keep item bytes per row (RowColumns.itemTexts) store each row's item hash here.
@@ -148,6 +152,18 @@ export class RowColumns implements RowArrays {
   next(): number {
     if (this.count === this.capacity) this.reserve(this.capacity * 1.5 + 1024);
     return this.count++;
+  }
+
+  /**
+   * Row `row`'s item given as text (formats decoded to strings): its UTF-8 bytes go to the row texts and
+   * their hash to the item column, as a delimited reader stores them from the file's bytes.
+   */
+  setItemText(row: number, text: string): void {
+    if (textScratch.length < 3 * text.length) textScratch = new Uint8Array(3 * text.length);
+    // Three bytes per UTF-16 unit always suffice, so encodeInto writes the whole string.
+    const length = textEncoder.encodeInto(text, textScratch).written;
+    this.item[row] = hashBytes(textScratch, 0, length);
+    this.itemTexts!.add(textScratch, 0, length);
   }
 
   /** Sets up the row at index `row` in one call (the common case of delimited text). */

@@ -14,11 +14,9 @@ import { describeNonNumberText, parseNumberText } from './numbers';
 import { everyColumn, LIST_ROLE_NAMES, resolveRoles, type ResolvedRoles } from './roles';
 import { LineSink, pumpText, statStamp } from './source';
 import { FlatRowScanner } from './jsonLinesFast';
-import { hashBytes } from '../model/bytePool';
 
 type Json = Record<string, unknown>;
 
-const encoder = new TextEncoder();
 /** Bytes per item id, a first guess for the row texts' store. */
 const ITEM_BYTES_GUESS = 16;
 /** Lines read before the columns are sized for the whole file. */
@@ -48,7 +46,6 @@ class JsonLinesParser {
   private line = 0;
   /** The byte loop for plain lines of one row each (jsonLinesFast.ts), once the first line set the keys. */
   private fast: FlatRowScanner | undefined;
-  private scratch = new Uint8Array(256);
 
   constructor(private readonly file: string, private readonly options: ReadOptions, private readonly fileBytes: number) {}
 
@@ -101,7 +98,7 @@ class JsonLinesParser {
     const { keys, roles } = shape;
     const row = rows.next();
     rows.query[row] = rows.queries.internString(this.id(obj[keys[roles.query]!], keys[roles.query]!, text));
-    this.setItem(rows, row, this.id(obj[keys[roles.item]!], keys[roles.item]!, text));
+    rows.setItemText(row, this.id(obj[keys[roles.item]!], keys[roles.item]!, text));
     rows.label[row] = roles.label >= 0 ? this.number(obj[keys[roles.label]!], keys[roles.label]!, false, text) : NaN;
     rows.score[row] = roles.score < 0 && roles.rank < 0 ? NaN : this.scoreOf(obj, shape, text);
     rows.line[row] = this.line;
@@ -127,7 +124,7 @@ class JsonLinesParser {
     for (let i = 0; i < items.length; i++) {
       const row = rows.next();
       rows.query[row] = query;
-      this.setItem(rows, row, this.id(items[i], keys[roles.item]!, text));
+      rows.setItemText(row, this.id(items[i], keys[roles.item]!, text));
       rows.label[row] = roles.label >= 0 ? this.number(labels[i], keys[roles.label]!, false, text) : NaN;
       const score = numberKey !== undefined ? this.number(scores[i], numberKey, true, text) : NaN;
       rows.score[row] = shape.rankStandsInForScore ? -score : score;
@@ -138,15 +135,6 @@ class JsonLinesParser {
         rows.segmentIds[k]![row] = rows.segmentPools[k]!.internString(this.segment(Array.isArray(v) ? v[i] : v, keys[column]!, text));
       });
     }
-  }
-
-  /** Row `row`'s item as its UTF-8 bytes in the row texts, and their hash in the item column (what `finish` keys). */
-  private setItem(rows: RowColumns, row: number, id: string): void {
-    if (this.scratch.length < 3 * id.length) this.scratch = new Uint8Array(3 * id.length);
-    // Three bytes per UTF-16 unit always suffice, so encodeInto writes the whole string.
-    const length = encoder.encodeInto(id, this.scratch).written;
-    rows.item[row] = hashBytes(this.scratch, 0, length);
-    rows.itemTexts!.add(this.scratch, 0, length);
   }
 
   private scoreOf(obj: Json, shape: Shape, text: string): number {

@@ -40,7 +40,8 @@ export async function readParquet(path: string, directory: boolean, options: Rea
     if (rows === undefined) {
       names = columns;
       roles = resolveRoles(columns, everyColumn(options.columns), { file: part, line: 0, text: columns.join(', ') });
-      rows = new RowColumns(roles.segments.map((i) => columns[i]!), Number(metadata.num_rows) * (directory ? parts.length : 1));
+      // Item bytes kept per row, not interned dump-wide (model/rowTexts.ts), 16 bytes each at a guess.
+      rows = new RowColumns(roles.segments.map((i) => columns[i]!), Number(metadata.num_rows) * (directory ? parts.length : 1), undefined, 16);
       if (roles.rank >= 0) {
         rows.notes.messages.push(roles.score < 0 ? `no score column: ranked by '${columns[roles.rank]}' (score = -rank)`
           : `ranked by score; the rank column '${columns[roles.rank]}' is ignored`);
@@ -118,7 +119,7 @@ function storeGroup(rows: RowColumns, roles: ResolvedRoles, names: string[], val
     const row = rows.next();
     const at = firstRow + i;
     rows.query[row] = rows.queries.internString(idText(queries[i], names[roles.query]!, file, at));
-    rows.item[row] = rows.items.internString(idText(items[i], names[roles.item]!, file, at));
+    rows.setItemText(row, idText(items[i], names[roles.item]!, file, at));
     rows.label[row] = roles.label >= 0 ? numberOf(labels[i], names[roles.label]!, false, file, at) : NaN;
     const score = roles.score >= 0 || roles.rank >= 0 ? numberOf(scores[i], names[roles.score >= 0 ? roles.score : roles.rank]!, true, file, at) : NaN;
     rows.score[row] = negate ? -score : score;
