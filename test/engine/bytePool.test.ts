@@ -56,3 +56,24 @@ describe('BytePool look-ups compare four bytes at a time', () => {
     }
   });
 });
+
+describe('BytePool.forgetCaller', () => {
+  it('lets go of the last array compared with, and finds values as before after it', async () => {
+    const pool = new BytePool();
+    const chunk = new TextEncoder().encode('xx cordless drill 18v xx');
+    const id = pool.intern(chunk, 3, 21);
+    expect(pool.findBytes(chunk, 3, 21)).toBe(id);
+    // The array is held for the next comparison (its view reused) until the reader lets go.
+    expect((pool as unknown as { callerViewOf?: Uint8Array }).callerViewOf).toBe(chunk);
+    pool.forgetCaller();
+    expect((pool as unknown as { callerViewOf?: Uint8Array }).callerViewOf).toBeUndefined();
+    expect(pool.findBytes(chunk, 3, 21)).toBe(id);
+    expect(pool.findBytes(chunk, 3, 20)).toBe(-1);
+    // A finished read's pools hold none of the read's chunks (the third row's query is looked up and compared).
+    const { readDump } = await import('../../extension/engine/readers/index');
+    const { TempDir } = await import('./fixtures/readers/tempFiles');
+    const tmp = new TempDir();
+    const dump = await readDump(tmp.file('forget.csv', 'query,item,label,score\nlong query text here,a,1,0.5\nother long query,c,1,0.1\nlong query text here,b,0,0.25\n'));
+    expect((dump.queries as unknown as { callerViewOf?: Uint8Array }).callerViewOf).toBeUndefined();
+  });
+});

@@ -207,6 +207,7 @@ export class BytePool implements StringPool {
 
   /** The pool's internals (shared, not copied: stop using this pool afterwards). */
   exportState(): BytePoolState {
+    this.forgetCaller();
     return { arena: this.arena, arenaUsed: this.arenaUsed, starts: this.starts, count: this.count, table: this.table, mask: this.mask };
   }
 
@@ -266,6 +267,15 @@ export class BytePool implements StringPool {
       this.arenaDataView = new DataView(arena.buffer, arena.byteOffset, arena.byteLength);
     }
     return this.arenaDataView;
+  }
+
+  /**
+   * Lets go of the last caller's array (kept by recordEquals for its next call): a pool that outlives a read
+   * (a dump's) must not hold the read's last chunk. Called when a reader finishes.
+   */
+  forgetCaller(): void {
+    this.callerViewOf = undefined;
+    this.callerDataView = new DataView(new ArrayBuffer(0));
   }
 
   /** A DataView of the whole buffer under `bytes` (offsets then count from the buffer's start), kept for the next call with the same array. */

@@ -214,6 +214,8 @@ export class RowColumns implements RowArrays {
 
   finish(path: string, format: DumpFormat, stamp: FileStamp): RankedDump {
     const n = this.count;
+    // The pools outlive the read: they let go of its last chunk.
+    for (const pool of [this.queries, this.items, ...this.segmentPools]) pool.forgetCaller();
     const texts = this.itemTexts;
     if (texts !== undefined && texts.size !== n) throw new Error(`internal: ${texts.size} item records for ${n} rows`);
     const segments: SegmentColumn[] = this.segmentNames.map((name, k) => ({

@@ -114,6 +114,9 @@ export async function readJudgmentLines(path: string, options: Pick<ReadOptions,
     lines[n++] = line;
   }), { signal: options.signal });
   if (n === 0) throw new InputError('at least one judgment line (query unused item grade)', path);
+  // The pools outlive the read: they let go of its last chunk.
+  queries.forgetCaller();
+  items.forgetCaller();
   return { path, queries, items, query: q.subarray(0, n), item: it.subarray(0, n), grade: g.subarray(0, n), line: lines.subarray(0, n) };
 }
 
