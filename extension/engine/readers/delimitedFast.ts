@@ -173,7 +173,8 @@ export function parseSimpleRecords(state: FastState, buf: Buffer, pos: number, l
           pos++;
         }
         const fractionDigits = fraction < 0 ? 0 : digits - fraction;
-        if ((pos >= limit || c < 14 || c === delimiter) && digits > 0 && mantissa <= TWO_53 && fractionDigits <= 22) {
+        // Below 2^53 the digit sum is exact; one that reached 2^53 may have rounded there (see numbers.ts).
+        if ((pos >= limit || c < 14 || c === delimiter) && digits > 0 && mantissa < TWO_53 && fractionDigits <= 22) {
           value = fractionDigits === 0 ? mantissa : mantissa / POW10[fractionDigits]!;
           if (negative) value = -value;
         } else {

@@ -4,7 +4,8 @@
  * Fast path (Clinger 1990, "How to read floating point numbers accurately"): when the decimal
  * digits form an integer m <= 2^53 and there are at most 22 fraction digits, m and 10^k are both
  * exact doubles and one IEEE division m / 10^k is correctly rounded, so the result equals
- * Number(text) bit for bit. Anything else (exponents, long mantissas, padding) goes through Number()
+ * Number(text) bit for bit. The digits are summed in a double, exact only below 2^53: a sum that
+ * reached 2^53 may have rounded there from above (9007199254740993 does), so it takes the slow path. Anything else (exponents, long mantissas, padding) goes through Number()
  * on the decoded text after a strict syntax check, so hex, "1_0" and other JS-only forms are refused.
  */
 
@@ -44,7 +45,7 @@ export function parseNumber(bytes: Uint8Array, start: number, end: number): numb
       i++;
     }
   }
-  if (i === end && sawDigit && mantissa <= TWO_53 && fractionDigits <= 22) {
+  if (i === end && sawDigit && mantissa < TWO_53 && fractionDigits <= 22) {
     const value = fractionDigits === 0 ? mantissa : mantissa / POW10[fractionDigits]!;
     return negative ? -value : value;
   }
