@@ -9,6 +9,10 @@ import { addSummaries, gradeRangeOf, summariseRows, type RowSummary } from '../m
 import type { DumpFormat, FileStamp, RankedDump, ReaderNotes, SegmentColumn } from '../model/dump';
 import { emptyNotes } from '../model/dump';
 
+const textEncoder = new TextEncoder();
+/** setItemText's encoding buffer, reused. */
+let textScratch = new Uint8Array(256);
+
 /**
  * The per-row columns every reader fills, described once. The row arrays of RowColumns, the shared
  * buffers of a parallel read, a parse range's result and the merge of ranges are all derived from
@@ -16,10 +20,6 @@ import { emptyNotes } from '../model/dump';
  * order: ids re-interned through the merged pool of that name, line numbers shifted by the lines
  * before the range, or nothing. (Segment columns are a list of id columns, one per segment pool.)
  */
-
-const textEncoder = new TextEncoder();
-/** setItemText's encoding buffer, reused. */
-let textScratch = new Uint8Array(256);
 export const ROW_COLUMNS = {
   query: { array: Uint32Array, merge: 'queries' },
   // Readers that keep item bytes per row (RowColumns.itemTexts) store each row's item hash here.
