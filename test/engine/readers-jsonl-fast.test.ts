@@ -10,8 +10,8 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { configureEngine, engineSettings } from '../../extension/engine/config';
 import type { RankedDump } from '../../extension/engine/model/dump';
 import { readDump } from '../../extension/engine/readers/index';
-import { seededRandom } from '../reference/random';
 import { TempDir } from './fixtures/readers/tempFiles';
+import { randomJsonLines } from './fixtures/randomJsonLines';
 import { expectSameReading, readOffThenOn } from './fixtures/sameReading';
 
 const tmp = new TempDir();
@@ -19,51 +19,6 @@ const saved = engineSettings();
 afterAll(() => {
   configureEngine(saved);
 });
-
-/** One line's text: usually plain, now and then something only JSON.parse should take (or refuse). */
-function randomLine(rnd: () => number, r: number, keys: readonly string[], withRank: boolean): string {
-  const query = `drill ${Math.floor(r / 9)}${r % 7 === 0 ? ' ø, "cordless"'.replace(/"/g, '') : ''}`;
-  const value: Record<string, string> = {
-    query: JSON.stringify(query),
-    item: JSON.stringify(`sku-${r}${r % 11 === 0 ? ' € 5/8"' : ''}`),
-    label: rnd() < 0.05 ? 'null' : String(Math.floor(rnd() * 5)),
-    score: (rnd() * 20 - 10).toFixed(Math.floor(rnd() * 8)),
-    rank: String(1 + (r % 30)),
-    locale: JSON.stringify(rnd() < 0.8 ? 'en-GB' : 'de-DE'),
-  };
-  const x = rnd();
-  // What the byte loop hands over (or what JSON itself refuses: a leading zero, a raw tab in a string).
-  if (x < 0.01) value.item = '"sku\\u00e9"';
-  else if (x < 0.02) value.score = '1.5e-3';
-  else if (x < 0.025) value.label = '"2"';
-  else if (x < 0.03) value.query = '17';
-  else if (x < 0.035) value.locale = '{"lang":"en"}';
-  else if (x < 0.04) value.score = '9007199254740993';
-  else if (x < 0.045) value.score = '-0';
-  else if (x < 0.05) value.score = '123456789012.123456789012345';
-  else if (x < 0.052) value.score = '0.5.5';
-  else if (x < 0.053) value.label = '01';
-  else if (x < 0.054) value.item = '"sku\tx"';
-  const order = rnd() < 0.01 ? [...keys].reverse() : rnd() < 0.01 ? keys.slice(0, -1) : keys;
-  const space = rnd() < 0.3 ? ' ' : '';
-  const fields = order.map((k) => `"${k}":${space}${value[k === 'score' && withRank ? 'rank' : k]}`);
-  if (rnd() < 0.01) fields.push('"extra": true');
-  if (rnd() < 0.005) fields.push('"note": [1, 2]');
-  return `${rnd() < 0.02 ? '  ' : ''}{${fields.join(`,${space}`)}}${rnd() < 0.02 ? ' ' : ''}`;
-}
-
-function randomJsonLines(seed: number, rows: number): string {
-  const rnd = seededRandom(seed);
-  const withRank = rnd() < 0.25;
-  const keys = ['query', 'item', 'label', withRank ? 'rank' : 'score', ...(rnd() < 0.6 ? ['locale'] : [])];
-  const eol = rnd() < 0.3 ? '\r\n' : '\n';
-  const lines: string[] = [];
-  for (let r = 0; r < rows; r++) {
-    if (rnd() < 0.01) lines.push('');
-    lines.push(randomLine(rnd, r, keys, withRank));
-  }
-  return lines.join(eol) + (rnd() < 0.5 ? eol : '');
-}
 
 async function readBoth(path: string): Promise<[RankedDump | Error, RankedDump | Error]> {
   return readOffThenOn('jsonLinesFastRows', () => readDump(path));

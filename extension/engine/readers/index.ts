@@ -7,15 +7,15 @@
  *
  * Row positions: `line` is the 1-based line where the row starts and `offset` its first byte in the
  * decompressed text; rows of one JSON list share the list's line and offset; Parquet rows have
- * line 0 and offset -1. Large quote-free CSV/TSV files are parsed by several threads; their
- * columns are then views of SharedArrayBuffers (see parallel.ts).
+ * line 0 and offset -1. Large plain CSV/TSV files, and JSON Lines of one row per line, are parsed by
+ * several threads; their columns are then views of SharedArrayBuffers (see parallel.ts).
  */
 import { CancelledError, InputError } from '../errors';
 import { withFields, type RankedDump } from '../model/dump';
 import { DelimitedParser } from './delimited';
 import { detectFormat } from './detect';
 import { readJsonLines } from './jsonLines';
-import { readParallelDelimited, shouldParseInParallel } from '../threads/parallel';
+import { readParallelDelimited, readParallelJsonLines, shouldParseInParallel } from '../threads/parallel';
 import { readParquet } from './parquet';
 import type { ReadOptions } from './readOptions';
 import { joinJudgments, readJudgmentTable, sharesQuery, unusedJudgmentsNote, type JudgmentTable } from './judgments';
@@ -82,7 +82,7 @@ async function readFormat(path: string, options: ReadOptions): Promise<RankedDum
     case 'tsv':
       return readDelimited(path, sniffed.format, sniffed.gzip, options);
     case 'jsonl':
-      return readJsonLines(path, options);
+      return readJsonLinesFile(path, sniffed.gzip, options);
     case 'run':
       if (options.judgments === undefined) {
         throw new InputError('a judgments file (query unused item grade) to go with the run file (on the command line: --judgments FILE)', path);
@@ -113,6 +113,17 @@ async function readDelimited(path: string, format: 'csv' | 'tsv', gzip: boolean,
   if (rows.count === 0) throw new InputError('at least one data row after the header', path, 2);
   rows.countGaps();
   return rows.finish(path, format, stamp);
+}
+
+async function readJsonLinesFile(path: string, gzip: boolean, options: ReadOptions): Promise<RankedDump> {
+  if (!gzip) {
+    const threads = await shouldParseInParallel(path, options.threads);
+    if (threads > 1 || options.offThread) {
+      const dump = await readParallelJsonLines(path, threads, options);
+      if (dump !== undefined) return dump;
+    }
+  }
+  return readJsonLines(path, options);
 }
 
 async function sizeOf(path: string): Promise<number> {

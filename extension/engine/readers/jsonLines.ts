@@ -4,15 +4,16 @@
  * - one list per line: `{"query": "q1", "items": [...], "labels": [...], "scores": [...]}` (equal lengths)
  * Every row of a list shares the list's line number and byte offset.
  */
+import { promises as fsp } from 'node:fs';
 import { engineSettings } from '../config';
 import { isWellFormedText } from './textCheck';
 import { InputError } from '../errors';
 import type { RankedDump } from '../model/dump';
-import { RowColumns } from './columns';
+import { RowColumns, type SharedColumns } from './columns';
 import type { ReadOptions } from './readOptions';
 import { describeNonNumberText, parseNumberText } from './numbers';
 import { everyColumn, LIST_ROLE_NAMES, resolveRoles, type ResolvedRoles } from './roles';
-import { LineSink, pumpText, statStamp } from './source';
+import { assertTextHead, LineSink, pumpText, statStamp } from './source';
 import { FlatRowScanner } from './jsonLinesFast';
 
 type Json = Record<string, unknown>;
@@ -29,17 +30,63 @@ interface Shape {
   readonly rankStandsInForScore: boolean;
 }
 
+/** Reads JSON Lines on this thread (a large plain file may be read in ranges first: see readers/index.ts). */
 export async function readJsonLines(path: string, options: ReadOptions): Promise<RankedDump> {
-  const parser = new JsonLinesParser(path, options, (await statStamp(path)).size);
+  const parser = new JsonLinesParser(path, options.columns, (await statStamp(path)).size);
   const lines = new LineSink((buf, start, end, line, offset) => parser.acceptLine(buf, start, end, line, offset));
   const stamp = await pumpText(path, lines, { signal: options.signal, onProgress: options.onProgress });
   const rows = parser.rows;
-  if (rows === undefined || rows.count === 0) throw new InputError('at least one row in the JSON Lines file (the file is empty)', path);
+  if (rows === undefined || rows.count === 0) throw emptyJsonLines(path);
   rows.countGaps();
   return rows.finish(path, 'jsonl', stamp);
 }
 
-class JsonLinesParser {
+/** The error of a JSON Lines file with no row. */
+export function emptyJsonLines(path: string): InputError {
+  return new InputError('at least one row in the JSON Lines file (the file is empty)', path);
+}
+
+/** Bytes of a file's head searched for its first line before a read in ranges: a longer first line reads on one thread. */
+const FIRST_LINE_BYTES = 1 << 20;
+
+/**
+ * The first row's keys of a JSON Lines file of one row per line, found on this thread before the file is
+ * read in ranges (parallel.ts), with the columns and notes that line gives the read. Undefined when the
+ * head is anything else (lists, a first line longer than its search, a line JSON or the roles refuse): the
+ * file is then read on one thread, which reports any problem as it always does.
+ */
+export function firstRowKeys(path: string, head: Buffer, columns: ReadOptions['columns']): { keys: readonly string[]; rows: RowColumns } | undefined {
+  try {
+    assertTextHead(head, path);
+    const parser = new JsonLinesParser(path, columns, head.length);
+    // A byte order mark needs no skipping: the line's text is trimmed, and JavaScript trims U+FEFF.
+    new LineSink((buf, from, end, line, offset) => {
+      if (parser.rows === undefined) parser.acceptLine(buf, from, end, line, offset);
+    }).feed(head, 0, head.length, 0, false);
+    const shape = parser.learnedShape;
+    return shape === undefined || shape.list ? undefined : { keys: shape.keys, rows: parser.rows! };
+  } catch {
+    return undefined;
+  }
+}
+
+/** Reads a file's first bytes (at most FIRST_LINE_BYTES). */
+export async function fileHead(path: string): Promise<Buffer> {
+  const fh = await fsp.open(path, 'r');
+  try {
+    const head = Buffer.alloc(FIRST_LINE_BYTES);
+    const { bytesRead } = await fh.read(head, 0, head.length, 0);
+    return head.subarray(0, bytesRead);
+  } finally {
+    await fh.close();
+  }
+}
+
+/**
+ * Parses JSON Lines line by line (acceptLine). The first line with a value sets the shape; a range of a
+ * file read in ranges (rangeParse.ts) is given the first row's keys instead, and writes to its shared slice.
+ */
+export class JsonLinesParser {
   rows: RowColumns | undefined;
   private shape: Shape | undefined;
   /** Line being parsed, for error messages and each row's line. */
@@ -47,13 +94,28 @@ class JsonLinesParser {
   /** The byte loop for plain lines of one row each (jsonLinesFast.ts), once the first line set the keys. */
   private fast: FlatRowScanner | undefined;
 
-  constructor(private readonly file: string, private readonly options: ReadOptions, private readonly fileBytes: number) {}
+  constructor(
+    private readonly file: string,
+    private readonly columns: ReadOptions['columns'],
+    private readonly fileBytes: number,
+    /** A range's: the first row's keys of the file, and the shared slice its rows go to. */
+    range?: { readonly keys: readonly string[]; readonly shared?: SharedColumns },
+  ) {
+    if (range !== undefined) this.adoptShape(range.keys, false, { file, line: 0, text: '' }, range.shared);
+  }
+
+  /** The shape the first line set (or the range was given). */
+  get learnedShape(): { readonly keys: readonly string[]; readonly list: boolean } | undefined {
+    return this.shape;
+  }
 
   acceptLine(buf: Buffer, start: number, end: number, line: number, offset: number): void {
     this.line = line;
     // Sized once from the bytes per row so far (a compressed file's size only makes the guess short), not
-    // grown by half again and copied time after time: 0.8 s of 8 on 10M rows.
-    if (line === SIZE_AFTER_LINES && this.rows !== undefined && this.rows.count > 0) this.rows.reserve((this.fileBytes / offset) * this.rows.count * 1.05);
+    // grown by half again and copied time after time: 0.8 s of 8 on 10M rows. A range's shared slice is sized already.
+    if (line === SIZE_AFTER_LINES && this.rows !== undefined && this.rows.count > 0 && this.rows.shared === undefined) {
+      this.rows.reserve((this.fileBytes / offset) * this.rows.count * 1.05);
+    }
     if (this.fast !== undefined && this.fast.store(buf, start, end, this.rows!, line, offset)) return;
     const text = buf.toString('utf8', start, end).trim();
     if (text.length > 0) this.storeLine(text, offset);
@@ -77,11 +139,14 @@ class JsonLinesParser {
 
   private learnShape(obj: Json, text: string): Shape {
     const keys = Object.keys(obj);
-    const list = keys.some((k) => Array.isArray(obj[k]));
-    const roles = resolveRoles(keys, everyColumn(this.options.columns), { file: this.file, line: this.line, text }, list ? LIST_ROLE_NAMES : undefined);
+    return this.adoptShape(keys, keys.some((k) => Array.isArray(obj[k])), { file: this.file, line: this.line, text });
+  }
+
+  private adoptShape(keys: readonly string[], list: boolean, at: { file: string; line: number; text: string }, shared?: SharedColumns): Shape {
+    const roles = resolveRoles(keys, everyColumn(this.columns), at, list ? LIST_ROLE_NAMES : undefined);
     // Item bytes kept per row, not interned dump-wide (model/rowTexts.ts): millions of distinct ids cost a
     // table lookup per row that misses the caches; scoring needs only keys within each query.
-    const rows = new RowColumns(roles.segments.map((i) => keys[i]!), 1024, undefined, ITEM_BYTES_GUESS);
+    const rows = new RowColumns(roles.segments.map((i) => keys[i]!), 1024, shared, ITEM_BYTES_GUESS);
     if (roles.rank >= 0) {
       rows.notes.messages.push(roles.score < 0
         ? `no score field: ranked by '${keys[roles.rank]}' (score = -rank)`

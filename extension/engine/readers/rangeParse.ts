@@ -1,5 +1,6 @@
 /**
- * Parses one newline-aligned byte range of a large CSV/TSV file into its own columns and pools.
+ * Parses one newline-aligned byte range of a large CSV/TSV or JSON Lines file into its own columns and pools.
+ * A JSON Lines file may be cut at any newline: JSON strings hold no raw line break.
  * Runs inside a parse worker; the main thread merges ranges in file order (see parallel.ts).
  * Quoted fields are parsed as on one thread. A cut at a newline may fall inside a quoted field (a quoted
  * newline): the range before it then ends inside the quotes, and is answered `quoted`, for the caller
@@ -10,17 +11,21 @@ import { InputError, UnclosedQuoteError } from '../errors';
 import type { BytePoolState } from '../model/bytePool';
 import type { RowTextsState } from '../model/rowTexts';
 import type { RowSummary } from '../model/rowSummary';
-import { ROW_COLUMN_NAMES, rowArray, rowArrays, type RowArrays, type SharedColumns } from './columns';
+import { ROW_COLUMN_NAMES, rowArray, rowArrays, type RowArrays, type RowColumns, type SharedColumns } from './columns';
 import { DelimitedParser } from './delimited';
+import { JsonLinesParser } from './jsonLines';
 import type { ColumnRoles } from './roles';
-import { pumpRange, type ReadBuffers } from './source';
+import { LineSink, pumpRange, type ReadBuffers, type RecordSink } from './source';
 
 export interface RangeTask {
   readonly path: string;
   readonly start: number;
   readonly end: number;
+  /** CSV/TSV: the delimiter and the header's column names. */
   readonly delimiter: number;
   readonly names: string[];
+  /** JSON Lines of one row per line: the first row's keys (delimiter and names are then unused). */
+  readonly jsonKeys?: readonly string[];
   readonly columns?: ColumnRoles;
   readonly chunkBytes: number;
   readonly shared?: SharedColumns;
@@ -55,16 +60,15 @@ export type RangeResult =
   | { readonly kind: 'error'; readonly expected: string; readonly file?: string; readonly line?: number; readonly found?: string };
 
 export async function parseRange(task: RangeTask, onBytes: (done: number) => void, reuse?: ReadBuffers): Promise<RangeResult> {
-  const parser = new DelimitedParser({ file: task.path, delimiter: task.delimiter, columns: task.columns, expectedBytes: task.end - task.start,
-    shared: task.shared }, { names: task.names });
+  const parser = rangeParser(task);
   try {
-    await pumpRange(task.path, task.start, task.end, parser, onBytes, task.chunkBytes, reuse);
+    await pumpRange(task.path, task.start, task.end, parser.sink, onBytes, task.chunkBytes, reuse);
   } catch (err) {
     if (err instanceof UnclosedQuoteError) return { kind: 'quoted' };
     if (err instanceof InputError) return { kind: 'error', expected: err.expected, file: err.file, line: err.line, found: err.found };
     throw err;
   }
-  const rows = parser.columns!;
+  const rows = parser.rows();
   const n = rows.count;
   const itemKeys = rows.itemTexts!.groupedKeys(rows.query, rows.item);
   const pools = {
@@ -75,7 +79,19 @@ export async function parseRange(task: RangeTask, onBytes: (done: number) => voi
   };
   const columns = rowArrays((name) => (rows.inShared ? rowArray(name, 0) : rows[name].subarray(0, n) as never));
   const segmentIds = rows.inShared ? [] : rows.segmentIds.map((ids) => ids.subarray(0, n)) as Uint32Array[];
-  return { kind: 'rows', count: n, lines: parser.line - 1, inShared: rows.inShared, ...columns, segmentIds, ...pools, itemKeys };
+  return { kind: 'rows', count: n, lines: parser.lines(), inShared: rows.inShared, ...columns, segmentIds, ...pools, itemKeys };
+}
+
+/** The parser of a range's format: what the bytes go to, its rows, and the newlines it consumed. */
+function rangeParser(task: RangeTask): { sink: RecordSink; rows: () => RowColumns; lines: () => number } {
+  if (task.jsonKeys !== undefined) {
+    const json = new JsonLinesParser(task.path, task.columns, task.end - task.start, { keys: task.jsonKeys, shared: task.shared });
+    const sink = new LineSink((buf, start, end, line, offset) => json.acceptLine(buf, start, end, line, offset));
+    return { sink, rows: () => json.rows!, lines: () => sink.linesRead };
+  }
+  const delimited = new DelimitedParser({ file: task.path, delimiter: task.delimiter, columns: task.columns, expectedBytes: task.end - task.start,
+    shared: task.shared }, { names: task.names });
+  return { sink: delimited, rows: () => delimited.columns!, lines: () => delimited.line - 1 };
 }
 
 /** A thread's share of a read: the ranges it claimed, each with its index in the file's list of ranges. */

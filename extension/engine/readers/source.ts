@@ -118,7 +118,10 @@ export async function pumpText(path: string, sink: RecordSink, options: PumpOpti
  */
 export async function pumpRange(path: string, start: number, end: number, sink: RecordSink,
   onBytes: (done: number) => void, chunkBytes = engineSettings().tuning.plainChunkBytes, reuse?: ReadBuffers): Promise<void> {
-  await feedPlain(path, start, end, sink, { onBytes: (at) => onBytes(at - start), chunkBytes, guard: new TextGuard(path, false, start), reuse });
+  // A range from the file's start (JSON Lines have no header line) skips a byte order mark as one thread does:
+  // the rows' offsets count from after it.
+  await feedPlain(path, start, end, sink, { ...(start === 0 ? { fileStart: path } : {}), onBytes: (at) => onBytes(at - start), chunkBytes,
+    guard: new TextGuard(path, false, start), reuse });
 }
 
 /**
@@ -286,6 +289,11 @@ export class LineSink implements RecordSink {
   private line = 1;
 
   constructor(private readonly onLine: (buf: Buffer, start: number, end: number, line: number, offset: number) => void) {}
+
+  /** Lines ended so far (by a newline, or by the end of the input). */
+  get linesRead(): number {
+    return this.line - 1;
+  }
 
   feed(buf: Buffer, start: number, end: number, base: number, final: boolean): number {
     let pos = start;

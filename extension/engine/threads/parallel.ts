@@ -1,5 +1,5 @@
 /**
- * Reads a large CSV/TSV file on several threads: the file is cut at newlines into a few byte ranges per
+ * Reads a large CSV/TSV file, or JSON Lines of one row per line, on several threads: the file is cut at newlines into a few byte ranges per
  * thread, this thread and the workers claim ranges in turn and parse each into its own columns and
  * pools, and the ranges are put together in file order (mergeRanges.ts). A cut that fell on a newline
  * inside a quoted field shows as a range ending inside quotes (rangeParse.ts); the caller then falls
@@ -13,6 +13,7 @@ import type { RankedDump } from '../model/dump';
 import { addSummaries } from '../model/rowSummary';
 import { ROW_COLUMN_NAMES, ROW_COLUMNS, sharedViews, type RowColumnName, type RowColumns, type SharedColumns } from '../readers/columns';
 import { parseHeaderLine } from '../readers/headerLine';
+import { emptyJsonLines, fileHead, firstRowKeys } from '../readers/jsonLines';
 import type { ReadOptions } from '../readers/readOptions';
 import { parseClaimedRanges, type ClaimedRanges, type RangeResult, type RangeTask } from '../readers/rangeParse';
 import { checkUnchanged, statStamp, throwIfCancelled } from '../readers/source';
@@ -44,33 +45,71 @@ export async function shouldParseInParallel(path: string, threads: number | unde
 /** Returns undefined when the file cannot be split safely (a cut inside a quoted field, no workers available). */
 export async function readParallelDelimited(path: string, format: 'csv' | 'tsv', delimiter: number, threads: number,
   options: ReadOptions): Promise<RankedDump | undefined> {
+  return inRanges(threads, options, async () => {
+    const header = await readHeader(path, delimiter, options);
+    if (header === undefined) return undefined;
+    return { path, format, firstByte: header.end, linesBefore: 1, bytesPerRow: header.bytesPerRow, headerRows: header.parser.columns!,
+      task: { delimiter, names: header.names }, empty: () => new InputError('at least one data row after the header', path, 2) };
+  });
+}
+
+/**
+ * JSON Lines of one row per line, read in ranges as CSV/TSV are: the first row's keys are found here and
+ * every range parses with them. Undefined when the file's head is not of that shape (jsonLines.ts, firstRowKeys).
+ */
+export async function readParallelJsonLines(path: string, threads: number, options: ReadOptions): Promise<RankedDump | undefined> {
+  return inRanges(threads, options, async () => {
+    const head = await fileHead(path);
+    const first = firstRowKeys(path, head, options.columns);
+    if (first === undefined) return undefined;
+    return { path, format: 'jsonl', firstByte: 0, linesBefore: 0, bytesPerRow: bytesPerLine(head), headerRows: first.rows,
+      task: { delimiter: 0, names: [], jsonKeys: first.keys }, empty: () => emptyJsonLines(path) };
+  });
+}
+
+/** How a file is cut into ranges: where the rows start, what every range's task carries, and what the read starts from. */
+interface RangePlan {
+  readonly path: string;
+  readonly format: 'csv' | 'tsv' | 'jsonl';
+  /** The first range's first byte (after the header line of a CSV/TSV file). */
+  readonly firstByte: number;
+  /** Lines before the first range. */
+  readonly linesBefore: number;
+  readonly bytesPerRow: number;
+  /** The header's columns: segment names and notes. */
+  readonly headerRows: RowColumns;
+  readonly task: Pick<RangeTask, 'delimiter' | 'names' | 'jsonKeys'>;
+  /** The error of a file with no row. */
+  readonly empty: () => InputError;
+}
+
+async function inRanges(threads: number, options: ReadOptions, plan: () => Promise<RangePlan | undefined>): Promise<RankedDump | undefined> {
   const lease = leasePool<ParseRequests>('parseWorker', Math.max(1, threads - 1));
   if (lease === undefined) return undefined;
   // Started now, the threads' start-up overlaps reading the header and choosing the ranges.
   lease.pool.warm(lease.workers);
   try {
-    return await readInRanges(lease, path, format, delimiter, threads, options);
+    const planned = await plan();
+    return planned === undefined ? undefined : await readInRanges(lease, planned, threads, options);
   } finally {
     lease.done();
   }
 }
 
-async function readInRanges(lease: PoolLease<ParseRequests>, path: string, format: 'csv' | 'tsv', delimiter: number, threads: number,
-  options: ReadOptions): Promise<RankedDump | undefined> {
+async function readInRanges(lease: PoolLease<ParseRequests>, plan: RangePlan, threads: number, options: ReadOptions): Promise<RankedDump | undefined> {
+  const { path } = plan;
   const stamp = await statStamp(path);
-  const header = await readHeader(path, delimiter, options);
-  if (header === undefined) return undefined;
-  const bounds = await splitPoints(path, header.end, stamp.size, threads * Math.max(1, engineSettings().tuning.parseRangesPerThread));
-  const slices = sharedSlices(bounds, await rowSizes(path, bounds, header.bytesPerRow), header.parser.columns!.segmentNames.length,
+  const bounds = await splitPoints(path, plan.firstByte, stamp.size, threads * Math.max(1, engineSettings().tuning.parseRangesPerThread));
+  const slices = sharedSlices(bounds, await rowSizes(path, bounds, plan.bytesPerRow), plan.headerRows.segmentNames.length,
     options.rowOffsets !== false);
   const tasks: RangeTask[] = bounds.slice(0, -1).map((start, k) => ({
-    path, start, end: bounds[k + 1]!, delimiter, names: header.names, columns: options.columns, chunkBytes: engineSettings().tuning.plainChunkBytes,
+    path, start, end: bounds[k + 1]!, ...plan.task, columns: options.columns, chunkBytes: engineSettings().tuning.plainChunkBytes,
     shared: slices[k],
   }));
   const results = await parseRanges(lease, tasks, stamp.size, options);
   // A range ending inside quotes stopped the claims (later ranges may be missing): the file is read on one thread.
   if (results.some((r) => r.kind === 'quoted')) return undefined;
-  const lineOffsets = [1];
+  const lineOffsets = [plan.linesBefore];
   for (const r of results) lineOffsets.push(lineOffsets.at(-1)! + (r.kind === 'rows' ? r.lines : 0));
   const failed = results.findIndex((r) => r.kind === 'error');
   if (failed >= 0) {
@@ -81,19 +120,19 @@ async function readInRanges(lease: PoolLease<ParseRequests>, path: string, forma
   const gaps = addSummaries(parts.map((p) => p.gaps));
   const helper = lease.pool.idle > 0 ? (task: CompactTask) => lease.pool.request('compactColumns', task, { signal: options.signal }).then(() => undefined) : undefined;
   let rows: RowColumns;
-  if (parts.every((p) => p.inShared)) rows = await compactShared(parts, slices, lineOffsets, header.parser.columns!, helper);
+  if (parts.every((p) => p.inShared)) rows = await compactShared(parts, slices, lineOffsets, plan.headerRows, helper);
   else {
-    rows = merge(parts.map((p, k) => (p.inShared ? { ...p, ...sharedViews(slices[k]!, p.count) } : p)), lineOffsets, header.parser.columns!);
+    rows = merge(parts.map((p, k) => (p.inShared ? { ...p, ...sharedViews(slices[k]!, p.count) } : p)), lineOffsets, plan.headerRows);
     itemKeysOfRanges(rows, parts);
   }
-  if (rows.count === 0) throw new InputError('at least one data row after the header', path, 2);
+  if (rows.count === 0) throw plan.empty();
   if (parts.every((p) => p.inShared) && lease.pool.idle > 0) {
     await keyUngroupedRows(rows, (task) => lease.pool.request('groupRows', task, { signal: options.signal }));
   }
   await checkUnchanged(path, stamp);
   rows.setGaps(gaps);
   options.onProgress?.(1);
-  return rows.finish(path, format, stamp);
+  return rows.finish(path, plan.format, stamp);
 }
 
 /** Parses the header line on this thread, so role errors read as they do single-threaded. */
@@ -105,12 +144,17 @@ async function readHeader(path: string, delimiter: number, options: ReadOptions)
     const { parser, names, end } = header;
     const sample = Buffer.alloc(256 * 1024);
     const { bytesRead } = await fh.read(sample, 0, sample.length, end);
-    let newlines = 0;
-    for (let i = 0; i < bytesRead; i++) if (sample[i] === 10) newlines++;
-    return { names, end, parser, bytesPerRow: newlines > 0 ? bytesRead / newlines : 64 };
+    return { names, end, parser, bytesPerRow: bytesPerLine(sample.subarray(0, bytesRead)) };
   } finally {
     await fh.close();
   }
+}
+
+/** Bytes per line of a sample of a file (64 when it holds no newline). */
+function bytesPerLine(sample: Uint8Array): number {
+  let newlines = 0;
+  for (let i = 0; i < sample.length; i++) if (sample[i] === 10) newlines++;
+  return newlines > 0 ? sample.length / newlines : 64;
 }
 
 /**

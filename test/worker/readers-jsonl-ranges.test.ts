@@ -1,0 +1,87 @@
+/**
+ * JSON Lines of one row per line read in ranges by several threads (threads/parallel.ts) must read exactly
+ * as one thread does: the same rows, ids, grades and scores to the bit, lines, offsets, segments and notes,
+ * and the same error (its line counted over the whole file) for bad input. The files are cut at a dozen
+ * newlines, so cuts fall next to blank lines, CRLF ends and lines only JSON.parse takes. A file of another
+ * shape (lists on a line) is read on one thread. The parse worker is bundled fresh from source.
+ */
+import { describe, expect, it } from 'vitest';
+import type { RankedDump } from '../../extension/engine/model/dump';
+import { readDump } from '../../extension/engine/readers/index';
+import { TempDir } from '../engine/fixtures/readers/tempFiles';
+import { randomJsonLines } from '../engine/fixtures/randomJsonLines';
+import { expectSameReading } from '../engine/fixtures/sameReading';
+import { useBundledWorkers } from './support/workers';
+
+const tmp = new TempDir();
+
+useBundledWorkers(tmp, ['parseWorker']);
+
+/** One thread's reading and a reading in ranges (3 threads, 4 ranges each), or the error each gave. */
+async function readBoth(path: string): Promise<[RankedDump | Error, RankedDump | Error]> {
+  const attempt = (threads: number) => readDump(path, { threads }).catch((e: Error) => e);
+  return [await attempt(1), await attempt(3)];
+}
+
+/** True when the dump's columns came from a read in ranges (they are views of shared buffers then). */
+function readInRanges(dump: RankedDump): boolean {
+  return dump.score.buffer instanceof SharedArrayBuffer;
+}
+
+describe('JSON Lines read in ranges', () => {
+  it.each(Array.from({ length: 8 }, (_, i) => [400 + i]))('seed %i reads as one thread reads it (or fails the same way)', async (seed) => {
+    // Every other seed without the lines JSON refuses, so most comparisons are of whole dumps.
+    const text = randomJsonLines(seed, 6_000);
+    const clean = seed % 2 === 0 ? text.split(/\r?\n/).filter((l) => !/"01"|:\s*01|0\.5\.5|sku\\t|\t/.test(l)).join('\n') : text;
+    const [one, ranges] = await readBoth(tmp.file(`ranges-${seed}.jsonl`, clean));
+    if (one instanceof Error) {
+      expect(seed % 2).toBe(1);
+      expect(ranges).toBeInstanceOf(Error);
+      expect((ranges as Error).message).toBe(one.message);
+      return;
+    }
+    expect(ranges).not.toBeInstanceOf(Error);
+    expect(readInRanges(ranges as RankedDump)).toBe(true);
+    expectSameReading(one, ranges as RankedDump);
+    expect(one.rowCount).toBeGreaterThan(5_000);
+  });
+
+  it('reads a byte order mark and blank lines before the first row as one thread does, with CRLF line ends', async () => {
+    const lines = Array.from({ length: 4_000 }, (_, r) => `{"query": "sander ${Math.floor(r / 6)}", "product_id": "p-${r}", "grade": ${r % 4}, "score": ${(r % 89) / 7}}`);
+    const path = tmp.file('ranges-bom.jsonl', '\ufeff\r\n  \r\n' + lines.join('\r\n') + '\r\n');
+    const [oneMarked, rangesMarked] = await readBoth(tmp.file('ranges-bom-row.jsonl', '\ufeff' + lines.join('\r\n') + '\r\n'));
+    expect(readInRanges(rangesMarked as RankedDump)).toBe(true);
+    expectSameReading(oneMarked as RankedDump, rangesMarked as RankedDump);
+    const [one, ranges] = await readBoth(path);
+    expect(readInRanges(ranges as RankedDump)).toBe(true);
+    expectSameReading(one as RankedDump, ranges as RankedDump);
+    expect((one as RankedDump).line[0]).toBe(3);
+    // Three bytes of the mark, then CRLF and "  CRLF".
+    expect((one as RankedDump).offset[0]).toBe(9);
+  });
+
+  it('reports a bad line deep in the file, and a byte that is not UTF-8, at the line one thread names', async () => {
+    const lines = Array.from({ length: 5_000 }, (_, r) => `{"query":"saw ${Math.floor(r / 9)}","item":"s-${r}","label":${r % 3},"score":${r / 100}}`);
+    const broken = [...lines];
+    broken[4_321] = '{"query":"saw","item":"s-x","label":[1],"score":1}';
+    const [oneBroken, rangesBroken] = await readBoth(tmp.file('ranges-broken.jsonl', broken.join('\n') + '\n'));
+    expect(oneBroken).toBeInstanceOf(Error);
+    expect((rangesBroken as Error).message).toBe((oneBroken as Error).message);
+    expect((oneBroken as Error).message).toMatch(/:4322\b/);
+
+    const bytes = Buffer.from(lines.join('\n') + '\n');
+    const at = bytes.indexOf('s-3777');
+    bytes[at + 2] = 0xff;
+    const [oneBad, rangesBad] = await readBoth(tmp.file('ranges-bad-byte.jsonl', bytes));
+    expect(oneBad).toBeInstanceOf(Error);
+    expect((rangesBad as Error).message).toBe((oneBad as Error).message);
+  });
+
+  it('reads lists on a line on one thread, the same rows either way', async () => {
+    const lines = Array.from({ length: 3_000 }, (_, q) => JSON.stringify({ query: `plane ${q}`, items: ['a', 'b', 'c'].map((x) => `${x}${q}`), labels: [q % 3, 1, 0], scores: [0.3, q / 7, 0.1] }));
+    const [one, ranges] = await readBoth(tmp.file('ranges-lists.jsonl', lines.join('\n') + '\n'));
+    expect(readInRanges(ranges as RankedDump)).toBe(false);
+    expectSameReading(one as RankedDump, ranges as RankedDump);
+    expect((one as RankedDump).rowCount).toBe(9_000);
+  });
+});
