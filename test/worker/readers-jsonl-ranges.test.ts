@@ -1,9 +1,9 @@
 /**
- * JSON Lines of one row per line read in ranges by several threads (threads/parallel.ts) must read exactly
+ * JSON Lines read in ranges by several threads (threads/parallel.ts) must read exactly
  * as one thread does: the same rows, ids, grades and scores to the bit, lines, offsets, segments and notes,
  * and the same error (its line counted over the whole file) for bad input. The files are cut at a dozen
- * newlines, so cuts fall next to blank lines, CRLF ends and lines only JSON.parse takes. A file of another
- * shape (lists on a line) is read on one thread. The parse worker is bundled fresh from source.
+ * newlines, so cuts fall next to blank lines, CRLF ends and lines only JSON.parse takes; lines of lists are
+ * cut between lists. The parse worker is bundled fresh from source.
  */
 import { describe, expect, it } from 'vitest';
 import type { RankedDump } from '../../extension/engine/model/dump';
@@ -11,6 +11,7 @@ import { readDump } from '../../extension/engine/readers/index';
 import { TempDir } from '../engine/fixtures/readers/tempFiles';
 import { randomJsonLines } from '../engine/fixtures/randomJsonLines';
 import { expectSameReading } from '../engine/fixtures/sameReading';
+import { seededRandom } from '../reference/random';
 import { useBundledWorkers } from './support/workers';
 
 const tmp = new TempDir();
@@ -77,11 +78,29 @@ describe('JSON Lines read in ranges', () => {
     expect((rangesBad as Error).message).toBe((oneBad as Error).message);
   });
 
-  it('reads lists on a line on one thread, the same rows either way', async () => {
-    const lines = Array.from({ length: 3_000 }, (_, q) => JSON.stringify({ query: `plane ${q}`, items: ['a', 'b', 'c'].map((x) => `${x}${q}`), labels: [q % 3, 1, 0], scores: [0.3, q / 7, 0.1] }));
+  it('reads lines of lists in ranges too, lists of 1 to 40 rows', async () => {
+    const rnd = seededRandom(41);
+    const lines = Array.from({ length: 3_000 }, (_, q) => {
+      const n = 1 + Math.floor(rnd() * 40);
+      const items = Array.from({ length: n }, (_, i) => `p${q}-${i}`);
+      return JSON.stringify({ query: `plane ${q}`, items, labels: items.map(() => Math.floor(rnd() * 4)), scores: items.map(() => Math.round(rnd() * 1e4) / 1e3) });
+    });
     const [one, ranges] = await readBoth(tmp.file('ranges-lists.jsonl', lines.join('\n') + '\n'));
+    expect(readInRanges(ranges as RankedDump)).toBe(true);
+    expectSameReading(one as RankedDump, ranges as RankedDump);
+    expect((one as RankedDump).rowCount).toBeGreaterThan(50_000);
+  });
+
+  it('reads lines of lists whose rows outgrow the guess from the head (ranges go on in private arrays), the same rows', async () => {
+    // The head's rows are long (a guess of few rows per byte); the rest are short, many to a line.
+    const long = Array.from({ length: 900 }, (_, q) => JSON.stringify({ query: `q${q}`, items: ['x'.repeat(200) + q, 'y'.repeat(200) + q], labels: [1, 0], scores: [0.5, 0.25] }));
+    const short = Array.from({ length: 2_000 }, (_, q) => {
+      const items = Array.from({ length: 60 }, (_, i) => `${i}`);
+      return JSON.stringify({ query: `s${q}`, items, labels: items.map((_, i) => i % 3), scores: items.map((_, i) => i / 4) });
+    });
+    const [one, ranges] = await readBoth(tmp.file('ranges-lists-grow.jsonl', [...long, ...short].join('\n') + '\n'));
     expect(readInRanges(ranges as RankedDump)).toBe(false);
     expectSameReading(one as RankedDump, ranges as RankedDump);
-    expect((one as RankedDump).rowCount).toBe(9_000);
+    expect((one as RankedDump).rowCount).toBe(1_800 + 120_000);
   });
 });

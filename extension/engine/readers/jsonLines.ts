@@ -46,35 +46,46 @@ export function emptyJsonLines(path: string): InputError {
   return new InputError('at least one row in the JSON Lines file (the file is empty)', path);
 }
 
-/** Bytes of a file's head searched for its first line before a read in ranges: a longer first line reads on one thread. */
-const FIRST_LINE_BYTES = 1 << 20;
+/** Bytes of a file's head read on this thread before a read in ranges: a first line longer than this reads on one thread. */
+const HEAD_BYTES = 1 << 20;
+
+/** The shape of a JSON Lines file, learnt from its head before the file is read in ranges (parallel.ts). */
+export interface JsonLinesHead {
+  /** The first line's keys. */
+  readonly keys: readonly string[];
+  /** True when a line holds lists (a query's rows), false for one row per line. */
+  readonly list: boolean;
+  /** The columns and notes the first line gives the read. */
+  readonly rows: RowColumns;
+  /** Bytes per row over the head's whole lines (a line of lists holds many rows). */
+  readonly bytesPerRow: number;
+}
 
 /**
- * The first row's keys of a JSON Lines file of one row per line, found on this thread before the file is
- * read in ranges (parallel.ts), with the columns and notes that line gives the read. Undefined when the
- * head is anything else (lists, a first line longer than its search, a line JSON or the roles refuse): the
- * file is then read on one thread, which reports any problem as it always does.
+ * Reads the whole lines of a file's head as one thread would, for their shape. Undefined when a line there
+ * is refused (JSON, the roles, the text), or the head holds no row: the file is then read on one thread,
+ * which reports any problem as it always does.
  */
-export function firstRowKeys(path: string, head: Buffer, columns: ReadOptions['columns']): { keys: readonly string[]; rows: RowColumns } | undefined {
+export function jsonLinesHead(path: string, head: Buffer, columns: ReadOptions['columns']): JsonLinesHead | undefined {
   try {
     assertTextHead(head, path);
     const parser = new JsonLinesParser(path, columns, head.length);
     // A byte order mark needs no skipping: the line's text is trimmed, and JavaScript trims U+FEFF.
-    new LineSink((buf, from, end, line, offset) => {
-      if (parser.rows === undefined) parser.acceptLine(buf, from, end, line, offset);
-    }).feed(head, 0, head.length, 0, false);
+    const read = new LineSink((buf, from, end, line, offset) => parser.acceptLine(buf, from, end, line, offset)).feed(head, 0, head.length, 0, false);
     const shape = parser.learnedShape;
-    return shape === undefined || shape.list ? undefined : { keys: shape.keys, rows: parser.rows! };
+    const rows = parser.rows;
+    if (shape === undefined || rows === undefined || rows.count === 0) return undefined;
+    return { keys: shape.keys, list: shape.list, rows, bytesPerRow: read / rows.count };
   } catch {
     return undefined;
   }
 }
 
-/** Reads a file's first bytes (at most FIRST_LINE_BYTES). */
+/** Reads a file's first bytes (at most HEAD_BYTES). */
 export async function fileHead(path: string): Promise<Buffer> {
   const fh = await fsp.open(path, 'r');
   try {
-    const head = Buffer.alloc(FIRST_LINE_BYTES);
+    const head = Buffer.alloc(HEAD_BYTES);
     const { bytesRead } = await fh.read(head, 0, head.length, 0);
     return head.subarray(0, bytesRead);
   } finally {
@@ -84,7 +95,7 @@ export async function fileHead(path: string): Promise<Buffer> {
 
 /**
  * Parses JSON Lines line by line (acceptLine). The first line with a value sets the shape; a range of a
- * file read in ranges (rangeParse.ts) is given the first row's keys instead, and writes to its shared slice.
+ * file read in ranges (rangeParse.ts) is given the file's shape instead, and writes to its shared slice.
  */
 export class JsonLinesParser {
   rows: RowColumns | undefined;
@@ -98,10 +109,10 @@ export class JsonLinesParser {
     private readonly file: string,
     private readonly columns: ReadOptions['columns'],
     private readonly fileBytes: number,
-    /** A range's: the first row's keys of the file, and the shared slice its rows go to. */
-    range?: { readonly keys: readonly string[]; readonly shared?: SharedColumns },
+    /** A range's: the shape of the file (its first line's keys, and whether lines hold lists), and the shared slice its rows go to. */
+    range?: { readonly keys: readonly string[]; readonly list: boolean; readonly shared?: SharedColumns },
   ) {
-    if (range !== undefined) this.adoptShape(range.keys, false, { file, line: 0, text: '' }, range.shared);
+    if (range !== undefined) this.adoptShape(range.keys, range.list, { file, line: 0, text: '' }, range.shared);
   }
 
   /** The shape the first line set (or the range was given). */

@@ -24,8 +24,8 @@ export interface RangeTask {
   /** CSV/TSV: the delimiter and the header's column names. */
   readonly delimiter: number;
   readonly names: string[];
-  /** JSON Lines of one row per line: the first row's keys (delimiter and names are then unused). */
-  readonly jsonKeys?: readonly string[];
+  /** JSON Lines: the first line's keys and whether lines hold lists (delimiter and names are then unused). */
+  readonly json?: { readonly keys: readonly string[]; readonly list: boolean };
   readonly columns?: ColumnRoles;
   readonly chunkBytes: number;
   readonly shared?: SharedColumns;
@@ -84,8 +84,8 @@ export async function parseRange(task: RangeTask, onBytes: (done: number) => voi
 
 /** The parser of a range's format: what the bytes go to, its rows, and the newlines it consumed. */
 function rangeParser(task: RangeTask): { sink: RecordSink; rows: () => RowColumns; lines: () => number } {
-  if (task.jsonKeys !== undefined) {
-    const json = new JsonLinesParser(task.path, task.columns, task.end - task.start, { keys: task.jsonKeys, shared: task.shared });
+  if (task.json !== undefined) {
+    const json = new JsonLinesParser(task.path, task.columns, task.end - task.start, { ...task.json, shared: task.shared });
     const sink = new LineSink((buf, start, end, line, offset) => json.acceptLine(buf, start, end, line, offset));
     return { sink, rows: () => json.rows!, lines: () => sink.linesRead };
   }

@@ -13,7 +13,7 @@ import type { RankedDump } from '../model/dump';
 import { addSummaries } from '../model/rowSummary';
 import { ROW_COLUMN_NAMES, ROW_COLUMNS, sharedViews, type RowColumnName, type RowColumns, type SharedColumns } from '../readers/columns';
 import { parseHeaderLine } from '../readers/headerLine';
-import { emptyJsonLines, fileHead, firstRowKeys } from '../readers/jsonLines';
+import { emptyJsonLines, fileHead, jsonLinesHead } from '../readers/jsonLines';
 import type { ReadOptions } from '../readers/readOptions';
 import { parseClaimedRanges, type ClaimedRanges, type RangeResult, type RangeTask } from '../readers/rangeParse';
 import { checkUnchanged, statStamp, throwIfCancelled } from '../readers/source';
@@ -48,22 +48,22 @@ export async function readParallelDelimited(path: string, format: 'csv' | 'tsv',
   return inRanges(threads, options, async () => {
     const header = await readHeader(path, delimiter, options);
     if (header === undefined) return undefined;
-    return { path, format, firstByte: header.end, linesBefore: 1, bytesPerRow: header.bytesPerRow, headerRows: header.parser.columns!,
+    return { path, format, firstByte: header.end, linesBefore: 1, bytesPerRow: header.bytesPerRow, rowsPerLine: true, headerRows: header.parser.columns!,
       task: { delimiter, names: header.names }, empty: () => new InputError('at least one data row after the header', path, 2) };
   });
 }
 
 /**
- * JSON Lines of one row per line, read in ranges as CSV/TSV are: the first row's keys are found here and
- * every range parses with them. Undefined when the file's head is not of that shape (jsonLines.ts, firstRowKeys).
+ * JSON Lines read in ranges as CSV/TSV are: the shape is learnt here from the file's head (its first line's
+ * keys, whether lines hold lists) and every range parses with it. Undefined when the head does not tell
+ * (jsonLines.ts, jsonLinesHead): the file is then read on one thread.
  */
 export async function readParallelJsonLines(path: string, threads: number, options: ReadOptions): Promise<RankedDump | undefined> {
   return inRanges(threads, options, async () => {
-    const head = await fileHead(path);
-    const first = firstRowKeys(path, head, options.columns);
-    if (first === undefined) return undefined;
-    return { path, format: 'jsonl', firstByte: 0, linesBefore: 0, bytesPerRow: bytesPerLine(head), headerRows: first.rows,
-      task: { delimiter: 0, names: [], jsonKeys: first.keys }, empty: () => emptyJsonLines(path) };
+    const head = jsonLinesHead(path, await fileHead(path), options.columns);
+    if (head === undefined) return undefined;
+    return { path, format: 'jsonl', firstByte: 0, linesBefore: 0, bytesPerRow: head.bytesPerRow, rowsPerLine: !head.list, headerRows: head.rows,
+      task: { delimiter: 0, names: [], json: { keys: head.keys, list: head.list } }, empty: () => emptyJsonLines(path) };
   });
 }
 
@@ -76,9 +76,11 @@ interface RangePlan {
   /** Lines before the first range. */
   readonly linesBefore: number;
   readonly bytesPerRow: number;
+  /** True when a line holds one row (CSV/TSV records, JSON Lines of rows); false for lines of lists. */
+  readonly rowsPerLine: boolean;
   /** The header's columns: segment names and notes. */
   readonly headerRows: RowColumns;
-  readonly task: Pick<RangeTask, 'delimiter' | 'names' | 'jsonKeys'>;
+  readonly task: Pick<RangeTask, 'delimiter' | 'names' | 'json'>;
   /** The error of a file with no row. */
   readonly empty: () => InputError;
 }
@@ -100,7 +102,9 @@ async function readInRanges(lease: PoolLease<ParseRequests>, plan: RangePlan, th
   const { path } = plan;
   const stamp = await statStamp(path);
   const bounds = await splitPoints(path, plan.firstByte, stamp.size, threads * Math.max(1, engineSettings().tuning.parseRangesPerThread));
-  const slices = sharedSlices(bounds, await rowSizes(path, bounds, plan.bytesPerRow), plan.headerRows.segmentNames.length,
+  // Lines of lists hold rows by the dozen: a newline count says nothing of their rows, so the head's figure serves every range.
+  const perRow = plan.rowsPerLine ? await rowSizes(path, bounds, plan.bytesPerRow) : bounds.slice(0, -1).map(() => plan.bytesPerRow);
+  const slices = sharedSlices(bounds, perRow, plan.rowsPerLine ? SLICE_MARGIN : LIST_SLICE_MARGIN, plan.headerRows.segmentNames.length,
     options.rowOffsets !== false);
   const tasks: RangeTask[] = bounds.slice(0, -1).map((start, k) => ({
     path, start, end: bounds[k + 1]!, ...plan.task, columns: options.columns, chunkBytes: engineSettings().tuning.plainChunkBytes,
@@ -162,9 +166,9 @@ function bytesPerLine(sample: Uint8Array): number {
  * `offsets` the offset buffer has no bytes, and the parse threads write no offsets (RowColumns.keepsOffsets):
  * on 10M rows that is 80 MB never written, and 0.08 s less for the whole run.
  */
-function sharedSlices(bounds: number[], bytesPerRow: number[], segments: number, offsets: boolean): SharedColumns[] {
+function sharedSlices(bounds: number[], bytesPerRow: number[], margin: number, segments: number, offsets: boolean): SharedColumns[] {
   // The room a range leaves unused ends up above the compacted rows, written and kept: the margin is that memory.
-  const sizes = bounds.slice(0, -1).map((start, k) => Math.ceil(((bounds[k + 1]! - start) / bytesPerRow[k]!) * SLICE_MARGIN) + 1024);
+  const sizes = bounds.slice(0, -1).map((start, k) => Math.ceil(((bounds[k + 1]! - start) / bytesPerRow[k]!) * margin) + 1024);
   const total = sizes.reduce((a, b) => a + b, 0);
   const buffers = {} as Record<RowColumnName, SharedArrayBuffer>;
   for (const name of ROW_COLUMN_NAMES) buffers[name] = new SharedArrayBuffer(name === 'offset' && !offsets ? 0 : total * ROW_COLUMNS[name].array.BYTES_PER_ELEMENT);
@@ -183,6 +187,8 @@ function sharedSlices(bounds: number[], bytesPerRow: number[], segments: number,
  * outgrows its slice goes on in private arrays, merged by copying (slower, never wrong).
  */
 const SLICE_MARGIN = 1.06;
+/** Lines of lists vary more (a query's rows, a line): their ranges get more room. */
+const LIST_SLICE_MARGIN = 1.3;
 const SAMPLE_BYTES = 64 * 1024;
 
 /** Bytes per row at each range start (the first from the header's sample) and at the file's end, per range the smaller of its two ends. */
