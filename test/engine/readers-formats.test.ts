@@ -187,6 +187,26 @@ describe('Parquet', () => {
     expect(plainRows(dump).map((r) => r.segments['locale'])).toEqual(['de-DE', '', 'de-AT', 'de-DE']);
   });
 
+  it('reads numbers written as text as the CSV reader does, and keeps segment bytes that are not UTF-8 apart (escaped)', async () => {
+    const grades = ['2', ' 0', '', '3.0', 'NaN', '1'];
+    const scores = ['0.5', '1e-3', '-0', ' 7 ', 'inf', '0.1'];
+    const buf = parquetWriteBuffer({ columnData: [
+      { name: 'query_id', data: ['drill', 'drill', 'drill', 'drill', 'saw', 'saw'], type: 'STRING' },
+      { name: 'item_id', data: ['a', 'b', 'c', 'd', 'a', 'e'], type: 'STRING' },
+      { name: 'label', data: grades, type: 'STRING' },
+      { name: 'score', data: scores, type: 'STRING' },
+      { name: 'store', data: [[0x71, 0xe9], [0x71, 0xe8], [0x71, 0xe9], [0x71], [0x71, 0xe8], [0x71]].map((b) => Uint8Array.from(b)), type: 'BYTE_ARRAY' },
+    ], rowGroupSize: 4 });
+    const dump = await readDump(tmp.file('text-numbers.parquet', new Uint8Array(buf)));
+    const csv = ['query_id,item_id,label,score', ...grades.map((g, i) => `${i < 4 ? 'drill' : 'saw'},${'abcdae'[i]},${g},${scores[i]}`)].join('\n');
+    const reference = await readDump(tmp.file('text-numbers.csv', csv + '\n'));
+    expect(Array.from(dump.label)).toEqual(Array.from(reference.label));
+    expect(Array.from(dump.score)).toEqual(Array.from(reference.score));
+    expect(Array.from(dump.query)).toEqual([0, 0, 0, 0, 1, 1]);
+    // Two byte sequences a decoder would both turn into U+FFFD stay two values.
+    expect(plainRows(dump).map((r) => r.segments['store'])).toEqual(['q<E9>', 'q<E8>', 'q<E9>', 'q', 'q<E8>', 'q']);
+  });
+
   it('reports missing roles by column name', async () => {
     const buf = parquetWriteBuffer({ columnData: columns(0).filter((c) => c.name !== 'grade') });
     const err = await rejection(readDump(tmp.file('nolabel.parquet', new Uint8Array(buf))));

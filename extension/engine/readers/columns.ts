@@ -162,8 +162,13 @@ export class RowColumns implements RowArrays {
     if (textScratch.length < 3 * text.length) textScratch = new Uint8Array(3 * text.length);
     // Three bytes per UTF-16 unit always suffice, so encodeInto writes the whole string.
     const length = textEncoder.encodeInto(text, textScratch).written;
-    this.item[row] = hashBytes(textScratch, 0, length);
-    this.itemTexts!.add(textScratch, 0, length);
+    this.setItemBytes(row, textScratch, 0, length);
+  }
+
+  /** Row `row`'s item given as UTF-8 bytes[start, end): kept in the row texts, their hash in the item column. */
+  setItemBytes(row: number, bytes: Uint8Array, start: number, end: number): void {
+    this.item[row] = hashBytes(bytes, start, end);
+    this.itemTexts!.add(bytes, start, end);
   }
 
   /** Sets up the row at index `row` in one call (the common case of delimited text). */

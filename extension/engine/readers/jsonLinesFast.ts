@@ -7,7 +7,6 @@
  * stores it or reports the problem: the same rows either way. The text is valid UTF-8 (source.ts checks
  * every byte), so an id's bytes are the UTF-8 of the string JSON.parse would give.
  */
-import { hashBytes } from '../model/bytePool';
 import type { RowColumns } from './columns';
 import { POW10 } from './delimitedFast';
 import type { ResolvedRoles } from './roles';
@@ -131,8 +130,7 @@ export class FlatRowScanner {
         this.lastQuery = last >= 0 && rows.queries.matches(last, buf, s, e) ? last : rows.queries.intern(buf, s, e);
         rows.query[row] = this.lastQuery;
       } else if (kind === KIND_ITEM) {
-        rows.item[row] = hashBytes(buf, s, e);
-        rows.itemTexts!.add(buf, s, e);
+        rows.setItemBytes(row, buf, s, e);
       } else if (kind === KIND_LABEL) {
         label = this.numbers[f]!;
       } else if (kind === KIND_SCORE) {

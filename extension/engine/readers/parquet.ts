@@ -10,6 +10,7 @@ import { asyncBufferFromFile, parquetMetadataAsync, parquetRead, parquetSchema, 
 import { compressors } from 'hyparquet-compressors';
 import { InputError } from '../errors';
 import type { FileStamp, RankedDump } from '../model/dump';
+import type { BytePool } from '../model/bytePool';
 import { RowColumns } from './columns';
 import type { ReadOptions } from './readOptions';
 import { describeNonNumberText, parseNumberText } from './numbers';
@@ -57,7 +58,7 @@ export async function readParquet(path: string, directory: boolean, options: Rea
       const values = new Map<string, unknown[]>();
       try {
         await parquetRead({
-          file, metadata, columns: wanted, rowStart: groupStart, rowEnd: groupEnd, compressors, parsers: STRICT_TEXT,
+          file, metadata, columns: wanted, rowStart: groupStart, rowEnd: groupEnd, compressors, parsers: RAW_TEXT,
           onChunk: (chunk) => collect(values, chunk.columnName, chunk.columnData, chunk.rowStart, groupStart, groupEnd),
         });
       } catch (err) {
@@ -115,45 +116,75 @@ function storeGroup(rows: RowColumns, roles: ResolvedRoles, names: string[], val
   const scores = roles.score >= 0 ? get(roles.score) : get(roles.rank);
   const negate = roles.score < 0;
   const segments = roles.segments.map(get);
+  const query = new LastText(rows.queries);
+  const segmentIds = rows.segmentPools.map((pool) => new LastText(pool));
   for (let i = 0; i < count; i++) {
     const row = rows.next();
     const at = firstRow + i;
-    rows.query[row] = rows.queries.internString(idText(queries[i], names[roles.query]!, file, at));
-    rows.setItemText(row, idText(items[i], names[roles.item]!, file, at));
+    rows.query[row] = query.id(idBytes(queries[i], names[roles.query]!, file, at));
+    const item = idBytes(items[i], names[roles.item]!, file, at);
+    rows.setItemBytes(row, item, 0, item.length);
     rows.label[row] = roles.label >= 0 ? numberOf(labels[i], names[roles.label]!, false, file, at) : NaN;
     const score = roles.score >= 0 || roles.rank >= 0 ? numberOf(scores[i], names[roles.score >= 0 ? roles.score : roles.rank]!, true, file, at) : NaN;
     rows.score[row] = negate ? -score : score;
     rows.line[row] = 0;
     rows.offset[row] = -1;
-    for (let k = 0; k < segments.length; k++) {
-      const v = segments[k]![i];
-      rows.segmentIds[k]![row] = rows.segmentPools[k]!.internString(v === null || v === undefined ? '' : v instanceof NotUtf8 ? escapeBytes(v.bytes) : String(v));
-    }
+    for (let k = 0; k < segments.length; k++) rows.segmentIds[k]![row] = segmentIds[k]!.id(segmentBytes(segments[k]![i]));
   }
 }
 
-/** Byte arrays that are not UTF-8 stay bytes (the default decoder would turn them into U+FFFD and merge ids). */
-class NotUtf8 {
-  constructor(readonly bytes: Uint8Array) {}
-}
-const strictDecoder = new TextDecoder('utf-8');
-const STRICT_TEXT = {
-  stringFromBytes: (bytes: Uint8Array | undefined) =>
-    bytes === undefined || bytes === null ? bytes : isUtf8(bytes) ? strictDecoder.decode(bytes) : new NotUtf8(bytes),
-} as unknown as Partial<ParquetParsers>;
+/**
+ * Interns text bytes into a pool, remembering the last value: a dictionary-encoded column hands the same
+ * array for every row of a value, and a column sorted by it the same value row after row.
+ */
+class LastText {
+  private last: Uint8Array | undefined;
+  private lastId = -1;
 
-function idText(v: unknown, column: string, file: string, row: number): string {
-  if (typeof v === 'string') return v;
-  if (v instanceof NotUtf8) {
+  constructor(private readonly pool: BytePool) {}
+
+  id(bytes: Uint8Array): number {
+    if (bytes === this.last) return this.lastId;
+    const id = this.lastId >= 0 && this.pool.matches(this.lastId, bytes, 0, bytes.length) ? this.lastId : this.pool.intern(bytes, 0, bytes.length);
+    this.last = bytes;
+    this.lastId = id;
+    return id;
+  }
+}
+
+/**
+ * Text values arrive as their bytes: decoding each to a string and encoding it back for the pools and the row
+ * texts took about 2 s of garbage and copying on 10M rows. Bytes that are not UTF-8 are refused for ids and
+ * escaped for segments (a decoder would turn them into U+FFFD and merge ids).
+ */
+const RAW_TEXT = { stringFromBytes: (bytes: Uint8Array | undefined) => bytes } as unknown as Partial<ParquetParsers>;
+const textEncoder = new TextEncoder();
+const textDecoder = new TextDecoder('utf-8');
+const EMPTY = new Uint8Array(0);
+
+/** An id's UTF-8 bytes: text as it is, a number as it prints. */
+function idBytes(v: unknown, column: string, file: string, row: number): Uint8Array {
+  if (v instanceof Uint8Array) {
+    if (isUtf8(v)) return v;
     throw new InputError(`UTF-8 text in column '${column}' in row ${row + 1} (ids are compared as text, so write them as UTF-8)`,
-      file, undefined, escapeBytes(v.bytes));
+      file, undefined, escapeBytes(v));
   }
-  if (typeof v === 'number' || typeof v === 'bigint') return String(v);
+  if (typeof v === 'string') return textEncoder.encode(v);
+  if (typeof v === 'number' || typeof v === 'bigint') return textEncoder.encode(String(v));
   throw new InputError(`a string or number in column '${column}' in row ${row + 1}`, file, undefined, String(v));
 }
 
-function numberOf(v: unknown, column: string, isScore: boolean, file: string, row: number): number {
-  if (v === null || v === undefined) return NaN;
+/** A segment value's UTF-8 bytes: empty when missing, bytes that are not UTF-8 escaped, other values as they print. */
+function segmentBytes(v: unknown): Uint8Array {
+  if (v === null || v === undefined) return EMPTY;
+  if (v instanceof Uint8Array) return isUtf8(v) ? v : textEncoder.encode(escapeBytes(v));
+  return textEncoder.encode(String(v));
+}
+
+function numberOf(value: unknown, column: string, isScore: boolean, file: string, row: number): number {
+  if (value === null || value === undefined) return NaN;
+  // Numbers written as text: read as the text parsers read them.
+  const v = value instanceof Uint8Array ? (isUtf8(value) ? textDecoder.decode(value) : escapeBytes(value)) : value;
   let kind: 'missing' | 'infinite' | 'invalid' = 'invalid';
   if (typeof v === 'number' || typeof v === 'bigint') {
     const n = Number(v);
