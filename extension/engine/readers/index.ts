@@ -7,8 +7,8 @@
  *
  * Row positions: `line` is the 1-based line where the row starts and `offset` its first byte in the
  * decompressed text; rows of one JSON list share the list's line and offset; Parquet rows have
- * line 0 and offset -1. Large plain CSV/TSV files, and JSON Lines of one row per line, are parsed by
- * several threads; their columns are then views of SharedArrayBuffers (see parallel.ts).
+ * line 0 and offset -1. Large plain CSV/TSV, JSON Lines and Parquet reads are shared among several
+ * threads; their columns are then views of SharedArrayBuffers (see parallel.ts, parquetRanges.ts).
  */
 import { CancelledError, InputError } from '../errors';
 import { withFields, type RankedDump } from '../model/dump';
@@ -16,6 +16,7 @@ import { DelimitedParser } from './delimited';
 import { detectFormat } from './detect';
 import { readJsonLines } from './jsonLines';
 import { readParallelDelimited, readParallelJsonLines, shouldParseInParallel } from '../threads/parallel';
+import { readParallelParquet } from '../threads/parquetRanges';
 import { readParquet } from './parquet';
 import type { ReadOptions } from './readOptions';
 import { joinJudgments, readJudgmentTable, sharesQuery, unusedJudgmentsNote, type JudgmentTable } from './judgments';
@@ -94,7 +95,7 @@ async function readFormat(path: string, options: ReadOptions): Promise<RankedDum
       }
       return readSparseFeatures(path, options.scores, options);
     case 'parquet':
-      return readParquet(path, sniffed.directory, options);
+      return (await readParallelParquet(path, sniffed.directory, options)) ?? readParquet(path, sniffed.directory, options);
   }
 }
 

@@ -1,7 +1,8 @@
 /**
  * Parquet: one file, or a folder of part files (`*.parquet`, read in name order). Roles are found
- * from column names as for CSV. Read one row group at a time so only that group's decoded values
- * are held at once. Parquet rows have no line or byte offset: `line` is 0 and `offset` is -1.
+ * from column names as for CSV. Read one piece (a row group, or part of one) at a time so only that
+ * piece's decoded values are held at once; a large read's pieces are shared among threads
+ * (threads/parquetRanges.ts). Parquet rows have no line or byte offset: `line` is 0 and `offset` is -1.
  */
 import { promises as fsp } from 'node:fs';
 import { join } from 'node:path';
@@ -11,7 +12,7 @@ import { compressors } from 'hyparquet-compressors';
 import { InputError } from '../errors';
 import type { FileStamp, RankedDump } from '../model/dump';
 import type { BytePool } from '../model/bytePool';
-import { RowColumns } from './columns';
+import { RowColumns, type SharedColumns } from './columns';
 import type { ReadOptions } from './readOptions';
 import { describeNonNumberText, parseNumberText } from './numbers';
 import { everyColumn, resolveRoles, type ResolvedRoles } from './roles';
@@ -24,49 +25,19 @@ export async function readParquet(path: string, directory: boolean, options: Rea
   const parts = directory ? await partFiles(path) : [path];
   const before = await stampOf(parts);
   let rows: RowColumns | undefined;
-  let roles: ResolvedRoles | undefined;
-  let names: string[] = [];
+  let columns: ParquetColumns | undefined;
   for (let p = 0; p < parts.length; p++) {
     const part = parts[p]!;
     throwIfCancelled(options.signal);
-    let file;
-    let metadata;
-    try {
-      file = await asyncBufferFromFile(part);
-      metadata = await parquetMetadataAsync(file);
-    } catch (err) {
-      throw new InputError('a readable Parquet file', part, undefined, (err as Error).message);
-    }
-    const columns = parquetSchema(metadata).children.filter((c) => c.children.length === 0).map((c) => c.element.name);
-    if (rows === undefined) {
-      names = columns;
-      roles = resolveRoles(columns, everyColumn(options.columns), { file: part, line: 0, text: columns.join(', ') });
-      // Item bytes kept per row, not interned dump-wide (model/rowTexts.ts), 16 bytes each at a guess.
-      rows = new RowColumns(roles.segments.map((i) => columns[i]!), Number(metadata.num_rows) * (directory ? parts.length : 1), undefined, 16);
-      if (roles.rank >= 0) {
-        rows.notes.messages.push(roles.score < 0 ? `no score column: ranked by '${columns[roles.rank]}' (score = -rank)`
-          : `ranked by score; the rank column '${columns[roles.rank]}' is ignored`);
-      }
-    } else if (names.some((n) => !columns.includes(n))) {
-      throw new InputError(`the same columns in every part file (${names.join(', ')})`, part, undefined, columns.join(', '));
-    }
-    const wanted = [...new Set([roles!.query, roles!.item, roles!.label, roles!.score, roles!.rank, ...roles!.segments].filter((i) => i >= 0).map((i) => names[i]!))];
-    let groupStart = 0;
-    for (const group of metadata.row_groups) {
+    const opened = await openPart(part);
+    if (columns === undefined) {
+      columns = partColumns(opened, options);
+      rows = columnsOf(columns, Number(opened.metadata.num_rows) * (directory ? parts.length : 1));
+    } else sameColumns(columns, opened);
+    for (const piece of rowGroups(opened)) {
       throwIfCancelled(options.signal);
-      const groupEnd = groupStart + Number(group.num_rows);
-      const values = new Map<string, unknown[]>();
-      try {
-        await parquetRead({
-          file, metadata, columns: wanted, rowStart: groupStart, rowEnd: groupEnd, compressors, parsers: RAW_TEXT,
-          onChunk: (chunk) => collect(values, chunk.columnName, chunk.columnData, chunk.rowStart, groupStart, groupEnd),
-        });
-      } catch (err) {
-        throw new InputError('a readable Parquet file', part, undefined, (err as Error).message);
-      }
-      storeGroup(rows, roles!, names, values, groupEnd - groupStart, part, groupStart);
-      groupStart = groupEnd;
-      options.onProgress?.((p + groupStart / Math.max(1, Number(metadata.num_rows))) / parts.length);
+      await readPiece(opened, piece, columns, rows!);
+      options.onProgress?.((p + piece.end / Math.max(1, Number(opened.metadata.num_rows))) / parts.length);
     }
   }
   const after = await stampOf(parts);
@@ -77,14 +48,113 @@ export async function readParquet(path: string, directory: boolean, options: Rea
   return rows.finish(path, 'parquet', before);
 }
 
-async function partFiles(folder: string): Promise<string[]> {
+/** A part file, open, with its footer. */
+interface OpenPart {
+  readonly part: string;
+  readonly file: Awaited<ReturnType<typeof asyncBufferFromFile>>;
+  readonly metadata: Awaited<ReturnType<typeof parquetMetadataAsync>>;
+  /** Its leaf columns' names. */
+  readonly names: readonly string[];
+}
+
+/** Rows [start, end) of a part file, all in one of its row groups. */
+export interface ParquetPiece {
+  readonly part: string;
+  readonly start: number;
+  readonly end: number;
+}
+
+/** The columns every part is read with: the first part's names and their roles. */
+export interface ParquetColumns {
+  readonly names: readonly string[];
+  readonly roles: ResolvedRoles;
+}
+
+export async function openPart(part: string): Promise<OpenPart> {
+  try {
+    const file = await asyncBufferFromFile(part);
+    const metadata = await parquetMetadataAsync(file);
+    const names = parquetSchema(metadata).children.filter((c) => c.children.length === 0).map((c) => c.element.name);
+    return { part, file, metadata, names };
+  } catch (err) {
+    throw new InputError('a readable Parquet file', part, undefined, (err as Error).message);
+  }
+}
+
+/** The roles of the first part's columns. */
+export function partColumns(opened: OpenPart, options: Pick<ReadOptions, 'columns'>): ParquetColumns {
+  const { names, part } = opened;
+  return { names, roles: resolveRoles(names, everyColumn(options.columns), { file: part, line: 0, text: names.join(', ') }) };
+}
+
+/** Throws unless a later part has every column of the first. */
+export function sameColumns(columns: ParquetColumns, opened: OpenPart): void {
+  if (columns.names.some((n) => !opened.names.includes(n))) {
+    throw new InputError(`the same columns in every part file (${columns.names.join(', ')})`, opened.part, undefined, opened.names.join(', '));
+  }
+}
+
+/** Empty row columns for the roles, with their notes; item bytes kept per row (model/rowTexts.ts), 16 bytes each at a guess. */
+export function columnsOf({ names, roles }: ParquetColumns, capacity: number, shared?: SharedColumns): RowColumns {
+  const rows = new RowColumns(roles.segments.map((i) => names[i]!), capacity, shared, 16);
+  if (roles.rank >= 0) {
+    rows.notes.messages.push(roles.score < 0 ? `no score column: ranked by '${names[roles.rank]}' (score = -rank)`
+      : `ranked by score; the rank column '${names[roles.rank]}' is ignored`);
+  }
+  return rows;
+}
+
+/** A part's row groups, each a piece. */
+export function rowGroups(opened: OpenPart): ParquetPiece[] {
+  let start = 0;
+  return opened.metadata.row_groups.map((group) => {
+    const piece = { part: opened.part, start, end: start + Number(group.num_rows) };
+    start = piece.end;
+    return piece;
+  });
+}
+
+/** What a Parquet range task reads (threads/parquetRanges.ts): its pieces, in order, with the columns of the first part. */
+export interface ParquetTask extends ParquetColumns {
+  readonly pieces: readonly ParquetPiece[];
+}
+
+/** A task's rows read into `rows` (a parse thread's share), reporting the rows done. */
+export async function readParquetTask(task: ParquetTask, rows: RowColumns, onRows: (done: number) => void): Promise<void> {
+  const opened = new Map<string, OpenPart>();
+  let done = 0;
+  for (const piece of task.pieces) {
+    let part = opened.get(piece.part);
+    if (part === undefined) opened.set(piece.part, (part = await openPart(piece.part)));
+    await readPiece(part, piece, task, rows);
+    done += piece.end - piece.start;
+    onRows(done);
+  }
+}
+
+/** Reads one piece's rows into `rows`: only that piece's decoded values are held at once. */
+export async function readPiece(opened: OpenPart, piece: ParquetPiece, { names, roles }: ParquetColumns, rows: RowColumns): Promise<void> {
+  const wanted = [...new Set([roles.query, roles.item, roles.label, roles.score, roles.rank, ...roles.segments].filter((i) => i >= 0).map((i) => names[i]!))];
+  const values = new Map<string, unknown[]>();
+  try {
+    await parquetRead({
+      file: opened.file, metadata: opened.metadata, columns: wanted, rowStart: piece.start, rowEnd: piece.end, compressors, parsers: RAW_TEXT,
+      onChunk: (chunk) => collect(values, chunk.columnName, chunk.columnData, chunk.rowStart, piece.start, piece.end),
+    });
+  } catch (err) {
+    throw new InputError('a readable Parquet file', piece.part, undefined, (err as Error).message);
+  }
+  storeGroup(rows, roles, names, values, piece.end - piece.start, piece.part, piece.start);
+}
+
+export async function partFiles(folder: string): Promise<string[]> {
   const names = (await fsp.readdir(folder)).filter((n) => n.toLowerCase().endsWith('.parquet')).sort();
   if (names.length === 0) throw new InputError('a folder holding *.parquet part files', folder);
   return names.map((n) => join(folder, n));
 }
 
 /** Total size and latest modification time over all parts, so a change to any part is seen. */
-async function stampOf(parts: readonly string[]): Promise<FileStamp> {
+export async function stampOf(parts: readonly string[]): Promise<FileStamp> {
   let size = 0;
   let mtimeMs = 0;
   for (const part of parts) {
@@ -107,7 +177,7 @@ function collect(values: Map<string, unknown[]>, column: string, data: Values, r
   }
 }
 
-function storeGroup(rows: RowColumns, roles: ResolvedRoles, names: string[], values: Map<string, unknown[]>, count: number, file: string,
+function storeGroup(rows: RowColumns, roles: ResolvedRoles, names: readonly string[], values: Map<string, unknown[]>, count: number, file: string,
   firstRow: number): void {
   const get = (index: number): unknown[] => values.get(names[index]!) ?? [];
   const queries = get(roles.query);

@@ -1,5 +1,6 @@
 /**
- * Parses one newline-aligned byte range of a large CSV/TSV or JSON Lines file into its own columns and pools.
+ * Parses one newline-aligned byte range of a large CSV/TSV or JSON Lines file (or a share of a Parquet
+ * read's pieces, threads/parquetRanges.ts) into its own columns and pools.
  * A JSON Lines file may be cut at any newline: JSON strings hold no raw line break.
  * Runs inside a parse worker; the main thread merges ranges in file order (see parallel.ts).
  * Quoted fields are parsed as on one thread. A cut at a newline may fall inside a quoted field (a quoted
@@ -14,6 +15,7 @@ import type { RowSummary } from '../model/rowSummary';
 import { ROW_COLUMN_NAMES, rowArray, rowArrays, type RowArrays, type RowColumns, type SharedColumns } from './columns';
 import { DelimitedParser } from './delimited';
 import { JsonLinesParser } from './jsonLines';
+import { columnsOf, readParquetTask, type ParquetTask } from './parquet';
 import type { ColumnRoles } from './roles';
 import { LineSink, pumpRange, type ReadBuffers, type RecordSink } from './source';
 
@@ -26,6 +28,8 @@ export interface RangeTask {
   readonly names: string[];
   /** JSON Lines: the first line's keys and whether lines hold lists (delimiter and names are then unused). */
   readonly json?: { readonly keys: readonly string[]; readonly list: boolean };
+  /** Parquet: the pieces to read (start and end then count rows, for progress; nothing else is used). */
+  readonly parquet?: ParquetTask;
   readonly columns?: ColumnRoles;
   readonly chunkBytes: number;
   readonly shared?: SharedColumns;
@@ -60,15 +64,23 @@ export type RangeResult =
   | { readonly kind: 'error'; readonly expected: string; readonly file?: string; readonly line?: number; readonly found?: string };
 
 export async function parseRange(task: RangeTask, onBytes: (done: number) => void, reuse?: ReadBuffers): Promise<RangeResult> {
-  const parser = rangeParser(task);
+  let rows: RowColumns;
+  let lines = 0;
   try {
-    await pumpRange(task.path, task.start, task.end, parser.sink, onBytes, task.chunkBytes, reuse);
+    if (task.parquet !== undefined) {
+      rows = columnsOf(task.parquet, 1024, task.shared);
+      await readParquetTask(task.parquet, rows, onBytes);
+    } else {
+      const parser = rangeParser(task);
+      await pumpRange(task.path, task.start, task.end, parser.sink, onBytes, task.chunkBytes, reuse);
+      rows = parser.rows();
+      lines = parser.lines();
+    }
   } catch (err) {
     if (err instanceof UnclosedQuoteError) return { kind: 'quoted' };
     if (err instanceof InputError) return { kind: 'error', expected: err.expected, file: err.file, line: err.line, found: err.found };
     throw err;
   }
-  const rows = parser.rows();
   const n = rows.count;
   const itemKeys = rows.itemTexts!.groupedKeys(rows.query, rows.item);
   const pools = {
@@ -79,7 +91,7 @@ export async function parseRange(task: RangeTask, onBytes: (done: number) => voi
   };
   const columns = rowArrays((name) => (rows.inShared ? rowArray(name, 0) : rows[name].subarray(0, n) as never));
   const segmentIds = rows.inShared ? [] : rows.segmentIds.map((ids) => ids.subarray(0, n)) as Uint32Array[];
-  return { kind: 'rows', count: n, lines: parser.lines(), inShared: rows.inShared, ...columns, segmentIds, ...pools, itemKeys };
+  return { kind: 'rows', count: n, lines, inShared: rows.inShared, ...columns, segmentIds, ...pools, itemKeys };
 }
 
 /** The parser of a range's format: what the bytes go to, its rows, and the newlines it consumed. */

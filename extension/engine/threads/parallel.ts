@@ -9,14 +9,14 @@ import { promises as fsp } from 'node:fs';
 import { availableParallelism } from 'node:os';
 import { engineSettings } from '../config';
 import { CancelledError, InputError } from '../errors';
-import type { RankedDump } from '../model/dump';
+import type { DumpFormat, FileStamp, RankedDump } from '../model/dump';
 import { addSummaries } from '../model/rowSummary';
 import { ROW_COLUMN_NAMES, ROW_COLUMNS, sharedViews, type RowColumnName, type RowColumns, type SharedColumns } from '../readers/columns';
 import { parseHeaderLine } from '../readers/headerLine';
 import { emptyJsonLines, fileHead, jsonLinesHead } from '../readers/jsonLines';
 import type { ReadOptions } from '../readers/readOptions';
 import { parseClaimedRanges, type ClaimedRanges, type RangeResult, type RangeTask } from '../readers/rangeParse';
-import { checkUnchanged, statStamp, throwIfCancelled } from '../readers/source';
+import { changedSince, fileChangedError, statStamp, throwIfCancelled } from '../readers/source';
 import type { CompactTask } from './compactRanges';
 import { idleKeptThreads, leasePool, type PoolLease } from './keptPools';
 import { shrinkingEnds } from './shrinkingShares';
@@ -48,8 +48,8 @@ export async function readParallelDelimited(path: string, format: 'csv' | 'tsv',
   return inRanges(threads, options, async () => {
     const header = await readHeader(path, delimiter, options);
     if (header === undefined) return undefined;
-    return { path, format, firstByte: header.end, linesBefore: 1, bytesPerRow: header.bytesPerRow, rowsPerLine: true, headerRows: header.parser.columns!,
-      task: { delimiter, names: header.names }, empty: () => new InputError('at least one data row after the header', path, 2) };
+    return textPlan({ path, format, firstByte: header.end, linesBefore: 1, bytesPerRow: header.bytesPerRow, rowsPerLine: true, headerRows: header.parser.columns!,
+      task: { delimiter, names: header.names }, empty: () => new InputError('at least one data row after the header', path, 2) }, options);
   });
 }
 
@@ -62,30 +62,68 @@ export async function readParallelJsonLines(path: string, threads: number, optio
   return inRanges(threads, options, async () => {
     const head = jsonLinesHead(path, await fileHead(path), options.columns);
     if (head === undefined) return undefined;
-    return { path, format: 'jsonl', firstByte: 0, linesBefore: 0, bytesPerRow: head.bytesPerRow, rowsPerLine: !head.list, headerRows: head.rows,
-      task: { delimiter: 0, names: [], json: { keys: head.keys, list: head.list } }, empty: () => emptyJsonLines(path) };
+    return textPlan({ path, format: 'jsonl', firstByte: 0, linesBefore: 0, bytesPerRow: head.bytesPerRow, rowsPerLine: !head.list, headerRows: head.rows,
+      task: { delimiter: 0, names: [], json: { keys: head.keys, list: head.list } }, empty: () => emptyJsonLines(path) }, options);
   });
 }
 
-/** How a file is cut into ranges: where the rows start, what every range's task carries, and what the read starts from. */
-interface RangePlan {
+/** How a read is cut into ranges, and what it starts from. */
+export interface RangePlan {
+  /** The file or folder read. */
+  readonly path: string;
+  readonly format: DumpFormat;
+  /** Lines before the first range. */
+  readonly linesBefore: number;
+  /** The header's columns: segment names and notes. */
+  readonly headerRows: RowColumns;
+  /** The error of a read with no row. */
+  readonly empty: () => InputError;
+  /** The read's files as they are now. */
+  stamp(): Promise<FileStamp>;
+  /** True when the files changed since `stamp`. */
+  changed(stamp: FileStamp): Promise<boolean>;
+  /** About `parts` tasks with their shared slices (task k writes slice k), and the size the tasks' progress adds up to. */
+  cut(parts: number, stamp: FileStamp): Promise<{ tasks: RangeTask[]; slices: SharedColumns[]; size: number }>;
+}
+
+/** A text file's ranges: cut at newlines after `firstByte`, each range's rows guessed from its bytes. */
+interface TextLayout {
   readonly path: string;
   readonly format: 'csv' | 'tsv' | 'jsonl';
   /** The first range's first byte (after the header line of a CSV/TSV file). */
   readonly firstByte: number;
-  /** Lines before the first range. */
   readonly linesBefore: number;
   readonly bytesPerRow: number;
   /** True when a line holds one row (CSV/TSV records, JSON Lines of rows); false for lines of lists. */
   readonly rowsPerLine: boolean;
-  /** The header's columns: segment names and notes. */
   readonly headerRows: RowColumns;
   readonly task: Pick<RangeTask, 'delimiter' | 'names' | 'json'>;
-  /** The error of a file with no row. */
   readonly empty: () => InputError;
 }
 
-async function inRanges(threads: number, options: ReadOptions, plan: () => Promise<RangePlan | undefined>): Promise<RankedDump | undefined> {
+function textPlan(layout: TextLayout, options: ReadOptions): RangePlan {
+  const { path } = layout;
+  return {
+    ...layout,
+    stamp: () => statStamp(path),
+    changed: (stamp) => changedSince(path, stamp),
+    cut: async (parts, stamp) => {
+      const bounds = await splitPoints(path, layout.firstByte, stamp.size, parts);
+      // Lines of lists hold rows by the dozen: a newline count says nothing of their rows, so the head's figure serves every range.
+      const perRow = layout.rowsPerLine ? await rowSizes(path, bounds, layout.bytesPerRow) : bounds.slice(0, -1).map(() => layout.bytesPerRow);
+      const margin = layout.rowsPerLine ? SLICE_MARGIN : LIST_SLICE_MARGIN;
+      const slices = sharedSlices(bounds.slice(0, -1).map((start, k) => Math.ceil(((bounds[k + 1]! - start) / perRow[k]!) * margin) + 1024),
+        layout.headerRows.segmentNames.length, options.rowOffsets !== false);
+      const tasks: RangeTask[] = bounds.slice(0, -1).map((start, k) => ({
+        path, start, end: bounds[k + 1]!, ...layout.task, columns: options.columns, chunkBytes: engineSettings().tuning.plainChunkBytes,
+        shared: slices[k],
+      }));
+      return { tasks, slices, size: stamp.size };
+    },
+  };
+}
+
+export async function inRanges(threads: number, options: ReadOptions, plan: () => Promise<RangePlan | undefined>): Promise<RankedDump | undefined> {
   const lease = leasePool<ParseRequests>('parseWorker', Math.max(1, threads - 1));
   if (lease === undefined) return undefined;
   // Started now, the threads' start-up overlaps reading the header and choosing the ranges.
@@ -100,17 +138,9 @@ async function inRanges(threads: number, options: ReadOptions, plan: () => Promi
 
 async function readInRanges(lease: PoolLease<ParseRequests>, plan: RangePlan, threads: number, options: ReadOptions): Promise<RankedDump | undefined> {
   const { path } = plan;
-  const stamp = await statStamp(path);
-  const bounds = await splitPoints(path, plan.firstByte, stamp.size, threads * Math.max(1, engineSettings().tuning.parseRangesPerThread));
-  // Lines of lists hold rows by the dozen: a newline count says nothing of their rows, so the head's figure serves every range.
-  const perRow = plan.rowsPerLine ? await rowSizes(path, bounds, plan.bytesPerRow) : bounds.slice(0, -1).map(() => plan.bytesPerRow);
-  const slices = sharedSlices(bounds, perRow, plan.rowsPerLine ? SLICE_MARGIN : LIST_SLICE_MARGIN, plan.headerRows.segmentNames.length,
-    options.rowOffsets !== false);
-  const tasks: RangeTask[] = bounds.slice(0, -1).map((start, k) => ({
-    path, start, end: bounds[k + 1]!, ...plan.task, columns: options.columns, chunkBytes: engineSettings().tuning.plainChunkBytes,
-    shared: slices[k],
-  }));
-  const results = await parseRanges(lease, tasks, stamp.size, options);
+  const stamp = await plan.stamp();
+  const { tasks, slices, size } = await plan.cut(threads * Math.max(1, engineSettings().tuning.parseRangesPerThread), stamp);
+  const results = await parseRanges(lease, tasks, size, options);
   // A range ending inside quotes stopped the claims (later ranges may be missing): the file is read on one thread.
   if (results.some((r) => r.kind === 'quoted')) return undefined;
   const lineOffsets = [plan.linesBefore];
@@ -133,7 +163,7 @@ async function readInRanges(lease: PoolLease<ParseRequests>, plan: RangePlan, th
   if (parts.every((p) => p.inShared) && lease.pool.idle > 0) {
     await keyUngroupedRows(rows, (task) => lease.pool.request('groupRows', task, { signal: options.signal }));
   }
-  await checkUnchanged(path, stamp);
+  if (await plan.changed(stamp)) throw fileChangedError(path);
   rows.setGaps(gaps);
   options.onProgress?.(1);
   return rows.finish(path, plan.format, stamp);
@@ -162,13 +192,12 @@ function bytesPerLine(sample: Uint8Array): number {
 }
 
 /**
- * One slice of shared columns per range, sized from the bytes per row of a sample with a margin. Without
+ * One slice of shared columns per range, of the given rows (a text range's: a guess from its bytes, with a
+ * margin; the room a range leaves unused ends up above the compacted rows, written and kept). Without
  * `offsets` the offset buffer has no bytes, and the parse threads write no offsets (RowColumns.keepsOffsets):
  * on 10M rows that is 80 MB never written, and 0.08 s less for the whole run.
  */
-function sharedSlices(bounds: number[], bytesPerRow: number[], margin: number, segments: number, offsets: boolean): SharedColumns[] {
-  // The room a range leaves unused ends up above the compacted rows, written and kept: the margin is that memory.
-  const sizes = bounds.slice(0, -1).map((start, k) => Math.ceil(((bounds[k + 1]! - start) / bytesPerRow[k]!) * margin) + 1024);
+export function sharedSlices(sizes: readonly number[], segments: number, offsets: boolean): SharedColumns[] {
   const total = sizes.reduce((a, b) => a + b, 0);
   const buffers = {} as Record<RowColumnName, SharedArrayBuffer>;
   for (const name of ROW_COLUMN_NAMES) buffers[name] = new SharedArrayBuffer(name === 'offset' && !offsets ? 0 : total * ROW_COLUMNS[name].array.BYTES_PER_ELEMENT);
