@@ -37,8 +37,9 @@ Output:
   --reading R           auto (default) | stream | memory: stream scores a CSV/TSV file whose rows are
                         grouped by query block by block without keeping its rows (auto: from 1 GiB),
                         joining --judgments block by block and --queries once every query is
-                        known; a file that turns out not grouped, or quoted, is read into memory
-                        instead, as is one with --items, --query or --diagnostics
+                        known; a file that turns out not grouped, or with a quoted newline where
+                        it is cut into blocks, is read into memory instead, as is one with
+                        --items, --query or --diagnostics
 Where the numbers are computed:
   --engine E            local (default) | duckdb: DuckDB embedded computes the per-query table from a
                         CSV, TSV or Parquet file, or a folder of Parquet parts, in place (needs the npm

@@ -4,7 +4,7 @@
  * byte for byte. Blocks are made tiny so queries straddle block boundaries, and one query spans many.
  * Runs on this thread (no thread scripts under vitest); test/worker/stream-threads.test.ts runs the workers.
  */
-import { statSync } from 'node:fs';
+import { readFileSync, statSync } from 'node:fs';
 import { afterAll, describe, expect, it } from 'vitest';
 import { evaluateDump, readDump, streamOrRead } from '../../extension/engine/index';
 import type { MetricSummary } from '../../extension/engine/evaluate/types';
@@ -51,6 +51,7 @@ const SHAPES: [string, GroupedShape][] = [
   ['unjudged rows', { queries: 50, maxRows: 10, unjudgedShare: 0.2 }],
   ['segments, blank lines and CRLF', { queries: 60, maxRows: 10, segments: true, ragged: true }],
   ['CSV', { queries: 60, maxRows: 10, delimiter: ',', segments: true }],
+  ['quoted CSV (commas and doubled quotes inside)', { queries: 60, maxRows: 10, delimiter: ',', segments: true, quoted: true }],
   ['single-row queries', { queries: 200, maxRows: 1 }],
   ['query weights', { queries: 60, maxRows: 10, weights: true, noRelevantShare: 0.1, segments: true }],
 ];
@@ -117,9 +118,18 @@ describe('files the stream gives way on', () => {
     expect(r.kind === 'read' && r.tried).toBe(true);
   });
 
-  it('a quoted field, weights that disagree within a query and grades the conventions cannot score give way too', async () => {
-    const quoted = tmp.file('quoted.csv', 'query,item,grade,score\n"drill, cordless",a,1,0.5\n');
-    expect((await streamEvaluate(quoted, 'csv', METRICS, DEFAULT_CONVENTIONS)).kind).toBe('fallback');
+  it('a quoted newline where the file is cut gives way; away from the cuts it streams', async () => {
+    const file = tmp.file('quoted-newlines.csv', groupedDump(4, { queries: 60, maxRows: 10, delimiter: ',', quoted: true, quotedNewlines: true }));
+    expect(readFileSync(file, 'utf8')).toMatch(/"SKU-\d+\nboxed"/);
+    // Blocks of one byte cut at every newline, the quoted ones too.
+    expect(await streamEvaluate(file, 'csv', METRICS, DEFAULT_CONVENTIONS, { blockBytes: 1 })).toEqual({ kind: 'fallback',
+      reason: 'a quoted field holds a newline where the file was cut into blocks' });
+    // One block: no cut at all.
+    const { memory, streamed } = await both(file, DEFAULT_CONVENTIONS, METRICS, 1 << 20);
+    expect(plainEvaluation(streamed.evaluation)).toEqual(plainEvaluation(memory));
+  });
+
+  it('weights that disagree within a query and grades the conventions cannot score give way too', async () => {
     const weighted = tmp.file('weighted.tsv', 'query\titem\tgrade\tscore\tweight\npaint roller\ta\t1\t0.5\t2\npaint roller\tb\t0\t0.4\t3\n');
     expect(await streamEvaluate(weighted, 'tsv', METRICS, DEFAULT_CONVENTIONS)).toEqual({ kind: 'fallback',
       reason: 'the rows of a query disagree on its weight (reading in memory names the row)' });

@@ -36,7 +36,7 @@ export interface ReadOptions {
   /** Parse threads for big text files; default auto (1 for small files). */
   threads?: number;
   /**
-   * Parse quote-free CSV/TSV on worker threads even where one thread would do, leaving this thread
+   * Parse CSV/TSV and JSON Lines on worker threads even where one thread would do, leaving this thread
    * free meanwhile (to read a second file at the same time). Other inputs are read as usual.
    */
   offThread?: boolean;

@@ -9,7 +9,7 @@
  * once the whole file is known, and for a query's detail.
  */
 import { engineSettings } from '../config';
-import { InputError } from '../errors';
+import { InputError, UnclosedQuoteError } from '../errors';
 import { newSensitivityPassWith, scoredBlockSetup } from './setup';
 import { allocatePerQuery, emptyTally, RangeScorer, sensitivityColumns, type RangeTally } from '../evaluate/evaluate';
 import type { SensitivityColumns } from '../evaluate/sensitivity';
@@ -24,8 +24,7 @@ import { summariseRows, type RowSummary } from '../model/rowSummary';
 import { ROW_COLUMN_NAMES, ROW_COLUMNS, type RowColumnName, type SharedColumns } from '../readers/columns';
 import { DelimitedParser } from '../readers/delimited';
 import type { ColumnRoles } from '../readers/roles';
-import { pumpRange, type RecordSink } from '../readers/source';
-import { indexOfByte } from '../readers/byteSearch';
+import { pumpRange } from '../readers/source';
 import { joinTables } from '../tables/join';
 import { judgmentLookup, labelOptional, releaseJudgmentLookup, type SharedJudgments } from './sharedJudgments';
 import type { JoinCounts } from '../readers/judgmentMatch';
@@ -108,25 +107,13 @@ export type BlockResult =
     readonly judged?: JoinCounts;
   }
   | { readonly kind: 'empty'; readonly lines: number }
+  /** The block ends inside a quoted field: a cut fell on a quoted newline. */
   | { readonly kind: 'quoted' }
   /** A weight the in-memory join refuses (rows of a query that disagree, a negative weight): its error names the row. */
   | { readonly kind: 'weights'; readonly why: string }
   /** A query whose rows stop and start again inside the block: the file is not grouped by query. */
   | { readonly kind: 'ungrouped'; readonly query: string; readonly line: number }
   | { readonly kind: 'error'; readonly expected: string; readonly file?: string; readonly line?: number; readonly found?: string };
-
-class QuotedBlock extends Error {}
-
-/** A quoted field may hold a newline, which makes cutting the file at newlines unsafe. */
-class QuoteGuard implements RecordSink {
-  constructor(private readonly inner: RecordSink) {}
-
-  feed(buf: Buffer, start: number, end: number, base: number, final: boolean): number {
-    // Bounded: past `end` the buffer holds stale bytes of an earlier read.
-    if (indexOfByte(buf, 34, start, end) >= 0) throw new QuotedBlock();
-    return this.inner.feed(buf, start, end, base, final);
-  }
-}
 
 /**
  * Row columns reused from block to block on this thread: a block's rows are scored before the next is
@@ -183,9 +170,12 @@ export async function readBlock(task: BlockTask): Promise<BlockResult> {
   try {
     // Reads of a small range (a stitched query) need no buffers of the full chunk size.
     const chunkBytes = Math.min(engineSettings().tuning.plainChunkBytes, Math.max(4096, task.end - task.start));
-    await pumpRange(task.path, task.start, task.end, new QuoteGuard(parser), () => undefined, chunkBytes);
+    await pumpRange(task.path, task.start, task.end, parser, () => undefined, chunkBytes);
   } catch (err) {
-    if (err instanceof QuotedBlock) return { kind: 'quoted' };
+    // Quoted fields are parsed as on one thread. A block that ends inside quotes was cut on a quoted
+    // newline (the next block then began inside a field): the stream gives way. One that ends outside
+    // quotes ended on a record's end, so the blocks before it all began on a record's start.
+    if (err instanceof UnclosedQuoteError) return { kind: 'quoted' };
     if (err instanceof InputError) return { kind: 'error', expected: err.expected, file: err.file, line: err.line, found: err.found };
     throw err;
   }

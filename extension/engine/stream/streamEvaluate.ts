@@ -1,5 +1,5 @@
 /**
- * Evaluates a quote-free CSV/TSV dump whose rows are grouped by query without holding its rows: the
+ * Evaluates a CSV/TSV dump whose rows are grouped by query without holding its rows: the
  * file is cut at newlines into blocks, worker threads read and score each block (block.ts), and this
  * thread takes the results in file order, adds each query to the per-query table (streamColumns.ts)
  * and stitches the queries cut by a block boundary, which it reads again whole and scores at the end.
@@ -17,7 +17,8 @@
  * It gives up, and the caller reads the file in memory instead (the outcome says why), when:
  * - a query's rows stop and its id appears again later (the file is not grouped by query): merging
  *   or splitting it would change its metrics, so no streamed result is returned;
- * - a quote byte appears (a quoted field may hold a newline, so cutting at newlines is unsafe);
+ * - a block ends inside a quoted field (a cut fell on a quoted newline: the next block began inside the
+ *   field), or the header line holds a quote;
  * - the conventions cannot score the data (the in-memory path names the row at fault);
  * - there is no data row.
  */
@@ -183,7 +184,7 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
       const result = await inFlight.shift()!;
       issue();
       throwIfCancelled(options.signal);
-      if (result.kind === 'quoted') return { kind: 'fallback', reason: 'a field is quoted (a quoted newline would make cutting the file at newlines unsafe)' };
+      if (result.kind === 'quoted') return { kind: 'fallback', reason: 'a quoted field holds a newline where the file was cut into blocks' };
       if (result.kind === 'ungrouped') return ungrouped(result.query, result.line + state.lineOffset);
       if (result.kind === 'weights') return weightsRefused(result.why);
       if (result.kind === 'error') throw new InputError(result.expected, result.file, result.line === undefined ? undefined : result.line + state.lineOffset, result.found);
