@@ -18,6 +18,7 @@ import type { Conventions } from '../metrics/conventions';
 import type { MetricSpec } from '../metrics/registry';
 import type { RankedDump } from '../model/dump';
 import { BytePool } from '../model/bytePool';
+import { packNames, type PackedNames } from './packedNames';
 import { RowTexts } from '../model/rowTexts';
 import { groupByQuery } from '../model/groups';
 import { summariseRows, type RowSummary } from '../model/rowSummary';
@@ -72,7 +73,7 @@ export interface RunPiece {
 
 /** The scored runs: per-query columns indexed from 0 in file order. */
 export interface ScoredRuns {
-  readonly names: string[];
+  readonly names: PackedNames;
   readonly start: Float64Array;
   readonly end: Float64Array;
   /** First line of each query, counted from 1 at the block start. */
@@ -114,6 +115,8 @@ export type BlockResult =
   /** A query whose rows stop and start again inside the block: the file is not grouped by query. */
   | { readonly kind: 'ungrouped'; readonly query: string; readonly line: number }
   | { readonly kind: 'error'; readonly expected: string; readonly file?: string; readonly line?: number; readonly found?: string };
+
+const textEncoder = new TextEncoder();
 
 /**
  * Row columns reused from block to block on this thread: a block's rows are scored before the next is
@@ -239,20 +242,22 @@ function scoreBlock(task: BlockTask, dump: RankedDump, lines: number): BlockResu
   if (pass && recorded) pass.recordInto(recorded);
   const tally = emptyTally();
   if (to > from) new RangeScorer(setup, dump, perQuery, pass).score(from, to, tally);
-  const names: string[] = [];
+  const names: Uint8Array[] = [];
   const scoredStart = new Float64Array(Math.max(0, to - from));
   const scoredEnd = new Float64Array(scoredStart.length);
   const scoredLine = new Uint32Array(scoredStart.length);
   const scoredRows = new Uint32Array(scoredStart.length);
   let largestScored = 0;
+  // As piece(q) gives them, without the query's text: its bytes are handed over as they are.
+  const pool = dump.queries instanceof BytePool ? dump.queries : undefined;
   for (let q = from; q < to; q++) {
-    const p = piece(q);
-    names.push(p.query);
-    scoredStart[q - from] = p.start;
-    scoredEnd[q - from] = p.end;
-    scoredLine[q - from] = p.line;
-    scoredRows[q - from] = p.rows;
-    largestScored = Math.max(largestScored, p.rows);
+    names.push(pool !== undefined ? pool.bytesOf(q) : textEncoder.encode(dump.queries.get(q)));
+    const rows = start[q + 1]! - start[q]!;
+    scoredStart[q - from] = dump.offset[start[q]!]!;
+    scoredEnd[q - from] = q + 1 < runs ? dump.offset[start[q + 1]!]! : task.end;
+    scoredLine[q - from] = dump.line[start[q]!]!;
+    scoredRows[q - from] = rows;
+    largestScored = Math.max(largestScored, rows);
   }
   return {
     kind: 'rows',
@@ -264,7 +269,7 @@ function scoreBlock(task: BlockTask, dump: RankedDump, lines: number): BlockResu
     first: piece(0),
     last: piece(runs - 1),
     scored: {
-      names, start: scoredStart, end: scoredEnd, line: scoredLine, rows: scoredRows,
+      names: packNames(names), start: scoredStart, end: scoredEnd, line: scoredLine, rows: scoredRows,
       perQuery: slicePerQuery(perQuery, from, to),
       ...(weights ? { weight: weights.slice(from, to) } : {}),
       ...(task.segmentValues ? { segments: dump.segments.map((c) => names.map((_, i) => c.values.get(c.ofRow[start[from + i]!]!))) } : {}),

@@ -9,6 +9,8 @@ import type { PerQueryColumns } from '../evaluate/types';
 import { BytePool } from '../model/bytePool';
 import type { ScoredRuns } from './block';
 
+const encoder = new TextEncoder();
+
 /** Where each query's rows are: bytes [start, end) of the file, the first at line `line`. */
 export interface QueryLocations {
   readonly start: Float64Array;
@@ -68,15 +70,22 @@ export class StreamColumns {
 
   /** A new query's id; a query already seen is the file not being grouped. */
   add(query: string, line: number): number {
+    const bytes = encoder.encode(query);
+    const id = this.addBytes(bytes, 0, bytes.length, line);
+    // Until scored (a query cut by a block boundary is scored at the end), it counts in no partial mean.
+    for (const column of this.columns.values) column[id] = NaN;
+    return id;
+  }
+
+  /** add() of a query given as UTF-8 bytes[start, end), its values left to be written. */
+  private addBytes(bytes: Uint8Array, start: number, end: number, line: number): number {
     // One look-up: an id below the count before it is a query met before.
     const before = this.queries.size;
-    const id = this.queries.internString(query);
-    if (id < before) throw new QueryReappeared(query, line);
+    const id = this.queries.intern(bytes, start, end);
+    if (id < before) throw new QueryReappeared(this.queries.get(id), line);
     if (id >= this.capacity) this.grow(Math.max(id + 1, this.capacity * 2));
     this.count = id + 1;
     this.locations.line[id] = line;
-    // Until scored (a query cut by a block boundary is scored at the end), it counts in no partial mean.
-    for (const column of this.columns.values) column[id] = NaN;
     return id;
   }
 
@@ -88,8 +97,10 @@ export class StreamColumns {
   /** Adds each scored query of a block as a new query, in order; `lineOffset` turns block lines into file lines. */
   addScored(scored: ScoredRuns, lineOffset: number): void {
     const first = this.count;
-    for (let i = 0; i < scored.names.length; i++) this.add(scored.names[i]!, scored.line[i]! + lineOffset);
-    this.put(scored, 0, scored.names.length, first, lineOffset);
+    const { bytes, ends } = scored.names;
+    // put() writes every value of these queries next.
+    for (let i = 0; i < ends.length; i++) this.addBytes(bytes, i === 0 ? 0 : ends[i - 1]!, ends[i]!, scored.line[i]! + lineOffset);
+    this.put(scored, 0, ends.length, first, lineOffset);
   }
 
   /**

@@ -204,7 +204,7 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
         if (result.runs >= 2) {
           closeOpen();
           const firstId = table.size;
-          scoredBlocks.push({ index: k, firstId, count: result.scored.names.length, gmax: result.gmax });
+          scoredBlocks.push({ index: k, firstId, count: result.scored.names.ends.length, gmax: result.gmax });
           table.addScored(result.scored, state.lineOffset);
           const now = table.current();
           if (partialMeans && tableWeights) {
@@ -331,7 +331,7 @@ async function settleQueries(runner: BlockRunner, table: StreamColumns, edges: r
   for (const b of scoredBlocks) {
     if (!needsGmax || b.gmax === gmax || b.count === 0) continue;
     jobs.push(runner.run(taskFor(b.index, { gmax })).then((result) => {
-      if (result.kind !== 'rows' || result.scored.names.length !== b.count) throw new Error('a block read again gave other queries');
+      if (result.kind !== 'rows' || result.scored.names.ends.length !== b.count) throw new Error('a block read again gave other queries');
       table.put(result.scored, 0, b.count, b.firstId, undefined);
     }));
   }

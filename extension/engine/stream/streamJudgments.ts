@@ -15,6 +15,7 @@ import type { StringPool } from '../model/stringPool';
 import { describeJoin, joinJudgments, noSharedQueryError, sharesQuery, type JudgmentTable } from '../readers/judgments';
 import { BytePool } from '../model/bytePool';
 import type { ScoredRuns } from './block';
+import { packTexts } from './packedNames';
 import { shareJudgments, type SharedJudgments } from './sharedJudgments';
 import { JOIN_EXAMPLES, type JoinCounts } from '../readers/judgmentMatch';
 import { newSensitivityPassWith, scoredBlockSetup } from './setup';
@@ -118,7 +119,7 @@ export function scoreAbsentQueries(absent: AbsentQueries, metrics: readonly Metr
   new RangeScorer(setup, columns, perQuery, pass).score(0, n, tally);
   const nowhere = new Float64Array(n);
   return {
-    scored: { names: absent.names, start: nowhere, end: nowhere, line: new Uint32Array(n), rows: new Uint32Array(n), perQuery, ...(recorded ? { sensitivity: recorded } : {}) },
+    scored: { names: packTexts(absent.names), start: nowhere, end: nowhere, line: new Uint32Array(n), rows: new Uint32Array(n), perQuery, ...(recorded ? { sensitivity: recorded } : {}) },
     tally,
   };
 }
