@@ -1,6 +1,7 @@
 #!/usr/bin/env node
-// Benchmark peer: mean NDCG@10 of a CSV or TSV dump computed by DuckDB (the npm package
-// @duckdb/node-api, in memory, every core) in one SQL statement over read_csv of the file itself.
+// Benchmark peer: mean NDCG@10 of a CSV, TSV, JSON Lines or Parquet dump computed by DuckDB (the npm
+// package @duckdb/node-api, in memory, every core) in one SQL statement over the file itself.
+// With --copy FROM TO 'FORMAT x' it writes a TSV dump in another format instead (the bench's other formats).
 //
 // Written here from the definitions, not with gainline's SQL generator (engine/sql/), so that it is a
 // peer and not a copy: exponential gain 2^grade - 1 and discount 1/log2(position + 1) (Burges et al.
@@ -18,12 +19,15 @@ const K = 10;
 
 /** The statement; `file` is quoted as an SQL string literal. */
 export function ndcgSql(file) {
-  const path = `'${file.replaceAll("'", "''")}'`;
+  const path = literal(file);
   const delim = file.endsWith('.tsv') ? "'\t'" : "','";
+  const source = file.endsWith('.parquet') ? `read_parquet(${path})`
+    : file.endsWith('.jsonl') ? `read_json(${path}, format = 'newline_delimited')`
+      : `read_csv(${path}, header = true, delim = ${delim}, quote = '', all_varchar = true)`;
   return `
 WITH rows AS (
   SELECT query AS q, CAST(grade AS DOUBLE) AS g, CAST(score AS DOUBLE) AS s
-  FROM read_csv(${path}, header = true, delim = ${delim}, quote = '', all_varchar = true)
+  FROM ${source}
 ),
 discount_sum AS (
   SELECT k.range AS k, (SELECT coalesce(sum(1.0 / log2(p.range + 1.0)), 0.0) FROM range(1, ${K + 1}) p WHERE p.range <= k.range) AS d
@@ -48,6 +52,20 @@ per_query AS (
 SELECT count(*) AS queries, avg(dcg / ideal) AS mean FROM per_query WHERE ideal > 0`;
 }
 
+/** A file name as an SQL string literal. */
+function literal(file) {
+  return `'${file.replaceAll("'", "''")}'`;
+}
+
+/** Writes the TSV dump `from` to `to` in another format (`how`: the COPY options, such as FORMAT parquet). */
+async function copy(from, to, how) {
+  const db = await DuckDBInstance.create(':memory:');
+  const connection = await db.connect();
+  await connection.run(`COPY (SELECT * FROM read_csv(${literal(from)}, header = true, delim = '\t', quote = '')) TO ${literal(to)} (${how})`);
+  connection.closeSync();
+  db.closeSync();
+}
+
 async function main(file) {
   const started = performance.now();
   const db = await DuckDBInstance.create(':memory:');
@@ -61,7 +79,8 @@ async function main(file) {
 }
 
 if (import.meta.url === `file://${process.argv[1]}`) {
-  main(process.argv[2]).catch((e) => {
+  const [first, ...rest] = process.argv.slice(2);
+  (first === '--copy' ? copy(rest[0], rest[1], rest[2]) : main(first)).catch((e) => {
     console.error(e instanceof Error ? e.message : String(e));
     process.exitCode = 1;
   });

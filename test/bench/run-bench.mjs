@@ -1,11 +1,12 @@
 #!/usr/bin/env node
 // End-to-end benchmark of `gainline eval` on generated dumps (1M rows; 10M rows whose item ids repeat
 // across queries; 10M rows whose item ids are all distinct, as a TSV, grouped by query in 100k or 1M
-// queries or in random order), against peers run on the same
+// queries or in random order, and as JSON Lines and Parquet), against peers run on the same
 // files in the same run: DuckDB computing NDCG@10 in SQL, vectorised numpy, and pandas groupby +
 // scikit-learn per query (1M only). Each is timed best of N. Then runs every other
 // test/bench/bench-*.mjs script (not with --eval-only).
-// Usage: npm run bench [-- --only 1m|10m|10m-distinct|10m-distinct-1mq|10m-distinct-scattered] [-- --runs N] [-- --eval-only]
+// Usage: npm run bench [-- --only 1m|10m|10m-distinct|10m-distinct-1mq|10m-distinct-scattered|10m-distinct-jsonl|10m-distinct-parquet]
+//   [-- --runs N] [-- --eval-only]
 // GAINLINE_BENCH_DATA=DIR puts the generated dumps (about 2.6 GB) there instead of test/bench/data/.
 import { spawn, spawnSync } from 'node:child_process';
 import { existsSync, readdirSync, statSync, mkdirSync } from 'node:fs';
@@ -17,6 +18,10 @@ import { benchDir as here, cli, dataDir, root, TIME } from './benchTools.mjs';
 import { firstTouchCost, scanFloor } from './machineFloor.mjs';
 
 
+/** Dumps another size is made from. */
+const SOURCES = [
+  { name: '10m-distinct', file: 'dump-10m-distinct.tsv', rows: 10_000_000, queries: 100_000, distinct: true },
+];
 const { values: args } = parseArgs({ options: { only: { type: 'string' }, runs: { type: 'string' }, 'eval-only': { type: 'boolean' } } });
 const SIZES = [
   { name: '1m', file: 'dump-1m.csv', rows: 1_000_000, queries: 10_000, runs: 3, sklearn: true },
@@ -27,6 +32,12 @@ const SIZES = [
   // The same rows in a random order, a query's rows spread over the file (many inference jobs appending to one dump).
   { name: '10m-distinct-scattered', file: 'dump-10m-distinct-scattered.tsv', rows: 10_000_000, queries: 100_000, runs: 3, sklearn: false, distinct: true,
     scattered: true },
+  // The 10m-distinct rows as JSON Lines (one row per line) and as Parquet, both written by DuckDB from the TSV: each format's own reader.
+  // The numpy peer reads delimited text only; DuckDB reads either.
+  { name: '10m-distinct-jsonl', file: 'dump-10m-distinct.jsonl', from: 'dump-10m-distinct.tsv', copyAs: 'FORMAT json', rows: 10_000_000, queries: 100_000,
+    runs: 3, sklearn: false, distinct: true, textOnlyPeers: false },
+  { name: '10m-distinct-parquet', file: 'dump-10m-distinct.parquet', from: 'dump-10m-distinct.tsv', copyAs: 'FORMAT parquet', rows: 10_000_000, queries: 100_000,
+    runs: 3, sklearn: false, distinct: true, textOnlyPeers: false },
 ].filter((s) => !args.only || s.name === args.only);
 const PEERS = [
   // DuckDB and scikit-learn average tied scores as we do, so their means agree to rounding; the numpy peer
@@ -65,6 +76,15 @@ function timed(command, argv, { stdout = 'ignore' } = {}) {
 function ensureDump(size) {
   mkdirSync(dataDir, { recursive: true });
   const file = join(dataDir, size.file);
+  if (size.from !== undefined) {
+    if (!existsSync(file)) {
+      const source = ensureDump(SOURCES.find((s) => s.file === size.from));
+      console.log(`writing ${file} from ${source} with DuckDB (${size.copyAs})…`);
+      const r = spawnSync(process.execPath, [join(here, 'peer_duckdb_ndcg.mjs'), '--copy', source, file, size.copyAs], { stdio: 'inherit' });
+      if (r.status !== 0) throw new Error(`writing ${file} failed`);
+    }
+    return file;
+  }
   if (!existsSync(file) || statSync(file).size < size.rows * 30) {
     console.log(`generating ${file} (${size.rows.toLocaleString('en-US')} rows, ${size.queries.toLocaleString('en-US')} queries${size.distinct ? ', every item id distinct' : ''}${size.scattered ? ', rows in random order' : ''})…`);
     const r = spawnSync(process.execPath, [join(root, 'test/support/make-demo-data.mjs'), '--rows', String(size.rows), '--queries', String(size.queries), '--out', file,
@@ -111,7 +131,7 @@ for (const size of SIZES) {
   const table = size.distinct ? await bestOf(runs, () => timed(process.execPath, [cli, 'eval', file])) : undefined;
   const row = { size, ...ours, ourMean: checked.summary['ndcg@10'], ndcgOnly: check, table, peers: {} };
   for (const p of PEERS) {
-    if (!available[p.key] || (p.key === 'sklearn' && !size.sklearn)) continue;
+    if (!available[p.key] || (p.key === 'sklearn' && !size.sklearn) || (p.key !== 'duckdb' && size.textOnlyPeers === false)) continue;
     row.peers[p.key] = await bestOf(p.key === 'sklearn' ? 1 : runs, () => p.run(file));
   }
   results.push(row);
@@ -141,7 +161,8 @@ for (const r of results) {
         `ratio peer/ours: wall ${fmt(run.seconds / r.seconds, 1)}×, CPU ${fmt(run.cpu / r.cpu, 1)}×; ${agreement(run, r, p.tolerance)}`,
     );
   }
-  if (!r.size.sklearn) line.push('pandas+sklearn per query not run on this size (too slow; see the 1M row)');
+  if (r.size.textOnlyPeers === false) line.push('the Python peers read delimited text only: not run on this format');
+  else if (!r.size.sklearn) line.push('pandas+sklearn per query not run on this size (too slow; see the 1M row)');
   // Like for like: gainline asked for NDCG@10 alone (one run, so noisier than the best-of-N above).
   const like = Object.entries(r.peers).filter(([key]) => key !== 'sklearn')
     .map(([key, p]) => `${key}/ours wall ${fmt(p.seconds / r.ndcgOnly.seconds, 1)}×, CPU ${fmt(p.cpu / r.ndcgOnly.cpu, 1)}×`);
@@ -173,6 +194,11 @@ for (const r of results) {
     const vs = (p, label) => (p ? `; ${label}/ours wall ${fmt(p.seconds / r.seconds, 1)}×` : '');
     console.log(`  10M distinct ids with the rows in random order, the 10M-distinct targets on another shape: ${fmt(r.seconds)} s → ${verdict(r.seconds <= 3)}, ` +
       `${fmt(r.peakMB, 0)} MB → ${verdict(r.peakMB <= 1024)}${vs(duckdb, 'DuckDB')}${vs(numpy, 'numpy')}` +
+      `${r.table ? ` (the default table output: ${fmt(r.table.seconds)} s, ${fmt(r.table.peakMB, 0)} MB)` : ''}`);
+  }
+  if (r.size.from !== undefined) {
+    console.log(`  ${r.size.name}, the 10M-distinct targets in another format: ${fmt(r.seconds)} s → ${verdict(r.seconds <= 3)}, ` +
+      `${fmt(r.peakMB, 0)} MB → ${verdict(r.peakMB <= 1024)}${duckdb ? `; DuckDB/ours wall ${fmt(duckdb.seconds / r.seconds, 1)}×` : ''}` +
       `${r.table ? ` (the default table output: ${fmt(r.table.seconds)} s, ${fmt(r.table.peakMB, 0)} MB)` : ''}`);
   }
   if (r.size.name === '10m') console.log(`  10M rows, repeated ids ≤ 3 s: ${fmt(r.seconds)} s → ${verdict(r.seconds <= 3)} (CPU ${fmt(r.cpu)} s)`);
