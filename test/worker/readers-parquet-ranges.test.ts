@@ -58,13 +58,18 @@ function shared(dump: RankedDump | Error): boolean {
   return !(dump instanceof Error) && dump.score.buffer instanceof SharedArrayBuffer;
 }
 
+/** The reading shared among threads (its columns in shared memory) is the one thread's, `rows` rows. */
+function expectSameShared(one: RankedDump | Error, many: RankedDump | Error, rows: number): void {
+  expect(shared(many)).toBe(true);
+  expect(shared(one)).toBe(false);
+  expectSameReading(one as RankedDump, many as RankedDump);
+  expect((one as RankedDump).rowCount).toBe(rows);
+}
+
 describe('Parquet read on several threads', () => {
   it.each([[11, 997], [12, 250], [13, 20_000]])('seed %i, row groups of %i rows, reads as one thread reads it', async (seed, groupRows) => {
     const [one, many] = await readBoth(parquetFile(`groups-${seed}.parquet`, randomColumns(seed, 9_000), groupRows));
-    expect(shared(many)).toBe(true);
-    expect(shared(one)).toBe(false);
-    expectSameReading(one as RankedDump, many as RankedDump);
-    expect((one as RankedDump).rowCount).toBe(9_000);
+    expectSameShared(one, many, 9_000);
   });
 
   it('reads a folder of part files with row groups of different sizes as one thread does', async () => {
@@ -73,10 +78,7 @@ describe('Parquet read on several threads', () => {
     writeFileSync(join(dir, 'part-0.parquet'), new Uint8Array(parquetWriteBuffer({ columnData: randomColumns(21, 2_500), rowGroupSize: 700 })));
     writeFileSync(join(dir, 'part-1.parquet'), new Uint8Array(parquetWriteBuffer({ columnData: randomColumns(22, 4_000, 2_500), rowGroupSize: 4_000 })));
     writeFileSync(join(dir, 'part-2.parquet'), new Uint8Array(parquetWriteBuffer({ columnData: randomColumns(23, 1_200, 6_500), rowGroupSize: 300 })));
-    const [one, many] = await readBoth(dir);
-    expect(shared(many)).toBe(true);
-    expectSameReading(one as RankedDump, many as RankedDump);
-    expect((one as RankedDump).rowCount).toBe(7_700);
+    expectSameShared(...(await readBoth(dir)), 7_700);
   });
 
   it('reports an item that is not UTF-8 in a later part, and a part missing a column, as one thread does', async () => {

@@ -13,6 +13,7 @@
  */
 import { instantiateKernel, kernelModule, type WasmMemory } from '../wasmKernels';
 import { csvField } from './csvField';
+import { packNames } from '../model/packedNames';
 
 interface RecordTextExports {
   dataEnd(): number;
@@ -260,13 +261,7 @@ function namesOf(field: Extract<RecordField, { kind: 'name' }>, from: number, to
       return { bytes, ends };
     }
   }
-  const list = Array.from({ length: to - from }, (_, i) => field.escaped(from + i));
-  const ends = new Uint32Array(list.length);
-  let total = 0;
-  list.forEach((name, i) => (ends[i] = total += name.length));
-  const bytes = new Uint8Array(total);
-  list.forEach((name, i) => bytes.set(name, i === 0 ? 0 : ends[i - 1]!));
-  return { bytes, ends };
+  return packNames(Array.from({ length: to - from }, (_, i) => field.escaped(from + i)));
 }
 
 /** This thread's writer, made on first use, for the module it was made from. */

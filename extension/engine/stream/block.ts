@@ -18,7 +18,7 @@ import type { Conventions } from '../metrics/conventions';
 import type { MetricSpec } from '../metrics/registry';
 import type { RankedDump } from '../model/dump';
 import { BytePool } from '../model/bytePool';
-import { packNames, type PackedNames } from './packedNames';
+import { packNames, type PackedNames } from '../model/packedNames';
 import { RowTexts } from '../model/rowTexts';
 import { groupByQuery } from '../model/groups';
 import { summariseRows, type RowSummary } from '../model/rowSummary';

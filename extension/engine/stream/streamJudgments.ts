@@ -15,7 +15,7 @@ import type { StringPool } from '../model/stringPool';
 import { describeJoin, joinJudgments, noSharedQueryError, sharesQuery, type JudgmentTable } from '../readers/judgments';
 import { BytePool } from '../model/bytePool';
 import type { ScoredRuns } from './block';
-import { packTexts } from './packedNames';
+import { packTexts } from '../model/packedNames';
 import { shareJudgments, type SharedJudgments } from './sharedJudgments';
 import { JOIN_EXAMPLES, type JoinCounts } from '../readers/judgmentMatch';
 import { newSensitivityPassWith, scoredBlockSetup } from './setup';

@@ -1,10 +1,8 @@
 /**
- * Query names handed from a stream thread to the per-query table (streamColumns.ts) as bytes.
- */
-/**
- * Query names as UTF-8 bytes one after another: name i is bytes[ends[i - 1] (0 for i = 0), ends[i]). A block
- * hands its names over so: as strings, the clone between threads and the encoding again for the table's
- * pool cost this thread about 2 µs a query (1M queries of ten rows).
+ * Names (or any texts) as UTF-8 bytes one after another: name i is bytes[ends[i - 1] (0 for i = 0), ends[i]).
+ * A stream block hands its query names to the per-query table so (stream/streamColumns.ts): as strings, the
+ * clone between threads and the encoding again for the table's pool cost that thread about 2 µs a query
+ * (1M queries of ten rows). The record writer's escaped names take the same form (report/recordTextKernel.ts).
  */
 export interface PackedNames {
   readonly bytes: Uint8Array;
