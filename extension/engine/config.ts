@@ -22,6 +22,8 @@ export interface EngineTuning {
   readonly recordKernel: boolean;
   /** Tests switch the JSON Lines byte loop off (readers/jsonLinesFast.ts) to get JSON.parse's reading to compare with. */
   readonly jsonLinesFastRows: boolean;
+  /** Parquet's flat columns read page by page into their rows (readers/parquetPages.ts); off: through the decoder's row reader. */
+  readonly parquetPages: boolean;
   /** Tests only: this thread claims score chunks only after every worker has claimed one, so workers surely take part. */
   readonly workersFirst: boolean;
 }
@@ -51,6 +53,7 @@ export const DEFAULT_TUNING: EngineTuning = {
   kernelPieceBytes: 1 << 20,
   recordKernel: true,
   jsonLinesFastRows: true,
+  parquetPages: true,
   workersFirst: false,
 };
 
@@ -100,9 +103,13 @@ export interface EngineActivity {
   chunksRenderedElsewhere: number;
   /** Queries a parse worker keyed from the hashes alone, for a read not grouped by query (threads/keyUngrouped.ts), ever. */
   queriesKeyedElsewhere: number;
+  /** Parquet pieces read page by page in this thread (readers/parquetPages.ts), ever. */
+  parquetPagePieces: number;
 }
 
-const activity: EngineActivity = { liveThreads: 0, kernelRows: 0, itemIdsMade: 0, chunksRenderedElsewhere: 0, queriesKeyedElsewhere: 0 };
+const activity: EngineActivity = {
+  liveThreads: 0, kernelRows: 0, itemIdsMade: 0, chunksRenderedElsewhere: 0, queriesKeyedElsewhere: 0, parquetPagePieces: 0,
+};
 
 /** The live counters (the engine's threads and kernel add to them). */
 export function engineActivity(): EngineActivity {

@@ -9,10 +9,12 @@ import { join } from 'node:path';
 import { isUtf8 } from 'node:buffer';
 import { asyncBufferFromFile, parquetMetadataAsync, parquetRead, parquetSchema, type ParquetParsers } from 'hyparquet';
 import { compressors } from 'hyparquet-compressors';
+import { engineActivity, engineSettings } from '../config';
 import { InputError } from '../errors';
 import type { FileStamp, RankedDump } from '../model/dump';
 import type { BytePool } from '../model/bytePool';
 import { RowColumns, type SharedColumns } from './columns';
+import { readFlatColumns } from './parquetPages';
 import type { ReadOptions } from './readOptions';
 import { describeNonNumberText, parseNumberText } from './numbers';
 import { everyColumn, resolveRoles, type ResolvedRoles } from './roles';
@@ -135,6 +137,14 @@ export async function readParquetTask(task: ParquetTask, rows: RowColumns, onRow
 /** Reads one piece's rows into `rows`: only that piece's decoded values are held at once. */
 export async function readPiece(opened: OpenPart, piece: ParquetPiece, { names, roles }: ParquetColumns, rows: RowColumns): Promise<void> {
   const wanted = [...new Set([roles.query, roles.item, roles.label, roles.score, roles.rank, ...roles.segments].filter((i) => i >= 0).map((i) => names[i]!))];
+  // Page by page when every column is flat; a piece that fails there is read again the decoder's way, whose error it reports.
+  const flat = engineSettings().tuning.parquetPages
+    ? await readFlatColumns(opened.file, opened.metadata, wanted, piece, { compressors, parsers: RAW_TEXT }).catch(() => undefined) : undefined;
+  if (flat !== undefined) {
+    engineActivity().parquetPagePieces++;
+    storeGroup(rows, roles, names, flat, piece.end - piece.start, piece.part, piece.start);
+    return;
+  }
   const values = new Map<string, unknown[]>();
   try {
     await parquetRead({
