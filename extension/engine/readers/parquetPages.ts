@@ -58,9 +58,12 @@ export async function readFlatColumns(
   return values;
 }
 
-/** Rows [from, to) of a row group from its column chunk: a value, or null where the row has none. */
+/**
+ * Rows [from, to) of a row group from its column chunk: a value, null where the row has none, and undefined
+ * past the chunk's last page (a short chunk), as the decoder's reader leaves them.
+ */
 function readChunk(view: DataView, decoder: ColumnDecoder, from: number, to: number): unknown[] {
-  const out = new Array<unknown>(to - from).fill(null);
+  const out = new Array<unknown>(to - from).fill(undefined);
   const reader = { view, offset: 0 };
   const maxDefinition = getMaxDefinitionLevel(decoder.schemaPath);
   let dictionary: DecodedArray | undefined;
@@ -96,11 +99,12 @@ function readChunk(view: DataView, decoder: ColumnDecoder, from: number, to: num
       const levels = page.definitionLevels ?? [];
       let next = 0;
       for (let i = 0; i < rows; i++) {
-        const has = levels.length === 0 || levels[i] === maxDefinition;
         const at = row + i - from;
-        if (has) {
+        if (levels.length === 0 || levels[i] === maxDefinition) {
           if (at >= 0 && at < out.length) out[at] = values[next];
           next++;
+        } else if (at >= 0 && at < out.length) {
+          out[at] = null;
         }
       }
     }
