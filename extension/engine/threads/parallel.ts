@@ -1,6 +1,6 @@
 /**
- * Reads a large CSV/TSV file, or JSON Lines of one row per line, on several threads: the file is cut at newlines into a few byte ranges per
- * thread, this thread and the workers claim ranges in turn and parse each into its own columns and
+ * Reads a large CSV/TSV or JSON Lines file on several threads (Parquet's pieces go the same way:
+ * parquetRanges.ts): the file is cut at newlines into a few byte ranges per thread, this thread and the workers claim ranges in turn and parse each into its own columns and
  * pools, and the ranges are put together in file order (mergeRanges.ts). A cut that fell on a newline
  * inside a quoted field shows as a range ending inside quotes (rangeParse.ts); the caller then falls
  * back to one thread.
@@ -46,9 +46,10 @@ export async function shouldParseInParallel(path: string, threads: number | unde
 export async function readParallelDelimited(path: string, format: 'csv' | 'tsv', delimiter: number, threads: number,
   options: ReadOptions): Promise<RankedDump | undefined> {
   return inRanges(threads, options, async () => {
+    const stamp = await statStamp(path);
     const header = await readHeader(path, delimiter, options);
     if (header === undefined) return undefined;
-    return textPlan({ path, format, firstByte: header.end, linesBefore: 1, bytesPerRow: header.bytesPerRow, rowsPerLine: true, headerRows: header.parser.columns!,
+    return textPlan(stamp, { path, format, firstByte: header.end, linesBefore: 1, bytesPerRow: header.bytesPerRow, rowsPerLine: true, headerRows: header.parser.columns!,
       task: { delimiter, names: header.names }, empty: () => new InputError('at least one data row after the header', path, 2) }, options);
   });
 }
@@ -60,9 +61,10 @@ export async function readParallelDelimited(path: string, format: 'csv' | 'tsv',
  */
 export async function readParallelJsonLines(path: string, threads: number, options: ReadOptions): Promise<RankedDump | undefined> {
   return inRanges(threads, options, async () => {
+    const stamp = await statStamp(path);
     const head = jsonLinesHead(path, await fileHead(path), options.columns);
     if (head === undefined) return undefined;
-    return textPlan({ path, format: 'jsonl', firstByte: 0, linesBefore: 0, bytesPerRow: head.bytesPerRow, rowsPerLine: !head.list, headerRows: head.rows,
+    return textPlan(stamp, { path, format: 'jsonl', firstByte: 0, linesBefore: 0, bytesPerRow: head.bytesPerRow, rowsPerLine: !head.list, headerRows: head.rows,
       task: { delimiter: 0, names: [], json: { keys: head.keys, list: head.list } }, empty: () => emptyJsonLines(path) }, options);
   });
 }
@@ -78,8 +80,8 @@ export interface RangePlan {
   readonly headerRows: RowColumns;
   /** The error of a read with no row. */
   readonly empty: () => InputError;
-  /** The read's files as they are now. */
-  stamp(): Promise<FileStamp>;
+  /** The read's files as they were before anything of them was read. */
+  readonly stamp: FileStamp;
   /** True when the files changed since `stamp`. */
   changed(stamp: FileStamp): Promise<boolean>;
   /** About `parts` tasks with their shared slices (task k writes slice k), and the size the tasks' progress adds up to. */
@@ -101,11 +103,11 @@ interface TextLayout {
   readonly empty: () => InputError;
 }
 
-function textPlan(layout: TextLayout, options: ReadOptions): RangePlan {
+function textPlan(stamp: FileStamp, layout: TextLayout, options: ReadOptions): RangePlan {
   const { path } = layout;
   return {
     ...layout,
-    stamp: () => statStamp(path),
+    stamp,
     changed: (stamp) => changedSince(path, stamp),
     cut: async (parts, stamp) => {
       const bounds = await splitPoints(path, layout.firstByte, stamp.size, parts);
@@ -137,8 +139,7 @@ export async function inRanges(threads: number, options: ReadOptions, plan: () =
 }
 
 async function readInRanges(lease: PoolLease<ParseRequests>, plan: RangePlan, threads: number, options: ReadOptions): Promise<RankedDump | undefined> {
-  const { path } = plan;
-  const stamp = await plan.stamp();
+  const { path, stamp } = plan;
   const { tasks, slices, size } = await plan.cut(threads * Math.max(1, engineSettings().tuning.parseRangesPerThread), stamp);
   const results = await parseRanges(lease, tasks, size, options);
   // A range ending inside quotes stopped the claims (later ranges may be missing): the file is read on one thread.

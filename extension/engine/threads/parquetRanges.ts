@@ -35,20 +35,22 @@ export function parquetThreads(rows: number, threads: number | undefined): numbe
  * problem as it always does) when a footer or the columns are refused, or the rows are too few to share.
  */
 export async function readParallelParquet(path: string, directory: boolean, options: ReadOptions): Promise<RankedDump | undefined> {
-  const layout = await parquetLayout(path, directory, options).catch(() => undefined);
-  if (layout === undefined) return undefined;
+  const parts = await (directory ? partFiles(path) : Promise.resolve([path])).catch(() => undefined);
+  const stamp = parts && await stampOf(parts).catch(() => undefined);
+  const layout = parts && stamp && await parquetLayout(parts, options).catch(() => undefined);
+  if (parts === undefined || stamp === undefined || layout === undefined) return undefined;
   const threads = parquetThreads(layout.rows, options.threads);
   if (threads <= 1) return undefined;
   return inRanges(threads, options, async () => ({
     path, format: 'parquet', linesBefore: 0, headerRows: layout.headerRows,
     empty: () => new InputError('at least one row in the Parquet data', path),
-    stamp: () => stampOf(layout.parts),
-    changed: async (stamp) => {
-      const now = await stampOf(layout.parts).catch(() => undefined);
-      return now === undefined || now.size !== stamp.size || now.mtimeMs !== stamp.mtimeMs;
+    stamp,
+    changed: async (before) => {
+      const now = await stampOf(parts).catch(() => undefined);
+      return now === undefined || now.size !== before.size || now.mtimeMs !== before.mtimeMs;
     },
-    cut: async (parts) => {
-      const tasks = cutPieces(layout.pieces, Math.ceil(layout.rows / parts));
+    cut: async (count) => {
+      const tasks = cutPieces(layout.pieces, Math.ceil(layout.rows / count));
       const sizes = tasks.map((pieces) => pieces.reduce((n, p) => n + p.end - p.start, 0));
       const slices = sharedSlices(sizes, layout.headerRows.segmentNames.length, options.rowOffsets !== false);
       let first = 0;
@@ -63,7 +65,6 @@ export async function readParallelParquet(path: string, directory: boolean, opti
 }
 
 interface ParquetLayout {
-  readonly parts: readonly string[];
   readonly columns: ParquetColumns;
   readonly headerRows: RowColumns;
   /** Every row group of every part, in order. */
@@ -71,8 +72,7 @@ interface ParquetLayout {
   readonly rows: number;
 }
 
-async function parquetLayout(path: string, directory: boolean, options: ReadOptions): Promise<ParquetLayout> {
-  const parts = directory ? await partFiles(path) : [path];
+async function parquetLayout(parts: readonly string[], options: ReadOptions): Promise<ParquetLayout> {
   let columns: ParquetColumns | undefined;
   const pieces: ParquetPiece[] = [];
   for (const part of parts) {
@@ -82,7 +82,7 @@ async function parquetLayout(path: string, directory: boolean, options: ReadOpti
     pieces.push(...rowGroups(opened));
   }
   const rows = pieces.reduce((n, p) => n + p.end - p.start, 0);
-  return { parts, columns: columns!, headerRows: columnsOf(columns!, 16), pieces, rows };
+  return { columns: columns!, headerRows: columnsOf(columns!, 16), pieces, rows };
 }
 
 /**
