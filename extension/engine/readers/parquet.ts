@@ -1,7 +1,7 @@
 /**
  * Parquet: one file, or a folder of part files (`*.parquet`, read in name order). Roles are found
- * from column names as for CSV. Read one piece (a row group, or part of one) at a time so only that
- * piece's decoded values are held at once; a large read's pieces are shared among threads
+ * from column names as for CSV. Read one piece (a row group) at a time so only that piece's decoded
+ * values are held at once; a large read's pieces are shared among threads
  * (threads/parquetRanges.ts). Parquet rows have no line or byte offset: `line` is 0 and `offset` is -1.
  */
 import { promises as fsp } from 'node:fs';

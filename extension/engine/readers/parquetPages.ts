@@ -16,7 +16,7 @@ import { parquetSchema, type Compressors, type DecodedArray, type FileMetaData, 
 /** What the page functions read a column with (the decoder's ColumnDecoder). */
 type ColumnDecoder = Parameters<typeof readDataPageV2>[2];
 
-/** The values of rows [start, end) of one row group, per column name; undefined when a column is not flat. */
+/** The values of one row group's rows, per column name; undefined when a column is not flat or the piece not a whole group. */
 export async function readFlatColumns(
   file: { slice(start: number, end?: number): Promise<ArrayBuffer> | ArrayBuffer },
   metadata: FileMetaData,
@@ -31,7 +31,7 @@ export async function readFlatColumns(
     groupStart = end;
     return false;
   });
-  if (group === undefined || piece.end > groupStart + Number(group.num_rows)) return undefined;
+  if (group === undefined || piece.start !== groupStart || piece.end !== groupStart + Number(group.num_rows)) return undefined;
   const tree = parquetSchema(metadata);
   const decoders: { name: string; decoder: ColumnDecoder; start: number; end: number }[] = [];
   for (const name of columns) {
@@ -53,62 +53,48 @@ export async function readFlatColumns(
   const values = new Map<string, unknown[]>();
   for (const { name, decoder, start, end } of decoders) {
     const bytes = await file.slice(start, end);
-    values.set(name, readChunk(new DataView(bytes), decoder, piece.start - groupStart, piece.end - groupStart));
+    values.set(name, readChunk(new DataView(bytes), decoder, piece.end - piece.start));
   }
   return values;
 }
 
 /**
- * Rows [from, to) of a row group from its column chunk: a value, null where the row has none, and undefined
+ * The `rows` rows of a row group from its column chunk: a value, null where the row has none, and undefined
  * past the chunk's last page (a short chunk), as the decoder's reader leaves them.
  */
-function readChunk(view: DataView, decoder: ColumnDecoder, from: number, to: number): unknown[] {
-  const out = new Array<unknown>(to - from).fill(undefined);
+function readChunk(view: DataView, decoder: ColumnDecoder, rows: number): unknown[] {
+  const out = new Array<unknown>(rows).fill(undefined);
   const reader = { view, offset: 0 };
   const maxDefinition = getMaxDefinitionLevel(decoder.schemaPath);
   let dictionary: DecodedArray | undefined;
   let row = 0;
-  while (row < to && reader.offset < view.byteLength - 1) {
+  while (row < rows && reader.offset < view.byteLength - 1) {
     const header = parquetHeader(reader);
     const compressed = new Uint8Array(view.buffer, view.byteOffset + reader.offset, header.compressed_page_size);
     reader.offset += header.compressed_page_size;
+    let page: ReturnType<typeof readDataPage>;
+    let encoding: string;
     if (header.type === 'DICTIONARY_PAGE') {
-      const page = decompressPage(compressed, Number(header.uncompressed_page_size), decoder.codec, decoder.compressors);
-      const pageReader = { view: new DataView(page.buffer, page.byteOffset, page.byteLength), offset: 0 };
+      const bytes = decompressPage(compressed, Number(header.uncompressed_page_size), decoder.codec, decoder.compressors);
+      const pageReader = { view: new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength), offset: 0 };
       dictionary = convert(readPlain(pageReader, decoder.type, header.dictionary_page_header!.num_values, decoder.element.type_length), decoder);
       continue;
-    }
-    let rows: number;
-    let encoding: string;
-    let page: ReturnType<typeof readDataPage> | undefined;
-    if (header.type === 'DATA_PAGE') {
-      const daph = header.data_page_header!;
-      rows = daph.num_values;
-      encoding = daph.encoding;
-      if (row + rows > from) page = readDataPage(decompressPage(compressed, Number(header.uncompressed_page_size), decoder.codec, decoder.compressors), daph, decoder);
+    } else if (header.type === 'DATA_PAGE') {
+      encoding = header.data_page_header!.encoding;
+      page = readDataPage(decompressPage(compressed, Number(header.uncompressed_page_size), decoder.codec, decoder.compressors), header.data_page_header!, decoder);
     } else if (header.type === 'DATA_PAGE_V2') {
-      const daph2 = header.data_page_header_v2!;
-      rows = daph2.num_rows;
-      encoding = daph2.encoding;
-      if (row + rows > from) page = readDataPageV2(compressed, header, decoder);
+      encoding = header.data_page_header_v2!.encoding;
+      page = readDataPageV2(compressed, header, decoder);
     } else {
       continue;
     }
-    if (page !== undefined) {
-      const values = convertWithDictionary(page.dataPage, dictionary, encoding as never, decoder);
-      const levels = page.definitionLevels ?? [];
-      let next = 0;
-      for (let i = 0; i < rows; i++) {
-        const at = row + i - from;
-        if (levels.length === 0 || levels[i] === maxDefinition) {
-          if (at >= 0 && at < out.length) out[at] = values[next];
-          next++;
-        } else if (at >= 0 && at < out.length) {
-          out[at] = null;
-        }
-      }
-    }
-    row += rows;
+    // A flat column's page holds one value or null per row.
+    const values = convertWithDictionary(page.dataPage, dictionary, encoding as never, decoder);
+    const levels = page.definitionLevels ?? [];
+    const count = header.type === 'DATA_PAGE' ? header.data_page_header!.num_values : header.data_page_header_v2!.num_rows;
+    let next = 0;
+    for (let i = 0; i < count && row + i < rows; i++) out[row + i] = levels.length === 0 || levels[i] === maxDefinition ? values[next++] : null;
+    row += count;
   }
   return out;
 }
