@@ -24,6 +24,8 @@ export interface EngineTuning {
   readonly jsonLinesFastRows: boolean;
   /** Parquet's flat columns read page by page into their rows (readers/parquetPages.ts); off: through the decoder's row reader. */
   readonly parquetPages: boolean;
+  /** Rows of a Parquet row group stored at once by the page loop (tests make it small, to cross pages). */
+  readonly parquetSliceRows: number;
   /** Tests only: this thread claims score chunks only after every worker has claimed one, so workers surely take part. */
   readonly workersFirst: boolean;
 }
@@ -54,6 +56,7 @@ export const DEFAULT_TUNING: EngineTuning = {
   recordKernel: true,
   jsonLinesFastRows: true,
   parquetPages: true,
+  parquetSliceRows: 65_536,
   workersFirst: false,
 };
 

@@ -14,7 +14,7 @@ import { InputError } from '../errors';
 import type { FileStamp, RankedDump } from '../model/dump';
 import type { BytePool } from '../model/bytePool';
 import { RowColumns, type SharedColumns } from './columns';
-import { readFlatColumns } from './parquetPages';
+import { openFlatColumns } from './parquetPages';
 import type { ReadOptions } from './readOptions';
 import { describeNonNumberText, parseNumberText } from './numbers';
 import { everyColumn, resolveRoles, type ResolvedRoles } from './roles';
@@ -137,18 +137,38 @@ export async function readParquetTask(task: ParquetTask, rows: RowColumns, onRow
 /** Reads one piece's rows into `rows`: only that piece's decoded values are held at once. */
 export async function readPiece(opened: OpenPart, piece: ParquetPiece, { names, roles }: ParquetColumns, rows: RowColumns): Promise<void> {
   const wanted = [...new Set([roles.query, roles.item, roles.label, roles.score, roles.rank, ...roles.segments].filter((i) => i >= 0).map((i) => names[i]!))];
-  // Page by page when every column is flat; a piece that fails there is read again the decoder's way, whose error it reports.
+  // Page by page when every column is flat, a slice of rows at a time. Rows a slice fails on (and after) are
+  // read again the decoder's way, which reports the error.
   const flat = engineSettings().tuning.parquetPages
-    ? await readFlatColumns(opened.file, opened.metadata, wanted, piece, { compressors, parsers: RAW_TEXT }).catch(() => undefined) : undefined;
+    ? await openFlatColumns(opened.file, opened.metadata, wanted, piece, { compressors, parsers: RAW_TEXT }).catch(() => undefined) : undefined;
+  let from = piece.start;
   if (flat !== undefined) {
-    engineActivity().parquetPagePieces++;
-    storeGroup(rows, roles, names, flat, piece.end - piece.start, piece.part, piece.start);
-    return;
+    const slice = Math.max(1, engineSettings().tuning.parquetSliceRows);
+    for (; from < piece.end; from += slice) {
+      const count = Math.min(slice, piece.end - from);
+      let values;
+      try {
+        values = flat.next(count);
+      } catch {
+        break;
+      }
+      storeGroup(rows, roles, names, values, count, piece.part, from);
+    }
+    if (from >= piece.end) {
+      engineActivity().parquetPagePieces++;
+      return;
+    }
   }
+  await readByDecoder(opened, { part: piece.part, start: from, end: piece.end }, { names, roles }, wanted, rows);
+}
+
+/** Rows of a piece read by the decoder's row reader (its arrays of values, then the rows). */
+async function readByDecoder(opened: OpenPart, piece: ParquetPiece, { names, roles }: ParquetColumns, wanted: readonly string[],
+  rows: RowColumns): Promise<void> {
   const values = new Map<string, unknown[]>();
   try {
     await parquetRead({
-      file: opened.file, metadata: opened.metadata, columns: wanted, rowStart: piece.start, rowEnd: piece.end, compressors, parsers: RAW_TEXT,
+      file: opened.file, metadata: opened.metadata, columns: [...wanted], rowStart: piece.start, rowEnd: piece.end, compressors, parsers: RAW_TEXT,
       onChunk: (chunk) => collect(values, chunk.columnName, chunk.columnData, chunk.rowStart, piece.start, piece.end),
     });
   } catch (err) {
