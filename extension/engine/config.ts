@@ -24,6 +24,11 @@ export interface EngineTuning {
   readonly jsonLinesFastRows: boolean;
   /** Parquet's flat columns read page by page into their rows (readers/parquetPages.ts); off: through the decoder's row reader. */
   readonly parquetPages: boolean;
+  /**
+   * The page loop decodes id, grade and score columns of the common types and encodings itself into typed
+   * arrays (readers/parquetTypedPages.ts); off: every column through the decoder's page functions.
+   */
+  readonly parquetTypedPages: boolean;
   /** Rows of a Parquet row group stored at once by the page loop (tests make it small, to cross pages). */
   readonly parquetSliceRows: number;
   /** Tests only: this thread claims score chunks only after every worker has claimed one, so workers surely take part. */
@@ -56,6 +61,7 @@ export const DEFAULT_TUNING: EngineTuning = {
   recordKernel: true,
   jsonLinesFastRows: true,
   parquetPages: true,
+  parquetTypedPages: true,
   parquetSliceRows: 65_536,
   workersFirst: false,
 };
@@ -108,10 +114,12 @@ export interface EngineActivity {
   queriesKeyedElsewhere: number;
   /** Parquet pieces read page by page in this thread (readers/parquetPages.ts), ever. */
   parquetPagePieces: number;
+  /** Parquet data pages decoded into typed arrays in this thread (readers/parquetTypedPages.ts), ever. */
+  parquetTypedPages: number;
 }
 
 const activity: EngineActivity = {
-  liveThreads: 0, kernelRows: 0, itemIdsMade: 0, chunksRenderedElsewhere: 0, queriesKeyedElsewhere: 0, parquetPagePieces: 0,
+  liveThreads: 0, kernelRows: 0, itemIdsMade: 0, chunksRenderedElsewhere: 0, queriesKeyedElsewhere: 0, parquetPagePieces: 0, parquetTypedPages: 0,
 };
 
 /** The live counters (the engine's threads and kernel add to them). */

@@ -6,20 +6,17 @@
  */
 import { promises as fsp } from 'node:fs';
 import { join } from 'node:path';
-import { isUtf8 } from 'node:buffer';
-import { asyncBufferFromFile, parquetMetadataAsync, parquetRead, parquetSchema, type ParquetParsers } from 'hyparquet';
+import { asyncBufferFromFile, parquetMetadataAsync, parquetRead, parquetSchema } from 'hyparquet';
 import { compressors } from 'hyparquet-compressors';
 import { engineActivity, engineSettings } from '../config';
 import { InputError } from '../errors';
 import type { FileStamp, RankedDump } from '../model/dump';
-import type { BytePool } from '../model/bytePool';
 import { RowColumns, type SharedColumns } from './columns';
 import { openFlatColumns } from './parquetPages';
+import { RAW_TEXT, storeGroup } from './parquetStore';
 import type { ReadOptions } from './readOptions';
-import { describeNonNumberText, parseNumberText } from './numbers';
 import { everyColumn, resolveRoles, type ResolvedRoles } from './roles';
 import { fileChangedError, statStamp, throwIfCancelled } from './source';
-import { escapeBytes } from './textCheck';
 
 type Values = ArrayLike<unknown>;
 
@@ -139,11 +136,14 @@ export async function readPiece(opened: OpenPart, piece: ParquetPiece, { names, 
   const wanted = [...new Set([roles.query, roles.item, roles.label, roles.score, roles.rank, ...roles.segments].filter((i) => i >= 0).map((i) => names[i]!))];
   // Page by page when every column is flat, a slice of rows at a time. Rows a slice fails on (and after) are
   // read again the decoder's way, which reports the error.
-  const flat = engineSettings().tuning.parquetPages
-    ? await openFlatColumns(opened.file, opened.metadata, wanted, piece, { compressors, parsers: RAW_TEXT }).catch(() => undefined) : undefined;
+  const { parquetPages, parquetTypedPages, parquetSliceRows } = engineSettings().tuning;
+  const slice = Math.max(1, parquetSliceRows);
+  const kinds = parquetTypedPages ? typedKinds(names, roles) : undefined;
+  const flat = parquetPages
+    ? await openFlatColumns(opened.file, opened.metadata, wanted, piece, { compressors, parsers: RAW_TEXT, sliceRows: slice, kinds }).catch(() => undefined)
+    : undefined;
   let from = piece.start;
   if (flat !== undefined) {
-    const slice = Math.max(1, engineSettings().tuning.parquetSliceRows);
     for (; from < piece.end; from += slice) {
       const count = Math.min(slice, piece.end - from);
       let values;
@@ -160,6 +160,23 @@ export async function readPiece(opened: OpenPart, piece: ParquetPiece, { names, 
     }
   }
   await readByDecoder(opened, { part: piece.part, start: from, end: piece.end }, { names, roles }, wanted, rows);
+}
+
+/**
+ * Columns whose values may be decoded typed: ids and segments as text, grades and scores as numbers. A
+ * column playing roles of both kinds is left to the decoder.
+ */
+function typedKinds(names: readonly string[], roles: ResolvedRoles): Map<string, 'text' | 'number'> {
+  const kinds = new Map<string, 'text' | 'number' | 'both'>();
+  const add = (index: number, kind: 'text' | 'number') => {
+    if (index < 0) return;
+    const name = names[index]!;
+    const had = kinds.get(name);
+    kinds.set(name, had === undefined || had === kind ? kind : 'both');
+  };
+  [roles.query, roles.item, ...roles.segments].forEach((i) => add(i, 'text'));
+  [roles.label, roles.score, roles.rank].forEach((i) => add(i, 'number'));
+  return new Map([...kinds].filter((entry): entry is [string, 'text' | 'number'] => entry[1] !== 'both'));
 }
 
 /** Rows of a piece read by the decoder's row reader (its arrays of values, then the rows). */
@@ -205,96 +222,4 @@ function collect(values: Map<string, unknown[]>, column: string, data: Values, r
     const row = rowStart + i;
     if (row >= groupStart && row < groupEnd) target[row - groupStart] = data[i];
   }
-}
-
-function storeGroup(rows: RowColumns, roles: ResolvedRoles, names: readonly string[], values: Map<string, unknown[]>, count: number, file: string,
-  firstRow: number): void {
-  const get = (index: number): unknown[] => values.get(names[index]!) ?? [];
-  const queries = get(roles.query);
-  const items = get(roles.item);
-  const labels = get(roles.label);
-  const scores = roles.score >= 0 ? get(roles.score) : get(roles.rank);
-  const negate = roles.score < 0;
-  const segments = roles.segments.map(get);
-  const query = new LastText(rows.queries);
-  const segmentIds = rows.segmentPools.map((pool) => new LastText(pool));
-  for (let i = 0; i < count; i++) {
-    const row = rows.next();
-    const at = firstRow + i;
-    rows.query[row] = query.id(idBytes(queries[i], names[roles.query]!, file, at));
-    const item = idBytes(items[i], names[roles.item]!, file, at);
-    rows.setItemBytes(row, item, 0, item.length);
-    rows.label[row] = roles.label >= 0 ? numberOf(labels[i], names[roles.label]!, false, file, at) : NaN;
-    const score = roles.score >= 0 || roles.rank >= 0 ? numberOf(scores[i], names[roles.score >= 0 ? roles.score : roles.rank]!, true, file, at) : NaN;
-    rows.score[row] = negate ? -score : score;
-    rows.line[row] = 0;
-    rows.offset[row] = -1;
-    for (let k = 0; k < segments.length; k++) rows.segmentIds[k]![row] = segmentIds[k]!.id(segmentBytes(segments[k]![i]));
-  }
-}
-
-/**
- * Interns text bytes into a pool, remembering the last value: a dictionary-encoded column hands the same
- * array for every row of a value, and a column sorted by it the same value row after row.
- */
-class LastText {
-  private last: Uint8Array | undefined;
-  private lastId = -1;
-
-  constructor(private readonly pool: BytePool) {}
-
-  id(bytes: Uint8Array): number {
-    if (bytes === this.last) return this.lastId;
-    const id = this.lastId >= 0 && this.pool.matches(this.lastId, bytes, 0, bytes.length) ? this.lastId : this.pool.intern(bytes, 0, bytes.length);
-    this.last = bytes;
-    this.lastId = id;
-    return id;
-  }
-}
-
-/**
- * Text values arrive as their bytes: decoding each to a string and encoding it back for the pools and the row
- * texts took about 2 s of garbage and copying on 10M rows. Bytes that are not UTF-8 are refused for ids and
- * escaped for segments (a decoder would turn them into U+FFFD and merge ids).
- */
-const RAW_TEXT = { stringFromBytes: (bytes: Uint8Array | undefined) => bytes } as unknown as Partial<ParquetParsers>;
-const textEncoder = new TextEncoder();
-const textDecoder = new TextDecoder('utf-8');
-const EMPTY = new Uint8Array(0);
-
-/** An id's UTF-8 bytes: text as it is, a number as it prints. */
-function idBytes(v: unknown, column: string, file: string, row: number): Uint8Array {
-  if (v instanceof Uint8Array) {
-    if (isUtf8(v)) return v;
-    throw new InputError(`UTF-8 text in column '${column}' in row ${row + 1} (ids are compared as text, so write them as UTF-8)`,
-      file, undefined, escapeBytes(v));
-  }
-  if (typeof v === 'string') return textEncoder.encode(v);
-  if (typeof v === 'number' || typeof v === 'bigint') return textEncoder.encode(String(v));
-  throw new InputError(`a string or number in column '${column}' in row ${row + 1}`, file, undefined, String(v));
-}
-
-/** A segment value's UTF-8 bytes: empty when missing, bytes that are not UTF-8 escaped, other values as they print. */
-function segmentBytes(v: unknown): Uint8Array {
-  if (v === null || v === undefined) return EMPTY;
-  if (v instanceof Uint8Array) return isUtf8(v) ? v : textEncoder.encode(escapeBytes(v));
-  return textEncoder.encode(String(v));
-}
-
-function numberOf(value: unknown, column: string, isScore: boolean, file: string, row: number): number {
-  if (value === null || value === undefined) return NaN;
-  // Numbers written as text: read as the text parsers read them.
-  const v = value instanceof Uint8Array ? (isUtf8(value) ? textDecoder.decode(value) : escapeBytes(value)) : value;
-  let kind: 'missing' | 'infinite' | 'invalid' = 'invalid';
-  if (typeof v === 'number' || typeof v === 'bigint') {
-    const n = Number(v);
-    if (Number.isFinite(n)) return n;
-    kind = Number.isNaN(n) ? 'missing' : 'infinite';
-  } else if (typeof v === 'string') {
-    const n = parseNumberText(v);
-    if (Number.isFinite(n)) return n;
-    kind = Number.isNaN(n) ? describeNonNumberText(v) : 'infinite';
-  }
-  if (kind === 'missing' || (kind === 'infinite' && isScore)) return NaN;
-  throw new InputError(`a ${isScore ? '' : 'finite '}number in column '${column}' in row ${row + 1}`, file, undefined, String(v));
 }

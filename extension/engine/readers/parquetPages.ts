@@ -12,23 +12,32 @@ import { decompressPage, readDataPage, readDataPageV2 } from 'hyparquet/src/data
 import { readPlain } from 'hyparquet/src/plain.js';
 import { getMaxDefinitionLevel, getTreePath } from 'hyparquet/src/schema.js';
 import { parquetSchema, type Compressors, type DecodedArray, type FileMetaData, type ParquetParsers } from 'hyparquet';
+import { TypedColumnCursor, typedKind, type TypedSlice } from './parquetTypedPages';
 
 /** What the page functions read a column with (the decoder's ColumnDecoder). */
 type ColumnDecoder = Parameters<typeof readDataPageV2>[2];
 
+/** A column's next rows: the decoder's values, or typed (parquetTypedPages.ts). */
+export type SliceColumn = unknown[] | TypedSlice;
+
 /** A row group's flat columns, read a slice of rows at a time. */
 export interface FlatGroup {
-  /** The next `count` rows of every column (arrays reused from call to call: use them before the next). */
-  next(count: number): Map<string, unknown[]>;
+  /** The next `count` rows (at most `sliceRows`) of every column (arrays reused from call to call: use them before the next). */
+  next(count: number): Map<string, SliceColumn>;
 }
 
-/** A row group's flat columns, their chunks read; undefined when a column is not flat or the piece not a whole group. */
+/**
+ * A row group's flat columns, their chunks read; undefined when a column is not flat or the piece not a whole
+ * group. A column `kinds` names ('text' for ids, 'number' for grades and scores) is decoded typed when its
+ * type and encodings allow (typedKind).
+ */
 export async function openFlatColumns(
   file: { slice(start: number, end?: number): Promise<ArrayBuffer> | ArrayBuffer },
   metadata: FileMetaData,
   columns: readonly string[],
   piece: { readonly start: number; readonly end: number },
-  options: { readonly compressors: Compressors; readonly parsers: Partial<ParquetParsers> },
+  options: { readonly compressors: Compressors; readonly parsers: Partial<ParquetParsers>; readonly sliceRows: number;
+    readonly kinds?: ReadonlyMap<string, 'text' | 'number'> },
 ): Promise<FlatGroup | undefined> {
   let groupStart = 0;
   const group = metadata.row_groups.find((g) => {
@@ -40,6 +49,7 @@ export async function openFlatColumns(
   if (group === undefined || piece.start !== groupStart || piece.end !== groupStart + Number(group.num_rows)) return undefined;
   const tree = parquetSchema(metadata);
   const cursors = new Map<string, ColumnCursor>();
+  const typed = new Map<string, TypedColumnCursor>();
   for (const name of columns) {
     const chunk = group.columns.find((c) => c.meta_data?.path_in_schema.length === 1 && c.meta_data.path_in_schema[0] === name);
     const meta = chunk?.meta_data;
@@ -49,14 +59,22 @@ export async function openFlatColumns(
     if (schemaPath.length !== 2 || element.children.length > 0 || element.element.repetition_type === 'REPEATED') return undefined;
     const start = Number(meta.dictionary_page_offset || meta.data_page_offset);
     const bytes = await file.slice(start, start + Number(meta.total_compressed_size));
+    const wanted = options.kinds?.get(name);
+    const kind = wanted && typedKind(element.element, meta, wanted);
+    if (kind !== undefined) {
+      const column = { kind, type: meta.type, codec: meta.codec, compressors: options.compressors, maxDefinition: getMaxDefinitionLevel(schemaPath) };
+      typed.set(name, new TypedColumnCursor(new Uint8Array(bytes), column, options.sliceRows));
+      continue;
+    }
     cursors.set(name, new ColumnCursor(new DataView(bytes), { pathInSchema: meta.path_in_schema, element: element.element, schemaPath, type: meta.type,
       codec: meta.codec, compressors: options.compressors, parsers: { ...DEFAULT_PARSERS, ...options.parsers } }));
   }
-  const out = new Map<string, unknown[]>();
+  const out = new Map<string, SliceColumn>();
   return {
     next(count) {
+      for (const [name, cursor] of typed) out.set(name, cursor.fill(count));
       for (const [name, cursor] of cursors) {
-        let values = out.get(name);
+        let values = out.get(name) as unknown[] | undefined;
         if (values === undefined || values.length !== count) out.set(name, (values = new Array<unknown>(count)));
         cursor.fill(values);
       }

@@ -1,0 +1,375 @@
+/**
+ * Flat Parquet columns of the kinds a dump's roles need, decoded from their pages into typed arrays, with
+ * no object per value: text (ids and segments) as byte ranges of the decompressed page or dictionary, and
+ * numbers (grades and scores) as doubles.
+ *
+ * The decoder's page functions (parquetPages.ts) build one view per text value, one array entry per level
+ * and per dictionary index: on 10M rows a third of each thread was garbage collection, and a page of
+ * millions of values held as many objects (a file of one 10M-row group peaked at 3.5 GB).
+ *
+ * Only what a dump's writers use is decoded here: data pages version 1 and 2, PLAIN and dictionary encodings,
+ * definition levels in the RLE/bit-packed hybrid (the Parquet format's Encodings.md), any codec the decoder
+ * decompresses. `typedKind` says which columns qualify; anything else met inside a page (another encoding,
+ * bit-packed levels, bytes running out) throws, and the caller reads the rest of the row group the
+ * decoder's way, which gives the same values or reports the error.
+ */
+import { parquetHeader } from 'hyparquet/src/column.js';
+import { decompressPage } from 'hyparquet/src/datapage.js';
+import type { ColumnMetaData, Compressors, SchemaElement } from 'hyparquet';
+import { isUtf8 } from 'node:buffer';
+import { engineActivity } from '../config';
+
+/** A row of a typed slice with no value (the level says null) and one past the chunk's last page. */
+export const NULL_ROW = -1;
+export const PAST_END = -2;
+
+/**
+ * The next rows of a text column: row k is sources[source[k]][start[k], end[k]), or no value (source[k] <
+ * 0: NULL_ROW or PAST_END). `entry[k]` is the row's dictionary entry (−1 when the value is not from one), of
+ * dictionary number `dictionary` (a new number for each dictionary page met). `utf8` is true when every
+ * value of the slice is UTF-8.
+ */
+export interface TextSlice {
+  readonly kind: 'text';
+  readonly sources: Uint8Array[];
+  readonly source: Int32Array;
+  readonly start: Int32Array;
+  readonly end: Int32Array;
+  readonly entry: Int32Array;
+  dictionary: number;
+  utf8: boolean;
+}
+
+/** The next rows of a number column: the value, or NaN for none (null, or past the chunk's last page). */
+export interface NumberSlice {
+  readonly kind: 'number';
+  readonly value: Float64Array;
+}
+
+export type TypedSlice = TextSlice | NumberSlice;
+
+const TEXT_TYPES = new Set([undefined, 'UTF8', 'ENUM']);
+const INTEGER_TYPES = new Set([undefined, 'INT_8', 'INT_16', 'INT_32', 'INT_64']);
+const ENCODINGS = new Set(['PLAIN', 'PLAIN_DICTIONARY', 'RLE_DICTIONARY', 'RLE', 'BIT_PACKED']);
+
+/**
+ * 'text' or 'number' when the column's values are decoded here exactly as the decoder converts them: text
+ * is BYTE_ARRAY unannotated or UTF-8 or enum (the decoder hands those over as bytes); numbers are signed
+ * integers, floats and doubles without a logical type that would change them (decimals, dates, unsigned).
+ */
+export function typedKind(element: SchemaElement, meta: ColumnMetaData, wanted: 'text' | 'number'): 'text' | 'number' | undefined {
+  if (!meta.encodings.every((e) => ENCODINGS.has(e))) return undefined;
+  const logical = element.logical_type;
+  if (wanted === 'text') {
+    const plainText = logical === undefined || logical.type === 'STRING' || logical.type === 'ENUM';
+    return meta.type === 'BYTE_ARRAY' && TEXT_TYPES.has(element.converted_type) && plainText ? 'text' : undefined;
+  }
+  if (meta.type === 'DOUBLE' || meta.type === 'FLOAT') return element.converted_type === undefined && logical === undefined ? 'number' : undefined;
+  if (meta.type !== 'INT32' && meta.type !== 'INT64') return undefined;
+  const signed = logical === undefined || (logical.type === 'INTEGER' && logical.isSigned);
+  return INTEGER_TYPES.has(element.converted_type) && signed ? 'number' : undefined;
+}
+
+/** What a typed cursor needs of its column chunk. */
+export interface TypedColumn {
+  readonly kind: 'text' | 'number';
+  readonly type: ColumnMetaData['type'];
+  readonly codec: ColumnMetaData['codec'];
+  readonly compressors: Compressors;
+  /** 1 for an optional column (a definition level per row), 0 for a required one. */
+  readonly maxDefinition: number;
+}
+
+let dictionaries = 0;
+
+/** A flat column chunk decoded one page at a time into typed slices. */
+export class TypedColumnCursor {
+  readonly slice: TypedSlice;
+  private offset = 0;
+  // The current page: rows, the next row, its values (text ranges or numbers) and the next value.
+  private rows = 0;
+  private row = 0;
+  private present = new Uint8Array(0);
+  private allPresent = true;
+  private pageBytes: Uint8Array = new Uint8Array(0);
+  private pageUtf8 = true;
+  private starts = new Int32Array(0);
+  private ends = new Int32Array(0);
+  private numbers: Float64Array = new Float64Array(0);
+  private indices = new Int32Array(0);
+  private fromDictionary = false;
+  private value = 0;
+  // The dictionary: text ranges of its page, or numbers.
+  private dictBytes: Uint8Array | undefined;
+  private dictStarts = new Int32Array(0);
+  private dictEnds = new Int32Array(0);
+  private dictUtf8 = new Uint8Array(0);
+  private dictNumbers: Float64Array = new Float64Array(0);
+  private dictSize = -1;
+  private dictNumber = -1;
+
+  constructor(private readonly chunk: Uint8Array, private readonly column: TypedColumn, sliceRows: number) {
+    this.slice = column.kind === 'text'
+      ? { kind: 'text', sources: [], source: new Int32Array(sliceRows), start: new Int32Array(sliceRows), end: new Int32Array(sliceRows),
+          entry: new Int32Array(sliceRows), dictionary: -1, utf8: true }
+      : { kind: 'number', value: new Float64Array(sliceRows) };
+  }
+
+  /** The next `count` rows (at most the slice size) into `slice`. */
+  fill(count: number): TypedSlice {
+    const slice = this.slice;
+    if (slice.kind === 'text') {
+      slice.sources.length = 0;
+      slice.utf8 = true;
+    }
+    let pageSource = -1;
+    let dictSource = -1;
+    for (let k = 0; k < count; k++) {
+      if (this.row === this.rows) {
+        if (!this.nextPage()) {
+          if (slice.kind === 'number') slice.value.fill(NaN, k, count);
+          else slice.source.fill(PAST_END, k, count);
+          return slice;
+        }
+        pageSource = -1;
+      }
+      const present = this.allPresent || this.present[this.row] === 1;
+      this.row++;
+      if (slice.kind === 'number') {
+        slice.value[k] = present ? (this.fromDictionary ? this.dictNumbers[this.indices[this.value++]!]! : this.numbers[this.value++]!) : NaN;
+        continue;
+      }
+      if (!present) {
+        slice.source[k] = NULL_ROW;
+        continue;
+      }
+      if (this.fromDictionary) {
+        const e = this.indices[this.value++]!;
+        if (dictSource < 0) {
+          dictSource = slice.sources.push(this.dictBytes!) - 1;
+          slice.dictionary = this.dictNumber;
+        }
+        slice.source[k] = dictSource;
+        slice.start[k] = this.dictStarts[e]!;
+        slice.end[k] = this.dictEnds[e]!;
+        slice.entry[k] = e;
+        if (this.dictUtf8[e] === 0) slice.utf8 = false;
+      } else {
+        if (pageSource < 0) {
+          pageSource = slice.sources.push(this.pageBytes) - 1;
+          if (!this.pageUtf8) slice.utf8 = false;
+        }
+        slice.source[k] = pageSource;
+        slice.start[k] = this.starts[this.value]!;
+        slice.end[k] = this.ends[this.value++]!;
+        slice.entry[k] = -1;
+      }
+    }
+    return slice;
+  }
+
+  /** Decodes the next data page (reading a dictionary page on the way); false at the chunk's end. */
+  private nextPage(): boolean {
+    const { chunk, column } = this;
+    const reader = { view: new DataView(chunk.buffer, chunk.byteOffset, chunk.byteLength), offset: this.offset };
+    while (reader.offset < chunk.byteLength - 1) {
+      const header = parquetHeader(reader);
+      const start = reader.offset;
+      const end = start + header.compressed_page_size;
+      if (end > chunk.byteLength) throw new Error('a page runs past its column chunk');
+      reader.offset = end;
+      this.offset = end;
+      const compressed = chunk.subarray(start, end);
+      const size = Number(header.uncompressed_page_size);
+      if (header.type === 'DICTIONARY_PAGE') {
+        this.readDictionary(decompressPage(compressed, size, column.codec, column.compressors), header.dictionary_page_header!.num_values);
+      } else if (header.type === 'DATA_PAGE') {
+        const page = header.data_page_header!;
+        const bytes = decompressPage(compressed, size, column.codec, column.compressors);
+        let at = 0;
+        if (column.maxDefinition > 0) {
+          if (page.definition_level_encoding !== 'RLE') throw new Error('levels not in the hybrid encoding');
+          const length = readUint32(bytes, 0);
+          this.readLevels(bytes, 4, 4 + length, page.num_values);
+          at = 4 + length;
+        } else this.allPresent = true;
+        if (this.startPage(bytes, at, page.num_values, page.encoding)) return true;
+      } else if (header.type === 'DATA_PAGE_V2') {
+        const page = header.data_page_header_v2!;
+        if (page.repetition_levels_byte_length !== 0 || page.num_values !== page.num_rows) throw new Error('repetition levels in a flat column');
+        const levels = page.definition_levels_byte_length;
+        if (column.maxDefinition > 0) this.readLevels(compressed, 0, levels, page.num_rows);
+        else this.allPresent = true;
+        // The decoder counts a version 2 page's values from its header: a header that disagrees goes to it.
+        if (this.nulls(page.num_rows) !== page.num_nulls) throw new Error('a page header miscounting its nulls');
+        const valuesSize = size - levels;
+        let values = compressed.subarray(levels);
+        if (page.is_compressed !== false && valuesSize > 0) values = decompressPage(values, valuesSize, column.codec, column.compressors);
+        if (this.startPage(values, 0, page.num_rows, page.encoding)) return true;
+      }
+    }
+    return false;
+  }
+
+  /** The page's values from bytes[at..]; false for a page of no rows. */
+  private startPage(bytes: Uint8Array, at: number, rows: number, encoding: string): boolean {
+    if (rows === 0) return false;
+    const values = rows - this.nulls(rows);
+    this.rows = rows;
+    this.row = 0;
+    this.value = 0;
+    this.pageBytes = bytes;
+    if (encoding === 'PLAIN') {
+      this.fromDictionary = false;
+      if (this.column.kind === 'text') this.pageUtf8 = this.readTexts(bytes, at, values, 'page');
+      else this.numbers = this.readNumbers(bytes, at, values, this.numbers);
+    } else if (encoding === 'PLAIN_DICTIONARY' || encoding === 'RLE_DICTIONARY') {
+      if (this.dictSize < 0) throw new Error('a dictionary page missing');
+      this.fromDictionary = true;
+      if (this.indices.length < values) this.indices = new Int32Array(Math.max(values, 2 * this.indices.length));
+      if (values > 0) {
+        if (at >= bytes.length) throw new Error('a page ends before its values');
+        const width = bytes[at]!;
+        if (width === 0) this.indices.fill(0, 0, values);
+        else readHybrid(bytes, at + 1, bytes.length, width, this.indices, values);
+        for (let v = 0; v < values; v++) if (this.indices[v]! >= this.dictSize) throw new Error('a dictionary index out of range');
+      }
+    } else throw new Error(`${encoding} pages are read by the decoder`);
+    engineActivity().parquetTypedPages++;
+    return true;
+  }
+
+  private nulls(rows: number): number {
+    let nulls = 0;
+    if (!this.allPresent) for (let r = 0; r < rows; r++) nulls += this.present[r] === 1 ? 0 : 1;
+    return nulls;
+  }
+
+  private readLevels(bytes: Uint8Array, from: number, to: number, rows: number): void {
+    if (to > bytes.length) throw new Error('levels run past the page');
+    if (this.present.length < rows) this.present = new Uint8Array(Math.max(rows, 2 * this.present.length));
+    readHybrid(bytes, from, to, 1, this.present, rows);
+    let all = true;
+    for (let r = 0; r < rows && all; r++) all = this.present[r] === 1;
+    this.allPresent = all;
+  }
+
+  private readDictionary(bytes: Uint8Array, count: number): void {
+    // A slice's rows name one dictionary (TextSlice.dictionary).
+    if (this.dictSize >= 0) throw new Error('a second dictionary page in a column chunk');
+    this.dictNumber = ++dictionaries;
+    this.dictSize = count;
+    if (this.column.kind === 'number') {
+      this.dictNumbers = this.readNumbers(bytes, 0, count, new Float64Array(count));
+      return;
+    }
+    const allUtf8 = this.readTexts(bytes, 0, count, 'dictionary');
+    this.dictBytes = bytes;
+    if (this.dictUtf8.length < count) this.dictUtf8 = new Uint8Array(count);
+    for (let e = 0; e < count; e++) {
+      this.dictUtf8[e] = allUtf8 || isUtf8(bytes.subarray(this.dictStarts[e]!, this.dictEnds[e]!)) ? 1 : 0;
+    }
+  }
+
+  /**
+   * PLAIN BYTE_ARRAY values: a 4-byte little-endian length, then the bytes. Returns whether every value
+   * is UTF-8, checked on the whole run at once where that is the same: when every length is below 128
+   * its four bytes are ASCII, which no UTF-8 sequence can straddle, so the run is UTF-8 exactly when
+   * each value is.
+   */
+  private readTexts(bytes: Uint8Array, at: number, count: number, into: 'page' | 'dictionary'): boolean {
+    let starts = into === 'page' ? this.starts : this.dictStarts;
+    let ends = into === 'page' ? this.ends : this.dictEnds;
+    if (starts.length < count) {
+      starts = new Int32Array(Math.max(count, 2 * starts.length));
+      ends = new Int32Array(starts.length);
+      if (into === 'page') [this.starts, this.ends] = [starts, ends];
+      else [this.dictStarts, this.dictEnds] = [starts, ends];
+    }
+    const first = at;
+    let short = true;
+    for (let v = 0; v < count; v++) {
+      if (at + 4 > bytes.length) throw new Error('a page ends inside its values');
+      const length = readUint32(bytes, at);
+      if (length >= 128) short = false;
+      at += 4;
+      if (at + length > bytes.length) throw new Error('a page ends inside its values');
+      starts[v] = at;
+      at += length;
+      ends[v] = at;
+    }
+    if (short) return isUtf8(bytes.subarray(first, at));
+    for (let v = 0; v < count; v++) if (!isUtf8(bytes.subarray(starts[v]!, ends[v]!))) return false;
+    return true;
+  }
+
+  /** PLAIN numbers of the column's type, as the decoder converts them (64-bit integers rounded as Number(bigint) does). */
+  private readNumbers(bytes: Uint8Array, at: number, count: number, out: Float64Array): Float64Array {
+    const type = this.column.type;
+    const width = type === 'INT32' || type === 'FLOAT' ? 4 : 8;
+    if (at + count * width > bytes.length) throw new Error('a page ends inside its values');
+    if (out.length < count) out = new Float64Array(Math.max(count, 2 * out.length));
+    const view = new DataView(bytes.buffer, bytes.byteOffset + at, count * width);
+    if (type === 'DOUBLE') for (let v = 0; v < count; v++) out[v] = view.getFloat64(8 * v, true);
+    else if (type === 'FLOAT') for (let v = 0; v < count; v++) out[v] = view.getFloat32(4 * v, true);
+    else if (type === 'INT32') for (let v = 0; v < count; v++) out[v] = view.getInt32(4 * v, true);
+    // hi × 2^32 is exact and adding lo rounds once: the nearest double to the integer, as Number(bigint) gives.
+    else for (let v = 0; v < count; v++) out[v] = view.getInt32(8 * v + 4, true) * 4294967296 + view.getUint32(8 * v, true);
+    return out;
+  }
+}
+
+function readUint32(bytes: Uint8Array, at: number): number {
+  return (bytes[at]! | (bytes[at + 1]! << 8) | (bytes[at + 2]! << 16) | (bytes[at + 3]! << 24)) >>> 0;
+}
+
+/**
+ * `count` values of the RLE/bit-packed hybrid (Encodings.md): runs, each a ULEB128 header whose low bit says
+ * bit-packed (header >> 1 groups of 8 values, `width` bits each, least significant bit first) or repeated
+ * (header >> 1 copies of one value in ceil(width / 8) little-endian bytes). Throws when bytes[from, to)
+ * ends first; values past `count` in the last run are padding.
+ */
+export function readHybrid(bytes: Uint8Array, from: number, to: number, width: number, out: Int32Array | Uint8Array, count: number): void {
+  if (width > 24) throw new Error('a bit width over 24');
+  const mask = (1 << width) - 1;
+  const valueBytes = (width + 7) >> 3;
+  let at = from;
+  let seen = 0;
+  while (seen < count) {
+    let header = 0;
+    let factor = 1;
+    for (;;) {
+      if (at >= to) throw new Error('levels or indices end early');
+      const b = bytes[at++]!;
+      header += (b & 0x7f) * factor;
+      factor *= 128;
+      if (b < 0x80) break;
+    }
+    const runs = Math.floor(header / 2);
+    if (header % 2 === 1) {
+      const runEnd = at + runs * width;
+      if (runEnd > to) throw new Error('a bit-packed run past the end');
+      const n = Math.min(runs * 8, count - seen);
+      let data = 0;
+      let bits = 0;
+      for (let i = 0; i < n; i++) {
+        while (bits < width) {
+          data |= bytes[at++]! << bits;
+          bits += 8;
+        }
+        out[seen++] = data & mask;
+        data >>>= width;
+        bits -= width;
+      }
+      at = runEnd;
+    } else {
+      if (at + valueBytes > to) throw new Error('a repeated run past the end');
+      let value = 0;
+      for (let i = 0; i < valueBytes; i++) value += bytes[at++]! * 2 ** (8 * i);
+      if (value > mask) throw new Error('a repeated value wider than its bit width');
+      const n = Math.min(runs, count - seen);
+      out.fill(value, seen, seen + n);
+      seen += n;
+    }
+  }
+}
