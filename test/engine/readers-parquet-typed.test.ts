@@ -14,7 +14,7 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { configureEngine, engineActivity, engineSettings } from '../../extension/engine/config';
 import type { RankedDump } from '../../extension/engine/model/dump';
 import { readDump } from '../../extension/engine/readers/index';
-import { readHybrid } from '../../extension/engine/readers/parquetTypedPages';
+import { readHybrid } from '../../extension/engine/readers/parquetHybrid';
 import { seededRandom } from '../reference/random';
 import { TempDir } from './fixtures/readers/tempFiles';
 import { expectSameOutcome } from './fixtures/sameReading';

@@ -18,6 +18,7 @@ import { decompressPage } from 'hyparquet/src/datapage.js';
 import type { ColumnMetaData, Compressors, SchemaElement } from 'hyparquet';
 import { isUtf8 } from 'node:buffer';
 import { engineActivity } from '../config';
+import { readHybrid, readUint32 } from './parquetHybrid';
 
 /** A row of a typed slice with no value (the level says null) and one past the chunk's last page. */
 export const NULL_ROW = -1;
@@ -121,51 +122,97 @@ export class TypedColumnCursor {
     if (slice.kind === 'text') {
       slice.sources.length = 0;
       slice.utf8 = true;
+      this.dictSource = -1;
     }
-    let pageSource = -1;
-    let dictSource = -1;
-    for (let k = 0; k < count; k++) {
-      if (this.row === this.rows) {
-        if (!this.nextPage()) {
-          if (slice.kind === 'number') slice.value.fill(NaN, k, count);
-          else slice.source.fill(PAST_END, k, count);
-          return slice;
-        }
-        pageSource = -1;
+    // A page's run of rows at a time: a run with no nulls copies its values at once.
+    for (let k = 0; k < count;) {
+      if (this.row === this.rows && !this.nextPage()) {
+        if (slice.kind === 'number') slice.value.fill(NaN, k, count);
+        else slice.source.fill(PAST_END, k, count);
+        break;
       }
-      const present = this.allPresent || this.present[this.row] === 1;
-      this.row++;
-      if (slice.kind === 'number') {
-        slice.value[k] = present ? (this.fromDictionary ? this.dictNumbers[this.indices[this.value++]!]! : this.numbers[this.value++]!) : NaN;
-        continue;
-      }
-      if (!present) {
-        slice.source[k] = NULL_ROW;
-        continue;
-      }
-      if (this.fromDictionary) {
-        const e = this.indices[this.value++]!;
-        if (dictSource < 0) {
-          dictSource = slice.sources.push(this.dictBytes!) - 1;
-          slice.dictionary = this.dictNumber;
-        }
-        slice.source[k] = dictSource;
-        slice.start[k] = this.dictStarts[e]!;
-        slice.end[k] = this.dictEnds[e]!;
-        slice.entry[k] = e;
-        if (this.dictUtf8[e] === 0) slice.utf8 = false;
-      } else {
-        if (pageSource < 0) {
-          pageSource = slice.sources.push(this.pageBytes) - 1;
-          if (!this.pageUtf8) slice.utf8 = false;
-        }
-        slice.source[k] = pageSource;
-        slice.start[k] = this.starts[this.value]!;
-        slice.end[k] = this.ends[this.value++]!;
-        slice.entry[k] = -1;
-      }
+      const n = Math.min(count - k, this.rows - this.row);
+      if (slice.kind === 'number') this.numbersInto(slice.value, k, n);
+      else if (this.fromDictionary) this.entriesInto(slice, k, n);
+      else this.textsInto(slice, k, n);
+      k += n;
     }
     return slice;
+  }
+
+  /** The slice's source number of the dictionary, in the slice now. */
+  private dictSource = -1;
+
+  private numbersInto(out: Float64Array, k: number, n: number): void {
+    const { present, allPresent, fromDictionary, numbers, dictNumbers, indices } = this;
+    let { row, value } = this;
+    if (allPresent && !fromDictionary) {
+      out.set(numbers.subarray(value, value + n), k);
+      value += n;
+      row += n;
+    } else {
+      for (let i = k; i < k + n; i++) {
+        const has = allPresent || present[row] === 1;
+        row++;
+        out[i] = has ? (fromDictionary ? dictNumbers[indices[value++]!]! : numbers[value++]!) : NaN;
+      }
+    }
+    this.row = row;
+    this.value = value;
+  }
+
+  private textsInto(slice: TextSlice, k: number, n: number): void {
+    const source = slice.sources.push(this.pageBytes) - 1;
+    if (!this.pageUtf8) slice.utf8 = false;
+    const { present, allPresent, starts, ends } = this;
+    let { row, value } = this;
+    slice.entry.fill(-1, k, k + n);
+    if (allPresent) {
+      slice.source.fill(source, k, k + n);
+      slice.start.set(starts.subarray(value, value + n), k);
+      slice.end.set(ends.subarray(value, value + n), k);
+      value += n;
+      row += n;
+    } else {
+      for (let i = k; i < k + n; i++) {
+        if (present[row++] !== 1) {
+          slice.source[i] = NULL_ROW;
+          continue;
+        }
+        slice.source[i] = source;
+        slice.start[i] = starts[value]!;
+        slice.end[i] = ends[value++]!;
+      }
+    }
+    this.row = row;
+    this.value = value;
+  }
+
+  private entriesInto(slice: TextSlice, k: number, n: number): void {
+    if (this.dictSource < 0) {
+      this.dictSource = slice.sources.push(this.dictBytes!) - 1;
+      slice.dictionary = this.dictNumber;
+    }
+    const { present, allPresent, indices, dictStarts, dictEnds, dictUtf8, dictSource } = this;
+    const { source, start, end, entry } = slice;
+    let { row, value } = this;
+    let utf8 = true;
+    for (let i = k; i < k + n; i++) {
+      if (!allPresent && present[row++] !== 1) {
+        source[i] = NULL_ROW;
+        continue;
+      }
+      const e = indices[value++]!;
+      source[i] = dictSource;
+      start[i] = dictStarts[e]!;
+      end[i] = dictEnds[e]!;
+      entry[i] = e;
+      utf8 = utf8 && dictUtf8[e] === 1;
+    }
+    if (allPresent) row += n;
+    if (!utf8) slice.utf8 = false;
+    this.row = row;
+    this.value = value;
   }
 
   /** Decodes the next data page (reading a dictionary page on the way); false at the chunk's end. */
@@ -316,60 +363,5 @@ export class TypedColumnCursor {
     // hi × 2^32 is exact and adding lo rounds once: the nearest double to the integer, as Number(bigint) gives.
     else for (let v = 0; v < count; v++) out[v] = view.getInt32(8 * v + 4, true) * 4294967296 + view.getUint32(8 * v, true);
     return out;
-  }
-}
-
-function readUint32(bytes: Uint8Array, at: number): number {
-  return (bytes[at]! | (bytes[at + 1]! << 8) | (bytes[at + 2]! << 16) | (bytes[at + 3]! << 24)) >>> 0;
-}
-
-/**
- * `count` values of the RLE/bit-packed hybrid (Encodings.md): runs, each a ULEB128 header whose low bit says
- * bit-packed (header >> 1 groups of 8 values, `width` bits each, least significant bit first) or repeated
- * (header >> 1 copies of one value in ceil(width / 8) little-endian bytes). Throws when bytes[from, to)
- * ends first; values past `count` in the last run are padding.
- */
-export function readHybrid(bytes: Uint8Array, from: number, to: number, width: number, out: Int32Array | Uint8Array, count: number): void {
-  if (width > 24) throw new Error('a bit width over 24');
-  const mask = (1 << width) - 1;
-  const valueBytes = (width + 7) >> 3;
-  let at = from;
-  let seen = 0;
-  while (seen < count) {
-    let header = 0;
-    let factor = 1;
-    for (;;) {
-      if (at >= to) throw new Error('levels or indices end early');
-      const b = bytes[at++]!;
-      header += (b & 0x7f) * factor;
-      factor *= 128;
-      if (b < 0x80) break;
-    }
-    const runs = Math.floor(header / 2);
-    if (header % 2 === 1) {
-      const runEnd = at + runs * width;
-      if (runEnd > to) throw new Error('a bit-packed run past the end');
-      const n = Math.min(runs * 8, count - seen);
-      let data = 0;
-      let bits = 0;
-      for (let i = 0; i < n; i++) {
-        while (bits < width) {
-          data |= bytes[at++]! << bits;
-          bits += 8;
-        }
-        out[seen++] = data & mask;
-        data >>>= width;
-        bits -= width;
-      }
-      at = runEnd;
-    } else {
-      if (at + valueBytes > to) throw new Error('a repeated run past the end');
-      let value = 0;
-      for (let i = 0; i < valueBytes; i++) value += bytes[at++]! * 2 ** (8 * i);
-      if (value > mask) throw new Error('a repeated value wider than its bit width');
-      const n = Math.min(runs, count - seen);
-      out.fill(value, seen, seen + n);
-      seen += n;
-    }
   }
 }
