@@ -68,4 +68,34 @@ describe('the JSON Lines byte loop', () => {
     expectSameDump(reference as RankedDump, fast);
     expect(fast.queries.get(1)).toBe('drill, cordless 1');
   });
+
+  // The loop reads keys and strings four bytes at a time: a byte it must stop at (a quote, a backslash, a
+  // control byte) or a key's differing byte, at every place in a word, and bytes past 0x7f around them.
+  const SPECIALS = ['\\"', '\\\\', '\\u0041', '\t', '\u0001', '\u007f', 'ü', '€', '😀', '"'];
+  it.each(SPECIALS.map((s) => [JSON.stringify(s)]))('a string holding %s at every place in a word reads as JSON.parse reads it', async (special) => {
+    const raw = JSON.parse(special) as string;
+    const lines = ['{"query":"q","item":"first","label":1,"score":0.5}'];
+    for (let before = 0; before < 9; before++) {
+      for (let after = 0; after < 5; after++) lines.push(`{"query":"q${'w'.repeat(before)}","item":"${'a'.repeat(before)}${raw}${'b'.repeat(after)}","label":2,"score":0.25}`);
+    }
+    const [reference, fast] = await readBoth(tmp.file(`fast-word-${SPECIALS.indexOf(raw)}.jsonl`, lines.join('\n') + '\n'));
+    expectSameOutcome(reference, fast);
+  });
+
+  it('a key differing in any one byte hands its line over, read as JSON.parse reads it', async () => {
+    const keys = ['query_id', 'item', 'label', 'score'];
+    const first = JSON.stringify({ query_id: 'q', item: 'i0', label: 1, score: 0.5 });
+    for (const [k, key] of keys.entries()) {
+      for (let at = 0; at < key.length; at++) {
+        // One file each: a line lacking a role's key reads it as missing, or is refused; either way the reading
+        // is JSON.parse's (the loop taking the changed key for the right one would store line 3's value).
+        const changed = key.slice(0, at) + (key[at] === 'x' ? 'y' : 'x') + key.slice(at + 1);
+        const row = (item: string) => Object.fromEntries(Object.entries({ query_id: 'q', item, label: 2, score: 0.25 }).map(([n, v]) => [n === key ? changed : n, v]));
+        const text = [first, first.replace('i0', 'i1'), JSON.stringify(row(`i-${k}-${at}`))].join('\n') + '\n';
+        const [reference, fast] = await readBoth(tmp.file(`fast-key-${k}-${at}.jsonl`, text));
+        if (reference instanceof Error) expect(reference.message).toMatch(/:3\b/);
+        expectSameOutcome(reference, fast);
+      }
+    }
+  });
 });

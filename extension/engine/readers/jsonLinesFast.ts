@@ -33,7 +33,12 @@ export class FlatRowScanner {
   private readonly valueStart: Int32Array;
   private readonly valueEnd: Int32Array;
   private readonly numbers: Float64Array;
+  /** Each key's bytes as little-endian 32-bit words (the bytes past the last whole word are compared one by one). */
+  private readonly keyWords: Int32Array[];
   private lastQuery = -1;
+  /** A view of the buffer last scanned, to read four bytes at once. */
+  private view: DataView = new DataView(new ArrayBuffer(0));
+  private viewOf: Uint8Array | undefined;
 
   constructor(keys: readonly string[], roles: ResolvedRoles, private readonly rankStandsInForScore: boolean) {
     const encoder = new TextEncoder();
@@ -50,12 +55,18 @@ export class FlatRowScanner {
     this.valueStart = new Int32Array(keys.length);
     this.valueEnd = new Int32Array(keys.length);
     this.numbers = new Float64Array(keys.length);
+    this.keyWords = this.keyBytes.map((k) => Int32Array.from({ length: k.length >> 2 }, (_, w) => new DataView(k.buffer).getInt32(4 * w, true)));
   }
 
   /** Stores the row of line buf[start, end) when it is plain (see the module comment); false, storing nothing, otherwise. */
   store(buf: Uint8Array, start: number, end: number, rows: RowColumns, line: number, offset: number): boolean {
     const kinds = this.kinds;
     const fields = kinds.length;
+    if (buf !== this.viewOf) {
+      this.view = new DataView(buf.buffer, buf.byteOffset, buf.byteLength);
+      this.viewOf = buf;
+    }
+    const view = this.view;
     let pos = skipSpace(buf, start, end);
     if (pos >= end || buf[pos] !== 123) return false;
     pos++;
@@ -63,7 +74,10 @@ export class FlatRowScanner {
       pos = skipSpace(buf, pos, end);
       const key = this.keyBytes[f]!;
       if (pos + key.length > end) return false;
-      for (let i = 0; i < key.length; i++) if (buf[pos + i] !== key[i]) return false;
+      // Four bytes at a time, then the rest.
+      const words = this.keyWords[f]!;
+      for (let w = 0; w < words.length; w++) if (view.getInt32(pos + 4 * w, true) !== words[w]) return false;
+      for (let i = 4 * words.length; i < key.length; i++) if (buf[pos + i] !== key[i]) return false;
       pos = skipSpace(buf, pos + key.length, end);
       if (pos >= end || buf[pos] !== 58) return false;
       pos = skipSpace(buf, pos + 1, end);
@@ -82,6 +96,15 @@ export class FlatRowScanner {
       } else if (c === QUOTE) {
         // A string: up to the closing quote, with no escape and no control byte (JSON allows none raw).
         let q = pos + 1;
+        // Four bytes at a time while none is a quote, a backslash or below 32 (a zero-byte test on the word
+        // xor the byte, and a less-than-32 test: each exact as a yes or no); the bytes then find which.
+        while (q + 4 <= end) {
+          const w = view.getInt32(q, true);
+          const quote = w ^ 0x22222222;
+          const slash = w ^ 0x5c5c5c5c;
+          if (((((quote - 0x01010101) & ~quote) | ((slash - 0x01010101) & ~slash) | ((w - 0x20202020) & ~w)) & 0x80808080) !== 0) break;
+          q += 4;
+        }
         while (q < end) {
           const b = buf[q]!;
           if (b === QUOTE || b === BACKSLASH || b < 32) break;
