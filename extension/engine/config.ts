@@ -116,10 +116,15 @@ export interface EngineActivity {
   parquetPagePieces: number;
   /** Parquet data pages decoded into typed arrays in this thread (readers/parquetTypedPages.ts), ever. */
   parquetTypedPages: number;
+  /** Reads in ranges compacted in their shared slices (threads/mergeRanges.ts), ever. */
+  rangesCompacted: number;
+  /** Reads in ranges merged by copying the ranges' private arrays (a range outgrew its shared slice), ever. */
+  rangesMergedByCopying: number;
 }
 
 const activity: EngineActivity = {
   liveThreads: 0, kernelRows: 0, itemIdsMade: 0, chunksRenderedElsewhere: 0, queriesKeyedElsewhere: 0, parquetPagePieces: 0, parquetTypedPages: 0,
+  rangesCompacted: 0, rangesMergedByCopying: 0,
 };
 
 /** The live counters (the engine's threads and kernel add to them). */

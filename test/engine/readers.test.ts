@@ -8,6 +8,7 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { CancelledError, InputError } from '../../extension/engine/errors';
 import { parseColumnRoles, readDump } from '../../extension/engine/readers/index';
 import { configureEngine } from '../../extension/engine/config';
+import { textSizeHint } from '../../extension/engine/readers/source';
 import { plainRows, TempDir } from './fixtures/readers/tempFiles';
 
 const tmp = new TempDir();
@@ -121,6 +122,23 @@ describe('CSV with a header row', () => {
     const bigZip = gzipSync(Buffer.from(big));
     const cut = tmp.file('cut.csv.gz', bigZip.subarray(0, bigZip.length >> 1));
     expect((await rejection(readDump(cut))).message).toMatch(/truncated or corrupt gzip/);
+  });
+
+  it("sizes a gzip file's columns by the text size its trailer records (RFC 1952's ISIZE), never above the text", async () => {
+    const text = 'query_id,item_id,label,score\n' + Array.from({ length: 70_000 }, (_, i) => `q${i >> 6},sku-${i},${i % 3},${i / 7}`).join('\n') + '\n';
+    const zipped = gzipSync(Buffer.from(text));
+    expect(await textSizeHint(tmp.file('one-member.csv.gz', zipped))).toBe(Buffer.byteLength(text));
+    expect(await textSizeHint(tmp.file('plain-size.csv', text))).toBe(Buffer.byteLength(text));
+    // Two members (as concatenated gzip files are): the last member's size only, so the compressed size when larger.
+    const tail = gzipSync(Buffer.from('q9,sku-x,1,0.5\n'));
+    const twoMembers = Buffer.concat([zipped, tail]);
+    expect(await textSizeHint(tmp.file('two-members.csv.gz', twoMembers))).toBe(twoMembers.length);
+    // A large read on one thread keeps its columns in shared memory, which scoring threads read without a copy.
+    const dump = await readDump(tmp.file('large.csv.gz', zipped));
+    expect(dump.rowCount).toBe(70_000);
+    expect(dump.label.buffer).toBeInstanceOf(SharedArrayBuffer);
+    expect(dump.score.buffer).toBeInstanceOf(SharedArrayBuffer);
+    expect(dump.itemKey!.buffer).toBeInstanceOf(SharedArrayBuffer);
   });
 });
 

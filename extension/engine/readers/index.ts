@@ -21,7 +21,7 @@ import { readParquet } from './parquet';
 import type { ReadOptions } from './readOptions';
 import { joinJudgments, readJudgmentTable, sharesQuery, unusedJudgmentsNote, type JudgmentTable } from './judgments';
 import { readRunFile } from './runFile';
-import { changedSince, fileChangedError, pumpText, statStamp, throwIfCancelled } from './source';
+import { changedSince, fileChangedError, pumpText, statStamp, textSizeHint, throwIfCancelled } from './source';
 import { readSparseFeatures } from './sparseFeatures';
 
 export { parseColumnRoles } from './roles';
@@ -108,7 +108,7 @@ async function readDelimited(path: string, format: 'csv' | 'tsv', gzip: boolean,
       if (dump !== undefined) return dump;
     }
   }
-  const parser = new DelimitedParser({ file: path, delimiter, columns: options.columns, expectedBytes: gzip ? undefined : await sizeOf(path) });
+  const parser = new DelimitedParser({ file: path, delimiter, columns: options.columns, expectedBytes: await textSizeHint(path) });
   const stamp = await pumpText(path, parser, { signal: options.signal, onProgress: options.onProgress });
   const rows = parser.columns!;
   if (rows.count === 0) throw new InputError('at least one data row after the header', path, 2);
@@ -127,6 +127,3 @@ async function readJsonLinesFile(path: string, gzip: boolean, options: ReadOptio
   return readJsonLines(path, options);
 }
 
-async function sizeOf(path: string): Promise<number> {
-  return (await statStamp(path)).size;
-}

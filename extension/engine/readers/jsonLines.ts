@@ -13,7 +13,7 @@ import { RowColumns, type SharedColumns } from './columns';
 import type { ReadOptions } from './readOptions';
 import { describeNonNumberText, parseNumberText } from './numbers';
 import { everyColumn, LIST_ROLE_NAMES, resolveRoles, type ResolvedRoles } from './roles';
-import { assertTextHead, LineSink, pumpText, statStamp } from './source';
+import { assertTextHead, LineSink, pumpText, textSizeHint } from './source';
 import { FlatRowScanner } from './jsonLinesFast';
 
 type Json = Record<string, unknown>;
@@ -32,7 +32,7 @@ interface Shape {
 
 /** Reads JSON Lines on this thread (a large plain file may be read in ranges first: see readers/index.ts). */
 export async function readJsonLines(path: string, options: ReadOptions): Promise<RankedDump> {
-  const parser = new JsonLinesParser(path, options.columns, (await statStamp(path)).size);
+  const parser = new JsonLinesParser(path, options.columns, await textSizeHint(path));
   const lines = new LineSink((buf, start, end, line, offset) => parser.acceptLine(buf, start, end, line, offset));
   const stamp = await pumpText(path, lines, { signal: options.signal, onProgress: options.onProgress });
   const rows = parser.rows;

@@ -55,6 +55,25 @@ export async function isGzip(path: string): Promise<boolean> {
   return head.length === 2 && head[0] === 0x1f && head[1] === 0x8b;
 }
 
+/**
+ * The size of a file's text, to size row columns by: a plain file's size. For gzip, the uncompressed size its
+ * trailer records (ISIZE, RFC 1952: the last member's size mod 2^32, so exact for one member under 4 GiB and
+ * never more than the text), or the compressed size when that is larger (a wrapped or many-member file).
+ * Columns sized by the compressed size grew by half again time after time: 10M rows peaked at 1.23 GB.
+ */
+export async function textSizeHint(path: string): Promise<number> {
+  const { size } = await statStamp(path);
+  if (size < 18 || !(await isGzip(path))) return size;
+  const fh = await fsp.open(path, 'r');
+  try {
+    const trailer = Buffer.alloc(4);
+    const { bytesRead } = await fh.read(trailer, 0, 4, size - 4);
+    return bytesRead === 4 ? Math.max(size, trailer.readUInt32LE(0)) : size;
+  } finally {
+    await fh.close();
+  }
+}
+
 export async function readHead(path: string, bytes: number): Promise<Buffer> {
   const fh = await fsp.open(path, 'r');
   try {

@@ -5,6 +5,7 @@
  * buffers are compacted in place, the columns shared between this thread and an idle parse worker
  * (compactRanges.ts); a range that outgrew its slice sends the read down the copying merge.
  */
+import { engineActivity } from '../config';
 import { BytePool, hashBytes, type BytePoolState } from '../model/bytePool';
 import { isGrouped, RowTexts } from '../model/rowTexts';
 import { ROW_COLUMNS, RowColumns, rowArray, rowArrays, type RowArrays, type RowColumnName, type SharedColumns } from '../readers/columns';
@@ -21,6 +22,7 @@ export type RangeRows = Extract<RangeResult, { kind: 'rows' }>;
  */
 export async function compactShared(parts: RangeRows[], slices: SharedColumns[], lineOffsets: number[], headerRows: RowColumns,
   helper?: (task: CompactTask) => Promise<void>): Promise<RowColumns> {
+  engineActivity().rangesCompacted++;
   const rows = new RowColumns(headerRows.segmentNames, 16);
   rows.notes.messages.push(...headerRows.notes.messages);
   const total = parts.reduce((sum, p) => sum + p.count, 0);
@@ -136,6 +138,7 @@ function rekeyCutQueries(rows: RowColumns, starts: readonly number[]): void {
 
 /** Merges ranges column by column, dropping each range's copy as soon as it is merged to bound peak memory. */
 export function merge(parts: RangeRows[], lineOffsets: number[], headerRows: RowColumns): RowColumns {
+  engineActivity().rangesMergedByCopying++;
   const rows = new RowColumns(headerRows.segmentNames, 16);
   rows.notes.messages.push(...headerRows.notes.messages);
   const total = parts.reduce((sum, p) => sum + p.count, 0);
