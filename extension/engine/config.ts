@@ -31,7 +31,10 @@ export interface EngineTuning {
   readonly parquetTypedPages: boolean;
   /** Rows of a Parquet row group stored at once by the page loop (tests make it small, to cross pages). */
   readonly parquetSliceRows: number;
-  /** Tests only: this thread claims score chunks only after every worker has claimed one, so workers surely take part. */
+  /**
+   * Tests only: this thread claims score chunks, or the ranges of a read, only after every worker has claimed
+   * one, so workers surely take part (and take the first ones).
+   */
   readonly workersFirst: boolean;
 }
 

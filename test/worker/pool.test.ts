@@ -89,6 +89,12 @@ describe('the worker pool', () => {
     expect(data[999]).toBe(999 & 255);
   });
 
+  it('fails a request whose answer cannot be posted, rather than leave it unanswered', async () => {
+    const error = await newPool(1).request('untransferable', {}).catch((e: unknown) => e);
+    expect(error).toBeInstanceOf(RemoteError);
+    expect((error as RemoteError).message).toMatch(/transfer/i);
+  });
+
   it("carries an input error across with the same class and the same 'file:line: expected' text", async () => {
     const local = new InputError("a number in column 'score'", 'shop-search.csv', 12, 'n/a');
     const error = await newPool(1).request('refuse', { expected: "a number in column 'score'", file: 'shop-search.csv', line: 12, found: 'n/a' })

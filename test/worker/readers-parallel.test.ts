@@ -208,6 +208,36 @@ describe('parallel parsing', () => {
     expectSameDump(await readDump(path, { threads: 1 }), multi!);
   });
 
+  it("a worker's range outgrowing its slice by more rows than fit in plain arrays comes back (its shared arrays are not transferred)", async () => {
+    // Rows in private arrays of 65,536 or more are made in shared memory (columns.ts), which a worker's answer
+    // cannot transfer: posting it failed, and the read waited for ever. The first range (the worker's, below)
+    // is sized from long rows at both its ends; short rows fill its middle, about 80k of them.
+    const header = 'query_id,item_id,label,score,device\n';
+    const lines: string[] = [];
+    let bytes = 0;
+    const add = (upTo: number, long: boolean) => {
+      for (; bytes < upTo; ) {
+        const line = `q${lines.length >> 4},sku-${lines.length % 977},${lines.length % 3},${lines.length % 11},${long ? 'x'.repeat(220) : 'd'}\n`;
+        lines.push(line);
+        bytes += line.length;
+      }
+    };
+    add(300_000, true);
+    add(1_900_000, false);
+    add(3_900_000, true);
+    const path = tmp.file('par-worker-outgrown.csv', header + lines.join(''));
+    const saved = configureEngine({ tuning: { parseRangesPerThread: 1, workersFirst: true } });
+    try {
+      const single = await readDump(path, { threads: 1 });
+      const copied = engineActivity().rangesMergedByCopying;
+      const multi = await readParallelDelimited(path, 'csv', 44, 2, {});
+      expect(engineActivity().rangesMergedByCopying).toBe(copied + 1);
+      expectSameDump(single, multi!);
+    } finally {
+      configureEngine(saved);
+    }
+  }, 60_000);
+
   it('a range far outgrowing its slice goes on in private arrays, merged by copying: the same rows, with or without offsets', async () => {
     // Two ranges, the second from 3/4 of the rows' bytes (shrinkingShares.ts). Its slice is sized from samples at
     // its two ends, where the rows are long, but short rows fill its middle: it outgrows the slice many times over.

@@ -139,5 +139,6 @@ export function transferList(result: RangeResult): ArrayBuffer[] {
   const columns: ArrayBufferView[] = result.inShared ? [] : [...ROW_COLUMN_NAMES.map((name) => result[name]), ...result.segmentIds];
   const pools = [result.queries, ...result.segmentPools];
   const views: ArrayBufferView[] = [...columns, ...pools.flatMap((p) => [p.arena, p.starts, p.table]), result.itemTexts.arena, result.itemTexts.ends];
-  return views.map((v) => v.buffer as ArrayBuffer);
+  // Columns made in shared memory (columns.ts) are shared as they are: a shared buffer cannot be transferred.
+  return [...new Set(views.map((v) => v.buffer))].filter((b): b is ArrayBuffer => !(b instanceof SharedArrayBuffer));
 }

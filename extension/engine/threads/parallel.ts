@@ -291,8 +291,15 @@ async function parseRanges({ pool, workers }: PoolLease<ParseRequests>, tasks: R
   };
   const next = new Int32Array(new SharedArrayBuffer(4));
   let stopped = false;
+  const reported: (() => void)[] = [];
+  const firstReports = Array.from({ length: workers }, (_, w) => new Promise<void>((resolve) => (reported[w] = resolve)));
   const remote = Array.from({ length: workers }, (_, w) =>
-    pool.request('parseRanges', { tasks, next }, { signal: options.signal, onProgress: (bytes) => progress(w + 1, bytes) }));
+    pool.request('parseRanges', { tasks, next }, { signal: options.signal, onProgress: (bytes) => {
+      reported[w]!();
+      progress(w + 1, bytes);
+    } }));
+  // Tests only: a worker reports bytes once it has claimed a range (or all of them ended first).
+  if (engineSettings().tuning.workersFirst && tasks.length > workers) await Promise.race([Promise.all(firstReports), Promise.allSettled(remote)]);
   const onBytes = (bytes: number) => {
     // This thread's parse stops at the next chunk once the read is cancelled or a worker failed.
     if (stopped || options.signal?.aborted) throw new CancelledError();

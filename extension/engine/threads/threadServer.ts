@@ -5,7 +5,7 @@
  * and hands large results over without a copy by returning them through `transferring`.
  */
 import { parentPort, type MessagePort } from 'node:worker_threads';
-import { RequestServer, type HandlerContext, type RequestHandlers, type RequestMap } from '../../channel/request';
+import { RequestServer, toErrorInfo, type HandlerContext, type RequestHandlers, type RequestMap } from '../../channel/request';
 import type { ProgressEnvelope } from './progress';
 
 /** Results whose buffers move to the asking thread instead of being copied. */
@@ -32,7 +32,13 @@ export function serveThread<M extends RequestMap>(handlers: RequestHandlers<M>):
   const server = new RequestServer(handlers, (message) => {
     const result = message.ok ? message.result : undefined;
     const list = typeof result === 'object' && result !== null ? transfers.get(result) : undefined;
-    parent.postMessage(message, list === undefined ? undefined : [...list]);
+    try {
+      parent.postMessage(message, list === undefined ? undefined : [...list]);
+    } catch (err) {
+      // A result that cannot be posted (a buffer that cannot move) fails its request rather than leave it unanswered.
+      if (!message.ok) throw err;
+      parent.postMessage({ kind: 'response', id: message.id, ok: false, error: toErrorInfo(err) });
+    }
   });
   parent.on('message', (message: unknown) => server.handleMessage(message));
 }

@@ -12,6 +12,8 @@ export type ProbeRequests = {
   echo: { params: { text: string }; result: { text: string; thread: number } };
   /** Answers with a buffer of `length` bytes counting up, transferred rather than copied. */
   bytes: { params: { length: number }; result: { data: Uint8Array } };
+  /** Answers with a buffer in shared memory marked for transfer, which posting refuses. */
+  untransferable: { params: Record<string, never>; result: { data: Int32Array } };
   /** Throws an InputError with these parts. */
   refuse: { params: { expected: string; file: string; line: number; found: string }; result: never };
   /** Throws a plain Error with this message. */
@@ -31,6 +33,10 @@ serveThread<ProbeRequests>({
   bytes: ({ length }) => {
     const data = Uint8Array.from({ length }, (_, i) => i & 255);
     return transferring({ data }, [data.buffer]);
+  },
+  untransferable: () => {
+    const data = new Int32Array(new SharedArrayBuffer(16));
+    return transferring({ data }, [data.buffer as unknown as ArrayBuffer]);
   },
   refuse: ({ expected, file, line, found }) => {
     throw new InputError(expected, file, line, found);
