@@ -47,6 +47,31 @@ function expectSameDump(a: RankedDump, b: RankedDump, offsets = true): void {
   expect(b.notes.gradeRange).toEqual(gradeRange({ ...a, notes: { ...a.notes, gradeRange: undefined } }));
 }
 
+const OUTGROWN_HEADER = 'query_id,item_id,label,score,device\n';
+
+/** CSV rows in runs of about `bytes` bytes each, of long rows (220 more bytes) or short ones. */
+function rowRuns(runs: readonly (readonly [bytes: number, long: boolean])[]): string {
+  const lines: string[] = [];
+  for (const [bytes, long] of runs) {
+    for (let size = 0; size < bytes;) {
+      const r = lines.length;
+      const line = `q${r >> 4},sku-${r % 977},${r % 3},${r % 11},${long ? 'x'.repeat(220) : 'd'}\n`;
+      lines.push(line);
+      size += line.length;
+    }
+  }
+  return lines.join('');
+}
+
+/** Two threads read `path` as one does, their ranges merged by copying (not compacted in place). */
+async function expectMergedByCopying(path: string, options: { rowOffsets?: boolean }): Promise<void> {
+  const single = await readDump(path, { threads: 1 });
+  const copied = engineActivity().rangesMergedByCopying;
+  const multi = await readParallelDelimited(path, 'csv', 44, 2, options);
+  expect(engineActivity().rangesMergedByCopying).toBe(copied + 1);
+  expectSameDump(single, multi!, options.rowOffsets !== false);
+}
+
 describe('parallel parsing', () => {
   // Ranges per thread: 1 (one range each), the default 4, and more ranges than chunks, claimed in turn by the threads.
   it.each([[11, 2, 1], [12, 3, 4], [13, 4, 4], [14, 2, 16]])('seed %i with %i threads and %i ranges per thread matches one thread', async (seed, threads, ranges) => {
@@ -212,27 +237,10 @@ describe('parallel parsing', () => {
     // Rows in private arrays of 65,536 or more are made in shared memory (columns.ts), which a worker's answer
     // cannot transfer: posting it failed, and the read waited for ever. The first range (the worker's, below)
     // is sized from long rows at both its ends; short rows fill its middle, about 80k of them.
-    const header = 'query_id,item_id,label,score,device\n';
-    const lines: string[] = [];
-    let bytes = 0;
-    const add = (upTo: number, long: boolean) => {
-      for (; bytes < upTo; ) {
-        const line = `q${lines.length >> 4},sku-${lines.length % 977},${lines.length % 3},${lines.length % 11},${long ? 'x'.repeat(220) : 'd'}\n`;
-        lines.push(line);
-        bytes += line.length;
-      }
-    };
-    add(300_000, true);
-    add(1_900_000, false);
-    add(3_900_000, true);
-    const path = tmp.file('par-worker-outgrown.csv', header + lines.join(''));
+    const path = tmp.file('par-worker-outgrown.csv', OUTGROWN_HEADER + rowRuns([[300_000, true], [1_600_000, false], [2_000_000, true]]));
     const saved = configureEngine({ tuning: { parseRangesPerThread: 1, workersFirst: true } });
     try {
-      const single = await readDump(path, { threads: 1 });
-      const copied = engineActivity().rangesMergedByCopying;
-      const multi = await readParallelDelimited(path, 'csv', 44, 2, {});
-      expect(engineActivity().rangesMergedByCopying).toBe(copied + 1);
-      expectSameDump(single, multi!);
+      await expectMergedByCopying(path, {});
     } finally {
       configureEngine(saved);
     }
@@ -241,28 +249,11 @@ describe('parallel parsing', () => {
   it('a range far outgrowing its slice goes on in private arrays, merged by copying: the same rows, with or without offsets', async () => {
     // Two ranges, the second from 3/4 of the rows' bytes (shrinkingShares.ts). Its slice is sized from samples at
     // its two ends, where the rows are long, but short rows fill its middle: it outgrows the slice many times over.
-    const header = 'query_id,item_id,label,score,device\n';
-    let text = '';
-    let row = 0;
-    const add = (bytes: number, long: boolean) => {
-      for (const end = text.length + bytes; text.length < end; row++) text += `q${row >> 4},sku-${row % 977},${row % 3},${row % 11},${long ? 'x'.repeat(220) : 'd'}\n`;
-    };
-    add(1_580_000, false);
-    add(140_000, true);
-    add(400_000, false);
-    add(80_000, true);
-    const path = tmp.file('par-outgrown.csv', header + text);
+    const path = tmp.file('par-outgrown.csv', OUTGROWN_HEADER + rowRuns([[1_580_000, false], [140_000, true], [400_000, false], [80_000, true]]));
     const saved = configureEngine({ tuning: { parseRangesPerThread: 1 } });
     try {
-      const single = await readDump(path, { threads: 1 });
-      const copied = engineActivity().rangesMergedByCopying;
-      const multi = await readParallelDelimited(path, 'csv', 44, 2, {});
-      // Merged by copying into fresh arrays, not compacted in place.
-      expect(engineActivity().rangesMergedByCopying).toBe(copied + 1);
-      expectSameDump(single, multi!);
-      const lean = await readParallelDelimited(path, 'csv', 44, 2, { rowOffsets: false });
-      expect(engineActivity().rangesMergedByCopying).toBe(copied + 2);
-      expectSameDump(single, lean!, false);
+      await expectMergedByCopying(path, {});
+      await expectMergedByCopying(path, { rowOffsets: false });
     } finally {
       configureEngine(saved);
     }
