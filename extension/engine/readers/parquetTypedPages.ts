@@ -274,8 +274,9 @@ export class TypedColumnCursor {
       if (this.dictSize < 0) throw new Error('a dictionary page missing');
       this.fromDictionary = true;
       if (this.indices.length < values) this.indices = new Int32Array(Math.max(values, 2 * this.indices.length));
+      // The decoder reads the indices' bit width even on a page of nulls: a page without it goes to the decoder.
+      if (at >= bytes.length) throw new Error('a page ends before its values');
       if (values > 0) {
-        if (at >= bytes.length) throw new Error('a page ends before its values');
         const width = bytes[at]!;
         if (width === 0) this.indices.fill(0, 0, values);
         else readHybrid(bytes, at + 1, bytes.length, width, this.indices, values);
