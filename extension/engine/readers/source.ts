@@ -62,11 +62,15 @@ export async function isGzip(path: string): Promise<boolean> {
  * Columns sized by the compressed size grew by half again time after time: 10M rows peaked at 1.23 GB.
  */
 export async function textSizeHint(path: string): Promise<number> {
+  // A missing file fails here as every read does (statStamp's error).
   const { size } = await statStamp(path);
-  if (size < 18 || !(await isGzip(path))) return size;
+  if (size < 18) return size;
   const fh = await fsp.open(path, 'r');
   try {
+    // The magic bytes and the trailer, in one opening of the file.
+    const head = Buffer.alloc(2);
     const trailer = Buffer.alloc(4);
+    if ((await fh.read(head, 0, 2, 0)).bytesRead < 2 || head[0] !== 0x1f || head[1] !== 0x8b) return size;
     const { bytesRead } = await fh.read(trailer, 0, 4, size - 4);
     return bytesRead === 4 ? Math.max(size, trailer.readUInt32LE(0)) : size;
   } finally {
