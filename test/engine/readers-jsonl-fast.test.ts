@@ -69,6 +69,33 @@ describe('the JSON Lines byte loop', () => {
     expect(fast.queries.get(1)).toBe('drill, cordless 1');
   });
 
+  // Scores as printers write doubles (17 digits, exponents): taken by the loop through Number() of their text, which
+  // is JSON.parse's value for them; one past the double range goes to JSON.parse's line.
+  it('reads 17-digit and exponent numbers itself, to the bit JSON.parse gives, and hands over 1e400', async () => {
+    const scores = ['0.12345678901234568', '-2.2250738585072014e-308', '1E+2', '5e-324', '1e-400', '-0.0e5', '9007199254740993',
+      '123456789012345678901234', '0.1000000000000000055511151231257827', '4.35e-05', '1.7976931348623157e308'];
+    const lines = scores.map((score, r) => `{"query":"q","item":"i${r}","label":${r % 3},"score":${score}}`);
+    const path = tmp.file('fast-long-numbers.jsonl', lines.join('\n') + '\n');
+    const parse = JSON.parse;
+    let parsed = 0;
+    JSON.parse = ((text: string, reviver?: never) => {
+      parsed++;
+      return parse(text, reviver);
+    }) as typeof JSON.parse;
+    let fast: RankedDump;
+    try {
+      fast = await readDump(path);
+    } finally {
+      JSON.parse = parse;
+    }
+    expect(parsed).toBe(1);
+    const [reference] = await readBoth(path);
+    expectSameDump(reference as RankedDump, fast);
+    scores.forEach((score, r) => expect(Object.is(fast.score[r], Number(score)), score).toBe(true));
+    const beyond = tmp.file('fast-beyond.jsonl', [...lines, '{"query":"q","item":"big","label":1,"score":1e400}'].join('\n') + '\n');
+    expectSameOutcome(...(await readBoth(beyond)));
+  });
+
   // The loop reads keys and strings four bytes at a time: a byte it must stop at (a quote, a backslash, a
   // control byte) or a key's differing byte, at every place in a word, and bytes past 0x7f around them.
   const SPECIALS = ['\\"', '\\\\', '\\u0041', '\t', '\u0001', '\u007f', 'ü', '€', '😀', '"'];

@@ -41,6 +41,21 @@ describe('parseNumber equals Number(text) exactly', () => {
     expect(mismatches).toBe(0);
   });
 
+  // Long mantissas and exponents are decoded from the bytes' own range of a larger array (a view into a chunk), so
+  // bytes just outside the field, and the view's offset, must not leak in.
+  it('reads a field inside a larger array, between digits, from a view with an offset', () => {
+    const rnd = seededRandom(77);
+    const cases = ['0.12345678901234568', '1e5', '-4.35E-05', '+7.0e+2', '12345678901234567890', ' 2.5', '3.25 '];
+    for (let i = 0; i < 20_000; i++) cases.push(randomDecimal(rnd));
+    let mismatches = 0;
+    for (const text of cases) {
+      const whole = bytesOf(`98${text}76`);
+      const view = whole.subarray(1);
+      if (!Object.is(parseNumber(view, 1, 1 + text.length), Number(text.trim()))) mismatches++;
+    }
+    expect(mismatches).toBe(0);
+  });
+
   it('refuses what JavaScript accepts but a dump should not hold', () => {
     for (const text of ['0x1F', '0b11', '1_000', '', ' ', '1e', '--1', '1.2.3', 'Infinity', 'NaN', '12abc']) {
       const b = bytesOf(text);

@@ -2,13 +2,14 @@
  * The hot loop for JSON Lines of one row per line: a line whose keys come in the first line's order and
  * whose values are plain is stored from its bytes, with no string decoded and no object built (JSON.parse
  * and a string per value took 2 µs a line: 21 s for 10M rows). Plain means: ids and segments are strings
- * without a backslash; grades and scores are numbers without an exponent (or null); whitespace is spaces
+ * without a backslash; grades and scores are JSON numbers (or null); whitespace is spaces
  * and tabs. Any other line returns false, before anything is stored, and goes to the JSON parser, which
  * stores it or reports the problem: the same rows either way. The text is valid UTF-8 (source.ts checks
  * every byte), so an id's bytes are the UTF-8 of the string JSON.parse would give.
  */
 import type { RowColumns } from './columns';
 import { POW10 } from './delimitedFast';
+import { exponentEnd, strictDecimalValue } from './numbers';
 import type { ResolvedRoles } from './roles';
 
 const QUOTE = 34;
@@ -172,11 +173,13 @@ export class FlatRowScanner {
   }
 
   /**
-   * A JSON number without an exponent, below 2^53 as an integer and at most 22 digits after the point: its value
-   * is the integer divided by an exact power of ten, rounded once, as JSON.parse rounds it. Returns the
-   * position after it, or -1 for any other number (or text that is not JSON).
+   * A JSON number: without an exponent, below 2^53 as an integer and at most 22 digits after the point, its
+   * value is the integer divided by an exact power of ten, rounded once, as JSON.parse rounds it; any other
+   * (an exponent, the 17 digits printers give a double) is Number() of its text, which is what JSON.parse
+   * gives for it. Returns the position after it, or -1 for text that is not a JSON number.
    */
   private plainNumber(buf: Uint8Array, pos: number, end: number, f: number): number {
+    const start = pos;
     const negative = buf[pos] === MINUS;
     if (negative) pos++;
     const first = pos;
@@ -199,12 +202,23 @@ export class FlatRowScanner {
       }
       if (fractionDigits === 0) return -1;
     }
-    if (pos < end && (buf[pos] === 101 || buf[pos] === 69)) return -1;
+    if (pos < end && (buf[pos] === 101 || buf[pos] === 69)) {
+      pos = exponentEnd(buf, pos, end);
+      return pos < 0 ? -1 : this.numberFromText(buf, start, pos, f);
+    }
     // Below 2^53 every partial sum was exact; at or above it one may have rounded.
-    if (mantissa >= TWO_53 || fractionDigits > 22) return -1;
+    if (mantissa >= TWO_53 || fractionDigits > 22) return this.numberFromText(buf, start, pos, f);
     const value = fractionDigits === 0 ? mantissa : mantissa / POW10[fractionDigits]!;
     this.numbers[f] = negative ? -value : value;
     return pos;
+  }
+
+  /** A number past the double range (1e400) is left to the JSON parser's line, which says what it does with it. */
+  private numberFromText(buf: Uint8Array, start: number, end: number, f: number): number {
+    const value = strictDecimalValue(buf, start, end);
+    if (value - value !== 0) return -1;
+    this.numbers[f] = value;
+    return end;
   }
 }
 
