@@ -44,6 +44,14 @@ function number(rnd: () => number, label: boolean): string {
   if (x < 0.88) return '0.' + '1'.repeat(23);
   // Around the largest mantissa the kernel takes (2^53), and 20 digits that are still small.
   if (x < 0.9) return ['9007199254740992', '9007199254740993', '-900719925474099.3', '000000000000000000001.5', '0000000000000000001'][Math.floor(rnd() * 5)]!;
+  // Doubles as printers write them (17 digits, exponents), and exponents outside the normal doubles.
+  if (x < 0.95) {
+    const y = rnd();
+    if (y < 0.5) return String((rnd() - 0.5) * 10 ** Math.floor(rnd() * 12 - 6));
+    if (y < 0.7) return (rnd() * 4 - 2).toExponential(Math.floor(rnd() * 17)).replace('e', rnd() < 0.5 ? 'E' : 'e');
+    return ['1e400', '-1e400', '1e-400', '4.9e-324', '1.e5', '-0e5', '0.00000000000000000000000012345', '12345678901234567890',
+      '7e+0300', '1e99999999999'][Math.floor(rnd() * 10)]!;
+  }
   return String(Math.floor(rnd() * 1000) - 500);
 }
 
@@ -223,9 +231,29 @@ describe('the record kernel', () => {
     }
   });
 
+  // Scores as Python, NumPy or JavaScript print a double: 17 significant digits, or an exponent. The kernel reads
+  // them itself (decimalToDouble), to Number()'s bit.
+  it('doubles as printers write them are the kernel\'s, and read as Number() reads them', async () => {
+    const rnd = seededRandom(5);
+    const texts = Array.from({ length: 3000 }, (_, r) => {
+      const x = (rnd() - 0.3) * 10 ** Math.floor(rnd() * 14 - 8);
+      return r % 3 === 0 ? x.toExponential() : String(x);
+    });
+    const lines = ['query,item,label,score', ...texts.map((t, r) => `q${Math.floor(r / 20)},sku-${r},${r % 4},${t}`)];
+    const before = engineActivity().kernelRows;
+    const [reference, kernelRead] = await readBoth(tmp.file('kernel-printed.csv', lines.join('\n') + '\n'), 1);
+    expect(engineActivity().kernelRows - before).toBe(3000);
+    expectSameDump(reference as RankedDump, kernelRead as RankedDump);
+    expect(texts.every((t, r) => Object.is((kernelRead as RankedDump).score[r], Number(t)))).toBe(true);
+    expect(texts.filter((t) => /e/.test(t)).length).toBeGreaterThan(1000);
+  });
+
   it.each([
     ['text after a closing quote', 'query,item,label,score\n"q",a,1,0.5\n"q",b,1,0.25\n"q"x,c,1,0.1\n'],
     ['a bad number', 'query,item,label,score\nq,a,1,0.5\nq,b,1,0.25\nq,c,x,0.1\n'],
+    ['an exponent without digits', 'query,item,label,score\nq,a,1,0.5\nq,b,1,0.25\nq,c,1,1e+\n'],
+    ['text after an exponent', 'query,item,label,score\nq,a,1,0.5\nq,b,1,0.25\nq,c,1,2E-3x\n'],
+    ['an exponent without a number', 'query,item,label,score\nq,a,1,0.5\nq,b,1,0.25\nq,c,e5,0.1\n'],
   ])('%s is reported with its line, as without the kernel', async (what, text) => {
     const [reference, kernelRead] = await readBoth(tmp.file(`kernel-bad-${what.replace(/\W+/g, '-')}.csv`, text), 1);
     expect(reference).toBeInstanceOf(Error);

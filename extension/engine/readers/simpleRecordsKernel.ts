@@ -20,7 +20,12 @@ interface KernelExports {
   parse(pos: number, limit: number, delimiter: number, line: number, rankIsScore: number): number;
   stoppedAt(): number;
   lineAfter(): number;
+  /** Where the kernel's static data ends. */
+  dataEnd(): number;
 }
+
+/** Bytes at the start of the kernel's memory kept for its static data. */
+const STATIC_ROOM = 32 * 1024;
 
 let lastMade: { readonly module: WasmModule; readonly key: string; readonly kernel: SimpleRecordsKernel } | undefined;
 
@@ -77,28 +82,36 @@ export class SimpleRecordsKernel {
     const fieldCount = roleOf.length;
     let slots = 0;
     this.fields = Array.from(roleOf, (role) => ({ role, slot: isId(role) ? slots++ : -1 }));
-    // Settings, input and outputs, one after another.
-    const rolesAt = 1024;
-    const pow10At = align(rolesAt + 4 * fieldCount);
-    const previousAt = align(pow10At + 8 * POW10.length);
-    const idSlotAt = align(previousAt + 8 * fieldCount);
-    const changeCountAt = align(idSlotAt + 4 * fieldCount);
-    const summaryAt = align(changeCountAt + 4 * fieldCount);
-    const inputAt = align(summaryAt + 8 * 4);
-    // Room after the input: the kernel finds field ends 16 bytes at a time, reading up to 15 bytes past its limit.
-    const idStartAt = align(inputAt + this.pieceBytes + 16);
-    const idEndAt = idStartAt + 4 * slots * this.rowsPerCall;
-    const idHashAt = idEndAt + 4 * slots * this.rowsPerCall;
-    const labelAt = align(idHashAt + 4 * slots * this.rowsPerCall);
-    const scoreAt = labelAt + 8 * this.rowsPerCall;
-    const lineAt = scoreAt + 8 * this.rowsPerCall;
-    const startAt = lineAt + 4 * this.rowsPerCall;
-    const itemEndAt = startAt + 4 * this.rowsPerCall;
-    const itemBytesAt = itemEndAt + 4 * this.rowsPerCall;
-    // The kernel copies item bytes 16 at a time: up to 15 bytes past the last item's end.
-    const changesAt = align(itemBytesAt + (itemBytes ? this.pieceBytes + 16 : 0));
-    const end = changesAt + 4 * slots * this.rowsPerCall;
-    const { exports, memory } = instantiateKernel<KernelExports>(module, end, kernelAbort);
+    // Settings, input and outputs, one after another, after the kernel's own static data (its table of powers
+    // of five, about 10 KB), which the memory's first STATIC_ROOM bytes hold.
+    const layout = (base: number) => {
+      const rolesAt = base;
+      const pow10At = align(rolesAt + 4 * fieldCount);
+      const previousAt = align(pow10At + 8 * POW10.length);
+      const idSlotAt = align(previousAt + 8 * fieldCount);
+      const changeCountAt = align(idSlotAt + 4 * fieldCount);
+      const summaryAt = align(changeCountAt + 4 * fieldCount);
+      const inputAt = align(summaryAt + 8 * 4);
+      // Room after the input: the kernel finds field ends 16 bytes at a time, reading up to 15 bytes past its limit.
+      const idStartAt = align(inputAt + this.pieceBytes + 16);
+      const idEndAt = idStartAt + 4 * slots * this.rowsPerCall;
+      const idHashAt = idEndAt + 4 * slots * this.rowsPerCall;
+      const labelAt = align(idHashAt + 4 * slots * this.rowsPerCall);
+      const scoreAt = labelAt + 8 * this.rowsPerCall;
+      const lineAt = scoreAt + 8 * this.rowsPerCall;
+      const startAt = lineAt + 4 * this.rowsPerCall;
+      const itemEndAt = startAt + 4 * this.rowsPerCall;
+      const itemBytesAt = itemEndAt + 4 * this.rowsPerCall;
+      // The kernel copies item bytes 16 at a time: up to 15 bytes past the last item's end.
+      const changesAt = align(itemBytesAt + (itemBytes ? this.pieceBytes + 16 : 0));
+      const end = changesAt + 4 * slots * this.rowsPerCall;
+      return { rolesAt, pow10At, previousAt, idSlotAt, changeCountAt, summaryAt, inputAt, idStartAt, idEndAt, idHashAt, labelAt, scoreAt,
+        lineAt, startAt, itemEndAt, itemBytesAt, changesAt, end };
+    };
+    const { exports, memory } = instantiateKernel<KernelExports>(module, layout(STATIC_ROOM).end, kernelAbort);
+    if (exports.dataEnd() > STATIC_ROOM) throw new Error(`the record kernel's static data (${exports.dataEnd()} bytes) outgrew its room (${STATIC_ROOM})`);
+    const { rolesAt, pow10At, previousAt, idSlotAt, changeCountAt, summaryAt, inputAt, idStartAt, idEndAt, idHashAt, labelAt, scoreAt,
+      lineAt, startAt, itemEndAt, itemBytesAt, changesAt } = layout(STATIC_ROOM);
     this.kernel = exports;
     const buffer = memory.buffer;
     new Int32Array(buffer, rolesAt, fieldCount).set(roleOf);

@@ -21,7 +21,12 @@ async function compileKernel(source, outFile, virtual = {}) {
 }
 
 export async function compileRecordKernel(outFile) {
-  await compileKernel(join(here, 'simpleRecords.ts'), outFile);
+  await compileKernel(join(here, 'simpleRecords.ts'), outFile, { 'powersOfFive128.ts': powersOfFive128Source() });
+}
+
+/** decimalToDouble.ts alone, its function exported (the decimal tests call it directly). */
+export async function compileDecimalKernel(outFile) {
+  await compileKernel(join(here, 'decimalToDouble.ts'), outFile, { 'powersOfFive128.ts': powersOfFive128Source() });
 }
 
 export async function compileKeySortKernel(outFile) {
@@ -52,4 +57,34 @@ export function powersOfFiveSource() {
   }
   return `// Made by compile.mjs.\nexport const POW5_SPLIT: StaticArray<u64> = [${split.join(', ')}];\n` +
     `export const POW5_INV_SPLIT: StaticArray<u64> = [${inverse.join(', ')}];\n`;
+}
+
+/**
+ * The Eisel–Lemire table (decimalToDouble.ts), computed exactly with BigInt: for each q from -342 to 308, 5^q
+ * scaled into [2^127, 2^128), as two u64 (high word first). A positive power is truncated; a negative one is
+ * the quotient 2^b / 5^-q plus one, b giving 128 bits for q >= -27 and 128 more bits truncated below that (as
+ * Lemire's paper describes the table, recalled from memory; the decimal tests compare every use with Number()).
+ */
+export function powersOfFive128Source() {
+  const SMALLEST = -342;
+  const LARGEST = 308;
+  const mask = (1n << 64n) - 1n;
+  const entries = [];
+  for (let q = SMALLEST; q <= LARGEST; q++) {
+    let c;
+    if (q < 0) {
+      const power = 5n ** BigInt(-q);
+      const z = BigInt(power.toString(2).length); // 2^z > power > 2^(z-1): 5^k is never a power of two
+      c = (1n << (q >= -27 ? z + 127n : 2n * z + 128n)) / power + 1n;
+      while (c >= 1n << 128n) c >>= 1n;
+    } else {
+      c = 5n ** BigInt(q);
+      while (c < 1n << 127n) c <<= 1n;
+      while (c >= 1n << 128n) c >>= 1n;
+    }
+    if (c < 1n << 127n || c >= 1n << 128n) throw new Error(`powers of five: entry ${q} is not 128 bits`);
+    entries.push(`0x${(c >> 64n).toString(16)}`, `0x${(c & mask).toString(16)}`);
+  }
+  return `// Made by compile.mjs.\nexport const SMALLEST_POWER_OF_TEN: i32 = ${SMALLEST};\nexport const LARGEST_POWER_OF_TEN: i32 = ${LARGEST};\n` +
+    `export const POWERS_OF_FIVE_128: StaticArray<u64> = [${entries.join(', ')}];\n`;
 }

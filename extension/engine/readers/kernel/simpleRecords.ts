@@ -12,6 +12,8 @@
 // Memory layout (byte offsets set by the host with `layout`): the settings block, the input bytes,
 // then one column of rows per output.
 
+import { decimalToDouble } from './decimalToDouble';
+
 const LF: u32 = 10;
 const CR: u32 = 13;
 const MINUS: u32 = 45;
@@ -20,6 +22,10 @@ const QUOTE: u32 = 34;
 const HASH_SEED: i32 = 0x811c9dc5;
 const HASH_PRIME: i32 = 0x01000193;
 const TWO_53: u64 = 9007199254740992;
+const LOWER_E: u32 = 101;
+const PLUS: u32 = 43;
+// Exponents past this many digits are clamped (10^±99999 is far outside the doubles either way).
+const EXPONENT_CAP: i32 = 99999;
 
 // Roles, as in delimitedFast.ts; a field of no role (below 0) is skipped unread.
 const ROLE_QUERY: i32 = 0;
@@ -88,6 +94,11 @@ let missing: i32 = 0;
 let lowest: f64 = Infinity;
 let highest: f64 = -Infinity;
 
+/** Where the static data (the powers of five) ends: the host lays out its blocks after it. */
+export function dataEnd(): usize {
+  return __heap_base;
+}
+
 export function stoppedAt(): u32 {
   return endPosition;
 }
@@ -111,6 +122,32 @@ export function lineAfter(): u32 {
     if (found != 0) return at + ctz(found);
     at += 16;
   }
+}
+
+let lastExponent: i32 = 0;
+
+/**
+ * The exponent's sign and digits from `p` (just past the e), up to `e`: into lastExponent (clamped to
+ * ±EXPONENT_CAP). Returns where the digits stopped; `e` when the field ends there with at least one digit.
+ */
+function parseExponent(p: usize, e: usize): usize {
+  let sign: i32 = 1;
+  if (p < e) {
+    const b = <u32>load<u8>(p);
+    if (b == MINUS || b == PLUS) {
+      if (b == MINUS) sign = -1;
+      p++;
+    }
+  }
+  const first = p;
+  let value: i32 = 0;
+  for (; p < e; p++) {
+    const d = <u32>load<u8>(p) - 48;
+    if (d > 9) break;
+    if (value < EXPONENT_CAP) value = value * 10 + <i32>d;
+  }
+  lastExponent = sign * min(value, EXPONENT_CAP);
+  return p > first ? p : first - 1;
 }
 
 /**
@@ -204,36 +241,56 @@ export function parse(pos: u32, limit: u32, delimiter: u32, line: u32, rankIsSco
           hash = finishHash(h);
         }
       } else if (role >= 0) {
-        // A plain decimal: an optional minus, digits and at most one dot. The digits are summed as an
-        // integer, exact up to 19 digits (the float sum they replace was exact up to 2^53, the largest
-        // mantissa taken), then divided once by the power of ten, as the JavaScript parsers do.
+        // A decimal: an optional minus, digits with at most one dot, an optional exponent. The significant
+        // digits are summed as an integer, exact up to 19 of them. Without an exponent and up to 2^53 it is
+        // divided once by the power of ten, as the JavaScript parsers do (exact: see numbers.ts); otherwise
+        // (the 17 digits printers give a double, an exponent) decimalToDouble rounds it, or leaves it to them.
         let p = s;
         const negative = p < e && <u32>load<u8>(p) == MINUS;
         if (negative) p++;
         let mantissa: u64 = 0;
         let digits: i32 = 0;
+        let significant: i32 = 0;
         let fraction: i32 = -1;
         let plain = true;
+        let exponent: i32 = 0;
+        let hasExponent = false;
         for (; p < e; p++) {
           const b = <u32>load<u8>(p);
           const d = b - 48;
           if (d <= 9) {
             mantissa = mantissa * 10 + <u64>d;
             digits++;
+            if (mantissa != 0) significant++;
           } else if (b == DOT && fraction < 0) {
             fraction = digits;
+          } else if ((b | 0x20) == LOWER_E && digits > 0) {
+            p = parseExponent(p + 1, e);
+            hasExponent = p == e;
+            plain = hasExponent;
+            exponent = lastExponent;
+            break;
           } else {
             plain = false;
             break;
           }
         }
         const fractionDigits = fraction < 0 ? 0 : digits - fraction;
-        if (plain && digits > 0 && digits <= 19 && mantissa <= TWO_53 && fractionDigits <= 22) {
-          const m = <f64>mantissa;
-          value = fractionDigits == 0 ? m : m / load<f64>(pow10At + (<usize>fractionDigits << 3));
-          if (negative) value = -value;
+        if (plain && digits > 0 && significant <= 19) {
+          if (!hasExponent && mantissa <= TWO_53 && fractionDigits <= 22) {
+            const m = <f64>mantissa;
+            value = fractionDigits == 0 ? m : m / load<f64>(pow10At + (<usize>fractionDigits << 3));
+            if (negative) value = -value;
+          } else {
+            value = decimalToDouble(mantissa, exponent - fractionDigits, negative);
+            if (isNaN(value)) {
+              ok = false;
+              break;
+            }
+          }
         } else {
-          // Not a plain decimal (empty, NaN, an exponent, ...): the JavaScript parsers take this record.
+          // Not a decimal this loop reads (empty, NaN, more than 19 significant digits, ...): the JavaScript
+          // parsers take this record.
           ok = false;
           break;
         }
