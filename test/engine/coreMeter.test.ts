@@ -7,7 +7,7 @@ import { spawn } from 'node:child_process';
 import { availableParallelism } from 'node:os';
 import { describe, expect, it } from 'vitest';
 import { CoreMeter, type CoreSample } from '../../extension/engine/evaluate/coreMeter';
-import { scoringThreads } from '../../extension/engine/threads/parallelEvaluate';
+import { scoringThreads, scoringWork } from '../../extension/engine/threads/parallelEvaluate';
 
 function scripted(samples: CoreSample[]): () => CoreSample {
   let k = 0;
@@ -67,5 +67,12 @@ describe('scoringThreads', () => {
     expect(scoringThreads(10_000_000, undefined, 64)).toBe(1);
     expect(scoringThreads(10_000_000, 3, 64)).toBe(3);
     expect(scoringThreads(1_000, undefined, 0)).toBe(1);
+  });
+
+  // A million one-row queries cost 1.25 s to score on one thread, three times a million rows in long queries.
+  it('counts short queries as more work than their rows', () => {
+    expect(scoringThreads(scoringWork(1_000_000, 1_000_000), undefined, 0)).toBe(Math.min(4, availableParallelism()));
+    expect(scoringThreads(scoringWork(1_000_000, 10_000), undefined, 0)).toBe(1);
+    expect(scoringWork(1_000_000, 0)).toBe(1_000_000);
   });
 });
