@@ -109,6 +109,8 @@ export interface EngineActivity {
   liveThreads: number;
   /** Rows stored from the record kernel's output in this thread, ever. */
   kernelRows: number;
+  /** Bytes of text copied into the record kernel's memory in this thread, ever. */
+  kernelBytesCopied: number;
   /** Dumps whose dump-wide item ids were made from item bytes kept per row (model/rowTexts.ts), ever. */
   itemIdsMade: number;
   /** Chunks of report text other threads rendered for this thread (threads/renderInOrder.ts), ever. */
@@ -126,7 +128,7 @@ export interface EngineActivity {
 }
 
 const activity: EngineActivity = {
-  liveThreads: 0, kernelRows: 0, itemIdsMade: 0, chunksRenderedElsewhere: 0, queriesKeyedElsewhere: 0, parquetPagePieces: 0, parquetTypedPages: 0,
+  liveThreads: 0, kernelRows: 0, kernelBytesCopied: 0, itemIdsMade: 0, chunksRenderedElsewhere: 0, queriesKeyedElsewhere: 0, parquetPagePieces: 0, parquetTypedPages: 0,
   rangesCompacted: 0, rangesMergedByCopying: 0,
 };
 

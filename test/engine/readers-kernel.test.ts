@@ -248,9 +248,71 @@ describe('the record kernel', () => {
     expect(texts.filter((t) => /e/.test(t)).length).toBeGreaterThan(1000);
   });
 
+  // Unjudged rows are common (a run's items nobody graded): written empty, or as NaN, NA, null... by the tool that
+  // wrote the dump. The kernel reads them as the careful parser does, as missing (delimited.ts, numbers.ts).
+  it('missing grades and scores in any spelling are the kernel\'s, read as the careful parser reads them', async () => {
+    const words = ['', 'NaN', 'nan', 'NA', 'na', 'N/A', 'n/a', 'null', 'NULL', 'None', 'none', '?'];
+    const lines = ['query,item,label,score'];
+    let unjudged = 0;
+    let missing = 0;
+    for (let r = 0; r < 3000; r++) {
+      const label = r % 3 === 0 ? words[(r / 3) % words.length]! : String(r % 4);
+      const score = r % 5 === 0 ? words[(r / 5) % words.length]! : String((r % 97) / 8);
+      if (r % 3 === 0) unjudged++;
+      if (r % 5 === 0) missing++;
+      lines.push(`q${Math.floor(r / 10)},sku-${r},${label},${score}`);
+    }
+    const before = engineActivity().kernelRows;
+    const [reference, kernelRead] = await readBoth(tmp.file('kernel-missing.csv', lines.join('\n') + '\n'), 1);
+    expect(engineActivity().kernelRows - before).toBe(3000);
+    expectSameDump(reference as RankedDump, kernelRead as RankedDump);
+    expect((kernelRead as RankedDump).notes.unjudgedRows).toBe(unjudged);
+    expect((kernelRead as RankedDump).notes.missingScoreRows).toBe(missing);
+    // Padded words, a missing rank and words that only look missing go to JavaScript, and read the same.
+    const odd = ['query,item,label,rank', 'q,a, NaN ,1', 'q,b,1,', 'q,c,2,NA', 'q,d,nan,3', 'q,e,N/A,4'];
+    const [oddReference, oddRead] = (await readBoth(tmp.file('kernel-missing-odd.csv', odd.join('\n') + '\n'), 1)) as [RankedDump, RankedDump];
+    expectSameDump(oddReference, oddRead);
+    expect(Array.from(oddRead.label, (v) => (Number.isNaN(v) ? 'missing' : v))).toEqual(['missing', 1, 2, 'missing', 'missing']);
+    expect(Array.from(oddRead.score, (v) => (Number.isNaN(v) ? 'missing' : v))).toEqual([-1, 'missing', 'missing', -3, -4]);
+    // An infinite score is missing too (a grade must be finite: see the refusals below); padding is trimmed.
+    const infinite = ['query,item,label,score', 'q,a,1,inf', 'q,b,1,-Infinity', 'q,c,1,1e400', 'q,d,1, 2 '];
+    const [infReference, infRead] = (await readBoth(tmp.file('kernel-infinite.csv', infinite.join('\n') + '\n'), 1)) as [RankedDump, RankedDump];
+    expectSameDump(infReference, infRead);
+    expect(Array.from(infRead.score, (v) => (Number.isNaN(v) ? 'missing' : v))).toEqual(['missing', 'missing', 'missing', 2]);
+  });
+
+  it('a file with every field quoted is the kernel\'s, numbers and missing values too', async () => {
+    const lines = ['"query","item","label","score"'];
+    for (let r = 0; r < 3000; r++) lines.push(`"drill, cordless ${Math.floor(r / 7)}","sku-${r}","${r % 7 === 0 ? '' : r % 5}","${(r % 97) / 8}"`);
+    const before = engineActivity().kernelRows;
+    const [reference, kernelRead] = await readBoth(tmp.file('kernel-all-quoted.csv', lines.join('\n') + '\n'), 1);
+    expect(engineActivity().kernelRows - before).toBe(3000);
+    expectSameDump(reference as RankedDump, kernelRead as RankedDump);
+    expect((kernelRead as RankedDump).score[3]).toBe(3 / 8);
+  });
+
+  // Each call copies a piece of text into the kernel's memory. A call that stops after one record used to be
+  // followed by another full piece (1 MB), so a record the careful parser takes on every other line made a
+  // 10M-row read take a minute: the copies must stay near what the kernel reads.
+  it('records left to the careful parser on every other line cost small copies, not whole pieces', async () => {
+    const lines = ['query,item,label,score'];
+    for (let r = 0; r < 60_000; r++) lines.push(`${r % 2 === 0 ? `"drill ""pro"" ${r >> 4}"` : `drill ${r >> 4}`},sku-${r},${r % 5},${(r % 97) / 8}`);
+    const text = lines.join('\n') + '\n';
+    configureEngine({ tuning: { recordKernel: true, kernelPieceBytes: DEFAULT_TUNING.kernelPieceBytes } });
+    const before = engineActivity().kernelBytesCopied;
+    const [reference, kernelRead] = await readBoth(tmp.file('kernel-every-other.csv', text), 1);
+    const copied = engineActivity().kernelBytesCopied - before;
+    expectSameDump(reference as RankedDump, kernelRead as RankedDump);
+    expect(copied).toBeGreaterThan(0);
+    expect(copied).toBeLessThan(text.length + 2 * 4096 * 30_000);
+  });
+
   it.each([
     ['text after a closing quote', 'query,item,label,score\n"q",a,1,0.5\n"q",b,1,0.25\n"q"x,c,1,0.1\n'],
     ['a bad number', 'query,item,label,score\nq,a,1,0.5\nq,b,1,0.25\nq,c,x,0.1\n'],
+    ['an infinite grade', 'query,item,label,score\nq,a,1,0.5\nq,b,1,0.25\nq,c,inf,0.1\n'],
+    ['a word that only looks missing', 'query,item,label,score\nq,a,1,0.5\nq,b,1,0.25\nq,c,nann,0.1\n'],
+    ['a quoted bad number', 'query,item,label,score\nq,a,"1",0.5\nq,b,1,"0.25"\nq,c,"1x",0.1\n'],
     ['an exponent without digits', 'query,item,label,score\nq,a,1,0.5\nq,b,1,0.25\nq,c,1,1e+\n'],
     ['text after an exponent', 'query,item,label,score\nq,a,1,0.5\nq,b,1,0.25\nq,c,1,2E-3x\n'],
     ['an exponent without a number', 'query,item,label,score\nq,a,1,0.5\nq,b,1,0.25\nq,c,e5,0.1\n'],

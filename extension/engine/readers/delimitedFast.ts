@@ -1,13 +1,14 @@
 /**
- * The hot loop for delimited text: complete records without quoted fields and with plain numbers, parsed in one
- * pass with everything in locals. Any record it is unsure about (quotes, wrong field count, odd
- * control bytes, a number that is not a plain decimal) is left to the careful parser, which then
+ * The hot loop for delimited text: complete records without quoted fields, whose numbers are decimals or missing
+ * (empty, NaN, NA, null, ...), parsed in one pass with everything in locals. Any record it is unsure about
+ * (quotes, wrong field count, odd control bytes, a number it cannot read, a missing rank) is left to the careful
+ * parser, which then
  * either stores it or reports the problem with its line. Stopping early has no visible effect:
  * interning is idempotent and a row is only counted once all of its fields are stored.
  */
 import type { RowColumns } from './columns';
 import { finishHash, HASH_PRIME, HASH_SEED } from '../model/bytePool';
-import { parseNumber } from './numbers';
+import { describeNonNumber, parseNumber } from './numbers';
 
 const TWO_53 = 2 ** 53;
 /** Exact powers of ten for plain decimals (the WebAssembly kernel is given these same values). */
@@ -185,8 +186,13 @@ export function parseSimpleRecords(state: FastState, buf: Buffer, pos: number, l
           }
           value = parseNumber(buf, s, pos);
           if (value - value !== 0) {
-            ok = false;
-            break;
+            // A missing grade or score (empty, NaN, NA, null, ...) and an infinite score are NaN, as the careful
+            // parser reads them (delimited.ts); anything else, and any rank, is that parser's to report.
+            if (role === ROLE_RANK || (value === value ? role !== ROLE_SCORE : describeNonNumber(buf, s, pos) !== 'missing')) {
+              ok = false;
+              break;
+            }
+            value = NaN;
           }
         }
       }

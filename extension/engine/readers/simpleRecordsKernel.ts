@@ -31,6 +31,8 @@ let lastMade: { readonly module: WasmModule; readonly key: string; readonly kern
 
 /** After the kernel stops early this often in a row, the JavaScript loop takes longer runs (e.g. every score has an exponent). */
 const JS_RUN_AFTER_SHORT_CALL = 256;
+/** The least text copied in for a call after one that stopped early. */
+const SMALL_PIECE = 4096;
 
 const align = (n: number) => (n + 7) & ~7;
 
@@ -60,6 +62,8 @@ export class SimpleRecordsKernel {
   private readonly batchHashes = new Int32Array(64);
   private readonly rowsPerCall = engineSettings().tuning.kernelRowsPerCall;
   private readonly pieceBytes = engineSettings().tuning.kernelPieceBytes;
+  /** The next piece's size: the whole room, or less after calls that stopped early. */
+  private piece = this.pieceBytes;
 
   /**
    * Undefined when no compiled kernel is available. `itemBytes`: the kernel also copies the item fields
@@ -139,14 +143,20 @@ export class SimpleRecordsKernel {
   parse(state: FastState, buf: Buffer, pos: number, limit: number, base: number): number {
     let shortCalls = 0;
     while (pos < limit) {
-      let pieceEnd = Math.min(limit, pos + this.pieceBytes);
+      let pieceEnd = Math.min(limit, pos + this.piece);
       if (pieceEnd < limit) {
         // Pieces end at a line start, as the kernel expects of its limit.
         const lf = buf.lastIndexOf(10, pieceEnd - 1);
+        if (lf < pos && this.piece < this.pieceBytes) {
+          // A line longer than a small piece: the whole room, before handing the rest to JavaScript.
+          this.piece = this.pieceBytes;
+          continue;
+        }
         pieceEnd = lf >= pos ? lf + 1 : pos;
       }
       if (pieceEnd === pos) return parseSimpleRecords(state, buf, pos, limit, base);
       this.bytes.set(buf.subarray(pos, pieceEnd), this.input);
+      engineActivity().kernelBytesCopied += pieceEnd - pos;
       // The kernel's field scans stop at this byte at the latest (kernel/simpleRecords.ts).
       this.bytes[this.input + (pieceEnd - pos)] = 0;
       const rows = this.kernel.parse(this.input, this.input + (pieceEnd - pos), state.delimiter, state.line, state.rankStandsInForScore ? 1 : 0);
@@ -154,9 +164,14 @@ export class SimpleRecordsKernel {
       state.line = this.kernel.lineAfter();
       const next = pos + (this.kernel.stoppedAt() - this.input);
       if (next === pieceEnd || rows === this.rowsPerCall) {
+        this.piece = Math.min(this.pieceBytes, this.piece * 2);
         pos = next;
         continue;
       }
+      // Copying a whole piece for a call that stops after a few records cost more than the records (a record
+      // the kernel leaves every other line made a 10M-row read take a minute): the next pieces are about
+      // twice what this call read, growing back as calls read them whole.
+      this.piece = Math.min(this.pieceBytes, Math.max(SMALL_PIECE, 2 * (next - pos)));
       // The kernel stopped early at a record it is unsure about: the JavaScript loop takes it (and a longer
       // run when this keeps happening), or returns it to the careful parser.
       shortCalls = rows < 16 ? shortCalls + 1 : 0;

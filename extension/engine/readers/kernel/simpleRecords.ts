@@ -1,12 +1,12 @@
 // AssemblyScript, compiled to WebAssembly by build.mjs (not part of the TypeScript program).
 //
 // The byte loop of delimited text, for the records delimitedFast.ts takes (complete records whose
-// numbers are plain decimals), and also those whose id fields are quoted simply (no doubled quote, no
+// numbers are decimals or missing), and also those whose fields are quoted simply (no doubled quote, no
 // line end inside). It cuts fields, hashes id fields, compares query and segment fields with the
 // previous row's bytes and parses numbers, writing one row of plain values per record; interning stays
 // in JavaScript. Any record it is unsure about ends the call and is left to the JavaScript parsers, so
 // everything here must give bit-identical results to delimitedFast.ts, and to the careful parser for
-// quoted ids (the equivalence tests compare them on random files). A loop in WebAssembly runs without the
+// quoted fields (the equivalence tests compare them on random files). A loop in WebAssembly runs without the
 // bounds checks and type guards of the same loop in JavaScript, which made it the cheaper one.
 //
 // Memory layout (byte offsets set by the host with `layout`): the settings block, the input bytes,
@@ -126,6 +126,28 @@ export function lineAfter(): u32 {
 
 let lastExponent: i32 = 0;
 
+/** The byte at `p`, as lower case when it is a letter of A to Z. */
+@inline function lower(p: usize): u32 {
+  const b = <u32>load<u8>(p);
+  return b - 65 < 26 ? b | 0x20 : b;
+}
+
+/** Whether [s, e) is empty or one of the missing-value words, in any case and without spaces: nan, na, n/a, null, none, ?. */
+function isMissingWord(s: usize, e: usize): bool {
+  const length = e - s;
+  if (length == 0) return true;
+  if (length > 4) return false;
+  const first = lower(s);
+  if (length == 1) return first == 63; // ?
+  if (first != 110) return false; // n
+  const second = lower(s + 1);
+  if (length == 2) return second == 97; // na
+  const third = lower(s + 2);
+  if (length == 3) return (second == 97 && third == 110) || (second == 47 && third == 97); // nan, n/a
+  const fourth = lower(s + 3);
+  return (second == 117 && third == 108 && fourth == 108) || (second == 111 && third == 110 && fourth == 101); // null, none
+}
+
 /**
  * The exponent's sign and digits from `p` (just past the e), up to `e`: into lastExponent (clamped to
  * ±EXPONENT_CAP). Returns where the digits stopped; `e` when the field ends there with at least one digit.
@@ -195,13 +217,9 @@ export function parse(pos: u32, limit: u32, delimiter: u32, line: u32, rankIsSco
       // Where the field's text ends: `e`, or after the closing quote of a quoted field.
       let after = pos;
       if (pos < limit && <u32>load<u8>(pos) == QUOTE) {
-        // A quoted field (RFC 4180) is an id's text when it holds no quote and no control byte (no doubled
-        // quote, no line end) and its closing quote ends the field; anything else, and a quoted number, is
-        // the careful parser's. A quote inside an unquoted field is text, as the careful parser takes it.
-        if (!isId && role >= 0) {
-          ok = false;
-          break;
-        }
+        // A quoted field (RFC 4180) is an id's text, or a number's, when it holds no quote and no control byte
+        // (no doubled quote, no line end) and its closing quote ends the field; anything else is the careful
+        // parser's. A quote inside an unquoted field is text, as the careful parser takes it.
         const q = firstOf(pos + 1, quoteBytes, controlBytes);
         if (q >= limit || <u32>load<u8>(q) != QUOTE) {
           ok = false;
@@ -240,6 +258,11 @@ export function parse(pos: u32, limit: u32, delimiter: u32, line: u32, rankIsSco
           for (let p = s; p < e; p++) h = (h ^ <i32>load<u8>(p)) * HASH_PRIME;
           hash = finishHash(h);
         }
+      } else if (role >= 0 && role != ROLE_RANK && isMissingWord(s, e)) {
+        // An empty field, or NaN, NA, N/A, null, None or ? in any case: a grade or score that is missing, as the
+        // careful parser reads it (numbers.ts, describeNonNumber). A rank stays the JavaScript parsers' (its
+        // negation would have to give their NaN's bits).
+        value = NaN;
       } else if (role >= 0) {
         // A decimal: an optional minus, digits with at most one dot, an optional exponent. The significant
         // digits are summed as an integer, exact up to 19 of them. Without an exponent and up to 2^53 it is
