@@ -2,7 +2,9 @@
  * JSON Lines, in one of two shapes chosen from the first line:
  * - one row per line: `{"query_id": "q1", "item_id": "sku-1", "label": 2, "score": 0.4, "locale": "en"}`
  * - one list per line: `{"query": "q1", "items": [...], "labels": [...], "scores": [...]}` (equal lengths)
- * Every row of a list shares the list's line number and byte offset.
+ * Every row of a list shares the list's line number and byte offset. A line whose roles read as one row,
+ * with an item that is not an array, is a row even when other fields hold arrays or objects (a feature
+ * vector, an embedding, request details): those fields are not segments, and are read past.
  */
 import { promises as fsp } from 'node:fs';
 import { engineSettings } from '../config';
@@ -18,6 +20,13 @@ import { FlatRowScanner } from './jsonLinesFast';
 
 type Json = Record<string, unknown>;
 
+/** What a range of a file read in ranges is told of the file's lines (learnt from its head). */
+export interface JsonShape {
+  readonly keys: readonly string[];
+  readonly list: boolean;
+  readonly nested: readonly string[];
+}
+
 /** Bytes per item id, a first guess for the row texts' store. */
 const ITEM_BYTES_GUESS = 16;
 /** Lines read before the columns are sized for the whole file. */
@@ -26,6 +35,8 @@ const SIZE_AFTER_LINES = 4096;
 interface Shape {
   readonly list: boolean;
   readonly keys: readonly string[];
+  /** Rows only: the keys whose first-line value is an array or object, read past rather than kept as segments. */
+  readonly nested: readonly string[];
   readonly roles: ResolvedRoles;
   readonly rankStandsInForScore: boolean;
 }
@@ -55,6 +66,8 @@ export interface JsonLinesHead {
   readonly keys: readonly string[];
   /** True when a line holds lists (a query's rows), false for one row per line. */
   readonly list: boolean;
+  /** Rows only: keys whose value is an array or object on the first line (not segments). */
+  readonly nested: readonly string[];
   /** The columns and notes the first line gives the read. */
   readonly rows: RowColumns;
   /** Bytes per row over the head's whole lines (a line of lists holds many rows). */
@@ -75,7 +88,7 @@ export function jsonLinesHead(path: string, head: Buffer, columns: ReadOptions['
     const shape = parser.learnedShape;
     const rows = parser.rows;
     if (shape === undefined || rows === undefined || rows.count === 0) return undefined;
-    return { keys: shape.keys, list: shape.list, rows, bytesPerRow: read / rows.count };
+    return { keys: shape.keys, list: shape.list, nested: shape.nested, rows, bytesPerRow: read / rows.count };
   } catch {
     return undefined;
   }
@@ -109,14 +122,14 @@ export class JsonLinesParser {
     private readonly file: string,
     private readonly columns: ReadOptions['columns'],
     private readonly fileBytes: number,
-    /** A range's: the shape of the file (its first line's keys, and whether lines hold lists), and the shared slice its rows go to. */
-    range?: { readonly keys: readonly string[]; readonly list: boolean; readonly shared?: SharedColumns },
+    /** A range's: the shape of the file (its first line's keys, whether lines hold lists, which keys are nested), and the shared slice its rows go to. */
+    range?: JsonShape & { readonly shared?: SharedColumns },
   ) {
-    if (range !== undefined) this.adoptShape(range.keys, range.list, { file, line: 0, text: '' }, range.shared);
+    if (range !== undefined) this.adoptShape(range.keys, range.list, range.nested, { file, line: 0, text: '' }, range.shared);
   }
 
   /** The shape the first line set (or the range was given). */
-  get learnedShape(): { readonly keys: readonly string[]; readonly list: boolean } | undefined {
+  get learnedShape(): JsonShape | undefined {
     return this.shape;
   }
 
@@ -148,13 +161,32 @@ export class JsonLinesParser {
     else this.storeRow(obj, shape, offset, text);
   }
 
+  /**
+   * Rows unless a field holds an array and the roles do not read as one row whose item is a plain value
+   * (then lists, under the list names: items, labels, scores).
+   */
   private learnShape(obj: Json, text: string): Shape {
     const keys = Object.keys(obj);
-    return this.adoptShape(keys, keys.some((k) => Array.isArray(obj[k])), { file: this.file, line: this.line, text });
+    const at = { file: this.file, line: this.line, text };
+    const nested = keys.filter((k) => obj[k] !== null && typeof obj[k] === 'object');
+    const list = nested.some((k) => Array.isArray(obj[k])) && !this.readsAsRow(keys, obj, at);
+    return this.adoptShape(keys, list, list ? [] : nested, at);
   }
 
-  private adoptShape(keys: readonly string[], list: boolean, at: { file: string; line: number; text: string }, shared?: SharedColumns): Shape {
-    const roles = resolveRoles(keys, everyColumn(this.columns), at, list ? LIST_ROLE_NAMES : undefined);
+  private readsAsRow(keys: readonly string[], obj: Json, at: { file: string; line: number; text: string }): boolean {
+    let roles: ResolvedRoles;
+    try {
+      roles = resolveRoles(keys, everyColumn(this.columns), at);
+    } catch {
+      return false;
+    }
+    return [roles.query, roles.item, roles.label, roles.score, roles.rank].every((i) => i < 0 || !Array.isArray(obj[keys[i]!]));
+  }
+
+  private adoptShape(keys: readonly string[], list: boolean, nested: readonly string[], at: { file: string; line: number; text: string },
+    shared?: SharedColumns): Shape {
+    const resolved = resolveRoles(keys, everyColumn(this.columns), at, list ? LIST_ROLE_NAMES : undefined);
+    const roles = nested.length === 0 ? resolved : { ...resolved, segments: resolved.segments.filter((i) => !nested.includes(keys[i]!)) };
     // Item bytes kept per row, not interned dump-wide (model/rowTexts.ts): millions of distinct ids cost a
     // table lookup per row that misses the caches; scoring needs only keys within each query.
     const rows = new RowColumns(roles.segments.map((i) => keys[i]!), 1024, shared, ITEM_BYTES_GUESS);
@@ -164,7 +196,7 @@ export class JsonLinesParser {
         : `ranked by score; the rank field '${keys[roles.rank]}' is ignored`);
     }
     this.rows = rows;
-    this.shape = { list, keys, roles, rankStandsInForScore: roles.score < 0 };
+    this.shape = { list, keys, nested, roles, rankStandsInForScore: roles.score < 0 };
     if (!list && engineSettings().tuning.jsonLinesFastRows) this.fast = new FlatRowScanner(keys, roles, roles.score < 0);
     return this.shape;
   }

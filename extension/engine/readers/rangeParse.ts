@@ -14,7 +14,7 @@ import type { RowTextsState } from '../model/rowTexts';
 import type { RowSummary } from '../model/rowSummary';
 import { ROW_COLUMN_NAMES, rowArray, rowArrays, type RowArrays, type RowColumns, type SharedColumns } from './columns';
 import { DelimitedParser } from './delimited';
-import { JsonLinesParser } from './jsonLines';
+import { JsonLinesParser, type JsonShape } from './jsonLines';
 import { columnsOf, readParquetTask, type ParquetTask } from './parquet';
 import type { ColumnRoles } from './roles';
 import { LineSink, pumpRange, type ReadBuffers, type RecordSink } from './source';
@@ -27,7 +27,7 @@ export interface RangeTask {
   readonly delimiter: number;
   readonly names: string[];
   /** JSON Lines: the first line's keys and whether lines hold lists (delimiter and names are then unused). */
-  readonly json?: { readonly keys: readonly string[]; readonly list: boolean };
+  readonly json?: JsonShape;
   /** Parquet: the pieces to read (start and end then count rows, for progress; nothing else is used). */
   readonly parquet?: ParquetTask;
   readonly columns?: ColumnRoles;

@@ -65,7 +65,7 @@ export async function readParallelJsonLines(path: string, threads: number, optio
     const head = jsonLinesHead(path, await fileHead(path), options.columns);
     if (head === undefined) return undefined;
     return textPlan(stamp, { path, format: 'jsonl', firstByte: 0, linesBefore: 0, bytesPerRow: head.bytesPerRow, rowsPerLine: !head.list, headerRows: head.rows,
-      task: { delimiter: 0, names: [], json: { keys: head.keys, list: head.list } }, empty: () => emptyJsonLines(path) }, options);
+      task: { delimiter: 0, names: [], json: { keys: head.keys, list: head.list, nested: head.nested } }, empty: () => emptyJsonLines(path) }, options);
   });
 }
 
