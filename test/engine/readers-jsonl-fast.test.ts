@@ -96,6 +96,36 @@ describe('the JSON Lines byte loop', () => {
     expectSameOutcome(...(await readBoth(beyond)));
   });
 
+  // Item and query ids are often numbers: integers of up to 15 digits are the loop's (their digits are the id
+  // String() gives); anything else (16 digits, -0, a fraction, an exponent, a leading zero) goes to JSON.parse.
+  it('reads integer ids itself, as JSON.parse and String() give them, and hands over other numbers', async () => {
+    const ids = ['0', '7', '-12', '123456789012345', '-999999999999999'];
+    const lines = ids.flatMap((id, k) => [id, String(100 + 10 * k), String(101 + 10 * k)].map((item, r) => `{"query":${k},"item":${item},"label":${r},"score":0.5}`));
+    const path = tmp.file('fast-integer-ids.jsonl', lines.join('\n') + '\n');
+    const parse = JSON.parse;
+    let parsed = 0;
+    JSON.parse = ((text: string, reviver?: never) => {
+      parsed++;
+      return parse(text, reviver);
+    }) as typeof JSON.parse;
+    let fast: RankedDump;
+    try {
+      fast = await readDump(path);
+    } finally {
+      JSON.parse = parse;
+    }
+    expect(parsed).toBe(1);
+    const [reference] = await readBoth(path);
+    expectSameDump(reference as RankedDump, fast);
+    expect(fast.queries.get(fast.query[12]!)).toBe('4');
+    expect(fast.items.get(fast.item[12]!)).toBe('-999999999999999');
+    for (const other of ['1234567890123456', '-0', '1.0', '1e3', '2.5', '-5']) {
+      const text = ['{"query":"q","item":"a","label":1,"score":0.5}', `{"query":"q","item":${other},"label":2,"score":0.25}`].join('\n') + '\n';
+      const [ref, read] = await readBoth(tmp.file(`fast-id-${other}.jsonl`, text));
+      expectSameOutcome(ref, read);
+    }
+  });
+
   // The loop reads keys and strings four bytes at a time: a byte it must stop at (a quote, a backslash, a
   // control byte) or a key's differing byte, at every place in a word, and bytes past 0x7f around them.
   const SPECIALS = ['\\"', '\\\\', '\\u0041', '\t', '\u0001', '\u007f', 'ü', '€', '😀', '"'];

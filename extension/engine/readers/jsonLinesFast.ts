@@ -2,8 +2,8 @@
  * The hot loop for JSON Lines of one row per line: a line whose keys come in the first line's order and
  * whose values are plain is stored from its bytes, with no string decoded and no object built (JSON.parse
  * and a string per value took 2 µs a line: 21 s for 10M rows). Plain means: ids and segments are strings
- * without a backslash; grades and scores are JSON numbers (or null); whitespace is spaces
- * and tabs. Any other line returns false, before anything is stored, and goes to the JSON parser, which
+ * without a backslash (or ids that are integers of up to 15 digits); grades and scores are JSON numbers (or
+ * null); fields of no role are any JSON; whitespace is spaces and tabs. Any other line returns false, before anything is stored, and goes to the JSON parser, which
  * stores it or reports the problem: the same rows either way. The text is valid UTF-8 (source.ts checks
  * every byte), so an id's bytes are the UTF-8 of the string JSON.parse would give.
  */
@@ -99,6 +99,14 @@ export class FlatRowScanner {
         // past when it is JSON as JSON.parse would accept it, otherwise the line is handed over.
         pos = skipJsonValue(buf, pos, end, 0);
         if (pos < 0) return false;
+      } else if ((kind === KIND_QUERY || kind === KIND_ITEM) && (c === MINUS || (c >= 48 && c <= 57))) {
+        // An integer id (item ids are often numbers) of at most 15 digits: JSON.parse's number prints back as
+        // these very digits (String(Number(text)) === text below 10^15, -0 apart), the id the parser's line gives.
+        const after = integerId(buf, pos, end);
+        if (after < 0) return false;
+        this.valueStart[f] = pos;
+        this.valueEnd[f] = after;
+        pos = after;
       } else if (c === QUOTE) {
         // A string: up to the closing quote, with no escape and no control byte (JSON allows none raw).
         let q = pos + 1;
@@ -224,6 +232,18 @@ export class FlatRowScanner {
 function skipSpace(buf: Uint8Array, pos: number, end: number): number {
   while (pos < end && (buf[pos] === 32 || buf[pos] === 9)) pos++;
   return pos;
+}
+
+/** Past an integer of at most 15 digits without a leading zero (nor -0) and not followed by a fraction or exponent; else -1. */
+function integerId(buf: Uint8Array, pos: number, end: number): number {
+  const negative = buf[pos] === MINUS;
+  const first = negative ? pos + 1 : pos;
+  let p = first;
+  while (p < end && buf[p]! >= 48 && buf[p]! <= 57) p++;
+  const digits = p - first;
+  if (digits === 0 || digits > 15 || (buf[first] === 48 && (digits > 1 || negative))) return -1;
+  if (p < end && (buf[p] === DOT || buf[p] === 101 || buf[p] === 69)) return -1;
+  return p;
 }
 
 /** Arrays and objects nested deeper than this are handed over (JSON.parse reads any depth). */
