@@ -126,6 +126,21 @@ describe('the JSON Lines byte loop', () => {
     }
   });
 
+  // Each segment field has its own kind; the second once shared the number of a field of no role, and its
+  // values were never stored (every row read as the first value).
+  it('stores every segment field, not only the first', async () => {
+    const lines = Array.from({ length: 300 }, (_, r) => JSON.stringify({ query: `q${r >> 3}`, item: `i${r}`, label: r % 3, score: (r % 17) / 4,
+      locale: ['en', 'de', 'fr'][r % 3], device: ['mobile', 'desktop'][(r >> 2) % 2], shelf: `aisle ${r % 5}`, note: [r] }));
+    const path = tmp.file('fast-segments.jsonl', lines.join('\n') + '\n');
+    const [reference, fast] = await readBoth(path);
+    expectSameDump(reference as RankedDump, fast as RankedDump);
+    const dump = fast as RankedDump;
+    expect(dump.segments.map((s) => s.name)).toEqual(['locale', 'device', 'shelf']);
+    const valueAt = (k: number, row: number) => dump.segments[k]!.values.get(dump.segments[k]!.ofRow[row]!);
+    expect([valueAt(0, 5), valueAt(1, 5), valueAt(2, 5)]).toEqual(['fr', 'desktop', 'aisle 0']);
+    expect(new Set(Array.from({ length: 300 }, (_, r) => valueAt(2, r))).size).toBe(5);
+  });
+
   // The loop reads keys and strings four bytes at a time: a byte it must stop at (a quote, a backslash, a
   // control byte) or a key's differing byte, at every place in a word, and bytes past 0x7f around them.
   const SPECIALS = ['\\"', '\\\\', '\\u0041', '\t', '\u0001', '\u007f', 'ü', '€', '😀', '"'];

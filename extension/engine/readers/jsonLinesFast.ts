@@ -24,8 +24,9 @@ const KIND_ITEM = 1;
 const KIND_LABEL = 2;
 const KIND_SCORE = 3;
 const KIND_RANK = 4;
+/** A field of no role; below every other kind, since segment k is KIND_SEGMENT + k for any k. */
+const KIND_OTHER = -1;
 const KIND_SEGMENT = 5;
-const KIND_OTHER = 6;
 
 export class FlatRowScanner {
   /** Per key, in the first line's order: `"key"` as JSON writes it, and its kind (segment k: KIND_SEGMENT + k). */
@@ -168,7 +169,7 @@ export class FlatRowScanner {
         score = this.numbers[f]!;
       } else if (kind === KIND_RANK) {
         if (this.rankStandsInForScore) score = -this.numbers[f]!;
-      } else if (kind >= KIND_SEGMENT && kind < KIND_OTHER) {
+      } else if (kind >= KIND_SEGMENT) {
         const k = kind - KIND_SEGMENT;
         rows.segmentIds[k]![row] = rows.segmentPools[k]!.intern(buf, s, e);
       }
