@@ -130,4 +130,27 @@ describe('JSON Lines rows with nested fields', () => {
       expect((fast as Error).message).toBe((reference as Error).message);
       expect((fast as Error).message).toMatch(/:3\b/);
     });
+
+  // The command line's report without segments reads with the other fields skipped (ColumnRoles.others): they are
+  // not kept, but still checked as a segment's values are, so the same files are accepted or refused.
+  it('with other fields skipped, reads the roles as a full read does, keeps no segment, and refuses what a full read refuses', async () => {
+    const lines = Array.from({ length: 2000 }, (_, r) => JSON.stringify({ ...row(r), title: `Cordless drill ${r} "pro"`, features: [r, 0.5] }));
+    const path = tmp.file('skipped-others.jsonl', lines.join('\n') + '\n');
+    const skipped = { columns: { others: 'skipped' as const } };
+    const full = await readDump(path);
+    const [reference, fast] = await readOffThenOn('jsonLinesFastRows', () => readDump(path, skipped));
+    expectSameOutcome(reference, fast);
+    const lean = fast as Awaited<ReturnType<typeof readDump>>;
+    expect(lean.segments).toEqual([]);
+    expect(full.segments.map((s) => s.name)).toEqual(['locale', 'title']);
+    for (const key of ['query', 'item', 'label', 'score', 'line'] as const) expect(Array.from(lean[key])).toEqual(Array.from(full[key]));
+    // A lone surrogate in a field that would be a segment: refused either way, at its line.
+    const bad = [...lines.slice(0, 5), lines[5]!.replace('Cordless', '\\ud800Cordless')].join('\n') + '\n';
+    const badPath = tmp.file('skipped-others-bad.jsonl', bad);
+    const fullError = await readDump(badPath).catch((e: Error) => e);
+    const [badReference, badFast] = await readOffThenOn('jsonLinesFastRows', () => readDump(badPath, skipped));
+    expect(fullError).toBeInstanceOf(Error);
+    expect((badReference as Error).message).toBe((fullError as Error).message);
+    expect((badFast as Error).message).toBe((fullError as Error).message);
+  });
 });

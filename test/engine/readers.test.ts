@@ -275,9 +275,21 @@ describe('columns of no role skipped (ColumnRoles.others)', () => {
     expect(lean.notes).toEqual(full.notes);
   });
 
-  // JSON Lines and Parquet check a value as they read it: skipping a column would let a bad value through
-  // (test/hostile has one), so they read every column either way.
-  it.each(['demo/runs/model-a.jsonl.gz', 'demo/runs/model-b.parquet'])('%s reads every column all the same', async (path) => {
+  // JSON Lines checks the fields it does not keep as it would check a segment's values (the test below), and
+  // reads the same but for its segments.
+  it('JSON Lines reads the same but for its segments', async () => {
+    const full = await readDump('demo/runs/model-a.jsonl.gz');
+    const lean = await readDump('demo/runs/model-a.jsonl.gz', { columns: { others: 'skipped' } });
+    expect(full.segments.length).toBeGreaterThan(0);
+    expect(lean.segments).toHaveLength(0);
+    for (const key of ['query', 'label', 'score', 'line', 'offset'] as const) expect(Array.from(lean[key]), key).toEqual(Array.from(full[key]));
+    expect(Array.from(lean.itemKey!)).toEqual(Array.from(full.itemKey!));
+    expect(lean.notes).toEqual(full.notes);
+  });
+
+  // Parquet checks a value as it reads it: skipping a column would let a bad value through (test/hostile has
+  // one), so it reads every column either way.
+  it.each(['demo/runs/model-b.parquet'])('%s reads every column all the same', async (path) => {
     const full = await readDump(path);
     const asked = await readDump(path, { columns: { others: 'skipped' } });
     expect(full.segments.length).toBeGreaterThan(0);

@@ -37,6 +37,8 @@ interface Shape {
   readonly keys: readonly string[];
   /** Rows only: the keys whose first-line value is an array or object, read past rather than kept as segments. */
   readonly nested: readonly string[];
+  /** Rows whose other fields are skipped: the key indices that would be segments, checked as segments are but not kept. */
+  readonly checkedOnly: readonly number[];
   readonly roles: ResolvedRoles;
   readonly rankStandsInForScore: boolean;
 }
@@ -186,7 +188,11 @@ export class JsonLinesParser {
   private adoptShape(keys: readonly string[], list: boolean, nested: readonly string[], at: { file: string; line: number; text: string },
     shared?: SharedColumns): Shape {
     const resolved = resolveRoles(keys, everyColumn(this.columns), at, list ? LIST_ROLE_NAMES : undefined);
-    const roles = nested.length === 0 ? resolved : { ...resolved, segments: resolved.segments.filter((i) => !nested.includes(keys[i]!)) };
+    const segments = resolved.segments.filter((i) => !nested.includes(keys[i]!));
+    // Rows whose other fields are not kept (the command line's report without segments): their values are still
+    // checked as a segment's are (checkedOnly), so the same files are accepted or refused either way.
+    const skipped = !list && this.columns?.others === 'skipped';
+    const roles = { ...resolved, segments: skipped ? [] : segments };
     // Item bytes kept per row, not interned dump-wide (model/rowTexts.ts): millions of distinct ids cost a
     // table lookup per row that misses the caches; scoring needs only keys within each query.
     const rows = new RowColumns(roles.segments.map((i) => keys[i]!), 1024, shared, ITEM_BYTES_GUESS);
@@ -196,8 +202,9 @@ export class JsonLinesParser {
         : `ranked by score; the rank field '${keys[roles.rank]}' is ignored`);
     }
     this.rows = rows;
-    this.shape = { list, keys, nested, roles, rankStandsInForScore: roles.score < 0 };
-    if (!list && engineSettings().tuning.jsonLinesFastRows) this.fast = new FlatRowScanner(keys, roles, roles.score < 0);
+    const checkedOnly = skipped ? segments : [];
+    this.shape = { list, keys, nested, roles, checkedOnly, rankStandsInForScore: roles.score < 0 };
+    if (!list && engineSettings().tuning.jsonLinesFastRows) this.fast = new FlatRowScanner(keys, roles, roles.score < 0, checkedOnly);
     return this.shape;
   }
 
@@ -214,6 +221,7 @@ export class JsonLinesParser {
     roles.segments.forEach((column, k) => {
       rows.segmentIds[k]![row] = rows.segmentPools[k]!.internString(this.segment(obj[keys[column]!], keys[column]!, text));
     });
+    for (const column of shape.checkedOnly) this.segment(obj[keys[column]!], keys[column]!, text);
   }
 
   private storeList(obj: Json, shape: Shape, offset: number, text: string): void {

@@ -26,6 +26,8 @@ const KIND_SCORE = 3;
 const KIND_RANK = 4;
 /** A field of no role; below every other kind, since segment k is KIND_SEGMENT + k for any k. */
 const KIND_OTHER = -1;
+/** A field that would be a segment, in a read that keeps none: read only when it is text without an escape. */
+const KIND_CHECKED = -2;
 const KIND_SEGMENT = 5;
 
 export class FlatRowScanner {
@@ -42,7 +44,8 @@ export class FlatRowScanner {
   private view: DataView = new DataView(new ArrayBuffer(0));
   private viewOf: Uint8Array | undefined;
 
-  constructor(keys: readonly string[], roles: ResolvedRoles, private readonly rankStandsInForScore: boolean) {
+  /** `checkedOnly`: fields that would be segments in a read that keeps none (see KIND_CHECKED). */
+  constructor(keys: readonly string[], roles: ResolvedRoles, private readonly rankStandsInForScore: boolean, checkedOnly: readonly number[] = []) {
     const encoder = new TextEncoder();
     this.keyBytes = keys.map((k) => encoder.encode(JSON.stringify(k)));
     this.kinds = Int32Array.from(keys, (_, i) => {
@@ -52,7 +55,8 @@ export class FlatRowScanner {
       if (i === roles.score) return KIND_SCORE;
       if (i === roles.rank) return KIND_RANK;
       const segment = roles.segments.indexOf(i);
-      return segment >= 0 ? KIND_SEGMENT + segment : KIND_OTHER;
+      if (segment >= 0) return KIND_SEGMENT + segment;
+      return checkedOnly.includes(i) ? KIND_CHECKED : KIND_OTHER;
     });
     this.valueStart = new Int32Array(keys.length);
     this.valueEnd = new Int32Array(keys.length);

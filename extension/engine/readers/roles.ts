@@ -18,9 +18,10 @@ export interface ColumnRoles {
    * What becomes of the columns without a role: kept as segment columns (default), or skipped unread by a
    * caller no view of which asks for segments (the command line's report without --segment or a queries
    * table): on 10M rows of two segment columns, 80 MB never written and their values never interned.
-   * Only delimited text skips them, since its every byte is checked whatever its column (source.ts); JSON
-   * Lines and Parquet check a value as they read it (a lone surrogate, bytes that are not UTF-8), so they
-   * read every column either way (see everyColumn) and accept or refuse the same files with or without it.
+   * Delimited text skips them, since its every byte is checked whatever its column (source.ts). JSON Lines
+   * of rows keeps none but still checks each value as a segment's (a lone surrogate; jsonLines.ts). Parquet
+   * checks a value as it reads it (bytes that are not UTF-8), so it reads every column either way (see
+   * everyColumn). Every reader accepts or refuses the same files with or without it.
    */
   others?: 'segments' | 'skipped';
 }
