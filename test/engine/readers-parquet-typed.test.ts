@@ -144,6 +144,44 @@ describe('Parquet pages decoded typed', () => {
     expect(Array.from(dump!.label)).toEqual(big.map((b) => Number(b)));
   });
 
+  // Ids are often numbers (item_id BIGINT): printed as the decoder's number (INT32) or bigint (INT64) prints,
+  // extremes and values past 2^53 included, through plain and dictionary pages, with a numeric segment with nulls.
+  it.each([[0, 'PLAIN'], [1, 'RLE_DICTIONARY'], [2, undefined]] as const)('seed %i: integer ids (%s pages) read as their printed digits, three ways', async (seed, encoding) => {
+    const rnd = seededRandom(40 + seed);
+    const rows = 6_000;
+    const extremes = [0n, -1n, 2n ** 53n - 1n, 2n ** 53n, 2n ** 53n + 1n, -(2n ** 53n) - 7n, 2n ** 63n - 1n, -(2n ** 63n), 4294967295n, -4294967296n];
+    const item = Array.from({ length: rows }, (_, r) => (r < extremes.length ? extremes[r]! : BigInt(Math.floor((rnd() - 0.5) * 2 ** 40)) * BigInt(r % 3 === 0 ? 1 : 100_003)));
+    const query = Array.from({ length: rows }, (_, r) => (r >> 4) * (r % 32 < 16 ? 1 : -1) + (r === 20 ? 2 ** 31 - 1 : r === 40 ? -(2 ** 31) : 0));
+    const shelf = Array.from({ length: rows }, (_, r) => (r % 7 === 0 ? null : r % 11));
+    const path = tmp.file(`integer-ids-${seed}.parquet`, new Uint8Array(parquetWriteBuffer({ columnData: [
+      { name: 'query_id', data: query, type: 'INT32', ...(encoding ? { encoding } : {}) },
+      { name: 'item_id', data: item, type: 'INT64', ...(encoding ? { encoding } : {}) },
+      { name: 'grade', data: Array.from({ length: rows }, (_, r) => r % 5), type: 'INT32' },
+      { name: 'score', data: Array.from({ length: rows }, () => rnd()), type: 'DOUBLE' },
+      { name: 'shelf', data: shelf, type: 'INT32', nullable: true },
+    ], rowGroupSize: 2_500, pageSize: 4096 })));
+    const { dump, typedPages } = await expectThreeSame(path, seed === 1 ? 257 : 65_536);
+    expect(typedPages).toBeGreaterThan(0);
+    const read = dump!;
+    // Independent of the decoder: each id is the integer's decimal text (ECMA-262 Number and BigInt toString).
+    expect(Array.from({ length: rows }, (_, r) => read.items.get(read.item[r]!))).toEqual(item.map(String));
+    expect(Array.from({ length: rows }, (_, r) => read.queries.get(read.query[r]!))).toEqual(query.map(String));
+    expect(read.segments[0]!.values.get(read.segments[0]!.ofRow[7]!)).toBe('');
+  });
+
+  it('reads DuckDB files of INTEGER and BIGINT ids, version 1 and 2 pages, as the decoder does', async () => {
+    for (const version of ['1', '2']) {
+      const file = join(tmp.path, `duckdb-integer-ids-${version}.parquet`);
+      await duckdb(`COPY (SELECT (i // 10)::INTEGER AS query_id, (i * 2654435761 - 9000000000000000000)::BIGINT AS item_id, (i % 5)::TINYINT AS grade,
+        ((i * 37) % 1000) / 7.0 AS score, (i % 3)::BIGINT AS store_id FROM range(0, 30000) t(i))
+        TO '${file}' (FORMAT parquet, ROW_GROUP_SIZE 8192, PARQUET_VERSION V${version})`);
+      const read = await expectThreeSame(file, 3_000);
+      expect(read.dump?.rowCount).toBe(30_000);
+      expect(read.typedPages).toBeGreaterThan(0);
+      expect(read.dump!.items.get(read.dump!.item[1]!)).toBe(String(2654435761n - 9000000000000000000n));
+    }
+  });
+
   it.each([
     ['an item id that is not UTF-8, in a plain page', 'item_id', 'PLAIN'],
     ['a query that is not UTF-8, in a dictionary', 'query_id', 'RLE_DICTIONARY'],

@@ -1,7 +1,7 @@
 /**
  * Flat Parquet columns of the kinds a dump's roles need, decoded from their pages into typed arrays, with
- * no object per value: text (ids and segments) as byte ranges of the decompressed page or dictionary, and
- * numbers (grades and scores) as doubles.
+ * no object per value: text (ids and segments) as byte ranges of the decompressed page or dictionary (integer
+ * ids as ranges of their printed digits), and numbers (grades and scores) as doubles.
  *
  * The decoder's page functions (parquetPages.ts) build one view per text value, one array entry per level
  * and per dictionary index: on 10M rows a third of each thread was garbage collection, and a page of
@@ -19,6 +19,7 @@ import type { ColumnMetaData, Compressors, SchemaElement } from 'hyparquet';
 import { isUtf8 } from 'node:buffer';
 import { engineActivity } from '../config';
 import { readHybrid, readUint32 } from './parquetHybrid';
+import { integerTexts } from './parquetIntegerText';
 
 /** A row of a typed slice with no value (the level says null) and one past the chunk's last page. */
 export const NULL_ROW = -1;
@@ -61,14 +62,15 @@ const ENCODINGS = new Set(['PLAIN', 'PLAIN_DICTIONARY', 'RLE_DICTIONARY', 'RLE',
 export function typedKind(element: SchemaElement, meta: ColumnMetaData, wanted: 'text' | 'number'): 'text' | 'number' | undefined {
   if (!meta.encodings.every((e) => ENCODINGS.has(e))) return undefined;
   const logical = element.logical_type;
+  const signedInteger = (meta.type === 'INT32' || meta.type === 'INT64') && INTEGER_TYPES.has(element.converted_type)
+    && (logical === undefined || (logical.type === 'INTEGER' && logical.isSigned));
   if (wanted === 'text') {
     const plainText = logical === undefined || logical.type === 'STRING' || logical.type === 'ENUM';
-    return meta.type === 'BYTE_ARRAY' && TEXT_TYPES.has(element.converted_type) && plainText ? 'text' : undefined;
+    // Signed integers as ids print as the decoder's number or bigint prints (parquetIntegerText.ts).
+    return (meta.type === 'BYTE_ARRAY' && TEXT_TYPES.has(element.converted_type) && plainText) || signedInteger ? 'text' : undefined;
   }
   if (meta.type === 'DOUBLE' || meta.type === 'FLOAT') return element.converted_type === undefined && logical === undefined ? 'number' : undefined;
-  if (meta.type !== 'INT32' && meta.type !== 'INT64') return undefined;
-  const signed = logical === undefined || (logical.type === 'INTEGER' && logical.isSigned);
-  return INTEGER_TYPES.has(element.converted_type) && signed ? 'number' : undefined;
+  return signedInteger ? 'number' : undefined;
 }
 
 /** What a typed cursor needs of its column chunk. */
@@ -268,8 +270,11 @@ export class TypedColumnCursor {
     this.pageBytes = bytes;
     if (encoding === 'PLAIN') {
       this.fromDictionary = false;
-      if (this.column.kind === 'text') this.pageUtf8 = this.readTexts(bytes, at, values, 'page');
-      else this.numbers = this.readNumbers(bytes, at, values, this.numbers);
+      if (this.column.kind === 'text') {
+        const integers = this.integerTexts(bytes, at, values, 'page');
+        if (integers !== undefined) this.pageBytes = integers;
+        this.pageUtf8 = integers !== undefined || this.readTexts(bytes, at, values, 'page');
+      } else this.numbers = this.readNumbers(bytes, at, values, this.numbers);
     } else if (encoding === 'PLAIN_DICTIONARY' || encoding === 'RLE_DICTIONARY') {
       if (this.dictSize < 0) throw new Error('a dictionary page missing');
       this.fromDictionary = true;
@@ -311,12 +316,34 @@ export class TypedColumnCursor {
       this.dictNumbers = this.readNumbers(bytes, 0, count, new Float64Array(count));
       return;
     }
-    const allUtf8 = this.readTexts(bytes, 0, count, 'dictionary');
-    this.dictBytes = bytes;
+    const integers = this.integerTexts(bytes, 0, count, 'dictionary');
+    const allUtf8 = integers !== undefined || this.readTexts(bytes, 0, count, 'dictionary');
+    this.dictBytes = integers ?? bytes;
     if (this.dictUtf8.length < count) this.dictUtf8 = new Uint8Array(count);
     for (let e = 0; e < count; e++) {
       this.dictUtf8[e] = allUtf8 || isUtf8(bytes.subarray(this.dictStarts[e]!, this.dictEnds[e]!)) ? 1 : 0;
     }
+  }
+
+  /** An integer column's PLAIN values printed as text (ASCII), their ranges in starts and ends; undefined for a text column. */
+  private integerTexts(bytes: Uint8Array, at: number, count: number, into: 'page' | 'dictionary'): Uint8Array | undefined {
+    const type = this.column.type;
+    if (type !== 'INT32' && type !== 'INT64') return undefined;
+    const [starts, ends] = this.ranges(count, into);
+    return integerTexts(bytes, at, count, type === 'INT32' ? 4 : 8, starts, ends);
+  }
+
+  /** The page's or the dictionary's value ranges, with room for `count`. */
+  private ranges(count: number, into: 'page' | 'dictionary'): [Int32Array, Int32Array] {
+    let starts = into === 'page' ? this.starts : this.dictStarts;
+    let ends = into === 'page' ? this.ends : this.dictEnds;
+    if (starts.length < count) {
+      starts = new Int32Array(Math.max(count, 2 * starts.length));
+      ends = new Int32Array(starts.length);
+      if (into === 'page') [this.starts, this.ends] = [starts, ends];
+      else [this.dictStarts, this.dictEnds] = [starts, ends];
+    }
+    return [starts, ends];
   }
 
   /**
@@ -326,14 +353,7 @@ export class TypedColumnCursor {
    * each value is.
    */
   private readTexts(bytes: Uint8Array, at: number, count: number, into: 'page' | 'dictionary'): boolean {
-    let starts = into === 'page' ? this.starts : this.dictStarts;
-    let ends = into === 'page' ? this.ends : this.dictEnds;
-    if (starts.length < count) {
-      starts = new Int32Array(Math.max(count, 2 * starts.length));
-      ends = new Int32Array(starts.length);
-      if (into === 'page') [this.starts, this.ends] = [starts, ends];
-      else [this.dictStarts, this.dictEnds] = [starts, ends];
-    }
+    const [starts, ends] = this.ranges(count, into);
     const first = at;
     let short = true;
     for (let v = 0; v < count; v++) {
