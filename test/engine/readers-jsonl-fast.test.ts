@@ -12,7 +12,7 @@ import type { RankedDump } from '../../extension/engine/model/dump';
 import { readDump } from '../../extension/engine/readers/index';
 import { TempDir } from './fixtures/readers/tempFiles';
 import { randomJsonLines } from './fixtures/randomJsonLines';
-import { expectSameOutcome, expectSameReading, readOffThenOn } from './fixtures/sameReading';
+import { countingJsonParse, expectSameOutcome, expectSameReading, readOffThenOn } from './fixtures/sameReading';
 
 const tmp = new TempDir();
 const saved = engineSettings();
@@ -50,18 +50,7 @@ describe('the JSON Lines byte loop', () => {
   it('takes plain lines itself: a line it hands over costs a JSON.parse, and the plain file reads the same', async () => {
     const lines = Array.from({ length: 3000 }, (_, r) => `{"query": "drill, cordless ${Math.floor(r / 7)}", "item": "sku-${r}", "label": ${r % 5}, "score": ${(r % 97) / 8}}`);
     const path = tmp.file('fast-plain.jsonl', lines.join('\n') + '\n');
-    const parse = JSON.parse;
-    let parsed = 0;
-    JSON.parse = ((text: string, reviver?: never) => {
-      parsed++;
-      return parse(text, reviver);
-    }) as typeof JSON.parse;
-    let fast: RankedDump;
-    try {
-      fast = await readDump(path);
-    } finally {
-      JSON.parse = parse;
-    }
+    const { value: fast, parsed } = await countingJsonParse(() => readDump(path));
     // The first line sets the keys through JSON.parse; the loop takes every other one.
     expect(parsed).toBe(1);
     const [reference] = await readBoth(path);
@@ -76,18 +65,7 @@ describe('the JSON Lines byte loop', () => {
       '123456789012345678901234', '0.1000000000000000055511151231257827', '4.35e-05', '1.7976931348623157e308'];
     const lines = scores.map((score, r) => `{"query":"q","item":"i${r}","label":${r % 3},"score":${score}}`);
     const path = tmp.file('fast-long-numbers.jsonl', lines.join('\n') + '\n');
-    const parse = JSON.parse;
-    let parsed = 0;
-    JSON.parse = ((text: string, reviver?: never) => {
-      parsed++;
-      return parse(text, reviver);
-    }) as typeof JSON.parse;
-    let fast: RankedDump;
-    try {
-      fast = await readDump(path);
-    } finally {
-      JSON.parse = parse;
-    }
+    const { value: fast, parsed } = await countingJsonParse(() => readDump(path));
     expect(parsed).toBe(1);
     const [reference] = await readBoth(path);
     expectSameDump(reference as RankedDump, fast);
@@ -102,18 +80,7 @@ describe('the JSON Lines byte loop', () => {
     const ids = ['0', '7', '-12', '123456789012345', '-999999999999999'];
     const lines = ids.flatMap((id, k) => [id, String(100 + 10 * k), String(101 + 10 * k)].map((item, r) => `{"query":${k},"item":${item},"label":${r},"score":0.5}`));
     const path = tmp.file('fast-integer-ids.jsonl', lines.join('\n') + '\n');
-    const parse = JSON.parse;
-    let parsed = 0;
-    JSON.parse = ((text: string, reviver?: never) => {
-      parsed++;
-      return parse(text, reviver);
-    }) as typeof JSON.parse;
-    let fast: RankedDump;
-    try {
-      fast = await readDump(path);
-    } finally {
-      JSON.parse = parse;
-    }
+    const { value: fast, parsed } = await countingJsonParse(() => readDump(path));
     expect(parsed).toBe(1);
     const [reference] = await readBoth(path);
     expectSameDump(reference as RankedDump, fast);

@@ -11,7 +11,7 @@ import { readDump } from '../../extension/engine/readers/index';
 import { skipJsonValue } from '../../extension/engine/readers/jsonLinesFast';
 import { seededRandom } from '../reference/random';
 import { TempDir } from './fixtures/readers/tempFiles';
-import { expectSameOutcome, readOffThenOn } from './fixtures/sameReading';
+import { countingJsonParse, expectSameOutcome, readOffThenOn } from './fixtures/sameReading';
 
 const tmp = new TempDir();
 const saved = engineSettings();
@@ -105,17 +105,7 @@ describe('JSON Lines rows with nested fields', () => {
       lines.push(`{"query":"drill ${Math.floor(r / 10)}","item":"sku-${r}","features":${features},"grade":${r % 4},"score":${(r % 89) / 8}}`);
     }
     const path = tmp.file('nested-random.jsonl', lines.join('\n') + '\n');
-    const parse = JSON.parse;
-    let parsed = 0;
-    JSON.parse = ((text: string, reviver?: never) => {
-      parsed++;
-      return parse(text, reviver);
-    }) as typeof JSON.parse;
-    try {
-      await readDump(path);
-    } finally {
-      JSON.parse = parse;
-    }
+    const { parsed } = await countingJsonParse(() => readDump(path));
     // The first line sets the keys; every other line is the loop's (their fields are all JSON that nests less than 64).
     expect(parsed).toBe(1);
     const [reference, fast] = await readOffThenOn('jsonLinesFastRows', () => readDump(path));

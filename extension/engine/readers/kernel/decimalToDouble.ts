@@ -9,18 +9,7 @@
 // every answer it gives equals Number(text) bit for bit.
 
 import { POWERS_OF_FIVE_128, SMALLEST_POWER_OF_TEN, LARGEST_POWER_OF_TEN } from './powersOfFive128';
-
-/** The high 64 bits of the 128-bit product a × b (WebAssembly has no wide multiply). */
-@inline function multiplyHigh(a: u64, b: u64): u64 {
-  const aLo = a & 0xffffffff;
-  const aHi = a >> 32;
-  const bLo = b & 0xffffffff;
-  const bHi = b >> 32;
-  const b00 = aLo * bLo;
-  const mid1 = aHi * bLo + (b00 >> 32);
-  const mid2 = aLo * bHi + (mid1 & 0xffffffff);
-  return aHi * bHi + (mid1 >> 32) + (mid2 >> 32);
-}
+import { multiplyHigh } from './wideMultiply';
 
 /**
  * The double nearest w × 10^q (negated when `negative`), or NaN when this path cannot be sure of it.

@@ -7,6 +7,7 @@
 // three properties; the tests compare this printer with String(x) on millions of doubles.
 
 import { POW5_INV_SPLIT, POW5_SPLIT } from './powersOfFive';
+import { multiplyHigh } from '../../readers/kernel/wideMultiply';
 
 const MANTISSA_BITS: i32 = 52;
 const EXPONENT_BIAS: i32 = 1023;
@@ -71,18 +72,6 @@ function pow5Factor(v: u64): i32 {
 
 @inline function multipleOfPowerOf2(v: u64, p: i32): bool {
   return (v & ((<u64>1 << <u64>p) - 1)) == 0;
-}
-
-/** The high 64 bits of the 128-bit product a × b (WebAssembly has no wide multiply). */
-@inline function multiplyHigh(a: u64, b: u64): u64 {
-  const aLo = a & 0xffffffff;
-  const aHi = a >> 32;
-  const bLo = b & 0xffffffff;
-  const bHi = b >> 32;
-  const b00 = aLo * bLo;
-  const mid1 = aHi * bLo + (b00 >> 32);
-  const mid2 = aLo * bHi + (mid1 & 0xffffffff);
-  return aHi * bHi + (mid1 >> 32) + (mid2 >> 32);
 }
 
 /** (m × (hi·2^64 + lo)) >> j, for m < 2^55 and 64 < j < 128 (the range Ryū's table widths guarantee). */
