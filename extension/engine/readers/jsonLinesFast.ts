@@ -3,8 +3,9 @@
  * whose values are plain is stored from its bytes, with no string decoded and no object built (JSON.parse
  * and a string per value took 2 µs a line: 21 s for 10M rows). Plain means: ids and segments are strings
  * without a backslash (or ids that are integers of up to 15 digits); grades and scores are JSON numbers (or
- * null); fields of no role are any JSON; whitespace is spaces and tabs. Any other line returns false, before anything is stored, and goes to the JSON parser, which
- * stores it or reports the problem: the same rows either way. The text is valid UTF-8 (source.ts checks
+ * null); fields of no role are any JSON (checked by a strict grammar); whitespace is spaces and tabs. Any
+ * other line returns false, before anything is stored, and goes to the JSON parser, which stores it or
+ * reports the problem: the same rows either way. The text is valid UTF-8 (source.ts checks
  * every byte), so an id's bytes are the UTF-8 of the string JSON.parse would give.
  */
 import type { RowColumns } from './columns';
