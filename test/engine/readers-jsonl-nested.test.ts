@@ -143,4 +143,20 @@ describe('JSON Lines rows with nested fields', () => {
     expect((badReference as Error).message).toBe((fullError as Error).message);
     expect((badFast as Error).message).toBe((fullError as Error).message);
   });
+
+  // Grades written only on judged rows: a first line without the key cannot name it, but --columns can.
+  it('a role key absent from the first line, named with --columns, reads where a line has it and as missing where not', async () => {
+    const lines = Array.from({ length: 300 }, (_, r) => JSON.stringify(r % 3 === 0
+      ? { query: `q${r >> 3}`, item: `i${r}`, score: (r % 17) / 4 }
+      : { query: `q${r >> 3}`, item: `i${r}`, score: (r % 17) / 4, grade: r % 4 }));
+    const path = tmp.file('absent-grade.jsonl', lines.join('\n') + '\n');
+    await expect(readDump(path)).rejects.toThrow(/label/);
+    const asNull = tmp.file('null-grade.jsonl', lines.map((l) => (l.includes('grade') ? l : l.replace('}', ',"grade":null}'))).join('\n') + '\n');
+    const reference = await readDump(asNull);
+    const [slow, fast] = await readOffThenOn('jsonLinesFastRows', () => readDump(path, { columns: { label: 'grade' } }));
+    expectSameOutcome(slow, fast);
+    const read = fast as Awaited<ReturnType<typeof readDump>>;
+    for (const key of ['query', 'item', 'label', 'score'] as const) expect(Array.from(read[key]), key).toEqual(Array.from(reference[key]));
+    expect(read.notes.unjudgedRows).toBe(100);
+  });
 });

@@ -14,7 +14,7 @@ import type { RankedDump } from '../model/dump';
 import { RowColumns, type SharedColumns } from './columns';
 import type { ReadOptions } from './readOptions';
 import { describeNonNumberText, parseNumberText } from './numbers';
-import { everyColumn, LIST_ROLE_NAMES, resolveRoles, type ResolvedRoles } from './roles';
+import { everyColumn, LIST_ROLE_NAMES, resolveRoles, ROLES, type ResolvedRoles } from './roles';
 import { assertTextHead, LineSink, pumpText, textSizeHint } from './source';
 import { FlatRowScanner } from './jsonLinesFast';
 
@@ -168,11 +168,15 @@ export class JsonLinesParser {
    * (then lists, under the list names: items, labels, scores).
    */
   private learnShape(obj: Json, text: string): Shape {
-    const keys = Object.keys(obj);
+    const present = Object.keys(obj);
+    // A key named for a role in --columns but absent from the first line (a grade written only on judged
+    // rows): rows read it where a line has it, and as missing where not.
+    const named = ROLES.map((role) => this.columns?.[role]).filter((k): k is string => k !== undefined && !present.includes(k));
+    const keys = [...present, ...new Set(named)];
     const at = { file: this.file, line: this.line, text };
-    const nested = keys.filter((k) => obj[k] !== null && typeof obj[k] === 'object');
+    const nested = present.filter((k) => obj[k] !== null && typeof obj[k] === 'object');
     const list = nested.some((k) => Array.isArray(obj[k])) && !this.readsAsRow(keys, obj, at);
-    return this.adoptShape(keys, list, list ? [] : nested, at);
+    return this.adoptShape(list ? present : keys, list, list ? [] : nested, at);
   }
 
   private readsAsRow(keys: readonly string[], obj: Json, at: { file: string; line: number; text: string }): boolean {
