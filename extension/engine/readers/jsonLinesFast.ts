@@ -314,13 +314,7 @@ function skipJsonNumber(buf: Uint8Array, pos: number, end: number): number {
     while (pos < end && buf[pos]! >= 48 && buf[pos]! <= 57) pos++;
     if (pos === from) return -1;
   }
-  if (pos < end && (buf[pos] === 101 || buf[pos] === 69)) {
-    pos++;
-    if (pos < end && (buf[pos] === 43 || buf[pos] === MINUS)) pos++;
-    const from = pos;
-    while (pos < end && buf[pos]! >= 48 && buf[pos]! <= 57) pos++;
-    if (pos === from) return -1;
-  }
+  if (pos < end && (buf[pos] === 101 || buf[pos] === 69)) return exponentEnd(buf, pos, end);
   return pos;
 }
 
