@@ -6,8 +6,9 @@
  */
 
 const TWO_32 = 4294967296;
-/** The most bytes one value prints as: a minus and 19 digits (-9223372036854775808). */
-const MOST_BYTES = 20;
+/** The most bytes one value prints as: a minus and 10 digits for INT32 (-2147483648), 19 for INT64. */
+const MOST_BYTES_32 = 11;
+const MOST_BYTES_64 = 20;
 
 /**
  * PLAIN INT32 or INT64 values from bytes[at..] (`width` 4 or 8), `count` of them, printed one after another
@@ -16,7 +17,8 @@ const MOST_BYTES = 20;
 export function integerTexts(bytes: Uint8Array, at: number, count: number, width: 4 | 8, starts: Int32Array, ends: Int32Array): Uint8Array {
   if (at + count * width > bytes.length) throw new Error('a page ends inside its values');
   const view = new DataView(bytes.buffer, bytes.byteOffset + at, count * width);
-  const out = new Uint8Array(count * MOST_BYTES);
+  // Sized for the widest value of the type: a page of millions of values should not reserve twice what it needs.
+  const out = new Uint8Array(count * (width === 4 ? MOST_BYTES_32 : MOST_BYTES_64));
   let p = 0;
   for (let v = 0; v < count; v++) {
     starts[v] = p;
