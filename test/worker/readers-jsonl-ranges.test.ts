@@ -110,4 +110,18 @@ describe('JSON Lines read in ranges', () => {
     expectSameReading(one as RankedDump, ranges as RankedDump);
     expect((one as RankedDump).rowCount).toBe(1_800 + 120_000);
   });
+  // The shape is learnt from the first lines (readers/jsonLines.ts, SHAPE_LINES) that end within the head a read
+  // in ranges reads first: with lines of 5 KB fewer than SHAPE_LINES fit, so one thread must stop where the head does.
+  it('learns the shape from the same first lines as one thread: grades on judged rows only, a key first written past the head', async () => {
+    const title = 'x'.repeat(5_000);
+    const lines = Array.from({ length: 1_200 }, (_, r) => JSON.stringify({ query: `router ${r >> 3}`, item: `bit-${r}`, ...(r % 3 === 0 ? {} : { grade: r % 4 }),
+      score: (r % 89) / 7, title, ...(r === 230 || r === 900 ? { device: 'mobile' } : {}), ...(r === 150 ? { locale: 'fr-FR' } : {}) }));
+    const [one, ranges] = await readBoth(tmp.file('ranges-shape.jsonl', lines.join('\n') + '\n'));
+    expect(readInRanges(ranges as RankedDump)).toBe(true);
+    expectSameReading(one as RankedDump, ranges as RankedDump);
+    const dump = one as RankedDump;
+    expect(dump.segments.map((s) => s.name)).toEqual(['title', 'locale']);
+    expect(dump.notes.unjudgedRows).toBe(400);
+    expect(dump.notes.messages.find((m) => m.includes('not read'))).toMatch(/^2 lines hold fields .*\('device'; the first on line 231\)/);
+  });
 });

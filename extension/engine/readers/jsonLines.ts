@@ -1,5 +1,7 @@
 /**
- * JSON Lines, in one of two shapes chosen from the first line:
+ * JSON Lines, in one of two shapes learnt from the first lines (up to SHAPE_LINES lines with a value, within
+ * the first HEAD_BYTES bytes; the union of their keys, in the order first written, so a grade written only
+ * on judged rows is a column as long as one of them is judged):
  * - one row per line: `{"query_id": "q1", "item_id": "sku-1", "label": 2, "score": 0.4, "locale": "en"}`
  * - one list per line: `{"query": "q1", "items": [...], "labels": [...], "scores": [...]}` (equal lengths)
  * Every row of a list shares the list's line number and byte offset. A line whose roles read as one row,
@@ -17,6 +19,7 @@ import { describeNonNumberText, parseNumberText } from './numbers';
 import { everyColumn, LIST_ROLE_NAMES, resolveRoles, ROLES, type ResolvedRoles } from './roles';
 import { assertTextHead, LineSink, pumpText, textSizeHint } from './source';
 import { FlatRowScanner } from './jsonLinesFast';
+import { addUnreadLine, unreadFieldsMessage, type UnreadFields } from './unreadFields';
 
 type Json = Record<string, unknown>;
 
@@ -31,6 +34,8 @@ export interface JsonShape {
 const ITEM_BYTES_GUESS = 16;
 /** Lines read before the columns are sized for the whole file. */
 const SIZE_AFTER_LINES = 4096;
+/** Lines with a value whose keys make the shape (fewer when they end past HEAD_BYTES: a range read learns from the head alone). */
+export const SHAPE_LINES = 256;
 
 interface Shape {
   readonly list: boolean;
@@ -48,9 +53,11 @@ export async function readJsonLines(path: string, options: ReadOptions): Promise
   const parser = new JsonLinesParser(path, options.columns, await textSizeHint(path));
   const lines = new LineSink((buf, start, end, line, offset) => parser.acceptLine(buf, start, end, line, offset));
   const stamp = await pumpText(path, lines, { signal: options.signal, onProgress: options.onProgress });
+  parser.end();
   const rows = parser.rows;
   if (rows === undefined || rows.count === 0) throw emptyJsonLines(path);
   rows.countGaps();
+  parser.noteUnreadFields();
   return rows.finish(path, 'jsonl', stamp);
 }
 
@@ -87,6 +94,7 @@ export function jsonLinesHead(path: string, head: Buffer, columns: ReadOptions['
     const parser = new JsonLinesParser(path, columns, head.length);
     // A byte order mark needs no skipping: the line's text is trimmed, and JavaScript trims U+FEFF.
     const read = new LineSink((buf, from, end, line, offset) => parser.acceptLine(buf, from, end, line, offset)).feed(head, 0, head.length, 0, false);
+    parser.end();
     const shape = parser.learnedShape;
     const rows = parser.rows;
     if (shape === undefined || rows === undefined || rows.count === 0) return undefined;
@@ -108,17 +116,32 @@ export async function fileHead(path: string): Promise<Buffer> {
   }
 }
 
+/** A line held, parsed, until the shape is learnt. */
+interface HeldLine {
+  readonly obj: Json;
+  readonly text: string;
+  readonly line: number;
+  readonly offset: number;
+}
+
 /**
- * Parses JSON Lines line by line (acceptLine). The first line with a value sets the shape; a range of a
- * file read in ranges (rangeParse.ts) is given the file's shape instead, and writes to its shared slice.
+ * Parses JSON Lines line by line (acceptLine, then end). The first lines with a value set the shape (they
+ * are held until then); a range of a file read in ranges (rangeParse.ts) is given the file's shape instead,
+ * and writes to its shared slice.
  */
 export class JsonLinesParser {
   rows: RowColumns | undefined;
   private shape: Shape | undefined;
   /** Line being parsed, for error messages and each row's line. */
   private line = 0;
-  /** The byte loop for plain lines of one row each (jsonLinesFast.ts), once the first line set the keys. */
+  /** The byte loop for plain lines of one row each (jsonLinesFast.ts), once the first lines set the keys. */
   private fast: FlatRowScanner | undefined;
+  /** Lines read before the shape is learnt from them. */
+  private held: HeldLine[] = [];
+  /** The shape's keys, to find the fields a later line holds that the shape lacks. */
+  private keySet = new Set<string>();
+  /** Lines holding keys the shape lacks (unreadFields.ts). */
+  unreadFields: UnreadFields | undefined;
 
   constructor(
     private readonly file: string,
@@ -144,10 +167,45 @@ export class JsonLinesParser {
     }
     if (this.fast !== undefined && this.fast.store(buf, start, end, this.rows!, line, offset)) return;
     const text = buf.toString('utf8', start, end).trim();
-    if (text.length > 0) this.storeLine(text, offset);
+    if (text.length === 0) return;
+    if (this.shape !== undefined) {
+      this.storeObject(this.parseObject(text), offset, text);
+      return;
+    }
+    // The first lines are held for the shape, up to SHAPE_LINES of them ending within the head a read in
+    // ranges learns from (with room for a carriage return and newline), so both read the same shape.
+    const obj = this.parseObject(text);
+    const inHead = offset + (end - start) + 2 <= HEAD_BYTES;
+    if (!inHead && this.held.length > 0) {
+      this.end();
+      this.storeObject(obj, offset, text);
+      return;
+    }
+    this.held.push({ obj, text, line, offset });
+    if (!inHead || this.held.length === SHAPE_LINES) this.end();
   }
 
-  private storeLine(text: string, offset: number): void {
+  /** Learns the shape from the lines held, if it is not learnt yet, and stores them. Called after the last line. */
+  end(): void {
+    if (this.shape !== undefined || this.held.length === 0) return;
+    const held = this.held;
+    const current = this.line;
+    this.held = [];
+    this.line = held[0]!.line;
+    this.learnShape(held.map((h) => h.obj), held[0]!.text);
+    for (const h of held) {
+      this.line = h.line;
+      this.storeObject(h.obj, h.offset, h.text);
+    }
+    this.line = current;
+  }
+
+  /** Adds the note on fields the shape lacks to the rows' notes (a range's count is merged by its caller instead). */
+  noteUnreadFields(unread = this.unreadFields): void {
+    if (unread !== undefined) this.rows!.notes.messages.push(unreadFieldsMessage(unread, SHAPE_LINES));
+  }
+
+  private parseObject(text: string): Json {
     let value: unknown;
     try {
       value = JSON.parse(text);
@@ -157,24 +215,41 @@ export class JsonLinesParser {
     if (value === null || typeof value !== 'object' || Array.isArray(value)) {
       throw new InputError('a JSON object on each line', this.file, this.line, text);
     }
-    const obj = value as Json;
-    const shape = this.shape ?? this.learnShape(obj, text);
+    return value as Json;
+  }
+
+  private storeObject(obj: Json, offset: number, text: string): void {
+    const shape = this.shape!;
+    let extra: string[] | undefined;
+    for (const key in obj) if (!this.keySet.has(key)) (extra ??= []).push(key);
+    if (extra !== undefined) this.unreadFields = addUnreadLine(this.unreadFields, this.line, extra);
     if (shape.list) this.storeList(obj, shape, offset, text);
     else this.storeRow(obj, shape, offset, text);
   }
 
   /**
-   * Rows unless a field holds an array and the roles do not read as one row whose item is a plain value
-   * (then lists, under the list names: items, labels, scores).
+   * Rows unless a field of the first line holds an array and the roles do not read as one row whose item is
+   * a plain value (then lists, under the list names: items, labels, scores). The keys are every key of
+   * `objs`, each new one placed after the key written before it on its line, so that lines with and
+   * without it (a grade on judged rows only) both follow the order (the byte loop reads keys in order).
    */
-  private learnShape(obj: Json, text: string): Shape {
-    const present = Object.keys(obj);
+  private learnShape(objs: readonly Json[], text: string): Shape {
+    const obj = objs[0]!;
+    const present: string[] = [];
+    for (const o of objs) {
+      let after = -1;
+      for (const key of Object.keys(o)) {
+        let at = present.indexOf(key);
+        if (at < 0) present.splice((at = after + 1), 0, key);
+        after = at;
+      }
+    }
     // A key named for a role in --columns but absent from the first line (a grade written only on judged
     // rows): rows read it where a line has it, and as missing where not.
     const named = ROLES.map((role) => this.columns?.[role]).filter((k): k is string => k !== undefined && !present.includes(k));
     const keys = [...present, ...new Set(named)];
     const at = { file: this.file, line: this.line, text };
-    const nested = present.filter((k) => obj[k] !== null && typeof obj[k] === 'object');
+    const nested = present.filter((k) => objs.some((o) => o[k] !== null && typeof o[k] === 'object'));
     const list = nested.some((k) => Array.isArray(obj[k])) && !this.readsAsRow(keys, obj, at);
     return this.adoptShape(list ? present : keys, list, list ? [] : nested, at);
   }
@@ -207,6 +282,7 @@ export class JsonLinesParser {
     }
     this.rows = rows;
     const checkedOnly = skipped ? segments : [];
+    this.keySet = new Set(keys);
     this.shape = { list, keys, nested, roles, checkedOnly, rankStandsInForScore: roles.score < 0 };
     if (!list && engineSettings().tuning.jsonLinesFastRows) this.fast = new FlatRowScanner(keys, roles, roles.score < 0, checkedOnly);
     return this.shape;

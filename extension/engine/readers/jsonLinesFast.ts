@@ -1,12 +1,13 @@
 /**
- * The hot loop for JSON Lines of one row per line: a line whose keys come in the first line's order and
- * whose values are plain is stored from its bytes, with no string decoded and no object built (JSON.parse
- * and a string per value took 2 µs a line: 21 s for 10M rows). Plain means: ids and segments are strings
- * without a backslash (or ids that are integers of up to 15 digits); grades and scores are JSON numbers (or
- * null); fields of no role are any JSON (checked by a strict grammar); whitespace is spaces and tabs. Any
- * other line returns false, before anything is stored, and goes to the JSON parser, which stores it or
- * reports the problem: the same rows either way. The text is valid UTF-8 (source.ts checks
- * every byte), so an id's bytes are the UTF-8 of the string JSON.parse would give.
+ * The hot loop for JSON Lines of one row per line: a line whose keys come in the shape's order (learnt from
+ * the first lines; any but the query's and the item's may be absent) and whose values are plain is stored
+ * from its bytes, with no string decoded and no object built (JSON.parse and a string per value took 2 µs a
+ * line: 21 s for 10M rows). Plain means: ids and segments are strings without a backslash (or ids that are
+ * integers of up to 15 digits); grades and scores are JSON numbers (or null); fields of no role are any JSON
+ * (checked by a strict grammar); whitespace is spaces and tabs. Any other line returns false, before
+ * anything is stored, and goes to the JSON parser, which stores it or reports the problem: the same rows
+ * either way. The text is valid UTF-8 (source.ts checks every byte), so an id's bytes are the UTF-8 of the
+ * string JSON.parse would give.
  */
 import type { RowColumns } from './columns';
 import { POW10 } from './delimitedFast';
@@ -32,7 +33,7 @@ const KIND_CHECKED = -2;
 const KIND_SEGMENT = 5;
 
 export class FlatRowScanner {
-  /** Per key, in the first line's order: `"key"` as JSON writes it, and its kind (segment k: KIND_SEGMENT + k). */
+  /** Per key, in the shape's order: `"key"` as JSON writes it, and its kind (segment k: KIND_SEGMENT + k). */
   private readonly keyBytes: Uint8Array[];
   private readonly kinds: Int32Array;
   private readonly valueStart: Int32Array;
@@ -67,8 +68,7 @@ export class FlatRowScanner {
 
   /** Stores the row of line buf[start, end) when it is plain (see the module comment); false, storing nothing, otherwise. */
   store(buf: Uint8Array, start: number, end: number, rows: RowColumns, line: number, offset: number): boolean {
-    const kinds = this.kinds;
-    const fields = kinds.length;
+    const fields = this.kinds.length;
     if (buf !== this.viewOf) {
       this.view = new DataView(buf.buffer, buf.byteOffset, buf.byteLength);
       this.viewOf = buf;
@@ -76,81 +76,109 @@ export class FlatRowScanner {
     const view = this.view;
     let pos = skipSpace(buf, start, end);
     if (pos >= end || buf[pos] !== 123) return false;
-    pos++;
-    for (let f = 0; f < fields; f++) {
-      pos = skipSpace(buf, pos, end);
-      const key = this.keyBytes[f]!;
-      if (pos + key.length > end) return false;
-      // Four bytes at a time, then the rest.
-      const words = this.keyWords[f]!;
-      for (let w = 0; w < words.length; w++) if (view.getInt32(pos + 4 * w, true) !== words[w]) return false;
-      for (let i = 4 * words.length; i < key.length; i++) if (buf[pos + i] !== key[i]) return false;
-      pos = skipSpace(buf, pos + key.length, end);
+    pos = skipSpace(buf, pos + 1, end);
+    // Keys come in the shape's order; any but the query's and the item's may be absent (a grade written
+    // only on judged rows), and read as JSON.parse's line reads an absent key (absentValue).
+    let f = 0;
+    for (;;) {
+      let g = f;
+      while (g < fields && !this.keyAt(buf, pos, end, g, view)) {
+        if (!this.absent(g)) return false;
+        g++;
+      }
+      if (g === fields) return false;
+      f = g + 1;
+      pos = skipSpace(buf, pos + this.keyBytes[g]!.length, end);
       if (pos >= end || buf[pos] !== 58) return false;
       pos = skipSpace(buf, pos + 1, end);
-      if (pos >= end) return false;
-      const kind = kinds[f]!;
-      const c = buf[pos]!;
-      if (kind === KIND_LABEL || kind === KIND_SCORE || kind === KIND_RANK) {
-        if (c === 110 && pos + 4 <= end && buf[pos + 1] === 117 && buf[pos + 2] === 108 && buf[pos + 3] === 108) {
-          this.numbers[f] = NaN;
-          pos += 4;
-        } else {
-          const after = this.plainNumber(buf, pos, end, f);
-          if (after < 0) return false;
-          pos = after;
-        }
-      } else if (kind === KIND_OTHER) {
-        // A field of no role (text, a number, a literal, an array or object such as a feature vector): read
-        // past when it is JSON as JSON.parse would accept it, otherwise the line is handed over.
-        pos = skipJsonValue(buf, pos, end, 0);
-        if (pos < 0) return false;
-      } else if ((kind === KIND_QUERY || kind === KIND_ITEM) && (c === MINUS || (c >= 48 && c <= 57))) {
-        // An integer id (item ids are often numbers) of at most 15 digits: JSON.parse's number prints back as
-        // these very digits (String(Number(text)) === text below 10^15, -0 apart), the id the parser's line gives.
-        const after = integerId(buf, pos, end);
-        if (after < 0) return false;
-        this.valueStart[f] = pos;
-        this.valueEnd[f] = after;
-        pos = after;
-      } else if (c === QUOTE) {
-        // A string: up to the closing quote, with no escape and no control byte (JSON allows none raw).
-        let q = pos + 1;
-        // Four bytes at a time while none is a quote, a backslash or below 32 (a zero-byte test on the word
-        // xor the byte, and a less-than-32 test: each exact as a yes or no); the bytes then find which.
-        while (q + 4 <= end) {
-          const w = view.getInt32(q, true);
-          const quote = w ^ 0x22222222;
-          const slash = w ^ 0x5c5c5c5c;
-          if (((((quote - 0x01010101) & ~quote) | ((slash - 0x01010101) & ~slash) | ((w - 0x20202020) & ~w)) & 0x80808080) !== 0) break;
-          q += 4;
-        }
-        while (q < end) {
-          const b = buf[q]!;
-          if (b === QUOTE || b === BACKSLASH || b < 32) break;
-          q++;
-        }
-        if (q >= end || buf[q] !== QUOTE) return false;
-        this.valueStart[f] = pos + 1;
-        this.valueEnd[f] = q;
-        pos = q + 1;
-      } else {
-        return false;
-      }
+      pos = this.value(buf, pos, end, g, view);
+      if (pos < 0) return false;
       pos = skipSpace(buf, pos, end);
       if (pos >= end) return false;
-      if (f < fields - 1) {
-        if (buf[pos] !== 44) return false;
+      if (buf[pos] === 125) {
         pos++;
-      } else if (buf[pos] !== 125) {
-        return false;
-      } else {
-        pos++;
+        break;
       }
+      if (buf[pos] !== 44 || f === fields) return false;
+      pos = skipSpace(buf, pos + 1, end);
     }
+    for (let g = f; g < fields; g++) if (!this.absent(g)) return false;
     if (skipSpace(buf, pos, end) !== end) return false;
     this.storeRow(buf, rows, line, offset);
     return true;
+  }
+
+  /** True when key g (as JSON writes it) starts at pos: four bytes at a time, then the rest. */
+  private keyAt(buf: Uint8Array, pos: number, end: number, g: number, view: DataView): boolean {
+    const key = this.keyBytes[g]!;
+    if (pos + key.length > end) return false;
+    const words = this.keyWords[g]!;
+    for (let w = 0; w < words.length; w++) if (view.getInt32(pos + 4 * w, true) !== words[w]) return false;
+    for (let i = 4 * words.length; i < key.length; i++) if (buf[pos + i] !== key[i]) return false;
+    return true;
+  }
+
+  /**
+   * Field f absent from the line: false for the query's and the item's (the JSON parser's line reports
+   * it); otherwise what JSON.parse's line makes of an absent key: a missing grade or score, an empty
+   * segment value.
+   */
+  private absent(f: number): boolean {
+    const kind = this.kinds[f]!;
+    if (kind === KIND_QUERY || kind === KIND_ITEM) return false;
+    this.numbers[f] = NaN;
+    this.valueStart[f] = 0;
+    this.valueEnd[f] = 0;
+    return true;
+  }
+
+  /** Reads field f's value at pos; the position after it, or -1 when the line is not plain. */
+  private value(buf: Uint8Array, pos: number, end: number, f: number, view: DataView): number {
+    if (pos >= end) return -1;
+    const kind = this.kinds[f]!;
+    const c = buf[pos]!;
+    if (kind === KIND_LABEL || kind === KIND_SCORE || kind === KIND_RANK) {
+      if (c === 110 && pos + 4 <= end && buf[pos + 1] === 117 && buf[pos + 2] === 108 && buf[pos + 3] === 108) {
+        this.numbers[f] = NaN;
+        return pos + 4;
+      }
+      return this.plainNumber(buf, pos, end, f);
+    }
+    if (kind === KIND_OTHER) {
+      // A field of no role (text, a number, a literal, an array or object such as a feature vector): read
+      // past when it is JSON as JSON.parse would accept it, otherwise the line is handed over.
+      return skipJsonValue(buf, pos, end, 0);
+    }
+    if ((kind === KIND_QUERY || kind === KIND_ITEM) && (c === MINUS || (c >= 48 && c <= 57))) {
+      // An integer id (item ids are often numbers) of at most 15 digits: JSON.parse's number prints back as
+      // these very digits (String(Number(text)) === text below 10^15, -0 apart), the id the parser's line gives.
+      const after = integerId(buf, pos, end);
+      if (after < 0) return -1;
+      this.valueStart[f] = pos;
+      this.valueEnd[f] = after;
+      return after;
+    }
+    if (c !== QUOTE) return -1;
+    // A string: up to the closing quote, with no escape and no control byte (JSON allows none raw).
+    let q = pos + 1;
+    // Four bytes at a time while none is a quote, a backslash or below 32 (a zero-byte test on the word
+    // xor the byte, and a less-than-32 test: each exact as a yes or no); the bytes then find which.
+    while (q + 4 <= end) {
+      const w = view.getInt32(q, true);
+      const quote = w ^ 0x22222222;
+      const slash = w ^ 0x5c5c5c5c;
+      if (((((quote - 0x01010101) & ~quote) | ((slash - 0x01010101) & ~slash) | ((w - 0x20202020) & ~w)) & 0x80808080) !== 0) break;
+      q += 4;
+    }
+    while (q < end) {
+      const b = buf[q]!;
+      if (b === QUOTE || b === BACKSLASH || b < 32) break;
+      q++;
+    }
+    if (q >= end || buf[q] !== QUOTE) return -1;
+    this.valueStart[f] = pos + 1;
+    this.valueEnd[f] = q;
+    return q + 1;
   }
 
   private storeRow(buf: Uint8Array, rows: RowColumns, line: number, offset: number): void {

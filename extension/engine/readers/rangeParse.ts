@@ -18,6 +18,7 @@ import { JsonLinesParser, type JsonShape } from './jsonLines';
 import { columnsOf, readParquetTask, type ParquetTask } from './parquet';
 import type { ColumnRoles } from './roles';
 import { LineSink, pumpRange, type ReadBuffers, type RecordSink } from './source';
+import type { UnreadFields } from './unreadFields';
 
 export interface RangeTask {
   readonly path: string;
@@ -56,6 +57,8 @@ export type RangeRows = Readonly<RowArrays> & {
   readonly segmentPools: BytePoolState[];
   /** Gaps and grade extremes of the range, taken here so the main thread need not scan every row. */
   readonly gaps: RowSummary;
+  /** JSON Lines: lines holding keys the file's shape lacks (line numbers counted as `line`'s are). */
+  readonly unreadFields?: UnreadFields;
 };
 
 export type RangeResult =
@@ -66,6 +69,7 @@ export type RangeResult =
 export async function parseRange(task: RangeTask, onBytes: (done: number) => void, reuse?: ReadBuffers): Promise<RangeResult> {
   let rows: RowColumns;
   let lines = 0;
+  let unreadFields: UnreadFields | undefined;
   try {
     if (task.parquet !== undefined) {
       rows = columnsOf(task.parquet, 1024, task.shared);
@@ -75,6 +79,7 @@ export async function parseRange(task: RangeTask, onBytes: (done: number) => voi
       await pumpRange(task.path, task.start, task.end, parser.sink, onBytes, task.chunkBytes, reuse);
       rows = parser.rows();
       lines = parser.lines();
+      unreadFields = parser.unreadFields();
     }
   } catch (err) {
     if (err instanceof UnclosedQuoteError) return { kind: 'quoted' };
@@ -91,19 +96,19 @@ export async function parseRange(task: RangeTask, onBytes: (done: number) => voi
   };
   const columns = rowArrays((name) => (rows.inShared ? rowArray(name, 0) : rows[name].subarray(0, n) as never));
   const segmentIds = rows.inShared ? [] : rows.segmentIds.map((ids) => ids.subarray(0, n)) as Uint32Array[];
-  return { kind: 'rows', count: n, lines, inShared: rows.inShared, ...columns, segmentIds, ...pools, itemKeys };
+  return { kind: 'rows', count: n, lines, inShared: rows.inShared, ...columns, segmentIds, ...pools, itemKeys, unreadFields };
 }
 
 /** The parser of a range's format: what the bytes go to, its rows, and the newlines it consumed. */
-function rangeParser(task: RangeTask): { sink: RecordSink; rows: () => RowColumns; lines: () => number } {
+function rangeParser(task: RangeTask): { sink: RecordSink; rows: () => RowColumns; lines: () => number; unreadFields: () => UnreadFields | undefined } {
   if (task.json !== undefined) {
     const json = new JsonLinesParser(task.path, task.columns, task.end - task.start, { ...task.json, shared: task.shared });
     const sink = new LineSink((buf, start, end, line, offset) => json.acceptLine(buf, start, end, line, offset));
-    return { sink, rows: () => json.rows!, lines: () => sink.linesRead };
+    return { sink, rows: () => json.rows!, lines: () => sink.linesRead, unreadFields: () => json.unreadFields };
   }
   const delimited = new DelimitedParser({ file: task.path, delimiter: task.delimiter, columns: task.columns, expectedBytes: task.end - task.start,
     shared: task.shared }, { names: task.names });
-  return { sink: delimited, rows: () => delimited.columns!, lines: () => delimited.line - 1 };
+  return { sink: delimited, rows: () => delimited.columns!, lines: () => delimited.line - 1, unreadFields: () => undefined };
 }
 
 /** A thread's share of a read: the ranges it claimed, each with its index in the file's list of ranges. */

@@ -13,7 +13,8 @@ import type { DumpFormat, FileStamp, RankedDump } from '../model/dump';
 import { addSummaries } from '../model/rowSummary';
 import { ROW_COLUMN_NAMES, ROW_COLUMNS, sharedViews, type RowColumnName, type RowColumns, type SharedColumns } from '../readers/columns';
 import { parseHeaderLine } from '../readers/headerLine';
-import { emptyJsonLines, fileHead, jsonLinesHead } from '../readers/jsonLines';
+import { emptyJsonLines, fileHead, jsonLinesHead, SHAPE_LINES } from '../readers/jsonLines';
+import { mergeUnread, unreadFieldsMessage } from '../readers/unreadFields';
 import type { ReadOptions } from '../readers/readOptions';
 import { parseClaimedRanges, type ClaimedRanges, type RangeResult, type RangeTask } from '../readers/rangeParse';
 import { changedSince, fileChangedError, statStamp, throwIfCancelled } from '../readers/source';
@@ -166,6 +167,8 @@ async function readInRanges(lease: PoolLease<ParseRequests>, plan: RangePlan, th
   }
   if (await plan.changed(stamp)) throw fileChangedError(path);
   rows.setGaps(gaps);
+  const unread = mergeUnread(parts.map((p) => p.unreadFields), lineOffsets);
+  if (unread !== undefined) rows.notes.messages.push(unreadFieldsMessage(unread, SHAPE_LINES));
   options.onProgress?.(1);
   return rows.finish(path, plan.format, stamp);
 }
