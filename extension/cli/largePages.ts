@@ -1,40 +1,81 @@
 /**
- * Large pages for malloc, on request. A large read fills up to a gigabyte of fresh memory, and with
- * glibc's malloc asking for transparent huge pages (the tunable below, glibc 2.35 or later) the kernel
- * faults it in 2 MB pages instead of 4 KB ones. A tunable is read when the process starts, so the
- * command line runs itself again once with it set.
+ * Large pages for big inputs, where they pay. A large read fills up to a gigabyte of fresh memory (the row
+ * columns, the item bytes), and the kernel faults it in page by page; with glibc's malloc asking for
+ * transparent huge pages (the tunable below, glibc 2.35 or later; Node's large ArrayBuffers come from
+ * malloc) it takes one fault per 2 MB instead of per 4 KB. A tunable is read when the process starts, so
+ * the command line runs itself again once, with the tunable set.
  *
- * Off unless GAINLINE_LARGE_PAGES=1: measured on the 10M-row distinct-id TSV (632 MB) on the 2-core
- * machine, interleaved, `eval --format json`: with huge pages 2.84–3.37 s wall, 0.83–1.83 s system
- * time (74,000 minor faults); without 2.49–2.53 s, 0.45–0.58 s (245,000). User time was the same
- * (3.8–4.1 s), so the fewer faults saved nothing while the kernel spent more system time handing out
- * huge pages, and more still the first time a process asks for them after a while. On the 100M-row
- * stream: 22.3–27.8 s with, 22.8–23.6 s without. (An earlier reader measured 5.3 s of user time
- * falling to 3.7 s with them; today's gains nothing.)
- *
+ * Whether that pays depends on the machine. Measured on 2-core virtual machines of one kind, `eval --format
+ * json` on the 10M-row distinct-id TSV (632 MB), interleaved:
+ * - this one (first writes to fresh memory 2.9–3.1 ms/MB in 4 KB pages, 0.8 in large ones): 2.76–3.22 s
+ *   without, 2.24–2.67 s with (user time 3.8 s against 3.1 s), and still 2.68–2.96 against 1.97–2.37 s
+ *   with the page cache filling memory (the kernel compacting memory 257 times to find huge pages); every
+ *   large file of the bench 10–20% faster; the 100M-row stream 20.4–26.6 s against 18.2–19.8 s;
+ * - an earlier one (first writes 2.8–3.7 ms/MB too): 2.49–2.53 s without, 2.84–3.37 s with, the kernel
+ *   spending 0.3–1.3 s more system time handing out huge pages than the faults saved.
+ * Large pages can save no more than 4 KB faults cost, so unset, it re-runs when an input file is at least
+ * LARGE_INPUT_BYTES and writing 8 MB of fresh memory here costs at least DEAR_FAULTS_MS_PER_MB (about
+ * 25 ms on this machine). GAINLINE_LARGE_PAGES=0 never re-runs (for a machine like the earlier one); =1
+ * always does, whatever the size or the probe.
  * The marker variable says a process is the re-run one, so it never runs itself again.
  */
 import { spawn } from 'node:child_process';
+import { statSync } from 'node:fs';
+import { resolve } from 'node:path';
 
 export const LARGE_PAGES_VARIABLE = 'GAINLINE_LARGE_PAGES';
 /** Set in the re-run process (value: the tunable it was given). */
 export const LARGE_PAGES_MARKER = 'GAINLINE_LARGE_PAGES_RUN';
 const TUNABLE = 'glibc.malloc.hugetlb=1';
+/** Below this the re-run's start (about 0.1 s) and the probe cost more than the faults they save. */
+export const LARGE_INPUT_BYTES = 128 << 20;
+/** First writes to fresh memory at least this dear (ms per MB) make large pages pay (see above). */
+export const DEAR_FAULTS_MS_PER_MB = 1.5;
+const PROBE_BYTES = 8 << 20;
 type Env = Readonly<Record<string, string | undefined>>;
 
 /**
- * The environment to run again with, or undefined to run here: on Linux only when GAINLINE_LARGE_PAGES=1,
- * not when already re-run and not when GLIBC_TUNABLES already says something about hugetlb.
+ * The environment to run again with, or undefined to run here: on Linux only, not when already re-run, nor
+ * when GLIBC_TUNABLES already says something about hugetlb; then when GAINLINE_LARGE_PAGES=1, or when it is
+ * unset, a positional argument names a file of at least LARGE_INPUT_BYTES and `faultCost()` (ms per MB)
+ * is at least DEAR_FAULTS_MS_PER_MB.
  */
-export function largePagesEnv(env: Env, platform: string = process.platform): Record<string, string> | undefined {
-  if (platform !== 'linux' || env[LARGE_PAGES_MARKER] !== undefined || env[LARGE_PAGES_VARIABLE] !== '1') return undefined;
+export function largePagesEnv(argv: readonly string[], env: Env, cwd: string, platform: string = process.platform,
+  sizeOf: (path: string) => number = fileSize, faultCost: () => number = freshMemoryCost): Record<string, string> | undefined {
+  const setting = env[LARGE_PAGES_VARIABLE];
+  if (platform !== 'linux' || env[LARGE_PAGES_MARKER] !== undefined || setting === '0') return undefined;
   const tunables = env.GLIBC_TUNABLES ?? '';
   if (tunables.includes('glibc.malloc.hugetlb')) return undefined;
+  if (setting !== '1') {
+    if (!argv.some((arg) => !arg.startsWith('-') && arg !== '' && sizeOf(resolve(cwd, arg)) >= LARGE_INPUT_BYTES)) return undefined;
+    if (faultCost() < DEAR_FAULTS_MS_PER_MB) return undefined;
+  }
   const next: Record<string, string> = {};
   for (const [key, value] of Object.entries(env)) if (value !== undefined) next[key] = value;
   next.GLIBC_TUNABLES = tunables === '' ? TUNABLE : `${tunables}:${TUNABLE}`;
   next[LARGE_PAGES_MARKER] = TUNABLE;
   return next;
+}
+
+/** Size of a regular file, 0 for anything else (an option's value, a folder, a missing path). */
+function fileSize(path: string): number {
+  try {
+    const s = statSync(path);
+    return s.isFile() ? s.size : 0;
+  } catch {
+    return 0;
+  }
+}
+
+/**
+ * Milliseconds per MB of the first write to fresh memory in 4 KB pages: PROBE_BYTES newly allocated
+ * (malloc maps them fresh and leaves them untouched), one byte written per page.
+ */
+export function freshMemoryCost(bytes = PROBE_BYTES): number {
+  const started = process.hrtime.bigint();
+  const fresh = new Uint8Array(new ArrayBuffer(bytes));
+  for (let i = 0; i < fresh.length; i += 4096) fresh[i] = 1;
+  return Number(process.hrtime.bigint() - started) / 1e6 / (bytes / (1 << 20));
 }
 
 /** True in a process started by runWithLargePages. */

@@ -13,7 +13,7 @@ async function runHere(): Promise<number> {
   return runCli(process.argv.slice(2), processIO());
 }
 
-const rerun = largePagesEnv(process.env);
+const rerun = largePagesEnv(process.argv.slice(2), process.env, process.cwd());
 // If the re-run cannot start (no spawn allowed), the command runs here without large pages.
 (rerun ? runWithLargePages(rerun).catch(runHere) : runHere()).then(
   (code) => {

@@ -1,6 +1,6 @@
 import { spawnSync } from 'node:child_process';
 import { describe, expect, it } from 'vitest';
-import { LARGE_PAGES_MARKER, largePagesEnv } from '../../extension/cli/largePages';
+import { DEAR_FAULTS_MS_PER_MB, freshMemoryCost, LARGE_INPUT_BYTES, LARGE_PAGES_MARKER, largePagesEnv } from '../../extension/cli/largePages';
 import { CLI, fixtureDir } from './support/runCli';
 
 const SMALL = [
@@ -11,24 +11,54 @@ const SMALL = [
   'wood screws 4x40,SKU-200002,0,0.3',
 ].join('\n') + '\n';
 
+const sizes = (big: number) => (path: string) => (path.endsWith('big.tsv') ? big : 10);
+/** A probe stub: dear faults (as measured on the machine where large pages paid) or cheap ones. */
+const dear = () => 3;
+const cheap = () => 0.5;
+
 describe('largePagesEnv: when the command line runs itself again with large pages', () => {
-  it('re-runs only when GAINLINE_LARGE_PAGES=1, adding the tunable and the marker', () => {
-    const env = largePagesEnv({ PATH: '/bin', GAINLINE_LARGE_PAGES: '1' }, 'linux');
-    expect(env).toEqual({ PATH: '/bin', GAINLINE_LARGE_PAGES: '1', GLIBC_TUNABLES: 'glibc.malloc.hugetlb=1', [LARGE_PAGES_MARKER]: 'glibc.malloc.hugetlb=1' });
-    expect(largePagesEnv({ PATH: '/bin' }, 'linux')).toBeUndefined();
-    expect(largePagesEnv({ GAINLINE_LARGE_PAGES: '0' }, 'linux')).toBeUndefined();
+  const argv = ['eval', 'big.tsv', '--format', 'json'];
+  const big = sizes(LARGE_INPUT_BYTES);
+
+  it('re-runs for an input of at least LARGE_INPUT_BYTES where faults are dear, adding the tunable and the marker', () => {
+    const env = largePagesEnv(argv, { PATH: '/bin' }, '/data', 'linux', big, dear);
+    expect(env).toEqual({ PATH: '/bin', GLIBC_TUNABLES: 'glibc.malloc.hugetlb=1', [LARGE_PAGES_MARKER]: 'glibc.malloc.hugetlb=1' });
+    expect(largePagesEnv(argv, {}, '/data', 'linux', big, () => DEAR_FAULTS_MS_PER_MB)).toBeDefined();
+  });
+
+  it('runs here where faults are cheap, and probes only for a large input', () => {
+    expect(largePagesEnv(argv, {}, '/data', 'linux', big, cheap)).toBeUndefined();
+    expect(largePagesEnv(argv, {}, '/data', 'linux', big, () => DEAR_FAULTS_MS_PER_MB - 0.01)).toBeUndefined();
+    let probes = 0;
+    const counted = () => {
+      probes++;
+      return 3;
+    };
+    expect(largePagesEnv(argv, {}, '/data', 'linux', sizes(LARGE_INPUT_BYTES - 1), counted)).toBeUndefined();
+    expect(probes).toBe(0);
   });
 
   it('keeps tunables already set, appended with a colon (glibc tunables syntax)', () => {
-    const env = largePagesEnv({ GAINLINE_LARGE_PAGES: '1', GLIBC_TUNABLES: 'glibc.malloc.arena_max=2' }, 'linux');
+    const env = largePagesEnv(argv, { GLIBC_TUNABLES: 'glibc.malloc.arena_max=2' }, '/data', 'linux', big, dear);
     expect(env?.GLIBC_TUNABLES).toBe('glibc.malloc.arena_max=2:glibc.malloc.hugetlb=1');
   });
 
-  it('runs here off Linux, once re-run, or when hugetlb is already chosen', () => {
-    const on = { GAINLINE_LARGE_PAGES: '1' };
-    expect(largePagesEnv(on, 'darwin')).toBeUndefined();
-    expect(largePagesEnv({ ...on, [LARGE_PAGES_MARKER]: 'x' }, 'linux')).toBeUndefined();
-    expect(largePagesEnv({ ...on, GLIBC_TUNABLES: 'glibc.malloc.hugetlb=0' }, 'linux')).toBeUndefined();
+  it('runs here off Linux, once re-run, when switched off, or when hugetlb is already chosen', () => {
+    expect(largePagesEnv(argv, {}, '/data', 'darwin', big, dear)).toBeUndefined();
+    expect(largePagesEnv(argv, { [LARGE_PAGES_MARKER]: 'x' }, '/data', 'linux', big, dear)).toBeUndefined();
+    expect(largePagesEnv(argv, { GAINLINE_LARGE_PAGES: '0' }, '/data', 'linux', big, dear)).toBeUndefined();
+    expect(largePagesEnv(argv, { GLIBC_TUNABLES: 'glibc.malloc.hugetlb=0' }, '/data', 'linux', big, dear)).toBeUndefined();
+  });
+
+  it('re-runs whatever the size and the probe when asked to, and looks at positional arguments only', () => {
+    expect(largePagesEnv(['eval', 'small.csv'], { GAINLINE_LARGE_PAGES: '1' }, '/data', 'linux', sizes(0), cheap)).toBeDefined();
+    expect(largePagesEnv(['eval', '--big.tsv'], {}, '/data', 'linux', big, dear)).toBeUndefined();
+  });
+
+  it('measures fresh memory in milliseconds per MB (a positive, finite figure)', () => {
+    const cost = freshMemoryCost(1 << 20);
+    expect(cost).toBeGreaterThan(0);
+    expect(Number.isFinite(cost)).toBe(true);
   });
 });
 
