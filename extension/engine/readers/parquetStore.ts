@@ -11,16 +11,19 @@ import type { BytePool } from '../model/bytePool';
 import type { RowColumns } from './columns';
 import { describeNonNumberText, parseNumberText } from './numbers';
 import type { SliceColumn } from './parquetPages';
+import { TIME_PARSERS } from './parquetTimes';
 import { NULL_ROW, type NumberSlice, type TextSlice } from './parquetTypedPages';
 import type { ResolvedRoles } from './roles';
 import { escapeBytes } from './textCheck';
 
 /**
- * Text values arrive as their bytes: decoding each to a string and encoding it back for the pools and the row
- * texts took about 2 s of garbage and copying on 10M rows. Bytes that are not UTF-8 are refused for ids and
- * escaped for segments (a decoder would turn them into U+FFFD and merge ids).
+ * Text values (and JSON, as its text) arrive as their bytes: decoding each to a string and encoding it back
+ * for the pools and the row texts took about 2 s of garbage and copying on 10M rows. Bytes that are not
+ * UTF-8 are refused for ids and escaped for segments (a decoder would turn them into U+FFFD and merge ids).
+ * Dates and timestamps arrive as ISO 8601 text (parquetTimes.ts), not as Dates printed in the local zone.
  */
-export const RAW_TEXT = { stringFromBytes: (bytes: Uint8Array | undefined) => bytes } as unknown as Partial<ParquetParsers>;
+export const RAW_TEXT = { ...TIME_PARSERS, stringFromBytes: (bytes: Uint8Array | undefined) => bytes,
+  jsonFromBytes: (bytes: Uint8Array | undefined) => bytes } as unknown as Partial<ParquetParsers>;
 const textEncoder = new TextEncoder();
 const textDecoder = new TextDecoder('utf-8');
 const EMPTY = new Uint8Array(0);
@@ -231,9 +234,11 @@ function idBytes(v: unknown, column: string, file: string, row: number): Uint8Ar
 }
 
 /** A segment value's UTF-8 bytes: empty when missing, bytes that are not UTF-8 escaped, other values as they print. */
+/** A segment's bytes: text as it is (escaped when not UTF-8), a number as it prints, a struct or list as JSON. */
 function segmentBytes(v: unknown): Uint8Array {
   if (v === null || v === undefined) return EMPTY;
   if (v instanceof Uint8Array) return isUtf8(v) ? v : textEncoder.encode(escapeBytes(v));
+  if (typeof v === 'object') return textEncoder.encode(JSON.stringify(v, (_, x: unknown) => (typeof x === 'bigint' ? x.toString() : x)));
   return textEncoder.encode(String(v));
 }
 

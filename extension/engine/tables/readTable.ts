@@ -5,6 +5,7 @@
  * small next to a dump (thousands to millions of rows), so cells are kept as strings, column by column.
  */
 import { asyncBufferFromFile, parquetMetadataAsync, parquetReadObjects, parquetSchema } from 'hyparquet';
+import { TIME_PARSERS } from '../readers/parquetTimes';
 import { compressors } from 'hyparquet-compressors';
 import { InputError } from '../errors';
 import { DelimitedParser } from '../readers/delimited';
@@ -125,7 +126,7 @@ async function readParquetTable(path: string): Promise<TextTable> {
     const metadata = await parquetMetadataAsync(file);
     const names = parquetSchema(metadata).children.filter((c) => c.children.length === 0).map((c) => c.element.name);
     table.header(names, 0, names.join(', '));
-    rows = await parquetReadObjects({ file, metadata, columns: names, compressors });
+    rows = await parquetReadObjects({ file, metadata, columns: names, compressors, parsers: TIME_PARSERS });
   } catch (err) {
     if (err instanceof InputError) throw err;
     throw new InputError('a readable Parquet file', path, undefined, (err as Error).message);
