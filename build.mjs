@@ -8,10 +8,13 @@ const watch = process.argv.includes('--watch');
 const common = { bundle: true, sourcemap: true, logLevel: 'warning', target: 'es2022' };
 
 const entries = [
-  // Command line: plain Node, runnable as `gainline` through package.json "bin".
+  // Command line: plain Node, runnable as `gainline` through package.json "bin": a launcher (see extension/cli/main.ts).
   { ...common, entryPoints: ['extension/cli/main.ts'], outfile: 'dist/cli.js', platform: 'node', format: 'cjs',
+    banner: { js: '#!/usr/bin/env node' } },
+  // The commands themselves, loaded by dist/cli.js in the process that runs them (see extension/cli/main.ts).
+  { ...common, entryPoints: ['extension/cli/runHere.ts'], outfile: 'dist/cliCommands.js', platform: 'node', format: 'cjs',
     // DuckDB is a native module, loaded only by --engine duckdb: it stays outside the bundle.
-    banner: { js: '#!/usr/bin/env node' }, external: ['@duckdb/node-api'] },
+    external: ['@duckdb/node-api'] },
   // Engine worker thread used by the CLI and the extension host for parallel reading.
   { ...common, entryPoints: ['extension/worker/engineWorker.ts'], outfile: 'dist/engineWorker.js', platform: 'node', format: 'cjs',
     // The editor's views served through DuckDB load it at use, from a folder the user names.
