@@ -55,7 +55,12 @@ const SHAPES = [
   { name: 'jsonl, a distinct title', file: 'title.jsonl', same: 'tsv plain',
     line: (x) => JSON.stringify({ query: x.query, item: `SKU-${x.item}`, grade: x.grade, score: Number(x.score.toFixed(4)), locale: x.locale,
       title: `Cordless drill, 18 V, model ${x.item}` }) + '\n' },
+  { name: 'jsonl, a grade only on judged rows', file: 'judged-only.jsonl', same: 'tsv plain',
+    line: (x) => JSON.stringify({ query: x.query, item: `SKU-${x.item}`, ...(x.grade > 0 ? { grade: x.grade } : {}), score: Number(x.score.toFixed(4)),
+      locale: x.locale }) + '\n' },
   { name: 'parquet, text ids', file: 'text-ids.parquet', plain: true, same: 'tsv plain', from: 'plain.tsv', select: 'query, item, grade, score, locale' },
+  { name: 'parquet, a timestamp column', file: 'timestamps.parquet', same: 'tsv plain', from: 'plain.tsv',
+    select: "query, item, grade, score, locale, make_timestamp((1796292000000000 + hash(item) % 86400000000)::BIGINT) AS asked_at" },
   { name: 'parquet, BIGINT ids', file: 'bigint-ids.parquet', same: 'tsv plain', from: 'plain.tsv', select: "CAST(regexp_extract(query, '(\\d+)$') AS BIGINT) AS query, CAST(substr(item, 5) AS BIGINT) AS item, grade, score, locale" },
 ];
 

@@ -11,13 +11,11 @@ import { join } from 'node:path';
 import { readRleBitPackedHybrid } from 'hyparquet/src/encoding.js';
 import { parquetWriteBuffer } from 'hyparquet-writer';
 import { afterAll, describe, expect, it } from 'vitest';
-import { configureEngine, engineActivity, engineSettings } from '../../extension/engine/config';
-import type { RankedDump } from '../../extension/engine/model/dump';
-import { readDump } from '../../extension/engine/readers/index';
+import { configureEngine, engineSettings } from '../../extension/engine/config';
 import { readHybrid } from '../../extension/engine/readers/parquetHybrid';
 import { seededRandom } from '../reference/random';
 import { TempDir } from './fixtures/readers/tempFiles';
-import { expectSameOutcome } from './fixtures/sameReading';
+import { duckdb, expectThreeSame, readThreeWays } from './fixtures/parquetThreeWays';
 
 const tmp = new TempDir();
 const saved = engineSettings();
@@ -25,32 +23,6 @@ afterAll(() => {
   configureEngine(saved);
   tmp.remove();
 });
-
-/** One thread's reading three ways: the decoder's rows, its page functions, typed pages; and the pages decoded typed. */
-async function readThreeWays(path: string, sliceRows = 65_536) {
-  const attempt = () => readDump(path, { threads: 1 }).catch((e: Error) => e);
-  configureEngine({ tuning: { parquetPages: false } });
-  const reference = await attempt();
-  const activity = engineActivity();
-  configureEngine({ tuning: { parquetPages: true, parquetTypedPages: false, parquetSliceRows: sliceRows } });
-  let pieces = activity.parquetPagePieces;
-  const pages = await attempt();
-  const pagePieces = activity.parquetPagePieces - pieces;
-  configureEngine({ tuning: { parquetTypedPages: true } });
-  const before = activity.parquetTypedPages;
-  pieces = activity.parquetPagePieces;
-  const typed = await attempt();
-  // A piece the typed pages gave up on is read the decoder's way: the same rows, but not the path under test.
-  if (!(typed instanceof Error)) expect(activity.parquetPagePieces - pieces).toBe(pagePieces);
-  return { reference, pages, typed, typedPages: activity.parquetTypedPages - before };
-}
-
-/** All three the same; returns the reference dump (undefined when all failed) and the typed page count. */
-async function expectThreeSame(path: string, sliceRows?: number): Promise<{ dump: RankedDump | undefined; typedPages: number }> {
-  const { reference, pages, typed, typedPages } = await readThreeWays(path, sliceRows);
-  expectSameOutcome(reference, pages);
-  return { dump: expectSameOutcome(reference, typed), typedPages };
-}
 
 const WORDS = ['Säge', 'ドライバー', 'clamp', 'tuerca ñ', '🔨 hammer', 'x'.repeat(140)];
 const encoder = new TextEncoder();
@@ -256,17 +228,6 @@ describe('Parquet pages decoded typed', () => {
   });
 });
 
-async function duckdb(sql: string): Promise<void> {
-  const { DuckDBInstance } = await import('@duckdb/node-api');
-  const instance = await DuckDBInstance.create(':memory:');
-  const connection = await instance.connect();
-  try {
-    await connection.run(sql);
-  } finally {
-    connection.closeSync();
-    instance.closeSync();
-  }
-}
 
 /** The hybrid the obvious way: each run's header, then an RLE value or the values bit by bit, least significant first. */
 function encodeHybrid(runs: readonly { readonly rle: boolean; readonly values: readonly number[] }[], width: number): Uint8Array {

@@ -12,6 +12,7 @@ import { decompressPage, readDataPage, readDataPageV2 } from 'hyparquet/src/data
 import { readPlain } from 'hyparquet/src/plain.js';
 import { getMaxDefinitionLevel, getTreePath } from 'hyparquet/src/schema.js';
 import { parquetSchema, type Compressors, type DecodedArray, type FileMetaData, type ParquetParsers } from 'hyparquet';
+import { timeUnitOf } from './parquetTimeText';
 import { TypedColumnCursor, typedKind, type TypedSlice } from './parquetTypedPages';
 
 /** What the page functions read a column with (the decoder's ColumnDecoder). */
@@ -62,7 +63,8 @@ export async function openFlatColumns(
     const wanted = options.kinds?.get(name);
     const kind = wanted && typedKind(element.element, meta, wanted);
     if (kind !== undefined) {
-      const column = { kind, type: meta.type, codec: meta.codec, compressors: options.compressors, maxDefinition: getMaxDefinitionLevel(schemaPath) };
+      const column = { kind, type: meta.type, codec: meta.codec, compressors: options.compressors, maxDefinition: getMaxDefinitionLevel(schemaPath),
+        time: timeUnitOf(element.element, meta) };
       typed.set(name, new TypedColumnCursor(new Uint8Array(bytes), column, options.sliceRows));
       continue;
     }

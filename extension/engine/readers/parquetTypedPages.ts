@@ -20,6 +20,7 @@ import { isUtf8 } from 'node:buffer';
 import { engineActivity } from '../config';
 import { readHybrid, readUint32 } from './parquetHybrid';
 import { integerTexts } from './parquetIntegerText';
+import { timeTexts, timeUnitOf, type TimeUnit } from './parquetTimeText';
 
 /** A row of a typed slice with no value (the level says null) and one past the chunk's last page. */
 export const NULL_ROW = -1;
@@ -66,8 +67,10 @@ export function typedKind(element: SchemaElement, meta: ColumnMetaData, wanted: 
     && (logical === undefined || (logical.type === 'INTEGER' && logical.isSigned));
   if (wanted === 'text') {
     const plainText = logical === undefined || logical.type === 'STRING' || logical.type === 'ENUM';
-    // Signed integers as ids print as the decoder's number or bigint prints (parquetIntegerText.ts).
-    return (meta.type === 'BYTE_ARRAY' && TEXT_TYPES.has(element.converted_type) && plainText) || signedInteger ? 'text' : undefined;
+    // Signed integers as ids print as the decoder's number or bigint prints (parquetIntegerText.ts), dates and
+    // timestamps as the ISO text of parquetTimes.ts (parquetTimeText.ts).
+    return (meta.type === 'BYTE_ARRAY' && TEXT_TYPES.has(element.converted_type) && plainText) || signedInteger || timeUnitOf(element, meta) !== undefined
+      ? 'text' : undefined;
   }
   if (meta.type === 'DOUBLE' || meta.type === 'FLOAT') return element.converted_type === undefined && logical === undefined ? 'number' : undefined;
   return signedInteger ? 'number' : undefined;
@@ -81,6 +84,8 @@ export interface TypedColumn {
   readonly compressors: Compressors;
   /** 1 for an optional column (a definition level per row), 0 for a required one. */
   readonly maxDefinition: number;
+  /** Text columns of dates or timestamps: what their integers count. */
+  readonly time?: TimeUnit;
 }
 
 let dictionaries = 0;
@@ -327,9 +332,10 @@ export class TypedColumnCursor {
 
   /** An integer column's PLAIN values printed as text (ASCII), their ranges in starts and ends; undefined for a text column. */
   private integerTexts(bytes: Uint8Array, at: number, count: number, into: 'page' | 'dictionary'): Uint8Array | undefined {
-    const type = this.column.type;
+    const { type, time } = this.column;
     if (type !== 'INT32' && type !== 'INT64') return undefined;
     const [starts, ends] = this.ranges(count, into);
+    if (time !== undefined) return timeTexts(bytes, at, count, time, starts, ends);
     return integerTexts(bytes, at, count, type === 'INT32' ? 4 : 8, starts, ends);
   }
 
