@@ -1,7 +1,7 @@
 /**
  * JSON Lines, in one of two shapes learnt from the first lines (up to SHAPE_LINES lines with a value, within
- * the first HEAD_BYTES bytes; the union of their keys, in the order first written, so a grade written only
- * on judged rows is a column as long as one of them is judged):
+ * the first HEAD_BYTES bytes; every key any of them writes, so a grade written only on judged rows is a
+ * column as long as one of them is judged):
  * - one row per line: `{"query_id": "q1", "item_id": "sku-1", "label": 2, "score": 0.4, "locale": "en"}`
  * - one list per line: `{"query": "q1", "items": [...], "labels": [...], "scores": [...]}` (equal lengths)
  * Every row of a list shares the list's line number and byte offset. A line whose roles read as one row,
@@ -201,8 +201,8 @@ export class JsonLinesParser {
   }
 
   /** Adds the note on fields the shape lacks to the rows' notes (a range's count is merged by its caller instead). */
-  noteUnreadFields(unread = this.unreadFields): void {
-    if (unread !== undefined) this.rows!.notes.messages.push(unreadFieldsMessage(unread, SHAPE_LINES));
+  noteUnreadFields(): void {
+    if (this.unreadFields !== undefined) this.rows!.notes.messages.push(unreadFieldsMessage(this.unreadFields, SHAPE_LINES));
   }
 
   private parseObject(text: string): Json {

@@ -78,7 +78,7 @@ export class FlatRowScanner {
     if (pos >= end || buf[pos] !== 123) return false;
     pos = skipSpace(buf, pos + 1, end);
     // Keys come in the shape's order; any but the query's and the item's may be absent (a grade written
-    // only on judged rows), and read as JSON.parse's line reads an absent key (absentValue).
+    // only on judged rows), and read as JSON.parse's line reads an absent key (see absent).
     let f = 0;
     for (;;) {
       let g = f;
