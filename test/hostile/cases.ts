@@ -36,6 +36,10 @@ const runRows = rows.map((r) => ({ ...r, query: r.query.replace(/ /g, '_') }));
 const { run, judgments } = runAndJudgments(runRows);
 const judgmentLines = judgments.toString('utf8').split('\n').filter((l) => l.trim() !== '');
 const okGzip = gzipSync(delimited(rows));
+// Every fourth row unjudged, the first among them, written without a grade key (as dumps write unjudged rows).
+const unjudgedFirst = rows.map((r, i) => (i % 4 === 0 ? { ...r, grade: NaN } : r));
+const gradeWhereJudged = Buffer.from(unjudgedFirst.map((r) => JSON.stringify({ query: r.query, item: r.item,
+  ...(Number.isNaN(r.grade) ? {} : { grade: r.grade }), score: Number.isNaN(r.score) ? null : r.score })).join('\n') + '\n');
 
 /** A large quote-free CSV with a bad byte near its end, read on several threads (--threads 3). */
 const manyRows = randomRows(13, 3000);
@@ -65,6 +69,8 @@ export const CASES: readonly HostileCase[] = [
   { name: 'quoted awkward ids (commas, quotes, edge spaces, 5 KB id, non-ASCII)', files: { 'a.csv': delimited(awkward) }, args: ['eval', 'a.csv'],
     expect: { rows: awkward } },
   { name: 'gzip CSV', files: { 'd.csv.gz': okGzip }, args: ['eval', 'd.csv.gz'], expect: { rows } },
+  { name: 'JSON Lines with a grade key only on judged rows, the first line unjudged', files: { 'u.jsonl': gradeWhereJudged }, args: ['eval', 'u.jsonl'],
+    expect: { rows: unjudgedFirst } },
   { name: 'JSON Lines with awkward ids', files: { 'd.jsonl': jsonLines(awkward) }, args: ['eval', 'd.jsonl'], expect: { rows: awkward } },
   { name: 'run file + judgments', files: { 'r.run': run, 'j.txt': judgments }, args: ['eval', 'r.run', '--judgments', 'j.txt'], expect: { rows: runRows } },
   { name: 'Parquet', files: { 'd.parquet': parquet(rows) }, args: ['eval', 'd.parquet'], expect: { rows } },
