@@ -5,6 +5,8 @@
  * never dropped unsaid.
  */
 
+import { formatCountInText } from '../../presentation/numbers';
+
 /** The lines holding keys the shape lacks: how many, the first of them, and the first few keys. */
 export interface UnreadFields {
   readonly lines: number;
@@ -39,7 +41,7 @@ export function mergeUnread(parts: readonly (UnreadFields | undefined)[], lineOf
 /** The note for the report; `shapeLines`: how many lines the shape is learnt from, at most. */
 export function unreadFieldsMessage(unread: UnreadFields, shapeLines: number): string {
   const keys = unread.keys.map((k) => `'${k}'`).join(', ');
-  const lines = unread.lines === 1 ? '1 line holds' : `${unread.lines} lines hold`;
+  const lines = unread.lines === 1 ? '1 line holds' : `${formatCountInText(unread.lines)} lines hold`;
   return `${lines} fields the file's first lines do not (${keys}; the first on line ${unread.firstLine}): those fields are not read `
     + `(a file's fields are learnt from its first ${shapeLines} lines)`;
 }
