@@ -129,7 +129,8 @@ export function overviewOf(file: FileInfo, evaluation: Evaluation, notes: readon
     degenerate: { ...evaluation.degenerate },
     histogram: histogram(evaluation.perQuery.values[evaluation.headline]!, metricRange(evaluation.metrics[evaluation.headline]!)),
     segmentColumns: [],
-    warnings: [...evaluation.warnings, ...notes],
+    // The reader's notes are in the evaluation's warnings too when it was made from the dump (describeReading): once each.
+    warnings: [...new Set([...evaluation.warnings, ...notes])],
     ...(evaluation.judgments ? { judgments: judgmentsView(evaluation.judgments) } : {}),
     loadMs: Math.round(loadMs),
   };

@@ -149,3 +149,18 @@ describe('gainline exit codes and error lines', () => {
     expect(runCli(['--version']).stdout.trim()).toMatch(/^\d+\.\d+\.\d+$/);
   });
 });
+
+// The reader's own notes were shown in the editor only; every report carries them now (describeReading).
+describe('gainline eval shows what the reader noted', () => {
+  const lines = Array.from({ length: 300 }, (_, r) => JSON.stringify({ query: `drill ${r >> 3}`, item: `SKU-${r}`, grade: r % 3, score: r / 300,
+    ...(r >= 280 ? { shelf: 'aisle 4' } : {}) }));
+  const dir = fixtureDir({ 'late.jsonl': lines.join('\n') + '\n', 'ranked.csv': 'query,item,grade,rank\nq,a,1,1\nq,b,0,2\n' });
+
+  it('in the table, JSON and comparison reports: a JSON Lines field first written after the first lines, a rank standing in for the score', () => {
+    const late = "20 lines hold fields the file's first lines do not ('shelf'; the first on line 281): those fields are not read";
+    expect(runCli(['eval', 'late.jsonl'], dir).stdout).toContain(late);
+    expect(JSON.parse(runCli(['eval', 'late.jsonl', '--format', 'json'], dir).stdout).warnings.join('\n')).toContain(late);
+    expect(runCli(['eval', 'ranked.csv'], dir).stdout).toContain("no score column: ranked by 'rank' (score = -rank)");
+    expect(runCli(['compare', 'late.jsonl', 'late.jsonl'], dir).stdout).toContain(`B: ${late}`);
+  });
+});

@@ -5,7 +5,7 @@
  */
 import { evaluate, gradeRange } from '../evaluate/evaluate';
 import type { Evaluation } from '../evaluate/types';
-import { describeJudgments } from '../evaluate/warnings';
+import { describeReading } from '../evaluate/warnings';
 import { InputError } from '../errors';
 import type { Conventions } from '../metrics/conventions';
 import { anyNeeds, type MetricSpec } from '../metrics/registry';
@@ -118,8 +118,8 @@ export type RunEvaluator = (dump: RankedDump, metrics: readonly MetricSpec[], co
   options: { groups: QueryGroups; signal?: AbortSignal; sensitivity: false; onProgress: (fraction: number) => void }) => Evaluation | Promise<Evaluation>;
 
 /** Each run's judgments-file counts (judged items never retrieved, missing queries), marked with the run. */
-function judgmentNotes(run: 'A' | 'B', dump: RankedDump): string[] {
-  return describeJudgments(dump).map((note) => `${run}: ${note}`);
+function readingNotes(run: 'A' | 'B', dump: RankedDump): string[] {
+  return describeReading(dump).map((note) => `${run}: ${note}`);
 }
 
 export async function compareRuns(
@@ -210,7 +210,7 @@ export async function compareRuns(
     byMetric,
     methodNotes: [...methodNotes(o, metrics.length), ...(weights ? weightNotes(a) : [])],
     ...(weights ? { weighting: { source: a.joined?.weightSource ?? 'query weights' } } : {}),
-    warnings: [...match.notes, ...judgmentNotes('A', a), ...judgmentNotes('B', b), ...skipWarnings(byMetric)],
+    warnings: [...match.notes, ...readingNotes('A', a), ...readingNotes('B', b), ...skipWarnings(byMetric)],
   };
 }
 

@@ -62,10 +62,19 @@ export function describeJudgments(dump: Pick<RankedDump, 'notes'>): string[] {
   return out;
 }
 
+/**
+ * What the reading of a dump says about it: the reader's own notes (a rank standing in for the score, JSON
+ * Lines fields first written after the lines the shape is learnt from) and where its labels came from.
+ * Every report shows them, the command line's as well as the editor's.
+ */
+export function describeReading(dump: Pick<RankedDump, 'notes'>): string[] {
+  return [...dump.notes.messages, ...describeJudgments(dump)];
+}
+
 export function describeDegenerate(w: WarningInput): string[] {
   const c = w.conventions;
   const d = w.degenerate;
-  const out: string[] = w.dump ? [...describeJudgments(w.dump)] : [];
+  const out: string[] = w.dump ? describeReading(w.dump) : [];
   if (d.noRelevantQueries > 0) {
     const head = `${rows(d.noRelevantQueries, 'query has', 'queries have')} no item with grade >= ${c.relevantFrom}`;
     if (c.noRelevant === 'skip') {
