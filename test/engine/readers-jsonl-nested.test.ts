@@ -9,7 +9,7 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { configureEngine, engineSettings } from '../../extension/engine/config';
 import { readDump } from '../../extension/engine/readers/index';
 import { SHAPE_LINES } from '../../extension/engine/readers/jsonLines';
-import { skipJsonValue } from '../../extension/engine/readers/jsonLinesFast';
+import { skipJsonValue } from '../../extension/engine/readers/jsonGrammar';
 import { seededRandom } from '../reference/random';
 import { TempDir } from './fixtures/readers/tempFiles';
 import { countingJsonParse, expectSameOutcome, readOffThenOn } from './fixtures/sameReading';

@@ -131,3 +131,70 @@ describe('the shape of JSON Lines rows, from the first lines', () => {
     expect(dump.rowCount).toBe(2500);
   });
 });
+
+// A key first written after the lines the shape is learnt from, then on most lines (a field a training job
+// started writing mid-run): the byte loop reads past it rather than handing every such line to JSON.parse
+// (2M rows: 2.76 s against 1.28 s for the file without the key, before it did).
+describe('keys the shape lacks, read past by the byte loop', () => {
+  const lateKeyRows = (count: number, extra: (r: number) => string) =>
+    Array.from({ length: count }, (_, r) => {
+      const line = JSON.stringify(judgedOnly(r));
+      return r < 300 ? line : line.replace(/,"score"/, `,${extra(r)},"score"`);
+    });
+
+  it('reads the lines holding one as JSON.parse does, without JSON.parse, and counts them in the note', async () => {
+    const lines = lateKeyRows(3000, (r) => `"shelf":"aisle ${r % 7}","stock":{"count":${r},"bins":[1,2,{"x":null}]}`);
+    const path = tmp.file('late-key-most.jsonl', lines.join('\n') + '\n');
+    const { value: dump, parsed } = await countingJsonParse(() => readDump(path));
+    expect(parsed).toBe(SHAPE_LINES);
+    const [slow, fast] = await readOffThenOn('jsonLinesFastRows', () => readDump(path));
+    expectSameOutcome(slow, fast);
+    expectSameReading(fast as RankedDump, dump);
+    expect(dump.notes.messages).toContain(`2,700 lines hold fields the file's first lines do not ('shelf', 'stock'; the first on line 301): `
+      + `those fields are not read (a file's fields are learnt from its first ${SHAPE_LINES} lines)`);
+    expect(ourRows(dump)).toEqual(pandasRows(path));
+  });
+
+  // Each of these the loop hands to JSON.parse: its object decides (an escaped key may spell one of the
+  // shape's; digit keys come first in its key order; a repeated key keeps its last value).
+  it.each([
+    ['an escaped key spelling the grade', '"gr\\u0061de":7'],
+    ['an escaped key of its own', '"sh\\u0065lf":1'],
+    ['a key that is a number', '"zeta":1,"10":2,"2":3'],
+    ['a shape key written twice', '"grade":9'],
+    ['a value that is not JSON', '"shelf":tru'],
+    ['a string with a raw tab', '"shelf":"a\tb"'],
+  ])('%s reads as JSON.parse reads it', async (_name, extra) => {
+    const lines = lateKeyRows(700, () => extra);
+    const [slow, fast] = await readOffThenOn('jsonLinesFastRows', () => readDump(tmp.file('late-key-handed.jsonl', lines.join('\n') + '\n')));
+    expectSameOutcome(slow, fast);
+  });
+
+  it('names a key repeated on a line once, and keys in the order the lines write them', async () => {
+    const lines = lateKeyRows(700, (r) => (r % 2 === 0 ? '"b":1,"a":2,"b":3' : '"c":[],"a":{}'));
+    const [slow, fast] = await readOffThenOn('jsonLinesFastRows', () => readDump(tmp.file('late-key-repeat.jsonl', lines.join('\n') + '\n')));
+    const dump = expectSameOutcome(slow, fast)!;
+    expect(dump.notes.messages.find((m) => m.includes('not read'))).toMatch(/^400 lines hold fields .*\('b', 'a', 'c'; the first on line 301\)/);
+  });
+
+  // Seeded: keys the shape lacks, at random places on random later lines, with random JSON values.
+  it.each([[81], [82], [83]])('seed %i: late keys anywhere on a line read as JSON.parse reads them', async (seed) => {
+    const rnd = seededRandom(seed);
+    const values = ['1', '-0.5e3', 'null', 'true', '"x y"', '"\\u00e9\\n"', '[]', '{"k":[1,{"j":"v"}]}', '"é€"'];
+    const names = ['shelf', 'brand', 'colour', 'is_new', 'z'];
+    const lines = Array.from({ length: 1500 }, (_, r) => {
+      const entries = Object.entries(judgedOnly(r)).map(([k, v]) => `${JSON.stringify(k)}:${JSON.stringify(v)}`);
+      if (r >= 300 && rnd() < 0.8) {
+        for (let n = 1 + Math.floor(rnd() * 3); n > 0; n--) {
+          const field = `"${names[Math.floor(rnd() * names.length)]}":${values[Math.floor(rnd() * values.length)]}`;
+          entries.splice(Math.floor(rnd() * (entries.length + 1)), 0, field);
+        }
+      }
+      return `{${entries.join(rnd() < 0.2 ? ' , ' : ',')}}`;
+    });
+    const [slow, fast] = await readOffThenOn('jsonLinesFastRows', () => readDump(tmp.file(`late-keys-${seed}.jsonl`, lines.join('\n') + '\n')));
+    const dump = expectSameOutcome(slow, fast)!;
+    expect(dump.rowCount).toBe(1500);
+    expect(dump.notes.messages.some((m) => m.includes('not read'))).toBe(true);
+  });
+});

@@ -19,7 +19,7 @@ import { describeNonNumberText, parseNumberText } from './numbers';
 import { everyColumn, LIST_ROLE_NAMES, resolveRoles, ROLES, type ResolvedRoles } from './roles';
 import { assertTextHead, LineSink, pumpText, textSizeHint } from './source';
 import { FlatRowScanner } from './jsonLinesFast';
-import { addUnreadLine, unreadFieldsMessage, type UnreadFields } from './unreadFields';
+import { unreadFieldsMessage, UnreadFieldsTally, type UnreadFields } from './unreadFields';
 
 type Json = Record<string, unknown>;
 
@@ -141,7 +141,7 @@ export class JsonLinesParser {
   /** The shape's keys, to find the fields a later line holds that the shape lacks. */
   private keySet = new Set<string>();
   /** Lines holding keys the shape lacks (unreadFields.ts). */
-  unreadFields: UnreadFields | undefined;
+  private readonly unread = new UnreadFieldsTally();
 
   constructor(
     private readonly file: string,
@@ -165,7 +165,11 @@ export class JsonLinesParser {
     if (line === SIZE_AFTER_LINES && this.rows !== undefined && this.rows.count > 0 && this.rows.shared === undefined) {
       this.rows.reserve((this.fileBytes / offset) * this.rows.count * 1.05);
     }
-    if (this.fast !== undefined && this.fast.store(buf, start, end, this.rows!, line, offset)) return;
+    const fast = this.fast;
+    if (fast !== undefined && fast.store(buf, start, end, this.rows!, line, offset)) {
+      if (fast.extraFields > 0) fast.tallyExtraKeys(this.unread, line, buf);
+      return;
+    }
     const text = buf.toString('utf8', start, end).trim();
     if (text.length === 0) return;
     if (this.shape !== undefined) {
@@ -200,9 +204,15 @@ export class JsonLinesParser {
     this.line = current;
   }
 
+  /** Lines holding keys the shape lacks: how many, the first, the first few keys (undefined when none). */
+  get unreadFields(): UnreadFields | undefined {
+    return this.unread.counted;
+  }
+
   /** Adds the note on fields the shape lacks to the rows' notes (a range's count is merged by its caller instead). */
   noteUnreadFields(): void {
-    if (this.unreadFields !== undefined) this.rows!.notes.messages.push(unreadFieldsMessage(this.unreadFields, SHAPE_LINES));
+    const counted = this.unreadFields;
+    if (counted !== undefined) this.rows!.notes.messages.push(unreadFieldsMessage(counted, SHAPE_LINES));
   }
 
   private parseObject(text: string): Json {
@@ -222,7 +232,10 @@ export class JsonLinesParser {
     const shape = this.shape!;
     let extra: string[] | undefined;
     for (const key in obj) if (!this.keySet.has(key)) (extra ??= []).push(key);
-    if (extra !== undefined) this.unreadFields = addUnreadLine(this.unreadFields, this.line, extra);
+    if (extra !== undefined) {
+      this.unread.addLine(this.line);
+      for (const key of extra) this.unread.addKey(key);
+    }
     if (shape.list) this.storeList(obj, shape, offset, text);
     else this.storeRow(obj, shape, offset, text);
   }

@@ -11,8 +11,10 @@
  */
 import type { RowColumns } from './columns';
 import { POW10 } from './delimitedFast';
+import { skipJsonString, skipJsonValue, skipSpace } from './jsonGrammar';
 import { exponentEnd, strictDecimalValue } from './numbers';
 import type { ResolvedRoles } from './roles';
+import type { UnreadFieldsTally } from './unreadFields';
 
 const QUOTE = 34;
 const BACKSLASH = 92;
@@ -42,6 +44,10 @@ export class FlatRowScanner {
   /** Each key's bytes as little-endian 32-bit words (the bytes past the last whole word are compared one by one). */
   private readonly keyWords: Int32Array[];
   private lastQuery = -1;
+  /** Where the keys the shape lacks lie on the line last scanned (between the quotes), and how many. */
+  private readonly extraStart: number[] = [];
+  private readonly extraEnd: number[] = [];
+  private extraCount = 0;
   /** A view of the buffer last scanned, to read four bytes at once. */
   private view: DataView = new DataView(new ArrayBuffer(0));
   private viewOf: Uint8Array | undefined;
@@ -78,34 +84,72 @@ export class FlatRowScanner {
     if (pos >= end || buf[pos] !== 123) return false;
     pos = skipSpace(buf, pos + 1, end);
     // Keys come in the shape's order; any but the query's and the item's may be absent (a grade written
-    // only on judged rows), and read as JSON.parse's line reads an absent key (see absent).
+    // only on judged rows), and read as JSON.parse's line reads an absent key (see absent). A key the shape
+    // lacks may come anywhere: it is read past and listed (see extraKeys).
+    this.extraCount = 0;
     let f = 0;
     for (;;) {
       let g = f;
-      while (g < fields && !this.keyAt(buf, pos, end, g, view)) {
-        if (!this.absent(g)) return false;
-        g++;
+      while (g < fields && !this.keyAt(buf, pos, end, g, view)) g++;
+      if (g === fields) {
+        pos = this.skipExtraField(buf, pos, end, view);
+        if (pos < 0) return false;
+      } else {
+        for (let a = f; a < g; a++) if (!this.absent(a)) return false;
+        f = g + 1;
+        pos = skipSpace(buf, pos + this.keyBytes[g]!.length, end);
+        if (pos >= end || buf[pos] !== 58) return false;
+        pos = skipSpace(buf, pos + 1, end);
+        pos = this.value(buf, pos, end, g, view);
+        if (pos < 0) return false;
       }
-      if (g === fields) return false;
-      f = g + 1;
-      pos = skipSpace(buf, pos + this.keyBytes[g]!.length, end);
-      if (pos >= end || buf[pos] !== 58) return false;
-      pos = skipSpace(buf, pos + 1, end);
-      pos = this.value(buf, pos, end, g, view);
-      if (pos < 0) return false;
       pos = skipSpace(buf, pos, end);
       if (pos >= end) return false;
       if (buf[pos] === 125) {
         pos++;
         break;
       }
-      if (buf[pos] !== 44 || f === fields) return false;
+      if (buf[pos] !== 44) return false;
       pos = skipSpace(buf, pos + 1, end);
     }
     for (let g = f; g < fields; g++) if (!this.absent(g)) return false;
     if (skipSpace(buf, pos, end) !== end) return false;
     this.storeRow(buf, rows, line, offset);
     return true;
+  }
+
+  /**
+   * Counts the line last stored, `line`, in `tally` with the keys the shape lacks on it, in the line's order
+   * (JSON.parse's object lists them so; a key written twice is one key). `buf`: the buffer it was stored from.
+   */
+  tallyExtraKeys(tally: UnreadFieldsTally, line: number, buf: Uint8Array): void {
+    tally.addLine(line);
+    for (let k = 0; k < this.extraCount && tally.wantsKeys; k++) tally.addKeyBytes(buf, this.extraStart[k]!, this.extraEnd[k]!);
+  }
+
+  /** Keys the shape lacks on the line last stored (repeats counted). */
+  get extraFields(): number {
+    return this.extraCount;
+  }
+
+  /**
+   * Past a field whose key is none of the shape's keys (first written after the lines the shape is learnt
+   * from), its key listed; -1 hands the line over. Handed over too: a key written with an escape (it may
+   * spell one of the shape's keys), a key starting with a digit (an array index, which JSON.parse's object
+   * lists before every other key, so the note's key order would differ), and a shape key out of order or
+   * written twice (JSON.parse keeps its last value).
+   */
+  private skipExtraField(buf: Uint8Array, pos: number, end: number, view: DataView): number {
+    if (pos >= end || buf[pos] !== QUOTE) return -1;
+    const keyEnd = skipJsonString(buf, pos, end);
+    if (keyEnd < 0 || (buf[pos + 1]! >= 48 && buf[pos + 1]! <= 57)) return -1;
+    for (let i = pos + 1; i < keyEnd - 1; i++) if (buf[i] === BACKSLASH) return -1;
+    for (let g = 0; g < this.kinds.length; g++) if (this.keyAt(buf, pos, end, g, view)) return -1;
+    this.extraStart[this.extraCount] = pos + 1;
+    this.extraEnd[this.extraCount++] = keyEnd - 1;
+    pos = skipSpace(buf, keyEnd, end);
+    if (pos >= end || buf[pos] !== 58) return -1;
+    return skipJsonValue(buf, skipSpace(buf, pos + 1, end), end, 0);
   }
 
   /** True when key g (as JSON writes it) starts at pos: four bytes at a time, then the rest. */
@@ -263,11 +307,6 @@ export class FlatRowScanner {
   }
 }
 
-function skipSpace(buf: Uint8Array, pos: number, end: number): number {
-  while (pos < end && (buf[pos] === 32 || buf[pos] === 9)) pos++;
-  return pos;
-}
-
 /** Past an integer of at most 15 digits without a leading zero (nor -0) and not followed by a fraction or exponent; else -1. */
 function integerId(buf: Uint8Array, pos: number, end: number): number {
   const negative = buf[pos] === MINUS;
@@ -278,92 +317,4 @@ function integerId(buf: Uint8Array, pos: number, end: number): number {
   if (digits === 0 || digits > 15 || (buf[first] === 48 && (digits > 1 || negative))) return -1;
   if (p < end && (buf[p] === DOT || buf[p] === 101 || buf[p] === 69)) return -1;
   return p;
-}
-
-/** Arrays and objects nested deeper than this are handed over (JSON.parse reads any depth). */
-const MAX_DEPTH = 64;
-
-/**
- * Where the JSON value starting at `pos` ends, or -1 when it is not one JSON.parse accepts or this reader
- * does not follow (a carriage return as space, nesting past MAX_DEPTH). Strict RFC 8259 grammar: strings
- * without raw control bytes and with only the escapes JSON defines, numbers without leading zeros, the three
- * literals, and arrays and objects of those; whitespace is spaces and tabs.
- */
-export function skipJsonValue(buf: Uint8Array, pos: number, end: number, depth: number): number {
-  if (pos >= end) return -1;
-  const c = buf[pos]!;
-  if (c === QUOTE) return skipJsonString(buf, pos, end);
-  if (c === 91 || c === 123) {
-    if (depth >= MAX_DEPTH) return -1;
-    const object = c === 123;
-    const close = object ? 125 : 93;
-    pos = skipSpace(buf, pos + 1, end);
-    if (pos < end && buf[pos] === close) return pos + 1;
-    for (;;) {
-      if (object) {
-        if (pos >= end || buf[pos] !== QUOTE) return -1;
-        pos = skipSpace(buf, skipJsonString(buf, pos, end), end);
-        if (pos < 0 || pos >= end || buf[pos] !== 58) return -1;
-        pos = skipSpace(buf, pos + 1, end);
-      }
-      pos = skipJsonValue(buf, pos, end, depth + 1);
-      if (pos < 0) return -1;
-      pos = skipSpace(buf, pos, end);
-      if (pos >= end) return -1;
-      if (buf[pos] === close) return pos + 1;
-      if (buf[pos] !== 44) return -1;
-      pos = skipSpace(buf, pos + 1, end);
-    }
-  }
-  if (c === 116) return matches(buf, pos, end, LITERAL_TRUE);
-  if (c === 102) return matches(buf, pos, end, LITERAL_FALSE);
-  if (c === 110) return matches(buf, pos, end, LITERAL_NULL);
-  return skipJsonNumber(buf, pos, end);
-}
-
-const LITERAL_TRUE = [116, 114, 117, 101];
-const LITERAL_FALSE = [102, 97, 108, 115, 101];
-const LITERAL_NULL = [110, 117, 108, 108];
-
-function matches(buf: Uint8Array, pos: number, end: number, literal: readonly number[]): number {
-  if (pos + literal.length > end) return -1;
-  for (let i = 0; i < literal.length; i++) if (buf[pos + i] !== literal[i]) return -1;
-  return pos + literal.length;
-}
-
-/** -?(0|[1-9][0-9]*)(.[0-9]+)?([eE][+-]?[0-9]+)? */
-function skipJsonNumber(buf: Uint8Array, pos: number, end: number): number {
-  if (pos < end && buf[pos] === MINUS) pos++;
-  const first = pos;
-  while (pos < end && buf[pos]! >= 48 && buf[pos]! <= 57) pos++;
-  if (pos === first || (buf[first] === 48 && pos - first > 1)) return -1;
-  if (pos < end && buf[pos] === DOT) {
-    const from = ++pos;
-    while (pos < end && buf[pos]! >= 48 && buf[pos]! <= 57) pos++;
-    if (pos === from) return -1;
-  }
-  if (pos < end && (buf[pos] === 101 || buf[pos] === 69)) return exponentEnd(buf, pos, end);
-  return pos;
-}
-
-/** Past the closing quote of the string at `pos`; -1 for a raw control byte or an escape JSON does not define. */
-function skipJsonString(buf: Uint8Array, pos: number, end: number): number {
-  for (let i = pos + 1; i < end; ) {
-    const b = buf[i]!;
-    if (b === QUOTE) return i + 1;
-    if (b < 32) return -1;
-    if (b !== BACKSLASH) {
-      i++;
-      continue;
-    }
-    const e = i + 1 < end ? buf[i + 1]! : 0;
-    if (e === QUOTE || e === BACKSLASH || e === 47 || e === 98 || e === 102 || e === 110 || e === 114 || e === 116) i += 2;
-    else if (e === 117 && i + 6 <= end && isHex(buf[i + 2]!) && isHex(buf[i + 3]!) && isHex(buf[i + 4]!) && isHex(buf[i + 5]!)) i += 6;
-    else return -1;
-  }
-  return -1;
-}
-
-function isHex(b: number): boolean {
-  return (b >= 48 && b <= 57) || (b >= 97 && b <= 102) || (b >= 65 && b <= 70);
 }

@@ -17,13 +17,57 @@ export interface UnreadFields {
 /** Keys named in the note; the count says how many lines there are. */
 const KEYS_NAMED = 3;
 
-/** `seen` with one more line, `line`, holding the keys `extra` (none when every key is the shape's). */
-export function addUnreadLine(seen: UnreadFields | undefined, line: number, extra: readonly string[]): UnreadFields | undefined {
-  if (extra.length === 0) return seen;
-  if (seen === undefined) return { lines: 1, firstLine: line, keys: extra.slice(0, KEYS_NAMED) };
-  const keys = seen.keys.length >= KEYS_NAMED ? seen.keys : [...new Set([...seen.keys, ...extra])].slice(0, KEYS_NAMED);
-  return { lines: seen.lines + 1, firstLine: Math.min(seen.firstLine, line), keys };
+/**
+ * The count kept while a file is read: a line at a time, with no object made per line (on a file where
+ * most lines hold such a key, a new count per line and each line's keys decoded cost more than reading
+ * the rest of the line). A key's name is decoded only while fewer than KEYS_NAMED are named, and only when
+ * its bytes are not those of a key named already.
+ */
+export class UnreadFieldsTally {
+  private lines = 0;
+  private firstLine = Infinity;
+  private readonly keys: string[] = [];
+  private readonly keyBytes: Uint8Array[] = [];
+
+  /** One more line holding keys the shape lacks; then each of its keys in the line's order (addKey, addKeyBytes). */
+  addLine(line: number): void {
+    this.lines++;
+    if (line < this.firstLine) this.firstLine = line;
+  }
+
+  /** True while the note names fewer keys than it may: the line's keys are wanted. */
+  get wantsKeys(): boolean {
+    return this.keys.length < KEYS_NAMED;
+  }
+
+  /** A key of the line last added, named when new and the note has room. */
+  addKey(name: string): void {
+    if (!this.wantsKeys || this.keys.includes(name)) return;
+    this.keys.push(name);
+    this.keyBytes.push(encoder.encode(name));
+  }
+
+  /** addKey for a key's UTF-8 bytes, buf[start, end) (valid UTF-8: the reader checked), decoded only when new. */
+  addKeyBytes(buf: Uint8Array, start: number, end: number): void {
+    if (!this.wantsKeys) return;
+    const len = end - start;
+    for (const known of this.keyBytes) {
+      if (known.length !== len) continue;
+      let i = 0;
+      while (i < len && known[i] === buf[start + i]) i++;
+      if (i === len) return;
+    }
+    this.addKey(decoder.decode(buf.subarray(start, end)));
+  }
+
+  /** The count so far; undefined when no line held such a key. */
+  get counted(): UnreadFields | undefined {
+    return this.lines === 0 ? undefined : { lines: this.lines, firstLine: this.firstLine, keys: [...this.keys] };
+  }
 }
+
+const encoder = new TextEncoder();
+const decoder = new TextDecoder();
 
 /** The ranges' counts as one file's: range k's lines are shifted by lineOffsets[k]. */
 export function mergeUnread(parts: readonly (UnreadFields | undefined)[], lineOffsets: readonly number[]): UnreadFields | undefined {
