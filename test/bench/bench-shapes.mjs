@@ -3,7 +3,7 @@
 // file of its format in the same run: a shape that reads much slower than its plain twin is a cliff (a
 // fast path it falls off). Shapes: scores as printers write doubles (17 digits, exponents), half the
 // grades missing (empty, or nan), every field quoted; JSON Lines with numeric ids, a feature-vector field,
-// a distinct text field per row; Parquet with BIGINT ids (DuckDB writes it). Where only the spelling
+// a distinct text field per row, a field first written mid-file; Parquet with BIGINT ids (DuckDB writes it). Where only the spelling
 // differs from the plain file (quoting, format, feature fields), the NDCG@10 mean must be the plain one's.
 //
 //   node test/bench/bench-shapes.mjs [--rows N] [--runs N] [--data-dir DIR]
@@ -58,6 +58,10 @@ const SHAPES = [
   { name: 'jsonl, a grade only on judged rows', file: 'judged-only.jsonl', same: 'tsv plain',
     line: (x) => JSON.stringify({ query: x.query, item: `SKU-${x.item}`, ...(x.grade > 0 ? { grade: x.grade } : {}), score: Number(x.score.toFixed(4)),
       locale: x.locale }) + '\n' },
+  // A field a job started writing after the lines the fields are learnt from (counted in a note, not read).
+  { name: 'jsonl, a field from line 1,001', file: 'late-field.jsonl', same: 'tsv plain',
+    line: (x) => JSON.stringify({ query: x.query, item: `SKU-${x.item}`, grade: x.grade, score: Number(x.score.toFixed(4)), locale: x.locale,
+      ...(x.item - 100_000_000 >= 1000 ? { shelf: `aisle ${x.item % 9}` } : {}) }) + '\n' },
   { name: 'parquet, text ids', file: 'text-ids.parquet', plain: true, same: 'tsv plain', from: 'plain.tsv', select: 'query, item, grade, score, locale' },
   { name: 'parquet, a timestamp column', file: 'timestamps.parquet', same: 'tsv plain', from: 'plain.tsv',
     select: "query, item, grade, score, locale, make_timestamp((1796292000000000 + hash(item) % 86400000000)::BIGINT) AS asked_at" },
