@@ -1,6 +1,10 @@
 import { spawnSync } from 'node:child_process';
-import { describe, expect, it } from 'vitest';
-import { DEAR_FAULTS_MS_PER_MB, freshMemoryCost, LARGE_INPUT_BYTES, LARGE_PAGES_MARKER, largePagesEnv } from '../../extension/cli/largePages';
+import { afterAll, describe, expect, it } from 'vitest';
+import { mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { gzipSync } from 'node:zlib';
+import { DEAR_FAULTS_MS_PER_MB, freshMemoryCost, inputSize, LARGE_INPUT_BYTES, LARGE_PAGES_MARKER, largePagesEnv } from '../../extension/cli/largePages';
 import { CLI, fixtureDir } from './support/runCli';
 
 const SMALL = [
@@ -59,6 +63,41 @@ describe('largePagesEnv: when the command line runs itself again with large page
     const cost = freshMemoryCost(1 << 20);
     expect(cost).toBeGreaterThan(0);
     expect(Number.isFinite(cost)).toBe(true);
+  });
+});
+
+describe('inputSize: the bytes a read fills memory from', () => {
+  const dir = mkdtempSync(join(tmpdir(), 'gainline-input-size-'));
+  afterAll(() => rmSync(dir, { recursive: true, force: true }));
+  const text = SMALL.repeat(4000);
+
+  it('is a plain file\'s size, and 0 for what names no file', () => {
+    writeFileSync(join(dir, 'plain.csv'), text);
+    expect(inputSize(join(dir, 'plain.csv'))).toBe(Buffer.byteLength(text));
+    writeFileSync(join(dir, 'tiny.csv'), 'q\n');
+    expect(inputSize(join(dir, 'tiny.csv'))).toBe(2);
+    expect(inputSize(join(dir, 'missing.csv'))).toBe(0);
+    expect(inputSize('--format')).toBe(0);
+  });
+
+  it('is a gzip file\'s text size from its trailer (RFC 1952 ISIZE), or the compressed size when that is larger', () => {
+    const packed = gzipSync(text);
+    writeFileSync(join(dir, 'run.csv.gz'), packed);
+    expect(packed.length).toBeLessThan(Buffer.byteLength(text) / 10);
+    expect(inputSize(join(dir, 'run.csv.gz'))).toBe(Buffer.byteLength(text));
+    // Noise does not compress: the stored text is smaller than the file.
+    const noise = gzipSync(Buffer.from(Array.from({ length: 3000 }, (_, i) => (i * 7919) % 251)), { level: 0 });
+    writeFileSync(join(dir, 'noise.gz'), noise);
+    expect(inputSize(join(dir, 'noise.gz'))).toBe(noise.length);
+  });
+
+  it('is a folder\'s Parquet parts together, the files the Parquet reader reads', () => {
+    const folder = join(dir, 'parts');
+    mkdirSync(folder);
+    writeFileSync(join(folder, 'part-0.parquet'), Buffer.alloc(1000));
+    writeFileSync(join(folder, 'PART-1.PARQUET'), Buffer.alloc(500));
+    writeFileSync(join(folder, 'notes.txt'), Buffer.alloc(9999));
+    expect(inputSize(folder)).toBe(1500);
   });
 });
 
