@@ -105,6 +105,20 @@ describe('the shape of JSON Lines rows, from the first lines', () => {
     expect(clean.notes.messages.filter((m) => m.includes('not read'))).toEqual([]);
   });
 
+  it('learns from at least the first 16 lines when they are long: a grade first written past the first MB', async () => {
+    const features = Array.from({ length: 60_000 }, (_, i) => (i % 89) / 4);
+    const lines = Array.from({ length: 24 }, (_, r) => {
+      const row = judgedOnly(r);
+      if (r < 5) delete row.grade;
+      return JSON.stringify({ ...row, features });
+    });
+    expect(lines.slice(0, 5).join('\n').length).toBeGreaterThan(1 << 20);
+    const path = tmp.file('long-lines.jsonl', lines.join('\n') + '\n');
+    const dump = await readDump(path);
+    expect(ourRows(dump)).toEqual(pandasRows(path));
+    expect(dump.notes.unjudgedRows).toBe(5 + 6);
+  });
+
   it('still refuses a file whose first lines never name a grade, at its first line', async () => {
     const lines = Array.from({ length: 400 }, (_, r) => JSON.stringify({ query: 'q', item: `i${r}`, score: r, ...(r === 300 ? { grade: 1 } : {}) }));
     await expect(readDump(tmp.file('grade-too-late.jsonl', lines.join('\n') + '\n'))).rejects.toThrow(/late\.jsonl:1: expected a header naming the label column/);

@@ -124,4 +124,20 @@ describe('JSON Lines read in ranges', () => {
     expect(dump.notes.unjudgedRows).toBe(400);
     expect(dump.notes.messages.find((m) => m.includes('not read'))).toMatch(/^2 lines hold fields .*\('device'; the first on line 231\)/);
   });
+
+  // Lines of a megabyte and more (a query's candidates and their features on one line): the shape is learnt
+  // from at least the first LONG_SHAPE_LINES lines, and the head a read in ranges reads first grows to hold them.
+  it('learns the shape of long lines from the same first lines as one thread, the head grown past its first MB', async () => {
+    const features = Array.from({ length: 30_000 }, (_, i) => (i % 97) / 8);
+    const lines = Array.from({ length: 80 }, (_, r) => JSON.stringify({ query: `router ${r >> 2}`, item: `bit-${r}`, ...(r < 6 ? {} : { grade: r % 4 }),
+      score: (r % 89) / 7, features, ...(r === 11 ? { locale: 'fr-FR' } : {}), ...(r >= 20 && r % 5 === 0 ? { device: 'mobile' } : {}) }));
+    expect(lines[0]!.length).toBeGreaterThan(100_000);
+    const [one, ranges] = await readBoth(tmp.file('ranges-long-lines.jsonl', lines.join('\n') + '\n'));
+    expect(readInRanges(ranges as RankedDump)).toBe(true);
+    expectSameReading(one as RankedDump, ranges as RankedDump);
+    const dump = one as RankedDump;
+    expect(dump.segments.map((s) => s.name)).toEqual(['locale']);
+    expect(dump.notes.unjudgedRows).toBe(6);
+    expect(dump.notes.messages.find((m) => m.includes('not read'))).toMatch(/^12 lines hold fields .*\('device'; the first on line 21\)/);
+  });
 });

@@ -1,14 +1,13 @@
 /**
  * JSON Lines, in one of two shapes learnt from the first lines (up to SHAPE_LINES lines with a value, within
- * the first HEAD_BYTES bytes; every key any of them writes, so a grade written only on judged rows is a
- * column as long as one of them is judged):
+ * the first HEAD_BYTES bytes, and at least LONG_SHAPE_LINES of long lines: see shapesFrom; every key any of
+ * them writes, so a grade written only on judged rows is a column as long as one of them is judged):
  * - one row per line: `{"query_id": "q1", "item_id": "sku-1", "label": 2, "score": 0.4, "locale": "en"}`
  * - one list per line: `{"query": "q1", "items": [...], "labels": [...], "scores": [...]}` (equal lengths)
  * Every row of a list shares the list's line number and byte offset. A line whose roles read as one row,
  * with an item that is not an array, is a row even when other fields hold arrays or objects (a feature
  * vector, an embedding, request details): those fields are not segments, and are read past.
  */
-import { promises as fsp } from 'node:fs';
 import { engineSettings } from '../config';
 import { isWellFormedText } from './textCheck';
 import { InputError } from '../errors';
@@ -17,7 +16,7 @@ import { RowColumns, type SharedColumns } from './columns';
 import type { ReadOptions } from './readOptions';
 import { describeNonNumberText, parseNumberText } from './numbers';
 import { everyColumn, LIST_ROLE_NAMES, resolveRoles, ROLES, type ResolvedRoles } from './roles';
-import { assertTextHead, LineSink, pumpText, textSizeHint } from './source';
+import { LineSink, pumpText, textSizeHint } from './source';
 import { FlatRowScanner } from './jsonLinesFast';
 import { unreadFieldsMessage, UnreadFieldsTally, type UnreadFields } from './unreadFields';
 
@@ -34,7 +33,7 @@ export interface JsonShape {
 const ITEM_BYTES_GUESS = 16;
 /** Lines read before the columns are sized for the whole file. */
 const SIZE_AFTER_LINES = 4096;
-/** Lines with a value whose keys make the shape (fewer when they end past HEAD_BYTES: a range read learns from the head alone). */
+/** Lines with a value whose keys make the shape (fewer when they end past HEAD_BYTES: see shapesFrom). */
 export const SHAPE_LINES = 256;
 
 interface Shape {
@@ -66,55 +65,21 @@ export function emptyJsonLines(path: string): InputError {
   return new InputError('at least one row in the JSON Lines file (the file is empty)', path);
 }
 
-/** Bytes of a file's head read on this thread before a read in ranges: a first line longer than this reads on one thread. */
-const HEAD_BYTES = 1 << 20;
-
-/** The shape of a JSON Lines file, learnt from its head before the file is read in ranges (parallel.ts). */
-export interface JsonLinesHead {
-  /** The first line's keys. */
-  readonly keys: readonly string[];
-  /** True when a line holds lists (a query's rows), false for one row per line. */
-  readonly list: boolean;
-  /** Rows only: keys whose value is an array or object on the first line (not segments). */
-  readonly nested: readonly string[];
-  /** The columns and notes the first line gives the read. */
-  readonly rows: RowColumns;
-  /** Bytes per row over the head's whole lines (a line of lists holds many rows). */
-  readonly bytesPerRow: number;
-}
-
 /**
- * Reads the whole lines of a file's head as one thread would, for their shape. Undefined when a line there
- * is refused (JSON, the roles, the text), or the head holds no row: the file is then read on one thread,
- * which reports any problem as it always does.
+ * The lines the shape is learnt from: up to SHAPE_LINES lines ending within the first HEAD_BYTES, and at
+ * least the first LONG_SHAPE_LINES wherever they end within LONG_LINES_BYTES (a file of one query per line,
+ * each holding thousands of items and their features, writes lines of a megabyte and more: learnt from its
+ * first line alone, a grade that line lacks was refused). `lineEnd`: where the line ends, with room for a
+ * carriage return and a newline; `held`: the lines taken before it. A read in ranges learns from a head that
+ * holds the same lines (jsonLinesHead.ts), so both read the same shape.
  */
-export function jsonLinesHead(path: string, head: Buffer, columns: ReadOptions['columns']): JsonLinesHead | undefined {
-  try {
-    assertTextHead(head, path);
-    const parser = new JsonLinesParser(path, columns, head.length);
-    // A byte order mark needs no skipping: the line's text is trimmed, and JavaScript trims U+FEFF.
-    const read = new LineSink((buf, from, end, line, offset) => parser.acceptLine(buf, from, end, line, offset)).feed(head, 0, head.length, 0, false);
-    parser.end();
-    const shape = parser.learnedShape;
-    const rows = parser.rows;
-    if (shape === undefined || rows === undefined || rows.count === 0) return undefined;
-    return { keys: shape.keys, list: shape.list, nested: shape.nested, rows, bytesPerRow: read / rows.count };
-  } catch {
-    return undefined;
-  }
+export function shapesFrom(held: number, lineEnd: number): boolean {
+  return (held < SHAPE_LINES && lineEnd <= HEAD_BYTES) || (held < LONG_SHAPE_LINES && lineEnd <= LONG_LINES_BYTES);
 }
 
-/** Reads a file's first bytes (at most HEAD_BYTES). */
-export async function fileHead(path: string): Promise<Buffer> {
-  const fh = await fsp.open(path, 'r');
-  try {
-    const head = Buffer.alloc(HEAD_BYTES);
-    const { bytesRead } = await fh.read(head, 0, head.length, 0);
-    return head.subarray(0, bytesRead);
-  } finally {
-    await fh.close();
-  }
-}
+export const HEAD_BYTES = 1 << 20;
+export const LONG_SHAPE_LINES = 16;
+export const LONG_LINES_BYTES = 16 << 20;
 
 /** A line held, parsed, until the shape is learnt. */
 interface HeldLine {
@@ -176,10 +141,9 @@ export class JsonLinesParser {
       this.storeObject(this.parseObject(text), offset, text);
       return;
     }
-    // The first lines are held for the shape, up to SHAPE_LINES of them ending within the head a read in
-    // ranges learns from (with room for a carriage return and newline), so both read the same shape.
+    // The first lines are held for the shape (shapesFrom).
     const obj = this.parseObject(text);
-    const inHead = offset + (end - start) + 2 <= HEAD_BYTES;
+    const inHead = shapesFrom(this.held.length, offset + (end - start) + 2);
     if (!inHead && this.held.length > 0) {
       this.end();
       this.storeObject(obj, offset, text);

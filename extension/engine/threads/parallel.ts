@@ -13,7 +13,8 @@ import type { DumpFormat, FileStamp, RankedDump } from '../model/dump';
 import { addSummaries } from '../model/rowSummary';
 import { ROW_COLUMN_NAMES, ROW_COLUMNS, sharedViews, type RowColumnName, type RowColumns, type SharedColumns } from '../readers/columns';
 import { parseHeaderLine } from '../readers/headerLine';
-import { emptyJsonLines, fileHead, jsonLinesHead, SHAPE_LINES } from '../readers/jsonLines';
+import { emptyJsonLines, SHAPE_LINES } from '../readers/jsonLines';
+import { fileHead, jsonLinesHead } from '../readers/jsonLinesHead';
 import { mergeUnread, unreadFieldsMessage } from '../readers/unreadFields';
 import type { ReadOptions } from '../readers/readOptions';
 import { parseClaimedRanges, type ClaimedRanges, type RangeResult, type RangeTask } from '../readers/rangeParse';
@@ -58,7 +59,7 @@ export async function readParallelDelimited(path: string, format: 'csv' | 'tsv',
 /**
  * JSON Lines read in ranges as CSV/TSV are: the shape is learnt here from the file's head (its first line's
  * keys, whether lines hold lists) and every range parses with it. Undefined when the head does not tell
- * (jsonLines.ts, jsonLinesHead): the file is then read on one thread.
+ * (jsonLinesHead.ts): the file is then read on one thread.
  */
 export async function readParallelJsonLines(path: string, threads: number, options: ReadOptions): Promise<RankedDump | undefined> {
   return inRanges(threads, options, async () => {
