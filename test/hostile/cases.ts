@@ -43,6 +43,14 @@ const gradeWhereJudged = Buffer.from(unjudgedFirst.map((r) => JSON.stringify({ q
 
 /** A large quote-free CSV with a bad byte near its end, read on several threads (--threads 3). */
 const manyRows = randomRows(13, 3000);
+// Fields first written after the lines JSON Lines take their fields from, on most later lines and anywhere
+// on the line: plain, escaped, a digit key, nested values (counted in a note, not read).
+const LATE_FIELDS = ['"shelf":"aisle 7"', '"st\\u006fck":{"bins":[1,null,{"x":"é"}]}', '"7":true', '"brand":"Kettle\\"wood"'];
+const lateFields = Buffer.from(jsonLines(manyRows).toString('utf8').trimEnd().split('\n').map((line, i) => {
+  if (i < 300 || i % 5 === 0) return line;
+  const field = LATE_FIELDS[i % LATE_FIELDS.length]!;
+  return i % 2 === 0 ? line.replace(/^\{/, `{${field},`) : line.replace(/\}$/, `,${field}}`);
+}).join('\n') + '\n');
 const manyCsv = delimited(manyRows);
 const lateLine = manyCsv.toString('utf8').split('\n').length - 5;
 const lateBad = (() => {
@@ -71,6 +79,8 @@ export const CASES: readonly HostileCase[] = [
   { name: 'gzip CSV', files: { 'd.csv.gz': okGzip }, args: ['eval', 'd.csv.gz'], expect: { rows } },
   { name: 'JSON Lines with a grade key only on judged rows, the first line unjudged', files: { 'u.jsonl': gradeWhereJudged }, args: ['eval', 'u.jsonl'],
     expect: { rows: unjudgedFirst } },
+  { name: 'JSON Lines with fields first written after line 300, anywhere on the line', files: { 'late.jsonl': lateFields }, args: ['eval', 'late.jsonl'],
+    expect: { rows: manyRows } },
   { name: 'JSON Lines with awkward ids', files: { 'd.jsonl': jsonLines(awkward) }, args: ['eval', 'd.jsonl'], expect: { rows: awkward } },
   { name: 'run file + judgments', files: { 'r.run': run, 'j.txt': judgments }, args: ['eval', 'r.run', '--judgments', 'j.txt'], expect: { rows: runRows } },
   { name: 'Parquet', files: { 'd.parquet': parquet(rows) }, args: ['eval', 'd.parquet'], expect: { rows } },
