@@ -9,6 +9,7 @@ import { describe, expect, it } from 'vitest';
 import { engineActivity } from '../../extension/engine/config';
 import type { RankedDump } from '../../extension/engine/model/dump';
 import { readDump } from '../../extension/engine/readers/index';
+import { linesIn } from '../../extension/engine/readers/jsonLinesHead';
 import { TempDir } from '../engine/fixtures/readers/tempFiles';
 import { randomJsonLines } from '../engine/fixtures/randomJsonLines';
 import { expectSameOutcome, expectSameReading } from '../engine/fixtures/sameReading';
@@ -139,5 +140,19 @@ describe('JSON Lines read in ranges', () => {
     expect(dump.segments.map((s) => s.name)).toEqual(['locale']);
     expect(dump.notes.unjudgedRows).toBe(6);
     expect(dump.notes.messages.find((m) => m.includes('not read'))).toMatch(/^12 lines hold fields .*\('device'; the first on line 21\)/);
+  });
+
+  it('counts lines with a value, not blank ones, when it grows the head for long lines', async () => {
+    const features = Array.from({ length: 30_000 }, (_, i) => (i % 97) / 8);
+    const rows = Array.from({ length: 60 }, (_, r) => JSON.stringify({ query: `router ${r >> 2}`, item: `bit-${r}`, grade: r % 4,
+      score: (r % 89) / 7, features, ...(r === 14 || r > 40 ? { locale: 'fr-FR' } : {}) }));
+    // Blank lines among the first: the row on line 19 is the 15th with a value, and the first with a locale.
+    const text = [...rows.slice(0, 3), '', '  ', '\t', '', ...rows.slice(3)].join('\n') + '\n';
+    const [one, ranges] = await readBoth(tmp.file('ranges-long-blank.jsonl', text));
+    expect(readInRanges(ranges as RankedDump)).toBe(true);
+    expectSameReading(one as RankedDump, ranges as RankedDump);
+    expect((one as RankedDump).segments.map((s) => s.name)).toEqual(['locale']);
+    expect(linesIn(Buffer.from('a\n\n \r\nb\r\n\t\nc'), 10)).toBe(2);
+    expect(linesIn(Buffer.from('a\nb\nc\n'), 2)).toBe(2);
   });
 });

@@ -77,8 +77,11 @@ export function shapesFrom(held: number, lineEnd: number): boolean {
   return (held < SHAPE_LINES && lineEnd <= HEAD_BYTES) || (held < LONG_SHAPE_LINES && lineEnd <= LONG_LINES_BYTES);
 }
 
+/** The bytes of a file the first SHAPE_LINES lines must end within. */
 export const HEAD_BYTES = 1 << 20;
+/** Lines the shape is learnt from at least, however long (within LONG_LINES_BYTES): lines of lists run to megabytes. */
 export const LONG_SHAPE_LINES = 16;
+/** How far into a file the shape's lines may reach (the head a read in ranges reads first grows to this at most). */
 export const LONG_LINES_BYTES = 16 << 20;
 
 /** A line held, parsed, until the shape is learnt. */

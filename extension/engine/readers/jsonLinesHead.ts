@@ -51,7 +51,7 @@ export function jsonLinesHead(path: string, head: FileHead, columns: ReadOptions
 }
 
 /**
- * Reads a file's first HEAD_BYTES, and on past them while it holds fewer than LONG_SHAPE_LINES whole lines,
+ * Reads a file's first HEAD_BYTES, and on past them while it holds fewer than LONG_SHAPE_LINES whole lines with a value,
  * up to LONG_LINES_BYTES: every line the shape is learnt from (shapesFrom) is then whole in the head.
  */
 export async function fileHead(path: string): Promise<FileHead> {
@@ -73,9 +73,22 @@ export async function fileHead(path: string): Promise<FileHead> {
   }
 }
 
-/** Newlines in `buf`, counted up to `enough`. */
-function linesIn(buf: Buffer, enough: number): number {
+/**
+ * Whole lines in `buf` holding more than spaces, tabs and a carriage return (the lines the shape counts: a
+ * blank line holds no value), counted up to `enough`.
+ */
+export function linesIn(buf: Buffer, enough: number): number {
   let count = 0;
-  for (let at = buf.indexOf(10); at >= 0 && count < enough; at = buf.indexOf(10, at + 1)) count++;
+  let start = 0;
+  for (let at = buf.indexOf(10); at >= 0 && count < enough; at = buf.indexOf(10, start)) {
+    for (let i = start; i < at; i++) {
+      const b = buf[i]!;
+      if (b !== 32 && b !== 9 && b !== 13) {
+        count++;
+        break;
+      }
+    }
+    start = at + 1;
+  }
   return count;
 }
