@@ -111,9 +111,21 @@ describe('Parquet read on several threads', () => {
     mkdirSync(missing);
     writeFileSync(join(missing, 'part-0.parquet'), new Uint8Array(parquetWriteBuffer({ columnData: randomColumns(32, 2_000), rowGroupSize: 500 })));
     writeFileSync(join(missing, 'part-1.parquet'), new Uint8Array(parquetWriteBuffer({ columnData: randomColumns(33, 2_000).filter((c) => c.name !== 'store') })));
+    // A part without a segment column reads it as missing there, and the note says so, on any number of threads.
     const [oneMissing, manyMissing] = await readBoth(missing);
-    expect((manyMissing as Error).message).toBe((oneMissing as Error).message);
-    expect((oneMissing as Error).message).toMatch(/the same columns in every part file/);
+    expectSameReading(oneMissing as RankedDump, manyMissing as RankedDump);
+    expect(shared(manyMissing)).toBe(true);
+    const store = (oneMissing as RankedDump).segments.find((g) => g.name === 'store')!;
+    expect(store.values.get(store.ofRow[2_500]!)).toBe('');
+    expect((oneMissing as RankedDump).notes.messages).toContain("part files lack columns others hold: 'store' from 1 of 2 (part-1.parquet); read as missing in those files");
+    // A part without the item column is refused, the same way.
+    const noItem = join(tmp.path, 'missing-item');
+    mkdirSync(noItem);
+    writeFileSync(join(noItem, 'part-0.parquet'), new Uint8Array(parquetWriteBuffer({ columnData: randomColumns(34, 2_000), rowGroupSize: 500 })));
+    writeFileSync(join(noItem, 'part-1.parquet'), new Uint8Array(parquetWriteBuffer({ columnData: randomColumns(35, 2_000).filter((c) => c.name !== 'item_id') })));
+    const [oneNoItem, manyNoItem] = await readBoth(noItem);
+    expect((manyNoItem as Error).message).toBe((oneNoItem as Error).message);
+    expect((oneNoItem as Error).message).toMatch(/part-1\.parquet: expected the query and item columns in every part file \(item_id\)/);
   });
 });
 

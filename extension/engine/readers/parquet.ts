@@ -5,7 +5,7 @@
  * (threads/parquetRanges.ts). Parquet rows have no line or byte offset: `line` is 0 and `offset` is -1.
  */
 import { promises as fsp } from 'node:fs';
-import { join } from 'node:path';
+import { basename, join } from 'node:path';
 import { asyncBufferFromFile, parquetMetadataAsync, parquetRead, parquetSchema } from 'hyparquet';
 import { compressors } from 'hyparquet-compressors';
 import { engineActivity, engineSettings } from '../config';
@@ -23,32 +23,30 @@ type Values = ArrayLike<unknown>;
 export async function readParquet(path: string, directory: boolean, options: ReadOptions): Promise<RankedDump> {
   const parts = directory ? await partFiles(path) : [path];
   const before = await stampOf(parts);
-  let rows: RowColumns | undefined;
-  let columns: ParquetColumns | undefined;
-  for (let p = 0; p < parts.length; p++) {
-    const part = parts[p]!;
+  // Every footer first: the columns are those of all the parts together (partsColumns).
+  const opened: OpenPart[] = [];
+  for (const part of parts) opened.push(await openPart(part));
+  const { columns, note } = partsColumns(opened, options);
+  const rows = columnsOf(columns, opened.reduce((n, o) => n + Number(o.metadata.num_rows), 0));
+  if (note !== undefined) rows.notes.messages.push(note);
+  for (let p = 0; p < opened.length; p++) {
     throwIfCancelled(options.signal);
-    const opened = await openPart(part);
-    if (columns === undefined) {
-      columns = partColumns(opened, options);
-      rows = columnsOf(columns, Number(opened.metadata.num_rows) * (directory ? parts.length : 1));
-    } else sameColumns(columns, opened);
-    for (const piece of rowGroups(opened)) {
+    for (const piece of rowGroups(opened[p]!)) {
       throwIfCancelled(options.signal);
-      await readPiece(opened, piece, columns, rows!);
-      options.onProgress?.((p + piece.end / Math.max(1, Number(opened.metadata.num_rows))) / parts.length);
+      await readPiece(opened[p]!, piece, columns, rows);
+      options.onProgress?.((p + piece.end / Math.max(1, Number(opened[p]!.metadata.num_rows))) / parts.length);
     }
   }
   const after = await stampOf(parts);
   if (after.size !== before.size || after.mtimeMs !== before.mtimeMs) throw fileChangedError(path);
-  if (rows === undefined || rows.count === 0) throw new InputError('at least one row in the Parquet data', path);
+  if (rows.count === 0) throw new InputError('at least one row in the Parquet data', path);
   rows.countGaps();
   options.onProgress?.(1);
   return rows.finish(path, 'parquet', before);
 }
 
 /** A part file, open, with its footer. */
-interface OpenPart {
+export interface OpenPart {
   readonly part: string;
   readonly file: Awaited<ReturnType<typeof asyncBufferFromFile>>;
   readonly metadata: Awaited<ReturnType<typeof parquetMetadataAsync>>;
@@ -63,7 +61,7 @@ export interface ParquetPiece {
   readonly end: number;
 }
 
-/** The columns every part is read with: the first part's names and their roles. */
+/** The columns every part is read with: those of all the parts together (partsColumns), and their roles. */
 export interface ParquetColumns {
   readonly names: readonly string[];
   readonly roles: ResolvedRoles;
@@ -84,25 +82,43 @@ export async function openPart(part: string): Promise<OpenPart> {
 const TEXTLESS_TYPES = new Set(['BOOLEAN', 'INT32', 'INT64', 'INT96', 'FLOAT', 'DOUBLE']);
 
 /**
- * The roles of the first part's columns. Every column is read, for its text is checked as it is read,
- * except, when no view asks for segments (`others: 'skipped'`), the columns of no role that hold no text
- * (numbers, dates, timestamps): nothing in them could refuse the file. A timestamp of its own on each of
- * 2M rows cost 3.1 s of reading against 1.1 s without it, most of it interning 2M distinct values.
+ * The columns of a file, or of a folder's parts together: the first part's, then each column a later part
+ * adds, in the order met (parts written over time gain columns, as a dataset's schema is unified by name).
+ * Every part must hold the query's and the item's columns; a part lacking another column reads it as
+ * missing (a grade or score missing, a segment empty), and `note` names those columns and parts.
+ *
+ * Every column is read, for its text is checked as it is read, except, when no view asks for segments
+ * (`others: 'skipped'`), the columns of no role that hold no text in any part (numbers, dates,
+ * timestamps): nothing in them could refuse the file. A timestamp of its own on each of 2M rows cost
+ * 3.1 s of reading against 1.1 s without it, most of it interning 2M distinct values.
  */
-export function partColumns(opened: OpenPart, options: Pick<ReadOptions, 'columns'>): ParquetColumns {
-  const { names, part } = opened;
-  const roles = resolveRoles(names, everyColumn(options.columns), { file: part, line: 0, text: names.join(', ') });
-  if (options.columns?.others !== 'skipped') return { names, roles };
-  const leaves = parquetSchema(opened.metadata).children;
-  const textless = new Set(leaves.filter((c) => c.children.length === 0 && TEXTLESS_TYPES.has(c.element.type ?? '')).map((c) => c.element.name));
-  return { names, roles: { ...roles, segments: roles.segments.filter((i) => !textless.has(names[i]!)) } };
+export function partsColumns(parts: readonly OpenPart[], options: Pick<ReadOptions, 'columns'>): { columns: ParquetColumns; note?: string } {
+  const first = parts[0]!;
+  const names = [...new Set(parts.flatMap((o) => o.names))];
+  const roles = resolveRoles(names, everyColumn(options.columns), { file: first.part, line: 0, text: names.join(', ') });
+  for (const o of parts) {
+    const lacking = [roles.query, roles.item].map((i) => names[i]!).filter((n) => !o.names.includes(n));
+    if (lacking.length > 0) throw new InputError(`the query and item columns in every part file (${lacking.join(', ')})`, o.part, undefined, o.names.join(', '));
+  }
+  const note = missingColumnsNote(parts, names);
+  if (options.columns?.others !== 'skipped') return { columns: { names, roles }, ...(note ? { note } : {}) };
+  const texted = new Set(parts.flatMap((o) => parquetSchema(o.metadata).children)
+    .filter((c) => c.children.length === 0 && !TEXTLESS_TYPES.has(c.element.type ?? '')).map((c) => c.element.name));
+  return { columns: { names, roles: { ...roles, segments: roles.segments.filter((i) => texted.has(names[i]!)) } }, ...(note ? { note } : {}) };
 }
 
-/** Throws unless a later part has every column of the first. */
-export function sameColumns(columns: ParquetColumns, opened: OpenPart): void {
-  if (columns.names.some((n) => !opened.names.includes(n))) {
-    throw new InputError(`the same columns in every part file (${columns.names.join(', ')})`, opened.part, undefined, opened.names.join(', '));
-  }
+/** Parts named in the note, at most. */
+const PARTS_NAMED = 3;
+
+/** The note on columns some parts lack: each column, how many parts lack it, and the first of them. */
+function missingColumnsNote(parts: readonly OpenPart[], names: readonly string[]): string | undefined {
+  const missing = names.map((name) => ({ name, lacking: parts.filter((o) => !o.names.includes(name)) })).filter((m) => m.lacking.length > 0);
+  if (missing.length === 0) return undefined;
+  const each = missing.map(({ name, lacking }) => {
+    const shown = lacking.slice(0, PARTS_NAMED).map((o) => basename(o.part)).join(', ');
+    return `'${name}' from ${lacking.length} of ${parts.length} (${shown}${lacking.length > PARTS_NAMED ? ', …' : ''})`;
+  });
+  return `part files lack columns others hold: ${each.join('; ')}; read as missing in those files`;
 }
 
 /** Empty row columns for the roles, with their notes; item bytes kept per row (model/rowTexts.ts), 16 bytes each at a guess. */
@@ -145,7 +161,9 @@ export async function readParquetTask(task: ParquetTask, rows: RowColumns, onRow
 
 /** Reads one piece's rows into `rows`: only that piece's decoded values are held at once. */
 export async function readPiece(opened: OpenPart, piece: ParquetPiece, { names, roles }: ParquetColumns, rows: RowColumns): Promise<void> {
-  const wanted = [...new Set([roles.query, roles.item, roles.label, roles.score, roles.rank, ...roles.segments].filter((i) => i >= 0).map((i) => names[i]!))];
+  // Only the columns this part holds: one it lacks reads as missing (storeGroup).
+  const wanted = [...new Set([roles.query, roles.item, roles.label, roles.score, roles.rank, ...roles.segments].filter((i) => i >= 0).map((i) => names[i]!))]
+    .filter((name) => opened.names.includes(name));
   // Page by page when every column is flat, a slice of rows at a time. Rows a slice fails on (and after) are
   // read again the decoder's way, which reports the error.
   const { parquetPages, parquetTypedPages, parquetSliceRows } = engineSettings().tuning;

@@ -21,7 +21,7 @@ export interface ColumnRoles {
    * Delimited text skips them, since its every byte is checked whatever its column (source.ts). JSON Lines
    * of rows keeps none but still checks each value as a segment's (a lone surrogate; jsonLines.ts). Parquet
    * checks a value as it reads it (bytes that are not UTF-8), so it reads every text column either way (see
-   * everyColumn), and skips only columns that hold no text (numbers, dates: parquet.ts, partColumns). Every
+   * everyColumn), and skips only columns that hold no text (numbers, dates: parquet.ts, partsColumns). Every
    * reader accepts or refuses the same files with or without it (but for a damaged page in a skipped column).
    */
   others?: 'segments' | 'skipped';

@@ -9,7 +9,7 @@
 import { availableParallelism } from 'node:os';
 import { InputError } from '../errors';
 import type { RankedDump } from '../model/dump';
-import { columnsOf, openPart, partColumns, partFiles, rowGroups, sameColumns, stampOf, type ParquetColumns, type ParquetPiece } from '../readers/parquet';
+import { columnsOf, openPart, partFiles, partsColumns, rowGroups, stampOf, type OpenPart, type ParquetColumns, type ParquetPiece } from '../readers/parquet';
 import type { RangeTask } from '../readers/rangeParse';
 import type { ReadOptions } from '../readers/readOptions';
 import type { RowColumns } from '../readers/columns';
@@ -81,16 +81,14 @@ interface ParquetLayout {
 }
 
 async function parquetLayout(parts: readonly string[], options: ReadOptions): Promise<ParquetLayout> {
-  let columns: ParquetColumns | undefined;
-  const pieces: ParquetPiece[] = [];
-  for (const part of parts) {
-    const opened = await openPart(part);
-    if (columns === undefined) columns = partColumns(opened, options);
-    else sameColumns(columns, opened);
-    pieces.push(...rowGroups(opened));
-  }
+  const opened: OpenPart[] = [];
+  for (const part of parts) opened.push(await openPart(part));
+  const { columns, note } = partsColumns(opened, options);
+  const headerRows = columnsOf(columns, 16);
+  if (note !== undefined) headerRows.notes.messages.push(note);
+  const pieces = opened.flatMap((o) => rowGroups(o));
   const rows = pieces.reduce((n, p) => n + p.end - p.start, 0);
-  return { columns: columns!, headerRows: columnsOf(columns!, 16), pieces, rows };
+  return { columns, headerRows, pieces, rows };
 }
 
 /**
