@@ -91,6 +91,27 @@ describe('DuckDB engine against the local engine', () => {
     }
   });
 
+  it('reads a folder of parts whose columns differ by name, as the local engine does', async () => {
+    const rows = seededRows(4, 30);
+    const number = (t: string) => (t === '' || t === 'nan' || t === 'inf' ? null : Number(t));
+    const column = (name: string, from: number, to: number) => name === 'query_id' || name === 'item_id' || name === 'store'
+      ? { name, data: rows.slice(from, to).map((r, i) => (name === 'store' ? `store ${i % 3}` : name === 'query_id' ? r.query : r.item)), type: 'STRING' as const }
+      : { name, data: rows.slice(from, to).map((r) => number(name === 'score' ? r.score : r.label)), type: 'DOUBLE' as const };
+    const part = (names: string[], from: number, to: number) => new Uint8Array(parquetWriteBuffer({ columnData: names.map((n) => column(n, from, to)) }));
+    const parts = join(dir, 'parts-differ');
+    mkdirSync(parts);
+    const third = Math.floor(rows.length / 3);
+    writeFileSync(join(parts, 'part-0.parquet'), part(['query_id', 'item_id', 'score', 'label'], 0, third));
+    // Columns in another order and a segment; then no grade at all.
+    writeFileSync(join(parts, 'part-1.parquet'), part(['label', 'score', 'store', 'item_id', 'query_id'], third, 2 * third));
+    writeFileSync(join(parts, 'part-2.parquet'), part(['query_id', 'item_id', 'score'], 2 * third, rows.length));
+    const metrics = 'ndcg@5,ap,rr,p@3,err@5';
+    const c: Conventions = { ...DEFAULT_CONVENTIONS, ties: 'file-order' };
+    const expected = await local(parts, metrics, c);
+    expect(expected.evaluation.degenerate.unjudgedRows).toBeGreaterThanOrEqual(rows.length - 2 * third);
+    expectSameNumbers(await evaluateWithDuckDb(parts, 'parts-differ', { metrics: parseMetricList(metrics), conventions: c }), expected, 'parts');
+  });
+
   it('refuses what SQL cannot express, naming the option', async () => {
     const c = DEFAULT_CONVENTIONS;
     await expect(evaluateWithDuckDb(csv, 'seeded.csv', { metrics: parseMetricList('ndcg@10,tau'), conventions: c })).rejects.toThrow(/--metrics: expected .*tau/);

@@ -68,7 +68,8 @@ export async function duckSourceRelation(path: string, format: string | undefine
     // A folder: every .parquet part under it, in file name order, then row order within each part.
     const glob = info.isDirectory() ? join(path, '**', '*.parquet') : path;
     // file_index follows the sorted file names; one number per row keeps the repeated-row aggregate spillable.
-    return { relation: `read_parquet(${stringDuck(glob)}, file_row_number = true)`, order: ['(file_index * 1099511627776 + file_row_number)'], kind };
+    // Parts are matched by column name, a column a part lacks NULL there, as the local engine reads them (parquet.ts, partsColumns).
+    return { relation: `read_parquet(${stringDuck(glob)}, file_row_number = true, union_by_name = true)`, order: ['(file_index * 1099511627776 + file_row_number)'], kind };
   }
   if (kind === 'csv' || kind === 'tsv') {
     // Every field as text so ids keep their spelling ("007" stays "007"); numbers are cast where used.
