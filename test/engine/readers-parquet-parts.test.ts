@@ -70,6 +70,19 @@ describe('a folder of Parquet parts whose columns differ', () => {
     expect((await readDump(same)).notes.messages.filter((m) => m.includes('lack columns'))).toEqual([]);
   });
 
+  it('names only the columns the read uses: a numeric column skipped when no view asks for segments is not in the note', async () => {
+    const folder = join(tmp.path, 'extra-number');
+    mkdirSync(folder);
+    await duckdb(`COPY (SELECT ${query}, ${item}, i % 4 AS grade, i / 10.0 AS score FROM ${range(0, 60)}) TO '${folder}/part-0.parquet' (FORMAT parquet)`);
+    await duckdb(`COPY (SELECT ${query}, ${item}, i % 4 AS grade, i / 10.0 AS score, i * 3 AS stock FROM ${range(60, 120)}) TO '${folder}/part-1.parquet' (FORMAT parquet)`);
+    const kept = await readDump(folder);
+    expect(kept.segments.map((g) => g.name)).toEqual(['stock']);
+    expect(kept.notes.messages).toContain("part files lack columns others hold: 'stock' from 1 of 2 (part-0.parquet); read as missing in those files");
+    const skipped = await readDump(folder, { columns: { others: 'skipped' } });
+    expect(skipped.segments).toEqual([]);
+    expect(skipped.notes.messages.filter((m) => m.includes('lack columns'))).toEqual([]);
+  });
+
   it('refuses a part without the item column, naming the part and the column', async () => {
     const folder = join(tmp.path, 'no-item');
     mkdirSync(folder);

@@ -100,11 +100,16 @@ export function partsColumns(parts: readonly OpenPart[], options: Pick<ReadOptio
     const lacking = [roles.query, roles.item].map((i) => names[i]!).filter((n) => !o.names.includes(n));
     if (lacking.length > 0) throw new InputError(`the query and item columns in every part file (${lacking.join(', ')})`, o.part, undefined, o.names.join(', '));
   }
-  const note = missingColumnsNote(parts, names);
-  if (options.columns?.others !== 'skipped') return { columns: { names, roles }, ...(note ? { note } : {}) };
-  const texted = new Set(parts.flatMap((o) => parquetSchema(o.metadata).children)
-    .filter((c) => c.children.length === 0 && !TEXTLESS_TYPES.has(c.element.type ?? '')).map((c) => c.element.name));
-  return { columns: { names, roles: { ...roles, segments: roles.segments.filter((i) => texted.has(names[i]!)) } }, ...(note ? { note } : {}) };
+  let read = roles;
+  if (options.columns?.others === 'skipped') {
+    const texted = new Set(parts.flatMap((o) => parquetSchema(o.metadata).children)
+      .filter((c) => c.children.length === 0 && !TEXTLESS_TYPES.has(c.element.type ?? '')).map((c) => c.element.name));
+    read = { ...roles, segments: roles.segments.filter((i) => texted.has(names[i]!)) };
+  }
+  // The note names only the columns the read uses.
+  const used = [read.query, read.item, read.label, read.score, read.rank, ...read.segments].filter((i) => i >= 0).map((i) => names[i]!);
+  const note = missingColumnsNote(parts, names.filter((n) => used.includes(n)));
+  return { columns: { names, roles: read }, ...(note ? { note } : {}) };
 }
 
 /** Parts named in the note, at most. */
