@@ -11,7 +11,7 @@
  */
 import { gzipSync } from 'node:zlib';
 import type { Conventions } from '../../extension/engine/metrics/conventions';
-import { csvWithBadByte, delimited, gzip, jsonLines, METRICS, parquet, randomRows, runAndJudgments, type Row } from './generate';
+import { csvWithBadByte, delimited, gzip, jsonLines, METRICS, parquet, parquetColumns, randomRows, runAndJudgments, type Row } from './generate';
 
 export type Expectation =
   | { readonly error: string; readonly says?: RegExp }
@@ -84,6 +84,11 @@ export const CASES: readonly HostileCase[] = [
   { name: 'JSON Lines with awkward ids', files: { 'd.jsonl': jsonLines(awkward) }, args: ['eval', 'd.jsonl'], expect: { rows: awkward } },
   { name: 'run file + judgments', files: { 'r.run': run, 'j.txt': judgments }, args: ['eval', 'r.run', '--judgments', 'j.txt'], expect: { rows: runRows } },
   { name: 'Parquet', files: { 'd.parquet': parquet(rows) }, args: ['eval', 'd.parquet'], expect: { rows } },
+  // Parts written over time: columns reordered, one added, the grade left out of the last part (its rows unjudged).
+  { name: 'a folder of Parquet parts whose columns differ', files: { 'parts/part-0.parquet': parquetColumns(rows.slice(0, 14), ['query', 'item', 'score', 'grade']),
+    'parts/part-1.parquet': parquetColumns(rows.slice(14, 28), ['grade', 'shelf', 'item', 'score', 'query']),
+    'parts/part-2.parquet': parquetColumns(rows.slice(28), ['query', 'item', 'score']) },
+  args: ['eval', 'parts'], expect: { rows: rows.map((r, i) => (i >= 28 ? { ...r, grade: NaN } : r)) } },
   { name: 'large CSV on three threads', files: { 'm.csv': manyCsv }, args: ['eval', 'm.csv', '--threads', '3'], expect: { rows: manyRows } },
   { name: 'non-finite scores count as missing', files: { 'n.csv': csv(`${HEADER}q,a,inf,1\nq,b,NaN,0\nq,c,1,2\nq,d,-inf,0\n`) }, args: ['eval', 'n.csv'],
     expect: { rows: [

@@ -88,6 +88,17 @@ export function parquet(rows: readonly Row[], queryBytes?: readonly Uint8Array[]
   return Buffer.from(buf);
 }
 
+/**
+ * Rows as a Parquet part with the named columns in that order (of query, item, score, grade and a text
+ * column `shelf`): the parts of a folder whose columns differ.
+ */
+export function parquetColumns(rows: readonly Row[], names: readonly ('query' | 'item' | 'score' | 'grade' | 'shelf')[]): Buffer {
+  const column = (name: (typeof names)[number]) => name === 'score' || name === 'grade'
+    ? { name, data: rows.map((r) => r[name]), type: 'DOUBLE' as const }
+    : { name, data: rows.map((r, i) => (name === 'shelf' ? `aisle ${i % 4}` : r[name])), type: 'STRING' as const };
+  return Buffer.from(parquetWriteBuffer({ columnData: names.map(column), rowGroupSize: 3 }));
+}
+
 export const gzip = (b: Buffer): Buffer => gzipSync(b);
 
 /** Per-query values and means of METRICS over `rows`, by the slow reference. */

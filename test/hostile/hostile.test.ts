@@ -4,9 +4,9 @@
  * and line (or the option). Result cases: exit 0 and the JSON report equal to the slow reference
  * (test/reference/slowMetrics.ts) or to hand-derived values.
  */
-import { mkdtempSync, writeFileSync } from 'node:fs';
+import { mkdirSync, mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
-import { join } from 'node:path';
+import { dirname, join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { runCli } from '../cli/support/runCli';
 import { CASES, METRICS, type HostileCase } from './cases';
@@ -14,7 +14,11 @@ import { slowExpectation } from './generate';
 
 function writeCase(c: HostileCase): string {
   const dir = mkdtempSync(join(tmpdir(), 'gainline-hostile-'));
-  for (const [name, content] of Object.entries(c.files)) writeFileSync(join(dir, name), content);
+  for (const [name, content] of Object.entries(c.files)) {
+    // A name with a folder in it (the parts of a Parquet folder) gets its folder.
+    mkdirSync(dirname(join(dir, name)), { recursive: true });
+    writeFileSync(join(dir, name), content);
+  }
   return dir;
 }
 
