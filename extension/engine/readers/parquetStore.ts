@@ -233,8 +233,10 @@ function idBytes(v: unknown, column: string, file: string, row: number): Uint8Ar
   throw new InputError(`a string or number in column '${column}' in row ${row + 1}`, file, undefined, String(v));
 }
 
-/** A segment value's UTF-8 bytes: empty when missing, bytes that are not UTF-8 escaped, other values as they print. */
-/** A segment's bytes: text as it is (escaped when not UTF-8), a number as it prints, an object (a geometry's GeoJSON) as JSON. */
+/**
+ * A segment value's UTF-8 bytes: empty when missing, text as it is (escaped when not UTF-8), an object (a
+ * geometry's GeoJSON) as JSON, any other value as it prints.
+ */
 function segmentBytes(v: unknown): Uint8Array {
   if (v === null || v === undefined) return EMPTY;
   if (v instanceof Uint8Array) return isUtf8(v) ? v : textEncoder.encode(escapeBytes(v));
