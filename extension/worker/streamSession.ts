@@ -187,7 +187,7 @@ function streamedSession(outcome: Extract<StreamIfFit, { kind: 'streamed' }>, fi
   const file = { path: dump.path, name: fileName, format: dump.format, rowCount: dump.rowCount, sizeBytes: dump.stamp.size, textual: true };
   const streamedNote = `Streamed: scored as the file was read (${outcome.blocks} blocks on ${outcome.threads} threads), without keeping its rows in memory; ` +
     'the score diagnostics need the rows (raise gainline.reading.streamFromMegabytes above the file\'s size to read it into memory).';
-  const overview = { ...overviewOf(file, evaluation, [...notes, ...dump.notes.messages, streamedNote], performance.now() - started),
+  const overview = { ...overviewOf(file, evaluation, [...notes, streamedNote], performance.now() - started),
     segmentColumns: rows.segments.map((c) => c.name), ...(evaluation.weighting ? { weighting: evaluation.weighting.source } : {}) };
   return { session: { kind: 'streamed', dump, evaluation, table, rows }, overview };
 }

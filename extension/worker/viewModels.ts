@@ -95,7 +95,7 @@ function judgmentsView(j: NonNullable<Evaluation['judgments']>): JudgmentsView {
 
 export function overviewModel(dump: RankedDump, evaluation: Evaluation, loadMs: number): OverviewModel {
   return {
-    ...overviewOf(fileInfo(dump), evaluation, dump.notes.messages, loadMs),
+    ...overviewOf(fileInfo(dump), evaluation, [], loadMs),
     segmentColumns: dump.segments.map((s) => s.name),
   };
 }
@@ -116,7 +116,10 @@ export function sensitivityRows(evaluation: Evaluation, headlineMean: number): S
   }));
 }
 
-/** The overview of an evaluation whose rows are not held here (an SQL engine's per-query table). */
+/**
+ * The overview of an evaluation whose rows are not held here (an SQL engine's per-query table). `notes`: what
+ * the caller adds to the evaluation's warnings (a dump's own reading notes are among those already).
+ */
 export function overviewOf(file: FileInfo, evaluation: Evaluation, notes: readonly string[], loadMs: number): OverviewModel {
   const headlineMean = evaluation.summary[evaluation.headline]?.mean ?? NaN;
   return {
@@ -129,8 +132,7 @@ export function overviewOf(file: FileInfo, evaluation: Evaluation, notes: readon
     degenerate: { ...evaluation.degenerate },
     histogram: histogram(evaluation.perQuery.values[evaluation.headline]!, metricRange(evaluation.metrics[evaluation.headline]!)),
     segmentColumns: [],
-    // The reader's notes are in the evaluation's warnings too when it was made from the dump (describeReading): once each.
-    warnings: [...new Set([...evaluation.warnings, ...notes])],
+    warnings: [...evaluation.warnings, ...notes],
     ...(evaluation.judgments ? { judgments: judgmentsView(evaluation.judgments) } : {}),
     loadMs: Math.round(loadMs),
   };

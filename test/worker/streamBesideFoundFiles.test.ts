@@ -64,6 +64,9 @@ describe('streaming beside files found by the naming rule', () => {
     expect(memory.warnings).toContain(judgmentsNote);
     expect(streamed.warnings).toContain(judgmentsNote);
     expect(streamed.warnings).toContain(queriesNote);
+    // Once each: the reader's notes reach the overview through the evaluation's warnings alone.
+    for (const warnings of [memory.warnings, streamed.warnings]) expect(warnings.filter((w) => w === judgmentsNote)).toHaveLength(1);
+    expect(streamed.warnings.filter((w) => w === queriesNote)).toHaveLength(1);
     // …and the items table, which only a read of the rows can check, is said to be left out.
     expect(streamed.warnings).toContain(`${unrelated.items} was found beside the dump; it is not used while streaming (item titles need the dump's rows).`);
     // Nothing about a read into memory.

@@ -127,6 +127,9 @@ describe('a dump streamed in the editor', () => {
     expect(streamed.warnings.some((w) => w.startsWith('Streamed:'))).toBe(true);
     expect(streamed.metrics).toEqual(memory.metrics);
     expect(streamed.degenerate).toEqual(memory.degenerate);
+    // The join's notes, each once (they reach the overview through the evaluation's warnings alone).
+    expect(streamed.warnings.some((w) => w.includes(judgments))).toBe(true);
+    for (const warnings of [memory.warnings, streamed.warnings]) expect(new Set(warnings).size).toBe(warnings.length);
     const { rows: sensitivity } = await worker.call('overviewSensitivity', { session: 'judged-memory' });
     expect(streamed.sensitivity).toEqual(sensitivity);
     const query = `${QUERY_NAMES[0]} 0`;
