@@ -184,6 +184,8 @@ export class RangeScorer {
   private readonly tauIndex: number;
   /** Queries from here on have no row in the run (judged queries added under missing queries `zero`). */
   private readonly firstAbsent: number;
+  /** The sensitivity pass scores at the scorer's headline cut-off, so it takes the scorer's configured-gain values. */
+  private readonly sharesConfigured: boolean;
 
   constructor(
     private readonly setup: EvaluationSetup,
@@ -197,6 +199,7 @@ export class RangeScorer {
     this.scorer = new QueryScorer(setup.conventions, setup.metrics, setup.gmax);
     this.tauIndex = setup.metrics.findIndex(isPairMeasure);
     this.firstAbsent = dump.unretrieved?.firstAbsentQuery ?? Infinity;
+    this.sharesConfigured = sensitivity !== undefined && sensitivity.k === this.scorer.headlineK;
   }
 
   /** Adds queries [from, to) to `tally`. */
@@ -240,7 +243,7 @@ export class RangeScorer {
       perQuery.inversionCost[q] = skipped ? NaN : scorer.inversionCost;
       if (perQuery.rbpResidual) perQuery.rbpResidual[q] = skipped ? NaN : scorer.rbpResidual;
       if (tauIndex >= 0 && !skipped && Number.isNaN(scorer.pairs.tau)) tally.tauUndefined++;
-      sensitivity?.add(ranking, scorer.grades, scorer.noRelevant, q, scorer.idealGrades);
+      sensitivity?.add(ranking, scorer.grades, scorer.noRelevant, q, scorer.idealGrades, this.sharesConfigured ? scorer.configuredGain : undefined);
     }
     tally.sensitivityNoRelevant += (sensitivity?.noRelevantQueries ?? 0) - noRelevantBefore;
   }

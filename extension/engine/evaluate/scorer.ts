@@ -32,6 +32,12 @@ export function noRelevantValue(policy: Conventions['noRelevant']): number {
   return policy === 'zero' ? 0 : policy === 'one' ? 1 : NaN;
 }
 
+/** The configured gain's gain per grade rank and ideal DCG of one query, as its scorer made them (SensitivityPass.add). */
+export interface ConfiguredGain {
+  readonly gainOfRank: Float64Array;
+  readonly idealDcg: number;
+}
+
 /** Ideal order gains: distinct gains, descending, with their item counts. */
 export class IdealGains {
   gain = new Float64Array(16);
@@ -100,6 +106,7 @@ export class QueryScorer implements MetricContext {
   private judgedScratch = new Float64Array(16);
 
   readonly err = new ErrCalculator();
+  private readonly configured: { gainOfRank: Float64Array; idealDcg: number } = { gainOfRank: this.gainOfRank, idealDcg: 0 };
   readonly second = new Float64Array(2);
   /** The arranged list of the query being scored. */
   list!: GroupedList;
@@ -255,6 +262,17 @@ export class QueryScorer implements MetricContext {
     for (let r = 0; r < judged.distinct; r++) this.judgedGainOfRank[r] = this.gainOf(judged.values[r]!);
     this.idealGrades = judged;
     this.ideal.build(this.judgedGainOfRank, judged, this.monotone);
+  }
+
+  /**
+   * The query's gain per rank of `grades` and ideal DCG at the headline cut-off, under the configured gain:
+   * what the sensitivity pass needs for that gain (SensitivityPass.add). Valid until the next `score`.
+   */
+  get configuredGain(): ConfiguredGain {
+    const c = this.configured;
+    c.gainOfRank = this.gainOfRank;
+    c.idealDcg = this.idealDcgHeadline;
+    return c;
   }
 
   /** Σ over inverted pairs of |ΔNDCG@headline| (0 when the ideal DCG is 0). */
