@@ -13,6 +13,7 @@ import { isPairMeasure, metricDefinition, residualMetricIndex, type MetricSpec }
 import { checkGainsAndGrades, gainProblem } from './gainLimits';
 import { QueryRanking, SeenItems } from './ranking';
 import { headlineCutoff, QueryScorer } from './scorer';
+import { PLAIN_COLUMNS, type ColumnMemory } from './columnMemory';
 import { SensitivityPass, type SensitivityColumns } from './sensitivity';
 import type { DegenerateCounts, Evaluation, MetricSummary, PerQueryColumns } from './types';
 import { describeDegenerate } from './warnings';
@@ -59,10 +60,10 @@ export function evaluate(
   options: EvaluateOptions = {},
 ): Evaluation {
   const setup = prepareEvaluation(dump, metrics, conventions, options);
-  const perQuery = allocatePerQuery(setup.queryCount, metrics, setup.hasRbp, (bytes) => new ArrayBuffer(bytes));
+  const perQuery = allocatePerQuery(setup.queryCount, metrics, setup.hasRbp);
   const sensitivity = setup.sensitivity ? newSensitivityPass(setup) : undefined;
   // Weighted means need each query's value under every variant.
-  const recorded = sensitivity && dump.joined?.queryWeight ? sensitivityColumns(sensitivity, setup.queryCount, (n) => new ArrayBuffer(n)) : undefined;
+  const recorded = sensitivity && dump.joined?.queryWeight ? sensitivityColumns(sensitivity, setup.queryCount) : undefined;
   if (recorded) sensitivity!.recordInto(recorded);
   const tally = scoreQueryRange(setup, dump, 0, setup.queryCount, perQuery, sensitivity, options);
   options.onProgress?.(1);
@@ -109,26 +110,26 @@ export function newSensitivityPass(setup: EvaluationSetup): SensitivityPass {
     (gain) => gainProblem(gain, setup.gradeRange, setup.largestQuery)?.why);
 }
 
-/** Per-variant, per-query columns for a sensitivity pass to record into; `allocate` picks plain or shared memory. */
-export function sensitivityColumns(pass: SensitivityPass, queryCount: number, allocate: (bytes: number) => ArrayBufferLike): SensitivityColumns {
+/** Per-variant, per-query columns for a sensitivity pass to record into; `memory` picks plain or shared memory. */
+export function sensitivityColumns(pass: SensitivityPass, queryCount: number, memory: ColumnMemory = PLAIN_COLUMNS): SensitivityColumns {
   return {
-    value: Array.from({ length: pass.variantCount }, () => new Float64Array(allocate(queryCount * 8))),
-    entered: Array.from({ length: pass.variantCount }, () => new Uint8Array(allocate(queryCount))),
+    value: Array.from({ length: pass.variantCount }, () => memory.f64(queryCount)),
+    entered: Array.from({ length: pass.variantCount }, () => memory.u8(queryCount)),
   };
 }
 
-/** Per-query columns for every query; `allocate` picks plain or shared memory. */
+/** Per-query columns for every query; `memory` picks plain or shared memory. */
 export function allocatePerQuery(queryCount: number, metrics: readonly MetricSpec[], hasRbp: boolean,
-  allocate: (bytes: number) => ArrayBufferLike): PerQueryColumns {
-  const f64 = () => new Float64Array(allocate(queryCount * 8));
+  memory: ColumnMemory = PLAIN_COLUMNS): PerQueryColumns {
+  const f64 = () => memory.f64(queryCount);
   return {
-    items: new Uint32Array(allocate(queryCount * 4)),
-    relevant: new Uint32Array(allocate(queryCount * 4)),
-    unretrieved: new Uint32Array(allocate(queryCount * 4)),
+    items: memory.u32(queryCount),
+    relevant: memory.u32(queryCount),
+    unretrieved: memory.u32(queryCount),
     values: metrics.map(f64),
     inversions: f64(),
     inversionCost: f64(),
-    skipped: new Uint8Array(allocate(queryCount)),
+    skipped: memory.u8(queryCount),
     ...(hasRbp ? { rbpResidual: f64() } : {}),
   };
 }

@@ -236,9 +236,9 @@ function scoreBlock(task: BlockTask, dump: RankedDump, lines: number): BlockResu
   const from = task.whole ? 0 : 1;
   const to = task.whole ? runs : Math.max(1, runs - 1);
   const setup = scoredBlockSetup(task.metrics, task.conventions, groups, runs, gmax, task.sensitivity);
-  const perQuery = allocatePerQuery(runs, task.metrics, setup.hasRbp, (bytes) => new ArrayBuffer(bytes));
+  const perQuery = allocatePerQuery(runs, task.metrics, setup.hasRbp);
   const pass = task.sensitivity ? newSensitivityPassWith(setup, () => undefined) : undefined;
-  const recorded = pass ? sensitivityColumns(pass, runs, (bytes) => new ArrayBuffer(bytes)) : undefined;
+  const recorded = pass ? sensitivityColumns(pass, runs) : undefined;
   if (pass && recorded) pass.recordInto(recorded);
   const tally = emptyTally();
   if (to > from) new RangeScorer(setup, dump, perQuery, pass).score(from, to, tally);

@@ -110,9 +110,9 @@ export function scoreAbsentQueries(absent: AbsentQueries, metrics: readonly Metr
   sensitivity: boolean): { scored: ScoredRuns; tally: RangeTally } {
   const n = absent.names.length;
   const setup = scoredBlockSetup(metrics, conventions, { rowsOfQuery: new Uint32Array(0), start: new Uint32Array(n + 1) }, n, gmax, sensitivity);
-  const perQuery = allocatePerQuery(n, metrics, setup.hasRbp, (bytes) => new ArrayBuffer(bytes));
+  const perQuery = allocatePerQuery(n, metrics, setup.hasRbp);
   const pass = sensitivity ? newSensitivityPassWith(setup, () => undefined) : undefined;
-  const recorded = pass ? sensitivityColumns(pass, n, (bytes) => new ArrayBuffer(bytes)) : undefined;
+  const recorded = pass ? sensitivityColumns(pass, n) : undefined;
   if (pass && recorded) pass.recordInto(recorded);
   const tally = emptyTally();
   const columns = { item: new Uint32Array(0), label: new Float64Array(0), score: new Float64Array(0), unretrieved: absent.side };

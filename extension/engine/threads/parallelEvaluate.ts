@@ -27,6 +27,7 @@ import {
   type RangeTally,
   type ScoredColumns,
 } from '../evaluate/evaluate';
+import { sharedColumnMemory, type ColumnMemory } from '../evaluate/columnMemory';
 import type { SensitivityColumns } from '../evaluate/sensitivity';
 import type { Evaluation, PerQueryColumns } from '../evaluate/types';
 import { freeCores } from '../evaluate/coreMeter';
@@ -115,13 +116,16 @@ export async function evaluateInParallel(dump: RankedDump, metrics: readonly Met
 async function scoreWithWorkers(dump: RankedDump, metrics: readonly MetricSpec[], conventions: Conventions, options: ParallelEvaluateOptions,
   threads: number, pool: ThreadPool<ScoreRequests>): Promise<Evaluation> {
   const setup = prepareEvaluation(dump, metrics, conventions, { ...options, groups: options.groups ?? sharedGroups(dump) });
-  const shared = (bytes: number) => new SharedArrayBuffer(bytes);
-  const perQuery = allocatePerQuery(setup.queryCount, metrics, setup.hasRbp, shared);
   const sensitivity = setup.sensitivity ? newSensitivityPass(setup) : undefined;
-  const recorded: SensitivityColumns | undefined = sensitivity && sensitivityColumns(sensitivity, setup.queryCount, shared);
+  // Every per-query column in one shared buffer (columnMemory.ts): its pages are first touched by the scoring threads.
+  const layout = (memory: ColumnMemory) => {
+    const perQuery = allocatePerQuery(setup.queryCount, metrics, setup.hasRbp, memory);
+    return { perQuery, recorded: sensitivity && sensitivityColumns(sensitivity, setup.queryCount, memory) };
+  };
+  const { perQuery, recorded } = layout(sharedColumnMemory(layout));
   if (recorded) sensitivity!.recordInto(recorded);
   const bounds = splitByRows(setup.groups.start, Math.min(setup.queryCount, threads * engineSettings().tuning.scoreChunksPerThread));
-  const next = new Int32Array(shared(4));
+  const next = new Int32Array(new SharedArrayBuffer(4));
   // Workers only find repeated items within a query: query-scoped keys serve as ids there.
   // The side table goes without its item pool: scoring reads only the grades (and a pool would be copied).
   const side = dump.unretrieved && { start: dump.unretrieved.start, grade: dump.unretrieved.grade, item: dump.unretrieved.item, line: dump.unretrieved.line,
