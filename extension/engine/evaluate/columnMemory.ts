@@ -4,7 +4,7 @@
  *
  * One buffer rather than one per column, because of when its memory is first touched. A buffer past the
  * C allocator's largest pooled size comes straight from the kernel, untouched: each page is faulted in by
- * the scoring thread that first writes it, on both threads at once. Some twenty buffers of a few MB each
+ * the scoring thread that first writes it, on both threads at once. Some twenty-five buffers of a few MB
  * came from the allocator's pool instead and were zeroed here, on this thread, before either thread could
  * score: 1M queries asked 150 MB, 5 ms when the machine had fresh pages at hand but 0.25 s when it had to
  * find them (the first run after a pause, as a command line usually runs), with the other scoring thread

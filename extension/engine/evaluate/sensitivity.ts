@@ -184,8 +184,8 @@ export class SensitivityPass {
    * DCG is built from them over the list's length plus `ranking.unretrieved`. `configured`, when given, is
    * what the query's scorer already made under the configured gain at this pass's cut-off: its gain per
    * rank of `grades` and its ideal DCG, the very values this pass would compute for that gain (the same
-   * gain function, grades and cut-off), so they are taken rather than made again (a million ten-item
-   * queries spent a third of this pass on them).
+   * gain function, grades and cut-off), so they are taken rather than made again: one of the pass's gains
+   * then costs nothing per query.
    */
   add(ranking: QueryRanking, grades: GradeIndex, noRelevant: boolean, query = 0, idealGrades: GradeIndex = grades,
     configured?: ConfiguredGain): void {
