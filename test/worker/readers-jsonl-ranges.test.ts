@@ -155,4 +155,20 @@ describe('JSON Lines read in ranges', () => {
     expect(linesIn(Buffer.from('a\n\n \r\nb\r\n\t\nc'), 10)).toBe(2);
     expect(linesIn(Buffer.from('a\nb\nc\n'), 2)).toBe(2);
   });
+
+  it('counts as blank every line the parser trims to nothing (form feed, byte order mark, no-break space), as it grows the head', async () => {
+    // Rows of about 320 KB: the head's first growth (4 MB) holds 12 of them and the 5 lines below. Counted as
+    // lines with a value, those would stop the head there, short of the 16th row, the first with a locale.
+    const features = Array.from({ length: 60_000 }, (_, i) => (i % 97) / 8);
+    const rows = Array.from({ length: 24 }, (_, r) => JSON.stringify({ query: `router ${r >> 2}`, item: `bit-${r}`, grade: r % 4,
+      score: (r % 89) / 7, features, ...(r >= 15 ? { locale: 'fr-FR' } : {}) }));
+    const trimmed = ['\v', '\f', '\ufeff', '\u00a0', ' \u2028\t'];
+    const text = [...rows.slice(0, 3), ...trimmed, ...rows.slice(3)].join('\n') + '\n';
+    const [one, ranges] = await readBoth(tmp.file('ranges-long-trimmed.jsonl', text));
+    expect(readInRanges(ranges as RankedDump)).toBe(true);
+    expectSameReading(one as RankedDump, ranges as RankedDump);
+    expect((one as RankedDump).segments.map((s) => s.name)).toEqual(['locale']);
+    expect(trimmed.every((line) => line.trim() === '')).toBe(true);
+    expect(linesIn(Buffer.from(trimmed.join('\n') + '\n{}\n'), 10)).toBe(1);
+  });
 });

@@ -74,8 +74,10 @@ export async function fileHead(path: string): Promise<FileHead> {
 }
 
 /**
- * Whole lines in `buf` holding more than spaces, tabs and a carriage return (the lines the shape counts: a
- * blank line holds no value), counted up to `enough`.
+ * Whole lines in `buf` holding a value (the lines the shape counts), counted up to `enough`. The parser
+ * skips a line its text trims to nothing, and JavaScript trims more than ASCII spaces (a form feed, a byte
+ * order mark, a no-break space, a line separator); a line holding a value holds a printable ASCII byte other
+ * than a space (every JSON value starts with one), and a line the parser trims to nothing holds none.
  */
 export function linesIn(buf: Buffer, enough: number): number {
   let count = 0;
@@ -83,7 +85,7 @@ export function linesIn(buf: Buffer, enough: number): number {
   for (let at = buf.indexOf(10); at >= 0 && count < enough; at = buf.indexOf(10, start)) {
     for (let i = start; i < at; i++) {
       const b = buf[i]!;
-      if (b !== 32 && b !== 9 && b !== 13) {
+      if (b > 32 && b < 127) {
         count++;
         break;
       }
