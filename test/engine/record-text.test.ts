@@ -17,7 +17,7 @@ import { parseMetricList } from '../../extension/engine/metrics/parse';
 import { BytePool } from '../../extension/engine/model/bytePool';
 import { MapStringPool } from '../../extension/engine/model/stringPool';
 import { packNames, renderQueryRecords, stringifyQueryRecords, type QueryRecordsSpec } from '../../extension/engine/report/jsonRecords';
-import { recordBytes } from '../../extension/engine/report/recordTextKernel';
+import { RECORD_WRITER_BYTES, recordBytes } from '../../extension/engine/report/recordTextKernel';
 import { csvRowsText, renderCsvRows } from '../../extension/engine/report/csv';
 // @ts-expect-error a plain ES module without types
 import { compileRecordTextKernel } from '../../extension/engine/readers/kernel/compile.mjs';
@@ -152,19 +152,21 @@ describe('records', () => {
   });
 
   it('in the CSV style, split into batches when a range does not fit the writer at once', () => {
-    const { spec, perQuery } = randomCase(9, 60_000);
-    const written = renderCsvRows(spec, perQuery, 0, 60_000) as Uint8Array;
-    expect(written.length).toBeGreaterThan(4 << 20);
-    expect(Buffer.from(written).equals(Buffer.from(encoder.encode(csvRowsText(spec, perQuery, 0, 60_000))))).toBe(true);
+    const n = 150_000;
+    const { spec, perQuery } = randomCase(9, n);
+    const written = renderCsvRows(spec, perQuery, 0, n) as Uint8Array;
+    // More bytes than the writer's memory holds: several batches.
+    expect(written.length).toBeGreaterThan(RECORD_WRITER_BYTES);
+    expect(Buffer.from(written).equals(Buffer.from(encoder.encode(csvRowsText(spec, perQuery, 0, n))))).toBe(true);
   });
 
   it('split into batches when a range does not fit the writer at once, and joined in order', () => {
-    const n = 30_000;
+    const n = 60_000;
     const { spec, perQuery } = randomCase(7, n);
     const written = renderQueryRecords(spec, perQuery, 0, n) as Uint8Array;
     expect(written).toBeInstanceOf(Uint8Array);
-    // About 0.7 KB a record of the writer's 4 MB: several batches.
-    expect(written.length).toBeGreaterThan(4 << 20);
+    // More bytes than the writer's memory holds: several batches.
+    expect(written.length).toBeGreaterThan(RECORD_WRITER_BYTES);
     expect(Buffer.from(written).equals(Buffer.from(encoder.encode(stringifyQueryRecords(spec, perQuery, 0, n))))).toBe(true);
   });
 
@@ -183,7 +185,7 @@ describe('records', () => {
   it('leaves to the object path what it cannot write: a record larger than its memory, keys an object would reorder', () => {
     const { spec, perQuery } = randomCase(3, 3);
     const huge = new BytePool();
-    for (const name of ['a', 'b'.repeat(6 << 20), 'c']) huge.intern(encoder.encode(name), 0, name.length);
+    for (const name of ['a', 'b'.repeat(RECORD_WRITER_BYTES), 'c']) huge.intern(encoder.encode(name), 0, name.length);
     const hugeSpec = { ...spec, names: packNames(huge) };
     const text = renderQueryRecords(hugeSpec, perQuery, 0, 3);
     expect(typeof text).toBe('string');

@@ -3,7 +3,7 @@
  * (threads/renderInOrder.ts) must be the very bytes formatJson renders on one thread, in query order,
  * whichever thread made each chunk. The score worker is bundled fresh from source, as the build does.
  */
-import { describe, expect, it } from 'vitest';
+import { describe, expect, it, vi } from 'vitest';
 import { engineActivity } from '../../extension/engine/config';
 import { CancelledError } from '../../extension/engine/errors';
 import { registerChunkRenderer, type ChunkWork } from '../../extension/engine/evaluate/chunkOutput';
@@ -19,7 +19,8 @@ import { formatJson, jsonFrame } from '../../extension/engine/report/json';
 import { queryRecordsWork } from '../../extension/engine/report/jsonRecords';
 import type { ReportInput } from '../../extension/engine/report/reportInput';
 import { evaluateInParallel } from '../../extension/engine/threads/parallelEvaluate';
-import { renderInOrder } from '../../extension/engine/threads/renderInOrder';
+import { MAX_AHEAD, MAX_AHEAD_WHILE_STARTING, renderInOrder, renderWithThreads, type RenderRequests } from '../../extension/engine/threads/renderInOrder';
+import { ThreadPool } from '../../extension/engine/threads/pool';
 import type { RankedDump } from '../../extension/engine/model/dump';
 import { buildDump, type TestRow } from '../engine/dumpBuilder';
 import { TempDir } from '../engine/fixtures/readers/tempFiles';
@@ -175,5 +176,90 @@ describe('rendering the records after scoring', () => {
     }, { threads: 2, chunkQueries: 100, signal: controller.signal });
     await expect(rendering).rejects.toBeInstanceOf(CancelledError);
     expect(written).toEqual([0, 1, 2]);
+  });
+
+  it('work given as the function that makes it: the same bytes, threads or not, and its failure rejects', async () => {
+    const many = await evaluateInParallel(dump, METRICS, DEFAULT_CONVENTIONS, { threads: 2 });
+    const expected = recordsOf(inputOf(dump, many));
+    const before = engineActivity().chunksRenderedElsewhere;
+    const shared = await rendered(() => queryRecordsWork(METRICS, names, false), many, { threads: 2, chunkQueries: 100 });
+    expect(shared.text).toBe(expected);
+    expect(engineActivity().chunksRenderedElsewhere - before).toBeGreaterThan(0);
+    // Names held as strings: made after the threads were started, the work is still rendered here alone.
+    const elsewhere = engineActivity().chunksRenderedElsewhere;
+    const unshared = await rendered(() => queryRecordsWork(METRICS, dump.queries, false), many, { threads: 2, chunkQueries: 100 });
+    expect(unshared.text).toBe(expected);
+    expect(engineActivity().chunksRenderedElsewhere).toBe(elsewhere);
+    // The threads start before the work is made (their start-up overlaps its making); when making it fails,
+    // the threads started for it are stopped.
+    const warm = vi.spyOn(ThreadPool.prototype, 'warm');
+    const close = vi.spyOn(ThreadPool.prototype, 'close');
+    try {
+      let warmedBefore = -1;
+      await rendered(() => {
+        warmedBefore = warm.mock.calls.length;
+        return queryRecordsWork(METRICS, names, false);
+      }, many, { threads: 2, chunkQueries: 100 });
+      expect(warmedBefore).toBe(1);
+      const closedBefore = close.mock.calls.length;
+      await expect(rendered(() => {
+        throw new Error('no names to pack');
+      }, many, { threads: 2, chunkQueries: 100 })).rejects.toThrow('no names to pack');
+      expect(close.mock.calls.length - closedBefore).toBe(1);
+    } finally {
+      warm.mockRestore();
+      close.mockRestore();
+    }
+  });
+
+  it(`renders ${MAX_AHEAD_WHILE_STARTING} chunks ahead while no thread has answered, then ${MAX_AHEAD}`, async () => {
+    // A pool whose thread answers only when the test says so: what this thread renders meanwhile is counted.
+    const madeHere: number[] = [];
+    registerChunkRenderer('counted', (_params: null, _perQuery, from: number) => {
+      madeHere.push(from);
+      return `<${from}>`;
+    });
+    const asked: { chunk: number; done: boolean; answer: () => void }[] = [];
+    const pool: Pick<ThreadPool<RenderRequests>, 'request'> = {
+      request: ((_method: 'renderChunk', params: RenderRequests['renderChunk']['params']) => new Promise((resolve) => {
+        const request = { chunk: params.from, done: false, answer: () => {
+          request.done = true;
+          resolve({ utf8: Buffer.from(`[${params.from}]`) });
+        } };
+        asked.push(request);
+      })) as ThreadPool<RenderRequests>['request'],
+    };
+    const written: string[] = [];
+    const chunks = 30;
+    const rendering = renderWithThreads({ renderer: 'counted', params: null, shared: true }, evaluate(dump, METRICS, DEFAULT_CONVENTIONS).perQuery,
+      (k) => [k, k + 1], chunks, (utf8) => written.push(Buffer.from(utf8).toString()), pool, 1, undefined);
+    const settle = async () => {
+      for (let i = 0; i < 200; i++) await new Promise<void>((resolve) => setImmediate(resolve));
+    };
+    await settle();
+    const pending = () => asked.filter((a) => !a.done).map((a) => a.chunk);
+    const answer = (chunk: number) => asked.find((a) => a.chunk === chunk)!.answer();
+    // Chunk 0 here, two asked of the starting thread, then as many ahead as allowed while it starts.
+    expect(pending()).toEqual([1, 2]);
+    expect(madeHere).toEqual([0, ...Array.from({ length: MAX_AHEAD_WHILE_STARTING }, (_, i) => 3 + i)]);
+    answer(1);
+    await settle();
+    // It has answered: chunk 1 is written, and with more than MAX_AHEAD ready nothing more is made here.
+    expect(written).toHaveLength(2);
+    expect(pending()).toEqual([2, 11]);
+    expect(madeHere).toHaveLength(1 + MAX_AHEAD_WHILE_STARTING);
+    answer(2);
+    await settle();
+    // Chunks 2-10 written; the thread holds 11 and 12; this thread made MAX_AHEAD more.
+    expect(written).toHaveLength(11);
+    expect(pending()).toEqual([11, 12]);
+    expect(madeHere.slice(1 + MAX_AHEAD_WHILE_STARTING)).toEqual(Array.from({ length: MAX_AHEAD }, (_, i) => 13 + i));
+    for (let i = 0; pending().length > 0 && i < chunks; i++) {
+      for (const chunk of pending()) answer(chunk);
+      await settle();
+    }
+    await rendering;
+    expect(written).toHaveLength(chunks);
+    expect(written.map((text) => Number(/\d+/.exec(text)![0]))).toEqual(Array.from({ length: chunks }, (_, k) => k));
   });
 });

@@ -38,9 +38,12 @@ export async function writeReport(format: ReportFormat, input: ReportInput, opti
   write: (piece: ReportPiece) => void, threads?: number): Promise<void> {
   const renderOptions = threads !== undefined ? { threads } : {};
   if (format === 'csv') {
-    const { header, work } = csvRowsWork(input);
-    write(`${header}\n`);
-    await renderInOrder(work, input.evaluation.perQuery, input.evaluation.queryCount, (utf8, chunk) => {
+    const workAfterHeader = () => {
+      const { header, work } = csvRowsWork(input);
+      write(`${header}\n`);
+      return work;
+    };
+    await renderInOrder(workAfterHeader, input.evaluation.perQuery, input.evaluation.queryCount, (utf8, chunk) => {
       if (chunk > 0) write('\n');
       write(utf8);
     }, renderOptions);
@@ -54,8 +57,7 @@ export async function writeReport(format: ReportFormat, input: ReportInput, opti
   const ev = input.evaluation;
   const frame = jsonFrame(input);
   write(frame.before);
-  const work = queryRecordsWork(ev.metrics, input.queryNames, ev.judgments !== undefined);
-  await renderInOrder(work, ev.perQuery, ev.queryCount, (utf8, chunk) => {
+  await renderInOrder(() => queryRecordsWork(ev.metrics, input.queryNames, ev.judgments !== undefined), ev.perQuery, ev.queryCount, (utf8, chunk) => {
     if (chunk > 0) write(RECORD_SEPARATOR);
     write(utf8);
   }, renderOptions);
