@@ -45,10 +45,10 @@ describe('per-query column memory', () => {
     const shared = layout(sharedColumnMemory(layout));
     const plain = layout(PLAIN_COLUMNS);
     const shape = (l: typeof plain) => [l.perQuery.items.length, l.perQuery.values.map((v) => v.length), l.perQuery.rbpResidual?.length,
-      l.recorded.value.length, l.recorded.entered.map((e) => e.length)];
+      l.recorded.value.map((v) => v.length)];
     expect(shape(shared)).toEqual(shape(plain));
     const views = [shared.perQuery.items, shared.perQuery.relevant, shared.perQuery.unretrieved!, ...shared.perQuery.values, shared.perQuery.inversions,
-      shared.perQuery.inversionCost, shared.perQuery.skipped, shared.perQuery.rbpResidual!, ...shared.recorded.value, ...shared.recorded.entered];
+      shared.perQuery.inversionCost, shared.perQuery.skipped, shared.perQuery.rbpResidual!, ...shared.recorded.value];
     expect(new Set(views.map((v) => v.buffer)).size).toBe(1);
     // No two views share a byte.
     const spans = views.map((v) => [v.byteOffset, v.byteOffset + v.byteLength] as const).sort((a, b) => a[0] - b[0]);

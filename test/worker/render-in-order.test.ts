@@ -58,7 +58,7 @@ function inputOf(dump: RankedDump, evaluation: Evaluation, queryNames: StringPoo
 }
 
 /** renderInOrder's chunks as one text, with the chunk numbers in the order they came. */
-async function rendered(work: ChunkWork, evaluation: Evaluation, options: Parameters<typeof renderInOrder>[4]): Promise<{ text: string; order: number[] }> {
+async function rendered(work: ChunkWork | (() => ChunkWork), evaluation: Evaluation, options: Parameters<typeof renderInOrder>[4]): Promise<{ text: string; order: number[] }> {
   const order: number[] = [];
   const parts: Uint8Array[] = [];
   await renderInOrder(work, evaluation.perQuery, evaluation.queryCount, (utf8, chunk) => {
@@ -221,7 +221,7 @@ describe('rendering the records after scoring', () => {
     });
     const asked: { chunk: number; done: boolean; answer: () => void }[] = [];
     const pool: Pick<ThreadPool<RenderRequests>, 'request'> = {
-      request: ((_method: 'renderChunk', params: RenderRequests['renderChunk']['params']) => new Promise((resolve) => {
+      request: ((_method: 'renderChunk', params: RenderRequests['renderChunk']['params']) => new Promise<RenderRequests['renderChunk']['result']>((resolve) => {
         const request = { chunk: params.from, done: false, answer: () => {
           request.done = true;
           resolve({ utf8: Buffer.from(`[${params.from}]`) });

@@ -114,7 +114,6 @@ export function newSensitivityPass(setup: EvaluationSetup): SensitivityPass {
 export function sensitivityColumns(pass: SensitivityPass, queryCount: number, memory: ColumnMemory = PLAIN_COLUMNS): SensitivityColumns {
   return {
     value: Array.from({ length: pass.variantCount }, () => memory.f64(queryCount)),
-    entered: Array.from({ length: pass.variantCount }, () => memory.u8(queryCount)),
   };
 }
 

@@ -16,10 +16,14 @@ import { IdealGains, noRelevantValue, type ConfiguredGain } from './scorer';
 const TIES: readonly TieConvention[] = ['average', 'pessimistic', 'optimistic', 'file-order'];
 const POLICIES: readonly NoRelevantPolicy[] = ['skip', 'zero', 'one'];
 
-/** Per variant (in the pass's own order), per query: the value added to the variant's mean, and whether it was. */
+/**
+ * Per variant (in the pass's own order), per query: the value added to the variant's mean, NaN when none was
+ * (a query with nothing relevant, or an ideal DCG of 0). A value added is a DCG over a positive ideal DCG,
+ * both finite (gainLimits.ts keeps every gain's sums finite), so NaN marks nothing else. One column per
+ * variant rather than a value and a flag: on 1M queries a flag column per variant was a tenth of the writes.
+ */
 export interface SensitivityColumns {
   readonly value: readonly Float64Array[];
-  readonly entered: readonly Uint8Array[];
 }
 
 interface Variant {
@@ -111,12 +115,12 @@ export class SensitivityPass {
     this.noRelevantWeight = noRelevantQueries;
     this.variants.forEach((v, i) => {
       const value = columns.value[i]!;
-      const entered = columns.entered[i]!;
       let sum = 0;
       let counted = 0;
       for (let q = 0; q < value.length; q++) {
-        if (entered[q] === 1) {
-          sum += value[q]!;
+        const x = value[q]!;
+        if (x === x) {
+          sum += x;
           counted++;
         }
       }
@@ -143,14 +147,14 @@ export class SensitivityPass {
     this.noRelevantWeight = noRelevantWeight;
     this.variants.forEach((v, i) => {
       const value = columns.value[i]!;
-      const entered = columns.entered[i]!;
       let sum = 0;
       let counted = 0;
       let weight = 0;
       for (let q = 0; q < value.length; q++) {
         const w = weights[q]!;
-        if (entered[q] === 1 && w === w) {
-          sum += w * value[q]!;
+        const x = value[q]!;
+        if (x === x && w === w) {
+          sum += w * x;
           weight += w;
           counted++;
         }
@@ -171,10 +175,7 @@ export class SensitivityPass {
       const v = this.variants[i]!;
       v.counted++;
       v.weight++;
-      if (record) {
-        record.value[i]![query] = 0;
-        record.entered[i]![query] = 1;
-      }
+      if (record) record.value[i]![query] = 0;
     }
   }
 
@@ -190,8 +191,8 @@ export class SensitivityPass {
   add(ranking: QueryRanking, grades: GradeIndex, noRelevant: boolean, query = 0, idealGrades: GradeIndex = grades,
     configured?: ConfiguredGain): void {
     const record = this.record;
-    if (record) for (let i = 0; i < this.variants.length; i++) record.entered[i]![query] = 0;
     if (noRelevant) {
+      if (record) for (let i = 0; i < this.variants.length; i++) record.value[i]![query] = NaN;
       this.noRelevantQueries++;
       this.noRelevantWeight++;
       return;
@@ -226,7 +227,10 @@ export class SensitivityPass {
     for (let i = 0; i < this.variants.length; i++) {
       const v = this.variants[i]!;
       const ideal = this.idealOfGain[v.gainSlot]!;
-      if (!(ideal > 0)) continue;
+      if (!(ideal > 0)) {
+        if (record) record.value[i]![query] = NaN;
+        continue;
+      }
       let dcg = untied ? this.dcgOfGain[v.gainSlot]! : NaN;
       if (Number.isNaN(dcg)) {
         dcg = this.dcgUnder(ranking, grades, tables[v.gainSlot]!, v.ties);
@@ -236,10 +240,7 @@ export class SensitivityPass {
       v.sum += value;
       v.counted++;
       v.weight++;
-      if (record) {
-        record.value[i]![query] = value;
-        record.entered[i]![query] = 1;
-      }
+      if (record) record.value[i]![query] = value;
     }
   }
 

@@ -273,7 +273,7 @@ function scoreBlock(task: BlockTask, dump: RankedDump, lines: number): BlockResu
       perQuery: slicePerQuery(perQuery, from, to),
       ...(weights ? { weight: weights.slice(from, to) } : {}),
       ...(task.segmentValues ? { segments: dump.segments.map((c) => names.map((_, i) => c.values.get(c.ofRow[start[from + i]!]!))) } : {}),
-      ...(recorded ? { sensitivity: { value: recorded.value.map((v) => v.slice(from, to)), entered: recorded.entered.map((e) => e.slice(from, to)) } } : {}),
+      ...(recorded ? { sensitivity: { value: recorded.value.map((v) => v.slice(from, to)) } } : {}),
     },
     tally,
     largestQuery: largestScored,

@@ -40,7 +40,7 @@ export class StreamColumns {
   private capacity = 1024;
   private count = 0;
   private columns: PerQueryColumns;
-  private sensitivity: { value: Float64Array[]; entered: Uint8Array[] } | undefined;
+  private sensitivity: { value: Float64Array[] } | undefined;
   private locations: { start: Float64Array; end: Float64Array; line: Uint32Array; rows: Uint32Array };
   /** Query weights, when the dump has a weight column. */
   private weight: Float64Array | undefined;
@@ -60,7 +60,7 @@ export class StreamColumns {
       ...(hasRbp ? { rbpResidual: new Float64Array(n) } : {}),
     };
     this.sensitivity = variantCount === undefined ? undefined
-      : { value: Array.from({ length: variantCount }, () => new Float64Array(n)), entered: Array.from({ length: variantCount }, () => new Uint8Array(n)) };
+      : { value: Array.from({ length: variantCount }, () => new Float64Array(n)) };
     this.locations = { start: new Float64Array(n), end: new Float64Array(n), line: new Uint32Array(n), rows: new Uint32Array(n) };
   }
 
@@ -121,7 +121,6 @@ export class StreamColumns {
     if (c.rbpResidual && p.rbpResidual) copy(c.rbpResidual, p.rbpResidual);
     if (this.sensitivity && scored.sensitivity) {
       this.sensitivity.value.forEach((v, i) => copy(v, scored.sensitivity!.value[i]!));
-      this.sensitivity.entered.forEach((e, i) => copy(e, scored.sensitivity!.entered[i]!));
     }
     if (this.weight && scored.weight) copy(this.weight, scored.weight);
     if (scored.segments) {
@@ -170,7 +169,7 @@ export class StreamColumns {
         values: c.values.map(cut), inversions: cut(c.inversions), inversionCost: cut(c.inversionCost), skipped: cut(c.skipped),
         ...(c.rbpResidual ? { rbpResidual: cut(c.rbpResidual) } : {}),
       },
-      sensitivity: this.sensitivity && { value: this.sensitivity.value.map(cut), entered: this.sensitivity.entered.map(cut) },
+      sensitivity: this.sensitivity && { value: this.sensitivity.value.map(cut) },
       locations: { start: cut(this.locations.start), end: cut(this.locations.end), line: cut(this.locations.line), rows: cut(this.locations.rows) },
       weight: this.weight && cut(this.weight),
     };
@@ -184,7 +183,7 @@ export class StreamColumns {
       skipped: grown(c.skipped, capacity), ...(c.rbpResidual ? { rbpResidual: grown(c.rbpResidual, capacity) } : {}),
     };
     if (this.sensitivity) {
-      this.sensitivity = { value: this.sensitivity.value.map((v) => grown(v, capacity)), entered: this.sensitivity.entered.map((e) => grown(e, capacity)) };
+      this.sensitivity = { value: this.sensitivity.value.map((v) => grown(v, capacity)) };
     }
     if (this.weight) this.weight = grown(this.weight, capacity);
     this.segmentIds = this.segmentIds.map((ids) => grown(ids, capacity));

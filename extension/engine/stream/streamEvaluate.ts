@@ -285,7 +285,7 @@ async function streamOnce(path: string, format: 'csv' | 'tsv', stamp: FileStamp,
       // The blocks kept every gain; keep the columns of the variants the in-memory path would have.
       const specKeys = spec.variantKeys();
       const picked = pass.variantKeys().map((key) => specKeys.indexOf(key));
-      recorded = { value: picked.map((i) => view.sensitivity!.value[i]!), entered: picked.map((i) => view.sensitivity!.entered[i]!) };
+      recorded = { value: picked.map((i) => view.sensitivity!.value[i]!) };
       pass.sumColumns(recorded, state.tally.sensitivityNoRelevant);
     }
     options.onProgress?.(1);
