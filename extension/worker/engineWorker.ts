@@ -20,7 +20,7 @@ import { groupByQuery, type QueryGroups } from '../engine/model/groups';
 import { readSource } from './readSource';
 import type { Comparison } from '../engine/compare/compare';
 import { RequestServer, type HandlerContext, type RequestHandlers } from '../channel/request';
-import type { DumpSource, ProgressEvent, WorkerRequests } from '../protocol/worker';
+import type { DumpSource, LoadParams, ProgressEvent, WorkerRequests } from '../protocol/worker';
 import { CompareTable, compareOverviewModel } from './compareTable';
 import { QueryTable } from './queryTable';
 import { overviewDiagnostics } from './diagnosticsView';
@@ -31,6 +31,7 @@ import { metricLabel, movementView, overviewModel, segmentTable } from './viewMo
 import { detailScreen, queryJsonText } from './queryViews';
 import { isCancelled } from './cancelFlags';
 import { warmUp } from './warmUp';
+import { WarmUpControl } from './warmUpControl';
 import { SeriesStore } from './seriesStore';
 import { isSqlSource, loadSql, sqlQueryDetail, sqlQueryJson, type SqlLoaded } from './sqlSession';
 import { joinedNote, loadStreamOrRead, mayStream, needsRows, streamedDetail, streamedQueryJson, streamedRowLocation, type StreamedLoaded } from './streamSession';
@@ -86,10 +87,23 @@ function prepareReload(key: string): void {
 }
 /** When this thread had loaded its code and could take requests (epoch ms), for the first screen's timeline. */
 const readyAt = Date.now();
-/** When the warm-up read (see warmUp.ts) finished, if this thread ran one. */
-let warmedAt: number | undefined;
-/** A real read arriving stops the warm-up where it is: the user's dump goes first. */
-const warmUpStop = new AbortController();
+/** The warm-up read (warmUp.ts), when this thread runs one: stopped by each real read, run again after (warmUpControl.ts). */
+const warmUps = workerData?.warmUp === true ? new WarmUpControl((signal) => warmUp(undefined, signal)) : undefined;
+
+/** Runs a real read with the warm-up stopped, and lets it run again once the thread is quiet. */
+async function whileReading<T>(work: () => Promise<T>): Promise<T> {
+  warmUps?.readStarted();
+  try {
+    return await work();
+  } finally {
+    warmUps?.readDone();
+  }
+}
+
+function threadTimes(): { threadReady: number; warmed?: number } {
+  const warmedAt = warmUps?.warmedAt;
+  return { threadReady: readyAt, ...(warmedAt !== undefined ? { warmed: warmedAt } : {}) };
+}
 const flags: Int32Array | undefined = workerData?.cancelFlags instanceof SharedArrayBuffer ? new Int32Array(workerData.cancelFlags) : undefined;
 
 /** Progress at most every 100 ms, and a CancelledError as soon as the request is cancelled. */
@@ -166,50 +180,55 @@ function detailOf(l: Loaded, query: string, maxPairs?: number) {
   return { id, detail };
 }
 
+/**
+ * A view's first screen: only what the overview shows. The score diagnostics, a second pass over every
+ * query, come with their own request once the headline is on screen.
+ */
+async function loadView({ session: key, source, settings, streamFromBytes }: LoadParams, ctx: HandlerContext): Promise<WorkerRequests['load']['result']> {
+  const received = Date.now();
+  const started = performance.now();
+  prepareReload(key);
+  if (isSqlSource(source)) {
+    progressReporter(ctx, 0, 1, `Computing ${source.path.split(/[\\/]/).pop()} in ${source.sqlEngine === 'clickhouse' ? 'ClickHouse' : 'DuckDB'}…`)(0);
+    const { session: loadedSql, overview } = await loadSql(source, settings, started);
+    keep(key, loadedSql);
+    const done = Date.now();
+    return { ...overview, timeline: { ...threadTimes(), received, read: done, scored: done } };
+  }
+  // A large plain CSV/TSV dump is scored as it streams in, its overview so far sent with the progress.
+  const streamed = streamFromBytes !== undefined && mayStream(source) ? await loadStreamOrRead(source, settings, {
+    streamFromBytes, signal: ctx.signal, started, onProgress: progressReporter(ctx, 0, 1, `Streaming ${source.path.split(/[\\/]/).pop()}…`),
+    onReadProgress: progressReporter(ctx, 0, 0.75, `Reading ${source.path.split(/[\\/]/).pop()}…`),
+    onPartial: (partial) => parentPort?.postMessage({ kind: 'progress', id: ctx.id, fraction: partial.bytesRead / Math.max(1, partial.totalBytes), message: 'Streaming…', partial } satisfies ProgressEvent),
+  }) : undefined;
+  if (streamed?.kind === 'streamed') {
+    keep(key, streamed.session);
+    const done = Date.now();
+    return { ...streamed.overview, timeline: { ...threadTimes(), received, read: done, scored: done } };
+  }
+  const dump = streamed?.kind === 'read' ? streamed.dump : await read(source, ctx, 0, 0.75);
+  if (streamed?.note) dump.notes.messages.push(streamed.note);
+  else if (streamFromBytes !== undefined && streamed === undefined && dump.stamp.size >= streamFromBytes) dump.notes.messages.push(joinedNote(source));
+  const readDone = Date.now();
+  const groups = groupByQuery(dump);
+  const metrics = parseMetricList(settings.metrics);
+  // Without the sensitivity rows: the headline goes first, the rows follow on their own request.
+  const evaluation = await evaluateDump(dump, metrics, settings.conventions,
+    { groups, signal: ctx.signal, onProgress: progressReporter(ctx, 0.75, 1, 'Scoring queries…'), sensitivity: false });
+  const entry = loaded(dump, evaluation, groups);
+  keep(key, { kind: 'single', ...entry, sensitivityConventions: settings.conventions });
+  const overview = {
+    ...overviewModel(dump, evaluation, performance.now() - started),
+    sensitivityLater: true,
+    ...(evaluation.weighting ? { weighting: evaluation.weighting.source } : {}),
+    ...(dump.joined?.queryText ? { queryText: true } : {}),
+  };
+  return { ...overview, timeline: { ...threadTimes(), received, read: readDone, scored: Date.now() } };
+}
+
 const handlers: RequestHandlers<WorkerRequests> = {
-  // Only what the overview's first screen shows: the score diagnostics, a second pass over every
-  // query, come with their own request once the headline is on screen.
-  async load({ session: key, source, settings, streamFromBytes }, ctx) {
-    warmUpStop.abort();
-    const received = Date.now();
-    const started = performance.now();
-    prepareReload(key);
-    if (isSqlSource(source)) {
-      progressReporter(ctx, 0, 1, `Computing ${source.path.split(/[\\/]/).pop()} in ${source.sqlEngine === 'clickhouse' ? 'ClickHouse' : 'DuckDB'}…`)(0);
-      const { session: loadedSql, overview } = await loadSql(source, settings, started);
-      keep(key, loadedSql);
-      const done = Date.now();
-      return { ...overview, timeline: { threadReady: readyAt, ...(warmedAt ? { warmed: warmedAt } : {}), received, read: done, scored: done } };
-    }
-    // A large plain CSV/TSV dump is scored as it streams in, its overview so far sent with the progress.
-    const streamed = streamFromBytes !== undefined && mayStream(source) ? await loadStreamOrRead(source, settings, {
-      streamFromBytes, signal: ctx.signal, started, onProgress: progressReporter(ctx, 0, 1, `Streaming ${source.path.split(/[\\/]/).pop()}…`),
-      onReadProgress: progressReporter(ctx, 0, 0.75, `Reading ${source.path.split(/[\\/]/).pop()}…`),
-      onPartial: (partial) => parentPort?.postMessage({ kind: 'progress', id: ctx.id, fraction: partial.bytesRead / Math.max(1, partial.totalBytes), message: 'Streaming…', partial } satisfies ProgressEvent),
-    }) : undefined;
-    if (streamed?.kind === 'streamed') {
-      keep(key, streamed.session);
-      const done = Date.now();
-      return { ...streamed.overview, timeline: { threadReady: readyAt, ...(warmedAt ? { warmed: warmedAt } : {}), received, read: done, scored: done } };
-    }
-    const dump = streamed?.kind === 'read' ? streamed.dump : await read(source, ctx, 0, 0.75);
-    if (streamed?.note) dump.notes.messages.push(streamed.note);
-    else if (streamFromBytes !== undefined && streamed === undefined && dump.stamp.size >= streamFromBytes) dump.notes.messages.push(joinedNote(source));
-    const readDone = Date.now();
-    const groups = groupByQuery(dump);
-    const metrics = parseMetricList(settings.metrics);
-    // Without the sensitivity rows: the headline goes first, the rows follow on their own request.
-    const evaluation = await evaluateDump(dump, metrics, settings.conventions,
-      { groups, signal: ctx.signal, onProgress: progressReporter(ctx, 0.75, 1, 'Scoring queries…'), sensitivity: false });
-    const entry = loaded(dump, evaluation, groups);
-    keep(key, { kind: 'single', ...entry, sensitivityConventions: settings.conventions });
-    const overview = {
-      ...overviewModel(dump, evaluation, performance.now() - started),
-      sensitivityLater: true,
-      ...(evaluation.weighting ? { weighting: evaluation.weighting.source } : {}),
-      ...(dump.joined?.queryText ? { queryText: true } : {}),
-    };
-    return { ...overview, timeline: { threadReady: readyAt, ...(warmedAt ? { warmed: warmedAt } : {}), received, read: readDone, scored: Date.now() } };
+  load(params, ctx) {
+    return whileReading(() => loadView(params, ctx));
   },
 
   overviewDiagnostics({ session: key }) {
@@ -228,8 +247,7 @@ const handlers: RequestHandlers<WorkerRequests> = {
     return { rows: await s.sensitivity, times: { started, done: Date.now() } };
   },
 
-  async loadCompare({ session: key, a: sourceA, b: sourceB, settings }, ctx) {
-    warmUpStop.abort();
+  loadCompare: ({ session: key, a: sourceA, b: sourceB, settings }, ctx) => whileReading(async () => {
     const started = performance.now();
     prepareReload(key);
     const a = await read(sourceA, ctx, 0, 0.3, 'Reading run A,');
@@ -251,10 +269,9 @@ const handlers: RequestHandlers<WorkerRequests> = {
       table: new CompareTable(comparison, a),
     });
     return compareOverviewModel(comparison, a, b, performance.now() - started);
-  },
+  }),
 
-  async headline({ source, settings }, ctx) {
-    warmUpStop.abort();
+  headline: ({ source, settings }, ctx) => whileReading(async () => {
     if (isSqlSource(source)) throw new Error('a headline for the tree is read from files, not computed by an SQL engine');
     const dump = await read(source, ctx, 0, 0.8);
     const metrics = parseMetricList(settings.metrics);
@@ -262,10 +279,10 @@ const handlers: RequestHandlers<WorkerRequests> = {
     const h = evaluation.headline;
     const mean = evaluation.summary[h]?.mean ?? NaN;
     return { key: metrics[h]!.key, label: metricLabel(metrics[h]!), mean: Number.isFinite(mean) ? mean : null, queryCount: evaluation.queryCount, rowCount: dump.rowCount };
-  },
+  }),
 
   threadTimes() {
-    return { threadReady: readyAt, ...(warmedAt ? { warmed: warmedAt } : {}) };
+    return threadTimes();
   },
 
   unload({ session: key }) {
@@ -362,5 +379,5 @@ if (parentPort) {
     server.handleMessage(message);
   });
   // A failed warm-up costs only the speed it was for; the first real read reports its own errors.
-  if (workerData?.warmUp === true) void warmUp(undefined, warmUpStop.signal).then(() => (warmedAt = Date.now()), () => undefined);
+  warmUps?.start();
 }
