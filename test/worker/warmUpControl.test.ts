@@ -77,7 +77,7 @@ describe('the warm-up around real reads', () => {
     expect(h.runs[1]!.signal.aborted).toBe(false);
   });
 
-  it('a run that fails by itself is not tried again; a thread without a warm-up never schedules one', async () => {
+  it('a run that fails by itself is not tried again, after a read or asked to start', async () => {
     const h = harness();
     h.control.start();
     h.runs[0]!.fail(new Error('no room in the temp folder'));
