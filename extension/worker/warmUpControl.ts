@@ -1,10 +1,12 @@
 /**
  * When the engine thread's warm-up (warmUp.ts) runs. It starts with the thread; a real read stops it where
  * it is, since the user's dump goes first. A warm-up stopped that way used to be gone for good: its last
- * step starts the kept parse and score threads, so a window reloaded and a demo opened at once left every
- * later dump to one cold thread (1M rows in the editor: read in 0.68-0.96 s against 0.25-0.42 s with the
- * kept threads warm, as the first-screen benchmark showed). So a stopped warm-up runs again once the
- * thread has had nothing to read for IDLE_BEFORE_RESUME_MS, until one run finishes.
+ * step starts the kept parse and score threads, so a view opened right after a window reload left them
+ * unstarted for every later dump (the first-screen benchmark's 1M-row samples had no warm-up mark). So a
+ * stopped warm-up runs again once the thread has had nothing to read for IDLE_BEFORE_RESUME_MS, until one
+ * run finishes. In a bare Node process the same 1M-row file read in 0.24-0.42 s with kept threads against
+ * 0.30-0.44 s without; in the editor the read shares two cores with code-server and Chromium, and the
+ * benchmark's first screen did not measurably change.
  */
 
 /** Quiet time after the last read before a stopped warm-up runs again (a user's next click usually takes longer). */
